@@ -1,0 +1,352 @@
+//! `throughline`: the command line. Glue only: arguments, files, progress and exit codes; all the
+//! work is done by `throughline-core`.
+//!
+//! Exit codes: 0 success, 1 bad input (a file that cannot be read or understood), 2 bad usage.
+
+use clap::{Parser, Subcommand};
+use indicatif::{ProgressBar, ProgressStyle};
+use std::path::{Path, PathBuf};
+use std::process::ExitCode;
+use throughline_core::{detections, score, sim, track, tracks_io};
+
+#[derive(Parser)]
+#[command(
+    name = "throughline",
+    version,
+    about = "Turn detections from video into tracks, on your own computer.",
+    long_about = "Turn detections from video into tracks, on your own computer.\n\n\
+                  Nothing is uploaded: every file stays where it is. Boxes are pixels, top-left x,y then \
+                  width,height; frames are numbered from 1."
+)]
+struct Cli {
+    #[command(subcommand)]
+    command: Command,
+}
+
+#[derive(Subcommand)]
+enum Command {
+    /// Link per-frame detections into tracks.
+    #[command(long_about = "Link per-frame detections into tracks.\n\n\
+        DETECTIONS may be benchmark text (frame,id,x,y,w,h,score[,class]), CSV with a header naming \
+        frame,x,y,w,h,score (class and e0,e1,… optional), or a JSON array of \
+        {image_id, category_id, bbox:[x,y,w,h], score}; the format is recognised from the content.\n\n\
+        OUT ending in .txt gets benchmark text (frame,id,x,y,w,h,score,-1,-1,-1); any other name gets \
+        the JSON tracks document (docs/tracks-format.md). Without -o the JSON goes to standard output.")]
+    Track {
+        /// Detections file.
+        detections: PathBuf,
+        /// Where to write the tracks (.txt: benchmark text; otherwise JSON).
+        #[arg(short, long, value_name = "OUT")]
+        output: Option<PathBuf>,
+        /// Tracking method [default: bytetrack].
+        #[arg(long, value_parser = ["iou", "sort", "bytetrack", "deepsort"])]
+        method: Option<String>,
+        /// Settings file (JSON object of tracker settings; see docs/tracker-settings.md).
+        #[arg(long, value_name = "FILE")]
+        config: Option<PathBuf>,
+        /// Print no summary and no progress.
+        #[arg(short, long)]
+        quiet: bool,
+    },
+    /// Make a simulated scene with known truth: detections and ground-truth tracks.
+    Simulate {
+        /// Folder to write detections.txt, detections.csv (with embeddings if asked) and truth.txt.
+        #[arg(long, value_name = "DIR")]
+        out_dir: PathBuf,
+        #[arg(long, default_value_t = 1)]
+        seed: u64,
+        /// Length in frames.
+        #[arg(long, default_value_t = 750)]
+        frames: u32,
+        /// Mean number of agents in view.
+        #[arg(long, default_value_t = 10.0)]
+        density: f64,
+        /// Chance that a fully visible agent is missed in a frame (0..1).
+        #[arg(long, default_value_t = 0.1)]
+        miss_rate: f64,
+        /// Mean number of false detections per frame.
+        #[arg(long, default_value_t = 0.5)]
+        false_positives: f64,
+        /// Length of appearance embeddings (0 for none).
+        #[arg(long, default_value_t = 0)]
+        embedding_dim: usize,
+        #[arg(long, default_value_t = 640.0)]
+        width: f64,
+        #[arg(long, default_value_t = 360.0)]
+        height: f64,
+    },
+    /// Score tracks against ground truth (HOTA, IDF1, MOTA…).
+    Score {
+        /// Ground truth, benchmark text (frame,id,x,y,w,h,…).
+        #[arg(long, value_name = "GT")]
+        truth: PathBuf,
+        /// Tracks: benchmark text or a tracks JSON document.
+        tracks: PathBuf,
+        /// Print one JSON object instead of a table.
+        #[arg(long)]
+        json: bool,
+    },
+}
+
+/// An error for the user: what went wrong, in which file, and the exit code.
+struct Failure {
+    message: String,
+    code: u8,
+}
+
+fn bad_input(path: &Path, e: impl std::fmt::Display) -> Failure {
+    Failure {
+        message: format!("{}: {e}", path.display()),
+        code: 1,
+    }
+}
+
+fn read_file(path: &Path) -> Result<Vec<u8>, Failure> {
+    std::fs::read(path).map_err(|e| bad_input(path, format!("cannot read the file: {e}")))
+}
+
+fn write_file(path: &Path, text: &str) -> Result<(), Failure> {
+    std::fs::write(path, text).map_err(|e| Failure {
+        message: format!("{}: cannot write the file: {e}", path.display()),
+        code: 1,
+    })
+}
+
+fn main() -> ExitCode {
+    let cli = Cli::parse();
+    let result = match cli.command {
+        Command::Track {
+            detections,
+            output,
+            method,
+            config,
+            quiet,
+        } => run_track(
+            &detections,
+            output.as_deref(),
+            method.as_deref(),
+            config.as_deref(),
+            quiet,
+        ),
+        Command::Simulate {
+            out_dir,
+            seed,
+            frames,
+            density,
+            miss_rate,
+            false_positives,
+            embedding_dim,
+            width,
+            height,
+        } => run_simulate(
+            &out_dir,
+            sim::SceneConfig {
+                seed,
+                frames,
+                width,
+                height,
+                density,
+                miss_rate,
+                false_positives,
+                embedding_dim,
+                ..sim::SceneConfig::default()
+            },
+        ),
+        Command::Score {
+            truth,
+            tracks,
+            json,
+        } => run_score(&truth, &tracks, json),
+    };
+    match result {
+        Ok(()) => ExitCode::SUCCESS,
+        Err(f) => {
+            eprintln!("error: {}", f.message);
+            ExitCode::from(f.code)
+        }
+    }
+}
+
+fn run_track(
+    path: &Path,
+    output: Option<&Path>,
+    method: Option<&str>,
+    config_path: Option<&Path>,
+    quiet: bool,
+) -> Result<(), Failure> {
+    let method = method.and_then(track::Method::parse);
+    let config = match config_path {
+        Some(p) => {
+            let bytes = read_file(p)?;
+            let text = String::from_utf8_lossy(&bytes);
+            track::TrackerConfig::from_json(&text, method).map_err(|e| bad_input(p, e))?
+        }
+        None => track::TrackerConfig::for_method(method.unwrap_or(track::DEFAULT_METHOD)),
+    };
+    let bytes = read_file(path)?;
+    let report = detections::read_detections(&bytes).map_err(|e| bad_input(path, e))?;
+    drop(bytes);
+    if !quiet {
+        for w in &report.warnings {
+            match w.line {
+                Some(l) => eprintln!("warning: {}: line {l}: {}", path.display(), w.message),
+                None => eprintln!("warning: {}: {}", path.display(), w.message),
+            }
+        }
+        if report.skipped_rows > report.warnings.len() {
+            eprintln!(
+                "warning: {} rows passed over in all ({} listed above)",
+                report.skipped_rows,
+                report.warnings.len()
+            );
+        }
+    }
+    let dets = &report.detections;
+    let bar = if quiet {
+        ProgressBar::hidden()
+    } else {
+        let bar = ProgressBar::new(u64::from(dets.last_frame()));
+        bar.set_style(
+            ProgressStyle::with_template(
+                "tracking {bar:30} {pos}/{len} frames ({per_sec}, {eta} left)",
+            )
+            .unwrap_or_else(|_| ProgressStyle::default_bar()),
+        );
+        bar
+    };
+    let tracks = track::run_tracker(dets, &config, &mut |done, _| {
+        bar.set_position(u64::from(done))
+    })
+    .map_err(|e| bad_input(path, e))?;
+    bar.finish_and_clear();
+    let text = match output {
+        Some(p) if p.extension().is_some_and(|e| e.eq_ignore_ascii_case("txt")) => {
+            tracks_io::to_benchmark_text(&tracks)
+        }
+        _ => tracks_io::to_json(&tracks),
+    };
+    match output {
+        Some(p) => write_file(p, &text)?,
+        None => println!("{text}"),
+    }
+    if !quiet {
+        eprintln!(
+            "{}: {} detections ({}) over {} frames -> {} tracks with {}{}",
+            path.display(),
+            dets.rows.len(),
+            report.format,
+            dets.last_frame(),
+            tracks.tracks.len(),
+            config.method,
+            output.map_or(String::new(), |p| format!(", written to {}", p.display()))
+        );
+    }
+    Ok(())
+}
+
+fn run_simulate(dir: &Path, cfg: sim::SceneConfig) -> Result<(), Failure> {
+    let usage = |m: &str| Failure {
+        message: m.to_string(),
+        code: 2,
+    };
+    if !(0.0..=1.0).contains(&cfg.miss_rate) {
+        return Err(usage("--miss-rate must be between 0 and 1"));
+    }
+    if !(cfg.density >= 0.0
+        && cfg.false_positives >= 0.0
+        && cfg.width >= 32.0
+        && cfg.height >= 32.0)
+    {
+        return Err(usage(
+            "--density and --false-positives must not be negative; --width and --height at least 32",
+        ));
+    }
+    std::fs::create_dir_all(dir).map_err(|e| Failure {
+        message: format!("{}: cannot create the folder: {e}", dir.display()),
+        code: 1,
+    })?;
+    let scene = sim::generate(&cfg);
+    let truth: String = scene
+        .truth
+        .iter()
+        .map(|r| {
+            format!(
+                "{},{},{:.2},{:.2},{:.2},{:.2},1,{},1\n",
+                r.frame,
+                r.id,
+                r.bbox.x,
+                r.bbox.y,
+                r.bbox.w,
+                r.bbox.h,
+                scene.truth_classes[(r.id - 1) as usize] + 1
+            )
+        })
+        .collect();
+    write_file(&dir.join("truth.txt"), &truth)?;
+    write_file(
+        &dir.join("detections.txt"),
+        &detections::to_benchmark_text(&scene.detections),
+    )?;
+    write_file(
+        &dir.join("detections.csv"),
+        &detections::to_csv(&scene.detections),
+    )?;
+    eprintln!(
+        "simulated {} frames: {} true boxes of {} agents, {} detections, written to {}",
+        cfg.frames,
+        scene.truth.len(),
+        scene.truth_classes.len(),
+        scene.detections.rows.len(),
+        dir.display()
+    );
+    Ok(())
+}
+
+fn read_tracks(path: &Path) -> Result<Vec<tracks_io::IdBox>, Failure> {
+    let bytes = read_file(path)?;
+    let is_json = bytes.iter().find(|b| !b.is_ascii_whitespace()) == Some(&b'{');
+    if is_json {
+        let tracks = tracks_io::from_json(&bytes).map_err(|e| bad_input(path, e))?;
+        Ok(tracks_io::tracks_to_boxes(&tracks))
+    } else {
+        tracks_io::read_benchmark_boxes(&bytes).map_err(|e| bad_input(path, e))
+    }
+}
+
+fn run_score(truth: &Path, tracks: &Path, json: bool) -> Result<(), Failure> {
+    let gt =
+        tracks_io::read_benchmark_boxes(&read_file(truth)?).map_err(|e| bad_input(truth, e))?;
+    let tr = read_tracks(tracks)?;
+    let s = score::score(&gt, &tr).map_err(|e| Failure {
+        message: e.message,
+        code: 1,
+    })?;
+    if json {
+        println!("{}", serde_json::to_string_pretty(&s).unwrap_or_default());
+    } else {
+        let pct = |v: f64| format!("{:6.2}%", 100.0 * v);
+        println!(
+            "HOTA  {}   DetA {}   AssA {}   LocA {}",
+            pct(s.hota),
+            pct(s.deta),
+            pct(s.assa),
+            pct(s.loca)
+        );
+        println!(
+            "IDF1  {}   IDP  {}   IDR  {}",
+            pct(s.idf1),
+            pct(s.idp),
+            pct(s.idr)
+        );
+        println!("MOTA  {}   MOTP {}", pct(s.mota), pct(s.motp));
+        println!(
+            "ID switches {}   fragmentations {}   false positives {}   misses {}",
+            s.id_switches, s.fragmentations, s.false_positives, s.misses
+        );
+        println!(
+            "ground-truth objects {}: mostly tracked {}, partly {}, mostly lost {}; tracker ids {}",
+            s.gt_ids, s.mostly_tracked, s.partially_tracked, s.mostly_lost, s.tracker_ids
+        );
+    }
+    Ok(())
+}

@@ -1,0 +1,175 @@
+//! Linear Kalman filter and the constant-velocity motion model of a box.
+//!
+//! [`KalmanFilter`] is the textbook filter with the equations of `filterpy.kalman.KalmanFilter`
+//! (predict `x = Fx`, `P = FPFᵀ + Q`; update with the Joseph form `P = (I-KH)P(I-KH)ᵀ + KRKᵀ`), on
+//! `nalgebra` fixed-size matrices. [`BoxMotion`] is the model the trackers use: the state is
+//! `[cx, cy, w, h, vcx, vcy, vw, vh]` (box centre and size in pixels, and their change per frame);
+//! the measurement is `[cx, cy, w, h]`. Noise scales with the box height, so a far, small person and a
+//! near, large one are treated alike (the weighting of Wojke et al. 2017, applied to width and height).
+
+use crate::geometry::BBox;
+use nalgebra::{SMatrix, SVector};
+
+pub type State = SVector<f64, 8>;
+pub type StateCov = SMatrix<f64, 8, 8>;
+pub type Measurement = SVector<f64, 4>;
+pub type MeasurementCov = SMatrix<f64, 4, 4>;
+pub type Observation = SMatrix<f64, 4, 8>;
+
+/// 95% quantile of the chi-square distribution with 4 degrees of freedom: the usual gate on the squared
+/// Mahalanobis distance of a 4-dimensional box measurement (published table value).
+pub const CHI2_95_4DOF: f64 = 9.4877;
+
+/// State and covariance of a linear Kalman filter.
+#[derive(Debug, Clone, PartialEq)]
+pub struct KalmanFilter {
+    pub x: State,
+    pub p: StateCov,
+}
+
+impl KalmanFilter {
+    /// `x = F x`, `P = F P Fᵀ + Q`.
+    pub fn predict(&mut self, f: &StateCov, q: &StateCov) {
+        self.x = f * self.x;
+        self.p = f * self.p * f.transpose() + q;
+    }
+
+    /// Measurement `z` with observation matrix `h` and noise `r`. Returns false, leaving the state as
+    /// it was, when the innovation covariance cannot be inverted.
+    pub fn update(&mut self, z: &Measurement, h: &Observation, r: &MeasurementCov) -> bool {
+        let y = z - h * self.x;
+        let pht = self.p * h.transpose();
+        let s = h * pht + r;
+        let Some(si) = s.try_inverse() else {
+            return false;
+        };
+        let k = pht * si;
+        self.x += k * y;
+        let i_kh = StateCov::identity() - k * h;
+        self.p = i_kh * self.p * i_kh.transpose() + k * r * k.transpose();
+        true
+    }
+
+    /// Squared Mahalanobis distance of `z` from the predicted measurement; infinite when the
+    /// innovation covariance cannot be inverted.
+    pub fn mahalanobis_sq(&self, z: &Measurement, h: &Observation, r: &MeasurementCov) -> f64 {
+        let y = z - h * self.x;
+        let s = h * self.p * h.transpose() + r;
+        match s.cholesky() {
+            Some(chol) => {
+                let sol = chol.solve(&y);
+                y.dot(&sol)
+            }
+            None => f64::INFINITY,
+        }
+    }
+}
+
+/// Constant-velocity motion of a box, with noise proportional to its height.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct BoxMotion {
+    /// Standard deviation of position and size, as a fraction of the box height.
+    pub position_weight: f64,
+    /// Standard deviation of the change per frame, as a fraction of the box height.
+    pub velocity_weight: f64,
+}
+
+impl Default for BoxMotion {
+    fn default() -> Self {
+        // The weights published with DeepSORT (Wojke et al. 2017): 1/20 and 1/160 of the height.
+        Self {
+            position_weight: 1.0 / 20.0,
+            velocity_weight: 1.0 / 160.0,
+        }
+    }
+}
+
+/// Measurement vector `[cx, cy, w, h]` of a box.
+pub fn measurement(b: &BBox) -> Measurement {
+    let c = b.centre();
+    Measurement::new(c.x, c.y, b.w, b.h)
+}
+
+impl BoxMotion {
+    /// The transition matrix: position plus one frame of velocity.
+    pub fn transition() -> StateCov {
+        let mut f = StateCov::identity();
+        for i in 0..4 {
+            f[(i, i + 4)] = 1.0;
+        }
+        f
+    }
+
+    /// The observation matrix: the first four state entries.
+    pub fn observation() -> Observation {
+        let mut h = Observation::zeros();
+        for i in 0..4 {
+            h[(i, i)] = 1.0;
+        }
+        h
+    }
+
+    fn scale(height: f64) -> f64 {
+        // A floor keeps the noise positive for collapsed boxes.
+        height.abs().max(1.0)
+    }
+
+    /// Process noise for a box of the given height.
+    pub fn process_noise(&self, height: f64) -> StateCov {
+        let h = Self::scale(height);
+        let sp = (self.position_weight * h).powi(2);
+        let sv = (self.velocity_weight * h).powi(2);
+        StateCov::from_diagonal(&State::from_column_slice(&[sp, sp, sp, sp, sv, sv, sv, sv]))
+    }
+
+    /// Measurement noise for a box of the given height.
+    pub fn measurement_noise(&self, height: f64) -> MeasurementCov {
+        let sp = (self.position_weight * Self::scale(height)).powi(2);
+        MeasurementCov::from_diagonal(&Measurement::new(sp, sp, sp, sp))
+    }
+
+    /// A filter started on a first observed box, with zero velocity and a wide velocity uncertainty.
+    pub fn initiate(&self, b: &BBox) -> KalmanFilter {
+        let h = Self::scale(b.h);
+        let z = measurement(b);
+        let mut x = State::zeros();
+        x.fixed_rows_mut::<4>(0).copy_from(&z);
+        let sp = (2.0 * self.position_weight * h).powi(2);
+        let sv = (10.0 * self.velocity_weight * h).powi(2);
+        KalmanFilter {
+            x,
+            p: StateCov::from_diagonal(&State::from_column_slice(&[
+                sp, sp, sp, sp, sv, sv, sv, sv,
+            ])),
+        }
+    }
+
+    /// One frame ahead. A size that would shrink below one pixel stops shrinking.
+    pub fn predict(&self, kf: &mut KalmanFilter) {
+        for i in 2..4 {
+            if kf.x[i] + kf.x[i + 4] < 1.0 {
+                kf.x[i + 4] = 0.0;
+            }
+        }
+        let q = self.process_noise(kf.x[3]);
+        kf.predict(&Self::transition(), &q);
+    }
+
+    /// Correct the filter with an observed box.
+    pub fn update(&self, kf: &mut KalmanFilter, b: &BBox) -> bool {
+        let r = self.measurement_noise(kf.x[3]);
+        kf.update(&measurement(b), &Self::observation(), &r)
+    }
+
+    /// Squared Mahalanobis distance of a box from the filter's predicted box.
+    pub fn gating_distance(&self, kf: &KalmanFilter, b: &BBox) -> f64 {
+        let r = self.measurement_noise(kf.x[3]);
+        kf.mahalanobis_sq(&measurement(b), &Self::observation(), &r)
+    }
+
+    /// The box the filter currently believes in.
+    pub fn bbox(kf: &KalmanFilter) -> BBox {
+        let (w, h) = (kf.x[2].max(0.0), kf.x[3].max(0.0));
+        BBox::from_centre(kf.x[0], kf.x[1], w, h)
+    }
+}

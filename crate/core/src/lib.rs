@@ -1,0 +1,26 @@
+//! Throughline's core: detections in, tracks out (and, in later modules, counts out).
+//!
+//! Everything here is pure computation on bytes, strings and numbers. The core knows nothing of the
+//! browser, the file system, clocks or the terminal, so the command line and the WebAssembly build
+//! give the same answer for the same input.
+//!
+//! Conventions used throughout:
+//! - boxes are in pixels, **top-left x/y plus width/height** ([`geometry::BBox`]), image y pointing down;
+//! - frame numbers are **1-based**, as in the benchmark text format.
+
+pub mod assign;
+pub mod detections;
+pub mod geometry;
+pub mod kalman;
+pub mod rng;
+pub mod score;
+pub mod sim;
+pub mod track;
+pub mod tracks_io;
+
+pub use detections::{read_detections, DetectionFormat, Detections, ReadError, ReadReport};
+pub use geometry::BBox;
+pub use track::{run_tracker, Method, TrackerConfig, Tracks};
+
+/// Version of the core, written into every output document.
+pub const VERSION: &str = env!("CARGO_PKG_VERSION");

@@ -1,0 +1,225 @@
+//! Tracker settings: which method, and its parameters, with per-method defaults.
+//!
+//! A settings file (JSON) names any subset of the fields; the rest take the chosen method's
+//! defaults. Unknown fields are an error, so a misspelt setting is never silently ignored.
+
+use serde::{Deserialize, Serialize};
+use std::fmt;
+
+/// The published tracking methods Throughline implements.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize, Deserialize)]
+#[serde(rename_all = "lowercase")]
+pub enum Method {
+    /// IoU chaining of detections frame to frame (Bochinski et al. 2017), no motion model.
+    Iou,
+    /// Kalman prediction + Hungarian assignment on IoU (Bewley et al. 2016).
+    Sort,
+    /// Two-stage association: high-score boxes first, then low-score ones (Zhang et al. 2022).
+    Bytetrack,
+    /// Appearance (cosine distance to a gallery of embeddings) gated by Mahalanobis distance, in a
+    /// matching cascade, then IoU (Wojke et al. 2017). Needs detections with embeddings.
+    Deepsort,
+}
+
+impl Method {
+    pub const ALL: [Method; 4] = [
+        Method::Iou,
+        Method::Sort,
+        Method::Bytetrack,
+        Method::Deepsort,
+    ];
+
+    pub fn name(self) -> &'static str {
+        match self {
+            Method::Iou => "iou",
+            Method::Sort => "sort",
+            Method::Bytetrack => "bytetrack",
+            Method::Deepsort => "deepsort",
+        }
+    }
+
+    pub fn parse(s: &str) -> Option<Method> {
+        Self::ALL.into_iter().find(|m| m.name() == s)
+    }
+}
+
+impl fmt::Display for Method {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        f.write_str(self.name())
+    }
+}
+
+/// The method used when none is named. See DEVELOPERS.md ("Choice of the default method") for the
+/// measurements behind it.
+pub const DEFAULT_METHOD: Method = Method::Bytetrack;
+
+/// Every setting of every method. Fields a method does not use are ignored by it.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct TrackerConfig {
+    pub method: Method,
+    /// Detections scoring below this are not used at all.
+    pub min_score: f64,
+    /// Least IoU for a match between a track's (predicted) box and a detection.
+    pub min_iou: f64,
+    /// Observations needed before a tentative track is confirmed and numbered.
+    pub min_hits: u32,
+    /// Frames a confirmed track may go unseen (coasting) before it ends.
+    pub max_age: u32,
+    /// A track is confirmed only once one of its detections scored at least this (`iou`: σ_h).
+    pub confirm_score: f64,
+    /// `bytetrack`: detections at or above this score are "high"; between `min_score` and this, "low".
+    pub high_score: f64,
+    /// `bytetrack`: least score of a detection that starts a new track.
+    pub new_track_score: f64,
+    /// `bytetrack`: least IoU when matching low-score detections in the second stage.
+    pub low_min_iou: f64,
+    /// `deepsort`: largest cosine distance between a detection and a track's gallery for a match.
+    pub max_cosine_distance: f64,
+    /// `deepsort`: embeddings kept per track.
+    pub gallery_size: u32,
+    /// `deepsort`: largest squared Mahalanobis distance for a match (chi-square 95%, 4 d.o.f.).
+    pub max_mahalanobis: f64,
+}
+
+impl TrackerConfig {
+    /// The defaults of a method.
+    pub fn for_method(method: Method) -> Self {
+        let base = TrackerConfig {
+            method,
+            min_score: 0.3,
+            min_iou: 0.3,
+            min_hits: 3,
+            max_age: 30,
+            confirm_score: 0.0,
+            high_score: 0.6,
+            new_track_score: 0.7,
+            low_min_iou: 0.5,
+            max_cosine_distance: 0.2,
+            gallery_size: 100,
+            max_mahalanobis: crate::kalman::CHI2_95_4DOF,
+        };
+        match method {
+            // σ_l = 0.3, σ_h = 0.5, σ_IoU = 0.5 and a minimum length, as in the IoU tracker paper's
+            // setting for good detectors; a short gap is allowed since simulated and real detectors miss.
+            Method::Iou => TrackerConfig {
+                min_iou: 0.5,
+                confirm_score: 0.5,
+                max_age: 2,
+                ..base
+            },
+            Method::Sort => base,
+            // ByteTrack keeps low-score boxes for its second stage.
+            Method::Bytetrack => TrackerConfig {
+                min_score: 0.1,
+                min_iou: 0.2,
+                min_hits: 2,
+                ..base
+            },
+            Method::Deepsort => base,
+        }
+    }
+
+    /// Settings from a JSON settings file: the named method's defaults (or the default method's),
+    /// overridden by every field the file gives.
+    pub fn from_json(text: &str, method_override: Option<Method>) -> Result<Self, ConfigError> {
+        let value: serde_json::Value = serde_json::from_str(text).map_err(|e| ConfigError {
+            message: format!("the settings file is not valid JSON: {e}"),
+        })?;
+        let serde_json::Value::Object(fields) = value else {
+            return Err(ConfigError {
+                message: "the settings file must be a JSON object such as {\"method\": \"sort\", \"max_age\": 20}"
+                    .into(),
+            });
+        };
+        let named = match fields.get("method") {
+            None => None,
+            Some(serde_json::Value::String(s)) => Some(Method::parse(s).ok_or_else(|| ConfigError {
+                message: format!("unknown method `{s}` in the settings file: use iou, sort, bytetrack or deepsort"),
+            })?),
+            Some(_) => {
+                return Err(ConfigError {
+                    message: "`method` in the settings file must be a string".into(),
+                })
+            }
+        };
+        let method = method_override.or(named).unwrap_or(DEFAULT_METHOD);
+        let mut merged =
+            serde_json::to_value(Self::for_method(method)).map_err(|e| ConfigError {
+                message: e.to_string(),
+            })?;
+        if let serde_json::Value::Object(m) = &mut merged {
+            for (k, v) in fields {
+                if k != "method" {
+                    m.insert(k, v);
+                }
+            }
+        }
+        let config: TrackerConfig = serde_json::from_value(merged).map_err(|e| ConfigError {
+            message: format!("in the settings file: {e}"),
+        })?;
+        config.validate()?;
+        Ok(config)
+    }
+
+    /// Checks ranges, naming the field to fix.
+    pub fn validate(&self) -> Result<(), ConfigError> {
+        let unit = [
+            ("min_iou", self.min_iou),
+            ("low_min_iou", self.low_min_iou),
+            ("max_cosine_distance", self.max_cosine_distance),
+        ];
+        for (name, v) in unit {
+            if !(0.0..=1.0).contains(&v) {
+                return Err(ConfigError {
+                    message: format!("`{name}` is {v}, but must be between 0 and 1"),
+                });
+            }
+        }
+        let finite = [
+            ("min_score", self.min_score),
+            ("confirm_score", self.confirm_score),
+            ("high_score", self.high_score),
+            ("new_track_score", self.new_track_score),
+            ("max_mahalanobis", self.max_mahalanobis),
+        ];
+        for (name, v) in finite {
+            if !v.is_finite() {
+                return Err(ConfigError {
+                    message: format!("`{name}` must be a finite number"),
+                });
+            }
+        }
+        if self.min_hits == 0 {
+            return Err(ConfigError {
+                message: "`min_hits` must be at least 1".into(),
+            });
+        }
+        if self.gallery_size == 0 {
+            return Err(ConfigError {
+                message: "`gallery_size` must be at least 1".into(),
+            });
+        }
+        Ok(())
+    }
+}
+
+impl Default for TrackerConfig {
+    fn default() -> Self {
+        Self::for_method(DEFAULT_METHOD)
+    }
+}
+
+/// A settings problem, naming the field to fix.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct ConfigError {
+    pub message: String,
+}
+
+impl fmt::Display for ConfigError {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        f.write_str(&self.message)
+    }
+}
+
+impl std::error::Error for ConfigError {}

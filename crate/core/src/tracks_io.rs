@@ -1,0 +1,254 @@
+//! Writing and reading tracks: the benchmark text format and Throughline's JSON tracks document.
+//!
+//! Benchmark text: one line per box, `frame,id,x,y,w,h,score,-1,-1,-1`, sorted by frame then id,
+//! frames 1-based, boxes in pixels (top-left x/y + width/height). Observed and predicted boxes of
+//! confirmed tracks are written; predicted boxes carry score 0.
+//!
+//! The JSON tracks document is described in `docs/tracks-format.md`.
+
+use crate::detections::{self, ReadError, ReadErrorKind};
+use crate::geometry::BBox;
+use crate::track::{Track, TrackBox, TrackerConfig, Tracks};
+use serde::{Deserialize, Serialize};
+use std::fmt::Write as _;
+
+/// Identifies a Throughline tracks document.
+pub const TRACKS_FORMAT: &str = "throughline-tracks";
+/// Version of the tracks document layout.
+pub const TRACKS_VERSION: u32 = 1;
+
+fn round(v: f64, places: i32) -> f64 {
+    let p = 10f64.powi(places);
+    let r = (v * p).round() / p;
+    if r == 0.0 {
+        0.0
+    } else {
+        r
+    }
+}
+
+/// Writes tracks in the benchmark text format.
+pub fn to_benchmark_text(tracks: &Tracks) -> String {
+    let mut rows: Vec<(u32, u32, &TrackBox)> = tracks
+        .tracks
+        .iter()
+        .flat_map(|t| t.boxes.iter().map(move |b| (b.frame, t.id, b)))
+        .collect();
+    rows.sort_by_key(|&(f, id, _)| (f, id));
+    let mut out = String::with_capacity(rows.len() * 48);
+    for (frame, id, b) in rows {
+        let _ = writeln!(
+            out,
+            "{frame},{id},{},{},{},{},{},-1,-1,-1",
+            round(b.bbox.x, 2),
+            round(b.bbox.y, 2),
+            round(b.bbox.w, 2),
+            round(b.bbox.h, 2),
+            round(b.score, 4)
+        );
+    }
+    out
+}
+
+#[derive(Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct TracksDocument {
+    format: String,
+    version: u32,
+    generator: String,
+    settings: TrackerConfig,
+    frame_count: u32,
+    box_layout: Vec<String>,
+    tracks: Vec<TrackEntry>,
+}
+
+#[derive(Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct TrackEntry {
+    id: u32,
+    class: Option<String>,
+    mean_score: f64,
+    first_frame: u32,
+    last_frame: u32,
+    observed_boxes: usize,
+    /// `[frame, x, y, w, h, score, observed (1 or 0)]`
+    boxes: Vec<(u32, f64, f64, f64, f64, f64, u8)>,
+}
+
+const BOX_LAYOUT: [&str; 7] = ["frame", "x", "y", "w", "h", "score", "observed"];
+
+/// Writes the JSON tracks document (pretty-printed at the top level, one box per array).
+pub fn to_json(tracks: &Tracks) -> String {
+    let doc = TracksDocument {
+        format: TRACKS_FORMAT.into(),
+        version: TRACKS_VERSION,
+        generator: format!("throughline {}", crate::VERSION),
+        settings: tracks.config.clone(),
+        frame_count: tracks.frame_count,
+        box_layout: BOX_LAYOUT.iter().map(|s| s.to_string()).collect(),
+        tracks: tracks
+            .tracks
+            .iter()
+            .map(|t| TrackEntry {
+                id: t.id,
+                class: t.class.clone(),
+                mean_score: round(t.mean_score, 4),
+                first_frame: t.first_frame(),
+                last_frame: t.last_frame(),
+                observed_boxes: t.boxes.iter().filter(|b| b.observed).count(),
+                boxes: t
+                    .boxes
+                    .iter()
+                    .map(|b| {
+                        (
+                            b.frame,
+                            round(b.bbox.x, 2),
+                            round(b.bbox.y, 2),
+                            round(b.bbox.w, 2),
+                            round(b.bbox.h, 2),
+                            round(b.score, 4),
+                            u8::from(b.observed),
+                        )
+                    })
+                    .collect(),
+            })
+            .collect(),
+    };
+    serde_json::to_string(&doc).unwrap_or_default()
+}
+
+/// Reads a JSON tracks document written by [`to_json`].
+pub fn from_json(bytes: &[u8]) -> Result<Tracks, ReadError> {
+    let text = detections::as_text(bytes)?;
+    let doc: TracksDocument = serde_json::from_str(text).map_err(|e| {
+        let mut message = e.to_string();
+        if let Some(cut) = message.rfind(" at line ") {
+            message.truncate(cut);
+        }
+        ReadError::new(
+            ReadErrorKind::BadJson,
+            format!(
+                "{message}; expected a Throughline tracks document (see docs/tracks-format.md)"
+            ),
+        )
+        .at(e.line().max(1), Some(e.column().max(1)))
+    })?;
+    if doc.format != TRACKS_FORMAT {
+        return Err(ReadError::new(
+            ReadErrorKind::BadJson,
+            format!("`format` is `{}`, expected `{TRACKS_FORMAT}`", doc.format),
+        ));
+    }
+    if doc.version != TRACKS_VERSION {
+        return Err(ReadError::new(
+            ReadErrorKind::BadJson,
+            format!(
+                "tracks document version {} is not known to this program (it reads version {TRACKS_VERSION})",
+                doc.version
+            ),
+        ));
+    }
+    let tracks = doc
+        .tracks
+        .into_iter()
+        .map(|t| Track {
+            id: t.id,
+            class: t.class,
+            mean_score: t.mean_score,
+            boxes: t
+                .boxes
+                .into_iter()
+                .map(|(frame, x, y, w, h, score, observed)| TrackBox {
+                    frame,
+                    bbox: BBox::new(x, y, w, h),
+                    score,
+                    observed: observed != 0,
+                })
+                .collect(),
+        })
+        .collect();
+    Ok(Tracks {
+        config: doc.settings,
+        frame_count: doc.frame_count,
+        tracks,
+    })
+}
+
+/// One row of a benchmark text file read as tracks or ground truth.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct IdBox {
+    pub frame: u32,
+    pub id: i64,
+    pub bbox: BBox,
+}
+
+/// Reads `frame,id,x,y,w,h[,…]` rows (tracker output or ground truth), in file order.
+pub fn read_benchmark_boxes(bytes: &[u8]) -> Result<Vec<IdBox>, ReadError> {
+    let text = detections::as_text(bytes)?;
+    let mut out = Vec::new();
+    for (i, raw) in text.lines().enumerate() {
+        let line = i + 1;
+        let l = raw.trim();
+        if l.is_empty() || l.starts_with('#') {
+            continue;
+        }
+        let fields = detections::split_fields(l);
+        if fields.len() < 6 {
+            return Err(ReadError::new(
+                ReadErrorKind::MissingColumn,
+                format!(
+                    "{} columns, but at least 6 are needed: frame,id,x,y,w,h",
+                    fields.len()
+                ),
+            )
+            .at(line, None));
+        }
+        let names = ["frame", "id", "x", "y", "w", "h"];
+        let mut v = [0.0; 6];
+        for (k, name) in names.iter().enumerate() {
+            v[k] = detections::number(fields[k], name, line, k + 1)?;
+        }
+        let frame = detections::frame_number(v[0], line, 1)?;
+        if v[1].fract() != 0.0 {
+            return Err(ReadError::new(
+                ReadErrorKind::BadNumber,
+                format!("id `{}` is not a whole number", fields[1]),
+            )
+            .at(line, Some(2)));
+        }
+        if v[4] < 0.0 || v[5] < 0.0 {
+            return Err(ReadError::new(
+                ReadErrorKind::NegativeSize,
+                "box sizes must not be negative (x,y,w,h: top-left then width and height)",
+            )
+            .at(line, Some(5)));
+        }
+        out.push(IdBox {
+            frame,
+            id: v[1] as i64,
+            bbox: BBox::new(v[2], v[3], v[4], v[5]),
+        });
+    }
+    if out.is_empty() {
+        return Err(ReadError::new(
+            ReadErrorKind::Empty,
+            "no rows found: expected frame,id,x,y,w,h lines",
+        ));
+    }
+    Ok(out)
+}
+
+/// Tracker output as id boxes (for scoring).
+pub fn tracks_to_boxes(tracks: &Tracks) -> Vec<IdBox> {
+    tracks
+        .tracks
+        .iter()
+        .flat_map(|t| {
+            t.boxes.iter().map(move |b| IdBox {
+                frame: b.frame,
+                id: i64::from(t.id),
+                bbox: b.bbox,
+            })
+        })
+        .collect()
+}

@@ -1,0 +1,269 @@
+//! Detection readers: each format, and a clear error with the line and column for each kind of bad
+//! input. One helper per expectation, many small cases.
+
+use throughline_core::detections::{read_detections, DetectionFormat, ReadErrorKind};
+
+/// Reads `input` and checks the format, number of rows and skipped rows.
+fn check_ok(input: &str, format: DetectionFormat, rows: usize, skipped: usize) {
+    let r = read_detections(input.as_bytes()).unwrap_or_else(|e| panic!("{input:?}: {e}"));
+    assert_eq!(r.format, format, "{input:?}");
+    assert_eq!(r.detections.rows.len(), rows, "{input:?}");
+    assert_eq!(r.skipped_rows, skipped, "{input:?}");
+}
+
+/// Reads `input` expecting an error of `kind` at `line` (and `column`), whose message contains `hint`.
+fn check_err(
+    input: &[u8],
+    kind: ReadErrorKind,
+    line: Option<usize>,
+    column: Option<usize>,
+    hint: &str,
+) {
+    let e = read_detections(input).expect_err("should fail");
+    assert_eq!(e.kind, kind, "{e}");
+    assert_eq!(e.line, line, "{e}");
+    if column.is_some() {
+        assert_eq!(e.column, column, "{e}");
+    }
+    assert!(
+        e.to_string().contains(hint),
+        "message `{e}` should mention `{hint}`"
+    );
+}
+
+#[test]
+fn benchmark_text() {
+    use DetectionFormat::BenchmarkText as B;
+    check_ok("1,-1,10,20,30,40,0.9\n", B, 1, 0);
+    check_ok(
+        "1,-1,10,20,30,40,0.9,-1,-1,-1\n2,-1,11,21,30,40,0.8,-1,-1,-1\n",
+        B,
+        2,
+        0,
+    );
+    check_ok("# a comment\n\n1,-1,10,20,30,40,0.9\r\n", B, 1, 0);
+    check_ok("1,-1,10,20,0,40,0.9\n1,-1,10,20,30,40,0.9\n", B, 1, 1);
+    check_ok(" 1, -1, 10.5, 20.25, 30, 40, 0.9 \n", B, 1, 0);
+}
+
+#[test]
+fn benchmark_text_class_column_and_order() {
+    let r =
+        read_detections(b"3,-1,0,0,5,5,0.9,2\n1,-1,0,0,5,5,0.9,1\n1,-1,9,9,5,5,0.5,-1\n").unwrap();
+    let d = &r.detections;
+    let frames: Vec<u32> = d.rows.iter().map(|r| r.frame).collect();
+    assert_eq!(frames, vec![1, 1, 3], "rows are sorted by frame");
+    assert_eq!(d.class_name(d.rows[0].class), Some("1"));
+    assert_eq!(d.rows[1].class, None, "-1 means no class");
+    assert_eq!(d.class_name(d.rows[2].class), Some("2"));
+}
+
+#[test]
+fn csv_with_header() {
+    use DetectionFormat::CsvWithHeader as C;
+    check_ok("frame,x,y,w,h,score\n1,10,20,30,40,0.9\n", C, 1, 0);
+    check_ok(
+        "Frame, X, Y, W, H, Score, Class\n1,10,20,30,40,0.9,cyclist\n",
+        C,
+        1,
+        0,
+    );
+    check_ok("score,frame,h,w,y,x\n0.9,1,40,30,20,10\n", C, 1, 0);
+    let r =
+        read_detections(b"frame,x,y,w,h,score,class,e0,e1,e2\n2,1,2,3,4,0.5,\"car\",0.1,0.2,0.3\n")
+            .unwrap();
+    let d = &r.detections;
+    assert_eq!(d.embedding_dim, 3);
+    assert_eq!(d.embedding(&d.rows[0]), Some(&[0.1f32, 0.2, 0.3][..]));
+    assert_eq!(d.class_name(d.rows[0].class), Some("car"));
+    assert_eq!(d.rows[0].bbox.w, 3.0);
+}
+
+#[test]
+fn json_results() {
+    use DetectionFormat::JsonResults as J;
+    check_ok(
+        r#"[{"image_id": 1, "category_id": 3, "bbox": [1, 2, 3, 4], "score": 0.7}]"#,
+        J,
+        1,
+        0,
+    );
+    check_ok(
+        r#"[ {"image_id": 2, "bbox": [1,2,3,4], "score": 0.7, "area": 12},
+             {"image_id": 1, "category_id": "person", "bbox": [1,2,0,4], "score": 0.7} ]"#,
+        J,
+        1,
+        1,
+    );
+    let r = read_detections(
+        br#"[{"image_id": 1, "bbox": [1,2,3,4], "score": 0.7, "embedding": [1, 0]}]"#,
+    )
+    .unwrap();
+    assert_eq!(r.detections.embedding_dim, 2);
+}
+
+#[test]
+fn bad_input_names_the_place_and_the_fix() {
+    use ReadErrorKind::*;
+    check_err(b"", Empty, None, None, "empty");
+    check_err(b"   \n\n", Empty, None, None, "empty");
+    check_err(
+        b"\x1aE\xdf\xa3\x00\x00\x00\x00webm",
+        Binary,
+        None,
+        None,
+        "binary",
+    );
+    check_err(
+        b"1,-1,10,20,30,40,0.9\n2,-1,1\xff,2,3,4,0.5\n",
+        Binary,
+        Some(2),
+        None,
+        "UTF-8",
+    );
+    check_err(
+        b"1,-1,10,20,30,40,0.9\n2,-1,abc,20,30,40,0.9\n",
+        BadNumber,
+        Some(2),
+        Some(3),
+        "`abc` in column `x`",
+    );
+    check_err(
+        b"1,-1,10,20,30,40,0.9\n2,-1,1e,20,30,40,0.9\n",
+        BadNumber,
+        Some(2),
+        Some(3),
+        "not a number",
+    );
+    check_err(
+        b"1,-1,10,20,30,40,nan\n",
+        NotFinite,
+        Some(1),
+        Some(7),
+        "finite",
+    );
+    check_err(
+        b"1,-1,10,20,inf,40,0.9\n",
+        NotFinite,
+        Some(1),
+        Some(5),
+        "finite",
+    );
+    check_err(
+        b"1,-1,10,20,-30,40,0.9\n",
+        NegativeSize,
+        Some(1),
+        Some(5),
+        "not be negative",
+    );
+    check_err(
+        b"0,-1,10,20,30,40,0.9\n",
+        BadFrame,
+        Some(1),
+        Some(1),
+        "add 1",
+    );
+    check_err(
+        b"1.5,-1,10,20,30,40,0.9\n",
+        BadFrame,
+        Some(1),
+        Some(1),
+        "whole number",
+    );
+    check_err(
+        b"1,-1,10,20,30,40\n",
+        MissingColumn,
+        Some(1),
+        None,
+        "at least 7",
+    );
+    check_err(
+        b"frame,x,y,w,score\n1,2,3,4,0.5\n",
+        BadHeader,
+        Some(1),
+        None,
+        "no `h` column",
+    );
+    check_err(
+        b"frame,x,y,w,h,score\n1,2,3,4,5\n",
+        WrongColumnCount,
+        Some(2),
+        None,
+        "header names 6",
+    );
+    check_err(
+        b"frame,x,y,w,h,score,e0,e2\n",
+        BadHeader,
+        Some(1),
+        Some(8),
+        "without gaps",
+    );
+    check_err(
+        b"frame,x,y,w,h,score\n",
+        Empty,
+        None,
+        None,
+        "no detection rows",
+    );
+    check_err(
+        b"[{\"image_id\": 1, \"bbox\": [1,2,3], \"score\": 0.5}]",
+        MissingColumn,
+        Some(1),
+        None,
+        "4 numbers",
+    );
+    check_err(
+        b"[{\"image_id\": 0, \"bbox\": [1,2,3,4], \"score\": 0.5}]",
+        BadFrame,
+        Some(1),
+        None,
+        "add 1",
+    );
+    check_err(
+        b"[{\"image_id\": 1, \"bbox\": [1,2,-3,4], \"score\": 0.5}]",
+        NegativeSize,
+        Some(1),
+        None,
+        "negative",
+    );
+    check_err(
+        b"[{\"image_id\": 1, \"bbox\": [1,2,3,4]}]",
+        BadJson,
+        Some(1),
+        None,
+        "score",
+    );
+    check_err(
+        b"[{\"image_id\": 1,\n \"bbox\": [1,2,3,4], \"score\": 0.5},\n",
+        BadJson,
+        Some(3),
+        None,
+        "JSON array",
+    );
+    check_err(
+        b"{\"detections\": []}",
+        BadJson,
+        Some(1),
+        None,
+        "JSON array",
+    );
+    check_err(
+        b"[{\"image_id\": 1, \"bbox\": [1,2,3,4], \"score\": 0.5, \"embedding\": [1,2]},\n{\"image_id\": 1, \"bbox\": [1,2,3,4], \"score\": 0.5, \"embedding\": [1]}]",
+        Embedding,
+        Some(2),
+        None,
+        "same length",
+    );
+}
+
+#[test]
+fn warnings_are_counted_even_past_the_kept_ones() {
+    let mut text = String::new();
+    for f in 1..=50 {
+        text.push_str(&format!("{f},-1,1,1,0,5,0.9\n{f},-1,1,1,5,5,0.9\n"));
+    }
+    let r = read_detections(text.as_bytes()).unwrap();
+    assert_eq!(r.skipped_rows, 50);
+    assert_eq!(r.warnings.len(), throughline_core::detections::MAX_WARNINGS);
+    assert_eq!(r.detections.rows.len(), 50);
+}
