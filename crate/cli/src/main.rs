@@ -38,7 +38,7 @@ enum Command {
         /// Where to write the tracks (.txt: benchmark text; otherwise JSON).
         #[arg(short, long, value_name = "OUT")]
         output: Option<PathBuf>,
-        /// Tracking method [default: bytetrack].
+        /// Tracking method [default: deepsort when the detections carry embeddings, else sort].
         #[arg(long, value_parser = ["iou", "sort", "bytetrack", "deepsort"])]
         method: Option<String>,
         /// Settings file (JSON object of tracker settings; see docs/tracker-settings.md).
@@ -47,6 +47,9 @@ enum Command {
         /// Print no summary and no progress.
         #[arg(short, long)]
         quiet: bool,
+        /// Print the time taken and the peak memory on standard error at the end.
+        #[arg(long)]
+        stats: bool,
     },
     /// Make a simulated scene with known truth: detections and ground-truth tracks.
     Simulate {
@@ -121,13 +124,15 @@ fn main() -> ExitCode {
             method,
             config,
             quiet,
-        } => run_track(
-            &detections,
-            output.as_deref(),
-            method.as_deref(),
-            config.as_deref(),
-            quiet,
-        ),
+            stats,
+        } => {
+            let started = std::time::Instant::now();
+            let r = run_track(&detections, output.as_deref(), method.as_deref(), config.as_deref(), quiet);
+            if stats {
+                print_stats(started);
+            }
+            r
+        }
         Command::Simulate {
             out_dir,
             seed,
@@ -174,18 +179,26 @@ fn run_track(
     config_path: Option<&Path>,
     quiet: bool,
 ) -> Result<(), Failure> {
-    let method = method.and_then(track::Method::parse);
-    let config = match config_path {
+    let flag_method = method.and_then(track::Method::parse);
+    let settings = match config_path {
         Some(p) => {
             let bytes = read_file(p)?;
-            let text = String::from_utf8_lossy(&bytes);
-            track::TrackerConfig::from_json(&text, method).map_err(|e| bad_input(p, e))?
+            let text = String::from_utf8_lossy(&bytes).into_owned();
+            let named = track::TrackerConfig::method_in_json(&text).map_err(|e| bad_input(p, e))?;
+            Some((p, text, named))
         }
-        None => track::TrackerConfig::for_method(method.unwrap_or(track::DEFAULT_METHOD)),
+        None => None,
     };
     let bytes = read_file(path)?;
     let report = detections::read_detections(&bytes).map_err(|e| bad_input(path, e))?;
     drop(bytes);
+    let method = flag_method
+        .or(settings.as_ref().and_then(|s| s.2))
+        .unwrap_or_else(|| track::default_method(report.detections.embedding_dim > 0));
+    let config = match &settings {
+        Some((p, text, _)) => track::TrackerConfig::from_json(text, method).map_err(|e| bad_input(p, e))?,
+        None => track::TrackerConfig::for_method(method),
+    };
     if !quiet {
         for w in &report.warnings {
             match w.line {
@@ -242,6 +255,21 @@ fn run_track(
         );
     }
     Ok(())
+}
+
+/// Wall time and peak resident memory (Linux `VmHWM`; elsewhere only the time).
+fn print_stats(started: std::time::Instant) {
+    let peak = std::fs::read_to_string("/proc/self/status").ok().and_then(|s| {
+        s.lines()
+            .find(|l| l.starts_with("VmHWM:"))
+            .and_then(|l| l.split_whitespace().nth(1))
+            .and_then(|kib| kib.parse::<f64>().ok())
+    });
+    let seconds = started.elapsed().as_secs_f64();
+    match peak {
+        Some(kib) => eprintln!("stats: {seconds:.3} s, peak memory {:.1} MiB", kib / 1024.0),
+        None => eprintln!("stats: {seconds:.3} s"),
+    }
 }
 
 fn run_simulate(dir: &Path, cfg: sim::SceneConfig) -> Result<(), Failure> {

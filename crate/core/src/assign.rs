@@ -11,9 +11,9 @@
 //! - **Rectangular matrices.** A matrix with more rows than columns is solved transposed.
 //! - **Non-finite costs** (NaN, ±∞) are replaced by one more than the largest finite cost.
 //!
-//! [`solve_gated`] adds gating as trackers need it: entries above the gate are clamped to just above
-//! it, the matrix is solved, and pairs above the gate are dropped. When no entry passes the gate the
-//! solver is not run at all and nothing is matched.
+//! [`solve_gated`] adds gating as trackers need it: the result is that of clamping entries above the
+//! gate to just above it, solving, and dropping the pairs above the gate, computed component by
+//! component. When no entry passes the gate nothing is matched.
 
 use pathfinding::kuhn_munkres::kuhn_munkres_min;
 use pathfinding::matrix::Matrix;
@@ -113,26 +113,111 @@ pub fn solve(cost: &CostMatrix) -> Vec<(usize, usize)> {
     pairs
 }
 
+/// A candidate pair for [`solve_edges`]: row, column and cost.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Edge {
+    pub row: usize,
+    pub col: usize,
+    pub cost: f64,
+}
+
 /// Least-cost assignment keeping only pairs whose cost is at most `gate`.
 pub fn solve_gated(cost: &CostMatrix, gate: f64) -> Vec<(usize, usize)> {
+    let mut edges = Vec::new();
+    for row in 0..cost.rows {
+        for col in 0..cost.cols {
+            edges.push(Edge {
+                row,
+                col,
+                cost: cost.get(row, col),
+            });
+        }
+    }
+    solve_edges(cost.rows, cost.cols, &edges, gate)
+}
+
+/// Least-cost assignment over the listed candidate pairs only (every other pair is impossible),
+/// keeping pairs whose cost is at most `gate`; the result of [`solve_gated`] on the matrix the
+/// edges describe.
+///
+/// It equals clamping every entry above the gate to one value just above it, solving the whole
+/// matrix, and dropping the clamped pairs: that objective is a maximum-weight matching on the edges
+/// that pass the gate (weight = clamp value − cost), which splits exactly over the connected
+/// components of those edges. Each component is solved on its own, so a frame with hundreds of
+/// far-apart tracks costs many tiny problems instead of one large one.
+pub fn solve_edges(rows: usize, cols: usize, edges: &[Edge], gate: f64) -> Vec<(usize, usize)> {
     let passes = |c: f64| c.is_finite() && c <= gate;
-    if !cost.data.iter().any(|&c| passes(c)) {
+    let edges: Vec<&Edge> = edges
+        .iter()
+        .filter(|e| passes(e.cost) && e.row < rows && e.col < cols)
+        .collect();
+    if edges.is_empty() {
         return Vec::new();
     }
+    // Union-find over rows (0..rows) and columns (rows..rows + cols).
+    let mut parent: Vec<usize> = (0..rows + cols).collect();
+    fn find(parent: &mut [usize], mut i: usize) -> usize {
+        while parent[i] != i {
+            parent[i] = parent[parent[i]];
+            i = parent[i];
+        }
+        i
+    }
+    for e in &edges {
+        let (a, b) = (find(&mut parent, e.row), find(&mut parent, rows + e.col));
+        if a != b {
+            parent[a.max(b)] = a.min(b);
+        }
+    }
+    // Local indices of each row and column inside its component.
+    let mut local = vec![usize::MAX; rows + cols];
+    let mut members: std::collections::BTreeMap<usize, (Vec<usize>, Vec<usize>)> = Default::default();
+    for e in &edges {
+        for node in [e.row, rows + e.col] {
+            if local[node] != usize::MAX {
+                continue;
+            }
+            let root = find(&mut parent, node);
+            let group = members.entry(root).or_default();
+            let (list, item) = if node < rows {
+                (&mut group.0, node)
+            } else {
+                (&mut group.1, node - rows)
+            };
+            local[node] = list.len();
+            list.push(item);
+        }
+    }
     let above = gate + gate.abs().max(1.0) * 1e-5;
-    let clamped = CostMatrix {
-        rows: cost.rows,
-        cols: cost.cols,
-        data: cost
-            .data
-            .iter()
-            .map(|&c| if passes(c) { c } else { above })
-            .collect(),
-    };
-    solve(&clamped)
-        .into_iter()
-        .filter(|&(r, c)| passes(cost.get(r, c)))
-        .collect()
+    let mut subs: std::collections::BTreeMap<usize, CostMatrix> = members
+        .iter()
+        .map(|(&root, (r, c))| (root, CostMatrix::filled(r.len(), c.len(), above)))
+        .collect();
+    for e in &edges {
+        let root = find(&mut parent, e.row);
+        if let Some(m) = subs.get_mut(&root) {
+            m.set(local[e.row], local[rows + e.col], e.cost);
+        }
+    }
+    let mut pairs = Vec::new();
+    for (root, sub) in &subs {
+        let (r, c) = &members[root];
+        let found = if sub.rows == 1 || sub.cols == 1 {
+            // One row or one column: the cheapest entry is the optimum.
+            let best = (0..sub.data.len()).min_by(|&a, &b| sub.data[a].total_cmp(&sub.data[b]));
+            best.map(|k| vec![(k / sub.cols, k % sub.cols)]).unwrap_or_default()
+        } else {
+            solve(sub)
+        };
+        pairs.extend(
+            found
+                .into_iter()
+                .filter(|&(i, j)| passes(sub.get(i, j)))
+                .map(|(i, j)| (r[i], c[j])),
+        );
+    }
+    pairs.sort_unstable();
+    pairs
 }
 
 /// Total cost of a set of pairs.

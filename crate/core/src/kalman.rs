@@ -152,7 +152,24 @@ impl BoxMotion {
             }
         }
         let q = self.process_noise(kf.x[3]);
-        kf.predict(&Self::transition(), &q);
+        // Same result as `kf.predict(&Self::transition(), &q)`, using the block form of the
+        // transition F = [I I; 0 I]: with P = [A B; C D], F P Fᵀ = [A+B+C+D, B+D; C+D, D].
+        let mut x = kf.x;
+        for i in 0..4 {
+            x[i] += kf.x[i + 4];
+        }
+        let p = &kf.p;
+        let mut out = *p;
+        for r in 0..4 {
+            for c in 0..4 {
+                let (a, b, cc, d) = (p[(r, c)], p[(r, c + 4)], p[(r + 4, c)], p[(r + 4, c + 4)]);
+                out[(r, c)] = a + b + cc + d;
+                out[(r, c + 4)] = b + d;
+                out[(r + 4, c)] = cc + d;
+            }
+        }
+        kf.x = x;
+        kf.p = out + q;
     }
 
     /// Correct the filter with an observed box.

@@ -164,7 +164,13 @@ fn step_agent(a: &mut Agent, rng: &mut Rng) {
     while turn < -std::f64::consts::PI {
         turn += 2.0 * std::f64::consts::PI;
     }
-    a.heading += 0.05 * turn + 0.02 * rng.normal();
+    let distance = (a.target.0 - a.x).hypot(a.target.1 - a.y);
+    if distance < 25.0 * a.speed {
+        // Close to the exit: head straight for it, or the slow turning would circle around it.
+        a.heading = want;
+    } else {
+        a.heading += 0.05 * turn + 0.02 * rng.normal();
+    }
     a.speed *= 1.0 + 0.01 * rng.normal();
     // Perspective also slows apparent motion far away.
     let depth = 0.35 + 0.65 * (a.y / 360.0_f64.max(a.target.1.abs())).clamp(0.0, 1.0);
@@ -192,13 +198,12 @@ pub fn generate(cfg: &SceneConfig) -> Scene {
         embedding_dim: cfg.embedding_dim,
         ..Detections::default()
     };
-    // Typical crossing time is about 300 frames at the default size; spawn to hold the density.
-    let lifetime = 300.0;
-    let spawn_rate = cfg.density / lifetime;
-    let warm_up = lifetime as u32;
+    // Arrivals make up for the shortfall against the wanted density, so the number of agents in view
+    // holds steady however long they take to cross; the warm-up fills the scene before frame 1.
+    let warm_up = 400;
     let mut spawned_ids = Vec::new();
     for step in 0..(warm_up + cfg.frames) {
-        let mut births = spawn_rate;
+        let mut births = (cfg.density - agents.len() as f64).max(0.0) / 25.0;
         while births > 0.0 {
             if rng.chance(births.min(1.0)) {
                 spawn(&mut rng, cfg, &mut next_id, &mut agents, cfg.embedding_dim);
@@ -211,7 +216,7 @@ pub fn generate(cfg: &SceneConfig) -> Scene {
         agents.retain(|a| {
             let b = a.bbox(cfg);
             let near = b.x + b.w > -40.0 && b.x < cfg.width + 40.0 && b.y < cfg.height + 80.0;
-            let arrived = (a.x - a.target.0).hypot(a.y - a.target.1) < 5.0;
+            let arrived = (a.x - a.target.0).hypot(a.y - a.target.1) < 2.0 * a.speed + 2.0;
             near && !arrived && b.y + b.h > cfg.height * 0.1
         });
         if step < warm_up {

@@ -37,17 +37,66 @@ pub fn to_benchmark_text(tracks: &Tracks) -> String {
     rows.sort_by_key(|&(f, id, _)| (f, id));
     let mut out = String::with_capacity(rows.len() * 48);
     for (frame, id, b) in rows {
-        let _ = writeln!(
-            out,
-            "{frame},{id},{},{},{},{},{},-1,-1,-1",
-            round(b.bbox.x, 2),
-            round(b.bbox.y, 2),
-            round(b.bbox.w, 2),
-            round(b.bbox.h, 2),
-            round(b.score, 4)
-        );
+        push_digits(&mut out, u64::from(frame), 0);
+        out.push(',');
+        push_digits(&mut out, u64::from(id), 0);
+        out.push(',');
+        for v in [b.bbox.x, b.bbox.y, b.bbox.w, b.bbox.h] {
+            write_decimal(&mut out, v, 2);
+            out.push(',');
+        }
+        write_decimal(&mut out, b.score, 4);
+        out.push_str(",-1,-1,-1\n");
     }
     out
+}
+
+/// Writes `v` rounded to `places` decimals, without trailing zeros (`12.5`, `3`, `-0.25`): the same
+/// text as formatting [`round`]`(v, places)`, written without the general float formatter.
+pub fn write_decimal(out: &mut String, v: f64, places: u32) {
+    let scale = 10u64.pow(places);
+    let scaled = (v.abs() * scale as f64).round();
+    if !v.is_finite() || scaled >= 1e15 {
+        let _ = write!(out, "{}", round(v, places as i32));
+        return;
+    }
+    let scaled = scaled as u64;
+    if scaled == 0 {
+        out.push('0');
+        return;
+    }
+    if v < 0.0 {
+        out.push('-');
+    }
+    push_digits(out, scaled / scale, 0);
+    let mut frac = scaled % scale;
+    if frac > 0 {
+        let mut digits = places as usize;
+        while frac % 10 == 0 {
+            frac /= 10;
+            digits -= 1;
+        }
+        out.push('.');
+        push_digits(out, frac, digits);
+    }
+}
+
+/// Appends the decimal digits of `n`, padded with leading zeros to at least `width` digits.
+fn push_digits(out: &mut String, mut n: u64, width: usize) {
+    let mut buf = [b'0'; 20];
+    let mut i = buf.len();
+    loop {
+        i -= 1;
+        buf[i] = b'0' + (n % 10) as u8;
+        n /= 10;
+        if n == 0 {
+            break;
+        }
+    }
+    let start = i.min(buf.len() - width.min(buf.len()));
+    for &b in &buf[start..] {
+        out.push(b as char);
+    }
 }
 
 #[derive(Serialize, Deserialize)]

@@ -108,3 +108,29 @@ fn infinite_costs_are_treated_as_the_worst() {
     };
     assert_eq!(solve(&cost), vec![(0, 1), (1, 0)]);
 }
+
+#[test]
+fn component_by_component_gating_equals_clamping_the_whole_matrix() {
+    // The dense route is the definition; the split route must reach the same total on sparse,
+    // IoU-like matrices where most pairs fail the gate.
+    let mut rng = throughline_core::rng::Rng::new(99);
+    for case in 0..300 {
+        let (rows, cols) = (1 + rng.below(12), 1 + rng.below(12));
+        let cost = CostMatrix::from_fn(rows, cols, |_, _| if rng.chance(0.25) { rng.uniform() } else { 1.0 });
+        let gate = 0.7;
+        let above = gate + 1e-5;
+        let clamped = CostMatrix {
+            rows,
+            cols,
+            data: cost.data.iter().map(|&c| if c <= gate { c } else { above }).collect(),
+        };
+        let dense: Vec<_> = solve(&clamped)
+            .into_iter()
+            .filter(|&(r, c)| cost.get(r, c) <= gate)
+            .collect();
+        let split = solve_gated(&cost, gate);
+        assert_eq!(split.len(), dense.len(), "case {case}");
+        let (a, b) = (total_cost(&cost, &split), total_cost(&cost, &dense));
+        assert!((a - b).abs() < 1e-9, "case {case}: {a} vs {b}");
+    }
+}

@@ -88,3 +88,19 @@ fn gating_distance_is_zero_at_the_prediction_and_grows_away_from_it() {
     let far = motion.gating_distance(&kf, &BBox::new(160.0, 100.0, 40.0, 100.0));
     assert!(near > 0.0 && near < far);
 }
+
+#[test]
+fn the_model_s_fast_predict_equals_the_generic_one() {
+    let motion = BoxMotion::default();
+    let mut fast = motion.initiate(&BBox::new(10.0, 20.0, 30.0, 60.0));
+    for k in 0..20 {
+        let mut generic = fast.clone();
+        let q = motion.process_noise(generic.x[3]);
+        generic.predict(&BoxMotion::transition(), &q);
+        motion.predict(&mut fast);
+        let close = (fast.x - generic.x).amax() < 1e-9 && (fast.p - generic.p).amax() < 1e-9;
+        assert!(close, "step {k}");
+        let b = BBox::new(10.0 + 2.0 * k as f64, 20.0, 30.0, 60.0 + 0.5 * k as f64);
+        motion.update(&mut fast, &b);
+    }
+}

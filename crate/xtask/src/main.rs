@@ -1,1 +1,103 @@
-fn main() {}
+//! Project chores, run as `cargo xtask <task>`:
+//!
+//! - `demo`: build the command line and run the main job on the bundled demo;
+//! - `test`: install what the checks need, then format check, lints, every test, the wasm32 build;
+//! - `bench`: speed, memory and quality of every method on simulated scenes, with a Python peer,
+//!   written into BENCHMARKS.md;
+//! - `demo-data`: regenerate the bundled demo with the simulator.
+
+use std::path::{Path, PathBuf};
+use std::process::{Command, ExitCode};
+
+mod bench;
+
+fn root() -> PathBuf {
+    let root = Path::new(env!("CARGO_MANIFEST_DIR")).join("../..");
+    std::fs::canonicalize(&root).unwrap_or(root)
+}
+
+/// Runs a command from the repository root, echoing it; fails with its description.
+fn run(program: &str, args: &[&str]) -> Result<(), String> {
+    eprintln!("+ {program} {}", args.join(" "));
+    let status = Command::new(program)
+        .args(args)
+        .current_dir(root())
+        .status()
+        .map_err(|e| format!("cannot start `{program}`: {e}"))?;
+    if status.success() {
+        Ok(())
+    } else {
+        Err(format!("`{program} {}` failed ({status})", args.join(" ")))
+    }
+}
+
+fn cli_binary() -> PathBuf {
+    root().join("target/release/throughline")
+}
+
+fn build_cli() -> Result<(), String> {
+    run("cargo", &["build", "--release", "--quiet", "-p", "throughline"])
+}
+
+fn demo() -> Result<(), String> {
+    build_cli()?;
+    let out = root().join("out/demo");
+    std::fs::create_dir_all(&out).map_err(|e| format!("cannot create out/demo: {e}"))?;
+    let bin = cli_binary();
+    let bin = bin.to_str().unwrap_or("throughline");
+    let dets = "demo-site/demo/detections.csv";
+    run(bin, &["track", dets, "-o", "out/demo/tracks.json"])?;
+    run(bin, &["track", dets, "-o", "out/demo/tracks.txt", "--quiet"])?;
+    println!("\nTracks of the bundled demo (a simulated footbridge plaza): out/demo/tracks.json and tracks.txt");
+    println!("Against the scene's known truth:\n");
+    run(bin, &["score", "--truth", "demo-site/demo/truth.txt", "out/demo/tracks.txt"])?;
+    println!("\nTry it on your own file: {bin} track YOUR_DETECTIONS -o tracks.json");
+    Ok(())
+}
+
+fn test() -> Result<(), String> {
+    // Installs: every step is idempotent, so a fresh machine and a warm one run the same script.
+    run("rustup", &["component", "add", "rustfmt", "clippy"])?;
+    run("rustup", &["target", "add", "wasm32-unknown-unknown"])?;
+    run("cargo", &["fmt", "--all", "--check"])?;
+    run("cargo", &["clippy", "--workspace", "--all-targets", "--", "-D", "warnings"])?;
+    run("cargo", &["test", "--workspace"])?;
+    // The core must stay free of the browser, files, clocks and the terminal: prove it builds for wasm.
+    run(
+        "cargo",
+        &["build", "-p", "throughline-core", "--target", "wasm32-unknown-unknown", "--release"],
+    )?;
+    eprintln!("all checks passed");
+    Ok(())
+}
+
+fn demo_data() -> Result<(), String> {
+    build_cli()?;
+    let bin = cli_binary();
+    let bin = bin.to_str().unwrap_or("throughline");
+    run(
+        bin,
+        &[
+            "simulate", "--out-dir", "demo-site/demo", "--seed", "2026", "--frames", "750", "--density", "12",
+            "--miss-rate", "0.1", "--embedding-dim", "8",
+        ],
+    )
+}
+
+fn main() -> ExitCode {
+    let args: Vec<String> = std::env::args().skip(1).collect();
+    let result = match args.first().map(String::as_str) {
+        Some("demo") => demo(),
+        Some("test") => test(),
+        Some("bench") => bench::bench(&args[1..]),
+        Some("demo-data") => demo_data(),
+        _ => Err("usage: cargo xtask <demo | test | bench [--quick] | demo-data>".into()),
+    };
+    match result {
+        Ok(()) => ExitCode::SUCCESS,
+        Err(e) => {
+            eprintln!("xtask: {e}");
+            ExitCode::FAILURE
+        }
+    }
+}

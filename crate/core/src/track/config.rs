@@ -49,9 +49,16 @@ impl fmt::Display for Method {
     }
 }
 
-/// The method used when none is named. See DEVELOPERS.md ("Choice of the default method") for the
-/// measurements behind it.
-pub const DEFAULT_METHOD: Method = Method::Bytetrack;
+/// The method used when none is named: `deepsort` when the detections carry appearance embeddings,
+/// `sort` otherwise. See DEVELOPERS.md ("Choice of the default method") for the measurements behind
+/// it.
+pub fn default_method(has_embeddings: bool) -> Method {
+    if has_embeddings {
+        Method::Deepsort
+    } else {
+        Method::Sort
+    }
+}
 
 /// Every setting of every method. Fields a method does not use are ignored by it.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
@@ -120,34 +127,40 @@ impl TrackerConfig {
         }
     }
 
-    /// Settings from a JSON settings file: the named method's defaults (or the default method's),
-    /// overridden by every field the file gives.
-    pub fn from_json(text: &str, method_override: Option<Method>) -> Result<Self, ConfigError> {
+    /// The method a JSON settings file names, if any.
+    pub fn method_in_json(text: &str) -> Result<Option<Method>, ConfigError> {
+        let fields = Self::json_object(text)?;
+        match fields.get("method") {
+            None => Ok(None),
+            Some(serde_json::Value::String(s)) => Method::parse(s).map(Some).ok_or_else(|| ConfigError {
+                message: format!("unknown method `{s}` in the settings file: use iou, sort, bytetrack or deepsort"),
+            }),
+            Some(_) => Err(ConfigError {
+                message: "`method` in the settings file must be a string".into(),
+            }),
+        }
+    }
+
+    fn json_object(text: &str) -> Result<serde_json::Map<String, serde_json::Value>, ConfigError> {
         let value: serde_json::Value = serde_json::from_str(text).map_err(|e| ConfigError {
             message: format!("the settings file is not valid JSON: {e}"),
         })?;
-        let serde_json::Value::Object(fields) = value else {
-            return Err(ConfigError {
+        match value {
+            serde_json::Value::Object(fields) => Ok(fields),
+            _ => Err(ConfigError {
                 message: "the settings file must be a JSON object such as {\"method\": \"sort\", \"max_age\": 20}"
                     .into(),
-            });
-        };
-        let named = match fields.get("method") {
-            None => None,
-            Some(serde_json::Value::String(s)) => Some(Method::parse(s).ok_or_else(|| ConfigError {
-                message: format!("unknown method `{s}` in the settings file: use iou, sort, bytetrack or deepsort"),
-            })?),
-            Some(_) => {
-                return Err(ConfigError {
-                    message: "`method` in the settings file must be a string".into(),
-                })
-            }
-        };
-        let method = method_override.or(named).unwrap_or(DEFAULT_METHOD);
-        let mut merged =
-            serde_json::to_value(Self::for_method(method)).map_err(|e| ConfigError {
-                message: e.to_string(),
-            })?;
+            }),
+        }
+    }
+
+    /// Settings from a JSON settings file for `method`: that method's defaults, overridden by every
+    /// other field the file gives (its own `method` field is left to [`Self::method_in_json`]).
+    pub fn from_json(text: &str, method: Method) -> Result<Self, ConfigError> {
+        let fields = Self::json_object(text)?;
+        let mut merged = serde_json::to_value(Self::for_method(method)).map_err(|e| ConfigError {
+            message: e.to_string(),
+        })?;
         if let serde_json::Value::Object(m) = &mut merged {
             for (k, v) in fields {
                 if k != "method" {
@@ -201,12 +214,6 @@ impl TrackerConfig {
             });
         }
         Ok(())
-    }
-}
-
-impl Default for TrackerConfig {
-    fn default() -> Self {
-        Self::for_method(DEFAULT_METHOD)
     }
 }
 

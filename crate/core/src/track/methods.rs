@@ -5,7 +5,7 @@
 //! the optimal assignment is used instead: it never does worse on the same gate.
 
 use super::{Association, Engine, Match, Method};
-use crate::assign::{solve_gated, CostMatrix};
+use crate::assign::{solve_edges, solve_gated, CostMatrix, Edge};
 use crate::detections::Detection;
 
 pub(super) fn associate(engine: &Engine, dets: &[Detection]) -> Association {
@@ -26,14 +26,28 @@ fn match_iou(
     min_iou: f64,
 ) -> (Vec<Match>, Vec<usize>, Vec<usize>) {
     let method = engine.config.method;
-    let boxes: Vec<_> = tracks
-        .iter()
-        .map(|&t| engine.live[t].predicted_box(method))
-        .collect();
-    let cost = CostMatrix::from_fn(tracks.len(), dets.len(), |r, c| {
-        1.0 - boxes[r].iou(&all[dets[c]].bbox)
-    });
-    split(solve_gated(&cost, 1.0 - min_iou), tracks, dets)
+    // Only boxes that overlap can have a positive IoU: with detections sorted by their left edge,
+    // each track looks only at those starting left of its right edge.
+    let mut by_left: Vec<(f64, usize)> = dets.iter().enumerate().map(|(k, &d)| (all[d].bbox.x, k)).collect();
+    by_left.sort_by(|a, b| a.0.total_cmp(&b.0));
+    let widest = dets.iter().map(|&d| all[d].bbox.w).fold(0.0, f64::max);
+    let mut edges = Vec::new();
+    for (r, &t) in tracks.iter().enumerate() {
+        let tb = engine.live[t].predicted_box(method);
+        let start = by_left.partition_point(|&(x, _)| x + widest <= tb.x);
+        let end = by_left.partition_point(|&(x, _)| x < tb.x + tb.w);
+        for &(_, c) in &by_left[start..end.max(start)] {
+            let iou = tb.iou(&all[dets[c]].bbox);
+            if iou > 0.0 {
+                edges.push(Edge {
+                    row: r,
+                    col: c,
+                    cost: 1.0 - iou,
+                });
+            }
+        }
+    }
+    split(solve_edges(tracks.len(), dets.len(), &edges, 1.0 - min_iou), tracks, dets)
 }
 
 /// Turns assignment pairs over sub-lists into matches plus what is left of each list.

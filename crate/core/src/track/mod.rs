@@ -10,7 +10,7 @@
 mod config;
 mod methods;
 
-pub use config::{ConfigError, Method, TrackerConfig, DEFAULT_METHOD};
+pub use config::{default_method, ConfigError, Method, TrackerConfig};
 
 use crate::detections::{Detection, Detections};
 use crate::geometry::BBox;
@@ -274,19 +274,23 @@ impl<'a> Engine<'a> {
     /// Drops tentative tracks that missed and ends confirmed tracks unseen for too long.
     fn retire(&mut self) {
         let max_age = self.config.max_age;
-        let mut kept = Vec::with_capacity(self.live.len());
-        for t in std::mem::take(&mut self.live) {
+        let mut i = 0;
+        while i < self.live.len() {
+            let t = &self.live[i];
             let gone = match t.phase {
                 Phase::Tentative => t.unseen > 0,
                 _ => t.unseen > max_age,
             };
             if !gone {
-                kept.push(t);
-            } else if t.is_confirmed() {
+                i += 1;
+                continue;
+            }
+            // `remove`, not `swap_remove`: the order of live tracks decides numbering ties.
+            let t = self.live.remove(i);
+            if t.is_confirmed() {
                 self.finished.push(finish(t, self.detections));
             }
         }
-        self.live = kept;
     }
 
     fn close(mut self, frame_count: u32) -> Tracks {

@@ -1,0 +1,178 @@
+//! `cargo xtask bench`: every method at several densities on simulated scenes, timed as whole
+//! `throughline track` runs (wall clock, peak resident memory from `wait4`), scored against the
+//! scene's truth, and the Python SORT peer (`tests/bench/sort_peer.py`) on the same files.
+//! Results go into BENCHMARKS.md between the markers.
+
+use super::{build_cli, cli_binary, root, run};
+use std::process::Command;
+use std::time::Instant;
+use throughline_core::tracks_io::read_benchmark_boxes;
+
+const BEGIN: &str = "<!-- bench:begin -->";
+const END: &str = "<!-- bench:end -->";
+
+struct Measured {
+    seconds: f64,
+    peak_mib: f64,
+}
+
+/// Runs a command that reports `peak memory N MiB` on standard error (`throughline track --stats`
+/// and the Python peer both read their own `VmHWM`), returning wall time and that peak. A child's
+/// own report is used because `wait4`'s figure includes the memory of the parent at fork time.
+fn measure(program: &str, args: &[&str]) -> Result<Measured, String> {
+    let start = Instant::now();
+    let out = Command::new(program)
+        .args(args)
+        .current_dir(root())
+        .stdout(std::process::Stdio::null())
+        .output()
+        .map_err(|e| format!("cannot start {program}: {e}"))?;
+    let seconds = start.elapsed().as_secs_f64();
+    let stderr = String::from_utf8_lossy(&out.stderr);
+    if !out.status.success() {
+        return Err(format!("{program} {} failed: {stderr}", args.join(" ")));
+    }
+    let peak_mib = stderr
+        .split("peak memory ")
+        .nth(1)
+        .and_then(|rest| rest.split_whitespace().next())
+        .and_then(|v| v.parse().ok())
+        .unwrap_or(f64::NAN);
+    Ok(Measured { seconds, peak_mib })
+}
+
+fn python_with_peers() -> Option<String> {
+    let candidates = [
+        std::env::var("THROUGHLINE_BENCH_PYTHON").ok(),
+        Some(root().join("target/bench-venv/bin/python").display().to_string()),
+    ];
+    for p in candidates.into_iter().flatten() {
+        let ok = Command::new(&p)
+            .args(["-c", "import filterpy, scipy"])
+            .status()
+            .is_ok_and(|s| s.success());
+        if ok {
+            return Some(p);
+        }
+    }
+    // Make one: a virtual environment with the peer's two libraries from PyPI.
+    let venv = root().join("target/bench-venv");
+    let venv_s = venv.display().to_string();
+    if run("python3", &["-m", "venv", &venv_s]).is_ok() {
+        let pip = venv.join("bin/pip").display().to_string();
+        if run(&pip, &["install", "--quiet", "filterpy", "scipy"]).is_ok() {
+            return Some(venv.join("bin/python").display().to_string());
+        }
+    }
+    None
+}
+
+pub fn bench(args: &[String]) -> Result<(), String> {
+    let quick = args.iter().any(|a| a == "--quick");
+    build_cli()?;
+    let bin = cli_binary().display().to_string();
+    let dir = root().join("target/bench");
+    std::fs::create_dir_all(&dir).map_err(|e| e.to_string())?;
+    let python = python_with_peers();
+    let frames = if quick { "300" } else { "1500" };
+    // About 10, 50 and 200 detections per frame. Wider pictures hold the crowd at a similar
+    // spacing, so that occlusion does not cap the number of detections.
+    let scenes = [("10", "13", "640"), ("50", "65", "1920"), ("200", "265", "5120")];
+    let mut rows = Vec::new();
+    for (label, density, width) in scenes {
+        let scene = dir.join(format!("d{label}"));
+        let s = scene.display().to_string();
+        run(
+            &bin,
+            &[
+                "simulate", "--out-dir", &s, "--seed", "42", "--frames", frames, "--density", density,
+                "--miss-rate", "0.12", "--embedding-dim", "16", "--width", width,
+            ],
+        )?;
+        let truth = std::fs::read(scene.join("truth.txt")).map_err(|e| e.to_string())?;
+        let truth = read_benchmark_boxes(&truth).map_err(|e| e.to_string())?;
+        let dets = std::fs::read_to_string(scene.join("detections.txt")).map_err(|e| e.to_string())?;
+        let n_frames: f64 = frames.parse().unwrap_or(1.0);
+        let per_frame = dets.lines().count() as f64 / n_frames;
+        for method in ["iou", "sort", "bytetrack", "deepsort"] {
+            let input = if method == "deepsort" { "detections.csv" } else { "detections.txt" };
+            let out = scene.join(format!("{method}.txt")).display().to_string();
+            let inp = scene.join(input).display().to_string();
+            let m = measure(&bin, &["track", &inp, "--method", method, "-o", &out, "--quiet", "--stats"])?;
+            let tracks = read_benchmark_boxes(&std::fs::read(&out).map_err(|e| e.to_string())?)
+                .map_err(|e| e.to_string())?;
+            let s = throughline_core::score::score(&truth, &tracks).map_err(|e| e.message)?;
+            rows.push(format!(
+                "| {label} ({per_frame:.0}) | {method} | {:.1} | {:.1} | {} | {:.0} | {:.1} |",
+                100.0 * s.hota,
+                100.0 * s.idf1,
+                s.id_switches,
+                n_frames / m.seconds,
+                m.peak_mib
+            ));
+            eprintln!("{}", rows.last().map_or("", String::as_str));
+            if method == "sort" {
+                if let Some(py) = &python {
+                    let peer_out = scene.join("peer.txt").display().to_string();
+                    let peer = measure(py, &["tests/bench/sort_peer.py", &inp, &peer_out])?;
+                    let tracks = read_benchmark_boxes(&std::fs::read(&peer_out).map_err(|e| e.to_string())?)
+                        .map_err(|e| e.to_string())?;
+                    let ps = throughline_core::score::score(&truth, &tracks).map_err(|e| e.message)?;
+                    rows.push(format!(
+                        "| {label} ({per_frame:.0}) | Python SORT peer | {:.1} | {:.1} | {} | {:.0} | {:.1} |",
+                        100.0 * ps.hota,
+                        100.0 * ps.idf1,
+                        ps.id_switches,
+                        n_frames / peer.seconds,
+                        peer.peak_mib
+                    ));
+                    rows.push(format!(
+                        "| {label} ({per_frame:.0}) | speed ratio sort / peer | | | | {:.0}x | |",
+                        peer.seconds / m.seconds
+                    ));
+                    eprintln!("{}", rows.last().map_or("", String::as_str));
+                }
+            }
+        }
+    }
+    let machine = machine_line();
+    let table = format!(
+        "{BEGIN}\nMeasured by `cargo xtask bench{}` on {machine}.\nScenes: {frames} frames of the simulated \
+         footbridge plaza, 360 pixels high and 640, 1920 and 5120 wide, seed 42, 12% missed detections (more under occlusion), embeddings of \
+         16 values for deepsort. Speed is whole `throughline track` runs (reading, tracking, writing), \
+         frames per second of wall time; memory is peak resident set size.\n\n\
+         | detections per frame (measured) | method | HOTA % | IDF1 % | ID switches | frames/s | peak MiB |\n\
+         |---|---|---|---|---|---|---|\n{}\n{END}",
+        if quick { " --quick" } else { "" },
+        rows.join("\n")
+    );
+    let path = root().join("BENCHMARKS.md");
+    let old = std::fs::read_to_string(&path).unwrap_or_default();
+    let new = match (old.find(BEGIN), old.find(END)) {
+        (Some(a), Some(b)) if a < b => format!("{}{table}{}", &old[..a], &old[b + END.len()..]),
+        _ => format!("{old}\n{table}\n"),
+    };
+    std::fs::write(&path, new).map_err(|e| e.to_string())?;
+    println!("{table}");
+    Ok(())
+}
+
+fn machine_line() -> String {
+    let cpu = std::fs::read_to_string("/proc/cpuinfo")
+        .ok()
+        .and_then(|s| {
+            s.lines()
+                .find(|l| l.starts_with("model name"))
+                .and_then(|l| l.split(':').nth(1))
+                .map(|s| s.trim().to_string())
+        })
+        .unwrap_or_else(|| "an unknown CPU".into());
+    let cores = std::thread::available_parallelism().map_or(1, |n| n.get());
+    let date = Command::new("date")
+        .arg("+%Y-%m-%d")
+        .output()
+        .ok()
+        .map(|o| String::from_utf8_lossy(&o.stdout).trim().to_string())
+        .unwrap_or_default();
+    format!("{cpu}, {cores} cores, {date}")
+}
