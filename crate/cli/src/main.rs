@@ -127,7 +127,13 @@ fn main() -> ExitCode {
             stats,
         } => {
             let started = std::time::Instant::now();
-            let r = run_track(&detections, output.as_deref(), method.as_deref(), config.as_deref(), quiet);
+            let r = run_track(
+                &detections,
+                output.as_deref(),
+                method.as_deref(),
+                config.as_deref(),
+                quiet,
+            );
             if stats {
                 print_stats(started);
             }
@@ -196,7 +202,9 @@ fn run_track(
         .or(settings.as_ref().and_then(|s| s.2))
         .unwrap_or_else(|| track::default_method(report.detections.embedding_dim > 0));
     let config = match &settings {
-        Some((p, text, _)) => track::TrackerConfig::from_json(text, method).map_err(|e| bad_input(p, e))?,
+        Some((p, text, _)) => {
+            track::TrackerConfig::from_json(text, method).map_err(|e| bad_input(p, e))?
+        }
         None => track::TrackerConfig::for_method(method),
     };
     if !quiet {
@@ -259,12 +267,14 @@ fn run_track(
 
 /// Wall time and peak resident memory (Linux `VmHWM`; elsewhere only the time).
 fn print_stats(started: std::time::Instant) {
-    let peak = std::fs::read_to_string("/proc/self/status").ok().and_then(|s| {
-        s.lines()
-            .find(|l| l.starts_with("VmHWM:"))
-            .and_then(|l| l.split_whitespace().nth(1))
-            .and_then(|kib| kib.parse::<f64>().ok())
-    });
+    let peak = std::fs::read_to_string("/proc/self/status")
+        .ok()
+        .and_then(|s| {
+            s.lines()
+                .find(|l| l.starts_with("VmHWM:"))
+                .and_then(|l| l.split_whitespace().nth(1))
+                .and_then(|kib| kib.parse::<f64>().ok())
+        });
     let seconds = started.elapsed().as_secs_f64();
     match peak {
         Some(kib) => eprintln!("stats: {seconds:.3} s, peak memory {:.1} MiB", kib / 1024.0),

@@ -52,7 +52,10 @@ fn every_command_has_help() {
         assert!(o.status.success(), "{args:?}");
         assert!(stdout(&o).contains("Usage"), "{args:?}");
     }
-    assert!(stdout(&throughline(&["track", "--help"])).contains("top-left") || stdout(&throughline(&["--help"])).contains("top-left"));
+    assert!(
+        stdout(&throughline(&["track", "--help"])).contains("top-left")
+            || stdout(&throughline(&["--help"])).contains("top-left")
+    );
 }
 
 #[test]
@@ -70,14 +73,20 @@ fn tracks_the_demo_to_json_on_stdout_and_to_benchmark_text() {
     assert!(o.status.success(), "{}", stderr(&o));
     let doc: serde_json::Value = serde_json::from_slice(&o.stdout).expect("JSON on stdout");
     assert_eq!(doc["format"], "throughline-tracks");
-    assert_eq!(doc["settings"]["method"], "sort", "no embeddings: sort is the default");
+    assert_eq!(
+        doc["settings"]["method"], "sort",
+        "no embeddings: sort is the default"
+    );
     assert!(doc["tracks"].as_array().is_some_and(|t| t.len() > 10));
 
     let dir = scratch("track_txt");
     let out = dir.join("tracks.txt").display().to_string();
     let o = throughline(&["track", &demo("detections.csv"), "-o", &out]);
     assert!(o.status.success(), "{}", stderr(&o));
-    assert!(stderr(&o).contains("deepsort"), "embeddings present: deepsort is the default");
+    assert!(
+        stderr(&o).contains("deepsort"),
+        "embeddings present: deepsort is the default"
+    );
     let text = std::fs::read_to_string(&out).unwrap();
     let first = text.lines().next().unwrap();
     assert_eq!(first.split(',').count(), 10, "{first}");
@@ -88,11 +97,23 @@ fn tracks_the_demo_to_json_on_stdout_and_to_benchmark_text() {
 fn bad_input_exits_with_1_and_names_file_line_and_fix() {
     let dir = scratch("bad_input");
     let cases: [(&str, &[u8], &str); 5] = [
-        ("negative.txt", b"1,-1,10,20,30,40,0.9\n2,-1,10,20,-3,40,0.9\n", "line 2, column 5"),
+        (
+            "negative.txt",
+            b"1,-1,10,20,30,40,0.9\n2,-1,10,20,-3,40,0.9\n",
+            "line 2, column 5",
+        ),
         ("empty.txt", b"", "empty"),
         ("footage.webm", b"\x1aE\xdf\xa3\x00\x00\x00\x00", "binary"),
-        ("junk.csv", b"frame,x,y,w,h,score\n1,2,3,four,5,0.5\n", "`four` in column `w`"),
-        ("zero.json", br#"[{"image_id": 0, "bbox": [1,2,3,4], "score": 0.5}]"#, "add 1"),
+        (
+            "junk.csv",
+            b"frame,x,y,w,h,score\n1,2,3,four,5,0.5\n",
+            "`four` in column `w`",
+        ),
+        (
+            "zero.json",
+            br#"[{"image_id": 0, "bbox": [1,2,3,4], "score": 0.5}]"#,
+            "add 1",
+        ),
     ];
     for (name, content, hint) in cases {
         let path = write(&dir, name, content);
@@ -110,14 +131,26 @@ fn bad_input_exits_with_1_and_names_file_line_and_fix() {
 #[test]
 fn settings_file_overrides_defaults_and_rejects_unknown_fields() {
     let dir = scratch("settings");
-    let good = write(&dir, "good.json", br#"{"method": "bytetrack", "max_age": 12}"#);
+    let good = write(
+        &dir,
+        "good.json",
+        br#"{"method": "bytetrack", "max_age": 12}"#,
+    );
     let o = throughline(&["track", &demo("detections.txt"), "--config", &good, "-q"]);
     assert!(o.status.success(), "{}", stderr(&o));
     let doc: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
     assert_eq!(doc["settings"]["method"], "bytetrack");
     assert_eq!(doc["settings"]["max_age"], 12);
     // --method wins over the file's method.
-    let o = throughline(&["track", &demo("detections.txt"), "--config", &good, "--method", "iou", "-q"]);
+    let o = throughline(&[
+        "track",
+        &demo("detections.txt"),
+        "--config",
+        &good,
+        "--method",
+        "iou",
+        "-q",
+    ]);
     let doc: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
     assert_eq!(doc["settings"]["method"], "iou");
 
@@ -142,16 +175,37 @@ fn deepsort_on_detections_without_embeddings_is_refused_clearly() {
 fn simulate_then_score_round_trip() {
     let dir = scratch("simulate");
     let d = dir.display().to_string();
-    let o = throughline(&["simulate", "--out-dir", &d, "--frames", "120", "--seed", "3"]);
+    let o = throughline(&[
+        "simulate",
+        "--out-dir",
+        &d,
+        "--frames",
+        "120",
+        "--seed",
+        "3",
+    ]);
     assert!(o.status.success(), "{}", stderr(&o));
     let tracks = dir.join("tracks.json").display().to_string();
     let dets = dir.join("detections.txt").display().to_string();
-    assert!(throughline(&["track", &dets, "-o", &tracks, "-q"]).status.success());
+    assert!(throughline(&["track", &dets, "-o", &tracks, "-q"])
+        .status
+        .success());
     let truth = dir.join("truth.txt").display().to_string();
     let o = throughline(&["score", "--truth", &truth, &tracks, "--json"]);
     assert!(o.status.success(), "{}", stderr(&o));
     let s: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
-    for key in ["mota", "motp", "idf1", "idp", "idr", "id_switches", "hota", "deta", "assa", "loca"] {
+    for key in [
+        "mota",
+        "motp",
+        "idf1",
+        "idp",
+        "idr",
+        "id_switches",
+        "hota",
+        "deta",
+        "assa",
+        "loca",
+    ] {
         assert!(s.get(key).is_some(), "{key}");
     }
     assert!(s["hota"].as_f64().unwrap() > 0.3);

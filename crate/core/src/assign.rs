@@ -169,51 +169,44 @@ pub fn solve_edges(rows: usize, cols: usize, edges: &[Edge], gate: f64) -> Vec<(
             parent[a.max(b)] = a.min(b);
         }
     }
-    // Local indices of each row and column inside its component.
-    let mut local = vec![usize::MAX; rows + cols];
-    let mut members: std::collections::BTreeMap<usize, (Vec<usize>, Vec<usize>)> = Default::default();
-    for e in &edges {
-        for node in [e.row, rows + e.col] {
-            if local[node] != usize::MAX {
-                continue;
-            }
-            let root = find(&mut parent, node);
-            let group = members.entry(root).or_default();
-            let (list, item) = if node < rows {
-                (&mut group.0, node)
-            } else {
-                (&mut group.1, node - rows)
-            };
-            local[node] = list.len();
-            list.push(item);
-        }
-    }
-    let above = gate + gate.abs().max(1.0) * 1e-5;
-    let mut subs: std::collections::BTreeMap<usize, CostMatrix> = members
+    // Edges grouped by component; most components of a tracking frame are one track and one box.
+    let mut by_root: Vec<(usize, usize)> = edges
         .iter()
-        .map(|(&root, (r, c))| (root, CostMatrix::filled(r.len(), c.len(), above)))
+        .enumerate()
+        .map(|(k, e)| (find(&mut parent, e.row), k))
         .collect();
-    for e in &edges {
-        let root = find(&mut parent, e.row);
-        if let Some(m) = subs.get_mut(&root) {
-            m.set(local[e.row], local[rows + e.col], e.cost);
-        }
-    }
+    by_root.sort_unstable();
+    let above = gate + gate.abs().max(1.0) * 1e-5;
     let mut pairs = Vec::new();
-    for (root, sub) in &subs {
-        let (r, c) = &members[root];
-        let found = if sub.rows == 1 || sub.cols == 1 {
-            // One row or one column: the cheapest entry is the optimum.
-            let best = (0..sub.data.len()).min_by(|&a, &b| sub.data[a].total_cmp(&sub.data[b]));
-            best.map(|k| vec![(k / sub.cols, k % sub.cols)]).unwrap_or_default()
-        } else {
-            solve(sub)
-        };
+    for group in by_root.chunk_by(|a, b| a.0 == b.0) {
+        let group: Vec<&Edge> = group.iter().map(|&(_, k)| edges[k]).collect();
+        let mut rs: Vec<usize> = group.iter().map(|e| e.row).collect();
+        let mut cs: Vec<usize> = group.iter().map(|e| e.col).collect();
+        rs.sort_unstable();
+        rs.dedup();
+        cs.sort_unstable();
+        cs.dedup();
+        if rs.len() == 1 || cs.len() == 1 {
+            // One row or one column: the cheapest edge is the optimum (first listed among equals).
+            let best = group.iter().min_by(|a, b| {
+                a.cost
+                    .total_cmp(&b.cost)
+                    .then((a.row, a.col).cmp(&(b.row, b.col)))
+            });
+            pairs.extend(best.map(|e| (e.row, e.col)));
+            continue;
+        }
+        let mut sub = CostMatrix::filled(rs.len(), cs.len(), above);
+        for e in &group {
+            if let (Ok(i), Ok(j)) = (rs.binary_search(&e.row), cs.binary_search(&e.col)) {
+                sub.set(i, j, e.cost);
+            }
+        }
         pairs.extend(
-            found
+            solve(&sub)
                 .into_iter()
                 .filter(|&(i, j)| passes(sub.get(i, j)))
-                .map(|(i, j)| (r[i], c[j])),
+                .map(|(i, j)| (rs[i], cs[j])),
         );
     }
     pairs.sort_unstable();

@@ -627,19 +627,23 @@ impl JsonSink<'_> {
     fn push<E: de::Error>(&mut self, n: usize, d: JsonDetection) -> Result<(), E> {
         let frame = match d.image_id.as_f64() {
             Some(v) if v.fract() == 0.0 && v >= 1.0 && v <= u32::MAX as f64 => v as u32,
-            Some(0.0) => return Err(self.fail(
-                ReadErrorKind::BadFrame,
-                format!(
+            Some(0.0) => {
+                return Err(self.fail(
+                    ReadErrorKind::BadFrame,
+                    format!(
                     "element {n}: image_id 0, but frames are numbered from 1: if the file counts \
                          from 0, add 1 to every image_id"
                 ),
-            )),
-            _ => return Err(self.fail(
-                ReadErrorKind::BadFrame,
-                format!(
+                ))
+            }
+            _ => {
+                return Err(self.fail(
+                    ReadErrorKind::BadFrame,
+                    format!(
                     "element {n}: image_id must be the frame number, a whole number of 1 or more"
                 ),
-            )),
+                ))
+            }
         };
         if d.bbox.len() != 4 {
             return Err(self.fail(

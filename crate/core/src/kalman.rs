@@ -172,10 +172,41 @@ impl BoxMotion {
         kf.p = out + q;
     }
 
-    /// Correct the filter with an observed box.
+    /// Correct the filter with an observed box. Returns false, leaving the state as it was, when the
+    /// innovation covariance cannot be inverted.
+    ///
+    /// Same result as `kf.update(&measurement(b), &Self::observation(), &r)` to rounding, using the
+    /// structure of H = [I 0]: PHᵀ is the first four columns of P and S = P₁₁ + R; the covariance
+    /// update is P − K (PHᵀ)ᵀ, made exactly symmetric.
     pub fn update(&self, kf: &mut KalmanFilter, b: &BBox) -> bool {
         let r = self.measurement_noise(kf.x[3]);
-        kf.update(&measurement(b), &Self::observation(), &r)
+        let pht: SMatrix<f64, 8, 4> = kf.p.fixed_columns::<4>(0).into_owned();
+        let s: MeasurementCov = pht.fixed_rows::<4>(0).into_owned() + r;
+        let Some(chol) = s.cholesky() else {
+            return false;
+        };
+        // K = PHᵀ S⁻¹, computed as (S⁻¹ (PHᵀ)ᵀ)ᵀ since S is symmetric.
+        let k: SMatrix<f64, 8, 4> = chol.solve(&pht.transpose()).transpose();
+        let y = measurement(b) - kf.x.fixed_rows::<4>(0);
+        kf.x += k * y;
+        let p = kf.p - k * pht.transpose();
+        kf.p = (p + p.transpose()) * 0.5;
+        true
+    }
+
+    /// The predicted measurement and the factor of its covariance, for measuring many boxes against
+    /// one filter (see [`MotionGate`]).
+    pub fn gate(&self, kf: &KalmanFilter, max_sq: f64) -> Option<MotionGate> {
+        let r = self.measurement_noise(kf.x[3]);
+        let s: MeasurementCov = kf.p.fixed_view::<4, 4>(0, 0).into_owned() + r;
+        let bounds = Measurement::from_fn(|i, _| (max_sq * s[(i, i)]).sqrt());
+        let chol = s.cholesky()?;
+        Some(MotionGate {
+            mean: kf.x.fixed_rows::<4>(0).into_owned(),
+            chol,
+            bounds,
+            max_sq,
+        })
     }
 
     /// Squared Mahalanobis distance of a box from the filter's predicted box.
@@ -188,5 +219,28 @@ impl BoxMotion {
     pub fn bbox(kf: &KalmanFilter) -> BBox {
         let (w, h) = (kf.x[2].max(0.0), kf.x[3].max(0.0));
         BBox::from_centre(kf.x[0], kf.x[1], w, h)
+    }
+}
+
+/// A Mahalanobis gate around one filter's predicted box, prepared once per frame.
+#[derive(Debug, Clone)]
+pub struct MotionGate {
+    mean: Measurement,
+    chol: nalgebra::Cholesky<f64, nalgebra::Const<4>>,
+    /// A box farther than this from the mean in any one coordinate cannot pass the gate (each
+    /// coordinate's own squared distance is at most the whole squared Mahalanobis distance).
+    bounds: Measurement,
+    max_sq: f64,
+}
+
+impl MotionGate {
+    /// Squared Mahalanobis distance of a box, or `None` when it is beyond the gate.
+    pub fn distance_sq(&self, b: &BBox) -> Option<f64> {
+        let y = measurement(b) - self.mean;
+        if (0..4).any(|i| y[i].abs() > self.bounds[i]) {
+            return None;
+        }
+        let d = y.dot(&self.chol.solve(&y));
+        (d <= self.max_sq).then_some(d)
     }
 }

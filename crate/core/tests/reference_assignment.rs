@@ -116,13 +116,23 @@ fn component_by_component_gating_equals_clamping_the_whole_matrix() {
     let mut rng = throughline_core::rng::Rng::new(99);
     for case in 0..300 {
         let (rows, cols) = (1 + rng.below(12), 1 + rng.below(12));
-        let cost = CostMatrix::from_fn(rows, cols, |_, _| if rng.chance(0.25) { rng.uniform() } else { 1.0 });
+        let cost = CostMatrix::from_fn(rows, cols, |_, _| {
+            if rng.chance(0.25) {
+                rng.uniform()
+            } else {
+                1.0
+            }
+        });
         let gate = 0.7;
         let above = gate + 1e-5;
         let clamped = CostMatrix {
             rows,
             cols,
-            data: cost.data.iter().map(|&c| if c <= gate { c } else { above }).collect(),
+            data: cost
+                .data
+                .iter()
+                .map(|&c| if c <= gate { c } else { above })
+                .collect(),
         };
         let dense: Vec<_> = solve(&clamped)
             .into_iter()

@@ -104,3 +104,29 @@ fn the_model_s_fast_predict_equals_the_generic_one() {
         motion.update(&mut fast, &b);
     }
 }
+
+#[test]
+fn the_model_s_fast_update_equals_the_generic_joseph_form() {
+    let motion = BoxMotion::default();
+    let mut fast = motion.initiate(&BBox::new(10.0, 20.0, 30.0, 60.0));
+    for k in 0..30 {
+        motion.predict(&mut fast);
+        let mut generic = fast.clone();
+        let b = BBox::new(
+            10.0 + 2.0 * k as f64,
+            20.0 - 0.3 * k as f64,
+            30.0,
+            60.0 + 0.5 * k as f64,
+        );
+        let r = motion.measurement_noise(generic.x[3]);
+        generic.update(
+            &throughline_core::kalman::measurement(&b),
+            &BoxMotion::observation(),
+            &r,
+        );
+        motion.update(&mut fast, &b);
+        let tol = 1e-9 * generic.p.amax().max(1.0);
+        assert!((fast.x - generic.x).amax() < 1e-9, "step {k}: x");
+        assert!((fast.p - generic.p).amax() < tol, "step {k}: P");
+    }
+}

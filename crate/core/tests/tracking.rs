@@ -208,12 +208,25 @@ fn benchmark_text_output_has_ten_columns_sorted_by_frame_then_id() {
 
 #[test]
 fn decimals_are_written_like_rounded_floats() {
-    for (v, places) in [(12.5, 2), (3.0, 2), (-0.25, 2), (0.004, 2), (-0.004, 2), (1234.5678, 2), (0.87654, 4), (99.999, 2)] {
+    for (v, places) in [
+        (12.5, 2),
+        (3.0, 2),
+        (-0.25, 2),
+        (0.004, 2),
+        (-0.004, 2),
+        (1234.5678, 2),
+        (0.87654, 4),
+        (99.999, 2),
+    ] {
         let mut s = String::new();
         tracks_io::write_decimal(&mut s, v, places);
         let p = 10f64.powi(places as i32);
         let r = (v * p).round() / p;
-        let want = if r == 0.0 { "0".to_string() } else { format!("{r}") };
+        let want = if r == 0.0 {
+            "0".to_string()
+        } else {
+            format!("{r}")
+        };
         assert_eq!(s, want, "{v} to {places} places");
     }
 }

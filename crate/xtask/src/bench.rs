@@ -44,7 +44,12 @@ fn measure(program: &str, args: &[&str]) -> Result<Measured, String> {
 fn python_with_peers() -> Option<String> {
     let candidates = [
         std::env::var("THROUGHLINE_BENCH_PYTHON").ok(),
-        Some(root().join("target/bench-venv/bin/python").display().to_string()),
+        Some(
+            root()
+                .join("target/bench-venv/bin/python")
+                .display()
+                .to_string(),
+        ),
     ];
     for p in candidates.into_iter().flatten() {
         let ok = Command::new(&p)
@@ -77,7 +82,11 @@ pub fn bench(args: &[String]) -> Result<(), String> {
     let frames = if quick { "300" } else { "1500" };
     // About 10, 50 and 200 detections per frame. Wider pictures hold the crowd at a similar
     // spacing, so that occlusion does not cap the number of detections.
-    let scenes = [("10", "13", "640"), ("50", "65", "1920"), ("200", "265", "5120")];
+    let scenes = [
+        ("10", "13", "640"),
+        ("50", "65", "1920"),
+        ("200", "265", "5120"),
+    ];
     let mut rows = Vec::new();
     for (label, density, width) in scenes {
         let scene = dir.join(format!("d{label}"));
@@ -85,20 +94,43 @@ pub fn bench(args: &[String]) -> Result<(), String> {
         run(
             &bin,
             &[
-                "simulate", "--out-dir", &s, "--seed", "42", "--frames", frames, "--density", density,
-                "--miss-rate", "0.12", "--embedding-dim", "16", "--width", width,
+                "simulate",
+                "--out-dir",
+                &s,
+                "--seed",
+                "42",
+                "--frames",
+                frames,
+                "--density",
+                density,
+                "--miss-rate",
+                "0.12",
+                "--embedding-dim",
+                "16",
+                "--width",
+                width,
             ],
         )?;
         let truth = std::fs::read(scene.join("truth.txt")).map_err(|e| e.to_string())?;
         let truth = read_benchmark_boxes(&truth).map_err(|e| e.to_string())?;
-        let dets = std::fs::read_to_string(scene.join("detections.txt")).map_err(|e| e.to_string())?;
+        let dets =
+            std::fs::read_to_string(scene.join("detections.txt")).map_err(|e| e.to_string())?;
         let n_frames: f64 = frames.parse().unwrap_or(1.0);
         let per_frame = dets.lines().count() as f64 / n_frames;
         for method in ["iou", "sort", "bytetrack", "deepsort"] {
-            let input = if method == "deepsort" { "detections.csv" } else { "detections.txt" };
+            let input = if method == "deepsort" {
+                "detections.csv"
+            } else {
+                "detections.txt"
+            };
             let out = scene.join(format!("{method}.txt")).display().to_string();
             let inp = scene.join(input).display().to_string();
-            let m = measure(&bin, &["track", &inp, "--method", method, "-o", &out, "--quiet", "--stats"])?;
+            let m = measure(
+                &bin,
+                &[
+                    "track", &inp, "--method", method, "-o", &out, "--quiet", "--stats",
+                ],
+            )?;
             let tracks = read_benchmark_boxes(&std::fs::read(&out).map_err(|e| e.to_string())?)
                 .map_err(|e| e.to_string())?;
             let s = throughline_core::score::score(&truth, &tracks).map_err(|e| e.message)?;
@@ -115,9 +147,11 @@ pub fn bench(args: &[String]) -> Result<(), String> {
                 if let Some(py) = &python {
                     let peer_out = scene.join("peer.txt").display().to_string();
                     let peer = measure(py, &["tests/bench/sort_peer.py", &inp, &peer_out])?;
-                    let tracks = read_benchmark_boxes(&std::fs::read(&peer_out).map_err(|e| e.to_string())?)
-                        .map_err(|e| e.to_string())?;
-                    let ps = throughline_core::score::score(&truth, &tracks).map_err(|e| e.message)?;
+                    let tracks =
+                        read_benchmark_boxes(&std::fs::read(&peer_out).map_err(|e| e.to_string())?)
+                            .map_err(|e| e.to_string())?;
+                    let ps =
+                        throughline_core::score::score(&truth, &tracks).map_err(|e| e.message)?;
                     rows.push(format!(
                         "| {label} ({per_frame:.0}) | Python SORT peer | {:.1} | {:.1} | {} | {:.0} | {:.1} |",
                         100.0 * ps.hota,

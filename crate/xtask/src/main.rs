@@ -36,7 +36,10 @@ fn cli_binary() -> PathBuf {
 }
 
 fn build_cli() -> Result<(), String> {
-    run("cargo", &["build", "--release", "--quiet", "-p", "throughline"])
+    run(
+        "cargo",
+        &["build", "--release", "--quiet", "-p", "throughline"],
+    )
 }
 
 fn demo() -> Result<(), String> {
@@ -47,10 +50,21 @@ fn demo() -> Result<(), String> {
     let bin = bin.to_str().unwrap_or("throughline");
     let dets = "demo-site/demo/detections.csv";
     run(bin, &["track", dets, "-o", "out/demo/tracks.json"])?;
-    run(bin, &["track", dets, "-o", "out/demo/tracks.txt", "--quiet"])?;
+    run(
+        bin,
+        &["track", dets, "-o", "out/demo/tracks.txt", "--quiet"],
+    )?;
     println!("\nTracks of the bundled demo (a simulated footbridge plaza): out/demo/tracks.json and tracks.txt");
     println!("Against the scene's known truth:\n");
-    run(bin, &["score", "--truth", "demo-site/demo/truth.txt", "out/demo/tracks.txt"])?;
+    run(
+        bin,
+        &[
+            "score",
+            "--truth",
+            "demo-site/demo/truth.txt",
+            "out/demo/tracks.txt",
+        ],
+    )?;
     println!("\nTry it on your own file: {bin} track YOUR_DETECTIONS -o tracks.json");
     Ok(())
 }
@@ -60,12 +74,29 @@ fn test() -> Result<(), String> {
     run("rustup", &["component", "add", "rustfmt", "clippy"])?;
     run("rustup", &["target", "add", "wasm32-unknown-unknown"])?;
     run("cargo", &["fmt", "--all", "--check"])?;
-    run("cargo", &["clippy", "--workspace", "--all-targets", "--", "-D", "warnings"])?;
+    run(
+        "cargo",
+        &[
+            "clippy",
+            "--workspace",
+            "--all-targets",
+            "--",
+            "-D",
+            "warnings",
+        ],
+    )?;
     run("cargo", &["test", "--workspace"])?;
     // The core must stay free of the browser, files, clocks and the terminal: prove it builds for wasm.
     run(
         "cargo",
-        &["build", "-p", "throughline-core", "--target", "wasm32-unknown-unknown", "--release"],
+        &[
+            "build",
+            "-p",
+            "throughline-core",
+            "--target",
+            "wasm32-unknown-unknown",
+            "--release",
+        ],
     )?;
     eprintln!("all checks passed");
     Ok(())
@@ -78,8 +109,19 @@ fn demo_data() -> Result<(), String> {
     run(
         bin,
         &[
-            "simulate", "--out-dir", "demo-site/demo", "--seed", "2026", "--frames", "750", "--density", "12",
-            "--miss-rate", "0.1", "--embedding-dim", "8",
+            "simulate",
+            "--out-dir",
+            "demo-site/demo",
+            "--seed",
+            "2026",
+            "--frames",
+            "750",
+            "--density",
+            "12",
+            "--miss-rate",
+            "0.1",
+            "--embedding-dim",
+            "8",
         ],
     )
 }

@@ -158,9 +158,10 @@ impl TrackerConfig {
     /// other field the file gives (its own `method` field is left to [`Self::method_in_json`]).
     pub fn from_json(text: &str, method: Method) -> Result<Self, ConfigError> {
         let fields = Self::json_object(text)?;
-        let mut merged = serde_json::to_value(Self::for_method(method)).map_err(|e| ConfigError {
-            message: e.to_string(),
-        })?;
+        let mut merged =
+            serde_json::to_value(Self::for_method(method)).map_err(|e| ConfigError {
+                message: e.to_string(),
+            })?;
         if let serde_json::Value::Object(m) = &mut merged {
             for (k, v) in fields {
                 if k != "method" {

@@ -5,7 +5,7 @@
 //! the optimal assignment is used instead: it never does worse on the same gate.
 
 use super::{Association, Engine, Match, Method};
-use crate::assign::{solve_edges, solve_gated, CostMatrix, Edge};
+use crate::assign::{solve_edges, Edge};
 use crate::detections::Detection;
 
 pub(super) fn associate(engine: &Engine, dets: &[Detection]) -> Association {
@@ -28,7 +28,11 @@ fn match_iou(
     let method = engine.config.method;
     // Only boxes that overlap can have a positive IoU: with detections sorted by their left edge,
     // each track looks only at those starting left of its right edge.
-    let mut by_left: Vec<(f64, usize)> = dets.iter().enumerate().map(|(k, &d)| (all[d].bbox.x, k)).collect();
+    let mut by_left: Vec<(f64, usize)> = dets
+        .iter()
+        .enumerate()
+        .map(|(k, &d)| (all[d].bbox.x, k))
+        .collect();
     by_left.sort_by(|a, b| a.0.total_cmp(&b.0));
     let widest = dets.iter().map(|&d| all[d].bbox.w).fold(0.0, f64::max);
     let mut edges = Vec::new();
@@ -47,7 +51,11 @@ fn match_iou(
             }
         }
     }
-    split(solve_edges(tracks.len(), dets.len(), &edges, 1.0 - min_iou), tracks, dets)
+    split(
+        solve_edges(tracks.len(), dets.len(), &edges, 1.0 - min_iou),
+        tracks,
+        dets,
+    )
 }
 
 /// Turns assignment pairs over sub-lists into matches plus what is left of each list.
@@ -186,26 +194,28 @@ fn deepsort(engine: &Engine, dets: &[Detection]) -> Association {
         for &t in &tracks {
             seen_by_cascade[t] = true;
         }
-        let cost = CostMatrix::from_fn(tracks.len(), unmatched.len(), |r, k| {
-            let t = &engine.live[tracks[r]];
-            let d = unmatched[k];
-            let Some(e) = &embeddings[d] else {
-                return f64::INFINITY;
-            };
+        let mut edges = Vec::new();
+        for (r, &ti) in tracks.iter().enumerate() {
+            let t = &engine.live[ti];
             if t.gallery.is_empty() {
-                return f64::INFINITY;
+                continue;
             }
-            let motion = engine.motion.gating_distance(&t.kf, &dets[usable[d]].bbox);
-            if motion > c.max_mahalanobis {
-                return f64::INFINITY;
+            let Some(gate) = engine.motion.gate(&t.kf, c.max_mahalanobis) else {
+                continue;
+            };
+            for (k, &d) in unmatched.iter().enumerate() {
+                let Some(e) = &embeddings[d] else { continue };
+                if gate.distance_sq(&dets[usable[d]].bbox).is_some() {
+                    edges.push(Edge {
+                        row: r,
+                        col: k,
+                        cost: gallery_distance(&t.gallery, e),
+                    });
+                }
             }
-            gallery_distance(&t.gallery, e)
-        });
-        let (level_matches, _, left) = split(
-            solve_gated(&cost, c.max_cosine_distance),
-            &tracks,
-            &unmatched,
-        );
+        }
+        let pairs = solve_edges(tracks.len(), unmatched.len(), &edges, c.max_cosine_distance);
+        let (level_matches, _, left) = split(pairs, &tracks, &unmatched);
         matches.extend(level_matches.into_iter().map(|m| Match {
             track: m.track,
             det: usable[m.det],
