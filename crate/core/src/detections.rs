@@ -400,13 +400,21 @@ fn read_benchmark_text(text: &str) -> Result<ReadReport, ReadError> {
         if l.is_empty() || l.starts_with('#') {
             continue;
         }
-        let fields = split_fields(l);
+        // Benchmark text has no quoting: fields are cut in place, without a vector per line.
+        let mut cut = [""; 8];
+        let mut count = 0;
+        for f in l.split(',') {
+            if count < cut.len() {
+                cut[count] = f.trim();
+            }
+            count += 1;
+        }
+        let fields = &cut[..count.min(cut.len())];
         if fields.len() < 7 {
             return Err(ReadError::new(
                 ReadErrorKind::MissingColumn,
                 format!(
-                    "{} columns, but the benchmark text format needs at least 7: frame,id,x,y,w,h,score",
-                    fields.len()
+                    "{count} columns, but the benchmark text format needs at least 7: frame,id,x,y,w,h,score"
                 ),
             )
             .at(line, None));
