@@ -126,16 +126,17 @@ fn main() -> ExitCode {
             quiet,
             stats,
         } => {
-            let started = std::time::Instant::now();
+            let mut timer = Timer::new();
             let r = run_track(
                 &detections,
                 output.as_deref(),
                 method.as_deref(),
                 config.as_deref(),
                 quiet,
+                &mut timer,
             );
             if stats {
-                print_stats(started);
+                timer.print();
             }
             r
         }
@@ -184,6 +185,7 @@ fn run_track(
     method: Option<&str>,
     config_path: Option<&Path>,
     quiet: bool,
+    timer: &mut Timer,
 ) -> Result<(), Failure> {
     let flag_method = method.and_then(track::Method::parse);
     let settings = match config_path {
@@ -198,6 +200,7 @@ fn run_track(
     let bytes = read_file(path)?;
     let report = detections::read_detections(&bytes).map_err(|e| bad_input(path, e))?;
     drop(bytes);
+    timer.lap("read");
     let method = flag_method
         .or(settings.as_ref().and_then(|s| s.2))
         .unwrap_or_else(|| track::default_method(report.detections.embedding_dim > 0));
@@ -240,6 +243,7 @@ fn run_track(
     })
     .map_err(|e| bad_input(path, e))?;
     bar.finish_and_clear();
+    timer.lap("track");
     let text = match output {
         Some(p) if p.extension().is_some_and(|e| e.eq_ignore_ascii_case("txt")) => {
             tracks_io::to_benchmark_text(&tracks)
@@ -250,6 +254,7 @@ fn run_track(
         Some(p) => write_file(p, &text)?,
         None => println!("{text}"),
     }
+    timer.lap("write");
     if !quiet {
         eprintln!(
             "{}: {} detections ({}) over {} frames -> {} tracks with {}{}",
@@ -265,20 +270,48 @@ fn run_track(
     Ok(())
 }
 
-/// Wall time and peak resident memory (Linux `VmHWM`; elsewhere only the time).
-fn print_stats(started: std::time::Instant) {
-    let peak = std::fs::read_to_string("/proc/self/status")
-        .ok()
-        .and_then(|s| {
-            s.lines()
-                .find(|l| l.starts_with("VmHWM:"))
-                .and_then(|l| l.split_whitespace().nth(1))
-                .and_then(|kib| kib.parse::<f64>().ok())
+/// Time per stage of a run, and the peak resident memory (Linux `VmHWM`), for `--stats`.
+struct Timer {
+    started: std::time::Instant,
+    last: std::time::Instant,
+    laps: Vec<(&'static str, f64)>,
+}
+
+impl Timer {
+    fn new() -> Self {
+        let now = std::time::Instant::now();
+        Self {
+            started: now,
+            last: now,
+            laps: Vec::new(),
+        }
+    }
+
+    fn lap(&mut self, name: &'static str) {
+        let now = std::time::Instant::now();
+        self.laps.push((name, (now - self.last).as_secs_f64()));
+        self.last = now;
+    }
+
+    fn print(&self) {
+        let peak = std::fs::read_to_string("/proc/self/status")
+            .ok()
+            .and_then(|s| {
+                s.lines()
+                    .find(|l| l.starts_with("VmHWM:"))
+                    .and_then(|l| l.split_whitespace().nth(1))
+                    .and_then(|kib| kib.parse::<f64>().ok())
+            });
+        let laps: Vec<String> = self
+            .laps
+            .iter()
+            .map(|(n, t)| format!("{n} {t:.3} s"))
+            .collect();
+        let total = self.started.elapsed().as_secs_f64();
+        let memory = peak.map_or(String::new(), |kib| {
+            format!(", peak memory {:.1} MiB", kib / 1024.0)
         });
-    let seconds = started.elapsed().as_secs_f64();
-    match peak {
-        Some(kib) => eprintln!("stats: {seconds:.3} s, peak memory {:.1} MiB", kib / 1024.0),
-        None => eprintln!("stats: {seconds:.3} s"),
+        eprintln!("stats: {total:.3} s ({}){memory}", laps.join(", "));
     }
 }
 

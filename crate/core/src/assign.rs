@@ -179,6 +179,10 @@ pub fn solve_edges(rows: usize, cols: usize, edges: &[Edge], gate: f64) -> Vec<(
     let above = gate + gate.abs().max(1.0) * 1e-5;
     let mut pairs = Vec::new();
     for group in by_root.chunk_by(|a, b| a.0 == b.0) {
+        if let [(_, k)] = group {
+            pairs.push((edges[*k].row, edges[*k].col));
+            continue;
+        }
         let group: Vec<&Edge> = group.iter().map(|&(_, k)| edges[k]).collect();
         let mut rs: Vec<usize> = group.iter().map(|e| e.row).collect();
         let mut cs: Vec<usize> = group.iter().map(|e| e.col).collect();

@@ -182,15 +182,25 @@ impl BoxMotion {
         let r = self.measurement_noise(kf.x[3]);
         let pht: SMatrix<f64, 8, 4> = kf.p.fixed_columns::<4>(0).into_owned();
         let s: MeasurementCov = pht.fixed_rows::<4>(0).into_owned() + r;
-        let Some(chol) = s.cholesky() else {
+        let Some(s_inv) = s.try_inverse() else {
             return false;
         };
-        // K = PHᵀ S⁻¹, computed as (S⁻¹ (PHᵀ)ᵀ)ᵀ since S is symmetric.
-        let k: SMatrix<f64, 8, 4> = chol.solve(&pht.transpose()).transpose();
+        let k: SMatrix<f64, 8, 4> = pht * s_inv;
         let y = measurement(b) - kf.x.fixed_rows::<4>(0);
         kf.x += k * y;
-        let p = kf.p - k * pht.transpose();
-        kf.p = (p + p.transpose()) * 0.5;
+        // P − K (PHᵀ)ᵀ is symmetric in exact arithmetic: compute the upper triangle, mirror it.
+        let p = &mut kf.p;
+        for row in 0..8 {
+            for col in row..8 {
+                let mut d = 0.0;
+                for j in 0..4 {
+                    d += k[(row, j)] * pht[(col, j)];
+                }
+                let v = p[(row, col)] - d;
+                p[(row, col)] = v;
+                p[(col, row)] = v;
+            }
+        }
         true
     }
 

@@ -10,7 +10,6 @@ use crate::detections::{self, ReadError, ReadErrorKind};
 use crate::geometry::BBox;
 use crate::track::{Track, TrackBox, TrackerConfig, Tracks};
 use serde::{Deserialize, Serialize};
-use std::fmt::Write as _;
 
 /// Identifies a Throughline tracks document.
 pub const TRACKS_FORMAT: &str = "throughline-tracks";
@@ -35,38 +34,39 @@ pub fn to_benchmark_text(tracks: &Tracks) -> String {
         .flat_map(|t| t.boxes.iter().map(move |b| (b.frame, t.id, b)))
         .collect();
     rows.sort_by_key(|&(f, id, _)| (f, id));
-    let mut out = String::with_capacity(rows.len() * 48);
+    // Built as bytes and checked once at the end: every piece written is ASCII.
+    let mut out: Vec<u8> = Vec::with_capacity(rows.len() * 48);
     for (frame, id, b) in rows {
         push_digits(&mut out, u64::from(frame), 0);
-        out.push(',');
+        out.push(b',');
         push_digits(&mut out, u64::from(id), 0);
-        out.push(',');
+        out.push(b',');
         for v in [b.bbox.x, b.bbox.y, b.bbox.w, b.bbox.h] {
             write_decimal(&mut out, v, 2);
-            out.push(',');
+            out.push(b',');
         }
         write_decimal(&mut out, b.score, 4);
-        out.push_str(",-1,-1,-1\n");
+        out.extend_from_slice(b",-1,-1,-1\n");
     }
-    out
+    String::from_utf8(out).unwrap_or_default()
 }
 
 /// Writes `v` rounded to `places` decimals, without trailing zeros (`12.5`, `3`, `-0.25`): the same
 /// text as formatting [`round`]`(v, places)`, written without the general float formatter.
-pub fn write_decimal(out: &mut String, v: f64, places: u32) {
+pub fn write_decimal(out: &mut Vec<u8>, v: f64, places: u32) {
     let scale = 10u64.pow(places);
     let scaled = (v.abs() * scale as f64).round();
     if !v.is_finite() || scaled >= 1e15 {
-        let _ = write!(out, "{}", round(v, places as i32));
+        out.extend_from_slice(round(v, places as i32).to_string().as_bytes());
         return;
     }
     let scaled = scaled as u64;
     if scaled == 0 {
-        out.push('0');
+        out.push(b'0');
         return;
     }
     if v < 0.0 {
-        out.push('-');
+        out.push(b'-');
     }
     push_digits(out, scaled / scale, 0);
     let mut frac = scaled % scale;
@@ -76,13 +76,13 @@ pub fn write_decimal(out: &mut String, v: f64, places: u32) {
             frac /= 10;
             digits -= 1;
         }
-        out.push('.');
+        out.push(b'.');
         push_digits(out, frac, digits);
     }
 }
 
 /// Appends the decimal digits of `n`, padded with leading zeros to at least `width` digits.
-fn push_digits(out: &mut String, mut n: u64, width: usize) {
+fn push_digits(out: &mut Vec<u8>, mut n: u64, width: usize) {
     let mut buf = [b'0'; 20];
     let mut i = buf.len();
     loop {
@@ -94,9 +94,7 @@ fn push_digits(out: &mut String, mut n: u64, width: usize) {
         }
     }
     let start = i.min(buf.len() - width.min(buf.len()));
-    for &b in &buf[start..] {
-        out.push(b as char);
-    }
+    out.extend_from_slice(&buf[start..]);
 }
 
 #[derive(Serialize, Deserialize)]

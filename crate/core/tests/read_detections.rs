@@ -267,3 +267,52 @@ fn warnings_are_counted_even_past_the_kept_ones() {
     assert_eq!(r.warnings.len(), throughline_core::detections::MAX_WARNINGS);
     assert_eq!(r.detections.rows.len(), 50);
 }
+
+#[test]
+fn numbers_read_exactly_like_the_standard_parser() {
+    // The reader has a fast path for plain decimals; every value must equal `str::parse::<f64>`.
+    let samples = [
+        "0",
+        "-0",
+        "1",
+        "12.5",
+        "0.1",
+        "0.3",
+        "-7.25",
+        "123456789012345",
+        "1234567890.12345",
+        "0.000000000000001",
+        "99.99",
+        "3.14159265358979",
+        "1e3",
+        "2.5E-3",
+        ".5",
+        "5.",
+        "+4",
+        "007.50",
+        "1234567890123456",
+    ];
+    for text in samples {
+        let line = format!("1,-1,{text},0,10,10,0.5\n");
+        let r = read_detections(line.as_bytes()).unwrap_or_else(|e| panic!("{text}: {e}"));
+        let want: f64 = text.parse().unwrap();
+        assert_eq!(
+            r.detections.rows[0].bbox.x.to_bits(),
+            want.to_bits(),
+            "{text}"
+        );
+    }
+    let mut rng = throughline_core::rng::Rng::new(4);
+    for _ in 0..20_000 {
+        let v = rng.range(-5000.0, 5000.0);
+        let places = rng.below(7);
+        let text = format!("{v:.places$}");
+        let line = format!("1,-1,{text},0,10,10,0.5\n");
+        let r = read_detections(line.as_bytes()).unwrap();
+        assert_eq!(
+            r.detections.rows[0].bbox.x.to_bits(),
+            text.parse::<f64>().unwrap().to_bits(),
+            "{text}"
+        );
+    }
+}

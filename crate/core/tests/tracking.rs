@@ -218,8 +218,9 @@ fn decimals_are_written_like_rounded_floats() {
         (0.87654, 4),
         (99.999, 2),
     ] {
-        let mut s = String::new();
-        tracks_io::write_decimal(&mut s, v, places);
+        let mut bytes = Vec::new();
+        tracks_io::write_decimal(&mut bytes, v, places);
+        let s = String::from_utf8(bytes).unwrap();
         let p = 10f64.powi(places as i32);
         let r = (v * p).round() / p;
         let want = if r == 0.0 {
