@@ -41,6 +41,18 @@ fn measure(program: &str, args: &[&str]) -> Result<Measured, String> {
     Ok(Measured { seconds, peak_mib })
 }
 
+/// The fastest of `runs` runs (the usual way to take timings on a machine that does other things).
+fn best_of(runs: usize, program: &str, args: &[&str]) -> Result<Measured, String> {
+    let mut best: Option<Measured> = None;
+    for _ in 0..runs {
+        let m = measure(program, args)?;
+        if best.as_ref().is_none_or(|b| m.seconds < b.seconds) {
+            best = Some(m);
+        }
+    }
+    best.ok_or_else(|| "no run".to_string())
+}
+
 fn python_with_peers() -> Option<String> {
     let candidates = [
         std::env::var("THROUGHLINE_BENCH_PYTHON").ok(),
@@ -125,7 +137,8 @@ pub fn bench(args: &[String]) -> Result<(), String> {
             };
             let out = scene.join(format!("{method}.txt")).display().to_string();
             let inp = scene.join(input).display().to_string();
-            let m = measure(
+            let m = best_of(
+                3,
                 &bin,
                 &[
                     "track", &inp, "--method", method, "-o", &out, "--quiet", "--stats",
@@ -146,7 +159,7 @@ pub fn bench(args: &[String]) -> Result<(), String> {
             if method == "sort" {
                 if let Some(py) = &python {
                     let peer_out = scene.join("peer.txt").display().to_string();
-                    let peer = measure(py, &["tests/bench/sort_peer.py", &inp, &peer_out])?;
+                    let peer = best_of(3, py, &["tests/bench/sort_peer.py", &inp, &peer_out])?;
                     let tracks =
                         read_benchmark_boxes(&std::fs::read(&peer_out).map_err(|e| e.to_string())?)
                             .map_err(|e| e.to_string())?;
@@ -174,7 +187,7 @@ pub fn bench(args: &[String]) -> Result<(), String> {
         "{BEGIN}\nMeasured by `cargo xtask bench{}` on {machine}.\nScenes: {frames} frames of the simulated \
          footbridge plaza, 360 pixels high and 640, 1920 and 5120 wide, seed 42, 12% missed detections (more under occlusion), embeddings of \
          16 values for deepsort. Speed is whole `throughline track` runs (reading, tracking, writing), \
-         frames per second of wall time; memory is peak resident set size.\n\n\
+         frames per second of wall time, the fastest of 3 runs (the Python peer likewise); memory is peak resident set size.\n\n\
          | detections per frame (measured) | method | HOTA % | IDF1 % | ID switches | frames/s | peak MiB |\n\
          |---|---|---|---|---|---|---|\n{}\n{END}",
         if quick { " --quick" } else { "" },

@@ -125,7 +125,8 @@ struct Engine<'a> {
     config: TrackerConfig,
     motion: BoxMotion,
     detections: &'a Detections,
-    live: Vec<LiveTrack>,
+    /// Boxed, so that removing a track from the middle shifts pointers, not whole filters.
+    live: Vec<Box<LiveTrack>>,
     finished: Vec<Track>,
     next_id: u32,
 }
@@ -241,7 +242,7 @@ impl<'a> Engine<'a> {
 
     /// Starts a tentative track on a detection; its filter starts on the detection's box.
     fn start(&mut self, frame: u32, det: &Detection) {
-        self.live.push(LiveTrack {
+        self.live.push(Box::new(LiveTrack {
             id: None,
             kf: self.motion.initiate(&det.bbox),
             last_box: det.bbox,
@@ -253,7 +254,7 @@ impl<'a> Engine<'a> {
             class_votes: Vec::new(),
             boxes: Vec::new(),
             gallery: VecDeque::new(),
-        });
+        }));
         self.record(self.live.len() - 1, frame, det);
     }
 
@@ -288,7 +289,7 @@ impl<'a> Engine<'a> {
             // `remove`, not `swap_remove`: the order of live tracks decides numbering ties.
             let t = self.live.remove(i);
             if t.is_confirmed() {
-                self.finished.push(finish(t, self.detections));
+                self.finished.push(finish(*t, self.detections));
             }
         }
     }
@@ -296,7 +297,7 @@ impl<'a> Engine<'a> {
     fn close(mut self, frame_count: u32) -> Tracks {
         for t in std::mem::take(&mut self.live) {
             if t.is_confirmed() {
-                self.finished.push(finish(t, self.detections));
+                self.finished.push(finish(*t, self.detections));
             }
         }
         let mut tracks = self.finished;
