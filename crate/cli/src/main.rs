@@ -7,7 +7,7 @@ use clap::{Parser, Subcommand};
 use indicatif::{ProgressBar, ProgressStyle};
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
-use throughline_core::{detections, score, sim, track, tracks_io};
+use throughline_core::{count, detections, plan, score, sim, track, tracks_io};
 
 #[derive(Parser)]
 #[command(
@@ -50,6 +50,54 @@ enum Command {
         /// Print the time taken and the peak memory on standard error at the end.
         #[arg(long)]
         stats: bool,
+    },
+    /// Track detections, then count them against a plan (screenlines, zones, intervals).
+    #[command(long_about = "Track detections, then count them against a plan.\n\n\
+        PLAN is a JSON counting plan (docs/plan-format.md): frame rate, screenlines, zones, intervals, \
+        calibration. The report (JSON) holds counts by line, direction, class and interval, zone \
+        entries, exits and dwell, movements, speeds, and every event behind the counts. \
+        Counts are estimates: check a sample against a manual count before relying on them.")]
+    Run {
+        /// Detections file (as for `track`).
+        detections: PathBuf,
+        /// Counting plan (JSON).
+        #[arg(long, value_name = "PLAN")]
+        plan: PathBuf,
+        /// Where to write the report (JSON); without it the report goes to standard output.
+        #[arg(short, long, value_name = "REPORT")]
+        output: Option<PathBuf>,
+        /// Also write the counts as CSV (screenline,direction,class,interval_start,interval_end,count).
+        #[arg(long, value_name = "FILE")]
+        csv: Option<PathBuf>,
+        /// Also write the tracks (.txt: benchmark text; otherwise JSON).
+        #[arg(long, value_name = "FILE")]
+        tracks: Option<PathBuf>,
+        /// Tracking method [default: deepsort when the detections carry embeddings, else sort].
+        #[arg(long, value_parser = ["iou", "sort", "bytetrack", "deepsort"])]
+        method: Option<String>,
+        /// Settings file (JSON object of tracker settings; see docs/tracker-settings.md).
+        #[arg(long, value_name = "FILE")]
+        config: Option<PathBuf>,
+        /// Print no summary and no progress.
+        #[arg(short, long)]
+        quiet: bool,
+    },
+    /// Count existing tracks against a plan.
+    Count {
+        /// Tracks: a tracks JSON document, or benchmark text (then every box counts as observed).
+        tracks: PathBuf,
+        /// Counting plan (JSON).
+        #[arg(long, value_name = "PLAN")]
+        plan: PathBuf,
+        /// Where to write the report (JSON); without it the report goes to standard output.
+        #[arg(short, long, value_name = "REPORT")]
+        output: Option<PathBuf>,
+        /// Also write the counts as CSV.
+        #[arg(long, value_name = "FILE")]
+        csv: Option<PathBuf>,
+        /// Print no summary.
+        #[arg(short, long)]
+        quiet: bool,
     },
     /// Make a simulated scene with known truth: detections and ground-truth tracks.
     Simulate {
@@ -140,6 +188,43 @@ fn main() -> ExitCode {
             }
             r
         }
+        Command::Run {
+            detections,
+            plan,
+            output,
+            csv,
+            tracks,
+            method,
+            config,
+            quiet,
+        } => run_run(
+            &detections,
+            &plan,
+            Outputs {
+                report: output.as_deref(),
+                csv: csv.as_deref(),
+                tracks: tracks.as_deref(),
+            },
+            method.as_deref(),
+            config.as_deref(),
+            quiet,
+        ),
+        Command::Count {
+            tracks,
+            plan,
+            output,
+            csv,
+            quiet,
+        } => run_count(
+            &tracks,
+            &plan,
+            Outputs {
+                report: output.as_deref(),
+                csv: csv.as_deref(),
+                tracks: None,
+            },
+            quiet,
+        ),
         Command::Simulate {
             out_dir,
             seed,
@@ -187,6 +272,43 @@ fn run_track(
     quiet: bool,
     timer: &mut Timer,
 ) -> Result<(), Failure> {
+    let tracks = track_file(path, method, config_path, quiet, timer)?;
+    let text = tracks_text(&tracks, output);
+    match output {
+        Some(p) => write_file(p, &text)?,
+        None => println!("{text}"),
+    }
+    timer.lap("write");
+    if !quiet {
+        eprintln!(
+            "{}: {} tracks with {}{}",
+            path.display(),
+            tracks.tracks.len(),
+            tracks.config.method,
+            output.map_or(String::new(), |p| format!(", written to {}", p.display()))
+        );
+    }
+    Ok(())
+}
+
+/// Tracks as benchmark text for a `.txt` path, otherwise as the JSON document.
+fn tracks_text(tracks: &track::Tracks, path: Option<&Path>) -> String {
+    match path {
+        Some(p) if p.extension().is_some_and(|e| e.eq_ignore_ascii_case("txt")) => {
+            tracks_io::to_benchmark_text(tracks)
+        }
+        _ => tracks_io::to_json(tracks),
+    }
+}
+
+/// Reads a detections file and tracks it, reporting warnings and progress on stderr.
+fn track_file(
+    path: &Path,
+    method: Option<&str>,
+    config_path: Option<&Path>,
+    quiet: bool,
+    timer: &mut Timer,
+) -> Result<track::Tracks, Failure> {
     let flag_method = method.and_then(track::Method::parse);
     let settings = match config_path {
         Some(p) => {
@@ -244,28 +366,99 @@ fn run_track(
     .map_err(|e| bad_input(path, e))?;
     bar.finish_and_clear();
     timer.lap("track");
-    let text = match output {
-        Some(p) if p.extension().is_some_and(|e| e.eq_ignore_ascii_case("txt")) => {
-            tracks_io::to_benchmark_text(&tracks)
-        }
-        _ => tracks_io::to_json(&tracks),
-    };
-    match output {
-        Some(p) => write_file(p, &text)?,
-        None => println!("{text}"),
-    }
-    timer.lap("write");
     if !quiet {
         eprintln!(
-            "{}: {} detections ({}) over {} frames -> {} tracks with {}{}",
+            "{}: {} detections ({}) over {} frames",
             path.display(),
             dets.rows.len(),
             report.format,
             dets.last_frame(),
-            tracks.tracks.len(),
-            config.method,
-            output.map_or(String::new(), |p| format!(", written to {}", p.display()))
         );
+    }
+    Ok(tracks)
+}
+
+/// Where `run` and `count` write.
+struct Outputs<'a> {
+    report: Option<&'a Path>,
+    csv: Option<&'a Path>,
+    tracks: Option<&'a Path>,
+}
+
+fn read_plan(path: &Path) -> Result<plan::Plan, Failure> {
+    let bytes = read_file(path)?;
+    let text =
+        std::str::from_utf8(&bytes).map_err(|_| bad_input(path, "the plan is not UTF-8 text"))?;
+    plan::Plan::from_json(text).map_err(|e| bad_input(path, e))
+}
+
+fn run_run(
+    detections: &Path,
+    plan_path: &Path,
+    out: Outputs,
+    method: Option<&str>,
+    config: Option<&Path>,
+    quiet: bool,
+) -> Result<(), Failure> {
+    // The plan is checked first: a mistake in it should not cost a whole tracking run.
+    let plan = read_plan(plan_path)?;
+    let mut timer = Timer::new();
+    let tracks = track_file(detections, method, config, quiet, &mut timer)?;
+    if let Some(p) = out.tracks {
+        write_file(p, &tracks_text(&tracks, Some(p)))?;
+    }
+    let report = count::count(&tracks, &plan, Some(&tracks.config));
+    write_report(&report, &out, quiet)
+}
+
+fn run_count(
+    tracks_path: &Path,
+    plan_path: &Path,
+    out: Outputs,
+    quiet: bool,
+) -> Result<(), Failure> {
+    let plan = read_plan(plan_path)?;
+    let bytes = read_file(tracks_path)?;
+    let is_json = bytes.iter().find(|b| !b.is_ascii_whitespace()) == Some(&b'{');
+    let (tracks, tracker) = if is_json {
+        let t = tracks_io::from_json(&bytes).map_err(|e| bad_input(tracks_path, e))?;
+        let config = t.config.clone();
+        (t, Some(config))
+    } else {
+        let boxes =
+            tracks_io::read_benchmark_boxes(&bytes).map_err(|e| bad_input(tracks_path, e))?;
+        (tracks_io::boxes_to_tracks(&boxes), None)
+    };
+    let report = count::count(&tracks, &plan, tracker.as_ref());
+    write_report(&report, &out, quiet)
+}
+
+fn write_report(report: &count::Report, out: &Outputs, quiet: bool) -> Result<(), Failure> {
+    let json = serde_json::to_string_pretty(report).map_err(|e| Failure {
+        message: format!("cannot write the report: {e}"),
+        code: 1,
+    })?;
+    if let Some(p) = out.csv {
+        write_file(p, &count::counts_csv(report))?;
+    }
+    match out.report {
+        Some(p) => write_file(p, &json)?,
+        None => println!("{json}"),
+    }
+    if !quiet {
+        if report.screenlines.is_empty() && report.zones.is_empty() {
+            eprintln!("note: the plan has no screenlines and no zones, so nothing was counted");
+        }
+        for l in &report.screenlines {
+            eprintln!(
+                "{}: {} {}, {} {} ({} inferred while unseen)",
+                l.name, l.forward, l.forward_label, l.backward, l.backward_label, l.inferred
+            );
+        }
+        for z in &report.zones {
+            eprintln!("{}: {} entries, {} exits", z.name, z.entries, z.exits);
+        }
+        eprintln!("{}", count::CAUTION);
     }
     Ok(())
 }

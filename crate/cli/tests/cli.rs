@@ -212,3 +212,113 @@ fn simulate_then_score_round_trip() {
     let o = throughline(&["simulate", "--out-dir", &d, "--miss-rate", "2"]);
     assert_eq!(o.status.code(), Some(2));
 }
+
+#[test]
+fn run_tracks_and_counts_with_a_plan_writing_report_and_csv() {
+    let dir = scratch("run");
+    let report = dir.join("report.json").display().to_string();
+    let csv = dir.join("counts.csv").display().to_string();
+    let tracks = dir.join("tracks.json").display().to_string();
+    let o = throughline(&[
+        "run",
+        &demo("detections.csv"),
+        "--plan",
+        &demo("plan.json"),
+        "-o",
+        &report,
+        "--csv",
+        &csv,
+        "--tracks",
+        &tracks,
+    ]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    assert!(stderr(&o).contains("manual count"), "the caution is shown");
+    let r: serde_json::Value = serde_json::from_slice(&std::fs::read(&report).unwrap()).unwrap();
+    assert_eq!(r["format"], "throughline-report");
+    assert_eq!(r["tracker"]["method"], "deepsort");
+    let line = &r["screenlines"][0];
+    for key in ["name", "forward", "backward", "by_class", "intervals"] {
+        assert!(line.get(key).is_some(), "{key}");
+    }
+    assert!(line["forward"].is_u64() && line["backward"].is_u64());
+    let header = std::fs::read_to_string(&csv).unwrap();
+    assert!(header.starts_with("screenline,direction,class,interval_start,interval_end,count\n"));
+    // count on the written tracks gives the same counts as run.
+    let report2 = dir.join("report2.json").display().to_string();
+    let o = throughline(&[
+        "count",
+        &tracks,
+        "--plan",
+        &demo("plan.json"),
+        "-o",
+        &report2,
+        "-q",
+    ]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let r2: serde_json::Value = serde_json::from_slice(&std::fs::read(&report2).unwrap()).unwrap();
+    assert_eq!(r["screenlines"], r2["screenlines"]);
+    // The written tracks are rounded to 0.01 pixel, so event positions may differ in the last digit.
+    let key = |e: &serde_json::Value| {
+        (
+            e["track"].clone(),
+            e["name"].clone(),
+            e["direction"].clone(),
+            e["frame"].clone(),
+        )
+    };
+    let events = |r: &serde_json::Value| {
+        r["events"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(key)
+            .collect::<Vec<_>>()
+    };
+    assert_eq!(events(&r), events(&r2));
+}
+
+#[test]
+fn a_bad_plan_is_refused_before_tracking_and_names_the_field() {
+    let dir = scratch("bad_plan");
+    let plan = write(
+        &dir,
+        "plan.json",
+        br#"{"frame_rate": 25, "screenlines": [{"name": "a", "points": [[1, 2]]}]}"#,
+    );
+    let o = throughline(&["run", &demo("detections.txt"), "--plan", &plan]);
+    assert_eq!(o.status.code(), Some(1));
+    let e = stderr(&o);
+    assert!(
+        e.contains("screenlines[0].points") && e.contains("at least 2 points"),
+        "{e}"
+    );
+    assert!(!e.contains("detections ("), "tracking did not start: {e}");
+    let typo = write(
+        &dir,
+        "typo.json",
+        br#"{"frame_rate": 25, "screenline": []}"#,
+    );
+    let o = throughline(&["count", &demo("truth.txt"), "--plan", &typo]);
+    assert_eq!(o.status.code(), Some(1));
+    assert!(stderr(&o).contains("screenline"), "{}", stderr(&o));
+}
+
+#[test]
+fn a_plan_without_lines_or_zones_says_so() {
+    let dir = scratch("empty_plan");
+    let plan = write(&dir, "plan.json", br#"{"frame_rate": 25}"#);
+    let o = throughline(&[
+        "count",
+        &demo("truth.txt"),
+        "--plan",
+        &plan,
+        "-o",
+        &dir.join("r.json").display().to_string(),
+    ]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    assert!(
+        stderr(&o).contains("no screenlines and no zones"),
+        "{}",
+        stderr(&o)
+    );
+}

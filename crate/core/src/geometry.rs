@@ -133,6 +133,17 @@ impl Segment {
         }
     }
 
+    /// Distance in pixels from `q` to the nearest point of the segment (not its supporting line).
+    pub fn distance_to(&self, q: &Point) -> f64 {
+        let (dx, dy) = (self.b.x - self.a.x, self.b.y - self.a.y);
+        let len2 = dx * dx + dy * dy;
+        if len2 == 0.0 {
+            return self.a.distance(q);
+        }
+        let t = (((q.x - self.a.x) * dx + (q.y - self.a.y) * dy) / len2).clamp(0.0, 1.0);
+        Point::new(self.a.x + t * dx, self.a.y + t * dy).distance(q)
+    }
+
     /// Where the segment `p -> q` meets this one, as the fraction `t` along `p -> q` (0 at `p`, 1 at
     /// `q`); `None` when they do not meet or are parallel. Touching an end point counts as meeting.
     pub fn intersect_param(&self, p: &Point, q: &Point) -> Option<f64> {
@@ -173,6 +184,14 @@ impl Polygon {
             })
             .sum();
         twice.abs() / 2.0
+    }
+
+    /// Distance in pixels from `q` to the nearest edge.
+    pub fn distance_to_edge(&self, q: &Point) -> f64 {
+        let n = self.corners.len();
+        (0..n)
+            .map(|i| Segment::new(self.corners[i], self.corners[(i + 1) % n]).distance_to(q))
+            .fold(f64::INFINITY, f64::min)
     }
 
     /// Whether `q` is inside (even-odd rule). Points exactly on an edge may fall either way.

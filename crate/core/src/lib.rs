@@ -9,9 +9,13 @@
 //! - frame numbers are **1-based**, as in the benchmark text format.
 
 pub mod assign;
+pub mod calibrate;
+pub mod clock;
+pub mod count;
 pub mod detections;
 pub mod geometry;
 pub mod kalman;
+pub mod plan;
 pub mod rng;
 pub mod score;
 pub mod sim;

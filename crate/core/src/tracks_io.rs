@@ -72,7 +72,7 @@ pub fn write_decimal(out: &mut Vec<u8>, v: f64, places: u32) {
     let mut frac = scaled % scale;
     if frac > 0 {
         let mut digits = places as usize;
-        while frac % 10 == 0 {
+        while frac.is_multiple_of(10) {
             frac /= 10;
             digits -= 1;
         }
@@ -298,4 +298,37 @@ pub fn tracks_to_boxes(tracks: &Tracks) -> Vec<IdBox> {
             })
         })
         .collect()
+}
+
+/// Tracks from benchmark-text rows (tracker output without classes or flags): every box is taken as
+/// observed, and ids are kept. Rows with a negative id are passed over.
+pub fn boxes_to_tracks(rows: &[IdBox]) -> Tracks {
+    let mut by_id: std::collections::BTreeMap<i64, Vec<TrackBox>> = Default::default();
+    for r in rows.iter().filter(|r| r.id >= 0) {
+        by_id.entry(r.id).or_default().push(TrackBox {
+            frame: r.frame,
+            bbox: r.bbox,
+            score: 1.0,
+            observed: true,
+        });
+    }
+    let tracks: Vec<Track> = by_id
+        .into_iter()
+        .map(|(id, mut boxes)| {
+            boxes.sort_by_key(|b| b.frame);
+            boxes.dedup_by_key(|b| b.frame);
+            Track {
+                id: u32::try_from(id).unwrap_or(u32::MAX),
+                class: None,
+                mean_score: 1.0,
+                boxes,
+            }
+        })
+        .collect();
+    let frame_count = rows.iter().map(|r| r.frame).max().unwrap_or(0);
+    Tracks {
+        config: crate::track::TrackerConfig::for_method(crate::track::Method::Sort),
+        frame_count,
+        tracks,
+    }
 }

@@ -49,13 +49,29 @@ fn demo() -> Result<(), String> {
     let bin = cli_binary();
     let bin = bin.to_str().unwrap_or("throughline");
     let dets = "demo-site/demo/detections.csv";
-    run(bin, &["track", dets, "-o", "out/demo/tracks.json"])?;
+    let plan = "demo-site/demo/plan.json";
     run(
         bin,
-        &["track", dets, "-o", "out/demo/tracks.txt", "--quiet"],
+        &[
+            "run",
+            dets,
+            "--plan",
+            plan,
+            "-o",
+            "out/demo/report.json",
+            "--csv",
+            "out/demo/counts.csv",
+            "--tracks",
+            "out/demo/tracks.txt",
+        ],
     )?;
-    println!("\nTracks of the bundled demo (a simulated footbridge plaza): out/demo/tracks.json and tracks.txt");
-    println!("Against the scene's known truth:\n");
+    println!("\nThe bundled demo (a simulated footbridge plaza) was tracked and counted:");
+    println!("  out/demo/report.json  counts by line, direction, class and interval, zones, movements, speeds, events");
+    println!(
+        "  out/demo/counts.csv   screenline,direction,class,interval_start,interval_end,count"
+    );
+    println!("  out/demo/tracks.txt   the tracks (benchmark text)");
+    println!("\nTracks against the scene's known truth:\n");
     run(
         bin,
         &[
@@ -65,7 +81,9 @@ fn demo() -> Result<(), String> {
             "out/demo/tracks.txt",
         ],
     )?;
-    println!("\nTry it on your own file: {bin} track YOUR_DETECTIONS -o tracks.json");
+    println!(
+        "\nOn your own files: {bin} run DETECTIONS --plan PLAN -o report.json --csv counts.csv"
+    );
     Ok(())
 }
 

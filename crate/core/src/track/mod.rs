@@ -126,6 +126,7 @@ struct Engine<'a> {
     motion: BoxMotion,
     detections: &'a Detections,
     /// Boxed, so that removing a track from the middle shifts pointers, not whole filters.
+    #[allow(clippy::vec_box)]
     live: Vec<Box<LiveTrack>>,
     finished: Vec<Track>,
     next_id: u32,

@@ -1,0 +1,103 @@
+//! Local wall-clock times (no time zone) for labelling intervals: parse `YYYY-MM-DDTHH:MM:SS`, add
+//! seconds, print back. Pure arithmetic on the proleptic Gregorian calendar; the core reads no clock.
+
+use std::fmt;
+
+/// A local date and time, kept as seconds since 1970-01-01T00:00:00 (no zone, no leap seconds).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord)]
+pub struct LocalTime {
+    seconds: i64,
+}
+
+/// Days since 1970-01-01 of a civil date (H. Hinnant's algorithm).
+fn days_from_civil(y: i64, m: i64, d: i64) -> i64 {
+    let y = if m <= 2 { y - 1 } else { y };
+    let era = y.div_euclid(400);
+    let yoe = y - era * 400;
+    let mp = (m + 9) % 12;
+    let doy = (153 * mp + 2) / 5 + d - 1;
+    let doe = yoe * 365 + yoe / 4 - yoe / 100 + doy;
+    era * 146_097 + doe - 719_468
+}
+
+fn civil_from_days(z: i64) -> (i64, i64, i64) {
+    let z = z + 719_468;
+    let era = z.div_euclid(146_097);
+    let doe = z - era * 146_097;
+    let yoe = (doe - doe / 1460 + doe / 36_524 - doe / 146_096) / 365;
+    let doy = doe - (365 * yoe + yoe / 4 - yoe / 100);
+    let mp = (5 * doy + 2) / 153;
+    let d = doy - (153 * mp + 2) / 5 + 1;
+    let m = if mp < 10 { mp + 3 } else { mp - 9 };
+    let y = yoe + era * 400 + i64::from(m <= 2);
+    (y, m, d)
+}
+
+fn days_in_month(y: i64, m: i64) -> i64 {
+    match m {
+        1 | 3 | 5 | 7 | 8 | 10 | 12 => 31,
+        4 | 6 | 9 | 11 => 30,
+        _ if (y % 4 == 0 && y % 100 != 0) || y % 400 == 0 => 29,
+        _ => 28,
+    }
+}
+
+impl LocalTime {
+    /// Parses `YYYY-MM-DDTHH:MM:SS` (a space instead of `T` and a missing `:SS` are accepted).
+    pub fn parse(s: &str) -> Option<LocalTime> {
+        let s = s.trim();
+        let (date, time) = s.split_once(['T', ' '])?;
+        let mut d = date.split('-');
+        let y: i64 = d.next()?.parse().ok()?;
+        let m: i64 = d.next()?.parse().ok()?;
+        let day: i64 = d.next()?.parse().ok()?;
+        if d.next().is_some() || !(1..=12).contains(&m) || day < 1 || day > days_in_month(y, m) {
+            return None;
+        }
+        let mut t = time.split(':');
+        let h: i64 = t.next()?.parse().ok()?;
+        let min: i64 = t.next()?.parse().ok()?;
+        let sec: i64 = match t.next() {
+            Some(v) => v.parse().ok()?,
+            None => 0,
+        };
+        if t.next().is_some()
+            || !(0..24).contains(&h)
+            || !(0..60).contains(&min)
+            || !(0..60).contains(&sec)
+        {
+            return None;
+        }
+        Some(LocalTime {
+            seconds: days_from_civil(y, m, day) * 86_400 + h * 3600 + min * 60 + sec,
+        })
+    }
+
+    /// This time plus whole seconds.
+    pub fn plus_seconds(self, s: i64) -> LocalTime {
+        LocalTime {
+            seconds: self.seconds + s,
+        }
+    }
+}
+
+impl fmt::Display for LocalTime {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        let days = self.seconds.div_euclid(86_400);
+        let rest = self.seconds.rem_euclid(86_400);
+        let (y, m, d) = civil_from_days(days);
+        write!(
+            f,
+            "{y:04}-{m:02}-{d:02}T{:02}:{:02}:{:02}",
+            rest / 3600,
+            rest % 3600 / 60,
+            rest % 60
+        )
+    }
+}
+
+/// Elapsed seconds as `HH:MM:SS` (hours may exceed 24), for plans without a start time.
+pub fn elapsed(seconds: f64) -> String {
+    let s = seconds.max(0.0).round() as i64;
+    format!("{:02}:{:02}:{:02}", s / 3600, s % 3600 / 60, s % 60)
+}

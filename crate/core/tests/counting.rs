@@ -1,0 +1,387 @@
+//! Counting on hand-worked tracks: each case draws a small path across a line or zone and states
+//! what a person counting by eye would write down.
+
+use throughline_core::count::{count, counts_csv, peak_hour, percentile, Report};
+use throughline_core::geometry::BBox;
+use throughline_core::plan::Plan;
+use throughline_core::track::{Method, Track, TrackBox, TrackerConfig, Tracks};
+
+/// A track whose box bottom-centre follows `path` (frame, x, y, observed); boxes are 20x50 pixels.
+fn track(id: u32, class: &str, path: &[(u32, f64, f64, bool)]) -> Track {
+    Track {
+        id,
+        class: Some(class.to_string()),
+        mean_score: 0.9,
+        boxes: path
+            .iter()
+            .map(|&(frame, x, y, observed)| TrackBox {
+                frame,
+                bbox: BBox::new(x - 10.0, y - 50.0, 20.0, 50.0),
+                score: if observed { 0.9 } else { 0.0 },
+                observed,
+            })
+            .collect(),
+    }
+}
+
+/// A straight walk sampled every frame from `(x0, y0)` at frame `f0` by `(dx, dy)` per frame.
+fn walk(f0: u32, frames: u32, x0: f64, y0: f64, dx: f64, dy: f64) -> Vec<(u32, f64, f64, bool)> {
+    (0..frames)
+        .map(|k| (f0 + k, x0 + dx * f64::from(k), y0 + dy * f64::from(k), true))
+        .collect()
+}
+
+fn tracks(list: Vec<Track>) -> Tracks {
+    let frame_count = list.iter().map(|t| t.last_frame()).max().unwrap_or(0);
+    Tracks {
+        config: TrackerConfig::for_method(Method::Sort),
+        frame_count,
+        tracks: list,
+    }
+}
+
+/// A horizontal screenline at y = 200 from x = 0 to x = 400: forward is downwards on screen.
+const LINE: &str = r#"{"frame_rate": 10, "screenlines": [{"name": "deck", "points": [[0, 200], [400, 200]],
+    "forward": "south", "backward": "north"}]}"#;
+
+fn run(plan: &str, list: Vec<Track>) -> Report {
+    count(
+        &tracks(list),
+        &Plan::from_json(plan).expect("valid plan"),
+        None,
+    )
+}
+
+fn check_line(report: &Report, forward: u64, backward: u64) {
+    let l = &report.screenlines[0];
+    assert_eq!(
+        (l.forward, l.backward),
+        (forward, backward),
+        "events: {:#?}",
+        report.events
+    );
+}
+
+#[test]
+fn one_crossing_downwards_is_one_forward() {
+    let r = run(
+        LINE,
+        vec![track(1, "pedestrian", &walk(1, 30, 100.0, 150.0, 0.0, 4.0))],
+    );
+    check_line(&r, 1, 0);
+    let e = &r.events[0];
+    assert_eq!(
+        (e.direction, e.label.as_str(), e.class.as_str()),
+        ("forward", "south", "pedestrian")
+    );
+    // y = 150 + 4k reaches 200 at k = 12.5, between frames 13 and 14: the event is at frame 14,
+    // 1.25 s after frame 1 (10 frames per second).
+    assert_eq!(e.frame, 14);
+    assert!((e.seconds - 1.25).abs() < 1e-9);
+    assert_eq!((e.x, e.y), (100.0, 200.0));
+    assert!(!e.inferred);
+}
+
+#[test]
+fn crossing_and_crossing_back_counts_both() {
+    let mut path = walk(1, 20, 100.0, 150.0, 0.0, 5.0); // down to y = 245
+    path.extend(walk(21, 20, 100.0, 245.0, 0.0, -5.0)); // back up to y = 150
+    let r = run(LINE, vec![track(1, "pedestrian", &path)]);
+    check_line(&r, 1, 1);
+}
+
+#[test]
+fn jitter_on_the_line_does_not_multiply_counts() {
+    // Approaches, wobbles ±3 px around the line for 20 frames (hysteresis is 0.15 × 50 = 7.5 px),
+    // then walks on: one crossing.
+    let mut path = walk(1, 10, 100.0, 160.0, 0.0, 4.0);
+    for k in 0..20u32 {
+        let y = if k % 2 == 0 { 197.0 } else { 203.0 };
+        path.push((11 + k, 100.0, y, true));
+    }
+    path.extend(walk(31, 10, 100.0, 204.0, 0.0, 4.0));
+    let r = run(LINE, vec![track(1, "pedestrian", &path)]);
+    check_line(&r, 1, 0);
+    // A person who only stands on the line and leaves the way they came is not counted.
+    let mut stay = walk(1, 10, 100.0, 160.0, 0.0, 4.0);
+    for k in 0..20u32 {
+        stay.push((11 + k, 100.0, if k % 2 == 0 { 197.0 } else { 203.0 }, true));
+    }
+    stay.extend(walk(31, 10, 100.0, 197.0, 0.0, -4.0));
+    check_line(&run(LINE, vec![track(1, "pedestrian", &stay)]), 0, 0);
+}
+
+#[test]
+fn coasting_across_the_line_counts_and_says_inferred() {
+    let mut path = walk(1, 30, 100.0, 150.0, 0.0, 4.0);
+    for p in path.iter_mut().filter(|p| (12..=16).contains(&p.0)) {
+        p.3 = false; // unseen while crossing
+    }
+    let r = run(LINE, vec![track(1, "cyclist", &path)]);
+    check_line(&r, 1, 0);
+    assert!(r.events[0].inferred);
+    assert_eq!(r.screenlines[0].inferred, 1);
+}
+
+#[test]
+fn polyline_segments_and_a_vertex_count_once() {
+    // A bent line: (0,200) -> (200,200) -> (400,300).
+    let plan = r#"{"frame_rate": 10, "screenlines": [{"name": "bend", "points": [[0,200],[200,200],[400,300]]}]}"#;
+    // Crosses the first segment.
+    check_line(
+        &run(
+            plan,
+            vec![track(1, "p", &walk(1, 30, 100.0, 150.0, 0.0, 4.0))],
+        ),
+        1,
+        0,
+    );
+    // Crosses the second segment (at x = 300 the line is at y = 250).
+    check_line(
+        &run(
+            plan,
+            vec![track(1, "p", &walk(1, 40, 300.0, 200.0, 0.0, 4.0))],
+        ),
+        1,
+        0,
+    );
+    // Straight through the vertex (200, 200): one crossing, not two.
+    check_line(
+        &run(
+            plan,
+            vec![track(1, "p", &walk(1, 30, 200.0, 152.0, 0.0, 4.0))],
+        ),
+        1,
+        0,
+    );
+    // Leftwards along y = 240 meets only the second segment, at x = 280. That segment points
+    // down-right, so its right-hand side on screen is the lower-left: moving left crosses from its
+    // left-hand side to its right-hand side, which is forward.
+    let left = walk(1, 50, 380.0, 240.0, -4.0, 0.0);
+    check_line(&run(plan, vec![track(1, "p", &left)]), 1, 0);
+}
+
+#[test]
+fn a_point_exactly_on_the_line_is_one_crossing_not_two() {
+    // y goes 180, 190, 200 (on the line), 210, 220, 230.
+    let r = run(
+        LINE,
+        vec![track(1, "p", &walk(1, 6, 100.0, 180.0, 0.0, 10.0))],
+    );
+    check_line(&r, 1, 0);
+    assert_eq!(r.events[0].frame, 3, "the anchor is on the line at frame 3");
+    // Touching the line and turning back is no crossing.
+    let touch: Vec<_> = [180.0, 190.0, 200.0, 190.0, 180.0]
+        .iter()
+        .enumerate()
+        .map(|(k, &y)| (k as u32 + 1, 100.0, y, true))
+        .collect();
+    check_line(&run(LINE, vec![track(1, "p", &touch)]), 0, 0);
+}
+
+#[test]
+fn a_track_passing_beyond_the_end_of_the_line_is_not_counted() {
+    check_line(
+        &run(
+            LINE,
+            vec![track(1, "p", &walk(1, 30, 450.0, 150.0, 0.0, 4.0))],
+        ),
+        0,
+        0,
+    );
+}
+
+#[test]
+fn a_fragment_starting_past_the_line_is_joined_and_counted_once() {
+    // Track 1 walks down and ends 10 px before the line; track 2 starts 6 frames later 14 px past it,
+    // where track 1 was heading (4 px a frame): one person, one crossing.
+    let a = track(1, "pedestrian", &walk(1, 10, 100.0, 154.0, 0.0, 4.0)); // ends at y = 190
+    let b = track(2, "pedestrian", &walk(16, 10, 100.0, 250.0, 0.0, 4.0));
+    let r = run(LINE, vec![a.clone(), b.clone()]);
+    check_line(&r, 1, 0);
+    assert_eq!(r.joins.len(), 1);
+    assert_eq!(r.joins[0].tracks, [1, 2]);
+    assert_eq!(r.events[0].track_ids, vec![1, 2]);
+    assert!(r.events[0].inferred, "the crossing happened in the gap");
+    // Somebody else appearing far away is not joined (and is not counted: no crossing).
+    let far = track(2, "pedestrian", &walk(16, 10, 330.0, 250.0, 0.0, 4.0));
+    let r = run(LINE, vec![a, far]);
+    check_line(&r, 0, 0);
+    assert!(r.joins.is_empty());
+}
+
+#[test]
+fn intervals_carry_wall_clock_labels_and_classes() {
+    // 10 frames per second, 1-minute intervals, 3 minutes of footage.
+    let plan = r#"{"frame_rate": 10, "start": "2026-03-02T07:59:30", "interval_minutes": 1,
+        "screenlines": [{"name": "deck", "points": [[0,200],[400,200]]}]}"#;
+    let list = vec![
+        track(1, "pedestrian", &walk(1, 30, 100.0, 150.0, 0.0, 4.0)), // crosses at 1.25 s
+        track(2, "cyclist", &walk(700, 30, 200.0, 150.0, 0.0, 4.0)),  // at 70.15 s
+        track(3, "pedestrian", &walk(1200, 30, 300.0, 250.0, 0.0, -4.0)), // at 120.15 s, backward
+        track(4, "pedestrian", &walk(1771, 30, 50.0, 150.0, 0.0, 4.0)), // ends frame 1800
+    ];
+    let r = run(plan, list);
+    let l = &r.screenlines[0];
+    assert_eq!(l.intervals.len(), 3);
+    assert_eq!(l.intervals[0].start, "2026-03-02T07:59:30");
+    assert_eq!(l.intervals[1].start, "2026-03-02T08:00:30");
+    assert_eq!(l.intervals[2].end, "2026-03-02T08:02:30");
+    let counts: Vec<(u64, u64)> = l
+        .intervals
+        .iter()
+        .map(|i| (i.forward, i.backward))
+        .collect();
+    assert_eq!(counts, vec![(1, 0), (1, 0), (1, 1)]);
+    assert_eq!(l.by_class["pedestrian"].forward, 2);
+    assert_eq!(l.by_class["cyclist"].forward, 1);
+    let csv = counts_csv(&r);
+    let mut lines = csv.lines();
+    assert_eq!(
+        lines.next(),
+        Some("screenline,direction,class,interval_start,interval_end,count")
+    );
+    assert!(csv.contains("deck,forward,cyclist,2026-03-02T08:00:30,2026-03-02T08:01:30,1"));
+    assert!(csv.contains("deck,backward,pedestrian,2026-03-02T08:01:30,2026-03-02T08:02:30,1"));
+    // 2 directions x 2 classes x 3 intervals, zeros included.
+    assert_eq!(csv.lines().count(), 1 + 12);
+}
+
+#[test]
+fn peak_hour_factor_matches_a_published_worked_example() {
+    // University of Idaho NIATT traffic engineering lab manual, "Peak Hour Factor" example problem:
+    // 15-minute volumes 900, 1000, 1200, 850 (5:00-6:00 p.m.) give V = 3950, V15 = 1200 and
+    // PHF = 3950 / (4 x 1200) = 0.82.
+    let (start, volume, peak, phf) = peak_hour(&[900, 1000, 1200, 850], 4).unwrap();
+    assert_eq!((start, volume, peak), (0, 3950, 1200));
+    assert!((phf - 3950.0 / 4800.0).abs() < 1e-12);
+    assert_eq!((phf * 100.0).round() / 100.0, 0.82);
+    // The busiest four consecutive intervals are chosen (common practice: the peak hour is the four
+    // consecutive 15-minute intervals with the highest total).
+    let (start, volume, _, _) = peak_hour(&[10, 900, 1000, 1200, 850, 20], 4).unwrap();
+    assert_eq!((start, volume), (1, 3950));
+    assert!(
+        peak_hour(&[1, 2, 3], 4).is_none(),
+        "less than an hour has no peak hour"
+    );
+}
+
+#[test]
+fn percentile_interpolates_like_numpy() {
+    // numpy.percentile([1, 2, 3, 4], 85) = 3.55 (linear interpolation, NumPy's default: rank
+    // 0.85 x 3 = 2.55 between the values 3 and 4).
+    assert!((percentile(&[1.0, 2.0, 3.0, 4.0], 0.85).unwrap() - 3.55).abs() < 1e-12);
+    assert_eq!(percentile(&[5.0], 0.85), Some(5.0));
+    assert_eq!(percentile(&[], 0.5), None);
+}
+
+#[test]
+fn zones_count_entries_exits_and_dwell() {
+    let plan = r#"{"frame_rate": 10, "zones": [{"name": "queue", "polygon": [[100,100],[300,100],[300,300],[100,300]]}]}"#;
+    // Walks in from the left at x = 50, through the zone (x 100..300) and out at the right.
+    let through = track(1, "pedestrian", &walk(1, 100, 50.0, 200.0, 4.0, 0.0));
+    // Starts inside and stays.
+    let stays = track(2, "pedestrian", &walk(1, 50, 200.0, 250.0, 0.1, 0.0));
+    let r = run(plan, vec![through, stays]);
+    let z = &r.zones[0];
+    assert_eq!(
+        (z.entries, z.exits, z.present_at_start, z.present_at_end),
+        (1, 1, 1, 1)
+    );
+    // Inside from x = 100 (k = 12.5) to x = 300 (k = 62.5): 50 frames = 5 s.
+    assert_eq!(z.dwell_seconds.count, 1);
+    assert!((z.dwell_seconds.mean.unwrap() - 5.0).abs() < 1e-9);
+    assert_eq!(z.intervals[0].max_occupancy, 2);
+}
+
+#[test]
+fn movements_from_first_to_last_feature_with_u_turns() {
+    let plan = r#"{"frame_rate": 10, "screenlines": [
+        {"name": "north", "points": [[0,100],[400,100]]},
+        {"name": "south", "points": [[0,300],[400,300]]}]}"#;
+    let through = track(1, "car", &walk(1, 60, 100.0, 60.0, 0.0, 5.0)); // north then south
+    let mut u = walk(1, 20, 200.0, 60.0, 0.0, 4.0); // crosses north down to y = 136
+    u.extend(walk(21, 20, 200.0, 136.0, 0.0, -4.0)); // and back up across north
+    let r = run(plan, vec![through, track(2, "car", &u)]);
+    let m: Vec<(String, String, bool, u64)> = r
+        .movements
+        .iter()
+        .map(|m| (m.origin.clone(), m.destination.clone(), m.u_turn, m.count))
+        .collect();
+    assert_eq!(
+        m,
+        vec![
+            ("north".into(), "north".into(), true, 1),
+            ("north".into(), "south".into(), false, 1)
+        ]
+    );
+}
+
+#[test]
+fn plan_errors_name_the_field() {
+    let cases = [
+        (r#"{"screenlines": []}"#, "frame_rate"),
+        (r#"{"frame_rate": 0}"#, "frame_rate"),
+        (r#"{"frame_rate": 25, "colour": "red"}"#, "colour"),
+        (
+            r#"{"frame_rate": 25, "screenlines": [{"name": "a", "points": [[1,2]]}]}"#,
+            "screenlines[0].points",
+        ),
+        (
+            r#"{"frame_rate": 25, "screenlines": [{"name": "a", "points": [[1,2],[1,2]]}]}"#,
+            "screenlines[0].points[1]",
+        ),
+        (
+            r#"{"frame_rate": 25, "screenlines": [{"name": "a", "points": [[1,2],[3,4]], "colour": 1}]}"#,
+            "colour",
+        ),
+        (
+            r#"{"frame_rate": 25, "zones": [{"name": "z", "polygon": [[0,0],[1,1]]}]}"#,
+            "zones[0].polygon",
+        ),
+        (
+            r#"{"frame_rate": 25, "zones": [{"name": "z", "polygon": [[0,0],[1,1],[2,2]]}]}"#,
+            "no area",
+        ),
+        (
+            r#"{"frame_rate": 25, "screenlines": [{"name": "a", "points": [[1,2],[3,4]]}], "zones": [{"name": "a", "polygon": [[0,0],[9,0],[0,9]]}]}"#,
+            "used twice",
+        ),
+        (r#"{"frame_rate": 25, "start": "07:00"}"#, "start"),
+        (
+            r#"{"frame_rate": 25, "rules": {"hysteresis": -1}}"#,
+            "rules.hysteresis",
+        ),
+        (
+            r#"{"frame_rate": 25, "calibration": {"pairs": [{"image": [0,0], "ground": [0,0]}]}}"#,
+            "at least 4",
+        ),
+        (
+            r#"{"frame_rate": 25, "calibration": {"pairs": [{"image": [0,0], "ground": [0,0]}, {"image": [1,0], "ground": [1,0]}, {"image": [2,0], "ground": [2,0]}, {"image": [0,5], "ground": [0,5]}]}}"#,
+            "one line",
+        ),
+        ("[1, 2]", "line 1"),
+    ];
+    for (plan, hint) in cases {
+        let e = Plan::from_json(plan).expect_err(plan);
+        assert!(
+            e.to_string().contains(hint),
+            "{plan}: `{e}` should mention `{hint}`"
+        );
+    }
+}
+
+#[test]
+fn report_carries_plan_caution_and_every_event() {
+    let r = run(
+        LINE,
+        vec![track(1, "pedestrian", &walk(1, 30, 100.0, 150.0, 0.0, 4.0))],
+    );
+    let json = serde_json::to_value(&r).unwrap();
+    assert_eq!(json["format"], "throughline-report");
+    assert!(json["caution"].as_str().unwrap().contains("manual count"));
+    assert_eq!(json["plan"]["frame_rate"], 10.0);
+    assert_eq!(json["screenlines"][0]["forward"], 1);
+    assert!(json["screenlines"][0]["by_class"]["pedestrian"].is_object());
+    assert_eq!(json["events"].as_array().unwrap().len(), 1);
+}
