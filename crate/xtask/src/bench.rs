@@ -84,8 +84,110 @@ fn python_with_peers() -> Option<String> {
     None
 }
 
+const COUNTS_BEGIN: &str = "<!-- counts:begin -->";
+const COUNTS_END: &str = "<!-- counts:end -->";
+
+/// A plan for the simulated plaza of a given size: a midline across and a divide down the middle.
+fn sim_plan(width: f64, height: f64) -> String {
+    format!(
+        r#"{{"frame_rate": 25, "screenlines": [
+            {{"name": "midline", "points": [[{x0}, {ym}], [{x1}, {ym}]]}},
+            {{"name": "divide", "points": [[{xm}, {y0}], [{xm}, {y1}]]}}]}}"#,
+        x0 = width * 0.03,
+        x1 = width * 0.97,
+        ym = height * 0.64,
+        xm = width * 0.5,
+        y0 = height * 0.25,
+        y1 = height * 0.97
+    )
+}
+
+fn write_section(begin: &str, end: &str, table: &str) -> Result<(), String> {
+    let path = root().join("BENCHMARKS.md");
+    let old = std::fs::read_to_string(&path).unwrap_or_default();
+    let new = match (old.find(begin), old.find(end)) {
+        (Some(a), Some(b)) if a < b => format!("{}{table}{}", &old[..a], &old[b + end.len()..]),
+        _ => format!("{old}\n{table}\n"),
+    };
+    std::fs::write(&path, new).map_err(|e| e.to_string())
+}
+
+/// Count error per direction against the simulator's true crossings, for every method, at several
+/// densities and miss rates. Runs the core directly (no timing here).
+fn count_accuracy(quick: bool) -> Result<String, String> {
+    use throughline_core::{count, plan, sim, track, tracks_io};
+    let frames = if quick { 1500 } else { 7500 };
+    let mut rows = Vec::new();
+    for (density, miss) in [(5.0, 0.12), (30.0, 0.10), (30.0, 0.15), (120.0, 0.12)] {
+        let (width, height) = if density > 60.0 {
+            (1280.0, 720.0)
+        } else {
+            (640.0, 360.0)
+        };
+        let cfg = sim::SceneConfig {
+            seed: 7,
+            frames,
+            width,
+            height,
+            density,
+            miss_rate: miss,
+            embedding_dim: 16,
+            ..sim::SceneConfig::default()
+        };
+        let scene = sim::generate(&cfg);
+        let plan = plan::Plan::from_json(&sim_plan(width, height)).map_err(|e| e.to_string())?;
+        let truth = count::count(&tracks_io::boxes_to_tracks(&scene.truth), &plan, None);
+        for method in track::Method::ALL {
+            let config = track::TrackerConfig::for_method(method);
+            let tracks = track::run_tracker(&scene.detections, &config, &mut |_, _| {})
+                .map_err(|e| e.message)?;
+            let counted = count::count(&tracks, &plan, Some(&config));
+            let mut cells = Vec::new();
+            for (t, c) in truth.screenlines.iter().zip(&counted.screenlines) {
+                let err = |a: u64, m: u64| {
+                    if m == 0 {
+                        "n/a".to_string()
+                    } else {
+                        format!("{:+.1}%", 100.0 * (a as f64 - m as f64) / m as f64)
+                    }
+                };
+                cells.push(format!(
+                    "{} {}/{} → {}/{} ({}, {})",
+                    t.name,
+                    t.forward,
+                    t.backward,
+                    c.forward,
+                    c.backward,
+                    err(c.forward, t.forward),
+                    err(c.backward, t.backward)
+                ));
+            }
+            rows.push(format!(
+                "| {density} | {:.0}% | {method} | {} |",
+                miss * 100.0,
+                cells.join("; ")
+            ));
+            eprintln!("{}", rows.last().map_or("", String::as_str));
+        }
+    }
+    Ok(format!(
+        "{COUNTS_BEGIN}\nMeasured by `cargo xtask bench{}`: {frames} frames (25 per second) of the simulated plaza \
+         (640x360, or 1280x720 for 120 agents), seed 7, plan `midline` across and `divide` down the middle \
+         (`sim_plan` in crate/xtask/src/bench.rs), default settings of each method. Cells: true forward/backward \
+         crossings → counted forward/backward (error forward, error backward), error = (counted − true) / true.\n\n\
+         | agents in view | missed | method | counts per screenline |\n|---|---|---|---|\n{}\n{COUNTS_END}",
+        if quick { " --quick" } else { "" },
+        rows.join("\n")
+    ))
+}
+
 pub fn bench(args: &[String]) -> Result<(), String> {
     let quick = args.iter().any(|a| a == "--quick");
+    if args.iter().any(|a| a == "--counts") {
+        let table = count_accuracy(quick)?;
+        println!("{table}");
+        return write_section(COUNTS_BEGIN, COUNTS_END, &table);
+    }
     build_cli()?;
     let bin = cli_binary().display().to_string();
     let dir = root().join("target/bench");
@@ -193,15 +295,11 @@ pub fn bench(args: &[String]) -> Result<(), String> {
         if quick { " --quick" } else { "" },
         rows.join("\n")
     );
-    let path = root().join("BENCHMARKS.md");
-    let old = std::fs::read_to_string(&path).unwrap_or_default();
-    let new = match (old.find(BEGIN), old.find(END)) {
-        (Some(a), Some(b)) if a < b => format!("{}{table}{}", &old[..a], &old[b + END.len()..]),
-        _ => format!("{old}\n{table}\n"),
-    };
-    std::fs::write(&path, new).map_err(|e| e.to_string())?;
+    write_section(BEGIN, END, &table)?;
     println!("{table}");
-    Ok(())
+    let counts = count_accuracy(quick)?;
+    println!("{counts}");
+    write_section(COUNTS_BEGIN, COUNTS_END, &counts)
 }
 
 fn machine_line() -> String {
