@@ -121,10 +121,24 @@ enum Command {
         /// Length of appearance embeddings (0 for none).
         #[arg(long, default_value_t = 0)]
         embedding_dim: usize,
+        /// Noise on each detection's embedding (0 = the same vector every time; 0.3 by default).
+        #[arg(long, default_value_t = 0.3)]
+        embedding_noise: f64,
+        /// Picture width in pixels (even, for rendering).
         #[arg(long, default_value_t = 640.0)]
         width: f64,
+        /// Picture height in pixels (even, for rendering).
         #[arg(long, default_value_t = 360.0)]
         height: f64,
+        /// Leave out the plinth that hides people behind it.
+        #[arg(long)]
+        no_occluder: bool,
+        /// Also render the frames, as YUV4MPEG2 (4:2:0, 25 fps) to this file (`-` for standard output).
+        #[arg(long, value_name = "FILE.y4m")]
+        render: Option<PathBuf>,
+        /// Also count the true tracks with this plan: truth_report.json and truth_counts.csv.
+        #[arg(long, value_name = "PLAN")]
+        plan: Option<PathBuf>,
     },
     /// Score tracks against ground truth (HOTA, IDF1, MOTA…).
     Score {
@@ -233,8 +247,12 @@ fn main() -> ExitCode {
             miss_rate,
             false_positives,
             embedding_dim,
+            embedding_noise,
             width,
             height,
+            no_occluder,
+            render,
+            plan,
         } => run_simulate(
             &out_dir,
             sim::SceneConfig {
@@ -246,8 +264,12 @@ fn main() -> ExitCode {
                 miss_rate,
                 false_positives,
                 embedding_dim,
+                embedding_noise,
+                occluder: !no_occluder,
                 ..sim::SceneConfig::default()
             },
+            render.as_deref(),
+            plan.as_deref(),
         ),
         Command::Score {
             truth,
@@ -508,7 +530,12 @@ impl Timer {
     }
 }
 
-fn run_simulate(dir: &Path, cfg: sim::SceneConfig) -> Result<(), Failure> {
+fn run_simulate(
+    dir: &Path,
+    cfg: sim::SceneConfig,
+    render: Option<&Path>,
+    plan_path: Option<&Path>,
+) -> Result<(), Failure> {
     let usage = |m: &str| Failure {
         message: m.to_string(),
         code: 2,
@@ -516,20 +543,25 @@ fn run_simulate(dir: &Path, cfg: sim::SceneConfig) -> Result<(), Failure> {
     if !(0.0..=1.0).contains(&cfg.miss_rate) {
         return Err(usage("--miss-rate must be between 0 and 1"));
     }
-    if !(cfg.density >= 0.0
-        && cfg.false_positives >= 0.0
-        && cfg.width >= 32.0
-        && cfg.height >= 32.0)
-    {
+    if !(cfg.density >= 0.0 && cfg.false_positives >= 0.0 && cfg.embedding_noise >= 0.0) {
         return Err(usage(
-            "--density and --false-positives must not be negative; --width and --height at least 32",
+            "--density, --false-positives and --embedding-noise must not be negative",
         ));
     }
+    if !(cfg.width >= 32.0 && cfg.height >= 32.0 && cfg.width <= 8192.0 && cfg.height <= 8192.0) {
+        return Err(usage(
+            "--width and --height must be between 32 and 8192 pixels",
+        ));
+    }
+    let plan = plan_path.map(read_plan).transpose()?;
     std::fs::create_dir_all(dir).map_err(|e| Failure {
         message: format!("{}: cannot create the folder: {e}", dir.display()),
         code: 1,
     })?;
-    let scene = sim::generate(&cfg);
+    let scene = match render {
+        None => sim::generate(&cfg),
+        Some(path) => render_scene(&cfg, path)?,
+    };
     let truth: String = scene
         .truth
         .iter()
@@ -555,6 +587,12 @@ fn run_simulate(dir: &Path, cfg: sim::SceneConfig) -> Result<(), Failure> {
         &dir.join("detections.csv"),
         &detections::to_csv(&scene.detections),
     )?;
+    if let Some(plan) = &plan {
+        let report = count::count(&sim::truth_tracks(&scene), plan, None);
+        let json = serde_json::to_string_pretty(&report).unwrap_or_default();
+        write_file(&dir.join("truth_report.json"), &json)?;
+        write_file(&dir.join("truth_counts.csv"), &count::counts_csv(&report))?;
+    }
     eprintln!(
         "simulated {} frames: {} true boxes of {} agents, {} detections, written to {}",
         cfg.frames,
@@ -564,6 +602,45 @@ fn run_simulate(dir: &Path, cfg: sim::SceneConfig) -> Result<(), Failure> {
         dir.display()
     );
     Ok(())
+}
+
+/// Simulates while rendering every frame into a YUV4MPEG2 stream.
+fn render_scene(cfg: &sim::SceneConfig, path: &Path) -> Result<sim::Scene, Failure> {
+    use std::io::Write;
+    let cannot = |e: std::io::Error| Failure {
+        message: format!("{}: cannot write the frames: {e}", path.display()),
+        code: 1,
+    };
+    let sink: Box<dyn Write> = if path == Path::new("-") {
+        Box::new(std::io::stdout().lock())
+    } else {
+        Box::new(std::fs::File::create(path).map_err(cannot)?)
+    };
+    let mut out = std::io::BufWriter::new(sink);
+    let mut renderer = throughline_core::render::Renderer::new(cfg);
+    let header = throughline_core::render::y4m_header(renderer.width(), renderer.height());
+    out.write_all(header.as_bytes()).map_err(cannot)?;
+    let bar = ProgressBar::new(u64::from(cfg.frames));
+    let mut failure = None;
+    let scene = sim::generate_with(cfg, &mut |frame, agents| {
+        if failure.is_some() {
+            return;
+        }
+        let pixels = renderer.frame(frame, agents);
+        if let Err(e) = out
+            .write_all(b"FRAME\n")
+            .and_then(|()| out.write_all(&pixels))
+        {
+            failure = Some(e);
+        }
+        bar.set_position(u64::from(frame));
+    });
+    bar.finish_and_clear();
+    if let Some(e) = failure {
+        return Err(cannot(e));
+    }
+    out.flush().map_err(cannot)?;
+    Ok(scene)
 }
 
 fn read_tracks(path: &Path) -> Result<Vec<tracks_io::IdBox>, Failure> {

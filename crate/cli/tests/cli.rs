@@ -322,3 +322,71 @@ fn a_plan_without_lines_or_zones_says_so() {
         stderr(&o)
     );
 }
+
+#[test]
+fn simulate_renders_frames_that_ffmpeg_decodes_and_counts_the_truth() {
+    let dir = scratch("render");
+    let d = dir.display().to_string();
+    let y4m = dir.join("frames.y4m").display().to_string();
+    let o = throughline(&[
+        "simulate",
+        "--out-dir",
+        &d,
+        "--frames",
+        "40",
+        "--render",
+        &y4m,
+        "--plan",
+        &demo("plan.json"),
+        "--seed",
+        "5",
+    ]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let bytes = std::fs::read(&y4m).unwrap();
+    let header = b"YUV4MPEG2 W640 H360 F25:1 Ip A1:1 C420jpeg\n";
+    assert!(bytes.starts_with(header));
+    assert_eq!(bytes.len(), header.len() + 40 * (6 + 640 * 360 * 3 / 2));
+    assert!(dir.join("truth_report.json").exists() && dir.join("truth_counts.csv").exists());
+    // Real decoding: ffmpeg (installed by `cargo xtask test`) reads every frame.
+    let probe = Command::new("ffprobe")
+        .args([
+            "-v",
+            "error",
+            "-count_frames",
+            "-select_streams",
+            "v:0",
+            "-show_entries",
+            "stream=nb_read_frames",
+        ])
+        .args(["-of", "csv=p=0", &y4m])
+        .output()
+        .expect("ffprobe runs (cargo xtask test installs ffmpeg)");
+    assert_eq!(String::from_utf8_lossy(&probe.stdout).trim(), "40");
+}
+
+#[test]
+fn the_committed_demo_footage_decodes_and_matches_its_detections() {
+    let probe = Command::new("ffprobe")
+        .args(["-v", "error", "-count_frames", "-select_streams", "v:0"])
+        .args([
+            "-show_entries",
+            "stream=codec_name,width,height,nb_read_frames",
+            "-of",
+            "csv=p=0",
+        ])
+        .arg(demo("footage.webm"))
+        .output()
+        .expect("ffprobe runs (cargo xtask test installs ffmpeg)");
+    let info = String::from_utf8_lossy(&probe.stdout).trim().to_string();
+    let dets = std::fs::read_to_string(demo("detections.txt")).unwrap();
+    let last_frame: u32 = dets
+        .lines()
+        .filter_map(|l| l.split(',').next()?.parse().ok())
+        .max()
+        .unwrap();
+    assert_eq!(
+        info,
+        format!("vp9,640,360,{last_frame}"),
+        "footage and detections describe the same clip"
+    );
+}

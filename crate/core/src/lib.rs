@@ -16,6 +16,7 @@ pub mod detections;
 pub mod geometry;
 pub mod kalman;
 pub mod plan;
+pub mod render;
 pub mod rng;
 pub mod score;
 pub mod sim;

@@ -35,6 +35,62 @@ pub struct SceneConfig {
     pub embedding_dim: usize,
     /// Noise added to an agent's appearance vector in each detection (0 = perfect re-identification).
     pub embedding_noise: f64,
+    /// Whether the plaza has its sculpture plinth, a static occluder that hides people behind it.
+    pub occluder: bool,
+}
+
+/// Frames per second of simulated footage (speeds are set per frame for this rate).
+pub const FRAME_RATE: f64 = 25.0;
+
+/// The static occluder of the plaza, in pixels: a plinth whose base stands at `base_y`.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Occluder {
+    pub bbox: BBox,
+}
+
+impl SceneConfig {
+    /// The occluder of this scene, if it has one.
+    pub fn occluder_box(&self) -> Option<Occluder> {
+        self.occluder.then(|| Occluder {
+            bbox: BBox::new(
+                self.width * 0.60,
+                self.height * 0.30,
+                self.width * 0.09,
+                self.height * 0.28,
+            ),
+        })
+    }
+}
+
+/// What the renderer needs of an agent in one frame.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct AgentView {
+    /// Ground-truth id (1-based, in order of first appearance).
+    pub id: i64,
+    /// Index into [`CLASSES`].
+    pub class: u16,
+    /// The whole box, pixels (top-left x/y + w/h), not clipped to the picture.
+    pub bbox: BBox,
+    /// Clothing or paint colour, RGB 0–255.
+    pub colour: [f64; 3],
+}
+
+/// A colour from a small palette of clothing and paint, chosen by the agent's id.
+fn colour_of(id: i64) -> [f64; 3] {
+    const PALETTE: [[f64; 3]; 10] = [
+        [180.0, 40.0, 40.0],
+        [40.0, 70.0, 150.0],
+        [60.0, 120.0, 60.0],
+        [200.0, 170.0, 60.0],
+        [90.0, 90.0, 95.0],
+        [230.0, 230.0, 225.0],
+        [30.0, 30.0, 35.0],
+        [150.0, 90.0, 160.0],
+        [210.0, 110.0, 40.0],
+        [70.0, 150.0, 170.0],
+    ];
+    let h = (id as u64).wrapping_mul(0x9E37_79B9_7F4A_7C15) >> 60;
+    PALETTE[(h % 10) as usize]
 }
 
 impl Default for SceneConfig {
@@ -50,6 +106,7 @@ impl Default for SceneConfig {
             jitter: 0.04,
             embedding_dim: 0,
             embedding_noise: 0.3,
+            occluder: true,
         }
     }
 }
@@ -148,7 +205,7 @@ fn spawn(rng: &mut Rng, cfg: &SceneConfig, next_id: &mut i64, agents: &mut Vec<A
     }
 }
 
-fn step_agent(a: &mut Agent, rng: &mut Rng) {
+fn step_agent(a: &mut Agent, rng: &mut Rng, occluder: Option<Occluder>) {
     if a.stop_frames > 0 {
         a.stop_frames -= 1;
         return;
@@ -174,8 +231,24 @@ fn step_agent(a: &mut Agent, rng: &mut Rng) {
     a.speed *= 1.0 + 0.01 * rng.normal();
     // Perspective also slows apparent motion far away.
     let depth = 0.35 + 0.65 * (a.y / 360.0_f64.max(a.target.1.abs())).clamp(0.0, 1.0);
-    a.x += a.heading.cos() * a.speed * depth;
-    a.y += a.heading.sin() * a.speed * depth;
+    let (nx, ny) = (
+        a.x + a.heading.cos() * a.speed * depth,
+        a.y + a.heading.sin() * a.speed * depth,
+    );
+    // Nobody walks through the plinth: on reaching its footprint, step sideways around it.
+    if let Some(o) = occluder {
+        let b = o.bbox;
+        let base = b.y + b.h;
+        let inside =
+            nx > b.x - 4.0 && nx < b.x + b.w + 4.0 && ny > base - b.h * 0.25 && ny < base + 2.0;
+        if inside {
+            let left = (nx - b.x).abs() < (nx - b.x - b.w).abs();
+            a.x += if left { -a.speed } else { a.speed };
+            return;
+        }
+    }
+    a.x = nx;
+    a.y = ny;
 }
 
 fn visible(b: &BBox, cfg: &SceneConfig) -> Option<BBox> {
@@ -188,6 +261,12 @@ fn visible(b: &BBox, cfg: &SceneConfig) -> Option<BBox> {
 
 /// Generates a scene.
 pub fn generate(cfg: &SceneConfig) -> Scene {
+    generate_with(cfg, &mut |_, _| {})
+}
+
+/// Generates a scene, handing every frame's agents (far to near) to `on_frame`, for rendering.
+pub fn generate_with(cfg: &SceneConfig, on_frame: &mut dyn FnMut(u32, &[AgentView])) -> Scene {
+    let occluder = cfg.occluder_box();
     let mut rng = Rng::new(cfg.seed);
     let mut agents: Vec<Agent> = Vec::new();
     let mut next_id = 1i64;
@@ -211,7 +290,7 @@ pub fn generate(cfg: &SceneConfig) -> Scene {
             births -= 1.0;
         }
         for a in &mut agents {
-            step_agent(a, &mut rng);
+            step_agent(a, &mut rng, occluder);
         }
         agents.retain(|a| {
             let b = a.bbox(cfg);
@@ -250,6 +329,11 @@ pub fn generate(cfg: &SceneConfig) -> Scene {
                 .map(|o| o.intersection(&b))
                 .sum::<f64>()
                 / b.area();
+            // The plinth hides whoever stands behind it (farther up the picture than its base).
+            let behind = occluder
+                .filter(|o| a.y < o.bbox.y + o.bbox.h)
+                .map_or(0.0, |o| o.bbox.intersection(&b) / b.area());
+            let hidden = hidden + behind;
             let occlusion = hidden.min(1.0);
             let p_miss = (cfg.miss_rate + 0.8 * occlusion.powf(1.5)).min(1.0);
             if rng.chance(p_miss) {
@@ -286,6 +370,23 @@ pub fn generate(cfg: &SceneConfig) -> Scene {
                 embedding,
             });
         }
+        let mut views = Vec::with_capacity(agents.len());
+        for &i in order.iter().rev() {
+            let a = &agents[i];
+            if boxes[i].is_some() {
+                let id = spawned_ids
+                    .iter()
+                    .position(|&s| s == a.id)
+                    .map_or(0, |k| k as i64 + 1);
+                views.push(AgentView {
+                    id,
+                    class: a.class,
+                    bbox: a.bbox(cfg),
+                    colour: colour_of(a.id),
+                });
+            }
+        }
+        on_frame(frame, &views);
         let mut fp = cfg.false_positives;
         while fp > 0.0 {
             if rng.chance(fp.min(1.0)) {
@@ -316,4 +417,19 @@ pub fn generate(cfg: &SceneConfig) -> Scene {
         truth_classes,
         detections: det,
     }
+}
+
+/// The ground truth of a scene as tracks (every box observed, classes by name), for counting the
+/// true crossings of a plan.
+pub fn truth_tracks(scene: &Scene) -> crate::track::Tracks {
+    let mut tracks = crate::tracks_io::boxes_to_tracks(&scene.truth);
+    for t in &mut tracks.tracks {
+        let class = scene
+            .truth_classes
+            .get(t.id as usize - 1)
+            .copied()
+            .unwrap_or(0);
+        t.class = Some(CLASSES[class as usize].to_string());
+    }
+    tracks
 }

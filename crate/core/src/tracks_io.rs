@@ -33,7 +33,8 @@ pub fn to_benchmark_text(tracks: &Tracks) -> String {
         .iter()
         .flat_map(|t| t.boxes.iter().map(move |b| (b.frame, t.id, b)))
         .collect();
-    rows.sort_by_key(|&(f, id, _)| (f, id));
+    // (frame, id) pairs are unique, so an unstable sort gives the same order.
+    rows.sort_unstable_by_key(|&(f, id, _)| (f, id));
     // Built as bytes and checked once at the end: every piece written is ASCII.
     let mut out: Vec<u8> = Vec::with_capacity(rows.len() * 48);
     for (frame, id, b) in rows {
@@ -54,6 +55,27 @@ pub fn to_benchmark_text(tracks: &Tracks) -> String {
 /// Writes `v` rounded to `places` decimals, without trailing zeros (`12.5`, `3`, `-0.25`): the same
 /// text as formatting [`round`]`(v, places)`, written without the general float formatter.
 pub fn write_decimal(out: &mut Vec<u8>, v: f64, places: u32) {
+    if places == 2 && v.is_finite() && v.abs() < 1e12 {
+        // The common case (pixel coordinates), without the general loop.
+        let scaled = (v.abs() * 100.0).round() as u64;
+        if scaled == 0 {
+            out.push(b'0');
+            return;
+        }
+        if v < 0.0 {
+            out.push(b'-');
+        }
+        push_digits(out, scaled / 100, 0);
+        let (tens, units) = ((scaled % 100 / 10) as u8, (scaled % 10) as u8);
+        if tens != 0 || units != 0 {
+            out.push(b'.');
+            out.push(b'0' + tens);
+            if units != 0 {
+                out.push(b'0' + units);
+            }
+        }
+        return;
+    }
     let scale = 10u64.pow(places);
     let scaled = (v.abs() * scale as f64).round();
     if !v.is_finite() || scaled >= 1e15 {

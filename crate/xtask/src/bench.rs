@@ -1,15 +1,20 @@
-//! `cargo xtask bench`: every method at several densities on simulated scenes, timed as whole
-//! `throughline track` runs (wall clock, peak resident memory from `wait4`), scored against the
-//! scene's truth, and the Python SORT peer (`tests/bench/sort_peer.py`) on the same files.
-//! Results go into BENCHMARKS.md between the markers.
+//! `cargo xtask bench`: two tables in BENCHMARKS.md, rewritten in place between their markers.
+//!
+//! - **Speed**: every method at about 10, 50 and 200 detections per frame, timed as whole
+//!   `throughline track` runs (the fastest of [`RUNS`]; wall clock; peak memory as the child reports
+//!   it), with the Python SORT peer (`tests/bench/sort_peer.py`, filterpy + SciPy) on the same files.
+//! - **Grid**: every method × density (5, 30, 120 agents in view) × miss rate (10%, 15%): HOTA, IDF1,
+//!   ID switches, count error per direction against the simulator's true crossings, speed and memory
+//!   (one run each), with the peer for `sort`.
 
 use super::{build_cli, cli_binary, root, run};
+use std::path::Path;
 use std::process::Command;
 use std::time::Instant;
-use throughline_core::tracks_io::read_benchmark_boxes;
+use throughline_core::{count, plan, tracks_io};
 
-const BEGIN: &str = "<!-- bench:begin -->";
-const END: &str = "<!-- bench:end -->";
+/// Timed runs per measurement in the speed table; the fastest is kept.
+const RUNS: usize = 5;
 
 struct Measured {
     seconds: f64,
@@ -84,9 +89,6 @@ fn python_with_peers() -> Option<String> {
     None
 }
 
-const COUNTS_BEGIN: &str = "<!-- counts:begin -->";
-const COUNTS_END: &str = "<!-- counts:end -->";
-
 /// A plan for the simulated plaza of a given size: a midline across and a divide down the middle.
 fn sim_plan(width: f64, height: f64) -> String {
     format!(
@@ -112,194 +114,306 @@ fn write_section(begin: &str, end: &str, table: &str) -> Result<(), String> {
     std::fs::write(&path, new).map_err(|e| e.to_string())
 }
 
-/// Count error per direction against the simulator's true crossings, for every method, at several
-/// densities and miss rates. Runs the core directly (no timing here).
-fn count_accuracy(quick: bool) -> Result<String, String> {
-    use throughline_core::{count, plan, sim, track, tracks_io};
-    let frames = if quick { 1500 } else { 7500 };
+struct SceneSpec {
+    label: String,
+    density: f64,
+    width: f64,
+    height: f64,
+    miss: f64,
+    frames: u32,
+}
+
+/// Per screenline: (name, true forward, true backward, counted forward, counted backward).
+type LineCounts = Vec<(String, u64, u64, u64, u64)>;
+
+/// One method's figures on one scene.
+struct Row {
+    hota: f64,
+    idf1: f64,
+    id_switches: u64,
+    fps: f64,
+    peak_mib: f64,
+    counts: LineCounts,
+}
+
+fn error(counted: u64, truth: u64) -> String {
+    if truth == 0 {
+        "n/a".into()
+    } else {
+        format!(
+            "{:+.1}%",
+            100.0 * (counted as f64 - truth as f64) / truth as f64
+        )
+    }
+}
+
+fn read(path: &Path) -> Result<Vec<u8>, String> {
+    std::fs::read(path).map_err(|e| format!("{}: {e}", path.display()))
+}
+
+/// Simulates a scene into files, then runs every method (and the peer) on it.
+fn measure_scene(
+    bin: &str,
+    python: Option<&str>,
+    s: &SceneSpec,
+    runs: usize,
+) -> Result<Vec<(String, Row)>, String> {
+    let dir = root().join("target/bench").join(&s.label);
+    let d = dir.display().to_string();
+    let plan_path = dir.join("plan.json");
+    std::fs::create_dir_all(&dir).map_err(|e| e.to_string())?;
+    std::fs::write(&plan_path, sim_plan(s.width, s.height)).map_err(|e| e.to_string())?;
+    let (frames, density, width, height, miss) = (
+        s.frames.to_string(),
+        s.density.to_string(),
+        s.width.to_string(),
+        s.height.to_string(),
+        s.miss.to_string(),
+    );
+    let p = plan_path.display().to_string();
+    run(
+        bin,
+        &[
+            "simulate",
+            "--out-dir",
+            &d,
+            "--seed",
+            "42",
+            "--frames",
+            &frames,
+            "--density",
+            &density,
+            "--width",
+            &width,
+            "--height",
+            &height,
+            "--miss-rate",
+            &miss,
+            "--embedding-dim",
+            "16",
+            "--plan",
+            &p,
+        ],
+    )?;
+    let truth = tracks_io::read_benchmark_boxes(&read(&dir.join("truth.txt"))?)
+        .map_err(|e| e.to_string())?;
+    let truth_report: serde_json::Value =
+        serde_json::from_slice(&read(&dir.join("truth_report.json"))?)
+            .map_err(|e| e.to_string())?;
+    let plan = plan::Plan::from_json(&sim_plan(s.width, s.height)).map_err(|e| e.to_string())?;
     let mut rows = Vec::new();
-    for (density, miss) in [(5.0, 0.12), (30.0, 0.10), (30.0, 0.15), (120.0, 0.12)] {
-        let (width, height) = if density > 60.0 {
-            (1280.0, 720.0)
-        } else {
-            (640.0, 360.0)
-        };
-        let cfg = sim::SceneConfig {
-            seed: 7,
-            frames,
-            width,
-            height,
-            density,
-            miss_rate: miss,
-            embedding_dim: 16,
-            ..sim::SceneConfig::default()
-        };
-        let scene = sim::generate(&cfg);
-        let plan = plan::Plan::from_json(&sim_plan(width, height)).map_err(|e| e.to_string())?;
-        let truth = count::count(&tracks_io::boxes_to_tracks(&scene.truth), &plan, None);
-        for method in track::Method::ALL {
-            let config = track::TrackerConfig::for_method(method);
-            let tracks = track::run_tracker(&scene.detections, &config, &mut |_, _| {})
+    let score_counts =
+        |tracks: &throughline_core::track::Tracks| -> Result<(f64, f64, u64, LineCounts), String> {
+            let sc = throughline_core::score::score(&truth, &tracks_io::tracks_to_boxes(tracks))
                 .map_err(|e| e.message)?;
-            let counted = count::count(&tracks, &plan, Some(&config));
-            let mut cells = Vec::new();
-            for (t, c) in truth.screenlines.iter().zip(&counted.screenlines) {
-                let err = |a: u64, m: u64| {
-                    if m == 0 {
-                        "n/a".to_string()
-                    } else {
-                        format!("{:+.1}%", 100.0 * (a as f64 - m as f64) / m as f64)
-                    }
-                };
-                cells.push(format!(
-                    "{} {}/{} → {}/{} ({}, {})",
-                    t.name,
-                    t.forward,
-                    t.backward,
-                    c.forward,
-                    c.backward,
-                    err(c.forward, t.forward),
-                    err(c.backward, t.backward)
+            let report = count::count(tracks, &plan, None);
+            let counts = report
+                .screenlines
+                .iter()
+                .enumerate()
+                .map(|(k, l)| {
+                    let t = &truth_report["screenlines"][k];
+                    (
+                        l.name.clone(),
+                        t["forward"].as_u64().unwrap_or(0),
+                        t["backward"].as_u64().unwrap_or(0),
+                        l.forward,
+                        l.backward,
+                    )
+                })
+                .collect();
+            Ok((sc.hota, sc.idf1, sc.id_switches, counts))
+        };
+    for method in ["iou", "sort", "bytetrack", "deepsort"] {
+        let input = if method == "deepsort" {
+            "detections.csv"
+        } else {
+            "detections.txt"
+        };
+        let inp = dir.join(input).display().to_string();
+        let out = dir.join(format!("{method}.json"));
+        let o = out.display().to_string();
+        let m = best_of(
+            runs,
+            bin,
+            &[
+                "track", &inp, "--method", method, "-o", &o, "--quiet", "--stats",
+            ],
+        )?;
+        let tracks = tracks_io::from_json(&read(&out)?).map_err(|e| e.to_string())?;
+        let (hota, idf1, id_switches, counts) = score_counts(&tracks)?;
+        rows.push((
+            method.to_string(),
+            Row {
+                hota,
+                idf1,
+                id_switches,
+                fps: f64::from(s.frames) / m.seconds,
+                peak_mib: m.peak_mib,
+                counts,
+            },
+        ));
+        if method == "sort" {
+            if let Some(py) = python {
+                let peer_out = dir.join("peer.txt");
+                let po = peer_out.display().to_string();
+                let m = best_of(runs, py, &["tests/bench/sort_peer.py", &inp, &po])?;
+                let boxes = tracks_io::read_benchmark_boxes(&read(&peer_out)?)
+                    .map_err(|e| e.to_string())?;
+                let (hota, idf1, id_switches, counts) =
+                    score_counts(&tracks_io::boxes_to_tracks(&boxes))?;
+                rows.push((
+                    "Python SORT peer".to_string(),
+                    Row {
+                        hota,
+                        idf1,
+                        id_switches,
+                        fps: f64::from(s.frames) / m.seconds,
+                        peak_mib: m.peak_mib,
+                        counts,
+                    },
                 ));
             }
-            rows.push(format!(
-                "| {density} | {:.0}% | {method} | {} |",
-                miss * 100.0,
-                cells.join("; ")
-            ));
-            eprintln!("{}", rows.last().map_or("", String::as_str));
         }
     }
-    Ok(format!(
-        "{COUNTS_BEGIN}\nMeasured by `cargo xtask bench{}`: {frames} frames (25 per second) of the simulated plaza \
-         (640x360, or 1280x720 for 120 agents), seed 7, plan `midline` across and `divide` down the middle \
-         (`sim_plan` in crate/xtask/src/bench.rs), default settings of each method. Cells: true forward/backward \
-         crossings → counted forward/backward (error forward, error backward), error = (counted − true) / true.\n\n\
-         | agents in view | missed | method | counts per screenline |\n|---|---|---|---|\n{}\n{COUNTS_END}",
-        if quick { " --quick" } else { "" },
-        rows.join("\n")
-    ))
+    Ok(rows)
+}
+
+fn detections_per_frame(label: &str, frames: u32) -> f64 {
+    let path = root()
+        .join("target/bench")
+        .join(label)
+        .join("detections.txt");
+    let lines = std::fs::read_to_string(path).map_or(0, |t| t.lines().count());
+    lines as f64 / f64::from(frames)
+}
+
+fn ratio_cell(rows: &[(String, Row)]) -> String {
+    let fps = |name: &str| rows.iter().find(|(n, _)| n == name).map(|(_, r)| r.fps);
+    match (fps("sort"), fps("Python SORT peer")) {
+        (Some(a), Some(b)) if b > 0.0 => format!("{:.0}x", a / b),
+        _ => "n/a".into(),
+    }
 }
 
 pub fn bench(args: &[String]) -> Result<(), String> {
     let quick = args.iter().any(|a| a == "--quick");
-    if args.iter().any(|a| a == "--counts") {
-        let table = count_accuracy(quick)?;
-        println!("{table}");
-        return write_section(COUNTS_BEGIN, COUNTS_END, &table);
-    }
     build_cli()?;
     let bin = cli_binary().display().to_string();
-    let dir = root().join("target/bench");
-    std::fs::create_dir_all(&dir).map_err(|e| e.to_string())?;
     let python = python_with_peers();
-    let frames = if quick { "300" } else { "1500" };
-    // About 10, 50 and 200 detections per frame. Wider pictures hold the crowd at a similar
+    let machine = machine_line();
+    let command = if quick {
+        "cargo xtask bench --quick"
+    } else {
+        "cargo xtask bench"
+    };
+
+    // Speed: about 10, 50 and 200 detections per frame. Wider pictures hold the crowd at a similar
     // spacing, so that occlusion does not cap the number of detections.
-    let scenes = [
-        ("10", "13", "640"),
-        ("50", "65", "1920"),
-        ("200", "265", "5120"),
-    ];
-    let mut rows = Vec::new();
-    for (label, density, width) in scenes {
-        let scene = dir.join(format!("d{label}"));
-        let s = scene.display().to_string();
-        run(
-            &bin,
-            &[
-                "simulate",
-                "--out-dir",
-                &s,
-                "--seed",
-                "42",
-                "--frames",
-                frames,
-                "--density",
-                density,
-                "--miss-rate",
-                "0.12",
-                "--embedding-dim",
-                "16",
-                "--width",
-                width,
-            ],
-        )?;
-        let truth = std::fs::read(scene.join("truth.txt")).map_err(|e| e.to_string())?;
-        let truth = read_benchmark_boxes(&truth).map_err(|e| e.to_string())?;
-        let dets =
-            std::fs::read_to_string(scene.join("detections.txt")).map_err(|e| e.to_string())?;
-        let n_frames: f64 = frames.parse().unwrap_or(1.0);
-        let per_frame = dets.lines().count() as f64 / n_frames;
-        for method in ["iou", "sort", "bytetrack", "deepsort"] {
-            let input = if method == "deepsort" {
-                "detections.csv"
-            } else {
-                "detections.txt"
-            };
-            let out = scene.join(format!("{method}.txt")).display().to_string();
-            let inp = scene.join(input).display().to_string();
-            let m = best_of(
-                3,
-                &bin,
-                &[
-                    "track", &inp, "--method", method, "-o", &out, "--quiet", "--stats",
-                ],
-            )?;
-            let tracks = read_benchmark_boxes(&std::fs::read(&out).map_err(|e| e.to_string())?)
-                .map_err(|e| e.to_string())?;
-            let s = throughline_core::score::score(&truth, &tracks).map_err(|e| e.message)?;
-            rows.push(format!(
-                "| {label} ({per_frame:.0}) | {method} | {:.1} | {:.1} | {} | {:.0} | {:.1} |",
-                100.0 * s.hota,
-                100.0 * s.idf1,
-                s.id_switches,
-                n_frames / m.seconds,
-                m.peak_mib
+    let frames = if quick { 300 } else { 1500 };
+    let mut lines = Vec::new();
+    for (label, density, width) in [
+        ("speed-10", 13.0, 640.0),
+        ("speed-50", 65.0, 1920.0),
+        ("speed-200", 265.0, 5120.0),
+    ] {
+        let spec = SceneSpec {
+            label: label.into(),
+            density,
+            width,
+            height: 360.0,
+            miss: 0.12,
+            frames,
+        };
+        let rows = measure_scene(&bin, python.as_deref(), &spec, if quick { 1 } else { RUNS })?;
+        let per_frame = detections_per_frame(label, frames);
+        for (method, r) in &rows {
+            lines.push(format!(
+                "| {per_frame:.0} | {method} | {:.1} | {:.1} | {} | {:.0} | {:.1} |",
+                100.0 * r.hota,
+                100.0 * r.idf1,
+                r.id_switches,
+                r.fps,
+                r.peak_mib
             ));
-            eprintln!("{}", rows.last().map_or("", String::as_str));
-            if method == "sort" {
-                if let Some(py) = &python {
-                    let peer_out = scene.join("peer.txt").display().to_string();
-                    let peer = best_of(3, py, &["tests/bench/sort_peer.py", &inp, &peer_out])?;
-                    let tracks =
-                        read_benchmark_boxes(&std::fs::read(&peer_out).map_err(|e| e.to_string())?)
-                            .map_err(|e| e.to_string())?;
-                    let ps =
-                        throughline_core::score::score(&truth, &tracks).map_err(|e| e.message)?;
-                    rows.push(format!(
-                        "| {label} ({per_frame:.0}) | Python SORT peer | {:.1} | {:.1} | {} | {:.0} | {:.1} |",
-                        100.0 * ps.hota,
-                        100.0 * ps.idf1,
-                        ps.id_switches,
-                        n_frames / peer.seconds,
-                        peer.peak_mib
-                    ));
-                    rows.push(format!(
-                        "| {label} ({per_frame:.0}) | speed ratio sort / peer | | | | {:.0}x | |",
-                        peer.seconds / m.seconds
-                    ));
-                    eprintln!("{}", rows.last().map_or("", String::as_str));
-                }
+        }
+        lines.push(format!(
+            "| {per_frame:.0} | speed ratio sort / peer | | | | {} | |",
+            ratio_cell(&rows)
+        ));
+        eprintln!("{}", lines.join("\n"));
+    }
+    let speed = format!(
+        "<!-- speed:begin -->\nMeasured by `{command}` on {machine}.\nScenes: {frames} frames of the simulated \
+         footbridge plaza, 360 pixels high and 640, 1920 and 5120 wide, seed 42, 12% missed detections (more \
+         under occlusion), embeddings of 16 values for deepsort. Speed is whole `throughline track` runs \
+         (reading, tracking, writing JSON), frames per second of wall time, the fastest of {} runs (the Python \
+         peer likewise); memory is peak resident set size.\n\n\
+         | detections per frame | method | HOTA % | IDF1 % | ID switches | frames/s | peak MiB |\n\
+         |---|---|---|---|---|---|---|\n{}\n<!-- speed:end -->",
+        if quick { 1 } else { RUNS },
+        lines.join("\n")
+    );
+    write_section("<!-- speed:begin -->", "<!-- speed:end -->", &speed)?;
+
+    // The grid: densities x miss rates, quality, counts and speed.
+    let frames = if quick { 750 } else { 3000 };
+    let mut lines = Vec::new();
+    for density in [5.0, 30.0, 120.0] {
+        for miss in [0.10, 0.15] {
+            let (width, height) = if density > 60.0 {
+                (1280.0, 720.0)
+            } else {
+                (640.0, 360.0)
+            };
+            let label = format!("grid-{density}-{miss}");
+            let spec = SceneSpec {
+                label,
+                density,
+                width,
+                height,
+                miss,
+                frames,
+            };
+            let rows = measure_scene(&bin, python.as_deref(), &spec, 1)?;
+            for (method, r) in &rows {
+                let (tf, tb, cf, cb) = r.counts.iter().fold((0, 0, 0, 0), |a, c| {
+                    (a.0 + c.1, a.1 + c.2, a.2 + c.3, a.3 + c.4)
+                });
+                lines.push(format!(
+                    "| {density} | {:.0}% | {method} | {:.1} | {:.1} | {} | {tf}/{tb} → {cf}/{cb} | {} | {} | {:.0} | {:.1} |",
+                    miss * 100.0,
+                    100.0 * r.hota,
+                    100.0 * r.idf1,
+                    r.id_switches,
+                    error(cf, tf),
+                    error(cb, tb),
+                    r.fps,
+                    r.peak_mib
+                ));
             }
+            lines.push(format!(
+                "| {density} | {:.0}% | speed ratio sort / peer | | | | | | | {} | |",
+                miss * 100.0,
+                ratio_cell(&rows)
+            ));
+            eprintln!("{}", lines.last().map_or("", String::as_str));
         }
     }
-    let machine = machine_line();
-    let table = format!(
-        "{BEGIN}\nMeasured by `cargo xtask bench{}` on {machine}.\nScenes: {frames} frames of the simulated \
-         footbridge plaza, 360 pixels high and 640, 1920 and 5120 wide, seed 42, 12% missed detections (more under occlusion), embeddings of \
-         16 values for deepsort. Speed is whole `throughline track` runs (reading, tracking, writing), \
-         frames per second of wall time, the fastest of 3 runs (the Python peer likewise); memory is peak resident set size.\n\n\
-         | detections per frame (measured) | method | HOTA % | IDF1 % | ID switches | frames/s | peak MiB |\n\
-         |---|---|---|---|---|---|---|\n{}\n{END}",
-        if quick { " --quick" } else { "" },
-        rows.join("\n")
+    let grid = format!(
+        "<!-- grid:begin -->\nMeasured by `{command}` on {machine}.\nScenes: {frames} frames (25 per second) of the \
+         simulated plaza, 640x360 (1280x720 for 120 agents in view), seed 42, with the plinth occluder; plan: \
+         `midline` across and `divide` down the middle (`sim_plan` in crate/xtask/src/bench.rs); default settings \
+         of each method. Crossings are summed over both screenlines: true forward/backward → counted \
+         forward/backward, error = (counted − true) / true per direction. Speed is one run of `throughline \
+         track` (JSON output).\n\n\
+         | agents in view | missed | method | HOTA % | IDF1 % | ID switches | crossings | error forward | error backward | frames/s | peak MiB |\n\
+         |---|---|---|---|---|---|---|---|---|---|---|\n{}\n<!-- grid:end -->",
+        lines.join("\n")
     );
-    write_section(BEGIN, END, &table)?;
-    println!("{table}");
-    let counts = count_accuracy(quick)?;
-    println!("{counts}");
-    write_section(COUNTS_BEGIN, COUNTS_END, &counts)
+    write_section("<!-- grid:begin -->", "<!-- grid:end -->", &grid)?;
+    println!("{speed}\n\n{grid}");
+    Ok(())
 }
 
 fn machine_line() -> String {

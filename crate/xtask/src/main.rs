@@ -91,6 +91,15 @@ fn test() -> Result<(), String> {
     // Installs: every step is idempotent, so a fresh machine and a warm one run the same script.
     run("rustup", &["component", "add", "rustfmt", "clippy"])?;
     run("rustup", &["target", "add", "wasm32-unknown-unknown"])?;
+    // ffmpeg decodes the rendered and the committed footage in the tests (Debian's package).
+    let have_ffmpeg = Command::new("ffprobe")
+        .arg("-version")
+        .output()
+        .is_ok_and(|o| o.status.success());
+    if !have_ffmpeg {
+        run("apt-get", &["update", "-qq"])?;
+        run("apt-get", &["install", "-y", "-qq", "ffmpeg"])?;
+    }
     run("cargo", &["fmt", "--all", "--check"])?;
     run(
         "cargo",
@@ -124,6 +133,7 @@ fn demo_data() -> Result<(), String> {
     build_cli()?;
     let bin = cli_binary();
     let bin = bin.to_str().unwrap_or("throughline");
+    std::fs::create_dir_all(root().join("target/demo")).map_err(|e| e.to_string())?;
     run(
         bin,
         &[
@@ -140,8 +150,41 @@ fn demo_data() -> Result<(), String> {
             "0.1",
             "--embedding-dim",
             "8",
+            "--plan",
+            "demo-site/demo/plan.json",
+            "--render",
+            "target/demo/frames.y4m",
         ],
-    )
+    )?;
+    // The footage for the browser: VP9 in WebM, a few MB. Without ffmpeg the committed copy stays.
+    let encoded = run(
+        "ffmpeg",
+        &[
+            "-loglevel",
+            "error",
+            "-y",
+            "-i",
+            "target/demo/frames.y4m",
+            "-c:v",
+            "libvpx-vp9",
+            "-b:v",
+            "0",
+            "-crf",
+            "38",
+            "-row-mt",
+            "1",
+            "-deadline",
+            "good",
+            "-cpu-used",
+            "4",
+            "-an",
+            "demo-site/demo/footage.webm",
+        ],
+    );
+    if let Err(e) = encoded {
+        eprintln!("note: {e}; demo-site/demo/footage.webm was left as it was (install ffmpeg to remake it)");
+    }
+    Ok(())
 }
 
 fn main() -> ExitCode {
