@@ -140,6 +140,43 @@ enum Command {
         #[arg(long, value_name = "PLAN")]
         plan: Option<PathBuf>,
     },
+    /// Compare counts with a manual count (or another report): APD, AAPD, WAPD, correction factor.
+    #[command(
+        name = "score-counts",
+        long_about = "Compare automated counts with a reference count.\n\n\
+        REPORT is a report from `run` or `count`. The reference (--truth) is a manual count CSV with \
+        the header screenline,direction,class,interval_start,interval_end,count (class may be empty or \
+        `all` for all classes together; direction uses the plan's labels), or another report. \
+        Measures (NCHRP Report 797): APD = mean (A-M)/M, AAPD = mean |A-M|/M, WAPD = sum|A-M| / sum M, \
+        correction factor = sum M / sum A, per screenline, direction and class over the intervals."
+    )]
+    ScoreCounts {
+        /// Reference counts: a manual count CSV, or a report JSON.
+        #[arg(long, value_name = "MANUAL")]
+        truth: PathBuf,
+        /// The automated report (JSON).
+        report: PathBuf,
+        /// Print one JSON object instead of a table.
+        #[arg(long)]
+        json: bool,
+    },
+    /// Search tracker settings that score best against ground truth; prints a settings file.
+    Tune {
+        /// Detections file.
+        detections: PathBuf,
+        /// Ground truth, benchmark text (frame,id,x,y,w,h,…).
+        #[arg(long, value_name = "GT")]
+        truth: PathBuf,
+        /// What to maximise.
+        #[arg(long, default_value = "hota", value_parser = ["hota", "idf1", "mota"])]
+        metric: String,
+        /// Only this method (default: every method the detections allow).
+        #[arg(long, value_parser = ["iou", "sort", "bytetrack", "deepsort"])]
+        method: Option<String>,
+        /// Where to write the best settings (JSON, for --config); without it they go to standard output.
+        #[arg(short, long, value_name = "FILE")]
+        output: Option<PathBuf>,
+    },
     /// Score tracks against ground truth (HOTA, IDF1, MOTA…).
     Score {
         /// Ground truth, benchmark text (frame,id,x,y,w,h,…).
@@ -270,6 +307,24 @@ fn main() -> ExitCode {
             },
             render.as_deref(),
             plan.as_deref(),
+        ),
+        Command::ScoreCounts {
+            truth,
+            report,
+            json,
+        } => run_score_counts(&truth, &report, json),
+        Command::Tune {
+            detections,
+            truth,
+            metric,
+            method,
+            output,
+        } => run_tune(
+            &detections,
+            &truth,
+            &metric,
+            method.as_deref(),
+            output.as_deref(),
         ),
         Command::Score {
             truth,
@@ -645,6 +700,10 @@ fn render_scene(cfg: &sim::SceneConfig, path: &Path) -> Result<sim::Scene, Failu
 
 fn read_tracks(path: &Path) -> Result<Vec<tracks_io::IdBox>, Failure> {
     let bytes = read_file(path)?;
+    if bytes.iter().all(u8::is_ascii_whitespace) {
+        // An empty tracker output is a valid (if poor) result: everything was missed.
+        return Ok(Vec::new());
+    }
     let is_json = bytes.iter().find(|b| !b.is_ascii_whitespace()) == Some(&b'{');
     if is_json {
         let tracks = tracks_io::from_json(&bytes).map_err(|e| bad_input(path, e))?;
@@ -652,6 +711,137 @@ fn read_tracks(path: &Path) -> Result<Vec<tracks_io::IdBox>, Failure> {
     } else {
         tracks_io::read_benchmark_boxes(&bytes).map_err(|e| bad_input(path, e))
     }
+}
+
+fn read_json_value(path: &Path) -> Result<serde_json::Value, Failure> {
+    let bytes = read_file(path)?;
+    serde_json::from_slice(&bytes).map_err(|e| bad_input(path, format!("not valid JSON: {e}")))
+}
+
+fn run_score_counts(truth: &Path, report: &Path, json: bool) -> Result<(), Failure> {
+    use throughline_core::accuracy;
+    let automated =
+        accuracy::report_rows(&read_json_value(report)?).map_err(|e| bad_input(report, e))?;
+    let bytes = read_file(truth)?;
+    let is_json = bytes.iter().find(|b| !b.is_ascii_whitespace()) == Some(&b'{');
+    let reference = if is_json {
+        accuracy::report_rows(&read_json_value(truth)?).map_err(|e| bad_input(truth, e))?
+    } else {
+        accuracy::read_counts_csv(&bytes).map_err(|e| bad_input(truth, e))?
+    };
+    let acc = accuracy::compare(&automated, &reference);
+    if acc.groups.is_empty() {
+        return Err(bad_input(
+            truth,
+            "no reference row names a screenline and direction of the report: check the names and the \
+             direction labels (they must be the plan's labels, as in the counts CSV)",
+        ));
+    }
+    if json {
+        println!("{}", serde_json::to_string_pretty(&acc).unwrap_or_default());
+        return Ok(());
+    }
+    let pct = |v: Option<f64>| v.map_or("   n/a".to_string(), |x| format!("{:+6.1}%", 100.0 * x));
+    let factor = |v: Option<f64>| v.map_or("n/a".to_string(), |x| format!("{x:.3}"));
+    println!("screenline / direction / class: intervals, automated vs reference, APD, AAPD, WAPD, correction factor");
+    for g in &acc.groups {
+        let m = &g.measures;
+        println!(
+            "{} / {} / {}: {} intervals, {} vs {}, APD {}, AAPD {}, WAPD {}, factor {}",
+            g.screenline,
+            g.direction,
+            g.class,
+            m.intervals,
+            m.automated_total,
+            m.reference_total,
+            pct(m.apd),
+            pct(m.aapd),
+            pct(m.wapd),
+            factor(m.correction_factor)
+        );
+    }
+    let m = &acc.overall;
+    println!(
+        "all: {} intervals, {} vs {}, APD {}, AAPD {}, WAPD {}, factor {}",
+        m.intervals,
+        m.automated_total,
+        m.reference_total,
+        pct(m.apd),
+        pct(m.aapd),
+        pct(m.wapd),
+        factor(m.correction_factor)
+    );
+    if acc.unmatched_reference_rows > 0 {
+        eprintln!(
+            "warning: {} reference rows name a screenline or direction the report does not have",
+            acc.unmatched_reference_rows
+        );
+    }
+    Ok(())
+}
+
+fn run_tune(
+    detections: &Path,
+    truth: &Path,
+    metric: &str,
+    method: Option<&str>,
+    output: Option<&Path>,
+) -> Result<(), Failure> {
+    use throughline_core::tune;
+    let metric = tune::Metric::parse(metric).unwrap_or(tune::Metric::Hota);
+    let dets = detections::read_detections(&read_file(detections)?)
+        .map_err(|e| bad_input(detections, e))?;
+    let gt =
+        tracks_io::read_benchmark_boxes(&read_file(truth)?).map_err(|e| bad_input(truth, e))?;
+    let methods: Vec<track::Method> = match method.and_then(track::Method::parse) {
+        Some(m) => vec![m],
+        None => track::Method::ALL
+            .into_iter()
+            .filter(|&m| m != track::Method::Deepsort || dets.detections.embedding_dim > 0)
+            .collect(),
+    };
+    let candidates = tune::candidates(&methods);
+    let bar = ProgressBar::new(candidates.len() as u64);
+    bar.set_style(
+        ProgressStyle::with_template("tuning {bar:30} {pos}/{len} settings ({eta} left)")
+            .unwrap_or_else(|_| ProgressStyle::default_bar()),
+    );
+    let trials = tune::tune(
+        &dets.detections,
+        &gt,
+        metric,
+        &candidates,
+        &mut |done, _| bar.set_position(done as u64),
+    )
+    .map_err(|e| bad_input(detections, e))?;
+    bar.finish_and_clear();
+    let Some(best) = trials.first() else {
+        return Err(bad_input(detections, "no settings could be tried"));
+    };
+    eprintln!(
+        "best {} settings of {} tried (HOTA, IDF1, MOTA):",
+        trials.len().min(5),
+        trials.len()
+    );
+    for t in trials.iter().take(5) {
+        eprintln!(
+            "  {:.2}% {:.2}% {:.2}%  {} min_score {} min_iou {} max_age {} min_hits {}",
+            100.0 * t.scores.hota,
+            100.0 * t.scores.idf1,
+            100.0 * t.scores.mota,
+            t.config.method,
+            t.config.min_score,
+            t.config.min_iou,
+            t.config.max_age,
+            t.config.min_hits
+        );
+    }
+    let text = serde_json::to_string_pretty(&best.config).unwrap_or_default();
+    match output {
+        Some(p) => write_file(p, &format!("{text}\n"))?,
+        None => println!("{text}"),
+    }
+    Ok(())
 }
 
 fn run_score(truth: &Path, tracks: &Path, json: bool) -> Result<(), Failure> {

@@ -390,3 +390,94 @@ fn the_committed_demo_footage_decodes_and_matches_its_detections() {
         "footage and detections describe the same clip"
     );
 }
+
+#[test]
+fn score_counts_compares_a_report_with_a_manual_count() {
+    let dir = scratch("score_counts");
+    let report = dir.join("report.json").display().to_string();
+    let o = throughline(&[
+        "run",
+        &demo("detections.csv"),
+        "--plan",
+        &demo("plan.json"),
+        "-o",
+        &report,
+        "-q",
+    ]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    // The simulator's true counts, in the counts CSV layout, stand in for a manual count.
+    let o = throughline(&[
+        "score-counts",
+        "--truth",
+        &demo("truth_counts.csv"),
+        &report,
+        "--json",
+    ]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let a: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    for key in [
+        "apd",
+        "aapd",
+        "wapd",
+        "correction_factor",
+        "automated_total",
+        "reference_total",
+    ] {
+        assert!(a["overall"].get(key).is_some(), "{key}");
+    }
+    assert!(a["groups"].as_array().unwrap().len() >= 4);
+    // Two reports compare too (a report with itself is exact).
+    let o = throughline(&["score-counts", "--truth", &report, &report, "--json"]);
+    let a: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    assert_eq!(a["overall"]["wapd"], 0.0);
+    // A reference that names nothing of the report is an error that says what to check.
+    let other = write(
+        &dir,
+        "other.csv",
+        b"screenline,direction,class,interval_start,interval_end,count\nnowhere,in,,a,b,4\n",
+    );
+    let o = throughline(&["score-counts", "--truth", &other, &report]);
+    assert_eq!(o.status.code(), Some(1));
+    assert!(stderr(&o).contains("direction labels"), "{}", stderr(&o));
+}
+
+#[test]
+fn tune_prints_a_settings_file_that_track_accepts() {
+    let dir = scratch("tune");
+    let d = dir.display().to_string();
+    assert!(throughline(&[
+        "simulate",
+        "--out-dir",
+        &d,
+        "--frames",
+        "150",
+        "--seed",
+        "9"
+    ])
+    .status
+    .success());
+    let best = dir.join("best.json").display().to_string();
+    let dets = dir.join("detections.txt").display().to_string();
+    let truth = dir.join("truth.txt").display().to_string();
+    let o = throughline(&[
+        "tune", &dets, "--truth", &truth, "--method", "sort", "-o", &best,
+    ]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    assert!(stderr(&o).contains("best"), "{}", stderr(&o));
+    let o = throughline(&["track", &dets, "--config", &best, "-q"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let doc: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    assert_eq!(doc["settings"]["method"], "sort");
+}
+
+#[test]
+fn scoring_an_empty_tracks_file_counts_every_box_as_missed() {
+    let dir = scratch("empty_tracks");
+    let empty = write(&dir, "empty.txt", b"");
+    let o = throughline(&["score", "--truth", &demo("truth.txt"), &empty, "--json"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let s: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    assert_eq!(s["hota"], 0.0);
+    assert_eq!(s["false_positives"], 0);
+    assert!(s["misses"].as_u64().unwrap() > 1000);
+}

@@ -221,3 +221,63 @@ pub fn solve_edges(rows: usize, cols: usize, edges: &[Edge], gate: f64) -> Vec<(
 pub fn total_cost(cost: &CostMatrix, pairs: &[(usize, usize)]) -> f64 {
     pairs.iter().map(|&(r, c)| cost.get(r, c)).sum()
 }
+
+/// Maximum-weight assignment over positive-weight candidate pairs: the positive pairs of SciPy's
+/// `linear_sum_assignment(-W)` on the full matrix `W` that is zero outside the listed pairs. A
+/// complete assignment of `W` is a matching of the listed pairs plus zero-weight filler, so its
+/// total splits over the connected components of the listed pairs; each component is solved densely
+/// on its own.
+pub fn maximise_edges(rows: usize, cols: usize, edges: &[Edge]) -> Vec<(usize, usize)> {
+    let edges: Vec<&Edge> = edges
+        .iter()
+        .filter(|e| e.cost.is_finite() && e.cost > 0.0 && e.row < rows && e.col < cols)
+        .collect();
+    let mut parent: Vec<usize> = (0..rows + cols).collect();
+    fn find(parent: &mut [usize], mut i: usize) -> usize {
+        while parent[i] != i {
+            parent[i] = parent[parent[i]];
+            i = parent[i];
+        }
+        i
+    }
+    for e in &edges {
+        let (a, b) = (find(&mut parent, e.row), find(&mut parent, rows + e.col));
+        if a != b {
+            parent[a.max(b)] = a.min(b);
+        }
+    }
+    let mut by_root: Vec<(usize, usize)> = edges
+        .iter()
+        .enumerate()
+        .map(|(k, e)| (find(&mut parent, e.row), k))
+        .collect();
+    by_root.sort_unstable();
+    let mut pairs = Vec::new();
+    for group in by_root.chunk_by(|a, b| a.0 == b.0) {
+        if let [(_, k)] = group {
+            pairs.push((edges[*k].row, edges[*k].col));
+            continue;
+        }
+        let mut rs: Vec<usize> = group.iter().map(|&(_, k)| edges[k].row).collect();
+        let mut cs: Vec<usize> = group.iter().map(|&(_, k)| edges[k].col).collect();
+        rs.sort_unstable();
+        rs.dedup();
+        cs.sort_unstable();
+        cs.dedup();
+        let mut sub = CostMatrix::filled(rs.len(), cs.len(), 0.0);
+        for &(_, k) in group {
+            let e = edges[k];
+            if let (Ok(i), Ok(j)) = (rs.binary_search(&e.row), cs.binary_search(&e.col)) {
+                sub.set(i, j, -e.cost);
+            }
+        }
+        pairs.extend(
+            solve(&sub)
+                .into_iter()
+                .filter(|&(i, j)| sub.get(i, j) < 0.0)
+                .map(|(i, j)| (rs[i], cs[j])),
+        );
+    }
+    pairs.sort_unstable();
+    pairs
+}

@@ -8,6 +8,7 @@
 //! - boxes are in pixels, **top-left x/y plus width/height** ([`geometry::BBox`]), image y pointing down;
 //! - frame numbers are **1-based**, as in the benchmark text format.
 
+pub mod accuracy;
 pub mod assign;
 pub mod calibrate;
 pub mod clock;
@@ -22,6 +23,7 @@ pub mod score;
 pub mod sim;
 pub mod track;
 pub mod tracks_io;
+pub mod tune;
 
 pub use detections::{read_detections, DetectionFormat, Detections, ReadError, ReadReport};
 pub use geometry::BBox;

@@ -5,7 +5,7 @@
 //! 0.5 IoU threshold for CLEAR and identity matching, and HOTA averaged over α = 0.05, 0.10 … 0.95.
 //! Ratios are fractions in `[0, 1]`.
 
-use crate::assign::{solve, CostMatrix};
+use crate::assign::{maximise_edges, CostMatrix, Edge};
 use crate::tracks_io::IdBox;
 use serde::Serialize;
 use std::collections::BTreeMap;
@@ -100,14 +100,19 @@ fn frames(gt: &[IdBox], tr: &[IdBox]) -> Result<(Vec<Frame>, usize, usize), Scor
     Ok((out, gt_ids.len(), tr_ids.len()))
 }
 
-/// Maximum-score assignment of a score matrix (SciPy's `linear_sum_assignment(-score)`).
+/// Maximum-score assignment of a score matrix (SciPy's `linear_sum_assignment(-score)`), keeping
+/// the pairs with a positive score: the only ones any metric uses.
 fn maximise(score: &CostMatrix) -> Vec<(usize, usize)> {
-    let neg = CostMatrix {
-        rows: score.rows,
-        cols: score.cols,
-        data: score.data.iter().map(|v| -v).collect(),
-    };
-    solve(&neg)
+    let mut edges = Vec::new();
+    for row in 0..score.rows {
+        for col in 0..score.cols {
+            let cost = score.get(row, col);
+            if cost > 0.0 {
+                edges.push(Edge { row, col, cost });
+            }
+        }
+    }
+    maximise_edges(score.rows, score.cols, &edges)
 }
 
 /// Scores tracker boxes against ground-truth boxes (both as `frame,id,box` rows, any order).

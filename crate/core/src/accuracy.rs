@@ -1,0 +1,256 @@
+//! How close automated counts are to a reference count (a manual count of the same footage, or
+//! another report), with the measures of NCHRP Report 797 (2014), per screenline, direction and
+//! interval. With `A` the automated and `M` the reference count of an interval:
+//!
+//! - APD  = mean over intervals of (A − M) / M   (signed: bias)
+//! - AAPD = mean over intervals of |A − M| / M   (size of the error)
+//! - WAPD = Σ|A − M| / ΣM                        (error weighted by volume)
+//! - correction factor = ΣM / ΣA                 (multiply automated counts by it)
+//!
+//! Intervals with M = 0 cannot enter APD and AAPD (division by zero); they still enter WAPD and the
+//! correction factor, and are counted in `zero_reference_intervals`.
+
+use crate::detections::{self, ReadError, ReadErrorKind};
+use serde::Serialize;
+use std::collections::BTreeMap;
+
+/// One row of a counts table: `screenline,direction,class,interval_start,interval_end,count`.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct CountRow {
+    pub screenline: String,
+    /// The direction label (`forward`/`backward` or the plan's own labels).
+    pub direction: String,
+    /// `None` for a count of all classes together (empty, `all` or `*` in the file).
+    pub class: Option<String>,
+    pub interval_start: String,
+    pub count: u64,
+}
+
+/// Reads a counts CSV with the header `screenline,direction,class,interval_start,interval_end,count`
+/// (the layout `--csv` writes; a manual count in the same layout).
+pub fn read_counts_csv(bytes: &[u8]) -> Result<Vec<CountRow>, ReadError> {
+    let text = detections::as_text(bytes)?;
+    let mut lines = text
+        .lines()
+        .enumerate()
+        .filter(|(_, l)| !l.trim().is_empty() && !l.trim_start().starts_with('#'));
+    let Some((_, header)) = lines.next() else {
+        return Err(ReadError::new(
+            ReadErrorKind::Empty,
+            "the counts file is empty",
+        ));
+    };
+    let names: Vec<String> = detections::split_fields(header)
+        .iter()
+        .map(|h| h.trim().to_ascii_lowercase())
+        .collect();
+    let col = |name: &str| {
+        names.iter().position(|n| n == name).ok_or_else(|| {
+            ReadError::new(
+                ReadErrorKind::BadHeader,
+                format!(
+                    "the header has no `{name}` column: it must name \
+                     screenline,direction,class,interval_start,interval_end,count"
+                ),
+            )
+            .at(1, None)
+        })
+    };
+    let (cl, cd, cc, cs, cn) = (
+        col("screenline")?,
+        col("direction")?,
+        col("class")?,
+        col("interval_start")?,
+        col("count")?,
+    );
+    let mut rows = Vec::new();
+    for (i, line) in lines {
+        let f = detections::split_fields(line);
+        if f.len() != names.len() {
+            return Err(ReadError::new(
+                ReadErrorKind::WrongColumnCount,
+                format!(
+                    "{} fields, but the header names {} columns",
+                    f.len(),
+                    names.len()
+                ),
+            )
+            .at(i + 1, None));
+        }
+        let count: u64 = f[cn].trim().parse().map_err(|_| {
+            ReadError::new(
+                ReadErrorKind::BadNumber,
+                format!("count `{}` is not a whole number of 0 or more", f[cn]),
+            )
+            .at(i + 1, Some(cn + 1))
+        })?;
+        let class = match f[cc].trim() {
+            "" | "all" | "*" => None,
+            c => Some(c.to_string()),
+        };
+        rows.push(CountRow {
+            screenline: f[cl].trim().to_string(),
+            direction: f[cd].trim().to_string(),
+            class,
+            interval_start: f[cs].trim().to_string(),
+            count,
+        });
+    }
+    Ok(rows)
+}
+
+/// The per-class interval counts of a report JSON document (as `throughline run` writes it).
+pub fn report_rows(report: &serde_json::Value) -> Result<Vec<CountRow>, String> {
+    let lines = report["screenlines"]
+        .as_array()
+        .ok_or("this is not a Throughline report: it has no `screenlines` list")?;
+    let mut rows = Vec::new();
+    for l in lines {
+        let name = l["name"].as_str().unwrap_or_default().to_string();
+        let labels = [
+            ("forward", l["forward_label"].as_str().unwrap_or("forward")),
+            (
+                "backward",
+                l["backward_label"].as_str().unwrap_or("backward"),
+            ),
+        ];
+        for i in l["intervals"].as_array().into_iter().flatten() {
+            let start = i["start"].as_str().unwrap_or_default().to_string();
+            for (class, c) in i["by_class"].as_object().into_iter().flatten() {
+                for (key, label) in labels {
+                    rows.push(CountRow {
+                        screenline: name.clone(),
+                        direction: label.to_string(),
+                        class: Some(class.clone()),
+                        interval_start: start.clone(),
+                        count: c[key].as_u64().unwrap_or(0),
+                    });
+                }
+            }
+        }
+    }
+    Ok(rows)
+}
+
+/// The measures for one group of intervals.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Measures {
+    pub intervals: usize,
+    pub zero_reference_intervals: usize,
+    pub automated_total: u64,
+    pub reference_total: u64,
+    pub apd: Option<f64>,
+    pub aapd: Option<f64>,
+    pub wapd: Option<f64>,
+    pub correction_factor: Option<f64>,
+}
+
+/// Measures for one screenline, direction and class (`all` when the reference has no classes).
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct GroupAccuracy {
+    pub screenline: String,
+    pub direction: String,
+    pub class: String,
+    #[serde(flatten)]
+    pub measures: Measures,
+    /// Every interval compared: start, automated, reference.
+    pub per_interval: Vec<(String, u64, u64)>,
+}
+
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Accuracy {
+    pub groups: Vec<GroupAccuracy>,
+    /// All compared intervals pooled.
+    pub overall: Measures,
+    /// Reference rows whose screenline and direction the automated counts do not have.
+    pub unmatched_reference_rows: usize,
+}
+
+fn measures(pairs: &[(u64, u64)]) -> Measures {
+    let with_m: Vec<f64> = pairs
+        .iter()
+        .filter(|(_, m)| *m > 0)
+        .map(|&(a, m)| (a as f64 - m as f64) / m as f64)
+        .collect();
+    let sum_a: u64 = pairs.iter().map(|p| p.0).sum();
+    let sum_m: u64 = pairs.iter().map(|p| p.1).sum();
+    let sum_abs: f64 = pairs
+        .iter()
+        .map(|&(a, m)| (a as f64 - m as f64).abs())
+        .sum();
+    let n = with_m.len() as f64;
+    Measures {
+        intervals: pairs.len(),
+        zero_reference_intervals: pairs.len() - with_m.len(),
+        automated_total: sum_a,
+        reference_total: sum_m,
+        apd: (n > 0.0).then(|| with_m.iter().sum::<f64>() / n),
+        aapd: (n > 0.0).then(|| with_m.iter().map(|d| d.abs()).sum::<f64>() / n),
+        wapd: (sum_m > 0).then(|| sum_abs / sum_m as f64),
+        correction_factor: (sum_a > 0).then(|| sum_m as f64 / sum_a as f64),
+    }
+}
+
+/// Compares automated counts with reference counts, interval by interval.
+pub fn compare(automated: &[CountRow], reference: &[CountRow]) -> Accuracy {
+    type Key = (String, String, String);
+    let mut auto: BTreeMap<(Key, String), u64> = BTreeMap::new();
+    let mut auto_all: BTreeMap<(Key, String), u64> = BTreeMap::new();
+    let mut known: std::collections::BTreeSet<(String, String)> = Default::default();
+    for r in automated {
+        let class = r.class.clone().unwrap_or_else(|| "all".into());
+        known.insert((r.screenline.clone(), r.direction.clone()));
+        *auto
+            .entry((
+                (r.screenline.clone(), r.direction.clone(), class),
+                r.interval_start.clone(),
+            ))
+            .or_default() += r.count;
+        *auto_all
+            .entry((
+                (r.screenline.clone(), r.direction.clone(), "all".into()),
+                r.interval_start.clone(),
+            ))
+            .or_default() += r.count;
+    }
+    let mut groups: BTreeMap<Key, Vec<(String, u64, u64)>> = BTreeMap::new();
+    let mut unmatched = 0;
+    for r in reference {
+        if !known.contains(&(r.screenline.clone(), r.direction.clone())) {
+            unmatched += 1;
+            continue;
+        }
+        let class = r.class.clone().unwrap_or_else(|| "all".into());
+        let key = (r.screenline.clone(), r.direction.clone(), class.clone());
+        let source = if r.class.is_some() { &auto } else { &auto_all };
+        let a = source
+            .get(&(key.clone(), r.interval_start.clone()))
+            .copied()
+            .unwrap_or(0);
+        groups
+            .entry(key)
+            .or_default()
+            .push((r.interval_start.clone(), a, r.count));
+    }
+    let mut all_pairs = Vec::new();
+    let groups = groups
+        .into_iter()
+        .map(|((screenline, direction, class), mut per_interval)| {
+            per_interval.sort();
+            let pairs: Vec<(u64, u64)> = per_interval.iter().map(|(_, a, m)| (*a, *m)).collect();
+            all_pairs.extend_from_slice(&pairs);
+            GroupAccuracy {
+                screenline,
+                direction,
+                class,
+                measures: measures(&pairs),
+                per_interval,
+            }
+        })
+        .collect();
+    Accuracy {
+        groups,
+        overall: measures(&all_pairs),
+        unmatched_reference_rows: unmatched,
+    }
+}

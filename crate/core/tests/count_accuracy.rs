@@ -1,0 +1,79 @@
+//! Count accuracy measures on hand-worked tables. Formulas as in NCHRP Report 797 (2014), from
+//! memory (see the module notes of `accuracy.rs`): APD = mean (A-M)/M, AAPD = mean |A-M|/M,
+//! WAPD = sum|A-M| / sum M, correction factor = sum M / sum A.
+
+use throughline_core::accuracy::{compare, read_counts_csv};
+
+fn rows(text: &str) -> Vec<throughline_core::accuracy::CountRow> {
+    read_counts_csv(text.as_bytes()).expect("valid counts CSV")
+}
+
+const HEADER: &str = "screenline,direction,class,interval_start,interval_end,count\n";
+
+#[test]
+fn measures_worked_by_hand() {
+    // Automated 90, 110, 50 against manual 100, 100, 50:
+    // APD = (-0.1 + 0.1 + 0) / 3 = 0; AAPD = (0.1 + 0.1 + 0) / 3 = 0.0667;
+    // WAPD = (10 + 10 + 0) / 250 = 0.08; factor = 250 / 250 = 1.
+    let auto = rows(&format!(
+        "{HEADER}deck,in,pedestrian,07:00,07:15,90\ndeck,in,pedestrian,07:15,07:30,110\ndeck,in,pedestrian,07:30,07:45,50\n"
+    ));
+    let manual = rows(&format!(
+        "{HEADER}deck,in,,07:00,07:15,100\ndeck,in,all,07:15,07:30,100\ndeck,in,*,07:30,07:45,50\n"
+    ));
+    let a = compare(&auto, &manual);
+    assert_eq!(a.groups.len(), 1);
+    let m = &a.groups[0].measures;
+    assert_eq!(
+        (m.intervals, m.automated_total, m.reference_total),
+        (3, 250, 250)
+    );
+    assert!(m.apd.unwrap().abs() < 1e-12);
+    assert!((m.aapd.unwrap() - 0.2 / 3.0).abs() < 1e-12);
+    assert!((m.wapd.unwrap() - 0.08).abs() < 1e-12);
+    assert!((m.correction_factor.unwrap() - 1.0).abs() < 1e-12);
+}
+
+#[test]
+fn a_consistent_undercount_has_negative_bias_and_a_factor_above_one() {
+    // Automated 80 and 40 against 100 and 50: APD = AAPD = -0.2 / 0.2, WAPD = 30/150 = 0.2,
+    // factor = 150/120 = 1.25.
+    let auto = rows(&format!(
+        "{HEADER}gate,out,car,a,b,80\ngate,out,car,b,c,40\n"
+    ));
+    let manual = rows(&format!(
+        "{HEADER}gate,out,car,a,b,100\ngate,out,car,b,c,50\n"
+    ));
+    let m = compare(&auto, &manual).overall;
+    assert!((m.apd.unwrap() + 0.2).abs() < 1e-12 && (m.aapd.unwrap() - 0.2).abs() < 1e-12);
+    assert!((m.wapd.unwrap() - 0.2).abs() < 1e-12);
+    assert!((m.correction_factor.unwrap() - 1.25).abs() < 1e-12);
+}
+
+#[test]
+fn zero_reference_intervals_are_kept_out_of_apd_but_not_wapd() {
+    let auto = rows(&format!(
+        "{HEADER}gate,out,car,a,b,3\ngate,out,car,b,c,10\n"
+    ));
+    let manual = rows(&format!(
+        "{HEADER}gate,out,car,a,b,0\ngate,out,car,b,c,10\n"
+    ));
+    let m = compare(&auto, &manual).overall;
+    assert_eq!(m.zero_reference_intervals, 1);
+    assert_eq!(m.apd, Some(0.0));
+    assert!((m.wapd.unwrap() - 0.3).abs() < 1e-12);
+}
+
+#[test]
+fn unknown_lines_are_counted_and_bad_rows_named() {
+    let auto = rows(&format!("{HEADER}gate,out,car,a,b,3\n"));
+    let manual = rows(&format!("{HEADER}door,in,car,a,b,3\n"));
+    assert_eq!(compare(&auto, &manual).unmatched_reference_rows, 1);
+    let e = read_counts_csv(format!("{HEADER}gate,out,car,a,b,three\n").as_bytes()).unwrap_err();
+    assert!(
+        e.to_string().contains("line 2") && e.to_string().contains("three"),
+        "{e}"
+    );
+    let e = read_counts_csv(b"line,direction,count\n").unwrap_err();
+    assert!(e.to_string().contains("screenline"), "{e}");
+}
