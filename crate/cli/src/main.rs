@@ -390,9 +390,7 @@ fn track_file(
     let settings = match config_path {
         Some(p) => {
             let bytes = read_file(p)?;
-            let text = String::from_utf8_lossy(&bytes).into_owned();
-            let named = track::TrackerConfig::method_in_json(&text).map_err(|e| bad_input(p, e))?;
-            Some((p, text, named))
+            Some((p, String::from_utf8_lossy(&bytes).into_owned()))
         }
         None => None,
     };
@@ -400,15 +398,16 @@ fn track_file(
     let report = detections::read_detections(&bytes).map_err(|e| bad_input(path, e))?;
     drop(bytes);
     timer.lap("read");
-    let method = flag_method
-        .or(settings.as_ref().and_then(|s| s.2))
-        .unwrap_or_else(|| track::default_method(report.detections.embedding_dim > 0));
-    let config = match &settings {
-        Some((p, text, _)) => {
-            track::TrackerConfig::from_json(text, method).map_err(|e| bad_input(p, e))?
-        }
-        None => track::TrackerConfig::for_method(method),
-    };
+    let has_embeddings = report.detections.embedding_dim > 0;
+    let config = track::resolve_config(
+        flag_method,
+        settings.as_ref().map(|s| s.1.as_str()),
+        has_embeddings,
+    )
+    .map_err(|e| match &settings {
+        Some((p, _)) => bad_input(p, e),
+        None => bad_input(path, e),
+    })?;
     if !quiet {
         for w in &report.warnings {
             match w.line {
@@ -511,10 +510,7 @@ fn run_count(
 }
 
 fn write_report(report: &count::Report, out: &Outputs, quiet: bool) -> Result<(), Failure> {
-    let json = serde_json::to_string_pretty(report).map_err(|e| Failure {
-        message: format!("cannot write the report: {e}"),
-        code: 1,
-    })?;
+    let json = count::report_json(report);
     if let Some(p) = out.csv {
         write_file(p, &count::counts_csv(report))?;
     }

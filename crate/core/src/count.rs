@@ -3,8 +3,9 @@
 //! Rules (see DEVELOPERS.md, "Counting rules", for the reasons and limits):
 //! - A crossing is an intersection of the anchor's path (one step per frame, predicted boxes
 //!   included) with a screenline segment; its direction comes from the movement across the segment.
-//! - Hysteresis: a crossing is pending until the anchor gets `rules.hysteresis × box height` away from
-//!   the line. A crossing back before that cancels both (jitter on the line). A pending crossing at
+//! - Hysteresis: a crossing is pending until an observed anchor gets `rules.hysteresis × box height`
+//!   away from the line. A crossing back before that cancels both (jitter on the line, or a coasting
+//!   prediction that drifted over the line and back). A pending crossing at
 //!   the end of a track counts if the anchor ended at least half that distance beyond the line.
 //! - Crossings on steps that touch a predicted box are counted and marked `inferred`.
 //! - Fragments: a track that ends, and a new track that starts within `rules.join_seconds` where the
@@ -424,8 +425,10 @@ fn crossings(c: &Counted, line: &Screenline, hysteresis: f64) -> Vec<(bool, f64,
                 Some(_) => pending = None,
             }
         }
+        // Confirmation needs a seen position: a prediction that drifts over the line and back while
+        // the object is unseen must not count twice.
         if let Some(p) = &pending {
-            if distance_to_line(line, &b.p) >= hysteresis * b.height {
+            if b.observed && distance_to_line(line, &b.p) >= hysteresis * b.height {
                 out.push((p.forward, p.frame_f, p.at, p.inferred));
                 pending = None;
             }
@@ -898,6 +901,11 @@ pub fn count(tracks: &Tracks, plan: &Plan, tracker: Option<&TrackerConfig>) -> R
         joins,
         events,
     }
+}
+
+/// The report as JSON text, exactly as every adapter writes it.
+pub fn report_json(report: &Report) -> String {
+    serde_json::to_string_pretty(report).unwrap_or_default()
 }
 
 /// The counts CSV: `screenline,direction,class,interval_start,interval_end,count`, one row per

@@ -317,15 +317,21 @@ pub fn bench(args: &[String]) -> Result<(), String> {
         "cargo xtask bench"
     };
 
+    let only_grid = args.iter().any(|a| a == "--grid");
     // Speed: about 10, 50 and 200 detections per frame. Wider pictures hold the crowd at a similar
     // spacing, so that occlusion does not cap the number of detections.
     let frames = if quick { 300 } else { 1500 };
     let mut lines = Vec::new();
-    for (label, density, width) in [
-        ("speed-10", 13.0, 640.0),
-        ("speed-50", 65.0, 1920.0),
-        ("speed-200", 265.0, 5120.0),
-    ] {
+    let speed_scenes: &[(&str, f64, f64)] = if only_grid {
+        &[]
+    } else {
+        &[
+            ("speed-10", 13.0, 640.0),
+            ("speed-50", 65.0, 1920.0),
+            ("speed-200", 265.0, 5120.0),
+        ]
+    };
+    for &(label, density, width) in speed_scenes {
         let spec = SceneSpec {
             label: label.into(),
             density,
@@ -363,7 +369,9 @@ pub fn bench(args: &[String]) -> Result<(), String> {
         if quick { 1 } else { RUNS },
         lines.join("\n")
     );
-    write_section("<!-- speed:begin -->", "<!-- speed:end -->", &speed)?;
+    if !only_grid {
+        write_section("<!-- speed:begin -->", "<!-- speed:end -->", &speed)?;
+    }
 
     // The grid: densities x miss rates, quality, counts and speed.
     let frames = if quick { 750 } else { 3000 };

@@ -11,6 +11,9 @@ use std::process::{Command, ExitCode};
 
 mod bench;
 
+/// The wasm-bindgen version pinned in crate/wasm/Cargo.toml.
+const WASM_BINDGEN: &str = "0.2.130";
+
 fn root() -> PathBuf {
     let root = Path::new(env!("CARGO_MANIFEST_DIR")).join("../..");
     std::fs::canonicalize(&root).unwrap_or(root)
@@ -125,6 +128,41 @@ fn test() -> Result<(), String> {
             "--release",
         ],
     )?;
+    // The WebAssembly adapter must give the command line's report byte for byte: build both and
+    // compare them in Node (wasm-bindgen's tool must match the pinned crate version exactly).
+    let have_bindgen = Command::new("wasm-bindgen")
+        .arg("--version")
+        .output()
+        .is_ok_and(|o| String::from_utf8_lossy(&o.stdout).contains(WASM_BINDGEN));
+    if !have_bindgen {
+        run(
+            "cargo",
+            &["install", "wasm-bindgen-cli", "--version", WASM_BINDGEN],
+        )?;
+    }
+    run(
+        "cargo",
+        &[
+            "build",
+            "-p",
+            "throughline-wasm",
+            "--target",
+            "wasm32-unknown-unknown",
+            "--release",
+        ],
+    )?;
+    run(
+        "wasm-bindgen",
+        &[
+            "--target",
+            "nodejs",
+            "--out-dir",
+            "target/wasm-node",
+            "target/wasm32-unknown-unknown/release/throughline_wasm.wasm",
+        ],
+    )?;
+    build_cli()?;
+    run("node", &["--test", "tests/wasm/"])?;
     eprintln!("all checks passed");
     Ok(())
 }

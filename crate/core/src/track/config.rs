@@ -60,6 +60,27 @@ pub fn default_method(has_embeddings: bool) -> Method {
     }
 }
 
+/// The settings a run uses, resolved as the command line and the browser both do: the method is
+/// `method` if given, else the settings file's `method`, else [`default_method`]; the settings are
+/// that method's defaults overridden by the file's fields.
+pub fn resolve_config(
+    method: Option<Method>,
+    settings_json: Option<&str>,
+    has_embeddings: bool,
+) -> Result<TrackerConfig, ConfigError> {
+    let named = match settings_json {
+        Some(text) => TrackerConfig::method_in_json(text)?,
+        None => None,
+    };
+    let method = method
+        .or(named)
+        .unwrap_or_else(|| default_method(has_embeddings));
+    match settings_json {
+        Some(text) => TrackerConfig::from_json(text, method),
+        None => Ok(TrackerConfig::for_method(method)),
+    }
+}
+
 /// Every setting of every method. Fields a method does not use are ignored by it.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 #[serde(deny_unknown_fields)]

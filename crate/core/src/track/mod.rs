@@ -10,7 +10,7 @@
 mod config;
 mod methods;
 
-pub use config::{default_method, ConfigError, Method, TrackerConfig};
+pub use config::{default_method, resolve_config, ConfigError, Method, TrackerConfig};
 
 use crate::detections::{Detection, Detections};
 use crate::geometry::BBox;

@@ -1,0 +1,169 @@
+//! The WebAssembly adapter: one [`Session`] per page (or worker) holding the loaded detections, the
+//! plan and the last tracks. File bytes go in unchanged and are read by the same core readers as the
+//! command line; reports come back as the same JSON text; boxes for drawing come back as typed
+//! arrays. Every error becomes a JS `Error` whose message says what to fix.
+
+use js_sys::{Float32Array, Function};
+use throughline_core::{count, detections, plan, track, tracks_io};
+use wasm_bindgen::prelude::*;
+
+/// Values per box in [`Session::boxes_at`]: id, x, y, w, h (pixels, top-left + size), observed (1/0).
+pub const BOX_STRIDE: usize = 6;
+
+fn js_error(message: impl std::fmt::Display) -> JsError {
+    JsError::new(&message.to_string())
+}
+
+/// The state of one page: detections, plan, tracks.
+#[wasm_bindgen]
+#[derive(Default)]
+pub struct Session {
+    detections: Option<detections::ReadReport>,
+    plan: Option<plan::Plan>,
+    tracks: Option<track::Tracks>,
+}
+
+#[wasm_bindgen]
+impl Session {
+    #[wasm_bindgen(constructor)]
+    pub fn new() -> Session {
+        Session::default()
+    }
+
+    /// Reads a detections file (any of the three layouts). Returns a JSON summary:
+    /// `{"rows", "frames", "format", "classes", "embedding_dim", "skipped_rows", "warnings": [...]}`.
+    #[wasm_bindgen(js_name = loadDetections)]
+    pub fn load_detections(&mut self, bytes: &[u8]) -> Result<String, JsError> {
+        let report = detections::read_detections(bytes).map_err(js_error)?;
+        let d = &report.detections;
+        let warnings: Vec<String> = report
+            .warnings
+            .iter()
+            .map(|w| match w.line {
+                Some(l) => format!("line {l}: {}", w.message),
+                None => w.message.clone(),
+            })
+            .collect();
+        let summary = serde_json::json!({
+            "rows": d.rows.len(),
+            "frames": d.last_frame(),
+            "format": report.format.to_string(),
+            "classes": d.classes,
+            "embedding_dim": d.embedding_dim,
+            "skipped_rows": report.skipped_rows,
+            "warnings": warnings,
+            "max_x": d.rows.iter().map(|r| r.bbox.x + r.bbox.w).fold(0.0, f64::max),
+            "max_y": d.rows.iter().map(|r| r.bbox.y + r.bbox.h).fold(0.0, f64::max),
+        });
+        self.detections = Some(report);
+        self.tracks = None;
+        Ok(summary.to_string())
+    }
+
+    /// Sets the counting plan from its JSON text; errors name the field to fix.
+    #[wasm_bindgen(js_name = setPlan)]
+    pub fn set_plan(&mut self, json: &str) -> Result<(), JsError> {
+        self.plan = Some(plan::Plan::from_json(json).map_err(js_error)?);
+        Ok(())
+    }
+
+    /// Tracks the loaded detections. `method` may be empty for the default; `settings` is an optional
+    /// settings file's text. `progress(done, total)` is called every few hundred frames. Returns the
+    /// number of tracks.
+    pub fn track(
+        &mut self,
+        method: &str,
+        settings: &str,
+        progress: Option<Function>,
+    ) -> Result<u32, JsError> {
+        let report = self
+            .detections
+            .as_ref()
+            .ok_or_else(|| js_error("open a detections file first"))?;
+        let method = match method {
+            "" => None,
+            m => Some(
+                track::Method::parse(m).ok_or_else(|| js_error(format!("unknown method `{m}`")))?,
+            ),
+        };
+        let settings = (!settings.trim().is_empty()).then_some(settings);
+        let config = track::resolve_config(method, settings, report.detections.embedding_dim > 0)
+            .map_err(js_error)?;
+        let mut on_progress = |done: u32, total: u32| {
+            if let Some(f) = &progress {
+                let _ = f.call2(&JsValue::NULL, &JsValue::from(done), &JsValue::from(total));
+            }
+        };
+        let tracks =
+            track::run_tracker(&report.detections, &config, &mut on_progress).map_err(js_error)?;
+        let n = tracks.tracks.len() as u32;
+        self.tracks = Some(tracks);
+        Ok(n)
+    }
+
+    /// Counts the last tracks with the plan; the report JSON, as `throughline run` writes it.
+    pub fn report(&self) -> Result<String, JsError> {
+        let (tracks, plan) = self.ready()?;
+        Ok(count::report_json(&count::count(
+            tracks,
+            plan,
+            Some(&tracks.config),
+        )))
+    }
+
+    /// The counts CSV of the last tracks and plan.
+    #[wasm_bindgen(js_name = countsCsv)]
+    pub fn counts_csv(&self) -> Result<String, JsError> {
+        let (tracks, plan) = self.ready()?;
+        Ok(count::counts_csv(&count::count(
+            tracks,
+            plan,
+            Some(&tracks.config),
+        )))
+    }
+
+    /// The last tracks in the benchmark text format.
+    #[wasm_bindgen(js_name = tracksText)]
+    pub fn tracks_text(&self) -> Result<String, JsError> {
+        let tracks = self
+            .tracks
+            .as_ref()
+            .ok_or_else(|| js_error("run tracking first"))?;
+        Ok(tracks_io::to_benchmark_text(tracks))
+    }
+
+    /// Boxes of the last tracks in one frame (1-based), [`BOX_STRIDE`] values each.
+    #[wasm_bindgen(js_name = boxesAt)]
+    pub fn boxes_at(&self, frame: u32) -> Float32Array {
+        let mut out = Vec::new();
+        for t in self.tracks.iter().flat_map(|t| &t.tracks) {
+            if frame < t.first_frame() || frame > t.last_frame() {
+                continue;
+            }
+            if let Some(b) = t.boxes.get((frame - t.first_frame()) as usize) {
+                let bb = b.bbox;
+                out.extend_from_slice(&[
+                    t.id as f32,
+                    bb.x as f32,
+                    bb.y as f32,
+                    bb.w as f32,
+                    bb.h as f32,
+                    f32::from(u8::from(b.observed)),
+                ]);
+            }
+        }
+        Float32Array::from(out.as_slice())
+    }
+
+    fn ready(&self) -> Result<(&track::Tracks, &plan::Plan), JsError> {
+        let tracks = self
+            .tracks
+            .as_ref()
+            .ok_or_else(|| js_error("run tracking first"))?;
+        let plan = self
+            .plan
+            .as_ref()
+            .ok_or_else(|| js_error("open or draw a plan first"))?;
+        Ok((tracks, plan))
+    }
+}
