@@ -528,13 +528,23 @@ fn csv_columns(header: &[&str], line: usize) -> Result<CsvColumns, ReadError> {
         .map(|h| h.trim().to_ascii_lowercase())
         .collect();
     let find = |name: &str| names.iter().position(|n| n == name);
+    let hint = if header.len() == 1 && header[0].contains(';') {
+        " (the file seems to use `;` between fields: save it with commas, and `.` as the decimal point)"
+    } else if names
+        .iter()
+        .any(|n| n == "x2" || n == "x_max" || n == "xmax")
+    {
+        " (boxes must be top-left x,y and width,height: compute w = x2 - x1 and h = y2 - y1)"
+    } else {
+        ""
+    };
     let required = |name: &str| {
         find(name).ok_or_else(|| {
             ReadError::new(
                 ReadErrorKind::BadHeader,
                 format!(
                     "the header has no `{name}` column: it must name frame,x,y,w,h,score \
-                     (class and e0,e1,… optional); found: {}",
+                     (class and e0,e1,… optional); found: {}{hint}",
                     header.join(",")
                 ),
             )

@@ -84,6 +84,16 @@ fn demo() -> Result<(), String> {
             "out/demo/tracks.txt",
         ],
     )?;
+    println!("\nCounts against the scene's true crossings (as you would check a manual count):\n");
+    run(
+        bin,
+        &[
+            "score-counts",
+            "--truth",
+            "demo-site/demo/truth_counts.csv",
+            "out/demo/report.json",
+        ],
+    )?;
     println!(
         "\nOn your own files: {bin} run DETECTIONS --plan PLAN -o report.json --csv counts.csv"
     );
