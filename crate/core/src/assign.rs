@@ -151,45 +151,15 @@ pub fn solve_edges(rows: usize, cols: usize, edges: &[Edge], gate: f64) -> Vec<(
         .iter()
         .filter(|e| passes(e.cost) && e.row < rows && e.col < cols)
         .collect();
-    if edges.is_empty() {
-        return Vec::new();
-    }
-    // Union-find over rows (0..rows) and columns (rows..rows + cols).
-    let mut parent: Vec<usize> = (0..rows + cols).collect();
-    fn find(parent: &mut [usize], mut i: usize) -> usize {
-        while parent[i] != i {
-            parent[i] = parent[parent[i]];
-            i = parent[i];
-        }
-        i
-    }
-    for e in &edges {
-        let (a, b) = (find(&mut parent, e.row), find(&mut parent, rows + e.col));
-        if a != b {
-            parent[a.max(b)] = a.min(b);
-        }
-    }
-    // Edges grouped by component; most components of a tracking frame are one track and one box.
-    let mut by_root: Vec<(usize, usize)> = edges
-        .iter()
-        .enumerate()
-        .map(|(k, e)| (find(&mut parent, e.row), k))
-        .collect();
-    by_root.sort_unstable();
     let above = gate + gate.abs().max(1.0) * 1e-5;
     let mut pairs = Vec::new();
-    for group in by_root.chunk_by(|a, b| a.0 == b.0) {
-        if let [(_, k)] = group {
-            pairs.push((edges[*k].row, edges[*k].col));
+    // Most components of a tracking frame are one track and one box.
+    for group in components(rows, cols, &edges) {
+        if let [e] = group[..] {
+            pairs.push((e.row, e.col));
             continue;
         }
-        let group: Vec<&Edge> = group.iter().map(|&(_, k)| edges[k]).collect();
-        let mut rs: Vec<usize> = group.iter().map(|e| e.row).collect();
-        let mut cs: Vec<usize> = group.iter().map(|e| e.col).collect();
-        rs.sort_unstable();
-        rs.dedup();
-        cs.sort_unstable();
-        cs.dedup();
+        let (rs, cs, sub) = dense(&group, above, |e| e.cost);
         if rs.len() == 1 || cs.len() == 1 {
             // One row or one column: the cheapest edge is the optimum (first listed among equals).
             let best = group.iter().min_by(|a, b| {
@@ -200,12 +170,6 @@ pub fn solve_edges(rows: usize, cols: usize, edges: &[Edge], gate: f64) -> Vec<(
             pairs.extend(best.map(|e| (e.row, e.col)));
             continue;
         }
-        let mut sub = CostMatrix::filled(rs.len(), cs.len(), above);
-        for e in &group {
-            if let (Ok(i), Ok(j)) = (rs.binary_search(&e.row), cs.binary_search(&e.col)) {
-                sub.set(i, j, e.cost);
-            }
-        }
         pairs.extend(
             solve(&sub)
                 .into_iter()
@@ -215,6 +179,56 @@ pub fn solve_edges(rows: usize, cols: usize, edges: &[Edge], gate: f64) -> Vec<(
     }
     pairs.sort_unstable();
     pairs
+}
+
+/// Groups edges by the connected component of rows and columns they join (union-find over rows
+/// `0..rows` and columns `rows..rows + cols`), in a fixed order.
+fn components<'a>(rows: usize, cols: usize, edges: &[&'a Edge]) -> Vec<Vec<&'a Edge>> {
+    let mut parent: Vec<usize> = (0..rows + cols).collect();
+    fn find(parent: &mut [usize], mut i: usize) -> usize {
+        while parent[i] != i {
+            parent[i] = parent[parent[i]];
+            i = parent[i];
+        }
+        i
+    }
+    for e in edges {
+        let (a, b) = (find(&mut parent, e.row), find(&mut parent, rows + e.col));
+        if a != b {
+            parent[a.max(b)] = a.min(b);
+        }
+    }
+    let mut by_root: Vec<(usize, usize)> = edges
+        .iter()
+        .enumerate()
+        .map(|(k, e)| (find(&mut parent, e.row), k))
+        .collect();
+    by_root.sort_unstable();
+    by_root
+        .chunk_by(|a, b| a.0 == b.0)
+        .map(|g| g.iter().map(|&(_, k)| edges[k]).collect())
+        .collect()
+}
+
+/// The distinct rows and columns of a component and its dense matrix (`fill` where no edge is).
+fn dense(
+    group: &[&Edge],
+    fill: f64,
+    value: impl Fn(&Edge) -> f64,
+) -> (Vec<usize>, Vec<usize>, CostMatrix) {
+    let mut rs: Vec<usize> = group.iter().map(|e| e.row).collect();
+    let mut cs: Vec<usize> = group.iter().map(|e| e.col).collect();
+    rs.sort_unstable();
+    rs.dedup();
+    cs.sort_unstable();
+    cs.dedup();
+    let mut sub = CostMatrix::filled(rs.len(), cs.len(), fill);
+    for e in group {
+        if let (Ok(i), Ok(j)) = (rs.binary_search(&e.row), cs.binary_search(&e.col)) {
+            sub.set(i, j, value(e));
+        }
+    }
+    (rs, cs, sub)
 }
 
 /// Total cost of a set of pairs.
@@ -232,45 +246,13 @@ pub fn maximise_edges(rows: usize, cols: usize, edges: &[Edge]) -> Vec<(usize, u
         .iter()
         .filter(|e| e.cost.is_finite() && e.cost > 0.0 && e.row < rows && e.col < cols)
         .collect();
-    let mut parent: Vec<usize> = (0..rows + cols).collect();
-    fn find(parent: &mut [usize], mut i: usize) -> usize {
-        while parent[i] != i {
-            parent[i] = parent[parent[i]];
-            i = parent[i];
-        }
-        i
-    }
-    for e in &edges {
-        let (a, b) = (find(&mut parent, e.row), find(&mut parent, rows + e.col));
-        if a != b {
-            parent[a.max(b)] = a.min(b);
-        }
-    }
-    let mut by_root: Vec<(usize, usize)> = edges
-        .iter()
-        .enumerate()
-        .map(|(k, e)| (find(&mut parent, e.row), k))
-        .collect();
-    by_root.sort_unstable();
     let mut pairs = Vec::new();
-    for group in by_root.chunk_by(|a, b| a.0 == b.0) {
-        if let [(_, k)] = group {
-            pairs.push((edges[*k].row, edges[*k].col));
+    for group in components(rows, cols, &edges) {
+        if let [e] = group[..] {
+            pairs.push((e.row, e.col));
             continue;
         }
-        let mut rs: Vec<usize> = group.iter().map(|&(_, k)| edges[k].row).collect();
-        let mut cs: Vec<usize> = group.iter().map(|&(_, k)| edges[k].col).collect();
-        rs.sort_unstable();
-        rs.dedup();
-        cs.sort_unstable();
-        cs.dedup();
-        let mut sub = CostMatrix::filled(rs.len(), cs.len(), 0.0);
-        for &(_, k) in group {
-            let e = edges[k];
-            if let (Ok(i), Ok(j)) = (rs.binary_search(&e.row), cs.binary_search(&e.col)) {
-                sub.set(i, j, -e.cost);
-            }
-        }
+        let (rs, cs, sub) = dense(&group, 0.0, |e| -e.cost);
         pairs.extend(
             solve(&sub)
                 .into_iter()
