@@ -495,7 +495,7 @@ fn run_count(
 ) -> Result<(), Failure> {
     let plan = read_plan(plan_path)?;
     let bytes = read_file(tracks_path)?;
-    let is_json = bytes.iter().find(|b| !b.is_ascii_whitespace()) == Some(&b'{');
+    let is_json = looks_like_json_object(&bytes);
     let (tracks, tracker) = if is_json {
         let t = tracks_io::from_json(&bytes).map_err(|e| bad_input(tracks_path, e))?;
         let config = t.config.clone();
@@ -640,7 +640,7 @@ fn run_simulate(
     )?;
     if let Some(plan) = &plan {
         let report = count::count(&sim::truth_tracks(&scene), plan, None);
-        let json = serde_json::to_string_pretty(&report).unwrap_or_default();
+        let json = count::report_json(&report);
         write_file(&dir.join("truth_report.json"), &json)?;
         write_file(&dir.join("truth_counts.csv"), &count::counts_csv(&report))?;
     }
@@ -694,13 +694,18 @@ fn render_scene(cfg: &sim::SceneConfig, path: &Path) -> Result<sim::Scene, Failu
     Ok(scene)
 }
 
+/// Whether a file's first non-blank byte opens a JSON object (a tracks document or a report).
+fn looks_like_json_object(bytes: &[u8]) -> bool {
+    bytes.iter().find(|b| !b.is_ascii_whitespace()) == Some(&b'{')
+}
+
 fn read_tracks(path: &Path) -> Result<Vec<tracks_io::IdBox>, Failure> {
     let bytes = read_file(path)?;
     if bytes.iter().all(u8::is_ascii_whitespace) {
         // An empty tracker output is a valid (if poor) result: everything was missed.
         return Ok(Vec::new());
     }
-    let is_json = bytes.iter().find(|b| !b.is_ascii_whitespace()) == Some(&b'{');
+    let is_json = looks_like_json_object(&bytes);
     if is_json {
         let tracks = tracks_io::from_json(&bytes).map_err(|e| bad_input(path, e))?;
         Ok(tracks_io::tracks_to_boxes(&tracks))
@@ -719,7 +724,7 @@ fn run_score_counts(truth: &Path, report: &Path, json: bool) -> Result<(), Failu
     let automated =
         accuracy::report_rows(&read_json_value(report)?).map_err(|e| bad_input(report, e))?;
     let bytes = read_file(truth)?;
-    let is_json = bytes.iter().find(|b| !b.is_ascii_whitespace()) == Some(&b'{');
+    let is_json = looks_like_json_object(&bytes);
     let reference = if is_json {
         accuracy::report_rows(&read_json_value(truth)?).map_err(|e| bad_input(truth, e))?
     } else {

@@ -123,6 +123,8 @@ pub struct Scene {
 #[derive(Debug, Clone)]
 struct Agent {
     id: i64,
+    /// Dense ground-truth id, given when the agent first comes into view.
+    truth_id: Option<i64>,
     class: u16,
     /// Ground point (bottom-centre of the box), pixels.
     x: f64,
@@ -179,6 +181,7 @@ fn spawn(rng: &mut Rng, cfg: &SceneConfig, next_id: &mut i64, agents: &mut Vec<A
         let appearance: Vec<f64> = (0..dim).map(|_| rng.normal()).collect();
         let a = Agent {
             id: *next_id,
+            truth_id: None,
             class,
             x,
             y,
@@ -280,7 +283,7 @@ pub fn generate_with(cfg: &SceneConfig, on_frame: &mut dyn FnMut(u32, &[AgentVie
     // Arrivals make up for the shortfall against the wanted density, so the number of agents in view
     // holds steady however long they take to cross; the warm-up fills the scene before frame 1.
     let warm_up = 400;
-    let mut spawned_ids = Vec::new();
+    let mut next_truth_id = 1i64;
     for step in 0..(warm_up + cfg.frames) {
         let mut births = (cfg.density - agents.len() as f64).max(0.0) / 25.0;
         while births > 0.0 {
@@ -314,14 +317,17 @@ pub fn generate_with(cfg: &SceneConfig, on_frame: &mut dyn FnMut(u32, &[AgentVie
                 continue;
             }
             // Ids are renumbered densely in order of first appearance in view.
-            let id = match spawned_ids.iter().position(|&s| s == a.id) {
-                Some(k) => k as i64 + 1,
+            let id = match a.truth_id {
+                Some(id) => id,
                 None => {
-                    spawned_ids.push(a.id);
+                    let id = next_truth_id;
+                    next_truth_id += 1;
                     truth_classes.push(a.class);
-                    spawned_ids.len() as i64
+                    agents[i].truth_id = Some(id);
+                    id
                 }
             };
+            let a = &agents[i];
             truth.push(IdBox { frame, id, bbox: b });
             let hidden: f64 = order[..rank]
                 .iter()
@@ -374,12 +380,8 @@ pub fn generate_with(cfg: &SceneConfig, on_frame: &mut dyn FnMut(u32, &[AgentVie
         for &i in order.iter().rev() {
             let a = &agents[i];
             if boxes[i].is_some() {
-                let id = spawned_ids
-                    .iter()
-                    .position(|&s| s == a.id)
-                    .map_or(0, |k| k as i64 + 1);
                 views.push(AgentView {
-                    id,
+                    id: a.truth_id.unwrap_or(0),
                     class: a.class,
                     bbox: a.bbox(cfg),
                     colour: colour_of(a.id),
