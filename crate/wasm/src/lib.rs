@@ -10,6 +10,9 @@ use wasm_bindgen::prelude::*;
 /// Values per box in [`Session::boxes_at`]: id, x, y, w, h (pixels, top-left + size), observed (1/0).
 pub const BOX_STRIDE: usize = 6;
 
+/// Values per box in [`Session::all_boxes`]: frame (1-based), then the [`BOX_STRIDE`] values.
+pub const FRAME_BOX_STRIDE: usize = 7;
+
 fn js_error(message: impl std::fmt::Display) -> JsError {
     JsError::new(&message.to_string())
 }
@@ -21,6 +24,8 @@ pub struct Session {
     detections: Option<detections::ReadReport>,
     plan: Option<plan::Plan>,
     tracks: Option<track::Tracks>,
+    /// The report of the last tracks and plan, made once when both are there.
+    report: Option<count::Report>,
 }
 
 #[wasm_bindgen]
@@ -57,6 +62,7 @@ impl Session {
         });
         self.detections = Some(report);
         self.tracks = None;
+        self.report = None;
         Ok(summary.to_string())
     }
 
@@ -64,6 +70,7 @@ impl Session {
     #[wasm_bindgen(js_name = setPlan)]
     pub fn set_plan(&mut self, json: &str) -> Result<(), JsError> {
         self.plan = Some(plan::Plan::from_json(json).map_err(js_error)?);
+        self.recount();
         Ok(())
     }
 
@@ -98,28 +105,19 @@ impl Session {
             track::run_tracker(&report.detections, &config, &mut on_progress).map_err(js_error)?;
         let n = tracks.tracks.len() as u32;
         self.tracks = Some(tracks);
+        self.recount();
         Ok(n)
     }
 
     /// Counts the last tracks with the plan; the report JSON, as `throughline run` writes it.
     pub fn report(&self) -> Result<String, JsError> {
-        let (tracks, plan) = self.ready()?;
-        Ok(count::report_json(&count::count(
-            tracks,
-            plan,
-            Some(&tracks.config),
-        )))
+        Ok(count::report_json(self.ready()?))
     }
 
     /// The counts CSV of the last tracks and plan.
     #[wasm_bindgen(js_name = countsCsv)]
     pub fn counts_csv(&self) -> Result<String, JsError> {
-        let (tracks, plan) = self.ready()?;
-        Ok(count::counts_csv(&count::count(
-            tracks,
-            plan,
-            Some(&tracks.config),
-        )))
+        Ok(count::counts_csv(self.ready()?))
     }
 
     /// The last tracks in the benchmark text format.
@@ -155,15 +153,63 @@ impl Session {
         Float32Array::from(out.as_slice())
     }
 
-    fn ready(&self) -> Result<(&track::Tracks, &plan::Plan), JsError> {
-        let tracks = self
+    /// Every box of the last tracks, ordered by frame then track id, [`FRAME_BOX_STRIDE`] values
+    /// each: frame (1-based), id, x, y, w, h (pixels, top-left + size), observed (1/0). The page
+    /// keeps this one array to draw boxes and trails without asking again for every frame.
+    #[wasm_bindgen(js_name = allBoxes)]
+    pub fn all_boxes(&self) -> Float32Array {
+        let mut rows: Vec<[f32; FRAME_BOX_STRIDE]> = Vec::new();
+        for t in self.tracks.iter().flat_map(|t| &t.tracks) {
+            for b in &t.boxes {
+                let bb = b.bbox;
+                rows.push([
+                    b.frame as f32,
+                    t.id as f32,
+                    bb.x as f32,
+                    bb.y as f32,
+                    bb.w as f32,
+                    bb.h as f32,
+                    f32::from(u8::from(b.observed)),
+                ]);
+            }
+        }
+        rows.sort_by(|a, b| a[0].total_cmp(&b[0]).then(a[1].total_cmp(&b[1])));
+        Float32Array::from(rows.concat().as_slice())
+    }
+
+    /// The last tracks without their boxes, as JSON: `[{"id", "class", "first_frame", "last_frame"}]`.
+    #[wasm_bindgen(js_name = trackList)]
+    pub fn track_list(&self) -> String {
+        let list: Vec<serde_json::Value> = self
             .tracks
+            .iter()
+            .flat_map(|t| &t.tracks)
+            .map(|t| {
+                serde_json::json!({
+                    "id": t.id,
+                    "class": t.class,
+                    "first_frame": t.first_frame(),
+                    "last_frame": t.last_frame(),
+                })
+            })
+            .collect();
+        serde_json::Value::Array(list).to_string()
+    }
+
+    /// Counts again when the tracks or the plan changed and both are there.
+    fn recount(&mut self) {
+        self.report = match (&self.tracks, &self.plan) {
+            (Some(tracks), Some(plan)) => Some(count::count(tracks, plan, Some(&tracks.config))),
+            _ => None,
+        };
+    }
+
+    fn ready(&self) -> Result<&count::Report, JsError> {
+        if self.tracks.is_none() {
+            return Err(js_error("run tracking first"));
+        }
+        self.report
             .as_ref()
-            .ok_or_else(|| js_error("run tracking first"))?;
-        let plan = self
-            .plan
-            .as_ref()
-            .ok_or_else(|| js_error("open or draw a plan first"))?;
-        Ok((tracks, plan))
+            .ok_or_else(|| js_error("open or draw a plan first"))
     }
 }

@@ -1,6 +1,8 @@
 //! Project chores, run as `cargo xtask <task>`:
 //!
-//! - `demo`: build the command line and run the main job on the bundled demo;
+//! - `demo`: build the command line and run the main job on the bundled demo, then build the browser
+//!   app and serve it on 127.0.0.1 (`--no-serve`: build only);
+//! - `site`: build the browser app into demo-site/ (and its single-file form); `serve`: and serve it;
 //! - `test`: install what the checks need, then format check, lints, every test, the wasm32 build;
 //! - `bench`: speed, memory and quality of every method on simulated scenes, with a Python peer,
 //!   written into BENCHMARKS.md;
@@ -10,6 +12,7 @@ use std::path::{Path, PathBuf};
 use std::process::{Command, ExitCode};
 
 mod bench;
+mod site;
 
 /// The wasm-bindgen version pinned in crate/wasm/Cargo.toml.
 const WASM_BINDGEN: &str = "0.2.130";
@@ -17,6 +20,23 @@ const WASM_BINDGEN: &str = "0.2.130";
 fn root() -> PathBuf {
     let root = Path::new(env!("CARGO_MANIFEST_DIR")).join("../..");
     std::fs::canonicalize(&root).unwrap_or(root)
+}
+
+/// The wasm32 target and the wasm-bindgen tool of exactly the pinned version (about 4 min to build
+/// the tool on a fresh machine; nothing is done when they are there).
+fn ensure_wasm_tools() -> Result<(), String> {
+    run("rustup", &["target", "add", "wasm32-unknown-unknown"])?;
+    let have_bindgen = Command::new("wasm-bindgen")
+        .arg("--version")
+        .output()
+        .is_ok_and(|o| String::from_utf8_lossy(&o.stdout).contains(WASM_BINDGEN));
+    if !have_bindgen {
+        run(
+            "cargo",
+            &["install", "wasm-bindgen-cli", "--version", WASM_BINDGEN],
+        )?;
+    }
+    Ok(())
 }
 
 /// Runs a command from the repository root, echoing it; fails with its description.
@@ -34,6 +54,25 @@ fn run(program: &str, args: &[&str]) -> Result<(), String> {
     }
 }
 
+/// Like [`run`], from a folder of the repository and with extra environment variables.
+fn run_in(dir: &str, program: &str, args: &[&str], env: &[(&str, &str)]) -> Result<(), String> {
+    eprintln!("+ (cd {dir}) {program} {}", args.join(" "));
+    let status = Command::new(program)
+        .args(args)
+        .envs(env.iter().copied())
+        .current_dir(root().join(dir))
+        .status()
+        .map_err(|e| format!("cannot start `{program}`: {e}"))?;
+    if status.success() {
+        Ok(())
+    } else {
+        Err(format!(
+            "`{program} {}` in {dir} failed ({status})",
+            args.join(" ")
+        ))
+    }
+}
+
 fn cli_binary() -> PathBuf {
     root().join("target/release/throughline")
 }
@@ -45,7 +84,7 @@ fn build_cli() -> Result<(), String> {
     )
 }
 
-fn demo() -> Result<(), String> {
+fn demo(args: &[String]) -> Result<(), String> {
     build_cli()?;
     let out = root().join("out/demo");
     std::fs::create_dir_all(&out).map_err(|e| format!("cannot create out/demo: {e}"))?;
@@ -97,21 +136,41 @@ fn demo() -> Result<(), String> {
     println!(
         "\nOn your own files: {bin} run DETECTIONS --plan PLAN -o report.json --csv counts.csv"
     );
-    Ok(())
+    println!("\nNow the browser app, which does the same in the page:");
+    site::build()?;
+    if args.iter().any(|a| a == "--no-serve") {
+        return Ok(());
+    }
+    site::serve(8000)
 }
 
 fn test() -> Result<(), String> {
     // Installs: every step is idempotent, so a fresh machine and a warm one run the same script.
     run("rustup", &["component", "add", "rustfmt", "clippy"])?;
-    run("rustup", &["target", "add", "wasm32-unknown-unknown"])?;
-    // ffmpeg decodes the rendered and the committed footage in the tests (Debian's package).
-    let have_ffmpeg = Command::new("ffprobe")
-        .arg("-version")
-        .output()
-        .is_ok_and(|o| o.status.success());
-    if !have_ffmpeg {
+    // Debian's packages: ffmpeg decodes the rendered and the committed footage in the tests; Chromium
+    // and its driver run the browser tests (no tool may download a browser of its own).
+    let have = |program: &str, arg: &str| {
+        Command::new(program)
+            .arg(arg)
+            .output()
+            .is_ok_and(|o| o.status.success())
+    };
+    if !(have("ffprobe", "-version")
+        && have("chromium", "--version")
+        && have("chromedriver", "--version"))
+    {
         run("apt-get", &["update", "-qq"])?;
-        run("apt-get", &["install", "-y", "-qq", "ffmpeg"])?;
+        run(
+            "apt-get",
+            &[
+                "install",
+                "-y",
+                "-qq",
+                "ffmpeg",
+                "chromium",
+                "chromium-driver",
+            ],
+        )?;
     }
     run("cargo", &["fmt", "--all", "--check"])?;
     run(
@@ -140,16 +199,7 @@ fn test() -> Result<(), String> {
     )?;
     // The WebAssembly adapter must give the command line's report byte for byte: build both and
     // compare them in Node (wasm-bindgen's tool must match the pinned crate version exactly).
-    let have_bindgen = Command::new("wasm-bindgen")
-        .arg("--version")
-        .output()
-        .is_ok_and(|o| String::from_utf8_lossy(&o.stdout).contains(WASM_BINDGEN));
-    if !have_bindgen {
-        run(
-            "cargo",
-            &["install", "wasm-bindgen-cli", "--version", WASM_BINDGEN],
-        )?;
-    }
+    ensure_wasm_tools()?;
     run(
         "cargo",
         &[
@@ -173,7 +223,26 @@ fn test() -> Result<(), String> {
     )?;
     build_cli()?;
     run("node", &["--test", "tests/wasm/"])?;
-    eprintln!("all checks passed");
+    // The adapter in headless Chromium (wasm-bindgen-test-runner reads crate/wasm/webdriver.json).
+    run_in(
+        "crate/wasm",
+        "cargo",
+        &["test", "--target", "wasm32-unknown-unknown"],
+        &[(
+            "CARGO_TARGET_WASM32_UNKNOWN_UNKNOWN_RUNNER",
+            "wasm-bindgen-test-runner",
+        )],
+    )?;
+    // The page itself, end to end, in Debian's Chromium driven by playwright-core.
+    site::build()?;
+    run_in(
+        "tests/browser",
+        "npm",
+        &["ci", "--no-audit", "--no-fund"],
+        &[],
+    )?;
+    run_in("tests/browser", "node", &["--test"], &[])?;
+    eprintln!("all checks passed (browser screenshots in target/browser-artefacts/)");
     Ok(())
 }
 
@@ -238,11 +307,13 @@ fn demo_data() -> Result<(), String> {
 fn main() -> ExitCode {
     let args: Vec<String> = std::env::args().skip(1).collect();
     let result = match args.first().map(String::as_str) {
-        Some("demo") => demo(),
+        Some("demo") => demo(&args[1..]),
+        Some("site") => site::build(),
+        Some("serve") => site::build().and_then(|()| site::serve(8000)),
         Some("test") => test(),
         Some("bench") => bench::bench(&args[1..]),
         Some("demo-data") => demo_data(),
-        _ => Err("usage: cargo xtask <demo | test | bench [--quick] | demo-data>".into()),
+        _ => Err("usage: cargo xtask <demo [--no-serve] | site | serve | test | bench [--quick | --grid] | demo-data>".into()),
     };
     match result {
         Ok(()) => ExitCode::SUCCESS,

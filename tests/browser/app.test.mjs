@@ -1,0 +1,184 @@
+// The browser app driven as a person would: labelled file inputs, the drawing tool, Run, the exports.
+// The report it downloads must equal `throughline run` on the same files, number for number (the CLI
+// is this project's own reference for the page; the core under both is checked against SciPy,
+// filterpy, OpenCV and TrackEval in crate/core/tests). Screenshots go to target/browser-artefacts/.
+import { test, before, after } from "node:test";
+import assert from "node:assert/strict";
+import { readFileSync, writeFileSync, mkdtempSync } from "node:fs";
+import { execFileSync } from "node:child_process";
+import { join } from "node:path";
+import { tmpdir } from "node:os";
+import { serveSite, launch, watch, screenshot, demo, root, site } from "./harness.mjs";
+
+const cli = join(root, "target/release/throughline");
+const scratch = mkdtempSync(join(tmpdir(), "tl-browser-"));
+let server;
+let browser;
+
+before(async () => {
+  server = await serveSite();
+  browser = await launch();
+});
+after(async () => {
+  await browser.close();
+  await server.close();
+});
+
+async function openPage(url) {
+  const page = await browser.newPage();
+  const seen = watch(page, url.startsWith("file:") ? "file://" : server.origin);
+  await page.goto(url);
+  await page.waitForSelector("body[data-ready=true]", { timeout: 30000 });
+  return { page, seen };
+}
+
+/** Clicks the picture at a point given in video pixels. */
+async function clickPicture(page, x, y) {
+  const canvas = page.locator("#overlay");
+  const box = await canvas.boundingBox();
+  const size = await canvas.evaluate((c) => [c.width, c.height]);
+  await canvas.click({ position: { x: (x * box.width) / size[0], y: (y * box.height) / size[1] } });
+}
+
+async function saveDownload(page, buttonName) {
+  const [download] = await Promise.all([page.waitForEvent("download"), page.getByRole("button", { name: buttonName, exact: true }).click()]);
+  const path = join(scratch, download.suggestedFilename());
+  await download.saveAs(path);
+  return path;
+}
+
+async function runAndWait(page) {
+  await page.getByRole("button", { name: "Run", exact: true }).click();
+  await page.waitForFunction(() => /tracks in/.test(document.getElementById("run-status").textContent), null, { timeout: 60000 });
+}
+
+test("open files, draw a line, run, and export what throughline run gives", async () => {
+  const { page, seen } = await openPage(`${server.origin}/`);
+  await page.getByLabel("Open footage").setInputFiles(demo("footage.webm"));
+  await page.getByLabel("Open detections").setInputFiles(demo("detections.txt"));
+  await page.getByLabel("Open plan").setInputFiles(demo("plan.json"));
+  await page.waitForFunction(() => /boxes/.test(document.getElementById("detections-name").textContent));
+  await screenshot(page, "1-files-open");
+
+  await page.getByRole("button", { name: "Draw line" }).click();
+  await clickPicture(page, 40, 300);
+  await clickPicture(page, 600, 300);
+  const newName = page.getByLabel("Name of line 3");
+  assert.equal(await newName.inputValue(), "line 1");
+  await newName.fill("south walk");
+  await newName.press("Enter");
+  await page.getByLabel("Forward label of south walk").fill("to the kiosk side");
+  await page.getByLabel("Forward label of south walk").press("Tab");
+  await screenshot(page, "2-line-drawn");
+
+  await runAndWait(page);
+  await page.waitForSelector("#results:not([hidden])");
+  const summary = await page.locator("#summary").innerText();
+  assert.match(summary, /south walk/);
+  assert.match(summary, /plaza midline/);
+  await screenshot(page, "3-counted");
+
+  const planPath = await saveDownload(page, "Save plan");
+  const reportPath = await saveDownload(page, "Export report");
+  const csvPath = await saveDownload(page, "Export counts CSV");
+  const tracksPath = await saveDownload(page, "Export tracks");
+  const plan = JSON.parse(readFileSync(planPath, "utf8"));
+  assert.equal(plan.screenlines.length, 3);
+  assert.equal(plan.screenlines[2].forward, "to the kiosk side");
+
+  const cliReport = join(scratch, "cli-report.json");
+  const cliCsv = join(scratch, "cli-counts.csv");
+  const cliTracks = join(scratch, "cli-tracks.txt");
+  execFileSync(cli, ["run", demo("detections.txt"), "--plan", planPath, "-o", cliReport, "--csv", cliCsv, "--tracks", cliTracks, "-q"]);
+  assert.equal(readFileSync(reportPath, "utf8"), readFileSync(cliReport, "utf8"), "report equals throughline run");
+  assert.equal(readFileSync(csvPath, "utf8"), readFileSync(cliCsv, "utf8"), "counts CSV equals throughline run");
+  assert.equal(readFileSync(tracksPath, "utf8"), readFileSync(cliTracks, "utf8"), "tracks equal throughline run");
+
+  // The counts on screen are the report's.
+  const report = JSON.parse(readFileSync(reportPath, "utf8"));
+  const line = report.screenlines.find((l) => l.name === "south walk");
+  assert.match(summary, new RegExp(`to the kiosk side: ${line.forward}`));
+
+  // An event is a click away from its moment in the footage.
+  const first = report.events[0];
+  await page.locator("#events button").first().click();
+  await page.waitForFunction((f) => document.getElementById("clock").textContent.startsWith(`frame ${f} `), first.frame, { timeout: 10000 });
+  await screenshot(page, "4-event-shown");
+
+  // The plan is kept across a reload.
+  await page.reload();
+  await page.waitForSelector("body[data-ready=true]");
+  assert.equal(await page.getByLabel("Name of line 3").inputValue(), "south walk");
+
+  assert.deepEqual(seen.foreign, [], "no request leaves the page's origin");
+  assert.deepEqual(seen.errors, [], "no errors in the console");
+  assert.ok(server.requests.every((r) => !r.includes("..")));
+  await page.close();
+});
+
+test("files the page cannot use get messages that say what to do, and the plan survives them", async () => {
+  const { page } = await openPage(`${server.origin}/`);
+  const messages = page.locator("#messages");
+
+  const notVideo = join(scratch, "broken.mp4");
+  writeFileSync(notVideo, "this is not a video\n");
+  await page.getByLabel("Open footage").setInputFiles(notVideo);
+  await page.waitForFunction(() => /cannot play/.test(document.getElementById("messages").textContent));
+  assert.match(await messages.innerText(), /ffmpeg -i "broken\.mp4" -c:v libvpx-vp9/);
+
+  const badRows = join(scratch, "bad.txt");
+  writeFileSync(badRows, "1,-1,10,20,-3,40,0.9\n");
+  await page.getByLabel("Open detections").setInputFiles(badRows);
+  await page.waitForFunction(() => /could not be read/.test(document.getElementById("messages").textContent));
+  assert.match(await messages.innerText(), /line 1, column 5/);
+
+  const notJson = join(scratch, "plan-typo.json");
+  writeFileSync(notJson, '{"frame_rate": 25,, }');
+  await page.getByLabel("Open plan").setInputFiles(notJson);
+  await page.waitForFunction(() => /not valid JSON/.test(document.getElementById("messages").textContent));
+  assert.equal(await page.getByLabel("Name of line 1").inputValue(), "plaza midline", "the plan in use is kept");
+
+  const wrongField = join(scratch, "plan-field.json");
+  writeFileSync(wrongField, '{"frame_rate": 25, "screenlines": [{"name": "a", "points": [[0, 0]]}]}');
+  await page.getByLabel("Open plan").setInputFiles(wrongField);
+  await page.waitForFunction(() => /needs a fix/.test(document.getElementById("plan-error").textContent));
+  assert.match(await page.locator("#plan-error").innerText(), /screenlines/);
+  await page.getByRole("button", { name: "Undo" }).first().click();
+  assert.equal(await page.getByLabel("Name of line 1").inputValue(), "plaza midline", "undo brings the plan back");
+
+  // Detections from a video twice the size of this one.
+  const big = join(scratch, "big.txt");
+  const rows = readFileSync(demo("detections.txt"), "utf8").trim().split("\n").slice(0, 3000).map((r) => {
+    const f = r.split(",");
+    for (const i of [2, 3, 4, 5]) f[i] = String(Number(f[i]) * 2);
+    return f.join(",");
+  });
+  writeFileSync(big, rows.join("\n") + "\n");
+  await page.getByLabel("Open footage").setInputFiles(demo("footage.webm"));
+  await page.getByLabel("Open detections").setInputFiles(big);
+  await page.waitForFunction(() => /different size/.test(document.getElementById("messages").textContent));
+
+  // A plan with no lines or zones.
+  const empty = join(scratch, "empty-plan.json");
+  writeFileSync(empty, '{"frame_rate": 25}');
+  await page.getByLabel("Open plan").setInputFiles(empty);
+  await page.getByLabel("Open detections").setInputFiles(demo("detections.txt"));
+  await page.waitForFunction(() => /Ready/.test(document.getElementById("run-status").textContent));
+  await runAndWait(page);
+  assert.match(await messages.innerText(), /no lines or zones/);
+  await screenshot(page, "5-messages");
+  await page.close();
+});
+
+test("the single file works opened from disk, with nothing fetched", async () => {
+  const { page, seen } = await openPage(`file://${join(site, "throughline-offline.html")}`);
+  await page.waitForFunction(() => /boxes/.test(document.getElementById("detections-name").textContent));
+  await runAndWait(page);
+  await page.waitForSelector("#results:not([hidden])");
+  assert.match(await page.locator("#summary").innerText(), /plaza midline/);
+  await screenshot(page, "6-single-file");
+  const fetched = seen.requests.filter((u) => !u.startsWith("blob:") && !u.startsWith("data:"));
+  assert.deepEqual(fetched, [`file://${join(site, "throughline-offline.html")}`], "only the file itself is read");
+  assert.deepEqual(seen.errors, []);
+  await page.close();
+});

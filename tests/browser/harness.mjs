@@ -1,0 +1,76 @@
+// Shared set-up for the browser checks: a static server for demo-site/ on 127.0.0.1 that records
+// every request, and Debian's Chromium driven by playwright-core (no browser download).
+import { createServer } from "node:http";
+import { readFile, mkdtemp, mkdir } from "node:fs/promises";
+import { existsSync } from "node:fs";
+import { join, extname, normalize } from "node:path";
+import { tmpdir } from "node:os";
+import { chromium } from "playwright-core";
+
+export const root = new URL("../../", import.meta.url).pathname;
+export const site = join(root, "demo-site");
+export const demo = (name) => join(site, "demo", name);
+export const artefacts = join(root, "target/browser-artefacts");
+
+const TYPES = {
+  ".html": "text/html; charset=utf-8", ".js": "text/javascript", ".css": "text/css", ".json": "application/json",
+  ".wasm": "application/wasm", ".webm": "video/webm", ".csv": "text/csv", ".txt": "text/plain",
+};
+
+/** Serves demo-site/ on a free port of 127.0.0.1; `requests` lists every path asked for. */
+export async function serveSite() {
+  const requests = [];
+  const server = createServer(async (req, res) => {
+    requests.push(req.url);
+    const path = normalize(decodeURIComponent(req.url.split("?")[0])).replace(/^(\.\.[/\\])+/, "");
+    let file = join(site, path);
+    if (file.endsWith("/")) file = join(file, "index.html");
+    try {
+      const body = await readFile(file);
+      res.writeHead(200, { "Content-Type": TYPES[extname(file)] || "application/octet-stream" });
+      res.end(body);
+    } catch {
+      res.writeHead(404).end("not found");
+    }
+  });
+  await new Promise((resolve) => server.listen(0, "127.0.0.1", resolve));
+  const origin = `http://127.0.0.1:${server.address().port}`;
+  return { origin, requests, close: () => new Promise((r) => server.close(r)) };
+}
+
+/** Debian's Chromium, headless, in a fresh profile; downloads allowed. */
+export async function launch() {
+  const executablePath = ["/usr/bin/chromium", "/usr/bin/chromium-browser"].find(existsSync);
+  if (!executablePath) throw new Error("install Debian's chromium (apt-get install -y chromium): cargo xtask test does");
+  const profile = await mkdtemp(join(tmpdir(), "tl-chromium-"));
+  await mkdir(artefacts, { recursive: true });
+  return chromium.launchPersistentContext(profile, {
+    executablePath,
+    headless: true,
+    acceptDownloads: true,
+    viewport: { width: 1400, height: 1000 },
+    args: ["--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run", "--disable-background-networking",
+      "--disable-component-update", "--disable-sync", "--autoplay-policy=no-user-gesture-required"],
+  });
+}
+
+/**
+ * Every request the page makes, and every console error it prints. A request that leaves the
+ * page's own origin (other than blob: and data: URLs it made itself) is a failure of the privacy promise.
+ */
+export function watch(page, origin) {
+  const seen = { requests: [], foreign: [], errors: [] };
+  page.on("request", (r) => {
+    const url = r.url();
+    seen.requests.push(url);
+    const own = url.startsWith(`${origin}/`) || url.startsWith("blob:") || url.startsWith("data:") || (origin === "file://" && url.startsWith("file://"));
+    if (!own) seen.foreign.push(url);
+  });
+  page.on("console", (m) => { if (m.type() === "error") seen.errors.push(m.text()); });
+  page.on("pageerror", (e) => seen.errors.push(String(e)));
+  return seen;
+}
+
+export async function screenshot(page, name) {
+  await page.screenshot({ path: join(artefacts, `${name}.png`), fullPage: true });
+}

@@ -1,0 +1,65 @@
+// The page's side of the worker: each call returns a promise; tracking reports progress.
+
+export class Engine {
+  /** `worker` is a started Worker running worker.js; `wasmBytes` the core's WebAssembly. */
+  constructor(worker, wasmBytes) {
+    this.worker = worker;
+    this.nextId = 1;
+    this.pending = new Map();
+    worker.onmessage = (event) => this.receive(event.data);
+    worker.onerror = (event) => {
+      const message = event.message || "the engine stopped";
+      for (const p of this.pending.values()) p.reject(new Error(message));
+      this.pending.clear();
+    };
+    this.ready = this.call("init", [wasmBytes], [wasmBytes.buffer || wasmBytes]);
+  }
+
+  receive(data) {
+    const p = this.pending.get(data.id);
+    if (!p) return;
+    if (data.progress) {
+      if (p.onProgress) p.onProgress(data.progress[0], data.progress[1]);
+      return;
+    }
+    this.pending.delete(data.id);
+    if (data.ok) p.resolve(data.result);
+    else p.reject(new Error(data.error));
+  }
+
+  call(op, args, transfer = [], onProgress = null) {
+    const id = this.nextId++;
+    return new Promise((resolve, reject) => {
+      this.pending.set(id, { resolve, reject, onProgress });
+      this.worker.postMessage({ id, op, args }, transfer);
+    });
+  }
+
+  /** Reads a detections file; resolves to its summary (rows, frames, format, warnings, max_x, max_y). */
+  async loadDetections(bytes) {
+    await this.ready;
+    return this.call("loadDetections", [bytes], [bytes]);
+  }
+
+  /** Checks and sets the plan; resolves to {report, csv} when tracks exist, else null. */
+  async setPlan(json) {
+    await this.ready;
+    return this.call("setPlan", [json]);
+  }
+
+  /** Tracks the loaded detections; resolves to {tracks, boxes: Float32Array, trackList}. */
+  async track(method, settings, onProgress) {
+    await this.ready;
+    return this.call("track", [method, settings], [], onProgress);
+  }
+
+  async results() {
+    await this.ready;
+    return this.call("results", []);
+  }
+
+  async tracksText() {
+    await this.ready;
+    return this.call("tracksText", []);
+  }
+}

@@ -1,0 +1,63 @@
+// Small picture-space helpers shared by drawing and editing. Points are [x, y] in video pixels,
+// y pointing down, like the plan file.
+
+export function distance(a, b) {
+  return Math.hypot(a[0] - b[0], a[1] - b[1]);
+}
+
+/** Distance from p to the segment a-b. */
+export function distanceToSegment(p, a, b) {
+  const dx = b[0] - a[0];
+  const dy = b[1] - a[1];
+  const len2 = dx * dx + dy * dy;
+  const t = len2 === 0 ? 0 : Math.max(0, Math.min(1, ((p[0] - a[0]) * dx + (p[1] - a[1]) * dy) / len2));
+  return distance(p, [a[0] + t * dx, a[1] + t * dy]);
+}
+
+/**
+ * Where a polyline's arrow goes: a third of the way along its longest segment (not the middle, where
+ * two lines drawn across each other would put their labels on top of each other) and the unit normal pointing to
+ * the side a `forward` crossing moves into. Forward goes from the left of p0->p1 to its right as seen
+ * on screen with y down, i.e. towards (-dy, dx).
+ */
+export function forwardArrow(points) {
+  let best = null;
+  for (let i = 0; i + 1 < points.length; i++) {
+    const [a, b] = [points[i], points[i + 1]];
+    const len = distance(a, b);
+    if (!best || len > best.len) best = { a, b, len };
+  }
+  if (!best || best.len === 0) return null;
+  const dx = (best.b[0] - best.a[0]) / best.len;
+  const dy = (best.b[1] - best.a[1]) / best.len;
+  const t = 0.35;
+  return { mid: [best.a[0] + t * (best.b[0] - best.a[0]), best.a[1] + t * (best.b[1] - best.a[1])], normal: [-dy, dx] };
+}
+
+export function centroid(points) {
+  const n = points.length || 1;
+  return [points.reduce((s, p) => s + p[0], 0) / n, points.reduce((s, p) => s + p[1], 0) / n];
+}
+
+/** A colour per track id, spread round the hue circle by the golden angle. */
+export function trackColour(id, alpha = 1) {
+  return `hsla(${(id * 137.508) % 360}, 80%, 58%, ${alpha})`;
+}
+
+/** A fixed colour per plan item index (lines and zones), distinct from each other. */
+export const PLAN_COLOURS = ["#ffb000", "#3ad1c6", "#ff6f91", "#9b8cff", "#b6e35a", "#ff8a3d"];
+export function planColour(i) {
+  return PLAN_COLOURS[i % PLAN_COLOURS.length];
+}
+
+/** Index of the first element of a sorted array greater than x. */
+export function upperBound(sorted, x) {
+  let lo = 0;
+  let hi = sorted.length;
+  while (lo < hi) {
+    const mid = (lo + hi) >> 1;
+    if (sorted[mid] <= x) lo = mid + 1;
+    else hi = mid;
+  }
+  return lo;
+}
