@@ -17,7 +17,7 @@ const ops = {
     return true;
   },
   loadDetections(bytes) {
-    return JSON.parse(session.loadDetections(new Uint8Array(bytes)));
+    return session.loadDetections(new Uint8Array(bytes));
   },
   setPlan(json) {
     session.setPlan(json);
@@ -32,7 +32,7 @@ const ops = {
         self.postMessage({ id, progress: [done, total] });
       }
     });
-    return { tracks: n, boxes: session.allBoxes(), trackList: JSON.parse(session.trackList()) };
+    return { tracks: n, boxes: session.allBoxes(), trackList: session.trackList() };
   },
   results,
   tracksText() {

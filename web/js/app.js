@@ -244,7 +244,9 @@ function seekFrame(f) {
 }
 
 function onVideoFrame(now, meta) {
-  if (state.hasVideo) {
+  // While a seek is still under way, a frame presented now belongs to an earlier position: keep
+  // the frame the user asked for until the seek is done.
+  if (state.hasVideo && !video.seeking) {
     const f = Math.round(meta.mediaTime * fps()) + 1;
     state.frame = Math.max(1, f);
     measureFrameRate(meta);
@@ -306,6 +308,8 @@ $("speed").addEventListener("change", () => { if (state.hasVideo) video.playback
 
 document.addEventListener("keydown", (e) => {
   if (e.target.closest("input, select, textarea")) return;
+  // Enter and Space on a focused button press that button; they are not shortcuts there.
+  if ((e.key === "Enter" || e.key === " ") && e.target.closest("button")) return;
   if ((e.ctrlKey || e.metaKey) && e.key.toLowerCase() === "z") {
     e.preventDefault();
     store.undo();

@@ -4,6 +4,7 @@
 //! arrays. Every error becomes a JS `Error` whose message says what to fix.
 
 use js_sys::{Float32Array, Function};
+use serde::Serialize;
 use throughline_core::{count, detections, plan, track, tracks_io};
 use wasm_bindgen::prelude::*;
 
@@ -15,6 +16,39 @@ pub const FRAME_BOX_STRIDE: usize = 7;
 
 fn js_error(message: impl std::fmt::Display) -> JsError {
     JsError::new(&message.to_string())
+}
+
+/// What [`Session::load_detections`] found, as a plain JS object (snake_case fields).
+#[derive(Serialize)]
+struct DetectionSummary {
+    rows: usize,
+    /// The last frame number (1-based).
+    frames: u32,
+    format: String,
+    classes: Vec<String>,
+    embedding_dim: usize,
+    skipped_rows: usize,
+    /// "line N: message" for rows passed over, and other notes.
+    warnings: Vec<String>,
+    /// The largest right and bottom edge of any box, in pixels: to compare with the video's size.
+    max_x: f64,
+    max_y: f64,
+}
+
+/// One track without its boxes, for [`Session::track_list`].
+#[derive(Serialize)]
+struct TrackInfo<'a> {
+    id: u32,
+    class: Option<&'a str>,
+    first_frame: u32,
+    last_frame: u32,
+}
+
+/// Plain data to a JS value; structs become plain objects.
+fn to_js(value: &impl Serialize) -> Result<JsValue, JsError> {
+    value
+        .serialize(&serde_wasm_bindgen::Serializer::json_compatible())
+        .map_err(js_error)
 }
 
 /// The state of one page: detections, plan, tracks.
@@ -35,35 +69,43 @@ impl Session {
         Session::default()
     }
 
-    /// Reads a detections file (any of the three layouts). Returns a JSON summary:
-    /// `{"rows", "frames", "format", "classes", "embedding_dim", "skipped_rows", "warnings": [...]}`.
+    /// Reads a detections file (any of the three layouts). Returns a summary object:
+    /// `{rows, frames, format, classes, embedding_dim, skipped_rows, warnings, max_x, max_y}`.
     #[wasm_bindgen(js_name = loadDetections)]
-    pub fn load_detections(&mut self, bytes: &[u8]) -> Result<String, JsError> {
+    pub fn load_detections(&mut self, bytes: &[u8]) -> Result<JsValue, JsError> {
         let report = detections::read_detections(bytes).map_err(js_error)?;
         let d = &report.detections;
-        let warnings: Vec<String> = report
-            .warnings
-            .iter()
-            .map(|w| match w.line {
-                Some(l) => format!("line {l}: {}", w.message),
-                None => w.message.clone(),
-            })
-            .collect();
-        let summary = serde_json::json!({
-            "rows": d.rows.len(),
-            "frames": d.last_frame(),
-            "format": report.format.to_string(),
-            "classes": d.classes,
-            "embedding_dim": d.embedding_dim,
-            "skipped_rows": report.skipped_rows,
-            "warnings": warnings,
-            "max_x": d.rows.iter().map(|r| r.bbox.x + r.bbox.w).fold(0.0, f64::max),
-            "max_y": d.rows.iter().map(|r| r.bbox.y + r.bbox.h).fold(0.0, f64::max),
-        });
+        let summary = DetectionSummary {
+            rows: d.rows.len(),
+            frames: d.last_frame(),
+            format: report.format.to_string(),
+            classes: d.classes.clone(),
+            embedding_dim: d.embedding_dim,
+            skipped_rows: report.skipped_rows,
+            warnings: report
+                .warnings
+                .iter()
+                .map(|w| match w.line {
+                    Some(l) => format!("line {l}: {}", w.message),
+                    None => w.message.clone(),
+                })
+                .collect(),
+            max_x: d
+                .rows
+                .iter()
+                .map(|r| r.bbox.x + r.bbox.w)
+                .fold(0.0, f64::max),
+            max_y: d
+                .rows
+                .iter()
+                .map(|r| r.bbox.y + r.bbox.h)
+                .fold(0.0, f64::max),
+        };
+        let value = to_js(&summary)?;
         self.detections = Some(report);
         self.tracks = None;
         self.report = None;
-        Ok(summary.to_string())
+        Ok(value)
     }
 
     /// Sets the counting plan from its JSON text; errors name the field to fix.
@@ -177,23 +219,21 @@ impl Session {
         Float32Array::from(rows.concat().as_slice())
     }
 
-    /// The last tracks without their boxes, as JSON: `[{"id", "class", "first_frame", "last_frame"}]`.
+    /// The last tracks without their boxes: `[{id, class, first_frame, last_frame}]`.
     #[wasm_bindgen(js_name = trackList)]
-    pub fn track_list(&self) -> String {
-        let list: Vec<serde_json::Value> = self
+    pub fn track_list(&self) -> Result<JsValue, JsError> {
+        let list: Vec<TrackInfo> = self
             .tracks
             .iter()
             .flat_map(|t| &t.tracks)
-            .map(|t| {
-                serde_json::json!({
-                    "id": t.id,
-                    "class": t.class,
-                    "first_frame": t.first_frame(),
-                    "last_frame": t.last_frame(),
-                })
+            .map(|t| TrackInfo {
+                id: t.id,
+                class: t.class.as_deref(),
+                first_frame: t.first_frame(),
+                last_frame: t.last_frame(),
             })
             .collect();
-        serde_json::Value::Array(list).to_string()
+        to_js(&list)
     }
 
     /// Counts again when the tracks or the plan changed and both are there.

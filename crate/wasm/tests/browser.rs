@@ -63,8 +63,22 @@ fn all_boxes_agree_with_boxes_at_each_frame() {
             .collect();
         assert_eq!(at, from_all, "frame {frame}");
     }
-    let list: serde_json::Value = serde_json::from_str(&s.track_list()).unwrap();
-    assert!(!list.as_array().unwrap().is_empty());
+    let list = js_sys::Array::from(&s.track_list().unwrap());
+    assert!(list.length() > 0);
+    let ids: Vec<f64> = list
+        .iter()
+        .map(|t| {
+            js_sys::Reflect::get(&t, &"id".into())
+                .unwrap()
+                .as_f64()
+                .unwrap()
+        })
+        .collect();
+    assert!(
+        all.chunks(FRAME_BOX_STRIDE)
+            .all(|b| ids.contains(&f64::from(b[1]))),
+        "every box belongs to a listed track"
+    );
 }
 
 #[wasm_bindgen_test]
