@@ -35,6 +35,19 @@ const ops = {
     return { tracks: n, boxes: session.allBoxes(), trackList: session.trackList() };
   },
   results,
+  startDetection(width, height, settings) {
+    session.startDetection(width, height, settings);
+    return true;
+  },
+  detectRgba(pixels, width, height) {
+    return session.detectRgba(new Uint8Array(pixels), width, height);
+  },
+  finishDetection() {
+    return session.finishDetection();
+  },
+  detectionsText() {
+    return session.detectionsText();
+  },
   tracksText() {
     return session.tracksText();
   },

@@ -182,3 +182,28 @@ test("the single file works opened from disk, with nothing fetched", async () =>
   assert.deepEqual(seen.errors, []);
   await page.close();
 });
+
+test("footage alone: find moving objects in the page, then track and count them", async () => {
+  const { page, seen } = await openPage(`${server.origin}/`);
+  await page.waitForFunction(() => !document.getElementById("find-objects").disabled);
+  await page.getByLabel("Height near top (px)").fill("34");
+  await page.getByLabel("Height near bottom (px)").fill("91");
+  await page.getByRole("button", { name: "Find moving objects" }).click();
+  await page.waitForFunction(() => /frames a second/.test(document.getElementById("find-status").textContent));
+  await screenshot(page, "8-finding-objects");
+  await page.waitForFunction(() => /^Found \d+ moving objects over 750 frames/.test(document.getElementById("find-status").textContent), null, { timeout: 120000 });
+  const found = Number((await page.locator("#find-status").innerText()).match(/Found (\d+)/)[1]);
+  // The demo has about 12 people in view over 700 frames after the warm-up.
+  assert.ok(found > 3000, `${found} boxes`);
+  await runAndWait(page);
+  await page.waitForSelector("#results:not([hidden])");
+  assert.match(await page.locator("#summary").innerText(), /plaza midline/);
+  const path = await saveDownload(page, "Export detections");
+  const rows = readFileSync(path, "utf8").trim().split("\n");
+  assert.equal(rows.length, found);
+  assert.ok(Number(rows[0].split(",")[0]) > 50, "nothing during the warm-up");
+  await screenshot(page, "9-counted-from-footage");
+  assert.deepEqual(seen.foreign, []);
+  assert.deepEqual(seen.errors, []);
+  await page.close();
+});

@@ -58,6 +58,26 @@ export class Engine {
     return this.call("results", []);
   }
 
+  /** Starts the motion detector for footage of this size; `settings` is detector settings JSON. */
+  async startDetection(width, height, settings) {
+    await this.ready;
+    return this.call("startDetection", [width, height, settings]);
+  }
+
+  /** One frame's RGBA pixels (the buffer is handed over); resolves to the number of objects found. */
+  detectRgba(pixels, width, height) {
+    return this.call("detectRgba", [pixels, width, height], [pixels]);
+  }
+
+  /** The found boxes become the detections; resolves to their summary, as loadDetections. */
+  finishDetection() {
+    return this.call("finishDetection", []);
+  }
+
+  detectionsText() {
+    return this.call("detectionsText", []);
+  }
+
   async tracksText() {
     await this.ready;
     return this.call("tracksText", []);

@@ -7,7 +7,7 @@ use clap::{Parser, Subcommand};
 use indicatif::{ProgressBar, ProgressStyle};
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
-use throughline_core::{count, detections, plan, score, sim, track, tracks_io};
+use throughline_core::{count, detections, motion, plan, score, sim, track, tracks_io, y4m};
 
 #[derive(Parser)]
 #[command(
@@ -58,8 +58,16 @@ enum Command {
         entries, exits and dwell, movements, speeds, and every event behind the counts. \
         Counts are estimates: check a sample against a manual count before relying on them.")]
     Run {
-        /// Detections file (as for `track`).
-        detections: PathBuf,
+        /// Detections file (as for `track`); or give --y4m to find them in footage.
+        #[arg(required_unless_present = "y4m", conflicts_with = "y4m")]
+        detections: Option<PathBuf>,
+        /// Footage as YUV4MPEG2 (a file, or - for standard input) instead of a detections file:
+        /// moving objects are found by the built-in detector (fixed camera).
+        #[arg(long, value_name = "FILE")]
+        y4m: Option<PathBuf>,
+        /// Detector settings (JSON; see docs/detector-settings.md), with --y4m.
+        #[arg(long, value_name = "FILE", requires = "y4m")]
+        detector_config: Option<PathBuf>,
         /// Counting plan (JSON).
         #[arg(long, value_name = "PLAN")]
         plan: PathBuf,
@@ -76,6 +84,28 @@ enum Command {
         #[arg(long, value_parser = ["iou", "sort", "bytetrack", "deepsort"])]
         method: Option<String>,
         /// Settings file (JSON object of tracker settings; see docs/tracker-settings.md).
+        #[arg(long, value_name = "FILE")]
+        config: Option<PathBuf>,
+        /// Print no summary and no progress.
+        #[arg(short, long)]
+        quiet: bool,
+    },
+    /// Find moving objects in footage from a fixed camera, without any model.
+    #[command(
+        long_about = "Find moving objects in footage from a fixed camera, without any model.\n\n\
+        Reads YUV4MPEG2 (4:2:0 or mono, 8 bits), as `ffmpeg -i INPUT -pix_fmt yuv420p -f yuv4mpegpipe -` \
+        writes it, from a file or from standard input (-), and writes detections in the benchmark text \
+        format (frame,-1,x,y,w,h,score,-1,-1,-1) for `track` and `run`. The background forms over the \
+        first second (warm_up_frames); nothing is reported meanwhile. Settings: docs/detector-settings.md."
+    )]
+    Detect {
+        /// Footage as YUV4MPEG2, or - for standard input.
+        #[arg(long, value_name = "FILE")]
+        y4m: PathBuf,
+        /// Where to write the detections; without it they go to standard output.
+        #[arg(short, long, value_name = "OUT")]
+        output: Option<PathBuf>,
+        /// Detector settings (JSON object; see docs/detector-settings.md).
         #[arg(long, value_name = "FILE")]
         config: Option<PathBuf>,
         /// Print no summary and no progress.
@@ -241,6 +271,8 @@ fn main() -> ExitCode {
         }
         Command::Run {
             detections,
+            y4m,
+            detector_config,
             plan,
             output,
             csv,
@@ -249,7 +281,12 @@ fn main() -> ExitCode {
             config,
             quiet,
         } => run_run(
-            &detections,
+            match (&detections, &y4m) {
+                (_, Some(footage)) => Source::Footage(footage, detector_config.as_deref()),
+                (Some(d), None) => Source::Detections(d),
+                // clap requires one of the two.
+                (None, None) => Source::Detections(Path::new("-")),
+            },
             &plan,
             Outputs {
                 report: output.as_deref(),
@@ -260,6 +297,12 @@ fn main() -> ExitCode {
             config.as_deref(),
             quiet,
         ),
+        Command::Detect {
+            y4m,
+            output,
+            config,
+            quiet,
+        } => run_detect(&y4m, output.as_deref(), config.as_deref(), quiet),
         Command::Count {
             tracks,
             plan,
@@ -378,6 +421,17 @@ fn tracks_text(tracks: &track::Tracks, path: Option<&Path>) -> String {
     }
 }
 
+/// A settings file's path and text, when one was given.
+fn read_settings(path: Option<&Path>) -> Result<Option<(&Path, String)>, Failure> {
+    match path {
+        Some(p) => {
+            let bytes = read_file(p)?;
+            Ok(Some((p, String::from_utf8_lossy(&bytes).into_owned())))
+        }
+        None => Ok(None),
+    }
+}
+
 /// Reads a detections file and tracks it, reporting warnings and progress on stderr.
 fn track_file(
     path: &Path,
@@ -387,27 +441,11 @@ fn track_file(
     timer: &mut Timer,
 ) -> Result<track::Tracks, Failure> {
     let flag_method = method.and_then(track::Method::parse);
-    let settings = match config_path {
-        Some(p) => {
-            let bytes = read_file(p)?;
-            Some((p, String::from_utf8_lossy(&bytes).into_owned()))
-        }
-        None => None,
-    };
+    let settings = read_settings(config_path)?;
     let bytes = read_file(path)?;
     let report = detections::read_detections(&bytes).map_err(|e| bad_input(path, e))?;
     drop(bytes);
     timer.lap("read");
-    let has_embeddings = report.detections.embedding_dim > 0;
-    let config = track::resolve_config(
-        flag_method,
-        settings.as_ref().map(|s| s.1.as_str()),
-        has_embeddings,
-    )
-    .map_err(|e| match &settings {
-        Some((p, _)) => bad_input(p, e),
-        None => bad_input(path, e),
-    })?;
     if !quiet {
         for w in &report.warnings {
             match w.line {
@@ -423,7 +461,46 @@ fn track_file(
             );
         }
     }
-    let dets = &report.detections;
+    let tracks = track_detections(
+        &report.detections,
+        path,
+        flag_method,
+        settings,
+        quiet,
+        timer,
+    )?;
+    if !quiet {
+        let dets = &report.detections;
+        eprintln!(
+            "{}: {} detections ({}) over {} frames",
+            path.display(),
+            dets.rows.len(),
+            report.format,
+            dets.last_frame(),
+        );
+    }
+    Ok(tracks)
+}
+
+/// Tracks detections (read from `path` or found in it), with a progress bar on stderr.
+fn track_detections(
+    dets: &detections::Detections,
+    path: &Path,
+    flag_method: Option<track::Method>,
+    settings: Option<(&Path, String)>,
+    quiet: bool,
+    timer: &mut Timer,
+) -> Result<track::Tracks, Failure> {
+    let has_embeddings = dets.embedding_dim > 0;
+    let config = track::resolve_config(
+        flag_method,
+        settings.as_ref().map(|s| s.1.as_str()),
+        has_embeddings,
+    )
+    .map_err(|e| match &settings {
+        Some((p, _)) => bad_input(p, e),
+        None => bad_input(path, e),
+    })?;
     let bar = if quiet {
         ProgressBar::hidden()
     } else {
@@ -442,15 +519,6 @@ fn track_file(
     .map_err(|e| bad_input(path, e))?;
     bar.finish_and_clear();
     timer.lap("track");
-    if !quiet {
-        eprintln!(
-            "{}: {} detections ({}) over {} frames",
-            path.display(),
-            dets.rows.len(),
-            report.format,
-            dets.last_frame(),
-        );
-    }
     Ok(tracks)
 }
 
@@ -461,6 +529,120 @@ struct Outputs<'a> {
     tracks: Option<&'a Path>,
 }
 
+fn run_detect(
+    footage: &Path,
+    output: Option<&Path>,
+    config: Option<&Path>,
+    quiet: bool,
+) -> Result<(), Failure> {
+    let dets = detect_footage(footage, config, quiet)?;
+    let text = detections::to_benchmark_text(&dets);
+    match output {
+        Some(p) => write_file(p, &text)?,
+        None => print!("{text}"),
+    }
+    if !quiet {
+        eprintln!(
+            "{}: {} detections over {} frames{}",
+            footage.display(),
+            dets.rows.len(),
+            dets.last_frame(),
+            output.map_or(String::new(), |p| format!(", written to {}", p.display()))
+        );
+    }
+    Ok(())
+}
+
+/// Reads YUV4MPEG2 frames from a file or standard input (`-`) and runs the motion detector on each.
+fn detect_footage(
+    footage: &Path,
+    config: Option<&Path>,
+    quiet: bool,
+) -> Result<detections::Detections, Failure> {
+    use std::io::{BufRead, BufReader, Read};
+    let config = match read_settings(config)? {
+        Some((p, text)) => motion::MotionConfig::from_json(&text).map_err(|e| bad_input(p, e))?,
+        None => motion::MotionConfig::default(),
+    };
+    let input: Box<dyn Read> = if footage == Path::new("-") {
+        Box::new(std::io::stdin().lock())
+    } else {
+        Box::new(
+            std::fs::File::open(footage)
+                .map_err(|e| bad_input(footage, format!("cannot read the file: {e}")))?,
+        )
+    };
+    let mut input = BufReader::with_capacity(1 << 20, input);
+    let mut line = Vec::new();
+    input
+        .by_ref()
+        .take(4096)
+        .read_until(b'\n', &mut line)
+        .map_err(|e| bad_input(footage, e))?;
+    let text = String::from_utf8_lossy(&line);
+    let header = y4m::parse_header(text.trim_end()).map_err(|e| bad_input(footage, e))?;
+    let mut detector = motion::MotionDetector::new(config, header.width, header.height);
+    let mut frame = vec![0u8; header.frame_bytes()];
+    let luma = header.width * header.height;
+    let (cw, ch) = motion::Picture::chroma_size(header.width, header.height);
+    let bar = if quiet {
+        ProgressBar::hidden()
+    } else {
+        let bar = ProgressBar::new_spinner();
+        bar.set_style(
+            ProgressStyle::with_template("detecting {spinner} frame {pos} ({per_sec})")
+                .unwrap_or_else(|_| ProgressStyle::default_spinner()),
+        );
+        bar
+    };
+    let mut per_frame = Vec::new();
+    loop {
+        line.clear();
+        let n = input
+            .by_ref()
+            .take(4096)
+            .read_until(b'\n', &mut line)
+            .map_err(|e| bad_input(footage, e))?;
+        if n == 0 {
+            break;
+        }
+        let k = per_frame.len() + 1;
+        if !line.starts_with(b"FRAME") {
+            return Err(bad_input(
+                footage,
+                format!(
+                    "frame {k} does not start with FRAME: the stream is damaged or not YUV4MPEG2"
+                ),
+            ));
+        }
+        input.read_exact(&mut frame).map_err(|_| {
+            bad_input(
+                footage,
+                format!("the stream ends inside frame {k}: it was cut short (re-run ffmpeg)"),
+            )
+        })?;
+        let pic = motion::Picture {
+            width: header.width,
+            height: header.height,
+            y: &frame[..luma],
+            uv: match header.layout {
+                y4m::Layout::Yuv420 => Some((
+                    &frame[luma..luma + cw * ch],
+                    &frame[luma + cw * ch..luma + 2 * cw * ch],
+                )),
+                y4m::Layout::Mono => None,
+            },
+        };
+        per_frame.push(detector.detect(&pic).map_err(|e| bad_input(footage, e))?);
+        bar.inc(1);
+    }
+    bar.finish_and_clear();
+    if per_frame.is_empty() {
+        return Err(bad_input(footage, "the stream holds no frames"));
+    }
+    Ok(motion::detections_from(per_frame))
+}
+
 fn read_plan(path: &Path) -> Result<plan::Plan, Failure> {
     let bytes = read_file(path)?;
     let text =
@@ -468,8 +650,14 @@ fn read_plan(path: &Path) -> Result<plan::Plan, Failure> {
     plan::Plan::from_json(text).map_err(|e| bad_input(path, e))
 }
 
+/// What `run` starts from: a detections file, or footage for the built-in detector.
+enum Source<'a> {
+    Detections(&'a Path),
+    Footage(&'a Path, Option<&'a Path>),
+}
+
 fn run_run(
-    detections: &Path,
+    source: Source,
     plan_path: &Path,
     out: Outputs,
     method: Option<&str>,
@@ -479,7 +667,15 @@ fn run_run(
     // The plan is checked first: a mistake in it should not cost a whole tracking run.
     let plan = read_plan(plan_path)?;
     let mut timer = Timer::new();
-    let tracks = track_file(detections, method, config, quiet, &mut timer)?;
+    let tracks = match source {
+        Source::Detections(path) => track_file(path, method, config, quiet, &mut timer)?,
+        Source::Footage(footage, detector_config) => {
+            let settings = read_settings(config)?;
+            let dets = detect_footage(footage, detector_config, quiet)?;
+            let flag_method = method.and_then(track::Method::parse);
+            track_detections(&dets, footage, flag_method, settings, quiet, &mut timer)?
+        }
+    };
     if let Some(p) = out.tracks {
         write_file(p, &tracks_text(&tracks, Some(p)))?;
     }

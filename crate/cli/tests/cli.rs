@@ -47,6 +47,8 @@ fn every_command_has_help() {
         vec!["track", "--help"],
         vec!["simulate", "--help"],
         vec!["score", "--help"],
+        vec!["detect", "--help"],
+        vec!["run", "--help"],
     ] {
         let o = throughline(&args);
         assert!(o.status.success(), "{args:?}");
@@ -480,4 +482,99 @@ fn scoring_an_empty_tracks_file_counts_every_box_as_missed() {
     assert_eq!(s["hota"], 0.0);
     assert_eq!(s["false_positives"], 0);
     assert!(s["misses"].as_u64().unwrap() > 1000);
+}
+
+#[test]
+fn detect_finds_moving_objects_in_footage_from_a_file_and_from_standard_input() {
+    // The demo footage decoded by Debian's ffmpeg into YUV4MPEG2, as a user would pipe it.
+    let dir = scratch("detect");
+    let y4m = dir.join("demo.y4m");
+    let status = Command::new("ffmpeg")
+        .args([
+            "-loglevel",
+            "error",
+            "-y",
+            "-i",
+            &demo("footage.webm"),
+            "-frames:v",
+            "120",
+        ])
+        .args(["-pix_fmt", "yuv420p", "-f", "yuv4mpegpipe"])
+        .arg(&y4m)
+        .status()
+        .expect("ffmpeg runs (cargo xtask test installs it)");
+    assert!(status.success());
+    let out = dir.join("found.txt");
+    let o = throughline(&[
+        "detect",
+        "--y4m",
+        y4m.to_str().unwrap(),
+        "-o",
+        out.to_str().unwrap(),
+    ]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let text = std::fs::read_to_string(&out).unwrap();
+    let rows: Vec<&str> = text.lines().collect();
+    assert!(rows.len() > 200, "{} boxes", rows.len());
+    let first_frame: u32 = rows[0].split(',').next().unwrap().parse().unwrap();
+    assert!(first_frame > 50, "nothing during the 50-frame warm-up");
+    assert!(
+        stderr(&o).contains("detections over 120 frames"),
+        "{}",
+        stderr(&o)
+    );
+
+    // The same from standard input.
+    let piped = Command::new(env!("CARGO_BIN_EXE_throughline"))
+        .args(["detect", "--y4m", "-", "-q"])
+        .stdin(std::fs::File::open(&y4m).unwrap())
+        .output()
+        .unwrap();
+    assert!(piped.status.success());
+    assert_eq!(stdout(&piped), text);
+
+    // Straight to counts.
+    let report = dir.join("report.json");
+    let plan = demo("plan.json");
+    let o = throughline(&[
+        "run",
+        "--y4m",
+        y4m.to_str().unwrap(),
+        "--plan",
+        &plan,
+        "-o",
+        report.to_str().unwrap(),
+        "-q",
+    ]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    assert!(std::fs::read_to_string(&report)
+        .unwrap()
+        .contains("\"screenlines\""));
+
+    // A cut-short stream and a file that is not YUV4MPEG2.
+    let bytes = std::fs::read(&y4m).unwrap();
+    let cut = write(&dir, "cut.y4m", &bytes[..bytes.len() - 1000]);
+    let o = throughline(&["detect", "--y4m", &cut, "-q"]);
+    assert_eq!(o.status.code(), Some(1));
+    assert!(
+        stderr(&o).contains("ends inside frame 120"),
+        "{}",
+        stderr(&o)
+    );
+    let webm = throughline(&["detect", "--y4m", &demo("footage.webm")]);
+    assert_eq!(webm.status.code(), Some(1));
+    assert!(stderr(&webm).contains("yuv4mpegpipe"), "{}", stderr(&webm));
+    let settings = write(&dir, "bad.json", br#"{"near_heigth": 90}"#);
+    let o = throughline(&["detect", "--y4m", &cut, "--config", &settings]);
+    assert!(stderr(&o).contains("near_heigth"), "{}", stderr(&o));
+    // Both a detections file and footage: usage error.
+    let both = throughline(&[
+        "run",
+        &demo("detections.txt"),
+        "--y4m",
+        &cut,
+        "--plan",
+        &plan,
+    ]);
+    assert_eq!(both.status.code(), Some(2));
 }

@@ -1,4 +1,4 @@
-//! Throughline's core: detections in, tracks out (and, in later modules, counts out).
+//! Throughline's core: pictures or detections in, tracks and counts out.
 //!
 //! Everything here is pure computation on bytes, strings and numbers. The core knows nothing of the
 //! browser, the file system, clocks or the terminal, so the command line and the WebAssembly build
@@ -16,6 +16,7 @@ pub mod count;
 pub mod detections;
 pub mod geometry;
 pub mod kalman;
+pub mod motion;
 pub mod plan;
 pub mod render;
 pub mod rng;
@@ -24,6 +25,7 @@ pub mod sim;
 pub mod track;
 pub mod tracks_io;
 pub mod tune;
+pub mod y4m;
 
 pub use detections::{read_detections, DetectionFormat, Detections, ReadError, ReadReport};
 pub use geometry::BBox;

@@ -5,7 +5,7 @@
 
 use js_sys::{Float32Array, Function};
 use serde::Serialize;
-use throughline_core::{count, detections, plan, track, tracks_io};
+use throughline_core::{count, detections, motion, plan, track, tracks_io};
 use wasm_bindgen::prelude::*;
 
 /// Values per box in [`Session::boxes_at`]: id, x, y, w, h (pixels, top-left + size), observed (1/0).
@@ -17,6 +17,9 @@ pub const FRAME_BOX_STRIDE: usize = 7;
 fn js_error(message: impl std::fmt::Display) -> JsError {
     JsError::new(&message.to_string())
 }
+
+/// Boxes (with scores) the motion detector found, one list per frame.
+type FoundBoxes = Vec<Vec<(throughline_core::geometry::BBox, f64)>>;
 
 /// What [`Session::load_detections`] found, as a plain JS object (snake_case fields).
 #[derive(Serialize)]
@@ -60,6 +63,8 @@ pub struct Session {
     tracks: Option<track::Tracks>,
     /// The report of the last tracks and plan, made once when both are there.
     report: Option<count::Report>,
+    /// The motion detector while footage is being searched, and the boxes found so far.
+    detector: Option<(motion::MotionDetector, FoundBoxes)>,
 }
 
 #[wasm_bindgen]
@@ -106,6 +111,78 @@ impl Session {
         self.tracks = None;
         self.report = None;
         Ok(value)
+    }
+
+    /// Starts finding moving objects in footage of `width` x `height` pixels (fixed camera);
+    /// `settings` is a detector settings file's text (may be empty). Frames then go in one by one,
+    /// in order, with [`Session::detect_rgba`]; [`Session::finish_detection`] makes them the
+    /// session's detections.
+    #[wasm_bindgen(js_name = startDetection)]
+    pub fn start_detection(
+        &mut self,
+        width: u32,
+        height: u32,
+        settings: &str,
+    ) -> Result<(), JsError> {
+        let config = if settings.trim().is_empty() {
+            motion::MotionConfig::default()
+        } else {
+            motion::MotionConfig::from_json(settings).map_err(js_error)?
+        };
+        if width == 0 || height == 0 || width > 8192 || height > 8192 {
+            return Err(js_error(format!(
+                "footage of {width}x{height} pixels cannot be searched"
+            )));
+        }
+        let detector = motion::MotionDetector::new(config, width as usize, height as usize);
+        self.detector = Some((detector, Vec::new()));
+        Ok(())
+    }
+
+    /// The next frame as RGBA pixels (a canvas's `getImageData().data`). Returns the number of
+    /// objects found in it.
+    #[wasm_bindgen(js_name = detectRgba)]
+    pub fn detect_rgba(&mut self, rgba: &[u8], width: u32, height: u32) -> Result<u32, JsError> {
+        let (detector, found) = self
+            .detector
+            .as_mut()
+            .ok_or_else(|| js_error("start detection first"))?;
+        let (w, h) = (width as usize, height as usize);
+        let yuv = motion::rgba_to_yuv420(rgba, w, h)
+            .ok_or_else(|| js_error("the frame holds fewer pixels than its size says"))?;
+        let (cw, ch) = motion::Picture::chroma_size(w, h);
+        let picture = motion::Picture {
+            width: w,
+            height: h,
+            y: &yuv[..w * h],
+            uv: Some((&yuv[w * h..w * h + cw * ch], &yuv[w * h + cw * ch..])),
+        };
+        let boxes = detector.detect(&picture).map_err(js_error)?;
+        let n = boxes.len() as u32;
+        found.push(boxes);
+        Ok(n)
+    }
+
+    /// Ends detection: the boxes found become the session's detections (frames from 1 in the
+    /// order given). Returns the same summary as [`Session::load_detections`].
+    #[wasm_bindgen(js_name = finishDetection)]
+    pub fn finish_detection(&mut self) -> Result<JsValue, JsError> {
+        let (_, found) = self
+            .detector
+            .take()
+            .ok_or_else(|| js_error("start detection first"))?;
+        let text = detections::to_benchmark_text(&motion::detections_from(found));
+        self.load_detections(text.as_bytes())
+    }
+
+    /// The loaded or found detections in the benchmark text format.
+    #[wasm_bindgen(js_name = detectionsText)]
+    pub fn detections_text(&self) -> Result<String, JsError> {
+        let report = self
+            .detections
+            .as_ref()
+            .ok_or_else(|| js_error("open or find detections first"))?;
+        Ok(detections::to_benchmark_text(&report.detections))
     }
 
     /// Sets the counting plan from its JSON text; errors name the field to fix.

@@ -1,0 +1,275 @@
+//! The moving-object detector: hand-made pictures whose right answer is known exactly, and the
+//! simulator's rendered frames against its ground truth.
+
+use throughline_core::geometry::{iou, BBox};
+use throughline_core::motion::{MotionConfig, MotionDetector, Picture};
+use throughline_core::{render, sim, y4m};
+
+const W: usize = 160;
+const H: usize = 120;
+
+/// A grey picture (with a fixed fine texture, as paving has) and grey chroma.
+fn background() -> (Vec<u8>, Vec<u8>, Vec<u8>) {
+    let y = (0..W * H)
+        .map(|i| 120 + ((i * 7 + i / W * 3) % 5) as u8)
+        .collect();
+    let (cw, ch) = Picture::chroma_size(W, H);
+    (y, vec![128; cw * ch], vec![128; cw * ch])
+}
+
+/// Paints a rectangle (pixels, top-left + size) with a luma value and a chroma pair.
+fn paint(
+    pic: &mut (Vec<u8>, Vec<u8>, Vec<u8>),
+    r: (usize, usize, usize, usize),
+    luma: u8,
+    uv: (u8, u8),
+) {
+    let (x0, y0, w, h) = r;
+    let (cw, _) = Picture::chroma_size(W, H);
+    for y in y0..y0 + h {
+        for x in x0..x0 + w {
+            pic.0[y * W + x] = luma;
+            pic.1[(y / 2) * cw + x / 2] = uv.0;
+            pic.2[(y / 2) * cw + x / 2] = uv.1;
+        }
+    }
+}
+
+/// Runs the detector over `frames` pictures made by `draw(frame_index, picture)` and returns the
+/// boxes of the last one.
+fn last_boxes(
+    config: MotionConfig,
+    frames: usize,
+    draw: impl Fn(usize, &mut (Vec<u8>, Vec<u8>, Vec<u8>)),
+) -> Vec<(BBox, f64)> {
+    let mut det = MotionDetector::new(config, W, H);
+    let mut last = Vec::new();
+    for k in 0..frames {
+        let mut pic = background();
+        draw(k, &mut pic);
+        last = det
+            .detect(&Picture {
+                width: W,
+                height: H,
+                y: &pic.0,
+                uv: Some((&pic.1, &pic.2)),
+            })
+            .expect("same size");
+    }
+    last
+}
+
+fn quick() -> MotionConfig {
+    MotionConfig {
+        warm_up_frames: 10,
+        min_area: 20,
+        ..MotionConfig::default()
+    }
+}
+
+#[test]
+fn a_moving_block_is_found_where_it_is() {
+    // A 12x30 bright block that comes in after the warm-up and moves 2 px a frame: its box is the
+    // block itself (the clean-up opens and closes with 3x3 and 5x5 squares, which leave a
+    // rectangle unchanged).
+    let boxes = last_boxes(quick(), 30, |k, pic| {
+        if k >= 10 {
+            paint(pic, (20 + 2 * k, 40, 12, 30), 220, (100, 160));
+        }
+    });
+    assert_eq!(boxes.len(), 1, "{boxes:?}");
+    let b = boxes[0].0;
+    assert_eq!((b.x, b.y, b.w, b.h), (78.0, 40.0, 12.0, 30.0));
+    assert!(boxes[0].1 > 0.95, "a solid block fills its box");
+}
+
+#[test]
+fn nothing_is_reported_while_the_background_forms() {
+    let boxes = last_boxes(quick(), 10, |k, pic| {
+        paint(pic, (20 + 2 * k, 40, 12, 30), 220, (128, 128))
+    });
+    assert!(boxes.is_empty());
+}
+
+#[test]
+fn an_object_present_during_the_warm_up_is_not_learnt_into_the_background() {
+    // The block moves through the warm-up; the median of the sampled pictures is the empty scene,
+    // so at frame 30 there is one box, not a ghost where the block started.
+    let boxes = last_boxes(quick(), 30, |k, pic| {
+        paint(pic, (10 + 3 * k, 50, 10, 25), 30, (128, 128))
+    });
+    assert_eq!(boxes.len(), 1, "{boxes:?}");
+    assert_eq!(boxes[0].0.x, 97.0);
+}
+
+#[test]
+fn a_shadow_is_not_an_object_but_a_dark_coloured_thing_is() {
+    // Shadow: 70% of the background's brightness, same chroma. A dark red block: the same
+    // brightness, chroma far from grey.
+    let after_warm_up = |luma: u8, uv: (u8, u8)| {
+        move |k: usize, pic: &mut (Vec<u8>, Vec<u8>, Vec<u8>)| {
+            if k >= 10 {
+                paint(pic, (20 + 2 * k, 40, 20, 10), luma, uv);
+            }
+        }
+    };
+    let shadow = last_boxes(quick(), 30, after_warm_up(85, (128, 128)));
+    assert!(shadow.is_empty(), "{shadow:?}");
+    let red = last_boxes(quick(), 30, after_warm_up(85, (100, 190)));
+    assert_eq!(red.len(), 1, "{red:?}");
+}
+
+#[test]
+fn two_objects_side_by_side_are_split_where_the_shape_says_so() {
+    // Two 12x40 blocks 6 px apart, joined at their shoulders only (a bridge 4 px high): one blob, two objects
+    // when the expected height says one object is about 40 px tall and 14 px wide.
+    let config = MotionConfig {
+        far_height: Some(40.0),
+        near_height: Some(40.0),
+        ..quick()
+    };
+    let draw = |k: usize, pic: &mut (Vec<u8>, Vec<u8>, Vec<u8>)| {
+        paint(pic, (30 + k, 40, 12, 40), 220, (128, 128));
+        paint(pic, (48 + k, 40, 12, 40), 220, (128, 128));
+        paint(pic, (42 + k, 44, 6, 4), 220, (128, 128));
+    };
+    let boxes = last_boxes(config.clone(), 30, draw);
+    assert_eq!(boxes.len(), 2, "{boxes:?}");
+    let no_rule = last_boxes(quick(), 30, draw);
+    assert_eq!(
+        no_rule.len(),
+        1,
+        "without an expected size the pair stays one blob"
+    );
+}
+
+#[test]
+fn a_picture_of_another_size_is_refused() {
+    let mut det = MotionDetector::new(MotionConfig::default(), W, H);
+    let y = vec![0u8; 10];
+    let e = det
+        .detect(&Picture {
+            width: 5,
+            height: 2,
+            y: &y,
+            uv: None,
+        })
+        .unwrap_err();
+    assert!(e.contains("160x120"), "{e}");
+}
+
+#[test]
+fn settings_files_name_what_is_wrong() {
+    assert!(MotionConfig::from_json(r#"{"far_height": 30, "near_height": 90}"#).is_ok());
+    let e = MotionConfig::from_json(r#"{"far_hieght": 30}"#).unwrap_err();
+    assert!(e.contains("far_hieght"), "{e}");
+    let e = MotionConfig::from_json(r#"{"shadow_low": 0.95}"#).unwrap_err();
+    assert!(e.contains("shadow_low"), "{e}");
+}
+
+#[test]
+fn y4m_headers_as_ffmpeg_writes_them() {
+    let h = y4m::parse_header("YUV4MPEG2 W768 H576 F10:1 Ip A1:1 C420jpeg XYSCSS=420JPEG").unwrap();
+    assert_eq!(
+        (h.width, h.height, h.frame_rate, h.layout),
+        (768, 576, Some(10.0), y4m::Layout::Yuv420)
+    );
+    assert_eq!(h.frame_bytes(), 768 * 576 * 3 / 2);
+    let h = y4m::parse_header("YUV4MPEG2 W641 H361 F30000:1001 Cmono").unwrap();
+    assert_eq!(h.layout, y4m::Layout::Mono);
+    assert_eq!(h.frame_bytes(), 641 * 361);
+    assert!((h.frame_rate.unwrap() - 29.97).abs() < 0.01);
+    // Without a C tag the stream is 4:2:0 (the format's default); odd sizes round chroma up.
+    assert_eq!(
+        y4m::parse_header("YUV4MPEG2 W3 H3").unwrap().frame_bytes(),
+        9 + 2 * 4
+    );
+    assert!(y4m::parse_header("YUV4MPEG2 W640 H360 C444")
+        .unwrap_err()
+        .contains("yuv420p"));
+    assert!(y4m::parse_header("YUV4MPEG2 W640 H360 C420p10")
+        .unwrap_err()
+        .contains("8 bits"));
+    assert!(y4m::parse_header("YUV4MPEG2 H360")
+        .unwrap_err()
+        .contains("size"));
+    assert!(y4m::parse_header("RIFF....AVI")
+        .unwrap_err()
+        .contains("ffmpeg"));
+}
+
+/// Recall and precision at IoU 0.5 (greedy matching by IoU, highest first) per frame.
+fn recall_precision(truth: &[Vec<BBox>], found: &[Vec<BBox>]) -> (f64, f64) {
+    let (mut tp, mut n_truth, mut n_found) = (0usize, 0usize, 0usize);
+    for (t, f) in truth.iter().zip(found) {
+        n_truth += t.len();
+        n_found += f.len();
+        let mut pairs: Vec<(f64, usize, usize)> = t
+            .iter()
+            .enumerate()
+            .flat_map(|(i, a)| f.iter().enumerate().map(move |(j, b)| (iou(a, b), i, j)))
+            .filter(|p| p.0 >= 0.5)
+            .collect();
+        pairs.sort_by(|a, b| b.0.total_cmp(&a.0));
+        let (mut used_t, mut used_f) = (vec![false; t.len()], vec![false; f.len()]);
+        for (_, i, j) in pairs {
+            if !used_t[i] && !used_f[j] {
+                used_t[i] = true;
+                used_f[j] = true;
+                tp += 1;
+            }
+        }
+    }
+    (
+        tp as f64 / n_truth.max(1) as f64,
+        tp as f64 / n_found.max(1) as f64,
+    )
+}
+
+#[test]
+fn finds_most_people_in_the_simulated_plaza() {
+    // Own measurement, not an outside reference: on 400 frames of seed 7 at 12 in view the
+    // detector had recall 0.71 and precision 0.66 at IoU 0.5 against the simulator's visible-part
+    // truth (BENCHMARKS.md). The floors below hold that with margin for this shorter scene.
+    let cfg = sim::SceneConfig {
+        seed: 7,
+        frames: 160,
+        density: 12.0,
+        ..sim::SceneConfig::default()
+    };
+    let mut renderer = render::Renderer::new(&cfg);
+    let (w, h) = (renderer.width(), renderer.height());
+    let config = MotionConfig {
+        far_height: Some(34.0),
+        near_height: Some(91.0),
+        ..MotionConfig::default()
+    };
+    let warm_up = config.warm_up_frames as usize;
+    let mut det = MotionDetector::new(config, w, h);
+    let mut found = Vec::new();
+    let scene = sim::generate_with(&cfg, &mut |_, agents| {
+        let frame = renderer.frame(0, agents);
+        let (cw, ch) = Picture::chroma_size(w, h);
+        let luma = w * h;
+        let pic = Picture {
+            width: w,
+            height: h,
+            y: &frame[..luma],
+            uv: Some((&frame[luma..luma + cw * ch], &frame[luma + cw * ch..])),
+        };
+        found.push(
+            det.detect(&pic)
+                .unwrap()
+                .into_iter()
+                .map(|(b, _)| b)
+                .collect::<Vec<_>>(),
+        );
+    });
+    let mut truth = vec![Vec::new(); found.len()];
+    for t in &scene.truth {
+        truth[t.frame as usize - 1].push(t.bbox);
+    }
+    let (recall, precision) = recall_precision(&truth[warm_up..], &found[warm_up..]);
+    assert!(recall >= 0.6, "recall {recall:.3}");
+    assert!(precision >= 0.55, "precision {precision:.3}");
+}
