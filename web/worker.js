@@ -34,7 +34,6 @@ const ops = {
     });
     return { tracks: n, boxes: session.allBoxes(), trackList: session.trackList() };
   },
-  results,
   startDetection(width, height, settings) {
     session.startDetection(width, height, settings);
     return true;

@@ -1,25 +1,16 @@
 // Editing the plan on the picture as a person would: drag a line's end, flip a direction, draw a zone
 // (closing it on its first corner, and with Enter), undo, step frames with the keyboard. The saved plan
 // must hold exactly those edits and be accepted by `throughline run`.
-import { test, before, after } from "node:test";
+import { test } from "node:test";
 import assert from "node:assert/strict";
 import { readFileSync, mkdtempSync } from "node:fs";
 import { execFileSync } from "node:child_process";
 import { join } from "node:path";
 import { tmpdir } from "node:os";
-import { serveSite, launch, watch, screenshot, demo, root } from "./harness.mjs";
+import { useBrowser, watch, screenshot, demo, root } from "./harness.mjs";
 
 const cli = join(root, "target/release/throughline");
-let server;
-let browser;
-before(async () => {
-  server = await serveSite();
-  browser = await launch();
-});
-after(async () => {
-  await browser.close();
-  await server.close();
-});
+const env = useBrowser();
 
 /** Screen position of a point in video pixels. */
 async function onScreen(page, x, y) {
@@ -35,9 +26,9 @@ async function click(page, x, y) {
 }
 
 test("drag, flip, draw a zone, undo, step frames; the saved plan holds the edits", async () => {
-  const page = await browser.newPage();
-  const seen = watch(page, server.origin);
-  await page.goto(`${server.origin}/`);
+  const page = await env.browser.newPage();
+  const seen = watch(page, env.server.origin);
+  await page.goto(`${env.server.origin}/`);
   await page.waitForSelector("body[data-ready=true]");
   await page.waitForFunction(() => document.getElementById("overlay").width === 640);
 

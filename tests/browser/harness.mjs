@@ -6,6 +6,7 @@ import { existsSync } from "node:fs";
 import { join, extname, normalize } from "node:path";
 import { tmpdir } from "node:os";
 import { chromium } from "playwright-core";
+import { before, after } from "node:test";
 
 export const root = new URL("../../", import.meta.url).pathname;
 export const site = join(root, "demo-site");
@@ -73,4 +74,21 @@ export function watch(page, origin) {
 
 export async function screenshot(page, name) {
   await page.screenshot({ path: join(artefacts, `${name}.png`), fullPage: true });
+}
+
+/**
+ * For a test file: a server and a browser started before its tests and stopped after them.
+ * Returns an object whose `server` and `browser` are set once they are up.
+ */
+export function useBrowser() {
+  const env = { server: null, browser: null };
+  before(async () => {
+    env.server = await serveSite();
+    env.browser = await launch();
+  });
+  after(async () => {
+    await env.browser.close();
+    await env.server.close();
+  });
+  return env;
 }

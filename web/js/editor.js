@@ -153,12 +153,6 @@ export class Editor {
     }
     this.setTool("select");
   }
-
-  cancel() {
-    this.draft = null;
-    this.drag = null;
-    this.hooks.redraw();
-  }
 }
 
 function insidePolygon(p, poly) {

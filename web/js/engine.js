@@ -53,11 +53,6 @@ export class Engine {
     return this.call("track", [method, settings], [], onProgress);
   }
 
-  async results() {
-    await this.ready;
-    return this.call("results", []);
-  }
-
   /** Starts the motion detector for footage of this size; `settings` is detector settings JSON. */
   async startDetection(width, height, settings) {
     await this.ready;

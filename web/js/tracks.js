@@ -9,7 +9,6 @@ export class TrackView {
   constructor(boxes, trackList) {
     this.boxes = boxes;
     this.classes = new Map(trackList.map((t) => [t.id, t.class]));
-    this.count = trackList.length;
     // frameStart[f] = index of the first box of frame f (in boxes, not values); frameStart[f+1] ends it.
     const lastFrame = boxes.length ? boxes[boxes.length - STRIDE] : 0;
     this.lastFrame = lastFrame;

@@ -39,6 +39,23 @@ fn ensure_wasm_tools() -> Result<(), String> {
     Ok(())
 }
 
+/// The WebAssembly adapter, release build for wasm32, with the tools it needs installed.
+fn build_wasm() -> Result<(), String> {
+    ensure_wasm_tools()?;
+    run(
+        "cargo",
+        &[
+            "build",
+            "-p",
+            "throughline-wasm",
+            "--target",
+            "wasm32-unknown-unknown",
+            "--release",
+            "--quiet",
+        ],
+    )
+}
+
 /// Runs a command from the repository root, echoing it; fails with its description.
 fn run(program: &str, args: &[&str]) -> Result<(), String> {
     eprintln!("+ {program} {}", args.join(" "));
@@ -199,18 +216,7 @@ fn test() -> Result<(), String> {
     )?;
     // The WebAssembly adapter must give the command line's report byte for byte: build both and
     // compare them in Node (wasm-bindgen's tool must match the pinned crate version exactly).
-    ensure_wasm_tools()?;
-    run(
-        "cargo",
-        &[
-            "build",
-            "-p",
-            "throughline-wasm",
-            "--target",
-            "wasm32-unknown-unknown",
-            "--release",
-        ],
-    )?;
+    build_wasm()?;
     run(
         "wasm-bindgen",
         &[

@@ -16,7 +16,7 @@ use std::io::{BufRead, BufReader, Write};
 use std::net::{TcpListener, TcpStream};
 use std::path::{Path, PathBuf};
 
-use crate::{ensure_wasm_tools, root, run};
+use crate::{build_wasm, root, run};
 
 /// The served site's policy: its own files only; wasm may be compiled; footage plays from blob URLs.
 const SITE_CSP: &str =
@@ -29,19 +29,7 @@ pub const OFFLINE_FILE: &str = "throughline-offline.html";
 
 /// Builds both forms of the app into demo-site/.
 pub fn build() -> Result<(), String> {
-    ensure_wasm_tools()?;
-    run(
-        "cargo",
-        &[
-            "build",
-            "-p",
-            "throughline-wasm",
-            "--target",
-            "wasm32-unknown-unknown",
-            "--release",
-            "--quiet",
-        ],
-    )?;
+    build_wasm()?;
     run(
         "wasm-bindgen",
         &[
