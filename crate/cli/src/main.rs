@@ -544,13 +544,22 @@ fn run_detect(
     if !quiet {
         eprintln!(
             "{}: {} detections over {} frames{}",
-            footage.display(),
+            name(footage),
             dets.rows.len(),
             dets.last_frame(),
             output.map_or(String::new(), |p| format!(", written to {}", p.display()))
         );
     }
     Ok(())
+}
+
+/// How to name an input in messages: `-` is standard input.
+fn name(path: &Path) -> String {
+    if path == Path::new("-") {
+        "standard input".into()
+    } else {
+        path.display().to_string()
+    }
 }
 
 /// Reads YUV4MPEG2 frames from a file or standard input (`-`) and runs the motion detector on each.
@@ -615,12 +624,16 @@ fn detect_footage(
                 ),
             ));
         }
-        input.read_exact(&mut frame).map_err(|_| {
-            bad_input(
-                footage,
-                format!("the stream ends inside frame {k}: it was cut short (re-run ffmpeg)"),
-            )
-        })?;
+        if input.read_exact(&mut frame).is_err() {
+            // A stream cut short (ffmpeg stopped, a copy interrupted): keep what was found in the
+            // whole frames rather than lose it.
+            eprintln!(
+                "warning: {}: the stream ends inside frame {k}; frames 1 to {} are used",
+                name(footage),
+                k - 1
+            );
+            break;
+        }
         let pic = motion::Picture {
             width: header.width,
             height: header.height,
