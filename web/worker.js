@@ -4,7 +4,8 @@
 // of this file; the site loads it from pkg/.
 //
 // Messages in: {id, op, args}. Messages out: {id, ok, result} or {id, ok: false, error}, and
-// {id, progress: [done, total]} while tracking.
+// {id, progress: [done, total]} from operations that report progress (tracking). Every operation
+// is called with its arguments and then a `progress(done, total)` function for its own message.
 /* global wasm_bindgen, importScripts */
 if (typeof wasm_bindgen === "undefined") importScripts("pkg/throughline_wasm.js");
 
@@ -23,13 +24,13 @@ const ops = {
     session.setPlan(json);
     return results();
   },
-  track(id, method, settings) {
+  track(method, settings, progress) {
     let last = 0;
     const n = session.track(method, settings, (done, total) => {
       const now = Date.now();
       if (now - last > 50 || done === total) {
         last = now;
-        self.postMessage({ id, progress: [done, total] });
+        progress(done, total);
       }
     });
     return { tracks: n, boxes: session.allBoxes(), trackList: session.trackList() };
@@ -66,8 +67,8 @@ self.onmessage = async (event) => {
   try {
     if (!ops[op]) throw new Error(`unknown operation ${op}`);
     if (op !== "init" && !session) throw new Error("the engine is still starting");
-    const callArgs = op === "track" ? [id, ...args] : args;
-    const result = await ops[op](...callArgs);
+    const progress = (done, total) => self.postMessage({ id, progress: [done, total] });
+    const result = await ops[op](...args, progress);
     const transfer = result && result.boxes ? [result.boxes.buffer] : [];
     self.postMessage({ id, ok: true, result }, transfer);
   } catch (e) {

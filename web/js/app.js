@@ -236,10 +236,15 @@ function updateFrameRange() {
   $("scrub").max = String(state.lastFrame);
 }
 
-/** Shows frame f (1-based): frame f is on screen from (f - 1) / fps to f / fps seconds. */
+/** The middle of frame f (1-based), which is on screen from (f - 1) / fps to f / fps seconds. */
+function frameTime(f) {
+  return (f - 0.5) / fps();
+}
+
+/** Shows frame f. */
 function seekFrame(f) {
   state.frame = Math.max(1, Math.min(state.lastFrame, Math.round(f)));
-  if (state.hasVideo) video.currentTime = (state.frame - 0.5) / fps();
+  if (state.hasVideo) video.currentTime = frameTime(state.frame);
   redraw();
 }
 
@@ -471,7 +476,7 @@ function presentFrame(f) {
     const finish = () => { if (!done) { done = true; resolve(); } };
     if ("requestVideoFrameCallback" in video) video.requestVideoFrameCallback(finish);
     video.addEventListener("seeked", () => setTimeout(finish, "requestVideoFrameCallback" in video ? 300 : 0), { once: true });
-    video.currentTime = (f - 0.5) / fps();
+    video.currentTime = frameTime(f);
   });
 }
 

@@ -562,13 +562,21 @@ fn name(path: &Path) -> String {
     }
 }
 
+/// Reads one YUV4MPEG2 header or FRAME line into `line`: at most 4 KiB, so a stream without
+/// newlines is never read whole. Returns the bytes read (0 at the end).
+fn short_line(input: &mut impl std::io::BufRead, line: &mut Vec<u8>) -> std::io::Result<usize> {
+    use std::io::{BufRead, Read};
+    line.clear();
+    input.by_ref().take(4096).read_until(b'\n', line)
+}
+
 /// Reads YUV4MPEG2 frames from a file or standard input (`-`) and runs the motion detector on each.
 fn detect_footage(
     footage: &Path,
     config: Option<&Path>,
     quiet: bool,
 ) -> Result<detections::Detections, Failure> {
-    use std::io::{BufRead, BufReader, Read};
+    use std::io::{BufReader, Read};
     let config = match read_settings(config)? {
         Some((p, text)) => motion::MotionConfig::from_json(&text).map_err(|e| bad_input(p, e))?,
         None => motion::MotionConfig::default(),
@@ -583,17 +591,11 @@ fn detect_footage(
     };
     let mut input = BufReader::with_capacity(1 << 20, input);
     let mut line = Vec::new();
-    input
-        .by_ref()
-        .take(4096)
-        .read_until(b'\n', &mut line)
-        .map_err(|e| bad_input(footage, e))?;
+    short_line(&mut input, &mut line).map_err(|e| bad_input(footage, e))?;
     let text = String::from_utf8_lossy(&line);
     let header = y4m::parse_header(text.trim_end()).map_err(|e| bad_input(footage, e))?;
     let mut detector = motion::MotionDetector::new(config, header.width, header.height);
     let mut frame = vec![0u8; header.frame_bytes()];
-    let luma = header.width * header.height;
-    let (cw, ch) = motion::Picture::chroma_size(header.width, header.height);
     let bar = if quiet {
         ProgressBar::hidden()
     } else {
@@ -606,13 +608,7 @@ fn detect_footage(
     };
     let mut per_frame = Vec::new();
     loop {
-        line.clear();
-        let n = input
-            .by_ref()
-            .take(4096)
-            .read_until(b'\n', &mut line)
-            .map_err(|e| bad_input(footage, e))?;
-        if n == 0 {
+        if short_line(&mut input, &mut line).map_err(|e| bad_input(footage, e))? == 0 {
             break;
         }
         let k = per_frame.len() + 1;
@@ -634,17 +630,13 @@ fn detect_footage(
             );
             break;
         }
-        let pic = motion::Picture {
-            width: header.width,
-            height: header.height,
-            y: &frame[..luma],
-            uv: match header.layout {
-                y4m::Layout::Yuv420 => Some((
-                    &frame[luma..luma + cw * ch],
-                    &frame[luma + cw * ch..luma + 2 * cw * ch],
-                )),
-                y4m::Layout::Mono => None,
-            },
+        let colour = header.layout == y4m::Layout::Yuv420;
+        // `frame` holds exactly `header.frame_bytes()`, which is what `planar` needs.
+        let Some(pic) = motion::Picture::planar(header.width, header.height, &frame, colour) else {
+            return Err(bad_input(
+                footage,
+                "a frame is shorter than its header says",
+            ));
         };
         per_frame.push(detector.detect(&pic).map_err(|e| bad_input(footage, e))?);
         bar.inc(1);

@@ -98,9 +98,33 @@ pub struct Picture<'a> {
     pub uv: Option<(&'a [u8], &'a [u8])>,
 }
 
-impl Picture<'_> {
+impl<'a> Picture<'a> {
+    /// Size of each chroma plane of a 4:2:0 picture (half, rounded up).
     pub fn chroma_size(width: usize, height: usize) -> (usize, usize) {
         (width.div_ceil(2), height.div_ceil(2))
+    }
+
+    /// A picture over planar bytes: luma then, when `colour`, the two 4:2:0 chroma planes (as a
+    /// YUV4MPEG2 frame holds them). `None` when `bytes` is too short.
+    pub fn planar(width: usize, height: usize, bytes: &'a [u8], colour: bool) -> Option<Self> {
+        let luma = width * height;
+        let (cw, ch) = Self::chroma_size(width, height);
+        let chroma = cw * ch;
+        let need = if colour { luma + 2 * chroma } else { luma };
+        if bytes.len() < need {
+            return None;
+        }
+        Some(Picture {
+            width,
+            height,
+            y: &bytes[..luma],
+            uv: colour.then(|| {
+                (
+                    &bytes[luma..luma + chroma],
+                    &bytes[luma + chroma..luma + 2 * chroma],
+                )
+            }),
+        })
     }
 }
 
@@ -394,7 +418,10 @@ impl MotionDetector {
                         continue;
                     }
                 }
+                // Kept to the three decimals the detections files hold, so boxes found here and
+                // boxes read back from `detect`'s output track the same.
                 let fill = f64::from(part.area) / (part.w() * part.h()) as f64;
+                let score = (fill.clamp(0.05, 1.0) * 1000.0).round() / 1000.0;
                 out.push((
                     BBox {
                         x: part.x0 as f64,
@@ -402,7 +429,7 @@ impl MotionDetector {
                         w: part.w() as f64,
                         h,
                     },
-                    fill.clamp(0.05, 1.0),
+                    score,
                 ));
             }
         }

@@ -247,16 +247,10 @@ fn finds_most_people_in_the_simulated_plaza() {
     let warm_up = config.warm_up_frames as usize;
     let mut det = MotionDetector::new(config, w, h);
     let mut found = Vec::new();
-    let scene = sim::generate_with(&cfg, &mut |_, agents| {
-        let frame = renderer.frame(0, agents);
-        let (cw, ch) = Picture::chroma_size(w, h);
-        let luma = w * h;
-        let pic = Picture {
-            width: w,
-            height: h,
-            y: &frame[..luma],
-            uv: Some((&frame[luma..luma + cw * ch], &frame[luma + cw * ch..])),
-        };
+    let scene = sim::generate_with(&cfg, &mut |k, agents| {
+        // The frame number drives the light's drift, as in `throughline simulate --render`.
+        let frame = renderer.frame(k, agents);
+        let pic = Picture::planar(w, h, &frame, true).expect("a whole 4:2:0 frame");
         found.push(
             det.detect(&pic)
                 .unwrap()

@@ -79,38 +79,8 @@ impl Session {
     #[wasm_bindgen(js_name = loadDetections)]
     pub fn load_detections(&mut self, bytes: &[u8]) -> Result<JsValue, JsError> {
         let report = detections::read_detections(bytes).map_err(js_error)?;
-        let d = &report.detections;
-        let summary = DetectionSummary {
-            rows: d.rows.len(),
-            frames: d.last_frame(),
-            format: report.format.to_string(),
-            classes: d.classes.clone(),
-            embedding_dim: d.embedding_dim,
-            skipped_rows: report.skipped_rows,
-            warnings: report
-                .warnings
-                .iter()
-                .map(|w| match w.line {
-                    Some(l) => format!("line {l}: {}", w.message),
-                    None => w.message.clone(),
-                })
-                .collect(),
-            max_x: d
-                .rows
-                .iter()
-                .map(|r| r.bbox.x + r.bbox.w)
-                .fold(0.0, f64::max),
-            max_y: d
-                .rows
-                .iter()
-                .map(|r| r.bbox.y + r.bbox.h)
-                .fold(0.0, f64::max),
-        };
-        let value = to_js(&summary)?;
-        self.detections = Some(report);
-        self.tracks = None;
-        self.report = None;
-        Ok(value)
+        let format = report.format.to_string();
+        self.take_detections(report, format)
     }
 
     /// Starts finding moving objects in footage of `width` x `height` pixels (fixed camera);
@@ -148,15 +118,9 @@ impl Session {
             .as_mut()
             .ok_or_else(|| js_error("start detection first"))?;
         let (w, h) = (width as usize, height as usize);
-        let yuv = motion::rgba_to_yuv420(rgba, w, h)
-            .ok_or_else(|| js_error("the frame holds fewer pixels than its size says"))?;
-        let (cw, ch) = motion::Picture::chroma_size(w, h);
-        let picture = motion::Picture {
-            width: w,
-            height: h,
-            y: &yuv[..w * h],
-            uv: Some((&yuv[w * h..w * h + cw * ch], &yuv[w * h + cw * ch..])),
-        };
+        let short = || js_error("the frame holds fewer pixels than its size says");
+        let yuv = motion::rgba_to_yuv420(rgba, w, h).ok_or_else(short)?;
+        let picture = motion::Picture::planar(w, h, &yuv, true).ok_or_else(short)?;
         let boxes = detector.detect(&picture).map_err(js_error)?;
         let n = boxes.len() as u32;
         found.push(boxes);
@@ -171,8 +135,54 @@ impl Session {
             .detector
             .take()
             .ok_or_else(|| js_error("start detection first"))?;
-        let text = detections::to_benchmark_text(&motion::detections_from(found));
-        self.load_detections(text.as_bytes())
+        let report = detections::ReadReport {
+            detections: motion::detections_from(found),
+            format: detections::DetectionFormat::BenchmarkText,
+            warnings: Vec::new(),
+            skipped_rows: 0,
+        };
+        self.take_detections(report, "found by the motion detector".into())
+    }
+
+    /// Makes `report` the session's detections (forgetting tracks made from earlier ones) and
+    /// returns its summary.
+    fn take_detections(
+        &mut self,
+        report: detections::ReadReport,
+        format: String,
+    ) -> Result<JsValue, JsError> {
+        let d = &report.detections;
+        let summary = DetectionSummary {
+            rows: d.rows.len(),
+            frames: d.last_frame(),
+            format,
+            classes: d.classes.clone(),
+            embedding_dim: d.embedding_dim,
+            skipped_rows: report.skipped_rows,
+            warnings: report
+                .warnings
+                .iter()
+                .map(|w| match w.line {
+                    Some(l) => format!("line {l}: {}", w.message),
+                    None => w.message.clone(),
+                })
+                .collect(),
+            max_x: d
+                .rows
+                .iter()
+                .map(|r| r.bbox.x + r.bbox.w)
+                .fold(0.0, f64::max),
+            max_y: d
+                .rows
+                .iter()
+                .map(|r| r.bbox.y + r.bbox.h)
+                .fold(0.0, f64::max),
+        };
+        let value = to_js(&summary)?;
+        self.detections = Some(report);
+        self.tracks = None;
+        self.report = None;
+        Ok(value)
     }
 
     /// The loaded or found detections in the benchmark text format.
@@ -242,11 +252,7 @@ impl Session {
     /// The last tracks in the benchmark text format.
     #[wasm_bindgen(js_name = tracksText)]
     pub fn tracks_text(&self) -> Result<String, JsError> {
-        let tracks = self
-            .tracks
-            .as_ref()
-            .ok_or_else(|| js_error("run tracking first"))?;
-        Ok(tracks_io::to_benchmark_text(tracks))
+        Ok(tracks_io::to_benchmark_text(self.tracks()?))
     }
 
     /// Boxes of the last tracks in one frame (1-based), [`BOX_STRIDE`] values each.
@@ -321,10 +327,14 @@ impl Session {
         };
     }
 
+    fn tracks(&self) -> Result<&track::Tracks, JsError> {
+        self.tracks
+            .as_ref()
+            .ok_or_else(|| js_error("run tracking first"))
+    }
+
     fn ready(&self) -> Result<&count::Report, JsError> {
-        if self.tracks.is_none() {
-            return Err(js_error("run tracking first"));
-        }
+        self.tracks()?;
         self.report
             .as_ref()
             .ok_or_else(|| js_error("open or draw a plan first"))
