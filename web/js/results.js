@@ -12,7 +12,7 @@ export function showResults(root, report, onEvent) {
   const t = report.tracker;
   const trackerText = t ? ` Tracked with ${t.method}.` : "";
   root.querySelector("#summary").replaceChildren(
-    el("p", { class: "hint", text: `${report.tracks_counted} tracks over ${report.frame_count} frames (${clockText(report.duration_seconds)}).${trackerText}` }),
+    el("p", { class: "hint", text: `${report.tracks_counted} tracks counted (fragments of one path joined) over ${report.frame_count} frames (${clockText(report.duration_seconds)}).${trackerText}` }),
     totals(report),
   );
   root.querySelector("#chart").replaceChildren(chart(report));
