@@ -4,12 +4,13 @@
 // of this file; the site loads it from pkg/.
 //
 // Messages in: {id, op, args}. Messages out: {id, ok, result} or {id, ok: false, error}, and
-// {id, progress: [done, total]} from operations that report progress (tracking). Every operation
+// {id, progress: [done, total]} from operations that report progress (tracking, finding objects). Every operation
 // is called with its arguments and then a `progress(done, total)` function for its own message.
 /* global wasm_bindgen, importScripts */
 if (typeof wasm_bindgen === "undefined") importScripts("pkg/throughline_wasm.js");
 
 let session = null;
+let findCancelled = false;
 
 const ops = {
   async init(wasmBytes) {
@@ -45,6 +46,11 @@ const ops = {
   finishDetection() {
     return session.finishDetection();
   },
+  findInFootage,
+  cancelFind() {
+    findCancelled = true;
+    return true;
+  },
   detectionsText() {
     return session.detectionsText();
   },
@@ -52,6 +58,116 @@ const ops = {
     return session.tracksText();
   },
 };
+
+/**
+ * Finds moving objects in footage (a File or Blob) by decoding it here with WebCodecs: the core's
+ * FootageReader reads the WebM or MP4 a range of bytes at a time, the browser's VideoDecoder
+ * decodes, and each frame's own YUV bytes go to the motion detector (no drawing, no colour
+ * conversion). Resolves to {summary, codec, container, frames}, or to {fallback: reason} when this
+ * footage or browser cannot be read this way, before any frame is searched; the page then draws the
+ * frames one by one instead. `expected` is the page's estimate of the number of frames, for progress.
+ */
+async function findInFootage(file, width, height, settings, expected, progress) {
+  findCancelled = false;
+  if (typeof VideoDecoder !== "function" || typeof FileReaderSync !== "function") {
+    return { fallback: "this browser has no WebCodecs video decoder" };
+  }
+  const sync = new FileReaderSync();
+  const readRange = (offset, length) => new Uint8Array(sync.readAsArrayBuffer(file.slice(offset, offset + length)));
+  let reader;
+  try {
+    reader = new wasm_bindgen.FootageReader(readRange, file.size);
+  } catch (e) {
+    return { fallback: `the footage is ${e.message}` };
+  }
+  try {
+    return await decodeAndSearch(reader, width, height, settings, expected, progress);
+  } finally {
+    reader.free();
+  }
+}
+
+async function decodeAndSearch(reader, width, height, settings, expected, progress) {
+  const info = reader.info();
+  const config = { codec: info.codec, codedWidth: info.codedWidth, codedHeight: info.codedHeight };
+  if (info.description) config.description = info.description;
+  const support = await VideoDecoder.isConfigSupported(config).catch(() => ({ supported: false }));
+  if (!support.supported) return { fallback: `this browser cannot decode ${info.codec} itself` };
+
+  session.startDetection(width, height, settings);
+  const total = info.frames || expected;
+  const waiting = [];
+  let failure = null;
+  let wake = null;
+  const nudge = () => { if (wake) { const w = wake; wake = null; w(); } };
+  const decoder = new VideoDecoder({
+    output: (frame) => { waiting.push(frame); nudge(); },
+    error: (e) => { failure = e; nudge(); },
+  });
+  decoder.addEventListener("dequeue", nudge);
+  decoder.configure(config);
+  let fed = false;
+  let flushed = false;
+  let done = 0;
+  let last = 0;
+  const canvas = { c: null, g: null };
+  try {
+    for (;;) {
+      if (findCancelled) throw new Error("cancelled; the detections opened before are kept");
+      if (failure) throw new Error(`the decoder stopped at frame ${done + 1}: ${failure.message}`);
+      if (waiting.length) {
+        const frame = waiting.shift();
+        try {
+          await searchFrame(frame, width, height, canvas);
+        } finally {
+          frame.close();
+        }
+        done++;
+        const now = Date.now();
+        if (now - last > 100) {
+          last = now;
+          progress(done, Math.max(total, done));
+        }
+        continue;
+      }
+      if (!fed && decoder.decodeQueueSize < 4) {
+        const chunk = reader.next();
+        if (chunk) {
+          decoder.decode(new EncodedVideoChunk({ type: chunk.key ? "key" : "delta", timestamp: chunk.timestamp, data: chunk.data }));
+        } else {
+          fed = true;
+          decoder.flush().then(() => { flushed = true; nudge(); }, (e) => { failure = failure || e; nudge(); });
+        }
+        continue;
+      }
+      if (flushed) break;
+      await new Promise((resolve) => { wake = resolve; });
+    }
+  } finally {
+    for (const f of waiting) f.close();
+    if (decoder.state !== "closed") decoder.close();
+  }
+  if (done === 0) throw new Error("the decoder gave no frames");
+  progress(done, done);
+  return { summary: session.finishDetection(), codec: info.codec, container: info.container, frames: done };
+}
+
+/** One decoded frame to the detector: its own I420/NV12 bytes when it is the page's size, else drawn as RGBA. */
+async function searchFrame(frame, width, height, canvas) {
+  const rect = frame.visibleRect;
+  const direct = (frame.format === "I420" || frame.format === "NV12") && rect.width === width && rect.height === height;
+  if (direct) {
+    const bytes = new Uint8Array(frame.allocationSize({ rect }));
+    await frame.copyTo(bytes, { rect });
+    return session.detectYuv(bytes, width, height, frame.format);
+  }
+  if (!canvas.c) {
+    canvas.c = new OffscreenCanvas(width, height);
+    canvas.g = canvas.c.getContext("2d", { willReadFrequently: true });
+  }
+  canvas.g.drawImage(frame, 0, 0, width, height);
+  return session.detectRgba(new Uint8Array(canvas.g.getImageData(0, 0, width, height).data.buffer), width, height);
+}
 
 // The report and counts CSV when tracks and a plan are both there, otherwise null.
 function results() {

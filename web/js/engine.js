@@ -59,6 +59,21 @@ export class Engine {
     return this.call("startDetection", [width, height, settings]);
   }
 
+  /**
+   * Finds moving objects in `footage` (a File or Blob, WebM or MP4) by decoding it in the worker
+   * (WebCodecs). Resolves to {summary, codec, container, frames}, or to {fallback: reason} when it
+   * cannot be decoded there; `onProgress(done, total)` as frames are searched.
+   */
+  async findInFootage(footage, width, height, settings, expectedFrames, onProgress) {
+    await this.ready;
+    return this.call("findInFootage", [footage, width, height, settings, expectedFrames], [], onProgress);
+  }
+
+  /** Stops findInFootage at the next frame; it then rejects with a message starting "cancelled". */
+  cancelFind() {
+    return this.call("cancelFind", []);
+  }
+
   /** One frame's RGBA pixels (the buffer is handed over); resolves to the number of objects found. */
   detectRgba(pixels, width, height) {
     return this.call("detectRgba", [pixels, width, height], [pixels]);

@@ -8,6 +8,10 @@ use serde::Serialize;
 use throughline_core::{count, detections, motion, plan, track, tracks_io};
 use wasm_bindgen::prelude::*;
 
+pub mod demux;
+mod footage;
+pub use footage::FootageReader;
+
 /// Values per box in [`Session::boxes_at`]: id, x, y, w, h (pixels, top-left + size), observed (1/0).
 pub const BOX_STRIDE: usize = 6;
 
@@ -16,6 +20,22 @@ pub const FRAME_BOX_STRIDE: usize = 7;
 
 fn js_error(message: impl std::fmt::Display) -> JsError {
     JsError::new(&message.to_string())
+}
+
+fn short_frame() -> JsError {
+    js_error("the frame holds fewer pixels than its size says")
+}
+
+/// NV12 (luma, then interleaved U,V pairs at 4:2:0) to I420 (luma, U plane, V plane).
+fn nv12_to_i420(bytes: &[u8], w: usize, h: usize) -> Option<Vec<u8>> {
+    let (cw, ch) = motion::Picture::chroma_size(w, h);
+    let (luma, pairs) = bytes.split_at_checked(w * h)?;
+    let pairs = pairs.get(..2 * cw * ch)?;
+    let mut out = Vec::with_capacity(w * h + 2 * cw * ch);
+    out.extend_from_slice(luma);
+    out.extend(pairs.iter().step_by(2));
+    out.extend(pairs.iter().skip(1).step_by(2));
+    Some(out)
 }
 
 /// Boxes (with scores) the motion detector found, one list per frame.
@@ -113,14 +133,41 @@ impl Session {
     /// objects found in it.
     #[wasm_bindgen(js_name = detectRgba)]
     pub fn detect_rgba(&mut self, rgba: &[u8], width: u32, height: u32) -> Result<u32, JsError> {
+        let (w, h) = (width as usize, height as usize);
+        let yuv = motion::rgba_to_yuv420(rgba, w, h).ok_or_else(short_frame)?;
+        self.detect_planar(&yuv, w, h)
+    }
+
+    /// The next frame as a decoded video frame's own bytes (`VideoFrame.copyTo` over its visible
+    /// rectangle): `layout` "I420" (luma, then the two 4:2:0 chroma planes) or "NV12" (luma, then
+    /// one plane of interleaved chroma pairs). Returns the number of objects found in it.
+    #[wasm_bindgen(js_name = detectYuv)]
+    pub fn detect_yuv(
+        &mut self,
+        bytes: &[u8],
+        width: u32,
+        height: u32,
+        layout: &str,
+    ) -> Result<u32, JsError> {
+        let (w, h) = (width as usize, height as usize);
+        match layout {
+            "I420" => self.detect_planar(bytes, w, h),
+            "NV12" => {
+                let planar = nv12_to_i420(bytes, w, h).ok_or_else(short_frame)?;
+                self.detect_planar(&planar, w, h)
+            }
+            other => Err(js_error(format!(
+                "frames laid out as {other} cannot be searched directly; draw them as RGBA"
+            ))),
+        }
+    }
+
+    fn detect_planar(&mut self, yuv: &[u8], w: usize, h: usize) -> Result<u32, JsError> {
         let (detector, found) = self
             .detector
             .as_mut()
             .ok_or_else(|| js_error("start detection first"))?;
-        let (w, h) = (width as usize, height as usize);
-        let short = || js_error("the frame holds fewer pixels than its size says");
-        let yuv = motion::rgba_to_yuv420(rgba, w, h).ok_or_else(short)?;
-        let picture = motion::Picture::planar(w, h, &yuv, true).ok_or_else(short)?;
+        let picture = motion::Picture::planar(w, h, yuv, true).ok_or_else(short_frame)?;
         let boxes = detector.detect(&picture).map_err(js_error)?;
         let n = boxes.len() as u32;
         found.push(boxes);
@@ -338,5 +385,29 @@ impl Session {
         self.report
             .as_ref()
             .ok_or_else(|| js_error("open or draw a plan first"))
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::nv12_to_i420;
+
+    #[test]
+    fn nv12_chroma_pairs_become_two_planes() {
+        // A 4x2 picture: 8 luma bytes, then 2x1 chroma pairs (U, V).
+        let nv12 = [1, 2, 3, 4, 5, 6, 7, 8, 10, 20, 11, 21];
+        assert_eq!(
+            nv12_to_i420(&nv12, 4, 2).unwrap(),
+            vec![1, 2, 3, 4, 5, 6, 7, 8, 10, 11, 20, 21]
+        );
+        // 3x3 rounds the chroma up to 2x2: four pairs.
+        let odd: Vec<u8> = (0..9).chain([1, 2, 3, 4, 5, 6, 7, 8]).collect();
+        let planar = nv12_to_i420(&odd, 3, 3).unwrap();
+        assert_eq!(&planar[9..], &[1, 3, 5, 7, 2, 4, 6, 8]);
+        assert_eq!(
+            nv12_to_i420(&odd[..16], 3, 3),
+            None,
+            "one chroma byte short"
+        );
     }
 }

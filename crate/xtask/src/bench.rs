@@ -7,7 +7,7 @@
 //!   ID switches, count error per direction against the simulator's true crossings, speed and memory
 //!   (one run each), with the peer for `sort`.
 
-use super::{build_cli, cli_binary, root, run};
+use super::{build_cli, cli_binary, root, run, run_in, site};
 use std::path::Path;
 use std::process::Command;
 use std::time::Instant;
@@ -306,6 +306,9 @@ fn ratio_cell(rows: &[(String, Row)]) -> String {
 }
 
 pub fn bench(args: &[String]) -> Result<(), String> {
+    if args.iter().any(|a| a == "--page") {
+        return page_bench();
+    }
     let quick = args.iter().any(|a| a == "--quick");
     build_cli()?;
     let bin = cli_binary().display().to_string();
@@ -451,4 +454,17 @@ fn machine_line() -> String {
         .map(|o| String::from_utf8_lossy(&o.stdout).trim().to_string())
         .unwrap_or_default();
     format!("{cpu}, {cores} cores, {date}")
+}
+
+/// "Find moving objects" in headless Chromium on the demo re-encoded at two sizes and in two
+/// containers (tests/bench/page_detector.mjs). Prints a table; BENCHMARKS.md records it by hand.
+fn page_bench() -> Result<(), String> {
+    site::build()?;
+    run_in(
+        "tests/browser",
+        "npm",
+        &["ci", "--no-audit", "--no-fund"],
+        &[],
+    )?;
+    run("node", &["tests/bench/page_detector.mjs"])
 }

@@ -1,0 +1,197 @@
+//! The page's WebM and MP4 reader against ffprobe (FFmpeg, Debian's package, installed by
+//! `cargo xtask test`): on footage ffmpeg encodes from the demo, every video frame comes out with
+//! ffprobe's size, key-frame flag and presentation time, in ffprobe's order (file order), and the
+//! codec string names ffprobe's profile and level. Native: the reader is generic over `Read + Seek`.
+#![cfg(not(target_arch = "wasm32"))]
+
+use std::fs::File;
+use std::io::BufReader;
+use std::path::{Path, PathBuf};
+use std::process::Command;
+
+use throughline_wasm::demux::{Chunk, Demuxer};
+
+const DEMO_FOOTAGE: &str = concat!(
+    env!("CARGO_MANIFEST_DIR"),
+    "/../../demo-site/demo/footage.webm"
+);
+
+fn scratch(name: &str) -> PathBuf {
+    let dir = Path::new(env!("CARGO_TARGET_TMPDIR")).join("demux");
+    std::fs::create_dir_all(&dir).unwrap();
+    dir.join(name)
+}
+
+/// The first `frames` frames of the demo footage re-encoded by ffmpeg with `codec_args`.
+fn encode(name: &str, frames: u32, codec_args: &[&str]) -> PathBuf {
+    let out = scratch(name);
+    let status = Command::new("ffmpeg")
+        .args(["-v", "error", "-y", "-i", DEMO_FOOTAGE, "-frames:v"])
+        .arg(frames.to_string())
+        .args(codec_args)
+        .arg(&out)
+        .status()
+        .expect("ffmpeg runs (cargo xtask test installs it)");
+    assert!(status.success());
+    out
+}
+
+/// ffprobe's packets of the video stream: (size, key, presentation time in µs), file order.
+fn probe_packets(path: &Path) -> Vec<(usize, bool, i64)> {
+    let out = Command::new("ffprobe")
+        .args(["-v", "error", "-select_streams", "v:0", "-show_entries"])
+        .args(["packet=size,flags,pts_time", "-of", "csv=p=0"])
+        .arg(path)
+        .output()
+        .expect("ffprobe runs");
+    assert!(out.status.success());
+    String::from_utf8(out.stdout)
+        .unwrap()
+        .lines()
+        .map(|line| {
+            let f: Vec<&str> = line.split(',').collect();
+            let pts: f64 = f[0].parse().unwrap();
+            (
+                f[1].parse().unwrap(),
+                f[2].starts_with('K'),
+                (pts * 1e6).round() as i64,
+            )
+        })
+        .collect()
+}
+
+fn probe_stream(path: &Path, entries: &str) -> String {
+    let out = Command::new("ffprobe")
+        .args(["-v", "error", "-select_streams", "v:0", "-show_entries"])
+        .arg(format!("stream={entries}"))
+        .args(["-of", "csv=p=0"])
+        .arg(path)
+        .output()
+        .expect("ffprobe runs");
+    String::from_utf8(out.stdout).unwrap().trim().to_string()
+}
+
+fn read_all(path: &Path) -> (throughline_wasm::demux::VideoTrack, Vec<Chunk>) {
+    let size = std::fs::metadata(path).unwrap().len();
+    let file = BufReader::new(File::open(path).unwrap());
+    let (mut demuxer, track) = Demuxer::open(file, size).expect("opens");
+    let mut chunks = Vec::new();
+    while let Some(c) = demuxer.next_chunk().expect("reads") {
+        chunks.push(c);
+    }
+    (track, chunks)
+}
+
+fn assert_same_frames(chunks: &[Chunk], packets: &[(usize, bool, i64)]) {
+    assert_eq!(chunks.len(), packets.len(), "frame count");
+    for (i, (c, p)) in chunks.iter().zip(packets).enumerate() {
+        assert_eq!((c.data.len(), c.key), (p.0, p.1), "frame {i}: size, key");
+        // ffprobe prints times to the microsecond; WebM stores milliseconds.
+        assert!(
+            (c.timestamp_us - p.2).abs() <= 1,
+            "frame {i}: {} vs {} µs",
+            c.timestamp_us,
+            p.2
+        );
+    }
+}
+
+#[test]
+fn mp4_h264_with_b_frames_matches_ffprobe() {
+    let path = encode(
+        "clip.mp4",
+        90,
+        &["-c:v", "libx264", "-bf", "2", "-g", "30", "-an"],
+    );
+    let (track, chunks) = read_all(&path);
+    let packets = probe_packets(&path);
+    assert_same_frames(&chunks, &packets);
+    // B-frames: presentation times are not in file order.
+    assert!(chunks
+        .windows(2)
+        .any(|w| w[1].timestamp_us < w[0].timestamp_us));
+    assert_eq!(track.container, "mp4");
+    assert_eq!(track.frames, Some(90));
+    let (w, h) = (track.coded_width, track.coded_height);
+    assert_eq!(probe_stream(&path, "width,height"), format!("{w},{h}"));
+    // ffprobe's profile 100 is High (0x64); its level is the record's level as a number.
+    let level: u32 = probe_stream(&path, "level").parse().unwrap();
+    assert!(track.codec.starts_with("avc1.64"), "{}", track.codec);
+    assert_eq!(u32::from_str_radix(&track.codec[9..11], 16).unwrap(), level);
+    let description = track.description.expect("H.264 needs its avcC record");
+    assert_eq!(description[0], 1, "configurationVersion of an avcC record");
+}
+
+#[test]
+fn webm_vp9_and_vp8_match_ffprobe() {
+    for (name, args, codec) in [
+        (
+            "clip-vp9.webm",
+            ["-c:v", "libvpx-vp9", "-g", "30"],
+            "vp09.00.10.08",
+        ),
+        ("clip-vp8.webm", ["-c:v", "libvpx", "-g", "30"], "vp8"),
+    ] {
+        let path = encode(name, 60, &[&args[..], &["-b:v", "300k", "-an"]].concat());
+        let (track, chunks) = read_all(&path);
+        assert_same_frames(&chunks, &probe_packets(&path));
+        assert_eq!((track.container, track.codec.as_str()), ("webm", codec));
+        assert_eq!(track.description, None);
+        assert_eq!(track.frames, None);
+        assert!(
+            chunks[0].key && chunks[30].key,
+            "key frames every 30 (-g 30)"
+        );
+    }
+}
+
+#[test]
+fn the_demo_footage_reads_whole() {
+    let (track, chunks) = read_all(Path::new(DEMO_FOOTAGE));
+    assert_same_frames(&chunks, &probe_packets(Path::new(DEMO_FOOTAGE)));
+    assert_eq!(chunks.len(), 750);
+    assert_eq!(
+        probe_stream(Path::new(DEMO_FOOTAGE), "width,height"),
+        format!("{},{}", track.coded_width, track.coded_height)
+    );
+}
+
+#[test]
+fn damaged_footage_is_refused_or_stops_with_a_message() {
+    let whole = std::fs::read(DEMO_FOOTAGE).unwrap();
+    // Cut in half: ffmpeg's WebM keeps its index at the end, so the reader refuses it and says why
+    // (the page then draws the frames one by one as the video element plays them).
+    let half = &whole[..whole.len() / 2];
+    let err = Demuxer::open(std::io::Cursor::new(half), half.len() as u64)
+        .err()
+        .unwrap();
+    assert!(err.contains("ends early"), "{err}");
+    // Damaged after a good start: the frames before the damage, then a message.
+    let mut broken = whole.clone();
+    let from = whole.len() / 2;
+    broken[from..from + 4096].fill(0xFF);
+    let (mut demuxer, _) =
+        Demuxer::open(std::io::Cursor::new(&broken), broken.len() as u64).unwrap();
+    let mut n = 0;
+    let stopped = loop {
+        match demuxer.next_chunk() {
+            Ok(Some(_)) => n += 1,
+            Ok(None) => break None,
+            Err(e) => break Some(e),
+        }
+    };
+    assert!(n > 100, "{n} frames before the damage");
+    if let Some(e) = stopped {
+        assert!(e.contains("damaged"), "{e}");
+    }
+    // Only the first bytes: no track list yet.
+    let start = &whole[..40];
+    let err = Demuxer::open(std::io::Cursor::new(start), 40)
+        .err()
+        .unwrap();
+    assert!(err.contains("WebM"), "{err}");
+    // An MP4 whose sample table is gone.
+    let mp4 = std::fs::read(encode("cut.mp4", 10, &["-c:v", "libx264", "-an"])).unwrap();
+    let cut = &mp4[..mp4.len().min(600)];
+    assert!(Demuxer::open(std::io::Cursor::new(cut), cut.len() as u64).is_err());
+}
