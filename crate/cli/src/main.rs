@@ -111,6 +111,9 @@ enum Command {
         /// Print no summary and no progress.
         #[arg(short, long)]
         quiet: bool,
+        /// Print the time taken and the peak memory on standard error at the end.
+        #[arg(long)]
+        stats: bool,
     },
     /// Count existing tracks against a plan.
     Count {
@@ -302,7 +305,21 @@ fn main() -> ExitCode {
             output,
             config,
             quiet,
-        } => run_detect(&y4m, output.as_deref(), config.as_deref(), quiet),
+            stats,
+        } => {
+            let mut timer = Timer::new();
+            let r = run_detect(
+                &y4m,
+                output.as_deref(),
+                config.as_deref(),
+                quiet,
+                &mut timer,
+            );
+            if stats {
+                timer.print();
+            }
+            r
+        }
         Command::Count {
             tracks,
             plan,
@@ -534,13 +551,16 @@ fn run_detect(
     output: Option<&Path>,
     config: Option<&Path>,
     quiet: bool,
+    timer: &mut Timer,
 ) -> Result<(), Failure> {
     let dets = detect_footage(footage, config, quiet)?;
+    timer.lap("detect");
     let text = detections::to_benchmark_text(&dets);
     match output {
         Some(p) => write_file(p, &text)?,
         None => print!("{text}"),
     }
+    timer.lap("write");
     if !quiet {
         eprintln!(
             "{}: {} detections over {} frames{}",

@@ -524,14 +524,19 @@ fn detect_finds_moving_objects_in_footage_from_a_file_and_from_standard_input() 
         stderr(&o)
     );
 
-    // The same from standard input.
+    // The same from standard input; --stats reports time and memory, even with -q.
     let piped = Command::new(env!("CARGO_BIN_EXE_throughline"))
-        .args(["detect", "--y4m", "-", "-q"])
+        .args(["detect", "--y4m", "-", "-q", "--stats"])
         .stdin(std::fs::File::open(&y4m).unwrap())
         .output()
         .unwrap();
     assert!(piped.status.success());
     assert_eq!(stdout(&piped), text);
+    let said = stderr(&piped);
+    assert!(
+        said.starts_with("stats: ") && said.contains("detect ") && said.contains("peak memory"),
+        "{said}"
+    );
 
     // Straight to counts.
     let report = dir.join("report.json");

@@ -1,4 +1,4 @@
-//! `cargo xtask bench`: two tables in BENCHMARKS.md, rewritten in place between their markers.
+//! `cargo xtask bench`: tables in BENCHMARKS.md, rewritten in place between their markers.
 //!
 //! - **Speed**: every method at about 10, 50 and 200 detections per frame, timed as whole
 //!   `throughline track` runs (the fastest of [`RUNS`]; wall clock; peak memory as the child reports
@@ -6,12 +6,19 @@
 //! - **Grid**: every method × density (5, 30, 120 agents in view) × miss rate (10%, 15%): HOTA, IDF1,
 //!   ID switches, count error per direction against the simulator's true crossings, speed and memory
 //!   (one run each), with the peer for `sort`.
+//! - **Counts** (`--counts`, and after the grid in a full run): count accuracy at 30 in view summed
+//!   over five scenes per miss rate, with event-level missed and extra crossings.
+//! - **Detector** (`--detector`): the motion detector on rendered simulator frames: speed, box recall
+//!   and precision against the simulator's truth, and counts from footage alone.
+//! - **Page** (`--page`): finding objects in headless Chromium; printed, not written.
 
 use super::{build_cli, cli_binary, root, run, run_in, site};
 use std::path::Path;
 use std::process::Command;
 use std::time::Instant;
-use throughline_core::{count, plan, tracks_io};
+use throughline_core::assign::{maximise_edges, Edge};
+use throughline_core::geometry::{iou, BBox};
+use throughline_core::{count, detections, plan, tracks_io};
 
 /// Timed runs per measurement in the speed table; the fastest is kept.
 const RUNS: usize = 5;
@@ -309,6 +316,12 @@ pub fn bench(args: &[String]) -> Result<(), String> {
     if args.iter().any(|a| a == "--page") {
         return page_bench();
     }
+    if args.iter().any(|a| a == "--detector") {
+        return detector_bench(args.iter().any(|a| a == "--quick"));
+    }
+    if args.iter().any(|a| a == "--counts") {
+        return counts_bench();
+    }
     let quick = args.iter().any(|a| a == "--quick");
     build_cli()?;
     let bin = cli_binary().display().to_string();
@@ -433,6 +446,115 @@ pub fn bench(args: &[String]) -> Result<(), String> {
     );
     write_section("<!-- grid:begin -->", "<!-- grid:end -->", &grid)?;
     println!("{speed}\n\n{grid}");
+    if !quick {
+        counts_bench()?;
+    }
+    Ok(())
+}
+
+/// Seeds of the count-accuracy table: five scenes of two minutes each per miss rate.
+const COUNT_SEEDS: [u64; 5] = [42, 43, 44, 45, 46];
+
+/// Count accuracy at 30 in view over five scenes per miss rate (ten minutes of footage): summed
+/// crossings per direction against the truth, the worst single scene, and count events with no
+/// true match (missed) or no counted match (extra).
+fn counts_bench() -> Result<(), String> {
+    build_cli()?;
+    let bin = cli_binary().display().to_string();
+    let machine = machine_line();
+    let (width, height) = (640.0, 360.0);
+    let mut lines = Vec::new();
+    for miss in [0.10, 0.15] {
+        // method -> (tf, tb, cf, cb, worst scene error %, missed, extra)
+        let mut sums: Vec<(String, [u64; 4], f64, usize, usize)> = Vec::new();
+        for seed in COUNT_SEEDS {
+            let dir = root().join(format!("target/bench/counts-{miss}-{seed}"));
+            std::fs::create_dir_all(&dir).map_err(|e| e.to_string())?;
+            let d = dir.display().to_string();
+            let plan_path = dir.join("plan.json");
+            std::fs::write(&plan_path, sim_plan(width, height)).map_err(|e| e.to_string())?;
+            let p = plan_path.display().to_string();
+            let (seed_s, miss_s) = (seed.to_string(), miss.to_string());
+            run(
+                &bin,
+                &[
+                    "simulate",
+                    "--out-dir",
+                    &d,
+                    "--seed",
+                    &seed_s,
+                    "--frames",
+                    "3000",
+                    "--density",
+                    "30",
+                    "--width",
+                    "640",
+                    "--height",
+                    "360",
+                    "--miss-rate",
+                    &miss_s,
+                    "--embedding-dim",
+                    "16",
+                    "--plan",
+                    &p,
+                ],
+            )?;
+            let truth = read_json(&dir.join("truth_report.json"))?;
+            for (k, method) in ["iou", "sort", "bytetrack", "deepsort"].iter().enumerate() {
+                let input = if *method == "deepsort" {
+                    "detections.csv"
+                } else {
+                    "detections.txt"
+                };
+                let inp = dir.join(input).display().to_string();
+                let out = dir.join(format!("{method}-report.json"));
+                let o = out.display().to_string();
+                run(
+                    &bin,
+                    &[
+                        "run", &inp, "--plan", &p, "--method", method, "-o", &o, "--quiet",
+                    ],
+                )?;
+                let counted = read_json(&out)?;
+                let (tf, tb, cf, cb) = crossing_sums(&truth, &counted);
+                let (missed, extra) = event_errors(&truth, &counted);
+                let pct = |c: u64, t: u64| 100.0 * (c as f64 - t as f64).abs() / (t.max(1) as f64);
+                let worst = pct(cf, tf).max(pct(cb, tb));
+                if sums.len() <= k {
+                    sums.push((method.to_string(), [0; 4], 0.0, 0, 0));
+                }
+                let e = &mut sums[k];
+                for (a, b) in e.1.iter_mut().zip([tf, tb, cf, cb]) {
+                    *a += b;
+                }
+                e.2 = e.2.max(worst);
+                e.3 += missed;
+                e.4 += extra;
+            }
+        }
+        for (method, [tf, tb, cf, cb], worst, missed, extra) in &sums {
+            lines.push(format!(
+                "| {:.0}% | {method} | {tf}/{tb} → {cf}/{cb} | {} | {} | {worst:.1}% | {missed} | {extra} |",
+                miss * 100.0,
+                error(*cf, *tf),
+                error(*cb, *tb),
+            ));
+        }
+    }
+    let table = format!(
+        "<!-- counts:begin -->\nMeasured by `cargo xtask bench --counts` on {machine}.\nScenes: 30 in view, \
+         640x360, 3000 frames (2 minutes) each, seeds {}, the grid's plan; default settings of each method. \
+         Crossings summed over both lines and the five scenes (10 minutes of footage per miss rate); error per \
+         direction on the sums; worst scene = the largest error of one direction in one scene; missed and \
+         extra = count events with no true event of the same line and direction within 25 frames, and the \
+         reverse.\n\n\
+         | missed detections | method | crossings (true → counted) | error forward | error backward | worst scene | missed | extra |\n\
+         |---|---|---|---|---|---|---|---|\n{}\n<!-- counts:end -->",
+        COUNT_SEEDS.map(|s| s.to_string()).join(", "),
+        lines.join("\n")
+    );
+    write_section("<!-- counts:begin -->", "<!-- counts:end -->", &table)?;
+    println!("{table}");
     Ok(())
 }
 
@@ -467,4 +589,263 @@ fn page_bench() -> Result<(), String> {
         &[],
     )?;
     run("node", &["tests/bench/page_detector.mjs"])
+}
+
+/// One rendered scene for the detector table: size, the two person heights for the detector (None:
+/// defaults), frames.
+struct DetectorScene {
+    label: &'static str,
+    width: u32,
+    height: u32,
+    heights: Option<(f64, f64)>,
+    frames: u32,
+}
+
+/// Boxes per frame (index = frame − 1).
+fn boxes_by_frame(rows: impl Iterator<Item = (u32, BBox)>, frames: u32) -> Vec<Vec<BBox>> {
+    let mut out = vec![Vec::new(); frames as usize];
+    for (f, b) in rows {
+        if let Some(v) = out.get_mut(f.saturating_sub(1) as usize) {
+            v.push(b);
+        }
+    }
+    out
+}
+
+/// Recall and precision of `found` against `truth` at IoU 0.5 (one-to-one, maximum total IoU per
+/// frame, as the CLEAR MOT matching does), over frames after `skip`.
+fn recall_precision(truth: &[Vec<BBox>], found: &[Vec<BBox>], skip: usize) -> (f64, f64) {
+    let (mut hits, mut n_truth, mut n_found) = (0usize, 0usize, 0usize);
+    for (t, f) in truth.iter().zip(found).skip(skip) {
+        n_truth += t.len();
+        n_found += f.len();
+        let edges: Vec<Edge> = t
+            .iter()
+            .enumerate()
+            .flat_map(|(i, a)| {
+                f.iter().enumerate().filter_map(move |(j, b)| {
+                    let v = iou(a, b);
+                    (v >= 0.5).then_some(Edge {
+                        row: i,
+                        col: j,
+                        cost: v,
+                    })
+                })
+            })
+            .collect();
+        hits += maximise_edges(t.len(), f.len(), &edges).len();
+    }
+    let ratio = |a: usize, b: usize| if b == 0 { 0.0 } else { a as f64 / b as f64 };
+    (ratio(hits, n_truth), ratio(hits, n_found))
+}
+
+/// Count events matched one to one with the true ones (same line and direction, at most 25 frames
+/// apart, nearest first): (missed, extra).
+fn event_errors(truth: &serde_json::Value, counted: &serde_json::Value) -> (usize, usize) {
+    let crossings = |r: &serde_json::Value| -> Vec<(String, String, i64)> {
+        r["events"]
+            .as_array()
+            .into_iter()
+            .flatten()
+            .filter(|e| e["kind"] == "screenline")
+            .map(|e| {
+                (
+                    e["name"].as_str().unwrap_or_default().to_string(),
+                    e["direction"].as_str().unwrap_or_default().to_string(),
+                    e["frame"].as_i64().unwrap_or(0),
+                )
+            })
+            .collect()
+    };
+    let (t, c) = (crossings(truth), crossings(counted));
+    let mut used = vec![false; c.len()];
+    let mut missed = 0;
+    for (name, dir, frame) in &t {
+        let best = c
+            .iter()
+            .enumerate()
+            .filter(|(j, e)| !used[*j] && &e.0 == name && &e.1 == dir && (e.2 - frame).abs() <= 25)
+            .min_by_key(|(_, e)| (e.2 - frame).abs());
+        match best {
+            Some((j, _)) => used[j] = true,
+            None => missed += 1,
+        }
+    }
+    (missed, used.iter().filter(|u| !**u).count())
+}
+
+/// Sums of (true forward, true backward, counted forward, counted backward) over the screenlines.
+fn crossing_sums(truth: &serde_json::Value, counted: &serde_json::Value) -> (u64, u64, u64, u64) {
+    let sum = |r: &serde_json::Value, key: &str| -> u64 {
+        r["screenlines"]
+            .as_array()
+            .into_iter()
+            .flatten()
+            .map(|l| l[key].as_u64().unwrap_or(0))
+            .sum()
+    };
+    (
+        sum(truth, "forward"),
+        sum(truth, "backward"),
+        sum(counted, "forward"),
+        sum(counted, "backward"),
+    )
+}
+
+fn read_json(path: &Path) -> Result<serde_json::Value, String> {
+    serde_json::from_slice(&read(path)?).map_err(|e| format!("{}: {e}", path.display()))
+}
+
+/// The detector table: rendered simulator scenes (seed 7, 12 in view) through `throughline detect`
+/// (speed, best of 3) and `throughline run --y4m` (counts from footage alone, default method).
+fn detector_bench(quick: bool) -> Result<(), String> {
+    build_cli()?;
+    let bin = cli_binary().display().to_string();
+    let machine = machine_line();
+    let scale = if quick { 4 } else { 1 };
+    let scenes = [
+        DetectorScene {
+            label: "640x360",
+            width: 640,
+            height: 360,
+            heights: Some((34.0, 91.0)),
+            frames: 1500 / scale,
+        },
+        DetectorScene {
+            label: "640x360, no heights",
+            width: 640,
+            height: 360,
+            heights: None,
+            frames: 1500 / scale,
+        },
+        DetectorScene {
+            label: "1280x720",
+            width: 1280,
+            height: 720,
+            heights: Some((68.0, 182.0)),
+            frames: 600 / scale,
+        },
+    ];
+    let mut lines = Vec::new();
+    for s in &scenes {
+        let dir = root().join(format!("target/bench/detector-{}x{}", s.width, s.height));
+        std::fs::create_dir_all(&dir).map_err(|e| e.to_string())?;
+        let d = dir.display().to_string();
+        let plan_path = dir.join("plan.json");
+        std::fs::write(
+            &plan_path,
+            sim_plan(f64::from(s.width), f64::from(s.height)),
+        )
+        .map_err(|e| e.to_string())?;
+        let y4m = dir.join("frames.y4m");
+        let (frames, w, h) = (
+            s.frames.to_string(),
+            s.width.to_string(),
+            s.height.to_string(),
+        );
+        let (p, y) = (plan_path.display().to_string(), y4m.display().to_string());
+        run(
+            &bin,
+            &[
+                "simulate",
+                "--out-dir",
+                &d,
+                "--seed",
+                "7",
+                "--frames",
+                &frames,
+                "--density",
+                "12",
+                "--width",
+                &w,
+                "--height",
+                &h,
+                "--plan",
+                &p,
+                "--render",
+                &y,
+            ],
+        )?;
+        let config = dir.join("detector.json");
+        let settings = match s.heights {
+            Some((far, near)) => format!(r#"{{"far_height": {far}, "near_height": {near}}}"#),
+            None => "{}".into(),
+        };
+        std::fs::write(&config, settings).map_err(|e| e.to_string())?;
+        let c = config.display().to_string();
+        let found = dir.join("found.txt").display().to_string();
+        let m = best_of(
+            if quick { 1 } else { 3 },
+            &bin,
+            &[
+                "detect", "--y4m", &y, "--config", &c, "-o", &found, "--quiet", "--stats",
+            ],
+        )?;
+        let truth = tracks_io::read_benchmark_boxes(&read(&dir.join("truth.txt"))?)
+            .map_err(|e| e.to_string())?;
+        let dets = detections::read_detections(&read(Path::new(&found))?)
+            .map_err(|e| e.to_string())?
+            .detections;
+        let (recall, precision) = recall_precision(
+            &boxes_by_frame(truth.iter().map(|b| (b.frame, b.bbox)), s.frames),
+            &boxes_by_frame(dets.rows.iter().map(|r| (r.frame, r.bbox)), s.frames),
+            50,
+        );
+        let report = dir.join("report.json");
+        let r = report.display().to_string();
+        run(
+            &bin,
+            &[
+                "run",
+                "--y4m",
+                &y,
+                "--detector-config",
+                &c,
+                "--plan",
+                &p,
+                "-o",
+                &r,
+                "--quiet",
+            ],
+        )?;
+        let (t, c) = (
+            read_json(&dir.join("truth_report.json"))?,
+            read_json(&report)?,
+        );
+        let (tf, tb, cf, cb) = crossing_sums(&t, &c);
+        let (missed, extra) = event_errors(&t, &c);
+        lines.push(format!(
+            "| {} | {} | {:.0} | {:.0} | {:.2} | {:.2} | {tf}/{tb} → {cf}/{cb} | {missed} | {extra} |",
+            s.label,
+            s.frames,
+            f64::from(s.frames) / m.seconds,
+            m.peak_mib,
+            recall,
+            precision,
+        ));
+        eprintln!("{}", lines.last().map_or("", String::as_str));
+        // The rendered frames are large (about 0.35 MB a frame at 640x360): keep only the results.
+        std::fs::remove_file(&y4m).ok();
+    }
+    let command = if quick {
+        "cargo xtask bench --detector --quick"
+    } else {
+        "cargo xtask bench --detector"
+    };
+    let table = format!(
+        "<!-- detector:begin -->\nMeasured by `{command}` on {machine}.\nScenes: the simulated plaza rendered \
+         as footage (`simulate --render`, seed 7, 12 in view, 25 fps), with the grid's plan (`sim_plan`). Speed is \
+         whole `throughline detect` runs (reading the YUV4MPEG2 file, detecting, writing), the fastest of {} \
+         runs; memory is peak resident set size. Recall and precision: detector boxes against the simulator's \
+         visible-part truth at IoU 0.5, after the 50-frame warm-up. Crossings: `throughline run --y4m` (default \
+         method, `sort`) against the true crossings, summed over both lines; missed and extra are count events \
+         with no true event of the same line and direction within 25 frames, and the reverse.\n\n\
+         | footage | frames | frames/s | peak MiB | recall | precision | crossings (true → counted) | missed | extra |\n\
+         |---|---|---|---|---|---|---|---|---|\n{}\n<!-- detector:end -->",
+        if quick { 1 } else { 3 },
+        lines.join("\n")
+    );
+    write_section("<!-- detector:begin -->", "<!-- detector:end -->", &table)?;
+    println!("{table}");
+    Ok(())
 }

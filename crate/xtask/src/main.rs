@@ -5,7 +5,8 @@
 //! - `site`: build the browser app into demo-site/ (and its single-file form); `serve`: and serve it;
 //! - `test`: install what the checks need, then format check, lints, every test, the wasm32 build;
 //! - `bench`: speed, memory and quality of every method on simulated scenes, with a Python peer,
-//!   written into BENCHMARKS.md; `bench --page`: speed of finding objects in the page (Chromium);
+//!   written into BENCHMARKS.md (`--counts`, `--detector`: one table each); `bench --page`: speed
+//!   of finding objects in the page (Chromium);
 //! - `demo-data`: regenerate the bundled demo with the simulator.
 
 use std::path::{Path, PathBuf};
@@ -319,7 +320,7 @@ fn main() -> ExitCode {
         Some("test") => test(),
         Some("bench") => bench::bench(&args[1..]),
         Some("demo-data") => demo_data(),
-        _ => Err("usage: cargo xtask <demo [--no-serve] | site | serve | test | bench [--quick | --grid | --page] | demo-data>".into()),
+        _ => Err("usage: cargo xtask <demo [--no-serve] | site | serve | test | bench [--quick | --grid | --counts | --detector | --page] | demo-data>".into()),
     };
     match result {
         Ok(()) => ExitCode::SUCCESS,
