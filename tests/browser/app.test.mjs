@@ -206,9 +206,15 @@ test("footage alone: the page decodes WebM and MP4 itself, finds what the comman
   await runAndWait(page);
   await page.waitForSelector("#results:not([hidden])");
   assert.match(await page.locator("#summary").innerText(), /plaza midline/);
-  const exported = readFileSync(await saveDownload(page, "Export detections"), "utf8");
-  assert.equal(exported.trim().split("\n").length, found);
-  assert.ok(Number(exported.split(",")[0]) > 50, "nothing during the warm-up");
+  const exportedPath = await saveDownload(page, "Export detections");
+  assert.match(exportedPath, /detections\.csv$/);
+  const exported = readFileSync(exportedPath, "utf8");
+  // With the two heights every box has a guessed class: CSV with a class column.
+  const [header, ...rows] = exported.trim().split("\n");
+  assert.equal(header, "frame,x,y,w,h,score,class");
+  assert.equal(rows.length, found);
+  assert.ok(Number(rows[0].split(",")[0]) > 50, "nothing during the warm-up");
+  assert.ok(rows.every((r) => /,(pedestrian|cyclist|vehicle)$/.test(r)));
   // Chromium's VP9 decoder and ffmpeg's give the same pixels, so the same boxes, byte for byte.
   assert.equal(exported, detectWithFfmpeg(demo("footage.webm"), settings), "page's detections equal throughline detect on ffmpeg's frames");
   await screenshot(page, "9-counted-from-footage");

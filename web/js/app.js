@@ -634,7 +634,11 @@ function setExports(ready) {
 $("export-report").addEventListener("click", () => download("throughline-report.json", state.reportText, "application/json"));
 $("export-csv").addEventListener("click", () => download("counts.csv", state.csv, "text/csv"));
 $("export-tracks").addEventListener("click", async () => download("tracks.txt", await engine.tracksText(), "text/plain"));
-$("export-detections").addEventListener("click", async () => download("detections.txt", await engine.detectionsText(), "text/plain"));
+$("export-detections").addEventListener("click", async () => {
+  const text = await engine.detectionsText();
+  const csv = text.startsWith("frame,");
+  download(csv ? "detections.csv" : "detections.txt", text, csv ? "text/csv" : "text/plain");
+});
 $("save-plan").addEventListener("click", () => download("plan.json", planForEngine(store.plan).json, "application/json"));
 $("undo").addEventListener("click", () => store.undo());
 $("load-demo").addEventListener("click", () => openDemo(true));

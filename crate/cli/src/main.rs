@@ -94,8 +94,9 @@ enum Command {
     #[command(
         long_about = "Find moving objects in footage from a fixed camera, without any model.\n\n\
         Reads YUV4MPEG2 (4:2:0 or mono, 8 bits), as `ffmpeg -i INPUT -pix_fmt yuv420p -f yuv4mpegpipe -` \
-        writes it, from a file or from standard input (-), and writes detections in the benchmark text \
-        format (frame,-1,x,y,w,h,score,-1,-1,-1) for `track` and `run`. The background forms over the \
+        writes it, from a file or from standard input (-), and writes detections for `track` and `run`: \
+        CSV (frame,x,y,w,h,score,class) when classes are guessed (with far_height/near_height set), \
+        else the benchmark text format (frame,-1,x,y,w,h,score,-1,-1,-1). The background forms over the \
         first second (warm_up_frames); nothing is reported meanwhile. Settings: docs/detector-settings.md."
     )]
     Detect {
@@ -555,7 +556,7 @@ fn run_detect(
 ) -> Result<(), Failure> {
     let dets = detect_footage(footage, config, quiet)?;
     timer.lap("detect");
-    let text = detections::to_benchmark_text(&dets);
+    let text = detections::to_file_text(&dets);
     match output {
         Some(p) => write_file(p, &text)?,
         None => print!("{text}"),
@@ -665,7 +666,7 @@ fn detect_footage(
     if per_frame.is_empty() {
         return Err(bad_input(footage, "the stream holds no frames"));
     }
-    Ok(motion::detections_from(per_frame))
+    Ok(detector.detections_from(per_frame))
 }
 
 fn read_plan(path: &Path) -> Result<plan::Plan, Failure> {

@@ -878,6 +878,16 @@ pub fn to_benchmark_text(d: &Detections) -> String {
     out
 }
 
+/// Detections as a file's text: CSV ([`to_csv`]) when they carry classes or appearance vectors,
+/// which the benchmark text format cannot hold; the benchmark text format otherwise.
+pub fn to_file_text(d: &Detections) -> String {
+    if d.classes.is_empty() && d.embedding_dim == 0 {
+        to_benchmark_text(d)
+    } else {
+        to_csv(d)
+    }
+}
+
 /// Writes detections as CSV with a header: `frame,x,y,w,h,score,class[,e0,e1,…]`.
 pub fn to_csv(d: &Detections) -> String {
     use std::fmt::Write as _;

@@ -44,6 +44,9 @@ pub struct MotionConfig {
     /// Width of one object as a fraction of its expected height; a blob wider than 1.7 times this
     /// with a clear waist in its column profile is split in two.
     pub width_ratio: f64,
+    /// Guess each box's class from its shape and size against the expected height
+    /// ([`MotionDetector::guess_class`]); needs `far_height` or `near_height`.
+    pub guess_class: bool,
 }
 
 impl Default for MotionConfig {
@@ -59,6 +62,7 @@ impl Default for MotionConfig {
             near_height: None,
             min_area: 60,
             width_ratio: 0.35,
+            guess_class: true,
         }
     }
 }
@@ -88,6 +92,9 @@ impl MotionConfig {
         Ok(c)
     }
 }
+
+/// The classes [`MotionDetector::guess_class`] tells apart (trade terms).
+pub const GUESSED_CLASSES: [&str; 3] = ["pedestrian", "cyclist", "vehicle"];
 
 /// One picture: luma plane, and the two chroma planes at half size when there is colour.
 #[derive(Debug, Clone, Copy)]
@@ -190,6 +197,61 @@ impl MotionDetector {
     }
 
     /// Expected object height (pixels) for an object standing at row `y`, if perspective is set.
+    /// The class of an object with box `b`, guessed from common proportions (not a learned model),
+    /// with `h` the expected height of one person whose feet are at the box's bottom:
+    /// - a vehicle is wider than it is tall and at least `0.9 h` wide;
+    /// - a cyclist (rider and bicycle seen from the side or at an angle) is at least `0.5 h` wide,
+    ///   at least `0.45` times as wide as tall, and at least `0.8 h` tall;
+    /// - anything else is a pedestrian.
+    ///
+    /// A cyclist seen head-on looks like a pedestrian, and two people side by side that were not
+    /// split look like a cyclist; the tracker's majority vote over a track's boxes evens out some
+    /// of this. `None` without an expected height or with `guess_class` off. Indices into
+    /// [`GUESSED_CLASSES`].
+    pub fn guess_class(&self, b: &BBox) -> Option<u16> {
+        if !self.config.guess_class || b.w <= 0.0 || b.h <= 0.0 {
+            return None;
+        }
+        let h = self.expected_height(b.y + b.h)?;
+        Some(if b.w >= b.h && b.w >= 0.9 * h {
+            2
+        } else if b.w >= 0.5 * h && b.w >= 0.45 * b.h && b.h >= 0.8 * h {
+            1
+        } else {
+            0
+        })
+    }
+
+    /// The boxes found in each picture (in the order given; frames numbered from 1) as
+    /// [`Detections`] for the trackers, each with its guessed class where there is one. Class
+    /// names are listed in order of first appearance, as a detections file's reader lists them, so
+    /// the detections written out and read back are the same.
+    pub fn detections_from(
+        &self,
+        boxes_per_frame: impl IntoIterator<Item = Vec<(BBox, f64)>>,
+    ) -> Detections {
+        let mut out = Detections::default();
+        let mut index: [Option<u16>; GUESSED_CLASSES.len()] = [None; GUESSED_CLASSES.len()];
+        for (k, boxes) in boxes_per_frame.into_iter().enumerate() {
+            for (bbox, score) in boxes {
+                let class = self.guess_class(&bbox).map(|g| {
+                    *index[g as usize].get_or_insert_with(|| {
+                        out.classes.push(GUESSED_CLASSES[g as usize].to_string());
+                        (out.classes.len() - 1) as u16
+                    })
+                });
+                out.rows.push(Detection {
+                    frame: k as u32 + 1,
+                    bbox,
+                    score,
+                    class,
+                    embedding: None,
+                });
+            }
+        }
+        out
+    }
+
     fn expected_height(&self, y: f64) -> Option<f64> {
         let c = &self.config;
         match (c.far_height, c.near_height) {
@@ -629,24 +691,6 @@ fn label_components(mask: &[u8], labels: &mut [u32], w: usize, h: usize) -> Vec<
         }
     }
     blobs.into_iter().flatten().collect()
-}
-
-/// Runs the detector over pictures and gathers the boxes as [`Detections`] (frames numbered from 1
-/// in the order given), ready for the trackers.
-pub fn detections_from(boxes_per_frame: impl IntoIterator<Item = Vec<(BBox, f64)>>) -> Detections {
-    let mut out = Detections::default();
-    for (k, boxes) in boxes_per_frame.into_iter().enumerate() {
-        for (bbox, score) in boxes {
-            out.rows.push(Detection {
-                frame: k as u32 + 1,
-                bbox,
-                score,
-                class: None,
-                embedding: None,
-            });
-        }
-    }
-    out
 }
 
 /// Planar YUV 4:2:0 (BT.601 full range, as JPEG and YUV4MPEG2 `C420jpeg`) from RGBA pixels, row by

@@ -267,3 +267,70 @@ fn finds_most_people_in_the_simulated_plaza() {
     assert!(recall >= 0.6, "recall {recall:.3}");
     assert!(precision >= 0.55, "precision {precision:.3}");
 }
+
+#[test]
+fn class_guess_from_shape_against_the_expected_height() {
+    // Expected person height: 40 px at the top row, 100 px at the bottom (row 200 of 200), so 100
+    // for every box below, whose bottoms are all at y = 200. Hand-worked against the rules in
+    // `MotionDetector::guess_class`.
+    let config = MotionConfig {
+        far_height: Some(40.0),
+        near_height: Some(100.0),
+        ..MotionConfig::default()
+    };
+    let det = MotionDetector::new(config.clone(), 320, 200);
+    let at_bottom = |w: f64, h: f64| BBox::new(10.0, 200.0 - h, w, h);
+    let guess = |b: BBox| {
+        det.guess_class(&b)
+            .map(|c| throughline_core::motion::GUESSED_CLASSES[c as usize])
+    };
+    assert_eq!(
+        guess(at_bottom(35.0, 95.0)),
+        Some("pedestrian"),
+        "narrow and person-tall"
+    );
+    assert_eq!(
+        guess(at_bottom(65.0, 100.0)),
+        Some("cyclist"),
+        "0.65 wide for its height, tall"
+    );
+    assert_eq!(
+        guess(at_bottom(150.0, 80.0)),
+        Some("vehicle"),
+        "wider than tall, 1.5 heights wide"
+    );
+    assert_eq!(
+        guess(at_bottom(60.0, 50.0)),
+        Some("pedestrian"),
+        "wide but small: too short for a cyclist, too narrow for a vehicle"
+    );
+    assert_eq!(
+        guess(at_bottom(49.0, 100.0)),
+        Some("pedestrian"),
+        "just under half a height wide"
+    );
+    // Without heights, or switched off: no guess.
+    let plain = MotionDetector::new(MotionConfig::default(), 320, 200);
+    assert_eq!(plain.guess_class(&at_bottom(150.0, 80.0)), None);
+    let off = MotionDetector::new(
+        MotionConfig {
+            guess_class: false,
+            ..config
+        },
+        320,
+        200,
+    );
+    assert_eq!(off.guess_class(&at_bottom(150.0, 80.0)), None);
+    // Class names in order of first appearance, as a file reader lists them.
+    let d = det.detections_from(vec![
+        vec![(at_bottom(150.0, 80.0), 0.9)],
+        vec![(at_bottom(35.0, 95.0), 0.8), (at_bottom(150.0, 80.0), 0.9)],
+    ]);
+    assert_eq!(d.classes, ["vehicle", "pedestrian"]);
+    let named: Vec<_> = d
+        .rows
+        .iter()
+        .map(|r| (r.frame, d.class_name(r.class).unwrap()))
+        .collect();
+    assert_eq!(named, [(1, "vehicle"), (2, "pedestrian"), (2, "vehicle")]);
+}

@@ -178,12 +178,12 @@ impl Session {
     /// order given). Returns the same summary as [`Session::load_detections`].
     #[wasm_bindgen(js_name = finishDetection)]
     pub fn finish_detection(&mut self) -> Result<JsValue, JsError> {
-        let (_, found) = self
+        let (detector, found) = self
             .detector
             .take()
             .ok_or_else(|| js_error("start detection first"))?;
         let report = detections::ReadReport {
-            detections: motion::detections_from(found),
+            detections: detector.detections_from(found),
             format: detections::DetectionFormat::BenchmarkText,
             warnings: Vec::new(),
             skipped_rows: 0,
@@ -232,14 +232,15 @@ impl Session {
         Ok(value)
     }
 
-    /// The loaded or found detections in the benchmark text format.
+    /// The loaded or found detections as a file: CSV when they carry classes or appearance
+    /// vectors, else the benchmark text format (as `throughline detect` writes them).
     #[wasm_bindgen(js_name = detectionsText)]
     pub fn detections_text(&self) -> Result<String, JsError> {
         let report = self
             .detections
             .as_ref()
             .ok_or_else(|| js_error("open or find detections first"))?;
-        Ok(detections::to_benchmark_text(&report.detections))
+        Ok(detections::to_file_text(&report.detections))
     }
 
     /// Sets the counting plan from its JSON text; errors name the field to fix.

@@ -601,21 +601,49 @@ struct DetectorScene {
     frames: u32,
 }
 
-/// Boxes per frame (index = frame − 1).
-fn boxes_by_frame(rows: impl Iterator<Item = (u32, BBox)>, frames: u32) -> Vec<Vec<BBox>> {
+/// A box and its class name (empty when none), per frame (index = frame − 1).
+type FrameBoxes = Vec<Vec<(BBox, String)>>;
+
+fn boxes_by_frame(rows: impl Iterator<Item = (u32, BBox, String)>, frames: u32) -> FrameBoxes {
     let mut out = vec![Vec::new(); frames as usize];
-    for (f, b) in rows {
+    for (f, b, class) in rows {
         if let Some(v) = out.get_mut(f.saturating_sub(1) as usize) {
-            v.push(b);
+            v.push((b, class));
         }
     }
     out
 }
 
+/// The simulator's truth file (`frame,id,x,y,w,h,1,class,1`, class numbered from 1 in the order of
+/// `sim::CLASSES`) with class names; the service cart is what the detector calls a vehicle.
+fn truth_with_classes(text: &str) -> Vec<(u32, BBox, String)> {
+    text.lines()
+        .filter_map(|line| {
+            let f: Vec<&str> = line.split(',').collect();
+            let n = |i: usize| f.get(i).and_then(|v| v.parse::<f64>().ok());
+            let class = match n(7)? as usize {
+                1 => "pedestrian",
+                2 => "cyclist",
+                _ => "vehicle",
+            };
+            Some((
+                n(0)? as u32,
+                BBox::new(n(2)?, n(3)?, n(4)?, n(5)?),
+                class.to_string(),
+            ))
+        })
+        .collect()
+}
+
 /// Recall and precision of `found` against `truth` at IoU 0.5 (one-to-one, maximum total IoU per
-/// frame, as the CLEAR MOT matching does), over frames after `skip`.
-fn recall_precision(truth: &[Vec<BBox>], found: &[Vec<BBox>], skip: usize) -> (f64, f64) {
-    let (mut hits, mut n_truth, mut n_found) = (0usize, 0usize, 0usize);
+/// frame, as the CLEAR MOT matching does), over frames after `skip`; and the share of matched boxes
+/// whose class is the true one (None when `found` has no classes).
+fn recall_precision(
+    truth: &FrameBoxes,
+    found: &FrameBoxes,
+    skip: usize,
+) -> (f64, f64, Option<f64>) {
+    let (mut hits, mut n_truth, mut n_found, mut same_class) = (0usize, 0usize, 0usize, 0usize);
     for (t, f) in truth.iter().zip(found).skip(skip) {
         n_truth += t.len();
         n_found += f.len();
@@ -624,7 +652,7 @@ fn recall_precision(truth: &[Vec<BBox>], found: &[Vec<BBox>], skip: usize) -> (f
             .enumerate()
             .flat_map(|(i, a)| {
                 f.iter().enumerate().filter_map(move |(j, b)| {
-                    let v = iou(a, b);
+                    let v = iou(&a.0, &b.0);
                     (v >= 0.5).then_some(Edge {
                         row: i,
                         col: j,
@@ -633,10 +661,17 @@ fn recall_precision(truth: &[Vec<BBox>], found: &[Vec<BBox>], skip: usize) -> (f
                 })
             })
             .collect();
-        hits += maximise_edges(t.len(), f.len(), &edges).len();
+        let pairs = maximise_edges(t.len(), f.len(), &edges);
+        hits += pairs.len();
+        same_class += pairs.iter().filter(|&&(i, j)| t[i].1 == f[j].1).count();
     }
     let ratio = |a: usize, b: usize| if b == 0 { 0.0 } else { a as f64 / b as f64 };
-    (ratio(hits, n_truth), ratio(hits, n_found))
+    let classed = found.iter().flatten().any(|b| !b.1.is_empty());
+    (
+        ratio(hits, n_truth),
+        ratio(hits, n_found),
+        classed.then(|| ratio(same_class, hits)),
+    )
 }
 
 /// Count events matched one to one with the true ones (same line and direction, at most 25 frames
@@ -781,16 +816,20 @@ fn detector_bench(quick: bool) -> Result<(), String> {
                 "detect", "--y4m", &y, "--config", &c, "-o", &found, "--quiet", "--stats",
             ],
         )?;
-        let truth = tracks_io::read_benchmark_boxes(&read(&dir.join("truth.txt"))?)
-            .map_err(|e| e.to_string())?;
+        let truth_text = String::from_utf8_lossy(&read(&dir.join("truth.txt"))?).into_owned();
         let dets = detections::read_detections(&read(Path::new(&found))?)
             .map_err(|e| e.to_string())?
             .detections;
-        let (recall, precision) = recall_precision(
-            &boxes_by_frame(truth.iter().map(|b| (b.frame, b.bbox)), s.frames),
-            &boxes_by_frame(dets.rows.iter().map(|r| (r.frame, r.bbox)), s.frames),
+        let named = |r: &detections::Detection| dets.class_name(r.class).unwrap_or("").to_string();
+        let (recall, precision, class_right) = recall_precision(
+            &boxes_by_frame(truth_with_classes(&truth_text).into_iter(), s.frames),
+            &boxes_by_frame(
+                dets.rows.iter().map(|r| (r.frame, r.bbox, named(r))),
+                s.frames,
+            ),
             50,
         );
+        let class_cell = class_right.map_or("–".to_string(), |v| format!("{:.0}%", 100.0 * v));
         let report = dir.join("report.json");
         let r = report.display().to_string();
         run(
@@ -815,7 +854,7 @@ fn detector_bench(quick: bool) -> Result<(), String> {
         let (tf, tb, cf, cb) = crossing_sums(&t, &c);
         let (missed, extra) = event_errors(&t, &c);
         lines.push(format!(
-            "| {} | {} | {:.0} | {:.0} | {:.2} | {:.2} | {tf}/{tb} → {cf}/{cb} | {missed} | {extra} |",
+            "| {} | {} | {:.0} | {:.0} | {:.2} | {:.2} | {class_cell} | {tf}/{tb} → {cf}/{cb} | {missed} | {extra} |",
             s.label,
             s.frames,
             f64::from(s.frames) / m.seconds,
@@ -837,11 +876,12 @@ fn detector_bench(quick: bool) -> Result<(), String> {
          as footage (`simulate --render`, seed 7, 12 in view, 25 fps), with the grid's plan (`sim_plan`). Speed is \
          whole `throughline detect` runs (reading the YUV4MPEG2 file, detecting, writing), the fastest of {} \
          runs; memory is peak resident set size. Recall and precision: detector boxes against the simulator's \
-         visible-part truth at IoU 0.5, after the 50-frame warm-up. Crossings: `throughline run --y4m` (default \
+         visible-part truth at IoU 0.5, after the 50-frame warm-up; class right = matched boxes whose guessed \
+         class is the true one (the detector guesses only with the two heights). Crossings: `throughline run --y4m` (default \
          method, `sort`) against the true crossings, summed over both lines; missed and extra are count events \
          with no true event of the same line and direction within 25 frames, and the reverse.\n\n\
-         | footage | frames | frames/s | peak MiB | recall | precision | crossings (true → counted) | missed | extra |\n\
-         |---|---|---|---|---|---|---|---|---|\n{}\n<!-- detector:end -->",
+         | footage | frames | frames/s | peak MiB | recall | precision | class right | crossings (true → counted) | missed | extra |\n\
+         |---|---|---|---|---|---|---|---|---|---|\n{}\n<!-- detector:end -->",
         if quick { 1 } else { 3 },
         lines.join("\n")
     );
