@@ -659,7 +659,11 @@ fn detect_footage(
                 "a frame is shorter than its header says",
             ));
         };
-        per_frame.push(detector.detect(&pic).map_err(|e| bad_input(footage, e))?);
+        per_frame.push(
+            detector
+                .detect_found(&pic)
+                .map_err(|e| bad_input(footage, e))?,
+        );
         bar.inc(1);
     }
     bar.finish_and_clear();

@@ -558,67 +558,73 @@ fn detect_finds_moving_objects_in_footage_from_a_file_and_from_standard_input() 
         .contains("\"screenlines\""));
 
     // With the two heights each box gets a guessed class, so detect writes CSV with a class
-    // column; detect then run gives the report run --y4m gives.
-    let heights = write(
-        &dir,
-        "heights.json",
-        br#"{"far_height": 34, "near_height": 91}"#,
-    );
-    let classed = dir.join("classed.csv");
-    let o = throughline(&[
-        "detect",
-        "--y4m",
-        y4m.to_str().unwrap(),
-        "--config",
-        &heights,
-        "-o",
-        classed.to_str().unwrap(),
-        "-q",
-    ]);
-    assert!(o.status.success(), "{}", stderr(&o));
-    let csv = std::fs::read_to_string(&classed).unwrap();
-    assert!(
-        csv.starts_with("frame,x,y,w,h,score,class\n"),
-        "{}",
-        &csv[..40]
-    );
-    let classes: std::collections::BTreeSet<&str> = csv
-        .lines()
-        .skip(1)
-        .map(|l| l.rsplit(',').next().unwrap())
-        .collect();
-    assert!(classes.contains("pedestrian"), "{classes:?}");
-    assert!(classes
-        .iter()
-        .all(|c| ["pedestrian", "cyclist", "vehicle"].contains(c)));
-    let (via_file, direct) = (dir.join("via-file.json"), dir.join("direct.json"));
-    let o = throughline(&[
-        "run",
-        classed.to_str().unwrap(),
-        "--plan",
-        &plan,
-        "-o",
-        via_file.to_str().unwrap(),
-        "-q",
-    ]);
-    assert!(o.status.success(), "{}", stderr(&o));
-    let o = throughline(&[
-        "run",
-        "--y4m",
-        y4m.to_str().unwrap(),
-        "--detector-config",
-        &heights,
-        "--plan",
-        &plan,
-        "-o",
-        direct.to_str().unwrap(),
-        "-q",
-    ]);
-    assert!(o.status.success(), "{}", stderr(&o));
-    assert_eq!(
-        std::fs::read_to_string(&via_file).unwrap(),
-        std::fs::read_to_string(&direct).unwrap()
-    );
+    // column; detect then run gives the report run --y4m gives. Likewise with colour histograms
+    // (24 values a box, tracked with deepsort).
+    for (settings, columns) in [
+        (&br#"{"far_height": 34, "near_height": 91}"#[..], 7),
+        (
+            &br#"{"far_height": 34, "near_height": 91, "appearance": true}"#[..],
+            31,
+        ),
+    ] {
+        let heights = write(&dir, "heights.json", settings);
+        let classed = dir.join("classed.csv");
+        let o = throughline(&[
+            "detect",
+            "--y4m",
+            y4m.to_str().unwrap(),
+            "--config",
+            &heights,
+            "-o",
+            classed.to_str().unwrap(),
+            "-q",
+        ]);
+        assert!(o.status.success(), "{}", stderr(&o));
+        let csv = std::fs::read_to_string(&classed).unwrap();
+        assert!(
+            csv.starts_with("frame,x,y,w,h,score,class"),
+            "{}",
+            &csv[..40]
+        );
+        assert!(csv.lines().all(|l| l.split(',').count() == columns));
+        let classes: std::collections::BTreeSet<&str> = csv
+            .lines()
+            .skip(1)
+            .map(|l| l.split(',').nth(6).unwrap())
+            .collect();
+        assert!(classes.contains("pedestrian"), "{classes:?}");
+        assert!(classes
+            .iter()
+            .all(|c| ["pedestrian", "cyclist", "vehicle"].contains(c)));
+        let (via_file, direct) = (dir.join("via-file.json"), dir.join("direct.json"));
+        let o = throughline(&[
+            "run",
+            classed.to_str().unwrap(),
+            "--plan",
+            &plan,
+            "-o",
+            via_file.to_str().unwrap(),
+            "-q",
+        ]);
+        assert!(o.status.success(), "{}", stderr(&o));
+        let o = throughline(&[
+            "run",
+            "--y4m",
+            y4m.to_str().unwrap(),
+            "--detector-config",
+            &heights,
+            "--plan",
+            &plan,
+            "-o",
+            direct.to_str().unwrap(),
+            "-q",
+        ]);
+        assert!(o.status.success(), "{}", stderr(&o));
+        assert_eq!(
+            std::fs::read_to_string(&via_file).unwrap(),
+            std::fs::read_to_string(&direct).unwrap()
+        );
+    }
 
     // A stream cut short keeps what its whole frames gave, and says so; a file not in YUV4MPEG2
     // is refused with the command that makes one.

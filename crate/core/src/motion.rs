@@ -47,6 +47,10 @@ pub struct MotionConfig {
     /// Guess each box's class from its shape and size against the expected height
     /// ([`MotionDetector::guess_class`]); needs `far_height` or `near_height`.
     pub guess_class: bool,
+    /// Give each box a colour histogram ([`MotionDetector::appearance`]) as its appearance
+    /// vector, so the `deepsort` method can use clothes to tell people apart. Off by default: on
+    /// the simulator's footage it made the counts worse (BENCHMARKS.md).
+    pub appearance: bool,
 }
 
 impl Default for MotionConfig {
@@ -63,6 +67,7 @@ impl Default for MotionConfig {
             min_area: 60,
             width_ratio: 0.35,
             guess_class: true,
+            appearance: false,
         }
     }
 }
@@ -91,6 +96,20 @@ impl MotionConfig {
         }
         Ok(c)
     }
+}
+
+/// Length of [`MotionDetector::appearance`] vectors: for the upper and the lower half of a box,
+/// 9 colour bins (U and V each below, near and above grey) and 3 brightness bins.
+pub const APPEARANCE_DIM: usize = 24;
+
+/// One object found in a picture.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Found {
+    pub bbox: BBox,
+    /// The share of the box that is foreground, to three decimals.
+    pub score: f64,
+    /// [`APPEARANCE_DIM`] values of unit length, when `appearance` is on.
+    pub appearance: Option<Vec<f32>>,
 }
 
 /// The classes [`MotionDetector::guess_class`] tells apart (trade terms).
@@ -228,28 +247,92 @@ impl MotionDetector {
     /// the detections written out and read back are the same.
     pub fn detections_from(
         &self,
-        boxes_per_frame: impl IntoIterator<Item = Vec<(BBox, f64)>>,
+        found_per_frame: impl IntoIterator<Item = Vec<Found>>,
     ) -> Detections {
         let mut out = Detections::default();
         let mut index: [Option<u16>; GUESSED_CLASSES.len()] = [None; GUESSED_CLASSES.len()];
-        for (k, boxes) in boxes_per_frame.into_iter().enumerate() {
-            for (bbox, score) in boxes {
-                let class = self.guess_class(&bbox).map(|g| {
+        for (k, found) in found_per_frame.into_iter().enumerate() {
+            for f in found {
+                let class = self.guess_class(&f.bbox).map(|g| {
                     *index[g as usize].get_or_insert_with(|| {
                         out.classes.push(GUESSED_CLASSES[g as usize].to_string());
                         (out.classes.len() - 1) as u16
                     })
                 });
+                let embedding = f.appearance.map(|v| {
+                    out.embedding_dim = v.len();
+                    out.embeddings.extend(v);
+                    (out.embeddings.len() / out.embedding_dim - 1) as u32
+                });
                 out.rows.push(Detection {
                     frame: k as u32 + 1,
-                    bbox,
-                    score,
+                    bbox: f.bbox,
+                    score: f.score,
                     class,
-                    embedding: None,
+                    embedding,
                 });
             }
         }
         out
+    }
+
+    /// A cheap appearance vector for box `b` of the picture just given to [`Self::detect`]: over
+    /// the box's foreground pixels, a histogram of colour (U and V each in three ranges: below,
+    /// near and above grey) and of brightness (three ranges), for the upper and the lower half of
+    /// the box apart (clothes above and below the waist), each half summing to one, then scaled
+    /// to unit length for the cosine distance DeepSORT uses. A picture without colour gives the
+    /// brightness bins only.
+    pub fn appearance(&self, pic: &Picture, b: &BBox) -> Vec<f32> {
+        let mut v = vec![0f32; APPEARANCE_DIM];
+        let (cw, _) = Picture::chroma_size(self.width, self.height);
+        let clamp = |p: f64, n: usize| (p.max(0.0) as usize).min(n);
+        let (x0, x1) = (clamp(b.x, self.width), clamp(b.x + b.w, self.width));
+        let (y0, y1) = (clamp(b.y, self.height), clamp(b.y + b.h, self.height));
+        let mid = y0 + (y1 - y0) / 2;
+        let third = |c: u8| match c {
+            0..=117 => 0,
+            118..=138 => 1,
+            _ => 2,
+        };
+        for y in y0..y1 {
+            let half = if y < mid { 0 } else { APPEARANCE_DIM / 2 };
+            for x in x0..x1 {
+                let i = y * self.width + x;
+                if self.mask.get(i) != Some(&1) {
+                    continue;
+                }
+                v[half + 9 + usize::from(pic.y[i]) * 3 / 256] += 1.0;
+                if let Some((u, w)) = pic.uv {
+                    let c = (y / 2) * cw + x / 2;
+                    v[half + 3 * third(u[c]) + third(w[c])] += 1.0;
+                }
+            }
+        }
+        for half in v.chunks_mut(APPEARANCE_DIM / 2) {
+            let total: f32 = half[9..].iter().sum();
+            if total > 0.0 {
+                half.iter_mut().for_each(|x| *x /= total);
+            }
+        }
+        let norm = v.iter().map(|x| x * x).sum::<f32>().sqrt();
+        if norm > 0.0 {
+            v.iter_mut()
+                .for_each(|x| *x = (*x / norm * 1e4).round() / 1e4);
+        }
+        v
+    }
+
+    /// [`Self::detect`], each box with its appearance vector when `appearance` is on.
+    pub fn detect_found(&mut self, pic: &Picture) -> Result<Vec<Found>, String> {
+        let boxes = self.detect(pic)?;
+        Ok(boxes
+            .into_iter()
+            .map(|(bbox, score)| Found {
+                appearance: self.config.appearance.then(|| self.appearance(pic, &bbox)),
+                bbox,
+                score,
+            })
+            .collect())
     }
 
     fn expected_height(&self, y: f64) -> Option<f64> {

@@ -322,9 +322,17 @@ fn class_guess_from_shape_against_the_expected_height() {
     );
     assert_eq!(off.guess_class(&at_bottom(150.0, 80.0)), None);
     // Class names in order of first appearance, as a file reader lists them.
+    let found = |b: BBox, score: f64| throughline_core::motion::Found {
+        bbox: b,
+        score,
+        appearance: None,
+    };
     let d = det.detections_from(vec![
-        vec![(at_bottom(150.0, 80.0), 0.9)],
-        vec![(at_bottom(35.0, 95.0), 0.8), (at_bottom(150.0, 80.0), 0.9)],
+        vec![found(at_bottom(150.0, 80.0), 0.9)],
+        vec![
+            found(at_bottom(35.0, 95.0), 0.8),
+            found(at_bottom(150.0, 80.0), 0.9),
+        ],
     ]);
     assert_eq!(d.classes, ["vehicle", "pedestrian"]);
     let named: Vec<_> = d
@@ -333,4 +341,67 @@ fn class_guess_from_shape_against_the_expected_height() {
         .map(|r| (r.frame, d.class_name(r.class).unwrap()))
         .collect();
     assert_eq!(named, [(1, "vehicle"), (2, "pedestrian"), (2, "vehicle")]);
+}
+
+#[test]
+fn appearance_is_a_colour_and_brightness_histogram_of_each_half() {
+    // A 12x32 block, red-ish above (U 90, V 200, luma 80) and blue-ish below (U 200, V 100, luma
+    // 40), boxed exactly (as in a_moving_block_is_found_where_it_is) at y = 40, so its halves meet
+    // at y = 56, an even row: the 4:2:0 chroma rows do not straddle them. Hand-worked bins: upper
+    // half colour (U below grey, V above) = 3 * 0 + 2 = bin 2, brightness 80 * 3 / 256 = 0, bin
+    // 9; lower half colour (U above, V below) = 12 + 6, brightness 12 + 9. Each half sums to one,
+    // then unit length: four values of 0.5.
+    let config = MotionConfig {
+        appearance: true,
+        ..quick()
+    };
+    let mut det = MotionDetector::new(config, W, H);
+    let mut found = Vec::new();
+    for k in 0..30 {
+        let mut pic = background();
+        if k >= 10 {
+            paint(&mut pic, (20 + 2 * k, 40, 12, 16), 80, (90, 200));
+            paint(&mut pic, (20 + 2 * k, 56, 12, 16), 40, (200, 100));
+        }
+        found = det
+            .detect_found(&Picture {
+                width: W,
+                height: H,
+                y: &pic.0,
+                uv: Some((&pic.1, &pic.2)),
+            })
+            .expect("same size");
+    }
+    assert_eq!(found.len(), 1, "{found:?}");
+    let b = found[0].bbox;
+    assert_eq!((b.x, b.y, b.w, b.h), (78.0, 40.0, 12.0, 32.0));
+    let mut want = vec![0f32; throughline_core::motion::APPEARANCE_DIM];
+    for i in [2, 9, 18, 21] {
+        want[i] = 0.5;
+    }
+    assert_eq!(found[0].appearance.as_deref(), Some(&want[..]));
+    // Off by default: boxes without a vector.
+    let boxes = last_boxes(quick(), 30, |k, pic| {
+        if k >= 10 {
+            paint(pic, (20 + 2 * k, 40, 12, 30), 220, (100, 160));
+        }
+    });
+    let mut plain = MotionDetector::new(quick(), W, H);
+    let mut last = Vec::new();
+    for k in 0..30 {
+        let mut pic = background();
+        if k >= 10 {
+            paint(&mut pic, (20 + 2 * k, 40, 12, 30), 220, (100, 160));
+        }
+        last = plain
+            .detect_found(&Picture {
+                width: W,
+                height: H,
+                y: &pic.0,
+                uv: Some((&pic.1, &pic.2)),
+            })
+            .unwrap();
+    }
+    assert_eq!(last.len(), boxes.len());
+    assert_eq!(last[0].appearance, None);
 }

@@ -39,7 +39,7 @@ fn nv12_to_i420(bytes: &[u8], w: usize, h: usize) -> Option<Vec<u8>> {
 }
 
 /// Boxes (with scores) the motion detector found, one list per frame.
-type FoundBoxes = Vec<Vec<(throughline_core::geometry::BBox, f64)>>;
+type FoundBoxes = Vec<Vec<motion::Found>>;
 
 /// What [`Session::load_detections`] found, as a plain JS object (snake_case fields).
 #[derive(Serialize)]
@@ -168,7 +168,7 @@ impl Session {
             .as_mut()
             .ok_or_else(|| js_error("start detection first"))?;
         let picture = motion::Picture::planar(w, h, yuv, true).ok_or_else(short_frame)?;
-        let boxes = detector.detect(&picture).map_err(js_error)?;
+        let boxes = detector.detect_found(&picture).map_err(js_error)?;
         let n = boxes.len() as u32;
         found.push(boxes);
         Ok(n)

@@ -598,6 +598,8 @@ struct DetectorScene {
     width: u32,
     height: u32,
     heights: Option<(f64, f64)>,
+    /// Colour histograms as appearance vectors (then `run` picks `deepsort`).
+    appearance: bool,
     frames: u32,
 }
 
@@ -744,6 +746,15 @@ fn detector_bench(quick: bool) -> Result<(), String> {
             width: 640,
             height: 360,
             heights: Some((34.0, 91.0)),
+            appearance: false,
+            frames: 1500 / scale,
+        },
+        DetectorScene {
+            label: "640x360, colour histograms (deepsort)",
+            width: 640,
+            height: 360,
+            heights: Some((34.0, 91.0)),
+            appearance: true,
             frames: 1500 / scale,
         },
         DetectorScene {
@@ -751,6 +762,7 @@ fn detector_bench(quick: bool) -> Result<(), String> {
             width: 640,
             height: 360,
             heights: None,
+            appearance: false,
             frames: 1500 / scale,
         },
         DetectorScene {
@@ -758,6 +770,7 @@ fn detector_bench(quick: bool) -> Result<(), String> {
             width: 1280,
             height: 720,
             heights: Some((68.0, 182.0)),
+            appearance: false,
             frames: 600 / scale,
         },
     ];
@@ -803,7 +816,10 @@ fn detector_bench(quick: bool) -> Result<(), String> {
         )?;
         let config = dir.join("detector.json");
         let settings = match s.heights {
-            Some((far, near)) => format!(r#"{{"far_height": {far}, "near_height": {near}}}"#),
+            Some((far, near)) => format!(
+                r#"{{"far_height": {far}, "near_height": {near}, "appearance": {}}}"#,
+                s.appearance
+            ),
             None => "{}".into(),
         };
         std::fs::write(&config, settings).map_err(|e| e.to_string())?;
@@ -878,7 +894,7 @@ fn detector_bench(quick: bool) -> Result<(), String> {
          runs; memory is peak resident set size. Recall and precision: detector boxes against the simulator's \
          visible-part truth at IoU 0.5, after the 50-frame warm-up; class right = matched boxes whose guessed \
          class is the true one (the detector guesses only with the two heights). Crossings: `throughline run --y4m` (default \
-         method, `sort`) against the true crossings, summed over both lines; missed and extra are count events \
+         method: `sort`, or `deepsort` with colour histograms) against the true crossings, summed over both lines; missed and extra are count events \
          with no true event of the same line and direction within 25 frames, and the reverse.\n\n\
          | footage | frames | frames/s | peak MiB | recall | precision | class right | crossings (true → counted) | missed | extra |\n\
          |---|---|---|---|---|---|---|---|---|---|\n{}\n<!-- detector:end -->",
