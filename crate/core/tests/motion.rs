@@ -375,7 +375,7 @@ fn appearance_is_a_colour_and_brightness_histogram_of_each_half() {
     assert_eq!(found.len(), 1, "{found:?}");
     let b = found[0].bbox;
     assert_eq!((b.x, b.y, b.w, b.h), (78.0, 40.0, 12.0, 32.0));
-    let mut want = vec![0f32; throughline_core::motion::APPEARANCE_DIM];
+    let mut want = [0f32; throughline_core::motion::APPEARANCE_DIM];
     for i in [2, 9, 18, 21] {
         want[i] = 0.5;
     }
