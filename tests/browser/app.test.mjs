@@ -167,6 +167,10 @@ test("the single file works opened from disk, with nothing fetched", async () =>
   await page.waitForSelector("#results:not([hidden])");
   assert.match(await page.locator("#summary").innerText(), /plaza midline/);
   await screenshot(page, "6-single-file");
+  // Finding objects in the bundled footage works from disk too: the worker reads the footage
+  // through FileReaderSync and decodes it with WebCodecs.
+  await page.getByRole("button", { name: "Find moving objects" }).click();
+  await page.waitForFunction(() => /^Found \d+ moving objects over 750 frames .*decoded in this page/.test(document.getElementById("find-status").textContent), null, { timeout: 600000 });
   const fetched = seen.requests.filter((u) => !u.startsWith("blob:") && !u.startsWith("data:"));
   assert.deepEqual(fetched, [`file://${join(site, "throughline-offline.html")}`], "only the file itself is read");
   assert.deepEqual(seen.errors, []);
