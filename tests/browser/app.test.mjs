@@ -210,6 +210,16 @@ test("footage alone: the page decodes WebM and MP4 itself, finds what the comman
   await runAndWait(page);
   await page.waitForSelector("#results:not([hidden])");
   assert.match(await page.locator("#summary").innerText(), /plaza midline/);
+  // With guessed classes the interval chart and table can show one class: the table then holds
+  // that class's counts from the report, and nothing else.
+  const report = JSON.parse(readFileSync(await saveDownload(page, "Export report"), "utf8"));
+  await page.getByLabel("Class", { exact: true }).selectOption("pedestrian");
+  const shown = await page.locator("#interval-table tbody tr").evaluateAll((rows) => rows.map((r) => [...r.cells].map((c) => c.textContent)));
+  const want = report.screenlines.flatMap((l) => l.intervals.flatMap((iv) => [["forward", l.forward_label], ["backward", l.backward_label]].map(([dir, label]) =>
+    [l.name, label, "pedestrian", String(iv.by_class.pedestrian ? iv.by_class.pedestrian[dir] : 0)])));
+  assert.deepEqual(shown.map((r) => [r[0], r[1], r[2], r[4]]), want);
+  await screenshot(page, "9a-pedestrians-per-interval");
+  await page.getByLabel("Class", { exact: true }).selectOption("");
   const exportedPath = await saveDownload(page, "Export detections");
   assert.match(exportedPath, /detections\.csv$/);
   const exported = readFileSync(exportedPath, "utf8");

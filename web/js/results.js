@@ -15,8 +15,7 @@ export function showResults(root, report, onEvent) {
     el("p", { class: "hint", text: `${report.tracks_counted} tracks counted (fragments of one path joined) over ${report.frame_count} frames (${clockText(report.duration_seconds)}).${trackerText}` }),
     totals(report),
   );
-  root.querySelector("#chart").replaceChildren(chart(report));
-  root.querySelector("#interval-table").replaceChildren(intervalTable(report));
+  showIntervals(root, report);
   root.querySelector("#zones-table").replaceChildren(...zones(report));
   root.querySelector("#movements-table").replaceChildren(...movements(report));
   root.querySelector("#speeds-table").replaceChildren(...speeds(report));
@@ -58,23 +57,53 @@ function classNames(line) {
   return Object.keys(line.by_class).sort();
 }
 
-function intervalTable(report) {
+/**
+ * The chart and the interval table, for all classes or the one chosen in the class list (shown
+ * when the report has more than one class). The choice is kept while that class is in the report.
+ */
+function showIntervals(root, report) {
+  const field = root.querySelector("#chart-class-field");
+  const select = root.querySelector("#chart-class");
+  const classes = [...new Set(report.screenlines.flatMap(classNames))].sort();
+  const kept = classes.includes(select.value) ? select.value : "";
+  select.replaceChildren(el("option", { value: "", text: "all" }), ...classes.map((c) => el("option", { value: c, text: c })));
+  select.value = kept;
+  field.hidden = classes.length < 2;
+  const draw = () => {
+    const cls = select.value || null;
+    root.querySelector("#chart").replaceChildren(chart(report, cls));
+    root.querySelector("#interval-table").replaceChildren(intervalTable(report, cls));
+  };
+  select.onchange = draw;
+  draw();
+}
+
+/** An interval's count in one direction, for one class or (null) all. */
+function intervalCount(iv, dir, cls) {
+  if (cls === null) return iv[dir];
+  return iv.by_class[cls] ? iv.by_class[cls][dir] : 0;
+}
+
+function intervalTable(report, only) {
   const rows = [];
   for (const line of report.screenlines) {
     for (const iv of line.intervals) {
       for (const [dir, label] of [["forward", line.forward_label], ["backward", line.backward_label]]) {
         const when = `${iv.start.slice(11, 16)}–${iv.end.slice(11, 16)}${iv.partial ? " (part)" : ""}`;
-        const classes = classNames(line);
-        for (const cls of classes) rows.push([line.name, label, cls, when, iv.by_class[cls] ? iv.by_class[cls][dir] : 0]);
-        if (classes.length !== 1) rows.push([line.name, label, "all", when, iv[dir]]);
+        const classes = only ? [only] : classNames(line);
+        for (const cls of classes) rows.push([line.name, label, cls, when, intervalCount(iv, dir, cls)]);
+        if (!only && classes.length !== 1) rows.push([line.name, label, "all", when, iv[dir]]);
       }
     }
   }
   return table(["Line", "Direction", "Class", "Interval", "Count"], rows, [4]);
 }
 
-/** Bars per interval, one group per interval, one bar per line and direction (forward solid, backward light). */
-function chart(report) {
+/**
+ * Bars per interval, one group per interval, one bar per line and direction (forward solid,
+ * backward light); `cls` null for all classes, else that class only.
+ */
+function chart(report, cls) {
   const NS = "http://www.w3.org/2000/svg";
   const svg = (tag, attrs, text) => {
     const n = document.createElementNS(NS, tag);
@@ -84,8 +113,8 @@ function chart(report) {
   };
   const series = [];
   report.screenlines.forEach((l, i) => {
-    series.push({ name: `${l.name} ${l.forward_label}`, colour: planColour(i), opacity: 1, values: l.intervals.map((iv) => iv.forward) });
-    series.push({ name: `${l.name} ${l.backward_label}`, colour: planColour(i), opacity: 0.45, values: l.intervals.map((iv) => iv.backward) });
+    series.push({ name: `${l.name} ${l.forward_label}`, colour: planColour(i), opacity: 1, values: l.intervals.map((iv) => intervalCount(iv, "forward", cls)) });
+    series.push({ name: `${l.name} ${l.backward_label}`, colour: planColour(i), opacity: 0.45, values: l.intervals.map((iv) => intervalCount(iv, "backward", cls)) });
   });
   const intervals = report.screenlines.length ? report.screenlines[0].intervals : [];
   const max = Math.max(1, ...series.flatMap((s) => s.values));
