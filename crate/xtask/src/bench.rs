@@ -12,7 +12,7 @@
 //!   and precision against the simulator's truth, and counts from footage alone.
 //! - **Page** (`--page`): finding objects in headless Chromium; printed, not written.
 
-use super::{build_cli, cli_binary, root, run, run_in, site};
+use super::{build_cli, cli_binary, root, run, site_and_browser_driver};
 use std::path::Path;
 use std::process::Command;
 use std::time::Instant;
@@ -158,6 +158,61 @@ fn read(path: &Path) -> Result<Vec<u8>, String> {
     std::fs::read(path).map_err(|e| format!("{}: {e}", path.display()))
 }
 
+/// A simulated scene for the benchmarks: its folder under target/bench and the simulator's settings
+/// (the simulator's default miss rate where `miss` is None).
+struct Sim<'a> {
+    folder: &'a str,
+    seed: u64,
+    frames: u32,
+    density: f64,
+    width: f64,
+    height: f64,
+    miss: Option<f64>,
+    /// Length of the appearance vectors (0: none). It changes the random draws, so the scene too.
+    embedding_dim: u32,
+    /// Also render the frames as YUV4MPEG2 to this file.
+    render: Option<&'a Path>,
+}
+
+/// Writes the grid's plan and simulates the scene into its folder; returns the folder and the
+/// plan's path.
+fn simulate_scene(bin: &str, sim: &Sim) -> Result<(std::path::PathBuf, String), String> {
+    let dir = root().join("target/bench").join(sim.folder);
+    std::fs::create_dir_all(&dir).map_err(|e| e.to_string())?;
+    let plan = dir.join("plan.json");
+    std::fs::write(&plan, sim_plan(sim.width, sim.height)).map_err(|e| e.to_string())?;
+    let text = |v: &dyn std::fmt::Display| v.to_string();
+    let mut args: Vec<String> = [
+        "simulate",
+        "--out-dir",
+        &text(&dir.display()),
+        "--seed",
+        &text(&sim.seed),
+        "--frames",
+        &text(&sim.frames),
+        "--density",
+        &text(&sim.density),
+        "--width",
+        &text(&sim.width),
+        "--height",
+        &text(&sim.height),
+        "--embedding-dim",
+        &text(&sim.embedding_dim),
+        "--plan",
+        &text(&plan.display()),
+    ]
+    .map(String::from)
+    .to_vec();
+    if let Some(m) = sim.miss {
+        args.extend(["--miss-rate".into(), m.to_string()]);
+    }
+    if let Some(r) = sim.render {
+        args.extend(["--render".into(), r.display().to_string()]);
+    }
+    run(bin, &args.iter().map(String::as_str).collect::<Vec<_>>())?;
+    Ok((dir, plan.display().to_string()))
+}
+
 /// Simulates a scene into files, then runs every method (and the peer) on it.
 fn measure_scene(
     bin: &str,
@@ -165,42 +220,19 @@ fn measure_scene(
     s: &SceneSpec,
     runs: usize,
 ) -> Result<Vec<(String, Row)>, String> {
-    let dir = root().join("target/bench").join(&s.label);
-    let d = dir.display().to_string();
-    let plan_path = dir.join("plan.json");
-    std::fs::create_dir_all(&dir).map_err(|e| e.to_string())?;
-    std::fs::write(&plan_path, sim_plan(s.width, s.height)).map_err(|e| e.to_string())?;
-    let (frames, density, width, height, miss) = (
-        s.frames.to_string(),
-        s.density.to_string(),
-        s.width.to_string(),
-        s.height.to_string(),
-        s.miss.to_string(),
-    );
-    let p = plan_path.display().to_string();
-    run(
+    let (dir, _) = simulate_scene(
         bin,
-        &[
-            "simulate",
-            "--out-dir",
-            &d,
-            "--seed",
-            "42",
-            "--frames",
-            &frames,
-            "--density",
-            &density,
-            "--width",
-            &width,
-            "--height",
-            &height,
-            "--miss-rate",
-            &miss,
-            "--embedding-dim",
-            "16",
-            "--plan",
-            &p,
-        ],
+        &Sim {
+            folder: &s.label,
+            seed: 42,
+            frames: s.frames,
+            density: s.density,
+            width: s.width,
+            height: s.height,
+            miss: Some(s.miss),
+            embedding_dim: 16,
+            render: None,
+        },
     )?;
     let truth = tracks_io::read_benchmark_boxes(&read(&dir.join("truth.txt"))?)
         .map_err(|e| e.to_string())?;
@@ -468,36 +500,19 @@ fn counts_bench() -> Result<(), String> {
         // method -> (tf, tb, cf, cb, worst scene error %, missed, extra)
         let mut sums: Vec<(String, [u64; 4], f64, usize, usize)> = Vec::new();
         for seed in COUNT_SEEDS {
-            let dir = root().join(format!("target/bench/counts-{miss}-{seed}"));
-            std::fs::create_dir_all(&dir).map_err(|e| e.to_string())?;
-            let d = dir.display().to_string();
-            let plan_path = dir.join("plan.json");
-            std::fs::write(&plan_path, sim_plan(width, height)).map_err(|e| e.to_string())?;
-            let p = plan_path.display().to_string();
-            let (seed_s, miss_s) = (seed.to_string(), miss.to_string());
-            run(
+            let (dir, p) = simulate_scene(
                 &bin,
-                &[
-                    "simulate",
-                    "--out-dir",
-                    &d,
-                    "--seed",
-                    &seed_s,
-                    "--frames",
-                    "3000",
-                    "--density",
-                    "30",
-                    "--width",
-                    "640",
-                    "--height",
-                    "360",
-                    "--miss-rate",
-                    &miss_s,
-                    "--embedding-dim",
-                    "16",
-                    "--plan",
-                    &p,
-                ],
+                &Sim {
+                    folder: &format!("counts-{miss}-{seed}"),
+                    seed,
+                    frames: 3000,
+                    density: 30.0,
+                    width,
+                    height,
+                    miss: Some(miss),
+                    embedding_dim: 16,
+                    render: None,
+                },
             )?;
             let truth = read_json(&dir.join("truth_report.json"))?;
             for (k, method) in ["iou", "sort", "bytetrack", "deepsort"].iter().enumerate() {
@@ -581,13 +596,7 @@ fn machine_line() -> String {
 /// "Find moving objects" in headless Chromium on the demo re-encoded at two sizes and in two
 /// containers (tests/bench/page_detector.mjs). Prints a table; BENCHMARKS.md records it by hand.
 fn page_bench() -> Result<(), String> {
-    site::build()?;
-    run_in(
-        "tests/browser",
-        "npm",
-        &["ci", "--no-audit", "--no-fund"],
-        &[],
-    )?;
+    site_and_browser_driver()?;
     run("node", &["tests/bench/page_detector.mjs"])
 }
 
@@ -776,44 +785,23 @@ fn detector_bench(quick: bool) -> Result<(), String> {
     ];
     let mut lines = Vec::new();
     for s in &scenes {
-        let dir = root().join(format!("target/bench/detector-{}x{}", s.width, s.height));
-        std::fs::create_dir_all(&dir).map_err(|e| e.to_string())?;
-        let d = dir.display().to_string();
-        let plan_path = dir.join("plan.json");
-        std::fs::write(
-            &plan_path,
-            sim_plan(f64::from(s.width), f64::from(s.height)),
-        )
-        .map_err(|e| e.to_string())?;
-        let y4m = dir.join("frames.y4m");
-        let (frames, w, h) = (
-            s.frames.to_string(),
-            s.width.to_string(),
-            s.height.to_string(),
-        );
-        let (p, y) = (plan_path.display().to_string(), y4m.display().to_string());
-        run(
+        let folder = format!("detector-{}x{}", s.width, s.height);
+        let y4m = root().join("target/bench").join(&folder).join("frames.y4m");
+        let (dir, p) = simulate_scene(
             &bin,
-            &[
-                "simulate",
-                "--out-dir",
-                &d,
-                "--seed",
-                "7",
-                "--frames",
-                &frames,
-                "--density",
-                "12",
-                "--width",
-                &w,
-                "--height",
-                &h,
-                "--plan",
-                &p,
-                "--render",
-                &y,
-            ],
+            &Sim {
+                folder: &folder,
+                seed: 7,
+                frames: s.frames,
+                density: 12.0,
+                width: f64::from(s.width),
+                height: f64::from(s.height),
+                miss: None,
+                embedding_dim: 0,
+                render: Some(&y4m),
+            },
         )?;
+        let y = y4m.display().to_string();
         let config = dir.join("detector.json");
         let settings = match s.heights {
             Some((far, near)) => format!(

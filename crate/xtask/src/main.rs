@@ -241,16 +241,21 @@ fn test() -> Result<(), String> {
         )],
     )?;
     // The page itself, end to end, in Debian's Chromium driven by playwright-core.
+    site_and_browser_driver()?;
+    run_in("tests/browser", "node", &["--test"], &[])?;
+    eprintln!("all checks passed (browser screenshots in target/browser-artefacts/)");
+    Ok(())
+}
+
+/// The built site and the npm packages that drive Chromium (tests/browser/package-lock.json).
+fn site_and_browser_driver() -> Result<(), String> {
     site::build()?;
     run_in(
         "tests/browser",
         "npm",
         &["ci", "--no-audit", "--no-fund"],
         &[],
-    )?;
-    run_in("tests/browser", "node", &["--test"], &[])?;
-    eprintln!("all checks passed (browser screenshots in target/browser-artefacts/)");
-    Ok(())
+    )
 }
 
 fn demo_data() -> Result<(), String> {
