@@ -63,7 +63,8 @@ const ops = {
  * Finds moving objects in footage (a File or Blob) by decoding it here with WebCodecs: the core's
  * FootageReader reads the WebM or MP4 a range of bytes at a time, the browser's VideoDecoder
  * decodes, and each frame's own YUV bytes go to the motion detector (no drawing, no colour
- * conversion). Resolves to {summary, codec, container, frames}, or to {fallback: reason} when this
+ * conversion). Resolves to {summary, codec, container, frames, expected, stopped}, where `stopped`
+ * says why reading ended early (damaged footage: the frames before are kept), or to {fallback: reason} when this
  * footage or browser cannot be read this way, before any frame is searched; the page then draws the
  * frames one by one instead. `expected` is the page's estimate of the number of frames, for progress.
  */
@@ -108,13 +109,18 @@ async function decodeAndSearch(reader, width, height, settings, expected, progre
   decoder.configure(config);
   let fed = false;
   let flushed = false;
+  let stopped = null;
+  let read = 0;
   let done = 0;
   let last = 0;
   const canvas = { c: null, g: null };
   try {
     for (;;) {
       if (findCancelled) throw new Error("cancelled; the detections opened before are kept");
-      if (failure) throw new Error(`the decoder stopped at frame ${done + 1}: ${failure.message}`);
+      if (failure) {
+        stopped = stopped || `the decoder stopped at frame ${done + 1}: ${failure.message}`;
+        break;
+      }
       if (waiting.length) {
         const frame = waiting.shift();
         try {
@@ -131,8 +137,15 @@ async function decodeAndSearch(reader, width, height, settings, expected, progre
         continue;
       }
       if (!fed && decoder.decodeQueueSize < 4) {
-        const chunk = reader.next();
+        let chunk = null;
+        try {
+          chunk = reader.next();
+        } catch (e) {
+          // Damaged footage: search what was read before the damage, then stop.
+          stopped = `${e.message} (after frame ${read})`;
+        }
         if (chunk) {
+          read++;
           decoder.decode(new EncodedVideoChunk({ type: chunk.key ? "key" : "delta", timestamp: chunk.timestamp, data: chunk.data }));
         } else {
           fed = true;
@@ -147,9 +160,9 @@ async function decodeAndSearch(reader, width, height, settings, expected, progre
     for (const f of waiting) f.close();
     if (decoder.state !== "closed") decoder.close();
   }
-  if (done === 0) throw new Error("the decoder gave no frames");
+  if (done === 0) throw new Error(stopped || "the decoder gave no frames");
   progress(done, done);
-  return { summary: session.finishDetection(), codec: info.codec, container: info.container, frames: done };
+  return { summary: session.finishDetection(), codec: info.codec, container: info.container, frames: done, expected: total, stopped };
 }
 
 /** One decoded frame to the detector: its own I420/NV12 bytes when it is the page's size, else drawn as RGBA. */

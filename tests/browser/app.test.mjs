@@ -245,6 +245,24 @@ test("footage alone: the page decodes WebM and MP4 itself, finds what the comman
   await page.close();
 });
 
+test("damaged footage: the frames before the damage are searched and kept, with a message saying so", async () => {
+  const { page, seen } = await openPage(`${env.server.origin}/`);
+  // The demo footage with 4 KB overwritten half-way: the WebM reader stops there (checked natively
+  // in crate/wasm/tests/demux.rs); the video element still opens it.
+  const bytes = readFileSync(demo("footage.webm"));
+  const from = Math.floor(bytes.length / 2);
+  bytes.fill(0xff, from, from + 4096);
+  const broken = join(scratch, "damaged.webm");
+  writeFileSync(broken, bytes);
+  const status = await findInFootage(page, broken);
+  const frames = Number(status.match(/over (\d+) frames/)[1]);
+  assert.ok(frames > 100 && frames < 750, status);
+  assert.match(await page.locator("#messages").innerText(), /Reading the footage stopped early: the WebM is damaged after its last good frame.*The objects found in frames 1 to \d+ are kept/s);
+  await screenshot(page, "10-damaged-footage");
+  assert.deepEqual(seen.foreign, []);
+  await page.close();
+});
+
 test("footage alone without WebCodecs: frames are taken by playing the footage, with a note saying so", async () => {
   const page = await env.browser.newPage();
   await page.addInitScript(() => { delete window.VideoDecoder; });
