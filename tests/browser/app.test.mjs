@@ -89,6 +89,20 @@ test("open files, draw a line, run, and export what throughline run gives", asyn
   const line = report.screenlines.find((l) => l.name === "south walk");
   assert.match(summary, new RegExp(`to the kiosk side: ${line.forward}`));
 
+  // Printed, the page is the results alone: headed with the footage and plan, caution included.
+  assert.equal(await page.getByRole("button", { name: "Print counts" }).isEnabled(), true);
+  await page.evaluate(() => window.dispatchEvent(new Event("beforeprint")));
+  await page.emulateMedia({ media: "print" });
+  assert.equal(await page.locator("aside.panel").isVisible(), false);
+  assert.equal(await page.locator("#stage").isVisible(), false);
+  assert.equal(await page.locator("#events").isVisible(), false);
+  assert.equal(await page.locator("#caution").isVisible(), true);
+  assert.match(await page.locator("#print-head").innerText(), /footage: footage\.webm · plan: plan\.json · printed /);
+  assert.match(await page.locator("#interval-table").innerText(), /south walk/);
+  await screenshot(page, "3a-printed");
+  await page.emulateMedia({ media: "screen" });
+  assert.equal(await page.locator("#print-head").isVisible(), false);
+
   // An event is a click away from its moment in the footage.
   const first = report.events[0];
   await page.locator("#events button").first().click();

@@ -629,6 +629,7 @@ function takeResults({ report, csv }) {
 function setExports(ready) {
   $("export-report").disabled = !ready;
   $("export-csv").disabled = !ready;
+  $("print-counts").disabled = !ready;
   if (!ready) {
     $("export-tracks").disabled = true;
     $("results").hidden = true;
@@ -639,6 +640,15 @@ function setExports(ready) {
 $("export-report").addEventListener("click", () => download("throughline-report.json", state.reportText, "application/json"));
 $("export-csv").addEventListener("click", () => download("counts.csv", state.csv, "text/csv"));
 $("export-tracks").addEventListener("click", async () => download("tracks.txt", await engine.tracksText(), "text/plain"));
+// Printing (or saving as PDF from the print dialogue) shows the results alone, headed with what
+// they were counted from; the report's caution is part of them.
+window.addEventListener("beforeprint", () => {
+  const footage = state.footageName || "no footage opened";
+  const when = new Date().toLocaleString();
+  $("print-head").textContent = `Throughline counts · footage: ${footage} · plan: ${$("plan-name").textContent} · printed ${when}`;
+});
+$("print-counts").addEventListener("click", () => window.print());
+
 $("export-detections").addEventListener("click", async () => {
   const text = await engine.detectionsText();
   const csv = text.startsWith("frame,");
