@@ -63,7 +63,7 @@ const ops = {
  * Finds moving objects in footage (a File or Blob) by decoding it here with WebCodecs: the core's
  * FootageReader reads the WebM or MP4 a range of bytes at a time, the browser's VideoDecoder
  * decodes, and each frame's own YUV bytes go to the motion detector (no drawing, no colour
- * conversion). Resolves to {summary, codec, container, frames, expected, stopped}, where `stopped`
+ * conversion). Resolves to {summary, codec, container, frames, expected, stopped, frameRate}, where `stopped`
  * says why reading ended early (damaged footage: the frames before are kept), or to {fallback: reason} when this
  * footage or browser cannot be read this way, before any frame is searched; the page then draws the
  * frames one by one instead. `expected` is the page's estimate of the number of frames, for progress.
@@ -111,6 +111,8 @@ async function decodeAndSearch(reader, width, height, settings, expected, progre
   let flushed = false;
   let stopped = null;
   let read = 0;
+  const times = []; // µs, of the first frames shown
+
   let done = 0;
   let last = 0;
   const canvas = { c: null, g: null };
@@ -123,6 +125,7 @@ async function decodeAndSearch(reader, width, height, settings, expected, progre
       }
       if (waiting.length) {
         const frame = waiting.shift();
+        if (times.length < 250) times.push(frame.timestamp);
         try {
           await searchFrame(frame, width, height, canvas);
         } finally {
@@ -162,7 +165,13 @@ async function decodeAndSearch(reader, width, height, settings, expected, progre
   }
   if (done === 0) throw new Error(stopped || "the decoder gave no frames");
   progress(done, done);
-  return { summary: session.finishDetection(), codec: info.codec, container: info.container, frames: done, expected: total, stopped };
+  return { summary: session.finishDetection(), codec: info.codec, container: info.container, frames: done, expected: total, stopped, frameRate: frameRate(times) };
+}
+
+/** Frames a second from the median time between frames shown one after another (µs); null if unknown. */
+function frameRate(times) {
+  const steps = times.slice(1).map((t, i) => t - times[i]).filter((d) => d > 0).sort((a, b) => a - b);
+  return steps.length ? 1e6 / steps[steps.length >> 1] : null;
 }
 
 /** One decoded frame to the detector: its own I420/NV12 bytes when it is the page's size, else drawn as RGBA. */

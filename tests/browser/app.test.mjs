@@ -218,6 +218,7 @@ test("footage alone: the page decodes WebM and MP4 itself, finds what the comman
   const { page, seen } = await openPage(`${env.server.origin}/`);
   const status = await findInFootage(page, demo("footage.webm"));
   assert.match(status, /over 750 frames .*decoded in this page: webm, vp09/);
+  assert.match(await page.locator("#fps-hint").innerText(), /is coded at 25\.00 fps, as set/);
   const found = Number(status.match(/Found (\d+)/)[1]);
   // The demo has about 12 people in view over 700 frames after the warm-up.
   assert.ok(found > 3000, `${found} boxes`);
@@ -247,11 +248,14 @@ test("footage alone: the page decodes WebM and MP4 itself, finds what the comman
   assert.equal(exported, detectWithFfmpeg(demo("footage.webm"), settings), "page's detections equal throughline detect on ffmpeg's frames");
   await screenshot(page, "9-counted-from-footage");
 
-  // H.264 in MP4 with B-frames (frames stored out of display order), made by ffmpeg from the demo.
+  // H.264 in MP4 with B-frames (frames stored out of display order), made by ffmpeg from the demo
+  // at 30 frames a second: the page notices that the plan says 25 and offers the correction.
   const mp4 = join(scratch, "plaza.mp4");
-  execFileSync("ffmpeg", ["-v", "error", "-y", "-i", demo("footage.webm"), "-frames:v", "200", "-c:v", "libx264", "-bf", "2", "-pix_fmt", "yuv420p", "-an", mp4]);
+  execFileSync("ffmpeg", ["-v", "error", "-y", "-i", demo("footage.webm"), "-r", "30", "-frames:v", "200", "-c:v", "libx264", "-bf", "2", "-pix_fmt", "yuv420p", "-an", mp4]);
   const mp4Status = await findInFootage(page, mp4);
   assert.match(mp4Status, /over 200 frames .*decoded in this page: mp4, avc1\.64/);
+  assert.match(await page.locator("#fps-hint").innerText(), /is coded at about 30\.00 fps, not 25/);
+  assert.equal(await page.getByRole("button", { name: "Use 30.00" }).isVisible(), true);
   const mp4Exported = readFileSync(await saveDownload(page, "Export detections"), "utf8");
   assert.equal(mp4Exported, detectWithFfmpeg(mp4, settings), "MP4: page's detections equal throughline detect on ffmpeg's frames");
   assert.deepEqual(seen.foreign, []);

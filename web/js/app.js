@@ -273,13 +273,22 @@ function measureFrameRate(meta) {
   state.fpsSamples.push(dt);
   if (state.fpsSamples.length !== 24) return;
   const sorted = [...state.fpsSamples].sort((a, b) => a - b);
-  const measured = 1 / sorted[sorted.length >> 1];
+  showFrameRate(1 / sorted[sorted.length >> 1], "plays at");
+}
+
+/**
+ * Compares the footage's own frame rate (`measured`, from playback or from the decoded frames'
+ * times) with the plan's, and offers the correction when they differ by more than 1%: the plan's
+ * rate turns frames into times and so into intervals.
+ */
+function showFrameRate(measured, how) {
+  if (!(measured > 0 && Number.isFinite(measured))) return;
   const hint = $("fps-hint");
   if (Math.abs(measured - fps()) / fps() > 0.01) {
-    hint.replaceChildren(`The footage plays at about ${measured.toFixed(2)} fps, not ${fps()}. `,
+    hint.replaceChildren(`The footage ${how} about ${measured.toFixed(2)} fps, not ${fps()}. `,
       el("button", { type: "button", text: `Use ${measured.toFixed(2)}`, onclick: () => store.change((p) => (p.frame_rate = Number(measured.toFixed(3))), "edit") }));
   } else {
-    hint.textContent = `The footage plays at ${measured.toFixed(2)} fps, as set.`;
+    hint.textContent = `The footage ${how} ${measured.toFixed(2)} fps, as set.`;
   }
 }
 
@@ -543,6 +552,7 @@ $("find-objects").addEventListener("click", async () => {
     } else {
       summary = found.summary;
       how = ` (decoded in this page: ${found.container}, ${found.codec})`;
+      showFrameRate(found.frameRate, "is coded at");
       if (found.stopped) {
         say("find", "warn", `Reading the footage stopped early: ${found.stopped}. The objects found in frames 1 to ${found.frames} are kept; the rest of the footage was not searched. The file may be damaged or cut short: re-encode it with ffmpeg and search again to count all of it.`);
       } else if (found.frames < 0.98 * found.expected) {
