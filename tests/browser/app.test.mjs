@@ -116,7 +116,7 @@ test("open files, draw a line, run, and export what throughline run gives", asyn
 
   assert.deepEqual(seen.foreign, [], "no request leaves the page's origin");
   assert.deepEqual(seen.errors, [], "no errors in the console");
-  assert.ok(env.server.requests.every((r) => !r.includes("..")));
+  assert.ok(seen.requests.every((r) => !r.includes("..")));
   await page.close();
 });
 

@@ -1,9 +1,9 @@
-// Shared set-up for the browser checks: a static server for demo-site/ on 127.0.0.1 that records
-// every request, and Debian's Chromium driven by playwright-core (no browser download).
-import { createServer } from "node:http";
-import { readFile, mkdtemp, mkdir } from "node:fs/promises";
+// Shared set-up for the browser checks: the project's own server for demo-site/ on 127.0.0.1, and
+// Debian's Chromium driven by playwright-core (no browser download).
+import { spawn } from "node:child_process";
+import { mkdtemp, mkdir } from "node:fs/promises";
 import { existsSync } from "node:fs";
-import { join, extname, normalize } from "node:path";
+import { join } from "node:path";
 import { tmpdir } from "node:os";
 import { chromium } from "playwright-core";
 import { before, after } from "node:test";
@@ -13,30 +13,25 @@ export const site = join(root, "demo-site");
 export const demo = (name) => join(site, "demo", name);
 export const artefacts = join(root, "target/browser-artefacts");
 
-const TYPES = {
-  ".html": "text/html; charset=utf-8", ".js": "text/javascript", ".css": "text/css", ".json": "application/json",
-  ".wasm": "application/wasm", ".webm": "video/webm", ".csv": "text/csv", ".txt": "text/plain",
-};
-
-/** Serves demo-site/ on a free port of 127.0.0.1; `requests` lists every path asked for. */
+/**
+ * Serves demo-site/ with the project's own server (`cargo xtask serve`, already built by `cargo
+ * xtask site` or `test`) on a free port of 127.0.0.1, so the page runs with the headers a user gets
+ * (its Content-Security-Policy among them). Resolves to {origin, close}.
+ */
 export async function serveSite() {
-  const requests = [];
-  const server = createServer(async (req, res) => {
-    requests.push(req.url);
-    const path = normalize(decodeURIComponent(req.url.split("?")[0])).replace(/^(\.\.[/\\])+/, "");
-    let file = join(site, path);
-    if (file.endsWith("/")) file = join(file, "index.html");
-    try {
-      const body = await readFile(file);
-      res.writeHead(200, { "Content-Type": TYPES[extname(file)] || "application/octet-stream" });
-      res.end(body);
-    } catch {
-      res.writeHead(404).end("not found");
-    }
+  const xtask = join(root, "target/debug/xtask");
+  if (!existsSync(xtask)) throw new Error("build the site first: cargo xtask site (or run cargo xtask test)");
+  const child = spawn(xtask, ["serve", "--no-build", "--port", "0"], { cwd: root, stdio: ["ignore", "pipe", "inherit"] });
+  const origin = await new Promise((resolve, reject) => {
+    let seen = "";
+    child.stdout.on("data", (chunk) => {
+      seen += chunk;
+      const m = seen.match(/http:\/\/127\.0\.0\.1:\d+/);
+      if (m) resolve(m[0]);
+    });
+    child.on("exit", (code) => reject(new Error(`cargo xtask serve stopped (${code}): ${seen}`)));
   });
-  await new Promise((resolve) => server.listen(0, "127.0.0.1", resolve));
-  const origin = `http://127.0.0.1:${server.address().port}`;
-  return { origin, requests, close: () => new Promise((r) => server.close(r)) };
+  return { origin, close: () => new Promise((r) => { child.once("exit", r); child.kill(); }) };
 }
 
 /** Debian's Chromium, headless, in a fresh profile; downloads allowed. */

@@ -247,6 +247,31 @@ fn test() -> Result<(), String> {
     Ok(())
 }
 
+/// `serve [--no-build] [--port N]`: builds the site (unless `--no-build`) and serves it from port N
+/// (8000 by default) or the next free one; `--port 0` takes any free port. The browser tests serve
+/// the page this way, so they see the same server and headers as a user of `cargo xtask demo`.
+fn serve(args: &[String]) -> Result<(), String> {
+    let mut port = 8000;
+    let mut build = true;
+    let mut rest = args.iter();
+    while let Some(a) = rest.next() {
+        match a.as_str() {
+            "--no-build" => build = false,
+            "--port" => {
+                port = rest
+                    .next()
+                    .and_then(|p| p.parse().ok())
+                    .ok_or("--port needs a port number (0 for any free port)")?;
+            }
+            other => return Err(format!("serve: unknown option {other}")),
+        }
+    }
+    if build {
+        site::build()?;
+    }
+    site::serve(port)
+}
+
 /// The built site and the npm packages that drive Chromium (tests/browser/package-lock.json).
 fn site_and_browser_driver() -> Result<(), String> {
     site::build()?;
@@ -321,11 +346,11 @@ fn main() -> ExitCode {
     let result = match args.first().map(String::as_str) {
         Some("demo") => demo(&args[1..]),
         Some("site") => site::build(),
-        Some("serve") => site::build().and_then(|()| site::serve(8000)),
+        Some("serve") => serve(&args[1..]),
         Some("test") => test(),
         Some("bench") => bench::bench(&args[1..]),
         Some("demo-data") => demo_data(),
-        _ => Err("usage: cargo xtask <demo [--no-serve] | site | serve | test | bench [--quick | --grid | --counts | --detector | --page] | demo-data>".into()),
+        _ => Err("usage: cargo xtask <demo [--no-serve] | site | serve [--no-build] [--port N] | test | bench [--quick | --grid | --counts | --detector | --page] | demo-data>".into()),
     };
     match result {
         Ok(()) => ExitCode::SUCCESS,

@@ -247,9 +247,14 @@ fn content_type(path: &Path) -> &'static str {
 /// Serves demo-site/ on 127.0.0.1 until stopped (Ctrl-C). Only GET and HEAD; nothing is written.
 pub fn serve(port: u16) -> Result<(), String> {
     let dir = root().join(SITE_DIR);
-    let listener = (port..port + 20)
+    let listener = (port..port.saturating_add(20))
         .find_map(|p| TcpListener::bind(("127.0.0.1", p)).ok())
-        .ok_or_else(|| format!("no free port on 127.0.0.1 from {port} to {}", port + 19))?;
+        .ok_or_else(|| {
+            format!(
+                "no free port on 127.0.0.1 from {port} to {}",
+                port.saturating_add(19)
+            )
+        })?;
     let addr = listener.local_addr().map_err(|e| e.to_string())?;
     println!("\nThe browser app is served at  http://{addr}/");
     println!(
