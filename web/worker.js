@@ -63,10 +63,11 @@ const ops = {
  * Finds moving objects in footage (a File or Blob) by decoding it here with WebCodecs: the core's
  * FootageReader reads the WebM or MP4 a range of bytes at a time, the browser's VideoDecoder
  * decodes, and each frame's own YUV bytes go to the motion detector (no drawing, no colour
- * conversion). Resolves to {summary, codec, container, frames, expected, stopped, frameRate}, where `stopped`
- * says why reading ended early (damaged footage: the frames before are kept), or to {fallback: reason} when this
- * footage or browser cannot be read this way, before any frame is searched; the page then draws the
- * frames one by one instead. `expected` is the page's estimate of the number of frames, for progress.
+ * conversion). Resolves to {summary, codec, container, frames, expected, stopped, frameRate},
+ * where `stopped` says why reading ended early (damaged footage: the frames before are kept), or
+ * to {fallback: reason} when this footage or browser cannot be read this way, before any frame is
+ * searched; the page then draws the frames one by one instead. `expected` is the page's estimate
+ * of the number of frames, for progress.
  */
 async function findInFootage(file, width, height, settings, expected, progress) {
   findCancelled = false;
