@@ -263,6 +263,30 @@ test("footage alone: the page decodes WebM and MP4 itself, finds what the comman
   await page.close();
 });
 
+test("a long tracking run can be cancelled; the detections and plan are kept and Run works again", async () => {
+  // Ten minutes of a busy simulated scene (15,000 frames, 30 in view) take seconds to track here.
+  const dir = join(scratch, "long");
+  execFileSync(cli, ["simulate", "--out-dir", dir, "--seed", "5", "--frames", "15000", "--density", "30", "--embedding-dim", "16"]);
+  const { page, seen } = await openPage(`${env.server.origin}/`);
+  await page.getByLabel("Open detections").setInputFiles(join(dir, "detections.csv"));
+  await page.waitForFunction(() => /15000 frames/.test(document.getElementById("detections-name").textContent));
+  await page.getByLabel("Open plan").setInputFiles(demo("plan.json"));
+  await page.getByLabel("Method").selectOption("deepsort");
+  await page.getByRole("button", { name: "Run", exact: true }).click();
+  await page.waitForFunction(() => /Tracking… frame \d+ of 15000/.test(document.getElementById("run-status").textContent));
+  await page.getByRole("button", { name: "Cancel", exact: true }).click();
+  await page.waitForFunction(() => /Tracking was cancelled/.test(document.getElementById("messages").textContent));
+  assert.equal(await page.locator("#results").isVisible(), false);
+  assert.equal(await page.getByRole("button", { name: "Export report" }).isEnabled(), false);
+  // The new engine has the detections and the plan: Run counts as before.
+  await page.getByLabel("Method").selectOption("sort");
+  await runAndWait(page);
+  await page.waitForSelector("#results:not([hidden])");
+  assert.match(await page.locator("#summary").innerText(), /plaza midline/);
+  assert.deepEqual(seen.errors, []);
+  await page.close();
+});
+
 test("damaged footage: the frames before the damage are searched and kept, with a message saying so", async () => {
   const { page, seen } = await openPage(`${env.server.origin}/`);
   // The demo footage with 4 KB overwritten half-way: the WebM reader stops there (checked natively

@@ -22,6 +22,8 @@ const state = {
   hasVideo: false,
   footageName: "",
   footageBlob: null, // the footage itself, for decoding in the worker
+  detectionsSource: null, // the detections as a file (Blob), to give a restarted engine
+  restoring: null, // while a restarted engine is given the detections and plan again
   detections: null, // summary from the core
   tracks: null, // TrackView
   report: null, // parsed report
@@ -383,7 +385,9 @@ async function openDetections(bytes, name) {
   clear("detections");
   $("detections-name").textContent = `${name} (reading…)`;
   try {
+    const source = new Blob([bytes]); // a copy: the bytes themselves go to the worker
     const summary = await engine.loadDetections(bytes);
+    state.detectionsSource = source;
     state.detections = summary;
     state.tracks = null;
     state.live = null;
@@ -561,6 +565,7 @@ $("find-objects").addEventListener("click", async () => {
     }
     if (!summary) summary = await findByDrawing(w, h, total, started);
     const seconds = (performance.now() - started) / 1000;
+    state.detectionsSource = new Blob([await engine.detectionsText()]);
     state.detections = summary;
     state.tracks = null;
     state.live = null;
@@ -588,7 +593,19 @@ $("find-objects").addEventListener("click", async () => {
 $("method").value = store.settings.method || "";
 $("method").addEventListener("change", (e) => store.setSetting("method", e.target.value));
 
+// Tracking runs in one piece inside the worker, so Cancel replaces the worker and gives the new
+// one the detections and plan again.
+$("cancel-run").addEventListener("click", () => {
+  $("cancel-run").hidden = true;
+  state.restoring = (async () => {
+    await engine.restart();
+    if (state.detectionsSource) await engine.loadDetections(await state.detectionsSource.arrayBuffer());
+    await sendPlan();
+  })().finally(() => { state.restoring = null; });
+});
+
 $("run").addEventListener("click", async () => {
+  if (state.restoring) await state.restoring;
   if (!state.detections) {
     say("run", "error", "Open a detections file first (Open detections): the boxes found in each frame, as text, CSV or JSON.");
     return;
@@ -598,6 +615,7 @@ $("run").addEventListener("click", async () => {
   bar.hidden = false;
   bar.value = 0;
   $("run").disabled = true;
+  $("cancel-run").hidden = false;
   $("run-status").textContent = "Tracking…";
   const started = performance.now();
   try {
@@ -616,9 +634,18 @@ $("run").addEventListener("click", async () => {
     redraw();
   } catch (e) {
     $("run-status").textContent = "";
-    say("run", "error", `Tracking stopped: ${e.message}`);
+    if (String(e.message).startsWith("cancelled")) {
+      state.tracks = null;
+      state.live = null;
+      setExports(false);
+      redraw();
+      say("run", "warn", "Tracking was cancelled. The detections and the plan are kept: press Run to track again.");
+    } else {
+      say("run", "error", `Tracking stopped: ${e.message}`);
+    }
   } finally {
     bar.hidden = true;
+    $("cancel-run").hidden = true;
     $("run").disabled = false;
   }
 });
@@ -697,7 +724,7 @@ function sources() {
 }
 
 const src = sources();
-const engine = new Engine(src.worker(), await src.wasm());
+const engine = new Engine(src.worker, await src.wasm());
 engine.ready.catch((e) => say("engine", "error", `The counting engine did not start: ${e.message}. Try a current Chromium, Firefox or Safari.`));
 
 /** Opens the bundled demo: footage, detections and, unless the user has a plan of their own, its plan. */

@@ -1,18 +1,39 @@
 // The page's side of the worker: each call returns a promise; tracking reports progress.
 
 export class Engine {
-  /** `worker` is a started Worker running worker.js; `wasmBytes` the core's WebAssembly. */
-  constructor(worker, wasmBytes) {
-    this.worker = worker;
+  /** `makeWorker()` starts a Worker running worker.js; `wasmBytes` is the core's WebAssembly. */
+  constructor(makeWorker, wasmBytes) {
+    this.makeWorker = makeWorker;
+    this.wasmBytes = wasmBytes;
     this.nextId = 1;
     this.pending = new Map();
+    this.start();
+  }
+
+  start() {
+    const worker = this.makeWorker();
+    this.worker = worker;
     worker.onmessage = (event) => this.receive(event.data);
-    worker.onerror = (event) => {
-      const message = event.message || "the engine stopped";
-      for (const p of this.pending.values()) p.reject(new Error(message));
-      this.pending.clear();
-    };
-    this.ready = this.call("init", [wasmBytes], [wasmBytes.buffer || wasmBytes]);
+    worker.onerror = (event) => this.failAll(event.message || "the engine stopped");
+    const copy = this.wasmBytes.slice();
+    this.ready = this.call("init", [copy], [copy.buffer]);
+  }
+
+  failAll(message) {
+    for (const p of this.pending.values()) p.reject(new Error(message));
+    this.pending.clear();
+  }
+
+  /**
+   * Stops whatever the engine is doing by starting a fresh worker: calls under way reject with a
+   * message starting "cancelled", and everything the old worker held (detections, plan, tracks)
+   * is gone, so the page gives it its detections and plan again. Resolves when the new one is up.
+   */
+  restart() {
+    this.worker.terminate();
+    this.failAll("cancelled");
+    this.start();
+    return this.ready;
   }
 
   receive(data) {
