@@ -222,6 +222,9 @@ test("footage alone: the page decodes WebM and MP4 itself, finds what the comman
   const found = Number(status.match(/Found (\d+)/)[1]);
   // The demo has about 12 people in view over 700 frames after the warm-up.
   assert.ok(found > 3000, `${found} boxes`);
+  // The page suggests the steadier crossing margin for boxes found in footage; one click sets it.
+  await page.getByRole("button", { name: "Use 0.35" }).click();
+  assert.equal(await page.getByLabel("Crossing margin (× box height)").inputValue(), "0.35");
   await runAndWait(page);
   await page.waitForSelector("#results:not([hidden])");
   assert.match(await page.locator("#summary").innerText(), /plaza midline/);
@@ -246,6 +249,12 @@ test("footage alone: the page decodes WebM and MP4 itself, finds what the comman
   assert.ok(rows.every((r) => /,(pedestrian|cyclist|vehicle)$/.test(r)));
   // Chromium's VP9 decoder and ffmpeg's give the same pixels, so the same boxes, byte for byte.
   assert.equal(exported, detectWithFfmpeg(demo("footage.webm"), settings), "page's detections equal throughline detect on ffmpeg's frames");
+  // The saved plan carries the margin, and throughline run on the exported files gives the page's report.
+  const planPath = await saveDownload(page, "Save plan");
+  assert.equal(JSON.parse(readFileSync(planPath, "utf8")).rules.hysteresis, 0.35);
+  const cliReport = join(scratch, "footage-report.json");
+  execFileSync(cli, ["run", exportedPath, "--plan", planPath, "-o", cliReport, "-q"]);
+  assert.deepEqual(JSON.parse(readFileSync(cliReport, "utf8")), report, "report equals throughline run on the exported detections and plan");
   await screenshot(page, "9-counted-from-footage");
 
   // H.264 in MP4 with B-frames (frames stored out of display order), made by ffmpeg from the demo

@@ -85,6 +85,7 @@ function renderPlanPanel() {
   $("start-time").value = plan.start ?? "";
   $("interval-minutes").value = plan.interval_minutes ?? 15;
   $("anchor").value = plan.anchor || "bottom";
+  $("hysteresis").value = plan.rules && plan.rules.hysteresis !== undefined ? plan.rules.hysteresis : "";
 
   const edit = (fn) => store.change(fn, "edit");
   $("line-list").replaceChildren(
@@ -167,6 +168,18 @@ bindSetting("frame-rate", "frame_rate", (v) => (v === "" ? null : Number(v)));
 bindSetting("start-time", "start", (v) => (v ? (v.length === 16 ? `${v}:00` : v) : null));
 bindSetting("interval-minutes", "interval_minutes", (v) => (v === "" ? null : Number(v)));
 bindSetting("anchor", "anchor", (v) => v);
+$("hysteresis").addEventListener("change", (e) => setHysteresis(e.target.value === "" ? null : Number(e.target.value)));
+
+/** The plan's `rules.hysteresis` (null: the default, 0.15). */
+function setHysteresis(v) {
+  store.change((p) => {
+    const rules = { ...(p.rules || {}) };
+    if (v === null) delete rules.hysteresis;
+    else rules.hysteresis = v;
+    if (Object.keys(rules).length) p.rules = rules;
+    else delete p.rules;
+  }, "edit");
+}
 
 // ---------------------------------------------------------------- drawing
 
@@ -574,6 +587,12 @@ $("find-objects").addEventListener("click", async () => {
     $("detections-name").textContent = `found in ${state.footageName}: ${summary.rows} boxes, ${summary.frames} frames`;
     updateFrameRange();
     $("find-status").textContent = `Found ${summary.rows} moving objects over ${summary.frames} frames in ${seconds.toFixed(1)} s${how}. Press Run to track and count them.`;
+    const margin = store.plan.rules && store.plan.rules.hysteresis;
+    if (!(margin >= 0.35)) {
+      say("margin", "ok", "Boxes found in footage jump when two people join or split near a line. A crossing margin of 0.35 box heights counts them more steadily (docs/detector-settings.md).", [
+        el("button", { type: "button", text: "Use 0.35", onclick: () => { setHysteresis(0.35); clear("margin"); } }),
+      ]);
+    }
     $("run-status").textContent = "Ready: press Run to track and count.";
   } catch (e) {
     $("find-status").textContent = "";
