@@ -170,12 +170,16 @@ bindSetting("interval-minutes", "interval_minutes", (v) => (v === "" ? null : Nu
 bindSetting("anchor", "anchor", (v) => v);
 $("hysteresis").addEventListener("change", (e) => setHysteresis(e.target.value === "" ? null : Number(e.target.value)));
 
-/** The plan's `rules.hysteresis` (null: the default, 0.15). */
-function setHysteresis(v) {
+/**
+ * The plan's `rules.hysteresis` (null: the default, 0.15); `zones`, when given, sets
+ * `rules.zone_hysteresis` too (zone edges keep their own margin).
+ */
+function setHysteresis(v, zones) {
   store.change((p) => {
     const rules = { ...(p.rules || {}) };
     if (v === null) delete rules.hysteresis;
     else rules.hysteresis = v;
+    if (zones !== undefined && rules.zone_hysteresis === undefined) rules.zone_hysteresis = zones;
     if (Object.keys(rules).length) p.rules = rules;
     else delete p.rules;
   }, "edit");
@@ -589,8 +593,8 @@ $("find-objects").addEventListener("click", async () => {
     $("find-status").textContent = `Found ${summary.rows} moving objects over ${summary.frames} frames in ${seconds.toFixed(1)} s${how}. Press Run to track and count them.`;
     const margin = store.plan.rules && store.plan.rules.hysteresis;
     if (!(margin >= 0.35)) {
-      say("margin", "ok", "Boxes found in footage jump when two people join or split near a line. A crossing margin of 0.35 box heights counts them more steadily (docs/detector-settings.md).", [
-        el("button", { type: "button", text: "Use 0.35", onclick: () => { setHysteresis(0.35); clear("margin"); } }),
+      say("margin", "ok", "Boxes found in footage jump when two people join or split near a line. A crossing margin of 0.35 box heights counts line crossings more steadily (zones keep 0.15: people leaving a zone at the picture's edge are soon out of sight). See docs/detector-settings.md.", [
+        el("button", { type: "button", text: "Use 0.35", onclick: () => { setHysteresis(0.35, 0.15); clear("margin"); } }),
       ]);
     }
     $("run-status").textContent = "Ready: press Run to track and count.";

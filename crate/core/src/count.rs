@@ -732,7 +732,7 @@ pub fn count(tracks: &Tracks, plan: &Plan, tracker: Option<&TrackerConfig>) -> R
         let mut occupancy = vec![0u64; frame_count as usize + 2];
         let mut dwell = Vec::new();
         for (ci, c) in counted.iter().enumerate() {
-            for v in visits(c, zone, hysteresis) {
+            for v in visits(c, zone, spec.rules.zone_hysteresis()) {
                 for f in v.first_frame..=v.last_frame {
                     if let Some(o) = occupancy.get_mut(f as usize) {
                         *o += 1;

@@ -75,6 +75,17 @@ pub struct Rules {
     /// Largest distance between where the ended track was heading and where the new one starts, as a
     /// multiple of the box height.
     pub join_box_heights: f64,
+    /// The hysteresis for zone edges where it should differ from `hysteresis` (lines): a zone near
+    /// the edge of the picture cannot be left by much before its leaver is out of sight.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub zone_hysteresis: Option<f64>,
+}
+
+impl Rules {
+    /// The hysteresis for zone entries and exits.
+    pub fn zone_hysteresis(&self) -> f64 {
+        self.zone_hysteresis.unwrap_or(self.hysteresis)
+    }
 }
 
 impl Default for Rules {
@@ -83,6 +94,7 @@ impl Default for Rules {
             hysteresis: 0.15,
             join_seconds: 2.0,
             join_box_heights: 1.0,
+            zone_hysteresis: None,
         }
     }
 }
@@ -221,6 +233,14 @@ impl Plan {
         if !(r.hysteresis.is_finite() && (0.0..=2.0).contains(&r.hysteresis)) {
             return Err(err(
                 "rules.hysteresis",
+                "must be between 0 and 2 (a fraction of the box height)",
+            ));
+        }
+        if r.zone_hysteresis
+            .is_some_and(|h| !(h.is_finite() && (0.0..=2.0).contains(&h)))
+        {
+            return Err(err(
+                "rules.zone_hysteresis",
                 "must be between 0 and 2 (a fraction of the box height)",
             ));
         }

@@ -385,3 +385,31 @@ fn report_carries_plan_caution_and_every_event() {
     assert!(json["screenlines"][0]["by_class"]["pedestrian"].is_object());
     assert_eq!(json["events"].as_array().unwrap().len(), 1);
 }
+
+#[test]
+fn zone_edges_can_have_their_own_hysteresis() {
+    // A zone whose bottom edge is y = 300; a walker (box height 50) goes down from inside it to
+    // y = 312, 12 px = 0.24 box heights past the edge, and is then lost (the edge of the picture).
+    // The line rule 0.35 asks for 17.5 px: no exit. With zone_hysteresis 0.15 (7.5 px) it exits.
+    let zone =
+        r#""zones": [{"name": "kiosk", "polygon": [[100,200],[300,200],[300,300],[100,300]]}]"#;
+    let path = walk(1, 29, 200.0, 250.0, 0.0, 2.2); // y 250 .. 311.6
+    let exits = |rules: &str| {
+        let plan = format!(r#"{{"frame_rate": 10, {zone}, "rules": {rules}}}"#);
+        run(&plan, vec![track(1, "pedestrian", &path)]).zones[0].exits
+    };
+    assert_eq!(exits(r#"{"hysteresis": 0.35}"#), 0);
+    assert_eq!(exits(r#"{"hysteresis": 0.35, "zone_hysteresis": 0.15}"#), 1);
+    assert_eq!(
+        exits(r#"{"hysteresis": 0.15}"#),
+        1,
+        "without it, zones follow hysteresis"
+    );
+    let bad = Plan::from_json(&format!(
+        r#"{{"frame_rate": 10, {zone}, "rules": {{"zone_hysteresis": 3}}}}"#
+    ));
+    assert!(bad
+        .unwrap_err()
+        .to_string()
+        .contains("rules.zone_hysteresis"));
+}
