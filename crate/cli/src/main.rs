@@ -701,6 +701,13 @@ fn run_run(
         Source::Detections(path) => track_file(path, method, config, quiet, &mut timer)?,
         Source::Footage(footage, detector_config) => {
             let settings = read_settings(config)?;
+            if !quiet && !plan.screenlines.is_empty() && plan.spec.rules.hysteresis < 0.35 {
+                eprintln!(
+                    "note: boxes found in footage jump where people join or split near a line; \
+                     rules.hysteresis 0.35 in the plan (zone_hysteresis 0.15) counts them more \
+                     steadily (docs/detector-settings.md)"
+                );
+            }
             let dets = detect_footage(footage, detector_config, quiet)?;
             let flag_method = method.and_then(track::Method::parse);
             track_detections(&dets, footage, flag_method, settings, quiet, &mut timer)?

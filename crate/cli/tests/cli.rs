@@ -550,12 +550,17 @@ fn detect_finds_moving_objects_in_footage_from_a_file_and_from_standard_input() 
         &plan,
         "-o",
         report.to_str().unwrap(),
-        "-q",
     ]);
     assert!(o.status.success(), "{}", stderr(&o));
     assert!(std::fs::read_to_string(&report)
         .unwrap()
         .contains("\"screenlines\""));
+    // The demo plan keeps the default margin: the note suggests the steadier one for footage.
+    assert!(
+        stderr(&o).contains("rules.hysteresis 0.35"),
+        "{}",
+        stderr(&o)
+    );
 
     // With the two heights each box gets a guessed class, so detect writes CSV with a class
     // column; detect then run gives the report run --y4m gives. Likewise with colour histograms
