@@ -146,6 +146,53 @@ fn webm_vp9_and_vp8_match_ffprobe() {
 }
 
 #[test]
+fn fragmented_mp4_and_vp9_in_mp4_match_ffprobe() {
+    // Fragmented MP4 (as streaming cameras and browsers record): the frames are in moof boxes.
+    let frag = encode(
+        "frag.mp4",
+        60,
+        &[
+            "-c:v",
+            "libx264",
+            "-movflags",
+            "frag_keyframe+empty_moov",
+            "-an",
+        ],
+    );
+    let (track, chunks) = read_all(&frag);
+    assert_same_frames(&chunks, &probe_packets(&frag));
+    assert!(track.codec.starts_with("avc1."), "{}", track.codec);
+    let vp9 = encode(
+        "vp9.mp4",
+        40,
+        &["-c:v", "libvpx-vp9", "-b:v", "300k", "-an"],
+    );
+    let (track, chunks) = read_all(&vp9);
+    assert_same_frames(&chunks, &probe_packets(&vp9));
+    assert!(track.codec.starts_with("vp09.00."), "{}", track.codec);
+    assert_eq!(
+        track.description, None,
+        "VP9 takes no description in WebCodecs"
+    );
+}
+
+#[test]
+fn av1_webm_matches_ffprobe() {
+    let path = encode(
+        "clip-av1.webm",
+        20,
+        &["-c:v", "libaom-av1", "-cpu-used", "8", "-an"],
+    );
+    let (track, chunks) = read_all(&path);
+    assert_same_frames(&chunks, &probe_packets(&path));
+    // av01.profile.levelTier.depth from the av1C record the WebM carries; ffprobe's profile 0 is Main.
+    assert!(track.codec.starts_with("av01.0."), "{}", track.codec);
+    assert!(track.codec.ends_with(".08"), "8-bit: {}", track.codec);
+    assert_eq!(probe_stream(&path, "profile"), "Main");
+    assert!(track.description.is_some(), "AV1 takes its av1C record");
+}
+
+#[test]
 fn the_demo_footage_reads_whole() {
     let (track, chunks) = read_all(Path::new(DEMO_FOOTAGE));
     assert_same_frames(&chunks, &probe_packets(Path::new(DEMO_FOOTAGE)));
