@@ -576,8 +576,12 @@ $("find-objects").addEventListener("click", async () => {
       showFrameRate(found.frameRate, "is coded at");
       if (found.stopped) {
         say("find", "warn", `Reading the footage stopped early: ${found.stopped}. The objects found in frames 1 to ${found.frames} are kept; the rest of the footage was not searched. The file may be damaged or cut short: re-encode it with ffmpeg and search again to count all of it.`);
-      } else if (found.frames < 0.98 * found.expected) {
-        say("find", "warn", `Only ${found.frames} frames could be read, but the footage should have about ${found.expected}. The file may be damaged: re-encode it with ffmpeg and search again to count all of it.`);
+      } else {
+        // The footage's own rate, where the decoder told it, not the plan's (which may be wrong).
+        const expected = found.frameRate ? Math.round(video.duration * found.frameRate) : found.expected;
+        if (found.frames < 0.98 * expected) {
+          say("find", "warn", `Only ${found.frames} frames could be read, but the footage should have about ${expected}. The file may be damaged: re-encode it with ffmpeg and search again to count all of it.`);
+        }
       }
     }
     if (!summary) summary = await findByDrawing(w, h, total, started);
