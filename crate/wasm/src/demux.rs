@@ -51,6 +51,8 @@ pub enum Demuxer<R: Read + Seek> {
         samples: Vec<re_mp4::Sample>,
         timescale: u64,
         next: usize,
+        /// The file's size: a frame said to reach past it is refused before anything is allocated.
+        size: u64,
     },
 }
 
@@ -96,6 +98,7 @@ impl<R: Read + Seek> Demuxer<R> {
                 samples,
                 timescale,
                 next,
+                size,
             } => {
                 let Some(sample) = samples.get(*next) else {
                     return Ok(None);
@@ -107,11 +110,17 @@ impl<R: Read + Seek> Demuxer<R> {
                         *next
                     )
                 };
+                if sample.offset.saturating_add(sample.size) > *size {
+                    return Err(format!(
+                        "frame {} lies outside the file; is it cut short?",
+                        *next
+                    ));
+                }
                 reader
                     .seek(SeekFrom::Start(sample.offset))
                     .map_err(broken)?;
-                let size = usize::try_from(sample.size).map_err(|e| e.to_string())?;
-                let mut data = vec![0u8; size];
+                let len = usize::try_from(sample.size).map_err(|e| e.to_string())?;
+                let mut data = vec![0u8; len];
                 reader.read_exact(&mut data).map_err(broken)?;
                 Ok(Some(Chunk {
                     data,
@@ -314,6 +323,7 @@ fn open_mp4<R: Read + Seek>(
         samples: track.samples.clone(),
         timescale: track.timescale,
         next: 0,
+        size,
     };
     Ok((demuxer, info))
 }

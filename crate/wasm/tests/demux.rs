@@ -237,6 +237,33 @@ fn damaged_footage_is_refused_or_stops_with_a_message() {
         .err()
         .unwrap();
     assert!(err.contains("WebM"), "{err}");
+    // An MP4 whose chunk offset table (stco, ISO/IEC 14496-12) points its last chunk (here the
+    // only one: ffmpeg put all 60 frames in one) far past the end of the file: the frames before
+    // it, then a message; nothing is allocated for frames the file does not hold.
+    let mut bad = std::fs::read(encode(
+        "fast.mp4",
+        60,
+        &["-c:v", "libx264", "-movflags", "+faststart", "-an"],
+    ))
+    .unwrap();
+    let at = bad
+        .windows(4)
+        .position(|w| w == b"stco")
+        .expect("an stco box");
+    let entries = u32::from_be_bytes(bad[at + 8..at + 12].try_into().unwrap()) as usize;
+    let last = at + 12 + 4 * (entries - 1);
+    bad[last..last + 4].copy_from_slice(&0xFFFF_FF00u32.to_be_bytes());
+    let (mut demuxer, _) = Demuxer::open(std::io::Cursor::new(&bad), bad.len() as u64).unwrap();
+    let mut n = 0;
+    let err = loop {
+        match demuxer.next_chunk() {
+            Ok(Some(_)) => n += 1,
+            Ok(None) => panic!("a frame outside the file ends with a message, not silently"),
+            Err(e) => break e,
+        }
+    };
+    assert!(n < 60, "{n} frames before the bad chunk");
+    assert!(err.contains("lies outside the file"), "{err}");
     // An MP4 whose sample table is gone.
     let mp4 = std::fs::read(encode("cut.mp4", 10, &["-c:v", "libx264", "-an"])).unwrap();
     let cut = &mp4[..mp4.len().min(600)];
