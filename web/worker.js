@@ -116,7 +116,7 @@ async function decodeAndSearch(reader, width, height, settings, expected, progre
 
   let done = 0;
   let last = 0;
-  const canvas = { c: null, g: null };
+  const scratch = { bytes: null, canvas: null, g: null };
   try {
     for (;;) {
       if (findCancelled) throw new Error("cancelled; the detections opened before are kept");
@@ -128,7 +128,7 @@ async function decodeAndSearch(reader, width, height, settings, expected, progre
         const frame = waiting.shift();
         if (times.length < 250) times.push(frame.timestamp);
         try {
-          await searchFrame(frame, width, height, canvas);
+          await searchFrame(frame, width, height, scratch);
         } finally {
           frame.close();
         }
@@ -175,21 +175,25 @@ function frameRate(times) {
   return steps.length ? 1e6 / steps[steps.length >> 1] : null;
 }
 
-/** One decoded frame to the detector: its own I420/NV12 bytes when it is the page's size, else drawn as RGBA. */
-async function searchFrame(frame, width, height, canvas) {
+/**
+ * One decoded frame to the detector: its own I420/NV12 bytes when it is the page's size, else
+ * drawn as RGBA. `scratch` keeps the byte buffer and the canvas from frame to frame.
+ */
+async function searchFrame(frame, width, height, scratch) {
   const rect = frame.visibleRect;
   const direct = (frame.format === "I420" || frame.format === "NV12") && rect.width === width && rect.height === height;
   if (direct) {
-    const bytes = new Uint8Array(frame.allocationSize({ rect }));
-    await frame.copyTo(bytes, { rect });
-    return session.detectYuv(bytes, width, height, frame.format);
+    const size = frame.allocationSize({ rect });
+    if (!scratch.bytes || scratch.bytes.length !== size) scratch.bytes = new Uint8Array(size);
+    await frame.copyTo(scratch.bytes, { rect });
+    return session.detectYuv(scratch.bytes, width, height, frame.format);
   }
-  if (!canvas.c) {
-    canvas.c = new OffscreenCanvas(width, height);
-    canvas.g = canvas.c.getContext("2d", { willReadFrequently: true });
+  if (!scratch.canvas) {
+    scratch.canvas = new OffscreenCanvas(width, height);
+    scratch.g = scratch.canvas.getContext("2d", { willReadFrequently: true });
   }
-  canvas.g.drawImage(frame, 0, 0, width, height);
-  return session.detectRgba(new Uint8Array(canvas.g.getImageData(0, 0, width, height).data.buffer), width, height);
+  scratch.g.drawImage(frame, 0, 0, width, height);
+  return session.detectRgba(new Uint8Array(scratch.g.getImageData(0, 0, width, height).data.buffer), width, height);
 }
 
 // The report and counts CSV when tracks and a plan are both there, otherwise null.

@@ -258,21 +258,16 @@ fn main() -> ExitCode {
             config,
             quiet,
             stats,
-        } => {
-            let mut timer = Timer::new();
-            let r = run_track(
+        } => timed(stats, |timer| {
+            run_track(
                 &detections,
                 output.as_deref(),
                 method.as_deref(),
                 config.as_deref(),
                 quiet,
-                &mut timer,
-            );
-            if stats {
-                timer.print();
-            }
-            r
-        }
+                timer,
+            )
+        }),
         Command::Run {
             detections,
             y4m,
@@ -307,20 +302,9 @@ fn main() -> ExitCode {
             config,
             quiet,
             stats,
-        } => {
-            let mut timer = Timer::new();
-            let r = run_detect(
-                &y4m,
-                output.as_deref(),
-                config.as_deref(),
-                quiet,
-                &mut timer,
-            );
-            if stats {
-                timer.print();
-            }
-            r
-        }
+        } => timed(stats, |timer| {
+            run_detect(&y4m, output.as_deref(), config.as_deref(), quiet, timer)
+        }),
         Command::Count {
             tracks,
             plan,
@@ -767,6 +751,17 @@ fn write_report(report: &count::Report, out: &Outputs, quiet: bool) -> Result<()
         eprintln!("{}", count::CAUTION);
     }
     Ok(())
+}
+
+/// Runs a command with a [`Timer`]; with `--stats`, prints its laps and peak memory at the end,
+/// whether the command succeeded or not.
+fn timed(stats: bool, run: impl FnOnce(&mut Timer) -> Result<(), Failure>) -> Result<(), Failure> {
+    let mut timer = Timer::new();
+    let result = run(&mut timer);
+    if stats {
+        timer.print();
+    }
+    result
 }
 
 /// Time per stage of a run, and the peak resident memory (Linux `VmHWM`), for `--stats`.

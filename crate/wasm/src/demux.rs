@@ -42,9 +42,8 @@ pub enum Demuxer<R: Read + Seek> {
         track: u64,
         /// Nanoseconds per unit of the file's timestamps.
         scale_ns: u64,
-        /// A frame read ahead while opening (the VP9 profile is in its header).
+        /// The first frame, read ahead while opening (the VP9 profile is in its header).
         pending: Option<Chunk>,
-        seen_any: bool,
     },
     Mp4 {
         reader: R,
@@ -84,15 +83,10 @@ impl<R: Read + Seek> Demuxer<R> {
                 track,
                 scale_ns,
                 pending,
-                seen_any,
-            } => {
-                if let Some(chunk) = pending.take() {
-                    return Ok(Some(chunk));
-                }
-                let chunk = next_webm_frame(file, *track, *scale_ns, !*seen_any)?;
-                *seen_any |= chunk.is_some();
-                Ok(chunk)
-            }
+            } => match pending.take() {
+                Some(first) => Ok(Some(first)),
+                None => next_webm_frame(file, *track, *scale_ns, false),
+            },
             Demuxer::Mp4 {
                 reader,
                 samples,
@@ -217,7 +211,6 @@ fn open_webm<R: Read + Seek>(reader: R) -> Result<(Demuxer<R>, VideoTrack), Demu
         track,
         scale_ns,
         pending: Some(first),
-        seen_any: true,
     };
     Ok((demuxer, info))
 }
@@ -305,12 +298,12 @@ fn open_mp4<R: Read + Seek>(
     if track.samples.is_empty() {
         return Err("the MP4's video track has no frames".into());
     }
+    // VP8 and VP9 take no description in WebCodecs; H.264, HEVC and AV1 take their record.
+    let vpx = codec == "vp8" || codec.starts_with("vp09");
     let info = VideoTrack {
         container: "mp4",
+        description: track.raw_codec_config(&mp4).filter(|_| !vpx),
         codec,
-        description: track
-            .raw_codec_config(&mp4)
-            .filter(|_| needs_description(track, &mp4)),
         coded_width: u32::from(track.width),
         coded_height: u32::from(track.height),
         frames: u32::try_from(track.samples.len()).ok(),
@@ -326,13 +319,6 @@ fn open_mp4<R: Read + Seek>(
         size,
     };
     Ok((demuxer, info))
-}
-
-/// VP8 and VP9 take no description in WebCodecs; H.264, HEVC and AV1 take their record.
-fn needs_description(track: &re_mp4::Track, mp4: &re_mp4::Mp4) -> bool {
-    track
-        .codec_string(mp4)
-        .is_some_and(|c| !c.starts_with("vp0") && c != "vp8")
 }
 
 #[cfg(test)]

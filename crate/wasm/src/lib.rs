@@ -22,6 +22,19 @@ fn js_error(message: impl std::fmt::Display) -> JsError {
     JsError::new(&message.to_string())
 }
 
+/// One box as [`BOX_STRIDE`] values: id, x, y, w, h, observed (1/0).
+fn box_values(id: u32, b: &track::TrackBox) -> [f32; BOX_STRIDE] {
+    let bb = b.bbox;
+    [
+        id as f32,
+        bb.x as f32,
+        bb.y as f32,
+        bb.w as f32,
+        bb.h as f32,
+        f32::from(u8::from(b.observed)),
+    ]
+}
+
 fn short_frame() -> JsError {
     js_error("the frame holds fewer pixels than its size says")
 }
@@ -312,15 +325,7 @@ impl Session {
                 continue;
             }
             if let Some(b) = t.boxes.get((frame - t.first_frame()) as usize) {
-                let bb = b.bbox;
-                out.extend_from_slice(&[
-                    t.id as f32,
-                    bb.x as f32,
-                    bb.y as f32,
-                    bb.w as f32,
-                    bb.h as f32,
-                    f32::from(u8::from(b.observed)),
-                ]);
+                out.extend_from_slice(&box_values(t.id, b));
             }
         }
         Float32Array::from(out.as_slice())
@@ -334,16 +339,9 @@ impl Session {
         let mut rows: Vec<[f32; FRAME_BOX_STRIDE]> = Vec::new();
         for t in self.tracks.iter().flat_map(|t| &t.tracks) {
             for b in &t.boxes {
-                let bb = b.bbox;
-                rows.push([
-                    b.frame as f32,
-                    t.id as f32,
-                    bb.x as f32,
-                    bb.y as f32,
-                    bb.w as f32,
-                    bb.h as f32,
-                    f32::from(u8::from(b.observed)),
-                ]);
+                let mut row = [b.frame as f32; FRAME_BOX_STRIDE];
+                row[1..].copy_from_slice(&box_values(t.id, b));
+                rows.push(row);
             }
         }
         rows.sort_by(|a, b| a[0].total_cmp(&b[0]).then(a[1].total_cmp(&b[1])));

@@ -263,13 +263,8 @@ fn measure_scene(
                 .collect();
             Ok((sc.hota, sc.idf1, sc.id_switches, counts))
         };
-    for method in ["iou", "sort", "bytetrack", "deepsort"] {
-        let input = if method == "deepsort" {
-            "detections.csv"
-        } else {
-            "detections.txt"
-        };
-        let inp = dir.join(input).display().to_string();
+    for method in METHODS {
+        let inp = detections_for(&dir, method);
         // Timed with benchmark text output, as the peer writes; then once more, untimed, as JSON for
         // scoring and counting (it keeps classes and the observed/predicted flags).
         let txt = dir.join(format!("{method}.txt")).display().to_string();
@@ -484,6 +479,31 @@ pub fn bench(args: &[String]) -> Result<(), String> {
     Ok(())
 }
 
+/// Every tracking method, in the tables' order.
+const METHODS: [&str; 4] = ["iou", "sort", "bytetrack", "deepsort"];
+
+/// The simulator's detections for `method`: with appearance vectors (CSV) for deepsort, else the
+/// benchmark text.
+fn detections_for(dir: &Path, method: &str) -> String {
+    let file = if method == "deepsort" {
+        "detections.csv"
+    } else {
+        "detections.txt"
+    };
+    dir.join(file).display().to_string()
+}
+
+/// One method's count accuracy summed over the scenes of one miss rate.
+#[derive(Clone, Copy, Default)]
+struct Tally {
+    /// True forward, true backward, counted forward, counted backward.
+    crossings: [u64; 4],
+    /// The largest error of one direction in one scene, %.
+    worst: f64,
+    missed: usize,
+    extra: usize,
+}
+
 /// Seeds of the count-accuracy table: five scenes of two minutes each per miss rate.
 const COUNT_SEEDS: [u64; 5] = [42, 43, 44, 45, 46];
 
@@ -497,8 +517,7 @@ fn counts_bench() -> Result<(), String> {
     let (width, height) = (640.0, 360.0);
     let mut lines = Vec::new();
     for miss in [0.10, 0.15] {
-        // method -> (tf, tb, cf, cb, worst scene error %, missed, extra)
-        let mut sums: Vec<(String, [u64; 4], f64, usize, usize)> = Vec::new();
+        let mut tallies = [Tally::default(); METHODS.len()];
         for seed in COUNT_SEEDS {
             let (dir, p) = simulate_scene(
                 &bin,
@@ -515,13 +534,8 @@ fn counts_bench() -> Result<(), String> {
                 },
             )?;
             let truth = read_json(&dir.join("truth_report.json"))?;
-            for (k, method) in ["iou", "sort", "bytetrack", "deepsort"].iter().enumerate() {
-                let input = if *method == "deepsort" {
-                    "detections.csv"
-                } else {
-                    "detections.txt"
-                };
-                let inp = dir.join(input).display().to_string();
+            for (tally, method) in tallies.iter_mut().zip(METHODS) {
+                let inp = detections_for(&dir, method);
                 let out = dir.join(format!("{method}-report.json"));
                 let o = out.display().to_string();
                 run(
@@ -534,25 +548,22 @@ fn counts_bench() -> Result<(), String> {
                 let (tf, tb, cf, cb) = crossing_sums(&truth, &counted);
                 let (missed, extra) = event_errors(&truth, &counted);
                 let pct = |c: u64, t: u64| 100.0 * (c as f64 - t as f64).abs() / (t.max(1) as f64);
-                let worst = pct(cf, tf).max(pct(cb, tb));
-                if sums.len() <= k {
-                    sums.push((method.to_string(), [0; 4], 0.0, 0, 0));
+                tally.worst = tally.worst.max(pct(cf, tf).max(pct(cb, tb)));
+                for (sum, n) in tally.crossings.iter_mut().zip([tf, tb, cf, cb]) {
+                    *sum += n;
                 }
-                let e = &mut sums[k];
-                for (a, b) in e.1.iter_mut().zip([tf, tb, cf, cb]) {
-                    *a += b;
-                }
-                e.2 = e.2.max(worst);
-                e.3 += missed;
-                e.4 += extra;
+                tally.missed += missed;
+                tally.extra += extra;
             }
         }
-        for (method, [tf, tb, cf, cb], worst, missed, extra) in &sums {
+        for (t, method) in tallies.iter().zip(METHODS) {
+            let [tf, tb, cf, cb] = t.crossings;
+            let (worst, missed, extra) = (t.worst, t.missed, t.extra);
             lines.push(format!(
                 "| {:.0}% | {method} | {tf}/{tb} → {cf}/{cb} | {} | {} | {worst:.1}% | {missed} | {extra} |",
                 miss * 100.0,
-                error(*cf, *tf),
-                error(*cb, *tb),
+                error(cf, tf),
+                error(cb, tb),
             ));
         }
     }
