@@ -203,6 +203,7 @@ fn test() -> Result<(), String> {
         ],
     )?;
     run("cargo", &["test", "--workspace"])?;
+    ensure_wasm_tools()?;
     // The core must stay free of the browser, files, clocks and the terminal: prove it builds for wasm.
     run(
         "cargo",
