@@ -7,7 +7,10 @@ use clap::{Parser, Subcommand};
 use indicatif::{ProgressBar, ProgressStyle};
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
-use throughline_core::{count, detections, motion, plan, score, sim, track, tracks_io, y4m};
+use throughline_core::{count, detections, motion, plan, track, tracks_io};
+use throughline_eval::tracking_metrics as score;
+use throughline_footage::y4m;
+use throughline_sim as sim;
 
 #[derive(Parser)]
 #[command(
@@ -896,8 +899,8 @@ fn render_scene(cfg: &sim::SceneConfig, path: &Path) -> Result<sim::Scene, Failu
         Box::new(std::fs::File::create(path).map_err(cannot)?)
     };
     let mut out = std::io::BufWriter::new(sink);
-    let mut renderer = throughline_core::render::Renderer::new(cfg);
-    let header = throughline_core::render::y4m_header(renderer.width(), renderer.height());
+    let mut renderer = throughline_sim::render::Renderer::new(cfg);
+    let header = throughline_sim::render::y4m_header(renderer.width(), renderer.height());
     out.write_all(header.as_bytes()).map_err(cannot)?;
     let bar = ProgressBar::new(u64::from(cfg.frames));
     let mut failure = None;
@@ -948,7 +951,7 @@ fn read_json_value(path: &Path) -> Result<serde_json::Value, Failure> {
 }
 
 fn run_score_counts(truth: &Path, report: &Path, json: bool) -> Result<(), Failure> {
-    use throughline_core::accuracy;
+    use throughline_eval::count_accuracy as accuracy;
     let automated =
         accuracy::report_rows(&read_json_value(report)?).map_err(|e| bad_input(report, e))?;
     let bytes = read_file(truth)?;
@@ -1016,7 +1019,7 @@ fn run_tune(
     method: Option<&str>,
     output: Option<&Path>,
 ) -> Result<(), Failure> {
-    use throughline_core::tune;
+    use throughline_eval::tune;
     let metric = tune::Metric::parse(metric).unwrap_or(tune::Metric::Hota);
     let dets = detections::read_detections(&read_file(detections)?)
         .map_err(|e| bad_input(detections, e))?;

@@ -156,7 +156,7 @@ pub struct ReadError {
 }
 
 impl ReadError {
-    pub(crate) fn new(kind: ReadErrorKind, message: impl Into<String>) -> Self {
+    pub fn new(kind: ReadErrorKind, message: impl Into<String>) -> Self {
         Self {
             kind,
             line: None,
@@ -165,7 +165,7 @@ impl ReadError {
         }
     }
 
-    pub(crate) fn at(mut self, line: usize, column: Option<usize>) -> Self {
+    pub fn at(mut self, line: usize, column: Option<usize>) -> Self {
         self.line = Some(line);
         self.column = column;
         self
@@ -237,7 +237,7 @@ pub fn read_detections(bytes: &[u8]) -> Result<ReadReport, ReadError> {
     }
 }
 
-pub(crate) fn as_text(bytes: &[u8]) -> Result<&str, ReadError> {
+pub fn as_text(bytes: &[u8]) -> Result<&str, ReadError> {
     let bytes = bytes.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(bytes);
     let looks_binary = bytes.iter().take(1 << 16).any(|&b| b == 0);
     if looks_binary {
@@ -262,7 +262,7 @@ pub(crate) fn as_text(bytes: &[u8]) -> Result<&str, ReadError> {
 }
 
 /// Splits a CSV line on commas, honouring double quotes around a field.
-pub(crate) fn split_fields(line: &str) -> Vec<&str> {
+pub fn split_fields(line: &str) -> Vec<&str> {
     let mut fields = Vec::new();
     let mut start = 0;
     let mut in_quotes = false;
@@ -323,12 +323,7 @@ fn parse_plain_decimal(field: &str) -> Option<f64> {
     Some(if negative { -v } else { v })
 }
 
-pub(crate) fn number(
-    field: &str,
-    name: &str,
-    line: usize,
-    column: usize,
-) -> Result<f64, ReadError> {
+pub fn number(field: &str, name: &str, line: usize, column: usize) -> Result<f64, ReadError> {
     let parsed = match parse_plain_decimal(field) {
         Some(v) => Ok(v),
         None => field.parse::<f64>(),
@@ -350,7 +345,7 @@ pub(crate) fn number(
     Ok(v)
 }
 
-pub(crate) fn frame_number(v: f64, line: usize, column: usize) -> Result<u32, ReadError> {
+pub fn frame_number(v: f64, line: usize, column: usize) -> Result<u32, ReadError> {
     if v.fract() != 0.0 || v < 0.0 || v > u32::MAX as f64 {
         return Err(ReadError::new(
             ReadErrorKind::BadFrame,

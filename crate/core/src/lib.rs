@@ -8,7 +8,6 @@
 //! - boxes are in pixels, **top-left x/y plus width/height** ([`geometry::BBox`]), image y pointing down;
 //! - frame numbers are **1-based**, as in the benchmark text format.
 
-pub mod accuracy;
 pub mod assign;
 pub mod calibrate;
 pub mod clock;
@@ -18,14 +17,8 @@ pub mod geometry;
 pub mod kalman;
 pub mod motion;
 pub mod plan;
-pub mod render;
-pub mod rng;
-pub mod score;
-pub mod sim;
 pub mod track;
 pub mod tracks_io;
-pub mod tune;
-pub mod y4m;
 
 pub use detections::{read_detections, DetectionFormat, Detections, ReadError, ReadReport};
 pub use geometry::BBox;

@@ -3,7 +3,7 @@
 
 use throughline_core::geometry::{iou, BBox};
 use throughline_core::motion::{MotionConfig, MotionDetector, Picture};
-use throughline_core::{render, sim, y4m};
+use throughline_sim::{self as sim, render};
 
 const W: usize = 160;
 const H: usize = 120;
@@ -165,37 +165,6 @@ fn settings_files_name_what_is_wrong() {
     assert!(e.contains("far_hieght"), "{e}");
     let e = MotionConfig::from_json(r#"{"shadow_low": 0.95}"#).unwrap_err();
     assert!(e.contains("shadow_low"), "{e}");
-}
-
-#[test]
-fn y4m_headers_as_ffmpeg_writes_them() {
-    let h = y4m::parse_header("YUV4MPEG2 W768 H576 F10:1 Ip A1:1 C420jpeg XYSCSS=420JPEG").unwrap();
-    assert_eq!(
-        (h.width, h.height, h.frame_rate, h.layout),
-        (768, 576, Some(10.0), y4m::Layout::Yuv420)
-    );
-    assert_eq!(h.frame_bytes(), 768 * 576 * 3 / 2);
-    let h = y4m::parse_header("YUV4MPEG2 W641 H361 F30000:1001 Cmono").unwrap();
-    assert_eq!(h.layout, y4m::Layout::Mono);
-    assert_eq!(h.frame_bytes(), 641 * 361);
-    assert!((h.frame_rate.unwrap() - 29.97).abs() < 0.01);
-    // Without a C tag the stream is 4:2:0 (the format's default); odd sizes round chroma up.
-    assert_eq!(
-        y4m::parse_header("YUV4MPEG2 W3 H3").unwrap().frame_bytes(),
-        9 + 2 * 4
-    );
-    assert!(y4m::parse_header("YUV4MPEG2 W640 H360 C444")
-        .unwrap_err()
-        .contains("yuv420p"));
-    assert!(y4m::parse_header("YUV4MPEG2 W640 H360 C420p10")
-        .unwrap_err()
-        .contains("8 bits"));
-    assert!(y4m::parse_header("YUV4MPEG2 H360")
-        .unwrap_err()
-        .contains("size"));
-    assert!(y4m::parse_header("RIFF....AVI")
-        .unwrap_err()
-        .contains("ffmpeg"));
 }
 
 /// Recall and precision at IoU 0.5 (greedy matching by IoU, highest first) per frame.

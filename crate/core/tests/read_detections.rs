@@ -302,7 +302,7 @@ fn numbers_read_exactly_like_the_standard_parser() {
             "{text}"
         );
     }
-    let mut rng = throughline_core::rng::Rng::new(4);
+    let mut rng = throughline_sim::rng::Rng::new(4);
     for _ in 0..20_000 {
         let v = rng.range(-5000.0, 5000.0);
         let places = rng.below(7);

@@ -113,7 +113,7 @@ fn infinite_costs_are_treated_as_the_worst() {
 fn component_by_component_gating_equals_clamping_the_whole_matrix() {
     // The dense route is the definition; the split route must reach the same total on sparse,
     // IoU-like matrices where most pairs fail the gate.
-    let mut rng = throughline_core::rng::Rng::new(99);
+    let mut rng = throughline_sim::rng::Rng::new(99);
     for case in 0..300 {
         let (rows, cols) = (1 + rng.below(12), 1 + rng.below(12));
         let cost = CostMatrix::from_fn(rows, cols, |_, _| {

@@ -3,10 +3,10 @@
 //! with a margin: they guard against regressions, they are not outside references.
 
 use throughline_core::detections::{read_detections, Detections};
-use throughline_core::score::score;
-use throughline_core::sim::{generate, SceneConfig};
 use throughline_core::track::{run_tracker, Method, TrackerConfig, Tracks};
 use throughline_core::tracks_io::{self, tracks_to_boxes};
+use throughline_eval::tracking_metrics::score;
+use throughline_sim::{generate, SceneConfig};
 
 fn run(dets: &Detections, method: Method) -> Tracks {
     run_tracker(dets, &TrackerConfig::for_method(method), &mut |_, _| {}).expect("tracker runs")

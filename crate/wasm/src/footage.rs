@@ -1,4 +1,4 @@
-//! [`FootageReader`]: the page's handle on [`crate::demux`]. The footage stays a `File` in the page;
+//! [`FootageReader`]: the page's handle on [`throughline_footage::demux`]. The footage stays a `File` in the page;
 //! the reader asks for byte ranges through a JS function (in a worker, `FileReaderSync` over
 //! `File.slice`), so an hour of footage never has to fit in memory.
 
@@ -7,7 +7,7 @@ use std::io::{BufReader, Read, Seek, SeekFrom};
 use js_sys::{Function, Object, Reflect, Uint8Array};
 use wasm_bindgen::prelude::*;
 
-use crate::demux::{Demuxer, VideoTrack};
+use throughline_footage::demux::{Demuxer, VideoTrack};
 
 /// Bytes asked of the page at a time.
 const READ_AHEAD: usize = 256 * 1024;

@@ -8,7 +8,6 @@ use serde::Serialize;
 use throughline_core::{count, detections, motion, plan, track, tracks_io};
 use wasm_bindgen::prelude::*;
 
-pub mod demux;
 mod footage;
 pub use footage::FootageReader;
 

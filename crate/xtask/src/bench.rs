@@ -243,8 +243,11 @@ fn measure_scene(
     let mut rows = Vec::new();
     let score_counts =
         |tracks: &throughline_core::track::Tracks| -> Result<(f64, f64, u64, LineCounts), String> {
-            let sc = throughline_core::score::score(&truth, &tracks_io::tracks_to_boxes(tracks))
-                .map_err(|e| e.message)?;
+            let sc = throughline_eval::tracking_metrics::score(
+                &truth,
+                &tracks_io::tracks_to_boxes(tracks),
+            )
+            .map_err(|e| e.message)?;
             let report = count::count(tracks, &plan, None);
             let counts = report
                 .screenlines

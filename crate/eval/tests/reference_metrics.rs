@@ -7,8 +7,8 @@
 
 use serde::Deserialize;
 use std::collections::BTreeMap;
-use throughline_core::score::score;
 use throughline_core::tracks_io::read_benchmark_boxes;
+use throughline_eval::tracking_metrics::score;
 
 #[derive(Deserialize)]
 struct Fixture {

@@ -1,10 +1,10 @@
 //! Choosing tracker settings against ground truth: a grid over the settings that matter most, each
 //! candidate run and scored, best first. Deterministic: ties keep the grid's order.
 
-use crate::detections::Detections;
-use crate::score::{score, Scores};
-use crate::track::{run_tracker, Method, TrackerConfig};
-use crate::tracks_io::{tracks_to_boxes, IdBox};
+use crate::tracking_metrics::{score, Scores};
+use throughline_core::detections::Detections;
+use throughline_core::track::{run_tracker, Method, TrackerConfig};
+use throughline_core::tracks_io::{tracks_to_boxes, IdBox};
 
 /// What to maximise.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]

@@ -5,11 +5,11 @@
 //! 0.5 IoU threshold for CLEAR and identity matching, and HOTA averaged over α = 0.05, 0.10 … 0.95.
 //! Ratios are fractions in `[0, 1]`.
 
-use crate::assign::{maximise_edges, CostMatrix, Edge};
-use crate::tracks_io::IdBox;
 use serde::Serialize;
 use std::collections::BTreeMap;
 use std::fmt;
+use throughline_core::assign::{maximise_edges, CostMatrix, Edge};
+use throughline_core::tracks_io::IdBox;
 
 /// The scores of one tracker output against one ground truth.
 #[derive(Debug, Clone, PartialEq, Serialize)]

@@ -10,9 +10,9 @@
 //! Intervals with M = 0 cannot enter APD and AAPD (division by zero); they still enter WAPD and the
 //! correction factor, and are counted in `zero_reference_intervals`.
 
-use crate::detections::{self, ReadError, ReadErrorKind};
 use serde::Serialize;
 use std::collections::BTreeMap;
+use throughline_core::detections::{self, ReadError, ReadErrorKind};
 
 /// One row of a counts table: `screenline,direction,class,interval_start,interval_end,count`.
 #[derive(Debug, Clone, PartialEq, Eq)]

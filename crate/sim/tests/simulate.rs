@@ -3,8 +3,8 @@
 
 use throughline_core::count::count;
 use throughline_core::plan::Plan;
-use throughline_core::render::{y4m_header, Renderer};
-use throughline_core::sim::{generate, generate_with, truth_tracks, SceneConfig, CLASSES};
+use throughline_sim::render::{y4m_header, Renderer};
+use throughline_sim::{generate, generate_with, truth_tracks, SceneConfig, CLASSES};
 
 fn small(seed: u64) -> SceneConfig {
     SceneConfig {
@@ -42,8 +42,7 @@ fn the_detector_model_misses_more_when_asked_and_adds_false_positives() {
         miss_rate: 0.4,
         ..base.clone()
     });
-    let ratio =
-        |s: &throughline_core::sim::Scene| s.detections.rows.len() as f64 / s.truth.len() as f64;
+    let ratio = |s: &throughline_sim::Scene| s.detections.rows.len() as f64 / s.truth.len() as f64;
     assert!(
         ratio(&few) > ratio(&many) + 0.25,
         "{} vs {}",

@@ -7,9 +7,9 @@
 //! drift of the light and sensor noise. Pixels: x right, y down; the frame is `width × height`, both
 //! even.
 
-use crate::geometry::BBox;
 use crate::rng::Rng;
-use crate::sim::{AgentView, SceneConfig};
+use crate::scene::{AgentView, SceneConfig};
+use throughline_core::geometry::BBox;
 
 /// Draws frames of one scene.
 pub struct Renderer {

@@ -8,10 +8,10 @@
 //! class confusions and optional appearance embeddings of settable quality. Everything is
 //! deterministic for a seed. Boxes are pixels, top-left x/y + width/height; frames are 1-based.
 
-use crate::detections::{Detection, Detections};
-use crate::geometry::BBox;
 use crate::rng::Rng;
-use crate::tracks_io::IdBox;
+use throughline_core::detections::{Detection, Detections};
+use throughline_core::geometry::BBox;
+use throughline_core::tracks_io::IdBox;
 
 /// The classes of the scene, in the order of their class index.
 pub const CLASSES: [&str; 3] = ["pedestrian", "cyclist", "cart"];
@@ -423,8 +423,8 @@ pub fn generate_with(cfg: &SceneConfig, on_frame: &mut dyn FnMut(u32, &[AgentVie
 
 /// The ground truth of a scene as tracks (every box observed, classes by name), for counting the
 /// true crossings of a plan.
-pub fn truth_tracks(scene: &Scene) -> crate::track::Tracks {
-    let mut tracks = crate::tracks_io::boxes_to_tracks(&scene.truth);
+pub fn truth_tracks(scene: &Scene) -> throughline_core::track::Tracks {
+    let mut tracks = throughline_core::tracks_io::boxes_to_tracks(&scene.truth);
     for t in &mut tracks.tracks {
         let class = scene
             .truth_classes

@@ -9,7 +9,7 @@ use std::io::BufReader;
 use std::path::{Path, PathBuf};
 use std::process::Command;
 
-use throughline_wasm::demux::{Chunk, Demuxer};
+use throughline_footage::demux::{Chunk, Demuxer};
 
 const DEMO_FOOTAGE: &str = concat!(
     env!("CARGO_MANIFEST_DIR"),
@@ -71,7 +71,7 @@ fn probe_stream(path: &Path, entries: &str) -> String {
     String::from_utf8(out.stdout).unwrap().trim().to_string()
 }
 
-fn read_all(path: &Path) -> (throughline_wasm::demux::VideoTrack, Vec<Chunk>) {
+fn read_all(path: &Path) -> (throughline_footage::demux::VideoTrack, Vec<Chunk>) {
     let size = std::fs::metadata(path).unwrap().len();
     let file = BufReader::new(File::open(path).unwrap());
     let (mut demuxer, track) = Demuxer::open(file, size).expect("opens");
