@@ -13,14 +13,17 @@ pub mod calibrate;
 pub mod clock;
 pub mod count;
 pub mod detections;
+pub mod error;
 pub mod geometry;
 pub mod kalman;
 pub mod motion;
 pub mod plan;
+pub mod text;
 pub mod track;
 pub mod tracks_io;
 
-pub use detections::{read_detections, DetectionFormat, Detections, ReadError, ReadReport};
+pub use detections::{read_detections, DetectionFormat, Detections, ReadReport};
+pub use error::{Error, ErrorKind};
 pub use geometry::BBox;
 pub use track::{run_tracker, Method, TrackerConfig, Tracks};
 

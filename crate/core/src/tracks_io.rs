@@ -6,8 +6,9 @@
 //!
 //! The JSON tracks document is described in `docs/tracks-format.md`.
 
-use crate::detections::{self, ReadError, ReadErrorKind};
+use crate::error::{Error, ErrorKind};
 use crate::geometry::BBox;
+use crate::text;
 use crate::track::{Track, TrackBox, TrackerConfig, Tracks};
 use serde::{Deserialize, Serialize};
 
@@ -187,15 +188,15 @@ pub fn to_json(tracks: &Tracks) -> String {
 }
 
 /// Reads a JSON tracks document written by [`to_json`].
-pub fn from_json(bytes: &[u8]) -> Result<Tracks, ReadError> {
-    let text = detections::as_text(bytes)?;
+pub fn from_json(bytes: &[u8]) -> Result<Tracks, Error> {
+    let text = text::as_text(bytes)?;
     let doc: TracksDocument = serde_json::from_str(text).map_err(|e| {
         let mut message = e.to_string();
         if let Some(cut) = message.rfind(" at line ") {
             message.truncate(cut);
         }
-        ReadError::new(
-            ReadErrorKind::BadJson,
+        Error::new(
+            ErrorKind::BadJson,
             format!(
                 "{message}; expected a Throughline tracks document (see docs/tracks-format.md)"
             ),
@@ -203,14 +204,14 @@ pub fn from_json(bytes: &[u8]) -> Result<Tracks, ReadError> {
         .at(e.line().max(1), Some(e.column().max(1)))
     })?;
     if doc.format != TRACKS_FORMAT {
-        return Err(ReadError::new(
-            ReadErrorKind::BadJson,
+        return Err(Error::new(
+            ErrorKind::BadJson,
             format!("`format` is `{}`, expected `{TRACKS_FORMAT}`", doc.format),
         ));
     }
     if doc.version != TRACKS_VERSION {
-        return Err(ReadError::new(
-            ReadErrorKind::BadJson,
+        return Err(Error::new(
+            ErrorKind::BadJson,
             format!(
                 "tracks document version {} is not known to this program (it reads version {TRACKS_VERSION})",
                 doc.version
@@ -252,8 +253,8 @@ pub struct IdBox {
 }
 
 /// Reads `frame,id,x,y,w,h[,…]` rows (tracker output or ground truth), in file order.
-pub fn read_benchmark_boxes(bytes: &[u8]) -> Result<Vec<IdBox>, ReadError> {
-    let text = detections::as_text(bytes)?;
+pub fn read_benchmark_boxes(bytes: &[u8]) -> Result<Vec<IdBox>, Error> {
+    let text = text::as_text(bytes)?;
     let mut out = Vec::new();
     for (i, raw) in text.lines().enumerate() {
         let line = i + 1;
@@ -261,10 +262,10 @@ pub fn read_benchmark_boxes(bytes: &[u8]) -> Result<Vec<IdBox>, ReadError> {
         if l.is_empty() || l.starts_with('#') {
             continue;
         }
-        let fields = detections::split_fields(l);
+        let fields = text::split_fields(l);
         if fields.len() < 6 {
-            return Err(ReadError::new(
-                ReadErrorKind::MissingColumn,
+            return Err(Error::new(
+                ErrorKind::MissingColumn,
                 format!(
                     "{} columns, but at least 6 are needed: frame,id,x,y,w,h",
                     fields.len()
@@ -275,19 +276,19 @@ pub fn read_benchmark_boxes(bytes: &[u8]) -> Result<Vec<IdBox>, ReadError> {
         let names = ["frame", "id", "x", "y", "w", "h"];
         let mut v = [0.0; 6];
         for (k, name) in names.iter().enumerate() {
-            v[k] = detections::number(fields[k], name, line, k + 1)?;
+            v[k] = text::number(fields[k], name, line, k + 1)?;
         }
-        let frame = detections::frame_number(v[0], line, 1)?;
+        let frame = text::frame_number(v[0], line, 1)?;
         if v[1].fract() != 0.0 {
-            return Err(ReadError::new(
-                ReadErrorKind::BadNumber,
+            return Err(Error::new(
+                ErrorKind::BadNumber,
                 format!("id `{}` is not a whole number", fields[1]),
             )
             .at(line, Some(2)));
         }
         if v[4] < 0.0 || v[5] < 0.0 {
-            return Err(ReadError::new(
-                ReadErrorKind::NegativeSize,
+            return Err(Error::new(
+                ErrorKind::NegativeSize,
                 "box sizes must not be negative (x,y,w,h: top-left then width and height)",
             )
             .at(line, Some(5)));
@@ -299,8 +300,8 @@ pub fn read_benchmark_boxes(bytes: &[u8]) -> Result<Vec<IdBox>, ReadError> {
         });
     }
     if out.is_empty() {
-        return Err(ReadError::new(
-            ReadErrorKind::Empty,
+        return Err(Error::new(
+            ErrorKind::Empty,
             "no rows found: expected frame,id,x,y,w,h lines",
         ));
     }

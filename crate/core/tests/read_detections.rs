@@ -1,7 +1,8 @@
 //! Detection readers: each format, and a clear error with the line and column for each kind of bad
 //! input. One helper per expectation, many small cases.
 
-use throughline_core::detections::{read_detections, DetectionFormat, ReadErrorKind};
+use throughline_core::detections::{read_detections, DetectionFormat};
+use throughline_core::ErrorKind;
 
 /// Reads `input` and checks the format, number of rows and skipped rows.
 fn check_ok(input: &str, format: DetectionFormat, rows: usize, skipped: usize) {
@@ -14,7 +15,7 @@ fn check_ok(input: &str, format: DetectionFormat, rows: usize, skipped: usize) {
 /// Reads `input` expecting an error of `kind` at `line` (and `column`), whose message contains `hint`.
 fn check_err(
     input: &[u8],
-    kind: ReadErrorKind,
+    kind: ErrorKind,
     line: Option<usize>,
     column: Option<usize>,
     hint: &str,
@@ -104,7 +105,7 @@ fn json_results() {
 
 #[test]
 fn bad_input_names_the_place_and_the_fix() {
-    use ReadErrorKind::*;
+    use ErrorKind::*;
     check_err(b"", Empty, None, None, "empty");
     check_err(b"   \n\n", Empty, None, None, "empty");
     check_err(

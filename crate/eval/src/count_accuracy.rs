@@ -12,7 +12,8 @@
 
 use serde::Serialize;
 use std::collections::BTreeMap;
-use throughline_core::detections::{self, ReadError, ReadErrorKind};
+use throughline_core::error::{Error, ErrorKind};
+use throughline_core::text;
 
 /// One row of a counts table: `screenline,direction,class,interval_start,interval_end,count`.
 #[derive(Debug, Clone, PartialEq, Eq)]
@@ -28,26 +29,23 @@ pub struct CountRow {
 
 /// Reads a counts CSV with the header `screenline,direction,class,interval_start,interval_end,count`
 /// (the layout `--csv` writes; a manual count in the same layout).
-pub fn read_counts_csv(bytes: &[u8]) -> Result<Vec<CountRow>, ReadError> {
-    let text = detections::as_text(bytes)?;
+pub fn read_counts_csv(bytes: &[u8]) -> Result<Vec<CountRow>, Error> {
+    let text = text::as_text(bytes)?;
     let mut lines = text
         .lines()
         .enumerate()
         .filter(|(_, l)| !l.trim().is_empty() && !l.trim_start().starts_with('#'));
     let Some((_, header)) = lines.next() else {
-        return Err(ReadError::new(
-            ReadErrorKind::Empty,
-            "the counts file is empty",
-        ));
+        return Err(Error::new(ErrorKind::Empty, "the counts file is empty"));
     };
-    let names: Vec<String> = detections::split_fields(header)
+    let names: Vec<String> = text::split_fields(header)
         .iter()
         .map(|h| h.trim().to_ascii_lowercase())
         .collect();
     let col = |name: &str| {
         names.iter().position(|n| n == name).ok_or_else(|| {
-            ReadError::new(
-                ReadErrorKind::BadHeader,
+            Error::new(
+                ErrorKind::BadHeader,
                 format!(
                     "the header has no `{name}` column: it must name \
                      screenline,direction,class,interval_start,interval_end,count"
@@ -65,10 +63,10 @@ pub fn read_counts_csv(bytes: &[u8]) -> Result<Vec<CountRow>, ReadError> {
     );
     let mut rows = Vec::new();
     for (i, line) in lines {
-        let f = detections::split_fields(line);
+        let f = text::split_fields(line);
         if f.len() != names.len() {
-            return Err(ReadError::new(
-                ReadErrorKind::WrongColumnCount,
+            return Err(Error::new(
+                ErrorKind::WrongColumnCount,
                 format!(
                     "{} fields, but the header names {} columns",
                     f.len(),
@@ -78,8 +76,8 @@ pub fn read_counts_csv(bytes: &[u8]) -> Result<Vec<CountRow>, ReadError> {
             .at(i + 1, None));
         }
         let count: u64 = f[cn].trim().parse().map_err(|_| {
-            ReadError::new(
-                ReadErrorKind::BadNumber,
+            Error::new(
+                ErrorKind::BadNumber,
                 format!("count `{}` is not a whole number of 0 or more", f[cn]),
             )
             .at(i + 1, Some(cn + 1))

@@ -1,0 +1,200 @@
+//! The JSON array of detection results: `{"image_id": frame, "category_id": class, "bbox": [x, y,
+//! w, h], "score": s}` per element, optionally `"embedding": [...]`. Read element by element, so a
+//! large file is never held twice.
+
+use super::{finish, Detection, DetectionFormat, Detections, ReadReport, Warnings};
+use crate::error::{Error, ErrorKind};
+use crate::geometry::BBox;
+use serde::de::{self, DeserializeSeed, SeqAccess, Visitor};
+use std::cell::RefCell;
+use std::collections::HashMap;
+use std::fmt;
+
+/// One element of the JSON results array, as written by detectors.
+#[derive(serde::Deserialize)]
+struct JsonDetection {
+    image_id: serde_json::Value,
+    #[serde(default)]
+    category_id: Option<serde_json::Value>,
+    bbox: Vec<f64>,
+    score: f64,
+    #[serde(default)]
+    embedding: Option<Vec<f32>>,
+}
+
+struct JsonSink<'a> {
+    out: &'a mut Detections,
+    classes: HashMap<String, u16>,
+    warnings: &'a mut Warnings,
+    /// The kind of a validation error raised inside the visitor, to keep it apart from syntax errors.
+    failure: &'a RefCell<Option<ErrorKind>>,
+}
+
+/// A problem with one element: its kind and message (the element number included).
+type Problem = (ErrorKind, String);
+
+impl JsonSink<'_> {
+    fn push<E: de::Error>(&mut self, n: usize, d: JsonDetection) -> Result<(), E> {
+        self.take(n, d).map_err(|(kind, message)| {
+            *self.failure.borrow_mut() = Some(kind);
+            E::custom(message)
+        })
+    }
+
+    fn take(&mut self, n: usize, d: JsonDetection) -> Result<(), Problem> {
+        let frame = frame_of(n, &d.image_id)?;
+        let Some(bbox) = self.bbox_of(n, &d.bbox)? else {
+            return Ok(());
+        };
+        let class = self.class_of(d.category_id.as_ref())?;
+        let embedding = match d.embedding {
+            None => None,
+            Some(v) => Some(self.embedding_of(n, &v)?),
+        };
+        self.out.rows.push(Detection {
+            frame,
+            bbox,
+            score: d.score,
+            class,
+            embedding,
+        });
+        Ok(())
+    }
+
+    /// The box, or `None` (with a warning) for a zero-size one.
+    fn bbox_of(&mut self, n: usize, bbox: &[f64]) -> Result<Option<BBox>, Problem> {
+        if bbox.len() != 4 {
+            return Err((
+                ErrorKind::MissingColumn,
+                format!(
+                    "element {n}: bbox must have 4 numbers [x, y, w, h], found {}",
+                    bbox.len()
+                ),
+            ));
+        }
+        let b = BBox::new(bbox[0], bbox[1], bbox[2], bbox[3]);
+        if b.w < 0.0 || b.h < 0.0 {
+            return Err((
+                ErrorKind::NegativeSize,
+                format!(
+                    "element {n}: bbox width and height must not be negative (bbox is [x, y, w, h], \
+                     not two corners)"
+                ),
+            ));
+        }
+        if b.w == 0.0 || b.h == 0.0 {
+            self.warnings.push(
+                None,
+                format!("element {n}: box with zero width or height passed over"),
+            );
+            return Ok(None);
+        }
+        Ok(Some(b))
+    }
+
+    /// The class index of `category_id`: a string is the class name, a number its digits.
+    fn class_of(&mut self, category: Option<&serde_json::Value>) -> Result<Option<u16>, Problem> {
+        let name = match category {
+            None | Some(serde_json::Value::Null) => return Ok(None),
+            Some(serde_json::Value::String(s)) => s.clone(),
+            Some(v) => v.to_string(),
+        };
+        match self.out.intern_class(&mut self.classes, &name) {
+            Some(c) => Ok(Some(c)),
+            None => Err((ErrorKind::TooManyClasses, "more than 65535 classes".into())),
+        }
+    }
+
+    /// Stores an appearance vector; its index. Every vector must have the first one's length.
+    fn embedding_of(&mut self, n: usize, v: &[f32]) -> Result<u32, Problem> {
+        if self.out.embedding_dim == 0 {
+            self.out.embedding_dim = v.len();
+        }
+        if v.is_empty() || v.len() != self.out.embedding_dim {
+            return Err((
+                ErrorKind::Embedding,
+                format!(
+                    "element {n}: embedding has {} values, earlier ones have {}: every embedding \
+                     must have the same length",
+                    v.len(),
+                    self.out.embedding_dim
+                ),
+            ));
+        }
+        if v.iter().any(|x| !x.is_finite()) {
+            return Err((
+                ErrorKind::NotFinite,
+                format!("element {n}: embedding values must be finite numbers"),
+            ));
+        }
+        let index = (self.out.embeddings.len() / v.len()) as u32;
+        self.out.embeddings.extend_from_slice(v);
+        Ok(index)
+    }
+}
+
+/// The frame number of `image_id`: a whole number of 1 or more.
+fn frame_of(n: usize, image_id: &serde_json::Value) -> Result<u32, Problem> {
+    match image_id.as_f64() {
+        Some(v) if v.fract() == 0.0 && v >= 1.0 && v <= u32::MAX as f64 => Ok(v as u32),
+        Some(0.0) => Err((
+            ErrorKind::BadFrame,
+            format!(
+                "element {n}: image_id 0, but frames are numbered from 1: if the file counts \
+                 from 0, add 1 to every image_id"
+            ),
+        )),
+        _ => Err((
+            ErrorKind::BadFrame,
+            format!("element {n}: image_id must be the frame number, a whole number of 1 or more"),
+        )),
+    }
+}
+
+impl<'de> DeserializeSeed<'de> for JsonSink<'_> {
+    type Value = ();
+    fn deserialize<D: de::Deserializer<'de>>(self, deserializer: D) -> Result<(), D::Error> {
+        deserializer.deserialize_seq(self)
+    }
+}
+
+impl<'de> Visitor<'de> for JsonSink<'_> {
+    type Value = ();
+    fn expecting(&self, f: &mut fmt::Formatter) -> fmt::Result {
+        f.write_str("an array of {image_id, category_id, bbox: [x, y, w, h], score}")
+    }
+
+    fn visit_seq<A: SeqAccess<'de>>(mut self, mut seq: A) -> Result<(), A::Error> {
+        let mut n = 0;
+        while let Some(d) = seq.next_element::<JsonDetection>()? {
+            n += 1;
+            self.push(n, d)?;
+        }
+        Ok(())
+    }
+}
+
+pub(super) fn read(text: &str) -> Result<ReadReport, Error> {
+    let mut out = Detections::default();
+    let mut warnings = Warnings::new();
+    let failure = RefCell::new(None);
+    let sink = JsonSink {
+        out: &mut out,
+        classes: HashMap::new(),
+        warnings: &mut warnings,
+        failure: &failure,
+    };
+    let mut de = serde_json::Deserializer::from_str(text);
+    let result = sink.deserialize(&mut de).and_then(|()| de.end());
+    if let Err(e) = result {
+        let kind = failure.borrow().unwrap_or(ErrorKind::BadJson);
+        let hint = if kind == ErrorKind::BadJson {
+            "; expected a JSON array of {\"image_id\": frame, \"category_id\": class, \
+             \"bbox\": [x, y, w, h], \"score\": s}"
+        } else {
+            ""
+        };
+        return Err(Error::from_json(kind, &e, hint));
+    }
+    finish(out, DetectionFormat::JsonResults, warnings)
+}

@@ -1,0 +1,279 @@
+//! Readers for detection files: the benchmark text format, CSV with a header, and the JSON array of
+//! detection results. The format is recognised from the content, not the file name.
+//!
+//! Every reader takes the whole file as bytes and returns [`Detections`] sorted by frame, with a list
+//! of warnings for rows it had to pass over (each counted), or an [`Error`] naming the line and
+//! column and saying what to fix. Boxes are pixels, top-left x/y + width/height; frames are 1-based.
+
+mod benchmark;
+mod csv;
+mod json;
+mod write;
+
+pub use write::{to_benchmark_text, to_csv, to_file_text};
+
+use crate::error::{Error, ErrorKind};
+use crate::geometry::BBox;
+use crate::text::{as_text, split_fields};
+use std::collections::HashMap;
+use std::fmt;
+
+/// One detected object in one frame.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Detection {
+    /// Frame number, 1-based.
+    pub frame: u32,
+    /// Box in pixels, top-left x/y + width/height.
+    pub bbox: BBox,
+    /// Detector confidence, usually in `[0, 1]`.
+    pub score: f64,
+    /// Index into [`Detections::classes`], when the file names a class.
+    pub class: Option<u16>,
+    /// Index of this row's vector in [`Detections::embedding`], when the file carries embeddings.
+    pub embedding: Option<u32>,
+}
+
+/// All detections of a file, sorted by frame (stable: rows of one frame keep their file order).
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct Detections {
+    pub rows: Vec<Detection>,
+    /// Class names in order of first appearance; numeric classes keep their digits as the name.
+    pub classes: Vec<String>,
+    /// Length of each appearance vector; 0 when the file carries none.
+    pub embedding_dim: usize,
+    /// All appearance vectors, one after another.
+    pub embeddings: Vec<f32>,
+}
+
+impl Detections {
+    /// The appearance vector of a detection, if it has one.
+    pub fn embedding(&self, d: &Detection) -> Option<&[f32]> {
+        let i = d.embedding? as usize * self.embedding_dim;
+        self.embeddings.get(i..i + self.embedding_dim)
+    }
+
+    /// Name of a class index.
+    pub fn class_name(&self, class: Option<u16>) -> Option<&str> {
+        class
+            .and_then(|c| self.classes.get(c as usize))
+            .map(String::as_str)
+    }
+
+    /// Last frame that has a detection (0 when there are none).
+    pub fn last_frame(&self) -> u32 {
+        self.rows.last().map_or(0, |d| d.frame)
+    }
+
+    /// Detections grouped by frame: `(frame, rows)` in increasing frame order; frames without rows are
+    /// not listed.
+    pub fn by_frame(&self) -> impl Iterator<Item = (u32, &[Detection])> {
+        self.rows
+            .chunk_by(|a, b| a.frame == b.frame)
+            .map(|chunk| (chunk[0].frame, chunk))
+    }
+
+    /// The class index of a class named on `line`, numbering a new name.
+    pub(crate) fn class_on_line(
+        &mut self,
+        index: &mut HashMap<String, u16>,
+        name: &str,
+        line: usize,
+    ) -> Result<u16, Error> {
+        self.intern_class(index, name)
+            .ok_or_else(|| too_many_classes(line))
+    }
+
+    /// Stores an appearance vector and returns its index; `None` for an empty one.
+    pub(crate) fn push_embedding(&mut self, v: &[f32]) -> Option<u32> {
+        if v.is_empty() {
+            return None;
+        }
+        let index = (self.embeddings.len() / v.len()) as u32;
+        self.embeddings.extend_from_slice(v);
+        Some(index)
+    }
+
+    pub(crate) fn intern_class(
+        &mut self,
+        index: &mut HashMap<String, u16>,
+        name: &str,
+    ) -> Option<u16> {
+        if let Some(&i) = index.get(name) {
+            return Some(i);
+        }
+        let i = u16::try_from(self.classes.len()).ok()?;
+        self.classes.push(name.to_string());
+        index.insert(name.to_string(), i);
+        Some(i)
+    }
+
+    fn sort_by_frame(&mut self) {
+        if !self.rows.is_sorted_by_key(|d| d.frame) {
+            self.rows.sort_by_key(|d| d.frame);
+        }
+    }
+}
+
+/// The formats the readers recognise.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize)]
+#[serde(rename_all = "snake_case")]
+pub enum DetectionFormat {
+    /// `frame,id,x,y,w,h,score[,class…]`, no header.
+    BenchmarkText,
+    /// CSV whose header names `frame,x,y,w,h,score` (and optionally `class`, `e0,e1,…`).
+    CsvWithHeader,
+    /// JSON array of `{image_id, category_id, bbox: [x,y,w,h], score}`.
+    JsonResults,
+}
+
+impl fmt::Display for DetectionFormat {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        f.write_str(match self {
+            Self::BenchmarkText => "benchmark text (frame,id,x,y,w,h,score)",
+            Self::CsvWithHeader => "CSV with header",
+            Self::JsonResults => "JSON detection results",
+        })
+    }
+}
+
+/// A row the reader passed over, and why.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct Warning {
+    /// 1-based line, when known (JSON warnings name the element in the message instead).
+    pub line: Option<usize>,
+    pub message: String,
+}
+
+/// What a reader returns: the detections, the format it recognised, and what it passed over.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ReadReport {
+    pub detections: Detections,
+    pub format: DetectionFormat,
+    /// The first few warnings, in file order.
+    pub warnings: Vec<Warning>,
+    /// How many rows were passed over in all (may exceed `warnings.len()`).
+    pub skipped_rows: usize,
+}
+
+/// At most this many warnings are kept; the rest are only counted.
+pub const MAX_WARNINGS: usize = 20;
+
+pub(crate) struct Warnings {
+    kept: Vec<Warning>,
+    count: usize,
+}
+
+impl Warnings {
+    pub(crate) fn new() -> Self {
+        Self {
+            kept: Vec::new(),
+            count: 0,
+        }
+    }
+
+    pub(crate) fn push(&mut self, line: Option<usize>, message: impl Into<String>) {
+        self.count += 1;
+        if self.kept.len() < MAX_WARNINGS {
+            self.kept.push(Warning {
+                line,
+                message: message.into(),
+            });
+        }
+    }
+}
+
+/// Reads detections from a whole file, recognising the format from its content.
+pub fn read_detections(bytes: &[u8]) -> Result<ReadReport, Error> {
+    let text = as_text(bytes)?;
+    let body = text.trim_start();
+    if body.is_empty() {
+        return Err(Error::new(
+            ErrorKind::Empty,
+            "the file is empty: expected detections as benchmark text (frame,id,x,y,w,h,score), \
+             CSV with a header, or a JSON array",
+        ));
+    }
+    if body.starts_with('[') || body.starts_with('{') {
+        return json::read(text);
+    }
+    let first = text
+        .lines()
+        .map(str::trim)
+        .find(|l| !l.is_empty() && !l.starts_with('#'))
+        .unwrap_or("");
+    let is_header = split_fields(first)
+        .iter()
+        .any(|f| !f.is_empty() && f.parse::<f64>().is_err());
+    if is_header {
+        csv::read(text)
+    } else {
+        benchmark::read(text)
+    }
+}
+
+/// Checks a box; `Ok(None)` (with a warning) for a zero-size box, an error for a negative size.
+pub(crate) fn checked_box(
+    b: BBox,
+    line: usize,
+    w_column: usize,
+    warnings: &mut Warnings,
+) -> Result<Option<BBox>, Error> {
+    for (v, name, col) in [(b.w, "w", w_column), (b.h, "h", w_column + 1)] {
+        if v < 0.0 {
+            return Err(Error::new(
+                ErrorKind::NegativeSize,
+                format!(
+                    "box {name} is {v}: sizes must not be negative (boxes are top-left x,y then width,height, \
+                     not two corners)"
+                ),
+            )
+            .at(line, Some(col)));
+        }
+    }
+    if b.w == 0.0 || b.h == 0.0 {
+        warnings.push(Some(line), "box with zero width or height passed over");
+        return Ok(None);
+    }
+    Ok(Some(b))
+}
+
+pub(crate) fn note_score(score: f64, line: usize, warned: &mut bool, warnings: &mut Warnings) {
+    if !(0.0..=1.0).contains(&score) && !*warned {
+        *warned = true;
+        // Not a skipped row: counted as a warning but the row is kept.
+        warnings.kept.push(Warning {
+            line: Some(line),
+            message: format!(
+                "score {score} is outside 0..1; score thresholds assume 0..1 (first such row; rows kept)"
+            ),
+        });
+    }
+}
+
+pub(crate) fn finish(
+    mut detections: Detections,
+    format: DetectionFormat,
+    warnings: Warnings,
+) -> Result<ReadReport, Error> {
+    if detections.rows.is_empty() && warnings.count == 0 {
+        return Err(Error::new(
+            ErrorKind::Empty,
+            format!("the {format} file has no detection rows"),
+        ));
+    }
+    detections.sort_by_frame();
+    Ok(ReadReport {
+        detections,
+        format,
+        warnings: warnings.kept,
+        skipped_rows: warnings.count,
+    })
+}
+
+fn too_many_classes(line: usize) -> Error {
+    Error::new(
+        ErrorKind::TooManyClasses,
+        "more than 65535 different classes: the class column looks like something else",
+    )
+    .at(line, None)
+}

@@ -1,0 +1,110 @@
+//! The core's one error type: what went wrong ([`ErrorKind`]), where (line and column of the input,
+//! or the field of a plan or settings file), and a message that tells the user what to fix.
+//!
+//! Every reader and checker of outside input returns it, so the command line and the page report
+//! every problem the same way: `line 3, column 2: …` for a position, `` `field`: … `` for a field.
+
+use std::fmt;
+
+/// What kind of problem an [`Error`] reports.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum ErrorKind {
+    /// The input holds nothing to read.
+    Empty,
+    /// Binary or not UTF-8 where text was expected.
+    Binary,
+    /// A field that should be a number is not one.
+    BadNumber,
+    /// A number is infinite or NaN.
+    NotFinite,
+    /// A box with a negative width or height.
+    NegativeSize,
+    /// A frame number that is not a whole number of 1 or more.
+    BadFrame,
+    /// Fewer columns (or box values) than the format needs.
+    MissingColumn,
+    /// A row with another number of fields than the header names.
+    WrongColumnCount,
+    /// A header that does not name the columns the format needs.
+    BadHeader,
+    /// JSON that does not parse, or is not the document expected.
+    BadJson,
+    /// Appearance vectors of different lengths.
+    Embedding,
+    /// More classes than can be numbered.
+    TooManyClasses,
+    /// One id twice in one frame.
+    DuplicateId,
+    /// A counting plan field that is missing, out of range or inconsistent.
+    Plan,
+    /// A tracker or detector setting that is unknown or out of range.
+    Settings,
+    /// Input that is valid but cannot serve what was asked (a method that needs embeddings, say).
+    Unsuitable,
+}
+
+/// A problem with the input, where it is, and what to fix.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct Error {
+    pub kind: ErrorKind,
+    /// 1-based line, when the error belongs to one.
+    pub line: Option<usize>,
+    /// 1-based column (field number for text formats, character for JSON).
+    pub column: Option<usize>,
+    /// The field of a plan or settings file it concerns, as a JSON path (`screenlines[0].points`).
+    pub field: Option<String>,
+    /// What is wrong and what to fix.
+    pub message: String,
+}
+
+impl Error {
+    pub fn new(kind: ErrorKind, message: impl Into<String>) -> Self {
+        Self {
+            kind,
+            line: None,
+            column: None,
+            field: None,
+            message: message.into(),
+        }
+    }
+
+    /// The same error placed at a line (and column) of the input.
+    pub fn at(mut self, line: usize, column: Option<usize>) -> Self {
+        self.line = Some(line);
+        self.column = column;
+        self
+    }
+
+    /// The same error placed at a field of a plan or settings file.
+    pub fn in_field(mut self, field: impl Into<String>) -> Self {
+        self.field = Some(field.into());
+        self
+    }
+
+    /// An error of serde_json's, placed where it says, with its own position text cut from the
+    /// message and `hint` (what was expected) added.
+    pub fn from_json(kind: ErrorKind, e: &serde_json::Error, hint: &str) -> Self {
+        let mut message = e.to_string();
+        // serde_json appends " at line L column C"; the position is reported separately.
+        if let Some(cut) = message.rfind(" at line ") {
+            message.truncate(cut);
+        }
+        Error::new(kind, format!("{message}{hint}")).at(e.line().max(1), Some(e.column().max(1)))
+    }
+}
+
+impl fmt::Display for Error {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match (self.line, self.column) {
+            (Some(l), Some(c)) => write!(f, "line {l}, column {c}: ")?,
+            (Some(l), None) => write!(f, "line {l}: ")?,
+            _ => {}
+        }
+        match &self.field {
+            Some(field) => write!(f, "`{field}`: {}", self.message),
+            None => f.write_str(&self.message),
+        }
+    }
+}
+
+impl std::error::Error for Error {}

@@ -1,0 +1,132 @@
+//! Reading text files of rows: the UTF-8 check, comma-separated fields, and numbers that report the
+//! line and column of a mistake. Shared by every reader of detections, tracks and counts files.
+
+use crate::error::{Error, ErrorKind};
+
+/// The file as text: a UTF-8 byte-order mark dropped; binary files and bad UTF-8 refused with the
+/// line of the first bad byte.
+pub fn as_text(bytes: &[u8]) -> Result<&str, Error> {
+    let bytes = bytes.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(bytes);
+    let looks_binary = bytes.iter().take(1 << 16).any(|&b| b == 0);
+    if looks_binary {
+        return Err(Error::new(
+            ErrorKind::Binary,
+            "this is a binary file, not a detections file: expected text (benchmark text, CSV) or JSON; \
+             a video goes in as footage, not as detections",
+        ));
+    }
+    std::str::from_utf8(bytes).map_err(|e| {
+        let line = bytes[..e.valid_up_to()]
+            .iter()
+            .filter(|&&b| b == b'\n')
+            .count()
+            + 1;
+        Error::new(
+            ErrorKind::Binary,
+            "the file is not UTF-8 text: save it as UTF-8 (plain ASCII digits and commas are fine)",
+        )
+        .at(line, None)
+    })
+}
+
+/// Splits a CSV line on commas, honouring double quotes around a field.
+pub fn split_fields(line: &str) -> Vec<&str> {
+    let mut fields = Vec::new();
+    let mut start = 0;
+    let mut in_quotes = false;
+    for (i, ch) in line.char_indices() {
+        match ch {
+            '"' => in_quotes = !in_quotes,
+            ',' if !in_quotes => {
+                fields.push(unquote(&line[start..i]));
+                start = i + 1;
+            }
+            _ => {}
+        }
+    }
+    fields.push(unquote(&line[start..]));
+    fields
+}
+
+fn unquote(field: &str) -> &str {
+    let f = field.trim();
+    f.strip_prefix('"')
+        .and_then(|f| f.strip_suffix('"'))
+        .unwrap_or(f)
+}
+
+/// Parses the common plain form `[-]digits[.digits]` with at most 15 significant digits exactly:
+/// the digits form an integer below 2^53 (exact in f64) and one division by an exact power of ten
+/// rounds correctly (Clinger's fast path). Anything else returns `None` and goes to `str::parse`.
+fn parse_plain_decimal(field: &str) -> Option<f64> {
+    const POW10: [f64; 16] = [
+        1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15,
+    ];
+    let bytes = field.as_bytes();
+    let (negative, digits) = match bytes.first() {
+        Some(b'-') => (true, &bytes[1..]),
+        _ => (false, bytes),
+    };
+    if digits.is_empty() || digits.len() > 16 {
+        return None;
+    }
+    let mut mantissa: u64 = 0;
+    let mut count = 0;
+    let mut decimals = None;
+    for (i, &b) in digits.iter().enumerate() {
+        match b {
+            b'0'..=b'9' => {
+                mantissa = mantissa * 10 + u64::from(b - b'0');
+                count += 1;
+            }
+            b'.' if decimals.is_none() => decimals = Some(digits.len() - i - 1),
+            _ => return None,
+        }
+    }
+    let decimals = decimals.unwrap_or(0);
+    if count == 0 || count > 15 || decimals >= POW10.len() {
+        return None;
+    }
+    let v = mantissa as f64 / POW10[decimals];
+    Some(if negative { -v } else { v })
+}
+
+pub fn number(field: &str, name: &str, line: usize, column: usize) -> Result<f64, Error> {
+    let parsed = match parse_plain_decimal(field) {
+        Some(v) => Ok(v),
+        None => field.parse::<f64>(),
+    };
+    let v: f64 = parsed.map_err(|_| {
+        Error::new(
+            ErrorKind::BadNumber,
+            format!("`{field}` in column `{name}` is not a number"),
+        )
+        .at(line, Some(column))
+    })?;
+    if !v.is_finite() {
+        return Err(Error::new(
+            ErrorKind::NotFinite,
+            format!("column `{name}` is `{field}`: every value must be a finite number"),
+        )
+        .at(line, Some(column)));
+    }
+    Ok(v)
+}
+
+pub fn frame_number(v: f64, line: usize, column: usize) -> Result<u32, Error> {
+    if v.fract() != 0.0 || v < 0.0 || v > u32::MAX as f64 {
+        return Err(Error::new(
+            ErrorKind::BadFrame,
+            format!("frame `{v}` is not a whole number of 1 or more"),
+        )
+        .at(line, Some(column)));
+    }
+    if v == 0.0 {
+        return Err(Error::new(
+            ErrorKind::BadFrame,
+            "frame 0 found, but frames are numbered from 1: if the file counts from 0, add 1 to every frame",
+        )
+        .at(line, Some(column)));
+    }
+    Ok(v as u32)
+}
