@@ -13,8 +13,8 @@
 //!   screenline, are joined into one before counting.
 //! - Frames are 1-based; the time of frame `f` is `(f − 1) / frame_rate` seconds after `start`.
 
-use crate::clock::{elapsed, LocalTime};
 use crate::geometry::{Point, Segment};
+use crate::plan::clock::{elapsed, LocalTime};
 use crate::plan::{Anchor, Plan, Screenline, Zone};
 use crate::track::{Track, TrackerConfig, Tracks};
 use serde::Serialize;

@@ -9,8 +9,6 @@
 //! - frame numbers are **1-based**, as in the benchmark text format.
 
 pub mod assign;
-pub mod calibrate;
-pub mod clock;
 pub mod count;
 pub mod detections;
 pub mod error;

@@ -3,7 +3,7 @@
 //! `source`), made by `tests/reference/make_homography_fixtures.py`.
 
 use serde::Deserialize;
-use throughline_core::calibrate::Homography;
+use throughline_core::plan::Homography;
 use throughline_core::plan::PointPair;
 
 #[derive(Deserialize)]

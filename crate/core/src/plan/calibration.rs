@@ -2,8 +2,16 @@
 //! four or more point pairs by the normalised direct linear transform (Hartley & Zisserman,
 //! "Multiple View Geometry", algorithm 4.2), with `nalgebra`'s SVD.
 
-use crate::plan::PointPair;
 use nalgebra::{DMatrix, Matrix3, Vector3};
+use serde::{Deserialize, Serialize};
+
+/// One image point and where it lies on the ground.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct PointPair {
+    pub image: [f64; 2],
+    pub ground: [f64; 2],
+}
 
 /// A plane-to-plane projective map from image pixels to ground units.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -69,6 +77,25 @@ fn has_collinear_triple(points: &[[f64; 2]]) -> bool {
     false
 }
 
+/// Finite points, no three of them on one line (in the picture or on the ground).
+fn check_spread(image: &[[f64; 2]], ground: &[[f64; 2]]) -> Result<(), String> {
+    if image
+        .iter()
+        .chain(ground)
+        .any(|p| !(p[0].is_finite() && p[1].is_finite()))
+    {
+        return Err("every point must have finite coordinates".into());
+    }
+    if has_collinear_triple(image) || has_collinear_triple(ground) {
+        return Err(
+            "three of the four points lie on one line: choose points that span the ground area, \
+                    such as four corners of a marked rectangle"
+                .into(),
+        );
+    }
+    Ok(())
+}
+
 impl Homography {
     /// Estimates the homography from image → ground pairs. Errors say what is wrong with the points.
     pub fn from_pairs(pairs: &[PointPair]) -> Result<Homography, String> {
@@ -80,18 +107,7 @@ impl Homography {
         }
         let image: Vec<[f64; 2]> = pairs.iter().map(|p| p.image).collect();
         let ground: Vec<[f64; 2]> = pairs.iter().map(|p| p.ground).collect();
-        if image
-            .iter()
-            .chain(&ground)
-            .any(|p| !(p[0].is_finite() && p[1].is_finite()))
-        {
-            return Err("every point must have finite coordinates".into());
-        }
-        if has_collinear_triple(&image) || has_collinear_triple(&ground) {
-            return Err("three of the four points lie on one line: choose points that span the ground area, \
-                        such as four corners of a marked rectangle"
-                .into());
-        }
+        check_spread(&image, &ground)?;
         let (Some(ti), Some(tg)) = (normaliser(&image), normaliser(&ground)) else {
             return Err(
                 "the points all coincide: choose points spread over the ground area".into(),

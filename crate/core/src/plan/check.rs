@@ -1,0 +1,184 @@
+//! Checking a plan as written: every number in range, every name present and unique, every line
+//! and zone with enough distinct points, the calibration solvable. Each error names the field.
+
+use super::clock::LocalTime;
+use super::{Homography, Plan, PlanSpec, Rules, Screenline, ScreenlineSpec, Zone, ZoneSpec};
+use crate::error::{Error, ErrorKind};
+use crate::geometry::{Point, Polygon, Segment};
+use std::collections::HashSet;
+
+fn err(field: impl Into<String>, message: impl Into<String>) -> Error {
+    Error::new(ErrorKind::Plan, message).in_field(field)
+}
+
+fn point(p: [f64; 2]) -> Point {
+    Point::new(p[0], p[1])
+}
+
+/// The checked plan, or the first problem found.
+pub(super) fn plan(spec: PlanSpec) -> Result<Plan, Error> {
+    let start = timing(&spec)?;
+    rules(&spec.rules)?;
+    let mut names = HashSet::new();
+    let screenlines = spec
+        .screenlines
+        .iter()
+        .enumerate()
+        .map(|(i, l)| screenline(i, l, &mut names))
+        .collect::<Result<Vec<_>, _>>()?;
+    let zones = spec
+        .zones
+        .iter()
+        .enumerate()
+        .map(|(i, z)| zone(i, z, &mut names))
+        .collect::<Result<Vec<_>, _>>()?;
+    let calibration = match &spec.calibration {
+        None => None,
+        Some(c) => Some(Homography::from_pairs(&c.pairs).map_err(|m| err("calibration.pairs", m))?),
+    };
+    Ok(Plan {
+        spec,
+        start,
+        screenlines,
+        zones,
+        calibration,
+    })
+}
+
+/// The frame rate, the interval and the recording start.
+fn timing(spec: &PlanSpec) -> Result<Option<LocalTime>, Error> {
+    if !(spec.frame_rate.is_finite() && spec.frame_rate > 0.0 && spec.frame_rate <= 1000.0) {
+        return Err(err(
+            "frame_rate",
+            "must be the footage's frames per second, above 0 (for example 25)",
+        ));
+    }
+    if !(spec.interval_minutes.is_finite()
+        && spec.interval_minutes > 0.0
+        && spec.interval_minutes <= 1440.0)
+    {
+        return Err(err(
+            "interval_minutes",
+            "must be above 0 and at most 1440 (15 is usual)",
+        ));
+    }
+    match &spec.start {
+        None => Ok(None),
+        Some(s) => LocalTime::parse(s).map(Some).ok_or_else(|| {
+            err(
+                "start",
+                format!("`{s}` is not a local time like 2026-03-02T07:00:00"),
+            )
+        }),
+    }
+}
+
+fn rules(r: &Rules) -> Result<(), Error> {
+    let margin = "must be between 0 and 2 (a fraction of the box height)";
+    if !(r.hysteresis.is_finite() && (0.0..=2.0).contains(&r.hysteresis)) {
+        return Err(err("rules.hysteresis", margin));
+    }
+    if r.zone_hysteresis
+        .is_some_and(|h| !(h.is_finite() && (0.0..=2.0).contains(&h)))
+    {
+        return Err(err("rules.zone_hysteresis", margin));
+    }
+    if !(r.join_seconds.is_finite() && (0.0..=60.0).contains(&r.join_seconds)) {
+        return Err(err(
+            "rules.join_seconds",
+            "must be between 0 and 60 seconds",
+        ));
+    }
+    if !(r.join_box_heights.is_finite() && (0.0..=10.0).contains(&r.join_box_heights)) {
+        return Err(err("rules.join_box_heights", "must be between 0 and 10"));
+    }
+    Ok(())
+}
+
+/// A line's or zone's name: present, and not used by another line or zone.
+fn name(field: &str, kind: &str, name: &str, names: &mut HashSet<String>) -> Result<(), Error> {
+    if name.trim().is_empty() {
+        return Err(err(
+            format!("{field}.name"),
+            format!("give the {kind} a name"),
+        ));
+    }
+    if !names.insert(name.to_string()) {
+        return Err(err(
+            format!("{field}.name"),
+            format!("the name `{name}` is used twice: names must differ"),
+        ));
+    }
+    Ok(())
+}
+
+fn screenline(
+    i: usize,
+    l: &ScreenlineSpec,
+    names: &mut HashSet<String>,
+) -> Result<Screenline, Error> {
+    let field = format!("screenlines[{i}]");
+    name(&field, "screenline", &l.name, names)?;
+    if l.points.len() < 2 {
+        return Err(err(
+            format!("{field}.points"),
+            format!(
+                "a screenline needs at least 2 points, found {}",
+                l.points.len()
+            ),
+        ));
+    }
+    check_points(&l.points, &format!("{field}.points"))?;
+    let mut segments = Vec::new();
+    for (k, w) in l.points.windows(2).enumerate() {
+        let s = Segment::new(point(w[0]), point(w[1]));
+        if s.length() == 0.0 {
+            return Err(err(
+                format!("{field}.points[{}]", k + 1),
+                "repeats the point before it: a zero-length segment has no direction",
+            ));
+        }
+        segments.push(s);
+    }
+    Ok(Screenline {
+        name: l.name.clone(),
+        segments,
+        forward: l.forward.clone().unwrap_or_else(|| "forward".into()),
+        backward: l.backward.clone().unwrap_or_else(|| "backward".into()),
+    })
+}
+
+fn zone(i: usize, z: &ZoneSpec, names: &mut HashSet<String>) -> Result<Zone, Error> {
+    let field = format!("zones[{i}]");
+    name(&field, "zone", &z.name, names)?;
+    if z.polygon.len() < 3 {
+        return Err(err(
+            format!("{field}.polygon"),
+            format!("a zone needs at least 3 corners, found {}", z.polygon.len()),
+        ));
+    }
+    check_points(&z.polygon, &format!("{field}.polygon"))?;
+    let polygon = Polygon::new(z.polygon.iter().copied().map(point).collect());
+    if polygon.area() == 0.0 {
+        return Err(err(
+            format!("{field}.polygon"),
+            "the corners enclose no area (all on one line?)",
+        ));
+    }
+    Ok(Zone {
+        name: z.name.clone(),
+        polygon,
+    })
+}
+
+fn check_points(points: &[[f64; 2]], field: &str) -> Result<(), Error> {
+    for (k, p) in points.iter().enumerate() {
+        if !(p[0].is_finite() && p[1].is_finite()) {
+            return Err(err(
+                format!("{field}[{k}]"),
+                "coordinates must be finite numbers of pixels",
+            ));
+        }
+    }
+    Ok(())
+}

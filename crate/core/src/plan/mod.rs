@@ -1,0 +1,174 @@
+//! The counting plan: where the screenlines and zones are, how frames map to time, and the optional
+//! ground-plane calibration. Read from JSON (`docs/plan-format.md`, `docs/plan.schema.json`).
+//!
+//! Geometry is in image pixels (x right, y down). A screenline is a polyline `p0 → p1 → …`; a crossing
+//! is `forward` when the anchor moves from the left-hand side of a segment to its right-hand side as
+//! seen on screen looking from its first point to its second, i.e. when `cross(p1 − p0, q − p0)` goes
+//! from negative to positive; otherwise `backward`.
+
+mod calibration;
+mod check;
+pub mod clock;
+
+pub use calibration::{Homography, PointPair};
+
+use crate::error::{Error, ErrorKind};
+use crate::geometry::{Polygon, Segment};
+use clock::LocalTime;
+use serde::{Deserialize, Serialize};
+
+/// Which point of a box is tested against lines and zones.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize, Default)]
+#[serde(rename_all = "lowercase")]
+pub enum Anchor {
+    /// Bottom-centre of the box: where feet or wheels meet the ground.
+    #[default]
+    Bottom,
+    /// Centre of the box.
+    Centre,
+}
+
+/// A screenline as written in the plan.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct ScreenlineSpec {
+    pub name: String,
+    pub points: Vec<[f64; 2]>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub forward: Option<String>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub backward: Option<String>,
+}
+
+/// A zone as written in the plan.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct ZoneSpec {
+    pub name: String,
+    pub polygon: Vec<[f64; 2]>,
+}
+
+/// Image-to-ground point pairs (at least 4) and the ground unit.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct CalibrationSpec {
+    pub pairs: Vec<PointPair>,
+    #[serde(default = "default_unit")]
+    pub unit: String,
+}
+
+fn default_unit() -> String {
+    "m".into()
+}
+
+/// Counting rules that can be tuned; every field has a default.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields, default)]
+pub struct Rules {
+    /// How far beyond a line (or inside/outside a zone edge) the anchor must get before a crossing
+    /// counts, as a fraction of the box height.
+    pub hysteresis: f64,
+    /// Longest gap, in seconds, across which an ended track and a new one may be joined near a line.
+    pub join_seconds: f64,
+    /// Largest distance between where the ended track was heading and where the new one starts, as a
+    /// multiple of the box height.
+    pub join_box_heights: f64,
+    /// The hysteresis for zone edges where it should differ from `hysteresis` (lines): a zone near
+    /// the edge of the picture cannot be left by much before its leaver is out of sight.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub zone_hysteresis: Option<f64>,
+}
+
+impl Rules {
+    /// The hysteresis for zone entries and exits.
+    pub fn zone_hysteresis(&self) -> f64 {
+        self.zone_hysteresis.unwrap_or(self.hysteresis)
+    }
+}
+
+/// How far past a line a crossing must get, as a fraction of the box height, unless the plan says.
+pub const DEFAULT_HYSTERESIS: f64 = 0.15;
+
+/// The larger line margin suggested for boxes found by the fixed-camera detector, whose boxes jump
+/// where people join or split; zones then keep [`DEFAULT_HYSTERESIS`] (see docs/detector-settings.md).
+pub const FOOTAGE_HYSTERESIS: f64 = 0.35;
+
+/// Interval length, in minutes, unless the plan says (the usual 15-minute count interval).
+pub const DEFAULT_INTERVAL_MINUTES: f64 = 15.0;
+
+impl Default for Rules {
+    fn default() -> Self {
+        Self {
+            hysteresis: DEFAULT_HYSTERESIS,
+            join_seconds: 2.0,
+            join_box_heights: 1.0,
+            zone_hysteresis: None,
+        }
+    }
+}
+
+/// The plan file as written.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct PlanSpec {
+    pub frame_rate: f64,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub start: Option<String>,
+    #[serde(default = "default_interval")]
+    pub interval_minutes: f64,
+    #[serde(default)]
+    pub anchor: Anchor,
+    #[serde(default)]
+    pub screenlines: Vec<ScreenlineSpec>,
+    #[serde(default)]
+    pub zones: Vec<ZoneSpec>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub calibration: Option<CalibrationSpec>,
+    #[serde(default)]
+    pub rules: Rules,
+}
+
+fn default_interval() -> f64 {
+    DEFAULT_INTERVAL_MINUTES
+}
+
+/// A screenline ready for counting.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Screenline {
+    pub name: String,
+    pub segments: Vec<Segment>,
+    pub forward: String,
+    pub backward: String,
+}
+
+/// A zone ready for counting.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Zone {
+    pub name: String,
+    pub polygon: Polygon,
+}
+
+/// A checked plan.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Plan {
+    pub spec: PlanSpec,
+    pub start: Option<LocalTime>,
+    pub screenlines: Vec<Screenline>,
+    pub zones: Vec<Zone>,
+    pub calibration: Option<Homography>,
+}
+
+impl Plan {
+    /// Reads and checks a plan from JSON text. Errors name the field (or the line and column of a
+    /// syntax error) and say what to fix.
+    pub fn from_json(text: &str) -> Result<Plan, Error> {
+        let spec: PlanSpec = serde_json::from_str(text)
+            .map_err(|e| Error::from_json(ErrorKind::Plan, &e, " (see docs/plan-format.md)"))?;
+        Plan::from_spec(spec)
+    }
+
+    /// Checks a plan given as a structure.
+    pub fn from_spec(spec: PlanSpec) -> Result<Plan, Error> {
+        check::plan(spec)
+    }
+}
