@@ -7,7 +7,8 @@ use clap::{Parser, Subcommand};
 use indicatif::{ProgressBar, ProgressStyle};
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
-use throughline_core::{count, detections, motion, plan, track, tracks_io};
+use throughline_core::track::files as tracks_io;
+use throughline_core::{count, detections, motion, plan, track};
 use throughline_eval::tracking_metrics as score;
 use throughline_footage::y4m;
 use throughline_sim as sim;
@@ -1029,7 +1030,7 @@ fn run_tune(
         Some(m) => vec![m],
         None => track::Method::ALL
             .into_iter()
-            .filter(|&m| m != track::Method::Deepsort || dets.detections.embedding_dim > 0)
+            .filter(|m| !m.def().needs_embeddings || dets.detections.embedding_dim > 0)
             .collect(),
     };
     let candidates = tune::candidates(&methods);

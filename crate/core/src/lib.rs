@@ -8,17 +8,14 @@
 //! - boxes are in pixels, **top-left x/y plus width/height** ([`geometry::BBox`]), image y pointing down;
 //! - frame numbers are **1-based**, as in the benchmark text format.
 
-pub mod assign;
 pub mod count;
 pub mod detections;
 pub mod error;
 pub mod geometry;
-pub mod kalman;
 pub mod motion;
 pub mod plan;
 pub mod text;
 pub mod track;
-pub mod tracks_io;
 
 pub use detections::{read_detections, DetectionFormat, Detections, ReadReport};
 pub use error::{Error, ErrorKind};

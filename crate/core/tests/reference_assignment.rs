@@ -3,7 +3,7 @@
 //! `tests/reference/make_assignment_fixtures.py`.
 
 use serde::Deserialize;
-use throughline_core::assign::{solve, solve_gated, total_cost, CostMatrix};
+use throughline_core::track::assign::{solve, solve_gated, total_cost, CostMatrix};
 
 #[derive(Deserialize)]
 struct Fixture {

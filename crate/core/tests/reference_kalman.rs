@@ -4,7 +4,7 @@
 
 use serde::Deserialize;
 use throughline_core::geometry::BBox;
-use throughline_core::kalman::{BoxMotion, KalmanFilter, StateCov};
+use throughline_core::track::kalman::{BoxMotion, KalmanFilter, StateCov};
 
 #[derive(Deserialize)]
 struct Fixture {
@@ -120,7 +120,7 @@ fn the_model_s_fast_update_equals_the_generic_joseph_form() {
         );
         let r = motion.measurement_noise(generic.x[3]);
         generic.update(
-            &throughline_core::kalman::measurement(&b),
+            &throughline_core::track::kalman::measurement(&b),
             &BoxMotion::observation(),
             &r,
         );

@@ -3,8 +3,8 @@
 //! with a margin: they guard against regressions, they are not outside references.
 
 use throughline_core::detections::{read_detections, Detections};
+use throughline_core::track::files::{self, tracks_to_boxes};
 use throughline_core::track::{run_tracker, Method, TrackerConfig, Tracks};
-use throughline_core::tracks_io::{self, tracks_to_boxes};
 use throughline_eval::tracking_metrics::score;
 use throughline_sim::{generate, SceneConfig};
 
@@ -120,7 +120,7 @@ fn tracks_are_numbered_in_order_of_confirmation_and_runs_are_deterministic() {
     for method in [Method::Iou, Method::Sort, Method::Bytetrack] {
         let a = run(&scene.detections, method);
         let b = run(&scene.detections, method);
-        assert_eq!(tracks_io::to_json(&a), tracks_io::to_json(&b), "{method}");
+        assert_eq!(files::to_json(&a), files::to_json(&b), "{method}");
         let ids: Vec<u32> = a.tracks.iter().map(|t| t.id).collect();
         assert_eq!(
             ids,
@@ -179,11 +179,11 @@ fn tracks_json_reads_back_what_was_written() {
         ..SceneConfig::default()
     });
     let t = run(&scene.detections, Method::Sort);
-    let json = tracks_io::to_json(&t);
-    let back = tracks_io::from_json(json.as_bytes()).expect("reads back");
+    let json = files::to_json(&t);
+    let back = files::from_json(json.as_bytes()).expect("reads back");
     assert_eq!(back.tracks.len(), t.tracks.len());
-    assert_eq!(tracks_io::to_json(&back), json);
-    let bad = tracks_io::from_json(b"{\"format\": \"something-else\"}").unwrap_err();
+    assert_eq!(files::to_json(&back), json);
+    let bad = files::from_json(b"{\"format\": \"something-else\"}").unwrap_err();
     assert!(bad.to_string().contains("tracks document"), "{bad}");
 }
 
@@ -193,7 +193,7 @@ fn benchmark_text_output_has_ten_columns_sorted_by_frame_then_id() {
         frames: 60,
         ..SceneConfig::default()
     });
-    let text = tracks_io::to_benchmark_text(&run(&scene.detections, Method::Sort));
+    let text = files::to_benchmark_text(&run(&scene.detections, Method::Sort));
     let rows: Vec<Vec<&str>> = text.lines().map(|l| l.split(',').collect()).collect();
     assert!(!rows.is_empty());
     assert!(rows
@@ -219,7 +219,7 @@ fn decimals_are_written_like_rounded_floats() {
         (99.999, 2),
     ] {
         let mut bytes = Vec::new();
-        tracks_io::write_decimal(&mut bytes, v, places);
+        files::write_decimal(&mut bytes, v, places);
         let s = String::from_utf8(bytes).unwrap();
         let p = 10f64.powi(places as i32);
         let r = (v * p).round() / p;

@@ -8,8 +8,8 @@
 use serde::Serialize;
 use std::collections::BTreeMap;
 use std::fmt;
-use throughline_core::assign::{maximise_edges, CostMatrix, Edge};
-use throughline_core::tracks_io::IdBox;
+use throughline_core::track::assign::{maximise_edges, CostMatrix, Edge};
+use throughline_core::track::files::IdBox;
 
 /// The scores of one tracker output against one ground truth.
 #[derive(Debug, Clone, PartialEq, Serialize)]

@@ -3,8 +3,8 @@
 
 use crate::tracking_metrics::{score, Scores};
 use throughline_core::detections::Detections;
+use throughline_core::track::files::{tracks_to_boxes, IdBox};
 use throughline_core::track::{run_tracker, Method, TrackerConfig};
-use throughline_core::tracks_io::{tracks_to_boxes, IdBox};
 
 /// What to maximise.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -42,20 +42,13 @@ pub struct Trial {
 }
 
 /// The grid: detection score floor, IoU gate, coasting length and confirmation hits for every
-/// method, and the cosine gate for `deepsort`; other settings keep the method's defaults.
+/// method, with the values of coasting length and cosine gate each method's definition gives
+/// (`MethodDef::search_*`); other settings keep the method's defaults.
 pub fn candidates(methods: &[Method]) -> Vec<TrackerConfig> {
     let mut out = Vec::new();
     for &method in methods {
-        let ages: &[u32] = if method == Method::Iou {
-            &[0, 2, 5]
-        } else {
-            &[5, 30, 60]
-        };
-        let cosines: &[f64] = if method == Method::Deepsort {
-            &[0.15, 0.3]
-        } else {
-            &[0.2]
-        };
+        let def = method.def();
+        let (ages, cosines) = (def.search_max_age, def.search_max_cosine_distance);
         for &min_score in &[0.1, 0.3, 0.5] {
             for &min_iou in &[0.2, 0.3, 0.5] {
                 for &max_age in ages {

@@ -7,7 +7,7 @@
 
 use serde::Deserialize;
 use std::collections::BTreeMap;
-use throughline_core::tracks_io::read_benchmark_boxes;
+use throughline_core::track::files::read_benchmark_boxes;
 use throughline_eval::tracking_metrics::score;
 
 #[derive(Deserialize)]

@@ -2,7 +2,7 @@
 //! the subject of its own fixtures.
 
 use throughline_core::geometry::BBox;
-use throughline_core::tracks_io::IdBox;
+use throughline_core::track::files::IdBox;
 use throughline_eval::tracking_metrics::score;
 
 fn row(frame: u32, id: i64, x: f64) -> IdBox {

@@ -11,7 +11,7 @@
 use crate::rng::Rng;
 use throughline_core::detections::{Detection, Detections};
 use throughline_core::geometry::BBox;
-use throughline_core::tracks_io::IdBox;
+use throughline_core::track::files::IdBox;
 
 /// The classes of the scene, in the order of their class index.
 pub const CLASSES: [&str; 3] = ["pedestrian", "cyclist", "cart"];
@@ -424,7 +424,7 @@ pub fn generate_with(cfg: &SceneConfig, on_frame: &mut dyn FnMut(u32, &[AgentVie
 /// The ground truth of a scene as tracks (every box observed, classes by name), for counting the
 /// true crossings of a plan.
 pub fn truth_tracks(scene: &Scene) -> throughline_core::track::Tracks {
-    let mut tracks = throughline_core::tracks_io::boxes_to_tracks(&scene.truth);
+    let mut tracks = throughline_core::track::files::boxes_to_tracks(&scene.truth);
     for t in &mut tracks.tracks {
         let class = scene
             .truth_classes

@@ -5,7 +5,8 @@
 
 use js_sys::{Float32Array, Function};
 use serde::Serialize;
-use throughline_core::{count, detections, motion, plan, track, tracks_io};
+use throughline_core::track::files as tracks_io;
+use throughline_core::{count, detections, motion, plan, track};
 use wasm_bindgen::prelude::*;
 
 mod footage;

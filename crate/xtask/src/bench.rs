@@ -16,9 +16,10 @@ use super::{build_cli, cli_binary, root, run, site_and_browser_driver};
 use std::path::Path;
 use std::process::Command;
 use std::time::Instant;
-use throughline_core::assign::{maximise_edges, Edge};
 use throughline_core::geometry::{iou, BBox};
-use throughline_core::{count, detections, plan, tracks_io};
+use throughline_core::track::assign::{maximise_edges, Edge};
+use throughline_core::track::files as tracks_io;
+use throughline_core::{count, detections, plan};
 
 /// Timed runs per measurement in the speed table; the fastest is kept.
 const RUNS: usize = 5;

@@ -3,51 +3,9 @@
 //! A settings file (JSON) names any subset of the fields; the rest take the chosen method's
 //! defaults. Unknown fields are an error, so a misspelt setting is never silently ignored.
 
+use super::Method;
+use crate::error::{Error, ErrorKind};
 use serde::{Deserialize, Serialize};
-use std::fmt;
-
-/// The published tracking methods Throughline implements.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize, Deserialize)]
-#[serde(rename_all = "lowercase")]
-pub enum Method {
-    /// IoU chaining of detections frame to frame (Bochinski et al. 2017), no motion model.
-    Iou,
-    /// Kalman prediction + Hungarian assignment on IoU (Bewley et al. 2016).
-    Sort,
-    /// Two-stage association: high-score boxes first, then low-score ones (Zhang et al. 2022).
-    Bytetrack,
-    /// Appearance (cosine distance to a gallery of embeddings) gated by Mahalanobis distance, in a
-    /// matching cascade, then IoU (Wojke et al. 2017). Needs detections with embeddings.
-    Deepsort,
-}
-
-impl Method {
-    pub const ALL: [Method; 4] = [
-        Method::Iou,
-        Method::Sort,
-        Method::Bytetrack,
-        Method::Deepsort,
-    ];
-
-    pub fn name(self) -> &'static str {
-        match self {
-            Method::Iou => "iou",
-            Method::Sort => "sort",
-            Method::Bytetrack => "bytetrack",
-            Method::Deepsort => "deepsort",
-        }
-    }
-
-    pub fn parse(s: &str) -> Option<Method> {
-        Self::ALL.into_iter().find(|m| m.name() == s)
-    }
-}
-
-impl fmt::Display for Method {
-    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        f.write_str(self.name())
-    }
-}
 
 /// The method used when none is named: `deepsort` when the detections carry appearance embeddings,
 /// `sort` otherwise. See DEVELOPERS.md ("Choice of the default method") for the measurements behind
@@ -67,7 +25,7 @@ pub fn resolve_config(
     method: Option<Method>,
     settings_json: Option<&str>,
     has_embeddings: bool,
-) -> Result<TrackerConfig, ConfigError> {
+) -> Result<TrackerConfig, Error> {
     let named = match settings_json {
         Some(text) => TrackerConfig::method_in_json(text)?,
         None => None,
@@ -111,7 +69,8 @@ pub struct TrackerConfig {
 }
 
 impl TrackerConfig {
-    /// The defaults of a method.
+    /// The defaults of a method: the settings every method shares, changed where the method's own
+    /// file says.
     pub fn for_method(method: Method) -> Self {
         let base = TrackerConfig {
             method,
@@ -125,64 +84,45 @@ impl TrackerConfig {
             low_min_iou: 0.5,
             max_cosine_distance: 0.2,
             gallery_size: 100,
-            max_mahalanobis: crate::kalman::CHI2_95_4DOF,
+            max_mahalanobis: super::kalman::CHI2_95_4DOF,
         };
-        match method {
-            // σ_l = 0.3, σ_h = 0.5, σ_IoU = 0.5 and a minimum length, as in the IoU tracker paper's
-            // setting for good detectors; a short gap is allowed since simulated and real detectors miss.
-            Method::Iou => TrackerConfig {
-                min_iou: 0.5,
-                confirm_score: 0.5,
-                max_age: 2,
-                ..base
-            },
-            Method::Sort => base,
-            // ByteTrack keeps low-score boxes for its second stage.
-            Method::Bytetrack => TrackerConfig {
-                min_score: 0.1,
-                min_iou: 0.2,
-                min_hits: 2,
-                ..base
-            },
-            Method::Deepsort => base,
-        }
+        (method.def().defaults)(base)
     }
 
     /// The method a JSON settings file names, if any.
-    pub fn method_in_json(text: &str) -> Result<Option<Method>, ConfigError> {
+    pub fn method_in_json(text: &str) -> Result<Option<Method>, Error> {
         let fields = Self::json_object(text)?;
         match fields.get("method") {
             None => Ok(None),
-            Some(serde_json::Value::String(s)) => Method::parse(s).map(Some).ok_or_else(|| ConfigError {
-                message: format!("unknown method `{s}` in the settings file: use iou, sort, bytetrack or deepsort"),
+            Some(serde_json::Value::String(s)) => Method::parse(s).map(Some).ok_or_else(|| {
+                settings_error(format!(
+                    "unknown method `{s}` in the settings file: use {}",
+                    Method::names_listed()
+                ))
             }),
-            Some(_) => Err(ConfigError {
-                message: "`method` in the settings file must be a string".into(),
-            }),
+            Some(_) => Err(settings_error(
+                "`method` in the settings file must be a string",
+            )),
         }
     }
 
-    fn json_object(text: &str) -> Result<serde_json::Map<String, serde_json::Value>, ConfigError> {
-        let value: serde_json::Value = serde_json::from_str(text).map_err(|e| ConfigError {
-            message: format!("the settings file is not valid JSON: {e}"),
-        })?;
+    fn json_object(text: &str) -> Result<serde_json::Map<String, serde_json::Value>, Error> {
+        let value: serde_json::Value = serde_json::from_str(text)
+            .map_err(|e| settings_error(format!("the settings file is not valid JSON: {e}")))?;
         match value {
             serde_json::Value::Object(fields) => Ok(fields),
-            _ => Err(ConfigError {
-                message: "the settings file must be a JSON object such as {\"method\": \"sort\", \"max_age\": 20}"
-                    .into(),
-            }),
+            _ => Err(settings_error(
+                "the settings file must be a JSON object such as {\"method\": \"sort\", \"max_age\": 20}",
+            )),
         }
     }
 
     /// Settings from a JSON settings file for `method`: that method's defaults, overridden by every
     /// other field the file gives (its own `method` field is left to [`Self::method_in_json`]).
-    pub fn from_json(text: &str, method: Method) -> Result<Self, ConfigError> {
+    pub fn from_json(text: &str, method: Method) -> Result<Self, Error> {
         let fields = Self::json_object(text)?;
-        let mut merged =
-            serde_json::to_value(Self::for_method(method)).map_err(|e| ConfigError {
-                message: e.to_string(),
-            })?;
+        let mut merged = serde_json::to_value(Self::for_method(method))
+            .map_err(|e| settings_error(e.to_string()))?;
         if let serde_json::Value::Object(m) = &mut merged {
             for (k, v) in fields {
                 if k != "method" {
@@ -190,15 +130,14 @@ impl TrackerConfig {
                 }
             }
         }
-        let config: TrackerConfig = serde_json::from_value(merged).map_err(|e| ConfigError {
-            message: format!("in the settings file: {e}"),
-        })?;
+        let config: TrackerConfig = serde_json::from_value(merged)
+            .map_err(|e| settings_error(format!("in the settings file: {e}")))?;
         config.validate()?;
         Ok(config)
     }
 
     /// Checks ranges, naming the field to fix.
-    pub fn validate(&self) -> Result<(), ConfigError> {
+    pub fn validate(&self) -> Result<(), Error> {
         let unit = [
             ("min_iou", self.min_iou),
             ("low_min_iou", self.low_min_iou),
@@ -206,9 +145,9 @@ impl TrackerConfig {
         ];
         for (name, v) in unit {
             if !(0.0..=1.0).contains(&v) {
-                return Err(ConfigError {
-                    message: format!("`{name}` is {v}, but must be between 0 and 1"),
-                });
+                return Err(settings_error(format!(
+                    "`{name}` is {v}, but must be between 0 and 1"
+                )));
             }
         }
         let finite = [
@@ -220,35 +159,19 @@ impl TrackerConfig {
         ];
         for (name, v) in finite {
             if !v.is_finite() {
-                return Err(ConfigError {
-                    message: format!("`{name}` must be a finite number"),
-                });
+                return Err(settings_error(format!("`{name}` must be a finite number")));
             }
         }
         if self.min_hits == 0 {
-            return Err(ConfigError {
-                message: "`min_hits` must be at least 1".into(),
-            });
+            return Err(settings_error("`min_hits` must be at least 1"));
         }
         if self.gallery_size == 0 {
-            return Err(ConfigError {
-                message: "`gallery_size` must be at least 1".into(),
-            });
+            return Err(settings_error("`gallery_size` must be at least 1"));
         }
         Ok(())
     }
 }
 
-/// A settings problem, naming the field to fix.
-#[derive(Debug, Clone, PartialEq, Eq)]
-pub struct ConfigError {
-    pub message: String,
+fn settings_error(message: impl Into<String>) -> Error {
+    Error::new(ErrorKind::Settings, message)
 }
-
-impl fmt::Display for ConfigError {
-    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        f.write_str(&self.message)
-    }
-}
-
-impl std::error::Error for ConfigError {}

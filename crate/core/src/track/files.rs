@@ -191,17 +191,11 @@ pub fn to_json(tracks: &Tracks) -> String {
 pub fn from_json(bytes: &[u8]) -> Result<Tracks, Error> {
     let text = text::as_text(bytes)?;
     let doc: TracksDocument = serde_json::from_str(text).map_err(|e| {
-        let mut message = e.to_string();
-        if let Some(cut) = message.rfind(" at line ") {
-            message.truncate(cut);
-        }
-        Error::new(
+        Error::from_json(
             ErrorKind::BadJson,
-            format!(
-                "{message}; expected a Throughline tracks document (see docs/tracks-format.md)"
-            ),
+            &e,
+            "; expected a Throughline tracks document (see docs/tracks-format.md)",
         )
-        .at(e.line().max(1), Some(e.column().max(1)))
     })?;
     if doc.format != TRACKS_FORMAT {
         return Err(Error::new(

@@ -1,0 +1,119 @@
+//! DeepSORT (Wojke, Bewley and Paulus 2017): appearance (cosine distance to a gallery of each
+//! track's embeddings) gated by the Mahalanobis distance of the motion model, in a matching cascade
+//! that favours recently seen tracks; then IoU for the rest.
+
+use super::matching::{match_iou, split};
+use super::{Association, Match, MethodDef};
+use crate::detections::Detection;
+use crate::track::assign::{solve_edges, Edge};
+use crate::track::tracker::{unit_vector, Tracker};
+use crate::track::TrackerConfig;
+
+pub(super) const DEF: MethodDef = MethodDef {
+    name: "deepsort",
+    summary: "appearance gated by motion in a matching cascade, then IoU (Wojke et al. 2017); needs embeddings",
+    motion: true,
+    needs_embeddings: true,
+    defaults,
+    associate,
+    search_max_age: &[5, 30, 60],
+    search_max_cosine_distance: &[0.15, 0.3],
+};
+
+fn defaults(base: TrackerConfig) -> TrackerConfig {
+    base
+}
+
+/// Cosine distance between a unit vector and the closest vector of a gallery.
+fn gallery_distance(gallery: &std::collections::VecDeque<Vec<f32>>, e: &[f32]) -> f64 {
+    gallery
+        .iter()
+        .map(|g| {
+            let dot: f64 = g
+                .iter()
+                .zip(e)
+                .map(|(a, b)| f64::from(*a) * f64::from(*b))
+                .sum();
+            1.0 - dot
+        })
+        .fold(f64::INFINITY, f64::min)
+}
+
+/// DeepSORT: a matching cascade over confirmed tracks, most recently seen first, on appearance gated
+/// by motion; then IoU for tentative tracks and tracks missed for one frame only.
+fn associate(tracker: &Tracker, dets: &[Detection]) -> Association {
+    let c = &tracker.config;
+    let usable: Vec<usize> = (0..dets.len())
+        .filter(|&d| dets[d].score >= c.min_score)
+        .collect();
+    let embeddings: Vec<Option<Vec<f32>>> = usable
+        .iter()
+        .map(|&d| tracker.detections.embedding(&dets[d]).and_then(unit_vector))
+        .collect();
+    let mut unmatched: Vec<usize> = (0..usable.len()).collect();
+    let mut matches = Vec::new();
+    let mut seen_by_cascade = vec![false; tracker.live.len()];
+    // `unseen` counts frames since the last match, before this frame's update: a track seen in the
+    // previous frame has unseen == 0 here, so level k holds the tracks with unseen == k - 1.
+    for level in 0..=c.max_age {
+        if unmatched.is_empty() {
+            break;
+        }
+        let tracks: Vec<usize> = (0..tracker.live.len())
+            .filter(|&t| tracker.live[t].is_confirmed() && tracker.live[t].unseen == level)
+            .collect();
+        if tracks.is_empty() {
+            continue;
+        }
+        for &t in &tracks {
+            seen_by_cascade[t] = true;
+        }
+        let mut edges = Vec::new();
+        for (r, &ti) in tracks.iter().enumerate() {
+            let t = &tracker.live[ti];
+            if t.gallery.is_empty() {
+                continue;
+            }
+            let Some(gate) = tracker.motion.gate(&t.kf, c.max_mahalanobis) else {
+                continue;
+            };
+            for (k, &d) in unmatched.iter().enumerate() {
+                let Some(e) = &embeddings[d] else { continue };
+                if gate.distance_sq(&dets[usable[d]].bbox).is_some() {
+                    edges.push(Edge {
+                        row: r,
+                        col: k,
+                        cost: gallery_distance(&t.gallery, e),
+                    });
+                }
+            }
+        }
+        let pairs = solve_edges(tracks.len(), unmatched.len(), &edges, c.max_cosine_distance);
+        let (level_matches, _, left) = split(pairs, &tracks, &unmatched);
+        matches.extend(level_matches.into_iter().map(|m| Match {
+            track: m.track,
+            det: usable[m.det],
+        }));
+        unmatched = left;
+    }
+    let matched_tracks: Vec<bool> = {
+        let mut v = vec![false; tracker.live.len()];
+        for m in &matches {
+            v[m.track] = true;
+        }
+        v
+    };
+    let iou_tracks: Vec<usize> = (0..tracker.live.len())
+        .filter(|&t| {
+            let live = &tracker.live[t];
+            !matched_tracks[t] && (!live.is_confirmed() || (seen_by_cascade[t] && live.unseen == 0))
+        })
+        .collect();
+    let left_dets: Vec<usize> = unmatched.iter().map(|&k| usable[k]).collect();
+    let (iou_matches, _, new_tracks) = match_iou(tracker, &iou_tracks, &left_dets, dets, c.min_iou);
+    matches.extend(iou_matches);
+    Association {
+        matches,
+        new_tracks,
+    }
+}

@@ -1,0 +1,95 @@
+//! Matching steps shared by the methods: the gated optimal assignment on IoU between lists of live
+//! tracks and detections, and the one-stage association of IoU chaining and SORT.
+
+use super::{Association, Match};
+use crate::detections::Detection;
+use crate::track::assign::{solve_edges, Edge};
+use crate::track::tracker::Tracker;
+
+/// Matches `tracks` to `dets` (both lists of indices) on 1 − IoU with a least IoU; returns the
+/// matches and the tracks and detections left over, in their original order.
+pub(super) fn match_iou(
+    tracker: &Tracker,
+    tracks: &[usize],
+    dets: &[usize],
+    all: &[Detection],
+    min_iou: f64,
+) -> (Vec<Match>, Vec<usize>, Vec<usize>) {
+    // Only boxes that overlap can have a positive IoU: with detections sorted by their left edge,
+    // each track looks only at those starting left of its right edge.
+    let mut by_left: Vec<(f64, usize)> = dets
+        .iter()
+        .enumerate()
+        .map(|(k, &d)| (all[d].bbox.x, k))
+        .collect();
+    by_left.sort_by(|a, b| a.0.total_cmp(&b.0));
+    let widest = dets.iter().map(|&d| all[d].bbox.w).fold(0.0, f64::max);
+    let mut edges = Vec::new();
+    for (r, &t) in tracks.iter().enumerate() {
+        let tb = tracker.predicted_box(t);
+        let start = by_left.partition_point(|&(x, _)| x + widest <= tb.x);
+        let end = by_left.partition_point(|&(x, _)| x < tb.x + tb.w);
+        for &(_, c) in &by_left[start..end.max(start)] {
+            let iou = tb.iou(&all[dets[c]].bbox);
+            if iou > 0.0 {
+                edges.push(Edge {
+                    row: r,
+                    col: c,
+                    cost: 1.0 - iou,
+                });
+            }
+        }
+    }
+    split(
+        solve_edges(tracks.len(), dets.len(), &edges, 1.0 - min_iou),
+        tracks,
+        dets,
+    )
+}
+
+/// Turns assignment pairs over sub-lists into matches plus what is left of each list.
+pub(super) fn split(
+    pairs: Vec<(usize, usize)>,
+    tracks: &[usize],
+    dets: &[usize],
+) -> (Vec<Match>, Vec<usize>, Vec<usize>) {
+    let mut track_used = vec![false; tracks.len()];
+    let mut det_used = vec![false; dets.len()];
+    let matches = pairs
+        .into_iter()
+        .map(|(r, c)| {
+            track_used[r] = true;
+            det_used[c] = true;
+            Match {
+                track: tracks[r],
+                det: dets[c],
+            }
+        })
+        .collect();
+    let left_tracks = keep_unused(tracks, &track_used);
+    let left_dets = keep_unused(dets, &det_used);
+    (matches, left_tracks, left_dets)
+}
+
+fn keep_unused(items: &[usize], used: &[bool]) -> Vec<usize> {
+    items
+        .iter()
+        .zip(used)
+        .filter(|(_, &u)| !u)
+        .map(|(&i, _)| i)
+        .collect()
+}
+
+/// IoU chaining and SORT: one assignment of all live tracks to detections above `min_score`.
+pub(super) fn single_stage(tracker: &Tracker, dets: &[Detection]) -> Association {
+    let c = &tracker.config;
+    let usable: Vec<usize> = (0..dets.len())
+        .filter(|&d| dets[d].score >= c.min_score)
+        .collect();
+    let tracks: Vec<usize> = (0..tracker.live.len()).collect();
+    let (matches, _, new_tracks) = match_iou(tracker, &tracks, &usable, dets, c.min_iou);
+    Association {
+        matches,
+        new_tracks,
+    }
+}

@@ -1,0 +1,270 @@
+//! The state of one tracker run: the live tracks, the motion model and the numbering, stepped one
+//! frame at a time. The chosen method decides only the association (see `methods/`); everything
+//! else about a track's life is the same for every method.
+
+use super::kalman::{BoxMotion, KalmanFilter};
+use super::methods::{Association, MethodDef};
+use super::{Track, TrackBox, TrackerConfig, Tracks};
+use crate::detections::{Detection, Detections};
+use crate::geometry::BBox;
+use std::collections::VecDeque;
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Phase {
+    Tentative,
+    Confirmed,
+    Coasting,
+}
+
+/// A track while the run goes on.
+#[derive(Debug, Clone)]
+pub(crate) struct LiveTrack {
+    id: Option<u32>,
+    pub(crate) kf: KalmanFilter,
+    /// Box of the last matched detection (what the `iou` method compares against).
+    last_box: BBox,
+    phase: Phase,
+    hits: u32,
+    /// Frames since the last match; 0 right after an update.
+    pub(crate) unseen: u32,
+    max_score: f64,
+    score_sum: f64,
+    class_votes: Vec<(u16, u32)>,
+    boxes: Vec<TrackBox>,
+    /// Unit-length appearance vectors of its latest detections (DeepSORT's gallery).
+    pub(crate) gallery: VecDeque<Vec<f32>>,
+}
+
+impl LiveTrack {
+    /// Where the track is expected in this frame: the filter's box, or with no motion model the
+    /// box of its last detection.
+    pub(crate) fn predicted_box(&self, motion: bool) -> BBox {
+        if motion {
+            BoxMotion::bbox(&self.kf)
+        } else {
+            self.last_box
+        }
+    }
+
+    pub(crate) fn is_confirmed(&self) -> bool {
+        self.phase != Phase::Tentative
+    }
+}
+
+/// The state shared by every method: live tracks, the motion model and the numbering.
+pub(crate) struct Tracker<'a> {
+    pub(crate) config: TrackerConfig,
+    /// The chosen method.
+    def: &'static MethodDef,
+    pub(crate) motion: BoxMotion,
+    pub(crate) detections: &'a Detections,
+    /// Boxed, so that removing a track from the middle shifts pointers, not whole filters.
+    #[allow(clippy::vec_box)]
+    pub(crate) live: Vec<Box<LiveTrack>>,
+    finished: Vec<Track>,
+    next_id: u32,
+}
+
+impl<'a> Tracker<'a> {
+    pub(crate) fn new(config: TrackerConfig, detections: &'a Detections) -> Self {
+        Self {
+            def: config.method.def(),
+            config,
+            motion: BoxMotion::default(),
+            detections,
+            live: Vec::new(),
+            finished: Vec::new(),
+            next_id: 1,
+        }
+    }
+
+    /// Where live track `t` is expected in this frame.
+    pub(crate) fn predicted_box(&self, t: usize) -> BBox {
+        self.live[t].predicted_box(self.def.motion)
+    }
+
+    pub(crate) fn step(&mut self, frame: u32, dets: &[Detection]) {
+        if self.def.motion {
+            for t in &mut self.live {
+                self.motion.predict(&mut t.kf);
+            }
+        }
+        let assoc: Association = (self.def.associate)(self, dets);
+        let mut matched = vec![false; self.live.len()];
+        for m in &assoc.matches {
+            matched[m.track] = true;
+            self.observe(m.track, frame, &dets[m.det]);
+        }
+        for (i, was_matched) in matched.iter().enumerate() {
+            if !was_matched {
+                self.miss(i, frame);
+            }
+        }
+        for &d in &assoc.new_tracks {
+            self.start(frame, &dets[d]);
+        }
+        self.promote();
+        self.retire();
+    }
+
+    fn observe(&mut self, i: usize, frame: u32, det: &Detection) {
+        if self.def.motion {
+            self.motion.update(&mut self.live[i].kf, &det.bbox);
+        }
+        self.record(i, frame, det);
+    }
+
+    /// Everything an observation changes but the motion filter.
+    fn record(&mut self, i: usize, frame: u32, det: &Detection) {
+        let gallery_size = self.config.gallery_size as usize;
+        let embedding = self.detections.embedding(det).and_then(unit_vector);
+        let motion = self.def.motion;
+        let t = &mut self.live[i];
+        t.last_box = det.bbox;
+        t.hits += 1;
+        t.unseen = 0;
+        t.max_score = t.max_score.max(det.score);
+        t.score_sum += det.score;
+        if let Some(c) = det.class {
+            vote(&mut t.class_votes, c);
+        }
+        if let Some(e) = embedding {
+            if t.gallery.len() == gallery_size {
+                t.gallery.pop_front();
+            }
+            t.gallery.push_back(e);
+        }
+        if t.phase == Phase::Coasting {
+            t.phase = Phase::Confirmed;
+        }
+        let bbox = if motion {
+            BoxMotion::bbox(&t.kf)
+        } else {
+            det.bbox
+        };
+        t.boxes.push(TrackBox {
+            frame,
+            bbox,
+            score: det.score,
+            observed: true,
+        });
+    }
+
+    fn miss(&mut self, i: usize, frame: u32) {
+        let motion = self.def.motion;
+        let t = &mut self.live[i];
+        t.unseen += 1;
+        if t.phase == Phase::Confirmed {
+            t.phase = Phase::Coasting;
+        }
+        let bbox = t.predicted_box(motion);
+        t.boxes.push(TrackBox {
+            frame,
+            bbox,
+            score: 0.0,
+            observed: false,
+        });
+    }
+
+    /// Starts a tentative track on a detection; its filter starts on the detection's box.
+    fn start(&mut self, frame: u32, det: &Detection) {
+        self.live.push(Box::new(LiveTrack {
+            id: None,
+            kf: self.motion.initiate(&det.bbox),
+            last_box: det.bbox,
+            phase: Phase::Tentative,
+            hits: 0,
+            unseen: 0,
+            max_score: f64::NEG_INFINITY,
+            score_sum: 0.0,
+            class_votes: Vec::new(),
+            boxes: Vec::new(),
+            gallery: VecDeque::new(),
+        }));
+        self.record(self.live.len() - 1, frame, det);
+    }
+
+    /// Confirms tentative tracks that have earned it, numbering them in order of creation.
+    fn promote(&mut self) {
+        for t in &mut self.live {
+            if t.phase == Phase::Tentative
+                && t.hits >= self.config.min_hits
+                && t.max_score >= self.config.confirm_score
+            {
+                t.phase = Phase::Confirmed;
+                t.id = Some(self.next_id);
+                self.next_id += 1;
+            }
+        }
+    }
+
+    /// Drops tentative tracks that missed and ends confirmed tracks unseen for too long.
+    fn retire(&mut self) {
+        let max_age = self.config.max_age;
+        let mut i = 0;
+        while i < self.live.len() {
+            let t = &self.live[i];
+            let gone = match t.phase {
+                Phase::Tentative => t.unseen > 0,
+                _ => t.unseen > max_age,
+            };
+            if !gone {
+                i += 1;
+                continue;
+            }
+            // `remove`, not `swap_remove`: the order of live tracks decides numbering ties.
+            let t = self.live.remove(i);
+            if t.is_confirmed() {
+                self.finished.push(finish(*t, self.detections));
+            }
+        }
+    }
+
+    pub(crate) fn close(mut self, frame_count: u32) -> Tracks {
+        for t in std::mem::take(&mut self.live) {
+            if t.is_confirmed() {
+                self.finished.push(finish(*t, self.detections));
+            }
+        }
+        let mut tracks = self.finished;
+        tracks.sort_by_key(|t| t.id);
+        Tracks {
+            config: self.config,
+            frame_count,
+            tracks,
+        }
+    }
+}
+
+fn vote(votes: &mut Vec<(u16, u32)>, class: u16) {
+    match votes.iter_mut().find(|(c, _)| *c == class) {
+        Some((_, n)) => *n += 1,
+        None => votes.push((class, 1)),
+    }
+}
+
+pub(crate) fn unit_vector(v: &[f32]) -> Option<Vec<f32>> {
+    let norm = v.iter().map(|x| f64::from(*x).powi(2)).sum::<f64>().sqrt();
+    (norm > 0.0).then(|| v.iter().map(|x| (f64::from(*x) / norm) as f32).collect())
+}
+
+fn finish(t: LiveTrack, detections: &Detections) -> Track {
+    let mut boxes = t.boxes;
+    while boxes.last().is_some_and(|b| !b.observed) {
+        boxes.pop();
+    }
+    let observed = boxes.iter().filter(|b| b.observed).count().max(1);
+    // Most votes wins; among equals, the class that appears first in the file (lowest index).
+    let class = t
+        .class_votes
+        .iter()
+        .max_by(|a, b| a.1.cmp(&b.1).then(b.0.cmp(&a.0)))
+        .and_then(|&(c, _)| detections.class_name(Some(c)))
+        .map(str::to_string);
+    Track {
+        id: t.id.unwrap_or(0),
+        class,
+        mean_score: t.score_sum / observed as f64,
+        boxes,
+    }
+}
