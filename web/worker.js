@@ -1,73 +1,97 @@
+// @ts-check
 // Runs the Throughline core (WebAssembly) off the page's main thread, so the page never freezes.
 // A classic worker, not a module one: classic workers also start from a Blob URL, which the single-file
 // build needs when the page is opened from disk. The single-file build puts wasm-bindgen's glue in front
 // of this file; the site loads it from pkg/.
 //
-// Messages in: {id, op, args}. Messages out: {id, ok, result} or {id, ok: false, error}, and
-// {id, progress: [done, total]} from operations that report progress (tracking, finding objects). Every operation
-// is called with its arguments and then a `progress(done, total)` function for its own message.
-/* global wasm_bindgen, importScripts */
+// The messages in and out are typed in js/protocol.js: a request {id, op, ...fields} is answered by
+// {kind: "progress"} messages from operations that report progress (tracking, finding objects), then
+// one {kind: "result"}, {kind: "error"} or {kind: "cancelled"}.
 if (typeof wasm_bindgen === "undefined") importScripts("pkg/throughline_wasm.js");
 
+/** @typedef {import("./js/protocol.js").RequestMessage} RequestMessage */
+/** @typedef {import("./js/protocol.js").Reply} Reply */
+/** @typedef {import("./js/protocol.js").FootageSearched} FootageSearched */
+/** @typedef {import("./js/protocol.js").FootageUnread} FootageUnread */
+/** @typedef {(done: number, total: number) => void} Progress */
+
+/** Thrown where finding objects stops on request; answered as {kind: "cancelled"}. */
+class FindCancelled extends Error {}
+
+/** @type {wasm_bindgen.Session | null} */
 let session = null;
 let findCancelled = false;
 
-const ops = {
-  async init(wasmBytes) {
-    await wasm_bindgen({ module_or_path: wasmBytes });
-    session = new wasm_bindgen.Session();
-    return true;
-  },
-  loadDetections(bytes) {
-    return session.loadDetections(new Uint8Array(bytes));
-  },
-  setPlan(json) {
-    session.setPlan(json);
-    return results();
-  },
-  track(method, settings, progress) {
-    let last = 0;
-    const n = session.track(method, settings, (done, total) => {
-      const now = Date.now();
-      if (now - last > 50 || done === total) {
-        last = now;
-        progress(done, total);
-      }
-    });
-    return { tracks: n, boxes: session.allBoxes(), trackList: session.trackList() };
-  },
-  startDetection(width, height, settings) {
-    session.startDetection(width, height, settings);
-    return true;
-  },
-  detectRgba(pixels, width, height) {
-    return session.detectRgba(new Uint8Array(pixels), width, height);
-  },
-  finishDetection() {
-    return session.finishDetection();
-  },
-  findInFootage,
-  cancelFind() {
-    findCancelled = true;
-    return true;
-  },
-  detectionsText() {
-    return session.detectionsText();
-  },
-  tracksText() {
-    return session.tracksText();
-  },
-};
+/** The core's session; operations other than init need it. */
+function core() {
+  if (!session) throw new Error("the engine is still starting");
+  return session;
+}
+
+/** @param {Uint8Array} wasmBytes */
+async function init(wasmBytes) {
+  await wasm_bindgen({ module_or_path: wasmBytes });
+  session = new wasm_bindgen.Session();
+  return /** @type {const} */ (true);
+}
+
+/**
+ * Tracks the loaded detections; progress at most every 50 ms, and at the end.
+ * @param {string} method
+ * @param {string} settings
+ * @param {Progress} progress
+ */
+function track(method, settings, progress) {
+  const s = core();
+  let last = 0;
+  const n = s.track(method, settings, (done, total) => {
+    const now = Date.now();
+    if (now - last > 50 || done === total) {
+      last = now;
+      progress(done, total);
+    }
+  });
+  return { tracks: n, boxes: s.allBoxes(), trackList: s.trackList() };
+}
+
+/**
+ * Does what `req` asks; its result goes back to the page as it is.
+ * @param {RequestMessage} req
+ * @param {Progress} progress
+ */
+async function perform(req, progress) {
+  if (req.op !== "init") core(); // every other operation needs the core started
+  switch (req.op) {
+    case "init": return init(req.wasm);
+    case "loadDetections": return core().loadDetections(new Uint8Array(req.bytes));
+    case "setPlan": core().setPlan(req.json); return results();
+    case "track": return track(req.method, req.settings, progress);
+    case "startDetection": core().startDetection(req.width, req.height, req.settings); return true;
+    case "detectRgba": return core().detectRgba(new Uint8Array(req.pixels), req.width, req.height);
+    case "finishDetection": return core().finishDetection();
+    case "findInFootage": return findInFootage(req.footage, req.width, req.height, req.settings, req.expectedFrames, progress);
+    case "cancelFind": findCancelled = true; return true;
+    case "detectionsText": return core().detectionsText();
+    case "tracksText": return core().tracksText();
+    default: throw new Error(`unknown operation ${/** @type {{op: string}} */ (req).op}`);
+  }
+}
 
 /**
  * Finds moving objects in footage (a File or Blob) by decoding it here with WebCodecs: the core's
  * FootageReader reads the WebM or MP4 a range of bytes at a time, the browser's VideoDecoder
  * decodes, and each frame's own YUV bytes go to the motion detector (no drawing, no colour
- * conversion). Resolves to {summary, codec, container, frames, expected, stopped, frameRate},
- * where `stopped` says why reading ended early (damaged footage: the frames before are kept), or
- * to {fallback: reason} when this footage or browser cannot be read this way, before any frame is
- * searched; the page then draws the frames one by one instead. `expected` is the page's estimate
- * of the number of frames, for progress.
+ * conversion). Resolves to what was found, where `stopped` says why reading ended early (damaged
+ * footage: the frames before are kept), or to {fallback: reason} when this footage or browser cannot
+ * be read this way, before any frame is searched; the page then draws the frames one by one instead.
+ * `expected` is the page's estimate of the number of frames, for progress.
+ * @param {Blob} file
+ * @param {number} width
+ * @param {number} height
+ * @param {string} settings detector settings JSON
+ * @param {number} expected
+ * @param {Progress} progress
+ * @returns {Promise<FootageSearched | FootageUnread>}
  */
 async function findInFootage(file, width, height, settings, expected, progress) {
   findCancelled = false;
@@ -75,57 +99,53 @@ async function findInFootage(file, width, height, settings, expected, progress) 
     return { fallback: "this browser has no WebCodecs video decoder" };
   }
   const sync = new FileReaderSync();
+  /** @type {(offset: number, length: number) => Uint8Array} */
   const readRange = (offset, length) => new Uint8Array(sync.readAsArrayBuffer(file.slice(offset, offset + length)));
   let reader;
   try {
     reader = new wasm_bindgen.FootageReader(readRange, file.size);
   } catch (e) {
-    return { fallback: `the footage is ${e.message}` };
+    return { fallback: `the footage is ${messageOf(e)}` };
   }
   try {
-    return await decodeAndSearch(reader, width, height, settings, expected, progress);
+    const info = reader.info();
+    /** @type {VideoDecoderConfig} */
+    const config = { codec: info.codec, codedWidth: info.codedWidth, codedHeight: info.codedHeight };
+    if (info.description) config.description = info.description;
+    const support = await VideoDecoder.isConfigSupported(config).catch(() => ({ supported: false }));
+    if (!support.supported) return { fallback: `this browser cannot decode ${info.codec} itself` };
+    core().startDetection(width, height, settings);
+    const total = info.frames || expected;
+    const searched = await decodeAndSearch(reader, config, { width, height, total }, progress);
+    return { summary: core().finishDetection(), codec: info.codec, container: info.container, expected: total, ...searched };
   } finally {
     reader.free();
   }
 }
 
-async function decodeAndSearch(reader, width, height, settings, expected, progress) {
-  const info = reader.info();
-  const config = { codec: info.codec, codedWidth: info.codedWidth, codedHeight: info.codedHeight };
-  if (info.description) config.description = info.description;
-  const support = await VideoDecoder.isConfigSupported(config).catch(() => ({ supported: false }));
-  if (!support.supported) return { fallback: `this browser cannot decode ${info.codec} itself` };
-
-  session.startDetection(width, height, settings);
-  const total = info.frames || expected;
-  const waiting = [];
-  let failure = null;
-  let wake = null;
-  const nudge = () => { if (wake) { const w = wake; wake = null; w(); } };
-  const decoder = new VideoDecoder({
-    output: (frame) => { waiting.push(frame); nudge(); },
-    error: (e) => { failure = e; nudge(); },
-  });
-  decoder.addEventListener("dequeue", nudge);
-  decoder.configure(config);
-  let fed = false;
-  let flushed = false;
-  let stopped = null;
-  let read = 0;
-  const times = []; // µs, of the first frames shown
-
+/**
+ * Feeds the reader's coded frames to a VideoDecoder, a few at a time, and each decoded frame to the
+ * motion detector, until the footage ends, the decoder fails, or finding is cancelled.
+ * @param {wasm_bindgen.FootageReader} reader
+ * @param {VideoDecoderConfig} config
+ * @param {{width: number, height: number, total: number}} size the page's size, frames expected
+ * @param {Progress} progress
+ */
+async function decodeAndSearch(reader, config, { width, height, total }, progress) {
+  const feed = new DecoderFeed(reader, config);
   let done = 0;
   let last = 0;
-  const scratch = { bytes: null, canvas: null, g: null };
+  const times = []; // µs, of the first frames shown
+  const scratch = new Scratch();
   try {
     for (;;) {
-      if (findCancelled) throw new Error("cancelled; the detections opened before are kept");
-      if (failure) {
-        stopped = stopped || `the decoder stopped at frame ${done + 1}: ${failure.message}`;
+      if (findCancelled) throw new FindCancelled();
+      if (feed.failure) {
+        feed.stopped = feed.stopped || `the decoder stopped at frame ${done + 1}: ${feed.failure.message}`;
         break;
       }
-      if (waiting.length) {
-        const frame = waiting.shift();
+      const frame = feed.waiting.shift();
+      if (frame) {
         if (times.length < 250) times.push(frame.timestamp);
         try {
           await searchFrame(frame, width, height, scratch);
@@ -138,83 +158,173 @@ async function decodeAndSearch(reader, width, height, settings, expected, progre
           last = now;
           progress(done, Math.max(total, done));
         }
-        continue;
+      } else if (!feed.step()) {
+        if (feed.flushed) break;
+        await feed.wait();
       }
-      if (!fed && decoder.decodeQueueSize < 4) {
-        let chunk = null;
-        try {
-          chunk = reader.next();
-        } catch (e) {
-          // Damaged footage: search what was read before the damage, then stop.
-          stopped = `${e.message} (after frame ${read})`;
-        }
-        if (chunk) {
-          read++;
-          decoder.decode(new EncodedVideoChunk({ type: chunk.key ? "key" : "delta", timestamp: chunk.timestamp, data: chunk.data }));
-        } else {
-          fed = true;
-          decoder.flush().then(() => { flushed = true; nudge(); }, (e) => { failure = failure || e; nudge(); });
-        }
-        continue;
-      }
-      if (flushed) break;
-      await new Promise((resolve) => { wake = resolve; });
     }
   } finally {
-    for (const f of waiting) f.close();
-    if (decoder.state !== "closed") decoder.close();
+    feed.close();
   }
-  if (done === 0) throw new Error(stopped || "the decoder gave no frames");
+  if (done === 0) throw new Error(feed.stopped || "the decoder gave no frames");
   progress(done, done);
-  return { summary: session.finishDetection(), codec: info.codec, container: info.container, frames: done, expected: total, stopped, frameRate: frameRate(times) };
+  return { frames: done, stopped: feed.stopped, frameRate: frameRate(times) };
 }
 
-/** Frames a second from the median time between frames shown one after another (µs); null if unknown. */
+/** A VideoDecoder fed from a FootageReader, and the decoded frames waiting to be searched. */
+class DecoderFeed {
+  /**
+   * @param {wasm_bindgen.FootageReader} reader
+   * @param {VideoDecoderConfig} config
+   */
+  constructor(reader, config) {
+    this.reader = reader;
+    /** @type {VideoFrame[]} */
+    this.waiting = [];
+    /** @type {Error | null} */
+    this.failure = null;
+    /** @type {string | null} why reading stopped before the end (damaged footage) */
+    this.stopped = null;
+    this.fed = false;
+    this.flushed = false;
+    this.read = 0;
+    /** @type {(() => void) | null} */
+    this.wake = null;
+    this.decoder = new VideoDecoder({
+      output: (frame) => { this.waiting.push(frame); this.nudge(); },
+      error: (e) => { this.failure = e; this.nudge(); },
+    });
+    this.decoder.addEventListener("dequeue", () => this.nudge());
+    this.decoder.configure(config);
+  }
+
+  nudge() {
+    const w = this.wake;
+    this.wake = null;
+    if (w) w();
+  }
+
+  /** Resolves when the decoder has something new: a frame, room for more, the end or a failure. */
+  wait() {
+    return new Promise((resolve) => { this.wake = () => resolve(undefined); });
+  }
+
+  /** Gives the decoder one more coded frame (or, at the end, flushes it); false when it has enough. */
+  step() {
+    if (this.fed || this.decoder.decodeQueueSize >= 4) return false;
+    let chunk = null;
+    try {
+      chunk = this.reader.next();
+    } catch (e) {
+      // Damaged footage: search what was read before the damage, then stop.
+      this.stopped = `${messageOf(e)} (after frame ${this.read})`;
+    }
+    if (chunk) {
+      this.read++;
+      this.decoder.decode(new EncodedVideoChunk({ type: chunk.key ? "key" : "delta", timestamp: chunk.timestamp, data: chunk.data }));
+    } else {
+      this.fed = true;
+      this.decoder.flush().then(() => { this.flushed = true; this.nudge(); }, (e) => { this.failure = this.failure || e; this.nudge(); });
+    }
+    return true;
+  }
+
+  close() {
+    for (const f of this.waiting) f.close();
+    if (this.decoder.state !== "closed") this.decoder.close();
+  }
+}
+
+/**
+ * Frames a second from the median time between frames shown one after another (µs); null if unknown.
+ * @param {number[]} times
+ */
 function frameRate(times) {
   const steps = times.slice(1).map((t, i) => t - times[i]).filter((d) => d > 0).sort((a, b) => a - b);
   return steps.length ? 1e6 / steps[steps.length >> 1] : null;
 }
 
+/** The byte buffer and the canvas kept from frame to frame. */
+class Scratch {
+  constructor() {
+    this.bytes = new Uint8Array(0);
+    /** @type {OffscreenCanvasRenderingContext2D | null} */
+    this.g = null;
+  }
+
+  /**
+   * A 2D context of this size for frames drawn as RGBA.
+   * @param {number} width
+   * @param {number} height
+   */
+  canvas(width, height) {
+    if (!this.g) {
+      const g = new OffscreenCanvas(width, height).getContext("2d", { willReadFrequently: true });
+      if (!g) throw new Error("this browser cannot draw frames off screen");
+      this.g = g;
+    }
+    return this.g;
+  }
+}
+
 /**
  * One decoded frame to the detector: its own I420/NV12 bytes when it is the page's size, else
- * drawn as RGBA. `scratch` keeps the byte buffer and the canvas from frame to frame.
+ * drawn as RGBA.
+ * @param {VideoFrame} frame
+ * @param {number} width
+ * @param {number} height
+ * @param {Scratch} scratch
  */
 async function searchFrame(frame, width, height, scratch) {
   const rect = frame.visibleRect;
-  const direct = (frame.format === "I420" || frame.format === "NV12") && rect.width === width && rect.height === height;
+  const direct = (frame.format === "I420" || frame.format === "NV12") && rect && rect.width === width && rect.height === height;
   if (direct) {
     const size = frame.allocationSize({ rect });
-    if (!scratch.bytes || scratch.bytes.length !== size) scratch.bytes = new Uint8Array(size);
+    if (scratch.bytes.length !== size) scratch.bytes = new Uint8Array(size);
     await frame.copyTo(scratch.bytes, { rect });
-    return session.detectYuv(scratch.bytes, width, height, frame.format);
+    return core().detectYuv(scratch.bytes, width, height, /** @type {string} */ (frame.format));
   }
-  if (!scratch.canvas) {
-    scratch.canvas = new OffscreenCanvas(width, height);
-    scratch.g = scratch.canvas.getContext("2d", { willReadFrequently: true });
-  }
-  scratch.g.drawImage(frame, 0, 0, width, height);
-  return session.detectRgba(new Uint8Array(scratch.g.getImageData(0, 0, width, height).data.buffer), width, height);
+  const g = scratch.canvas(width, height);
+  g.drawImage(frame, 0, 0, width, height);
+  return core().detectRgba(new Uint8Array(g.getImageData(0, 0, width, height).data.buffer), width, height);
 }
 
-// The report and counts CSV when tracks and a plan are both there, otherwise null.
+/** The report and counts CSV when tracks and a plan are both there, otherwise null. */
 function results() {
   try {
-    return { report: session.report(), csv: session.countsCsv() };
+    return { report: core().report(), csv: core().countsCsv() };
   } catch (e) {
     return null;
   }
 }
 
-self.onmessage = async (event) => {
-  const { id, op, args } = event.data;
+/**
+ * What went wrong, in words: an error's message, else the thing thrown.
+ * @param {unknown} e
+ */
+function messageOf(e) {
+  const message = e && typeof e === "object" && "message" in e ? e.message : undefined;
+  return message ? String(message) : String(e);
+}
+
+/**
+ * Answers the page.
+ * @param {Reply} message
+ * @param {Transferable[]} [transfer] buffers handed over with it
+ */
+function reply(message, transfer = []) {
+  self.postMessage(message, transfer);
+}
+
+self.onmessage = async (/** @type {MessageEvent<RequestMessage>} */ event) => {
+  const req = event.data;
+  const id = req.id;
   try {
-    if (!ops[op]) throw new Error(`unknown operation ${op}`);
-    if (op !== "init" && !session) throw new Error("the engine is still starting");
-    const progress = (done, total) => self.postMessage({ id, progress: [done, total] });
-    const result = await ops[op](...args, progress);
-    const transfer = result && result.boxes ? [result.boxes.buffer] : [];
-    self.postMessage({ id, ok: true, result }, transfer);
+    const result = await perform(req, (done, total) => reply({ kind: "progress", id, done, total }));
+    const transfer = typeof result === "object" && result && "boxes" in result ? [result.boxes.buffer] : [];
+    reply({ kind: "result", id, result }, transfer);
   } catch (e) {
-    self.postMessage({ id, ok: false, error: e && e.message ? e.message : String(e) });
+    if (e instanceof FindCancelled) reply({ kind: "cancelled", id });
+    else reply({ kind: "error", id, message: messageOf(e) });
   }
 };

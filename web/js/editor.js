@@ -1,3 +1,4 @@
+// @ts-check
 // Drawing and moving plan geometry on the picture with the pointer. Tools: "select" (drag the ends of
 // a line, the corners of a zone or a ground point; click a line or zone to select it), "line" (click,
 // click; hold Shift to add more points, Enter ends), "zone" (click the corners; click the first corner
@@ -6,17 +7,26 @@
 import { distance, distanceToSegment } from "./geometry.js";
 import { freshName } from "./plan.js";
 
+/** @typedef {import("./geometry.js").Point} Point */
+/** @typedef {import("./store.js").PageStore} PageStore */
+/** @typedef {import("./store.js").Vertex} Vertex */
+
 const HIT_RADIUS = 10; // screen pixels
 
+/** @param {number} v */
 const round = (v) => Math.round(v * 10) / 10;
 
 export class Editor {
+  /**
+   * @param {HTMLCanvasElement} canvas the picture's overlay
+   * @param {PageStore} store
+   * @param {{focusGround: (index: number) => void}} hooks `focusGround`: a ground point was added, its X is next to type
+   */
   constructor(canvas, store, hooks) {
     this.canvas = canvas;
     this.store = store;
-    this.hooks = hooks; // {redraw(), select(key), toolChanged(tool), focusGround(i)}
-    this.tool = "select";
-    this.draft = null;
+    this.hooks = hooks;
+    /** @type {Vertex | null} */
     this.drag = null;
     canvas.addEventListener("pointerdown", (e) => this.down(e));
     canvas.addEventListener("pointermove", (e) => this.move(e));
@@ -30,24 +40,27 @@ export class Editor {
     return rect.width ? this.canvas.width / rect.width : 1;
   }
 
+  /**
+   * @param {PointerEvent} e
+   * @returns {Point}
+   */
   toVideo(e) {
     const rect = this.canvas.getBoundingClientRect();
     const s = this.scale();
     return [round((e.clientX - rect.left) * s), round((e.clientY - rect.top) * s)];
   }
 
-  setTool(tool) {
-    this.tool = tool;
-    this.draft = null;
-    this.hooks.toolChanged(tool);
-    this.hooks.redraw();
-  }
-
-  /** The vertex under p: {kind: "line"|"zone"|"ground", index, vertex}, or null. */
+  /**
+   * The vertex under p, or null.
+   * @param {Point} p
+   * @returns {Vertex | null}
+   */
   vertexAt(p) {
     const r = HIT_RADIUS * this.scale();
     const plan = this.store.plan;
+    /** @type {(Vertex & {d: number}) | null} */
     let best = null;
+    /** @type {(kind: Vertex["kind"], index: number, vertex: number, q: Point) => void} */
     const consider = (kind, index, vertex, q) => {
       const d = distance(p, q);
       if (d <= r && (!best || d < best.d)) best = { kind, index, vertex, d };
@@ -58,7 +71,10 @@ export class Editor {
     return best;
   }
 
-  /** The line or zone under p as a selection key ("line:2", "zone:0"), or null. */
+  /**
+   * The line or zone under p as a selection key ("line:2", "zone:0"), or null.
+   * @param {Point} p
+   */
   itemAt(p) {
     const r = HIT_RADIUS * this.scale();
     const plan = this.store.plan;
@@ -70,91 +86,108 @@ export class Editor {
     return null;
   }
 
+  /** @param {PointerEvent} e */
   down(e) {
     if (e.button !== 0) return;
     const p = this.toVideo(e);
-    if (this.tool === "select") {
-      const hit = this.vertexAt(p);
-      if (hit) {
-        this.store.change(() => {}, "edit"); // one undo step for the whole drag
-        this.drag = hit;
-        this.canvas.setPointerCapture(e.pointerId);
-        if (hit.kind !== "ground") this.hooks.select(`${hit.kind}:${hit.index}`);
-      } else {
-        this.hooks.select(this.itemAt(p));
-      }
+    const tool = this.store.tool;
+    if (tool === "select") this.grab(p, e.pointerId);
+    else if (tool === "calibration") this.addGroundPoint(p);
+    else this.addDraftPoint(tool, p, e.shiftKey);
+  }
+
+  /**
+   * Select tool: starts dragging the vertex under p, or selects the line or zone there.
+   * @param {Point} p
+   * @param {number} pointerId
+   */
+  grab(p, pointerId) {
+    const hit = this.vertexAt(p);
+    if (!hit) {
+      this.store.itemSelected(this.itemAt(p));
       return;
     }
-    if (this.tool === "calibration") {
-      const plan = this.store.plan;
-      const index = plan.calibration ? (plan.calibration.pairs || []).length : 0;
-      this.store.change((next) => {
-        next.calibration = next.calibration || { pairs: [], unit: "m" };
-        next.calibration.pairs = next.calibration.pairs || [];
-        next.calibration.pairs.push({ image: p, ground: [null, null] });
-      }, "edit");
-      this.hooks.focusGround(index);
-      return;
-    }
-    // Line or zone: collect points.
-    if (!this.draft) this.draft = { kind: this.tool, points: [] };
-    const pts = this.draft.points;
+    this.store.planEdited(() => {}); // one undo step for the whole drag
+    this.drag = hit;
+    this.canvas.setPointerCapture(pointerId);
+    if (hit.kind !== "ground") this.store.itemSelected(`${hit.kind}:${hit.index}`);
+  }
+
+  /** @param {Point} p */
+  addGroundPoint(p) {
+    const plan = this.store.plan;
+    const index = plan.calibration ? (plan.calibration.pairs || []).length : 0;
+    this.store.planEdited((next) => {
+      next.calibration = next.calibration || { pairs: [], unit: "m" };
+      next.calibration.pairs = next.calibration.pairs || [];
+      next.calibration.pairs.push({ image: p, ground: [null, null] });
+    });
+    this.hooks.focusGround(index);
+  }
+
+  /**
+   * Line or zone tool: collects points.
+   * @param {"line" | "zone"} tool
+   * @param {Point} p
+   * @param {boolean} shift
+   */
+  addDraftPoint(tool, p, shift) {
+    const draft = this.store.draft || { kind: tool, points: [] };
+    const pts = draft.points;
     const r = HIT_RADIUS * this.scale();
     if (pts.length && distance(pts[pts.length - 1], p) < 3 * this.scale()) return; // a double click
-    if (this.tool === "zone" && pts.length >= 3 && distance(pts[0], p) <= r) {
+    if (tool === "zone" && pts.length >= 3 && distance(pts[0], p) <= r) {
       this.finish();
       return;
     }
     pts.push(p);
-    if (this.tool === "line" && pts.length >= 2 && !e.shiftKey) this.finish();
-    else this.hooks.redraw();
+    this.store.draftChanged(draft);
+    if (tool === "line" && pts.length >= 2 && !shift) this.finish();
   }
 
+  /** @param {PointerEvent} e */
   move(e) {
     const p = this.toVideo(e);
     if (this.drag) {
-      const plan = this.store.plan;
-      const { kind, index, vertex } = this.drag;
-      if (kind === "line") plan.screenlines[index].points[vertex] = p;
-      else if (kind === "zone") plan.zones[index].polygon[vertex] = p;
-      else plan.calibration.pairs[index].image = p;
-      this.hooks.redraw();
+      this.store.vertexDragged(this.drag, p);
       return;
     }
-    if (this.draft) {
-      this.draft.cursor = p;
-      this.hooks.redraw();
-    }
-    this.canvas.style.cursor = this.tool === "select" && this.vertexAt(p) ? "grab" : "crosshair";
+    const draft = this.store.draft;
+    if (draft) this.store.draftChanged({ ...draft, cursor: p });
+    this.canvas.style.cursor = this.store.tool === "select" && this.vertexAt(p) ? "grab" : "crosshair";
   }
 
+  /** @param {PointerEvent} e */
   up(e) {
     if (!this.drag) return;
     this.drag = null;
     this.canvas.releasePointerCapture(e.pointerId);
     // The plan was moved in place; tell everyone once, and keep it.
-    this.store.save();
-    this.store.onChange(this.store.plan, "edit");
+    this.store.dragEnded();
   }
 
   /** Ends the line or zone being drawn (Enter, double click, second click, first corner). */
   finish() {
-    const d = this.draft;
+    const d = this.store.draft;
     if (!d) return;
-    this.draft = null;
+    const plan = this.store.plan;
     if (d.kind === "line" && d.points.length >= 2) {
-      const name = freshName(this.store.plan, "line");
-      this.store.change((p) => p.screenlines.push({ name, points: d.points }), "edit");
-      this.hooks.select(`line:${this.store.plan.screenlines.length - 1}`);
+      const name = freshName(plan, "line");
+      this.store.planEdited((p) => p.screenlines.push({ name, points: d.points }));
+      this.store.itemSelected(`line:${this.store.plan.screenlines.length - 1}`);
     } else if (d.kind === "zone" && d.points.length >= 3) {
-      const name = freshName(this.store.plan, "zone");
-      this.store.change((p) => p.zones.push({ name, polygon: d.points }), "edit");
-      this.hooks.select(`zone:${this.store.plan.zones.length - 1}`);
+      const name = freshName(plan, "zone");
+      this.store.planEdited((p) => p.zones.push({ name, polygon: d.points }));
+      this.store.itemSelected(`zone:${this.store.plan.zones.length - 1}`);
     }
-    this.setTool("select");
+    this.store.toolChosen("select");
   }
 }
 
+/**
+ * @param {Point} p
+ * @param {Point[]} poly
+ */
 function insidePolygon(p, poly) {
   let inside = false;
   for (let i = 0, j = poly.length - 1; i < poly.length; j = i++) {

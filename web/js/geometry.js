@@ -1,11 +1,23 @@
+// @ts-check
 // Small picture-space helpers shared by drawing and editing. Points are [x, y] in video pixels,
 // y pointing down, like the plan file.
 
+/** @typedef {[number, number]} Point [x, y] in video pixels, x to the right, y down */
+
+/**
+ * @param {Point} a
+ * @param {Point} b
+ */
 export function distance(a, b) {
   return Math.hypot(a[0] - b[0], a[1] - b[1]);
 }
 
-/** Distance from p to the segment a-b. */
+/**
+ * Distance from p to the segment a-b.
+ * @param {Point} p
+ * @param {Point} a
+ * @param {Point} b
+ */
 export function distanceToSegment(p, a, b) {
   const dx = b[0] - a[0];
   const dy = b[1] - a[1];
@@ -19,8 +31,11 @@ export function distanceToSegment(p, a, b) {
  * two lines drawn across each other would put their labels on top of each other) and the unit normal pointing to
  * the side a `forward` crossing moves into. Forward goes from the left of p0->p1 to its right as seen
  * on screen with y down, i.e. towards (-dy, dx).
+ * @param {Point[]} points
+ * @returns {{mid: Point, normal: Point} | null}
  */
 export function forwardArrow(points) {
+  /** @type {{a: Point, b: Point, len: number} | null} */
   let best = null;
   for (let i = 0; i + 1 < points.length; i++) {
     const [a, b] = [points[i], points[i + 1]];
@@ -34,23 +49,33 @@ export function forwardArrow(points) {
   return { mid: [best.a[0] + t * (best.b[0] - best.a[0]), best.a[1] + t * (best.b[1] - best.a[1])], normal: [-dy, dx] };
 }
 
+/** @param {Point[]} points @returns {Point} */
 export function centroid(points) {
   const n = points.length || 1;
   return [points.reduce((s, p) => s + p[0], 0) / n, points.reduce((s, p) => s + p[1], 0) / n];
 }
 
-/** A colour per track id, spread round the hue circle by the golden angle. */
+/**
+ * A colour per track id, spread round the hue circle by the golden angle.
+ * @param {number} id
+ * @param {number} [alpha]
+ */
 export function trackColour(id, alpha = 1) {
   return `hsla(${(id * 137.508) % 360}, 80%, 58%, ${alpha})`;
 }
 
 /** A fixed colour per plan item index (lines and zones), distinct from each other. */
 export const PLAN_COLOURS = ["#ffb000", "#3ad1c6", "#ff6f91", "#9b8cff", "#b6e35a", "#ff8a3d"];
+/** @param {number} i */
 export function planColour(i) {
   return PLAN_COLOURS[i % PLAN_COLOURS.length];
 }
 
-/** Index of the first element of a sorted array greater than x. */
+/**
+ * Index of the first element of a sorted array greater than x.
+ * @param {ArrayLike<number>} sorted
+ * @param {number} x
+ */
 export function upperBound(sorted, x) {
   let lo = 0;
   let hi = sorted.length;

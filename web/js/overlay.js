@@ -1,3 +1,4 @@
+// @ts-check
 // Draws over the video: the plan (lines with their forward arrow and running counts, zones, ground
 // points), then the tracks (boxes, identities, trails), then whatever is being drawn right now.
 // Everything is in video pixels; `px` converts a length on screen to video pixels so strokes and text
@@ -5,6 +6,29 @@
 
 import { forwardArrow, centroid, planColour, trackColour } from "./geometry.js";
 
+/** @typedef {import("./geometry.js").Point} Point */
+/** @typedef {CanvasRenderingContext2D} Ctx */
+
+/**
+ * What to draw for one frame. `px`: video pixels per screen pixel; `trailFrames`: how many frames of
+ * each track's path to show.
+ * @typedef {object} Scene
+ * @property {import("./plan.js").Plan} plan
+ * @property {number} frame
+ * @property {number} px
+ * @property {string | null} selected
+ * @property {import("./tracks.js").LiveCounts | null} live
+ * @property {import("./tracks.js").TrackView | null} tracks
+ * @property {boolean} showTrails
+ * @property {boolean} showBoxes
+ * @property {number} trailFrames
+ * @property {import("./store.js").Draft | null} draft
+ */
+
+/**
+ * @param {Ctx} ctx
+ * @param {Scene} state
+ */
 export function drawOverlay(ctx, state) {
   const { plan, frame, px } = state;
   ctx.clearRect(0, 0, ctx.canvas.width, ctx.canvas.height);
@@ -20,10 +44,19 @@ export function drawOverlay(ctx, state) {
   const pairs = plan.calibration ? plan.calibration.pairs || [] : [];
   pairs.forEach((pair, i) => drawGroundPoint(ctx, pair, i, px));
 
-  if (state.tracks) drawTracks(ctx, state, px);
+  if (state.tracks) drawTracks(ctx, state.tracks, state, px);
   if (state.draft) drawDraft(ctx, state.draft, px);
 }
 
+/**
+ * Text on a dark box, so it reads on any picture.
+ * @param {Ctx} ctx
+ * @param {string} text
+ * @param {number} x
+ * @param {number} y
+ * @param {number} px
+ * @param {string} colour
+ */
 function label(ctx, text, x, y, px, colour) {
   const pad = 3 * px;
   const w = ctx.measureText(text).width;
@@ -34,6 +67,14 @@ function label(ctx, text, x, y, px, colour) {
   ctx.fillText(text, x, y);
 }
 
+/**
+ * @param {Ctx} ctx
+ * @param {import("./plan.js").Screenline} line
+ * @param {string} colour
+ * @param {number} px
+ * @param {boolean} selected
+ * @param {import("./tracks.js").LineCounts | null} counts running totals at this frame, once counted
+ */
 function drawLine(ctx, line, colour, px, selected, counts) {
   const pts = line.points;
   if (pts.length < 2) return;
@@ -80,6 +121,13 @@ function drawLine(ctx, line, colour, px, selected, counts) {
   label(ctx, bText, mx - nx * len + 4 * px, my - ny * len + 14 * px * Math.max(0, -ny), px, "#d8dbe4");
 }
 
+/**
+ * @param {Ctx} ctx
+ * @param {import("./plan.js").Zone} zone
+ * @param {string} colour
+ * @param {number} px
+ * @param {boolean} selected
+ */
 function drawZone(ctx, zone, colour, px, selected) {
   const pts = zone.polygon;
   if (pts.length < 2) return;
@@ -101,6 +149,12 @@ function drawZone(ctx, zone, colour, px, selected) {
   label(ctx, zone.name, c[0], c[1], px, colour);
 }
 
+/**
+ * @param {Ctx} ctx
+ * @param {import("./plan.js").GroundPair} pair
+ * @param {number} i
+ * @param {number} px
+ */
 function drawGroundPoint(ctx, pair, i, px) {
   const [x, y] = pair.image;
   const r = 7 * px;
@@ -116,8 +170,14 @@ function drawGroundPoint(ctx, pair, i, px) {
   label(ctx, `G${i + 1}${g}`, x + r, y - r, px, "#ffffff");
 }
 
-function drawTracks(ctx, state, px) {
-  const { tracks, frame, plan } = state;
+/**
+ * @param {Ctx} ctx
+ * @param {import("./tracks.js").TrackView} tracks
+ * @param {Scene} state
+ * @param {number} px
+ */
+function drawTracks(ctx, tracks, state, px) {
+  const { frame, plan } = state;
   if (state.showTrails) {
     const trails = tracks.trails(frame, state.trailFrames, plan.anchor);
     ctx.lineWidth = 2 * px;
@@ -144,6 +204,11 @@ function drawTracks(ctx, state, px) {
   });
 }
 
+/**
+ * @param {Ctx} ctx
+ * @param {import("./store.js").Draft} draft
+ * @param {number} px
+ */
 function drawDraft(ctx, draft, px) {
   const pts = draft.cursor ? [...draft.points, draft.cursor] : draft.points;
   if (!pts.length) return;

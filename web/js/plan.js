@@ -1,21 +1,56 @@
+// @ts-check
 // The counting plan as the page edits it: the same shape as the plan file (docs/plan-format.md), with
-// ground points allowed to be unfinished while the user types. Every change goes through `change`, so
-// it can be undone and is kept in the browser's storage.
+// ground points allowed to be unfinished while the user types. Every change goes through
+// `PlanHistory.change`, so it can be undone and is kept in the browser's storage.
+
+/** @typedef {import("./geometry.js").Point} Point */
+/**
+ * A screenline: a polyline in video pixels; `forward` and `backward` name its two directions.
+ * @typedef {{name: string, points: Point[], forward?: string, backward?: string}} Screenline
+ */
+/** @typedef {{name: string, polygon: Point[]}} Zone a polygon in video pixels */
+/**
+ * A point whose ground position is known: `image` in video pixels, `ground` in the plan's unit
+ * (null while the user has not typed it yet).
+ * @typedef {{image: Point, ground: (number | null)[]}} GroundPair
+ */
+/** @typedef {{pairs: GroundPair[], unit?: string}} Calibration */
+/** @typedef {{hysteresis?: number, zone_hysteresis?: number, [key: string]: unknown}} Rules */
+/**
+ * The plan as edited. Fields the page does not edit are kept as they came.
+ * @typedef {object} Plan
+ * @property {number} [frame_rate]
+ * @property {string} [start] local time of frame 1, "YYYY-MM-DDThh:mm:ss"
+ * @property {number} [interval_minutes]
+ * @property {string} [anchor] "bottom" or "centre"
+ * @property {Rules} [rules]
+ * @property {Screenline[]} screenlines
+ * @property {Zone[]} zones
+ * @property {Calibration} [calibration]
+ */
+/** Why the plan changed: an edit here, a file opened, the demo's plan, an undo. @typedef {"edit" | "file" | "demo" | "undo"} PlanChange */
+/** Choices kept with the plan: the tracking method and the detector's two heights. @typedef {{method: string, farHeight?: string, nearHeight?: string}} Settings */
 
 const STORAGE_KEY = "throughline.work.v1";
 const UNDO_DEPTH = 100;
 
+/** @returns {Plan} */
 export function emptyPlan(frameRate = 25) {
   return { frame_rate: frameRate, interval_minutes: 15, anchor: "bottom", screenlines: [], zones: [] };
 }
 
-/** Reads a plan file's text far enough to edit it; the core checks every field when it is used. */
+/**
+ * Reads a plan file's text far enough to edit it; the core checks every field when it is used.
+ * @param {string} text
+ * @param {string} fileName
+ * @returns {Plan}
+ */
 export function parsePlanText(text, fileName) {
   let value;
   try {
     value = JSON.parse(text);
   } catch (e) {
-    throw new Error(`${fileName} is not valid JSON (${e.message}). A plan is a JSON object with "frame_rate" and "screenlines"; see docs/plan-format.md.`);
+    throw new Error(`${fileName} is not valid JSON (${/** @type {Error} */ (e).message}). A plan is a JSON object with "frame_rate" and "screenlines"; see docs/plan-format.md.`);
   }
   if (!value || typeof value !== "object" || Array.isArray(value)) {
     throw new Error(`${fileName} is not a plan: expected a JSON object with "frame_rate" and "screenlines".`);
@@ -29,8 +64,9 @@ export function parsePlanText(text, fileName) {
 /**
  * The plan as the core should see it. Ground points join the plan only when there are 4 or more and
  * every one has both ground coordinates; until then the reason comes back in `calibrationNote`.
+ * @param {Plan} plan
  */
-export function planForEngine(plan) {
+export function planForCore(plan) {
   const out = { ...plan };
   let calibrationNote = "";
   const pairs = plan.calibration ? plan.calibration.pairs || [] : [];
@@ -49,28 +85,79 @@ export function planForEngine(plan) {
   return { json: JSON.stringify(out, null, 2) + "\n", calibrationNote };
 }
 
+/** @param {Plan} plan */
 export function hasCountingGeometry(plan) {
   return plan.screenlines.length > 0 || plan.zones.length > 0;
 }
 
-/** A name not yet used by any line or zone: "line 1", "line 2", ... */
+/**
+ * A name not yet used by any line or zone: "line 1", "line 2", ...
+ * @param {Plan} plan
+ * @param {string} stem
+ */
 export function freshName(plan, stem) {
   const used = new Set([...plan.screenlines, ...plan.zones].map((x) => x.name));
   for (let i = 1; ; i++) if (!used.has(`${stem} ${i}`)) return `${stem} ${i}`;
 }
 
-/** Holds the current plan, its undo history and its storage. `onChange(plan, why)` after every change. */
-export class PlanStore {
-  constructor(storage, onChange) {
+/**
+ * The plan's frame rate, or 25 where it has none (yet).
+ * @param {Plan} plan
+ */
+export function frameRateOf(plan) {
+  const f = Number(plan.frame_rate);
+  return Number.isFinite(f) && f > 0 ? f : 25;
+}
+
+/**
+ * Sets a line's direction label, or removes it when `text` is blank.
+ * @param {Screenline} line
+ * @param {"forward" | "backward"} key
+ * @param {string} text
+ */
+export function setLabel(line, key, text) {
+  const t = text.trim();
+  if (t) line[key] = t;
+  else delete line[key];
+}
+
+/**
+ * The plan's `rules.hysteresis` (null: the default, 0.15); `zones`, when given, sets
+ * `rules.zone_hysteresis` too (zone edges keep their own margin).
+ * @param {Plan} plan
+ * @param {number | null} v
+ * @param {number} [zones]
+ */
+export function setHysteresis(plan, v, zones) {
+  const rules = { ...(plan.rules || {}) };
+  if (v === null) delete rules.hysteresis;
+  else rules.hysteresis = v;
+  if (zones !== undefined && rules.zone_hysteresis === undefined) rules.zone_hysteresis = zones;
+  if (Object.keys(rules).length) plan.rules = rules;
+  else delete plan.rules;
+}
+
+/**
+ * The current plan, its undo history and the browser's storage of both plan and settings. Only the
+ * page store (store.js) holds one; it announces the changes.
+ */
+export class PlanHistory {
+  /** @param {Storage} storage */
+  constructor(storage) {
     this.storage = storage;
-    this.onChange = onChange;
+    /** @type {string[]} earlier plans, as JSON, the last one most recent */
     this.history = [];
     this.plan = emptyPlan();
+    /** @type {string} where the plan came from: "demo", "demo-edited", "file", "saved" */
     this.source = "demo";
+    /** @type {Settings} */
     this.settings = { method: "" };
   }
 
-  /** The saved work from an earlier visit, or null. */
+  /**
+   * The saved work from an earlier visit (now the current plan), or null.
+   * @returns {{plan: Plan, source?: string, settings?: Settings} | null}
+   */
   restore() {
     try {
       const saved = JSON.parse(this.storage.getItem(STORAGE_KEY) || "null");
@@ -94,7 +181,11 @@ export class PlanStore {
     }
   }
 
-  /** Applies `edit(planCopy)`; the old plan goes on the undo list. */
+  /**
+   * Applies `edit(planCopy)`; the old plan goes on the undo list.
+   * @param {(plan: Plan) => void} edit
+   * @param {PlanChange} [why]
+   */
   change(edit, why = "edit") {
     this.history.push(JSON.stringify(this.plan));
     if (this.history.length > UNDO_DEPTH) this.history.shift();
@@ -103,28 +194,36 @@ export class PlanStore {
     this.plan = next;
     if (why !== "demo") this.source = why === "file" ? "file" : this.source === "demo" ? "demo-edited" : this.source;
     this.save();
-    this.onChange(this.plan, why);
   }
 
-  /** Replaces the whole plan (a file, the demo); undo brings the old one back. */
+  /**
+   * Replaces the whole plan (a file, the demo); undo brings the old one back.
+   * @param {Plan} plan
+   * @param {"file" | "demo"} why
+   */
   replace(plan, why) {
     this.change((p) => {
-      for (const k of Object.keys(p)) delete p[k];
+      const fields = /** @type {Record<string, unknown>} */ (/** @type {unknown} */ (p));
+      for (const k of Object.keys(fields)) delete fields[k];
       Object.assign(p, structuredClone(plan));
     }, why);
     this.source = why;
     this.save();
   }
 
+  /** Brings back the plan before the last change; false when there is none. */
   undo() {
     const last = this.history.pop();
     if (!last) return false;
     this.plan = JSON.parse(last);
     this.save();
-    this.onChange(this.plan, "undo");
     return true;
   }
 
+  /**
+   * @param {"method" | "farHeight" | "nearHeight"} key
+   * @param {string} value
+   */
   setSetting(key, value) {
     this.settings[key] = value;
     this.save();

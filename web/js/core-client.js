@@ -1,0 +1,180 @@
+// @ts-check
+// The page's side of the worker that runs the core (worker.js): each operation is a typed request
+// (protocol.js) answered by a promise; tracking and finding objects report progress on the way.
+
+import { Cancelled } from "./protocol.js";
+
+/** @typedef {import("./protocol.js").Request} Request */
+/** @typedef {import("./protocol.js").ResultOf} ResultOf */
+/** @typedef {import("./protocol.js").Reply} Reply */
+/** @typedef {(done: number, total: number) => void} OnProgress */
+/** @typedef {{resolve: (value: unknown) => void, reject: (error: Error) => void, onProgress: OnProgress | null}} Pending */
+
+export class CoreClient {
+  /**
+   * Starts the worker at once and gives it the core as soon as `wasm()` has the bytes.
+   * @param {() => Worker} makeWorker starts a Worker running worker.js
+   * @param {() => Promise<Uint8Array>} wasm the core's WebAssembly
+   */
+  constructor(makeWorker, wasm) {
+    this.makeWorker = makeWorker;
+    this.wasm = wasm();
+    this.nextId = 1;
+    /** @type {Map<number, Pending>} */
+    this.pending = new Map();
+    this.worker = this.makeWorker();
+    /** Settles when the worker has started the core; rejects (with the reason) if it cannot. */
+    this.ready = this.start();
+  }
+
+  /** Wires `this.worker` and gives it the core. */
+  async start() {
+    this.worker.onmessage = (event) => this.receive(event.data);
+    this.worker.onerror = (event) => this.failAll(new Error(event.message || "the engine stopped"));
+    const copy = (await this.wasm).slice();
+    await this.send({ op: "init", wasm: copy }, [copy.buffer]);
+  }
+
+  /** @param {Error} error */
+  failAll(error) {
+    for (const p of this.pending.values()) p.reject(error);
+    this.pending.clear();
+  }
+
+  /**
+   * Stops whatever the worker is doing by starting a fresh one: calls under way reject with
+   * `Cancelled`, and everything the old worker held (detections, plan, tracks) is gone, so the page
+   * gives it its detections and plan again. Resolves when the new one is up.
+   */
+  restart() {
+    this.worker.terminate();
+    this.failAll(new Cancelled());
+    this.worker = this.makeWorker();
+    this.ready = this.start();
+    return this.ready;
+  }
+
+  /** @param {Reply} reply */
+  receive(reply) {
+    const p = this.pending.get(reply.id);
+    if (!p) return;
+    if (reply.kind === "progress") {
+      if (p.onProgress) p.onProgress(reply.done, reply.total);
+      return;
+    }
+    this.pending.delete(reply.id);
+    if (reply.kind === "result") p.resolve(reply.result);
+    else if (reply.kind === "cancelled") p.reject(new Cancelled());
+    else p.reject(new Error(reply.message));
+  }
+
+  /**
+   * Posts a request now; resolves to its result.
+   * @template {Request["op"]} K
+   * @param {Extract<Request, {op: K}>} request
+   * @param {Transferable[]} [transfer] buffers handed over to the worker
+   * @param {OnProgress | null} [onProgress]
+   * @returns {Promise<ResultOf[K]>}
+   */
+  send(request, transfer = [], onProgress = null) {
+    const id = this.nextId++;
+    return new Promise((resolve, reject) => {
+      this.pending.set(id, { resolve: /** @type {(value: unknown) => void} */ (resolve), reject, onProgress });
+      this.worker.postMessage({ ...request, id }, transfer);
+    });
+  }
+
+  /**
+   * Posts a request once the worker is ready.
+   * @template {Request["op"]} K
+   * @param {Extract<Request, {op: K}>} request
+   * @param {Transferable[]} [transfer]
+   * @param {OnProgress | null} [onProgress]
+   * @returns {Promise<ResultOf[K]>}
+   */
+  async call(request, transfer = [], onProgress = null) {
+    await this.ready;
+    return this.send(request, transfer, onProgress);
+  }
+
+  /**
+   * Reads a detections file (the buffer is handed over); resolves to its summary.
+   * @param {ArrayBuffer} bytes
+   */
+  loadDetections(bytes) {
+    return this.call({ op: "loadDetections", bytes }, [bytes]);
+  }
+
+  /**
+   * Checks and sets the plan (JSON text); resolves to the report and CSV when tracks exist, else null.
+   * @param {string} json
+   */
+  setPlan(json) {
+    return this.call({ op: "setPlan", json });
+  }
+
+  /**
+   * Tracks the loaded detections with `method` ("" for the best for them).
+   * @param {string} method
+   * @param {string} settings tracker settings JSON, "" for the method's defaults
+   * @param {OnProgress} onProgress
+   */
+  track(method, settings, onProgress) {
+    return this.call({ op: "track", method, settings }, [], onProgress);
+  }
+
+  /**
+   * Starts the motion detector for footage of this size.
+   * @param {number} width
+   * @param {number} height
+   * @param {string} settings detector settings JSON (docs/detector-settings.md)
+   */
+  startDetection(width, height, settings) {
+    return this.call({ op: "startDetection", width, height, settings });
+  }
+
+  /**
+   * Finds moving objects in footage (WebM or MP4) by decoding it in the worker (WebCodecs). Resolves
+   * to what was found, or to `{fallback: reason}` when the worker cannot decode it; rejects with
+   * `Cancelled` after `cancelFind`.
+   * @param {Blob} footage
+   * @param {number} width
+   * @param {number} height
+   * @param {string} settings detector settings JSON
+   * @param {number} expectedFrames the page's estimate, for progress
+   * @param {OnProgress} onProgress
+   */
+  findInFootage(footage, width, height, settings, expectedFrames, onProgress) {
+    return this.call({ op: "findInFootage", footage, width, height, settings, expectedFrames }, [], onProgress);
+  }
+
+  /** Stops findInFootage at the next frame. */
+  cancelFind() {
+    return this.call({ op: "cancelFind" });
+  }
+
+  /**
+   * One frame's RGBA pixels (the buffer is handed over); resolves to the number of objects found.
+   * @param {ArrayBuffer} pixels
+   * @param {number} width
+   * @param {number} height
+   */
+  detectRgba(pixels, width, height) {
+    return this.call({ op: "detectRgba", pixels, width, height }, [pixels]);
+  }
+
+  /** The found boxes become the detections; resolves to their summary. */
+  finishDetection() {
+    return this.call({ op: "finishDetection" });
+  }
+
+  /** The detections as a file: CSV when they carry classes or appearance vectors, else plain rows. */
+  detectionsText() {
+    return this.call({ op: "detectionsText" });
+  }
+
+  /** The last tracks, as the command line's --tracks file. */
+  tracksText() {
+    return this.call({ op: "tracksText" });
+  }
+}

@@ -1,0 +1,130 @@
+// @ts-check
+// The Files panel: opening footage, detections and plans (buttons, or dropped on the picture), the
+// names of what is open, and the warnings when detections cannot belong to the footage.
+
+import { byId } from "./dom.js";
+import { parsePlanText } from "./plan.js";
+
+/** @typedef {import("./store.js").PageStore} PageStore */
+/** @typedef {import("./core-client.js").CoreClient} CoreClient */
+/** @typedef {import("./messages.js").Messages} Messages */
+
+export class FilesPanel {
+  /**
+   * @param {PageStore} store
+   * @param {CoreClient} client
+   * @param {Messages} messages
+   */
+  constructor(store, client, messages) {
+    this.store = store;
+    this.client = client;
+    this.messages = messages;
+    this.footageName = byId("footage-name", HTMLElement);
+    this.detectionsName = byId("detections-name", HTMLElement);
+    this.planName = byId("plan-name", HTMLElement);
+    store.subscribe(["footage"], () => { this.footageName.textContent = store.footage ? store.footage.name : "none"; });
+    store.subscribe(["detections"], () => { if (store.detections) this.detectionsName.textContent = store.detections.label; });
+    store.subscribe(["planName"], () => { this.planName.textContent = store.planName; });
+    store.subscribe(["video"], () => { if (store.video.playable) this.checkFit(); });
+    this.planName.textContent = store.planName;
+    this.bindInputs();
+    this.bindDrop(byId("stage", HTMLElement));
+  }
+
+  bindInputs() {
+    /** @param {string} id @param {(file: File) => void} open */
+    const onFile = (id, open) => {
+      const input = byId(id, HTMLInputElement);
+      input.addEventListener("change", () => {
+        const f = input.files && input.files[0];
+        if (f) open(f);
+      });
+    };
+    onFile("open-footage", (f) => this.openFootage(f, f.name));
+    onFile("open-detections", async (f) => this.openDetections(await f.arrayBuffer(), f.name));
+    onFile("open-plan", async (f) => this.openPlanFile(await f.text(), f.name));
+  }
+
+  /**
+   * Drag and drop: footage by type, JSON with a frame rate or lines is a plan, anything else detections.
+   * @param {HTMLElement} stage
+   */
+  bindDrop(stage) {
+    stage.addEventListener("dragover", (e) => { e.preventDefault(); stage.classList.add("dragover"); });
+    stage.addEventListener("dragleave", () => stage.classList.remove("dragover"));
+    stage.addEventListener("drop", async (e) => {
+      e.preventDefault();
+      stage.classList.remove("dragover");
+      for (const f of e.dataTransfer ? e.dataTransfer.files : []) {
+        if (f.type.startsWith("video/") || /\.(webm|mp4|mkv|mov|avi)$/i.test(f.name)) {
+          this.openFootage(f, f.name);
+          continue;
+        }
+        const text = await f.text();
+        if (/\.json$/i.test(f.name) && /"(frame_rate|screenlines)"/.test(text.slice(0, 4000))) this.openPlanFile(text, f.name);
+        else this.openDetections(new TextEncoder().encode(text).buffer, f.name);
+      }
+    });
+  }
+
+  /**
+   * @param {Blob} blob
+   * @param {string} name
+   */
+  openFootage(blob, name) {
+    this.messages.clear("footage");
+    this.store.footageOpened(name, blob);
+  }
+
+  /**
+   * Gives a detections file to the core; its summary, or what is wrong with it, is shown.
+   * @param {ArrayBuffer} bytes handed over to the worker
+   * @param {string} name
+   */
+  async openDetections(bytes, name) {
+    this.messages.clear("detections");
+    this.detectionsName.textContent = `${name} (reading…)`;
+    try {
+      const source = new Blob([bytes]); // a copy: the bytes themselves go to the worker
+      const summary = await this.client.loadDetections(bytes);
+      this.store.detectionsLoaded(summary, source, `${name}: ${summary.rows} boxes, ${summary.frames} frames`);
+      if (summary.warnings.length || summary.skipped_rows) {
+        this.messages.say("detections", "warn", `${name}: ${summary.skipped_rows} rows skipped.\n${summary.warnings.slice(0, 5).join("\n")}`);
+      }
+      if (!this.store.video.playable) this.store.pictureSized(Math.ceil(summary.max_x) || 640, Math.ceil(summary.max_y) || 360);
+      this.checkFit();
+    } catch (e) {
+      this.detectionsName.textContent = `${name}: not read`;
+      this.messages.say("detections", "error", `${name} could not be read: ${/** @type {Error} */ (e).message}`);
+    }
+  }
+
+  /**
+   * @param {string} text
+   * @param {string} name
+   */
+  openPlanFile(text, name) {
+    try {
+      this.store.planReplaced(parsePlanText(text, name), "file", name);
+    } catch (e) {
+      this.messages.say("plan-file", "error", /** @type {Error} */ (e).message);
+    }
+  }
+
+  /** Warns when the detections cannot belong to this footage: too big, or running past its end. */
+  checkFit() {
+    this.messages.clear("fit");
+    const d = this.store.detections;
+    const video = this.store.video;
+    if (!d || !video.playable) return;
+    const s = d.summary;
+    const problems = [];
+    if (s.max_x > video.width * 1.25 || s.max_y > video.height * 1.25) {
+      problems.push(`The detections reach x = ${Math.round(s.max_x)}, y = ${Math.round(s.max_y)}, but the footage is ${video.width} × ${video.height} pixels. Were they made on a different size of this video? Open the matching footage, or scale the detections.`);
+    }
+    if (video.frames && s.frames > video.frames * 1.02 + 2) {
+      problems.push(`The detections run to frame ${s.frames}, but the footage has about ${video.frames} frames at ${this.store.fps} fps. Check the frame rate in the plan.`);
+    }
+    if (problems.length) this.messages.say("fit", "warn", problems.join("\n"));
+  }
+}

@@ -1,0 +1,184 @@
+// @ts-check
+// "Only footage? Find what moves in it": the core's motion detector searches every frame of the
+// footage. Frames are decoded in the worker with WebCodecs where the browser has it and the footage is
+// WebM or MP4 (hundreds of frames a second); otherwise taken by seeking and drawing each one. Either
+// way the boxes found become the detections, as if opened from a file.
+
+import { byId, el } from "./dom.js";
+import { setHysteresis } from "./plan.js";
+import { Cancelled } from "./protocol.js";
+
+/** @typedef {import("./store.js").PageStore} PageStore */
+/** @typedef {import("./core-client.js").CoreClient} CoreClient */
+/** @typedef {import("./messages.js").Messages} Messages */
+/** @typedef {import("./picture.js").Picture} Picture */
+/** @typedef {import("./protocol.js").DetectionSummary} DetectionSummary */
+/** @typedef {import("./protocol.js").FootageSearched} FootageSearched */
+
+/** The two height fields and the settings they give (docs/detector-settings.md). */
+const HEIGHTS = /** @type {const} */ ([["far-height", "farHeight", "far_height"], ["near-height", "nearHeight", "near_height"]]);
+
+export class FindPanel {
+  /**
+   * @param {PageStore} store
+   * @param {CoreClient} client
+   * @param {Messages} messages
+   * @param {Picture} picture
+   */
+  constructor(store, client, messages, picture) {
+    this.store = store;
+    this.client = client;
+    this.messages = messages;
+    this.picture = picture;
+    this.button = byId("find-objects", HTMLButtonElement);
+    this.cancel = byId("cancel-find", HTMLButtonElement);
+    this.bar = byId("find-progress", HTMLProgressElement);
+    this.status = byId("find-status", HTMLElement);
+    this.cancelled = false;
+    for (const [id, key] of HEIGHTS) {
+      const input = byId(id, HTMLInputElement);
+      input.value = store.settings[key] ?? "";
+      input.addEventListener("change", () => store.settingChanged(key, input.value));
+    }
+    this.cancel.addEventListener("click", () => {
+      this.cancelled = true;
+      client.cancelFind();
+    });
+    this.button.addEventListener("click", () => this.find());
+    store.subscribe(["video", "busy"], () => { this.button.disabled = !store.video.playable || store.finding; });
+  }
+
+  /** Detector settings JSON from the two height fields. */
+  detectorSettings() {
+    /** @type {Record<string, number>} */
+    const settings = {};
+    for (const [id, , setting] of HEIGHTS) {
+      const text = byId(id, HTMLInputElement).value;
+      const v = Number(text);
+      if (text !== "" && Number.isFinite(v) && v > 0) settings[setting] = v;
+    }
+    return JSON.stringify(settings);
+  }
+
+  /**
+   * Progress of finding objects: bar, frames a second, time left.
+   * @param {number} done
+   * @param {number} total
+   * @param {number} started performance.now() at the start
+   */
+  showProgress(done, total, started) {
+    const rate = done / Math.max(1e-3, (performance.now() - started) / 1000);
+    this.bar.value = done / Math.max(1, total);
+    this.status.textContent = `Frame ${done} of ${total}, ${rate.toFixed(0)} frames a second, ${Math.ceil(Math.max(0, total - done) / Math.max(rate, 1e-3))} s left`;
+  }
+
+  async find() {
+    const footage = this.store.footage;
+    if (!this.store.video.playable || !footage) return;
+    this.picture.pause();
+    this.messages.clear("find");
+    this.cancelled = false;
+    this.showBusy(true);
+    this.status.textContent = "Starting…";
+    const started = performance.now();
+    try {
+      const { summary, how } = await this.search(footage.blob, started);
+      const seconds = (performance.now() - started) / 1000;
+      const source = new Blob([await this.client.detectionsText()]);
+      this.store.detectionsLoaded(summary, source, `found in ${footage.name}: ${summary.rows} boxes, ${summary.frames} frames`);
+      this.status.textContent = `Found ${summary.rows} moving objects over ${summary.frames} frames in ${seconds.toFixed(1)} s${how}. Press Run to track and count them.`;
+      this.offerMargin();
+    } catch (e) {
+      this.status.textContent = "";
+      if (e instanceof Cancelled) this.messages.say("find", "warn", "Finding objects was cancelled; the detections opened before are kept.");
+      else this.messages.say("find", "error", `Finding objects stopped: ${/** @type {Error} */ (e).message}`);
+    } finally {
+      this.showBusy(false);
+      this.picture.seekFrame(1);
+    }
+  }
+
+  /** @param {boolean} on */
+  showBusy(on) {
+    this.bar.hidden = !on;
+    this.cancel.hidden = !on;
+    this.store.findingChanged(on);
+  }
+
+  /**
+   * Searches the footage in the worker where it can decode it, else by drawing its frames here.
+   * Resolves to the detections' summary and how the frames were read (for the status line).
+   * @param {Blob} footage
+   * @param {number} started
+   * @returns {Promise<{summary: DetectionSummary, how: string}>}
+   */
+  async search(footage, started) {
+    const video = this.picture.video;
+    const w = video.videoWidth;
+    const h = video.videoHeight;
+    const total = Math.max(1, Math.round(video.duration * this.store.fps));
+    const found = typeof VideoDecoder === "function"
+      ? await this.client.findInFootage(footage, w, h, this.detectorSettings(), total, (done, n) => this.showProgress(done, n, started))
+      : { fallback: "this browser has no WebCodecs video decoder" };
+    if ("fallback" in found) {
+      this.messages.say("find", "warn", `Frames are taken by playing the footage, which is slower: ${found.fallback}.`);
+      return { summary: await this.findByDrawing(w, h, total, started), how: "" };
+    }
+    this.store.frameRateMeasured(found.frameRate, "is coded at");
+    this.warnIfShort(found, video.duration);
+    return { summary: found.summary, how: ` (decoded in this page: ${found.container}, ${found.codec})` };
+  }
+
+  /**
+   * Says so when reading the footage stopped early or gave fewer frames than it should have.
+   * @param {FootageSearched} found
+   * @param {number} duration seconds
+   */
+  warnIfShort(found, duration) {
+    if (found.stopped) {
+      this.messages.say("find", "warn", `Reading the footage stopped early: ${found.stopped}. The objects found in frames 1 to ${found.frames} are kept; the rest of the footage was not searched. The file may be damaged or cut short: re-encode it with ffmpeg and search again to count all of it.`);
+      return;
+    }
+    // The footage's own rate, where the decoder told it, not the plan's (which may be wrong).
+    const expected = found.frameRate ? Math.round(duration * found.frameRate) : found.expected;
+    if (found.frames < 0.98 * expected) {
+      this.messages.say("find", "warn", `Only ${found.frames} frames could be read, but the footage should have about ${expected}. The file may be damaged: re-encode it with ffmpeg and search again to count all of it.`);
+    }
+  }
+
+  /**
+   * The slow way, for footage or browsers WebCodecs cannot serve: seek the video element to each
+   * frame, draw it and hand its RGBA pixels to the detector (about 11 frames a second at 640x360).
+   * @param {number} w
+   * @param {number} h
+   * @param {number} total
+   * @param {number} started
+   */
+  async findByDrawing(w, h, total, started) {
+    const g = el("canvas", { width: w, height: h }).getContext("2d", { willReadFrequently: true });
+    if (!g) throw new Error("this browser cannot draw the footage's frames");
+    await this.client.startDetection(w, h, this.detectorSettings());
+    for (let f = 1; f <= total; f++) {
+      if (this.cancelled) throw new Cancelled();
+      await this.picture.presentFrame(f);
+      g.drawImage(this.picture.video, 0, 0, w, h);
+      const pixels = g.getImageData(0, 0, w, h).data.buffer;
+      await this.client.detectRgba(pixels, w, h);
+      this.showProgress(f, total, started);
+    }
+    return this.client.finishDetection();
+  }
+
+  /**
+   * Boxes found in footage jump when people join or split near a line: offers the steadier
+   * crossing margin unless the plan has one as wide already.
+   */
+  offerMargin() {
+    const rules = this.store.plan.rules;
+    const margin = rules && rules.hysteresis;
+    if (margin !== undefined && margin >= 0.35) return;
+    this.messages.say("margin", "ok", "Boxes found in footage jump when two people join or split near a line. A crossing margin of 0.35 box heights counts line crossings more steadily (zones keep 0.15: people leaving a zone at the picture's edge are soon out of sight). See docs/detector-settings.md.", [
+      el("button", { type: "button", text: "Use 0.35", onclick: () => { this.store.planEdited((p) => setHysteresis(p, 0.35, 0.15)); this.messages.clear("margin"); } }),
+    ]);
+  }
+}

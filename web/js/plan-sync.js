@@ -1,0 +1,41 @@
+// @ts-check
+// Keeps the core's plan the page's: every change of the plan goes to the worker (edits after a short
+// pause, so typing does not send each key), where the core checks every field and, when there are
+// tracks, counts again at once.
+
+import { planForCore } from "./plan.js";
+import { Cancelled } from "./protocol.js";
+
+/** @typedef {import("./store.js").PageStore} PageStore */
+/** @typedef {import("./core-client.js").CoreClient} CoreClient */
+
+export class PlanSync {
+  /**
+   * @param {PageStore} store
+   * @param {CoreClient} client
+   */
+  constructor(store, client) {
+    this.store = store;
+    this.client = client;
+    /** @type {ReturnType<typeof setTimeout> | undefined} */
+    this.timer = undefined;
+    store.subscribe(["plan"], ({ why }) => {
+      clearTimeout(this.timer);
+      this.timer = setTimeout(() => this.send(), why === "edit" ? 120 : 0);
+    });
+  }
+
+  /** Gives the plan to the core now; the counts it gives back, if any, become the page's. */
+  async send() {
+    const { json, calibrationNote } = planForCore(this.store.plan);
+    this.store.planChecked(calibrationNote);
+    try {
+      const results = await this.client.setPlan(json);
+      if (results) this.store.resultsReady(results);
+    } catch (e) {
+      // A worker replaced on Cancel drops the plan it was given; it gets it again.
+      if (e instanceof Cancelled) return;
+      this.store.planChecked(`The plan needs a fix: ${/** @type {Error} */ (e).message}` + (calibrationNote ? `\n${calibrationNote}` : ""));
+    }
+  }
+}

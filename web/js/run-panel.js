@@ -1,0 +1,94 @@
+// @ts-check
+// The Tracking panel: the method, Run and Cancel. Tracking runs in one piece inside the worker, so
+// Cancel replaces the worker and gives the new one the detections and plan again.
+
+import { byId } from "./dom.js";
+import { hasCountingGeometry } from "./plan.js";
+import { Cancelled } from "./protocol.js";
+import { TrackView } from "./tracks.js";
+
+/** @typedef {import("./store.js").PageStore} PageStore */
+/** @typedef {import("./core-client.js").CoreClient} CoreClient */
+/** @typedef {import("./messages.js").Messages} Messages */
+/** @typedef {import("./plan-sync.js").PlanSync} PlanSync */
+
+export class RunPanel {
+  /**
+   * @param {PageStore} store
+   * @param {CoreClient} client
+   * @param {Messages} messages
+   * @param {PlanSync} planSync
+   */
+  constructor(store, client, messages, planSync) {
+    this.store = store;
+    this.client = client;
+    this.messages = messages;
+    this.planSync = planSync;
+    this.method = byId("method", HTMLSelectElement);
+    this.run = byId("run", HTMLButtonElement);
+    this.cancel = byId("cancel-run", HTMLButtonElement);
+    this.bar = byId("progress", HTMLProgressElement);
+    this.status = byId("run-status", HTMLElement);
+    /** @type {Promise<void> | null} while a new worker is given the detections and plan again */
+    this.restoring = null;
+    this.method.value = store.settings.method || "";
+    this.method.addEventListener("change", () => store.settingChanged("method", this.method.value));
+    this.cancel.addEventListener("click", () => this.cancelRun());
+    this.run.addEventListener("click", () => this.track());
+    store.subscribe(["busy"], () => { this.run.disabled = store.tracking || store.finding; });
+    store.subscribe(["detections"], () => { this.status.textContent = "Ready: press Run to track and count."; });
+  }
+
+  cancelRun() {
+    this.cancel.hidden = true;
+    const detections = this.store.detections;
+    this.restoring = (async () => {
+      await this.client.restart();
+      if (detections) await this.client.loadDetections(await detections.source.arrayBuffer());
+      await this.planSync.send();
+    })().finally(() => { this.restoring = null; });
+  }
+
+  async track() {
+    if (this.restoring) await this.restoring;
+    if (!this.store.detections) {
+      this.messages.say("run", "error", "Open a detections file first (Open detections): the boxes found in each frame, as text, CSV or JSON.");
+      return;
+    }
+    this.messages.clear("run");
+    this.showBusy(true);
+    this.status.textContent = "Tracking…";
+    const started = performance.now();
+    try {
+      const out = await this.client.track(this.method.value, "", (done, total) => {
+        this.bar.value = total ? done / total : 0;
+        this.status.textContent = `Tracking… frame ${done} of ${total}`;
+      });
+      this.store.tracksReady(new TrackView(out.boxes, out.trackList));
+      const seconds = ((performance.now() - started) / 1000).toFixed(1);
+      this.status.textContent = `${out.tracks} tracks in ${seconds} s.`;
+      if (!hasCountingGeometry(this.store.plan)) {
+        this.messages.say("run", "warn", "The plan has no lines or zones, so nothing was counted. Press Draw line and click two points across the path, or open a plan file; the counts appear at once.");
+      }
+      await this.planSync.send();
+    } catch (e) {
+      this.status.textContent = "";
+      if (e instanceof Cancelled) {
+        this.store.trackingCancelled();
+        this.messages.say("run", "warn", "Tracking was cancelled. The detections and the plan are kept: press Run to track again.");
+      } else {
+        this.messages.say("run", "error", `Tracking stopped: ${/** @type {Error} */ (e).message}`);
+      }
+    } finally {
+      this.showBusy(false);
+    }
+  }
+
+  /** @param {boolean} on */
+  showBusy(on) {
+    this.bar.hidden = !on;
+    if (on) this.bar.value = 0;
+    this.cancel.hidden = !on;
+    this.store.trackingChanged(on);
+  }
+}

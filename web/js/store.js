@@ -1,0 +1,321 @@
+// @ts-check
+// The page's state in one place. It changes only through the named actions below; each action says
+// which topics it changed, and every view subscribed to one of them is told once, at once. Views
+// then update the parts of the page they own. Nothing here touches the page or the worker.
+
+import { PlanHistory, frameRateOf } from "./plan.js";
+import { LiveCounts } from "./tracks.js";
+
+/** @typedef {import("./plan.js").Plan} Plan */
+/** @typedef {import("./plan.js").PlanChange} PlanChange */
+/** @typedef {import("./geometry.js").Point} Point */
+/** @typedef {import("./protocol.js").DetectionSummary} DetectionSummary */
+/** @typedef {import("./tracks.js").TrackView} TrackView */
+
+/**
+ * What an action changed. "geometry": plan points moved in place while dragging (drawing only).
+ * @typedef {"plan" | "geometry" | "selection" | "frame" | "footage" | "video" | "picture" | "detections"
+ *   | "tracks" | "results" | "busy" | "planProblem" | "planName" | "frameRate" | "tool" | "draft"} Topic
+ */
+/** @typedef {{changed: Set<Topic>, why: string}} Change `why`: for "plan", a PlanChange */
+/** @typedef {(change: Change) => void} Listener */
+
+/**
+ * The footage as the video element plays it: `frames` at the plan's frame rate when it opened.
+ * @typedef {{playable: boolean, width: number, height: number, frames: number}} Video
+ */
+/** Detections in use: the core's summary, the file (to give a restarted worker) and how to name them. @typedef {{summary: DetectionSummary, source: Blob, label: string}} Detections */
+/** @typedef {{report: import("./results.js").Report, reportText: string, csv: string, live: LiveCounts}} Results */
+/** @typedef {"select" | "line" | "zone" | "calibration"} Tool */
+/** A line or zone being drawn: its points so far and where the pointer is. @typedef {{kind: "line" | "zone", points: Point[], cursor?: Point}} Draft */
+/** A vertex being dragged: of a line, a zone or a ground point. @typedef {{kind: "line" | "zone" | "ground", index: number, vertex: number}} Vertex */
+
+export class PageStore {
+  /** @param {Storage} storage where the plan and settings are kept between visits */
+  constructor(storage) {
+    this.plans = new PlanHistory(storage);
+    /** The plan and settings kept from an earlier visit, if any (they are now the current ones). */
+    this.restored = this.plans.restore();
+    /** The frame on screen, 1-based. */
+    this.frame = 1;
+    /** @type {{name: string, blob: Blob} | null} the footage opened, as a file */
+    this.footage = null;
+    /** @type {Video} */
+    this.video = { playable: false, width: 0, height: 0, frames: 0 };
+    /** @type {{width: number, height: number} | null} the picture's size in video pixels, once known */
+    this.picture = null;
+    /** @type {Detections | null} */
+    this.detections = null;
+    /** @type {TrackView | null} */
+    this.tracks = null;
+    /** @type {Results | null} */
+    this.results = null;
+    /** @type {string | null} the selected line or zone: "line:2", "zone:0" */
+    this.selected = null;
+    /** Where the plan came from, as the Files panel names it. */
+    this.planName = this.restored ? (this.restored.source === "file" ? "kept from last time" : "kept from last time (edited)") : "drawn here";
+    /** What keeps the plan from being used in full (a field to fix, unfinished ground points), or "". */
+    this.planProblem = "";
+    this.finding = false;
+    this.tracking = false;
+    /** @type {{rate: number, how: string} | null} the footage's own frame rate, where measured */
+    this.measuredRate = null;
+    /** @type {Tool} the drawing tool in use on the picture */
+    this.tool = "select";
+    /** @type {Draft | null} the line or zone being drawn */
+    this.draft = null;
+    /** @type {Map<Listener, Set<Topic>>} */
+    this.listeners = new Map();
+  }
+
+  get plan() {
+    return this.plans.plan;
+  }
+
+  get settings() {
+    return this.plans.settings;
+  }
+
+  /** The plan's frame rate (25 where it has none). */
+  get fps() {
+    return frameRateOf(this.plan);
+  }
+
+  /** The last frame there is anything to show for: the footage's or the detections'. */
+  get lastFrame() {
+    return Math.max(1, this.video.frames, this.detections ? this.detections.summary.frames : 0);
+  }
+
+  /**
+   * Calls `listener` after every action that changes one of `topics`. Returns the unsubscribe.
+   * @param {Topic[]} topics
+   * @param {Listener} listener
+   */
+  subscribe(topics, listener) {
+    this.listeners.set(listener, new Set(topics));
+    return () => this.listeners.delete(listener);
+  }
+
+  /**
+   * @param {Topic[]} topics
+   * @param {string} [why]
+   */
+  emit(topics, why = "") {
+    const changed = new Set(topics);
+    for (const [listener, wanted] of [...this.listeners]) {
+      if (topics.some((t) => wanted.has(t))) listener({ changed, why });
+    }
+  }
+
+  // ------------------------------------------------------------ files and what they hold
+
+  /**
+   * @param {string} name
+   * @param {Blob} blob
+   */
+  footageOpened(name, blob) {
+    this.footage = { name, blob };
+    this.emit(["footage"]);
+  }
+
+  /**
+   * The video element has the footage's size and length.
+   * @param {number} width
+   * @param {number} height
+   * @param {number} frames at the plan's frame rate
+   */
+  videoReady(width, height, frames) {
+    this.video = { playable: true, width, height, frames };
+    this.picture = { width, height };
+    this.emit(["video", "picture"]);
+  }
+
+  videoFailed() {
+    this.video = { ...this.video, playable: false };
+    this.emit(["video"]);
+  }
+
+  /**
+   * The picture's size when there is no footage to give it (from the detections' extent).
+   * @param {number} width
+   * @param {number} height
+   */
+  pictureSized(width, height) {
+    this.picture = { width, height };
+    this.emit(["picture"]);
+  }
+
+  /**
+   * New detections are in the worker (opened or found in footage); tracks and counts of the old
+   * ones are gone.
+   * @param {DetectionSummary} summary
+   * @param {Blob} source the detections as a file
+   * @param {string} label how the Files panel names them
+   */
+  detectionsLoaded(summary, source, label) {
+    this.detections = { summary, source, label };
+    this.emit(["detections", ...this.forgetTracking()]);
+  }
+
+  // ------------------------------------------------------------ tracking and counts
+
+  /** @param {TrackView} tracks */
+  tracksReady(tracks) {
+    this.tracks = tracks;
+    this.emit(["tracks"]);
+  }
+
+  /** @param {import("./protocol.js").Results} results the report (JSON text) and the counts CSV */
+  resultsReady({ report, csv }) {
+    const parsed = JSON.parse(report);
+    this.results = { report: parsed, reportText: report, csv, live: new LiveCounts(parsed) };
+    this.emit(["results"]);
+  }
+
+  /** Tracking was stopped: the detections and plan stay, tracks and counts go. */
+  trackingCancelled() {
+    this.emit(this.forgetTracking());
+  }
+
+  /**
+   * The one reset: forgets the tracks and everything counted from them. Returns the topics changed.
+   * @returns {Topic[]}
+   */
+  forgetTracking() {
+    this.tracks = null;
+    this.results = null;
+    return ["tracks", "results"];
+  }
+
+  /** @param {boolean} on */
+  findingChanged(on) {
+    this.finding = on;
+    this.emit(["busy"]);
+  }
+
+  /** @param {boolean} on */
+  trackingChanged(on) {
+    this.tracking = on;
+    this.emit(["busy"]);
+  }
+
+  /**
+   * The footage's own frame rate was measured (nothing happens when `rate` is no rate).
+   * @param {number | null} rate frames a second
+   * @param {string} how "plays at" or "is coded at"
+   */
+  frameRateMeasured(rate, how) {
+    if (rate === null || !(rate > 0 && Number.isFinite(rate))) return;
+    this.measuredRate = { rate, how };
+    this.emit(["frameRate"]);
+  }
+
+  // ------------------------------------------------------------ what is on screen
+
+  /** @param {number} f a frame number; kept within 1 and the last frame */
+  frameChosen(f) {
+    this.frame = Math.max(1, Math.min(this.lastFrame, Math.round(f)));
+    this.emit(["frame"]);
+  }
+
+  /**
+   * The frame the footage is showing while it plays (not limited to the last frame, as it was measured).
+   * @param {number} f
+   */
+  framePlayed(f) {
+    this.frame = Math.max(1, f);
+    this.emit(["frame"]);
+  }
+
+  /** @param {string | null} key "line:2", "zone:0" or null */
+  itemSelected(key) {
+    this.selected = key;
+    this.emit(["selection"]);
+  }
+
+  /**
+   * A drawing tool was chosen; anything half drawn is dropped.
+   * @param {Tool} tool
+   */
+  toolChosen(tool) {
+    this.tool = tool;
+    this.draft = null;
+    this.emit(["tool", "draft"]);
+  }
+
+  /** @param {Draft | null} draft the line or zone being drawn, changed */
+  draftChanged(draft) {
+    this.draft = draft;
+    this.emit(["draft"]);
+  }
+
+  // ------------------------------------------------------------ the plan
+
+  /**
+   * An edit of the plan (one undo step).
+   * @param {(plan: Plan) => void} edit changes the copy it is given
+   */
+  planEdited(edit) {
+    this.plans.change(edit, "edit");
+    this.emit(["plan"], "edit");
+  }
+
+  /**
+   * A whole new plan: a file or the demo's. Undo brings the old one back.
+   * @param {Plan} plan
+   * @param {"file" | "demo"} why
+   * @param {string} name how the Files panel names it
+   */
+  planReplaced(plan, why, name) {
+    this.plans.replace(plan, why);
+    this.planName = name;
+    this.emit(["plan", "planName"], why);
+  }
+
+  planUndone() {
+    if (this.plans.undo()) this.emit(["plan"], "undo");
+  }
+
+  /** Deletes the selected line or zone. */
+  selectedDeleted() {
+    if (!this.selected) return;
+    const [kind, i] = this.selected.split(":");
+    this.selected = null;
+    this.plans.change((p) => (kind === "line" ? p.screenlines : p.zones).splice(Number(i), 1), "edit");
+    this.emit(["plan", "selection"], "edit");
+  }
+
+  /**
+   * A vertex moved while being dragged: the plan changes in place, without an undo step (the drag
+   * made one as it began) and without telling anything but the drawing, until `dragEnded`.
+   * @param {Vertex} vertex
+   * @param {Point} p
+   */
+  vertexDragged({ kind, index, vertex }, p) {
+    const plan = this.plan;
+    if (kind === "line") plan.screenlines[index].points[vertex] = p;
+    else if (kind === "zone") plan.zones[index].polygon[vertex] = p;
+    else if (plan.calibration) plan.calibration.pairs[index].image = p;
+    this.emit(["geometry"]);
+  }
+
+  /** The drag is over: the plan is kept and everyone is told. */
+  dragEnded() {
+    this.plans.save();
+    this.emit(["plan"], "edit");
+  }
+
+  /** @param {string} problem what keeps the plan from being used in full, or "" */
+  planChecked(problem) {
+    this.planProblem = problem;
+    this.emit(["planProblem"]);
+  }
+
+  /**
+   * @param {"method" | "farHeight" | "nearHeight"} key
+   * @param {string} value
+   */
+  settingChanged(key, value) {
+    this.plans.setSetting(key, value);
+  }
+}

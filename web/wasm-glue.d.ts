@@ -1,0 +1,38 @@
+// The core as worker.js sees it: wasm-bindgen's glue (no-modules target, loaded before the worker's
+// own code) defines one global, `wasm_bindgen`. Only what the worker uses is declared here; the
+// source of truth is crate/wasm/src/lib.rs (Session) and crate/wasm/src/footage.rs (FootageReader).
+// For the type check only (web/jsconfig.worker.json); the page never loads this file.
+
+type DetectionSummary = import("./js/protocol.js").DetectionSummary;
+type TrackInfo = import("./js/protocol.js").TrackInfo;
+
+declare function wasm_bindgen(init: { module_or_path: Uint8Array | BufferSource }): Promise<unknown>;
+
+declare namespace wasm_bindgen {
+  /** One page's state in the core: detections, plan, tracks. Errors are thrown as JS errors. */
+  class Session {
+    constructor();
+    loadDetections(bytes: Uint8Array): DetectionSummary;
+    setPlan(json: string): void;
+    track(method: string, settings: string, progress: (done: number, total: number) => void): number;
+    report(): string;
+    countsCsv(): string;
+    tracksText(): string;
+    allBoxes(): Float32Array;
+    trackList(): TrackInfo[];
+    startDetection(width: number, height: number, settings: string): void;
+    detectRgba(rgba: Uint8Array, width: number, height: number): number;
+    detectYuv(bytes: Uint8Array, width: number, height: number, layout: string): number;
+    finishDetection(): DetectionSummary;
+    detectionsText(): string;
+    free(): void;
+  }
+
+  /** WebM or MP4 read a byte range at a time through `read(offset, length)`. */
+  class FootageReader {
+    constructor(read: (offset: number, length: number) => Uint8Array, size: number);
+    info(): { container: string; codec: string; description?: Uint8Array; codedWidth: number; codedHeight: number; frames?: number };
+    next(): { data: Uint8Array; timestamp: number; key: boolean } | null;
+    free(): void;
+  }
+}
