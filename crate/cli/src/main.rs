@@ -8,7 +8,7 @@ use indicatif::{ProgressBar, ProgressStyle};
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 use throughline_core::track::files as tracks_io;
-use throughline_core::{count, detections, motion, plan, track};
+use throughline_core::{count, detect, detections, plan, track};
 use throughline_eval::tracking_metrics as score;
 use throughline_footage::y4m;
 use throughline_sim as sim;
@@ -587,8 +587,8 @@ fn detect_footage(
 ) -> Result<detections::Detections, Failure> {
     use std::io::{BufReader, Read};
     let config = match read_settings(config)? {
-        Some((p, text)) => motion::MotionConfig::from_json(&text).map_err(|e| bad_input(p, e))?,
-        None => motion::MotionConfig::default(),
+        Some((p, text)) => detect::DetectorConfig::from_json(&text).map_err(|e| bad_input(p, e))?,
+        None => detect::DetectorConfig::default(),
     };
     let input: Box<dyn Read> = if footage == Path::new("-") {
         Box::new(std::io::stdin().lock())
@@ -603,7 +603,7 @@ fn detect_footage(
     short_line(&mut input, &mut line).map_err(|e| bad_input(footage, e))?;
     let text = String::from_utf8_lossy(&line);
     let header = y4m::parse_header(text.trim_end()).map_err(|e| bad_input(footage, e))?;
-    let mut detector = motion::MotionDetector::new(config, header.width, header.height);
+    let mut detector = detect::Detector::new(config, header.width, header.height);
     let mut frame = vec![0u8; header.frame_bytes()];
     let bar = if quiet {
         ProgressBar::hidden()
@@ -641,7 +641,7 @@ fn detect_footage(
         }
         let colour = header.layout == y4m::Layout::Yuv420;
         // `frame` holds exactly `header.frame_bytes()`, which is what `planar` needs.
-        let Some(pic) = motion::Picture::planar(header.width, header.height, &frame, colour) else {
+        let Some(pic) = detect::Picture::planar(header.width, header.height, &frame, colour) else {
             return Err(bad_input(
                 footage,
                 "a frame is shorter than its header says",

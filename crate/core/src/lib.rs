@@ -9,10 +9,10 @@
 //! - frame numbers are **1-based**, as in the benchmark text format.
 
 pub mod count;
+pub mod detect;
 pub mod detections;
 pub mod error;
 pub mod geometry;
-pub mod motion;
 pub mod plan;
 pub mod text;
 pub mod track;

@@ -6,7 +6,7 @@
 use js_sys::{Float32Array, Function};
 use serde::Serialize;
 use throughline_core::track::files as tracks_io;
-use throughline_core::{count, detections, motion, plan, track};
+use throughline_core::{count, detect, detections, plan, track};
 use wasm_bindgen::prelude::*;
 
 mod footage;
@@ -41,7 +41,7 @@ fn short_frame() -> JsError {
 
 /// NV12 (luma, then interleaved U,V pairs at 4:2:0) to I420 (luma, U plane, V plane).
 fn nv12_to_i420(bytes: &[u8], w: usize, h: usize) -> Option<Vec<u8>> {
-    let (cw, ch) = motion::Picture::chroma_size(w, h);
+    let (cw, ch) = detect::Picture::chroma_size(w, h);
     let (luma, pairs) = bytes.split_at_checked(w * h)?;
     let pairs = pairs.get(..2 * cw * ch)?;
     let mut out = Vec::with_capacity(w * h + 2 * cw * ch);
@@ -52,7 +52,7 @@ fn nv12_to_i420(bytes: &[u8], w: usize, h: usize) -> Option<Vec<u8>> {
 }
 
 /// Boxes (with scores) the motion detector found, one list per frame.
-type FoundBoxes = Vec<Vec<motion::Found>>;
+type FoundBoxes = Vec<Vec<detect::Found>>;
 
 /// What [`Session::load_detections`] found, as a plain JS object (snake_case fields).
 #[derive(Serialize)]
@@ -97,7 +97,7 @@ pub struct Session {
     /// The report of the last tracks and plan, made once when both are there.
     report: Option<count::Report>,
     /// The motion detector while footage is being searched, and the boxes found so far.
-    detector: Option<(motion::MotionDetector, FoundBoxes)>,
+    detector: Option<(detect::Detector, FoundBoxes)>,
 }
 
 #[wasm_bindgen]
@@ -128,16 +128,16 @@ impl Session {
         settings: &str,
     ) -> Result<(), JsError> {
         let config = if settings.trim().is_empty() {
-            motion::MotionConfig::default()
+            detect::DetectorConfig::default()
         } else {
-            motion::MotionConfig::from_json(settings).map_err(js_error)?
+            detect::DetectorConfig::from_json(settings).map_err(js_error)?
         };
         if width == 0 || height == 0 || width > 8192 || height > 8192 {
             return Err(js_error(format!(
                 "footage of {width}x{height} pixels cannot be searched"
             )));
         }
-        let detector = motion::MotionDetector::new(config, width as usize, height as usize);
+        let detector = detect::Detector::new(config, width as usize, height as usize);
         self.detector = Some((detector, Vec::new()));
         Ok(())
     }
@@ -147,7 +147,7 @@ impl Session {
     #[wasm_bindgen(js_name = detectRgba)]
     pub fn detect_rgba(&mut self, rgba: &[u8], width: u32, height: u32) -> Result<u32, JsError> {
         let (w, h) = (width as usize, height as usize);
-        let yuv = motion::rgba_to_yuv420(rgba, w, h).ok_or_else(short_frame)?;
+        let yuv = detect::rgba_to_yuv420(rgba, w, h).ok_or_else(short_frame)?;
         self.detect_planar(&yuv, w, h)
     }
 
@@ -180,7 +180,7 @@ impl Session {
             .detector
             .as_mut()
             .ok_or_else(|| js_error("start detection first"))?;
-        let picture = motion::Picture::planar(w, h, yuv, true).ok_or_else(short_frame)?;
+        let picture = detect::Picture::planar(w, h, yuv, true).ok_or_else(short_frame)?;
         let boxes = detector.detect_found(&picture).map_err(js_error)?;
         let n = boxes.len() as u32;
         found.push(boxes);

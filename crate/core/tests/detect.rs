@@ -1,8 +1,8 @@
 //! The moving-object detector: hand-made pictures whose right answer is known exactly, and the
 //! simulator's rendered frames against its ground truth.
 
+use throughline_core::detect::{Detector, DetectorConfig, Picture};
 use throughline_core::geometry::{iou, BBox};
-use throughline_core::motion::{MotionConfig, MotionDetector, Picture};
 use throughline_sim::{self as sim, render};
 
 const W: usize = 160;
@@ -38,11 +38,11 @@ fn paint(
 /// Runs the detector over `frames` pictures made by `draw(frame_index, picture)` and returns the
 /// boxes of the last one.
 fn last_boxes(
-    config: MotionConfig,
+    config: DetectorConfig,
     frames: usize,
     draw: impl Fn(usize, &mut (Vec<u8>, Vec<u8>, Vec<u8>)),
 ) -> Vec<(BBox, f64)> {
-    let mut det = MotionDetector::new(config, W, H);
+    let mut det = Detector::new(config, W, H);
     let mut last = Vec::new();
     for k in 0..frames {
         let mut pic = background();
@@ -59,11 +59,11 @@ fn last_boxes(
     last
 }
 
-fn quick() -> MotionConfig {
-    MotionConfig {
+fn quick() -> DetectorConfig {
+    DetectorConfig {
         warm_up_frames: 10,
         min_area: 20,
-        ..MotionConfig::default()
+        ..DetectorConfig::default()
     }
 }
 
@@ -123,7 +123,7 @@ fn a_shadow_is_not_an_object_but_a_dark_coloured_thing_is() {
 fn two_objects_side_by_side_are_split_where_the_shape_says_so() {
     // Two 12x40 blocks 6 px apart, joined at their shoulders only (a bridge 4 px high): one blob, two objects
     // when the expected height says one object is about 40 px tall and 14 px wide.
-    let config = MotionConfig {
+    let config = DetectorConfig {
         far_height: Some(40.0),
         near_height: Some(40.0),
         ..quick()
@@ -145,7 +145,7 @@ fn two_objects_side_by_side_are_split_where_the_shape_says_so() {
 
 #[test]
 fn a_picture_of_another_size_is_refused() {
-    let mut det = MotionDetector::new(MotionConfig::default(), W, H);
+    let mut det = Detector::new(DetectorConfig::default(), W, H);
     let y = vec![0u8; 10];
     let e = det
         .detect(&Picture {
@@ -155,16 +155,16 @@ fn a_picture_of_another_size_is_refused() {
             uv: None,
         })
         .unwrap_err();
-    assert!(e.contains("160x120"), "{e}");
+    assert!(e.message.contains("160x120"), "{e}");
 }
 
 #[test]
 fn settings_files_name_what_is_wrong() {
-    assert!(MotionConfig::from_json(r#"{"far_height": 30, "near_height": 90}"#).is_ok());
-    let e = MotionConfig::from_json(r#"{"far_hieght": 30}"#).unwrap_err();
-    assert!(e.contains("far_hieght"), "{e}");
-    let e = MotionConfig::from_json(r#"{"shadow_low": 0.95}"#).unwrap_err();
-    assert!(e.contains("shadow_low"), "{e}");
+    assert!(DetectorConfig::from_json(r#"{"far_height": 30, "near_height": 90}"#).is_ok());
+    let e = DetectorConfig::from_json(r#"{"far_hieght": 30}"#).unwrap_err();
+    assert!(e.message.contains("far_hieght"), "{e}");
+    let e = DetectorConfig::from_json(r#"{"shadow_low": 0.95}"#).unwrap_err();
+    assert!(e.message.contains("shadow_low"), "{e}");
 }
 
 /// Recall and precision at IoU 0.5 (greedy matching by IoU, highest first) per frame.
@@ -208,13 +208,13 @@ fn finds_most_people_in_the_simulated_plaza() {
     };
     let mut renderer = render::Renderer::new(&cfg);
     let (w, h) = (renderer.width(), renderer.height());
-    let config = MotionConfig {
+    let config = DetectorConfig {
         far_height: Some(34.0),
         near_height: Some(91.0),
-        ..MotionConfig::default()
+        ..DetectorConfig::default()
     };
     let warm_up = config.warm_up_frames as usize;
-    let mut det = MotionDetector::new(config, w, h);
+    let mut det = Detector::new(config, w, h);
     let mut found = Vec::new();
     let scene = sim::generate_with(&cfg, &mut |k, agents| {
         // The frame number drives the light's drift, as in `throughline simulate --render`.
@@ -241,17 +241,17 @@ fn finds_most_people_in_the_simulated_plaza() {
 fn class_guess_from_shape_against_the_expected_height() {
     // Expected person height: 40 px at the top row, 100 px at the bottom (row 200 of 200), so 100
     // for every box below, whose bottoms are all at y = 200. Hand-worked against the rules in
-    // `MotionDetector::guess_class`.
-    let config = MotionConfig {
+    // `Detector::guess_class`.
+    let config = DetectorConfig {
         far_height: Some(40.0),
         near_height: Some(100.0),
-        ..MotionConfig::default()
+        ..DetectorConfig::default()
     };
-    let det = MotionDetector::new(config.clone(), 320, 200);
+    let det = Detector::new(config.clone(), 320, 200);
     let at_bottom = |w: f64, h: f64| BBox::new(10.0, 200.0 - h, w, h);
     let guess = |b: BBox| {
         det.guess_class(&b)
-            .map(|c| throughline_core::motion::GUESSED_CLASSES[c as usize])
+            .map(|c| throughline_core::detect::GUESSED_CLASSES[c as usize])
     };
     assert_eq!(
         guess(at_bottom(35.0, 95.0)),
@@ -279,10 +279,10 @@ fn class_guess_from_shape_against_the_expected_height() {
         "just under half a height wide"
     );
     // Without heights, or switched off: no guess.
-    let plain = MotionDetector::new(MotionConfig::default(), 320, 200);
+    let plain = Detector::new(DetectorConfig::default(), 320, 200);
     assert_eq!(plain.guess_class(&at_bottom(150.0, 80.0)), None);
-    let off = MotionDetector::new(
-        MotionConfig {
+    let off = Detector::new(
+        DetectorConfig {
             guess_class: false,
             ..config
         },
@@ -291,7 +291,7 @@ fn class_guess_from_shape_against_the_expected_height() {
     );
     assert_eq!(off.guess_class(&at_bottom(150.0, 80.0)), None);
     // Class names in order of first appearance, as a file reader lists them.
-    let found = |b: BBox, score: f64| throughline_core::motion::Found {
+    let found = |b: BBox, score: f64| throughline_core::detect::Found {
         bbox: b,
         score,
         appearance: None,
@@ -320,11 +320,11 @@ fn appearance_is_a_colour_and_brightness_histogram_of_each_half() {
     // half colour (U below grey, V above) = 3 * 0 + 2 = bin 2, brightness 80 * 3 / 256 = 0, bin
     // 9; lower half colour (U above, V below) = 12 + 6, brightness 12 + 9. Each half sums to one,
     // then unit length: four values of 0.5.
-    let config = MotionConfig {
+    let config = DetectorConfig {
         appearance: true,
         ..quick()
     };
-    let mut det = MotionDetector::new(config, W, H);
+    let mut det = Detector::new(config, W, H);
     let mut found = Vec::new();
     for k in 0..30 {
         let mut pic = background();
@@ -344,13 +344,13 @@ fn appearance_is_a_colour_and_brightness_histogram_of_each_half() {
     assert_eq!(found.len(), 1, "{found:?}");
     let b = found[0].bbox;
     assert_eq!((b.x, b.y, b.w, b.h), (78.0, 40.0, 12.0, 32.0));
-    let mut want = [0f32; throughline_core::motion::APPEARANCE_DIM];
+    let mut want = [0f32; throughline_core::detect::APPEARANCE_DIM];
     for i in [2, 9, 18, 21] {
         want[i] = 0.5;
     }
     assert_eq!(found[0].appearance.as_deref(), Some(&want[..]));
     // Off by default: the same boxes, without a vector.
-    let mut plain = MotionDetector::new(quick(), W, H);
+    let mut plain = Detector::new(quick(), W, H);
     let pic = background();
     let still = Picture {
         width: W,
