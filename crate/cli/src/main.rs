@@ -8,7 +8,7 @@ use indicatif::{ProgressBar, ProgressStyle};
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 use throughline_core::track::files as tracks_io;
-use throughline_core::{count, detect, detections, plan, track};
+use throughline_core::{count, detect, detections, plan, report, track};
 use throughline_eval::tracking_metrics as score;
 use throughline_footage::y4m;
 use throughline_sim as sim;
@@ -730,10 +730,10 @@ fn run_count(
     write_report(&report, &out, quiet)
 }
 
-fn write_report(report: &count::Report, out: &Outputs, quiet: bool) -> Result<(), Failure> {
-    let json = count::report_json(report);
+fn write_report(report: &report::Report, out: &Outputs, quiet: bool) -> Result<(), Failure> {
+    let json = report.to_json();
     if let Some(p) = out.csv {
-        write_file(p, &count::counts_csv(report))?;
+        write_file(p, &report::counts_csv(report))?;
     }
     match out.report {
         Some(p) => write_file(p, &json)?,
@@ -752,7 +752,7 @@ fn write_report(report: &count::Report, out: &Outputs, quiet: bool) -> Result<()
         for z in &report.zones {
             eprintln!("{}: {} entries, {} exits", z.name, z.entries, z.exits);
         }
-        eprintln!("{}", count::CAUTION);
+        eprintln!("{}", report::CAUTION);
     }
     Ok(())
 }
@@ -872,9 +872,9 @@ fn run_simulate(
     )?;
     if let Some(plan) = &plan {
         let report = count::count(&sim::truth_tracks(&scene), plan, None);
-        let json = count::report_json(&report);
+        let json = report.to_json();
         write_file(&dir.join("truth_report.json"), &json)?;
-        write_file(&dir.join("truth_counts.csv"), &count::counts_csv(&report))?;
+        write_file(&dir.join("truth_counts.csv"), &report::counts_csv(&report))?;
     }
     eprintln!(
         "simulated {} frames: {} true boxes of {} agents, {} detections, written to {}",

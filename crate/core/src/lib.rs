@@ -14,6 +14,7 @@ pub mod detections;
 pub mod error;
 pub mod geometry;
 pub mod plan;
+pub mod report;
 pub mod text;
 pub mod track;
 

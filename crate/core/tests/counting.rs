@@ -1,9 +1,10 @@
 //! Counting on hand-worked tracks: each case draws a small path across a line or zone and states
 //! what a person counting by eye would write down.
 
-use throughline_core::count::{count, counts_csv, peak_hour, percentile, Report};
+use throughline_core::count::{count, peak_hour, percentile};
 use throughline_core::geometry::BBox;
 use throughline_core::plan::Plan;
+use throughline_core::report::{counts_csv, Direction, Report};
 use throughline_core::track::{Method, Track, TrackBox, TrackerConfig, Tracks};
 
 /// A track whose box bottom-centre follows `path` (frame, x, y, observed); boxes are 20x50 pixels.
@@ -72,7 +73,7 @@ fn one_crossing_downwards_is_one_forward() {
     let e = &r.events[0];
     assert_eq!(
         (e.direction, e.label.as_str(), e.class.as_str()),
-        ("forward", "south", "pedestrian")
+        (Direction::Forward, "south", "pedestrian")
     );
     // y = 150 + 4k reaches 200 at k = 12.5, between frames 13 and 14: the event is at frame 14,
     // 1.25 s after frame 1 (10 frames per second).
@@ -252,14 +253,17 @@ fn peak_hour_factor_matches_a_published_worked_example() {
     // University of Idaho NIATT traffic engineering lab manual, "Peak Hour Factor" example problem:
     // 15-minute volumes 900, 1000, 1200, 850 (5:00-6:00 p.m.) give V = 3950, V15 = 1200 and
     // PHF = 3950 / (4 x 1200) = 0.82.
-    let (start, volume, peak, phf) = peak_hour(&[900, 1000, 1200, 850], 4).unwrap();
-    assert_eq!((start, volume, peak), (0, 3950, 1200));
-    assert!((phf - 3950.0 / 4800.0).abs() < 1e-12);
-    assert_eq!((phf * 100.0).round() / 100.0, 0.82);
+    let run = peak_hour(&[900, 1000, 1200, 850], 4).unwrap();
+    assert_eq!(
+        (run.first, run.volume, run.peak_interval_volume),
+        (0, 3950, 1200)
+    );
+    assert!((run.phf - 3950.0 / 4800.0).abs() < 1e-12);
+    assert_eq!((run.phf * 100.0).round() / 100.0, 0.82);
     // The busiest four consecutive intervals are chosen (common practice: the peak hour is the four
     // consecutive 15-minute intervals with the highest total).
-    let (start, volume, _, _) = peak_hour(&[10, 900, 1000, 1200, 850, 20], 4).unwrap();
-    assert_eq!((start, volume), (1, 3950));
+    let run = peak_hour(&[10, 900, 1000, 1200, 850, 20], 4).unwrap();
+    assert_eq!((run.first, run.volume), (1, 3950));
     assert!(
         peak_hour(&[1, 2, 3], 4).is_none(),
         "less than an hour has no peak hour"

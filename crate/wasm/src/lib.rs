@@ -6,7 +6,7 @@
 use js_sys::{Float32Array, Function};
 use serde::Serialize;
 use throughline_core::track::files as tracks_io;
-use throughline_core::{count, detect, detections, plan, track};
+use throughline_core::{count, detect, detections, plan, report, track};
 use wasm_bindgen::prelude::*;
 
 mod footage;
@@ -95,7 +95,7 @@ pub struct Session {
     plan: Option<plan::Plan>,
     tracks: Option<track::Tracks>,
     /// The report of the last tracks and plan, made once when both are there.
-    report: Option<count::Report>,
+    report: Option<report::Report>,
     /// The motion detector while footage is being searched, and the boxes found so far.
     detector: Option<(detect::Detector, FoundBoxes)>,
 }
@@ -301,13 +301,13 @@ impl Session {
 
     /// Counts the last tracks with the plan; the report JSON, as `throughline run` writes it.
     pub fn report(&self) -> Result<String, JsError> {
-        Ok(count::report_json(self.ready()?))
+        Ok(self.ready()?.to_json())
     }
 
     /// The counts CSV of the last tracks and plan.
     #[wasm_bindgen(js_name = countsCsv)]
     pub fn counts_csv(&self) -> Result<String, JsError> {
-        Ok(count::counts_csv(self.ready()?))
+        Ok(report::counts_csv(self.ready()?))
     }
 
     /// The last tracks in the benchmark text format.
@@ -379,7 +379,7 @@ impl Session {
             .ok_or_else(|| js_error("run tracking first"))
     }
 
-    fn ready(&self) -> Result<&count::Report, JsError> {
+    fn ready(&self) -> Result<&report::Report, JsError> {
         self.tracks()?;
         self.report
             .as_ref()

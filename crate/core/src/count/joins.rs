@@ -1,0 +1,166 @@
+//! Stage 2: fragments joined. A track that ends, and a new track that starts within
+//! `rules.join_seconds` where the first was heading (within `rules.join_box_heights` box heights)
+//! and across or next to a screenline, are one object whose identity the tracker lost: they are
+//! joined into one counted track before counting, greedily by distance.
+
+use super::paths::{distance_to_line, Counted, PathPoint, UNCLASSIFIED};
+use crate::geometry::{Point, Segment};
+use crate::plan::Plan;
+use crate::report::Join;
+
+/// A possible join: how far the later piece started from where the earlier was heading, the two
+/// pieces (indices), and the gap in frames.
+struct Candidate {
+    distance: f64,
+    earlier: usize,
+    later: usize,
+    gap: u32,
+}
+
+/// The counted tracks after joining, sorted by their first id, and the joins made.
+pub(super) fn join_fragments(mut pieces: Vec<Counted>, plan: &Plan) -> (Vec<Counted>, Vec<Join>) {
+    let mut joins = Vec::new();
+    let rules = plan.spec.rules;
+    let max_gap = (rules.join_seconds * plan.spec.frame_rate).round() as u32;
+    let mut counted =
+        if max_gap == 0 || plan.screenlines.is_empty() || rules.join_box_heights == 0.0 {
+            pieces
+        } else {
+            pieces.sort_by_key(|c| (c.points[0].frame, c.ids[0]));
+            let candidates = candidates(&pieces, plan, max_gap);
+            let next = link(&pieces, candidates, &mut joins);
+            merge_chains(&pieces, &next)
+        };
+    counted.sort_by_key(|c| c.ids[0]);
+    (counted, joins)
+}
+
+/// Heading of a track's end: anchor velocity per frame over its last observed points.
+fn end_velocity(points: &[PathPoint]) -> (f64, f64) {
+    let observed: Vec<&PathPoint> = points.iter().filter(|p| p.observed).collect();
+    let n = observed.len();
+    if n < 2 {
+        return (0.0, 0.0);
+    }
+    let a = observed[n.saturating_sub(10)];
+    let b = observed[n - 1];
+    let df = f64::from(b.frame - a.frame).max(1.0);
+    ((b.p.x - a.p.x) / df, (b.p.y - a.p.y) / df)
+}
+
+/// Every pair of pieces that may be one object, nearest first.
+fn candidates(pieces: &[Counted], plan: &Plan, max_gap: u32) -> Vec<Candidate> {
+    let join_box_heights = plan.spec.rules.join_box_heights;
+    let mut out: Vec<Candidate> = Vec::new();
+    for (i, a) in pieces.iter().enumerate() {
+        let last = a.points[a.points.len() - 1];
+        let (vx, vy) = end_velocity(&a.points);
+        for (j, b) in pieces.iter().enumerate() {
+            let first = b.points[0];
+            if i == j || first.frame <= last.frame || first.frame - last.frame > max_gap {
+                continue;
+            }
+            if a.class != b.class && a.class != UNCLASSIFIED && b.class != UNCLASSIFIED {
+                continue;
+            }
+            let gap = f64::from(first.frame - last.frame);
+            let expected = Point::new(last.p.x + vx * gap, last.p.y + vy * gap);
+            let distance = expected.distance(&first.p);
+            let limit = join_box_heights * last.height.max(first.height);
+            if distance > limit {
+                continue;
+            }
+            let bridge = Segment::new(last.p, first.p);
+            let near_line = plan.screenlines.iter().any(|l| {
+                l.segments
+                    .iter()
+                    .any(|s| s.intersect_param(&bridge.a, &bridge.b).is_some())
+                    || distance_to_line(l, &first.p) <= limit
+            });
+            if near_line {
+                out.push(Candidate {
+                    distance,
+                    earlier: i,
+                    later: j,
+                    gap: first.frame - last.frame,
+                });
+            }
+        }
+    }
+    out.sort_by(|x, y| {
+        x.distance
+            .total_cmp(&y.distance)
+            .then((x.earlier, x.later).cmp(&(y.earlier, y.later)))
+    });
+    out
+}
+
+/// Takes candidates nearest first while each piece has at most one successor and one
+/// predecessor; returns each piece's successor, and records the joins.
+fn link(
+    pieces: &[Counted],
+    candidates: Vec<Candidate>,
+    joins: &mut Vec<Join>,
+) -> Vec<Option<usize>> {
+    let mut next: Vec<Option<usize>> = vec![None; pieces.len()];
+    let mut has_prev = vec![false; pieces.len()];
+    for c in candidates {
+        if next[c.earlier].is_none() && !has_prev[c.later] {
+            next[c.earlier] = Some(c.later);
+            has_prev[c.later] = true;
+            joins.push(Join {
+                tracks: [pieces[c.earlier].ids[0], pieces[c.later].ids[0]],
+                gap_frames: c.gap,
+            });
+        }
+    }
+    next
+}
+
+/// Follows each chain of successors from its first piece and merges it into one counted track,
+/// whose class is that of its piece seen most often.
+fn merge_chains(pieces: &[Counted], next: &[Option<usize>]) -> Vec<Counted> {
+    let mut has_prev = vec![false; pieces.len()];
+    for n in next.iter().flatten() {
+        has_prev[*n] = true;
+    }
+    let mut out = Vec::new();
+    let mut taken = vec![false; pieces.len()];
+    for start in 0..pieces.len() {
+        if has_prev[start] || taken[start] {
+            continue;
+        }
+        let mut chain = vec![start];
+        while let Some(n) = next[*chain.last().unwrap_or(&start)] {
+            if taken[n] || chain.contains(&n) {
+                break;
+            }
+            chain.push(n);
+        }
+        for &k in &chain {
+            taken[k] = true;
+        }
+        out.push(merge(pieces, &chain));
+    }
+    out
+}
+
+fn merge(pieces: &[Counted], chain: &[usize]) -> Counted {
+    let mut merged = pieces[chain[0]].clone();
+    let mut best_class = (
+        merged.points.iter().filter(|p| p.observed).count(),
+        merged.class.clone(),
+    );
+    for &k in &chain[1..] {
+        let piece = &pieces[k];
+        merged.joins.push(merged.points.len());
+        merged.points.extend_from_slice(&piece.points);
+        merged.ids.extend_from_slice(&piece.ids);
+        let seen = piece.points.iter().filter(|p| p.observed).count();
+        if seen > best_class.0 && piece.class != UNCLASSIFIED {
+            best_class = (seen, piece.class.clone());
+        }
+    }
+    merged.class = best_class.1;
+    merged
+}

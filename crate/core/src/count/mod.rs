@@ -1,0 +1,89 @@
+//! Counting: turns tracks and a plan into the numbers people hand in, each backed by a list of
+//! events. The work goes in stages, each a file, each taking the previous stage's plain data:
+//!
+//! 1. `paths`: every track as a path of anchor points (bottom-centre or centre of its box);
+//! 2. `joins`: fragments of one object, broken near a screenline, joined into one counted track;
+//! 3. `crossings` and `visits`: when and where each path crossed each screenline (with hysteresis)
+//!    and entered and left each zone;
+//! 4. tallies: `lines` (by direction, class and interval, peak hours), `zones` (entries, exits,
+//!    occupancy, dwell), `movements` (origin → destination) and `speeds` (on the calibrated
+//!    ground plane); `timeline` turns frames into times and interval labels;
+//! 5. the [`Report`], with every event sorted by time.
+//!
+//! The rules, with their reasons and limits, are in DEVELOPERS.md ("Counting rules") and
+//! docs/plan-format.md.
+
+mod crossings;
+mod joins;
+mod lines;
+mod movements;
+mod paths;
+mod speeds;
+mod stats;
+mod timeline;
+mod visits;
+mod zones;
+
+pub use paths::UNCLASSIFIED;
+pub use stats::{peak_hour, percentile, HourRun};
+
+use crate::plan::Plan;
+use crate::report::{Report, CAUTION, FORMAT, VERSION};
+use crate::track::{TrackerConfig, Tracks};
+use timeline::Timeline;
+
+/// Counts tracks against a plan. `tracker` is recorded in the report as the settings the tracks
+/// were made with.
+pub fn count(tracks: &Tracks, plan: &Plan, tracker: Option<&TrackerConfig>) -> Report {
+    let timeline = Timeline::new(tracks, plan);
+    let (counted, joins) = joins::join_fragments(paths::pieces(tracks, plan.spec.anchor), plan);
+    let mut events = Vec::new();
+    let screenlines = plan
+        .screenlines
+        .iter()
+        .map(|line| {
+            let (report, line_events) = lines::screenline(line, &counted, &timeline, &plan.spec);
+            events.extend(line_events);
+            report
+        })
+        .collect();
+    let mut zone_meetings = vec![Vec::new(); counted.len()];
+    let zones = plan
+        .zones
+        .iter()
+        .map(|zone| {
+            let tally = zones::zone(zone, &counted, &timeline, &plan.spec);
+            events.extend(tally.events);
+            for (ci, seconds) in tally.meetings {
+                zone_meetings[ci].push((seconds, zone.name.clone()));
+            }
+            tally.report
+        })
+        .collect();
+    let (movements, single) = movements::movements(&counted, zone_meetings, &events);
+    let speeds = speeds::speeds(&counted, plan);
+    events.sort_by(|a, b| {
+        a.seconds
+            .total_cmp(&b.seconds)
+            .then(a.track.cmp(&b.track))
+            .then(a.name.cmp(&b.name))
+    });
+    Report {
+        format: FORMAT.to_string(),
+        version: VERSION,
+        generator: format!("throughline {}", crate::VERSION),
+        caution: CAUTION.to_string(),
+        plan: plan.spec.clone(),
+        tracker: tracker.cloned(),
+        frame_count: timeline.frame_count,
+        duration_seconds: (timeline.duration_s * 1000.0).round() / 1000.0,
+        tracks_counted: counted.len(),
+        screenlines,
+        zones,
+        movements,
+        single_feature_tracks: single,
+        speeds,
+        joins,
+        events,
+    }
+}

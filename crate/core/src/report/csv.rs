@@ -1,0 +1,37 @@
+//! The counts CSV: one row per screenline, direction, class and interval, in the layout a manual
+//! count is written in for `throughline score-counts`.
+
+use super::Report;
+
+/// The counts CSV: `screenline,direction,class,interval_start,interval_end,count`, one row per
+/// screenline, direction, class seen on that line, and interval (zeros included).
+pub fn counts_csv(report: &Report) -> String {
+    let mut out = String::from("screenline,direction,class,interval_start,interval_end,count\n");
+    let quote = |s: &str| {
+        if s.contains([',', '"', '\n']) {
+            format!("\"{}\"", s.replace('"', "\"\""))
+        } else {
+            s.to_string()
+        }
+    };
+    for line in &report.screenlines {
+        for (forward, label) in [(true, &line.forward_label), (false, &line.backward_label)] {
+            for class in line.by_class.keys() {
+                for i in &line.intervals {
+                    let c = i.by_class.get(class).copied().unwrap_or_default();
+                    let n = if forward { c.forward } else { c.backward };
+                    out.push_str(&format!(
+                        "{},{},{},{},{},{}\n",
+                        quote(&line.name),
+                        quote(label),
+                        quote(class),
+                        i.start,
+                        i.end,
+                        n
+                    ));
+                }
+            }
+        }
+    }
+    out
+}
