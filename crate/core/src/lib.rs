@@ -13,6 +13,7 @@ pub mod detect;
 pub mod detections;
 pub mod error;
 pub mod geometry;
+pub mod pipeline;
 pub mod plan;
 pub mod report;
 pub mod text;

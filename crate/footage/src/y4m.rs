@@ -1,6 +1,9 @@
-//! The YUV4MPEG2 stream header (as ffmpeg writes with `-f yuv4mpegpipe`): picture size, frame rate
-//! and colour layout, so a reader knows how many bytes each frame holds. The bytes themselves are
-//! read by the adapter; this module only parses text.
+//! The YUV4MPEG2 stream (as ffmpeg writes with `-f yuv4mpegpipe`): its header (picture size, frame
+//! rate and colour layout, so a reader knows how many bytes each frame holds), then frames, each a
+//! `FRAME` line and the planes. [`Reader`] reads them one at a time from any `BufRead` (a file or
+//! standard input), so footage is never held whole.
+
+use std::io::{BufRead, Read};
 
 /// Colour layout of the frames.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -83,4 +86,80 @@ pub fn parse_header(line: &str) -> Result<Header, String> {
         }),
         _ => Err("the YUV4MPEG2 header lacks a valid size (W… H…, up to 16384)".into()),
     }
+}
+
+/// The longest header or `FRAME` line read: a stream without newlines is never read whole.
+const MAX_LINE: u64 = 4096;
+
+/// What [`Reader::next_frame`] found.
+#[derive(Debug, PartialEq, Eq)]
+pub enum Next<'a> {
+    /// The next frame's planes (exactly [`Header::frame_bytes`]).
+    Frame(&'a [u8]),
+    /// The stream ended after a whole frame.
+    End,
+    /// The stream ended inside a frame (ffmpeg stopped, a copy interrupted): the frames before it
+    /// are whole and can be kept.
+    CutShort,
+}
+
+/// Frames of a YUV4MPEG2 stream, one at a time.
+pub struct Reader<R: BufRead> {
+    input: R,
+    header: Header,
+    line: Vec<u8>,
+    frame: Vec<u8>,
+    frames_read: usize,
+}
+
+impl<R: BufRead> Reader<R> {
+    /// Reads the header. Errors say what to fix.
+    pub fn new(mut input: R) -> Result<Self, String> {
+        let mut line = Vec::new();
+        short_line(&mut input, &mut line).map_err(|e| e.to_string())?;
+        let text = String::from_utf8_lossy(&line);
+        let header = parse_header(text.trim_end())?;
+        Ok(Reader {
+            input,
+            frame: vec![0u8; header.frame_bytes()],
+            header,
+            line,
+            frames_read: 0,
+        })
+    }
+
+    pub fn header(&self) -> &Header {
+        &self.header
+    }
+
+    /// Frames read whole so far.
+    pub fn frames_read(&self) -> usize {
+        self.frames_read
+    }
+
+    /// The next frame. An error for a stream that cannot be read or is damaged (a frame that does
+    /// not start with `FRAME`).
+    pub fn next_frame(&mut self) -> Result<Next<'_>, String> {
+        if short_line(&mut self.input, &mut self.line).map_err(|e| e.to_string())? == 0 {
+            return Ok(Next::End);
+        }
+        let k = self.frames_read + 1;
+        if !self.line.starts_with(b"FRAME") {
+            return Err(format!(
+                "frame {k} does not start with FRAME: the stream is damaged or not YUV4MPEG2"
+            ));
+        }
+        if self.input.read_exact(&mut self.frame).is_err() {
+            return Ok(Next::CutShort);
+        }
+        self.frames_read = k;
+        Ok(Next::Frame(&self.frame))
+    }
+}
+
+/// Reads one header or FRAME line into `line` (at most [`MAX_LINE`] bytes). Returns the bytes read
+/// (0 at the end).
+fn short_line(input: &mut impl BufRead, line: &mut Vec<u8>) -> std::io::Result<usize> {
+    line.clear();
+    input.by_ref().take(MAX_LINE).read_until(b'\n', line)
 }

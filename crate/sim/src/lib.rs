@@ -9,4 +9,6 @@ pub mod render;
 pub mod rng;
 pub mod scene;
 
-pub use scene::{generate, generate_with, truth_tracks, AgentView, Scene, SceneConfig, CLASSES};
+pub use scene::{
+    generate, generate_with, truth_text, truth_tracks, AgentView, Scene, SceneConfig, CLASSES,
+};

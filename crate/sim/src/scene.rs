@@ -435,3 +435,24 @@ pub fn truth_tracks(scene: &Scene) -> throughline_core::track::Tracks {
     }
     tracks
 }
+
+/// The ground truth as benchmark text: `frame,id,x,y,w,h,1,class,1` per visible box, in frame
+/// order, with the class number 1-based (as ground-truth files of tracking benchmarks write it).
+pub fn truth_text(scene: &Scene) -> String {
+    scene
+        .truth
+        .iter()
+        .map(|r| {
+            format!(
+                "{},{},{:.2},{:.2},{:.2},{:.2},1,{},1\n",
+                r.frame,
+                r.id,
+                r.bbox.x,
+                r.bbox.y,
+                r.bbox.w,
+                r.bbox.h,
+                scene.truth_classes[(r.id - 1) as usize] + 1
+            )
+        })
+        .collect()
+}

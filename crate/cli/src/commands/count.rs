@@ -1,0 +1,81 @@
+//! `throughline count`: count existing tracks against a plan; and the report writing `run` shares.
+
+use crate::files::{bad_input, looks_like_json_object, read_file, read_plan, write_file, Failure};
+use std::path::{Path, PathBuf};
+use throughline_core::pipeline;
+use throughline_core::report::{self, Report};
+use throughline_core::track::files as tracks_io;
+
+/// Count existing tracks against a plan.
+#[derive(clap::Args)]
+pub struct Args {
+    /// Tracks: a tracks JSON document, or benchmark text (then every box counts as observed).
+    tracks: PathBuf,
+    /// Counting plan (JSON).
+    #[arg(long, value_name = "PLAN")]
+    plan: PathBuf,
+    /// Where to write the report (JSON); without it the report goes to standard output.
+    #[arg(short, long, value_name = "REPORT")]
+    output: Option<PathBuf>,
+    /// Also write the counts as CSV.
+    #[arg(long, value_name = "FILE")]
+    csv: Option<PathBuf>,
+    /// Print no summary.
+    #[arg(short, long)]
+    quiet: bool,
+}
+
+pub fn run(args: Args) -> Result<(), Failure> {
+    let plan = read_plan(&args.plan)?;
+    let path = &args.tracks;
+    let bytes = read_file(path)?;
+    let (tracks, tracker) = if looks_like_json_object(&bytes) {
+        let t = tracks_io::from_json(&bytes).map_err(|e| bad_input(path, e))?;
+        let config = t.config.clone();
+        (t, Some(config))
+    } else {
+        let boxes = tracks_io::read_benchmark_boxes(&bytes).map_err(|e| bad_input(path, e))?;
+        (tracks_io::boxes_to_tracks(&boxes), None)
+    };
+    let report = pipeline::count(&tracks, &plan, tracker.as_ref());
+    let out = Outputs {
+        report: args.output.as_deref(),
+        csv: args.csv.as_deref(),
+    };
+    write_report(&report, &out, args.quiet)
+}
+
+/// Where `run` and `count` write the report and the counts CSV.
+pub struct Outputs<'a> {
+    pub report: Option<&'a Path>,
+    pub csv: Option<&'a Path>,
+}
+
+/// Writes the report (standard output without a path) and the CSV, then a summary with the
+/// caution on standard error.
+pub fn write_report(report: &Report, out: &Outputs, quiet: bool) -> Result<(), Failure> {
+    let json = report.to_json();
+    if let Some(p) = out.csv {
+        write_file(p, &report::counts_csv(report))?;
+    }
+    match out.report {
+        Some(p) => write_file(p, &json)?,
+        None => println!("{json}"),
+    }
+    if !quiet {
+        if report.screenlines.is_empty() && report.zones.is_empty() {
+            eprintln!("note: the plan has no screenlines and no zones, so nothing was counted");
+        }
+        for l in &report.screenlines {
+            eprintln!(
+                "{}: {} {}, {} {} ({} inferred while unseen)",
+                l.name, l.forward, l.forward_label, l.backward, l.backward_label, l.inferred
+            );
+        }
+        for z in &report.zones {
+            eprintln!("{}: {} entries, {} exits", z.name, z.entries, z.exits);
+        }
+        eprintln!("{}", report::CAUTION);
+    }
+    Ok(())
+}

@@ -1,0 +1,81 @@
+//! `throughline run`: track detections (or find them in footage), then count them against a plan.
+
+use super::count::{write_report, Outputs};
+use super::detect::detect_footage;
+use super::track::{track_detections, track_file, TrackingArgs};
+use crate::files::{read_plan, read_settings, tracks_text, write_file, Failure};
+use crate::progress::Timer;
+use std::path::{Path, PathBuf};
+use throughline_core::pipeline;
+use throughline_core::plan::FOOTAGE_HYSTERESIS;
+
+/// The long help of the command (`--help`).
+pub const LONG_ABOUT: &str = "Track detections, then count them against a plan.\n\n\
+    PLAN is a JSON counting plan (docs/plan-format.md): frame rate, screenlines, zones, intervals, \
+    calibration. The report (JSON) holds counts by line, direction, class and interval, zone \
+    entries, exits and dwell, movements, speeds, and every event behind the counts. \
+    Counts are estimates: check a sample against a manual count before relying on them.";
+
+/// Track detections, then count them against a plan (screenlines, zones, intervals).
+#[derive(clap::Args)]
+pub struct Args {
+    /// Detections file (as for `track`); or give --y4m to find them in footage.
+    #[arg(required_unless_present = "y4m", conflicts_with = "y4m")]
+    detections: Option<PathBuf>,
+    /// Footage as YUV4MPEG2 (a file, or - for standard input) instead of a detections file:
+    /// moving objects are found by the built-in detector (fixed camera).
+    #[arg(long, value_name = "FILE")]
+    y4m: Option<PathBuf>,
+    /// Detector settings (JSON; see docs/detector-settings.md), with --y4m.
+    #[arg(long, value_name = "FILE", requires = "y4m")]
+    detector_config: Option<PathBuf>,
+    /// Counting plan (JSON).
+    #[arg(long, value_name = "PLAN")]
+    plan: PathBuf,
+    /// Where to write the report (JSON); without it the report goes to standard output.
+    #[arg(short, long, value_name = "REPORT")]
+    output: Option<PathBuf>,
+    /// Also write the counts as CSV (screenline,direction,class,interval_start,interval_end,count).
+    #[arg(long, value_name = "FILE")]
+    csv: Option<PathBuf>,
+    /// Also write the tracks (.txt: benchmark text; otherwise JSON).
+    #[arg(long, value_name = "FILE")]
+    tracks: Option<PathBuf>,
+    #[command(flatten)]
+    tracking: TrackingArgs,
+}
+
+pub fn run(args: Args) -> Result<(), Failure> {
+    // The plan is checked first: a mistake in it should not cost a whole tracking run.
+    let plan = read_plan(&args.plan)?;
+    let mut timer = Timer::new();
+    let how = &args.tracking;
+    let tracks = match (&args.y4m, &args.detections) {
+        (Some(footage), _) => {
+            let settings = read_settings(how.config.as_deref())?;
+            let default_margin = plan.spec.rules.hysteresis < FOOTAGE_HYSTERESIS;
+            if !how.quiet && !plan.screenlines.is_empty() && default_margin {
+                eprintln!(
+                    "note: boxes found in footage jump where people join or split near a line; \
+                     rules.hysteresis {FOOTAGE_HYSTERESIS} in the plan (zone_hysteresis {}) counts \
+                     them more steadily (docs/detector-settings.md)",
+                    throughline_core::plan::DEFAULT_HYSTERESIS
+                );
+            }
+            let dets = detect_footage(footage, args.detector_config.as_deref(), how.quiet)?;
+            track_detections(&dets, footage, how, settings, &mut timer)?
+        }
+        (None, Some(path)) => track_file(path, how, &mut timer)?,
+        // clap requires one of the two.
+        (None, None) => track_file(Path::new("-"), how, &mut timer)?,
+    };
+    if let Some(p) = &args.tracks {
+        write_file(p, &tracks_text(&tracks, Some(p)))?;
+    }
+    let report = pipeline::count(&tracks, &plan, Some(&tracks.config));
+    let out = Outputs {
+        report: args.output.as_deref(),
+        csv: args.csv.as_deref(),
+    };
+    write_report(&report, &out, how.quiet)
+}

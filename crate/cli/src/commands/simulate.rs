@@ -1,0 +1,158 @@
+//! `throughline simulate`: make a simulated scene with known truth.
+
+use crate::files::{bad_usage, read_plan, write_file, Failure};
+use indicatif::ProgressBar;
+use std::path::{Path, PathBuf};
+use throughline_core::{detections, pipeline, report};
+use throughline_sim::{self as sim, render};
+
+/// Make a simulated scene with known truth: detections and ground-truth tracks.
+#[derive(clap::Args)]
+pub struct Args {
+    /// Folder to write detections.txt, detections.csv (with embeddings if asked) and truth.txt.
+    #[arg(long, value_name = "DIR")]
+    out_dir: PathBuf,
+    #[arg(long, default_value_t = 1)]
+    seed: u64,
+    /// Length in frames.
+    #[arg(long, default_value_t = 750)]
+    frames: u32,
+    /// Mean number of agents in view.
+    #[arg(long, default_value_t = 10.0)]
+    density: f64,
+    /// Chance that a fully visible agent is missed in a frame (0..1).
+    #[arg(long, default_value_t = 0.1)]
+    miss_rate: f64,
+    /// Mean number of false detections per frame.
+    #[arg(long, default_value_t = 0.5)]
+    false_positives: f64,
+    /// Length of appearance embeddings (0 for none).
+    #[arg(long, default_value_t = 0)]
+    embedding_dim: usize,
+    /// Noise on each detection's embedding (0 = the same vector every time; 0.3 by default).
+    #[arg(long, default_value_t = 0.3)]
+    embedding_noise: f64,
+    /// Picture width in pixels (even, for rendering).
+    #[arg(long, default_value_t = 640.0)]
+    width: f64,
+    /// Picture height in pixels (even, for rendering).
+    #[arg(long, default_value_t = 360.0)]
+    height: f64,
+    /// Leave out the plinth that hides people behind it.
+    #[arg(long)]
+    no_occluder: bool,
+    /// Also render the frames, as YUV4MPEG2 (4:2:0, 25 fps) to this file (`-` for standard output).
+    #[arg(long, value_name = "FILE.y4m")]
+    render: Option<PathBuf>,
+    /// Also count the true tracks with this plan: truth_report.json and truth_counts.csv.
+    #[arg(long, value_name = "PLAN")]
+    plan: Option<PathBuf>,
+}
+
+impl Args {
+    fn scene(&self) -> Result<sim::SceneConfig, Failure> {
+        if !(0.0..=1.0).contains(&self.miss_rate) {
+            return Err(bad_usage("--miss-rate must be between 0 and 1"));
+        }
+        if !(self.density >= 0.0 && self.false_positives >= 0.0 && self.embedding_noise >= 0.0) {
+            return Err(bad_usage(
+                "--density, --false-positives and --embedding-noise must not be negative",
+            ));
+        }
+        let (w, h) = (self.width, self.height);
+        if !(w >= 32.0 && h >= 32.0 && w <= 8192.0 && h <= 8192.0) {
+            return Err(bad_usage(
+                "--width and --height must be between 32 and 8192 pixels",
+            ));
+        }
+        Ok(sim::SceneConfig {
+            seed: self.seed,
+            frames: self.frames,
+            width: w,
+            height: h,
+            density: self.density,
+            miss_rate: self.miss_rate,
+            false_positives: self.false_positives,
+            embedding_dim: self.embedding_dim,
+            embedding_noise: self.embedding_noise,
+            occluder: !self.no_occluder,
+            ..sim::SceneConfig::default()
+        })
+    }
+}
+
+pub fn run(args: Args) -> Result<(), Failure> {
+    let cfg = args.scene()?;
+    let dir = &args.out_dir;
+    let plan = args.plan.as_deref().map(read_plan).transpose()?;
+    std::fs::create_dir_all(dir).map_err(|e| Failure {
+        message: format!("{}: cannot create the folder: {e}", dir.display()),
+        code: 1,
+    })?;
+    let scene = match &args.render {
+        None => sim::generate(&cfg),
+        Some(path) => render_scene(&cfg, path)?,
+    };
+    write_file(&dir.join("truth.txt"), &sim::truth_text(&scene))?;
+    write_file(
+        &dir.join("detections.txt"),
+        &detections::to_benchmark_text(&scene.detections),
+    )?;
+    write_file(
+        &dir.join("detections.csv"),
+        &detections::to_csv(&scene.detections),
+    )?;
+    if let Some(plan) = &plan {
+        let report = pipeline::count(&sim::truth_tracks(&scene), plan, None);
+        write_file(&dir.join("truth_report.json"), &report.to_json())?;
+        write_file(&dir.join("truth_counts.csv"), &report::counts_csv(&report))?;
+    }
+    eprintln!(
+        "simulated {} frames: {} true boxes of {} agents, {} detections, written to {}",
+        cfg.frames,
+        scene.truth.len(),
+        scene.truth_classes.len(),
+        scene.detections.rows.len(),
+        dir.display()
+    );
+    Ok(())
+}
+
+/// Simulates while rendering every frame into a YUV4MPEG2 stream.
+fn render_scene(cfg: &sim::SceneConfig, path: &Path) -> Result<sim::Scene, Failure> {
+    use std::io::Write;
+    let cannot = |e: std::io::Error| Failure {
+        message: format!("{}: cannot write the frames: {e}", path.display()),
+        code: 1,
+    };
+    let sink: Box<dyn Write> = if path == Path::new("-") {
+        Box::new(std::io::stdout().lock())
+    } else {
+        Box::new(std::fs::File::create(path).map_err(cannot)?)
+    };
+    let mut out = std::io::BufWriter::new(sink);
+    let mut renderer = render::Renderer::new(cfg);
+    let header = render::y4m_header(renderer.width(), renderer.height());
+    out.write_all(header.as_bytes()).map_err(cannot)?;
+    let bar = ProgressBar::new(u64::from(cfg.frames));
+    let mut failure = None;
+    let scene = sim::generate_with(cfg, &mut |frame, agents| {
+        if failure.is_some() {
+            return;
+        }
+        let pixels = renderer.frame(frame, agents);
+        if let Err(e) = out
+            .write_all(b"FRAME\n")
+            .and_then(|()| out.write_all(&pixels))
+        {
+            failure = Some(e);
+        }
+        bar.set_position(u64::from(frame));
+    });
+    bar.finish_and_clear();
+    if let Some(e) = failure {
+        return Err(cannot(e));
+    }
+    out.flush().map_err(cannot)?;
+    Ok(scene)
+}

@@ -1,0 +1,136 @@
+//! `throughline track`: link per-frame detections into tracks.
+
+use crate::files::{bad_input, read_file, read_settings, tracks_text, write_file, Failure};
+use crate::progress::{self, Timer};
+use std::path::{Path, PathBuf};
+use throughline_core::{detections, pipeline, Detections, Method, Tracks};
+
+/// The long help of the command (`--help`).
+pub const LONG_ABOUT: &str = "Link per-frame detections into tracks.\n\n\
+    DETECTIONS may be benchmark text (frame,id,x,y,w,h,score[,class]), CSV with a header naming \
+    frame,x,y,w,h,score (class and e0,e1,… optional), or a JSON array of \
+    {image_id, category_id, bbox:[x,y,w,h], score}; the format is recognised from the content.\n\n\
+    OUT ending in .txt gets benchmark text (frame,id,x,y,w,h,score,-1,-1,-1); any other name gets \
+    the JSON tracks document (docs/tracks-format.md). Without -o the JSON goes to standard output.";
+
+/// Link per-frame detections into tracks.
+#[derive(clap::Args)]
+pub struct Args {
+    /// Detections file.
+    detections: PathBuf,
+    /// Where to write the tracks (.txt: benchmark text; otherwise JSON).
+    #[arg(short, long, value_name = "OUT")]
+    output: Option<PathBuf>,
+    #[command(flatten)]
+    tracking: TrackingArgs,
+    /// Print the time taken and the peak memory on standard error at the end.
+    #[arg(long)]
+    stats: bool,
+}
+
+/// How to track: the options `track` and `run` share.
+#[derive(clap::Args)]
+pub struct TrackingArgs {
+    /// Tracking method [default: deepsort when the detections carry embeddings, else sort].
+    #[arg(long, value_parser = super::method_parser())]
+    pub method: Option<Method>,
+    /// Settings file (JSON object of tracker settings; see docs/tracker-settings.md).
+    #[arg(long, value_name = "FILE")]
+    pub config: Option<PathBuf>,
+    /// Print no summary and no progress.
+    #[arg(short, long)]
+    pub quiet: bool,
+}
+
+pub fn run(args: Args) -> Result<(), Failure> {
+    progress::timed(args.stats, |timer| {
+        let path = &args.detections;
+        let output = args.output.as_deref();
+        let tracks = track_file(path, &args.tracking, timer)?;
+        let text = tracks_text(&tracks, output);
+        match output {
+            Some(p) => write_file(p, &text)?,
+            None => println!("{text}"),
+        }
+        timer.lap("write");
+        if !args.tracking.quiet {
+            eprintln!(
+                "{}: {} tracks with {}{}",
+                path.display(),
+                tracks.tracks.len(),
+                tracks.config.method,
+                output.map_or(String::new(), |p| format!(", written to {}", p.display()))
+            );
+        }
+        Ok(())
+    })
+}
+
+/// Reads a detections file and tracks it, reporting warnings and progress on stderr.
+pub fn track_file(path: &Path, how: &TrackingArgs, timer: &mut Timer) -> Result<Tracks, Failure> {
+    let settings = read_settings(how.config.as_deref())?;
+    let bytes = read_file(path)?;
+    let report = detections::read_detections(&bytes).map_err(|e| bad_input(path, e))?;
+    drop(bytes);
+    timer.lap("read");
+    if !how.quiet {
+        print_warnings(path, &report);
+    }
+    let tracks = track_detections(&report.detections, path, how, settings, timer)?;
+    if !how.quiet {
+        let dets = &report.detections;
+        eprintln!(
+            "{}: {} detections ({}) over {} frames",
+            path.display(),
+            dets.rows.len(),
+            report.format,
+            dets.last_frame(),
+        );
+    }
+    Ok(tracks)
+}
+
+fn print_warnings(path: &Path, report: &detections::ReadReport) {
+    for w in &report.warnings {
+        match w.line {
+            Some(l) => eprintln!("warning: {}: line {l}: {}", path.display(), w.message),
+            None => eprintln!("warning: {}: {}", path.display(), w.message),
+        }
+    }
+    if report.skipped_rows > report.warnings.len() {
+        eprintln!(
+            "warning: {} rows passed over in all ({} listed above)",
+            report.skipped_rows,
+            report.warnings.len()
+        );
+    }
+}
+
+/// Tracks detections (read from `path` or found in it), with a progress bar on stderr. A settings
+/// problem is reported against the settings file when there is one.
+pub fn track_detections(
+    dets: &Detections,
+    path: &Path,
+    how: &TrackingArgs,
+    settings: Option<(&Path, String)>,
+    timer: &mut Timer,
+) -> Result<Tracks, Failure> {
+    let config =
+        pipeline::tracker_config(dets, how.method, settings.as_ref().map(|s| s.1.as_str()))
+            .map_err(|e| match &settings {
+                Some((p, _)) => bad_input(p, e),
+                None => bad_input(path, e),
+            })?;
+    let bar = progress::bar(
+        how.quiet,
+        u64::from(dets.last_frame()),
+        "tracking {bar:30} {pos}/{len} frames ({per_sec}, {eta} left)",
+    );
+    let tracks = pipeline::track(dets, &config, &mut |done, _| {
+        bar.set_position(u64::from(done))
+    })
+    .map_err(|e| bad_input(path, e))?;
+    bar.finish_and_clear();
+    timer.lap("track");
+    Ok(tracks)
+}

@@ -1,0 +1,82 @@
+//! Files for the commands: reading inputs and writing outputs, and the one kind of failure a
+//! command returns (a message naming the file, and the exit code).
+
+use std::path::Path;
+use throughline_core::plan;
+use throughline_core::track::{files as tracks_io, Tracks};
+
+/// An error for the user: what went wrong, in which file, and the exit code (1 bad input, 2 bad
+/// usage).
+pub struct Failure {
+    pub message: String,
+    pub code: u8,
+}
+
+/// Bad input in `path`: exit code 1.
+pub fn bad_input(path: &Path, e: impl std::fmt::Display) -> Failure {
+    Failure {
+        message: format!("{}: {e}", path.display()),
+        code: 1,
+    }
+}
+
+/// Bad usage (a command-line value out of range): exit code 2.
+pub fn bad_usage(message: &str) -> Failure {
+    Failure {
+        message: message.to_string(),
+        code: 2,
+    }
+}
+
+pub fn read_file(path: &Path) -> Result<Vec<u8>, Failure> {
+    std::fs::read(path).map_err(|e| bad_input(path, format!("cannot read the file: {e}")))
+}
+
+pub fn write_file(path: &Path, text: &str) -> Result<(), Failure> {
+    std::fs::write(path, text).map_err(|e| Failure {
+        message: format!("{}: cannot write the file: {e}", path.display()),
+        code: 1,
+    })
+}
+
+/// How to name an input in messages: `-` is standard input.
+pub fn name(path: &Path) -> String {
+    if path == Path::new("-") {
+        "standard input".into()
+    } else {
+        path.display().to_string()
+    }
+}
+
+/// A settings file's path and text, when one was given.
+pub fn read_settings(path: Option<&Path>) -> Result<Option<(&Path, String)>, Failure> {
+    match path {
+        Some(p) => {
+            let bytes = read_file(p)?;
+            Ok(Some((p, String::from_utf8_lossy(&bytes).into_owned())))
+        }
+        None => Ok(None),
+    }
+}
+
+pub fn read_plan(path: &Path) -> Result<plan::Plan, Failure> {
+    let bytes = read_file(path)?;
+    let text =
+        std::str::from_utf8(&bytes).map_err(|_| bad_input(path, "the plan is not UTF-8 text"))?;
+    plan::Plan::from_json(text).map_err(|e| bad_input(path, e))
+}
+
+/// Whether a file's first non-blank byte opens a JSON object (a tracks document or a report).
+pub fn looks_like_json_object(bytes: &[u8]) -> bool {
+    bytes.iter().find(|b| !b.is_ascii_whitespace()) == Some(&b'{')
+}
+
+/// Tracks as benchmark text for a `.txt` path, otherwise as the JSON document.
+pub fn tracks_text(tracks: &Tracks, path: Option<&Path>) -> String {
+    match path {
+        Some(p) if p.extension().is_some_and(|e| e.eq_ignore_ascii_case("txt")) => {
+            tracks_io::to_benchmark_text(tracks)
+        }
+        _ => tracks_io::to_json(tracks),
+    }
+}
