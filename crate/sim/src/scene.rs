@@ -269,126 +269,206 @@ pub fn generate(cfg: &SceneConfig) -> Scene {
 
 /// Generates a scene, handing every frame's agents (far to near) to `on_frame`, for rendering.
 pub fn generate_with(cfg: &SceneConfig, on_frame: &mut dyn FnMut(u32, &[AgentView])) -> Scene {
-    let occluder = cfg.occluder_box();
-    let mut rng = Rng::new(cfg.seed);
-    let mut agents: Vec<Agent> = Vec::new();
-    let mut next_id = 1i64;
-    let mut truth = Vec::new();
-    let mut truth_classes = Vec::new();
-    let mut det = Detections {
-        classes: CLASSES.iter().map(|s| s.to_string()).collect(),
-        embedding_dim: cfg.embedding_dim,
-        ..Detections::default()
-    };
+    let mut sim = Simulation::new(cfg);
     // Arrivals make up for the shortfall against the wanted density, so the number of agents in view
     // holds steady however long they take to cross; the warm-up fills the scene before frame 1.
     let warm_up = 400;
-    let mut next_truth_id = 1i64;
     for step in 0..(warm_up + cfg.frames) {
-        let mut births = (cfg.density - agents.len() as f64).max(0.0) / 25.0;
-        while births > 0.0 {
-            if rng.chance(births.min(1.0)) {
-                spawn(&mut rng, cfg, &mut next_id, &mut agents, cfg.embedding_dim);
-            }
-            births -= 1.0;
-        }
-        for a in &mut agents {
-            step_agent(a, &mut rng, occluder);
-        }
-        agents.retain(|a| {
-            let b = a.bbox(cfg);
-            let near = b.x + b.w > -40.0 && b.x < cfg.width + 40.0 && b.y < cfg.height + 80.0;
-            let arrived = (a.x - a.target.0).hypot(a.y - a.target.1) < 2.0 * a.speed + 2.0;
-            near && !arrived && b.y + b.h > cfg.height * 0.1
-        });
+        sim.arrivals();
+        sim.move_agents();
         if step < warm_up {
             continue;
         }
         let frame = step - warm_up + 1;
         // Nearer agents (lower in the picture) hide farther ones.
-        let mut order: Vec<usize> = (0..agents.len()).collect();
-        order.sort_by(|&i, &j| agents[j].y.total_cmp(&agents[i].y));
-        let boxes: Vec<Option<BBox>> = agents.iter().map(|a| visible(&a.bbox(cfg), cfg)).collect();
+        let mut order: Vec<usize> = (0..sim.agents.len()).collect();
+        order.sort_by(|&i, &j| sim.agents[j].y.total_cmp(&sim.agents[i].y));
+        let boxes: Vec<Option<BBox>> = sim
+            .agents
+            .iter()
+            .map(|a| visible(&a.bbox(cfg), cfg))
+            .collect();
         for (rank, &i) in order.iter().enumerate() {
-            let a = &agents[i];
-            let Some(b) = boxes[i] else { continue };
-            let full = a.bbox(cfg);
-            if b.area() < 0.3 * full.area() {
-                continue;
-            }
-            // Ids are renumbered densely in order of first appearance in view.
-            let id = match a.truth_id {
-                Some(id) => id,
-                None => {
-                    let id = next_truth_id;
-                    next_truth_id += 1;
-                    truth_classes.push(a.class);
-                    agents[i].truth_id = Some(id);
-                    id
-                }
-            };
-            let a = &agents[i];
-            truth.push(IdBox { frame, id, bbox: b });
-            let hidden: f64 = order[..rank]
-                .iter()
-                .filter_map(|&j| boxes[j])
-                .map(|o| o.intersection(&b))
-                .sum::<f64>()
-                / b.area();
-            // The plinth hides whoever stands behind it (farther up the picture than its base).
-            let behind = occluder
-                .filter(|o| a.y < o.bbox.y + o.bbox.h)
-                .map_or(0.0, |o| o.bbox.intersection(&b) / b.area());
-            let hidden = hidden + behind;
-            let occlusion = hidden.min(1.0);
-            let p_miss = (cfg.miss_rate + 0.8 * occlusion.powf(1.5)).min(1.0);
-            if rng.chance(p_miss) {
-                continue;
-            }
-            let j = cfg.jitter * b.h;
-            let nb = BBox::new(
-                b.x + j * rng.normal(),
-                b.y + j * rng.normal(),
-                (b.w + j * rng.normal()).max(2.0),
-                (b.h + j * rng.normal()).max(2.0),
-            );
-            let score = (0.88 - 0.55 * occlusion + 0.08 * rng.normal()).clamp(0.05, 0.99);
-            let class = if rng.chance(0.04) {
-                ((a.class as usize + 1 + rng.below(2)) % CLASSES.len()) as u16
-            } else {
-                a.class
-            };
-            let embedding = (cfg.embedding_dim > 0).then(|| {
-                let index = (det.embeddings.len() / cfg.embedding_dim) as u32;
-                let noise = cfg.embedding_noise / (cfg.embedding_dim as f64).sqrt();
-                for &v in &a.appearance {
-                    det.embeddings.push(
-                        (v / (cfg.embedding_dim as f64).sqrt() + noise * rng.normal()) as f32,
-                    );
-                }
-                index
-            });
-            det.rows.push(Detection {
-                frame,
-                bbox: nb,
-                score,
-                class: Some(class),
-                embedding,
-            });
+            sim.observe(frame, i, &order[..rank], &boxes);
         }
-        let mut views = Vec::with_capacity(agents.len());
+        on_frame(frame, &sim.views(&order, &boxes));
+        sim.false_positives(frame);
+    }
+    Scene {
+        truth: sim.truth,
+        truth_classes: sim.truth_classes,
+        detections: sim.det,
+    }
+}
+
+/// A scene while it is being generated: the agents, the random generator, and the truth and
+/// detections so far.
+struct Simulation<'a> {
+    cfg: &'a SceneConfig,
+    occluder: Option<Occluder>,
+    rng: Rng,
+    agents: Vec<Agent>,
+    next_id: i64,
+    next_truth_id: i64,
+    truth: Vec<IdBox>,
+    truth_classes: Vec<u16>,
+    det: Detections,
+}
+
+impl<'a> Simulation<'a> {
+    fn new(cfg: &'a SceneConfig) -> Self {
+        Simulation {
+            cfg,
+            occluder: cfg.occluder_box(),
+            rng: Rng::new(cfg.seed),
+            agents: Vec::new(),
+            next_id: 1,
+            next_truth_id: 1,
+            truth: Vec::new(),
+            truth_classes: Vec::new(),
+            det: Detections {
+                classes: CLASSES.iter().map(|s| s.to_string()).collect(),
+                embedding_dim: cfg.embedding_dim,
+                ..Detections::default()
+            },
+        }
+    }
+
+    /// New agents at the edges, as many as the density is short of, over about a second.
+    fn arrivals(&mut self) {
+        let cfg = self.cfg;
+        let mut births = (cfg.density - self.agents.len() as f64).max(0.0) / 25.0;
+        while births > 0.0 {
+            if self.rng.chance(births.min(1.0)) {
+                spawn(
+                    &mut self.rng,
+                    cfg,
+                    &mut self.next_id,
+                    &mut self.agents,
+                    cfg.embedding_dim,
+                );
+            }
+            births -= 1.0;
+        }
+    }
+
+    /// Every agent one step on; those that arrived or left the picture are gone.
+    fn move_agents(&mut self) {
+        let cfg = self.cfg;
+        for a in &mut self.agents {
+            step_agent(a, &mut self.rng, self.occluder);
+        }
+        self.agents.retain(|a| {
+            let b = a.bbox(cfg);
+            let near = b.x + b.w > -40.0 && b.x < cfg.width + 40.0 && b.y < cfg.height + 80.0;
+            let arrived = (a.x - a.target.0).hypot(a.y - a.target.1) < 2.0 * a.speed + 2.0;
+            near && !arrived && b.y + b.h > cfg.height * 0.1
+        });
+    }
+
+    /// Agent `i`'s true box in this frame and, unless the detector model misses it, its
+    /// detection. `nearer` are the agents in front of it; `boxes` every agent's visible box.
+    fn observe(&mut self, frame: u32, i: usize, nearer: &[usize], boxes: &[Option<BBox>]) {
+        let Some(b) = boxes[i] else { return };
+        let full = self.agents[i].bbox(self.cfg);
+        if b.area() < 0.3 * full.area() {
+            return;
+        }
+        let id = self.truth_id(i);
+        self.truth.push(IdBox { frame, id, bbox: b });
+        let hidden: f64 = nearer
+            .iter()
+            .filter_map(|&j| boxes[j])
+            .map(|o| o.intersection(&b))
+            .sum::<f64>()
+            / b.area();
+        // The plinth hides whoever stands behind it (farther up the picture than its base).
+        let a_y = self.agents[i].y;
+        let behind = self
+            .occluder
+            .filter(|o| a_y < o.bbox.y + o.bbox.h)
+            .map_or(0.0, |o| o.bbox.intersection(&b) / b.area());
+        let occlusion = (hidden + behind).min(1.0);
+        let p_miss = (self.cfg.miss_rate + 0.8 * occlusion.powf(1.5)).min(1.0);
+        if self.rng.chance(p_miss) {
+            return;
+        }
+        self.detect(frame, i, b, occlusion);
+    }
+
+    /// The dense ground-truth id of agent `i`, given in order of first appearance in view.
+    fn truth_id(&mut self, i: usize) -> i64 {
+        if let Some(id) = self.agents[i].truth_id {
+            return id;
+        }
+        let id = self.next_truth_id;
+        self.next_truth_id += 1;
+        self.truth_classes.push(self.agents[i].class);
+        self.agents[i].truth_id = Some(id);
+        id
+    }
+
+    /// The detector model's box for agent `i`: jitter, a score that falls with occlusion, now
+    /// and then the wrong class, and the agent's appearance vector with noise.
+    fn detect(&mut self, frame: u32, i: usize, b: BBox, occlusion: f64) {
+        let cfg = self.cfg;
+        let rng = &mut self.rng;
+        let a = &self.agents[i];
+        let j = cfg.jitter * b.h;
+        let nb = BBox::new(
+            b.x + j * rng.normal(),
+            b.y + j * rng.normal(),
+            (b.w + j * rng.normal()).max(2.0),
+            (b.h + j * rng.normal()).max(2.0),
+        );
+        let score = (0.88 - 0.55 * occlusion + 0.08 * rng.normal()).clamp(0.05, 0.99);
+        let class = if rng.chance(0.04) {
+            ((a.class as usize + 1 + rng.below(2)) % CLASSES.len()) as u16
+        } else {
+            a.class
+        };
+        let det = &mut self.det;
+        let embedding = (cfg.embedding_dim > 0).then(|| {
+            let index = (det.embeddings.len() / cfg.embedding_dim) as u32;
+            let noise = cfg.embedding_noise / (cfg.embedding_dim as f64).sqrt();
+            for &v in &a.appearance {
+                det.embeddings
+                    .push((v / (cfg.embedding_dim as f64).sqrt() + noise * rng.normal()) as f32);
+            }
+            index
+        });
+        det.rows.push(Detection {
+            frame,
+            bbox: nb,
+            score,
+            class: Some(class),
+            embedding,
+        });
+    }
+
+    /// What the renderer draws of this frame: the agents in view, far to near.
+    fn views(&self, order: &[usize], boxes: &[Option<BBox>]) -> Vec<AgentView> {
+        let mut views = Vec::with_capacity(self.agents.len());
         for &i in order.iter().rev() {
-            let a = &agents[i];
+            let a = &self.agents[i];
             if boxes[i].is_some() {
                 views.push(AgentView {
                     id: a.truth_id.unwrap_or(0),
                     class: a.class,
-                    bbox: a.bbox(cfg),
+                    bbox: a.bbox(self.cfg),
                     colour: colour_of(a.id),
                 });
             }
         }
-        on_frame(frame, &views);
+        views
+    }
+
+    /// Boxes where nothing is, `false_positives` a frame on average, with random scores and
+    /// classes.
+    fn false_positives(&mut self, frame: u32) {
+        let cfg = self.cfg;
+        let rng = &mut self.rng;
+        let det = &mut self.det;
         let mut fp = cfg.false_positives;
         while fp > 0.0 {
             if rng.chance(fp.min(1.0)) {
@@ -413,11 +493,6 @@ pub fn generate_with(cfg: &SceneConfig, on_frame: &mut dyn FnMut(u32, &[AgentVie
             }
             fp -= 1.0;
         }
-    }
-    Scene {
-        truth,
-        truth_classes,
-        detections: det,
     }
 }
 

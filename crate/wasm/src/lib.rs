@@ -6,7 +6,7 @@
 use js_sys::{Float32Array, Function};
 use serde::Serialize;
 use throughline_core::track::files as tracks_io;
-use throughline_core::{count, detect, detections, plan, report, track};
+use throughline_core::{detect, detections, pipeline, plan, report, track, Method};
 use wasm_bindgen::prelude::*;
 
 mod footage;
@@ -279,20 +279,18 @@ impl Session {
             .ok_or_else(|| js_error("open a detections file first"))?;
         let method = match method {
             "" => None,
-            m => Some(
-                track::Method::parse(m).ok_or_else(|| js_error(format!("unknown method `{m}`")))?,
-            ),
+            m => Some(Method::parse(m).ok_or_else(|| js_error(format!("unknown method `{m}`")))?),
         };
         let settings = (!settings.trim().is_empty()).then_some(settings);
-        let config = track::resolve_config(method, settings, report.detections.embedding_dim > 0)
-            .map_err(js_error)?;
+        let config =
+            pipeline::tracker_config(&report.detections, method, settings).map_err(js_error)?;
         let mut on_progress = |done: u32, total: u32| {
             if let Some(f) = &progress {
                 let _ = f.call2(&JsValue::NULL, &JsValue::from(done), &JsValue::from(total));
             }
         };
         let tracks =
-            track::run_tracker(&report.detections, &config, &mut on_progress).map_err(js_error)?;
+            pipeline::track(&report.detections, &config, &mut on_progress).map_err(js_error)?;
         let n = tracks.tracks.len() as u32;
         self.tracks = Some(tracks);
         self.recount();
@@ -368,7 +366,7 @@ impl Session {
     /// Counts again when the tracks or the plan changed and both are there.
     fn recount(&mut self) {
         self.report = match (&self.tracks, &self.plan) {
-            (Some(tracks), Some(plan)) => Some(count::count(tracks, plan, Some(&tracks.config))),
+            (Some(tracks), Some(plan)) => Some(pipeline::count(tracks, plan, Some(&tracks.config))),
             _ => None,
         };
     }
