@@ -161,7 +161,6 @@ struct Clear {
 /// still passes the threshold; an ID switch is a match to another tracker id than the one the ground
 /// truth object was last matched to, at any earlier frame.
 fn clear(frames: &[Frame], n_gt: usize, _n_tr: usize) -> Clear {
-    let threshold = 0.5;
     let (mut tp, mut fp, mut fn_, mut idsw) = (0u64, 0u64, 0u64, 0u64);
     let mut motp_sum = 0.0;
     let mut prev_id: Vec<Option<usize>> = vec![None; n_gt];
@@ -181,20 +180,7 @@ fn clear(frames: &[Frame], n_gt: usize, _n_tr: usize) -> Clear {
             }
             continue;
         }
-        let score = CostMatrix::from_fn(f.gt.len(), f.tr.len(), |r, c| {
-            let sim = f.iou.get(r, c);
-            if sim < threshold - EPS {
-                0.0
-            } else if prev_step[f.gt[r]] == Some(f.tr[c]) {
-                1000.0 + sim
-            } else {
-                sim
-            }
-        });
-        let pairs: Vec<(usize, usize)> = maximise(&score)
-            .into_iter()
-            .filter(|&(r, c)| score.get(r, c) > EPS)
-            .collect();
+        let pairs = clear_matches(f, &prev_step);
         for &(r, c) in &pairs {
             let (g, t) = (f.gt[r], f.tr[c]);
             if prev_id[g].is_some_and(|p| p != t) {
@@ -223,19 +209,7 @@ fn clear(frames: &[Frame], n_gt: usize, _n_tr: usize) -> Clear {
         fn_ += f.gt.len() as u64 - m;
         fp += f.tr.len() as u64 - m;
     }
-    let mut mt = 0;
-    let mut pt = 0;
-    for g in 0..n_gt {
-        if gt_count[g] == 0 {
-            continue;
-        }
-        let ratio = matched_count[g] as f64 / gt_count[g] as f64;
-        if ratio > 0.8 {
-            mt += 1;
-        } else if ratio >= 0.2 {
-            pt += 1;
-        }
-    }
+    let (mt, pt) = coverage(&gt_count, &matched_count);
     let frag = frag_count.iter().filter(|&&c| c > 0).map(|c| c - 1).sum();
     Clear {
         mota: (tp as f64 - fp as f64 - idsw as f64) / ((tp + fn_) as f64).max(1.0),
@@ -249,6 +223,43 @@ fn clear(frames: &[Frame], n_gt: usize, _n_tr: usize) -> Clear {
         pt,
         ml: n_gt as u64 - mt - pt,
     }
+}
+
+/// One frame's CLEAR matches at IoU 0.5, keeping last frame's pairs where they still pass
+/// (`prev_step[g]`: the tracker id ground-truth object `g` was matched to in the previous frame).
+fn clear_matches(f: &Frame, prev_step: &[Option<usize>]) -> Vec<(usize, usize)> {
+    let threshold = 0.5;
+    let score = CostMatrix::from_fn(f.gt.len(), f.tr.len(), |r, c| {
+        let sim = f.iou.get(r, c);
+        if sim < threshold - EPS {
+            0.0
+        } else if prev_step[f.gt[r]] == Some(f.tr[c]) {
+            1000.0 + sim
+        } else {
+            sim
+        }
+    });
+    maximise(&score)
+        .into_iter()
+        .filter(|&(r, c)| score.get(r, c) > EPS)
+        .collect()
+}
+
+/// Mostly tracked (matched in over 80% of its frames) and partly tracked (20% or more) objects.
+fn coverage(gt_count: &[u64], matched_count: &[u64]) -> (u64, u64) {
+    let (mut mt, mut pt) = (0, 0);
+    for (&n, &m) in gt_count.iter().zip(matched_count) {
+        if n == 0 {
+            continue;
+        }
+        let ratio = m as f64 / n as f64;
+        if ratio > 0.8 {
+            mt += 1;
+        } else if ratio >= 0.2 {
+            pt += 1;
+        }
+    }
+    (mt, pt)
 }
 
 /// IDF1, IDP, IDR: the one-to-one matching of ground-truth ids to tracker ids that maximises the
@@ -280,9 +291,9 @@ fn identity(frames: &[Frame], n_gt: usize, n_tr: usize) -> (f64, f64, f64) {
     (idf1, idp, idr)
 }
 
-/// HOTA, DetA, AssA, LocA, each averaged over the 19 localisation thresholds α.
-fn hota(frames: &[Frame], n_gt: usize, n_tr: usize) -> (f64, f64, f64, f64) {
-    let alphas: Vec<f64> = (1..=19).map(|k| k as f64 * 0.05).collect();
+/// HOTA's global alignment of each ground-truth id with each tracker id (the soft IoU of their
+/// whole tracks), and how many frames each id is in.
+fn alignment(frames: &[Frame], n_gt: usize, n_tr: usize) -> (CostMatrix, Vec<f64>, Vec<f64>) {
     let mut potential = CostMatrix::filled(n_gt, n_tr, 0.0);
     let mut gt_count = vec![0.0; n_gt];
     let mut tr_count = vec![0.0; n_tr];
@@ -322,6 +333,13 @@ fn hota(frames: &[Frame], n_gt: usize, n_tr: usize) -> (f64, f64, f64, f64) {
             0.0
         }
     });
+    (alignment, gt_count, tr_count)
+}
+
+/// HOTA, DetA, AssA, LocA, each averaged over the 19 localisation thresholds α.
+fn hota(frames: &[Frame], n_gt: usize, n_tr: usize) -> (f64, f64, f64, f64) {
+    let alphas: Vec<f64> = (1..=19).map(|k| k as f64 * 0.05).collect();
+    let (alignment, gt_count, tr_count) = alignment(frames, n_gt, n_tr);
     let na = alphas.len();
     let (mut tp, mut fn_, mut fp, mut loc) =
         (vec![0.0; na], vec![0.0; na], vec![0.0; na], vec![0.0; na]);

@@ -5,6 +5,8 @@
 //! Both are deterministic for a seed ([`rng`]). The simulator is for trying settings, for tests and
 //! for the bundled demo; it is not part of counting.
 
+mod agents;
+mod config;
 pub mod render;
 pub mod rng;
 pub mod scene;

@@ -7,8 +7,9 @@
 //! drift of the light and sensor noise. Pixels: x right, y down; the frame is `width × height`, both
 //! even.
 
+use crate::config::SceneConfig;
 use crate::rng::Rng;
-use crate::scene::{AgentView, SceneConfig};
+use crate::scene::AgentView;
 use throughline_core::geometry::BBox;
 
 /// Draws frames of one scene.

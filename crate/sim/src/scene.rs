@@ -8,59 +8,12 @@
 //! class confusions and optional appearance embeddings of settable quality. Everything is
 //! deterministic for a seed. Boxes are pixels, top-left x/y + width/height; frames are 1-based.
 
+use crate::agents::{colour_of, spawn, step_agent, Agent};
+pub use crate::config::{Occluder, SceneConfig, CLASSES, FRAME_RATE};
 use crate::rng::Rng;
 use throughline_core::detections::{Detection, Detections};
 use throughline_core::geometry::BBox;
 use throughline_core::track::files::IdBox;
-
-/// The classes of the scene, in the order of their class index.
-pub const CLASSES: [&str; 3] = ["pedestrian", "cyclist", "cart"];
-
-/// Settings of a simulated scene.
-#[derive(Debug, Clone, PartialEq)]
-pub struct SceneConfig {
-    pub seed: u64,
-    pub frames: u32,
-    pub width: f64,
-    pub height: f64,
-    /// Mean number of agents in view.
-    pub density: f64,
-    /// Chance that a fully visible agent is missed in a frame.
-    pub miss_rate: f64,
-    /// Mean number of false detections per frame.
-    pub false_positives: f64,
-    /// Standard deviation of box corner noise, as a fraction of the box height.
-    pub jitter: f64,
-    /// Length of appearance vectors; 0 for none.
-    pub embedding_dim: usize,
-    /// Noise added to an agent's appearance vector in each detection (0 = perfect re-identification).
-    pub embedding_noise: f64,
-    /// Whether the plaza has its sculpture plinth, a static occluder that hides people behind it.
-    pub occluder: bool,
-}
-
-/// Frames per second of simulated footage (speeds are set per frame for this rate).
-pub const FRAME_RATE: f64 = 25.0;
-
-/// The static occluder of the plaza, in pixels: a plinth whose base stands at `base_y`.
-#[derive(Debug, Clone, Copy, PartialEq)]
-pub struct Occluder {
-    pub bbox: BBox,
-}
-
-impl SceneConfig {
-    /// The occluder of this scene, if it has one.
-    pub fn occluder_box(&self) -> Option<Occluder> {
-        self.occluder.then(|| Occluder {
-            bbox: BBox::new(
-                self.width * 0.60,
-                self.height * 0.30,
-                self.width * 0.09,
-                self.height * 0.28,
-            ),
-        })
-    }
-}
 
 /// What the renderer needs of an agent in one frame.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -75,42 +28,6 @@ pub struct AgentView {
     pub colour: [f64; 3],
 }
 
-/// A colour from a small palette of clothing and paint, chosen by the agent's id.
-fn colour_of(id: i64) -> [f64; 3] {
-    const PALETTE: [[f64; 3]; 10] = [
-        [180.0, 40.0, 40.0],
-        [40.0, 70.0, 150.0],
-        [60.0, 120.0, 60.0],
-        [200.0, 170.0, 60.0],
-        [90.0, 90.0, 95.0],
-        [230.0, 230.0, 225.0],
-        [30.0, 30.0, 35.0],
-        [150.0, 90.0, 160.0],
-        [210.0, 110.0, 40.0],
-        [70.0, 150.0, 170.0],
-    ];
-    let h = (id as u64).wrapping_mul(0x9E37_79B9_7F4A_7C15) >> 60;
-    PALETTE[(h % 10) as usize]
-}
-
-impl Default for SceneConfig {
-    fn default() -> Self {
-        Self {
-            seed: 1,
-            frames: 750,
-            width: 640.0,
-            height: 360.0,
-            density: 10.0,
-            miss_rate: 0.1,
-            false_positives: 0.5,
-            jitter: 0.04,
-            embedding_dim: 0,
-            embedding_noise: 0.3,
-            occluder: true,
-        }
-    }
-}
-
 /// A generated scene: ground truth and what the detector saw.
 #[derive(Debug, Clone)]
 pub struct Scene {
@@ -118,140 +35,6 @@ pub struct Scene {
     /// Class index (into [`CLASSES`]) of each true agent id, 1-based ids: `truth_classes[id - 1]`.
     pub truth_classes: Vec<u16>,
     pub detections: Detections,
-}
-
-#[derive(Debug, Clone)]
-struct Agent {
-    id: i64,
-    /// Dense ground-truth id, given when the agent first comes into view.
-    truth_id: Option<i64>,
-    class: u16,
-    /// Ground point (bottom-centre of the box), pixels.
-    x: f64,
-    y: f64,
-    heading: f64,
-    speed: f64,
-    target: (f64, f64),
-    stop_frames: u32,
-    appearance: Vec<f64>,
-}
-
-impl Agent {
-    fn bbox(&self, cfg: &SceneConfig) -> BBox {
-        // Perspective: height grows linearly from the top of the picture to the bottom.
-        let depth = 0.35 + 0.65 * (self.y / cfg.height).clamp(0.0, 1.2);
-        let (h, aspect) = match self.class {
-            0 => (0.26, 0.38),
-            1 => (0.28, 0.62),
-            _ => (0.22, 1.5),
-        };
-        let h = h * cfg.height * depth;
-        let w = h * aspect;
-        BBox::new(self.x - w / 2.0, self.y - h, w, h)
-    }
-}
-
-fn edge_point(rng: &mut Rng, cfg: &SceneConfig, edge: usize) -> (f64, f64) {
-    let (w, h) = (cfg.width, cfg.height);
-    match edge {
-        0 => (rng.range(0.1, 0.9) * w, h * 0.18),
-        1 => (w + 10.0, rng.range(0.25, 0.95) * h),
-        2 => (rng.range(0.1, 0.9) * w, h + 40.0),
-        _ => (-10.0, rng.range(0.25, 0.95) * h),
-    }
-}
-
-fn spawn(rng: &mut Rng, cfg: &SceneConfig, next_id: &mut i64, agents: &mut Vec<Agent>, dim: usize) {
-    let class = match rng.uniform() {
-        u if u < 0.8 => 0,
-        u if u < 0.96 => 1,
-        _ => 2,
-    };
-    let from = rng.below(4);
-    let to = (from + 1 + rng.below(3)) % 4;
-    let start = edge_point(rng, cfg, from);
-    let target = edge_point(rng, cfg, to);
-    let base_speed = match class {
-        0 => rng.range(0.9, 1.6),
-        1 => rng.range(2.5, 4.0),
-        _ => rng.range(1.5, 2.2),
-    } * cfg.height
-        / 360.0;
-    let mut make = |x: f64, y: f64, rng: &mut Rng| {
-        let appearance: Vec<f64> = (0..dim).map(|_| rng.normal()).collect();
-        let a = Agent {
-            id: *next_id,
-            truth_id: None,
-            class,
-            x,
-            y,
-            heading: (target.1 - y).atan2(target.0 - x),
-            speed: base_speed,
-            target,
-            stop_frames: 0,
-            appearance,
-        };
-        *next_id += 1;
-        a
-    };
-    let first = make(start.0, start.1, rng);
-    let pair = class == 0 && rng.chance(0.25);
-    let heading = first.heading;
-    agents.push(first);
-    if pair {
-        // A companion walking side by side, offset across the direction of walking.
-        let off = cfg.height * 0.05;
-        let (px, py) = (-heading.sin() * off, heading.cos() * off);
-        let mut companion = make(start.0 + px, start.1 + py, rng);
-        companion.target = (target.0 + px, target.1 + py);
-        agents.push(companion);
-    }
-}
-
-fn step_agent(a: &mut Agent, rng: &mut Rng, occluder: Option<Occluder>) {
-    if a.stop_frames > 0 {
-        a.stop_frames -= 1;
-        return;
-    }
-    if a.class == 0 && rng.chance(0.002) {
-        a.stop_frames = 10 + rng.below(40) as u32;
-    }
-    let want = (a.target.1 - a.y).atan2(a.target.0 - a.x);
-    let mut turn = want - a.heading;
-    while turn > std::f64::consts::PI {
-        turn -= 2.0 * std::f64::consts::PI;
-    }
-    while turn < -std::f64::consts::PI {
-        turn += 2.0 * std::f64::consts::PI;
-    }
-    let distance = (a.target.0 - a.x).hypot(a.target.1 - a.y);
-    if distance < 25.0 * a.speed {
-        // Close to the exit: head straight for it, or the slow turning would circle around it.
-        a.heading = want;
-    } else {
-        a.heading += 0.05 * turn + 0.02 * rng.normal();
-    }
-    a.speed *= 1.0 + 0.01 * rng.normal();
-    // Perspective also slows apparent motion far away.
-    let depth = 0.35 + 0.65 * (a.y / 360.0_f64.max(a.target.1.abs())).clamp(0.0, 1.0);
-    let (nx, ny) = (
-        a.x + a.heading.cos() * a.speed * depth,
-        a.y + a.heading.sin() * a.speed * depth,
-    );
-    // Nobody walks through the plinth: on reaching its footprint, step sideways around it.
-    if let Some(o) = occluder {
-        let b = o.bbox;
-        let base = b.y + b.h;
-        let inside =
-            nx > b.x - 4.0 && nx < b.x + b.w + 4.0 && ny > base - b.h * 0.25 && ny < base + 2.0;
-        if inside {
-            let left = (nx - b.x).abs() < (nx - b.x - b.w).abs();
-            a.x += if left { -a.speed } else { a.speed };
-            return;
-        }
-    }
-    a.x = nx;
-    a.y = ny;
 }
 
 fn visible(b: &BBox, cfg: &SceneConfig) -> Option<BBox> {
