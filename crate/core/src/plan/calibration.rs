@@ -3,10 +3,11 @@
 //! "Multiple View Geometry", algorithm 4.2), with `nalgebra`'s SVD.
 
 use nalgebra::{DMatrix, Matrix3, Vector3};
+use schemars::JsonSchema;
 use serde::{Deserialize, Serialize};
 
 /// One image point and where it lies on the ground.
-#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize, JsonSchema)]
 #[serde(deny_unknown_fields)]
 pub struct PointPair {
     pub image: [f64; 2],

@@ -15,10 +15,11 @@ pub use calibration::{Homography, PointPair};
 use crate::error::{Error, ErrorKind};
 use crate::geometry::{Polygon, Segment};
 use clock::LocalTime;
+use schemars::JsonSchema;
 use serde::{Deserialize, Serialize};
 
 /// Which point of a box is tested against lines and zones.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize, Default)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize, Default, JsonSchema)]
 #[serde(rename_all = "lowercase")]
 pub enum Anchor {
     /// Bottom-centre of the box: where feet or wheels meet the ground.
@@ -29,7 +30,7 @@ pub enum Anchor {
 }
 
 /// A screenline as written in the plan.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, JsonSchema)]
 #[serde(deny_unknown_fields)]
 pub struct ScreenlineSpec {
     pub name: String,
@@ -41,7 +42,7 @@ pub struct ScreenlineSpec {
 }
 
 /// A zone as written in the plan.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, JsonSchema)]
 #[serde(deny_unknown_fields)]
 pub struct ZoneSpec {
     pub name: String,
@@ -49,7 +50,7 @@ pub struct ZoneSpec {
 }
 
 /// Image-to-ground point pairs (at least 4) and the ground unit.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, JsonSchema)]
 #[serde(deny_unknown_fields)]
 pub struct CalibrationSpec {
     pub pairs: Vec<PointPair>,
@@ -62,7 +63,7 @@ fn default_unit() -> String {
 }
 
 /// Counting rules that can be tuned; every field has a default.
-#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize, JsonSchema)]
 #[serde(deny_unknown_fields, default)]
 pub struct Rules {
     /// How far beyond a line (or inside/outside a zone edge) the anchor must get before a crossing
@@ -108,7 +109,7 @@ impl Default for Rules {
 }
 
 /// The plan file as written.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, JsonSchema)]
 #[serde(deny_unknown_fields)]
 pub struct PlanSpec {
     pub frame_rate: f64,
@@ -165,6 +166,12 @@ impl Plan {
         let spec: PlanSpec = serde_json::from_str(text)
             .map_err(|e| Error::from_json(ErrorKind::Plan, &e, " (see docs/plan-format.md)"))?;
         Plan::from_spec(spec)
+    }
+
+    /// The JSON Schema of a plan file's fields, generated from [`PlanSpec`] (without the ranges
+    /// and patterns the checks apply; `docs/plan.schema.json` has those and is tested against it).
+    pub fn schema() -> serde_json::Value {
+        serde_json::to_value(schemars::schema_for!(PlanSpec)).unwrap_or_default()
     }
 
     /// Checks a plan given as a structure.

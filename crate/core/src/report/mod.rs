@@ -11,6 +11,7 @@ pub use csv::counts_csv;
 
 use crate::plan::PlanSpec;
 use crate::track::TrackerConfig;
+use schemars::JsonSchema;
 use serde::{Deserialize, Serialize};
 use std::collections::BTreeMap;
 
@@ -26,17 +27,17 @@ pub const CAUTION: &str = "Automated counts are estimates. Before relying on the
     rules on recording people in public space. Short counts are unadjusted (no seasonal or day-of-week \
     factors).";
 
-/// What an [`Event`] counts.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+/// What an event counts.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize, JsonSchema)]
 #[serde(rename_all = "lowercase")]
 pub enum EventKind {
     Screenline,
     Zone,
 }
 
-/// Which way an [`Event`] went: across a screenline (forward as the plan draws it, or backward),
+/// Which way an event went: across a screenline (forward as the plan draws it, or backward),
 /// or into or out of a zone.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize, JsonSchema)]
 #[serde(rename_all = "lowercase")]
 pub enum Direction {
     Forward,
@@ -46,7 +47,7 @@ pub enum Direction {
 }
 
 /// One counted event: a screenline crossing or a zone entry or exit.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, JsonSchema)]
 pub struct Event {
     /// The counted track: the id of its first fragment.
     pub track: u32,
@@ -75,7 +76,7 @@ pub struct Event {
 }
 
 /// Counts in one interval.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, JsonSchema)]
 pub struct IntervalCount {
     pub start: String,
     pub end: String,
@@ -86,7 +87,7 @@ pub struct IntervalCount {
     pub by_class: BTreeMap<String, DirectionCounts>,
 }
 
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, Serialize, Deserialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, Serialize, Deserialize, JsonSchema)]
 pub struct DirectionCounts {
     pub forward: u64,
     pub backward: u64,
@@ -105,7 +106,7 @@ impl DirectionCounts {
 
 /// The busiest hour: consecutive whole intervals with the highest total, and its peak hour factor
 /// PHF = V_hour / (n × V_max), n intervals per hour (4 for 15-minute intervals).
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, JsonSchema)]
 pub struct PeakHour {
     pub start: String,
     pub end: String,
@@ -114,7 +115,7 @@ pub struct PeakHour {
     pub phf: f64,
 }
 
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, JsonSchema)]
 pub struct ScreenlineReport {
     pub name: String,
     pub forward_label: String,
@@ -132,7 +133,7 @@ pub struct ScreenlineReport {
     pub peak_hour_backward: Option<PeakHour>,
 }
 
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, JsonSchema)]
 pub struct Summary {
     pub count: usize,
     pub mean: Option<f64>,
@@ -140,7 +141,7 @@ pub struct Summary {
     pub p85: Option<f64>,
 }
 
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, JsonSchema)]
 pub struct ZoneInterval {
     pub start: String,
     pub end: String,
@@ -150,7 +151,7 @@ pub struct ZoneInterval {
     pub max_occupancy: u64,
 }
 
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, JsonSchema)]
 pub struct ZoneReport {
     pub name: String,
     pub entries: u64,
@@ -167,7 +168,7 @@ pub struct ZoneReport {
 
 /// Origin → destination counts: origin is the first screenline or zone a track meets, destination
 /// the last (the same name for a U-turn).
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, JsonSchema)]
 pub struct Movement {
     pub origin: String,
     pub destination: String,
@@ -176,7 +177,7 @@ pub struct Movement {
     pub u_turn: bool,
 }
 
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, JsonSchema)]
 pub struct SpeedReport {
     pub unit: String,
     /// Per class: distance per second in the plan's ground unit.
@@ -188,7 +189,7 @@ pub struct SpeedReport {
     pub tracks: Vec<TrackSpeed>,
 }
 
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, JsonSchema)]
 pub struct TrackSpeed {
     pub track: u32,
     pub class: String,
@@ -197,7 +198,7 @@ pub struct TrackSpeed {
     pub speed: f64,
 }
 
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, JsonSchema)]
 pub struct Join {
     /// The earlier and the later tracker id.
     pub tracks: [u32; 2],
@@ -205,15 +206,15 @@ pub struct Join {
 }
 
 /// The whole report.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, JsonSchema)]
 pub struct Report {
-    /// Always [`FORMAT`].
+    /// Always `throughline-report`.
     pub format: String,
-    /// The layout's version, [`VERSION`].
+    /// The version of the report's layout (1).
     pub version: u32,
     /// The program and its version that wrote the report.
     pub generator: String,
-    /// [`CAUTION`]: counts are estimates.
+    /// The caution that counts are estimates, and how to check them.
     pub caution: String,
     pub plan: PlanSpec,
     pub tracker: Option<TrackerConfig>,
@@ -234,6 +235,11 @@ impl Report {
     /// The report as JSON text, exactly as every adapter writes it.
     pub fn to_json(&self) -> String {
         serde_json::to_string_pretty(self).unwrap_or_default()
+    }
+
+    /// The report's JSON Schema (draft 2020-12), generated from these types: `docs/report.schema.json`.
+    pub fn schema() -> serde_json::Value {
+        serde_json::to_value(schemars::schema_for!(Report)).unwrap_or_default()
     }
 
     /// Reads a report written by [`Report::to_json`].

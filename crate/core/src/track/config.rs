@@ -5,6 +5,7 @@
 
 use super::Method;
 use crate::error::{Error, ErrorKind};
+use schemars::JsonSchema;
 use serde::{Deserialize, Serialize};
 
 /// The method used when none is named: `deepsort` when the detections carry appearance embeddings,
@@ -40,7 +41,7 @@ pub fn resolve_config(
 }
 
 /// Every setting of every method. Fields a method does not use are ignored by it.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, JsonSchema)]
 #[serde(deny_unknown_fields)]
 pub struct TrackerConfig {
     pub method: Method,

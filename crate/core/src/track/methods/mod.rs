@@ -20,11 +20,12 @@ mod sort;
 use super::tracker::Tracker;
 use super::TrackerConfig;
 use crate::detections::Detection;
+use schemars::JsonSchema;
 use serde::{Deserialize, Serialize};
 use std::fmt;
 
 /// The published tracking methods Throughline implements.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize, Deserialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize, Deserialize, JsonSchema)]
 #[serde(rename_all = "lowercase")]
 pub enum Method {
     Iou,
