@@ -5,10 +5,14 @@
 
 type DetectionSummary = import("./js/protocol.js").DetectionSummary;
 type TrackInfo = import("./js/protocol.js").TrackInfo;
+type CoreFacts = import("./js/protocol.js").CoreFacts;
 
 declare function wasm_bindgen(init: { module_or_path: Uint8Array | BufferSource }): Promise<unknown>;
 
 declare namespace wasm_bindgen {
+  /** The tracking methods and default margins, from the core's own tables. */
+  function coreFacts(): CoreFacts;
+
   /** One page's state in the core: detections, plan, tracks. Errors are thrown as JS errors. */
   class Session {
     constructor();

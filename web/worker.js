@@ -32,7 +32,7 @@ function core() {
 async function init(wasmBytes) {
   await wasm_bindgen({ module_or_path: wasmBytes });
   session = new wasm_bindgen.Session();
-  return /** @type {const} */ (true);
+  return wasm_bindgen.coreFacts();
 }
 
 /**

@@ -23,6 +23,8 @@ export class CoreClient {
     /** @type {Map<number, Pending>} */
     this.pending = new Map();
     this.worker = this.makeWorker();
+    /** @type {import("./protocol.js").CoreFacts | null} the core's tables, once it has started */
+    this.facts = null;
     /** Settles when the worker has started the core; rejects (with the reason) if it cannot. */
     this.ready = this.start();
   }
@@ -32,7 +34,7 @@ export class CoreClient {
     this.worker.onmessage = (event) => this.receive(event.data);
     this.worker.onerror = (event) => this.failAll(new Error(event.message || "the engine stopped"));
     const copy = (await this.wasm).slice();
-    await this.send({ op: "init", wasm: copy }, [copy.buffer]);
+    this.facts = await this.send({ op: "init", wasm: copy }, [copy.buffer]);
   }
 
   /** @param {Error} error */

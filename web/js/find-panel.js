@@ -174,11 +174,15 @@ export class FindPanel {
    * crossing margin unless the plan has one as wide already.
    */
   offerMargin() {
+    const facts = this.client.facts;
+    if (!facts) return;
+    const lines = facts.footage_hysteresis;
+    const zones = facts.default_hysteresis;
     const rules = this.store.plan.rules;
     const margin = rules && rules.hysteresis;
-    if (margin !== undefined && margin >= 0.35) return;
-    this.messages.say("margin", "ok", "Boxes found in footage jump when two people join or split near a line. A crossing margin of 0.35 box heights counts line crossings more steadily (zones keep 0.15: people leaving a zone at the picture's edge are soon out of sight). See docs/detector-settings.md.", [
-      el("button", { type: "button", text: "Use 0.35", onclick: () => { this.store.planEdited((p) => setHysteresis(p, 0.35, 0.15)); this.messages.clear("margin"); } }),
+    if (margin !== undefined && margin >= lines) return;
+    this.messages.say("margin", "ok", `Boxes found in footage jump when two people join or split near a line. A crossing margin of ${lines} box heights counts line crossings more steadily (zones keep ${zones}: people leaving a zone at the picture's edge are soon out of sight). See docs/detector-settings.md.`, [
+      el("button", { type: "button", text: `Use ${lines}`, onclick: () => { this.store.planEdited((p) => setHysteresis(p, lines, zones)); this.messages.clear("margin"); } }),
     ]);
   }
 }

@@ -50,6 +50,16 @@
  */
 
 /**
+ * What the page takes from the core's own tables instead of writing it again: the tracking methods
+ * (registered once in the core) and the crossing margins, in box heights, by default and for boxes
+ * found in footage.
+ * @typedef {object} CoreFacts
+ * @property {{name: string, label: string, needs_embeddings: boolean}[]} methods
+ * @property {number} default_hysteresis
+ * @property {number} footage_hysteresis
+ */
+
+/**
  * The requests, one kind per operation. Buffers named `bytes`, `pixels` and `wasm` are handed over
  * (transferred), not copied.
  * @typedef {{op: "init", wasm: Uint8Array}} InitRequest
@@ -71,7 +81,7 @@
 /**
  * What each operation's result message carries.
  * @typedef {object} ResultOf
- * @property {true} init
+ * @property {CoreFacts} init
  * @property {DetectionSummary} loadDetections
  * @property {Results | null} setPlan the report and CSV when there are tracks, else null
  * @property {TrackOutput} track

@@ -2,7 +2,7 @@
 // The Tracking panel: the method, Run and Cancel. Tracking runs in one piece inside the worker, so
 // Cancel replaces the worker and gives the new one the detections and plan again.
 
-import { byId } from "./dom.js";
+import { byId, el } from "./dom.js";
 import { hasCountingGeometry } from "./plan.js";
 import { Cancelled } from "./protocol.js";
 import { TrackView } from "./tracks.js";
@@ -31,12 +31,23 @@ export class RunPanel {
     this.status = byId("run-status", HTMLElement);
     /** @type {Promise<void> | null} while a new worker is given the detections and plan again */
     this.restoring = null;
-    this.method.value = store.settings.method || "";
+    // The methods come from the core's registry once it has started.
+    client.ready.then(() => this.listMethods()).catch(() => {});
     this.method.addEventListener("change", () => store.settingChanged("method", this.method.value));
     this.cancel.addEventListener("click", () => this.cancelRun());
     this.run.addEventListener("click", () => this.track());
     store.subscribe(["busy"], () => { this.run.disabled = store.tracking || store.finding; });
     store.subscribe(["detections"], () => { this.status.textContent = "Ready: press Run to track and count."; });
+  }
+
+  /** Fills the method list from the core's registry and selects the kept choice. */
+  listMethods() {
+    const facts = this.client.facts;
+    if (!facts) return;
+    for (const m of facts.methods) {
+      if (![...this.method.options].some((o) => o.value === m.name)) this.method.append(el("option", { value: m.name, text: m.label }));
+    }
+    this.method.value = this.store.settings.method || "";
   }
 
   cancelRun() {

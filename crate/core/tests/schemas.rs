@@ -48,7 +48,10 @@ fn validate(schema: &Value, instance: &Value, what: &str) {
 
 #[test]
 fn the_report_schema_is_generated_from_the_type() {
-    let generated = format!("{}\n", serde_json::to_string_pretty(&Report::schema()).unwrap());
+    let generated = format!(
+        "{}\n",
+        serde_json::to_string_pretty(&Report::schema()).unwrap()
+    );
     let path = root().join("docs/report.schema.json");
     if std::env::var_os("THROUGHLINE_WRITE_SCHEMAS").is_some() {
         std::fs::write(&path, &generated).unwrap();
@@ -66,11 +69,19 @@ fn reports_validate_against_the_schema_and_read_back_byte_for_byte() {
     let schema = json("docs/report.schema.json");
     let report = demo_report();
     let text = report.to_json();
-    validate(&schema, &serde_json::from_str(&text).unwrap(), "the demo's report");
+    validate(
+        &schema,
+        &serde_json::from_str(&text).unwrap(),
+        "the demo's report",
+    );
     assert_eq!(Report::from_json(&text).unwrap().to_json(), text);
     // A report made by the command line and committed (the demo's true counts) reads back too.
     let committed = read("demo-site/demo/truth_report.json");
-    validate(&schema, &json("demo-site/demo/truth_report.json"), "truth_report.json");
+    validate(
+        &schema,
+        &json("demo-site/demo/truth_report.json"),
+        "truth_report.json",
+    );
     assert_eq!(Report::from_json(&committed).unwrap().to_json(), committed);
     let e = Report::from_json(r#"{"format": "throughline-report"}"#).unwrap_err();
     assert!(e.to_string().contains("missing field"), "{e}");
@@ -104,7 +115,10 @@ fn shape(schema: &Value) -> BTreeMap<String, (BTreeSet<String>, BTreeSet<String>
                 .flatten()
                 .filter_map(|v| v.as_str().map(str::to_string))
                 .collect();
-            out.insert(path.to_string(), (props.keys().cloned().collect(), required));
+            out.insert(
+                path.to_string(),
+                (props.keys().cloned().collect(), required),
+            );
             for (name, p) in props {
                 walk(root, p, &format!("{path}.{name}"), out);
             }
@@ -117,7 +131,10 @@ fn shape(schema: &Value) -> BTreeMap<String, (BTreeSet<String>, BTreeSet<String>
 
 #[test]
 fn the_plan_schema_has_exactly_the_fields_of_the_plan_type() {
-    assert_eq!(shape(&json("docs/plan.schema.json")), shape(&Plan::schema()));
+    assert_eq!(
+        shape(&json("docs/plan.schema.json")),
+        shape(&Plan::schema())
+    );
 }
 
 #[test]

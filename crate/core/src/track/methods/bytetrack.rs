@@ -9,6 +9,7 @@ use crate::track::TrackerConfig;
 
 pub(super) const DEF: MethodDef = MethodDef {
     name: "bytetrack",
+    label: "ByteTrack (low-score boxes too)",
     summary:
         "two-stage association: high-score boxes first, then low-score ones (Zhang et al. 2022)",
     motion: true,

@@ -11,6 +11,7 @@ use crate::track::TrackerConfig;
 
 pub(super) const DEF: MethodDef = MethodDef {
     name: "deepsort",
+    label: "DeepSORT (appearance)",
     summary: "appearance gated by motion in a matching cascade, then IoU (Wojke et al. 2017); needs embeddings",
     motion: true,
     needs_embeddings: true,

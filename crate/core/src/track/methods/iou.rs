@@ -6,6 +6,7 @@ use crate::track::TrackerConfig;
 
 pub(super) const DEF: MethodDef = MethodDef {
     name: "iou",
+    label: "IoU matching",
     summary: "IoU chaining of detections frame to frame (Bochinski et al. 2017), no motion model",
     motion: false,
     needs_embeddings: false,

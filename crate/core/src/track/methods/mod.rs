@@ -88,6 +88,8 @@ impl fmt::Display for Method {
 pub struct MethodDef {
     /// The name in settings files, on the command line and in the page (lowercase).
     pub name: &'static str,
+    /// A short name for people, as the page lists it.
+    pub label: &'static str,
     /// One line for help texts: what it does, and its paper.
     pub summary: &'static str,
     /// Whether live tracks are predicted with the constant-velocity Kalman filter; without it a

@@ -6,6 +6,7 @@ use crate::track::TrackerConfig;
 
 pub(super) const DEF: MethodDef = MethodDef {
     name: "sort",
+    label: "SORT (Kalman filter)",
     summary: "Kalman prediction + Hungarian assignment on IoU (Bewley et al. 2016)",
     motion: true,
     needs_embeddings: false,
