@@ -10,7 +10,7 @@ import { join } from "node:path";
 import { tmpdir } from "node:os";
 import { useBrowser, watch, screenshot, demo, root, site } from "./harness.mjs";
 
-const cli = join(root, "target/release/throughline");
+const cli = join((await import("./harness.mjs")).targetDir, "release/throughline");
 const scratch = mkdtempSync(join(tmpdir(), "tl-browser-"));
 const env = useBrowser();
 

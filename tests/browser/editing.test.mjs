@@ -9,7 +9,7 @@ import { join } from "node:path";
 import { tmpdir } from "node:os";
 import { useBrowser, watch, screenshot, demo, root } from "./harness.mjs";
 
-const cli = join(root, "target/release/throughline");
+const cli = join((await import("./harness.mjs")).targetDir, "release/throughline");
 const env = useBrowser();
 
 /** Screen position of a point in video pixels. */
