@@ -1,11 +1,18 @@
 //! `cargo xtask serve [--no-build] [--port N]`: the built site (`demo-site/`) on 127.0.0.1, with
-//! the page's headers (its Content-Security-Policy among them). Only GET and HEAD; nothing is
-//! written.
+//! the page's headers (its Content-Security-Policy among them). Files are served by tower-http's
+//! `ServeDir` on hyper: byte ranges (footage seeks without being read whole), `ETag` and
+//! `Last-Modified` with 304 answers, GET and HEAD only, nothing outside the folder.
 
-use std::fs;
-use std::io::{BufRead, BufReader, Write};
-use std::net::{TcpListener, TcpStream};
-use std::path::{Path, PathBuf};
+use std::convert::Infallible;
+use std::net::TcpListener;
+use std::path::Path;
+
+use hyper::header::{HeaderValue, CACHE_CONTROL, CONTENT_SECURITY_POLICY, CONTENT_TYPE};
+use hyper::{body::Incoming, Request, Response};
+use hyper_util::rt::TokioIo;
+use tower_http::services::fs::ServeFileSystemResponseBody;
+use tower_http::services::ServeDir;
+use tower_service::Service;
 
 use crate::paths::root;
 use crate::site::{self, OFFLINE_FILE, SITE_CSP, SITE_DIR};
@@ -64,113 +71,68 @@ pub fn bind(port: u16) -> Result<TcpListener, String> {
         .ok_or_else(|| format!("no free port on 127.0.0.1 from {port} to {last}"))
 }
 
-/// Serves the files of `dir` on `listener` until the process stops, a thread per connection.
+/// Serves the files of `dir` on `listener` until the process stops: one thread, connections taken
+/// in turn by the async runtime.
 pub fn run(listener: TcpListener, dir: &Path) -> Result<(), String> {
-    for stream in listener.incoming().flatten() {
-        let dir = dir.to_path_buf();
-        std::thread::spawn(move || {
-            let _ = answer(stream, &dir);
-        });
-    }
-    Ok(())
-}
-
-fn answer(mut stream: TcpStream, dir: &Path) -> std::io::Result<()> {
-    let mut reader = BufReader::new(stream.try_clone()?);
-    let mut request = String::new();
-    reader.read_line(&mut request)?;
-    // Skip the headers.
-    let mut line = String::new();
-    while reader.read_line(&mut line)? > 2 {
-        line.clear();
-    }
-    let mut parts = request.split_whitespace();
-    let method = parts.next().unwrap_or("");
-    let target = parts.next().unwrap_or("/");
-    let path = target.split(['?', '#']).next().unwrap_or("/");
-    let path = percent_decode(path);
-    let mut file: PathBuf = dir.to_path_buf();
-    for part in path.split('/').filter(|p| !p.is_empty()) {
-        if part == ".." || part.contains('\\') {
-            return respond(
-                &mut stream,
-                "400 Bad Request",
-                "text/plain",
-                b"bad path",
-                true,
-            );
+    listener
+        .set_nonblocking(true)
+        .map_err(|e| format!("server: {e}"))?;
+    let runtime = tokio::runtime::Builder::new_current_thread()
+        .enable_all()
+        .build()
+        .map_err(|e| format!("server: {e}"))?;
+    let files = ServeDir::new(dir);
+    runtime.block_on(async move {
+        let listener =
+            tokio::net::TcpListener::from_std(listener).map_err(|e| format!("server: {e}"))?;
+        loop {
+            let stream = match listener.accept().await {
+                Ok((stream, _)) => stream,
+                // Out of file descriptors and the like: wait a little rather than spin.
+                Err(_) => {
+                    tokio::time::sleep(std::time::Duration::from_millis(50)).await;
+                    continue;
+                }
+            };
+            let files = files.clone();
+            let service = hyper::service::service_fn(move |req| answer(files.clone(), req));
+            tokio::spawn(async move {
+                // A client that goes away mid-answer is no error of the server's.
+                let _ = hyper::server::conn::http1::Builder::new()
+                    .serve_connection(TokioIo::new(stream), service)
+                    .await;
+            });
         }
-        file.push(part);
-    }
-    if file.is_dir() {
-        file.push("index.html");
-    }
-    if method != "GET" && method != "HEAD" {
-        return respond(
-            &mut stream,
-            "405 Method Not Allowed",
-            "text/plain",
-            b"read only",
-            true,
-        );
-    }
-    match fs::read(&file) {
-        Ok(bytes) => respond(
-            &mut stream,
-            "200 OK",
-            content_type(&file),
-            &bytes,
-            method == "GET",
-        ),
-        Err(_) => respond(
-            &mut stream,
-            "404 Not Found",
-            "text/plain",
-            b"not found",
-            true,
-        ),
-    }
+    })
 }
 
-fn respond(
-    stream: &mut TcpStream,
-    status: &str,
-    kind: &str,
-    body: &[u8],
-    with_body: bool,
-) -> std::io::Result<()> {
-    write!(
-        stream,
-        "HTTP/1.1 {status}\r\nContent-Type: {kind}\r\nContent-Length: {}\r\n\
-         Content-Security-Policy: {SITE_CSP}\r\nCache-Control: no-store\r\nConnection: close\r\n\r\n",
-        body.len()
-    )?;
-    if with_body {
-        stream.write_all(body)?;
+type Answer = Response<ServeFileSystemResponseBody>;
+
+/// The file's answer from `ServeDir` with the page's headers added.
+async fn answer(mut files: ServeDir, req: Request<Incoming>) -> Result<Answer, Infallible> {
+    let path = req.uri().path().to_owned();
+    std::future::poll_fn(|cx| Service::<Request<Incoming>>::poll_ready(&mut files, cx)).await?;
+    let mut res = files.call(req).await?;
+    let headers = res.headers_mut();
+    headers.insert(CONTENT_SECURITY_POLICY, HeaderValue::from_static(SITE_CSP));
+    headers.insert(CACHE_CONTROL, HeaderValue::from_static("no-store"));
+    if res.status().is_success() {
+        let kind = content_type(&path);
+        res.headers_mut()
+            .insert(CONTENT_TYPE, HeaderValue::from_static(kind));
     }
-    stream.flush()
+    Ok(res)
 }
 
-fn percent_decode(s: &str) -> String {
-    let bytes = s.as_bytes();
-    let mut out = Vec::with_capacity(bytes.len());
-    let mut i = 0;
-    while i < bytes.len() {
-        if bytes[i] == b'%' && i + 2 < bytes.len() {
-            if let Ok(v) = u8::from_str_radix(&s[i + 1..i + 3], 16) {
-                out.push(v);
-                i += 3;
-                continue;
-            }
-        }
-        out.push(bytes[i]);
-        i += 1;
-    }
-    String::from_utf8_lossy(&out).into_owned()
-}
-
-fn content_type(path: &Path) -> &'static str {
-    match path.extension().and_then(|x| x.to_str()).unwrap_or("") {
+/// The content type by the requested path's extension (a folder answers with its index.html).
+fn content_type(path: &str) -> &'static str {
+    let name = path.rsplit('/').next().unwrap_or("");
+    let ext = if name.is_empty() {
+        "html"
+    } else {
+        name.rsplit_once('.').map_or("", |(_, ext)| ext)
+    };
+    match ext {
         "html" => "text/html; charset=utf-8",
         "js" | "mjs" => "text/javascript; charset=utf-8",
         "css" => "text/css; charset=utf-8",
@@ -182,5 +144,172 @@ fn content_type(path: &Path) -> &'static str {
         "txt" => "text/plain; charset=utf-8",
         "png" => "image/png",
         _ => "application/octet-stream",
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    //! The server over loopback, as a browser talks to it: plain HTTP/1.1 on a `TcpStream`.
+    //! Expected answers follow RFC 9110 (ranges: section 14; conditional requests: section 13).
+
+    use super::*;
+    use std::io::{Read, Write};
+    use std::net::SocketAddr;
+    use std::path::PathBuf;
+
+    /// A status, the headers (names in lower case) and the body.
+    struct Reply {
+        status: u16,
+        headers: Vec<(String, String)>,
+        body: Vec<u8>,
+    }
+
+    impl Reply {
+        fn header(&self, name: &str) -> Option<&str> {
+            let found = self.headers.iter().find(|(n, _)| n == name);
+            found.map(|(_, v)| v.as_str())
+        }
+    }
+
+    /// A served site; its folder is removed when the test ends.
+    struct Site {
+        addr: SocketAddr,
+        dir: PathBuf,
+    }
+
+    impl Drop for Site {
+        fn drop(&mut self) {
+            let _ = std::fs::remove_dir_all(&self.dir);
+        }
+    }
+
+    /// A site folder (`index.html`, 100,000 bytes of footage) beside a file outside it, served on
+    /// a free port of 127.0.0.1 by a server on its own thread.
+    fn start(name: &str) -> Site {
+        let dir = std::env::temp_dir().join(format!("xtask-serve-{}-{name}", std::process::id()));
+        let site = dir.join("site");
+        std::fs::create_dir_all(site.join("demo")).unwrap();
+        std::fs::write(site.join("index.html"), "<!doctype html><title>t</title>").unwrap();
+        std::fs::write(site.join("demo/footage.webm"), footage()).unwrap();
+        std::fs::write(dir.join("secret.txt"), "outside the site").unwrap();
+        let listener = bind(0).unwrap();
+        let addr = listener.local_addr().unwrap();
+        let folder = site.clone();
+        std::thread::spawn(move || run(listener, &folder));
+        Site { addr, dir }
+    }
+
+    fn footage() -> Vec<u8> {
+        (0..100_000u32).map(|i| (i * 7 % 251) as u8).collect()
+    }
+
+    /// One request (`extra`: header lines) on a fresh connection, read to its end.
+    fn request(addr: SocketAddr, method: &str, path: &str, extra: &[&str]) -> Reply {
+        let mut stream = std::net::TcpStream::connect(addr).unwrap();
+        let mut head = format!("{method} {path} HTTP/1.1\r\nHost: {addr}\r\nConnection: close\r\n");
+        for line in extra {
+            head.push_str(&format!("{line}\r\n"));
+        }
+        stream.write_all(format!("{head}\r\n").as_bytes()).unwrap();
+        let mut bytes = Vec::new();
+        stream.read_to_end(&mut bytes).unwrap();
+        let split = bytes.windows(4).position(|w| w == b"\r\n\r\n").unwrap();
+        let text = String::from_utf8(bytes[..split].to_vec()).unwrap();
+        let mut lines = text.split("\r\n");
+        let status = lines.next().unwrap().split(' ').nth(1).unwrap();
+        let headers = lines.filter_map(|l| l.split_once(": "));
+        Reply {
+            status: status.parse().unwrap(),
+            headers: headers
+                .map(|(n, v)| (n.to_lowercase(), v.to_string()))
+                .collect(),
+            body: bytes[split + 4..].to_vec(),
+        }
+    }
+
+    #[test]
+    fn a_range_request_gets_those_bytes_and_their_place() {
+        let site = start("range");
+        let addr = site.addr;
+        let whole = footage();
+        // (Range header, first byte, last byte): a middle span, an open end, a suffix.
+        for (range, first, last) in [
+            ("bytes=1000-1999", 1000, 1999),
+            ("bytes=99990-", 99_990, 99_999),
+            ("bytes=-5", 99_995, 99_999),
+        ] {
+            let r = request(
+                addr,
+                "GET",
+                "/demo/footage.webm",
+                &[&format!("Range: {range}")],
+            );
+            assert_eq!(r.status, 206, "{range}");
+            let place = format!("bytes {first}-{last}/100000");
+            assert_eq!(r.header("content-range"), Some(place.as_str()));
+            assert_eq!(r.body, &whole[first..=last], "{range}");
+            assert_eq!(r.header("content-type"), Some("video/webm"));
+        }
+        let whole_file = request(addr, "GET", "/demo/footage.webm", &[]);
+        assert_eq!(whole_file.header("accept-ranges"), Some("bytes"));
+        assert_eq!((whole_file.status, whole_file.body), (200, whole));
+        let past = request(addr, "GET", "/demo/footage.webm", &["Range: bytes=200000-"]);
+        assert_eq!(past.status, 416);
+    }
+
+    #[test]
+    fn an_unchanged_file_is_answered_304_by_etag_or_date() {
+        let site = start("conditional");
+        let addr = site.addr;
+        let first = request(addr, "GET", "/index.html", &[]);
+        assert_eq!(first.status, 200);
+        let etag = first.header("etag").expect("an ETag").to_string();
+        let date = first.header("last-modified").expect("a Last-Modified");
+        for condition in [
+            format!("If-None-Match: {etag}"),
+            format!("If-Modified-Since: {date}"),
+        ] {
+            let again = request(addr, "GET", "/index.html", &[&condition]);
+            assert_eq!(again.status, 304, "{condition}");
+            assert!(again.body.is_empty());
+        }
+        let changed = request(addr, "GET", "/index.html", &["If-None-Match: \"other\""]);
+        assert_eq!(changed.status, 200);
+    }
+
+    #[test]
+    fn nothing_outside_the_site_is_served() {
+        let site = start("outside");
+        let addr = site.addr;
+        for path in [
+            "/../secret.txt",
+            "/%2e%2e/secret.txt",
+            "/..%2fsecret.txt",
+            "/demo/../../secret.txt",
+            "/missing.txt",
+        ] {
+            let r = request(addr, "GET", path, &[]);
+            assert_eq!(r.status, 404, "{path}");
+            assert!(
+                !String::from_utf8_lossy(&r.body).contains("outside"),
+                "{path}"
+            );
+        }
+        assert_eq!(request(addr, "POST", "/index.html", &[]).status, 405);
+    }
+
+    #[test]
+    fn the_page_gets_its_policy_and_type() {
+        let site = start("headers");
+        let addr = site.addr;
+        for path in ["/", "/index.html"] {
+            let r = request(addr, "GET", path, &[]);
+            assert_eq!(r.status, 200, "{path}");
+            assert_eq!(r.header("content-security-policy"), Some(SITE_CSP));
+            assert_eq!(r.header("content-type"), Some("text/html; charset=utf-8"));
+            assert_eq!(r.header("cache-control"), Some("no-store"));
+        }
+        let head = request(addr, "HEAD", "/index.html", &[]);
+        assert_eq!((head.status, head.body.len()), (200, 0));
     }
 }
