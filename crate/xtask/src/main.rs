@@ -5,11 +5,12 @@
 //!   demo with the simulator ([`demo`]);
 //! - `site`: build the browser app into demo-site/ (and its single-file form) ([`site`]); `serve`:
 //!   and serve it ([`serve`]);
-//! - `test`: install what the checks need, then format check, lints, every test, the wasm32 builds,
-//!   the browser tests ([`test`]);
+//! - `test`: cheap invariants, then install what the checks need, then format check, lints, every
+//!   test, the wasm32 builds, the browser tests ([`test`], [`invariants`]);
 //! - `bench`: speed, memory and quality of every method on simulated scenes, with a Python peer,
 //!   written into BENCHMARKS.md (`--counts`, `--detector`: one table each); `bench --page`: speed
-//!   of finding objects in the page (Chromium) ([`bench`]).
+//!   of finding objects in the page (Chromium) ([`bench`]);
+//! - `shape`: function and file lengths and module loops under crate/ ([`shape`]).
 //!
 //! Build output is found through `cargo metadata` ([`paths`]), so `CARGO_TARGET_DIR` is honoured.
 
@@ -18,13 +19,15 @@ use std::process::ExitCode;
 mod bench;
 mod builds;
 mod demo;
+mod invariants;
 mod paths;
 mod serve;
 mod sh;
+mod shape;
 mod site;
 mod test;
 
-const USAGE: &str = "usage: cargo xtask <demo [--no-serve] | site | serve [--no-build] [--port N] | test | bench [--quick | --grid | --counts | --detector | --page] | demo-data>";
+const USAGE: &str = "usage: cargo xtask <demo [--no-serve] | site | serve [--no-build] [--port N] | test | bench [--quick | --grid | --counts | --detector | --page] | demo-data | shape>";
 
 fn main() -> ExitCode {
     let args: Vec<String> = std::env::args().skip(1).collect();
@@ -36,6 +39,7 @@ fn main() -> ExitCode {
         Some("test") => test::test(),
         Some("bench") => bench::bench(rest),
         Some("demo-data") => demo::demo_data(),
+        Some("shape") => shape::command(),
         _ => Err(USAGE.into()),
     };
     match result {

@@ -1,14 +1,15 @@
-//! `cargo xtask test`: the whole suite, as CI runs it (`.ci/run`): the installs (every step
-//! idempotent, so a fresh machine and a warm one run the same script), format check, lints, every
-//! test, the wasm32 builds, the adapter against the command line in Node and in headless Chromium,
-//! and the page end to end.
+//! `cargo xtask test`: the whole suite, as CI runs it (`.ci/run`). Cheap invariants first, then the
+//! installs (every step idempotent, so a fresh machine and a warm one run the same script), format
+//! check, lints, every test, the wasm32 builds, the adapter against the command line in Node and in
+//! headless Chromium, and the page end to end.
 
 use crate::builds::{build_cli, build_wasm, ensure_wasm_tools};
 use crate::paths::{adapter_wasm, target};
 use crate::sh::{node_in, run, run_in, works};
-use crate::site;
+use crate::{invariants, site};
 
 pub fn test() -> Result<(), String> {
+    invariants::check()?;
     install()?;
     run("cargo", &["fmt", "--all", "--check"])?;
     let lints = ["--workspace", "--all-targets", "--", "-D", "warnings"];
