@@ -4,9 +4,13 @@
 //! headless Chromium, and the page end to end.
 
 use crate::builds::{build_cli, build_wasm, ensure_wasm_tools};
-use crate::paths::{adapter_wasm, target};
+use crate::paths::{adapter_wasm, root, target};
 use crate::sh::{node_in, run, run_in, works};
 use crate::{invariants, site};
+
+/// Set for `cargo test` by this task: the tests that need ffmpeg fail when it is missing instead
+/// of skipping (crate/cli/tests/cli.rs, crate/wasm/tests/demux.rs read it).
+const REQUIRE_FFMPEG_ENV: &str = "THROUGHLINE_REQUIRE_FFMPEG";
 
 pub fn test() -> Result<(), String> {
     invariants::check()?;
@@ -14,7 +18,12 @@ pub fn test() -> Result<(), String> {
     run("cargo", &["fmt", "--all", "--check"])?;
     let lints = ["--workspace", "--all-targets", "--", "-D", "warnings"];
     run("cargo", &[&["clippy"][..], &lints].concat())?;
-    run("cargo", &["test", "--workspace"])?;
+    run_in(
+        ".",
+        "cargo",
+        &["test", "--workspace"],
+        &[(REQUIRE_FFMPEG_ENV, "1")],
+    )?;
     ensure_wasm_tools()?;
     // The core must stay free of the browser, files, clocks and the terminal: prove it builds for wasm.
     let wasm32 = ["--target", "wasm32-unknown-unknown", "--release"];
@@ -76,8 +85,21 @@ fn adapter_in_node() -> Result<(), String> {
     node_in(".", &["--test", "tests/wasm/"])
 }
 
-/// The page itself, end to end, in Debian's Chromium driven by playwright-core.
+/// The page itself, end to end, in Debian's Chromium driven by playwright-core; before it, the type
+/// check of the page's scripts where tests/browser/package.json has one.
 fn page_end_to_end() -> Result<(), String> {
     site::build_with_browser_driver()?;
+    if has_npm_script("tests/browser", "typecheck")? {
+        run_in("tests/browser", "npm", &["run", "typecheck"], &[])?;
+    }
     node_in("tests/browser", &["--test"])
+}
+
+/// Whether the package.json in `dir` has the script `name`.
+fn has_npm_script(dir: &str, name: &str) -> Result<bool, String> {
+    let path = root().join(dir).join("package.json");
+    let text = std::fs::read_to_string(&path).map_err(|e| format!("{}: {e}", path.display()))?;
+    let json: serde_json::Value =
+        serde_json::from_str(&text).map_err(|e| format!("{}: {e}", path.display()))?;
+    Ok(json["scripts"][name].is_string())
 }
