@@ -3,6 +3,8 @@
 //! check, lints, every test, the wasm32 builds, the adapter against the command line in Node and in
 //! headless Chromium, and the page end to end.
 
+use std::path::Path;
+
 use crate::builds::{build_cli, build_wasm, ensure_wasm_tools};
 use crate::paths::{adapter_wasm, root, target};
 use crate::sh::{node_in, run, run_in, works};
@@ -89,17 +91,45 @@ fn adapter_in_node() -> Result<(), String> {
 /// check of the page's scripts where tests/browser/package.json has one.
 fn page_end_to_end() -> Result<(), String> {
     site::build_with_browser_driver()?;
-    if has_npm_script("tests/browser", "typecheck")? {
+    if has_npm_script(&root().join("tests/browser/package.json"), "typecheck")? {
         run_in("tests/browser", "npm", &["run", "typecheck"], &[])?;
     }
     node_in("tests/browser", &["--test"])
 }
 
-/// Whether the package.json in `dir` has the script `name`.
-fn has_npm_script(dir: &str, name: &str) -> Result<bool, String> {
-    let path = root().join(dir).join("package.json");
-    let text = std::fs::read_to_string(&path).map_err(|e| format!("{}: {e}", path.display()))?;
+/// Whether the npm package described by `package_json` has the script `name`.
+fn has_npm_script(package_json: &Path, name: &str) -> Result<bool, String> {
+    let shown = package_json.display();
+    let text = std::fs::read_to_string(package_json).map_err(|e| format!("{shown}: {e}"))?;
     let json: serde_json::Value =
-        serde_json::from_str(&text).map_err(|e| format!("{}: {e}", path.display()))?;
+        serde_json::from_str(&text).map_err(|e| format!("{shown}: {e}"))?;
     Ok(json["scripts"][name].is_string())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::has_npm_script;
+
+    #[test]
+    fn the_type_check_runs_only_where_package_json_has_one() {
+        let dir = std::env::temp_dir().join(format!("xtask-npm-{}", std::process::id()));
+        std::fs::create_dir_all(&dir).unwrap();
+        let file = dir.join("package.json");
+        for (json, has) in [
+            (
+                r#"{"scripts": {"test": "node --test", "typecheck": "tsc"}}"#,
+                true,
+            ),
+            (r#"{"scripts": {"test": "node --test"}}"#, false),
+            (r#"{"name": "x"}"#, false),
+        ] {
+            std::fs::write(&file, json).unwrap();
+            assert_eq!(has_npm_script(&file, "typecheck"), Ok(has), "{json}");
+        }
+        std::fs::write(&file, "{").unwrap();
+        assert!(has_npm_script(&file, "typecheck")
+            .unwrap_err()
+            .contains("package.json"));
+        std::fs::remove_dir_all(&dir).unwrap();
+    }
 }
