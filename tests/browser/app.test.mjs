@@ -8,9 +8,9 @@ import { readFileSync, writeFileSync, mkdtempSync } from "node:fs";
 import { execFileSync } from "node:child_process";
 import { join } from "node:path";
 import { tmpdir } from "node:os";
-import { useBrowser, watch, screenshot, demo, root, site } from "./harness.mjs";
+import { useBrowser, watch, screenshot, demo, site, targetDir } from "./harness.mjs";
 
-const cli = join(root, "target/release/throughline");
+const cli = join(targetDir, "release/throughline");
 const scratch = mkdtempSync(join(tmpdir(), "tl-browser-"));
 const env = useBrowser();
 

@@ -7,9 +7,9 @@ import { readFileSync, mkdtempSync } from "node:fs";
 import { execFileSync } from "node:child_process";
 import { join } from "node:path";
 import { tmpdir } from "node:os";
-import { useBrowser, watch, screenshot, demo, root } from "./harness.mjs";
+import { useBrowser, watch, screenshot, demo, targetDir } from "./harness.mjs";
 
-const cli = join(root, "target/release/throughline");
+const cli = join(targetDir, "release/throughline");
 const env = useBrowser();
 
 /** Screen position of a point in video pixels. */

@@ -11,7 +11,9 @@ import { before, after } from "node:test";
 export const root = new URL("../../", import.meta.url).pathname;
 export const site = join(root, "demo-site");
 export const demo = (name) => join(site, "demo", name);
-export const artefacts = join(root, "target/browser-artefacts");
+/** Cargo's target folder: `cargo xtask test` says where (it honours CARGO_TARGET_DIR); else target/. */
+export const targetDir = process.env.THROUGHLINE_TARGET_DIR || join(root, "target");
+export const artefacts = join(targetDir, "browser-artefacts");
 
 /**
  * Serves demo-site/ with the project's own server (`cargo xtask serve`, already built by `cargo
@@ -19,7 +21,7 @@ export const artefacts = join(root, "target/browser-artefacts");
  * (its Content-Security-Policy among them). Resolves to {origin, close}.
  */
 export async function serveSite() {
-  const xtask = join(root, "target/debug/xtask");
+  const xtask = join(targetDir, "debug/xtask");
   if (!existsSync(xtask)) throw new Error("build the site first: cargo xtask site (or run cargo xtask test)");
   const child = spawn(xtask, ["serve", "--no-build", "--port", "0"], { cwd: root, stdio: ["ignore", "pipe", "inherit"] });
   const origin = await new Promise((resolve, reject) => {

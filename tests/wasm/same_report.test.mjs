@@ -9,9 +9,11 @@ import { join } from "node:path";
 import { tmpdir } from "node:os";
 
 const root = new URL("../../", import.meta.url).pathname;
+// Cargo's target folder: `cargo xtask test` says where (it honours CARGO_TARGET_DIR); else target/.
+const targetDir = process.env.THROUGHLINE_TARGET_DIR || join(root, "target");
 const require = createRequire(import.meta.url);
-const { Session } = require(join(root, "target/wasm-node/throughline_wasm.js"));
-const cli = join(root, "target/release/throughline");
+const { Session } = require(join(targetDir, "wasm-node/throughline_wasm.js"));
+const cli = join(targetDir, "release/throughline");
 const demo = (name) => join(root, "demo-site/demo", name);
 
 for (const file of ["detections.txt", "detections.csv"]) {

@@ -1,12 +1,6 @@
-//! Stage 3a: the crossings of a counted path with a screenline.
-//!
-//! A crossing is an intersection of the anchor's path (one step per frame, predicted boxes
-//! included) with a segment of the line; its direction comes from the movement across the segment
-//! (forward: from the segment's left-hand side to its right-hand side as seen on screen looking
-//! from its first point to its second). Hysteresis: a crossing is pending until an observed anchor
-//! gets `rules.hysteresis × box height` away from the line; a crossing back before that cancels both
-//! (jitter on the line, or a coasting prediction that drifted over and back). A pending crossing at
-//! the end of a track counts if the anchor ended at least half that distance beyond the line.
+//! Stage 3a: the crossings of a counted path with a screenline: direction from the movement across
+//! each segment, confirmed once an observed anchor is the margin (`rules.hysteresis` box heights)
+//! clear of the line, cancelled by a crossing back before that (docs/counting-rules.md).
 
 use super::paths::{distance_to_line, Counted};
 use crate::geometry::Point;

@@ -1,7 +1,6 @@
-//! Stage 2: fragments joined. A track that ends, and a new track that starts within
-//! `rules.join_seconds` where the first was heading (within `rules.join_box_heights` box heights)
-//! and across or next to a screenline, are one object whose identity the tracker lost: they are
-//! joined into one counted track before counting, greedily by distance.
+//! Stage 2: fragments of one object, broken near a screenline, joined into one counted track before
+//! counting: the pairs of an ended and a new track that qualify (docs/counting-rules.md, "Fragments
+//! joined"), taken nearest first, each end used once, chained.
 
 use super::paths::{distance_to_line, Counted, PathPoint, UNCLASSIFIED};
 use crate::geometry::{Point, Segment};

@@ -10,8 +10,8 @@
 //!    ground plane); `timeline` turns frames into times and interval labels;
 //! 5. the [`Report`], with every event sorted by time.
 //!
-//! The rules, with their reasons and limits, are in DEVELOPERS.md ("Counting rules") and
-//! docs/plan-format.md.
+//! The rules, with their reasons and limits, are written once, in `docs/counting-rules.md`; the
+//! stages' own notes say only how they are done.
 
 mod crossings;
 mod joins;

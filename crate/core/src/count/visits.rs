@@ -1,6 +1,5 @@
-//! Stage 3b: the visits of a counted path to a zone: when it entered and left (each confirmed by
-//! the zone's hysteresis, as crossings are) and the frames it spent inside. A track first seen
-//! inside has a visit without an entry; one last seen inside, a visit without an exit.
+//! Stage 3b: the visits of a counted path to a zone: entries and exits confirmed with the zone's
+//! margin, and the frames inside (docs/counting-rules.md, "Zones").
 
 use super::crossings::Moment;
 use super::paths::Counted;

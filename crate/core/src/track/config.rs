@@ -9,7 +9,7 @@ use schemars::JsonSchema;
 use serde::{Deserialize, Serialize};
 
 /// The method used when none is named: `deepsort` when the detections carry appearance embeddings,
-/// `sort` otherwise. See DEVELOPERS.md ("Choice of the default method") for the measurements behind
+/// `sort` otherwise. See docs/tracking.md ("Choice of the default method") for the measurements behind
 /// it.
 pub fn default_method(has_embeddings: bool) -> Method {
     if has_embeddings {

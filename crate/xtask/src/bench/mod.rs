@@ -1,0 +1,53 @@
+//! `cargo xtask bench`: tables in BENCHMARKS.md, rewritten in place between their markers.
+//!
+//! - **Speed** ([`tracking`]): every method at about 10, 50 and 200 detections per frame, timed as
+//!   whole `throughline track` runs (the fastest of [`measure::RUNS`]; wall clock; peak memory as
+//!   the child reports it), with the Python SORT peer ([`peer`]) on the same files.
+//! - **Grid** ([`tracking`]): every method × density (5, 30, 120 agents in view) × miss rate (10%,
+//!   15%): HOTA, IDF1, ID switches, count error per direction against the simulator's true
+//!   crossings, speed and memory (one run each), with the peer for `sort`.
+//! - **Counts** ([`counts`]; `--counts`, and after the grid in a full run): count accuracy at 30 in
+//!   view summed over five scenes per miss rate, with event-level missed and extra crossings.
+//! - **Detector** ([`detector`]; `--detector`): the motion detector on rendered simulator frames:
+//!   speed, box recall and precision against the simulator's truth, and counts from footage alone.
+//! - **Page** ([`page`]; `--page`): finding objects in headless Chromium; printed, not written.
+
+use std::path::Path;
+
+mod core_api;
+mod counts;
+mod detector;
+mod measure;
+mod methods;
+mod page;
+mod peer;
+mod scene;
+mod table;
+mod tracking;
+
+/// `bench [--quick | --grid | --counts | --detector | --page]`.
+pub fn bench(args: &[String]) -> Result<(), String> {
+    let has = |flag: &str| args.iter().any(|a| a == flag);
+    if has("--page") {
+        return page::page_bench();
+    }
+    if has("--detector") {
+        return detector::detector_bench(has("--quick"));
+    }
+    if has("--counts") {
+        return counts::counts_bench();
+    }
+    tracking::tracking_bench(has("--quick"), has("--grid"))?;
+    if !has("--quick") {
+        counts::counts_bench()?;
+    }
+    Ok(())
+}
+
+fn read(path: &Path) -> Result<Vec<u8>, String> {
+    std::fs::read(path).map_err(|e| format!("{}: {e}", path.display()))
+}
+
+fn read_json(path: &Path) -> Result<serde_json::Value, String> {
+    serde_json::from_slice(&read(path)?).map_err(|e| format!("{}: {e}", path.display()))
+}

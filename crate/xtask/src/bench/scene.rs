@@ -1,0 +1,96 @@
+//! The simulated scenes the benchmarks run on: one folder each under the target folder's bench/,
+//! with the simulator's detections, truth and the grid's plan.
+
+use std::path::{Path, PathBuf};
+
+use crate::paths::target;
+use crate::sh::run;
+
+/// Every tracking method, in the tables' order.
+pub const METHODS: [&str; 4] = ["iou", "sort", "bytetrack", "deepsort"];
+
+/// A simulated scene for the benchmarks: its folder under target/bench and the simulator's settings
+/// (the simulator's default miss rate where `miss` is None).
+pub struct Sim<'a> {
+    pub folder: &'a str,
+    pub seed: u64,
+    pub frames: u32,
+    pub density: f64,
+    pub width: f64,
+    pub height: f64,
+    pub miss: Option<f64>,
+    /// Length of the appearance vectors (0: none). It changes the random draws, so the scene too.
+    pub embedding_dim: u32,
+    /// Also render the frames as YUV4MPEG2 to this file.
+    pub render: Option<&'a Path>,
+}
+
+/// The folder of a scene (or of anything else a benchmark keeps) under target/bench.
+pub fn bench_dir(folder: &str) -> Result<PathBuf, String> {
+    Ok(target("bench")?.join(folder))
+}
+
+/// A plan for the simulated plaza of a given size: a midline across and a divide down the middle.
+pub fn sim_plan(width: f64, height: f64) -> String {
+    format!(
+        r#"{{"frame_rate": 25, "screenlines": [
+            {{"name": "midline", "points": [[{x0}, {ym}], [{x1}, {ym}]]}},
+            {{"name": "divide", "points": [[{xm}, {y0}], [{xm}, {y1}]]}}]}}"#,
+        x0 = width * 0.03,
+        x1 = width * 0.97,
+        ym = height * 0.64,
+        xm = width * 0.5,
+        y0 = height * 0.25,
+        y1 = height * 0.97
+    )
+}
+
+/// Writes the grid's plan and simulates the scene into its folder; returns the folder and the
+/// plan's path.
+pub fn simulate_scene(bin: &str, sim: &Sim) -> Result<(PathBuf, String), String> {
+    let dir = bench_dir(sim.folder)?;
+    std::fs::create_dir_all(&dir).map_err(|e| e.to_string())?;
+    let plan = dir.join("plan.json");
+    std::fs::write(&plan, sim_plan(sim.width, sim.height)).map_err(|e| e.to_string())?;
+    let text = |v: &dyn std::fmt::Display| v.to_string();
+    let mut args: Vec<String> = [
+        "simulate",
+        "--out-dir",
+        &text(&dir.display()),
+        "--seed",
+        &text(&sim.seed),
+        "--frames",
+        &text(&sim.frames),
+        "--density",
+        &text(&sim.density),
+        "--width",
+        &text(&sim.width),
+        "--height",
+        &text(&sim.height),
+        "--embedding-dim",
+        &text(&sim.embedding_dim),
+        "--plan",
+        &text(&plan.display()),
+    ]
+    .map(String::from)
+    .to_vec();
+    if let Some(m) = sim.miss {
+        args.extend(["--miss-rate".into(), m.to_string()]);
+    }
+    if let Some(r) = sim.render {
+        args.extend(["--render".into(), r.display().to_string()]);
+    }
+    run(bin, &args.iter().map(String::as_str).collect::<Vec<_>>())?;
+    Ok((dir, plan.display().to_string()))
+}
+
+/// The simulator's detections for `method`: with appearance vectors (CSV) for deepsort, else the
+/// benchmark text.
+pub fn detections_for(dir: &Path, method: &str) -> String {
+    let file = if method == "deepsort" {
+        "detections.csv"
+    } else {
+        "detections.txt"
+    };
+    dir.join(file).display().to_string()
+}
