@@ -299,7 +299,7 @@ test("a long tracking run can be cancelled; the detections and plan are kept and
 test("damaged footage: the frames before the damage are searched and kept, with a message saying so", async () => {
   const { page, seen } = await openPage(`${env.server.origin}/`);
   // The demo footage with 4 KB overwritten half-way: the WebM reader stops there (checked natively
-  // in crate/wasm/tests/demux.rs); the video element still opens it.
+  // in crate/footage/tests/demux.rs); the video element still opens it.
   const bytes = readFileSync(demo("footage.webm"));
   const from = Math.floor(bytes.length / 2);
   bytes.fill(0xff, from, from + 4096);

@@ -11,7 +11,7 @@ use crate::sh::{node_in, run, run_in, works};
 use crate::{invariants, site};
 
 /// Set for `cargo test` by this task: the tests that need ffmpeg fail when it is missing instead
-/// of skipping (crate/cli/tests/cli.rs, crate/wasm/tests/demux.rs read it).
+/// of skipping (crate/cli/tests/cli.rs, crate/footage/tests/demux.rs read it).
 const REQUIRE_FFMPEG_ENV: &str = "THROUGHLINE_REQUIRE_FFMPEG";
 
 pub fn test() -> Result<(), String> {

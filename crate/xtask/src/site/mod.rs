@@ -50,6 +50,11 @@ pub fn build() -> Result<(), String> {
     )?;
     write(&site.join("style.css"), parts.css.as_bytes())?;
     write(&site.join("worker.js"), parts.worker.as_bytes())?;
+    // The modules are built afresh, so a module removed from web/js/ is not served any more.
+    let js = site.join("js");
+    if js.exists() {
+        fs::remove_dir_all(&js).map_err(|e| format!("{}: {e}", js.display()))?;
+    }
     for (name, text) in &parts.modules {
         write(&site.join("js").join(name), text.as_bytes())?;
     }
