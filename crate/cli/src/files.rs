@@ -2,6 +2,7 @@
 //! command returns (a message naming the file, and the exit code).
 
 use std::path::Path;
+use throughline_core::edits::Edit;
 use throughline_core::plan;
 use throughline_core::track::{files as tracks_io, Tracks};
 
@@ -79,4 +80,15 @@ pub fn tracks_text(tracks: &Tracks, path: Option<&Path>) -> String {
         }
         _ => tracks_io::to_json(tracks),
     }
+}
+
+/// The edits of an edits file or a project file (`--edits`); none without a path.
+pub fn read_edits(path: Option<&Path>) -> Result<Vec<Edit>, Failure> {
+    let Some(path) = path else {
+        return Ok(Vec::new());
+    };
+    let bytes = read_file(path)?;
+    let text = std::str::from_utf8(&bytes)
+        .map_err(|_| bad_input(path, "the edits file is not UTF-8 text"))?;
+    throughline_core::project::edits_from_json(text).map_err(|e| bad_input(path, e))
 }

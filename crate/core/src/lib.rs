@@ -11,11 +11,14 @@
 pub mod count;
 pub mod detect;
 pub mod detections;
+pub mod edits;
 pub mod error;
 pub mod geometry;
 pub mod pipeline;
 pub mod plan;
+pub mod project;
 pub mod report;
+pub mod review;
 pub mod text;
 pub mod track;
 

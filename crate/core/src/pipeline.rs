@@ -4,6 +4,7 @@
 
 use crate::count;
 use crate::detections::Detections;
+use crate::edits::{self, Edit, Outcome};
 use crate::error::Error;
 use crate::plan::Plan;
 use crate::report::Report;
@@ -29,10 +30,33 @@ pub fn track(
     track::run_tracker(detections, config, progress)
 }
 
-/// Counts tracks against a plan. `tracker`: the settings the tracks were made with, when known
-/// (tracks read from a benchmark text file carry none).
-pub fn count(tracks: &Tracks, plan: &Plan, tracker: Option<&TrackerConfig>) -> Report {
-    count::count(tracks, plan, tracker)
+/// The tracks after the person's edits on tracks (merge, split, delete, reclassify), and what
+/// became of each of those edits (`None` for the edits on counts).
+pub fn correct_tracks(tracks: &Tracks, edits: &[Edit]) -> (Tracks, Vec<Option<Outcome>>) {
+    edits::apply_to_tracks(tracks, edits)
+}
+
+/// Counts tracks against a plan, with the person's edits: those on tracks first, then those on
+/// counts; the report lists every edit with what it did or why it could not be applied.
+/// `tracker`: the settings the tracks were made with, when known (tracks read from a benchmark
+/// text file carry none).
+pub fn count(
+    tracks: &Tracks,
+    plan: &Plan,
+    tracker: Option<&TrackerConfig>,
+    edits: &[Edit],
+) -> Report {
+    if edits.is_empty() {
+        return count::count(tracks, plan, tracker);
+    }
+    let (edited, on_tracks) = correct_tracks(tracks, edits);
+    let (mut report, on_counts) = count::corrected(&edited, plan, tracker, edits);
+    report.edits = on_tracks
+        .into_iter()
+        .zip(on_counts)
+        .filter_map(|(a, b)| a.or(b))
+        .collect();
+    report
 }
 
 /// Tracks, then counts with the settings the tracks were made with.
@@ -43,6 +67,6 @@ pub fn run(
     progress: &mut dyn FnMut(u32, u32),
 ) -> Result<(Tracks, Report), Error> {
     let tracks = track(detections, config, progress)?;
-    let report = count(&tracks, plan, Some(&tracks.config));
+    let report = count(&tracks, plan, Some(&tracks.config), &[]);
     Ok((tracks, report))
 }

@@ -13,6 +13,7 @@ fn track(id: u32, class: &str, path: &[(u32, f64, f64, bool)]) -> Track {
         id,
         class: Some(class.to_string()),
         mean_score: 0.9,
+        class_votes: Vec::new(),
         boxes: path
             .iter()
             .map(|&(frame, x, y, observed)| TrackBox {

@@ -1,18 +1,20 @@
 //! The documents' JSON Schemas against what the code reads and writes:
-//! - `docs/report.schema.json` is generated from the `Report` type (schemars) and must be what is
-//!   committed; the demo's report, made here, must validate against it with an independent
+//! - `docs/report.schema.json`, `docs/project.schema.json` and `docs/edits.schema.json` are
+//!   generated from their types (schemars) and must be what is committed; the demo's report, made here, must validate against it with an independent
 //!   validator (the `jsonschema` crate), and must read back into the same bytes;
 //! - `docs/plan.schema.json` is written by hand (with the ranges the checks apply): its fields must
 //!   be exactly the fields of the `PlanSpec` type, its examples must validate, and values it
 //!   forbids must be refused by the plan's checks.
 //!
-//! To rewrite `docs/report.schema.json` after changing the report's types:
+//! To rewrite them after changing the types:
 //! `THROUGHLINE_WRITE_SCHEMAS=1 cargo test -p throughline-core --test schemas`.
 
 use serde_json::Value;
 use std::collections::{BTreeMap, BTreeSet};
 use std::path::PathBuf;
+use throughline_core::edits::EditList;
 use throughline_core::plan::Plan;
+use throughline_core::project::Project;
 use throughline_core::report::Report;
 use throughline_core::{pipeline, read_detections};
 
@@ -47,21 +49,25 @@ fn validate(schema: &Value, instance: &Value, what: &str) {
 }
 
 #[test]
-fn the_report_schema_is_generated_from_the_type() {
-    let generated = format!(
-        "{}\n",
-        serde_json::to_string_pretty(&Report::schema()).unwrap()
-    );
-    let path = root().join("docs/report.schema.json");
-    if std::env::var_os("THROUGHLINE_WRITE_SCHEMAS").is_some() {
-        std::fs::write(&path, &generated).unwrap();
+fn the_document_schemas_are_generated_from_the_types() {
+    let documents = [
+        ("docs/report.schema.json", Report::schema()),
+        ("docs/project.schema.json", Project::schema()),
+        ("docs/edits.schema.json", EditList::schema()),
+    ];
+    for (path, schema) in documents {
+        let generated = format!("{}\n", serde_json::to_string_pretty(&schema).unwrap());
+        let file = root().join(path);
+        if std::env::var_os("THROUGHLINE_WRITE_SCHEMAS").is_some() {
+            std::fs::write(&file, &generated).unwrap();
+        }
+        let committed = std::fs::read_to_string(&file).unwrap_or_default();
+        assert!(
+            committed == generated,
+            "{path} is not the schema of its type: rewrite it with \
+             THROUGHLINE_WRITE_SCHEMAS=1 cargo test -p throughline-core --test schemas"
+        );
     }
-    let committed = std::fs::read_to_string(&path).unwrap_or_default();
-    assert!(
-        committed == generated,
-        "docs/report.schema.json is not the schema of the Report type: rewrite it with \
-         THROUGHLINE_WRITE_SCHEMAS=1 cargo test -p throughline-core --test schemas"
-    );
 }
 
 #[test]

@@ -1,6 +1,8 @@
 //! `throughline count`: count existing tracks against a plan; and the report writing `run` shares.
 
-use crate::files::{bad_input, looks_like_json_object, read_file, read_plan, write_file, Failure};
+use crate::files::{
+    bad_input, looks_like_json_object, read_edits, read_file, read_plan, write_file, Failure,
+};
 use std::path::{Path, PathBuf};
 use throughline_core::pipeline;
 use throughline_core::report::{self, Report};
@@ -23,10 +25,14 @@ pub struct Args {
     /// Print no summary.
     #[arg(short, long)]
     quiet: bool,
+    /// Corrections to replay: an edits file or a project file saved by the page.
+    #[arg(long, value_name = "FILE")]
+    edits: Option<PathBuf>,
 }
 
 pub fn run(args: Args) -> Result<(), Failure> {
     let plan = read_plan(&args.plan)?;
+    let edits = read_edits(args.edits.as_deref())?;
     let path = &args.tracks;
     let bytes = read_file(path)?;
     let (tracks, tracker) = if looks_like_json_object(&bytes) {
@@ -37,7 +43,7 @@ pub fn run(args: Args) -> Result<(), Failure> {
         let boxes = tracks_io::read_benchmark_boxes(&bytes).map_err(|e| bad_input(path, e))?;
         (tracks_io::boxes_to_tracks(&boxes), None)
     };
-    let report = pipeline::count(&tracks, &plan, tracker.as_ref());
+    let report = pipeline::count(&tracks, &plan, tracker.as_ref(), &edits);
     let out = Outputs {
         report: args.output.as_deref(),
         csv: args.csv.as_deref(),
@@ -65,6 +71,9 @@ pub fn write_report(report: &Report, out: &Outputs, quiet: bool) -> Result<(), F
     if !quiet {
         if report.screenlines.is_empty() && report.zones.is_empty() {
             eprintln!("note: the plan has no screenlines and no zones, so nothing was counted");
+        }
+        for e in report.edits.iter().filter(|e| !e.applied) {
+            eprintln!("warning: an edit was not applied: {}", e.note);
         }
         for l in &report.screenlines {
             eprintln!(

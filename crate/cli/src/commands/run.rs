@@ -3,7 +3,7 @@
 use super::count::{write_report, Outputs};
 use super::detect::detect_footage;
 use super::track::{track_detections, track_file, TrackingArgs};
-use crate::files::{read_plan, read_settings, tracks_text, write_file, Failure};
+use crate::files::{read_edits, read_plan, read_settings, tracks_text, write_file, Failure};
 use crate::progress::Timer;
 use std::path::{Path, PathBuf};
 use throughline_core::pipeline;
@@ -43,11 +43,15 @@ pub struct Args {
     tracks: Option<PathBuf>,
     #[command(flatten)]
     tracking: TrackingArgs,
+    /// Corrections to replay: an edits file or a project file saved by the page.
+    #[arg(long, value_name = "FILE")]
+    edits: Option<PathBuf>,
 }
 
 pub fn run(args: Args) -> Result<(), Failure> {
     // The plan is checked first: a mistake in it should not cost a whole tracking run.
     let plan = read_plan(&args.plan)?;
+    let edits = read_edits(args.edits.as_deref())?;
     let mut timer = Timer::new();
     let how = &args.tracking;
     let tracks = match (&args.y4m, &args.detections) {
@@ -72,7 +76,7 @@ pub fn run(args: Args) -> Result<(), Failure> {
     if let Some(p) = &args.tracks {
         write_file(p, &tracks_text(&tracks, Some(p)))?;
     }
-    let report = pipeline::count(&tracks, &plan, Some(&tracks.config));
+    let report = pipeline::count(&tracks, &plan, Some(&tracks.config), &edits);
     let out = Outputs {
         report: args.output.as_deref(),
         csv: args.csv.as_deref(),

@@ -1,5 +1,5 @@
-//! Stage 4a: a screenline's tallies: its crossings as events, counted by direction, class and
-//! interval, with the peak hours.
+//! Stage 3a′ and 4a: a screenline's crossings as events, and its tallies from those events (after
+//! the person's corrections): by direction, class and interval, with the peak hours.
 
 use super::crossings::crossings;
 use super::paths::Counted;
@@ -11,13 +11,36 @@ use crate::report::{
 };
 use std::collections::BTreeMap;
 
-/// The report of one screenline, and its events (in counted-track order).
-pub(super) fn screenline(
+/// A screenline's crossings as events, in counted-track order.
+pub(super) fn line_events(
     line: &Screenline,
     counted: &[Counted],
     timeline: &Timeline,
     spec: &PlanSpec,
-) -> (ScreenlineReport, Vec<Event>) {
+) -> Vec<Event> {
+    let mut events = Vec::new();
+    for c in counted {
+        for x in crossings(c, line, spec.rules.hysteresis) {
+            let direction = if x.forward {
+                (Direction::Forward, line.forward.as_str())
+            } else {
+                (Direction::Backward, line.backward.as_str())
+            };
+            events.push(timeline.event(c, EventKind::Screenline, &line.name, direction, x.moment));
+        }
+    }
+    events
+}
+
+/// The report of one screenline from its events: by direction, class and interval, with the
+/// peak hours. `added` and `rejected` are the person's corrections to it.
+pub(super) fn tally(
+    line: &Screenline,
+    events: &[&Event],
+    (added, rejected): (u64, u64),
+    timeline: &Timeline,
+    spec: &PlanSpec,
+) -> ScreenlineReport {
     let mut intervals: Vec<IntervalCount> = (0..timeline.count())
         .map(|i| {
             let (start, end, partial) = timeline.bounds(i);
@@ -34,46 +57,38 @@ pub(super) fn screenline(
     let mut by_class: BTreeMap<String, DirectionCounts> = BTreeMap::new();
     let mut total = DirectionCounts::default();
     let mut inferred = 0;
-    let mut events = Vec::new();
-    for c in counted {
-        for x in crossings(c, line, spec.rules.hysteresis) {
-            let direction = if x.forward {
-                (Direction::Forward, line.forward.as_str())
-            } else {
-                (Direction::Backward, line.backward.as_str())
-            };
-            let e = timeline.event(c, EventKind::Screenline, &line.name, direction, x.moment);
-            let slot = &mut intervals[timeline.index(e.seconds)];
-            if x.forward {
-                slot.forward += 1;
-            } else {
-                slot.backward += 1;
-            }
-            slot.by_class
-                .entry(c.class.clone())
-                .or_default()
-                .add(x.forward);
-            by_class.entry(c.class.clone()).or_default().add(x.forward);
-            total.add(x.forward);
-            inferred += u64::from(x.moment.inferred);
-            events.push(e);
+    for e in events {
+        let forward = e.direction == Direction::Forward;
+        let slot = &mut intervals[timeline.index(e.seconds)];
+        if forward {
+            slot.forward += 1;
+        } else {
+            slot.backward += 1;
         }
+        slot.by_class
+            .entry(e.class.clone())
+            .or_default()
+            .add(forward);
+        by_class.entry(e.class.clone()).or_default().add(forward);
+        total.add(forward);
+        inferred += u64::from(e.inferred);
     }
     let peaks = PeakHours::of(&intervals, spec.interval_minutes);
-    let report = ScreenlineReport {
+    ScreenlineReport {
         name: line.name.clone(),
         forward_label: line.forward.clone(),
         backward_label: line.backward.clone(),
         forward: total.forward,
         backward: total.backward,
         inferred,
+        added,
+        rejected,
         by_class,
         peak_hour: peaks.find(&|i| i.forward + i.backward),
         peak_hour_forward: peaks.find(&|i| i.forward),
         peak_hour_backward: peaks.find(&|i| i.backward),
         intervals,
-    };
-    (report, events)
+    }
 }
 
 /// The whole intervals of a line, for finding peak hours in them.

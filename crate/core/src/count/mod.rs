@@ -13,6 +13,7 @@
 //! The rules, with their reasons and limits, are written once, in `docs/counting-rules.md`; the
 //! stages' own notes say only how they are done.
 
+mod corrections;
 mod crossings;
 mod joins;
 mod lines;
@@ -27,24 +28,47 @@ mod zones;
 pub use paths::UNCLASSIFIED;
 pub use stats::{peak_hour, percentile, HourRun};
 
+use crate::edits::{Edit, Outcome};
 use crate::plan::Plan;
-use crate::report::{Report, CAUTION, FORMAT, VERSION};
+use crate::report::{Event, Report, CAUTION, FORMAT, VERSION};
 use crate::track::{TrackerConfig, Tracks};
 use timeline::Timeline;
 
 /// Counts tracks against a plan. `tracker` is recorded in the report as the settings the tracks
 /// were made with.
 pub fn count(tracks: &Tracks, plan: &Plan, tracker: Option<&TrackerConfig>) -> Report {
+    corrected(tracks, plan, tracker, &[]).0
+}
+
+/// Counts tracks against a plan with the person's corrections to the counts (`edits`: the edits
+/// on counts are applied, the others passed over); the report, and an outcome for each edit on
+/// counts (`None` for the others).
+pub fn corrected(
+    tracks: &Tracks,
+    plan: &Plan,
+    tracker: Option<&TrackerConfig>,
+    edits: &[Edit],
+) -> (Report, Vec<Option<Outcome>>) {
     let timeline = Timeline::new(tracks, plan);
     let (counted, joins) = joins::join_fragments(paths::pieces(tracks, plan.spec.anchor), plan);
-    let mut events = Vec::new();
+    let mut events: Vec<Event> = plan
+        .screenlines
+        .iter()
+        .flat_map(|line| lines::line_events(line, &counted, &timeline, &plan.spec))
+        .collect();
+    let fixes = corrections::correct(&mut events, edits, plan, &timeline);
     let screenlines = plan
         .screenlines
         .iter()
         .map(|line| {
-            let (report, line_events) = lines::screenline(line, &counted, &timeline, &plan.spec);
-            events.extend(line_events);
-            report
+            let mine: Vec<&Event> = events.iter().filter(|e| e.name == line.name).collect();
+            let added = mine.iter().filter(|e| e.added).count() as u64;
+            let rejected = fixes
+                .rejected
+                .iter()
+                .filter(|e| e.name == line.name)
+                .count() as u64;
+            lines::tally(line, &mine, (added, rejected), &timeline, &plan.spec)
         })
         .collect();
     let mut zone_meetings = vec![Vec::new(); counted.len()];
@@ -62,13 +86,10 @@ pub fn count(tracks: &Tracks, plan: &Plan, tracker: Option<&TrackerConfig>) -> R
         .collect();
     let (movements, single) = movements::movements(&counted, zone_meetings, &events);
     let speeds = speeds::speeds(&counted, plan);
-    events.sort_by(|a, b| {
-        a.seconds
-            .total_cmp(&b.seconds)
-            .then(a.track.cmp(&b.track))
-            .then(a.name.cmp(&b.name))
-    });
-    Report {
+    events.sort_by(by_time);
+    let mut rejected_events = fixes.rejected;
+    rejected_events.sort_by(by_time);
+    let report = Report {
         format: FORMAT.to_string(),
         version: VERSION,
         generator: format!("throughline {}", crate::VERSION),
@@ -85,5 +106,16 @@ pub fn count(tracks: &Tracks, plan: &Plan, tracker: Option<&TrackerConfig>) -> R
         speeds,
         joins,
         events,
-    }
+        edits: Vec::new(),
+        rejected_events,
+    };
+    (report, fixes.outcomes)
+}
+
+/// Events in time order; among equals by counted track, then by line or zone name.
+fn by_time(a: &Event, b: &Event) -> std::cmp::Ordering {
+    a.seconds
+        .total_cmp(&b.seconds)
+        .then(a.track.cmp(&b.track))
+        .then(a.name.cmp(&b.name))
 }

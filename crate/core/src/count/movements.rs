@@ -15,7 +15,10 @@ pub(super) fn movements(
     events: &[Event],
 ) -> (Vec<Movement>, u64) {
     let mut meetings = zone_meetings;
-    for e in events.iter().filter(|e| e.kind == EventKind::Screenline) {
+    for e in events
+        .iter()
+        .filter(|e| e.kind == EventKind::Screenline && !e.added)
+    {
         if let Ok(ci) = counted.binary_search_by_key(&e.track, |c| c.ids[0]) {
             meetings[ci].push((e.seconds, e.name.clone()));
         }

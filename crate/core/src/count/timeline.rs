@@ -92,6 +92,8 @@ impl Timeline {
             x: (m.at.x * 100.0).round() / 100.0,
             y: (m.at.y * 100.0).round() / 100.0,
             inferred: m.inferred,
+            added: false,
+            reason: None,
         }
     }
 }

@@ -9,6 +9,7 @@ mod csv;
 
 pub use csv::counts_csv;
 
+use crate::edits::Outcome;
 use crate::plan::PlanSpec;
 use crate::track::TrackerConfig;
 use schemars::JsonSchema;
@@ -73,6 +74,20 @@ pub struct Event {
     pub y: f64,
     /// True when the anchor was predicted (the object unseen) or the step bridges joined fragments.
     pub inferred: bool,
+    /// True for a crossing a person added (the tool missed it); it has no track (0).
+    #[serde(default, skip_serializing_if = "is_false")]
+    pub added: bool,
+    /// Why a person added or rejected it, when they said.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub reason: Option<String>,
+}
+
+fn is_false(b: &bool) -> bool {
+    !*b
+}
+
+fn is_zero(n: &u64) -> bool {
+    *n == 0
 }
 
 /// Counts in one interval.
@@ -124,6 +139,11 @@ pub struct ScreenlineReport {
     pub forward: u64,
     pub backward: u64,
     pub inferred: u64,
+    /// Crossings a person added, and counted crossings a person rejected (not in the totals).
+    #[serde(default, skip_serializing_if = "is_zero")]
+    pub added: u64,
+    #[serde(default, skip_serializing_if = "is_zero")]
+    pub rejected: u64,
     pub by_class: BTreeMap<String, DirectionCounts>,
     pub intervals: Vec<IntervalCount>,
     /// Busiest hour of both directions together, and of each direction; `None` for footage shorter
@@ -229,6 +249,12 @@ pub struct Report {
     pub speeds: Option<SpeedReport>,
     pub joins: Vec<Join>,
     pub events: Vec<Event>,
+    /// The person's corrections, in order, each with what it did or why it could not be applied.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub edits: Vec<Outcome>,
+    /// Counted crossings a person rejected, with their reasons; not in any count.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub rejected_events: Vec<Event>,
 }
 
 impl Report {

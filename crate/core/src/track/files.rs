@@ -219,6 +219,7 @@ pub fn from_json(bytes: &[u8]) -> Result<Tracks, Error> {
             id: t.id,
             class: t.class,
             mean_score: t.mean_score,
+            class_votes: Vec::new(),
             boxes: t
                 .boxes
                 .into_iter()
@@ -338,6 +339,7 @@ pub fn boxes_to_tracks(rows: &[IdBox]) -> Tracks {
                 id: u32::try_from(id).unwrap_or(u32::MAX),
                 class: None,
                 mean_score: 1.0,
+                class_votes: Vec::new(),
                 boxes,
             }
         })

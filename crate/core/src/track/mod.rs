@@ -47,6 +47,9 @@ pub struct Track {
     pub class: Option<String>,
     /// Mean score of its observed boxes.
     pub mean_score: f64,
+    /// How many of its detections carried each class, most first (ties: first seen in the file);
+    /// empty where unknown (tracks read from a file).
+    pub class_votes: Vec<(String, u32)>,
     /// One box per frame from its first detection to its last, gaps filled with predicted boxes.
     /// Predicted boxes after the last detection are not kept: the object was no longer seen.
     pub boxes: Vec<TrackBox>,

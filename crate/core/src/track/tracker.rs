@@ -255,16 +255,21 @@ fn finish(t: LiveTrack, detections: &Detections) -> Track {
     }
     let observed = boxes.iter().filter(|b| b.observed).count().max(1);
     // Most votes wins; among equals, the class that appears first in the file (lowest index).
-    let class = t
-        .class_votes
+    let mut votes = t.class_votes;
+    votes.sort_by(|a, b| b.1.cmp(&a.1).then(a.0.cmp(&b.0)));
+    let class_votes: Vec<(String, u32)> = votes
         .iter()
-        .max_by(|a, b| a.1.cmp(&b.1).then(b.0.cmp(&a.0)))
-        .and_then(|&(c, _)| detections.class_name(Some(c)))
-        .map(str::to_string);
+        .filter_map(|&(c, n)| {
+            detections
+                .class_name(Some(c))
+                .map(|name| (name.to_string(), n))
+        })
+        .collect();
     Track {
         id: t.id.unwrap_or(0),
-        class,
+        class: class_votes.first().map(|(name, _)| name.clone()),
         mean_score: t.score_sum / observed as f64,
+        class_votes,
         boxes,
     }
 }

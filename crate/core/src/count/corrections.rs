@@ -1,0 +1,149 @@
+//! The person's corrections to the counts: a rejected crossing leaves the events (kept apart, with
+//! its reason), an added one joins them. Applied to the screenline events before they are tallied,
+//! so every total, interval and peak hour follows.
+
+use super::timeline::Timeline;
+use crate::edits::{Edit, Outcome, Way};
+use crate::plan::{Plan, Screenline};
+use crate::report::{Direction, Event, EventKind};
+
+/// The events after the corrections, the rejected events, and an outcome for each edit on counts
+/// (`None` for the edits on tracks).
+pub(super) struct Corrected {
+    pub rejected: Vec<Event>,
+    pub outcomes: Vec<Option<Outcome>>,
+}
+
+pub(super) fn correct(
+    events: &mut Vec<Event>,
+    edits: &[Edit],
+    plan: &Plan,
+    timeline: &Timeline,
+) -> Corrected {
+    let mut rejected = Vec::new();
+    let outcomes = edits
+        .iter()
+        .map(|edit| {
+            let result = match edit {
+                Edit::RejectCrossing { .. } => reject(events, edit, &mut rejected),
+                Edit::AddCrossing { .. } => add(events, edit, plan, timeline),
+                _ => return None,
+            };
+            Some(Outcome {
+                edit: edit.clone(),
+                applied: result.is_ok(),
+                note: result.unwrap_or_else(|why| why),
+            })
+        })
+        .collect();
+    Corrected { rejected, outcomes }
+}
+
+fn direction(way: Way) -> Direction {
+    match way {
+        Way::Forward => Direction::Forward,
+        Way::Backward => Direction::Backward,
+    }
+}
+
+fn reject(
+    events: &mut Vec<Event>,
+    edit: &Edit,
+    rejected: &mut Vec<Event>,
+) -> Result<String, String> {
+    let Edit::RejectCrossing {
+        screenline,
+        direction: way,
+        track,
+        frame,
+        reason,
+    } = edit
+    else {
+        return Err(String::new());
+    };
+    let i = events
+        .iter()
+        .position(|e| {
+            e.kind == EventKind::Screenline
+                && !e.added
+                && e.name == *screenline
+                && e.direction == direction(*way)
+                && e.track == *track
+                && e.frame == *frame
+        })
+        .ok_or_else(|| {
+            format!(
+                "no crossing of `{screenline}` by track {track} at frame {frame} is counted now: \
+                 the tracks or the plan have changed since this edit was made"
+            )
+        })?;
+    let mut e = events.remove(i);
+    e.reason = reason.clone();
+    rejected.push(e);
+    Ok(format!(
+        "the crossing of `{screenline}` by track {track} at frame {frame} is not counted"
+    ))
+}
+
+fn add(
+    events: &mut Vec<Event>,
+    edit: &Edit,
+    plan: &Plan,
+    timeline: &Timeline,
+) -> Result<String, String> {
+    let Edit::AddCrossing {
+        screenline,
+        direction: way,
+        class,
+        frame,
+        x,
+        y,
+        reason,
+    } = edit
+    else {
+        return Err(String::new());
+    };
+    let line = plan
+        .screenlines
+        .iter()
+        .find(|l| l.name == *screenline)
+        .ok_or_else(|| format!("the plan has no screenline named `{screenline}` now"))?;
+    if *frame == 0 || *frame > timeline.frame_count {
+        return Err(format!(
+            "frame {frame} is not in the footage (frames 1 to {})",
+            timeline.frame_count
+        ));
+    }
+    let (mx, my) = middle(line);
+    let seconds = timeline.seconds(f64::from(*frame));
+    events.push(Event {
+        track: 0,
+        track_ids: Vec::new(),
+        kind: EventKind::Screenline,
+        name: line.name.clone(),
+        direction: direction(*way),
+        label: match way {
+            Way::Forward => line.forward.clone(),
+            Way::Backward => line.backward.clone(),
+        },
+        frame: *frame,
+        seconds: (seconds * 1000.0).round() / 1000.0,
+        time: timeline.label(seconds),
+        class: class.clone(),
+        x: (x.unwrap_or(mx) * 100.0).round() / 100.0,
+        y: (y.unwrap_or(my) * 100.0).round() / 100.0,
+        inferred: false,
+        added: true,
+        reason: reason.clone(),
+    });
+    Ok(format!(
+        "a {class} crossing of `{screenline}` added at frame {frame}"
+    ))
+}
+
+/// The middle of a line's first segment: where an added crossing is drawn when no place is given.
+fn middle(line: &Screenline) -> (f64, f64) {
+    line.segments.first().map_or((0.0, 0.0), |s| {
+        ((s.a.x + s.b.x) / 2.0, (s.a.y + s.b.y) / 2.0)
+    })
+}

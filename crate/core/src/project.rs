@@ -1,0 +1,159 @@
+//! The project file: one piece of work, kept and reopened. It holds the plan, the tracking
+//! method and settings, the person's edits and review decisions, and what the footage and the
+//! detections were (a fingerprint: name, size, duration, a SHA-256 of the first megabyte), so a
+//! project opened against other files can say so. The page writes it; the command line reads its
+//! edits (`--edits`) and plan.
+
+use crate::edits::{self, Edit};
+use crate::error::{Error, ErrorKind};
+use crate::plan::PlanSpec;
+use crate::track::Method;
+use schemars::JsonSchema;
+use serde::{Deserialize, Serialize};
+
+/// Identifies a project file.
+pub const FORMAT: &str = "throughline-project";
+
+/// Version of the project file's layout.
+pub const VERSION: u32 = 1;
+
+/// What a file was, to tell whether a project is opened against the same one.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, JsonSchema)]
+pub struct Fingerprint {
+    /// File name as it was opened (no folder: the project travels).
+    pub name: String,
+    /// Size in bytes.
+    pub size: u64,
+    /// SHA-256 of the first MiB (or the whole file when smaller), lowercase hex.
+    pub head_sha256: String,
+    /// Duration in seconds, for footage.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub duration_seconds: Option<f64>,
+}
+
+impl Fingerprint {
+    /// Why `other` is not the file this fingerprint was taken of, or `None` when it is.
+    pub fn differs(&self, other: &Fingerprint) -> Option<String> {
+        if self.size != other.size || self.head_sha256 != other.head_sha256 {
+            return Some(format!(
+                "{} is not the file this project was made with ({}, {} bytes)",
+                other.name, self.name, self.size
+            ));
+        }
+        match (self.duration_seconds, other.duration_seconds) {
+            (Some(a), Some(b)) if (a - b).abs() > 0.5 => Some(format!(
+                "{} lasts {b:.1} s, but the project's footage lasted {a:.1} s",
+                other.name
+            )),
+            _ => None,
+        }
+    }
+}
+
+/// The tracking the project uses: a method (or the default for the detections) and settings.
+#[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize, JsonSchema)]
+pub struct Tracking {
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub method: Option<Method>,
+    /// A tracker settings object (docs/tracker-settings.md), when not the method's defaults.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub settings: Option<serde_json::Value>,
+}
+
+/// A person's decision on one doubtful moment of the review queue.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, JsonSchema)]
+pub struct ReviewMark {
+    /// The doubt's key, as the queue gives it.
+    pub key: String,
+    /// `accepted` (the count stands) or `rejected` (it was corrected).
+    pub decision: String,
+}
+
+/// A project file.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, JsonSchema)]
+pub struct Project {
+    /// Always `throughline-project` (filled in when written).
+    #[serde(default)]
+    pub format: String,
+    #[serde(default)]
+    pub version: u32,
+    /// The program and version that wrote it.
+    #[serde(default)]
+    pub generator: String,
+    pub plan: PlanSpec,
+    #[serde(default)]
+    pub tracking: Tracking,
+    #[serde(default)]
+    pub edits: Vec<Edit>,
+    #[serde(default)]
+    pub review: Vec<ReviewMark>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub footage: Option<Fingerprint>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub detections: Option<Fingerprint>,
+}
+
+impl Project {
+    /// Reads a project file; errors name the line and column.
+    pub fn from_json(text: &str) -> Result<Project, Error> {
+        let p: Project = serde_json::from_str(text).map_err(|e| {
+            Error::from_json(
+                ErrorKind::BadJson,
+                &e,
+                "; expected a Throughline project file",
+            )
+        })?;
+        if p.format != FORMAT {
+            return Err(Error::new(
+                ErrorKind::BadJson,
+                format!("`format` is `{}`, expected `{FORMAT}`", p.format),
+            ));
+        }
+        if p.version != VERSION {
+            return Err(Error::new(
+                ErrorKind::BadJson,
+                format!(
+                    "project file version {} is not known to this program (it reads version {VERSION})",
+                    p.version
+                ),
+            ));
+        }
+        Ok(p)
+    }
+
+    /// The project file's text, marked with its format, version and this program.
+    pub fn to_json(&self) -> String {
+        let mut p = self.clone();
+        p.format = FORMAT.to_string();
+        p.version = VERSION;
+        p.generator = format!("throughline {}", crate::VERSION);
+        serde_json::to_string_pretty(&p).unwrap_or_default()
+    }
+
+    /// The project file's JSON Schema, generated from these types: `docs/project.schema.json`.
+    pub fn schema() -> serde_json::Value {
+        serde_json::to_value(schemars::schema_for!(Project)).unwrap_or_default()
+    }
+}
+
+/// The edits of an edits file or of a project file, recognised by their `format`. Errors name the
+/// line and column, or say which format was expected.
+pub fn edits_from_json(text: &str) -> Result<Vec<Edit>, Error> {
+    let format = serde_json::from_str::<serde_json::Value>(text)
+        .ok()
+        .and_then(|v| v.get("format")?.as_str().map(str::to_string));
+    match format.as_deref() {
+        Some(FORMAT) => Ok(Project::from_json(text)?.edits),
+        Some(edits::FORMAT) => Ok(edits::EditList::from_json(text)?.edits),
+        Some(other) => Err(Error::new(
+            ErrorKind::BadJson,
+            format!(
+                "this is a `{other}` file, not corrections: give an edits file (`{}`) or a \
+                 project file (`{FORMAT}`)",
+                edits::FORMAT
+            ),
+        )),
+        // Not JSON, or no format: the edits file's reader says what is wrong where.
+        None => Ok(edits::EditList::from_json(text)?.edits),
+    }
+}

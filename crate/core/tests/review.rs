@@ -1,0 +1,123 @@
+//! The review queue on hand-worked scenes: each case builds the situation a person checking the
+//! footage should be sent to, and checks that the queue names it, first among what is there.
+
+use throughline_core::geometry::BBox;
+use throughline_core::pipeline;
+use throughline_core::plan::Plan;
+use throughline_core::review::{doubts, Doubt, DoubtKind};
+use throughline_core::track::{Method, Track, TrackBox, TrackerConfig, Tracks};
+
+/// A walk of a 20x50 box, bottom-centre from `(x0, y0)` at frame `f0`, `(dx, dy)` a frame, seen
+/// with `score` in every frame.
+fn walk(
+    id: u32,
+    f0: u32,
+    frames: u32,
+    (x0, y0): (f64, f64),
+    (dx, dy): (f64, f64),
+    score: f64,
+) -> Track {
+    Track {
+        id,
+        class: Some("pedestrian".into()),
+        mean_score: score,
+        class_votes: Vec::new(),
+        boxes: (0..frames)
+            .map(|k| {
+                let (x, y) = (x0 + dx * f64::from(k), y0 + dy * f64::from(k));
+                TrackBox {
+                    frame: f0 + k,
+                    bbox: BBox::new(x - 10.0, y - 50.0, 20.0, 50.0),
+                    score,
+                    observed: true,
+                }
+            })
+            .collect(),
+    }
+}
+
+/// A line at y = 200 across a 400x400 picture, 10 frames a second.
+const PLAN: &str = r#"{"frame_rate": 10, "screenlines": [{"name": "deck", "points": [[0, 200], [400, 200]]}],
+    "rules": {"join_seconds": 0}}"#;
+
+fn queue(list: Vec<Track>) -> Vec<Doubt> {
+    let plan = Plan::from_json(PLAN).unwrap();
+    let tracks = Tracks {
+        config: TrackerConfig::for_method(Method::Sort),
+        frame_count: 100,
+        tracks: list,
+    };
+    let report = pipeline::count(&tracks, &plan, None, &[]);
+    doubts(&tracks, &plan, &report, Some((400.0, 400.0)))
+}
+
+fn kinds(q: &[Doubt]) -> Vec<DoubtKind> {
+    q.iter().map(|d| d.kind).collect()
+}
+
+#[test]
+fn a_clean_walk_from_edge_to_edge_raises_no_doubt() {
+    // From the top edge (box top at y = 0) to past the bottom edge, confidently seen.
+    let q = queue(vec![walk(1, 1, 90, (200.0, 50.0), (0.0, 4.0), 0.9)]);
+    assert!(q.is_empty(), "{q:#?}");
+}
+
+#[test]
+fn a_short_track_that_appears_and_disappears_at_the_line_is_doubted() {
+    // Seen for 0.5 s around the line, in the middle of the picture.
+    let q = queue(vec![walk(1, 1, 5, (200.0, 190.0), (0.0, 4.0), 0.9)]);
+    let k = kinds(&q);
+    assert_eq!(k[0], DoubtKind::ShortTrack, "{q:#?}");
+    assert!(k.contains(&DoubtKind::StartsNearLine) && k.contains(&DoubtKind::EndsNearLine));
+    assert!(q[0].why.contains("0.5 s"), "{}", q[0].why);
+    let c = q[0].crossing.as_ref().unwrap();
+    assert_eq!((c.screenline.as_str(), c.track), ("deck", 1));
+}
+
+#[test]
+fn two_crossings_close_together_are_doubted_once() {
+    let q = queue(vec![
+        walk(1, 1, 90, (200.0, 50.0), (0.0, 4.0), 0.9),
+        walk(2, 3, 90, (210.0, 50.0), (0.0, 4.0), 0.9),
+    ]);
+    let close: Vec<&Doubt> = q
+        .iter()
+        .filter(|d| d.kind == DoubtKind::CloseTogether)
+        .collect();
+    assert_eq!(close.len(), 1, "{q:#?}");
+    assert_eq!(close[0].tracks, vec![1, 2]);
+    assert!(close[0].why.contains("0.2 s"), "{}", close[0].why);
+}
+
+#[test]
+fn a_crossing_the_detector_barely_saw_is_doubted() {
+    let q = queue(vec![walk(1, 1, 90, (200.0, 50.0), (0.0, 4.0), 0.3)]);
+    assert_eq!(kinds(&q), vec![DoubtKind::BarelySeen], "{q:#?}");
+    assert!(q[0].why.contains("0.30"), "{}", q[0].why);
+}
+
+#[test]
+fn a_crossing_while_hidden_and_a_changing_class_are_doubted() {
+    let mut t = walk(1, 1, 90, (200.0, 50.0), (0.0, 4.0), 0.9);
+    for b in &mut t.boxes[35..45] {
+        b.observed = false;
+    }
+    t.class_votes = vec![("pedestrian".into(), 45), ("cyclist".into(), 35)];
+    let k = kinds(&queue(vec![t]));
+    assert!(
+        k.contains(&DoubtKind::Hidden) && k.contains(&DoubtKind::ClassChanges),
+        "{k:?}"
+    );
+}
+
+#[test]
+fn the_queue_is_ordered_most_doubtful_first_then_by_time() {
+    let q = queue(vec![
+        walk(1, 1, 90, (200.0, 50.0), (0.0, 4.0), 0.3), // barely seen: weight 2, at 3.8 s
+        walk(2, 40, 5, (100.0, 190.0), (0.0, 4.0), 0.9), // short: weight 4, at 4.2 s
+    ]);
+    assert_eq!(q[0].kind, DoubtKind::ShortTrack);
+    assert!(q.windows(2).all(|w| w[0].weight >= w[1].weight));
+    let keys: std::collections::HashSet<&str> = q.iter().map(|d| d.key.as_str()).collect();
+    assert_eq!(keys.len(), q.len(), "keys are unique");
+}
