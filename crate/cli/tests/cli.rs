@@ -3,71 +3,10 @@
 //! were skipped, unless `THROUGHLINE_REQUIRE_FFMPEG=1` (`cargo xtask test` sets it, after
 //! installing ffmpeg), when a missing ffmpeg fails them.
 
-use std::io::Write;
-use std::path::{Path, PathBuf};
-use std::process::{Command, Output};
+mod common;
 
-fn throughline(args: &[&str]) -> Output {
-    Command::new(env!("CARGO_BIN_EXE_throughline"))
-        .args(args)
-        .output()
-        .expect("the binary runs")
-}
-
-fn stderr(o: &Output) -> String {
-    String::from_utf8_lossy(&o.stderr).into_owned()
-}
-
-fn stdout(o: &Output) -> String {
-    String::from_utf8_lossy(&o.stdout).into_owned()
-}
-
-/// A fresh folder under the target directory for one test.
-fn scratch(name: &str) -> PathBuf {
-    let dir = Path::new(env!("CARGO_TARGET_TMPDIR")).join(name);
-    let _ = std::fs::remove_dir_all(&dir);
-    std::fs::create_dir_all(&dir).expect("scratch folder");
-    dir
-}
-
-fn demo(file: &str) -> String {
-    Path::new(env!("CARGO_MANIFEST_DIR"))
-        .join("../../demo-site/demo")
-        .join(file)
-        .display()
-        .to_string()
-}
-
-/// Whether ffmpeg and ffprobe run. When they do not, the test `name` says it is skipped (on the
-/// terminal itself: the test harness keeps back what `eprintln!` prints from a passing test), or
-/// fails when `THROUGHLINE_REQUIRE_FFMPEG` is `1`.
-fn ffmpeg_or_skip(name: &str) -> bool {
-    let runs = |program: &str| {
-        Command::new(program)
-            .arg("-version")
-            .output()
-            .is_ok_and(|o| o.status.success())
-    };
-    if runs("ffmpeg") && runs("ffprobe") {
-        return true;
-    }
-    let required = std::env::var("THROUGHLINE_REQUIRE_FFMPEG").is_ok_and(|v| v == "1");
-    assert!(
-        !required,
-        "{name}: ffmpeg is not installed and THROUGHLINE_REQUIRE_FFMPEG=1 (apt-get install ffmpeg)"
-    );
-    let _ = writeln!(
-        std::io::stderr(),
-        "skipped {name}: ffmpeg is not installed (apt-get install ffmpeg; `cargo xtask test` does)"
-    );
-    false
-}
-
-fn write(dir: &Path, name: &str, content: &[u8]) -> String {
-    let p = dir.join(name);
-    std::fs::write(&p, content).expect("write input");
-    p.display().to_string()
-}
+use common::*;
+use std::process::Command;
 
 #[test]
 fn every_command_has_help() {

@@ -38,7 +38,7 @@ pub struct Args {
     /// Also write the counts as CSV (screenline,direction,class,interval_start,interval_end,count).
     #[arg(long, value_name = "FILE")]
     csv: Option<PathBuf>,
-    /// Also write the tracks (.txt: benchmark text; otherwise JSON).
+    /// Also write the tracks, as counted (after --edits) (.txt: benchmark text; otherwise JSON).
     #[arg(long, value_name = "FILE")]
     tracks: Option<PathBuf>,
     #[command(flatten)]
@@ -74,7 +74,13 @@ pub fn run(args: Args) -> Result<(), Failure> {
         (None, None) => track_file(Path::new("-"), how, &mut timer)?,
     };
     if let Some(p) = &args.tracks {
-        write_file(p, &tracks_text(&tracks, Some(p)))?;
+        // The tracks as counted: after the edits on tracks, when there are edits.
+        let text = if edits.is_empty() {
+            tracks_text(&tracks, Some(p))
+        } else {
+            tracks_text(&pipeline::correct_tracks(&tracks, &edits).0, Some(p))
+        };
+        write_file(p, &text)?;
     }
     let report = pipeline::count(&tracks, &plan, Some(&tracks.config), &edits);
     let out = Outputs {

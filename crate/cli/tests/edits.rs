@@ -1,0 +1,125 @@
+//! Corrections replayed by the command line (`--edits`): an edits file and a project file give
+//! the same report, each edit reported as applied or why not; a bad file is refused with its line.
+
+mod common;
+
+use common::*;
+
+fn report_of(args: &[&str]) -> serde_json::Value {
+    let o = throughline(args);
+    assert!(o.status.success(), "{}", stderr(&o));
+    serde_json::from_slice(&o.stdout).expect("a report")
+}
+
+#[test]
+fn run_replays_an_edits_file_and_a_project_file_alike() {
+    let dir = scratch("edits");
+    let plain = report_of(&[
+        "run",
+        &demo("detections.csv"),
+        "--plan",
+        &demo("plan.json"),
+        "-q",
+    ]);
+    // Reject the first counted crossing, add one, and ask for a track that is not there.
+    let first = plain["events"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|e| e["kind"] == "screenline")
+        .expect("the demo counts crossings");
+    let edits = serde_json::json!([
+        {"edit": "reject_crossing", "screenline": first["name"], "direction": first["direction"],
+         "track": first["track"], "frame": first["frame"], "reason": "checked: a shadow"},
+        {"edit": "add_crossing", "screenline": "plaza midline", "direction": "forward",
+         "class": "pedestrian", "frame": 300},
+        {"edit": "delete_track", "track": {"id": 999, "frames": [1, 2]}}
+    ]);
+    let file = write(
+        &dir,
+        "edits.json",
+        serde_json::json!({"format": "throughline-edits", "version": 1, "edits": edits})
+            .to_string()
+            .as_bytes(),
+    );
+    let plan: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(demo("plan.json")).unwrap()).unwrap();
+    let project = write(
+        &dir,
+        "project.json",
+        serde_json::json!({"format": "throughline-project", "version": 1, "plan": plan, "edits": edits})
+            .to_string()
+            .as_bytes(),
+    );
+    let run = |file: &str| {
+        let o = throughline(&[
+            "run",
+            &demo("detections.csv"),
+            "--plan",
+            &demo("plan.json"),
+            "--edits",
+            file,
+        ]);
+        assert!(o.status.success(), "{}", stderr(&o));
+        (stdout(&o), stderr(&o))
+    };
+    let (from_edits, said) = run(&file);
+    let (from_project, _) = run(&project);
+    assert_eq!(from_edits, from_project);
+    assert!(
+        said.contains("an edit was not applied: there is no track 999"),
+        "{said}"
+    );
+    let r: serde_json::Value = serde_json::from_str(&from_edits).unwrap();
+    let applied: Vec<bool> = r["edits"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|e| e["applied"].as_bool().unwrap())
+        .collect();
+    assert_eq!(applied, vec![true, true, false]);
+    assert_eq!(r["rejected_events"][0]["reason"], "checked: a shadow");
+    let total = |r: &serde_json::Value| -> u64 {
+        r["screenlines"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|l| l["forward"].as_u64().unwrap() + l["backward"].as_u64().unwrap())
+            .sum()
+    };
+    assert_eq!(total(&r), total(&plain), "one crossing rejected, one added");
+}
+
+#[test]
+fn a_bad_edits_file_is_refused_with_its_line() {
+    let dir = scratch("bad-edits");
+    let bad = write(
+        &dir,
+        "edits.json",
+        b"{\"format\": \"throughline-edits\", \"version\": 1, \"edits\": [\n  {\"edit\": \"undo_everything\"}\n]}",
+    );
+    let o = throughline(&[
+        "run",
+        &demo("detections.csv"),
+        "--plan",
+        &demo("plan.json"),
+        "--edits",
+        &bad,
+    ]);
+    assert_eq!(o.status.code(), Some(1));
+    let e = stderr(&o);
+    assert!(
+        e.contains("edits.json: line 2") && e.contains("undo_everything"),
+        "{e}"
+    );
+    let report = write(&dir, "report.json", b"{\"format\": \"throughline-report\"}");
+    let o = throughline(&[
+        "run",
+        &demo("detections.csv"),
+        "--plan",
+        &demo("plan.json"),
+        "--edits",
+        &report,
+    ]);
+    assert!(stderr(&o).contains("not corrections"), "{}", stderr(&o));
+}
