@@ -9,7 +9,7 @@ mod files;
 mod progress;
 
 use clap::{Parser, Subcommand};
-use commands::{count, detect, run, score, score_counts, simulate, track, tune};
+use commands::{count, detect, review, run, score, score_counts, simulate, track, tune};
 use std::process::ExitCode;
 
 #[derive(Parser)]
@@ -39,6 +39,9 @@ enum Command {
     Detect(detect::Args),
     /// Count existing tracks against a plan.
     Count(count::Args),
+    /// List the moments of a count most likely wrong, to check against the footage.
+    #[command(long_about = review::LONG_ABOUT)]
+    Review(review::Args),
     /// Make a simulated scene with known truth: detections and ground-truth tracks.
     Simulate(simulate::Args),
     /// Compare counts with a manual count (or another report): APD, AAPD, WAPD, correction factor.
@@ -56,6 +59,7 @@ fn main() -> ExitCode {
         Command::Run(args) => run::run(args),
         Command::Detect(args) => detect::run(args),
         Command::Count(args) => count::run(args),
+        Command::Review(args) => review::run(args),
         Command::Simulate(args) => simulate::run(args),
         Command::ScoreCounts(args) => score_counts::run(args),
         Command::Tune(args) => tune::run(args),

@@ -123,3 +123,55 @@ fn a_bad_edits_file_is_refused_with_its_line() {
     ]);
     assert!(stderr(&o).contains("not corrections"), "{}", stderr(&o));
 }
+
+#[test]
+fn the_review_queue_leads_to_the_demos_double_count_and_rejecting_it_gives_the_true_count() {
+    let o = throughline(&[
+        "review",
+        &demo("detections.csv"),
+        "--plan",
+        &demo("plan.json"),
+        "--json",
+        "-q",
+    ]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let queue: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    let first = &queue[0];
+    assert_eq!(first["kinds"][0], "close_together", "{first}");
+    let crossing = first["crossing"].clone();
+    let dir = scratch("review");
+    let edits = write(
+        &dir,
+        "edits.json",
+        serde_json::json!({"format": "throughline-edits", "version": 1, "edits": [
+            {"edit": "reject_crossing", "screenline": crossing["screenline"],
+             "direction": crossing["direction"], "track": crossing["track"],
+             "frame": crossing["frame"], "reason": "counted twice"}]})
+        .to_string()
+        .as_bytes(),
+    );
+    let fixed = report_of(&[
+        "run",
+        &demo("detections.csv"),
+        "--plan",
+        &demo("plan.json"),
+        "--edits",
+        &edits,
+        "-q",
+    ]);
+    // The simulator's truth for the demo (demo-site/demo/truth_report.json): after the person's
+    // one correction, the line's counts are the true ones.
+    let truth: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(demo("truth_report.json")).unwrap()).unwrap();
+    let line = |r: &serde_json::Value| {
+        let l = r["screenlines"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .find(|l| l["name"] == crossing["screenline"])
+            .unwrap()
+            .clone();
+        (l["forward"].as_u64(), l["backward"].as_u64())
+    };
+    assert_eq!(line(&fixed), line(&truth));
+}

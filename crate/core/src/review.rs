@@ -42,12 +42,13 @@ pub struct CrossingRef {
     pub frame: u32,
 }
 
-/// One moment to check.
+/// One moment to check, with every reason to doubt it.
 #[derive(Debug, Clone, PartialEq, Serialize, JsonSchema)]
 pub struct Doubt {
     /// Stable while the tracks and plan stay the same: for keeping the person's decision.
     pub key: String,
-    pub kind: DoubtKind,
+    /// The reasons, most weighty first (at least one).
+    pub kinds: Vec<DoubtKind>,
     /// Where to look: frame (1-based), seconds from frame 1, and its clock label.
     pub frame: u32,
     pub seconds: f64,
@@ -57,9 +58,9 @@ pub struct Doubt {
     /// The crossing concerned, when it is one (to reject it).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub crossing: Option<CrossingRef>,
-    /// In plain words.
-    pub why: String,
-    /// Higher is more doubtful: the queue's order.
+    /// Each reason in plain words, one sentence each, in the order of `kinds`.
+    pub why: Vec<String>,
+    /// Higher is more doubtful (the reasons' weights added): the queue's order.
     pub weight: u32,
 }
 
@@ -91,15 +92,39 @@ pub fn doubts(
         crossing_doubts(e, &crossings[..k], tracks, fps, &mut out);
     }
     let extent = picture.unwrap_or_else(|| extent_of(tracks));
+    let footage = (fps, report.frame_count);
     for t in &tracks.tracks {
-        line_end_doubts(t, plan, report, extent, &mut out);
+        line_end_doubts(t, plan, report, (extent, footage), &mut out);
         class_doubt(t, report, &mut out);
     }
-    out.sort_by(|a, b| {
+    let mut queue = grouped(out);
+    queue.sort_by(|a, b| {
         b.weight
             .cmp(&a.weight)
             .then(a.seconds.total_cmp(&b.seconds))
     });
+    queue
+}
+
+/// One entry per moment: the doubts about one crossing (or one track's end) become one entry with
+/// all their reasons, and the weights added.
+fn grouped(doubts: Vec<Doubt>) -> Vec<Doubt> {
+    let mut out: Vec<Doubt> = Vec::new();
+    for d in doubts {
+        match out.iter_mut().find(|o| o.key == d.key) {
+            Some(o) => {
+                o.weight += d.weight;
+                o.kinds.extend(d.kinds);
+                o.why.extend(d.why);
+                for t in d.tracks {
+                    if !o.tracks.contains(&t) {
+                        o.tracks.push(t);
+                    }
+                }
+            }
+            None => out.push(d),
+        }
+    }
     out
 }
 
@@ -111,10 +136,11 @@ fn way(d: Direction) -> Way {
     }
 }
 
+/// A doubt about crossing `e`; every doubt about one crossing shares its key.
 fn doubt(kind: DoubtKind, e: &Event, tracks: Vec<u32>, why: String, weight: u32) -> Doubt {
     Doubt {
-        key: format!("{kind:?}:{}:{}:{}", e.name, e.track, e.frame),
-        kind,
+        key: format!("crossing:{}:{}:{}", e.name, e.track, e.frame),
+        kinds: vec![kind],
         frame: e.frame,
         seconds: e.seconds,
         time: e.time.clone(),
@@ -125,7 +151,7 @@ fn doubt(kind: DoubtKind, e: &Event, tracks: Vec<u32>, why: String, weight: u32)
             track: e.track,
             frame: e.frame,
         }),
-        why,
+        why: vec![why],
         weight,
     }
 }
@@ -245,12 +271,14 @@ fn anchor(b: &BBox, a: Anchor) -> Point {
 }
 
 /// A track that appears or disappears within a box height of a line, away from the picture's
-/// edge, may be someone the tracker lost and found: counted twice, or not at all.
+/// edge, may be someone the tracker lost and found: counted twice, or not at all. Tracks there
+/// from the footage's first second, or to its last, are left out: they appear and disappear
+/// because the footage starts and ends.
 fn line_end_doubts(
     t: &Track,
     plan: &Plan,
     report: &Report,
-    (w, h): (f64, f64),
+    ((w, h), (fps, frame_count)): ((f64, f64), (f64, u32)),
     out: &mut Vec<Doubt>,
 ) {
     let (Some(first), Some(last)) = (t.boxes.first(), t.boxes.last()) else {
@@ -262,8 +290,14 @@ fn line_end_doubts(
             || b.x + b.w >= (1.0 - EDGE_SHARE) * w
             || b.y + b.h >= (1.0 - EDGE_SHARE) * h
     };
+    let second = fps.round().max(1.0) as u32;
     for (tb, starts) in [(first, true), (last, false)] {
-        if at_edge(&tb.bbox) {
+        let footage_edge = if starts {
+            tb.frame <= second
+        } else {
+            tb.frame + second > frame_count
+        };
+        if at_edge(&tb.bbox) || footage_edge {
             continue;
         }
         let p = anchor(&tb.bbox, plan.spec.anchor);
@@ -285,18 +319,18 @@ fn line_end_doubts(
             (DoubtKind::EndsNearLine, "disappears")
         };
         out.push(Doubt {
-            key: format!("{kind:?}:{}:{}:{}", line.name, t.id, tb.frame),
-            kind,
+            key: format!("{kind:?}:{}:{}", t.id, tb.frame),
+            kinds: vec![kind],
             frame: tb.frame,
             seconds: (seconds * 1000.0).round() / 1000.0,
             time: label_at(report, seconds),
             tracks: vec![t.id],
             crossing: None,
-            why: format!(
+            why: vec![format!(
                 "Track {} {verb} {heights:.1} box heights from `{}`, not at the picture's edge: \
                  someone lost and found again may be counted twice, or not at all.",
                 t.id, line.name
-            ),
+            )],
             weight: 3,
         });
     }

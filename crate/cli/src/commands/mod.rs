@@ -3,6 +3,7 @@
 
 pub mod count;
 pub mod detect;
+pub mod review;
 pub mod run;
 pub mod score;
 pub mod score_counts;

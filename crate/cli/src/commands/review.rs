@@ -1,0 +1,59 @@
+//! `throughline review`: the moments of a count most likely wrong, to check against the footage.
+
+use super::track::{track_file, TrackingArgs};
+use crate::files::{read_edits, read_plan, Failure};
+use crate::progress::Timer;
+use std::path::PathBuf;
+use throughline_core::{pipeline, review};
+
+/// The long help of the command (`--help`).
+pub const LONG_ABOUT: &str = "List the moments of a count most likely wrong, most doubtful first.\n\n\
+    Tracks and counts the detections as `run` does (with --edits, after the corrections), then lists \
+    what a person should check against the footage before trusting the counts: crossings by short \
+    or joined tracks, two crossings close together, crossings while hidden or barely seen, tracks \
+    that appear or disappear near a line, tracks whose class changes. Each with its time, frame, \
+    tracks and why, in plain words. The browser app shows the same queue beside the footage.";
+
+/// List the moments of a count most likely wrong, most doubtful first.
+#[derive(clap::Args)]
+pub struct Args {
+    /// Detections file (as for `track`).
+    detections: PathBuf,
+    /// Counting plan (JSON).
+    #[arg(long, value_name = "PLAN")]
+    plan: PathBuf,
+    #[command(flatten)]
+    tracking: TrackingArgs,
+    /// Corrections made so far: an edits file or a project file saved by the page.
+    #[arg(long, value_name = "FILE")]
+    edits: Option<PathBuf>,
+    /// Print one JSON array instead of a list.
+    #[arg(long)]
+    json: bool,
+}
+
+pub fn run(args: Args) -> Result<(), Failure> {
+    let plan = read_plan(&args.plan)?;
+    let edits = read_edits(args.edits.as_deref())?;
+    let tracks = track_file(&args.detections, &args.tracking, &mut Timer::new())?;
+    let report = pipeline::count(&tracks, &plan, Some(&tracks.config), &edits);
+    let shown = pipeline::correct_tracks(&tracks, &edits).0;
+    let queue = review::doubts(&shown, &plan, &report, None);
+    if args.json {
+        println!(
+            "{}",
+            serde_json::to_string_pretty(&queue).unwrap_or_default()
+        );
+        return Ok(());
+    }
+    if queue.is_empty() {
+        println!("Nothing doubtful found. Counts are estimates all the same: check a sample against a manual count.");
+    }
+    for (k, d) in queue.iter().enumerate() {
+        println!("{}. {} (frame {}):", k + 1, d.time, d.frame);
+        for why in &d.why {
+            println!("   {why}");
+        }
+    }
+    Ok(())
+}
