@@ -2,8 +2,9 @@
 //! command returns (a message naming the file, and the exit code).
 
 use std::path::Path;
-use throughline_core::edits::Edit;
+use throughline_core::pipeline::Work;
 use throughline_core::plan;
+use throughline_core::project::{self, Project};
 use throughline_core::track::{files as tracks_io, Tracks};
 
 /// An error for the user: what went wrong, in which file, and the exit code (1 bad input, 2 bad
@@ -82,13 +83,24 @@ pub fn tracks_text(tracks: &Tracks, path: Option<&Path>) -> String {
     }
 }
 
-/// The edits of an edits file or a project file (`--edits`); none without a path.
-pub fn read_edits(path: Option<&Path>) -> Result<Vec<Edit>, Failure> {
+/// What `--edits` adds to a run: an edits file's corrections, or everything a project file
+/// adds (corrections, tallies, a correction factor), with the project itself; nothing without a
+/// path.
+pub fn read_work(path: Option<&Path>) -> Result<(Work, Option<Project>), Failure> {
     let Some(path) = path else {
-        return Ok(Vec::new());
+        return Ok((Work::default(), None));
     };
     let bytes = read_file(path)?;
     let text = std::str::from_utf8(&bytes)
         .map_err(|_| bad_input(path, "the edits file is not UTF-8 text"))?;
-    throughline_core::project::edits_from_json(text).map_err(|e| bad_input(path, e))
+    let is_project = serde_json::from_str::<serde_json::Value>(text)
+        .ok()
+        .and_then(|v| v.get("format")?.as_str().map(|f| f == project::FORMAT))
+        .unwrap_or(false);
+    if is_project {
+        let p = Project::from_json(text).map_err(|e| bad_input(path, e))?;
+        return Ok((Work::of_project(&p), Some(p)));
+    }
+    let edits = project::edits_from_json(text).map_err(|e| bad_input(path, e))?;
+    Ok((Work::edits(edits), None))
 }

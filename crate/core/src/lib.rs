@@ -8,11 +8,13 @@
 //! - boxes are in pixels, **top-left x/y plus width/height** ([`geometry::BBox`]), image y pointing down;
 //! - frame numbers are **1-based**, as in the benchmark text format.
 
+pub mod accuracy;
 pub mod count;
 pub mod detect;
 pub mod detections;
 pub mod edits;
 pub mod error;
+pub mod fingerprint;
 pub mod geometry;
 pub mod pipeline;
 pub mod plan;

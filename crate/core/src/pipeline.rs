@@ -2,12 +2,14 @@
 //! command line and the page call these functions and nothing else to track and count, so they
 //! cannot drift apart: the same files give the same report, byte for byte.
 
+use crate::accuracy::{self, Tally};
 use crate::count;
 use crate::detections::Detections;
 use crate::edits::{self, Edit, Outcome};
 use crate::error::Error;
 use crate::plan::Plan;
-use crate::report::Report;
+use crate::project::Project;
+use crate::report::{AdjustedTotals, AppliedCorrection, Correction, Report};
 use crate::track::{self, Method, TrackerConfig, Tracks};
 
 /// The settings a run uses: `method` if given, else the settings file's `method`, else the default
@@ -36,27 +38,82 @@ pub fn correct_tracks(tracks: &Tracks, edits: &[Edit]) -> (Tracks, Vec<Option<Ou
     edits::apply_to_tracks(tracks, edits)
 }
 
-/// Counts tracks against a plan, with the person's edits: those on tracks first, then those on
-/// counts; the report lists every edit with what it did or why it could not be applied.
-/// `tracker`: the settings the tracks were made with, when known (tracks read from a benchmark
-/// text file carry none).
-pub fn count(
-    tracks: &Tracks,
-    plan: &Plan,
-    tracker: Option<&TrackerConfig>,
-    edits: &[Edit],
-) -> Report {
-    if edits.is_empty() {
+/// What a person adds to a run's counts: corrections, hand counts of samples, a correction
+/// factor. A project file holds it (with the plan, settings, site and fingerprints).
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct Work {
+    pub edits: Vec<Edit>,
+    pub tallies: Vec<Tally>,
+    pub correction: Option<Correction>,
+}
+
+impl Work {
+    /// Only corrections.
+    pub fn edits(edits: Vec<Edit>) -> Work {
+        Work {
+            edits,
+            ..Work::default()
+        }
+    }
+
+    /// What a project file adds to a run.
+    pub fn of_project(p: &Project) -> Work {
+        Work {
+            edits: p.edits.clone(),
+            tallies: p.tallies.clone(),
+            correction: p.correction.clone(),
+        }
+    }
+
+    fn is_empty(&self) -> bool {
+        *self == Work::default()
+    }
+}
+
+/// Counts tracks against a plan, with the person's work: edits on tracks first, then on counts;
+/// the report lists every edit with what it did or why it could not be applied, each tally beside
+/// the automated count, and a chosen correction factor beside the counts. `tracker`: the settings
+/// the tracks were made with, when known (tracks read from a benchmark text file carry none).
+pub fn count(tracks: &Tracks, plan: &Plan, tracker: Option<&TrackerConfig>, work: &Work) -> Report {
+    if work.is_empty() {
         return count::count(tracks, plan, tracker);
     }
-    let (edited, on_tracks) = correct_tracks(tracks, edits);
-    let (mut report, on_counts) = count::corrected(&edited, plan, tracker, edits);
+    let (edited, on_tracks) = correct_tracks(tracks, &work.edits);
+    let (mut report, on_counts) = count::corrected(&edited, plan, tracker, &work.edits);
     report.edits = on_tracks
         .into_iter()
         .zip(on_counts)
         .filter_map(|(a, b)| a.or(b))
         .collect();
+    report.checks = work
+        .tallies
+        .iter()
+        .map(|t| accuracy::check(t, &report))
+        .collect();
+    report.correction = work
+        .correction
+        .as_ref()
+        .map(|c| corrected_totals(c, &report));
     report
+}
+
+/// The counts of the lines a correction factor applies to, multiplied by it (one decimal).
+fn corrected_totals(c: &Correction, report: &Report) -> AppliedCorrection {
+    let round = |v: f64| (v * 10.0).round() / 10.0;
+    AppliedCorrection {
+        factor: c.factor,
+        reason: c.reason.clone(),
+        adjusted: report
+            .screenlines
+            .iter()
+            .filter(|l| c.screenlines.is_empty() || c.screenlines.contains(&l.name))
+            .map(|l| AdjustedTotals {
+                screenline: l.name.clone(),
+                forward: round(l.forward as f64 * c.factor),
+                backward: round(l.backward as f64 * c.factor),
+            })
+            .collect(),
+    }
 }
 
 /// Tracks, then counts with the settings the tracks were made with.
@@ -67,6 +124,6 @@ pub fn run(
     progress: &mut dyn FnMut(u32, u32),
 ) -> Result<(Tracks, Report), Error> {
     let tracks = track(detections, config, progress)?;
-    let report = count(&tracks, plan, Some(&tracks.config), &[]);
+    let report = count(&tracks, plan, Some(&tracks.config), &Work::default());
     Ok((tracks, report))
 }

@@ -4,9 +4,12 @@
 //! project opened against other files can say so. The page writes it; the command line reads its
 //! edits (`--edits`) and plan.
 
+use crate::accuracy::Tally;
 use crate::edits::{self, Edit};
 use crate::error::{Error, ErrorKind};
+use crate::fingerprint::Fingerprint;
 use crate::plan::PlanSpec;
+use crate::report::Correction;
 use crate::track::Method;
 use schemars::JsonSchema;
 use serde::{Deserialize, Serialize};
@@ -16,39 +19,6 @@ pub const FORMAT: &str = "throughline-project";
 
 /// Version of the project file's layout.
 pub const VERSION: u32 = 1;
-
-/// What a file was, to tell whether a project is opened against the same one.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, JsonSchema)]
-pub struct Fingerprint {
-    /// File name as it was opened (no folder: the project travels).
-    pub name: String,
-    /// Size in bytes.
-    pub size: u64,
-    /// SHA-256 of the first MiB (or the whole file when smaller), lowercase hex.
-    pub head_sha256: String,
-    /// Duration in seconds, for footage.
-    #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub duration_seconds: Option<f64>,
-}
-
-impl Fingerprint {
-    /// Why `other` is not the file this fingerprint was taken of, or `None` when it is.
-    pub fn differs(&self, other: &Fingerprint) -> Option<String> {
-        if self.size != other.size || self.head_sha256 != other.head_sha256 {
-            return Some(format!(
-                "{} is not the file this project was made with ({}, {} bytes)",
-                other.name, self.name, self.size
-            ));
-        }
-        match (self.duration_seconds, other.duration_seconds) {
-            (Some(a), Some(b)) if (a - b).abs() > 0.5 => Some(format!(
-                "{} lasts {b:.1} s, but the project's footage lasted {a:.1} s",
-                other.name
-            )),
-            _ => None,
-        }
-    }
-}
 
 /// The tracking the project uses: a method (or the default for the detections) and settings.
 #[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize, JsonSchema)]
@@ -87,6 +57,15 @@ pub struct Project {
     pub edits: Vec<Edit>,
     #[serde(default)]
     pub review: Vec<ReviewMark>,
+    /// The site's name, for the hand-in outputs and their file names.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub site: Option<String>,
+    /// Hand counts of samples, to check the automated count against.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub tallies: Vec<Tally>,
+    /// A correction factor the person chose to apply (never applied otherwise).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub correction: Option<Correction>,
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub footage: Option<Fingerprint>,
     #[serde(default, skip_serializing_if = "Option::is_none")]

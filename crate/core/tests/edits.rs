@@ -4,7 +4,7 @@
 
 use throughline_core::edits::{Edit, EditList, TrackRef, Way};
 use throughline_core::geometry::BBox;
-use throughline_core::pipeline;
+use throughline_core::pipeline::{self, Work};
 use throughline_core::plan::Plan;
 use throughline_core::project::edits_from_json;
 use throughline_core::report::{Direction, Report};
@@ -56,7 +56,7 @@ const PLAN: &str = r#"{"frame_rate": 10, "interval_minutes": 1,
 fn count(list: Vec<Track>, edits: &[Edit]) -> Report {
     let plan = Plan::from_json(PLAN).unwrap();
     let t = tracks(list);
-    pipeline::count(&t, &plan, Some(&t.config), edits)
+    pipeline::count(&t, &plan, Some(&t.config), &Work::edits(edits.to_vec()))
 }
 
 fn r(id: u32, first: u32, last: u32) -> TrackRef {
@@ -197,7 +197,7 @@ fn rejecting_and_adding_crossings_change_the_counts_where_they_belong() {
     let mut t = tracks(list);
     t.frame_count = 900;
     let plan = Plan::from_json(PLAN).unwrap();
-    let report = pipeline::count(&t, &plan, None, &[reject, add]);
+    let report = pipeline::count(&t, &plan, None, &Work::edits(vec![reject, add]));
     let line = &report.screenlines[0];
     assert_eq!(
         (line.forward, line.backward, line.added, line.rejected),
@@ -273,7 +273,7 @@ fn without_edits_the_report_is_the_one_counting_gives() {
     let t = tracks(broken_walker());
     let plain = throughline_core::count::count(&t, &plan, None);
     assert_eq!(
-        pipeline::count(&t, &plan, None, &[]).to_json(),
+        pipeline::count(&t, &plan, None, &Work::default()).to_json(),
         plain.to_json()
     );
     assert!(!plain.to_json().contains("\"edits\""));

@@ -1,7 +1,6 @@
-//! How good Throughline's results are: [`tracking_metrics`] scores tracks against ground truth
-//! (CLEAR MOT, IDF1, HOTA), [`count_accuracy`] compares counts with a manual count (APD, AAPD, WAPD,
-//! correction factor) and [`tune`] searches tracker settings against ground truth.
+//! How good Throughline's tracks are against ground truth: [`tracking_metrics`] scores them (CLEAR
+//! MOT, IDF1, HOTA) and [`tune`] searches tracker settings that score best. (Counts against a manual
+//! count are the product's own business: `throughline_core::accuracy`.)
 
-pub mod count_accuracy;
 pub mod tracking_metrics;
 pub mod tune;

@@ -14,7 +14,7 @@ impl Session {
     /// Returns what became of each edit: `[{edit, applied, note}]` (empty before tracking).
     #[wasm_bindgen(js_name = setEdits)]
     pub fn set_edits(&mut self, json: &str) -> Result<JsValue, JsError> {
-        self.edits = project::edits_from_json(json).map_err(js_error)?;
+        self.work.edits = project::edits_from_json(json).map_err(js_error)?;
         self.recount();
         let outcomes = self
             .report
@@ -27,7 +27,7 @@ impl Session {
     /// The corrections as an edits file (for `throughline run --edits`).
     #[wasm_bindgen(js_name = editsText)]
     pub fn edits_text(&self) -> String {
-        EditList::new(self.edits.clone()).to_json()
+        EditList::new(self.work.edits.clone()).to_json()
     }
 
     /// The review queue for the tracks (after edits), plan and report: doubtful moments, most

@@ -5,7 +5,6 @@
 
 use js_sys::Function;
 use serde::Serialize;
-use throughline_core::edits::Edit;
 use throughline_core::{detect, detections, pipeline, plan, report, track, Method};
 use wasm_bindgen::prelude::*;
 
@@ -54,8 +53,9 @@ pub struct Session {
     detections: Option<detections::ReadReport>,
     plan: Option<plan::Plan>,
     tracks: Option<track::Tracks>,
-    /// The person's corrections, in order; they apply to every tracks and plan given after.
-    edits: Vec<Edit>,
+    /// The person's corrections (in order), tallies and correction factor; they apply to every
+    /// tracks and plan given after.
+    work: pipeline::Work,
     /// The tracks after the edits on tracks, when there are edits (what the page draws).
     edited: Option<track::Tracks>,
     /// The report of the last tracks, plan and edits, made once when tracks and plan are there.
@@ -188,7 +188,9 @@ impl Session {
     /// Counts again when the tracks, the plan or the edits changed and tracks and plan are there.
     fn recount(&mut self) {
         self.edited = match &self.tracks {
-            Some(t) if !self.edits.is_empty() => Some(pipeline::correct_tracks(t, &self.edits).0),
+            Some(t) if !self.work.edits.is_empty() => {
+                Some(pipeline::correct_tracks(t, &self.work.edits).0)
+            }
             _ => None,
         };
         self.report = match (&self.tracks, &self.plan) {
@@ -196,7 +198,7 @@ impl Session {
                 tracks,
                 plan,
                 Some(&tracks.config),
-                &self.edits,
+                &self.work,
             )),
             _ => None,
         };

@@ -12,10 +12,17 @@ const CORE: &str = "throughline-core";
 /// The only crates the core may depend on. The core is pure (DEVELOPERS.md, "Invariants"): no file
 /// system, clock, terminal, thread or browser API, so that the same code runs in the command line
 /// and in WebAssembly and gives one answer. These are plain computation and data: matrices
-/// (nalgebra), assignment (pathfinding), serialisation (serde, serde_json) and the JSON Schemas
-/// generated from the document types (schemars). Anything that reaches a platform (I/O, async
-/// runtimes, wasm-bindgen, js-sys, progress bars) belongs in an adapter.
-const CORE_DEPENDENCIES: [&str; 5] = ["nalgebra", "pathfinding", "schemars", "serde", "serde_json"];
+/// (nalgebra), assignment (pathfinding), serialisation (serde, serde_json), the JSON Schemas
+/// generated from the document types (schemars) and SHA-256 of inputs (sha2). Anything that reaches
+/// a platform (I/O, async runtimes, wasm-bindgen, js-sys, progress bars) belongs in an adapter.
+const CORE_DEPENDENCIES: [&str; 6] = [
+    "nalgebra",
+    "pathfinding",
+    "schemars",
+    "serde",
+    "serde_json",
+    "sha2",
+];
 
 /// Every invariant; all problems are listed before failing.
 pub fn check() -> Result<(), String> {

@@ -1,7 +1,7 @@
 //! `throughline count`: count existing tracks against a plan; and the report writing `run` shares.
 
 use crate::files::{
-    bad_input, looks_like_json_object, read_edits, read_file, read_plan, write_file, Failure,
+    bad_input, looks_like_json_object, read_file, read_plan, read_work, write_file, Failure,
 };
 use std::path::{Path, PathBuf};
 use throughline_core::pipeline;
@@ -32,7 +32,7 @@ pub struct Args {
 
 pub fn run(args: Args) -> Result<(), Failure> {
     let plan = read_plan(&args.plan)?;
-    let edits = read_edits(args.edits.as_deref())?;
+    let (work, _project) = read_work(args.edits.as_deref())?;
     let path = &args.tracks;
     let bytes = read_file(path)?;
     let (tracks, tracker) = if looks_like_json_object(&bytes) {
@@ -43,7 +43,7 @@ pub fn run(args: Args) -> Result<(), Failure> {
         let boxes = tracks_io::read_benchmark_boxes(&bytes).map_err(|e| bad_input(path, e))?;
         (tracks_io::boxes_to_tracks(&boxes), None)
     };
-    let report = pipeline::count(&tracks, &plan, tracker.as_ref(), &edits);
+    let report = pipeline::count(&tracks, &plan, tracker.as_ref(), &work);
     let out = Outputs {
         report: args.output.as_deref(),
         csv: args.csv.as_deref(),

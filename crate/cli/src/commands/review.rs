@@ -1,7 +1,7 @@
 //! `throughline review`: the moments of a count most likely wrong, to check against the footage.
 
 use super::track::{track_file, TrackingArgs};
-use crate::files::{read_edits, read_plan, Failure};
+use crate::files::{read_plan, read_work, Failure};
 use crate::progress::Timer;
 use std::path::PathBuf;
 use throughline_core::{pipeline, review};
@@ -34,10 +34,10 @@ pub struct Args {
 
 pub fn run(args: Args) -> Result<(), Failure> {
     let plan = read_plan(&args.plan)?;
-    let edits = read_edits(args.edits.as_deref())?;
+    let (work, _project) = read_work(args.edits.as_deref())?;
     let tracks = track_file(&args.detections, &args.tracking, &mut Timer::new())?;
-    let report = pipeline::count(&tracks, &plan, Some(&tracks.config), &edits);
-    let shown = pipeline::correct_tracks(&tracks, &edits).0;
+    let report = pipeline::count(&tracks, &plan, Some(&tracks.config), &work);
+    let shown = pipeline::correct_tracks(&tracks, &work.edits).0;
     let queue = review::doubts(&shown, &plan, &report, None);
     if args.json {
         println!(

@@ -3,7 +3,7 @@
 use super::count::{write_report, Outputs};
 use super::detect::detect_footage;
 use super::track::{track_detections, track_file, TrackingArgs};
-use crate::files::{read_edits, read_plan, read_settings, tracks_text, write_file, Failure};
+use crate::files::{read_plan, read_settings, read_work, tracks_text, write_file, Failure};
 use crate::progress::Timer;
 use std::path::{Path, PathBuf};
 use throughline_core::pipeline;
@@ -51,7 +51,7 @@ pub struct Args {
 pub fn run(args: Args) -> Result<(), Failure> {
     // The plan is checked first: a mistake in it should not cost a whole tracking run.
     let plan = read_plan(&args.plan)?;
-    let edits = read_edits(args.edits.as_deref())?;
+    let (work, _project) = read_work(args.edits.as_deref())?;
     let mut timer = Timer::new();
     let how = &args.tracking;
     let tracks = match (&args.y4m, &args.detections) {
@@ -75,14 +75,14 @@ pub fn run(args: Args) -> Result<(), Failure> {
     };
     if let Some(p) = &args.tracks {
         // The tracks as counted: after the edits on tracks, when there are edits.
-        let text = if edits.is_empty() {
+        let text = if work.edits.is_empty() {
             tracks_text(&tracks, Some(p))
         } else {
-            tracks_text(&pipeline::correct_tracks(&tracks, &edits).0, Some(p))
+            tracks_text(&pipeline::correct_tracks(&tracks, &work.edits).0, Some(p))
         };
         write_file(p, &text)?;
     }
-    let report = pipeline::count(&tracks, &plan, Some(&tracks.config), &edits);
+    let report = pipeline::count(&tracks, &plan, Some(&tracks.config), &work);
     let out = Outputs {
         report: args.output.as_deref(),
         csv: args.csv.as_deref(),

@@ -2,7 +2,7 @@
 
 use crate::files::{bad_input, looks_like_json_object, read_file, Failure};
 use std::path::{Path, PathBuf};
-use throughline_eval::count_accuracy::{self as accuracy, Measures};
+use throughline_core::accuracy::{self as accuracy, Measures};
 
 /// The long help of the command (`--help`).
 pub const LONG_ABOUT: &str = "Compare automated counts with a reference count.\n\n\

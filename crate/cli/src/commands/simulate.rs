@@ -103,7 +103,7 @@ pub fn run(args: Args) -> Result<(), Failure> {
         &detections::to_csv(&scene.detections),
     )?;
     if let Some(plan) = &plan {
-        let report = pipeline::count(&sim::truth_tracks(&scene), plan, None, &[]);
+        let report = pipeline::count(&sim::truth_tracks(&scene), plan, None, &Default::default());
         write_file(&dir.join("truth_report.json"), &report.to_json())?;
         write_file(&dir.join("truth_counts.csv"), &report::counts_csv(&report))?;
     }

@@ -108,6 +108,8 @@ pub fn corrected(
         events,
         edits: Vec::new(),
         rejected_events,
+        checks: Vec::new(),
+        correction: None,
     };
     (report, fixes.outcomes)
 }

@@ -9,6 +9,7 @@ mod csv;
 
 pub use csv::counts_csv;
 
+use crate::accuracy::TallyCheck;
 use crate::edits::Outcome;
 use crate::plan::PlanSpec;
 use crate::track::TrackerConfig;
@@ -255,6 +256,40 @@ pub struct Report {
     /// Counted crossings a person rejected, with their reasons; not in any count.
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
     pub rejected_events: Vec<Event>,
+    /// Hand counts of samples beside the automated counts of the same frames.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub checks: Vec<TallyCheck>,
+    /// A correction factor the person chose to apply, and the counts it gives; the counts above
+    /// stay as counted.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub correction: Option<AppliedCorrection>,
+}
+
+/// A correction factor as the person chose it: for the lines named (all when none).
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, JsonSchema)]
+pub struct Correction {
+    pub factor: f64,
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub screenlines: Vec<String>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub reason: Option<String>,
+}
+
+/// A correction factor applied: the counts of each line it applies to, multiplied by it (to one
+/// decimal), beside the counted ones.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, JsonSchema)]
+pub struct AppliedCorrection {
+    pub factor: f64,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub reason: Option<String>,
+    pub adjusted: Vec<AdjustedTotals>,
+}
+
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, JsonSchema)]
+pub struct AdjustedTotals {
+    pub screenline: String,
+    pub forward: f64,
+    pub backward: f64,
 }
 
 impl Report {

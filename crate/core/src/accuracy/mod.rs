@@ -10,10 +10,15 @@
 //! Intervals with M = 0 cannot enter APD and AAPD (division by zero); they still enter WAPD and the
 //! correction factor, and are counted in `zero_reference_intervals`.
 
-use serde::Serialize;
+mod tally;
+
+pub use tally::{check, Press, Tally, TallyCheck, TallyGroup};
+
+use crate::error::{Error, ErrorKind};
+use crate::text;
+use schemars::JsonSchema;
+use serde::{Deserialize, Serialize};
 use std::collections::BTreeMap;
-use throughline_core::error::{Error, ErrorKind};
-use throughline_core::text;
 
 /// One row of a counts table: `screenline,direction,class,interval_start,interval_end,count`.
 #[derive(Debug, Clone, PartialEq, Eq)]
@@ -131,7 +136,7 @@ pub fn report_rows(report: &serde_json::Value) -> Result<Vec<CountRow>, String> 
 }
 
 /// The measures for one group of intervals.
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, JsonSchema)]
 pub struct Measures {
     pub intervals: usize,
     pub zero_reference_intervals: usize,
@@ -164,7 +169,8 @@ pub struct Accuracy {
     pub unmatched_reference_rows: usize,
 }
 
-fn measures(pairs: &[(u64, u64)]) -> Measures {
+/// The measures over pairs of (automated, reference) counts, one pair per interval.
+pub fn measures(pairs: &[(u64, u64)]) -> Measures {
     let with_m: Vec<f64> = pairs
         .iter()
         .filter(|(_, m)| *m > 0)

@@ -2,9 +2,9 @@
 //! memory (see the module notes of `accuracy.rs`): APD = mean (A-M)/M, AAPD = mean |A-M|/M,
 //! WAPD = sum|A-M| / sum M, correction factor = sum M / sum A.
 
-use throughline_eval::count_accuracy::{compare, read_counts_csv};
+use throughline_core::accuracy::{compare, read_counts_csv};
 
-fn rows(text: &str) -> Vec<throughline_eval::count_accuracy::CountRow> {
+fn rows(text: &str) -> Vec<throughline_core::accuracy::CountRow> {
     read_counts_csv(text.as_bytes()).expect("valid counts CSV")
 }
 
