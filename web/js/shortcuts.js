@@ -1,7 +1,8 @@
 // @ts-check
 // Keys on the page (not while typing in a field or on a control): Ctrl+Z undoes, Space plays or
 // pauses, the arrows step a frame (Shift: a second), Enter ends the line or zone being drawn, Escape
-// drops it, Delete or Backspace removes the selected line or zone.
+// drops it and ends the tool (or, with no tool in use, lets go of the track in focus), Delete or
+// Backspace removes the selected line or zone.
 
 /** @typedef {import("./store.js").PageStore} PageStore */
 /** @typedef {import("./picture.js").Picture} Picture */
@@ -33,7 +34,9 @@ export function bindShortcuts(store, picture, editor) {
     } else if (e.key === "Enter") {
       editor.finish();
     } else if (e.key === "Escape") {
-      store.toolChosen("select");
+      // Ends a drawing tool first; with none in use, lets go of the track in focus.
+      if (store.tool !== "select" || store.draft) store.toolChosen("select");
+      else if (store.focus) store.focusChosen(null);
     } else if (e.key === "Delete" || e.key === "Backspace") {
       store.selectedDeleted();
     }
