@@ -26,7 +26,7 @@ export const CASING = "rgba(10, 12, 18, 0.82)";
 export const TAG_GROUND = "rgba(10, 12, 18, 0.84)";
 
 /** Key colours of lines and zones, in the order they are handed out. */
-export const KEY_COLOURS = ["#CC79A7", "#009E73", "#D55E00", "#56B4E9", "#F0E442", "#A99BE0", "#9CCB6B"];
+export const KEY_COLOURS = ["#CC79A7", "#009E73", "#A99BE0", "#9CCB6B", "#F0E442", "#D55E00", "#56B4E9"];
 
 const STORAGE_KEY = "throughline.colours.v1";
 
