@@ -8,7 +8,7 @@ import assert from "node:assert/strict";
 import { mkdtempSync } from "node:fs";
 import { join } from "node:path";
 import { tmpdir } from "node:os";
-import { useBrowser, openPage, showView, run, screenshot, downloadText, LAPTOP } from "./harness.mjs";
+import { useBrowser, openPage, showView, run, downloadText, artefacts, LAPTOP } from "./harness.mjs";
 
 const env = useBrowser();
 const scratch = mkdtempSync(join(tmpdir(), "tl-chart-"));
@@ -53,8 +53,7 @@ test("each line's chart: whole, evenly rising ticks from 0, a legend of both dir
       assert.match(backward[k].title, new RegExp(`: ${iv.backward}$`));
     });
   }
-  await page.locator("#chart").screenshot({ path: join(scratch, "chart.png") });
-  await screenshot(page, "15-chart-six-second-intervals");
+  await page.locator("#chart").screenshot({ path: join(artefacts, "15-chart-six-second-intervals.png") });
   assert.deepEqual(seen.errors, []);
   await page.close();
 });

@@ -51,7 +51,8 @@ test("phone: nothing scrolls sideways in any view, and results fit or scroll ins
     await showView(page, view);
     [scroll, width] = await fits();
     assert.ok(scroll <= width, `${view}: page ${scroll} px wide in a ${width} px window`);
-    await screenshot(page, `13-phone-${view.toLowerCase()}`);
+    // While reviewing the picture sticks to the top: a whole-page picture would misplace it.
+    await screenshot(page, `13-phone-${view.toLowerCase()}`, { fullPage: view !== "Review" });
   }
   await page.getByRole("tab", { name: "Tracks" }).click();
   [scroll, width] = await fits();
@@ -67,6 +68,21 @@ test("phone: nothing scrolls sideways in any view, and results fit or scroll ins
     assert.ok(t.right <= PHONE.width, `a table box reaches x = ${t.right}`);
     assert.equal(t.scrolls, "auto");
   }
+  assert.deepEqual(seen.errors, []);
+  await page.close();
+});
+
+test("keyboard: the arrow keys move along the tabs (and do not step the footage)", async () => {
+  const { page, seen } = await openPage(env, { viewport: LAPTOP });
+  await page.getByRole("tab", { name: "Set up" }).focus();
+  await page.keyboard.press("ArrowRight");
+  assert.equal(await page.getByRole("tab", { name: "Review" }).getAttribute("aria-selected"), "true");
+  assert.equal(await page.evaluate(() => document.activeElement.id), "mode-review");
+  await page.keyboard.press("End");
+  assert.equal(await page.getByRole("tab", { name: "Results" }).getAttribute("aria-selected"), "true");
+  await page.keyboard.press("ArrowRight"); // round to the first
+  assert.equal(await page.getByRole("tab", { name: "Set up" }).getAttribute("aria-selected"), "true");
+  assert.match(await page.locator("#clock").innerText(), /^frame 1 /, "no frame was stepped");
   assert.deepEqual(seen.errors, []);
   await page.close();
 });

@@ -114,9 +114,11 @@ function lineChart(line, i, cls, key) {
     root.append(label);
     if (iv.partial) root.append(svg("text", { x: x0 + SIZE.bar, y: SIZE.top + SIZE.height + 27, "text-anchor": "middle", fill: "#5a5f6c" }, "part"));
   });
+  /** @param {string} label @param {string} dir */
+  const named = (label, dir) => (label === dir ? label : `${label} (${dir})`);
   const legend = el("ul", { class: "legend" }, [
-    el("li", {}, [el("span", { class: "swatch forward" }), el("span", { class: "dir forward", "aria-hidden": "true", text: "\u25B2 " }), `${line.forward_label} (forward)`]),
-    el("li", {}, [el("span", { class: "swatch backward" }), el("span", { class: "dir backward", "aria-hidden": "true", text: "\u25BC " }), `${line.backward_label} (backward)`]),
+    el("li", {}, [el("span", { class: "swatch forward" }), el("span", { class: "dir forward", "aria-hidden": "true", text: "\u25B2 " }), named(line.forward_label, "forward")]),
+    el("li", {}, [el("span", { class: "swatch backward" }), el("span", { class: "dir backward", "aria-hidden": "true", text: "\u25BC " }), named(line.backward_label, "backward")]),
   ]);
   const keyMark = el("span", { "aria-hidden": "true", text: "\u25A0 " });
   keyMark.style.color = key;

@@ -15,6 +15,7 @@
  */
 export function bindShortcuts(store, picture, editor) {
   document.addEventListener("keydown", (e) => {
+    if (e.defaultPrevented) return; // taken already (the arrow keys on a tab list move between tabs)
     const target = e.target instanceof Element ? e.target : null;
     if (target && target.closest("input, select, textarea")) return;
     // On a button, Enter and Space press it; Delete and Backspace there are no reason to delete a
