@@ -32,7 +32,7 @@ export class OverlayView {
     const redraw = (also) => () => { if (also) also(); this.redraw(); };
     store.subscribe(["picture"], () => this.size());
     store.subscribe(["plan", "geometry", "tracks", "results"], redraw(() => { this.layout = null; }));
-    store.subscribe(["focus", "tracks"], redraw(() => { this.focus = this.focusPaths(); }));
+    store.subscribe(["focus", "tracks", "plan"], redraw(() => { this.focus = this.focusPaths(); }));
     store.subscribe(["selection", "frame", "draft"], redraw());
     window.addEventListener("resize", redraw(() => { this.layout = null; }));
     for (const box of Object.values(this.show)) box.addEventListener("change", redraw());

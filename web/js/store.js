@@ -182,7 +182,13 @@ export class PageStore {
   resultsReady({ report, csv }) {
     const parsed = JSON.parse(report);
     this.results = { report: parsed, reportText: report, csv, live: new LiveCounts(parsed) };
-    this.emit(["results"]);
+    // The event in focus, if any, is the same event in the new counts (or none, when it is gone).
+    const was = this.focus && this.focus.event;
+    if (this.focus && was) {
+      const same = parsed.events.find((/** @type {import("./results.js").CountEvent} */ e) => e.frame === was.frame && e.name === was.name && e.direction === was.direction && e.track === was.track);
+      this.focus = { ...this.focus, event: same || null };
+    }
+    this.emit(["results", "focus"]);
   }
 
   /** Tracking was stopped: the detections and plan stay, tracks and counts go. */
