@@ -31,8 +31,8 @@ import { DIRECTION_COLOUR, STATE_COLOUR } from "./palette.js";
  * @property {(name: string) => string} keyColour
  */
 
-/** Distances from a gate at which a count card may sit, screen pixels, nearest first. */
-const OFFSETS = [9, 26, 48];
+/** Distances from a gate at which a count card may sit, screen pixels, nearest first (clear of its teeth). */
+const OFFSETS = [14, 30, 52];
 /** Places along a gate's longest segment, best first. */
 const ALONG = [0.5, 0.34, 0.66, 0.2, 0.8, 0.08, 0.92];
 
