@@ -96,7 +96,7 @@ async function perform(req, progress) {
 async function findInFootage(file, width, height, settings, expected, progress) {
   findCancelled = false;
   if (typeof VideoDecoder !== "function" || typeof FileReaderSync !== "function") {
-    return { fallback: "this browser has no WebCodecs video decoder" };
+    return { fallback: "this browser cannot decode video inside the page" };
   }
   const sync = new FileReaderSync();
   /** @type {(offset: number, length: number) => Uint8Array} */
@@ -113,7 +113,7 @@ async function findInFootage(file, width, height, settings, expected, progress) 
     const config = { codec: info.codec, codedWidth: info.codedWidth, codedHeight: info.codedHeight };
     if (info.description) config.description = info.description;
     const support = await VideoDecoder.isConfigSupported(config).catch(() => ({ supported: false }));
-    if (!support.supported) return { fallback: `this browser cannot decode ${info.codec} itself` };
+    if (!support.supported) return { fallback: "this browser cannot decode this video's format inside the page" };
     core().startDetection(width, height, settings);
     const total = info.frames || expected;
     const searched = await decodeAndSearch(reader, config, { width, height, total }, progress);

@@ -37,6 +37,11 @@ async function saveDownload(page, buttonName) {
   return path;
 }
 
+/** Chooses what the page shows beside the footage: "Set up", "Review" or "Results". */
+async function showView(page, name) {
+  await page.getByRole("tab", { name }).click();
+}
+
 async function runAndWait(page) {
   await page.getByRole("button", { name: "Run", exact: true }).click();
   await page.waitForFunction(() => /tracks in/.test(document.getElementById("run-status").textContent), null, { timeout: 60000 });
@@ -68,10 +73,13 @@ test("open files, draw a line, run, and export what throughline run gives", asyn
   assert.match(summary, /plaza midline/);
   await screenshot(page, "3-counted");
 
-  const planPath = await saveDownload(page, "Save plan");
+  // Run leads on to the results, where the exports are; the plan is saved from Set up.
   const reportPath = await saveDownload(page, "Export report");
   const csvPath = await saveDownload(page, "Export counts CSV");
   const tracksPath = await saveDownload(page, "Export tracks");
+  await showView(page, "Set up");
+  const planPath = await saveDownload(page, "Save plan");
+  await showView(page, "Results");
   const plan = JSON.parse(readFileSync(planPath, "utf8"));
   assert.equal(plan.screenlines.length, 3);
   assert.equal(plan.screenlines[2].forward, "to the kiosk side");
@@ -93,7 +101,8 @@ test("open files, draw a line, run, and export what throughline run gives", asyn
   assert.equal(await page.getByRole("button", { name: "Print counts" }).isEnabled(), true);
   await page.evaluate(() => window.dispatchEvent(new Event("beforeprint")));
   await page.emulateMedia({ media: "print" });
-  assert.equal(await page.locator("aside.panel").isVisible(), false);
+  assert.equal(await page.locator(".workspace-head").isVisible(), false);
+  assert.equal(await page.locator("#view-setup").isVisible(), false);
   assert.equal(await page.locator("#stage").isVisible(), false);
   assert.equal(await page.locator("#events").isVisible(), false);
   assert.equal(await page.locator("#caution").isVisible(), true);
@@ -103,8 +112,9 @@ test("open files, draw a line, run, and export what throughline run gives", asyn
   await page.emulateMedia({ media: "screen" });
   assert.equal(await page.locator("#print-head").isVisible(), false);
 
-  // An event is a click away from its moment in the footage.
+  // An event is a click away from its moment in the footage (Review, Count events).
   const first = report.events[0];
+  await showView(page, "Review");
   await page.locator("#events button").first().click();
   await page.waitForFunction((f) => document.getElementById("clock").textContent.startsWith(`frame ${f} `), first.frame, { timeout: 10000 });
   await screenshot(page, "4-event-shown");
@@ -181,6 +191,7 @@ test("the single file works opened from disk, with nothing fetched", async () =>
   await page.waitForSelector("#results:not([hidden])");
   assert.match(await page.locator("#summary").innerText(), /plaza midline/);
   await screenshot(page, "6-single-file");
+  await showView(page, "Set up");
   // Finding objects in the bundled footage works from disk too: the worker reads the footage
   // through FileReaderSync and decodes it with WebCodecs.
   await page.getByRole("button", { name: "Find moving objects" }).click();
@@ -201,6 +212,7 @@ function detectWithFfmpeg(footage, settings) {
 
 /** Opens footage and the demo plan, sets the two heights, finds objects; resolves to the status line. */
 async function findInFootage(page, footage) {
+  await showView(page, "Set up");
   await page.getByLabel("Open footage").setInputFiles(footage);
   await page.waitForFunction(() => !document.getElementById("find-objects").disabled);
   // The plan kept from an earlier test may have no lines: open the demo's.
@@ -217,7 +229,7 @@ test("footage alone: the page decodes WebM and MP4 itself, finds what the comman
   const settings = { far_height: 34, near_height: 91 };
   const { page, seen } = await openPage(`${env.server.origin}/`);
   const status = await findInFootage(page, demo("footage.webm"));
-  assert.match(status, /over 750 frames .*decoded in this page: webm, vp09/);
+  assert.match(status, /over 750 frames .*decoded in this page from the WebM video/);
   assert.match(await page.locator("#fps-hint").innerText(), /is coded at 25\.00 fps, as set/);
   const found = Number(status.match(/Found (\d+)/)[1]);
   // The demo has about 12 people in view over 700 frames after the warm-up.
@@ -250,6 +262,7 @@ test("footage alone: the page decodes WebM and MP4 itself, finds what the comman
   // Chromium's VP9 decoder and ffmpeg's give the same pixels, so the same boxes, byte for byte.
   assert.equal(exported, detectWithFfmpeg(demo("footage.webm"), settings), "page's detections equal throughline detect on ffmpeg's frames");
   // The saved plan carries the margin, and throughline run on the exported files gives the page's report.
+  await showView(page, "Set up");
   const planPath = await saveDownload(page, "Save plan");
   assert.deepEqual(JSON.parse(readFileSync(planPath, "utf8")).rules, { hysteresis: 0.35, zone_hysteresis: 0.15 });
   const cliReport = join(scratch, "footage-report.json");
@@ -262,9 +275,10 @@ test("footage alone: the page decodes WebM and MP4 itself, finds what the comman
   const mp4 = join(scratch, "plaza.mp4");
   execFileSync("ffmpeg", ["-v", "error", "-y", "-i", demo("footage.webm"), "-r", "30", "-frames:v", "200", "-c:v", "libx264", "-bf", "2", "-pix_fmt", "yuv420p", "-an", mp4]);
   const mp4Status = await findInFootage(page, mp4);
-  assert.match(mp4Status, /over 200 frames .*decoded in this page: mp4, avc1\.64/);
+  assert.match(mp4Status, /over 200 frames .*decoded in this page from the MP4 video/);
   assert.match(await page.locator("#fps-hint").innerText(), /is coded at about 30\.00 fps, not 25/);
   assert.equal(await page.getByRole("button", { name: "Use 30.00" }).isVisible(), true);
+  await showView(page, "Results");
   const mp4Exported = readFileSync(await saveDownload(page, "Export detections"), "utf8");
   assert.equal(mp4Exported, detectWithFfmpeg(mp4, settings), "MP4: page's detections equal throughline detect on ffmpeg's frames");
   assert.deepEqual(seen.foreign, []);
@@ -285,6 +299,7 @@ test("a long tracking run can be cancelled; the detections and plan are kept and
   await page.waitForFunction(() => /Tracking… frame \d+ of 15000/.test(document.getElementById("run-status").textContent));
   await page.getByRole("button", { name: "Cancel", exact: true }).click();
   await page.waitForFunction(() => /Tracking was cancelled/.test(document.getElementById("messages").textContent));
+  await showView(page, "Results");
   assert.equal(await page.locator("#results").isVisible(), false);
   assert.equal(await page.getByRole("button", { name: "Export report" }).isEnabled(), false);
   // The new engine has the detections and the plan: Run counts as before.
@@ -329,7 +344,7 @@ test("footage alone without WebCodecs: frames are taken by playing the footage, 
   await screenshot(page, "8-finding-objects-by-playing");
   await page.waitForFunction(() => /^Found \d+ moving objects over 120 frames/.test(document.getElementById("find-status").textContent), null, { timeout: 600000 });
   assert.doesNotMatch(await page.locator("#find-status").innerText(), /decoded in this page/);
-  assert.match(await page.locator("#messages").innerText(), /taken by playing the footage, which is slower: this browser has no WebCodecs/);
+  assert.match(await page.locator("#messages").innerText(), /taken by playing the footage, which is slower: this browser cannot decode video inside the page/);
   assert.deepEqual(seen.foreign, []);
   assert.deepEqual(seen.errors, []);
   await page.close();

@@ -2,7 +2,7 @@
 // Debian's Chromium driven by playwright-core (no browser download).
 import { spawn } from "node:child_process";
 import { mkdtemp, mkdir } from "node:fs/promises";
-import { existsSync } from "node:fs";
+import { existsSync, readFileSync } from "node:fs";
 import { join } from "node:path";
 import { tmpdir } from "node:os";
 import { chromium } from "playwright-core";
@@ -69,8 +69,63 @@ export function watch(page, origin) {
   return seen;
 }
 
-export async function screenshot(page, name) {
-  await page.screenshot({ path: join(artefacts, `${name}.png`), fullPage: true });
+/** Saves the whole page (or, with `fullPage` false, what the window shows) as artefacts/NAME.png. */
+export async function screenshot(page, name, { fullPage = true } = {}) {
+  await page.screenshot({ path: join(artefacts, `${name}.png`), fullPage });
+}
+
+/** The two screens every layout is checked on: a common laptop and a common phone. */
+export const LAPTOP = { width: 1366, height: 768 };
+export const PHONE = { width: 390, height: 844 };
+
+/**
+ * A new tab of the browser at `viewport`, on the page (by default the served site), once the page
+ * says it is ready. Resolves to {page, seen} (seen: from `watch`).
+ */
+export async function openPage(env, { viewport = null, url = `${env.server.origin}/` } = {}) {
+  const page = await env.browser.newPage();
+  if (viewport) await page.setViewportSize(viewport);
+  const seen = watch(page, url.startsWith("file:") ? "file://" : env.server.origin);
+  await page.goto(url);
+  await page.waitForSelector("body[data-ready=true]", { timeout: 30000 });
+  await page.waitForFunction(() => document.getElementById("overlay").width === 640);
+  return { page, seen };
+}
+
+/** Chooses what the page shows beside the footage, as a person would: "Set up", "Review" or "Results". */
+export async function showView(page, name) {
+  await page.getByRole("tab", { name }).click();
+}
+
+/** Presses Run and waits until the tracks are counted. */
+export async function run(page) {
+  await page.getByRole("button", { name: "Run", exact: true }).click();
+  await page.waitForFunction(() => /tracks in/.test(document.getElementById("run-status").textContent), null, { timeout: 60000 });
+  await page.waitForSelector("#results:not([hidden])", { state: "attached" });
+}
+
+/** Clicks the picture at a point given in video pixels. */
+export async function clickPicture(page, x, y) {
+  const canvas = page.locator("#overlay");
+  const box = await canvas.boundingBox();
+  const [w, h] = await canvas.evaluate((c) => [c.width, c.height]);
+  await canvas.click({ position: { x: (x * box.width) / w, y: (y * box.height) / h } });
+}
+
+/** Offers a download by pressing the button named `buttonName`; resolves to the file's text. */
+export async function downloadText(page, buttonName, dir) {
+  const [download] = await Promise.all([page.waitForEvent("download"), page.getByRole("button", { name: buttonName, exact: true }).click()]);
+  const path = join(dir, download.suggestedFilename());
+  await download.saveAs(path);
+  return readFileSync(path, "utf8");
+}
+
+/** Whether the element's box lies wholly inside the window as it is scrolled now. */
+export async function inViewport(page, selector) {
+  return page.locator(selector).evaluate((el) => {
+    const r = el.getBoundingClientRect();
+    return r.width > 0 && r.top >= 0 && r.left >= 0 && r.bottom <= innerHeight && r.right <= innerWidth;
+  });
 }
 
 /**

@@ -1,7 +1,8 @@
 // Typing in the plan panel keeps the keyboard where the person put it: a line or zone is selected on
-// the picture, its name is typed and Tab pressed, then Backspace. The plan panel must not take the
-// focus away from the fields (a panel rebuilt on every edit did), so that Backspace never reaches the
-// picture's "delete the selected line" shortcut: the saved plan is the same before and after it.
+// the picture, one of the plan's fields (a name, a direction, a ground coordinate) is typed in and Tab
+// pressed, then Backspace. The plan panel must not take the focus away from the fields (a panel
+// rebuilt on every edit did), so that Backspace never reaches the picture's "delete the selected
+// line" shortcut: the saved plan is the same before and after it.
 import { test } from "node:test";
 import assert from "node:assert/strict";
 import { readFileSync, mkdtempSync } from "node:fs";
@@ -54,6 +55,12 @@ const cases = [
   // The demo's zone is the rectangle (30, 260)-(190, 350): (110, 300) is inside it.
   { name: "a zone's name", at: [110, 300], field: "Name of zone 1", typed: "kiosk queue", nextFocus: "Delete kiosk queue",
     names: (plan) => plan.zones.map((z) => z.name), want: ["kiosk queue"] },
+  // The direction names sit under visible captions; Tab goes from forward to backward.
+  { name: "a line's forward direction", at: [150, 230], field: "Forward label of plaza midline", typed: "to the camera",
+    nextFocus: "Backward label of plaza midline", names: (plan) => plan.screenlines.map((l) => l.forward), want: ["to the camera", "westbound"] },
+  // The demo's first ground point is at ground (0, 0): its Y becomes 12; Tab goes on to its Delete.
+  { name: "a ground point's Y", at: [150, 230], field: "Ground Y of G1", typed: "12", nextFocus: "Delete G1",
+    names: (plan) => plan.calibration.pairs[0].ground, want: [0, 12] },
 ];
 
 for (const c of cases) {

@@ -10,11 +10,14 @@ import { Messages } from "./messages.js";
 import { PlanSync } from "./plan-sync.js";
 import { Picture } from "./picture.js";
 import { OverlayView } from "./overlay-view.js";
+import { Workspace } from "./workspace.js";
 import { FilesPanel } from "./files-panel.js";
 import { PlanPanel } from "./plan-panel.js";
+import { CoordsForm } from "./coords-form.js";
 import { Editor } from "./editor.js";
 import { FindPanel } from "./find-panel.js";
 import { RunPanel } from "./run-panel.js";
+import { Review } from "./review.js";
 import { ResultsPanel } from "./results.js";
 import { ExportsPanel } from "./exports-panel.js";
 import { bindShortcuts } from "./shortcuts.js";
@@ -29,15 +32,19 @@ client.ready.catch((e) => messages.say("engine", "error", `The counting engine d
 const planSync = new PlanSync(store, client);
 const picture = new Picture(store, messages);
 new OverlayView(store);
+new Workspace(store);
 const files = new FilesPanel(store, client, messages);
 const demo = new Demo(src.demo, store, files, messages);
 const planPanel = new PlanPanel(store, messages, { demoAgain: () => demo.open(true) });
-const editor = new Editor(byId("overlay", HTMLCanvasElement), store, { focusGround: (i) => planPanel.focusGround(i) });
+const focusGround = (/** @type {number} */ i) => planPanel.focusGround(i);
+new CoordsForm(store, { focusGround });
+const editor = new Editor(byId("overlay", HTMLCanvasElement), store, { focusGround });
 new FindPanel(store, client, messages, picture);
 new RunPanel(store, client, messages, planSync);
-new ResultsPanel(store, (event) => {
-  picture.pause();
-  picture.seekFrame(event.frame);
+new Review(store, picture);
+new ResultsPanel(store, (name) => {
+  const method = client.facts ? client.facts.methods.find((m) => m.name === name) : undefined;
+  return method ? method.label : name;
 });
 new ExportsPanel(store, client);
 bindShortcuts(store, picture, editor);

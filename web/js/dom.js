@@ -95,16 +95,30 @@ export class Rows {
 }
 
 /**
- * A table of text cells; columns listed in `numeric` are right-aligned.
+ * Scrolls a list that scrolls on its own so that `item` is in view, without scrolling the page
+ * (which would move the footage away).
+ * @param {HTMLElement} list
+ * @param {HTMLElement} item
+ */
+export function revealInList(list, item) {
+  const l = list.getBoundingClientRect();
+  const r = item.getBoundingClientRect();
+  if (r.top < l.top) list.scrollTop -= l.top - r.top;
+  else if (r.bottom > l.bottom) list.scrollTop += r.bottom - l.bottom;
+}
+
+/**
+ * A table of text cells in a box that scrolls sideways when the table is wider than the page;
+ * columns listed in `numeric` are right-aligned.
  * @param {string[]} headers
  * @param {(string | number)[][]} rows
  * @param {number[]} [numeric]
  */
 export function table(headers, rows, numeric = []) {
-  return el("table", {}, [
+  return el("div", { class: "table-box" }, el("table", {}, [
     el("thead", {}, el("tr", {}, headers.map((h, i) => el("th", { text: h, class: numeric.includes(i) ? "n" : null })))),
     el("tbody", {}, rows.map((r) => el("tr", {}, r.map((c, i) => el("td", { text: String(c), class: numeric.includes(i) ? "n" : null }))))),
-  ]);
+  ]));
 }
 
 /**

@@ -2,7 +2,8 @@
 // Drawing and moving plan geometry on the picture with the pointer. Tools: "select" (drag the ends of
 // a line, the corners of a zone or a ground point; click a line or zone to select it), "line" (click,
 // click; hold Shift to add more points, Enter ends), "zone" (click the corners; click the first corner
-// or press Enter to close), "calibration" (click a point whose ground position you know).
+// or press Enter to close), "calibration" (click a point whose ground position you know). Each
+// drawing tool ends after one line, zone or point (Escape ends it at once), and Move is back.
 
 import { distance, distanceToSegment } from "./geometry.js";
 import { freshName } from "./plan.js";
@@ -86,6 +87,21 @@ export class Editor {
     return null;
   }
 
+  /**
+   * The track whose box in the frame shown holds p (the smallest such box), or null.
+   * @param {Point} p
+   */
+  trackAt(p) {
+    let best = null;
+    let bestArea = Infinity;
+    if (this.store.tracks) {
+      this.store.tracks.forEachBox(this.store.frame, (id, x, y, w, h) => {
+        if (p[0] >= x && p[0] <= x + w && p[1] >= y && p[1] <= y + h && w * h < bestArea) [best, bestArea] = [id, w * h];
+      });
+    }
+    return best;
+  }
+
   /** @param {PointerEvent} e */
   down(e) {
     if (e.button !== 0) return;
@@ -104,7 +120,12 @@ export class Editor {
   grab(p, pointerId) {
     const hit = this.vertexAt(p);
     if (!hit) {
-      this.store.itemSelected(this.itemAt(p));
+      const item = this.itemAt(p);
+      const track = this.trackAt(p);
+      // While reviewing a click on a person or vehicle means that track; while setting up, a line or
+      // zone under the pointer comes first.
+      if (track !== null && (this.store.view === "review" || item === null)) this.store.focusChosen({ tracks: [track], event: null });
+      else this.store.itemSelected(item);
       return;
     }
     this.store.planEdited(() => {}); // one undo step for the whole drag
@@ -122,6 +143,7 @@ export class Editor {
       next.calibration.pairs = next.calibration.pairs || [];
       next.calibration.pairs.push({ image: p, ground: [null, null] });
     });
+    this.store.toolChosen("select"); // one point per use of the tool
     this.hooks.focusGround(index);
   }
 

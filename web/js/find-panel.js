@@ -15,7 +15,7 @@ import { Cancelled } from "./protocol.js";
 /** @typedef {import("./protocol.js").DetectionSummary} DetectionSummary */
 /** @typedef {import("./protocol.js").FootageSearched} FootageSearched */
 
-/** The two height fields and the settings they give (docs/detector-settings.md). */
+/** The two height fields and the settings they give (the detector's settings: far_height, near_height). */
 const HEIGHTS = /** @type {const} */ ([["far-height", "farHeight", "far_height"], ["near-height", "nearHeight", "near_height"]]);
 
 export class FindPanel {
@@ -119,14 +119,14 @@ export class FindPanel {
     const total = Math.max(1, Math.round(video.duration * this.store.fps));
     const found = typeof VideoDecoder === "function"
       ? await this.client.findInFootage(footage, w, h, this.detectorSettings(), total, (done, n) => this.showProgress(done, n, started))
-      : { fallback: "this browser has no WebCodecs video decoder" };
+      : { fallback: "this browser cannot decode video inside the page" };
     if ("fallback" in found) {
       this.messages.say("find", "warn", `Frames are taken by playing the footage, which is slower: ${found.fallback}.`);
       return { summary: await this.findByDrawing(w, h, total, started), how: "" };
     }
     this.store.frameRateMeasured(found.frameRate, "is coded at");
     this.warnIfShort(found, video.duration);
-    return { summary: found.summary, how: ` (decoded in this page: ${found.container}, ${found.codec})` };
+    return { summary: found.summary, how: ` (decoded in this page from the ${containerName(found.container)})` };
   }
 
   /**
@@ -181,8 +181,17 @@ export class FindPanel {
     const rules = this.store.plan.rules;
     const margin = rules && rules.hysteresis;
     if (margin !== undefined && margin >= lines) return;
-    this.messages.say("margin", "ok", `Boxes found in footage jump when two people join or split near a line. A crossing margin of ${lines} box heights counts line crossings more steadily (zones keep ${zones}: people leaving a zone at the picture's edge are soon out of sight). See docs/detector-settings.md.`, [
+    this.messages.say("margin", "ok", `Boxes found in footage jump when two people join or split near a line. A crossing margin of ${lines} box heights counts line crossings more steadily: a count point must get that far past a line before the crossing counts. Zones keep ${zones}, because people leaving a zone at the picture's edge are soon out of sight.`, [
       el("button", { type: "button", text: `Use ${lines}`, onclick: () => { this.store.planEdited((p) => setHysteresis(p, lines, zones)); this.messages.clear("margin"); } }),
     ]);
   }
+}
+
+/**
+ * A container's everyday name: "WebM video", "MP4 video"; else "video file".
+ * @param {string} container as the worker names it ("webm", "mp4")
+ */
+function containerName(container) {
+  const names = /** @type {Record<string, string>} */ ({ webm: "WebM video", mp4: "MP4 video", mkv: "Matroska video", mov: "QuickTime video" });
+  return names[container.toLowerCase()] || "video file";
 }

@@ -27,14 +27,12 @@ export function distanceToSegment(p, a, b) {
 }
 
 /**
- * Where a polyline's arrow goes: a third of the way along its longest segment (not the middle, where
- * two lines drawn across each other would put their labels on top of each other) and the unit normal pointing to
- * the side a `forward` crossing moves into. Forward goes from the left of p0->p1 to its right as seen
- * on screen with y down, i.e. towards (-dy, dx).
+ * A polyline's longest segment and the unit normal pointing to the side a `forward` crossing moves
+ * into: from the left of p0->p1 to its right as seen on screen with y down, i.e. towards (-dy, dx).
  * @param {Point[]} points
- * @returns {{mid: Point, normal: Point} | null}
+ * @returns {{normal: Point, segment: [Point, Point]} | null}
  */
-export function forwardArrow(points) {
+export function forwardSide(points) {
   /** @type {{a: Point, b: Point, len: number} | null} */
   let best = null;
   for (let i = 0; i + 1 < points.length; i++) {
@@ -45,30 +43,13 @@ export function forwardArrow(points) {
   if (!best || best.len === 0) return null;
   const dx = (best.b[0] - best.a[0]) / best.len;
   const dy = (best.b[1] - best.a[1]) / best.len;
-  const t = 0.35;
-  return { mid: [best.a[0] + t * (best.b[0] - best.a[0]), best.a[1] + t * (best.b[1] - best.a[1])], normal: [-dy, dx] };
+  return { normal: [-dy, dx], segment: [best.a, best.b] };
 }
 
 /** @param {Point[]} points @returns {Point} */
 export function centroid(points) {
   const n = points.length || 1;
   return [points.reduce((s, p) => s + p[0], 0) / n, points.reduce((s, p) => s + p[1], 0) / n];
-}
-
-/**
- * A colour per track id, spread round the hue circle by the golden angle.
- * @param {number} id
- * @param {number} [alpha]
- */
-export function trackColour(id, alpha = 1) {
-  return `hsla(${(id * 137.508) % 360}, 80%, 58%, ${alpha})`;
-}
-
-/** A fixed colour per plan item index (lines and zones), distinct from each other. */
-export const PLAN_COLOURS = ["#ffb000", "#3ad1c6", "#ff6f91", "#9b8cff", "#b6e35a", "#ff8a3d"];
-/** @param {number} i */
-export function planColour(i) {
-  return PLAN_COLOURS[i % PLAN_COLOURS.length];
 }
 
 /**

@@ -1,11 +1,17 @@
 // @ts-check
-// The drawing over the picture as a view: sizes the canvas to the footage and draws the plan, the
-// tracks and whatever is being drawn (overlay.js) whenever one of them, or the frame, changes.
+// The drawing over the picture as a view: sizes the canvas to the footage and draws the frame's
+// marks (overlay.js) whenever the frame, the plan, the tracks, the counts or the focus change. The
+// labels are placed again only when what they depend on changes (overlay-layout.js), so they hold
+// still while the footage plays. The labels drawn, and where, are written on the canvas as
+// `data-labels` (video pixels), so a test can check that none overlaps another or leaves the picture.
 
 import { drawOverlay } from "./overlay.js";
+import { layoutLabels } from "./overlay-layout.js";
+import { itemNames } from "./palette.js";
 import { byId } from "./dom.js";
 
 /** @typedef {import("./store.js").PageStore} PageStore */
+/** @typedef {import("./overlay-layout.js").Layout} Layout */
 
 export class OverlayView {
   /** @param {PageStore} store */
@@ -15,13 +21,21 @@ export class OverlayView {
     const ctx = this.canvas.getContext("2d");
     if (!ctx) throw new Error("this browser cannot draw on the picture");
     this.ctx = ctx;
-    this.trails = byId("show-trails", HTMLInputElement);
-    this.boxes = byId("show-boxes", HTMLInputElement);
+    this.show = { paths: byId("show-trails", HTMLInputElement), boxes: byId("show-boxes", HTMLInputElement), numbers: byId("show-numbers", HTMLInputElement) };
+    /** @type {(Layout & {px: number}) | null} null: to be placed again */
+    this.layout = null;
+    /** @type {{tracks: unknown, grid: import("./tracks.js").ActionGrid} | null} */
+    this.action = null;
+    /** @type {import("./overlay.js").Scene["focus"]} */
+    this.focus = null;
+    /** @param {() => void} [also] */
+    const redraw = (also) => () => { if (also) also(); this.redraw(); };
     store.subscribe(["picture"], () => this.size());
-    store.subscribe(["plan", "geometry", "selection", "frame", "tracks", "results", "draft"], () => this.redraw());
-    window.addEventListener("resize", () => this.redraw());
-    this.trails.addEventListener("change", () => this.redraw());
-    this.boxes.addEventListener("change", () => this.redraw());
+    store.subscribe(["plan", "geometry", "tracks", "results"], redraw(() => { this.layout = null; }));
+    store.subscribe(["focus", "tracks", "plan"], redraw(() => { this.focus = this.focusPaths(); }));
+    store.subscribe(["selection", "frame", "draft"], redraw());
+    window.addEventListener("resize", redraw(() => { this.layout = null; }));
+    for (const box of Object.values(this.show)) box.addEventListener("change", redraw());
   }
 
   /** The canvas takes the picture's size in video pixels, and the stage its shape. */
@@ -33,25 +47,73 @@ export class OverlayView {
       this.canvas.width = w;
       this.canvas.height = h;
     }
-    byId("stage", HTMLElement).style.aspectRatio = `${w} / ${h}`;
+    const stage = byId("stage", HTMLElement);
+    stage.style.aspectRatio = `${w} / ${h}`;
+    stage.style.setProperty("--aspect", String(w / h));
     byId("stage-empty", HTMLElement).hidden = true;
+    this.layout = null;
     this.redraw();
+  }
+
+  /**
+   * Video pixels per screen pixel of a mark: one, where the picture is shown large; a little less
+   * on a small picture (a phone's), so marks and labels leave more of it in view.
+   */
+  px() {
+    const rect = this.canvas.getBoundingClientRect();
+    if (!rect.width) return 1;
+    return (this.canvas.width / rect.width) * (rect.width < 560 ? 0.82 : 1);
+  }
+
+  /** @param {string} name */
+  keyColour(name) {
+    return this.store.keyColours.colour(name, itemNames(this.store.plan));
+  }
+
+  /** Where the tracks went, worked out once per set of tracks. */
+  actionGrid() {
+    const tracks = this.store.tracks;
+    if (!tracks) return null;
+    if (!this.action || this.action.tracks !== tracks) this.action = { tracks, grid: tracks.actionGrid(this.canvas.width, this.canvas.height) };
+    return this.action.grid;
+  }
+
+  /** The focused tracks' whole paths, from their first frame to their last. */
+  focusPaths() {
+    const { focus, tracks, plan } = this.store;
+    if (!focus || !tracks) return null;
+    const ids = new Set(focus.tracks);
+    const info = tracks.list.filter((t) => ids.has(t.id));
+    if (!info.length) return { ids, paths: new Map() };
+    const from = Math.min(...info.map((t) => t.first_frame));
+    const to = Math.max(...info.map((t) => t.last_frame));
+    return { ids, paths: tracks.paths(from, to, plan.anchor, ids) };
   }
 
   redraw() {
     const s = this.store;
-    const rect = this.canvas.getBoundingClientRect();
-    drawOverlay(this.ctx, {
+    const px = this.px();
+    if (!this.layout || this.layout.px !== px) {
+      const input = { plan: s.plan, width: this.canvas.width, height: this.canvas.height, px, live: s.results ? s.results.live : null, action: this.actionGrid(), keyColour: (/** @type {string} */ n) => this.keyColour(n) };
+      this.layout = { ...layoutLabels(this.ctx, input), px };
+    }
+    const event = s.focus ? s.focus.event : null;
+    const drawn = drawOverlay(this.ctx, {
       plan: s.plan,
       frame: s.frame,
-      px: rect.width ? this.canvas.width / rect.width : 1,
+      px,
       selected: s.selected,
       live: s.results ? s.results.live : null,
       tracks: s.tracks,
-      showTrails: this.trails.checked,
-      showBoxes: this.boxes.checked,
-      trailFrames: Math.round(2 * s.fps),
+      show: { paths: this.show.paths.checked, boxes: this.show.boxes.checked, numbers: this.show.numbers.checked },
+      pathFrames: Math.round(2 * s.fps),
+      beadEvery: Math.max(1, Math.round(s.fps / 2)),
       draft: s.draft,
+      focus: this.focus,
+      focusPoint: event && event.kind === "screenline" ? [event.x, event.y] : null,
+      layout: this.layout,
+      keyColour: (name) => this.keyColour(name),
     });
+    this.canvas.dataset.labels = JSON.stringify(drawn.map(({ key, rect }) => ({ key, x: Math.round(rect.x), y: Math.round(rect.y), w: Math.round(rect.w), h: Math.round(rect.h) })));
   }
 }

@@ -1,207 +1,279 @@
 // @ts-check
-// Draws over the video: the plan (lines with their forward arrow and running counts, zones, ground
-// points), then the tracks (boxes, identities, trails), then whatever is being drawn right now.
-// Everything is in video pixels; `px` converts a length on screen to video pixels so strokes and text
-// keep their size however large the picture is shown.
+// Draws one frame's marks over the video (DEVELOPERS.md, "Visual language"): zones, the lines as
+// gates with teeth on their forward side, the crossings counted so far, each track's count point and
+// path (its box only as four corners), ground points, the labels placed by overlay-layout.js, and
+// whatever is being drawn right now. Everything is in video pixels.
 
-import { forwardArrow, centroid, planColour, trackColour } from "./geometry.js";
+import { forwardSide, distanceToSegment } from "./geometry.js";
+import { anchorMark, beadedPath, boxCorners, casedStroke, drawTag, tagSize, tracePath, triangle } from "./marks.js";
+import { countPoint } from "./tracks.js";
+import { DIRECTION_COLOUR, PLAN_INK, STATE_COLOUR } from "./palette.js";
 
 /** @typedef {import("./geometry.js").Point} Point */
 /** @typedef {CanvasRenderingContext2D} Ctx */
+/** @typedef {import("./labels.js").Rect} Rect */
 
 /**
- * What to draw for one frame. `px`: video pixels per screen pixel; `trailFrames`: how many frames of
- * each track's path to show.
+ * What to draw for one frame. `px`: video pixels per screen pixel; `pathFrames`: how many frames of
+ * each track's path to show; `focus`: the tracks being reviewed (the others are dimmed) and their
+ * whole paths; `focusPoint`: where the count event being reviewed happened.
  * @typedef {object} Scene
  * @property {import("./plan.js").Plan} plan
  * @property {number} frame
  * @property {number} px
  * @property {string | null} selected
- * @property {import("./tracks.js").LiveCounts | null} live
+ * @property {import("./live-counts.js").LiveCounts | null} live
  * @property {import("./tracks.js").TrackView | null} tracks
- * @property {boolean} showTrails
- * @property {boolean} showBoxes
- * @property {number} trailFrames
+ * @property {{paths: boolean, boxes: boolean, numbers: boolean}} show
+ * @property {number} pathFrames
+ * @property {number} beadEvery
  * @property {import("./store.js").Draft | null} draft
+ * @property {{ids: Set<number>, paths: Map<number, import("./tracks.js").Path>} | null} focus
+ * @property {Point | null} focusPoint
+ * @property {import("./overlay-layout.js").Layout} layout
+ * @property {(name: string) => string} keyColour
  */
 
+/** Most crossings marked on the picture at once: the latest ones. */
+const MAX_CROSSING_MARKS = 300;
+
 /**
+ * Draws the frame; returns every label drawn and where, keyed ("line:0:forward", "track:12").
  * @param {Ctx} ctx
- * @param {Scene} state
+ * @param {Scene} scene
+ * @returns {{key: string, rect: Rect}[]}
  */
-export function drawOverlay(ctx, state) {
-  const { plan, frame, px } = state;
+export function drawOverlay(ctx, scene) {
+  const { plan, px } = scene;
   ctx.clearRect(0, 0, ctx.canvas.width, ctx.canvas.height);
   ctx.lineJoin = "round";
   ctx.lineCap = "round";
-  ctx.font = `${Math.round(13 * px)}px system-ui, sans-serif`;
-
-  plan.zones.forEach((zone, i) => drawZone(ctx, zone, planColour(plan.screenlines.length + i), px, state.selected === `zone:${i}`));
-  plan.screenlines.forEach((line, i) => {
-    const counts = state.live ? state.live.at(line.name, frame) : null;
-    drawLine(ctx, line, planColour(i), px, state.selected === `line:${i}`, counts);
-  });
+  plan.zones.forEach((zone, i) => drawZone(ctx, zone.polygon, scene.keyColour(zone.name), px, scene.selected === `zone:${i}`));
+  plan.screenlines.forEach((line, i) => drawGate(ctx, line.points, px, scene.selected === `line:${i}`));
+  if (scene.live) drawCrossings(ctx, scene);
+  if (scene.tracks) drawTracks(ctx, scene.tracks, scene);
   const pairs = plan.calibration ? plan.calibration.pairs || [] : [];
-  pairs.forEach((pair, i) => drawGroundPoint(ctx, pair, i, px));
-
-  if (state.tracks) drawTracks(ctx, state.tracks, state, px);
-  if (state.draft) drawDraft(ctx, state.draft, px);
+  pairs.forEach((pair) => drawGroundPoint(ctx, pair.image, px));
+  const drawn = scene.layout.placed.map(({ key, rect, content }) => {
+    drawTag(ctx, rect, content(scene.frame), px);
+    return { key, rect };
+  });
+  if (scene.tracks) drawn.push(...trackLabels(ctx, scene.tracks, scene));
+  if (scene.draft) drawDraft(ctx, scene.draft, px);
+  return drawn;
 }
 
 /**
- * Text on a dark box, so it reads on any picture.
+ * A line as a gate: the line, a post across each end, and teeth on its forward side pointing the
+ * way a forward crossing goes.
  * @param {Ctx} ctx
- * @param {string} text
- * @param {number} x
- * @param {number} y
- * @param {number} px
- * @param {string} colour
- */
-function label(ctx, text, x, y, px, colour) {
-  const pad = 3 * px;
-  const w = ctx.measureText(text).width;
-  const h = 15 * px;
-  ctx.fillStyle = "rgba(14, 17, 24, 0.78)";
-  ctx.fillRect(x - pad, y - h + pad, w + 2 * pad, h + pad);
-  ctx.fillStyle = colour;
-  ctx.fillText(text, x, y);
-}
-
-/**
- * @param {Ctx} ctx
- * @param {import("./plan.js").Screenline} line
- * @param {string} colour
+ * @param {Point[]} pts
  * @param {number} px
  * @param {boolean} selected
- * @param {import("./tracks.js").LineCounts | null} counts running totals at this frame, once counted
  */
-function drawLine(ctx, line, colour, px, selected, counts) {
-  const pts = line.points;
+function drawGate(ctx, pts, px, selected) {
   if (pts.length < 2) return;
-  ctx.strokeStyle = "rgba(0,0,0,0.6)";
-  ctx.lineWidth = (selected ? 7 : 5) * px;
-  ctx.beginPath();
-  pts.forEach((p, j) => (j ? ctx.lineTo(p[0], p[1]) : ctx.moveTo(p[0], p[1])));
-  ctx.stroke();
-  ctx.strokeStyle = colour;
-  ctx.lineWidth = (selected ? 4 : 2.5) * px;
-  ctx.stroke();
-  for (const p of pts) {
-    ctx.fillStyle = colour;
-    ctx.beginPath();
-    ctx.arc(p[0], p[1], (selected ? 6 : 4) * px, 0, Math.PI * 2);
-    ctx.fill();
+  tracePath(ctx, pts);
+  casedStroke(ctx, PLAN_INK, selected ? 4 : 2.5, px);
+  for (const [end, prev] of [[pts[0], pts[1]], [pts[pts.length - 1], pts[pts.length - 2]]]) {
+    const len = Math.hypot(end[0] - prev[0], end[1] - prev[1]) || 1;
+    const [nx, ny] = [-(end[1] - prev[1]) / len, (end[0] - prev[0]) / len];
+    const h = 8 * px;
+    tracePath(ctx, [[end[0] - nx * h, end[1] - ny * h], [end[0] + nx * h, end[1] + ny * h]]);
+    casedStroke(ctx, PLAN_INK, 3, px);
   }
-  const arrow = forwardArrow(pts);
-  if (!arrow) return;
-  const [mx, my] = arrow.mid;
-  const [nx, ny] = arrow.normal;
-  const len = 26 * px;
-  const tip = [mx + nx * len, my + ny * len];
-  ctx.strokeStyle = colour;
-  ctx.lineWidth = 3 * px;
-  ctx.beginPath();
-  ctx.moveTo(mx, my);
-  ctx.lineTo(tip[0], tip[1]);
-  ctx.stroke();
-  // Arrow head: two strokes back from the tip, at right angles to each other.
-  const back = 9 * px;
-  ctx.beginPath();
-  ctx.moveTo(tip[0] - nx * back - ny * back, tip[1] - ny * back + nx * back);
-  ctx.lineTo(tip[0], tip[1]);
-  ctx.lineTo(tip[0] - nx * back + ny * back, tip[1] - ny * back - nx * back);
-  ctx.stroke();
-  const fwd = line.forward || "forward";
-  const bwd = line.backward || "backward";
-  const fText = counts ? `${fwd} ${counts.forward}` : fwd;
-  const bText = counts ? `${bwd} ${counts.backward}` : bwd;
-  label(ctx, line.name, pts[0][0] + 6 * px, pts[0][1] - 8 * px, px, colour);
-  // The forward label sits at the arrow's tip, the backward one on the other side of the line.
-  label(ctx, fText, tip[0] + 4 * px, tip[1] + 14 * px * Math.max(0, ny), px, colour);
-  label(ctx, bText, mx - nx * len + 4 * px, my - ny * len + 14 * px * Math.max(0, -ny), px, "#d8dbe4");
+  for (let j = 0; j + 1 < pts.length; j++) drawTeeth(ctx, pts[j], pts[j + 1], px);
+  if (selected) for (const p of pts) handle(ctx, p, px);
 }
 
 /**
+ * Triangles along the forward side of segment a-b, one every 90 screen pixels.
  * @param {Ctx} ctx
- * @param {import("./plan.js").Zone} zone
+ * @param {Point} a
+ * @param {Point} b
+ * @param {number} px
+ */
+function drawTeeth(ctx, a, b, px) {
+  const len = Math.hypot(b[0] - a[0], b[1] - a[1]);
+  if (len === 0) return;
+  const [ux, uy] = [(b[0] - a[0]) / len, (b[1] - a[1]) / len];
+  /** @type {Point} */
+  const n = [-uy, ux];
+  const count = Math.max(1, Math.floor(len / (90 * px)));
+  for (let k = 0; k < count; k++) {
+    const t = (k + 0.5) / count;
+    const at = /** @type {Point} */ ([a[0] + t * (b[0] - a[0]) + n[0] * 7 * px, a[1] + t * (b[1] - a[1]) + n[1] * 7 * px]);
+    triangle(ctx, at, n, 8, DIRECTION_COLOUR.forward, px);
+  }
+}
+
+/**
+ * A square handle on a vertex that can be dragged.
+ * @param {Ctx} ctx
+ * @param {Point} p
+ * @param {number} px
+ */
+function handle(ctx, p, px) {
+  const s = 4.5 * px;
+  tracePath(ctx, [[p[0] - s, p[1] - s], [p[0] + s, p[1] - s], [p[0] + s, p[1] + s], [p[0] - s, p[1] + s]], true);
+  casedStroke(ctx, PLAN_INK, 1.5, px);
+}
+
+/**
+ * A zone: a light wash and a dashed edge in its key colour.
+ * @param {Ctx} ctx
+ * @param {Point[]} pts
  * @param {string} colour
  * @param {number} px
  * @param {boolean} selected
  */
-function drawZone(ctx, zone, colour, px, selected) {
-  const pts = zone.polygon;
+function drawZone(ctx, pts, colour, px, selected) {
   if (pts.length < 2) return;
-  ctx.beginPath();
-  pts.forEach((p, j) => (j ? ctx.lineTo(p[0], p[1]) : ctx.moveTo(p[0], p[1])));
-  ctx.closePath();
-  ctx.fillStyle = colour + "2e";
+  tracePath(ctx, pts, true);
+  ctx.fillStyle = colour + "24";
   ctx.fill();
-  ctx.setLineDash([8 * px, 5 * px]);
-  ctx.strokeStyle = colour;
-  ctx.lineWidth = (selected ? 4 : 2) * px;
-  ctx.stroke();
-  ctx.setLineDash([]);
-  for (const p of pts) {
-    ctx.fillStyle = colour;
-    ctx.fillRect(p[0] - 4 * px, p[1] - 4 * px, 8 * px, 8 * px);
-  }
-  const c = centroid(pts);
-  label(ctx, zone.name, c[0], c[1], px, colour);
+  casedStroke(ctx, colour, selected ? 3.5 : 2, px, [7, 5]);
+  if (selected) for (const p of pts) handle(ctx, p, px);
 }
 
 /**
+ * A ground point: a cross with a dark casing.
  * @param {Ctx} ctx
- * @param {import("./plan.js").GroundPair} pair
- * @param {number} i
+ * @param {Point} p
  * @param {number} px
  */
-function drawGroundPoint(ctx, pair, i, px) {
-  const [x, y] = pair.image;
+function drawGroundPoint(ctx, [x, y], px) {
   const r = 7 * px;
-  ctx.strokeStyle = "#ffffff";
-  ctx.lineWidth = 2 * px;
-  ctx.beginPath();
-  ctx.moveTo(x - r, y);
-  ctx.lineTo(x + r, y);
-  ctx.moveTo(x, y - r);
-  ctx.lineTo(x, y + r);
-  ctx.stroke();
-  const g = pair.ground && pair.ground.every((v) => typeof v === "number") ? ` (${pair.ground[0]}, ${pair.ground[1]})` : " (?)";
-  label(ctx, `G${i + 1}${g}`, x + r, y - r, px, "#ffffff");
+  tracePath(ctx, [[x - r, y], [x + r, y]]);
+  casedStroke(ctx, PLAN_INK, 1.8, px);
+  tracePath(ctx, [[x, y - r], [x, y + r]]);
+  casedStroke(ctx, PLAN_INK, 1.8, px);
 }
 
 /**
+ * Every crossing counted so far leaves a triangle where it happened, pointing the way it crossed, in
+ * its direction's colour; outlined only where the track was hidden as it crossed.
+ * @param {Ctx} ctx
+ * @param {Scene} scene
+ */
+function drawCrossings(ctx, scene) {
+  const { plan, px, live } = scene;
+  if (!live) return;
+  const byName = new Map(plan.screenlines.map((l) => [l.name, l.points]));
+  for (const c of live.crossingsUpTo(scene.frame, MAX_CROSSING_MARKS)) {
+    const pts = byName.get(c.line);
+    const n = pts ? normalNear(pts, [c.x, c.y]) : null;
+    if (!n) continue;
+    const sign = c.direction === "forward" ? 1 : -1;
+    triangle(ctx, [c.x, c.y], [n[0] * sign, n[1] * sign], 9, DIRECTION_COLOUR[c.direction], px, c.inferred);
+  }
+  const f = scene.focusPoint;
+  if (f) {
+    ctx.beginPath();
+    ctx.arc(f[0], f[1], 13 * px, 0, Math.PI * 2);
+    casedStroke(ctx, PLAN_INK, 1.6, px, [3, 3]);
+  }
+}
+
+/**
+ * The forward normal of the segment of `pts` nearest to p.
+ * @param {Point[]} pts
+ * @param {Point} p
+ * @returns {Point | null}
+ */
+function normalNear(pts, p) {
+  let best = -1;
+  let bestD = Infinity;
+  for (let j = 0; j + 1 < pts.length; j++) {
+    const d = distanceToSegment(p, pts[j], pts[j + 1]);
+    if (d < bestD) [best, bestD] = [j, d];
+  }
+  if (best < 0) return null;
+  const side = forwardSide([pts[best], pts[best + 1]]);
+  return side ? side.normal : null;
+}
+
+/**
+ * Each track: its path, its box's corners, its count point; tracks out of focus dimmed.
  * @param {Ctx} ctx
  * @param {import("./tracks.js").TrackView} tracks
- * @param {Scene} state
- * @param {number} px
+ * @param {Scene} scene
  */
-function drawTracks(ctx, tracks, state, px) {
-  const { frame, plan } = state;
-  if (state.showTrails) {
-    const trails = tracks.trails(frame, state.trailFrames, plan.anchor);
-    ctx.lineWidth = 2 * px;
-    for (const [id, pts] of trails) {
-      if (pts.length < 2) continue;
-      ctx.strokeStyle = trackColour(id, 0.75);
-      ctx.beginPath();
-      pts.forEach((p, j) => (j ? ctx.lineTo(p[0], p[1]) : ctx.moveTo(p[0], p[1])));
-      ctx.stroke();
+function drawTracks(ctx, tracks, scene) {
+  const { frame, plan, px, focus, live } = scene;
+  /** @param {number} id */
+  const dim = (id) => { ctx.globalAlpha = focus && !focus.ids.has(id) ? 0.3 : 1; };
+  if (scene.show.paths) {
+    for (const [id, path] of tracks.paths(frame - scene.pathFrames + 1, frame, plan.anchor)) {
+      if (focus && focus.ids.has(id)) continue;
+      dim(id);
+      beadedPath(ctx, smoothed(path), px, 1.5, scene.beadEvery);
     }
   }
-  tracks.forEachBox(frame, (id, x, y, w, h, observed) => {
-    const colour = trackColour(id);
-    if (state.showBoxes) {
-      ctx.strokeStyle = colour;
-      ctx.lineWidth = 2 * px;
-      // A box the tracker only predicted (no detection this frame) is dashed.
-      ctx.setLineDash(observed ? [] : [5 * px, 4 * px]);
-      ctx.strokeRect(x, y, w, h);
-      ctx.setLineDash([]);
-    }
-    const cls = tracks.classes.get(id);
-    label(ctx, cls ? `${id} ${cls}` : `${id}`, x, y - 3 * px, px, colour);
+  ctx.globalAlpha = 1;
+  // The track in focus is drawn as measured, jitter and all: jitter about a line is what makes double counts.
+  if (focus) for (const path of focus.paths.values()) beadedPath(ctx, path, px, 1.8, scene.beadEvery);
+  tracks.forEachBox(frame, (id, x, y, w, h, seen) => {
+    dim(id);
+    if (scene.show.boxes) boxCorners(ctx, x, y, w, h, px, seen ? STATE_COLOUR.seen : STATE_COLOUR.hidden);
+    const counted = live ? live.countedAs(id, frame) : null;
+    const focused = Boolean(focus && focus.ids.has(id));
+    anchorMark(ctx, countPoint(x, y, w, h, plan.anchor), px, { seen, counted: counted ? DIRECTION_COLOUR[counted] : null, focused });
   });
+  ctx.globalAlpha = 1;
+}
+
+/**
+ * A path with each point the mean of it and its two neighbours on each side (a fifth of a second at
+ * 25 fps), so the paths of the tracks not in focus read as movements, not as the boxes' jitter.
+ * @param {import("./tracks.js").Path} path
+ * @returns {import("./tracks.js").Path}
+ */
+function smoothed({ pts, seen }) {
+  const n = pts.length;
+  const out = pts.map((_, i) => {
+    const from = Math.max(0, i - 2);
+    const to = Math.min(n - 1, i + 2);
+    let x = 0;
+    let y = 0;
+    for (let k = from; k <= to; k++) [x, y] = [x + pts[k][0], y + pts[k][1]];
+    return /** @type {Point} */ ([x / (to - from + 1), y / (to - from + 1)]);
+  });
+  // The last point stays where the count point is now.
+  if (n) out[n - 1] = pts[n - 1];
+  return { pts: out, seen };
+}
+
+/**
+ * Labels of this frame's tracks, after the fixed ones: the tracks in focus ("track 12 ·
+ * pedestrian"), then every track's number when asked for; a label with no room left is not drawn.
+ * @param {Ctx} ctx
+ * @param {import("./tracks.js").TrackView} tracks
+ * @param {Scene} scene
+ */
+function trackLabels(ctx, tracks, scene) {
+  const { frame, px, focus } = scene;
+  const board = scene.layout.board;
+  const kept = board.taken.length;
+  /** @type {{key: string, rect: Rect}[]} */
+  const drawn = [];
+  /** @type {{id: number, x: number, y: number, w: number, h: number, focused: boolean}[]} */
+  const boxes = [];
+  tracks.forEachBox(frame, (id, x, y, w, h) => boxes.push({ id, x, y, w, h, focused: Boolean(focus && focus.ids.has(id)) }));
+  boxes.sort((a, b) => Number(b.focused) - Number(a.focused));
+  for (const b of boxes) {
+    if (!b.focused && !scene.show.numbers) continue;
+    const cls = tracks.classes.get(b.id);
+    const tag = b.focused ? { text: `track ${b.id}${cls ? ` · ${cls}` : ""}`, colour: "#FFFFFF" } : { text: String(b.id), colour: "#E4E4E4" };
+    const { w, h } = tagSize(ctx, tag, px);
+    const g = 4 * px;
+    const rect = board.place({ w, h, at: [[b.x, b.y - h - g], [b.x + b.w + g, b.y], [b.x - w - g, b.y], [b.x, b.y + b.h + g]] });
+    if (!rect) continue;
+    drawTag(ctx, rect, tag, px);
+    drawn.push({ key: `track:${b.id}`, rect });
+  }
+  board.taken.length = kept; // the next frame places them afresh
+  return drawn;
 }
 
 /**
@@ -212,18 +284,7 @@ function drawTracks(ctx, tracks, state, px) {
 function drawDraft(ctx, draft, px) {
   const pts = draft.cursor ? [...draft.points, draft.cursor] : draft.points;
   if (!pts.length) return;
-  ctx.strokeStyle = "#ffffff";
-  ctx.lineWidth = 2 * px;
-  ctx.setLineDash([6 * px, 4 * px]);
-  ctx.beginPath();
-  pts.forEach((p, j) => (j ? ctx.lineTo(p[0], p[1]) : ctx.moveTo(p[0], p[1])));
-  if (draft.kind === "zone" && pts.length > 2) ctx.closePath();
-  ctx.stroke();
-  ctx.setLineDash([]);
-  for (const p of draft.points) {
-    ctx.fillStyle = "#ffffff";
-    ctx.beginPath();
-    ctx.arc(p[0], p[1], 4 * px, 0, Math.PI * 2);
-    ctx.fill();
-  }
+  tracePath(ctx, pts, draft.kind === "zone" && pts.length > 2);
+  casedStroke(ctx, PLAN_INK, 2, px, [6, 4]);
+  for (const p of draft.points) handle(ctx, p, px);
 }

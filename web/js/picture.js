@@ -77,8 +77,8 @@ export class Picture {
     const name = this.store.footage ? this.store.footage.name : "the footage";
     const stem = name.replace(/\.[^.]+$/, "");
     const error = this.video.error;
-    const why = error && error.code === 4 ? "its format or codec is not one this browser plays" : "it could not be read";
-    this.messages.say("footage", "error", `This browser cannot play ${name}: ${why}. Browsers play WebM (VP8, VP9, AV1) and MP4 (H.264). Convert it on this computer with ffmpeg:\n`, [
+    const why = error && error.code === 4 ? "this browser does not play its video format" : "the file could not be read";
+    this.messages.say("footage", "error", `This browser cannot play ${name}: ${why}. Browsers play WebM and MP4 video (from most cameras and phones). To convert it on this computer, the free program ffmpeg can do it with this command:\n`, [
       el("code", { text: `ffmpeg -i "${name}" -c:v libvpx-vp9 -crf 32 -b:v 0 -an "${stem}.webm"` }),
     ]);
   }

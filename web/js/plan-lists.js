@@ -4,11 +4,11 @@
 // loses the keyboard focus to a row made anew; rows are only added or removed at the end.
 
 import { el, showValue, Rows } from "./dom.js";
-import { planColour } from "./geometry.js";
 import { setLabel } from "./plan.js";
 
 /** @typedef {import("./plan.js").Plan} Plan */
 /** @typedef {(edit: (plan: Plan) => void) => void} Edit */
+/** A line's or zone's key colour, by name. @typedef {(name: string) => string} KeyColour */
 
 /**
  * A text field that commits a change with `onChange(text)`.
@@ -46,12 +46,13 @@ export class LineList {
   /**
    * @param {Plan} plan
    * @param {string | null} selected
+   * @param {KeyColour} keyColour
    */
-  show(plan, selected) {
+  show(plan, selected, keyColour) {
     this.rows.show(plan.screenlines.length, (row, i) => {
       const line = plan.screenlines[i];
       row.root.classList.toggle("selected", selected === `line:${i}`);
-      row.root.style.setProperty("--swatch", planColour(i));
+      row.root.style.setProperty("--swatch", keyColour(line.name));
       showValue(row.name, line.name);
       showValue(row.forward, line.forward || "");
       showValue(row.backward, line.backward || "");
@@ -65,17 +66,24 @@ export class LineList {
 }
 
 /**
- * The row of line `i`: its name, Flip, Delete, and its two direction labels.
+ * The row of line `i`: its name, Flip, Delete, and its two direction names, each under a visible
+ * caption (forward is the side the gate's teeth point to on the picture).
  * @param {number} i
  * @param {Edit} edit
  */
 function lineRow(i, edit) {
   const name = field({ "aria-label": `Name of line ${i + 1}` }, (text) => edit((p) => (p.screenlines[i].name = text.trim() || p.screenlines[i].name)));
-  const flip = button("Flip", "Reverse which way is forward", () => edit((p) => p.screenlines[i].points.reverse()));
+  const flip = button("Flip", "Swap which side is forward", () => edit((p) => p.screenlines[i].points.reverse()));
   const remove = button("\u2715", "Delete", () => edit((p) => p.screenlines.splice(i, 1)));
-  const forward = field({ placeholder: "forward (arrow)" }, (text) => edit((p) => setLabel(p.screenlines[i], "forward", text)));
-  const backward = field({ placeholder: "backward" }, (text) => edit((p) => setLabel(p.screenlines[i], "backward", text)));
-  const root = el("li", {}, [el("div", { class: "row" }, [name, flip, remove]), el("div", { class: "row" }, [forward, backward])]);
+  const forward = field({ placeholder: "e.g. northbound" }, (text) => edit((p) => setLabel(p.screenlines[i], "forward", text)));
+  const backward = field({ placeholder: "e.g. southbound" }, (text) => edit((p) => setLabel(p.screenlines[i], "backward", text)));
+  const caption = (/** @type {string} */ glyph, /** @type {string} */ dir, /** @type {string} */ text, /** @type {HTMLInputElement} */ input) =>
+    el("label", {}, [el("span", { class: `dir ${dir}`, "aria-hidden": "true", text: `${glyph} ` }), text, input]);
+  const directions = el("div", { class: "directions" }, [
+    caption("\u25B2", "forward", "Forward", forward),
+    caption("\u25BC", "backward", "Backward", backward),
+  ]);
+  const root = el("li", {}, [el("div", { class: "row" }, [name, flip, remove]), directions]);
   return { root, name, flip, remove, forward, backward };
 }
 
@@ -93,12 +101,13 @@ export class ZoneList {
   /**
    * @param {Plan} plan
    * @param {string | null} selected
+   * @param {KeyColour} keyColour
    */
-  show(plan, selected) {
+  show(plan, selected, keyColour) {
     this.rows.show(plan.zones.length, (row, i) => {
       const zone = plan.zones[i];
       row.root.classList.toggle("selected", selected === `zone:${i}`);
-      row.root.style.setProperty("--swatch", planColour(plan.screenlines.length + i));
+      row.root.style.setProperty("--swatch", keyColour(zone.name));
       showValue(row.name, zone.name);
       row.remove.setAttribute("aria-label", `Delete ${zone.name}`);
     });
@@ -132,21 +141,25 @@ export class GroundPointList {
     ]);
     this.unit = field({ "aria-label": "Ground unit" }, (text) => edit((p) => { if (p.calibration) p.calibration.unit = text.trim() || "m"; }));
     this.unitLabel = el("label", {}, ["Ground unit ", this.unit]);
+    /** What was typed that is not a number, by field. */
+    this.problem = el("p", { class: "error", role: "alert" });
     /** @type {Rows<ReturnType<typeof groundRow>>} */
-    this.rows = new Rows(body, (i) => groundRow(i, edit));
+    this.rows = new Rows(body, (i) => groundRow(i, edit, (text) => { this.problem.textContent = text; }));
     container.replaceChildren(this.hint);
   }
 
   /** @param {Plan} plan */
   show(plan) {
     const pairs = plan.calibration ? plan.calibration.pairs || [] : [];
-    const want = pairs.length ? [this.table, this.unitLabel] : [this.hint];
+    const want = pairs.length ? [this.table, this.problem, this.unitLabel] : [this.hint];
     if (this.container.firstChild !== want[0]) this.container.replaceChildren(...want);
     this.rows.show(pairs.length, (row, i) => {
       const pair = pairs[i];
       row.image.textContent = `${pair.image[0]}, ${pair.image[1]}`;
-      showValue(row.x, numberText(pair.ground[0]));
-      showValue(row.y, numberText(pair.ground[1]));
+      [row.x, row.y].forEach((input, k) => {
+        if (input.getAttribute("aria-invalid") !== "true") showValue(input, numberText(pair.ground[k]));
+        input.classList.toggle("missing", typeof pair.ground[k] !== "number");
+      });
     });
     if (plan.calibration) showValue(this.unit, plan.calibration.unit || "m");
   }
@@ -170,21 +183,34 @@ function numberText(v) {
 }
 
 /**
+ * A typed ground coordinate: a number (a decimal comma is read as a point), null when blank, or
+ * undefined when it is not a number.
+ * @param {string} text
+ */
+function groundNumber(text) {
+  const t = text.trim().replace(",", ".");
+  if (t === "") return null;
+  const v = Number(t);
+  return Number.isFinite(v) ? v : undefined;
+}
+
+/**
  * The row of ground point `i`: its name (G1, G2...), where it is in the picture, its ground X and Y
- * and Delete.
+ * and Delete. Text that is not a number is kept in its field, marked, and said under the table.
  * @param {number} i
  * @param {Edit} edit
+ * @param {(problem: string) => void} say
  */
-function groundRow(i, edit) {
-  /** @param {number} k @param {string} text */
-  const setGround = (k, text) => edit((p) => {
-    const v = text.trim() === "" ? null : Number(text);
-    if (p.calibration) p.calibration.pairs[i].ground[k] = v !== null && Number.isFinite(v) ? v : null;
-  });
+function groundRow(i, edit, say) {
   /** @param {number} k @param {string} label */
   const coordinate = (k, label) => {
-    const input = el("input", { type: "number", step: "any", "aria-label": label });
-    input.addEventListener("change", () => setGround(k, input.value));
+    const input = el("input", { type: "text", inputmode: "decimal", autocomplete: "off", "aria-label": label });
+    input.addEventListener("change", () => {
+      const v = groundNumber(input.value);
+      input.setAttribute("aria-invalid", String(v === undefined));
+      say(v === undefined ? `${label}: “${input.value}” is not a number. Type it like 8.1 or -2.` : "");
+      if (v !== undefined) edit((p) => { if (p.calibration) p.calibration.pairs[i].ground[k] = v; });
+    });
     return input;
   };
   const x = coordinate(0, `Ground X of G${i + 1}`);

@@ -6,6 +6,7 @@
 import { byId, el, download, showValue } from "./dom.js";
 import { planForCore, setHysteresis } from "./plan.js";
 import { LineList, ZoneList, GroundPointList } from "./plan-lists.js";
+import { itemNames } from "./palette.js";
 
 /** @typedef {import("./store.js").PageStore} PageStore */
 /** @typedef {import("./store.js").Tool} Tool */
@@ -14,9 +15,9 @@ import { LineList, ZoneList, GroundPointList } from "./plan-lists.js";
 /** @type {Record<Tool, string>} */
 const TOOL_HINTS = {
   select: "Drag the ends of a line or the corners of a zone to move them. Click a line to select it; Delete removes it.",
-  line: "Click where the line starts, then where it ends (hold Shift to add bends, Enter to finish). The arrow shows forward.",
+  line: "Click where the line starts, then where it ends (hold Shift to add bends, Enter to finish). Its teeth mark the forward side. Escape cancels.",
   zone: "Click the corners; click the first corner again or press Enter to close the zone. Escape cancels.",
-  calibration: "Click a point on the ground whose position you know, then type its X and Y on the right.",
+  calibration: "Click a point on the ground whose position you know, then type its ground X and Y under Ground points. Escape cancels.",
 };
 
 export class PlanPanel {
@@ -95,9 +96,12 @@ export class PlanPanel {
   }
 
   showLists() {
-    const { plan, selected } = this.store;
-    this.lines.show(plan, selected);
-    this.zones.show(plan, selected);
+    const { plan, selected, keyColours } = this.store;
+    const names = itemNames(plan);
+    /** @param {string} name */
+    const keyColour = (name) => keyColours.colour(name, names);
+    this.lines.show(plan, selected, keyColour);
+    this.zones.show(plan, selected, keyColour);
     this.ground.show(plan);
   }
 

@@ -50,7 +50,7 @@ export function parsePlanText(text, fileName) {
   try {
     value = JSON.parse(text);
   } catch (e) {
-    throw new Error(`${fileName} is not valid JSON (${/** @type {Error} */ (e).message}). A plan is a JSON object with "frame_rate" and "screenlines"; see docs/plan-format.md.`);
+    throw new Error(`${fileName} is not valid JSON (${/** @type {Error} */ (e).message}). A plan file is written as JSON: an object with "frame_rate" and "screenlines". Save a plan from this page to see one.`);
   }
   if (!value || typeof value !== "object" || Array.isArray(value)) {
     throw new Error(`${fileName} is not a plan: expected a JSON object with "frame_rate" and "screenlines".`);
@@ -62,26 +62,45 @@ export function parsePlanText(text, fileName) {
 }
 
 /**
+ * What the ground points still lack, in words ("G2 needs its ground Y"), one entry per point that
+ * lacks something.
+ * @param {Plan} plan
+ * @returns {string[]}
+ */
+export function groundGaps(plan) {
+  const pairs = plan.calibration ? plan.calibration.pairs || [] : [];
+  /** @param {unknown} v */
+  const known = (v) => typeof v === "number" && Number.isFinite(v);
+  return pairs.flatMap((p, i) => {
+    const [x, y] = p.ground || [];
+    if (known(x) && known(y)) return [];
+    const missing = !known(x) && !known(y) ? "ground X and Y" : known(x) ? "ground Y" : "ground X";
+    return [`G${i + 1} needs its ${missing}`];
+  });
+}
+
+/**
+ * Why there are no speeds, in words, or "" when the ground points are enough for them.
+ * @param {Plan} plan
+ */
+export function speedsNote(plan) {
+  const pairs = plan.calibration ? plan.calibration.pairs || [] : [];
+  if (!pairs.length) return "";
+  const gaps = groundGaps(plan);
+  if (gaps.length) return `No speeds yet: ${gaps.join("; ")} (under Set up, Ground points).`;
+  if (pairs.length < 4) return `No speeds yet: speeds need 4 or more ground points whose ground position you know; there ${pairs.length === 1 ? "is 1" : `are ${pairs.length}`}.`;
+  return "";
+}
+
+/**
  * The plan as the core should see it. Ground points join the plan only when there are 4 or more and
- * every one has both ground coordinates; until then the reason comes back in `calibrationNote`.
+ * every one has both ground coordinates; until then `calibrationNote` says what is missing.
  * @param {Plan} plan
  */
 export function planForCore(plan) {
   const out = { ...plan };
-  let calibrationNote = "";
-  const pairs = plan.calibration ? plan.calibration.pairs || [] : [];
-  if (pairs.length > 0) {
-    const complete = pairs.every((p) => p.ground && p.ground.every((v) => typeof v === "number" && Number.isFinite(v)));
-    if (!complete) {
-      calibrationNote = "Speeds wait for the ground position (X, Y) of every ground point.";
-      delete out.calibration;
-    } else if (pairs.length < 4) {
-      calibrationNote = `Speeds need 4 or more ground points (${pairs.length} so far).`;
-      delete out.calibration;
-    }
-  } else {
-    delete out.calibration;
-  }
+  const calibrationNote = speedsNote(plan);
+  if (calibrationNote || !(plan.calibration && (plan.calibration.pairs || []).length)) delete out.calibration;
   return { json: JSON.stringify(out, null, 2) + "\n", calibrationNote };
 }
 

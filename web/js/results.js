@@ -1,13 +1,16 @@
 // @ts-check
-// The report, shown: totals per line and direction, counts per interval (chart and table), zones,
-// movements, speeds, and the list of count events that every number comes from. Shown whenever the
-// core counts anew, hidden when the counts are gone.
+// The report, shown: totals per line and direction, counts per interval (charts and table), zones,
+// movements and speeds, in words a person who did not build the tool can read. Shown whenever the
+// core counts anew, hidden when the counts are gone. (The count events behind every number are in
+// the Review's list, review-events.js.)
 
 import { el, table, clockText, byId } from "./dom.js";
-import { planColour } from "./geometry.js";
+import { intervalCharts, intervalCount, startFormat } from "./chart.js";
+import { speedsNote } from "./plan.js";
+import { itemNames } from "./palette.js";
 
 /**
- * The core's report (crate/core/src/count.rs, Report), as far as the page reads it.
+ * The core's report (crate/core/src/report/mod.rs, Report), as far as the page reads it.
  * @typedef {object} Report
  * @property {string} caution
  * @property {{method: string} | null} tracker
@@ -34,10 +37,10 @@ import { planColour } from "./geometry.js";
  * @property {IntervalCount[]} intervals
  * @property {{start: string, end: string, volume: number, phf: number} | null} peak_hour
  */
-/** @typedef {{name: string, entries: number, exits: number, present_at_end: number, dwell_seconds: Summary}} ZoneReport */
+/** @typedef {{name: string, entries: number, exits: number, present_at_start: number, present_at_end: number, dwell_seconds: Summary}} ZoneReport */
 /** @typedef {{count: number, mean: number | null, median: number | null, p85: number | null}} Summary */
 /**
- * One count: a track crossing a line or entering or leaving a zone.
+ * One count: a track crossing a line or entering or leaving a zone, at (x, y) in video pixels.
  * @typedef {object} CountEvent
  * @property {number} track
  * @property {number[]} track_ids
@@ -49,75 +52,59 @@ import { planColour } from "./geometry.js";
  * @property {number} seconds
  * @property {string} time
  * @property {string} class
+ * @property {number} x
+ * @property {number} y
  * @property {boolean} [inferred]
  */
 
-const MAX_EVENTS_SHOWN = 2000;
-
-/** The Counts section: the report when there is one, nothing when the counts are gone. */
+/** The Results view's counts: the report when there is one, nothing when the counts are gone. */
 export class ResultsPanel {
   /**
    * @param {import("./store.js").PageStore} store
-   * @param {(event: CountEvent) => void} onEvent an event was clicked: show its moment
+   * @param {(name: string) => string} methodLabel a tracking method's name as people read it
    */
-  constructor(store, onEvent) {
+  constructor(store, methodLabel) {
     const root = byId("results", HTMLElement);
+    /** @param {string} name */
+    const keyColour = (name) => store.keyColours.colour(name, itemNames(store.plan));
     store.subscribe(["results"], () => {
-      if (store.results) showResults(root, store.results.report, onEvent);
-      else root.hidden = true;
+      byId("results-empty", HTMLElement).hidden = Boolean(store.results);
+      if (!store.results) {
+        root.hidden = true;
+        return;
+      }
+      root.hidden = false;
+      const report = store.results.report;
+      byId("caution", HTMLElement).textContent = report.caution;
+      byId("summary", HTMLElement).replaceChildren(summaryLine(report, methodLabel), ...totals(report));
+      showIntervals(report, keyColour);
+      byId("zones-table", HTMLElement).replaceChildren(...zones(report));
+      byId("movements-table", HTMLElement).replaceChildren(...movements(report));
+      byId("speeds-table", HTMLElement).replaceChildren(...speeds(report, speedsNote(store.plan)));
     });
   }
 }
 
 /**
- * @param {HTMLElement} root the Counts section
  * @param {Report} report
- * @param {(event: CountEvent) => void} onEvent
+ * @param {(name: string) => string} methodLabel
  */
-function showResults(root, report, onEvent) {
-  root.hidden = false;
-  byId("caution", HTMLElement).textContent = report.caution;
+function summaryLine(report, methodLabel) {
   const t = report.tracker;
-  const trackerText = t ? ` Tracked with ${t.method}.` : "";
-  byId("summary", HTMLElement).replaceChildren(
-    el("p", { class: "hint", text: `${report.tracks_counted} tracks counted (fragments of one path joined) over ${report.frame_count} frames (${clockText(report.duration_seconds)}).${trackerText}` }),
-    totals(report),
-  );
-  showIntervals(report);
-  byId("zones-table", HTMLElement).replaceChildren(...zones(report));
-  byId("movements-table", HTMLElement).replaceChildren(...movements(report));
-  byId("speeds-table", HTMLElement).replaceChildren(...speeds(report));
-  const events = byId("events", HTMLElement);
-  const shown = report.events.slice(0, MAX_EVENTS_SHOWN);
-  events.replaceChildren(
-    ...shown.map((e) => el("li", {}, el("button", {
-      type: "button",
-      class: e.inferred ? "inferred" : null,
-      text: eventText(e),
-      title: e.inferred ? "Inferred: the track was predicted, not seen, as it crossed" : "Seen crossing",
-      onclick: () => onEvent(e),
-    }))),
-  );
-  if (report.events.length > shown.length) {
-    events.append(el("li", { text: `… and ${report.events.length - shown.length} more in the exported report.` }));
-  }
-}
-
-/** @param {CountEvent} e */
-function eventText(e) {
-  const time = e.time ? e.time.slice(11) : clockText(e.seconds);
-  const what = e.kind === "screenline" ? `${e.name}: ${e.label}` : `${e.name}: ${e.direction}`;
-  const ids = e.track_ids && e.track_ids.length > 1 ? `tracks ${e.track_ids.join("+")}` : `track ${e.track}`;
-  return `${time} · frame ${e.frame} · ${what} · ${e.class || "unclassified"} · ${ids}${e.inferred ? " · inferred" : ""}`;
+  const how = t ? ` Tracked with ${methodLabel(t.method)}.` : "";
+  return el("p", { class: "hint", text: `${report.tracks_counted} paths counted over ${report.frame_count} frames (${clockText(report.duration_seconds)}); where one person's or vehicle's track broke into pieces, the pieces were joined into one path.${how}` });
 }
 
 /** @param {Report} report */
 function totals(report) {
   const rows = report.screenlines.map((l) => [l.name, `${l.forward_label}: ${l.forward}`, `${l.backward_label}: ${l.backward}`, l.forward + l.backward, l.inferred]);
-  const out = el("div", {}, [table(["Line", "Forward", "Backward", "Both", "Inferred"], rows, [3, 4])]);
+  const out = [table(["Line", "Forward", "Backward", "Both", "Counted while hidden"], rows, [3, 4])];
+  if (report.screenlines.some((l) => l.inferred > 0)) {
+    out.push(el("p", { class: "note", text: "Counted while hidden: crossings made while the person or vehicle was out of the camera's sight; where it crossed was predicted from how it moved before and after. They are among the counts; check them in Review, Count events." }));
+  }
   for (const l of report.screenlines) {
     if (l.peak_hour) {
-      out.append(el("p", { class: "hint", text: `${l.name}: peak hour ${l.peak_hour.start.slice(11)}–${l.peak_hour.end.slice(11)}, ${l.peak_hour.volume} crossings, peak hour factor ${l.peak_hour.phf.toFixed(2)}` }));
+      out.push(el("p", { class: "hint", text: `${l.name}: peak hour ${l.peak_hour.start.slice(11)}–${l.peak_hour.end.slice(11)}, ${l.peak_hour.volume} crossings, peak hour factor ${l.peak_hour.phf.toFixed(2)}` }));
     }
   }
   return out;
@@ -129,11 +116,12 @@ function classNames(line) {
 }
 
 /**
- * The chart and the interval table, for all classes or the one chosen in the class list (shown
+ * The charts and the interval table, for all classes or the one chosen in the class list (shown
  * when the report has more than one class). The choice is kept while that class is in the report.
  * @param {Report} report
+ * @param {(name: string) => string} keyColour
  */
-function showIntervals(report) {
+function showIntervals(report, keyColour) {
   const field = byId("chart-class-field", HTMLElement);
   const select = byId("chart-class", HTMLSelectElement);
   const classes = [...new Set(report.screenlines.flatMap(classNames))].sort();
@@ -143,22 +131,11 @@ function showIntervals(report) {
   field.hidden = classes.length < 2;
   const draw = () => {
     const cls = select.value || null;
-    byId("chart", HTMLElement).replaceChildren(chart(report, cls));
+    byId("chart", HTMLElement).replaceChildren(...intervalCharts(report, cls, keyColour));
     byId("interval-table", HTMLElement).replaceChildren(intervalTable(report, cls));
   };
   select.onchange = draw;
   draw();
-}
-
-/**
- * An interval's count in one direction, for one class or (null) all.
- * @param {IntervalCount} iv
- * @param {"forward" | "backward"} dir
- * @param {string | null} cls
- */
-function intervalCount(iv, dir, cls) {
-  if (cls === null) return iv[dir];
-  return iv.by_class[cls] ? iv.by_class[cls][dir] : 0;
 }
 
 /**
@@ -169,72 +146,19 @@ function intervalTable(report, only) {
   /** @type {(string | number)[][]} */
   const rows = [];
   for (const line of report.screenlines) {
+    const clock = startFormat(line.intervals);
     for (const iv of line.intervals) {
       for (const [dir, label] of /** @type {const} */ ([["forward", line.forward_label], ["backward", line.backward_label]])) {
-        const when = `${iv.start.slice(11, 16)}–${iv.end.slice(11, 16)}${iv.partial ? " (part)" : ""}`;
+        const when = `${clock(iv.start)}–${clock(iv.end)}${iv.partial ? " (part)" : ""}`;
         const classes = only ? [only] : classNames(line);
         for (const cls of classes) rows.push([line.name, label, cls, when, intervalCount(iv, dir, cls)]);
         if (!only && classes.length !== 1) rows.push([line.name, label, "all", when, iv[dir]]);
       }
     }
   }
-  return table(["Line", "Direction", "Class", "Interval", "Count"], rows, [4]);
-}
-
-/**
- * Bars per interval, one group per interval, one bar per line and direction (forward solid,
- * backward light); `cls` null for all classes, else that class only.
- * @param {Report} report
- * @param {string | null} cls
- */
-function chart(report, cls) {
-  const NS = "http://www.w3.org/2000/svg";
-  /** @type {(tag: string, attrs: Record<string, string | number>, text?: string) => SVGElement} */
-  const svg = (tag, attrs, text) => {
-    const n = document.createElementNS(NS, tag);
-    for (const [k, v] of Object.entries(attrs)) n.setAttribute(k, String(v));
-    if (text !== undefined) n.textContent = text;
-    return n;
-  };
-  /** @type {{name: string, colour: string, opacity: number, values: number[]}[]} */
-  const series = [];
-  report.screenlines.forEach((l, i) => {
-    series.push({ name: `${l.name} ${l.forward_label}`, colour: planColour(i), opacity: 1, values: l.intervals.map((iv) => intervalCount(iv, "forward", cls)) });
-    series.push({ name: `${l.name} ${l.backward_label}`, colour: planColour(i), opacity: 0.45, values: l.intervals.map((iv) => intervalCount(iv, "backward", cls)) });
-  });
-  const intervals = report.screenlines.length ? report.screenlines[0].intervals : [];
-  const max = Math.max(1, ...series.flatMap((s) => s.values));
-  const barW = 14;
-  const groupW = Math.max(1, series.length) * barW + 16;
-  const height = 160;
-  const left = 34;
-  const width = left + Math.max(1, intervals.length) * groupW + 10;
-  const root = svg("svg", { viewBox: `0 0 ${width} ${height + 40}`, width, height: height + 40, role: "img", "aria-label": "Counts per interval" });
-  for (const frac of [0, 0.5, 1]) {
-    const y = height - frac * (height - 10);
-    root.append(svg("line", { x1: left - 4, x2: width, y1: y, y2: y, stroke: "#d9d4c7" }));
-    root.append(svg("text", { x: left - 6, y: y + 4, "text-anchor": "end", fill: "#5f6472" }, String(Math.round(frac * max))));
-  }
-  intervals.forEach((iv, k) => {
-    const x0 = left + k * groupW + 8;
-    series.forEach((s, j) => {
-      const h = (s.values[k] / max) * (height - 10);
-      const bar = svg("rect", { x: x0 + j * barW, y: height - h, width: barW - 2, height: h, fill: s.colour, "fill-opacity": s.opacity });
-      bar.append(svg("title", {}, `${s.name}, ${iv.start.slice(11, 16)}: ${s.values[k]}`));
-      root.append(bar);
-    });
-    root.append(svg("text", { x: x0, y: height + 14, fill: "#1d2330" }, iv.start.slice(11, 16)));
-  });
-  let lx = left;
-  series.forEach((s) => {
-    root.append(svg("rect", { x: lx, y: height + 24, width: 10, height: 10, fill: s.colour, "fill-opacity": s.opacity }));
-    const t = svg("text", { x: lx + 13, y: height + 33, fill: "#1d2330" }, s.name);
-    root.append(t);
-    lx += 20 + s.name.length * 6;
-  });
-  root.setAttribute("viewBox", `0 0 ${Math.max(width, lx)} ${height + 40}`);
-  root.setAttribute("width", String(Math.max(width, lx)));
-  return root;
+  const partial = report.screenlines.some((l) => l.intervals.some((iv) => iv.partial));
+  const note = el("p", { class: "note", text: "(part): the footage ends before this interval does, so its count covers only part of it." });
+  return el("div", {}, [table(["Line", "Direction", "Class", "Interval", "Count"], rows, [4]), partial ? note : null]);
 }
 
 /**
@@ -247,11 +171,24 @@ function stat(s) {
   return s && s.count ? `${fixed(s.median)} / ${fixed(s.mean)} / ${fixed(s.p85)}` : "–";
 }
 
-/** @param {Report} report */
+/**
+ * Each zone's entries and exits, and the people or vehicles first or last seen inside it, which
+ * add up: first seen inside + entries = exits + last seen inside.
+ * @param {Report} report
+ */
 function zones(report) {
   if (!report.zones.length) return [];
-  const rows = report.zones.map((z) => [z.name, z.entries, z.exits, z.present_at_end, stat(z.dwell_seconds)]);
-  return [el("h3", { text: "Zones" }), table(["Zone", "Entries", "Exits", "Inside at end", "Dwell s (median / mean / 85th)"], rows, [1, 2, 3])];
+  const rows = report.zones.map((z) => [z.name, z.present_at_start, z.entries, z.exits, z.present_at_end, stat(z.dwell_seconds)]);
+  const sums = report.zones.map((z) => {
+    const adds = z.present_at_start + z.entries === z.exits + z.present_at_end;
+    const sum = `${z.present_at_start} first seen inside + ${z.entries} entries = ${z.exits} exits + ${z.present_at_end} last seen inside`;
+    return adds ? `${z.name}: ${sum}.` : `${z.name}: ${z.present_at_start} + ${z.entries} is not ${z.exits} + ${z.present_at_end}: the report's count events list every entry and exit to check.`;
+  });
+  return [
+    el("h3", { text: "Zones" }),
+    table(["Zone", "First seen inside", "Entries", "Exits", "Last seen inside", "Time inside, s (median / mean / 85th percentile)"], rows, [1, 2, 3, 4]),
+    el("p", { class: "note", text: `${sums.join(" ")} Someone first seen inside (there when the footage starts, or appearing inside) has no entry; someone last seen inside (there when it ends, or vanishing inside) has no exit.` }),
+  ];
 }
 
 /** @param {Report} report */
@@ -261,11 +198,17 @@ function movements(report) {
   return [el("h3", { text: "Movements (first line or zone met → last)" }), table(["From", "To", "Class", "Count", "U-turn"], rows, [3])];
 }
 
-/** @param {Report} report */
-function speeds(report) {
+/**
+ * @param {Report} report
+ * @param {string} missing why the plan gives no speeds, or ""
+ */
+function speeds(report, missing) {
   const s = report.speeds;
-  if (!s) return [];
+  if (!s) {
+    const why = missing || "No speeds: they need 4 or more ground points whose ground position you know (Set up, Add ground point).";
+    return [el("h3", { text: "Speeds" }), el("p", { class: "hint", id: "speeds-missing", text: why })];
+  }
   const rows = Object.entries(s.by_class).map(([cls, v]) => [cls, v.count, stat(v)]);
   rows.push(["all", s.all.count, stat(s.all)]);
-  return [el("h3", { text: `Speeds (${s.unit}/s)` }), table(["Class", "Tracks", "median / mean / 85th"], rows, [1])];
+  return [el("h3", { text: `Speeds (${s.unit} per second)` }), table(["Class", "Tracks", "median / mean / 85th percentile"], rows, [1])];
 }

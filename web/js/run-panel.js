@@ -63,7 +63,7 @@ export class RunPanel {
   async track() {
     if (this.restoring) await this.restoring;
     if (!this.store.detections) {
-      this.messages.say("run", "error", "Open a detections file first (Open detections): the boxes found in each frame, as text, CSV or JSON.");
+      this.messages.say("run", "error", "Open a detections file first (Set up, Open detections): the boxes an object detector found in each frame, as text, CSV or JSON. No detections? Under Set up, Find moving objects finds them in footage from a fixed camera.");
       return;
     }
     this.messages.clear("run");
@@ -82,6 +82,8 @@ export class RunPanel {
         this.messages.say("run", "warn", "The plan has no lines or zones, so nothing was counted. Press Draw line and click two points across the path, or open a plan file; the counts appear at once.");
       }
       await this.planSync.send();
+      // From setting up, on to the counts; a person already reviewing stays where they are.
+      if (this.store.view === "setup" && this.store.results) this.store.viewChosen("results");
     } catch (e) {
       this.status.textContent = "";
       if (e instanceof Cancelled) {

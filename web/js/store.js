@@ -4,7 +4,8 @@
 // then update the parts of the page they own. Nothing here touches the page or the worker.
 
 import { PlanHistory, frameRateOf } from "./plan.js";
-import { LiveCounts } from "./tracks.js";
+import { LiveCounts } from "./live-counts.js";
+import { KeyColours } from "./palette.js";
 
 /** @typedef {import("./plan.js").Plan} Plan */
 /** @typedef {import("./plan.js").PlanChange} PlanChange */
@@ -15,7 +16,8 @@ import { LiveCounts } from "./tracks.js";
 /**
  * What an action changed. "geometry": plan points moved in place while dragging (drawing only).
  * @typedef {"plan" | "geometry" | "selection" | "frame" | "footage" | "video" | "picture" | "detections"
- *   | "tracks" | "results" | "busy" | "planProblem" | "planName" | "frameRate" | "tool" | "draft"} Topic
+ *   | "tracks" | "results" | "busy" | "planProblem" | "planName" | "frameRate" | "tool" | "draft" | "view"
+ *   | "reviewTab" | "focus"} Topic
  */
 /** @typedef {{changed: Set<Topic>, why: string}} Change `why`: for "plan", a PlanChange */
 /** @typedef {(change: Change) => void} Listener */
@@ -26,6 +28,9 @@ import { LiveCounts } from "./tracks.js";
  */
 /** Detections in use: the core's summary, the file (to give a restarted worker) and how to name them. @typedef {{summary: DetectionSummary, source: Blob, label: string}} Detections */
 /** @typedef {{report: import("./results.js").Report, reportText: string, csv: string, live: LiveCounts}} Results */
+/** What the person is doing: setting up, reviewing against the footage, reading the results. @typedef {"setup" | "review" | "results"} View */
+/** The review's lists. @typedef {"doubtful" | "tracks" | "events" | "edits"} ReviewTab */
+/** The tracks being reviewed (tracker ids) and the count event chosen, if one was. @typedef {{tracks: number[], event: import("./results.js").CountEvent | null}} Focus */
 /** @typedef {"select" | "line" | "zone" | "calibration"} Tool */
 /** A line or zone being drawn: its points so far and where the pointer is. @typedef {{kind: "line" | "zone", points: Point[], cursor?: Point}} Draft */
 /** A vertex being dragged: of a line, a zone or a ground point. @typedef {{kind: "line" | "zone" | "ground", index: number, vertex: number}} Vertex */
@@ -64,6 +69,14 @@ export class PageStore {
     this.tool = "select";
     /** @type {Draft | null} the line or zone being drawn */
     this.draft = null;
+    /** @type {View} */
+    this.view = "setup";
+    /** @type {ReviewTab} */
+    this.reviewTab = "events";
+    /** @type {Focus | null} */
+    this.focus = null;
+    /** Each line's and zone's key colour, kept by name. */
+    this.keyColours = new KeyColours(storage);
     /** @type {Map<Listener, Set<Topic>>} */
     this.listeners = new Map();
   }
@@ -169,7 +182,13 @@ export class PageStore {
   resultsReady({ report, csv }) {
     const parsed = JSON.parse(report);
     this.results = { report: parsed, reportText: report, csv, live: new LiveCounts(parsed) };
-    this.emit(["results"]);
+    // The event in focus, if any, is the same event in the new counts (or none, when it is gone).
+    const was = this.focus && this.focus.event;
+    if (this.focus && was) {
+      const same = parsed.events.find((/** @type {import("./results.js").CountEvent} */ e) => e.frame === was.frame && e.name === was.name && e.direction === was.direction && e.track === was.track);
+      this.focus = { ...this.focus, event: same || null };
+    }
+    this.emit(["results", "focus"]);
   }
 
   /** Tracking was stopped: the detections and plan stay, tracks and counts go. */
@@ -184,7 +203,8 @@ export class PageStore {
   forgetTracking() {
     this.tracks = null;
     this.results = null;
-    return ["tracks", "results"];
+    this.focus = null;
+    return ["tracks", "results", "focus"];
   }
 
   /** @param {boolean} on */
@@ -227,6 +247,27 @@ export class PageStore {
     this.emit(["frame"]);
   }
 
+  /** @param {View} view */
+  viewChosen(view) {
+    this.view = view;
+    this.emit(["view"]);
+  }
+
+  /** @param {ReviewTab} tab */
+  reviewTabChosen(tab) {
+    this.reviewTab = tab;
+    this.emit(["reviewTab"]);
+  }
+
+  /**
+   * Tracks chosen for review (their marks stand out, the others are dimmed), or none (null).
+   * @param {Focus | null} focus
+   */
+  focusChosen(focus) {
+    this.focus = focus;
+    this.emit(["focus"]);
+  }
+
   /** @param {string | null} key "line:2", "zone:0" or null */
   itemSelected(key) {
     this.selected = key;
@@ -256,7 +297,9 @@ export class PageStore {
    * @param {(plan: Plan) => void} edit changes the copy it is given
    */
   planEdited(edit) {
+    const before = this.plan;
     this.plans.change(edit, "edit");
+    this.keyColours.follow(before, this.plan);
     this.emit(["plan"], "edit");
   }
 
@@ -273,7 +316,10 @@ export class PageStore {
   }
 
   planUndone() {
-    if (this.plans.undo()) this.emit(["plan"], "undo");
+    const before = this.plan;
+    if (!this.plans.undo()) return;
+    this.keyColours.follow(before, this.plan);
+    this.emit(["plan"], "undo");
   }
 
   /** Deletes the selected line or zone. */

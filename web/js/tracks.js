@@ -1,13 +1,27 @@
 // @ts-check
-// The tracks the worker sent back, indexed for drawing: one Float32Array, 7 values per box
-// (frame 1-based, id, x, y, w, h in pixels top-left + size, observed 1/0), ordered by frame.
-
-import { upperBound } from "./geometry.js";
+// The tracks the worker sent back, indexed for drawing and for the review lists: one Float32Array,
+// 7 values per box (frame 1-based, id, x, y, w, h in pixels top-left + size, observed 1/0), ordered
+// by frame. Nothing here counts: it looks boxes up by frame and by track.
 
 /** @typedef {import("./geometry.js").Point} Point */
-/** @typedef {{forward: number, backward: number, forwardLabel: string, backwardLabel: string}} LineCounts */
+/** @typedef {[number, number, number, number]} Box x, y, w, h in video pixels, top-left + size */
+/** A track's count points over some frames, and whether each was seen (else predicted). @typedef {{pts: Point[], seen: boolean[]}} Path */
+/** Where the picture's action is: a grid of cells, each 0 (nothing went there) to 1 (the busiest). @typedef {{cols: number, rows: number, cellW: number, cellH: number, cells: Float32Array}} ActionGrid */
 
 export const STRIDE = 7;
+
+/**
+ * A box's count point: its bottom centre, or its centre when the plan counts by centres.
+ * @param {number} x
+ * @param {number} y
+ * @param {number} w
+ * @param {number} h
+ * @param {string | undefined} anchor the plan's count point
+ * @returns {Point}
+ */
+export function countPoint(x, y, w, h, anchor) {
+  return [x + w / 2, anchor === "centre" ? y + h / 2 : y + h];
+}
 
 export class TrackView {
   /**
@@ -16,6 +30,7 @@ export class TrackView {
    */
   constructor(boxes, trackList) {
     this.boxes = boxes;
+    this.list = trackList;
     this.classes = new Map(trackList.map((t) => [t.id, t.class]));
     // frameStart[f] = index of the first box of frame f (in boxes, not values); frameStart[f+1] ends it.
     const lastFrame = boxes.length ? boxes[boxes.length - STRIDE] : 0;
@@ -27,6 +42,8 @@ export class TrackView {
       while (i < n && boxes[i * STRIDE] < f) i++;
       this.frameStart[f] = i;
     }
+    /** @type {Map<number, {first: Box, last: Box}> | null} */
+    this.endsCache = null;
   }
 
   /**
@@ -44,61 +61,89 @@ export class TrackView {
   }
 
   /**
-   * Anchor points of each track over the frames (f - length, f], as a Map id -> [[x, y], ...].
-   * @param {number} f
-   * @param {number} length
-   * @param {string | undefined} anchor the plan's count point: "centre", else the bottom centre
+   * Each track's count points over the frames [from, to], as a Map id -> path; `only` limits it to
+   * some tracks.
+   * @param {number} from
+   * @param {number} to
+   * @param {string | undefined} anchor the plan's count point
+   * @param {Set<number> | null} [only]
    */
-  trails(f, length, anchor) {
-    /** @type {Map<number, Point[]>} */
+  paths(from, to, anchor, only = null) {
+    /** @type {Map<number, Path>} */
     const out = new Map();
-    for (let g = Math.max(1, f - length + 1); g <= f; g++) {
-      this.forEachBox(g, (id, x, y, w, h) => {
-        /** @type {Point} */
-        const p = [x + w / 2, anchor === "centre" ? y + h / 2 : y + h];
-        const list = out.get(id);
-        if (list) list.push(p);
-        else out.set(id, [p]);
+    for (let g = Math.max(1, from); g <= Math.min(to, this.lastFrame); g++) {
+      this.forEachBox(g, (id, x, y, w, h, seen) => {
+        if (only && !only.has(id)) return;
+        let path = out.get(id);
+        if (!path) out.set(id, (path = { pts: [], seen: [] }));
+        path.pts.push(countPoint(x, y, w, h, anchor));
+        path.seen.push(seen);
       });
     }
     return out;
   }
-}
 
-/** Running totals at each screenline from the report's events, for the counters drawn on the picture. */
-export class LiveCounts {
-  /** @param {import("./results.js").Report | null} report */
-  constructor(report) {
-    /** @type {Map<string, {forward: number[], backward: number[], forwardLabel: string, backwardLabel: string}>} */
-    this.byLine = new Map();
-    for (const line of report ? report.screenlines : []) {
-      this.byLine.set(line.name, { forward: [], backward: [], forwardLabel: line.forward_label, backwardLabel: line.backward_label });
+  /** Each track's first and last box. */
+  ends() {
+    if (this.endsCache) return this.endsCache;
+    /** @type {Map<number, {first: Box, last: Box}>} */
+    const ends = new Map();
+    const b = this.boxes;
+    for (let o = 0; o < b.length; o += STRIDE) {
+      /** @type {Box} */
+      const box = [b[o + 2], b[o + 3], b[o + 4], b[o + 5]];
+      const e = ends.get(b[o + 1]);
+      if (e) e.last = box;
+      else ends.set(b[o + 1], { first: box, last: box });
     }
-    for (const e of report ? report.events : []) {
-      if (e.kind !== "screenline") continue;
-      const line = this.byLine.get(e.name);
-      if (line) line[e.direction === "forward" ? "forward" : "backward"].push(e.frame);
-    }
-    for (const line of this.byLine.values()) {
-      line.forward.sort((a, b) => a - b);
-      line.backward.sort((a, b) => a - b);
-    }
+    this.endsCache = ends;
+    return ends;
   }
 
   /**
-   * {forward, backward, forwardLabel, backwardLabel} counted up to and including frame f, or null.
-   * @param {string} name
-   * @param {number} f
-   * @returns {LineCounts | null}
+   * Where the tracks went, over the whole footage: how many boxes covered each cell of a grid over
+   * the picture, scaled so the busiest cell is 1. Labels are placed where it is low.
+   * @param {number} width the picture's size, video pixels
+   * @param {number} height
+   * @returns {ActionGrid}
    */
-  at(name, f) {
-    const line = this.byLine.get(name);
-    if (!line) return null;
-    return {
-      forward: upperBound(line.forward, f),
-      backward: upperBound(line.backward, f),
-      forwardLabel: line.forwardLabel,
-      backwardLabel: line.backwardLabel,
-    };
+  actionGrid(width, height) {
+    const cols = 32;
+    const rows = 18;
+    const cellW = width / cols;
+    const cellH = height / rows;
+    const cells = new Float32Array(cols * rows);
+    const b = this.boxes;
+    for (let o = 0; o < b.length; o += STRIDE) {
+      const c0 = Math.max(0, Math.floor(b[o + 2] / cellW));
+      const c1 = Math.min(cols - 1, Math.floor((b[o + 2] + b[o + 4]) / cellW));
+      const r0 = Math.max(0, Math.floor(b[o + 3] / cellH));
+      const r1 = Math.min(rows - 1, Math.floor((b[o + 3] + b[o + 5]) / cellH));
+      for (let r = r0; r <= r1; r++) for (let c = c0; c <= c1; c++) cells[r * cols + c] += 1;
+    }
+    const max = cells.reduce((m, v) => Math.max(m, v), 0);
+    if (max > 0) for (let i = 0; i < cells.length; i++) cells[i] /= max;
+    return { cols, rows, cellW, cellH, cells };
   }
+}
+
+/**
+ * How much of the action a rectangle covers: the mean of the grid's cells under it, 0 to 1.
+ * @param {ActionGrid} grid
+ * @param {{x: number, y: number, w: number, h: number}} r video pixels
+ */
+export function actionUnder(grid, r) {
+  const c0 = Math.max(0, Math.floor(r.x / grid.cellW));
+  const c1 = Math.min(grid.cols - 1, Math.floor((r.x + r.w) / grid.cellW));
+  const r0 = Math.max(0, Math.floor(r.y / grid.cellH));
+  const r1 = Math.min(grid.rows - 1, Math.floor((r.y + r.h) / grid.cellH));
+  let sum = 0;
+  let n = 0;
+  for (let row = r0; row <= r1; row++) {
+    for (let c = c0; c <= c1; c++) {
+      sum += grid.cells[row * grid.cols + c];
+      n++;
+    }
+  }
+  return n ? sum / n : 0;
 }

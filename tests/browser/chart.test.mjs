@@ -1,0 +1,59 @@
+// The counts-per-interval charts, read as a person reads them: with 6-second intervals the demo
+// gives five intervals a line. Each line's chart must have whole-number ticks rising from 0 evenly
+// to at least its tallest bar, a legend naming both directions, and the two directions' bars told
+// apart by pattern as well as colour. The bar heights are the exported report's interval counts.
+// (Ticks at whole steps of 1, 2 or 5 times a power of ten: common practice for count axes.)
+import { test } from "node:test";
+import assert from "node:assert/strict";
+import { mkdtempSync } from "node:fs";
+import { join } from "node:path";
+import { tmpdir } from "node:os";
+import { useBrowser, openPage, showView, run, downloadText, artefacts, LAPTOP } from "./harness.mjs";
+
+const env = useBrowser();
+const scratch = mkdtempSync(join(tmpdir(), "tl-chart-"));
+
+test("each line's chart: whole, evenly rising ticks from 0, a legend of both directions, bars by pattern", async () => {
+  const { page, seen } = await openPage(env, { viewport: LAPTOP });
+  await page.getByLabel("Interval (minutes)").fill("0.1");
+  await page.getByLabel("Interval (minutes)").press("Tab");
+  await run(page);
+  const report = JSON.parse(await downloadText(page, "Export report", scratch));
+  await showView(page, "Results");
+  const figures = page.locator("#chart figure");
+  assert.equal(await figures.count(), report.screenlines.length, "one chart per line");
+
+  for (const [i, line] of report.screenlines.entries()) {
+    assert.equal(line.intervals.length, 5, "30 s of footage in 6 s intervals");
+    const figure = figures.nth(i);
+    const ticks = (await figure.locator("text.tick").allTextContents()).map((t) => t.trim());
+    for (const t of ticks) assert.match(t, /^\d+$/, `tick "${t}" is a whole number`);
+    const values = ticks.map(Number);
+    assert.equal(values[0], 0);
+    const step = values[1] - values[0];
+    values.forEach((v, k) => assert.equal(v, k * step, `ticks ${values} rise evenly`));
+    assert.ok([1, 2, 5, 10, 20, 50].includes(step), `step ${step}`);
+    const tallest = Math.max(...line.intervals.flatMap((iv) => [iv.forward, iv.backward]));
+    assert.ok(values[values.length - 1] >= tallest, `top tick ${values[values.length - 1]} reaches ${tallest}`);
+
+    const legend = await figure.locator(".legend").innerText();
+    assert.match(legend, new RegExp(`${line.forward_label} \\(forward\\)`));
+    assert.match(legend, new RegExp(`${line.backward_label} \\(backward\\)`));
+    const bars = await figure.locator("rect.bar").evaluateAll((rs) => rs.map((r) => ({
+      dir: r.classList.contains("forward") ? "forward" : "backward", fill: r.getAttribute("fill"), title: r.textContent,
+    })));
+    const forward = bars.filter((b) => b.dir === "forward");
+    const backward = bars.filter((b) => b.dir === "backward");
+    assert.equal(forward.length, 5);
+    assert.equal(backward.length, 5);
+    assert.ok(forward.every((b) => !b.fill.startsWith("url(")), "forward bars are solid");
+    assert.ok(backward.every((b) => b.fill.startsWith("url(#")), "backward bars are hatched");
+    line.intervals.forEach((iv, k) => {
+      assert.match(forward[k].title, new RegExp(`: ${iv.forward}$`));
+      assert.match(backward[k].title, new RegExp(`: ${iv.backward}$`));
+    });
+  }
+  await page.locator("#chart").screenshot({ path: join(artefacts, "15-chart-six-second-intervals.png") });
+  assert.deepEqual(seen.errors, []);
+  await page.close();
+});

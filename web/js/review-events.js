@@ -1,0 +1,114 @@
+// @ts-check
+// The review's list of count events: every crossing of a line and every entry to or exit from a
+// zone that the counts are made of, in the report's order. Choosing one shows that moment: the
+// footage goes to its frame and its track stands out on the picture.
+
+import { el, byId, clockText, revealInList } from "./dom.js";
+
+/** @typedef {import("./store.js").PageStore} PageStore */
+/** @typedef {import("./results.js").CountEvent} CountEvent */
+/** @typedef {import("./results.js").Report} Report */
+
+const MAX_EVENTS_SHOWN = 2000;
+
+export class EventList {
+  /**
+   * @param {PageStore} store
+   * @param {(event: CountEvent) => void} choose show this event's moment
+   */
+  constructor(store, choose) {
+    this.store = store;
+    this.choose = choose;
+    this.list = byId("events", HTMLElement);
+    this.badge = byId("events-count", HTMLElement);
+    /** @type {HTMLButtonElement[]} */
+    this.buttons = [];
+    store.subscribe(["results"], () => this.show());
+    store.subscribe(["focus"], () => this.mark());
+  }
+
+  show() {
+    const report = this.store.results ? this.store.results.report : null;
+    const events = report ? report.events : [];
+    const shown = events.slice(0, MAX_EVENTS_SHOWN);
+    this.buttons = shown.map((e) => el("button", { type: "button", onclick: () => this.choose(e) }, eventRow(e)));
+    this.list.replaceChildren(...this.buttons.map((b) => el("li", {}, b)));
+    if (events.length > shown.length) {
+      this.list.append(el("li", { class: "more", text: `… and ${events.length - shown.length} more, in the exported report.` }));
+    }
+    this.badge.textContent = report ? `(${events.length})` : "";
+    this.mark();
+  }
+
+  /** The chosen event's row is marked as the current one. */
+  mark() {
+    const report = this.store.results ? this.store.results.report : null;
+    const focus = this.store.focus;
+    const index = report && focus && focus.event ? report.events.indexOf(focus.event) : -1;
+    this.buttons.forEach((b, i) => b.setAttribute("aria-current", String(i === index)));
+    if (index >= 0 && this.buttons[index]) revealInList(this.list, this.buttons[index]);
+  }
+
+  /**
+   * Chooses the event `step` places after (or before) the chosen one; false when there is none.
+   * @param {number} step
+   */
+  step(step) {
+    const report = this.store.results ? this.store.results.report : null;
+    const focus = this.store.focus;
+    if (!report || !focus || !focus.event) return false;
+    const next = report.events[report.events.indexOf(focus.event) + step];
+    if (!next) return false;
+    this.choose(next);
+    return true;
+  }
+}
+
+/**
+ * When an event happened in the footage (m:ss.cc), and the time of day after it when the plan has a
+ * start time.
+ * @param {CountEvent} e
+ */
+export function eventTime(e) {
+  return e.time ? `${clockText(e.seconds)} (${e.time.slice(11)})` : clockText(e.seconds);
+}
+
+/**
+ * What an event is, in words: "plaza midline: towards camera", "kiosk: entry".
+ * @param {CountEvent} e
+ */
+export function eventWhat(e) {
+  return e.kind === "screenline" ? `${e.name}: ${e.label}` : `${e.name}: ${e.direction}`;
+}
+
+/**
+ * The tracks an event counted: one, or the pieces of one path joined.
+ * @param {CountEvent} e
+ */
+export function eventTracks(e) {
+  const ids = e.track_ids && e.track_ids.length ? e.track_ids : [e.track];
+  return ids.length > 1 ? `tracks ${ids.slice(0, -1).join(", ")} and ${ids[ids.length - 1]} (one path, joined)` : `track ${ids[0]}`;
+}
+
+/**
+ * A triangle in the direction's colour (outlined where the track was hidden), or nothing for zones.
+ * @param {CountEvent} e
+ */
+export function directionGlyph(e) {
+  if (e.kind !== "screenline") return null;
+  const forward = e.direction === "forward";
+  const glyph = e.inferred ? (forward ? "\u25B3" : "\u25BD") : forward ? "\u25B2" : "\u25BC";
+  return el("span", { class: `dir ${forward ? "forward" : "backward"}`, "aria-hidden": "true", text: `${glyph} ` });
+}
+
+/** @param {CountEvent} e */
+function eventRow(e) {
+  const detail = [e.class || "unclassified", eventTracks(e), `frame ${e.frame}`];
+  if (e.time) detail.push(e.time.slice(11));
+  if (e.inferred) detail.push("counted while hidden");
+  return [
+    el("span", { class: "when", text: clockText(e.seconds) }),
+    el("span", { class: "what" }, [directionGlyph(e), eventWhat(e)]),
+    el("span", { class: "detail", text: detail.join(" · ") }),
+  ];
+}
