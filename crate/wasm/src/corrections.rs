@@ -4,8 +4,9 @@
 
 use crate::{js_error, to_js, Session};
 use throughline_core::edits::EditList;
+use throughline_core::fingerprint::Fingerprint;
 use throughline_core::project::{self, Project};
-use throughline_core::review;
+use throughline_core::{pipeline, review};
 use wasm_bindgen::prelude::*;
 
 #[wasm_bindgen]
@@ -15,6 +16,21 @@ impl Session {
     #[wasm_bindgen(js_name = setEdits)]
     pub fn set_edits(&mut self, json: &str) -> Result<JsValue, JsError> {
         self.work.edits = project::edits_from_json(json).map_err(js_error)?;
+        self.recount();
+        let outcomes = self
+            .report
+            .as_ref()
+            .map(|r| r.edits.clone())
+            .unwrap_or_default();
+        to_js(&outcomes)
+    }
+
+    /// Sets everything a project file adds to the counts (corrections, tallies, a correction
+    /// factor) from the project file's text, and counts again. Returns what became of each edit.
+    #[wasm_bindgen(js_name = setWork)]
+    pub fn set_work(&mut self, project_json: &str) -> Result<JsValue, JsError> {
+        let p = Project::from_json(project_json).map_err(js_error)?;
+        self.work = pipeline::Work::of_project(&p);
         self.recount();
         let outcomes = self
             .report
@@ -56,4 +72,22 @@ pub fn read_project(text: &str) -> Result<JsValue, JsError> {
 pub fn write_project(project: JsValue) -> Result<String, JsError> {
     let p: Project = serde_wasm_bindgen::from_value(project).map_err(js_error)?;
     Ok(p.to_json())
+}
+
+/// A file's fingerprint: `name`, `size` in bytes, its first bytes `head` (at least the first MiB,
+/// or all of a smaller file), and for footage its duration in seconds (0 when none). Returns
+/// `{name, size, head_sha256, duration_seconds?}`, as project files hold it.
+#[wasm_bindgen]
+pub fn fingerprint(name: &str, size: f64, head: &[u8], duration: f64) -> Result<JsValue, JsError> {
+    let duration = (duration > 0.0).then_some(duration);
+    to_js(&Fingerprint::of(name, size as u64, head, duration))
+}
+
+/// Why a file is not the one a project was made with (`null` when it is): both fingerprints as
+/// plain objects.
+#[wasm_bindgen(js_name = fingerprintDiffers)]
+pub fn fingerprint_differs(recorded: JsValue, opened: JsValue) -> Result<Option<String>, JsError> {
+    let a: Fingerprint = serde_wasm_bindgen::from_value(recorded).map_err(js_error)?;
+    let b: Fingerprint = serde_wasm_bindgen::from_value(opened).map_err(js_error)?;
+    Ok(a.differs(&b))
 }
