@@ -6,6 +6,7 @@
 
 mod commands;
 mod files;
+mod handin;
 mod progress;
 
 use clap::{Parser, Subcommand};

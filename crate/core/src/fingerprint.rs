@@ -29,6 +29,11 @@ pub struct Fingerprint {
     /// Duration in seconds, for footage.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub duration_seconds: Option<f64>,
+    /// Picture size in pixels, for footage.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub width: Option<u32>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub height: Option<u32>,
 }
 
 impl Fingerprint {
@@ -41,6 +46,8 @@ impl Fingerprint {
             size,
             head_sha256: sha256_hex(head),
             duration_seconds: duration_seconds.map(|d| (d * 1000.0).round() / 1000.0),
+            width: None,
+            height: None,
         }
     }
 

@@ -16,6 +16,7 @@ pub mod edits;
 pub mod error;
 pub mod fingerprint;
 pub mod geometry;
+pub mod handin;
 pub mod pipeline;
 pub mod plan;
 pub mod project;

@@ -13,6 +13,7 @@ mod corrections;
 mod detecting;
 mod facts;
 mod footage;
+mod handin;
 
 pub use boxes::{BOX_STRIDE, FRAME_BOX_STRIDE};
 pub use facts::core_facts;

@@ -3,11 +3,14 @@
 use super::count::{write_report, Outputs};
 use super::detect::detect_footage;
 use super::track::{track_detections, track_file, TrackingArgs};
-use crate::files::{read_plan, read_settings, read_work, tracks_text, write_file, Failure};
+use crate::files::{
+    bad_usage, read_plan, read_settings, read_work, tracks_text, write_file, Failure,
+};
+use crate::handin;
 use crate::progress::Timer;
 use std::path::{Path, PathBuf};
 use throughline_core::pipeline;
-use throughline_core::plan::FOOTAGE_HYSTERESIS;
+use throughline_core::plan::{Plan, FOOTAGE_HYSTERESIS};
 
 /// The long help of the command (`--help`).
 pub const LONG_ABOUT: &str = "Track detections, then count them against a plan.\n\n\
@@ -46,12 +49,33 @@ pub struct Args {
     /// Corrections to replay: an edits file or a project file saved by the page.
     #[arg(long, value_name = "FILE")]
     edits: Option<PathBuf>,
+    #[command(flatten)]
+    handin: HandinArgs,
+}
+
+/// The hand-in outputs: with a site's name, the interval grid, the movement matrix and the summary
+/// are written next to the report.
+#[derive(clap::Args)]
+struct HandinArgs {
+    /// The site's name: writes SITE_DATE_grid.csv, _grid-long.csv, _movements.csv and _summary.html
+    /// next to the report (a project file's site is used when this is not given).
+    #[arg(long, value_name = "NAME")]
+    site: Option<String>,
+    /// The recording's clock time at frame 1, like 2026-03-02T07:00:00 (instead of the plan's).
+    #[arg(long, value_name = "TIME")]
+    start: Option<String>,
+    /// The original footage file, to name it in the outputs (only its first MiB is read).
+    #[arg(long, value_name = "FILE")]
+    footage: Option<PathBuf>,
+    /// A still of the footage (PNG or JPEG) for the summary.
+    #[arg(long, value_name = "IMAGE")]
+    still: Option<PathBuf>,
 }
 
 pub fn run(args: Args) -> Result<(), Failure> {
     // The plan is checked first: a mistake in it should not cost a whole tracking run.
-    let plan = read_plan(&args.plan)?;
-    let (work, _project) = read_work(args.edits.as_deref())?;
+    let plan = with_start(read_plan(&args.plan)?, args.handin.start.as_deref())?;
+    let (work, project) = read_work(args.edits.as_deref())?;
     let mut timer = Timer::new();
     let how = &args.tracking;
     let tracks = match (&args.y4m, &args.detections) {
@@ -87,5 +111,38 @@ pub fn run(args: Args) -> Result<(), Failure> {
         report: args.output.as_deref(),
         csv: args.csv.as_deref(),
     };
-    write_report(&report, &out, how.quiet)
+    write_report(&report, &out, how.quiet)?;
+    let site = args.handin.site.is_some() || project.as_ref().is_some_and(|p| p.site.is_some());
+    if site {
+        let inputs = handin::Inputs {
+            site: args.handin.site.as_deref(),
+            plan: &args.plan,
+            detections: args.detections.as_deref(),
+            footage: args.handin.footage.as_deref(),
+            still: args.handin.still.as_deref(),
+            project: args.edits.as_deref().zip(project.as_ref()),
+        };
+        let ctx = handin::context(&inputs)?;
+        let dir = args
+            .output
+            .as_deref()
+            .and_then(Path::parent)
+            .unwrap_or(Path::new(""));
+        for path in handin::write_all(&report, &ctx, dir)? {
+            if !how.quiet {
+                eprintln!("written: {path}");
+            }
+        }
+    }
+    Ok(())
+}
+
+/// The plan with the recording's start given on the command line, checked again.
+fn with_start(plan: Plan, start: Option<&str>) -> Result<Plan, Failure> {
+    let Some(start) = start else {
+        return Ok(plan);
+    };
+    let mut spec = plan.spec;
+    spec.start = Some(start.to_string());
+    Plan::from_spec(spec).map_err(|e| bad_usage(&format!("--start: {}", e.message)))
 }

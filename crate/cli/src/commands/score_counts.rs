@@ -3,19 +3,23 @@
 use crate::files::{bad_input, looks_like_json_object, read_file, Failure};
 use std::path::{Path, PathBuf};
 use throughline_core::accuracy::{self as accuracy, Measures};
+use throughline_core::project::{self, Project};
+use throughline_core::report::Report;
 
 /// The long help of the command (`--help`).
 pub const LONG_ABOUT: &str = "Compare automated counts with a reference count.\n\n\
     REPORT is a report from `run` or `count`. The reference (--truth) is a manual count CSV with \
     the header screenline,direction,class,interval_start,interval_end,count (class may be empty or \
-    `all` for all classes together; direction uses the plan's labels), or another report. \
+    `all` for all classes together; direction uses the plan's labels), another report, or a project \
+    file whose hand counts (tallies, made in the page) are compared over their own frames. \
     Measures (NCHRP Report 797): APD = mean (A-M)/M, AAPD = mean |A-M|/M, WAPD = sum|A-M| / sum M, \
     correction factor = sum M / sum A, per screenline, direction and class over the intervals.";
 
 /// Compare counts with a manual count (or another report): APD, AAPD, WAPD, correction factor.
 #[derive(clap::Args)]
 pub struct Args {
-    /// Reference counts: a manual count CSV, or a report JSON.
+    /// Reference counts: a manual count CSV, a report JSON, or a project file with hand counts
+    /// (tallies) made in the page.
     #[arg(long, value_name = "MANUAL")]
     truth: PathBuf,
     /// The automated report (JSON).
@@ -32,9 +36,12 @@ fn read_json_value(path: &Path) -> Result<serde_json::Value, Failure> {
 
 pub fn run(args: Args) -> Result<(), Failure> {
     let (truth, report) = (&args.truth, &args.report);
+    let bytes = read_file(truth)?;
+    if is_project(&bytes) {
+        return tallies(truth, report, &bytes, args.json);
+    }
     let automated =
         accuracy::report_rows(&read_json_value(report)?).map_err(|e| bad_input(report, e))?;
-    let bytes = read_file(truth)?;
     let reference = if looks_like_json_object(&bytes) {
         accuracy::report_rows(&read_json_value(truth)?).map_err(|e| bad_input(truth, e))?
     } else {
@@ -86,4 +93,58 @@ fn measures(m: &Measures) -> String {
         pct(m.wapd),
         factor(m.correction_factor)
     )
+}
+
+/// Whether the reference is a project file (its tallies are the hand counts).
+fn is_project(bytes: &[u8]) -> bool {
+    serde_json::from_slice::<serde_json::Value>(bytes)
+        .ok()
+        .and_then(|v| v.get("format")?.as_str().map(|f| f == project::FORMAT))
+        .unwrap_or(false)
+}
+
+/// Each tally of a project file beside the report's counts of the same frames.
+fn tallies(truth: &Path, report_path: &Path, bytes: &[u8], json: bool) -> Result<(), Failure> {
+    let text = std::str::from_utf8(bytes).map_err(|_| bad_input(truth, "not UTF-8 text"))?;
+    let project = Project::from_json(text).map_err(|e| bad_input(truth, e))?;
+    if project.tallies.is_empty() {
+        return Err(bad_input(
+            truth,
+            "the project holds no hand counts (tallies) to compare with",
+        ));
+    }
+    let report_text = String::from_utf8_lossy(&read_file(report_path)?).into_owned();
+    let report = Report::from_json(&report_text).map_err(|e| bad_input(report_path, e))?;
+    let checks: Vec<_> = project
+        .tallies
+        .iter()
+        .map(|t| accuracy::check(t, &report))
+        .collect();
+    if json {
+        println!(
+            "{}",
+            serde_json::to_string_pretty(&checks).unwrap_or_default()
+        );
+        return Ok(());
+    }
+    for c in &checks {
+        println!(
+            "hand count by {} ({}), {} to {}:",
+            c.who, c.made, c.from, c.to
+        );
+        for g in &c.groups {
+            println!(
+                "  {} / {} / {}: {} by hand, {} automated; {}",
+                g.screenline,
+                g.direction,
+                g.class,
+                g.manual,
+                g.automated,
+                measures(&g.measures)
+            );
+        }
+        println!("  all: {}", measures(&c.overall));
+        println!("  {}", c.caution);
+    }
+    Ok(())
 }

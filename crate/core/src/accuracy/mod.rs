@@ -12,12 +12,12 @@
 
 mod tally;
 
-pub use tally::{check, Press, Tally, TallyCheck, TallyGroup};
+pub use crate::report::{Measures, TallyCheck, TallyGroup};
+pub use tally::{check, Press, Tally};
 
 use crate::error::{Error, ErrorKind};
 use crate::text;
-use schemars::JsonSchema;
-use serde::{Deserialize, Serialize};
+use serde::Serialize;
 use std::collections::BTreeMap;
 
 /// One row of a counts table: `screenline,direction,class,interval_start,interval_end,count`.
@@ -133,19 +133,6 @@ pub fn report_rows(report: &serde_json::Value) -> Result<Vec<CountRow>, String> 
         }
     }
     Ok(rows)
-}
-
-/// The measures for one group of intervals.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, JsonSchema)]
-pub struct Measures {
-    pub intervals: usize,
-    pub zero_reference_intervals: usize,
-    pub automated_total: u64,
-    pub reference_total: u64,
-    pub apd: Option<f64>,
-    pub aapd: Option<f64>,
-    pub wapd: Option<f64>,
-    pub correction_factor: Option<f64>,
 }
 
 /// Measures for one screenline, direction and class (`all` when the reference has no classes).

@@ -3,10 +3,11 @@
 //! 797 over bins of the sample. Several people may tally the same sample; each tally is kept with
 //! who made it and when.
 
-use super::{measures, Measures};
+use super::measures;
 use crate::edits::Way;
 use crate::plan::clock::{elapsed, LocalTime};
 use crate::report::{Direction, EventKind, Report};
+use crate::report::{TallyCheck, TallyGroup};
 use schemars::JsonSchema;
 use serde::{Deserialize, Serialize};
 
@@ -35,43 +36,6 @@ pub struct Tally {
     pub presses: Vec<Press>,
 }
 
-/// One line, direction and class of a check.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, JsonSchema)]
-pub struct TallyGroup {
-    pub screenline: String,
-    /// The plan's label of the direction.
-    pub direction: String,
-    /// `all` for all classes together.
-    pub class: String,
-    pub manual: u64,
-    pub automated: u64,
-    /// Automated minus manual.
-    pub difference: i64,
-    pub measures: Measures,
-    /// Each bin: its start label, automated and manual counts.
-    pub per_bin: Vec<(String, u64, u64)>,
-}
-
-/// A tally beside the automated count of the same frames.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, JsonSchema)]
-pub struct TallyCheck {
-    pub who: String,
-    pub made: String,
-    pub from_frame: u32,
-    pub to_frame: u32,
-    /// Clock labels of the sample's start and end.
-    pub from: String,
-    pub to: String,
-    /// The sample's length in seconds, and the bins the measures are taken over.
-    pub seconds: f64,
-    pub bin_seconds: f64,
-    pub groups: Vec<TallyGroup>,
-    /// Every group's bins pooled (all classes together).
-    pub overall: Measures,
-    /// How far to trust it: the sample's size, in words.
-    pub caution: String,
-}
-
 /// Bins of the plan's interval when the sample holds two or more, else of a minute when it holds
 /// two or more, else one bin: enough bins to see the error vary, as long as bins stay countable.
 fn bin_seconds(sample: f64, interval: f64) -> f64 {
@@ -84,77 +48,119 @@ fn bin_seconds(sample: f64, interval: f64) -> f64 {
     }
 }
 
+/// The sample's frames cut into bins: where each frame falls, and each bin's start label.
+struct Bins<'a> {
+    report: &'a Report,
+    from: u32,
+    to: u32,
+    fps: f64,
+    /// Seconds per bin, and the number of bins.
+    bin: f64,
+    count: usize,
+}
+
+impl Bins<'_> {
+    fn index(&self, frame: u32) -> Option<usize> {
+        (self.from..=self.to).contains(&frame).then(|| {
+            let i = (f64::from(frame - self.from) / self.fps / self.bin).floor() as usize;
+            i.min(self.count - 1)
+        })
+    }
+
+    fn label(&self, seconds: f64) -> String {
+        clock_label(self.report, seconds)
+    }
+
+    fn start(&self, i: usize) -> String {
+        self.label((f64::from(self.from) - 1.0) / self.fps + i as f64 * self.bin)
+    }
+}
+
+/// The classes a tally names for one line and direction: `None` (all) first, then each class
+/// pressed, in order of first press.
+fn classes<'t>(tally: &'t Tally, name: &str, way: Way) -> Vec<Option<&'t String>> {
+    let mut out = vec![None];
+    for p in &tally.presses {
+        if p.screenline == name && p.direction == way {
+            if let Some(c) = &p.class {
+                if !out.contains(&Some(c)) {
+                    out.push(Some(c));
+                }
+            }
+        }
+    }
+    out
+}
+
+/// One line, direction and class: the hand and automated counts bin by bin.
+fn group(
+    tally: &Tally,
+    bins: &Bins,
+    (name, way, dir, dir_label): (&str, Way, Direction, &str),
+    class: Option<&String>,
+) -> TallyGroup {
+    let mut auto = vec![0u64; bins.count];
+    let mut manual = vec![0u64; bins.count];
+    for e in &bins.report.events {
+        let same = e.kind == EventKind::Screenline && e.name == name && e.direction == dir;
+        if same && class.is_none_or(|c| e.class == *c) {
+            if let Some(i) = bins.index(e.frame) {
+                auto[i] += 1;
+            }
+        }
+    }
+    for p in &tally.presses {
+        let same = p.screenline == name && p.direction == way;
+        if same && class.is_none_or(|c| p.class.as_ref() == Some(c)) {
+            if let Some(i) = bins.index(p.frame) {
+                manual[i] += 1;
+            }
+        }
+    }
+    let pairs: Vec<(u64, u64)> = auto.iter().copied().zip(manual.iter().copied()).collect();
+    let (a, m): (u64, u64) = (auto.iter().sum(), manual.iter().sum());
+    TallyGroup {
+        screenline: name.to_string(),
+        direction: dir_label.to_string(),
+        class: class.cloned().unwrap_or_else(|| "all".into()),
+        manual: m,
+        automated: a,
+        difference: a as i64 - m as i64,
+        measures: measures(&pairs),
+        per_bin: (0..bins.count)
+            .map(|i| (bins.start(i), auto[i], manual[i]))
+            .collect(),
+    }
+}
+
 /// Compares a tally with the report's (corrected) events in the same frames.
 pub fn check(tally: &Tally, report: &Report) -> TallyCheck {
     let fps = report.plan.frame_rate;
     let (from, to) = (
-        tally.from_frame.min(tally.to_frame),
-        tally.from_frame.max(tally.to_frame),
+        tally.from_frame.min(tally.to_frame).max(1),
+        tally.from_frame.max(tally.to_frame).max(1),
     );
     let seconds = f64::from(to - from + 1) / fps;
     let bin = bin_seconds(seconds, report.plan.interval_minutes * 60.0);
-    let bins = ((seconds / bin).ceil() as usize).max(1);
-    let index = |frame: u32| ((f64::from(frame - from) / fps / bin).floor() as usize).min(bins - 1);
-    let label = |s: f64| clock_label(report, s);
-    let start_of = |i: usize| label((f64::from(from) - 1.0) / fps + i as f64 * bin);
+    let bins = Bins {
+        report,
+        from,
+        to,
+        fps,
+        bin,
+        count: ((seconds / bin).ceil() as usize).max(1),
+    };
     let mut groups = Vec::new();
     for name in &tally.screenlines {
         let Some(line) = report.screenlines.iter().find(|l| l.name == *name) else {
             continue;
         };
-        for (way, dir, dir_label) in [
+        for (way, dir, label) in [
             (Way::Forward, Direction::Forward, &line.forward_label),
             (Way::Backward, Direction::Backward, &line.backward_label),
         ] {
-            let mut classes = vec![None];
-            for p in &tally.presses {
-                if p.screenline == *name && p.direction == way {
-                    if let Some(c) = &p.class {
-                        if !classes.contains(&Some(c)) {
-                            classes.push(Some(c));
-                        }
-                    }
-                }
-            }
-            for class in classes {
-                let mut auto = vec![0u64; bins];
-                let mut manual = vec![0u64; bins];
-                for e in &report.events {
-                    let same_class = class.is_none_or(|c| e.class == *c);
-                    if e.kind == EventKind::Screenline
-                        && e.name == *name
-                        && e.direction == dir
-                        && (from..=to).contains(&e.frame)
-                        && same_class
-                    {
-                        auto[index(e.frame)] += 1;
-                    }
-                }
-                for p in &tally.presses {
-                    let same_class = class.is_none_or(|c| p.class.as_ref() == Some(c));
-                    if p.screenline == *name
-                        && p.direction == way
-                        && (from..=to).contains(&p.frame)
-                        && same_class
-                    {
-                        manual[index(p.frame)] += 1;
-                    }
-                }
-                let pairs: Vec<(u64, u64)> =
-                    auto.iter().copied().zip(manual.iter().copied()).collect();
-                let (a, m): (u64, u64) = (auto.iter().sum(), manual.iter().sum());
-                groups.push(TallyGroup {
-                    screenline: name.clone(),
-                    direction: dir_label.clone(),
-                    class: class.cloned().unwrap_or_else(|| "all".into()),
-                    manual: m,
-                    automated: a,
-                    difference: a as i64 - m as i64,
-                    measures: measures(&pairs),
-                    per_bin: (0..bins)
-                        .map(|i| (start_of(i), auto[i], manual[i]))
-                        .collect(),
-                });
+            for class in classes(tally, name, way) {
+                groups.push(group(tally, &bins, (name, way, dir, label), class));
             }
         }
     }
@@ -169,8 +175,8 @@ pub fn check(tally: &Tally, report: &Report) -> TallyCheck {
         made: tally.made.clone(),
         from_frame: from,
         to_frame: to,
-        from: label((f64::from(from) - 1.0) / fps),
-        to: label(f64::from(to) / fps),
+        from: bins.label((f64::from(from) - 1.0) / fps),
+        to: bins.label(f64::from(to) / fps),
         seconds: (seconds * 1000.0).round() / 1000.0,
         bin_seconds: (bin * 1000.0).round() / 1000.0,
         caution: caution(seconds, overall.reference_total),

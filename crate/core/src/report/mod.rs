@@ -5,11 +5,12 @@
 //!
 //! Frames are 1-based; times are seconds from frame 1 or clock labels; positions are pixels.
 
+mod checks;
 mod csv;
 
+pub use checks::{Measures, TallyCheck, TallyGroup};
 pub use csv::counts_csv;
 
-use crate::accuracy::TallyCheck;
 use crate::edits::Outcome;
 use crate::plan::PlanSpec;
 use crate::track::TrackerConfig;

@@ -1,0 +1,113 @@
+//! The hand-in outputs `run` writes next to the report when a site is named: the interval grid
+//! (wide and long), the movement matrix and the client summary, named from the site and date.
+
+use crate::files::{bad_input, read_file, write_file, Failure};
+use std::path::Path;
+use throughline_core::fingerprint::{Fingerprint, HEAD_BYTES};
+use throughline_core::handin::{self, Context, GridLayout, Separator};
+use throughline_core::project::Project;
+use throughline_core::report::Report;
+
+/// A file's fingerprint, reading only its first MiB.
+pub fn fingerprint(path: &Path) -> Result<Fingerprint, Failure> {
+    use std::io::Read;
+    let file = std::fs::File::open(path)
+        .map_err(|e| bad_input(path, format!("cannot read the file: {e}")))?;
+    let size = file.metadata().map(|m| m.len()).unwrap_or(0);
+    let mut head = Vec::new();
+    file.take(HEAD_BYTES as u64)
+        .read_to_end(&mut head)
+        .map_err(|e| bad_input(path, format!("cannot read the file: {e}")))?;
+    Ok(Fingerprint::of(&file_name(path), size, &head, None))
+}
+
+fn file_name(path: &Path) -> String {
+    path.file_name().map_or_else(
+        || path.display().to_string(),
+        |n| n.to_string_lossy().into_owned(),
+    )
+}
+
+/// What the outputs say about the inputs: the site, the plan's and detections' files, the footage
+/// (from `--footage`, else as the project recorded it) and a still (`--still`, a PNG or JPEG).
+pub struct Inputs<'a> {
+    pub site: Option<&'a str>,
+    pub plan: &'a Path,
+    pub detections: Option<&'a Path>,
+    pub footage: Option<&'a Path>,
+    pub still: Option<&'a Path>,
+    pub project: Option<(&'a Path, &'a Project)>,
+}
+
+pub fn context(inputs: &Inputs) -> Result<Context, Failure> {
+    let project = inputs.project.map(|(_, p)| p);
+    let footage = match inputs.footage {
+        Some(p) => Some(fingerprint(p)?),
+        None => project.and_then(|p| p.footage.clone()),
+    };
+    let detections = inputs.detections.map(fingerprint).transpose()?;
+    if let (Some(recorded), Some(opened)) =
+        (project.and_then(|p| p.detections.as_ref()), &detections)
+    {
+        if let Some(why) = recorded.differs(opened) {
+            eprintln!("warning: {why}");
+        }
+    }
+    let still = inputs.still.map(still_url).transpose()?;
+    Ok(Context {
+        site: inputs
+            .site
+            .map(str::to_string)
+            .or_else(|| project.and_then(|p| p.site.clone())),
+        plan_name: Some(file_name(inputs.plan)),
+        footage,
+        detections,
+        still,
+        project_name: inputs.project.map(|(path, _)| file_name(path)),
+    })
+}
+
+/// An image file as a `data:` URL.
+fn still_url(path: &Path) -> Result<String, Failure> {
+    let bytes = read_file(path)?;
+    let kind = if bytes.starts_with(b"\x89PNG") {
+        "image/png"
+    } else if bytes.starts_with(&[0xFF, 0xD8]) {
+        "image/jpeg"
+    } else {
+        return Err(bad_input(path, "the still must be a PNG or JPEG picture"));
+    };
+    use base64::Engine as _;
+    let encoded = base64::engine::general_purpose::STANDARD.encode(&bytes);
+    Ok(format!("data:{kind};base64,{encoded}"))
+}
+
+/// Writes the four outputs into `dir`; their paths.
+pub fn write_all(report: &Report, ctx: &Context, dir: &Path) -> Result<Vec<String>, Failure> {
+    let stem = handin::file_stem(report, ctx);
+    let outputs = [
+        (
+            format!("{stem}_grid.csv"),
+            handin::interval_grid(report, ctx, GridLayout::Wide, Separator::Comma),
+        ),
+        (
+            format!("{stem}_grid-long.csv"),
+            handin::interval_grid(report, ctx, GridLayout::Long, Separator::Comma),
+        ),
+        (
+            format!("{stem}_movements.csv"),
+            handin::movement_matrix(report, ctx, Separator::Comma),
+        ),
+        (
+            format!("{stem}_summary.html"),
+            handin::summary_html(report, ctx),
+        ),
+    ];
+    let mut written = Vec::new();
+    for (name, text) in outputs {
+        let path = dir.join(name);
+        write_file(&path, &text)?;
+        written.push(path.display().to_string());
+    }
+    Ok(written)
+}

@@ -1,0 +1,115 @@
+//! The hand-in outputs from the command line: `run --site --start` writes the grid, the matrix
+//! and the summary next to the report, named from the site and date; a project file brings its
+//! hand counts (tallies) into the report and `score-counts` compares them.
+
+mod common;
+
+use common::*;
+
+#[test]
+fn run_with_a_site_writes_the_hand_in_files_next_to_the_report() {
+    let dir = scratch("handin");
+    let report = dir.join("report.json").display().to_string();
+    let o = throughline(&[
+        "run",
+        &demo("detections.csv"),
+        "--plan",
+        &demo("plan.json"),
+        "-o",
+        &report,
+        "--site",
+        "Footbridge Plaza (east)",
+        "--start",
+        "2026-04-01T16:30:00",
+    ]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    for suffix in ["grid.csv", "grid-long.csv", "movements.csv", "summary.html"] {
+        let name = format!("footbridge-plaza-east_2026-04-01_{suffix}");
+        assert!(
+            dir.join(&name).exists(),
+            "{name} missing; stderr: {}",
+            stderr(&o)
+        );
+    }
+    let grid =
+        std::fs::read_to_string(dir.join("footbridge-plaza-east_2026-04-01_grid.csv")).unwrap();
+    assert!(
+        grid.starts_with("Site,Footbridge Plaza (east)\nRecording,\"from 2026-04-01T16:30:00"),
+        "{grid}"
+    );
+    assert!(grid.contains("\nInterval start,Interval end,"), "{grid}");
+    let summary =
+        std::fs::read_to_string(dir.join("footbridge-plaza-east_2026-04-01_summary.html")).unwrap();
+    assert!(summary.contains("<h1>Counts at Footbridge Plaza (east)</h1>"));
+    // A bad start time is a usage error naming the option.
+    let o = throughline(&[
+        "run",
+        &demo("detections.csv"),
+        "--plan",
+        &demo("plan.json"),
+        "--start",
+        "half past four",
+    ]);
+    assert_eq!(o.status.code(), Some(2));
+    assert!(stderr(&o).contains("--start"), "{}", stderr(&o));
+}
+
+#[test]
+fn a_projects_tallies_are_checked_in_the_report_and_by_score_counts() {
+    let dir = scratch("tallies");
+    let plan: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(demo("plan.json")).unwrap()).unwrap();
+    // A hand count of the first 20 s of the demo's east-west divide, made from its true crossings
+    // (demo-site/demo/truth_report.json, the simulator's truth).
+    let truth: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(demo("truth_report.json")).unwrap()).unwrap();
+    let presses: Vec<serde_json::Value> = truth["events"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .filter(|e| e["name"] == "east-west divide" && e["frame"].as_u64().unwrap() <= 500)
+        .map(|e| serde_json::json!({"frame": e["frame"], "screenline": "east-west divide", "direction": e["direction"]}))
+        .collect();
+    let project = serde_json::json!({
+        "format": "throughline-project", "version": 1, "plan": plan, "site": "Footbridge plaza",
+        "tallies": [{"who": "R. Tester", "made": "2026-12-03T09:00:00", "from_frame": 1, "to_frame": 500,
+                     "screenlines": ["east-west divide"], "presses": presses}]
+    });
+    let project_path = write(&dir, "project.json", project.to_string().as_bytes());
+    let report = dir.join("report.json").display().to_string();
+    let o = throughline(&[
+        "run",
+        &demo("detections.csv"),
+        "--plan",
+        &demo("plan.json"),
+        "--edits",
+        &project_path,
+        "-o",
+        &report,
+        "-q",
+    ]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let r: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(&report).unwrap()).unwrap();
+    let check = &r["checks"][0];
+    assert_eq!(check["who"], "R. Tester");
+    let by_hand: u64 = check["groups"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .filter(|g| g["class"] == "all")
+        .map(|g| g["manual"].as_u64().unwrap())
+        .sum();
+    assert_eq!(by_hand, presses.len() as u64);
+    // The project's site names the hand-in files.
+    assert!(dir
+        .join("footbridge-plaza_2026-03-02_summary.html")
+        .exists());
+    let o = throughline(&["score-counts", "--truth", &project_path, &report]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let out = stdout(&o);
+    assert!(
+        out.contains("hand count by R. Tester") && out.contains("loose estimate"),
+        "{out}"
+    );
+}

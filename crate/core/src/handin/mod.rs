@@ -1,0 +1,146 @@
+//! What a person hands in, made from a report: the interval grid (`grid`), the origin–destination
+//! matrix of movements (`matrix`) and a client summary (`summary`, a printable page). Each is a
+//! pure function of the report and a [`Context`] (the site, the input files), so the page and the
+//! command line write the same bytes. File names come from the site's name and the recording's
+//! date ([`file_stem`]).
+
+mod grid;
+mod matrix;
+mod sketch;
+mod summary;
+mod table;
+
+pub use grid::{interval_grid, GridLayout};
+pub use matrix::movement_matrix;
+pub use summary::summary_html;
+pub use table::Separator;
+
+use crate::edits::EditList;
+use crate::fingerprint::{sha256_hex, Fingerprint};
+use crate::report::Report;
+
+/// What the hand-in outputs say about where the counts come from.
+#[derive(Debug, Clone, Default, PartialEq, serde::Deserialize)]
+#[serde(default)]
+pub struct Context {
+    /// The site's name, as the person typed it.
+    pub site: Option<String>,
+    /// The plan's file name (no folder), when it came from a file.
+    pub plan_name: Option<String>,
+    pub footage: Option<Fingerprint>,
+    pub detections: Option<Fingerprint>,
+    /// A still of the footage as a `data:image/...` URL, for the summary.
+    pub still: Option<String>,
+    /// The project file's name, for the command line that reproduces the counts.
+    pub project_name: Option<String>,
+}
+
+impl Context {
+    /// The picture's size in pixels, from the footage's fingerprint, when known.
+    pub fn picture(&self) -> Option<(f64, f64)> {
+        let f = self.footage.as_ref()?;
+        Some((f64::from(f.width?), f64::from(f.height?)))
+    }
+}
+
+/// A file name stem from the site and the recording's date: `footbridge-plaza_2026-03-02`
+/// (lowercase letters, digits and dashes; `counts` without a site, `undated` without a start).
+pub fn file_stem(report: &Report, ctx: &Context) -> String {
+    let site = ctx.site.as_deref().map(slug).filter(|s| !s.is_empty());
+    let date = report
+        .plan
+        .start
+        .as_deref()
+        .and_then(|s| s.get(..10))
+        .filter(|d| d.bytes().all(|b| b.is_ascii_digit() || b == b'-'))
+        .unwrap_or("undated");
+    format!("{}_{date}", site.as_deref().unwrap_or("counts"))
+}
+
+/// Lowercase ASCII letters and digits, other runs of characters as one dash.
+fn slug(text: &str) -> String {
+    let mut out = String::new();
+    for c in text.chars().flat_map(char::to_lowercase) {
+        if c.is_ascii_alphanumeric() {
+            out.push(c);
+        } else if !out.ends_with('-') && !out.is_empty() {
+            out.push('-');
+        }
+    }
+    out.trim_end_matches('-').to_string()
+}
+
+/// SHA-256 of the inputs that the report writes itself (plan, tracker settings, edits), as compact
+/// JSON, and of the files the context names: the first twelve hex digits of each, by name.
+pub fn short_hashes(report: &Report, ctx: &Context) -> Vec<(&'static str, String)> {
+    fn sha<T: serde::Serialize>(v: &T) -> String {
+        sha256_hex(serde_json::to_string(v).unwrap_or_default().as_bytes())[..12].to_string()
+    }
+    let edits = EditList::new(report.edits.iter().map(|o| o.edit.clone()).collect());
+    let mut out = Vec::new();
+    if let Some(f) = &ctx.footage {
+        out.push(("footage (first MiB)", f.short().to_string()));
+    }
+    if let Some(f) = &ctx.detections {
+        out.push(("detections (first MiB)", f.short().to_string()));
+    }
+    out.push(("plan", sha(&report.plan)));
+    out.push(("tracker settings", sha(&report.tracker)));
+    out.push(("edits", sha(&edits)));
+    out
+}
+
+/// The one command line that gives the same counts from the same files.
+pub fn command_line(ctx: &Context) -> String {
+    let detections = ctx
+        .detections
+        .as_ref()
+        .map_or("DETECTIONS", |f| f.name.as_str());
+    let plan = ctx.plan_name.as_deref().unwrap_or("plan.json");
+    let mut cmd = format!("throughline run {detections} --plan {plan}");
+    if let Some(p) = &ctx.project_name {
+        cmd.push_str(&format!(" --edits {p}"));
+    }
+    cmd.push_str(" -o report.json");
+    cmd
+}
+
+/// The lines at the top of a hand-in table: what was counted, where, from what, and the caution.
+fn header_block(report: &Report, ctx: &Context) -> Vec<(String, String)> {
+    let mut rows = vec![
+        (
+            "Site".to_string(),
+            ctx.site.clone().unwrap_or_else(|| "not named".into()),
+        ),
+        ("Recording".into(), recording(report)),
+        (
+            "Plan".into(),
+            ctx.plan_name
+                .clone()
+                .unwrap_or_else(|| "drawn in the page".into()),
+        ),
+    ];
+    let name = |f: &Option<Fingerprint>| {
+        f.as_ref()
+            .map_or("not given".to_string(), |f| f.name.clone())
+    };
+    rows.push(("Footage".into(), name(&ctx.footage)));
+    rows.push(("Detections".into(), name(&ctx.detections)));
+    rows.push(("Counted with".into(), report.generator.clone()));
+    rows.push(("Caution".into(), report.caution.clone()));
+    rows
+}
+
+/// When the footage was recorded: its start clock time (when the plan gives it) and its length.
+pub(super) fn recording(report: &Report) -> String {
+    let length = format!(
+        "{:.1} minutes ({} frames at {} fps)",
+        report.duration_seconds / 60.0,
+        report.frame_count,
+        report.plan.frame_rate
+    );
+    match &report.plan.start {
+        Some(start) => format!("from {start}, {length}"),
+        None => format!("start not given, {length}"),
+    }
+}

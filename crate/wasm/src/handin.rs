@@ -1,0 +1,73 @@
+//! The hand-in outputs in the page, written by the core from the session's report: the interval
+//! grid (CSV or tab-separated for the clipboard, wide or long), the movement matrix, the client
+//! summary and their file names. The context is a plain object: `{site?, plan_name?, footage?,
+//! detections?, still?, project_name?}` (fingerprints as `fingerprint` gives them; `still` a
+//! `data:image/...` URL).
+
+use crate::{js_error, Session};
+use throughline_core::handin::{self, Context, GridLayout, Separator};
+use wasm_bindgen::prelude::*;
+
+fn context(value: JsValue) -> Result<Context, JsError> {
+    if value.is_undefined() || value.is_null() {
+        return Ok(Context::default());
+    }
+    serde_wasm_bindgen::from_value(value).map_err(js_error)
+}
+
+fn separator(name: &str) -> Result<Separator, JsError> {
+    match name {
+        "comma" => Ok(Separator::Comma),
+        "tab" => Ok(Separator::Tab),
+        other => Err(js_error(format!(
+            "unknown separator `{other}`: comma or tab"
+        ))),
+    }
+}
+
+#[wasm_bindgen]
+impl Session {
+    /// The interval grid: `layout` "wide" (a row per interval) or "long" (a row per interval, line,
+    /// direction and class); `separator` "comma" (CSV) or "tab" (for the clipboard).
+    #[wasm_bindgen(js_name = intervalGrid)]
+    pub fn interval_grid(
+        &self,
+        layout: &str,
+        separator_name: &str,
+        ctx: JsValue,
+    ) -> Result<String, JsError> {
+        let layout = match layout {
+            "wide" => GridLayout::Wide,
+            "long" => GridLayout::Long,
+            other => return Err(js_error(format!("unknown layout `{other}`: wide or long"))),
+        };
+        Ok(handin::interval_grid(
+            self.ready()?,
+            &context(ctx)?,
+            layout,
+            separator(separator_name)?,
+        ))
+    }
+
+    /// The origin–destination matrix of movements.
+    #[wasm_bindgen(js_name = movementMatrix)]
+    pub fn movement_matrix(&self, separator_name: &str, ctx: JsValue) -> Result<String, JsError> {
+        Ok(handin::movement_matrix(
+            self.ready()?,
+            &context(ctx)?,
+            separator(separator_name)?,
+        ))
+    }
+
+    /// The client summary, a self-contained printable HTML page.
+    #[wasm_bindgen(js_name = summaryHtml)]
+    pub fn summary_html(&self, ctx: JsValue) -> Result<String, JsError> {
+        Ok(handin::summary_html(self.ready()?, &context(ctx)?))
+    }
+
+    /// The stem of the hand-in files' names: site and date, like `footbridge-plaza_2026-03-02`.
+    #[wasm_bindgen(js_name = fileStem)]
+    pub fn file_stem(&self, ctx: JsValue) -> Result<String, JsError> {
+        Ok(handin::file_stem(self.ready()?, &context(ctx)?))
+    }
+}
