@@ -186,6 +186,26 @@ impl Polygon {
         twice.abs() / 2.0
     }
 
+    /// Two edges that cross each other (edge `i` runs from corner `i` to the next), when the
+    /// corners are not listed in order around the area; `None` for a simple polygon. Edges that
+    /// share a corner are not compared.
+    pub fn crossing_edges(&self) -> Option<(usize, usize)> {
+        let n = self.corners.len();
+        let edge = |i: usize| Segment::new(self.corners[i], self.corners[(i + 1) % n]);
+        for i in 0..n {
+            for j in i + 2..n {
+                if i == 0 && j == n - 1 {
+                    continue;
+                }
+                let (e, f) = (edge(i), edge(j));
+                if f.intersect_param(&e.a, &e.b).is_some() {
+                    return Some((i, j));
+                }
+            }
+        }
+        None
+    }
+
     /// Distance in pixels from `q` to the nearest edge.
     pub fn distance_to_edge(&self, q: &Point) -> f64 {
         let n = self.corners.len();

@@ -17,6 +17,7 @@ pub mod error;
 pub mod fingerprint;
 pub mod geometry;
 pub mod handin;
+pub mod limits;
 pub mod pipeline;
 pub mod plan;
 pub mod project;

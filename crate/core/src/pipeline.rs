@@ -74,12 +74,18 @@ impl Work {
 /// the report lists every edit with what it did or why it could not be applied, each tally beside
 /// the automated count, and a chosen correction factor beside the counts. `tracker`: the settings
 /// the tracks were made with, when known (tracks read from a benchmark text file carry none).
-pub fn count(tracks: &Tracks, plan: &Plan, tracker: Option<&TrackerConfig>, work: &Work) -> Report {
+/// An error when the footage would span more intervals than a report may hold.
+pub fn count(
+    tracks: &Tracks,
+    plan: &Plan,
+    tracker: Option<&TrackerConfig>,
+    work: &Work,
+) -> Result<Report, Error> {
     if work.is_empty() {
         return count::count(tracks, plan, tracker);
     }
     let (edited, on_tracks) = correct_tracks(tracks, &work.edits);
-    let (mut report, on_counts) = count::corrected(&edited, plan, tracker, &work.edits);
+    let (mut report, on_counts) = count::corrected(&edited, plan, tracker, &work.edits)?;
     report.edits = on_tracks
         .into_iter()
         .zip(on_counts)
@@ -94,7 +100,7 @@ pub fn count(tracks: &Tracks, plan: &Plan, tracker: Option<&TrackerConfig>, work
         .correction
         .as_ref()
         .map(|c| corrected_totals(c, &report));
-    report
+    Ok(report)
 }
 
 /// The counts of the lines a correction factor applies to, multiplied by it (one decimal).
@@ -124,6 +130,6 @@ pub fn run(
     progress: &mut dyn FnMut(u32, u32),
 ) -> Result<(Tracks, Report), Error> {
     let tracks = track(detections, config, progress)?;
-    let report = count(&tracks, plan, Some(&tracks.config), &Work::default());
+    let report = count(&tracks, plan, Some(&tracks.config), &Work::default())?;
     Ok((tracks, report))
 }

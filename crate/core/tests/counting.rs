@@ -52,6 +52,7 @@ fn run(plan: &str, list: Vec<Track>) -> Report {
         &Plan::from_json(plan).expect("valid plan"),
         None,
     )
+    .expect("countable")
 }
 
 fn check_line(report: &Report, forward: u64, backward: u64) {

@@ -56,7 +56,7 @@ const PLAN: &str = r#"{"frame_rate": 10, "interval_minutes": 1,
 fn count(list: Vec<Track>, edits: &[Edit]) -> Report {
     let plan = Plan::from_json(PLAN).unwrap();
     let t = tracks(list);
-    pipeline::count(&t, &plan, Some(&t.config), &Work::edits(edits.to_vec()))
+    pipeline::count(&t, &plan, Some(&t.config), &Work::edits(edits.to_vec())).unwrap()
 }
 
 fn r(id: u32, first: u32, last: u32) -> TrackRef {
@@ -197,7 +197,7 @@ fn rejecting_and_adding_crossings_change_the_counts_where_they_belong() {
     let mut t = tracks(list);
     t.frame_count = 900;
     let plan = Plan::from_json(PLAN).unwrap();
-    let report = pipeline::count(&t, &plan, None, &Work::edits(vec![reject, add]));
+    let report = pipeline::count(&t, &plan, None, &Work::edits(vec![reject, add])).unwrap();
     let line = &report.screenlines[0];
     assert_eq!(
         (line.forward, line.backward, line.added, line.rejected),
@@ -271,9 +271,11 @@ fn edits_that_no_longer_fit_say_why() {
 fn without_edits_the_report_is_the_one_counting_gives() {
     let plan = Plan::from_json(PLAN).unwrap();
     let t = tracks(broken_walker());
-    let plain = throughline_core::count::count(&t, &plan, None);
+    let plain = throughline_core::count::count(&t, &plan, None).unwrap();
     assert_eq!(
-        pipeline::count(&t, &plan, None, &Work::default()).to_json(),
+        pipeline::count(&t, &plan, None, &Work::default())
+            .unwrap()
+            .to_json(),
         plain.to_json()
     );
     assert!(!plain.to_json().contains("\"edits\""));

@@ -62,6 +62,7 @@ fn report(south: &[u32], north: &[u32]) -> Report {
         None,
         &Work::default(),
     )
+    .unwrap()
 }
 
 fn context() -> Context {
@@ -173,7 +174,8 @@ fn movements_become_an_origin_destination_matrix() {
         &Plan::from_json(PLAN).unwrap(),
         None,
         &Work::default(),
-    );
+    )
+    .unwrap();
     let text = handin::movement_matrix(&r, &context(), Separator::Comma);
     assert!(text.contains("All classes\nFrom \\ To,north kerb,south kerb,Total\nnorth kerb,0,3,3\nsouth kerb,1,0,1\nTotal,1,3,4\n"), "{text}");
     assert!(text.ends_with("(no destination),1\n"), "{text}");

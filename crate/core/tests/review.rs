@@ -47,7 +47,7 @@ fn queue(list: Vec<Track>) -> Vec<Doubt> {
         frame_count: 100,
         tracks: list,
     };
-    let report = pipeline::count(&tracks, &plan, None, &Default::default());
+    let report = pipeline::count(&tracks, &plan, None, &Default::default()).unwrap();
     doubts(&tracks, &plan, &report, Some((400.0, 400.0)))
 }
 

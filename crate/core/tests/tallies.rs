@@ -53,7 +53,7 @@ fn report_with(per_minute: &[u32], work: &Work) -> Report {
         frame_count: 600 * per_minute.len() as u32,
         tracks: list,
     };
-    pipeline::count(&tracks, &Plan::from_json(PLAN).unwrap(), None, work)
+    pipeline::count(&tracks, &Plan::from_json(PLAN).unwrap(), None, work).unwrap()
 }
 
 /// A tally of `per_minute` southward presses a minute over frames 1 to 2400.

@@ -47,17 +47,19 @@ pub fn parse_header(line: &str) -> Result<Header, String> {
     let (mut width, mut height, mut frame_rate) = (None, None, None);
     let mut layout = Layout::Yuv420;
     for p in parts.filter(|p| !p.is_empty()) {
-        let (tag, value) = p.split_at(1);
+        let mut chars = p.chars();
+        let tag = chars.next().unwrap_or(' ');
+        let value = chars.as_str();
         match tag {
-            "W" => width = value.parse::<usize>().ok().filter(|&w| w > 0),
-            "H" => height = value.parse::<usize>().ok().filter(|&h| h > 0),
-            "F" => {
+            'W' => width = value.parse::<usize>().ok().filter(|&w| w > 0),
+            'H' => height = value.parse::<usize>().ok().filter(|&h| h > 0),
+            'F' => {
                 let (n, d) = value.split_once(':').unwrap_or((value, "1"));
                 if let (Ok(n), Ok(d)) = (n.parse::<f64>(), d.parse::<f64>()) {
                     frame_rate = (n > 0.0 && d > 0.0).then_some(n / d);
                 }
             }
-            "C" => {
+            'C' => {
                 layout = if value.starts_with("420") {
                     Layout::Yuv420
                 } else if value.starts_with("mono") {

@@ -77,7 +77,7 @@ fn true_crossings_of_a_plan_come_from_the_truth() {
     });
     let plan = Plan::from_json(r#"{"frame_rate": 25, "screenlines": [{"name": "mid", "points": [[10, 230], [630, 230]]}]}"#)
         .unwrap();
-    let report = count(&truth_tracks(&scene), &plan, None);
+    let report = count(&truth_tracks(&scene), &plan, None).unwrap();
     let l = &report.screenlines[0];
     assert!(
         l.forward + l.backward > 5,

@@ -16,13 +16,8 @@ impl Session {
     #[wasm_bindgen(js_name = setEdits)]
     pub fn set_edits(&mut self, json: &str) -> Result<JsValue, JsError> {
         self.work.edits = project::edits_from_json(json).map_err(js_error)?;
-        self.recount();
-        let outcomes = self
-            .report
-            .as_ref()
-            .map(|r| r.edits.clone())
-            .unwrap_or_default();
-        to_js(&outcomes)
+        self.recounted()?;
+        to_js(&self.outcomes())
     }
 
     /// Sets everything a project file adds to the counts (corrections, tallies, a correction
@@ -31,13 +26,16 @@ impl Session {
     pub fn set_work(&mut self, project_json: &str) -> Result<JsValue, JsError> {
         let p = Project::from_json(project_json).map_err(js_error)?;
         self.work = pipeline::Work::of_project(&p);
-        self.recount();
-        let outcomes = self
-            .report
-            .as_ref()
-            .map(|r| r.edits.clone())
-            .unwrap_or_default();
-        to_js(&outcomes)
+        self.recounted()?;
+        to_js(&self.outcomes())
+    }
+
+    /// What became of each edit in the last count (none before tracking).
+    fn outcomes(&self) -> Vec<throughline_core::edits::Outcome> {
+        match &self.report {
+            Some(Ok(r)) => r.edits.clone(),
+            _ => Vec::new(),
+        }
     }
 
     /// The corrections as an edits file (for `throughline run --edits`).

@@ -59,8 +59,9 @@ pub struct Session {
     work: pipeline::Work,
     /// The tracks after the edits on tracks, when there are edits (what the page draws).
     edited: Option<track::Tracks>,
-    /// The report of the last tracks, plan and edits, made once when tracks and plan are there.
-    report: Option<report::Report>,
+    /// The report of the last tracks, plan and edits, made once when tracks and plan are there
+    /// (or why it could not be made).
+    report: Option<Result<report::Report, String>>,
     /// The detector while footage is being searched, and the boxes found so far.
     detector: Option<(detect::Detector, detecting::FoundBoxes)>,
 }
@@ -138,8 +139,7 @@ impl Session {
     #[wasm_bindgen(js_name = setPlan)]
     pub fn set_plan(&mut self, json: &str) -> Result<(), JsError> {
         self.plan = Some(plan::Plan::from_json(json).map_err(js_error)?);
-        self.recount();
-        Ok(())
+        self.recounted()
     }
 
     /// Tracks the loaded detections. `method` may be empty for the default; `settings` is an optional
@@ -171,7 +171,7 @@ impl Session {
             pipeline::track(&report.detections, &config, &mut on_progress).map_err(js_error)?;
         let n = tracks.tracks.len() as u32;
         self.tracks = Some(tracks);
-        self.recount();
+        self.recounted()?;
         Ok(n)
     }
 
@@ -195,14 +195,21 @@ impl Session {
             _ => None,
         };
         self.report = match (&self.tracks, &self.plan) {
-            (Some(tracks), Some(plan)) => Some(pipeline::count(
-                tracks,
-                plan,
-                Some(&tracks.config),
-                &self.work,
-            )),
+            (Some(tracks), Some(plan)) => Some(
+                pipeline::count(tracks, plan, Some(&tracks.config), &self.work)
+                    .map_err(|e| e.to_string()),
+            ),
             _ => None,
         };
+    }
+
+    /// Counts again (see [`Session::recount`]); the counting's error, if it failed.
+    pub(crate) fn recounted(&mut self) -> Result<(), JsError> {
+        self.recount();
+        match &self.report {
+            Some(Err(e)) => Err(js_error(e)),
+            _ => Ok(()),
+        }
     }
 
     /// The tracks as the page shows them: after the edits on tracks.
@@ -224,8 +231,10 @@ impl Session {
 
     fn ready(&self) -> Result<&report::Report, JsError> {
         self.tracks()?;
-        self.report
-            .as_ref()
-            .ok_or_else(|| js_error("open or draw a plan first"))
+        match &self.report {
+            Some(Ok(r)) => Ok(r),
+            Some(Err(e)) => Err(js_error(e)),
+            None => Err(js_error("open or draw a plan first")),
+        }
     }
 }

@@ -43,7 +43,8 @@ pub fn run(args: Args) -> Result<(), Failure> {
         let boxes = tracks_io::read_benchmark_boxes(&bytes).map_err(|e| bad_input(path, e))?;
         (tracks_io::boxes_to_tracks(&boxes), None)
     };
-    let report = pipeline::count(&tracks, &plan, tracker.as_ref(), &work);
+    let report = pipeline::count(&tracks, &plan, tracker.as_ref(), &work)
+        .map_err(|e| bad_input(&args.plan, e))?;
     let out = Outputs {
         report: args.output.as_deref(),
         csv: args.csv.as_deref(),

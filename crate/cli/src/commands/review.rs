@@ -1,7 +1,7 @@
 //! `throughline review`: the moments of a count most likely wrong, to check against the footage.
 
 use super::track::{track_file, TrackingArgs};
-use crate::files::{read_plan, read_work, Failure};
+use crate::files::{bad_input, read_plan, read_work, Failure};
 use crate::progress::Timer;
 use std::path::PathBuf;
 use throughline_core::{pipeline, review};
@@ -36,7 +36,8 @@ pub fn run(args: Args) -> Result<(), Failure> {
     let plan = read_plan(&args.plan)?;
     let (work, _project) = read_work(args.edits.as_deref())?;
     let tracks = track_file(&args.detections, &args.tracking, &mut Timer::new())?;
-    let report = pipeline::count(&tracks, &plan, Some(&tracks.config), &work);
+    let report = pipeline::count(&tracks, &plan, Some(&tracks.config), &work)
+        .map_err(|e| bad_input(&args.plan, e))?;
     let shown = pipeline::correct_tracks(&tracks, &work.edits).0;
     let queue = review::doubts(&shown, &plan, &report, None);
     if args.json {

@@ -4,7 +4,7 @@ use super::count::{write_report, Outputs};
 use super::detect::detect_footage;
 use super::track::{track_detections, track_file, TrackingArgs};
 use crate::files::{
-    bad_usage, read_plan, read_settings, read_work, tracks_text, write_file, Failure,
+    bad_input, bad_usage, read_plan, read_settings, read_work, tracks_text, write_file, Failure,
 };
 use crate::handin;
 use crate::progress::Timer;
@@ -106,7 +106,8 @@ pub fn run(args: Args) -> Result<(), Failure> {
         };
         write_file(p, &text)?;
     }
-    let report = pipeline::count(&tracks, &plan, Some(&tracks.config), &work);
+    let report = pipeline::count(&tracks, &plan, Some(&tracks.config), &work)
+        .map_err(|e| bad_input(&args.plan, e))?;
     let out = Outputs {
         report: args.output.as_deref(),
         csv: args.csv.as_deref(),

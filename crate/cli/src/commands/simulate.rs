@@ -103,7 +103,11 @@ pub fn run(args: Args) -> Result<(), Failure> {
         &detections::to_csv(&scene.detections),
     )?;
     if let Some(plan) = &plan {
-        let report = pipeline::count(&sim::truth_tracks(&scene), plan, None, &Default::default());
+        let report = pipeline::count(&sim::truth_tracks(&scene), plan, None, &Default::default())
+            .map_err(|e| Failure {
+            message: e.to_string(),
+            code: 1,
+        })?;
         write_file(&dir.join("truth_report.json"), &report.to_json())?;
         write_file(&dir.join("truth_counts.csv"), &report::counts_csv(&report))?;
     }

@@ -16,6 +16,7 @@ pub use crate::report::{Measures, TallyCheck, TallyGroup};
 pub use tally::{check, Press, Tally};
 
 use crate::error::{Error, ErrorKind};
+use crate::limits::MAX_COUNT;
 use crate::text;
 use serde::Serialize;
 use std::collections::BTreeMap;
@@ -40,7 +41,7 @@ pub fn read_counts_csv(bytes: &[u8]) -> Result<Vec<CountRow>, Error> {
         .lines()
         .enumerate()
         .filter(|(_, l)| !l.trim().is_empty() && !l.trim_start().starts_with('#'));
-    let Some((_, header)) = lines.next() else {
+    let Some((header_index, header)) = lines.next() else {
         return Err(Error::new(ErrorKind::Empty, "the counts file is empty"));
     };
     let names: Vec<String> = text::split_fields(header)
@@ -56,7 +57,7 @@ pub fn read_counts_csv(bytes: &[u8]) -> Result<Vec<CountRow>, Error> {
                      screenline,direction,class,interval_start,interval_end,count"
                 ),
             )
-            .at(1, None)
+            .at(header_index + 1, None)
         })
     };
     let (cl, cd, cc, cs, cn) = (
@@ -80,13 +81,21 @@ pub fn read_counts_csv(bytes: &[u8]) -> Result<Vec<CountRow>, Error> {
             )
             .at(i + 1, None));
         }
-        let count: u64 = f[cn].trim().parse().map_err(|_| {
-            Error::new(
-                ErrorKind::BadNumber,
-                format!("count `{}` is not a whole number of 0 or more", f[cn]),
-            )
-            .at(i + 1, Some(cn + 1))
-        })?;
+        let count: u64 = f[cn]
+            .trim()
+            .parse()
+            .ok()
+            .filter(|&n| n <= MAX_COUNT)
+            .ok_or_else(|| {
+                Error::new(
+                    ErrorKind::BadNumber,
+                    format!(
+                        "count `{}` is not a whole number from 0 to {MAX_COUNT}",
+                        f[cn]
+                    ),
+                )
+                .at(i + 1, Some(cn + 1))
+            })?;
         let class = match f[cc].trim() {
             "" | "all" | "*" => None,
             c => Some(c.to_string()),
@@ -163,8 +172,9 @@ pub fn measures(pairs: &[(u64, u64)]) -> Measures {
         .filter(|(_, m)| *m > 0)
         .map(|&(a, m)| (a as f64 - m as f64) / m as f64)
         .collect();
-    let sum_a: u64 = pairs.iter().map(|p| p.0).sum();
-    let sum_m: u64 = pairs.iter().map(|p| p.1).sum();
+    // Saturating: sums of many large counts must not overflow (each count is at most MAX_COUNT).
+    let sum_a: u64 = pairs.iter().fold(0u64, |s, p| s.saturating_add(p.0));
+    let sum_m: u64 = pairs.iter().fold(0u64, |s, p| s.saturating_add(p.1));
     let sum_abs: f64 = pairs
         .iter()
         .map(|&(a, m)| (a as f64 - m as f64).abs())
@@ -191,18 +201,20 @@ pub fn compare(automated: &[CountRow], reference: &[CountRow]) -> Accuracy {
     for r in automated {
         let class = r.class.clone().unwrap_or_else(|| "all".into());
         known.insert((r.screenline.clone(), r.direction.clone()));
-        *auto
+        let one = auto
             .entry((
                 (r.screenline.clone(), r.direction.clone(), class),
                 r.interval_start.clone(),
             ))
-            .or_default() += r.count;
-        *auto_all
+            .or_default();
+        *one = one.saturating_add(r.count);
+        let all = auto_all
             .entry((
                 (r.screenline.clone(), r.direction.clone(), "all".into()),
                 r.interval_start.clone(),
             ))
-            .or_default() += r.count;
+            .or_default();
+        *all = all.saturating_add(r.count);
     }
     let mut groups: BTreeMap<Key, Vec<(String, u64, u64)>> = BTreeMap::new();
     let mut unmatched = 0;

@@ -29,6 +29,7 @@ pub use paths::UNCLASSIFIED;
 pub use stats::{peak_hour, percentile, HourRun};
 
 use crate::edits::{Edit, Outcome};
+use crate::error::Error;
 use crate::plan::Plan;
 use crate::report::{Event, Report, CAUTION, FORMAT, VERSION};
 use crate::track::{TrackerConfig, Tracks};
@@ -36,20 +37,25 @@ use timeline::Timeline;
 
 /// Counts tracks against a plan. `tracker` is recorded in the report as the settings the tracks
 /// were made with.
-pub fn count(tracks: &Tracks, plan: &Plan, tracker: Option<&TrackerConfig>) -> Report {
-    corrected(tracks, plan, tracker, &[]).0
+pub fn count(
+    tracks: &Tracks,
+    plan: &Plan,
+    tracker: Option<&TrackerConfig>,
+) -> Result<Report, Error> {
+    Ok(corrected(tracks, plan, tracker, &[])?.0)
 }
 
 /// Counts tracks against a plan with the person's corrections to the counts (`edits`: the edits
 /// on counts are applied, the others passed over); the report, and an outcome for each edit on
-/// counts (`None` for the others).
+/// counts (`None` for the others). An error when the footage would span more intervals than a
+/// report may hold.
 pub fn corrected(
     tracks: &Tracks,
     plan: &Plan,
     tracker: Option<&TrackerConfig>,
     edits: &[Edit],
-) -> (Report, Vec<Option<Outcome>>) {
-    let timeline = Timeline::new(tracks, plan);
+) -> Result<(Report, Vec<Option<Outcome>>), Error> {
+    let timeline = Timeline::new(tracks, plan)?;
     let (counted, joins) = joins::join_fragments(paths::pieces(tracks, plan.spec.anchor), plan);
     let mut events: Vec<Event> = plan
         .screenlines
@@ -111,7 +117,7 @@ pub fn corrected(
         checks: Vec::new(),
         correction: None,
     };
-    (report, fixes.outcomes)
+    Ok((report, fixes.outcomes))
 }
 
 /// Events in time order; among equals by counted track, then by line or zone name.

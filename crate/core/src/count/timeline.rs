@@ -4,6 +4,8 @@
 
 use super::crossings::Moment;
 use super::paths::Counted;
+use crate::error::{Error, ErrorKind};
+use crate::limits::MAX_INTERVALS;
 use crate::plan::clock::{elapsed, LocalTime};
 use crate::plan::Plan;
 use crate::report::{Direction, Event, EventKind};
@@ -19,7 +21,9 @@ pub(super) struct Timeline {
 }
 
 impl Timeline {
-    pub fn new(tracks: &Tracks, plan: &Plan) -> Timeline {
+    /// The timeline of tracks counted with a plan; an error when the footage would span more
+    /// intervals than a report may hold.
+    pub fn new(tracks: &Tracks, plan: &Plan) -> Result<Timeline, Error> {
         let fps = plan.spec.frame_rate;
         let frame_count = tracks.frame_count.max(
             tracks
@@ -29,13 +33,27 @@ impl Timeline {
                 .max()
                 .unwrap_or(0),
         );
-        Timeline {
+        let t = Timeline {
             fps,
             start: plan.start,
             interval_s: plan.spec.interval_minutes * 60.0,
             duration_s: f64::from(frame_count) / fps,
             frame_count,
+        };
+        let intervals = (t.duration_s / t.interval_s).ceil();
+        if intervals > MAX_INTERVALS as f64 {
+            return Err(Error::new(
+                ErrorKind::Unsuitable,
+                format!(
+                    "the footage would span {intervals:.0} intervals of {} minutes (frames up to \
+                     {frame_count} at {fps} frames a second): a report holds at most \
+                     {MAX_INTERVALS}. Check the frame numbers and the plan's frame rate, or count \
+                     in longer intervals",
+                    plan.spec.interval_minutes
+                ),
+            ));
         }
+        Ok(t)
     }
 
     /// Seconds from frame 1 to a (fractional) frame.

@@ -30,22 +30,22 @@ pub(super) fn zone(
         events: Vec::new(),
         meetings: Vec::new(),
     };
-    let mut occupancy = vec![0u64; timeline.frame_count as usize + 2];
+    // Each visit's frames inside, as +1 where it starts and -1 after it ends: occupancy is swept
+    // interval by interval, never held frame by frame (footage may span billions of frames).
+    let mut changes: Vec<(u64, i64)> = Vec::new();
     let mut dwell = Vec::new();
     for (ci, c) in counted.iter().enumerate() {
         for v in visits(c, zone, spec.rules.zone_hysteresis()) {
-            for f in v.first_frame..=v.last_frame {
-                if let Some(o) = occupancy.get_mut(f as usize) {
-                    *o += 1;
-                }
-            }
+            changes.push((u64::from(v.first_frame), 1));
+            changes.push((u64::from(v.last_frame) + 1, -1));
             tally.visit(ci, c, &v, zone, timeline);
             if let (Some(entry), Some(exit)) = (v.entry, v.exit) {
                 dwell.push((exit.frame - entry.frame) / timeline.fps);
             }
         }
     }
-    occupancy_per_interval(&mut tally.report.intervals, &occupancy, timeline);
+    changes.sort_unstable();
+    occupancy_per_interval(&mut tally.report.intervals, &changes, timeline);
     tally.report.dwell_seconds = summary(dwell);
     tally
 }
@@ -110,18 +110,45 @@ fn empty_report(zone: &Zone, timeline: &Timeline) -> ZoneReport {
     }
 }
 
-/// Mean and largest number inside, over the frames of each interval.
-fn occupancy_per_interval(intervals: &mut [ZoneInterval], occupancy: &[u64], timeline: &Timeline) {
+/// Mean and largest number inside, over the frames of each interval, from the sorted changes of
+/// the number inside (`(frame, +1 or -1)`).
+fn occupancy_per_interval(
+    intervals: &mut [ZoneInterval],
+    changes: &[(u64, i64)],
+    timeline: &Timeline,
+) {
     let fps = timeline.fps;
+    let (mut next, mut inside) = (0, 0i64);
     for (i, slot) in intervals.iter_mut().enumerate() {
-        let first = (i as f64 * timeline.interval_s * fps).floor() as usize + 1;
-        let last = (((i + 1) as f64 * timeline.interval_s * fps).floor() as usize)
-            .min(timeline.frame_count as usize);
-        if last >= first {
-            let frames = &occupancy[first..=last];
-            slot.max_occupancy = frames.iter().copied().max().unwrap_or(0);
-            let mean = frames.iter().sum::<u64>() as f64 / frames.len() as f64;
-            slot.mean_occupancy = (mean * 100.0).round() / 100.0;
+        let first = (i as f64 * timeline.interval_s * fps).floor() as u64 + 1;
+        let last = (((i + 1) as f64 * timeline.interval_s * fps).floor() as u64)
+            .min(u64::from(timeline.frame_count));
+        while next < changes.len() && changes[next].0 <= first {
+            inside += changes[next].1;
+            next += 1;
         }
+        if last < first {
+            continue;
+        }
+        let (mut sum, mut max, mut from) = (0u64, inside, first);
+        loop {
+            let until = match changes.get(next) {
+                Some(&(f, _)) if f <= last => f,
+                _ => last + 1,
+            };
+            sum += inside.max(0) as u64 * (until - from);
+            if until > last {
+                break;
+            }
+            while next < changes.len() && changes[next].0 == until {
+                inside += changes[next].1;
+                next += 1;
+            }
+            max = max.max(inside);
+            from = until;
+        }
+        slot.max_occupancy = max.max(0) as u64;
+        let mean = sum as f64 / (last - first + 1) as f64;
+        slot.mean_occupancy = (mean * 100.0).round() / 100.0;
     }
 }

@@ -5,6 +5,10 @@ use super::clock::LocalTime;
 use super::{Homography, Plan, PlanSpec, Rules, Screenline, ScreenlineSpec, Zone, ZoneSpec};
 use crate::error::{Error, ErrorKind};
 use crate::geometry::{Point, Polygon, Segment};
+use crate::limits::{
+    MAX_FRAME_RATE, MAX_INTERVAL_MINUTES, MAX_PLAN_ITEMS, MAX_POINTS, MAX_YEAR, MIN_FRAME_RATE,
+    MIN_INTERVAL_MINUTES, MIN_YEAR,
+};
 use std::collections::HashSet;
 
 fn err(field: impl Into<String>, message: impl Into<String>) -> Error {
@@ -18,6 +22,7 @@ fn point(p: [f64; 2]) -> Point {
 /// The checked plan, or the first problem found.
 pub(super) fn plan(spec: PlanSpec) -> Result<Plan, Error> {
     let start = timing(&spec)?;
+    sizes(&spec)?;
     rules(&spec.rules)?;
     let mut names = HashSet::new();
     let screenlines = spec
@@ -47,19 +52,21 @@ pub(super) fn plan(spec: PlanSpec) -> Result<Plan, Error> {
 
 /// The frame rate, the interval and the recording start.
 fn timing(spec: &PlanSpec) -> Result<Option<LocalTime>, Error> {
-    if !(spec.frame_rate.is_finite() && spec.frame_rate > 0.0 && spec.frame_rate <= 1000.0) {
+    if !(MIN_FRAME_RATE..=MAX_FRAME_RATE).contains(&spec.frame_rate) {
         return Err(err(
             "frame_rate",
-            "must be the footage's frames per second, above 0 (for example 25)",
+            format!(
+                "must be the footage's frames per second, from one a minute ({MIN_FRAME_RATE:.4}) to \
+                 {MAX_FRAME_RATE} (for example 25)"
+            ),
         ));
     }
-    if !(spec.interval_minutes.is_finite()
-        && spec.interval_minutes > 0.0
-        && spec.interval_minutes <= 1440.0)
-    {
+    if !(MIN_INTERVAL_MINUTES..=MAX_INTERVAL_MINUTES).contains(&spec.interval_minutes) {
         return Err(err(
             "interval_minutes",
-            "must be above 0 and at most 1440 (15 is usual)",
+            format!(
+                "must be from {MIN_INTERVAL_MINUTES} to {MAX_INTERVAL_MINUTES} minutes (15 is usual)"
+            ),
         ));
     }
     match &spec.start {
@@ -67,10 +74,42 @@ fn timing(spec: &PlanSpec) -> Result<Option<LocalTime>, Error> {
         Some(s) => LocalTime::parse(s).map(Some).ok_or_else(|| {
             err(
                 "start",
-                format!("`{s}` is not a local time like 2026-03-02T07:00:00"),
+                format!(
+                    "`{s}` is not a local time like 2026-03-02T07:00:00 (years {MIN_YEAR} to {MAX_YEAR})"
+                ),
             )
         }),
     }
+}
+
+/// How many lines and zones, and how many points each: the limits.
+fn sizes(spec: &PlanSpec) -> Result<(), Error> {
+    let items = spec.screenlines.len() + spec.zones.len();
+    if items > MAX_PLAN_ITEMS {
+        return Err(err(
+            "screenlines",
+            format!("{items} screenlines and zones: a plan holds at most {MAX_PLAN_ITEMS}"),
+        ));
+    }
+    let lines = spec
+        .screenlines
+        .iter()
+        .map(|l| ("screenlines", l.points.len()));
+    let zones = spec.zones.iter().map(|z| ("zones", z.polygon.len()));
+    for (k, (field, n)) in lines.chain(zones).enumerate() {
+        if n > MAX_POINTS {
+            let i = if field == "zones" {
+                k - spec.screenlines.len()
+            } else {
+                k
+            };
+            return Err(err(
+                format!("{field}[{i}]"),
+                format!("{n} points: a line or zone has at most {MAX_POINTS}"),
+            ));
+        }
+    }
+    Ok(())
 }
 
 fn rules(r: &Rules) -> Result<(), Error> {
@@ -163,6 +202,18 @@ fn zone(i: usize, z: &ZoneSpec, names: &mut HashSet<String>) -> Result<Zone, Err
         return Err(err(
             format!("{field}.polygon"),
             "the corners enclose no area (all on one line?)",
+        ));
+    }
+    if let Some((a, b)) = polygon.crossing_edges() {
+        let n = z.polygon.len();
+        return Err(err(
+            format!("{field}.polygon"),
+            format!(
+                "the edge from corner {a} to {} crosses the edge from corner {b} to {}: list the \
+                 corners in order around the zone",
+                (a + 1) % n,
+                (b + 1) % n
+            ),
         ));
     }
     Ok(Zone {

@@ -1,6 +1,7 @@
 //! Local wall-clock times (no time zone) for labelling intervals: parse `YYYY-MM-DDTHH:MM:SS`, add
 //! seconds, print back. Pure arithmetic on the proleptic Gregorian calendar; the core reads no clock.
 
+use crate::limits::{MAX_YEAR, MIN_YEAR};
 use std::fmt;
 
 /// A local date and time, kept as seconds since 1970-01-01T00:00:00 (no zone, no leap seconds).
@@ -49,6 +50,9 @@ impl LocalTime {
         let (date, time) = s.split_once(['T', ' '])?;
         let mut d = date.split('-');
         let y: i64 = d.next()?.parse().ok()?;
+        if !(MIN_YEAR..=MAX_YEAR).contains(&y) {
+            return None;
+        }
         let m: i64 = d.next()?.parse().ok()?;
         let day: i64 = d.next()?.parse().ok()?;
         if d.next().is_some() || !(1..=12).contains(&m) || day < 1 || day > days_in_month(y, m) {
@@ -73,10 +77,11 @@ impl LocalTime {
         })
     }
 
-    /// This time plus whole seconds.
+    /// This time plus whole seconds (saturating: labels past the year 9999 are never needed, as
+    /// the number of intervals is limited).
     pub fn plus_seconds(self, s: i64) -> LocalTime {
         LocalTime {
-            seconds: self.seconds + s,
+            seconds: self.seconds.saturating_add(s),
         }
     }
 }

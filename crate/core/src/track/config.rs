@@ -5,6 +5,7 @@
 
 use super::Method;
 use crate::error::{Error, ErrorKind};
+use crate::limits::{MAX_AGE_FRAMES, MAX_GALLERY};
 use schemars::JsonSchema;
 use serde::{Deserialize, Serialize};
 
@@ -166,8 +167,16 @@ impl TrackerConfig {
         if self.min_hits == 0 {
             return Err(settings_error("`min_hits` must be at least 1"));
         }
-        if self.gallery_size == 0 {
-            return Err(settings_error("`gallery_size` must be at least 1"));
+        if self.gallery_size == 0 || self.gallery_size > MAX_GALLERY {
+            return Err(settings_error(format!(
+                "`gallery_size` must be from 1 to {MAX_GALLERY}"
+            )));
+        }
+        if self.max_age > MAX_AGE_FRAMES {
+            return Err(settings_error(format!(
+                "`max_age` is {}, but a track may coast at most {MAX_AGE_FRAMES} frames",
+                self.max_age
+            )));
         }
         Ok(())
     }

@@ -212,6 +212,7 @@ pub fn from_json(bytes: &[u8]) -> Result<Tracks, Error> {
             ),
         ));
     }
+    check_document(&doc)?;
     let tracks = doc
         .tracks
         .into_iter()
@@ -239,6 +240,50 @@ pub fn from_json(bytes: &[u8]) -> Result<Tracks, Error> {
     })
 }
 
+/// A tracks document's tracks make sense: ids unique, each track's boxes in increasing frames from
+/// 1, sizes finite and not negative. Errors name the track and the box.
+fn check_document(doc: &TracksDocument) -> Result<(), Error> {
+    let mut ids = std::collections::HashSet::new();
+    for (k, t) in doc.tracks.iter().enumerate() {
+        let bad = |message: String| {
+            Error::new(
+                ErrorKind::BadJson,
+                format!("tracks[{k}] (id {}): {message}", t.id),
+            )
+        };
+        if !ids.insert(t.id) {
+            return Err(bad(
+                "this id is used by another track too: ids must differ".into()
+            ));
+        }
+        let mut last = 0;
+        for (b, &(frame, x, y, w, h, score, _)) in t.boxes.iter().enumerate() {
+            if frame <= last {
+                return Err(bad(format!(
+                    "box {b} is at frame {frame}, after frame {last}: boxes go one a frame, in increasing frames from 1"
+                )));
+            }
+            last = frame;
+            if !(x.is_finite()
+                && y.is_finite()
+                && w.is_finite()
+                && h.is_finite()
+                && score.is_finite())
+            {
+                return Err(bad(format!(
+                    "box {b} has a value that is not a finite number"
+                )));
+            }
+            if w < 0.0 || h < 0.0 {
+                return Err(bad(format!(
+                    "box {b} has a negative width or height (boxes are x, y, w, h)"
+                )));
+            }
+        }
+    }
+    Ok(())
+}
+
 /// One row of a benchmark text file read as tracks or ground truth.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct IdBox {
@@ -251,6 +296,7 @@ pub struct IdBox {
 pub fn read_benchmark_boxes(bytes: &[u8]) -> Result<Vec<IdBox>, Error> {
     let text = text::as_text(bytes)?;
     let mut out = Vec::new();
+    let mut seen = std::collections::HashSet::new();
     for (i, raw) in text.lines().enumerate() {
         let line = i + 1;
         let l = raw.trim();
@@ -274,10 +320,22 @@ pub fn read_benchmark_boxes(bytes: &[u8]) -> Result<Vec<IdBox>, Error> {
             v[k] = text::number(fields[k], name, line, k + 1)?;
         }
         let frame = text::frame_number(v[0], line, 1)?;
-        if v[1].fract() != 0.0 {
+        if v[1].fract() != 0.0 || !(-1.0..=f64::from(u32::MAX)).contains(&v[1]) {
             return Err(Error::new(
                 ErrorKind::BadNumber,
-                format!("id `{}` is not a whole number", fields[1]),
+                format!(
+                    "id `{}` is not a whole number from 0 to {} (or -1 for no id)",
+                    fields[1],
+                    u32::MAX
+                ),
+            )
+            .at(line, Some(2)));
+        }
+        let id = v[1] as i64;
+        if id >= 0 && !seen.insert((frame, id)) {
+            return Err(Error::new(
+                ErrorKind::DuplicateId,
+                format!("id {id} is in frame {frame} twice: one track has one box a frame"),
             )
             .at(line, Some(2)));
         }
@@ -290,7 +348,7 @@ pub fn read_benchmark_boxes(bytes: &[u8]) -> Result<Vec<IdBox>, Error> {
         }
         out.push(IdBox {
             frame,
-            id: v[1] as i64,
+            id,
             bbox: BBox::new(v[2], v[3], v[4], v[5]),
         });
     }

@@ -101,7 +101,9 @@ pub fn run_tracker(
     let total = detections.last_frame();
     let mut tracker = tracker::Tracker::new(config.clone(), detections);
     let mut frames = detections.by_frame().peekable();
-    for frame in 1..=total {
+    let mut frame = 1;
+    // Frame by frame from 1 to the last with a detection (none for no detections).
+    while total > 0 && frame <= total {
         let dets: &[Detection] = match frames.peek() {
             Some(&(f, rows)) if f == frame => {
                 frames.next();
@@ -110,9 +112,19 @@ pub fn run_tracker(
             _ => &[],
         };
         tracker.step(frame, dets);
-        if frame % PROGRESS_EVERY == 0 {
-            progress(frame, total);
+        if frame == total {
+            break;
         }
+        // With no track alive, empty frames change nothing: go straight to the next detection (a
+        // file whose frame numbers jump by millions costs no more than one without the jump).
+        let next = match frames.peek() {
+            Some(&(f, _)) if tracker.is_idle() => f,
+            _ => frame + 1,
+        };
+        if next / PROGRESS_EVERY != frame / PROGRESS_EVERY {
+            progress(next, total);
+        }
+        frame = next;
     }
     progress(total, total);
     Ok(tracker.close(total))

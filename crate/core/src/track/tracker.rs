@@ -78,6 +78,11 @@ impl<'a> Tracker<'a> {
         }
     }
 
+    /// Whether no track is alive (nothing to predict or end).
+    pub(crate) fn is_idle(&self) -> bool {
+        self.live.is_empty()
+    }
+
     /// Where live track `t` is expected in this frame.
     pub(crate) fn predicted_box(&self, t: usize) -> BBox {
         self.live[t].predicted_box(self.def.motion)

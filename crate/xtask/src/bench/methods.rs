@@ -56,7 +56,7 @@ impl Judge {
     /// The row of tracks that took `m` to make over `frames` frames.
     pub fn row(&self, tracks: &Tracks, frames: u32, m: &Measured) -> Result<Row, String> {
         let sc = score(&self.truth, &tracks_to_boxes(tracks)).map_err(|e| e.message)?;
-        let report = count(tracks, &self.plan, None);
+        let report = count(tracks, &self.plan, None).map_err(|e| e.message)?;
         let counts = report
             .screenlines
             .iter()

@@ -1,0 +1,49 @@
+//! Every limit on outside input, in one place. Each is generous for real work and small enough that
+//! no number read from a file can make the program allocate without bound or work for ever; the
+//! error that enforces a limit names the limit and what to do.
+
+/// Frames per second a plan may give: from a time-lapse of a frame a minute to a high-speed camera.
+pub const MIN_FRAME_RATE: f64 = 1.0 / 60.0;
+pub const MAX_FRAME_RATE: f64 = 1000.0;
+
+/// Interval length in minutes: from a quarter of a minute to a day.
+pub const MIN_INTERVAL_MINUTES: f64 = 0.25;
+pub const MAX_INTERVAL_MINUTES: f64 = 1440.0;
+
+/// Intervals one report may hold: about three years of 15-minute intervals.
+pub const MAX_INTERVALS: usize = 100_000;
+
+/// Screenlines and zones together in one plan, and points in one line or zone.
+pub const MAX_PLAN_ITEMS: usize = 1_000;
+pub const MAX_POINTS: usize = 1_000;
+
+/// Years a recording's start may name (the clock arithmetic stays exact far beyond).
+pub const MIN_YEAR: i64 = 1900;
+pub const MAX_YEAR: i64 = 9999;
+
+/// Different classes in one detections file.
+pub const MAX_CLASSES: usize = 65_535;
+
+/// Values in one appearance vector.
+pub const MAX_EMBEDDING_DIM: usize = 4_096;
+
+/// Warnings kept in full from one file (the rest are counted).
+pub const MAX_WARNINGS: usize = 20;
+
+/// A count in a manual count file (a trillion is not a count of anything in view).
+pub const MAX_COUNT: u64 = 1_000_000_000_000;
+
+/// Width or height of a picture, in pixels (8K footage is 7680 × 4320).
+pub const MAX_PICTURE_SIDE: usize = 8_192;
+
+/// Length of a YUV4MPEG2 header or frame line, in bytes.
+pub const MAX_Y4M_LINE: u64 = 4_096;
+
+/// Detections in one frame beyond which a frame is matched in parts: an assignment problem grows
+/// with the cube of its size, so a crowd (or a detector gone wrong) must not stall the whole run.
+pub const MAX_COMPONENT: usize = 400;
+
+/// Frames a track may coast unseen (`max_age`), and embeddings kept per track (`gallery_size`):
+/// every coasting frame adds a predicted box, so these bound a track's memory.
+pub const MAX_AGE_FRAMES: u32 = 10_000;
+pub const MAX_GALLERY: u32 = 10_000;
