@@ -34,13 +34,6 @@ pub fn read_file(path: &Path) -> Result<Vec<u8>, Failure> {
     std::fs::read(path).map_err(|e| bad_input(path, format!("cannot read the file: {e}")))
 }
 
-pub fn write_file(path: &Path, text: &str) -> Result<(), Failure> {
-    std::fs::write(path, text).map_err(|e| Failure {
-        message: format!("{}: cannot write the file: {e}", path.display()),
-        code: 1,
-    })
-}
-
 /// How to name an input in messages: `-` is standard input.
 pub fn name(path: &Path) -> String {
     if path == Path::new("-") {

@@ -1,8 +1,8 @@
 //! The hand-in outputs `run` writes next to the report when a site is named: the interval grid
 //! (wide and long), the movement matrix and the client summary, named from the site and date.
 
-use crate::files::{bad_input, read_file, write_file, Failure};
-use std::path::Path;
+use crate::files::{bad_input, read_file, Failure};
+use std::path::{Path, PathBuf};
 use throughline_core::fingerprint::{Fingerprint, HEAD_BYTES};
 use throughline_core::handin::{self, Context, GridLayout, Separator};
 use throughline_core::project::Project;
@@ -82,32 +82,23 @@ fn still_url(path: &Path) -> Result<String, Failure> {
     Ok(format!("data:{kind};base64,{encoded}"))
 }
 
-/// Writes the four outputs into `dir`; their paths.
-pub fn write_all(report: &Report, ctx: &Context, dir: &Path) -> Result<Vec<String>, Failure> {
+/// The four outputs and where they go in `dir`.
+pub fn planned(report: &Report, ctx: &Context, dir: &Path) -> Vec<(PathBuf, String)> {
     let stem = handin::file_stem(report, ctx);
-    let outputs = [
+    let grid = |layout| handin::interval_grid(report, ctx, layout, Separator::Comma);
+    vec![
+        (dir.join(format!("{stem}_grid.csv")), grid(GridLayout::Wide)),
         (
-            format!("{stem}_grid.csv"),
-            handin::interval_grid(report, ctx, GridLayout::Wide, Separator::Comma),
+            dir.join(format!("{stem}_grid-long.csv")),
+            grid(GridLayout::Long),
         ),
         (
-            format!("{stem}_grid-long.csv"),
-            handin::interval_grid(report, ctx, GridLayout::Long, Separator::Comma),
-        ),
-        (
-            format!("{stem}_movements.csv"),
+            dir.join(format!("{stem}_movements.csv")),
             handin::movement_matrix(report, ctx, Separator::Comma),
         ),
         (
-            format!("{stem}_summary.html"),
+            dir.join(format!("{stem}_summary.html")),
             handin::summary_html(report, ctx),
         ),
-    ];
-    let mut written = Vec::new();
-    for (name, text) in outputs {
-        let path = dir.join(name);
-        write_file(&path, &text)?;
-        written.push(path.display().to_string());
-    }
-    Ok(written)
+    ]
 }

@@ -7,6 +7,7 @@
 mod commands;
 mod files;
 mod handin;
+mod output;
 mod progress;
 
 use clap::{Parser, Subcommand};

@@ -1,8 +1,7 @@
 //! `throughline count`: count existing tracks against a plan; and the report writing `run` shares.
 
-use crate::files::{
-    bad_input, looks_like_json_object, read_file, read_plan, read_work, write_file, Failure,
-};
+use crate::files::{bad_input, looks_like_json_object, read_file, read_plan, read_work, Failure};
+use crate::output::{check_paths, Outputs};
 use std::path::{Path, PathBuf};
 use throughline_core::pipeline;
 use throughline_core::report::{self, Report};
@@ -31,9 +30,13 @@ pub struct Args {
 }
 
 pub fn run(args: Args) -> Result<(), Failure> {
+    let path = &args.tracks;
+    check_paths(
+        &[Some(path), Some(&args.plan), args.edits.as_deref()],
+        &[args.output.as_deref(), args.csv.as_deref()],
+    )?;
     let plan = read_plan(&args.plan)?;
     let (work, _project) = read_work(args.edits.as_deref())?;
-    let path = &args.tracks;
     let bytes = read_file(path)?;
     let (tracks, tracker) = if looks_like_json_object(&bytes) {
         let t = tracks_io::from_json(&bytes).map_err(|e| bad_input(path, e))?;
@@ -45,47 +48,65 @@ pub fn run(args: Args) -> Result<(), Failure> {
     };
     let report = pipeline::count(&tracks, &plan, tracker.as_ref(), &work)
         .map_err(|e| bad_input(&args.plan, e))?;
-    let out = Outputs {
+    let paths = ReportPaths {
         report: args.output.as_deref(),
         csv: args.csv.as_deref(),
     };
-    write_report(&report, &out, args.quiet)
+    let mut files = Outputs::new();
+    let shown = stage_report(&report, &paths, &mut files)?;
+    files.commit()?;
+    if let Some(json) = shown {
+        println!("{json}");
+    }
+    summarise(&report, args.quiet);
+    Ok(())
 }
 
 /// Where `run` and `count` write the report and the counts CSV.
-pub struct Outputs<'a> {
+pub struct ReportPaths<'a> {
     pub report: Option<&'a Path>,
     pub csv: Option<&'a Path>,
 }
 
-/// Writes the report (standard output without a path) and the CSV, then a summary with the
-/// caution on standard error.
-pub fn write_report(report: &Report, out: &Outputs, quiet: bool) -> Result<(), Failure> {
+/// Writes the CSV and the report among the command's outputs; the report's text when it goes to
+/// standard output instead (printed once every file is in place).
+pub fn stage_report(
+    report: &Report,
+    paths: &ReportPaths,
+    files: &mut Outputs,
+) -> Result<Option<String>, Failure> {
     let json = report.to_json();
-    if let Some(p) = out.csv {
-        write_file(p, &report::counts_csv(report))?;
+    if let Some(p) = paths.csv {
+        files.write(p, &report::counts_csv(report))?;
     }
-    match out.report {
-        Some(p) => write_file(p, &json)?,
-        None => println!("{json}"),
+    match paths.report {
+        Some(p) => {
+            files.write(p, &json)?;
+            Ok(None)
+        }
+        None => Ok(Some(json)),
     }
-    if !quiet {
-        if report.screenlines.is_empty() && report.zones.is_empty() {
-            eprintln!("note: the plan has no screenlines and no zones, so nothing was counted");
-        }
-        for e in report.edits.iter().filter(|e| !e.applied) {
-            eprintln!("warning: an edit was not applied: {}", e.note);
-        }
-        for l in &report.screenlines {
-            eprintln!(
-                "{}: {} {}, {} {} ({} inferred while unseen)",
-                l.name, l.forward, l.forward_label, l.backward, l.backward_label, l.inferred
-            );
-        }
-        for z in &report.zones {
-            eprintln!("{}: {} entries, {} exits", z.name, z.entries, z.exits);
-        }
-        eprintln!("{}", report::CAUTION);
+}
+
+/// The counts in a few lines, and the caution, on standard error.
+pub fn summarise(report: &Report, quiet: bool) {
+    if quiet {
+        return;
     }
-    Ok(())
+    if report.screenlines.is_empty() && report.zones.is_empty() {
+        eprintln!("note: the plan has no screenlines and no zones, so nothing was counted");
+    }
+    for e in report.edits.iter().filter(|e| !e.applied) {
+        eprintln!("warning: an edit was not applied: {}", e.note);
+    }
+    for l in &report.screenlines {
+        eprintln!(
+            "{}: {} {}, {} {} ({} inferred while unseen)",
+            l.name, l.forward, l.forward_label, l.backward, l.backward_label, l.inferred
+        );
+    }
+    for z in &report.zones {
+        eprintln!("{}: {} entries, {} exits", z.name, z.entries, z.exits);
+    }
+    eprintln!("{}", report::CAUTION);
 }

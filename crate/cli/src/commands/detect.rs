@@ -1,6 +1,7 @@
 //! `throughline detect`: find moving objects in footage from a fixed camera, without any model.
 
-use crate::files::{bad_input, name, read_settings, write_file, Failure};
+use crate::files::{bad_input, name, read_settings, Failure};
+use crate::output::{check_paths, Outputs};
 use crate::progress::{self, Timer};
 use std::io::{BufReader, Read};
 use std::path::{Path, PathBuf};
@@ -40,11 +41,16 @@ pub fn run(args: Args) -> Result<(), Failure> {
     progress::timed(args.stats, |timer: &mut Timer| {
         let footage = &args.y4m;
         let output = args.output.as_deref();
+        check_paths(&[Some(footage), args.config.as_deref()], &[output])?;
         let dets = detect_footage(footage, args.config.as_deref(), args.quiet)?;
         timer.lap("detect");
         let text = detections::to_file_text(&dets);
         match output {
-            Some(p) => write_file(p, &text)?,
+            Some(p) => {
+                let mut files = Outputs::new();
+                files.write(p, &text)?;
+                files.commit()?;
+            }
             None => print!("{text}"),
         }
         timer.lap("write");

@@ -1,12 +1,13 @@
 //! `throughline run`: track detections (or find them in footage), then count them against a plan.
 
-use super::count::{write_report, Outputs};
+use super::count::{stage_report, summarise, ReportPaths};
 use super::detect::detect_footage;
 use super::track::{track_detections, track_file, TrackingArgs};
 use crate::files::{
-    bad_input, bad_usage, read_plan, read_settings, read_work, tracks_text, write_file, Failure,
+    bad_input, bad_usage, read_plan, read_settings, read_work, tracks_text, Failure,
 };
 use crate::handin;
+use crate::output::{check_paths, Outputs};
 use crate::progress::Timer;
 use std::path::{Path, PathBuf};
 use throughline_core::pipeline;
@@ -72,13 +73,67 @@ struct HandinArgs {
     still: Option<PathBuf>,
 }
 
+impl Args {
+    /// Every file the command reads.
+    fn inputs(&self) -> Vec<Option<&Path>> {
+        vec![
+            self.detections.as_deref(),
+            self.y4m.as_deref(),
+            self.detector_config.as_deref(),
+            Some(&self.plan),
+            self.tracking.config.as_deref(),
+            self.edits.as_deref(),
+            self.handin.footage.as_deref(),
+            self.handin.still.as_deref(),
+        ]
+    }
+}
+
 pub fn run(args: Args) -> Result<(), Failure> {
+    let outputs = [
+        args.output.as_deref(),
+        args.csv.as_deref(),
+        args.tracks.as_deref(),
+    ];
+    check_paths(&args.inputs(), &outputs)?;
     // The plan is checked first: a mistake in it should not cost a whole tracking run.
     let plan = with_start(read_plan(&args.plan)?, args.handin.start.as_deref())?;
     let (work, project) = read_work(args.edits.as_deref())?;
+    let tracks = track_source(&args, &plan)?;
+    let report = pipeline::count(&tracks, &plan, Some(&tracks.config), &work)
+        .map_err(|e| bad_input(&args.plan, e))?;
+    let mut files = Outputs::new();
+    if let Some(p) = &args.tracks {
+        // The tracks as counted: after the edits on tracks, when there are edits.
+        let text = if work.edits.is_empty() {
+            tracks_text(&tracks, Some(p))
+        } else {
+            tracks_text(&pipeline::correct_tracks(&tracks, &work.edits).0, Some(p))
+        };
+        files.write(p, &text)?;
+    }
+    let paths = ReportPaths {
+        report: args.output.as_deref(),
+        csv: args.csv.as_deref(),
+    };
+    let shown = stage_report(&report, &paths, &mut files)?;
+    let written = stage_handin(&args, &report, project.as_ref(), &mut files)?;
+    files.commit()?;
+    if let Some(json) = shown {
+        println!("{json}");
+    }
+    summarise(&report, args.tracking.quiet);
+    for path in written.iter().filter(|_| !args.tracking.quiet) {
+        eprintln!("written: {path}");
+    }
+    Ok(())
+}
+
+/// The tracks: of the detections file, or of the objects found in the footage.
+fn track_source(args: &Args, plan: &Plan) -> Result<throughline_core::Tracks, Failure> {
     let mut timer = Timer::new();
     let how = &args.tracking;
-    let tracks = match (&args.y4m, &args.detections) {
+    match (&args.y4m, &args.detections) {
         (Some(footage), _) => {
             let settings = read_settings(how.config.as_deref())?;
             let default_margin = plan.spec.rules.hysteresis < FOOTAGE_HYSTERESIS;
@@ -91,51 +146,53 @@ pub fn run(args: Args) -> Result<(), Failure> {
                 );
             }
             let dets = detect_footage(footage, args.detector_config.as_deref(), how.quiet)?;
-            track_detections(&dets, footage, how, settings, &mut timer)?
+            track_detections(&dets, footage, how, settings, &mut timer)
         }
-        (None, Some(path)) => track_file(path, how, &mut timer)?,
+        (None, Some(path)) => track_file(path, how, &mut timer),
         // clap requires one of the two.
-        (None, None) => track_file(Path::new("-"), how, &mut timer)?,
-    };
-    if let Some(p) = &args.tracks {
-        // The tracks as counted: after the edits on tracks, when there are edits.
-        let text = if work.edits.is_empty() {
-            tracks_text(&tracks, Some(p))
-        } else {
-            tracks_text(&pipeline::correct_tracks(&tracks, &work.edits).0, Some(p))
-        };
-        write_file(p, &text)?;
+        (None, None) => track_file(Path::new("-"), how, &mut timer),
     }
-    let report = pipeline::count(&tracks, &plan, Some(&tracks.config), &work)
-        .map_err(|e| bad_input(&args.plan, e))?;
-    let out = Outputs {
-        report: args.output.as_deref(),
-        csv: args.csv.as_deref(),
-    };
-    write_report(&report, &out, how.quiet)?;
-    let site = args.handin.site.is_some() || project.as_ref().is_some_and(|p| p.site.is_some());
-    if site {
-        let inputs = handin::Inputs {
-            site: args.handin.site.as_deref(),
-            plan: &args.plan,
-            detections: args.detections.as_deref(),
-            footage: args.handin.footage.as_deref(),
-            still: args.handin.still.as_deref(),
-            project: args.edits.as_deref().zip(project.as_ref()),
-        };
-        let ctx = handin::context(&inputs)?;
-        let dir = args
-            .output
-            .as_deref()
-            .and_then(Path::parent)
-            .unwrap_or(Path::new(""));
-        for path in handin::write_all(&report, &ctx, dir)? {
-            if !how.quiet {
-                eprintln!("written: {path}");
-            }
-        }
+}
+
+/// With a site's name (given, or the project's), the hand-in files next to the report; their paths.
+fn stage_handin(
+    args: &Args,
+    report: &throughline_core::report::Report,
+    project: Option<&throughline_core::project::Project>,
+    files: &mut Outputs,
+) -> Result<Vec<String>, Failure> {
+    if args.handin.site.is_none() && project.is_none_or(|p| p.site.is_none()) {
+        return Ok(Vec::new());
     }
-    Ok(())
+    let inputs = handin::Inputs {
+        site: args.handin.site.as_deref(),
+        plan: &args.plan,
+        detections: args.detections.as_deref(),
+        footage: args.handin.footage.as_deref(),
+        still: args.handin.still.as_deref(),
+        project: args.edits.as_deref().zip(project),
+    };
+    let ctx = handin::context(&inputs)?;
+    let dir = args
+        .output
+        .as_deref()
+        .and_then(Path::parent)
+        .unwrap_or(Path::new(""));
+    let planned = handin::planned(report, &ctx, dir);
+    let mut outputs: Vec<Option<&Path>> = vec![
+        args.output.as_deref(),
+        args.csv.as_deref(),
+        args.tracks.as_deref(),
+    ];
+    outputs.extend(planned.iter().map(|(p, _)| Some(p.as_path())));
+    check_paths(&args.inputs(), &outputs)?;
+    for (path, text) in &planned {
+        files.write(path, text)?;
+    }
+    Ok(planned
+        .iter()
+        .map(|(p, _)| p.display().to_string())
+        .collect())
 }
 
 /// The plan with the recording's start given on the command line, checked again.

@@ -1,7 +1,9 @@
 //! `throughline simulate`: make a simulated scene with known truth.
 
-use crate::files::{bad_usage, read_plan, write_file, Failure};
+use crate::files::{bad_usage, read_plan, Failure};
+use crate::output::{check_paths, Outputs};
 use indicatif::ProgressBar;
+use std::io::Write;
 use std::path::{Path, PathBuf};
 use throughline_core::{detections, pipeline, report};
 use throughline_sim::{self as sim, render};
@@ -84,33 +86,43 @@ impl Args {
 pub fn run(args: Args) -> Result<(), Failure> {
     let cfg = args.scene()?;
     let dir = &args.out_dir;
+    let names = [
+        "truth.txt",
+        "detections.txt",
+        "detections.csv",
+        "truth_report.json",
+        "truth_counts.csv",
+    ];
+    let targets: Vec<PathBuf> = names.iter().map(|n| dir.join(n)).collect();
+    let mut outputs: Vec<Option<&Path>> = targets.iter().map(|p| Some(p.as_path())).collect();
+    outputs.push(args.render.as_deref());
+    check_paths(&[args.plan.as_deref()], &outputs)?;
     let plan = args.plan.as_deref().map(read_plan).transpose()?;
     std::fs::create_dir_all(dir).map_err(|e| Failure {
         message: format!("{}: cannot create the folder: {e}", dir.display()),
         code: 1,
     })?;
+    let mut files = Outputs::new();
     let scene = match &args.render {
         None => sim::generate(&cfg),
-        Some(path) => render_scene(&cfg, path)?,
+        Some(path) => render_scene(&cfg, path, &mut files)?,
     };
-    write_file(&dir.join("truth.txt"), &sim::truth_text(&scene))?;
-    write_file(
-        &dir.join("detections.txt"),
+    files.write(&targets[0], &sim::truth_text(&scene))?;
+    files.write(
+        &targets[1],
         &detections::to_benchmark_text(&scene.detections),
     )?;
-    write_file(
-        &dir.join("detections.csv"),
-        &detections::to_csv(&scene.detections),
-    )?;
+    files.write(&targets[2], &detections::to_csv(&scene.detections))?;
     if let Some(plan) = &plan {
         let report = pipeline::count(&sim::truth_tracks(&scene), plan, None, &Default::default())
             .map_err(|e| Failure {
             message: e.to_string(),
             code: 1,
         })?;
-        write_file(&dir.join("truth_report.json"), &report.to_json())?;
-        write_file(&dir.join("truth_counts.csv"), &report::counts_csv(&report))?;
+        files.write(&targets[3], &report.to_json())?;
+        files.write(&targets[4], &report::counts_csv(&report))?;
     }
+    files.commit()?;
     eprintln!(
         "simulated {} frames: {} true boxes of {} agents, {} detections, written to {}",
         cfg.frames,
@@ -122,22 +134,36 @@ pub fn run(args: Args) -> Result<(), Failure> {
     Ok(())
 }
 
-/// Simulates while rendering every frame into a YUV4MPEG2 stream.
-fn render_scene(cfg: &sim::SceneConfig, path: &Path) -> Result<sim::Scene, Failure> {
-    use std::io::Write;
+/// Simulates while rendering every frame into a YUV4MPEG2 stream (a file, among the outputs, or
+/// standard output for `-`).
+fn render_scene(
+    cfg: &sim::SceneConfig,
+    path: &Path,
+    files: &mut Outputs,
+) -> Result<sim::Scene, Failure> {
     let cannot = |e: std::io::Error| Failure {
         message: format!("{}: cannot write the frames: {e}", path.display()),
         code: 1,
     };
-    let sink: Box<dyn Write> = if path == Path::new("-") {
-        Box::new(std::io::stdout().lock())
-    } else {
-        Box::new(std::fs::File::create(path).map_err(cannot)?)
+    let mut scene = None;
+    let mut fill = |out: &mut dyn Write| -> std::io::Result<()> {
+        scene = Some(render_into(cfg, out)?);
+        Ok(())
     };
-    let mut out = std::io::BufWriter::new(sink);
+    if path == Path::new("-") {
+        let mut out = std::io::BufWriter::new(std::io::stdout().lock());
+        fill(&mut out).and_then(|()| out.flush()).map_err(cannot)?;
+    } else {
+        files.write_with(path, fill)?;
+    }
+    Ok(scene.unwrap_or_else(|| sim::generate(cfg)))
+}
+
+/// Simulates, writing each frame's picture as it is made.
+fn render_into(cfg: &sim::SceneConfig, out: &mut dyn Write) -> std::io::Result<sim::Scene> {
     let mut renderer = render::Renderer::new(cfg);
     let header = render::y4m_header(renderer.width(), renderer.height());
-    out.write_all(header.as_bytes()).map_err(cannot)?;
+    out.write_all(header.as_bytes())?;
     let bar = ProgressBar::new(u64::from(cfg.frames));
     let mut failure = None;
     let scene = sim::generate_with(cfg, &mut |frame, agents| {
@@ -154,9 +180,8 @@ fn render_scene(cfg: &sim::SceneConfig, path: &Path) -> Result<sim::Scene, Failu
         bar.set_position(u64::from(frame));
     });
     bar.finish_and_clear();
-    if let Some(e) = failure {
-        return Err(cannot(e));
+    match failure {
+        Some(e) => Err(e),
+        None => Ok(scene),
     }
-    out.flush().map_err(cannot)?;
-    Ok(scene)
 }

@@ -1,6 +1,7 @@
 //! `throughline track`: link per-frame detections into tracks.
 
-use crate::files::{bad_input, read_file, read_settings, tracks_text, write_file, Failure};
+use crate::files::{bad_input, read_file, read_settings, tracks_text, Failure};
+use crate::output::{check_paths, Outputs};
 use crate::progress::{self, Timer};
 use std::path::{Path, PathBuf};
 use throughline_core::{detections, pipeline, Detections, Method, Tracks};
@@ -46,10 +47,15 @@ pub fn run(args: Args) -> Result<(), Failure> {
     progress::timed(args.stats, |timer| {
         let path = &args.detections;
         let output = args.output.as_deref();
+        check_paths(&[Some(path), args.tracking.config.as_deref()], &[output])?;
         let tracks = track_file(path, &args.tracking, timer)?;
         let text = tracks_text(&tracks, output);
         match output {
-            Some(p) => write_file(p, &text)?,
+            Some(p) => {
+                let mut files = Outputs::new();
+                files.write(p, &text)?;
+                files.commit()?;
+            }
             None => println!("{text}"),
         }
         timer.lap("write");

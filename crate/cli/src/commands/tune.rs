@@ -1,6 +1,7 @@
 //! `throughline tune`: search tracker settings that score best against ground truth.
 
-use crate::files::{bad_input, read_file, write_file, Failure};
+use crate::files::{bad_input, read_file, Failure};
+use crate::output::{check_paths, Outputs};
 use crate::progress;
 use std::path::PathBuf;
 use throughline_core::track::files as tracks_io;
@@ -28,6 +29,7 @@ pub struct Args {
 
 pub fn run(args: Args) -> Result<(), Failure> {
     let (detections, truth) = (&args.detections, &args.truth);
+    check_paths(&[Some(detections), Some(truth)], &[args.output.as_deref()])?;
     let metric = tune::Metric::parse(&args.metric).unwrap_or(tune::Metric::Hota);
     let dets = detections::read_detections(&read_file(detections)?)
         .map_err(|e| bad_input(detections, e))?;
@@ -78,7 +80,11 @@ pub fn run(args: Args) -> Result<(), Failure> {
     }
     let text = serde_json::to_string_pretty(&best.config).unwrap_or_default();
     match &args.output {
-        Some(p) => write_file(p, &format!("{text}\n"))?,
+        Some(p) => {
+            let mut files = Outputs::new();
+            files.write(p, &format!("{text}\n"))?;
+            files.commit()?;
+        }
         None => println!("{text}"),
     }
     Ok(())
