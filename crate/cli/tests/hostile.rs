@@ -137,3 +137,23 @@ fn manual_counts_too_large_to_be_counts_are_refused_and_the_header_line_is_right
         "line 3:",
     );
 }
+
+#[test]
+fn a_frame_where_every_box_overlaps_every_other_costs_bounded_time() {
+    let dir = scratch("hostile-crowd");
+    let mut text = String::new();
+    for frame in 1..=4 {
+        for k in 0..3000 {
+            text.push_str(&format!("{frame},-1,{},100,40,80,0.9\n", 100 + k % 7));
+        }
+    }
+    let dets = write(&dir, "crowd.txt", text.as_bytes());
+    let o = quick(&[
+        "track",
+        &dets,
+        "-o",
+        &dir.join("t.txt").display().to_string(),
+    ]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    assert!(stderr(&o).contains("3 frames (frame 2, 3, 4)"), "{}", stderr(&o));
+}

@@ -43,6 +43,10 @@ pub const MAX_Y4M_LINE: u64 = 4_096;
 /// with the cube of its size, so a crowd (or a detector gone wrong) must not stall the whole run.
 pub const MAX_COMPONENT: usize = 400;
 
+/// Detections a track is compared with in one frame: the closest this many (a person overlaps a
+/// handful of boxes; thousands means a detector gone wrong).
+pub const MAX_CANDIDATES: usize = 32;
+
 /// Frames a track may coast unseen (`max_age`), and embeddings kept per track (`gallery_size`):
 /// every coasting frame adds a predicted box, so these bound a track's memory.
 pub const MAX_AGE_FRAMES: u32 = 10_000;

@@ -39,6 +39,7 @@ fn tracks(list: Vec<Track>) -> Tracks {
         config: TrackerConfig::for_method(Method::Sort),
         frame_count,
         tracks: list,
+        crowded_frames: Vec::new(),
     }
 }
 

@@ -44,6 +44,7 @@ fn tracks(list: Vec<Track>) -> Tracks {
         config: TrackerConfig::for_method(Method::Sort),
         frame_count: 400,
         tracks: list,
+        crowded_frames: Vec::new(),
     }
 }
 

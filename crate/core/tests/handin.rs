@@ -55,6 +55,7 @@ fn report(south: &[u32], north: &[u32]) -> Report {
         config: TrackerConfig::for_method(Method::Sort),
         frame_count: 9000 * south.len() as u32,
         tracks: list,
+        crowded_frames: Vec::new(),
     };
     pipeline::count(
         &tracks,
@@ -168,6 +169,7 @@ fn movements_become_an_origin_destination_matrix() {
             walk(4, 700, 160.0, false, true),
             walk(5, 900, 200.0, true, false),
         ],
+        crowded_frames: Vec::new(),
     };
     let r = pipeline::count(
         &tracks,

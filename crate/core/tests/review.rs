@@ -46,6 +46,7 @@ fn queue(list: Vec<Track>) -> Vec<Doubt> {
         config: TrackerConfig::for_method(Method::Sort),
         frame_count: 100,
         tracks: list,
+        crowded_frames: Vec::new(),
     };
     let report = pipeline::count(&tracks, &plan, None, &Default::default()).unwrap();
     doubts(&tracks, &plan, &report, Some((400.0, 400.0)))

@@ -52,6 +52,7 @@ fn report_with(per_minute: &[u32], work: &Work) -> Report {
         config: TrackerConfig::for_method(Method::Sort),
         frame_count: 600 * per_minute.len() as u32,
         tracks: list,
+        crowded_frames: Vec::new(),
     };
     pipeline::count(&tracks, &Plan::from_json(PLAN).unwrap(), None, work).unwrap()
 }

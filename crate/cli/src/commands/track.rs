@@ -138,5 +138,21 @@ pub fn track_detections(
     .map_err(|e| bad_input(path, e))?;
     bar.finish_and_clear();
     timer.lap("track");
+    if !how.quiet && !tracks.crowded_frames.is_empty() {
+        let first: Vec<String> = tracks
+            .crowded_frames
+            .iter()
+            .take(5)
+            .map(u32::to_string)
+            .collect();
+        eprintln!(
+            "warning: {}: {} frames (frame {}{}) held so many overlapping boxes that they were \
+             matched cheapest pair first rather than optimally; check the detections there",
+            path.display(),
+            tracks.crowded_frames.len(),
+            first.join(", "),
+            if tracks.crowded_frames.len() > 5 { ", …" } else { "" }
+        );
+    }
     Ok(tracks)
 }

@@ -15,6 +15,7 @@
 //! gate to just above it, solving, and dropping the pairs above the gate, computed component by
 //! component. When no entry passes the gate nothing is matched.
 
+use crate::limits::MAX_COMPONENT;
 use pathfinding::kuhn_munkres::kuhn_munkres_min;
 use pathfinding::matrix::Matrix;
 
@@ -138,14 +139,32 @@ pub fn solve_gated(cost: &CostMatrix, gate: f64) -> Vec<(usize, usize)> {
 
 /// Least-cost assignment over the listed candidate pairs only (every other pair is impossible),
 /// keeping pairs whose cost is at most `gate`; the result of [`solve_gated`] on the matrix the
-/// edges describe.
-///
-/// It equals clamping every entry above the gate to one value just above it, solving the whole
-/// matrix, and dropping the clamped pairs: that objective is a maximum-weight matching on the edges
-/// that pass the gate (weight = clamp value − cost), which splits exactly over the connected
-/// components of those edges. Each component is solved on its own, so a frame with hundreds of
-/// far-apart tracks costs many tiny problems instead of one large one.
+/// edges describe (see [`assign_edges`], which also says whether a component was too large to
+/// solve exactly).
 pub fn solve_edges(rows: usize, cols: usize, edges: &[Edge], gate: f64) -> Vec<(usize, usize)> {
+    assign_edges(rows, cols, edges, gate).pairs
+}
+
+/// What [`assign_edges`] found.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct Assignment {
+    pub pairs: Vec<(usize, usize)>,
+    /// True when a component had more than [`MAX_COMPONENT`] rows or columns and was matched
+    /// greedily (cheapest pairs first) instead of optimally: its cost would grow with the cube of
+    /// its size.
+    pub greedy: bool,
+}
+
+/// [`solve_edges`], saying whether a component was matched greedily.
+///
+/// The optimum equals clamping every entry above the gate to one value just above it, solving the
+/// whole matrix, and dropping the clamped pairs: that objective is a maximum-weight matching on the
+/// edges that pass the gate (weight = clamp value − cost), which splits exactly over the connected
+/// components of those edges. Each component is solved on its own, so a frame with hundreds of
+/// far-apart tracks costs many tiny problems instead of one large one. A component larger than
+/// [`MAX_COMPONENT`] (a crowd, or a detector gone wrong) is matched greedily, in time linear in its
+/// edges.
+pub fn assign_edges(rows: usize, cols: usize, edges: &[Edge], gate: f64) -> Assignment {
     let passes = |c: f64| c.is_finite() && c <= gate;
     let edges: Vec<&Edge> = edges
         .iter()
@@ -153,13 +172,21 @@ pub fn solve_edges(rows: usize, cols: usize, edges: &[Edge], gate: f64) -> Vec<(
         .collect();
     let above = gate + gate.abs().max(1.0) * 1e-5;
     let mut pairs = Vec::new();
+    let mut greedy = false;
     // Most components of a tracking frame are one track and one box.
     for group in components(rows, cols, &edges) {
         if let [e] = group[..] {
             pairs.push((e.row, e.col));
             continue;
         }
-        let (rs, cs, sub) = dense(&group, above, |e| e.cost);
+        let (rs, cs, sub) = match dense(&group, above, |e| e.cost) {
+            Some(d) => d,
+            None => {
+                greedy = true;
+                pairs.extend(cheapest_first(&group));
+                continue;
+            }
+        };
         if rs.len() == 1 || cs.len() == 1 {
             // One row or one column: the cheapest edge is the optimum (first listed among equals).
             let best = group.iter().min_by(|a, b| {
@@ -178,7 +205,29 @@ pub fn solve_edges(rows: usize, cols: usize, edges: &[Edge], gate: f64) -> Vec<(
         );
     }
     pairs.sort_unstable();
-    pairs
+    Assignment { pairs, greedy }
+}
+
+/// Greedy matching: edges cheapest first (ties by row, then column), each taken when its row and
+/// column are both free.
+fn cheapest_first(group: &[&Edge]) -> Vec<(usize, usize)> {
+    let mut order: Vec<&&Edge> = group.iter().collect();
+    order.sort_by(|a, b| {
+        a.cost
+            .total_cmp(&b.cost)
+            .then((a.row, a.col).cmp(&(b.row, b.col)))
+    });
+    let mut rows_used = std::collections::HashSet::new();
+    let mut cols_used = std::collections::HashSet::new();
+    let mut out = Vec::new();
+    for e in order {
+        if !rows_used.contains(&e.row) && !cols_used.contains(&e.col) {
+            rows_used.insert(e.row);
+            cols_used.insert(e.col);
+            out.push((e.row, e.col));
+        }
+    }
+    out
 }
 
 /// Groups edges by the connected component of rows and columns they join (union-find over rows
@@ -210,25 +259,29 @@ fn components<'a>(rows: usize, cols: usize, edges: &[&'a Edge]) -> Vec<Vec<&'a E
         .collect()
 }
 
-/// The distinct rows and columns of a component and its dense matrix (`fill` where no edge is).
+/// The distinct rows and columns of a component and its dense matrix (`fill` where no edge is);
+/// `None` when it has more than [`MAX_COMPONENT`] rows or columns.
 fn dense(
     group: &[&Edge],
     fill: f64,
     value: impl Fn(&Edge) -> f64,
-) -> (Vec<usize>, Vec<usize>, CostMatrix) {
+) -> Option<(Vec<usize>, Vec<usize>, CostMatrix)> {
     let mut rs: Vec<usize> = group.iter().map(|e| e.row).collect();
     let mut cs: Vec<usize> = group.iter().map(|e| e.col).collect();
     rs.sort_unstable();
     rs.dedup();
     cs.sort_unstable();
     cs.dedup();
+    if rs.len() > MAX_COMPONENT || cs.len() > MAX_COMPONENT {
+        return None;
+    }
     let mut sub = CostMatrix::filled(rs.len(), cs.len(), fill);
     for e in group {
         if let (Ok(i), Ok(j)) = (rs.binary_search(&e.row), cs.binary_search(&e.col)) {
             sub.set(i, j, value(e));
         }
     }
-    (rs, cs, sub)
+    Some((rs, cs, sub))
 }
 
 /// Total cost of a set of pairs.
@@ -252,7 +305,18 @@ pub fn maximise_edges(rows: usize, cols: usize, edges: &[Edge]) -> Vec<(usize, u
             pairs.push((e.row, e.col));
             continue;
         }
-        let (rs, cs, sub) = dense(&group, 0.0, |e| -e.cost);
+        let Some((rs, cs, sub)) = dense(&group, 0.0, |e| -e.cost) else {
+            // Too large to solve exactly: heaviest pairs first.
+            let negated: Vec<Edge> = group
+                .iter()
+                .map(|e| Edge {
+                    cost: -e.cost,
+                    ..**e
+                })
+                .collect();
+            pairs.extend(cheapest_first(&negated.iter().collect::<Vec<_>>()));
+            continue;
+        };
         pairs.extend(
             solve(&sub)
                 .into_iter()

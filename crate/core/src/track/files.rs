@@ -237,6 +237,7 @@ pub fn from_json(bytes: &[u8]) -> Result<Tracks, Error> {
         config: doc.settings,
         frame_count: doc.frame_count,
         tracks,
+        crowded_frames: Vec::new(),
     })
 }
 
@@ -407,5 +408,6 @@ pub fn boxes_to_tracks(rows: &[IdBox]) -> Tracks {
         config: crate::track::TrackerConfig::for_method(crate::track::Method::Sort),
         frame_count,
         tracks,
+        crowded_frames: Vec::new(),
     }
 }

@@ -73,6 +73,9 @@ pub struct Tracks {
     pub frame_count: u32,
     /// Sorted by id.
     pub tracks: Vec<Track>,
+    /// Frames so crowded (more than `limits::MAX_COMPONENT` tracks and boxes all overlapping)
+    /// that they were matched greedily, cheapest pairs first, instead of optimally.
+    pub crowded_frames: Vec<u32>,
 }
 
 /// How often (in frames) the progress callback is called.

@@ -7,6 +7,7 @@ use super::methods::{Association, MethodDef};
 use super::{Track, TrackBox, TrackerConfig, Tracks};
 use crate::detections::{Detection, Detections};
 use crate::geometry::BBox;
+use std::cell::Cell;
 use std::collections::VecDeque;
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -61,6 +62,10 @@ pub(crate) struct Tracker<'a> {
     /// Boxed, so that removing a track from the middle shifts pointers, not whole filters.
     #[allow(clippy::vec_box)]
     pub(crate) live: Vec<Box<LiveTrack>>,
+    /// Set by the association when this frame's crowd was matched greedily.
+    crowded: Cell<bool>,
+    /// Frames whose crowd was matched greedily.
+    crowded_frames: Vec<u32>,
     finished: Vec<Track>,
     next_id: u32,
 }
@@ -73,6 +78,8 @@ impl<'a> Tracker<'a> {
             motion: BoxMotion::default(),
             detections,
             live: Vec::new(),
+            crowded: Cell::new(false),
+            crowded_frames: Vec::new(),
             finished: Vec::new(),
             next_id: 1,
         }
@@ -81,6 +88,13 @@ impl<'a> Tracker<'a> {
     /// Whether no track is alive (nothing to predict or end).
     pub(crate) fn is_idle(&self) -> bool {
         self.live.is_empty()
+    }
+
+    /// Notes that this frame's association matched a crowd greedily (see `assign::assign_edges`).
+    pub(crate) fn note_crowd(&self, greedy: bool) {
+        if greedy {
+            self.crowded.set(true);
+        }
     }
 
     /// Where live track `t` is expected in this frame.
@@ -95,6 +109,9 @@ impl<'a> Tracker<'a> {
             }
         }
         let assoc: Association = (self.def.associate)(self, dets);
+        if self.crowded.take() {
+            self.crowded_frames.push(frame);
+        }
         let mut matched = vec![false; self.live.len()];
         for m in &assoc.matches {
             matched[m.track] = true;
@@ -237,6 +254,7 @@ impl<'a> Tracker<'a> {
             config: self.config,
             frame_count,
             tracks,
+            crowded_frames: self.crowded_frames,
         }
     }
 }

@@ -5,7 +5,8 @@
 use super::matching::{match_iou, split};
 use super::{Association, Match, MethodDef};
 use crate::detections::Detection;
-use crate::track::assign::{solve_edges, Edge};
+use crate::limits::MAX_CANDIDATES;
+use crate::track::assign::{assign_edges, Edge};
 use crate::track::tracker::{unit_vector, Tracker};
 use crate::track::TrackerConfig;
 
@@ -70,6 +71,7 @@ fn associate(tracker: &Tracker, dets: &[Detection]) -> Association {
             seen_by_cascade[t] = true;
         }
         let mut edges = Vec::new();
+        let mut near: Vec<(f64, usize)> = Vec::new();
         for (r, &ti) in tracks.iter().enumerate() {
             let t = &tracker.live[ti];
             if t.gallery.is_empty() {
@@ -78,9 +80,23 @@ fn associate(tracker: &Tracker, dets: &[Detection]) -> Association {
             let Some(gate) = tracker.motion.gate(&t.kf, c.max_mahalanobis) else {
                 continue;
             };
+            near.clear();
             for (k, &d) in unmatched.iter().enumerate() {
-                let Some(e) = &embeddings[d] else { continue };
-                if gate.distance_sq(&dets[usable[d]].bbox).is_some() {
+                if embeddings[d].is_none() {
+                    continue;
+                }
+                if let Some(m) = gate.distance_sq(&dets[usable[d]].bbox) {
+                    near.push((m, k));
+                }
+            }
+            // In a crowd, only the nearest by motion are compared by appearance.
+            if near.len() > MAX_CANDIDATES {
+                near.sort_by(|a, b| a.0.total_cmp(&b.0).then(a.1.cmp(&b.1)));
+                near.truncate(MAX_CANDIDATES);
+                near.sort_by_key(|&(_, k)| k);
+            }
+            for &(_, k) in &near {
+                if let Some(e) = &embeddings[unmatched[k]] {
                     edges.push(Edge {
                         row: r,
                         col: k,
@@ -89,7 +105,9 @@ fn associate(tracker: &Tracker, dets: &[Detection]) -> Association {
                 }
             }
         }
-        let pairs = solve_edges(tracks.len(), unmatched.len(), &edges, c.max_cosine_distance);
+        let found = assign_edges(tracks.len(), unmatched.len(), &edges, c.max_cosine_distance);
+        tracker.note_crowd(found.greedy);
+        let pairs = found.pairs;
         let (level_matches, _, left) = split(pairs, &tracks, &unmatched);
         matches.extend(level_matches.into_iter().map(|m| Match {
             track: m.track,

@@ -3,7 +3,8 @@
 
 use super::{Association, Match};
 use crate::detections::Detection;
-use crate::track::assign::{solve_edges, Edge};
+use crate::limits::MAX_CANDIDATES;
+use crate::track::assign::{assign_edges, Edge};
 use crate::track::tracker::Tracker;
 
 /// Matches `tracks` to `dets` (both lists of indices) on 1 − IoU with a least IoU; returns the
@@ -24,27 +25,39 @@ pub(super) fn match_iou(
         .collect();
     by_left.sort_by(|a, b| a.0.total_cmp(&b.0));
     let widest = dets.iter().map(|&d| all[d].bbox.w).fold(0.0, f64::max);
+    let gate = 1.0 - min_iou;
     let mut edges = Vec::new();
+    let mut mine = Vec::new();
     for (r, &t) in tracks.iter().enumerate() {
         let tb = tracker.predicted_box(t);
         let start = by_left.partition_point(|&(x, _)| x + widest <= tb.x);
         let end = by_left.partition_point(|&(x, _)| x < tb.x + tb.w);
+        mine.clear();
         for &(_, c) in &by_left[start..end.max(start)] {
             let iou = tb.iou(&all[dets[c]].bbox);
-            if iou > 0.0 {
-                edges.push(Edge {
+            if iou > 0.0 && 1.0 - iou <= gate {
+                mine.push(Edge {
                     row: r,
                     col: c,
                     cost: 1.0 - iou,
                 });
             }
         }
+        keep_best(&mut mine);
+        edges.extend_from_slice(&mine);
     }
-    split(
-        solve_edges(tracks.len(), dets.len(), &edges, 1.0 - min_iou),
-        tracks,
-        dets,
-    )
+    let found = assign_edges(tracks.len(), dets.len(), &edges, gate);
+    tracker.note_crowd(found.greedy);
+    split(found.pairs, tracks, dets)
+}
+
+/// A track's candidates cut to the [`MAX_CANDIDATES`] cheapest (ties by column), so that a crowd
+/// of boxes all overlapping each other costs memory linear in the boxes.
+pub(super) fn keep_best(candidates: &mut Vec<Edge>) {
+    if candidates.len() > MAX_CANDIDATES {
+        candidates.sort_by(|a, b| a.cost.total_cmp(&b.cost).then(a.col.cmp(&b.col)));
+        candidates.truncate(MAX_CANDIDATES);
+    }
 }
 
 /// Turns assignment pairs over sub-lists into matches plus what is left of each list.
