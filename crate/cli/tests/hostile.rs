@@ -155,5 +155,9 @@ fn a_frame_where_every_box_overlaps_every_other_costs_bounded_time() {
         &dir.join("t.txt").display().to_string(),
     ]);
     assert!(o.status.success(), "{}", stderr(&o));
-    assert!(stderr(&o).contains("3 frames (frame 2, 3, 4)"), "{}", stderr(&o));
+    assert!(
+        stderr(&o).contains("3 frames (frame 2, 3, 4)"),
+        "{}",
+        stderr(&o)
+    );
 }

@@ -115,6 +115,20 @@ fn maximise(score: &CostMatrix) -> Vec<(usize, usize)> {
     maximise_edges(score.rows, score.cols, &edges)
 }
 
+/// Values by (ground-truth id, tracker id), for the pairs that have one.
+type Sparse = BTreeMap<(usize, usize), f64>;
+
+/// [`maximise`] over a sparse table (absent pairs are zero), edges in row-major order as the dense
+/// table gives them.
+fn maximise_sparse(values: &Sparse, rows: usize, cols: usize) -> Vec<(usize, usize)> {
+    let edges: Vec<Edge> = values
+        .iter()
+        .filter(|(_, &v)| v > 0.0)
+        .map(|(&(row, col), &cost)| Edge { row, col, cost })
+        .collect();
+    maximise_edges(rows, cols, &edges)
+}
+
 /// Scores tracker boxes against ground-truth boxes (both as `frame,id,box` rows, any order).
 pub fn score(gt: &[IdBox], tr: &[IdBox]) -> Result<Scores, ScoreError> {
     let (frames, n_gt, n_tr) = frames(gt, tr)?;
@@ -265,7 +279,9 @@ fn coverage(gt_count: &[u64], matched_count: &[u64]) -> (u64, u64) {
 /// IDF1, IDP, IDR: the one-to-one matching of ground-truth ids to tracker ids that maximises the
 /// number of frames in which the matched pair overlaps with IoU ≥ 0.5.
 fn identity(frames: &[Frame], n_gt: usize, n_tr: usize) -> (f64, f64, f64) {
-    let mut potential = CostMatrix::filled(n_gt, n_tr, 0.0);
+    // Only pairs of ids that ever overlap are held: memory grows with the pairs seen together,
+    // not with the number of ground-truth ids times tracker ids.
+    let mut potential: Sparse = BTreeMap::new();
     let (mut gt_total, mut tr_total) = (0.0, 0.0);
     for f in frames {
         gt_total += f.gt.len() as f64;
@@ -273,15 +289,14 @@ fn identity(frames: &[Frame], n_gt: usize, n_tr: usize) -> (f64, f64, f64) {
         for (r, &g) in f.gt.iter().enumerate() {
             for (c, &t) in f.tr.iter().enumerate() {
                 if f.iou.get(r, c) >= 0.5 {
-                    let v = potential.get(g, t);
-                    potential.set(g, t, v + 1.0);
+                    *potential.entry((g, t)).or_insert(0.0) += 1.0;
                 }
             }
         }
     }
-    let idtp: f64 = maximise(&potential)
+    let idtp: f64 = maximise_sparse(&potential, n_gt, n_tr)
         .into_iter()
-        .map(|(g, t)| potential.get(g, t))
+        .map(|gt| potential[&gt])
         .sum();
     let idfn = gt_total - idtp;
     let idfp = tr_total - idtp;
@@ -293,8 +308,8 @@ fn identity(frames: &[Frame], n_gt: usize, n_tr: usize) -> (f64, f64, f64) {
 
 /// HOTA's global alignment of each ground-truth id with each tracker id (the soft IoU of their
 /// whole tracks), and how many frames each id is in.
-fn alignment(frames: &[Frame], n_gt: usize, n_tr: usize) -> (CostMatrix, Vec<f64>, Vec<f64>) {
-    let mut potential = CostMatrix::filled(n_gt, n_tr, 0.0);
+fn alignment(frames: &[Frame], n_gt: usize, n_tr: usize) -> (Sparse, Vec<f64>, Vec<f64>) {
+    let mut potential: Sparse = BTreeMap::new();
     let mut gt_count = vec![0.0; n_gt];
     let mut tr_count = vec![0.0; n_tr];
     for f in frames {
@@ -317,22 +332,19 @@ fn alignment(frames: &[Frame], n_gt: usize, n_tr: usize) -> (CostMatrix, Vec<f64
             for (c, &t) in f.tr.iter().enumerate() {
                 let sim = f.iou.get(r, c);
                 let denom = row_sum[r] + col_sum[c] - sim;
-                if denom > EPS {
-                    let v = potential.get(g, t);
-                    potential.set(g, t, v + sim / denom);
+                if denom > EPS && sim > 0.0 {
+                    *potential.entry((g, t)).or_insert(0.0) += sim / denom;
                 }
             }
         }
     }
-    let alignment = CostMatrix::from_fn(n_gt, n_tr, |g, t| {
-        let p = potential.get(g, t);
-        let denom = gt_count[g] + tr_count[t] - p;
-        if denom > 0.0 {
-            p / denom
-        } else {
-            0.0
-        }
-    });
+    let alignment = potential
+        .into_iter()
+        .map(|((g, t), p)| {
+            let denom = gt_count[g] + tr_count[t] - p;
+            ((g, t), if denom > 0.0 { p / denom } else { 0.0 })
+        })
+        .collect();
     (alignment, gt_count, tr_count)
 }
 
@@ -353,7 +365,7 @@ fn hota(frames: &[Frame], n_gt: usize, n_tr: usize) -> (f64, f64, f64, f64) {
             continue;
         }
         let score = CostMatrix::from_fn(f.gt.len(), f.tr.len(), |r, c| {
-            alignment.get(f.gt[r], f.tr[c]) * f.iou.get(r, c)
+            alignment.get(&(f.gt[r], f.tr[c])).copied().unwrap_or(0.0) * f.iou.get(r, c)
         });
         let pairs = maximise(&score);
         for (a, &alpha) in alphas.iter().enumerate() {

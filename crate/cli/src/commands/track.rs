@@ -151,7 +151,11 @@ pub fn track_detections(
             path.display(),
             tracks.crowded_frames.len(),
             first.join(", "),
-            if tracks.crowded_frames.len() > 5 { ", …" } else { "" }
+            if tracks.crowded_frames.len() > 5 {
+                ", …"
+            } else {
+                ""
+            }
         );
     }
     Ok(tracks)
