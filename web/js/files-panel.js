@@ -87,7 +87,7 @@ export class FilesPanel {
     try {
       const source = new Blob([bytes]); // a copy: the bytes themselves go to the worker
       const summary = await this.client.loadDetections(bytes);
-      this.store.detectionsLoaded(summary, source, `${name}: ${summary.rows} boxes, ${summary.frames} frames`);
+      this.store.detectionsLoaded(summary, source, `${name}: ${summary.rows} boxes, ${summary.frames} frames`, name);
       if (summary.warnings.length || summary.skipped_rows) {
         this.messages.say("detections", "warn", `${name}: ${summary.skipped_rows} rows skipped.\n${summary.warnings.slice(0, 5).join("\n")}`);
       }
