@@ -101,7 +101,13 @@ export class EvidenceSheet {
     if (rejected) notes.push("rejected: not counted");
     if (e.reason) notes.push(`why: ${e.reason}`);
     const when = e.time ? `${clockText(e.seconds)} (${e.time.slice(11)})` : clockText(e.seconds);
-    const picture = this.evidence.picture(e).then((url) => (url ? shown(img, url) : img.replaceWith("no picture")));
+    const picture = this.evidence.picture(e).then((url) => {
+      if (!url) return img.replaceWith("no picture");
+      // Where it was cut from, for whoever checks the picture against the footage.
+      const crop = this.evidence.crops.get(url);
+      if (crop) img.dataset.crop = `${crop.join(",")},${e.frame}`;
+      return shown(img, url);
+    });
     const tr = el("tr", { class: rejected ? "rejected" : null }, [
       el("td", {}, img), el("td", { text: `${when} · frame ${e.frame}` }), el("td", { text: e.label || e.direction }),
       el("td", { text: e.class || "unclassified" }), el("td", { text: eventTracks(e) }), el("td", { text: notes.join("; ") }),

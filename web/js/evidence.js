@@ -35,6 +35,8 @@ export class Evidence {
     this.cache = new Map();
     /** @type {string[]} */
     this.urls = [];
+    /** @type {Map<string, [number, number, number]>} where each picture was cut: x, y, side in video pixels */
+    this.crops = new Map();
     /** @type {Promise<unknown>} the pictures are cut one after another */
     this.queue = Promise.resolve();
     store.subscribe(["footage"], () => this.open());
@@ -49,6 +51,7 @@ export class Evidence {
     const footage = this.store.footage;
     for (const u of this.urls) URL.revokeObjectURL(u);
     this.urls = [];
+    this.crops.clear();
     this.cache.clear();
     if (this.video.src) URL.revokeObjectURL(this.video.src);
     if (footage) this.video.src = URL.createObjectURL(footage.blob);
@@ -92,6 +95,7 @@ export class Evidence {
     if (!(blob instanceof Blob)) return null;
     const url = URL.createObjectURL(blob);
     this.urls.push(url);
+    this.crops.set(url, [sx, sy, side]);
     return url;
   }
 
@@ -123,7 +127,8 @@ export class Evidence {
   }
 
   /**
-   * The square to cut: around the event's box, kept inside the picture. [x, y, side] in video pixels.
+   * The square to cut: around the event's box, kept inside the picture. [x, y, side] in whole video
+   * pixels.
    * @param {CountEvent} e
    * @returns {[number, number, number]}
    */
@@ -131,9 +136,9 @@ export class Evidence {
     const [x, y, w, h] = this.boxOf(e);
     const W = this.video.videoWidth || 1;
     const H = this.video.videoHeight || 1;
-    const side = Math.min(Math.max(w, h) * MARGIN, W, H);
-    const sx = Math.max(0, Math.min(W - side, x + w / 2 - side / 2));
-    const sy = Math.max(0, Math.min(H - side, y + h / 2 - side / 2));
+    const side = Math.round(Math.min(Math.max(w, h) * MARGIN, W, H));
+    const sx = Math.round(Math.max(0, Math.min(W - side, x + w / 2 - side / 2)));
+    const sy = Math.round(Math.max(0, Math.min(H - side, y + h / 2 - side / 2)));
     return [sx, sy, side];
   }
 

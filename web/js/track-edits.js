@@ -58,7 +58,7 @@ export class TrackActions {
       ids.length > 1 ? this.chooser(ids, t.id) : el("span", { class: "lead", text: `Correct track ${t.id}:` }),
       button("merge", "Merge\u2026", "Merge with another track"),
       button("split", "Split here\u2026", "Split at this frame"),
-      button("delete", "Delete\u2026", "Delete track"),
+      button("delete", "Delete\u2026", "Delete this track"),
       button("class", "Class\u2026", "Change class"),
     );
     this.showFrame();
@@ -114,6 +114,9 @@ export class TrackActions {
       if (!edit) return;
       this.store.correctionMade(withReason(edit, reason.value));
       this.close();
+      // What is left of the track stays in focus: the track it joined, or nothing once left out.
+      if (edit.edit === "merge_tracks") this.store.focusChosen({ tracks: [edit.into.id], event: null });
+      if (edit.edit === "delete_track") this.store.focusChosen(null);
     };
     this.form.hidden = false;
     const first = this.form.querySelector("select, input");
@@ -144,8 +147,8 @@ export class TrackActions {
       };
     }
     if (action === "class") {
-      const input = el("input", { type: "text", list: "class-choices", autocomplete: "off", value: t.class || "", "aria-label": "Class" });
-      return { head: `Track ${t.id} is counted as ${t.class || "unclassified"}. What is it?`, nodes: [el("label", {}, ["Class ", input])], submit: "Set class", edit: () => (input.value.trim() ? { edit: "set_class", track: ref, class: input.value.trim() } : null) };
+      const input = el("input", { type: "text", list: "class-choices", autocomplete: "off", value: t.class || "", "aria-label": "New class" });
+      return { head: `Track ${t.id} is counted as ${t.class || "unclassified"}. What is it?`, nodes: [el("label", {}, ["New class ", input])], submit: "Set class", edit: () => (input.value.trim() ? { edit: "set_class", track: ref, class: input.value.trim() } : null) };
     }
     return this.mergeFields(t);
   }
@@ -157,7 +160,7 @@ export class TrackActions {
   mergeFields(t) {
     const options = mergeCandidates(t, this.store.tracks ? this.store.tracks.list : [], this.store.fps);
     if (!options.length) return { head: `Every other track is seen while track ${t.id} is: none can be the same object.`, nodes: [], submit: "", edit: () => null };
-    const select = el("select", { "aria-label": "Merge with" }, options.map((o) => el("option", { value: String(o.track.id), text: o.words })));
+    const select = el("select", { "aria-label": "Track to merge with" }, options.map((o) => el("option", { value: String(o.track.id), text: o.words })));
     const byId = new Map(options.map((o) => [o.track.id, o.track]));
     return {
       head: `Track ${t.id} and another are one object (lost and found again). Merge with:`,
