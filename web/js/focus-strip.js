@@ -78,7 +78,6 @@ export class FocusStrip {
   showEvent(e) {
     const flags = [];
     if (e.inferred) flags.push("counted while hidden");
-    if (e.added) flags.push("added by hand");
     const glyph = directionGlyph(e);
     this.what.replaceChildren(...(glyph ? [glyph] : []), [eventTime(e), eventWhat(e), eventTracks(e), ...flags].join(" · "));
     const reject = this.actions.canReject() ? this.button("Reject crossing", "R", "Reject this crossing", () => this.actions.reject()) : null;

@@ -1,7 +1,8 @@
 // @ts-check
 // The review's list of count events: every crossing of a line and every entry to or exit from a
-// zone that the counts are made of, in the report's order. Choosing one shows that moment: the
-// footage goes to its frame and its track stands out on the picture.
+// zone that the counts are made of, in the report's order, each with a picture of what was counted
+// (cut from the footage when its row comes into view), then the crossings the person rejected.
+// Choosing one shows that moment: the footage goes to its frame and its track stands out.
 
 import { el, byId, clockText, revealInList } from "./dom.js";
 
