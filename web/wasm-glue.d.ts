@@ -6,12 +6,24 @@
 type DetectionSummary = import("./js/protocol.js").DetectionSummary;
 type TrackInfo = import("./js/protocol.js").TrackInfo;
 type CoreFacts = import("./js/protocol.js").CoreFacts;
+type Doubt = import("./js/protocol.js").Doubt;
+type Outcome = import("./js/edits.js").Outcome;
+type Project = import("./js/protocol.js").Project;
+type Fingerprint = import("./js/protocol.js").Fingerprint;
 
 declare function wasm_bindgen(init: { module_or_path: Uint8Array | BufferSource }): Promise<unknown>;
 
 declare namespace wasm_bindgen {
   /** The tracking methods and default margins, from the core's own tables. */
   function coreFacts(): CoreFacts;
+  /** Reads a project file's text; errors name the line and column. */
+  function readProject(text: string): Project;
+  /** A project (plain object) as the project file's text; format, version and generator filled in. */
+  function writeProject(project: object): string;
+  /** A file's fingerprint from its name, size, first bytes (at least the first MiB) and duration (0: none). */
+  function fingerprint(name: string, size: number, head: Uint8Array, duration: number): Fingerprint;
+  /** Why `opened` is not the file `recorded` was taken of, or null (undefined) when it is. */
+  function fingerprintDiffers(recorded: object, opened: object): string | null | undefined;
 
   /** One page's state in the core: detections, plan, tracks. Errors are thrown as JS errors. */
   class Session {
@@ -24,6 +36,14 @@ declare namespace wasm_bindgen {
     tracksText(): string;
     allBoxes(): Float32Array;
     trackList(): TrackInfo[];
+    /** Sets the corrections (an edits file's or a project file's text) and counts again. */
+    setEdits(json: string): Outcome[];
+    /** Sets a project file's corrections, hand counts and correction factor, and counts again. */
+    setWork(projectJson: string): Outcome[];
+    /** The corrections as an edits file. */
+    editsText(): string;
+    /** The doubtful moments of the last count, most doubtful first; the picture's size (0: unknown). */
+    doubts(width: number, height: number): Doubt[];
     startDetection(width: number, height: number, settings: string): void;
     detectRgba(rgba: Uint8Array, width: number, height: number): number;
     detectYuv(bytes: Uint8Array, width: number, height: number, layout: string): number;

@@ -21,6 +21,8 @@ class FindCancelled extends Error {}
 /** @type {wasm_bindgen.Session | null} */
 let session = null;
 let findCancelled = false;
+/** Whether the session has tracks (of the detections it holds now). */
+let tracked = false;
 
 /** The core's session; operations other than init need it. */
 function core() {
@@ -51,7 +53,24 @@ function track(method, settings, progress) {
       progress(done, total);
     }
   });
+  tracked = true;
   return { tracks: n, boxes: s.allBoxes(), trackList: s.trackList() };
+}
+
+/**
+ * Sets the person's corrections (an edits file, or a project file for its hand counts and
+ * correction factor too) and counts again: the new counts and the tracks as edited.
+ * @param {string} json
+ * @param {"edits" | "project"} kind
+ * @param {{width: number, height: number}} picture
+ */
+function setEdits(json, kind, picture) {
+  const s = core();
+  if (kind === "project") s.setWork(json);
+  else s.setEdits(json);
+  if (!tracked) return { results: null, tracks: null };
+  const trackList = s.trackList();
+  return { results: results(picture), tracks: { tracks: trackList.length, boxes: s.allBoxes(), trackList } };
 }
 
 /**
@@ -63,12 +82,18 @@ async function perform(req, progress) {
   if (req.op !== "init") core(); // every other operation needs the core started
   switch (req.op) {
     case "init": return init(req.wasm);
-    case "loadDetections": return core().loadDetections(new Uint8Array(req.bytes));
-    case "setPlan": core().setPlan(req.json); return results();
+    case "loadDetections": tracked = false; return core().loadDetections(new Uint8Array(req.bytes));
+    case "setPlan": core().setPlan(req.json); return results(req);
+    case "setEdits": return setEdits(req.json, req.kind, req);
+    case "editsText": return core().editsText();
+    case "readProject": return wasm_bindgen.readProject(req.text);
+    case "writeProject": return wasm_bindgen.writeProject(req.project);
+    case "fingerprint": return wasm_bindgen.fingerprint(req.name, req.size, new Uint8Array(req.head), req.duration);
+    case "fingerprintDiffers": return wasm_bindgen.fingerprintDiffers(req.recorded, req.opened) || null;
     case "track": return track(req.method, req.settings, progress);
     case "startDetection": core().startDetection(req.width, req.height, req.settings); return true;
     case "detectRgba": return core().detectRgba(new Uint8Array(req.pixels), req.width, req.height);
-    case "finishDetection": return core().finishDetection();
+    case "finishDetection": tracked = false; return core().finishDetection();
     case "findInFootage": return findInFootage(req.footage, req.width, req.height, req.settings, req.expectedFrames, progress);
     case "cancelFind": findCancelled = true; return true;
     case "detectionsText": return core().detectionsText();
@@ -289,13 +314,18 @@ async function searchFrame(frame, width, height, scratch) {
   return core().detectRgba(new Uint8Array(g.getImageData(0, 0, width, height).data.buffer), width, height);
 }
 
-/** The report and counts CSV when tracks and a plan are both there, otherwise null. */
-function results() {
+/**
+ * The report, counts CSV and doubtful moments when tracks and a plan are both there, otherwise null.
+ * @param {{width: number, height: number}} picture the picture's size in pixels (0: unknown)
+ */
+function results({ width, height }) {
+  let report;
   try {
-    return { report: core().report(), csv: core().countsCsv() };
+    report = core().report();
   } catch (e) {
     return null;
   }
+  return { report, csv: core().countsCsv(), doubts: core().doubts(width || 0, height || 0) };
 }
 
 /**
@@ -316,12 +346,24 @@ function reply(message, transfer = []) {
   self.postMessage(message, transfer);
 }
 
+/**
+ * The box arrays a result carries, to hand over rather than copy.
+ * @param {unknown} result
+ * @returns {Transferable[]}
+ */
+function boxesIn(result) {
+  if (!result || typeof result !== "object") return [];
+  if ("boxes" in result && result.boxes instanceof Float32Array) return [result.boxes.buffer];
+  if ("tracks" in result && result.tracks && typeof result.tracks === "object") return boxesIn(result.tracks);
+  return [];
+}
+
 self.onmessage = async (/** @type {MessageEvent<RequestMessage>} */ event) => {
   const req = event.data;
   const id = req.id;
   try {
     const result = await perform(req, (done, total) => reply({ kind: "progress", id, done, total }));
-    const transfer = typeof result === "object" && result && "boxes" in result ? [result.boxes.buffer] : [];
+    const transfer = boxesIn(result);
     reply({ kind: "result", id, result }, transfer);
   } catch (e) {
     if (e instanceof FindCancelled) reply({ kind: "cancelled", id });

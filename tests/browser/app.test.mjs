@@ -115,6 +115,7 @@ test("open files, draw a line, run, and export what throughline run gives", asyn
   // An event is a click away from its moment in the footage (Review, Count events).
   const first = report.events[0];
   await showView(page, "Review");
+  await page.getByRole("tab", { name: /Count events/ }).click();
   await page.locator("#events button").first().click();
   await page.waitForFunction((f) => document.getElementById("clock").textContent.startsWith(`frame ${f} `), first.frame, { timeout: 10000 });
   await screenshot(page, "4-event-shown");

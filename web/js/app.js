@@ -21,7 +21,11 @@ import { Review } from "./review.js";
 import { ResultsPanel } from "./results.js";
 import { ExportsPanel } from "./exports-panel.js";
 import { bindShortcuts } from "./shortcuts.js";
-import { byId } from "./dom.js";
+import { EditSync } from "./edit-sync.js";
+import { Evidence } from "./evidence.js";
+import { EvidenceSheet } from "./evidence-sheet.js";
+import { ProjectPanel } from "./project-panel.js";
+import { byId, el } from "./dom.js";
 
 const src = sources();
 const client = new CoreClient(src.worker, src.wasm);
@@ -30,6 +34,7 @@ const messages = new Messages(byId("messages", HTMLElement));
 client.ready.catch((e) => messages.say("engine", "error", `The counting engine did not start: ${e.message}. Try a current Chromium, Firefox or Safari.`));
 
 const planSync = new PlanSync(store, client);
+const editSync = new EditSync(store, client, messages);
 const picture = new Picture(store, messages);
 new OverlayView(store);
 new Workspace(store);
@@ -40,16 +45,32 @@ const focusGround = (/** @type {number} */ i) => planPanel.focusGround(i);
 new CoordsForm(store, { focusGround });
 const editor = new Editor(byId("overlay", HTMLCanvasElement), store, { focusGround });
 new FindPanel(store, client, messages, picture);
-new RunPanel(store, client, messages, planSync);
-new Review(store, picture);
+const project = new ProjectPanel(store, client, messages);
+files.openProject = (text, name) => project.open(text, name);
+new RunPanel(store, client, messages, planSync, editSync);
+const evidence = new Evidence(store);
+const review = new Review(store, picture, client, evidence);
+new EvidenceSheet(store, evidence);
 new ResultsPanel(store, (name) => {
   const method = client.facts ? client.facts.methods.find((m) => m.name === name) : undefined;
   return method ? method.label : name;
 });
 new ExportsPanel(store, client);
-bindShortcuts(store, picture, editor);
+bindShortcuts(store, picture, editor, review);
 
 if (store.restored) planSync.send();
+if (store.work.edits.length || store.work.extras.tallies || store.work.extras.correction) editSync.send();
 store.toolChosen("select");
 await demo.open(false);
+if (store.workRestored) sayWorkKept();
 document.body.dataset.ready = "true";
+
+/** After a reload: the corrections and decisions are back, and wait for tracks to apply to. */
+function sayWorkKept() {
+  const n = store.work.edits.length;
+  const m = store.work.marks.size;
+  const what = `${n} correction${n === 1 ? "" : "s"} and ${m} review decision${m === 1 ? "" : "s"}`;
+  const run = el("button", { type: "button", text: "Run now", onclick: () => { messages.clear("work-kept"); byId("run", HTMLButtonElement).click(); } });
+  const open = store.detections ? "Press Run to track again" : "Open the same detections (and footage), then press Run";
+  messages.say("work-kept", "ok", `Your ${what} are kept from last time. ${open}: they are applied to the new tracks.`, store.detections ? [run] : []);
+}

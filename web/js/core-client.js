@@ -108,11 +108,64 @@ export class CoreClient {
   }
 
   /**
-   * Checks and sets the plan (JSON text); resolves to the report and CSV when tracks exist, else null.
+   * Checks and sets the plan (JSON text); resolves to the report, CSV and doubtful moments when
+   * tracks exist, else null.
    * @param {string} json
+   * @param {{width: number, height: number} | null} picture the picture's size (for the doubtful moments)
    */
-  setPlan(json) {
-    return this.call({ op: "setPlan", json });
+  setPlan(json, picture) {
+    return this.call({ op: "setPlan", json, ...sizeOf(picture) });
+  }
+
+  /**
+   * Sets the person's corrections and counts again; resolves to the counts and the edited tracks.
+   * @param {string} json an edits file, or a project file (`kind` "project": its hand counts and correction factor too)
+   * @param {"edits" | "project"} kind
+   * @param {{width: number, height: number} | null} picture
+   */
+  setEdits(json, kind, picture) {
+    return this.call({ op: "setEdits", json, kind, ...sizeOf(picture) });
+  }
+
+  /** The corrections as an edits file, written by the core. */
+  editsText() {
+    return this.call({ op: "editsText" });
+  }
+
+  /**
+   * Reads a project file; rejects with what is wrong where.
+   * @param {string} text
+   */
+  readProject(text) {
+    return this.call({ op: "readProject", text });
+  }
+
+  /**
+   * The project file's text for a project object (checked against its layout by the core).
+   * @param {object} project
+   */
+  writeProject(project) {
+    return this.call({ op: "writeProject", project });
+  }
+
+  /**
+   * A file's fingerprint: its name, size, the SHA-256 of its first MiB and, for footage, its duration.
+   * @param {string} name
+   * @param {Blob} file
+   * @param {number} duration seconds, 0 when none
+   */
+  async fingerprint(name, file, duration) {
+    const head = await file.slice(0, 1 << 20).arrayBuffer();
+    return this.call({ op: "fingerprint", name, size: file.size, head, duration }, [head]);
+  }
+
+  /**
+   * Why the file opened is not the one a project recorded, in a sentence; null when it is.
+   * @param {object} recorded
+   * @param {object} opened
+   */
+  fingerprintDiffers(recorded, opened) {
+    return this.call({ op: "fingerprintDiffers", recorded, opened });
   }
 
   /**
@@ -179,4 +232,12 @@ export class CoreClient {
   tracksText() {
     return this.call({ op: "tracksText" });
   }
+}
+
+/**
+ * The picture's size for a request (0 × 0 when not known yet).
+ * @param {{width: number, height: number} | null} picture
+ */
+function sizeOf(picture) {
+  return picture ? { width: picture.width, height: picture.height } : { width: 0, height: 0 };
 }

@@ -22,6 +22,8 @@ export class FilesPanel {
     this.footageName = byId("footage-name", HTMLElement);
     this.detectionsName = byId("detections-name", HTMLElement);
     this.planName = byId("plan-name", HTMLElement);
+    /** @type {((text: string, name: string) => void) | null} opens a project file (project-panel.js), once there is one */
+    this.openProject = null;
     store.subscribe(["footage"], () => { this.footageName.textContent = store.footage ? store.footage.name : "none"; });
     store.subscribe(["detections"], () => { if (store.detections) this.detectionsName.textContent = store.detections.label; });
     store.subscribe(["planName"], () => { this.planName.textContent = store.planName; });
@@ -61,7 +63,7 @@ export class FilesPanel {
           continue;
         }
         const text = await f.text();
-        if (/\.json$/i.test(f.name) && /"(frame_rate|screenlines)"/.test(text.slice(0, 4000))) this.openPlanFile(text, f.name);
+        if (/\.json$/i.test(f.name) && /"(frame_rate|screenlines|format)"/.test(text.slice(0, 4000))) this.openPlanFile(text, f.name);
         else this.openDetections(new TextEncoder().encode(text).buffer, f.name);
       }
     });
@@ -87,7 +89,7 @@ export class FilesPanel {
     try {
       const source = new Blob([bytes]); // a copy: the bytes themselves go to the worker
       const summary = await this.client.loadDetections(bytes);
-      this.store.detectionsLoaded(summary, source, `${name}: ${summary.rows} boxes, ${summary.frames} frames`);
+      this.store.detectionsLoaded(summary, source, `${name}: ${summary.rows} boxes, ${summary.frames} frames`, name);
       if (summary.warnings.length || summary.skipped_rows) {
         this.messages.say("detections", "warn", `${name}: ${summary.skipped_rows} rows skipped.\n${summary.warnings.slice(0, 5).join("\n")}`);
       }
@@ -104,6 +106,8 @@ export class FilesPanel {
    * @param {string} name
    */
   openPlanFile(text, name) {
+    // A project file holds a plan and more: it is opened as the project it is.
+    if (this.openProject && isProjectText(text)) return this.openProject(text, name);
     try {
       this.store.planReplaced(parsePlanText(text, name), "file", name);
     } catch (e) {
@@ -127,4 +131,12 @@ export class FilesPanel {
     }
     if (problems.length) this.messages.say("fit", "warn", problems.join("\n"));
   }
+}
+
+/**
+ * Whether a JSON file's text is a project file (its "format" says so, near the top).
+ * @param {string} text
+ */
+function isProjectText(text) {
+  return /"format"\s*:\s*"throughline-project"/.test(text.slice(0, 400));
 }

@@ -85,7 +85,7 @@ export class FindPanel {
       const { summary, how } = await this.search(footage.blob, started);
       const seconds = (performance.now() - started) / 1000;
       const source = new Blob([await this.client.detectionsText()]);
-      this.store.detectionsLoaded(summary, source, `found in ${footage.name}: ${summary.rows} boxes, ${summary.frames} frames`);
+      this.store.detectionsLoaded(summary, source, `found in ${footage.name}: ${summary.rows} boxes, ${summary.frames} frames`, "");
       this.status.textContent = `Found ${summary.rows} moving objects over ${summary.frames} frames in ${seconds.toFixed(1)} s${how}. Press Run to track and count them.`;
       this.offerMargin();
     } catch (e) {

@@ -9,6 +9,7 @@ import { drawOverlay } from "./overlay.js";
 import { layoutLabels } from "./overlay-layout.js";
 import { itemNames } from "./palette.js";
 import { byId } from "./dom.js";
+import { countPoint } from "./tracks.js";
 
 /** @typedef {import("./store.js").PageStore} PageStore */
 /** @typedef {import("./overlay-layout.js").Layout} Layout */
@@ -90,6 +91,29 @@ export class OverlayView {
     return { ids, paths: tracks.paths(from, to, plan.anchor, ids) };
   }
 
+  /**
+   * Where the moment in focus happened: the chosen crossing; for a doubtful moment, its crossing
+   * (counted or rejected), else where its first track was at its frame.
+   * @returns {import("./geometry.js").Point | null}
+   */
+  focusPoint() {
+    const { focus, results, tracks, plan } = this.store;
+    if (!focus) return null;
+    const e = focus.event;
+    if (e) return e.kind === "screenline" ? [e.x, e.y] : null;
+    const d = focus.doubt;
+    if (!d) return null;
+    const c = d.crossing;
+    if (c) {
+      const gone = results ? (results.report.rejected_events || []).find((r) => r.name === c.screenline && r.track === c.track && r.frame === c.frame) : undefined;
+      return gone ? [gone.x, gone.y] : null;
+    }
+    /** @type {import("./geometry.js").Point | null} */
+    let at = null;
+    if (tracks) tracks.forEachBox(d.frame, (id, x, y, w, h) => { if (id === d.tracks[0]) at = countPoint(x, y, w, h, plan.anchor); });
+    return at;
+  }
+
   redraw() {
     const s = this.store;
     const px = this.px();
@@ -97,7 +121,6 @@ export class OverlayView {
       const input = { plan: s.plan, width: this.canvas.width, height: this.canvas.height, px, live: s.results ? s.results.live : null, action: this.actionGrid(), keyColour: (/** @type {string} */ n) => this.keyColour(n) };
       this.layout = { ...layoutLabels(this.ctx, input), px };
     }
-    const event = s.focus ? s.focus.event : null;
     const drawn = drawOverlay(this.ctx, {
       plan: s.plan,
       frame: s.frame,
@@ -110,7 +133,8 @@ export class OverlayView {
       beadEvery: Math.max(1, Math.round(s.fps / 2)),
       draft: s.draft,
       focus: this.focus,
-      focusPoint: event && event.kind === "screenline" ? [event.x, event.y] : null,
+      focusPoint: this.focusPoint(),
+      focusDoubtful: Boolean(s.focus && s.focus.doubt),
       layout: this.layout,
       keyColour: (name) => this.keyColour(name),
     });

@@ -16,7 +16,8 @@ import { DIRECTION_COLOUR, PLAN_INK, STATE_COLOUR } from "./palette.js";
 /**
  * What to draw for one frame. `px`: video pixels per screen pixel; `pathFrames`: how many frames of
  * each track's path to show; `focus`: the tracks being reviewed (the others are dimmed) and their
- * whole paths; `focusPoint`: where the count event being reviewed happened.
+ * whole paths; `focusPoint`: where the count event being reviewed happened; `focusDoubtful`: the
+ * moment in focus is from the doubtful-moments queue (its ring is drawn in the doubtful colour).
  * @typedef {object} Scene
  * @property {import("./plan.js").Plan} plan
  * @property {number} frame
@@ -30,6 +31,7 @@ import { DIRECTION_COLOUR, PLAN_INK, STATE_COLOUR } from "./palette.js";
  * @property {import("./store.js").Draft | null} draft
  * @property {{ids: Set<number>, paths: Map<number, import("./tracks.js").Path>} | null} focus
  * @property {Point | null} focusPoint
+ * @property {boolean} focusDoubtful
  * @property {import("./overlay-layout.js").Layout} layout
  * @property {(name: string) => string} keyColour
  */
@@ -171,7 +173,7 @@ function drawCrossings(ctx, scene) {
   if (f) {
     ctx.beginPath();
     ctx.arc(f[0], f[1], 13 * px, 0, Math.PI * 2);
-    casedStroke(ctx, PLAN_INK, 1.6, px, [3, 3]);
+    casedStroke(ctx, scene.focusDoubtful ? STATE_COLOUR.doubtful : PLAN_INK, scene.focusDoubtful ? 2 : 1.6, px, [3, 3]);
   }
 }
 

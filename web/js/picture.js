@@ -68,7 +68,7 @@ export class Picture {
 
   ready() {
     const v = this.video;
-    this.store.videoReady(v.videoWidth, v.videoHeight, Math.round(v.duration * this.store.fps));
+    this.store.videoReady(v.videoWidth, v.videoHeight, Math.round(v.duration * this.store.fps), v.duration);
     this.seekFrame(1);
   }
 

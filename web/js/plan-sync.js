@@ -30,7 +30,7 @@ export class PlanSync {
     const { json, calibrationNote } = planForCore(this.store.plan);
     this.store.planChecked(calibrationNote);
     try {
-      const results = await this.client.setPlan(json);
+      const results = await this.client.setPlan(json, this.store.picture);
       if (results) this.store.resultsReady(results);
     } catch (e) {
       // A worker replaced on Cancel drops the plan it was given; it gets it again.

@@ -19,7 +19,55 @@
  * @property {number} max_y the largest bottom edge of any box, in pixels
  */
 
-/** @typedef {{id: number, class: string | null, first_frame: number, last_frame: number}} TrackInfo */
+/**
+ * A track without its boxes (crate/wasm/src/boxes.rs, trackList), after the person's edits: frames
+ * 1-based, boxes `[x, y, w, h]` in pixels (top-left + size), `seen` the frames it was seen in,
+ * `class_votes` how many of its detections carried each class, most first.
+ * @typedef {{id: number, class: string | null, first_frame: number, last_frame: number, seen?: number,
+ *   first_box?: number[], last_box?: number[], class_votes?: [string, number][]}} TrackInfo
+ */
+
+/**
+ * A moment of the count most likely wrong (crate/core/src/review.rs, Doubt): where to look (frame
+ * 1-based, seconds, clock), the tracks concerned, the crossing when it is one, and why, one sentence
+ * per reason (`kinds`, most weighty first). `key` stays the same while tracks and plan do.
+ * @typedef {object} Doubt
+ * @property {string} key
+ * @property {DoubtKind[]} kinds
+ * @property {number} frame
+ * @property {number} seconds
+ * @property {string} time
+ * @property {number[]} tracks
+ * @property {{screenline: string, direction: "forward" | "backward", track: number, frame: number}} [crossing]
+ * @property {string[]} why
+ * @property {number} weight
+ */
+/**
+ * What a file was, to tell whether work is opened against the same one (crate/core/src/fingerprint.rs):
+ * its name, size in bytes, the SHA-256 of its first MiB, and for footage its duration in seconds.
+ * @typedef {{name: string, size: number, head_sha256: string, duration_seconds?: number}} Fingerprint
+ */
+
+/**
+ * A project file as the core reads it (docs/project.schema.json): the plan, the tracking method,
+ * the corrections, the review decisions, the site, hand counts and a correction factor, and the
+ * fingerprints of the footage and detections it was made with.
+ * @typedef {object} Project
+ * @property {string} [format]
+ * @property {number} [version]
+ * @property {string} [generator]
+ * @property {object} plan
+ * @property {{method?: string, settings?: object}} tracking
+ * @property {import("./edits.js").Edit[]} edits
+ * @property {{key: string, decision: string}[]} review
+ * @property {string} [site]
+ * @property {unknown[]} [tallies]
+ * @property {unknown} [correction]
+ * @property {Fingerprint} [footage]
+ * @property {Fingerprint} [detections]
+ */
+
+/** @typedef {"short_track" | "joined_track" | "close_together" | "hidden" | "barely_seen" | "starts_near_line" | "ends_near_line" | "class_changes"} DoubtKind */
 
 /**
  * Tracks for drawing: `boxes` holds 7 values per box (frame 1-based, id, x, y, w, h in pixels
@@ -27,7 +75,17 @@
  * @typedef {{tracks: number, boxes: Float32Array, trackList: TrackInfo[]}} TrackOutput
  */
 
-/** The report (JSON text) and counts CSV, exactly as the command line writes them. @typedef {{report: string, csv: string}} Results */
+/**
+ * The report (JSON text) and counts CSV, exactly as the command line writes them, and the doubtful
+ * moments of that count (`throughline review`'s queue).
+ * @typedef {{report: string, csv: string, doubts: Doubt[]}} Results
+ */
+
+/**
+ * After new corrections: the counts (null before tracking or without a plan) and the tracks as
+ * edited (null before tracking).
+ * @typedef {{results: Results | null, tracks: TrackOutput | null}} Corrected
+ */
 
 /**
  * Footage searched in the worker: the detections' summary, how the footage was read, the frames
@@ -64,7 +122,13 @@
  * (transferred), not copied.
  * @typedef {{op: "init", wasm: Uint8Array}} InitRequest
  * @typedef {{op: "loadDetections", bytes: ArrayBuffer}} LoadDetectionsRequest
- * @typedef {{op: "setPlan", json: string}} SetPlanRequest
+ * @typedef {{op: "setPlan", json: string, width: number, height: number}} SetPlanRequest
+ * @typedef {{op: "setEdits", json: string, kind: "edits" | "project", width: number, height: number}} SetEditsRequest
+ * @typedef {{op: "editsText"}} EditsTextRequest
+ * @typedef {{op: "readProject", text: string}} ReadProjectRequest
+ * @typedef {{op: "writeProject", project: object}} WriteProjectRequest
+ * @typedef {{op: "fingerprint", name: string, size: number, head: ArrayBuffer, duration: number}} FingerprintRequest
+ * @typedef {{op: "fingerprintDiffers", recorded: object, opened: object}} FingerprintDiffersRequest
  * @typedef {{op: "track", method: string, settings: string}} TrackRequest
  * @typedef {{op: "startDetection", width: number, height: number, settings: string}} StartDetectionRequest
  * @typedef {{op: "detectRgba", pixels: ArrayBuffer, width: number, height: number}} DetectRgbaRequest
@@ -74,7 +138,9 @@
  * @typedef {{op: "detectionsText"}} DetectionsTextRequest
  * @typedef {{op: "tracksText"}} TracksTextRequest
  * @typedef {InitRequest | LoadDetectionsRequest | SetPlanRequest | TrackRequest | StartDetectionRequest | DetectRgbaRequest
- *   | FinishDetectionRequest | FindInFootageRequest | CancelFindRequest | DetectionsTextRequest | TracksTextRequest} Request
+ *   | FinishDetectionRequest | FindInFootageRequest | CancelFindRequest | DetectionsTextRequest | TracksTextRequest
+ *   | SetEditsRequest | EditsTextRequest | ReadProjectRequest | WriteProjectRequest | FingerprintRequest
+ *   | FingerprintDiffersRequest} Request
  * @typedef {Request & {id: number}} RequestMessage a request as posted to the worker
  */
 
@@ -84,6 +150,12 @@
  * @property {CoreFacts} init
  * @property {DetectionSummary} loadDetections
  * @property {Results | null} setPlan the report and CSV when there are tracks, else null
+ * @property {Corrected} setEdits
+ * @property {string} editsText the edits file
+ * @property {Project} readProject
+ * @property {string} writeProject the project file
+ * @property {Fingerprint} fingerprint
+ * @property {string | null} fingerprintDiffers why the file opened is not the one recorded, or null
  * @property {TrackOutput} track
  * @property {true} startDetection
  * @property {number} detectRgba objects found in the frame

@@ -22,6 +22,8 @@ import { itemNames } from "./palette.js";
  * @property {{origin: string, destination: string, class: string, count: number, u_turn: boolean}[]} movements
  * @property {{unit: string, by_class: Record<string, Summary>, all: Summary} | null} speeds
  * @property {CountEvent[]} events
+ * @property {import("./edits.js").Outcome[]} [edits] the person's corrections, each with what it did or why it could not
+ * @property {CountEvent[]} [rejected_events] counted crossings a person rejected; in no count
  */
 /** @typedef {{forward: number, backward: number}} DirectionCounts */
 /** @typedef {{start: string, end: string, partial: boolean, forward: number, backward: number, by_class: Record<string, DirectionCounts>}} IntervalCount */
@@ -33,6 +35,8 @@ import { itemNames } from "./palette.js";
  * @property {number} forward
  * @property {number} backward
  * @property {number} inferred
+ * @property {number} [added] crossings a person added
+ * @property {number} [rejected] crossings a person rejected (not in the totals)
  * @property {Record<string, DirectionCounts>} by_class
  * @property {IntervalCount[]} intervals
  * @property {{start: string, end: string, volume: number, phf: number} | null} peak_hour
@@ -55,6 +59,8 @@ import { itemNames } from "./palette.js";
  * @property {number} x
  * @property {number} y
  * @property {boolean} [inferred]
+ * @property {boolean} [added] a crossing a person added (track 0)
+ * @property {string} [reason] why a person added or rejected it
  */
 
 /** The Results view's counts: the report when there is one, nothing when the counts are gone. */
@@ -98,7 +104,13 @@ function summaryLine(report, methodLabel) {
 /** @param {Report} report */
 function totals(report) {
   const rows = report.screenlines.map((l) => [l.name, `${l.forward_label}: ${l.forward}`, `${l.backward_label}: ${l.backward}`, l.forward + l.backward, l.inferred]);
-  const out = [table(["Line", "Forward", "Backward", "Both", "Counted while hidden"], rows, [3, 4])];
+  const headers = ["Line", "Forward", "Backward", "Both", "Counted while hidden"];
+  // Corrected counts say so: crossings added by hand are in the totals, rejected ones are not.
+  if (report.screenlines.some((l) => l.added || l.rejected)) {
+    headers.push("Added by hand", "Rejected");
+    report.screenlines.forEach((l, i) => rows[i].push(l.added || 0, l.rejected || 0));
+  }
+  const out = [table(headers, rows, [3, 4, 5, 6])];
   if (report.screenlines.some((l) => l.inferred > 0)) {
     out.push(el("p", { class: "note", text: "Counted while hidden: crossings made while the person or vehicle was out of the camera's sight; where it crossed was predicted from how it moved before and after. They are among the counts; check them in Review, Count events." }));
   }

@@ -1,7 +1,8 @@
 // @ts-check
 // The review's list of count events: every crossing of a line and every entry to or exit from a
-// zone that the counts are made of, in the report's order. Choosing one shows that moment: the
-// footage goes to its frame and its track stands out on the picture.
+// zone that the counts are made of, in the report's order, each with a picture of what was counted
+// (cut from the footage when its row comes into view), then the crossings the person rejected.
+// Choosing one shows that moment: the footage goes to its frame and its track stands out.
 
 import { el, byId, clockText, revealInList } from "./dom.js";
 
@@ -15,29 +16,68 @@ export class EventList {
   /**
    * @param {PageStore} store
    * @param {(event: CountEvent) => void} choose show this event's moment
+   * @param {import("./evidence.js").Evidence} evidence pictures of the events, cut from the footage
    */
-  constructor(store, choose) {
+  constructor(store, choose, evidence) {
     this.store = store;
     this.choose = choose;
+    this.evidence = evidence;
     this.list = byId("events", HTMLElement);
     this.badge = byId("events-count", HTMLElement);
     /** @type {HTMLButtonElement[]} */
     this.buttons = [];
-    store.subscribe(["results"], () => this.show());
+    /** @type {Map<Element, CountEvent>} the pictures waiting to be cut, by their image */
+    this.pictured = new Map();
+    // Pictures are cut only for the rows scrolled into view.
+    this.seen = new IntersectionObserver((entries) => {
+      for (const entry of entries) if (entry.isIntersecting) this.fillPicture(entry.target);
+    });
+    store.subscribe(["results", "footage", "video"], () => this.show());
     store.subscribe(["focus"], () => this.mark());
   }
 
   show() {
     const report = this.store.results ? this.store.results.report : null;
     const events = report ? report.events : [];
+    const rejected = report ? report.rejected_events || [] : [];
     const shown = events.slice(0, MAX_EVENTS_SHOWN);
-    this.buttons = shown.map((e) => el("button", { type: "button", onclick: () => this.choose(e) }, eventRow(e)));
+    this.seen.disconnect();
+    this.pictured = new Map();
+    this.buttons = shown.map((e) => this.row(e, false));
     this.list.replaceChildren(...this.buttons.map((b) => el("li", {}, b)));
     if (events.length > shown.length) {
       this.list.append(el("li", { class: "more", text: `… and ${events.length - shown.length} more, in the exported report.` }));
     }
+    if (rejected.length) {
+      this.list.append(el("li", { class: "list-head", text: "Rejected by you: not counted" }), ...rejected.map((e) => el("li", {}, this.row(e, true))));
+    }
     this.badge.textContent = report ? `(${events.length})` : "";
     this.mark();
+  }
+
+  /**
+   * One event's row, its picture to be cut when it comes into view.
+   * @param {CountEvent} e
+   * @param {boolean} rejected
+   */
+  row(e, rejected) {
+    const img = el("img", { class: "thumb", alt: `Picture of ${eventWhat(e)} at ${clockText(e.seconds)}`, width: 56, height: 56 });
+    const b = el("button", { type: "button", class: rejected ? "rejected" : null, onclick: () => this.choose(e) }, [...eventRow(e, rejected), img]);
+    if (this.evidence.available()) {
+      this.pictured.set(img, e);
+      this.seen.observe(img);
+    } else {
+      img.hidden = true;
+    }
+    return b;
+  }
+
+  /** @param {Element} img */
+  fillPicture(img) {
+    const e = this.pictured.get(img);
+    this.seen.unobserve(img);
+    if (!e || !(img instanceof HTMLImageElement)) return;
+    this.evidence.picture(e).then((url) => { if (url) img.src = url; else img.hidden = true; });
   }
 
   /** The chosen event's row is marked as the current one. */
@@ -82,10 +122,11 @@ export function eventWhat(e) {
 }
 
 /**
- * The tracks an event counted: one, or the pieces of one path joined.
+ * The tracks an event counted: one, or the pieces of one path joined; none for one added by hand.
  * @param {CountEvent} e
  */
 export function eventTracks(e) {
+  if (e.added) return "added by hand";
   const ids = e.track_ids && e.track_ids.length ? e.track_ids : [e.track];
   return ids.length > 1 ? `tracks ${ids.slice(0, -1).join(", ")} and ${ids[ids.length - 1]} (one path, joined)` : `track ${ids[0]}`;
 }
@@ -101,11 +142,16 @@ export function directionGlyph(e) {
   return el("span", { class: `dir ${forward ? "forward" : "backward"}`, "aria-hidden": "true", text: `${glyph} ` });
 }
 
-/** @param {CountEvent} e */
-function eventRow(e) {
+/**
+ * @param {CountEvent} e
+ * @param {boolean} rejected
+ */
+function eventRow(e, rejected) {
   const detail = [e.class || "unclassified", eventTracks(e), `frame ${e.frame}`];
   if (e.time) detail.push(e.time.slice(11));
   if (e.inferred) detail.push("counted while hidden");
+  if (rejected) detail.push("rejected");
+  if (e.reason) detail.push(`why: ${e.reason}`);
   return [
     el("span", { class: "when", text: clockText(e.seconds) }),
     el("span", { class: "what" }, [directionGlyph(e), eventWhat(e)]),

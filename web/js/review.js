@@ -1,65 +1,153 @@
 // @ts-check
-// The review: its lists (count events, tracks; doubtful moments and edits are placeholders until
-// those features exist) and what choosing from them does. Choosing a count event or a track takes the
-// footage to its moment and makes its track stand out on the picture, the others dimmed; the strip
-// under the playback controls says what is in focus and steps from one event to the next.
+// The review: its lists (doubtful moments, tracks, count events, edits), what choosing from them
+// does, and the decisions and corrections made there. Choosing a moment takes the footage to it
+// and makes its tracks stand out on the picture, the others dimmed; the strip under the playback
+// controls says what is in focus, steps to the next, and takes the decision (accept, reject). The
+// corrections go to the store as edits; the core counts again with them.
 
-import { el, byId } from "./dom.js";
-import { EventList, eventTime, eventWhat, eventTracks, directionGlyph } from "./review-events.js";
+import { byId } from "./dom.js";
+import { EventList } from "./review-events.js";
 import { TrackList } from "./review-tracks.js";
+import { DoubtList } from "./review-doubts.js";
+import { EditList, directionLabel } from "./review-edits.js";
+import { FocusStrip } from "./focus-strip.js";
+import { TrackActions, offerClasses } from "./track-edits.js";
+import { AddCrossingForm, rejectEdit } from "./crossing-edits.js";
+import { withReason, sameEdit } from "./edits.js";
 
 /** @typedef {import("./store.js").PageStore} PageStore */
 /** @typedef {import("./picture.js").Picture} Picture */
+/** @typedef {import("./core-client.js").CoreClient} CoreClient */
+/** @typedef {import("./evidence.js").Evidence} Evidence */
 /** @typedef {import("./results.js").CountEvent} CountEvent */
 /** @typedef {import("./protocol.js").TrackInfo} TrackInfo */
+/** @typedef {import("./protocol.js").Doubt} Doubt */
+/** @typedef {import("./edits.js").RejectEdit} RejectEdit */
 
 export class Review {
   /**
    * @param {PageStore} store
    * @param {Picture} picture
+   * @param {CoreClient} client
+   * @param {Evidence} evidence
    */
-  constructor(store, picture) {
+  constructor(store, picture, client, evidence) {
     this.store = store;
     this.picture = picture;
-    this.events = new EventList(store, (e) => this.showEvent(e));
+    this.events = new EventList(store, (e) => this.showEvent(e), evidence);
     this.tracks = new TrackList(store, (t) => this.showTrack(t));
-    this.strip = byId("focus-strip", HTMLElement);
-    store.subscribe(["focus", "results"], () => this.showStrip());
+    this.doubts = new DoubtList(store, (d) => this.showDoubt(d));
+    new EditList(store, client, (frame, tracks) => this.showMoment(frame, tracks));
+    this.strip = new FocusStrip(store, {
+      stepEvent: (d) => this.events.step(d),
+      stepDoubt: (d) => this.stepDoubt(d),
+      accept: () => this.accept(),
+      reject: () => this.reject(),
+      canReject: () => Boolean(this.rejectable()),
+    });
+    new TrackActions(store, byId("focus-track-actions", HTMLElement));
+    new TrackActions(store, byId("tracks-correct", HTMLElement), " (Tracks list)");
+    new AddCrossingForm(store);
+    const classes = byId("class-choices", HTMLDataListElement);
+    store.subscribe(["detections", "tracks"], () => offerClasses(store, classes));
     store.subscribe(["results"], () => { byId("review-empty", HTMLElement).hidden = Boolean(store.results); });
   }
 
   /** @param {CountEvent} e */
   showEvent(e) {
-    this.picture.pause();
-    this.picture.seekFrame(e.frame);
-    this.store.focusChosen({ tracks: e.track_ids && e.track_ids.length ? e.track_ids : [e.track], event: e });
+    this.showMoment(e.frame, e.track_ids && e.track_ids.length ? e.track_ids : e.track ? [e.track] : [], e);
   }
 
   /** @param {TrackInfo} t */
   showTrack(t) {
-    this.picture.pause();
-    this.picture.seekFrame(t.first_frame);
-    this.store.focusChosen({ tracks: [t.id], event: null });
+    this.showMoment(t.first_frame, [t.id]);
   }
 
-  /** What is in focus, with the way back to all tracks. */
-  showStrip() {
+  /** @param {Doubt} d */
+  showDoubt(d) {
+    this.strip.say("");
+    this.picture.pause();
+    this.picture.seekFrame(d.frame);
+    this.store.focusChosen({ tracks: d.tracks, event: this.eventOf(d), doubt: d });
+  }
+
+  /**
+   * The footage at `frame`, with these tracks (and this event) in focus.
+   * @param {number} frame
+   * @param {number[]} tracks
+   * @param {CountEvent | null} [event]
+   */
+  showMoment(frame, tracks, event = null) {
+    this.strip.say("");
+    this.picture.pause();
+    this.picture.seekFrame(frame);
+    this.store.focusChosen(tracks.length || event ? { tracks, event } : null);
+  }
+
+  /**
+   * The count event a doubtful moment is about, when it is a crossing still counted.
+   * @param {Doubt} d
+   */
+  eventOf(d) {
+    const c = d.crossing;
+    const report = this.store.results ? this.store.results.report : null;
+    if (!c || !report) return null;
+    return report.events.find((e) => e.kind === "screenline" && e.name === c.screenline && e.direction === c.direction && e.track === c.track && e.frame === c.frame) || null;
+  }
+
+  /**
+   * The next (1) or previous (-1) doubtful moment, shown in the Doubtful moments list.
+   * @param {number} step
+   */
+  stepDoubt(step) {
+    if (this.store.view === "review" && this.store.reviewTab !== "doubtful") this.store.reviewTabChosen("doubtful");
+    if (!this.doubts.step(step)) this.strip.say(step > 0 ? "That was the last doubtful moment." : "That was the first doubtful moment.");
+  }
+
+  /** The count stands: the doubtful moment in focus is accepted. */
+  accept() {
+    const d = this.store.focus ? this.store.focus.doubt : null;
+    if (!d) return;
+    this.store.doubtDecided(d.key, "accepted");
+    this.strip.say("Accepted: the count stands. N goes on to the next moment.");
+  }
+
+  /**
+   * The crossing in focus that a Reject would take out of the counts: the doubtful moment's
+   * crossing, or the count event chosen.
+   * @returns {RejectEdit | null}
+   */
+  rejectable() {
     const focus = this.store.focus;
-    this.strip.hidden = !focus;
+    if (!focus) return null;
+    if (focus.doubt) {
+      const c = focus.doubt.crossing;
+      return c ? { edit: "reject_crossing", screenline: c.screenline, direction: c.direction, track: c.track, frame: c.frame } : null;
+    }
+    return rejectEdit(focus.event);
+  }
+
+  /** The count is wrong: its crossing is rejected (with a reason, if the person gives one). */
+  reject() {
+    const focus = this.store.focus;
     if (!focus) return;
-    const clear = el("button", { type: "button", text: "Show all", "aria-label": "Show all tracks", onclick: () => this.store.focusChosen(null) });
-    if (!focus.event) {
-      const id = focus.tracks[0];
-      const cls = this.store.tracks ? this.store.tracks.classes.get(id) : null;
-      this.strip.replaceChildren(el("span", { text: `In focus: track ${id}${cls ? ` (${cls})` : ""}, its whole path drawn.` }), clear);
+    const d = focus.doubt || null;
+    const edit = this.rejectable();
+    if (!edit) {
+      if (!d) return;
+      this.store.doubtDecided(d.key, "rejected");
+      this.strip.say("Marked as wrong. Correct its track with the buttons below: merge, split, delete or change its class.");
       return;
     }
-    const e = focus.event;
-    /** @param {number} d @param {string} text @param {string} name */
-    const step = (d, text, name) => el("button", { type: "button", text, "aria-label": name, onclick: () => this.events.step(d) });
-    this.strip.replaceChildren(
-      el("span", {}, [directionGlyph(e), `${eventTime(e)} · ${eventWhat(e)} · ${eventTracks(e)}${e.inferred ? " · counted while hidden" : ""}`]),
-      el("span", { class: "button-row" }, [step(-1, "\u2039 Previous", "Previous event"), step(1, "Next \u203A", "Next event"), clear]),
-    );
+    const mark = d ? { key: d.key, decision: /** @type {const} */ ("rejected") } : null;
+    if (this.store.work.edits.some((e) => sameEdit(e, edit) || sameEdit({ ...e, reason: undefined }, edit))) {
+      if (mark) this.store.doubtDecided(mark.key, mark.decision);
+      return this.strip.say("That crossing is rejected already.");
+    }
+    const words = `Reject the crossing of ${edit.screenline}, ${directionLabel(this.store, edit.screenline, edit.direction)}, by track ${edit.track} at frame ${edit.frame}: it will not be counted. Why (optional)?`;
+    this.strip.askReason(words, (reason) => {
+      this.store.correctionMade(withReason(edit, reason), mark);
+      this.strip.say("Rejected: the counts no longer include it. Undo (Ctrl+Z) takes it back.");
+    });
   }
 }

@@ -11,6 +11,7 @@ import { TrackView } from "./tracks.js";
 /** @typedef {import("./core-client.js").CoreClient} CoreClient */
 /** @typedef {import("./messages.js").Messages} Messages */
 /** @typedef {import("./plan-sync.js").PlanSync} PlanSync */
+/** @typedef {import("./edit-sync.js").EditSync} EditSync */
 
 export class RunPanel {
   /**
@@ -18,12 +19,14 @@ export class RunPanel {
    * @param {CoreClient} client
    * @param {Messages} messages
    * @param {PlanSync} planSync
+   * @param {EditSync} editSync
    */
-  constructor(store, client, messages, planSync) {
+  constructor(store, client, messages, planSync, editSync) {
     this.store = store;
     this.client = client;
     this.messages = messages;
     this.planSync = planSync;
+    this.editSync = editSync;
     this.method = byId("method", HTMLSelectElement);
     this.run = byId("run", HTMLButtonElement);
     this.cancel = byId("cancel-run", HTMLButtonElement);
@@ -37,6 +40,7 @@ export class RunPanel {
     this.cancel.addEventListener("click", () => this.cancelRun());
     this.run.addEventListener("click", () => this.track());
     store.subscribe(["busy"], () => { this.run.disabled = store.tracking || store.finding; });
+    store.subscribe(["method"], () => this.listMethods());
     store.subscribe(["detections"], () => { this.status.textContent = "Ready: press Run to track and count."; });
   }
 
@@ -56,6 +60,7 @@ export class RunPanel {
     this.restoring = (async () => {
       await this.client.restart();
       if (detections) await this.client.loadDetections(await detections.source.arrayBuffer());
+      await this.editSync.send();
       await this.planSync.send();
     })().finally(() => { this.restoring = null; });
   }

@@ -6,31 +6,46 @@
 import { PlanHistory, frameRateOf } from "./plan.js";
 import { LiveCounts } from "./live-counts.js";
 import { KeyColours } from "./palette.js";
+import { ReviewWork } from "./work.js";
+import { editsFileText } from "./edits.js";
 
 /** @typedef {import("./plan.js").Plan} Plan */
 /** @typedef {import("./plan.js").PlanChange} PlanChange */
 /** @typedef {import("./geometry.js").Point} Point */
 /** @typedef {import("./protocol.js").DetectionSummary} DetectionSummary */
 /** @typedef {import("./tracks.js").TrackView} TrackView */
+/** @typedef {import("./protocol.js").Doubt} Doubt */
+/** @typedef {import("./edits.js").Edit} Edit */
+/** @typedef {import("./work.js").Decision} Decision */
+/** @typedef {import("./protocol.js").Fingerprint} Fingerprint */
 
 /**
  * What an action changed. "geometry": plan points moved in place while dragging (drawing only).
  * @typedef {"plan" | "geometry" | "selection" | "frame" | "footage" | "video" | "picture" | "detections"
  *   | "tracks" | "results" | "busy" | "planProblem" | "planName" | "frameRate" | "tool" | "draft" | "view"
- *   | "reviewTab" | "focus"} Topic
+ *   | "reviewTab" | "focus" | "edits" | "marks" | "site" | "prints" | "method"} Topic
  */
 /** @typedef {{changed: Set<Topic>, why: string}} Change `why`: for "plan", a PlanChange */
 /** @typedef {(change: Change) => void} Listener */
 
 /**
  * The footage as the video element plays it: `frames` at the plan's frame rate when it opened.
- * @typedef {{playable: boolean, width: number, height: number, frames: number}} Video
+ * `duration`: seconds, as the video element says.
+ * @typedef {{playable: boolean, width: number, height: number, frames: number, duration: number}} Video
  */
-/** Detections in use: the core's summary, the file (to give a restarted worker) and how to name them. @typedef {{summary: DetectionSummary, source: Blob, label: string}} Detections */
+/**
+ * Detections in use: the core's summary, the file (to give a restarted worker), how to name them,
+ * and the file's name ("" for detections found in footage here).
+ * @typedef {{summary: DetectionSummary, source: Blob, label: string, name: string}} Detections
+ */
 /** @typedef {{report: import("./results.js").Report, reportText: string, csv: string, live: LiveCounts}} Results */
 /** What the person is doing: setting up, reviewing against the footage, reading the results. @typedef {"setup" | "review" | "results"} View */
 /** The review's lists. @typedef {"doubtful" | "tracks" | "events" | "edits"} ReviewTab */
-/** The tracks being reviewed (tracker ids) and the count event chosen, if one was. @typedef {{tracks: number[], event: import("./results.js").CountEvent | null}} Focus */
+/**
+ * The tracks being reviewed (tracker ids), the count event chosen, if one was, and the doubtful
+ * moment chosen, if one was.
+ * @typedef {{tracks: number[], event: import("./results.js").CountEvent | null, doubt?: Doubt | null}} Focus
+ */
 /** @typedef {"select" | "line" | "zone" | "calibration"} Tool */
 /** A line or zone being drawn: its points so far and where the pointer is. @typedef {{kind: "line" | "zone", points: Point[], cursor?: Point}} Draft */
 /** A vertex being dragged: of a line, a zone or a ground point. @typedef {{kind: "line" | "zone" | "ground", index: number, vertex: number}} Vertex */
@@ -46,7 +61,7 @@ export class PageStore {
     /** @type {{name: string, blob: Blob} | null} the footage opened, as a file */
     this.footage = null;
     /** @type {Video} */
-    this.video = { playable: false, width: 0, height: 0, frames: 0 };
+    this.video = { playable: false, width: 0, height: 0, frames: 0, duration: 0 };
     /** @type {{width: number, height: number} | null} the picture's size in video pixels, once known */
     this.picture = null;
     /** @type {Detections | null} */
@@ -55,6 +70,13 @@ export class PageStore {
     this.tracks = null;
     /** @type {Results | null} */
     this.results = null;
+    /** @type {Doubt[]} the doubtful moments of the latest count, most doubtful first */
+    this.doubts = [];
+    /** The corrections and review decisions, kept from an earlier visit when there were any. */
+    this.work = new ReviewWork(storage);
+    this.workRestored = this.work.restore();
+    /** @type {{footage: Fingerprint | null, detections: Fingerprint | null}} the files open now */
+    this.prints = { footage: null, detections: null };
     /** @type {string | null} the selected line or zone: "line:2", "zone:0" */
     this.selected = null;
     /** Where the plan came from, as the Files panel names it. */
@@ -72,7 +94,7 @@ export class PageStore {
     /** @type {View} */
     this.view = "setup";
     /** @type {ReviewTab} */
-    this.reviewTab = "events";
+    this.reviewTab = "doubtful";
     /** @type {Focus | null} */
     this.focus = null;
     /** Each line's and zone's key colour, kept by name. */
@@ -136,9 +158,10 @@ export class PageStore {
    * @param {number} width
    * @param {number} height
    * @param {number} frames at the plan's frame rate
+   * @param {number} duration seconds
    */
-  videoReady(width, height, frames) {
-    this.video = { playable: true, width, height, frames };
+  videoReady(width, height, frames, duration) {
+    this.video = { playable: true, width, height, frames, duration };
     this.picture = { width, height };
     this.emit(["video", "picture"]);
   }
@@ -164,9 +187,10 @@ export class PageStore {
    * @param {DetectionSummary} summary
    * @param {Blob} source the detections as a file
    * @param {string} label how the Files panel names them
+   * @param {string} name the file's name ("" when found in footage)
    */
-  detectionsLoaded(summary, source, label) {
-    this.detections = { summary, source, label };
+  detectionsLoaded(summary, source, label, name) {
+    this.detections = { summary, source, label, name };
     this.emit(["detections", ...this.forgetTracking()]);
   }
 
@@ -178,15 +202,18 @@ export class PageStore {
     this.emit(["tracks"]);
   }
 
-  /** @param {import("./protocol.js").Results} results the report (JSON text) and the counts CSV */
-  resultsReady({ report, csv }) {
+  /** @param {import("./protocol.js").Results} results the report (JSON text), the counts CSV and the doubtful moments */
+  resultsReady({ report, csv, doubts }) {
     const parsed = JSON.parse(report);
     this.results = { report: parsed, reportText: report, csv, live: new LiveCounts(parsed) };
-    // The event in focus, if any, is the same event in the new counts (or none, when it is gone).
-    const was = this.focus && this.focus.event;
-    if (this.focus && was) {
-      const same = parsed.events.find((/** @type {import("./results.js").CountEvent} */ e) => e.frame === was.frame && e.name === was.name && e.direction === was.direction && e.track === was.track);
-      this.focus = { ...this.focus, event: same || null };
+    this.doubts = doubts;
+    // The event in focus, if any, is the same event in the new counts (or none, when it is gone);
+    // a doubtful moment in focus stays in focus, as the new queue has it when it is still there.
+    if (this.focus) {
+      const { event, doubt } = this.focus;
+      const same = event ? parsed.events.find((/** @type {import("./results.js").CountEvent} */ e) => e.frame === event.frame && e.name === event.name && e.direction === event.direction && e.track === event.track) : null;
+      const kept = doubt ? doubts.find((d) => d.key === doubt.key) || doubt : null;
+      this.focus = { ...this.focus, event: same || null, doubt: kept };
     }
     this.emit(["results", "focus"]);
   }
@@ -203,6 +230,7 @@ export class PageStore {
   forgetTracking() {
     this.tracks = null;
     this.results = null;
+    this.doubts = [];
     this.focus = null;
     return ["tracks", "results", "focus"];
   }
@@ -363,5 +391,89 @@ export class PageStore {
    */
   settingChanged(key, value) {
     this.plans.setSetting(key, value);
+  }
+
+  // ------------------------------------------------------------ corrections and review decisions
+
+  /**
+   * A correction made (one undo step), with the decision on the doubtful moment it answers, if any.
+   * @param {Edit} edit
+   * @param {{key: string, decision: Decision} | null} [mark]
+   */
+  correctionMade(edit, mark = null) {
+    this.work.change((w) => {
+      w.edits.push(edit);
+      if (mark) w.marks.set(mark.key, mark.decision);
+    });
+    this.filesInUse();
+    this.emit(["edits", "marks"]);
+  }
+
+  /**
+   * A decision on a doubtful moment (one undo step).
+   * @param {string} key
+   * @param {Decision} decision
+   */
+  doubtDecided(key, decision) {
+    this.work.change((w) => w.marks.set(key, decision));
+    this.emit(["marks"]);
+  }
+
+  correctionsUndone() {
+    const before = editsFileText(this.work.edits);
+    if (this.work.undo()) this.emit(editsFileText(this.work.edits) === before ? ["marks"] : ["edits", "marks"]);
+  }
+
+  correctionsRedone() {
+    const before = editsFileText(this.work.edits);
+    if (this.work.redo()) this.emit(editsFileText(this.work.edits) === before ? ["marks"] : ["edits", "marks"]);
+  }
+
+  /** The work is now made on the files open now (their fingerprints, where known). */
+  filesInUse() {
+    const { footage, detections } = this.prints;
+    if (footage || detections) this.work.madeWith = { footage, detections };
+    this.work.save();
+  }
+
+  /**
+   * A project file opened: its plan, tracking method, corrections, decisions and site replace the
+   * page's (Undo brings the plan back; Undo under Review the corrections).
+   * @param {import("./protocol.js").Project} project as the core read it
+   * @param {string} name the file's name
+   */
+  projectOpened(project, name) {
+    this.plans.replace(/** @type {Plan} */ (project.plan), "file");
+    this.plans.setSetting("method", project.tracking && project.tracking.method ? project.tracking.method : "");
+    this.planName = `${name} (project)`;
+    /** @type {import("./work.js").Extras} */
+    const extras = {};
+    if (project.tallies && project.tallies.length) extras.tallies = project.tallies;
+    if (project.correction) extras.correction = project.correction;
+    this.work.replace({
+      edits: project.edits,
+      marks: project.review.map((m) => [m.key, m.decision === "rejected" ? "rejected" : "accepted"]),
+      site: project.site || "",
+      madeWith: { footage: project.footage || null, detections: project.detections || null },
+      extras,
+    });
+    this.emit(["plan", "planName", "method", "edits", "marks", "site"], "file");
+  }
+
+  /** @param {string} name the site's name, for the project file and printed sheets */
+  siteNamed(name) {
+    this.work.site = name;
+    this.work.save();
+    this.emit(["site"]);
+  }
+
+  /**
+   * The fingerprint of a file open now.
+   * @param {"footage" | "detections"} kind
+   * @param {Fingerprint | null} print
+   */
+  fileFingerprinted(kind, print) {
+    this.prints = { ...this.prints, [kind]: print };
+    this.emit(["prints"]);
   }
 }

@@ -1,0 +1,50 @@
+// Following the queue of doubtful moments on the demo, as a person would, keys only: Review, N
+// (the first moment: two crossings of the east-west divide close together, the second counted
+// while its walker was hidden), look, R, say why, Enter. That was a double count: the divide's
+// counts are then the simulator's true counts (demo-site/demo/truth_report.json, made from the
+// scene's own truth, not from the tracker). The page's queue leads with the moment
+// `throughline review` lists first. The time the steps take is printed (not asserted: speed is
+// measured, not tested); README's walk-through quotes it.
+import { test } from "node:test";
+import assert from "node:assert/strict";
+import { readFileSync } from "node:fs";
+import { execFileSync } from "node:child_process";
+import { useBrowser, openPage, run, showView, demo, screenshot, LAPTOP } from "./harness.mjs";
+import { cli, DEMO, countedWith, screenTotals, reportTotals } from "./review-helpers.mjs";
+
+const env = useBrowser();
+
+test("the queue leads to the demo's double count; rejecting it gives the line's true counts", async () => {
+  const cliQueue = JSON.parse(execFileSync(cli, ["review", DEMO.detections, "--plan", DEMO.plan, "--json", "-q"]).toString());
+  const truth = reportTotals(readFileSync(demo("truth_report.json"), "utf8"));
+  const { page, seen } = await openPage(env, { viewport: LAPTOP });
+  const started = Date.now();
+  await run(page);
+  await showView(page, "Results");
+  const before = await screenTotals(page);
+  assert.notDeepEqual(before["east-west divide"], truth["east-west divide"], "as counted, the divide is off the truth");
+  await showView(page, "Review");
+  const first = page.locator("#doubtful-list li").first();
+  assert.match(await first.innerText(), new RegExp(`${cliQueue[0].why[0].replace(/[.*+?^${}()|[\]\\`]/g, "\\$&")}`), "the first moment is throughline review's first");
+  assert.match(await page.getByRole("tab", { name: /Doubtful moments/ }).getAttribute("aria-selected"), /true/, "Review opens on the queue");
+  await page.keyboard.press("n");
+  await page.waitForFunction(() => document.getElementById("clock").textContent.startsWith("frame 501 "));
+  const strip = await page.locator("#focus-strip").innerText();
+  assert.match(strip, /Doubtful moment 1 of \d+ · 0:19\.97 · tracks 18 and 23 · two crossings close together, counted while hidden/);
+  await screenshot(page, "15-queue-first", { fullPage: false });
+  await page.keyboard.press("r");
+  await page.keyboard.type("one walker counted twice");
+  await page.keyboard.press("Enter");
+  await countedWith(page, 1);
+  const seconds = (Date.now() - started) / 1000;
+  console.log(`queue walk-through: from Run to the corrected count in ${seconds.toFixed(1)} s (test steps, no looking)`);
+  await screenshot(page, "15-queue-rejected", { fullPage: false });
+
+  await showView(page, "Results");
+  const shown = await screenTotals(page);
+  assert.deepEqual(shown["east-west divide"], truth["east-west divide"], "the divide's counts are the true counts");
+  const row = await page.locator("#summary table tbody tr", { hasText: "east-west divide" }).locator("td").allInnerTexts();
+  assert.equal(row.at(-1), "1", "one crossing rejected, and the page says so");
+  assert.deepEqual(seen.errors, []);
+  await page.close();
+});

@@ -1,0 +1,50 @@
+// The work survives a reload: corrections and decisions made, the page reloaded (as after closing
+// the tab), the page says the work is kept and that tracking must run again; Run now, and the
+// corrections are applied to the new tracks: the report is byte for byte the one before the
+// reload, the Edits list and the decisions are as they were.
+import { test } from "node:test";
+import assert from "node:assert/strict";
+import { useBrowser, showView, screenshot } from "./harness.mjs";
+import { reviewDemo, chooseTrack, openTab, countedWith, pageReport } from "./review-helpers.mjs";
+
+const env = useBrowser();
+
+test("reload: the corrections and decisions come back and are applied when tracks are made again", async () => {
+  const { page, seen } = await reviewDemo(env);
+  await chooseTrack(page, 19);
+  await page.locator("#tracks-correct").getByRole("button", { name: "Delete this track (Tracks list)" }).click();
+  await page.locator("#tracks-correct").getByRole("button", { name: "Delete track", exact: true }).click();
+  await countedWith(page, 1);
+  await openTab(page, "Doubtful moments");
+  await page.locator("#clock").click();
+  await page.keyboard.press("n");
+  await page.keyboard.press("r");
+  await page.getByLabel("Why it is wrong").fill("one walker, counted twice");
+  await page.getByLabel("Why it is wrong").press("Enter");
+  await countedWith(page, 2);
+  await page.keyboard.press("n");
+  await page.keyboard.press("a");
+  const before = await pageReport(page);
+  await openTab(page, "Edits");
+  const editsBefore = await page.locator("#edit-list").innerText();
+  await openTab(page, "Doubtful moments");
+  const decided = await page.locator("#doubtful-list .decision").allInnerTexts();
+  assert.deepEqual(decided.sort(), ["\u2713 accepted"], "the rejected moment left the queue; the accepted one is marked");
+
+  await page.reload();
+  await page.waitForSelector("body[data-ready=true]", { timeout: 30000 });
+  const message = page.locator(".message[data-key=work-kept]");
+  assert.match(await message.innerText(), /Your 2 corrections and 2 review decisions are kept from last time\. Press Run to track again/);
+  await screenshot(page, "15-reloaded", { fullPage: false });
+  await message.getByRole("button", { name: "Run now" }).click();
+  await page.waitForFunction(() => /tracks in/.test(document.getElementById("run-status").textContent), null, { timeout: 60000 });
+  await countedWith(page, 2);
+  await showView(page, "Review");
+  assert.equal(await pageReport(page), before, "the same report as before the reload");
+  await openTab(page, "Edits");
+  assert.equal(await page.locator("#edit-list").innerText(), editsBefore);
+  await openTab(page, "Doubtful moments");
+  assert.deepEqual(await page.locator("#doubtful-list .decision").allInnerTexts(), decided);
+  assert.deepEqual(seen.errors, []);
+  await page.close();
+});

@@ -1,0 +1,130 @@
+// @ts-check
+// Corrections of the counts themselves: a counted crossing rejected (it is wrong: a double count, a
+// jitter), and a crossing the tool missed added by hand, on a line of the plan, in one of its
+// directions (named by its labels), for a class, at the frame shown. An added crossing sits where
+// the track in focus meets the line, when a track is in focus there; otherwise the core puts it in
+// the middle of the line's first segment.
+
+import { byId, clockText, el } from "./dom.js";
+import { withReason } from "./edits.js";
+import { countPoint } from "./tracks.js";
+
+/** @typedef {import("./store.js").PageStore} PageStore */
+/** @typedef {import("./results.js").CountEvent} CountEvent */
+/** @typedef {import("./geometry.js").Point} Point */
+
+/**
+ * The edit that rejects a counted crossing; null for what cannot be rejected (a zone's entry or
+ * exit, a crossing added by hand: Undo takes that back).
+ * @param {CountEvent | null} e
+ * @returns {import("./edits.js").RejectEdit | null}
+ */
+export function rejectEdit(e) {
+  if (!e || e.kind !== "screenline" || e.added) return null;
+  if (e.direction !== "forward" && e.direction !== "backward") return null;
+  return { edit: "reject_crossing", screenline: e.name, direction: e.direction, track: e.track, frame: e.frame };
+}
+
+export class AddCrossingForm {
+  /** @param {PageStore} store */
+  constructor(store) {
+    this.store = store;
+    this.form = byId("add-crossing-form", HTMLFormElement);
+    this.line = byId("add-line", HTMLSelectElement);
+    this.direction = byId("add-direction", HTMLSelectElement);
+    this.cls = byId("add-class", HTMLInputElement);
+    this.reason = byId("add-reason", HTMLInputElement);
+    this.at = byId("add-at", HTMLElement);
+    this.done = byId("add-done", HTMLElement);
+    this.line.addEventListener("change", () => this.offerDirections());
+    this.form.addEventListener("submit", (e) => { e.preventDefault(); this.add(); });
+    store.subscribe(["plan"], () => this.offerLines());
+    store.subscribe(["frame", "focus", "tracks"], () => this.showWhere());
+    this.offerLines();
+  }
+
+  /** The plan's lines; the one chosen stays chosen while it is there. */
+  offerLines() {
+    const kept = this.line.value;
+    const names = this.store.plan.screenlines.map((l) => l.name);
+    this.line.replaceChildren(...names.map((n) => el("option", { value: n, text: n })));
+    if (names.includes(kept)) this.line.value = kept;
+    this.offerDirections();
+  }
+
+  /** The chosen line's two directions, by their labels. */
+  offerDirections() {
+    const line = this.store.plan.screenlines.find((l) => l.name === this.line.value);
+    const kept = this.direction.value;
+    this.direction.replaceChildren(
+      el("option", { value: "forward", text: line && line.forward ? `${line.forward} (forward)` : "forward" }),
+      el("option", { value: "backward", text: line && line.backward ? `${line.backward} (backward)` : "backward" }),
+    );
+    if (kept) this.direction.value = kept;
+    this.showWhere();
+  }
+
+  /** The frame the crossing will be added at, and where on the line. */
+  showWhere() {
+    const f = this.store.frame;
+    const at = this.position();
+    const where = at ? `where track ${at.track} meets the line` : "in the middle of the line's first segment (choose a track first to place it where that track crosses)";
+    this.at.textContent = `At frame ${f} (${clockText((f - 1) / this.store.fps)}), the frame shown; ${where}.`;
+  }
+
+  /**
+   * Where the track in focus meets the chosen line at the frame shown: its count point, moved to the
+   * nearest point of the line. Null with no track in focus there.
+   * @returns {{x: number, y: number, track: number} | null}
+   */
+  position() {
+    const { focus, tracks, plan, frame } = this.store;
+    const line = plan.screenlines.find((l) => l.name === this.line.value);
+    if (!focus || !tracks || !line || line.points.length < 2) return null;
+    /** @type {{x: number, y: number, track: number} | null} */
+    let found = null;
+    tracks.forEachBox(frame, (id, x, y, w, h) => {
+      if (found || !focus.tracks.includes(id)) return;
+      const [px, py] = nearestOnLine(line.points, countPoint(x, y, w, h, plan.anchor));
+      found = { x: Math.round(px * 10) / 10, y: Math.round(py * 10) / 10, track: id };
+    });
+    return found;
+  }
+
+  add() {
+    const screenline = this.line.value;
+    const cls = this.cls.value.trim();
+    if (!screenline) return void (this.done.textContent = "The plan has no line to add a crossing to.");
+    if (!cls) return void (this.done.textContent = "Say what crossed: a class, such as pedestrian.");
+    const direction = this.direction.value === "backward" ? "backward" : "forward";
+    const at = this.position();
+    /** @type {import("./edits.js").AddEdit} */
+    const edit = { edit: "add_crossing", screenline, direction, class: cls, frame: this.store.frame };
+    if (at) Object.assign(edit, { x: at.x, y: at.y });
+    this.store.correctionMade(withReason(edit, this.reason.value));
+    this.reason.value = "";
+    this.done.textContent = `Added: ${screenline}, ${this.direction.selectedOptions[0].text}, a ${cls}, at frame ${edit.frame}. The counts include it.`;
+  }
+}
+
+/**
+ * The point of a polyline nearest to p.
+ * @param {Point[]} pts
+ * @param {Point} p
+ * @returns {Point}
+ */
+export function nearestOnLine(pts, p) {
+  let best = pts[0];
+  let bestD = Infinity;
+  for (let j = 0; j + 1 < pts.length; j++) {
+    const [a, b] = [pts[j], pts[j + 1]];
+    const [dx, dy] = [b[0] - a[0], b[1] - a[1]];
+    const len2 = dx * dx + dy * dy;
+    const t = len2 ? Math.max(0, Math.min(1, ((p[0] - a[0]) * dx + (p[1] - a[1]) * dy) / len2)) : 0;
+    /** @type {Point} */
+    const q = [a[0] + t * dx, a[1] + t * dy];
+    const d = Math.hypot(q[0] - p[0], q[1] - p[1]);
+    if (d < bestD) [best, bestD] = [q, d];
+  }
+  return best;
+}

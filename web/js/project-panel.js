@@ -1,0 +1,127 @@
+// @ts-check
+// Keeping a piece of work as a file: Save project writes the plan, the tracking method, the
+// corrections, the review decisions, the site's name and the fingerprints of the footage and
+// detections open (name, size, duration, SHA-256 of the first MiB), in the project file the core
+// reads and writes (docs/project.schema.json); Open project brings it all back. Work opened or kept
+// against other footage or detections than it was made with says so, in a message.
+
+import { byId, download, showValue } from "./dom.js";
+import { planForCore } from "./plan.js";
+
+/** @typedef {import("./store.js").PageStore} PageStore */
+/** @typedef {import("./core-client.js").CoreClient} CoreClient */
+/** @typedef {import("./messages.js").Messages} Messages */
+/** @typedef {import("./protocol.js").Project} Project */
+
+export class ProjectPanel {
+  /**
+   * @param {PageStore} store
+   * @param {CoreClient} client
+   * @param {Messages} messages
+   */
+  constructor(store, client, messages) {
+    this.store = store;
+    this.client = client;
+    this.messages = messages;
+    this.site = byId("site-name", HTMLInputElement);
+    this.projectName = byId("project-name", HTMLElement);
+    const input = byId("open-project", HTMLInputElement);
+    input.addEventListener("change", async () => {
+      const f = input.files && input.files[0];
+      if (f) this.open(await f.text(), f.name);
+      input.value = "";
+    });
+    byId("save-project", HTMLButtonElement).addEventListener("click", () => this.save());
+    this.site.addEventListener("change", () => store.siteNamed(this.site.value.trim()));
+    store.subscribe(["site"], () => showValue(this.site, store.work.site));
+    store.subscribe(["video"], () => this.fingerprintFootage());
+    store.subscribe(["detections"], () => this.fingerprintDetections());
+    store.subscribe(["prints"], () => this.check());
+    this.site.value = store.work.site;
+  }
+
+  /** The project as a plain object, as the core writes it. */
+  project() {
+    const { plan, settings, work, prints } = this.store;
+    /** @type {Record<string, unknown>} */
+    const p = {
+      plan: JSON.parse(planForCore(plan).json),
+      tracking: settings.method ? { method: settings.method } : {},
+      edits: work.edits,
+      review: [...work.marks].map(([key, decision]) => ({ key, decision })),
+    };
+    if (work.site) p.site = work.site;
+    if (work.extras.tallies) p.tallies = work.extras.tallies;
+    if (work.extras.correction) p.correction = work.extras.correction;
+    const footage = prints.footage || work.madeWith.footage;
+    const detections = prints.detections || work.madeWith.detections;
+    if (footage) p.footage = footage;
+    if (detections) p.detections = detections;
+    return p;
+  }
+
+  async save() {
+    try {
+      const text = await this.client.writeProject(this.project());
+      const stem = this.store.work.site ? this.store.work.site.replace(/[^\w.-]+/g, "-") : "throughline";
+      download(`${stem}-project.json`, text, "application/json");
+      this.messages.clear("project");
+    } catch (e) {
+      this.messages.say("project", "error", `The project could not be saved: ${/** @type {Error} */ (e).message}. Fix the plan (under Set up), then save again.`);
+    }
+  }
+
+  /**
+   * Opens a project file: its plan, method, corrections, decisions and site replace the page's.
+   * @param {string} text
+   * @param {string} name
+   */
+  async open(text, name) {
+    let project;
+    try {
+      project = await this.client.readProject(text);
+    } catch (e) {
+      this.messages.say("project", "error", `${name} could not be opened as a project: ${/** @type {Error} */ (e).message}`);
+      return;
+    }
+    this.messages.clear("project");
+    this.store.projectOpened(project, name);
+    this.projectName.textContent = name;
+    const n = project.edits.length;
+    this.messages.say("project", "ok", `${name} opened: its plan, ${n} correction${n === 1 ? "" : "s"} and ${project.review.length} review decision${project.review.length === 1 ? "" : "s"}.${this.store.tracks ? "" : " Press Run to track; the corrections are applied to the tracks."}`);
+    await this.check();
+  }
+
+  /** Fingerprints the footage open, once the video element has its length (or failed to play it). */
+  async fingerprintFootage() {
+    const footage = this.store.footage;
+    if (!footage) return;
+    const duration = this.store.video.playable ? this.store.video.duration : 0;
+    const print = await this.client.fingerprint(footage.name.replace(/^demo /, ""), footage.blob, Number.isFinite(duration) ? duration : 0);
+    if (this.store.footage === footage) this.store.fileFingerprinted("footage", print);
+  }
+
+  /** Fingerprints the detections file open (none for detections found in the footage here). */
+  async fingerprintDetections() {
+    const d = this.store.detections;
+    if (!d) return;
+    const print = d.name ? await this.client.fingerprint(d.name.replace(/^demo /, ""), d.source, 0) : null;
+    if (this.store.detections === d) this.store.fileFingerprinted("detections", print);
+  }
+
+  /** Says so when the footage or detections open are not those the work was made with. */
+  async check() {
+    const { madeWith } = this.store.work;
+    const opened = this.store.prints;
+    const why = [];
+    for (const kind of /** @type {const} */ (["footage", "detections"])) {
+      const recorded = madeWith[kind];
+      const now = opened[kind];
+      if (!recorded || !now) continue;
+      const differs = await this.client.fingerprintDiffers(recorded, now);
+      if (differs) why.push(`${differs}.`);
+    }
+    if (!why.length) return this.messages.clear("project-files");
+    this.messages.say("project-files", "warn", `This work was made with other files. ${why.join(" ")} Its corrections name tracks of those files, so they may not apply here: open the footage and detections it was made with, or check each correction under Review, Edits.`);
+  }
+}
