@@ -41,6 +41,54 @@ fn gallery_distance(gallery: &std::collections::VecDeque<Vec<f32>>, e: &[f32]) -
         .fold(f64::INFINITY, f64::min)
 }
 
+/// Appearance costs between one cascade level's tracks and the detections still unmatched, for the
+/// pairs inside each track's motion gate (in a crowd, only the `MAX_CANDIDATES` nearest by motion).
+fn appearance_edges(
+    tracker: &Tracker,
+    dets: &[Detection],
+    tracks: &[usize],
+    unmatched: &[usize],
+    usable: &[usize],
+    embeddings: &[Option<Vec<f32>>],
+) -> Vec<Edge> {
+    let c = &tracker.config;
+    let mut edges = Vec::new();
+    let mut near: Vec<(f64, usize)> = Vec::new();
+    for (r, &ti) in tracks.iter().enumerate() {
+        let t = &tracker.live[ti];
+        if t.gallery.is_empty() {
+            continue;
+        }
+        let Some(gate) = tracker.motion.gate(&t.kf, c.max_mahalanobis) else {
+            continue;
+        };
+        near.clear();
+        for (k, &d) in unmatched.iter().enumerate() {
+            if embeddings[d].is_none() {
+                continue;
+            }
+            if let Some(m) = gate.distance_sq(&dets[usable[d]].bbox) {
+                near.push((m, k));
+            }
+        }
+        if near.len() > MAX_CANDIDATES {
+            near.sort_by(|a, b| a.0.total_cmp(&b.0).then(a.1.cmp(&b.1)));
+            near.truncate(MAX_CANDIDATES);
+            near.sort_by_key(|&(_, k)| k);
+        }
+        for &(_, k) in &near {
+            if let Some(e) = &embeddings[unmatched[k]] {
+                edges.push(Edge {
+                    row: r,
+                    col: k,
+                    cost: gallery_distance(&t.gallery, e),
+                });
+            }
+        }
+    }
+    edges
+}
+
 /// DeepSORT: a matching cascade over confirmed tracks, most recently seen first, on appearance gated
 /// by motion; then IoU for tentative tracks and tracks missed for one frame only.
 fn associate(tracker: &Tracker, dets: &[Detection]) -> Association {
@@ -70,41 +118,7 @@ fn associate(tracker: &Tracker, dets: &[Detection]) -> Association {
         for &t in &tracks {
             seen_by_cascade[t] = true;
         }
-        let mut edges = Vec::new();
-        let mut near: Vec<(f64, usize)> = Vec::new();
-        for (r, &ti) in tracks.iter().enumerate() {
-            let t = &tracker.live[ti];
-            if t.gallery.is_empty() {
-                continue;
-            }
-            let Some(gate) = tracker.motion.gate(&t.kf, c.max_mahalanobis) else {
-                continue;
-            };
-            near.clear();
-            for (k, &d) in unmatched.iter().enumerate() {
-                if embeddings[d].is_none() {
-                    continue;
-                }
-                if let Some(m) = gate.distance_sq(&dets[usable[d]].bbox) {
-                    near.push((m, k));
-                }
-            }
-            // In a crowd, only the nearest by motion are compared by appearance.
-            if near.len() > MAX_CANDIDATES {
-                near.sort_by(|a, b| a.0.total_cmp(&b.0).then(a.1.cmp(&b.1)));
-                near.truncate(MAX_CANDIDATES);
-                near.sort_by_key(|&(_, k)| k);
-            }
-            for &(_, k) in &near {
-                if let Some(e) = &embeddings[unmatched[k]] {
-                    edges.push(Edge {
-                        row: r,
-                        col: k,
-                        cost: gallery_distance(&t.gallery, e),
-                    });
-                }
-            }
-        }
+        let edges = appearance_edges(tracker, dets, &tracks, &unmatched, &usable, &embeddings);
         let found = assign_edges(tracks.len(), unmatched.len(), &edges, c.max_cosine_distance);
         tracker.note_crowd(found.greedy);
         let pairs = found.pairs;
