@@ -2,8 +2,8 @@
 // (the first moment: two crossings of the east-west divide close together, the second counted
 // while its walker was hidden), look, R, say why, Enter. That was a double count: the divide's
 // counts are then the simulator's true counts (demo-site/demo/truth_report.json, made from the
-// scene's own truth, not from the tracker). The page's queue leads with the moment
-// `throughline review` lists first. The time the steps take is printed (not asserted: speed is
+// scene's own truth, not from the tracker). The page's queue holds as many moments as
+// `throughline review --picture 640x360` (the demo footage's size) and leads with the one it lists first. The time the steps take is printed (not asserted: speed is
 // measured, not tested); README's walk-through quotes it.
 import { test } from "node:test";
 import assert from "node:assert/strict";
@@ -15,7 +15,7 @@ import { cli, DEMO, countedWith, screenTotals, reportTotals } from "./review-hel
 const env = useBrowser();
 
 test("the queue leads to the demo's double count; rejecting it gives the line's true counts", async () => {
-  const cliQueue = JSON.parse(execFileSync(cli, ["review", DEMO.detections, "--plan", DEMO.plan, "--json", "-q"]).toString());
+  const cliQueue = JSON.parse(execFileSync(cli, ["review", DEMO.detections, "--plan", DEMO.plan, "--picture", "640x360", "--json", "-q"]).toString());
   const truth = reportTotals(readFileSync(demo("truth_report.json"), "utf8"));
   const { page, seen } = await openPage(env, { viewport: LAPTOP });
   const started = Date.now();
@@ -26,6 +26,8 @@ test("the queue leads to the demo's double count; rejecting it gives the line's 
   await showView(page, "Review");
   const first = page.locator("#doubtful-list li").first();
   assert.match(await first.innerText(), new RegExp(`${cliQueue[0].why[0].replace(/[.*+?^${}()|[\]\\`]/g, "\\$&")}`), "the first moment is throughline review's first");
+  const listed = await page.locator("#doubtful-list li").count();
+  assert.equal(listed, cliQueue.length, "the page lists as many moments as throughline review --picture 640x360");
   assert.match(await page.getByRole("tab", { name: /Doubtful moments/ }).getAttribute("aria-selected"), /true/, "Review opens on the queue");
   await page.keyboard.press("n");
   await page.waitForFunction(() => document.getElementById("clock").textContent.startsWith("frame 501 "));

@@ -175,3 +175,45 @@ fn the_review_queue_leads_to_the_demos_double_count_and_rejecting_it_gives_the_t
     };
     assert_eq!(line(&fixed), line(&truth));
 }
+
+#[test]
+fn the_picture_size_comes_from_picture_or_from_the_project_and_a_bad_one_is_refused() {
+    let queue = |extra: &[&str]| {
+        let mut args = vec!["review", "--json", "-q", "--plan", "PLAN", "DETECTIONS"];
+        let (plan, dets) = (demo("plan.json"), demo("detections.csv"));
+        args[4] = &plan;
+        args[5] = &dets;
+        args.extend_from_slice(extra);
+        let o = throughline(&args);
+        assert!(o.status.success(), "{}", stderr(&o));
+        serde_json::from_slice::<serde_json::Value>(&o.stdout).unwrap()
+    };
+    let given = queue(&["--picture", "640x360"]);
+    // A project saved by the page records the footage's size with its fingerprint.
+    let dir = scratch("picture");
+    let plan: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(demo("plan.json")).unwrap()).unwrap();
+    let project = serde_json::json!({
+        "format": "throughline-project", "version": 1, "generator": "test",
+        "plan": plan, "tracking": {}, "edits": [], "review": [],
+        "footage": {"name": "footage.webm", "size": 1, "head_sha256": "00", "width": 640, "height": 360}
+    });
+    let file = write(&dir, "project.json", project.to_string().as_bytes());
+    assert_eq!(queue(&["--edits", &file]), given);
+    assert_ne!(
+        queue(&[]),
+        given,
+        "the boxes' extent is not the picture on the demo"
+    );
+
+    let o = throughline(&[
+        "review",
+        &demo("detections.csv"),
+        "--plan",
+        &demo("plan.json"),
+        "--picture",
+        "640",
+    ]);
+    assert_eq!(o.status.code(), Some(2));
+    assert!(stderr(&o).contains("WIDTHxHEIGHT"), "{}", stderr(&o));
+}

@@ -27,6 +27,11 @@ pub struct Args {
     /// Corrections made so far: an edits file or a project file saved by the page.
     #[arg(long, value_name = "FILE")]
     edits: Option<PathBuf>,
+    /// The picture's size in pixels, as WIDTHxHEIGHT (e.g. 1280x720), to tell tracks that appear at
+    /// the picture's edge from those that appear near a line. Default: the size the project file
+    /// recorded for the footage, else the extent of the boxes.
+    #[arg(long, value_name = "WxH", value_parser = picture_size)]
+    picture: Option<(f64, f64)>,
     /// Print one JSON array instead of a list.
     #[arg(long)]
     json: bool,
@@ -34,12 +39,15 @@ pub struct Args {
 
 pub fn run(args: Args) -> Result<(), Failure> {
     let plan = read_plan(&args.plan)?;
-    let (work, _project) = read_work(args.edits.as_deref())?;
+    let (work, project) = read_work(args.edits.as_deref())?;
+    let recorded = project
+        .and_then(|p| p.footage)
+        .and_then(|f| Some((f64::from(f.width?), f64::from(f.height?))));
     let tracks = track_file(&args.detections, &args.tracking, &mut Timer::new())?;
     let report = pipeline::count(&tracks, &plan, Some(&tracks.config), &work)
         .map_err(|e| bad_input(&args.plan, e))?;
     let shown = pipeline::correct_tracks(&tracks, &work.edits).0;
-    let queue = review::doubts(&shown, &plan, &report, None);
+    let queue = review::doubts(&shown, &plan, &report, args.picture.or(recorded));
     if args.json {
         println!(
             "{}",
@@ -57,4 +65,17 @@ pub fn run(args: Args) -> Result<(), Failure> {
         }
     }
     Ok(())
+}
+
+/// `--picture WxH`: two whole numbers of pixels from 1 to 100,000.
+fn picture_size(text: &str) -> Result<(f64, f64), String> {
+    let bad =
+        || format!("'{text}' is not a picture size: write WIDTHxHEIGHT in pixels, e.g. 1280x720");
+    let (w, h) = text.split_once(['x', 'X']).ok_or_else(bad)?;
+    let w: u32 = w.trim().parse().map_err(|_| bad())?;
+    let h: u32 = h.trim().parse().map_err(|_| bad())?;
+    if !(1..=100_000).contains(&w) || !(1..=100_000).contains(&h) {
+        return Err(bad());
+    }
+    Ok((f64::from(w), f64::from(h)))
 }
