@@ -55,7 +55,18 @@ enum Command {
     Score(score::Args),
 }
 
+/// A closed pipe on standard output (`throughline track … | head`) ends the program quietly, as it
+/// ends any filter, instead of a panic on the next print.
+fn quiet_on_closed_pipe() {
+    #[cfg(unix)]
+    // SAFETY: restoring the default action of one signal, before any thread is started.
+    unsafe {
+        libc::signal(libc::SIGPIPE, libc::SIG_DFL);
+    }
+}
+
 fn main() -> ExitCode {
+    quiet_on_closed_pipe();
     let result = match Cli::parse().command {
         Command::Track(args) => track::run(args),
         Command::Run(args) => run::run(args),

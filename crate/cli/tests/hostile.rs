@@ -161,3 +161,29 @@ fn a_frame_where_every_box_overlaps_every_other_costs_bounded_time() {
         stderr(&o)
     );
 }
+
+#[test]
+fn a_reader_that_goes_away_ends_the_program_quietly() {
+    // `throughline track … | head -c 10`: the pipe closes after the first bytes. Filters end
+    // quietly then (common practice on Unix: the default action of SIGPIPE), never with a panic.
+    use std::io::Read;
+    use std::process::{Command, Stdio};
+    let mut child = Command::new(env!("CARGO_BIN_EXE_throughline"))
+        .args(["track", &demo("detections.txt"), "-q"])
+        .stdout(Stdio::piped())
+        .stderr(Stdio::piped())
+        .spawn()
+        .expect("the binary runs");
+    let mut first = [0u8; 10];
+    child
+        .stdout
+        .take()
+        .unwrap()
+        .read_exact(&mut first)
+        .expect("the first bytes");
+    // The reader is gone (dropped above); the rest of the output has nowhere to go.
+    let o = child.wait_with_output().expect("the program ends");
+    let err = stderr(&o);
+    assert!(!err.contains("panicked"), "{err}");
+    assert_ne!(o.status.code(), Some(101), "{err}");
+}
