@@ -66,13 +66,18 @@ pub fn looks_like_json_object(bytes: &[u8]) -> bool {
     bytes.iter().find(|b| !b.is_ascii_whitespace()) == Some(&b'{')
 }
 
-/// Tracks as benchmark text for a `.txt` path, otherwise as the JSON document.
-pub fn tracks_text(tracks: &Tracks, path: Option<&Path>) -> String {
+/// Writes tracks as benchmark text for a `.txt` path, otherwise as the JSON document, a piece at
+/// a time.
+pub fn write_tracks(
+    tracks: &Tracks,
+    path: Option<&Path>,
+    mut out: &mut dyn std::io::Write,
+) -> std::io::Result<()> {
     match path {
         Some(p) if p.extension().is_some_and(|e| e.eq_ignore_ascii_case("txt")) => {
-            tracks_io::to_benchmark_text(tracks)
+            tracks_io::write_benchmark_text(tracks, &mut out)
         }
-        _ => tracks_io::to_json(tracks),
+        _ => tracks_io::write_json(tracks, &mut out),
     }
 }
 

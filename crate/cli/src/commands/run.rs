@@ -4,7 +4,7 @@ use super::count::{stage_report, summarise, ReportPaths};
 use super::detect::detect_footage;
 use super::track::{track_detections, track_file, TrackingArgs};
 use crate::files::{
-    bad_input, bad_usage, read_plan, read_settings, read_work, tracks_text, Failure,
+    bad_input, bad_usage, read_plan, read_settings, read_work, write_tracks, Failure,
 };
 use crate::handin;
 use crate::output::{check_paths, Outputs};
@@ -105,12 +105,14 @@ pub fn run(args: Args) -> Result<(), Failure> {
     let mut files = Outputs::new();
     if let Some(p) = &args.tracks {
         // The tracks as counted: after the edits on tracks, when there are edits.
-        let text = if work.edits.is_empty() {
-            tracks_text(&tracks, Some(p))
+        let corrected;
+        let shown = if work.edits.is_empty() {
+            &tracks
         } else {
-            tracks_text(&pipeline::correct_tracks(&tracks, &work.edits).0, Some(p))
+            corrected = pipeline::correct_tracks(&tracks, &work.edits).0;
+            &corrected
         };
-        files.write(p, &text)?;
+        files.write_with(p, |w| write_tracks(shown, Some(p), w))?;
     }
     let paths = ReportPaths {
         report: args.output.as_deref(),

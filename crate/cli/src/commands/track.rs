@@ -1,6 +1,6 @@
 //! `throughline track`: link per-frame detections into tracks.
 
-use crate::files::{bad_input, read_file, read_settings, tracks_text, Failure};
+use crate::files::{bad_input, read_file, read_settings, write_tracks, Failure};
 use crate::output::{check_paths, Outputs};
 use crate::progress::{self, Timer};
 use std::path::{Path, PathBuf};
@@ -49,14 +49,23 @@ pub fn run(args: Args) -> Result<(), Failure> {
         let output = args.output.as_deref();
         check_paths(&[Some(path), args.tracking.config.as_deref()], &[output])?;
         let tracks = track_file(path, &args.tracking, timer)?;
-        let text = tracks_text(&tracks, output);
         match output {
             Some(p) => {
                 let mut files = Outputs::new();
-                files.write(p, &text)?;
+                files.write_with(p, |w| write_tracks(&tracks, output, w))?;
                 files.commit()?;
             }
-            None => println!("{text}"),
+            None => {
+                use std::io::Write;
+                let mut out = std::io::BufWriter::new(std::io::stdout().lock());
+                write_tracks(&tracks, None, &mut out)
+                    .and_then(|()| writeln!(out))
+                    .and_then(|()| out.flush())
+                    .map_err(|e| Failure {
+                        message: format!("cannot write the tracks to standard output: {e}"),
+                        code: 1,
+                    })?;
+            }
         }
         timer.lap("write");
         if !args.tracking.quiet {

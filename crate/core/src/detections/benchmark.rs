@@ -16,7 +16,7 @@ pub(super) fn read(text: &str) -> Result<ReadReport, Error> {
     let mut class_index = HashMap::new();
     let mut warnings = Warnings::new();
     let mut warned_score = false;
-    out.rows.reserve(text.len() / 40);
+    out.rows.reserve(super::line_count(text));
     for (i, raw) in text.lines().enumerate() {
         let line = i + 1;
         let l = raw.trim();

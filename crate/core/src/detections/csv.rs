@@ -90,6 +90,7 @@ pub(super) fn read(text: &str) -> Result<ReadReport, Error> {
     let mut warnings = Warnings::new();
     let mut warned_score = false;
     let mut columns: Option<CsvColumns> = None;
+    out.rows.reserve(super::line_count(text));
     let mut vector = Vec::new();
     for (i, raw) in text.lines().enumerate() {
         let line = i + 1;

@@ -250,6 +250,12 @@ pub(crate) fn note_score(score: f64, line: usize, warned: &mut bool, warnings: &
     }
 }
 
+/// Lines in a text: room for one row each, so a large file's rows are held without slack (a
+/// bound from the file's size, not from a number written in it).
+pub(crate) fn line_count(text: &str) -> usize {
+    text.bytes().filter(|&b| b == b'\n').count() + 1
+}
+
 pub(crate) fn finish(
     mut detections: Detections,
     format: DetectionFormat,
@@ -262,6 +268,7 @@ pub(crate) fn finish(
         ));
     }
     detections.sort_by_frame();
+    detections.rows.shrink_to_fit();
     Ok(ReadReport {
         detections,
         format,

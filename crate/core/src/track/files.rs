@@ -29,6 +29,15 @@ fn round(v: f64, places: i32) -> f64 {
 
 /// Writes tracks in the benchmark text format.
 pub fn to_benchmark_text(tracks: &Tracks) -> String {
+    let mut out = Vec::new();
+    // Writing into memory cannot fail, and every piece written is ASCII.
+    let _ = write_benchmark_text(tracks, &mut out);
+    String::from_utf8(out).unwrap_or_default()
+}
+
+/// Writes tracks in the benchmark text format to `out`, a piece at a time: memory beyond the
+/// tracks is one pointer per box (for the order) and a small buffer, however long the output.
+pub fn write_benchmark_text(tracks: &Tracks, out: &mut impl std::io::Write) -> std::io::Result<()> {
     let mut rows: Vec<(u32, u32, &TrackBox)> = tracks
         .tracks
         .iter()
@@ -36,21 +45,25 @@ pub fn to_benchmark_text(tracks: &Tracks) -> String {
         .collect();
     // (frame, id) pairs are unique, so an unstable sort gives the same order.
     rows.sort_unstable_by_key(|&(f, id, _)| (f, id));
-    // Built as bytes and checked once at the end: every piece written is ASCII.
-    let mut out: Vec<u8> = Vec::with_capacity(rows.len() * 48);
+    const PIECE: usize = 1 << 16;
+    let mut buf: Vec<u8> = Vec::with_capacity(PIECE + 128);
     for (frame, id, b) in rows {
-        push_digits(&mut out, u64::from(frame), 0);
-        out.push(b',');
-        push_digits(&mut out, u64::from(id), 0);
-        out.push(b',');
+        push_digits(&mut buf, u64::from(frame), 0);
+        buf.push(b',');
+        push_digits(&mut buf, u64::from(id), 0);
+        buf.push(b',');
         for v in [b.bbox.x, b.bbox.y, b.bbox.w, b.bbox.h] {
-            write_decimal(&mut out, v, 2);
-            out.push(b',');
+            write_decimal(&mut buf, v, 2);
+            buf.push(b',');
         }
-        write_decimal(&mut out, b.score, 4);
-        out.extend_from_slice(b",-1,-1,-1\n");
+        write_decimal(&mut buf, b.score, 4);
+        buf.extend_from_slice(b",-1,-1,-1\n");
+        if buf.len() >= PIECE {
+            out.write_all(&buf)?;
+            buf.clear();
+        }
     }
-    String::from_utf8(out).unwrap_or_default()
+    out.write_all(&buf)
 }
 
 /// Writes `v` rounded to `places` decimals, without trailing zeros (`12.5`, `3`, `-0.25`): the same
@@ -147,44 +160,80 @@ struct TrackEntry {
 
 const BOX_LAYOUT: [&str; 7] = ["frame", "x", "y", "w", "h", "score", "observed"];
 
-/// Writes the JSON tracks document (pretty-printed at the top level, one box per array).
-pub fn to_json(tracks: &Tracks) -> String {
-    let doc = TracksDocument {
-        format: TRACKS_FORMAT.into(),
+/// The document as written: the same fields as [`TracksDocument`], borrowing the boxes.
+#[derive(Serialize)]
+struct TracksOut<'a> {
+    format: &'static str,
+    version: u32,
+    generator: String,
+    settings: &'a TrackerConfig,
+    frame_count: u32,
+    box_layout: [&'static str; 7],
+    tracks: Vec<TrackOut<'a>>,
+}
+
+#[derive(Serialize)]
+struct TrackOut<'a> {
+    id: u32,
+    class: &'a Option<String>,
+    mean_score: f64,
+    first_frame: u32,
+    last_frame: u32,
+    observed_boxes: usize,
+    boxes: BoxesOut<'a>,
+}
+
+/// A track's boxes as `[frame, x, y, w, h, score, observed]` arrays, rounded as they are read back.
+struct BoxesOut<'a>(&'a [TrackBox]);
+
+impl Serialize for BoxesOut<'_> {
+    fn serialize<S: serde::Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
+        s.collect_seq(self.0.iter().map(|b| {
+            (
+                b.frame,
+                round(b.bbox.x, 2),
+                round(b.bbox.y, 2),
+                round(b.bbox.w, 2),
+                round(b.bbox.h, 2),
+                round(b.score, 4),
+                u8::from(b.observed),
+            )
+        }))
+    }
+}
+
+fn document(tracks: &Tracks) -> TracksOut<'_> {
+    TracksOut {
+        format: TRACKS_FORMAT,
         version: TRACKS_VERSION,
         generator: format!("throughline {}", crate::VERSION),
-        settings: tracks.config.clone(),
+        settings: &tracks.config,
         frame_count: tracks.frame_count,
-        box_layout: BOX_LAYOUT.iter().map(|s| s.to_string()).collect(),
+        box_layout: BOX_LAYOUT,
         tracks: tracks
             .tracks
             .iter()
-            .map(|t| TrackEntry {
+            .map(|t| TrackOut {
                 id: t.id,
-                class: t.class.clone(),
+                class: &t.class,
                 mean_score: round(t.mean_score, 4),
                 first_frame: t.first_frame(),
                 last_frame: t.last_frame(),
                 observed_boxes: t.boxes.iter().filter(|b| b.observed).count(),
-                boxes: t
-                    .boxes
-                    .iter()
-                    .map(|b| {
-                        (
-                            b.frame,
-                            round(b.bbox.x, 2),
-                            round(b.bbox.y, 2),
-                            round(b.bbox.w, 2),
-                            round(b.bbox.h, 2),
-                            round(b.score, 4),
-                            u8::from(b.observed),
-                        )
-                    })
-                    .collect(),
+                boxes: BoxesOut(&t.boxes),
             })
             .collect(),
-    };
-    serde_json::to_string(&doc).unwrap_or_default()
+    }
+}
+
+/// Writes the JSON tracks document (pretty-printed at the top level, one box per array).
+pub fn to_json(tracks: &Tracks) -> String {
+    serde_json::to_string(&document(tracks)).unwrap_or_default()
+}
+
+/// Writes the JSON tracks document to `out` as it is made, without holding its text.
+pub fn write_json(tracks: &Tracks, out: &mut impl std::io::Write) -> std::io::Result<()> {
+    serde_json::to_writer(out, &document(tracks)).map_err(std::io::Error::other)
 }
 
 /// Reads a JSON tracks document written by [`to_json`].

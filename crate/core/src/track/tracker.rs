@@ -276,6 +276,8 @@ fn finish(t: LiveTrack, detections: &Detections) -> Track {
     while boxes.last().is_some_and(|b| !b.observed) {
         boxes.pop();
     }
+    // A finished track's boxes are kept to the end of the run: without the growth slack.
+    boxes.shrink_to_fit();
     let observed = boxes.iter().filter(|b| b.observed).count().max(1);
     // Most votes wins; among equals, the class that appears first in the file (lowest index).
     let mut votes = t.class_votes;
