@@ -51,3 +51,19 @@ pub const MAX_CANDIDATES: usize = 32;
 /// every coasting frame adds a predicted box, so these bound a track's memory.
 pub const MAX_AGE_FRAMES: u32 = 10_000;
 pub const MAX_GALLERY: u32 = 10_000;
+
+/// Coded frames one WebM or MP4 file may hold: two days at 25 frames a second, 23 hours at 60.
+/// The page keeps a small record per frame (about 32 bytes), so this bounds that list.
+pub const MAX_FOOTAGE_FRAMES: usize = 5_000_000;
+
+/// Bytes of one coded frame (an 8K key frame is a few MB).
+pub const MAX_CODED_FRAME_BYTES: u64 = 64 << 20;
+
+/// Bytes of a container's header read whole: an MP4 `moov` or `moof` box, a WebM track list or
+/// block group. A movie header holding five million frames' tables is about 80 MB.
+pub const MAX_CONTAINER_HEADER_BYTES: u64 = 128 << 20;
+
+/// Boxes (MP4) or elements (WebM) stepped over in one file, and how deep boxes may nest: a file
+/// cannot make the reader step for ever, however its sizes are set.
+pub const MAX_CONTAINER_ELEMENTS: usize = 20_000_000;
+pub const MAX_BOX_DEPTH: usize = 16;

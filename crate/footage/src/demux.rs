@@ -8,7 +8,11 @@
 
 use std::io::{Read, Seek, SeekFrom};
 
-use matroska_demuxer::{Frame, MatroskaFile, TrackType};
+use throughline_core::limits::MAX_CODED_FRAME_BYTES;
+
+use crate::bytes::{io_message, read_up_to, seek_to};
+use crate::mp4::{read_movie, Sample};
+use crate::webm::WebM;
 
 /// What the video decoder must be told before the first frame.
 #[derive(Debug, Clone, PartialEq)]
@@ -36,19 +40,20 @@ pub struct Chunk {
 }
 
 /// Reads the video track of a WebM or MP4 file.
-pub enum Demuxer<R: Read + Seek> {
+pub struct Demuxer<R: Read + Seek> {
+    reader: R,
+    kind: Kind,
+}
+
+enum Kind {
     WebM {
-        file: Box<MatroskaFile<R>>,
-        track: u64,
-        /// Nanoseconds per unit of the file's timestamps.
-        scale_ns: u64,
+        state: WebM,
         /// The first frame, read ahead while opening (the VP9 profile is in its header).
         pending: Option<Chunk>,
     },
     Mp4 {
-        reader: R,
-        samples: Vec<re_mp4::Sample>,
-        timescale: u64,
+        samples: Vec<Sample>,
+        timescale: u32,
         next: usize,
         /// The file's size: a frame said to reach past it is refused before anything is allocated.
         size: u64,
@@ -63,13 +68,25 @@ impl<R: Read + Seek> Demuxer<R> {
     pub fn open(mut reader: R, size: u64) -> Result<(Self, VideoTrack), DemuxError> {
         let mut head = [0u8; 12];
         let n = read_up_to(&mut reader, &mut head).map_err(|e| format!("cannot read: {e}"))?;
-        reader
-            .seek(SeekFrom::Start(0))
-            .map_err(|e| format!("cannot read: {e}"))?;
+        seek_to(&mut reader, 0)?;
         if n >= 4 && head[..4] == [0x1A, 0x45, 0xDF, 0xA3] {
-            open_webm(reader)
+            let (state, info, first) =
+                WebM::open(&mut reader).map_err(|e| format!("not a readable WebM: {e}"))?;
+            let kind = Kind::WebM {
+                state,
+                pending: Some(first),
+            };
+            Ok((Demuxer { reader, kind }, info))
         } else if n >= 8 && &head[4..8] == b"ftyp" {
-            open_mp4(reader, size)
+            let movie =
+                read_movie(&mut reader, size).map_err(|e| format!("not a readable MP4: {e}"))?;
+            let kind = Kind::Mp4 {
+                samples: movie.samples,
+                timescale: movie.timescale,
+                next: 0,
+                size,
+            };
+            Ok((Demuxer { reader, kind }, movie.info))
         } else {
             Err("neither WebM nor MP4 (the page reads those two itself)".into())
         }
@@ -77,179 +94,64 @@ impl<R: Read + Seek> Demuxer<R> {
 
     /// The next coded frame of the video track in file order, `None` at the end.
     pub fn next_chunk(&mut self) -> Result<Option<Chunk>, DemuxError> {
-        match self {
-            Demuxer::WebM {
-                file,
-                track,
-                scale_ns,
-                pending,
-            } => match pending.take() {
+        match &mut self.kind {
+            Kind::WebM { state, pending } => match pending.take() {
                 Some(first) => Ok(Some(first)),
-                None => next_webm_frame(file, *track, *scale_ns, false),
+                None => state
+                    .next_frame(&mut self.reader, false)
+                    .map_err(|e| format!("the WebM is damaged after its last good frame: {e}")),
             },
-            Demuxer::Mp4 {
-                reader,
+            Kind::Mp4 {
                 samples,
                 timescale,
                 next,
                 size,
             } => {
-                let Some(sample) = samples.get(*next) else {
+                let Some(&sample) = samples.get(*next) else {
                     return Ok(None);
                 };
                 *next += 1;
-                let broken = |e: std::io::Error| {
-                    format!(
-                        "frame {} lies outside the file ({e}); is it cut short?",
-                        *next
-                    )
-                };
-                if sample.offset.saturating_add(sample.size) > *size {
+                let n = *next;
+                let end = sample.offset.saturating_add(u64::from(sample.size));
+                if end > *size {
+                    return Err(format!("frame {n} lies outside the file; is it cut short?"));
+                }
+                if u64::from(sample.size) > MAX_CODED_FRAME_BYTES {
                     return Err(format!(
-                        "frame {} lies outside the file; is it cut short?",
-                        *next
+                        "frame {n} is larger than {} MB (damaged?)",
+                        MAX_CODED_FRAME_BYTES >> 20
                     ));
                 }
-                reader
+                let broken = |e: std::io::Error| {
+                    format!(
+                        "frame {n} lies outside the file ({}); is it cut short?",
+                        io_message(e)
+                    )
+                };
+                self.reader
                     .seek(SeekFrom::Start(sample.offset))
                     .map_err(broken)?;
-                let len = usize::try_from(sample.size).map_err(|e| e.to_string())?;
-                let mut data = vec![0u8; len];
-                reader.read_exact(&mut data).map_err(broken)?;
+                let mut data = vec![0u8; sample.size as usize];
+                self.reader.read_exact(&mut data).map_err(broken)?;
                 Ok(Some(Chunk {
                     data,
-                    timestamp_us: to_micros(sample.composition_timestamp, *timescale),
-                    key: sample.is_sync,
+                    timestamp_us: to_micros(sample.time, *timescale),
+                    key: sample.key,
                 }))
             }
         }
     }
 }
 
-fn read_up_to(reader: &mut impl Read, buf: &mut [u8]) -> std::io::Result<usize> {
-    let mut filled = 0;
-    while filled < buf.len() {
-        match reader.read(&mut buf[filled..])? {
-            0 => break,
-            n => filled += n,
-        }
-    }
-    Ok(filled)
-}
-
-/// The demuxer's message, with its input errors spelt out (they print as "None" otherwise).
-fn webm_error(e: matroska_demuxer::DemuxError) -> String {
-    match e {
-        matroska_demuxer::DemuxError::IoError(io)
-            if io.kind() == std::io::ErrorKind::UnexpectedEof =>
-        {
-            "the file ends early (cut short?)".into()
-        }
-        matroska_demuxer::DemuxError::IoError(io) => io.to_string(),
-        other => other.to_string(),
-    }
-}
-
-fn to_micros(time: i64, timescale: u64) -> i64 {
+fn to_micros(time: i64, timescale: u32) -> i64 {
     let scale = i128::from(timescale.max(1));
-    (i128::from(time) * 1_000_000 / scale) as i64
-}
-
-fn open_webm<R: Read + Seek>(reader: R) -> Result<(Demuxer<R>, VideoTrack), DemuxError> {
-    let file = MatroskaFile::open(reader)
-        .map_err(|e| format!("not a readable WebM: {}", webm_error(e)))?;
-    let entry = file
-        .tracks()
-        .iter()
-        .find(|t| t.track_type() == TrackType::Video)
-        .ok_or("the WebM holds no video track")?;
-    let video = entry.video().ok_or("the WebM's video track has no size")?;
-    let (coded_width, coded_height) = (
-        u32::try_from(video.pixel_width().get()).map_err(|e| e.to_string())?,
-        u32::try_from(video.pixel_height().get()).map_err(|e| e.to_string())?,
-    );
-    let codec_id = entry.codec_id().to_string();
-    let private = entry.codec_private().map(<[u8]>::to_vec);
-    let track = entry.track_number().get();
-    let scale_ns = file.info().timestamp_scale().get();
-    let mut file = Box::new(file);
-    let first = next_webm_frame(&mut file, track, scale_ns, true)?
-        .ok_or("the WebM's video track has no frames")?;
-    let (codec, description) = match codec_id.as_str() {
-        "V_VP8" => ("vp8".to_string(), None),
-        "V_VP9" => (vp9_codec(&first.data), None),
-        "V_AV1" => (
-            private
-                .as_deref()
-                .and_then(av1_codec)
-                .ok_or("the AV1 track has no usable configuration record")?,
-            private,
-        ),
-        "V_MPEG4/ISO/AVC" => (
-            private
-                .as_deref()
-                .and_then(avc_codec)
-                .ok_or("the H.264 track has no usable configuration record")?,
-            private,
-        ),
-        other => {
-            return Err(format!(
-                "its video codec {other} is not one the page decodes"
-            ))
-        }
-    };
-    let info = VideoTrack {
-        container: "webm",
-        codec,
-        description,
-        coded_width,
-        coded_height,
-        frames: None,
-    };
-    let demuxer = Demuxer::WebM {
-        file,
-        track,
-        scale_ns,
-        pending: Some(first),
-    };
-    Ok((demuxer, info))
-}
-
-/// The next frame of `track`, skipping other tracks' frames and frames never shown. A block group
-/// does not say whether it is a key frame; the first frame always is.
-fn next_webm_frame<R: Read + Seek>(
-    file: &mut MatroskaFile<R>,
-    track: u64,
-    scale_ns: u64,
-    first: bool,
-) -> Result<Option<Chunk>, DemuxError> {
-    let mut frame = Frame::default();
-    loop {
-        let more = file.next_frame(&mut frame).map_err(|e| {
-            format!(
-                "the WebM is damaged after its last good frame: {}",
-                webm_error(e)
-            )
-        })?;
-        if !more {
-            return Ok(None);
-        }
-        if frame.track != track {
-            continue;
-        }
-        let ns = i128::from(frame.timestamp) * i128::from(scale_ns);
-        return Ok(Some(Chunk {
-            data: std::mem::take(&mut frame.data),
-            timestamp_us: (ns / 1000) as i64,
-            key: frame.is_keyframe.unwrap_or(first),
-        }));
-    }
+    i64::try_from(i128::from(time) * 1_000_000 / scale).unwrap_or(i64::MAX)
 }
 
 /// VP9's codec string from the profile in a frame's first byte (VP9 bitstream specification,
 /// uncompressed header: frame marker, then the profile's low and high bits). Profiles 2 and 3 are
 /// the high-bit-depth ones; 10 bits is assumed for them.
-fn vp9_codec(frame: &[u8]) -> String {
+pub(crate) fn vp9_codec(frame: &[u8]) -> String {
     let byte = frame.first().copied().unwrap_or(0);
     let profile = ((byte >> 5) & 1) | (((byte >> 4) & 1) << 1);
     let depth = if profile >= 2 { 10 } else { 8 };
@@ -258,7 +160,7 @@ fn vp9_codec(frame: &[u8]) -> String {
 
 /// `avc1.PPCCLL` from an AVCDecoderConfigurationRecord (ISO/IEC 14496-15): profile, constraint
 /// flags and level are its bytes 1 to 3.
-fn avc_codec(record: &[u8]) -> Option<String> {
+pub(crate) fn avc_codec(record: &[u8]) -> Option<String> {
     let [_, profile, constraints, level, ..] = record else {
         return None;
     };
@@ -266,7 +168,7 @@ fn avc_codec(record: &[u8]) -> Option<String> {
 }
 
 /// `av01.P.LLT.DD` from an AV1CodecConfigurationRecord (AV1 ISOBMFF binding, section 2.3).
-fn av1_codec(record: &[u8]) -> Option<String> {
+pub(crate) fn av1_codec(record: &[u8]) -> Option<String> {
     let [_, b1, b2, ..] = record else {
         return None;
     };
@@ -281,44 +183,28 @@ fn av1_codec(record: &[u8]) -> Option<String> {
     Some(format!("av01.{profile}.{level:02}{tier}.{depth:02}"))
 }
 
-fn open_mp4<R: Read + Seek>(
-    mut reader: R,
-    size: u64,
-) -> Result<(Demuxer<R>, VideoTrack), DemuxError> {
-    let mp4 =
-        re_mp4::Mp4::read(&mut reader, size).map_err(|e| format!("not a readable MP4: {e}"))?;
-    let track = mp4
-        .tracks()
-        .values()
-        .find(|t| t.kind == Some(re_mp4::TrackKind::Video))
-        .ok_or("the MP4 holds no video track")?;
-    let codec = track
-        .codec_string(&mp4)
-        .ok_or("the MP4's video codec is not one the page decodes")?;
-    if track.samples.is_empty() {
-        return Err("the MP4's video track has no frames".into());
+/// `hvc1.…` from an HEVCDecoderConfigurationRecord (ISO/IEC 14496-15, annex E): profile space
+/// and profile, the compatibility flags bit-reversed in hex, tier and level, then the constraint
+/// bytes in hex without the trailing zero bytes.
+pub(crate) fn hevc_codec(prefix: &str, record: &[u8]) -> Option<String> {
+    let r = record.get(..13)?;
+    let space = ["", "A", "B", "C"][usize::from(r[1] >> 6)];
+    let tier = if r[1] & 0x20 != 0 { 'H' } else { 'L' };
+    let profile = r[1] & 0x1F;
+    let compatibility = u32::from_be_bytes([r[2], r[3], r[4], r[5]]).reverse_bits();
+    let mut constraints: Vec<String> = r[6..12].iter().map(|b| format!("{b:X}")).collect();
+    while constraints.last().is_some_and(|c| c == "0") {
+        constraints.pop();
     }
-    // VP8 and VP9 take no description in WebCodecs; H.264, HEVC and AV1 take their record.
-    let vpx = codec == "vp8" || codec.starts_with("vp09");
-    let info = VideoTrack {
-        container: "mp4",
-        description: track.raw_codec_config(&mp4).filter(|_| !vpx),
-        codec,
-        coded_width: u32::from(track.width),
-        coded_height: u32::from(track.height),
-        frames: u32::try_from(track.samples.len()).ok(),
-    };
-    reader
-        .seek(SeekFrom::Start(0))
-        .map_err(|e| format!("cannot read: {e}"))?;
-    let demuxer = Demuxer::Mp4 {
-        reader,
-        samples: track.samples.clone(),
-        timescale: track.timescale,
-        next: 0,
-        size,
-    };
-    Ok((demuxer, info))
+    let mut codec = format!(
+        "{prefix}.{space}{profile}.{compatibility:X}.{tier}{}",
+        r[12]
+    );
+    for c in constraints {
+        codec.push('.');
+        codec.push_str(&c);
+    }
+    Some(codec)
 }
 
 #[cfg(test)]

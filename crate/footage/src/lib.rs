@@ -3,5 +3,8 @@
 //! the browser's own video decoder. Both read from any `Read` (and `Seek`), never a path, so the
 //! command line and the page share them.
 
+mod bytes;
 pub mod demux;
+mod mp4;
+mod webm;
 pub mod y4m;

@@ -4,6 +4,7 @@
 //! standard input), so footage is never held whole.
 
 use std::io::{BufRead, Read};
+use throughline_core::limits::{self, MAX_PICTURE_SIDE as MAX_SIDE};
 
 /// Colour layout of the frames.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -80,18 +81,20 @@ pub fn parse_header(line: &str) -> Result<Header, String> {
         }
     }
     match (width, height) {
-        (Some(width), Some(height)) if width <= 16384 && height <= 16384 => Ok(Header {
+        (Some(width), Some(height)) if width <= MAX_SIDE && height <= MAX_SIDE => Ok(Header {
             width,
             height,
             frame_rate,
             layout,
         }),
-        _ => Err("the YUV4MPEG2 header lacks a valid size (W… H…, up to 16384)".into()),
+        _ => Err(format!(
+            "the YUV4MPEG2 header lacks a valid size (W… H…, up to {MAX_SIDE})"
+        )),
     }
 }
 
 /// The longest header or `FRAME` line read: a stream without newlines is never read whole.
-const MAX_LINE: u64 = 4096;
+const MAX_LINE: u64 = limits::MAX_Y4M_LINE;
 
 /// What [`Reader::next_frame`] found.
 #[derive(Debug, PartialEq, Eq)]

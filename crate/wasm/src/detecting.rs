@@ -42,7 +42,8 @@ impl Session {
         } else {
             detect::DetectorConfig::from_json(settings).map_err(js_error)?
         };
-        if width == 0 || height == 0 || width > 8192 || height > 8192 {
+        let side = throughline_core::limits::MAX_PICTURE_SIDE as u32;
+        if width == 0 || height == 0 || width > side || height > side {
             return Err(js_error(format!(
                 "footage of {width}x{height} pixels cannot be searched"
             )));

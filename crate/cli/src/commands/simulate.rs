@@ -62,10 +62,11 @@ impl Args {
             ));
         }
         let (w, h) = (self.width, self.height);
-        if !(w >= 32.0 && h >= 32.0 && w <= 8192.0 && h <= 8192.0) {
-            return Err(bad_usage(
-                "--width and --height must be between 32 and 8192 pixels",
-            ));
+        let side = throughline_core::limits::MAX_PICTURE_SIDE as f64;
+        if !(w >= 32.0 && h >= 32.0 && w <= side && h <= side) {
+            return Err(bad_usage(&format!(
+                "--width and --height must be between 32 and {side} pixels"
+            )));
         }
         Ok(sim::SceneConfig {
             seed: self.seed,

@@ -1,0 +1,677 @@
+//! The video track of an MP4 file (ISO base media file format, ISO/IEC 14496-12): where each coded
+//! frame lies, how long, when it is shown and whether it is a key frame, from the movie header
+//! (`moov`) and, for fragmented files, from each movie fragment (`moof`).
+//!
+//! Every box is found by stepping over the boxes before it, never by searching: each step moves
+//! forward by at least a box header, the number of steps is limited, headers are read whole only
+//! below a size limit, and every table is checked against the bytes that hold it before anything
+//! is allocated for it (`throughline_core::limits`).
+
+use std::io::{Read, Seek};
+
+use throughline_core::limits::{
+    MAX_CONTAINER_ELEMENTS, MAX_CONTAINER_HEADER_BYTES, MAX_FOOTAGE_FRAMES, MAX_PICTURE_SIDE,
+};
+
+use crate::bytes::{read_exact_vec, read_up_to, seek_to, too_short, Bytes};
+use crate::demux::{av1_codec, avc_codec, hevc_codec, VideoTrack};
+
+/// One coded frame: where it lies, and when it is shown (in the track's time units, the first
+/// frame shown at 0).
+#[derive(Debug, Clone, Copy)]
+pub(crate) struct Sample {
+    pub offset: u64,
+    pub size: u32,
+    pub time: i64,
+    pub key: bool,
+}
+
+/// The video track: what the decoder is told, its frames in file order, and its time units.
+pub(crate) struct Movie {
+    pub info: VideoTrack,
+    pub samples: Vec<Sample>,
+    pub timescale: u32,
+}
+
+type FourCc = [u8; 4];
+
+/// The video track being read: from the movie header, then each fragment's frames.
+struct Track {
+    id: u32,
+    timescale: u32,
+    info: VideoTrack,
+    samples: Vec<Sample>,
+    /// The defaults of a fragment's frames (`trex`): duration, size and flags.
+    defaults: (u32, u32, u32),
+    /// Decode time after the last frame read, for a fragment that does not give its own.
+    next_dts: i64,
+    /// What the edit list moves the track's times by (in the track's units).
+    shift: i64,
+}
+
+/// Reads the video track of an MP4 file of `size` bytes.
+pub(crate) fn read_movie<R: Read + Seek>(reader: &mut R, size: u64) -> Result<Movie, String> {
+    let mut track: Option<Track> = None;
+    let mut pos = 0u64;
+    let mut steps = 0usize;
+    while pos < size {
+        steps += 1;
+        if steps > MAX_CONTAINER_ELEMENTS {
+            return Err(format!(
+                "more than {MAX_CONTAINER_ELEMENTS} boxes (damaged?)"
+            ));
+        }
+        let Some((kind, header, length)) = box_at(reader, pos, size)? else {
+            break;
+        };
+        let body = length - header;
+        match &kind {
+            b"moov" | b"moof" => {
+                if pos + length > size {
+                    return Err("the file ends early (cut short?)".into());
+                }
+                if body > MAX_CONTAINER_HEADER_BYTES {
+                    return Err(format!(
+                        "its {} box is larger than {} MB",
+                        name(&kind),
+                        MAX_CONTAINER_HEADER_BYTES >> 20
+                    ));
+                }
+                let data = read_exact_vec(reader, body)?;
+                if &kind == b"moov" {
+                    track = Some(movie_header(&data)?);
+                } else {
+                    let t = track
+                        .as_mut()
+                        .ok_or("a movie fragment comes before the movie header")?;
+                    fragment(&data, pos, t)?;
+                }
+            }
+            _ => {}
+        }
+        pos = pos.saturating_add(length);
+    }
+    let mut t = track.ok_or("no movie header (moov box): not a whole MP4 file")?;
+    if t.samples.is_empty() {
+        return Err("the MP4's video track has no frames".into());
+    }
+    for s in &mut t.samples {
+        s.time = s.time.saturating_sub(t.shift);
+    }
+    t.info.frames = u32::try_from(t.samples.len()).ok();
+    Ok(Movie {
+        info: t.info,
+        samples: t.samples,
+        timescale: t.timescale,
+    })
+}
+
+/// The box at `pos`: its type, header length and whole length (a box of size 0 runs to the end of
+/// the file). `None` at the end, or where fewer bytes than a header are left.
+fn box_at<R: Read + Seek>(
+    reader: &mut R,
+    pos: u64,
+    size: u64,
+) -> Result<Option<(FourCc, u64, u64)>, String> {
+    seek_to(reader, pos)?;
+    let mut head = [0u8; 16];
+    let n = read_up_to(reader, &mut head).map_err(crate::bytes::io_message)?;
+    if n < 8 {
+        return Ok(None);
+    }
+    let declared = u64::from(u32::from_be_bytes([head[0], head[1], head[2], head[3]]));
+    let kind: FourCc = [head[4], head[5], head[6], head[7]];
+    let (header, length) = match declared {
+        0 => (8, size - pos),
+        1 if n == 16 => (
+            16,
+            u64::from_be_bytes(head[8..16].try_into().unwrap_or([0; 8])),
+        ),
+        1 => return Err(too_short("box header")),
+        s => (8, s),
+    };
+    if length < header {
+        return Err(format!(
+            "a box ({}) at byte {pos} says it is smaller than its own header (damaged?)",
+            name(&kind)
+        ));
+    }
+    seek_to(reader, pos + header)?;
+    Ok(Some((kind, header, length)))
+}
+
+fn name(kind: &FourCc) -> String {
+    kind.iter()
+        .map(|&b| if b.is_ascii_graphic() { b as char } else { '?' })
+        .collect()
+}
+
+/// The boxes inside a box held in memory, in order.
+fn children<'a>(data: &'a [u8], parent: &str) -> Result<Vec<(FourCc, &'a [u8])>, String> {
+    let mut out = Vec::new();
+    let mut b = Bytes::new(data);
+    while b.left() >= 8 {
+        let declared = b.u32().unwrap_or(0);
+        let kind: FourCc = b.take(4).and_then(|k| k.try_into().ok()).unwrap_or([0; 4]);
+        let body = match declared {
+            0 => b.left(),
+            1 => {
+                let large = b.u64().ok_or_else(|| too_short(parent))?;
+                usize::try_from(large.saturating_sub(16)).unwrap_or(usize::MAX)
+            }
+            s if s < 8 => {
+                return Err(format!(
+                    "its {parent} box holds a box of size {s} (damaged?)"
+                ))
+            }
+            s => s as usize - 8,
+        };
+        let inner = b.take(body).ok_or_else(|| {
+            format!("its {parent} box holds a box that runs past its end (damaged?)")
+        })?;
+        out.push((kind, inner));
+    }
+    Ok(out)
+}
+
+/// The first box of a kind inside a box.
+fn find<'a>(data: &'a [u8], parent: &str, kind: &FourCc) -> Result<Option<&'a [u8]>, String> {
+    Ok(children(data, parent)?
+        .into_iter()
+        .find(|(k, _)| k == kind)
+        .map(|(_, d)| d))
+}
+
+fn need<'a>(data: &'a [u8], parent: &str, kind: &FourCc) -> Result<&'a [u8], String> {
+    find(data, parent, kind)?.ok_or_else(|| format!("its {parent} box has no {} box", name(kind)))
+}
+
+/// The version and flags of a full box, and a reader after them.
+fn full_box<'a>(data: &'a [u8], what: &str) -> Result<(u8, u32, Bytes<'a>), String> {
+    let mut b = Bytes::new(data);
+    let version = b.u8().ok_or_else(|| too_short(what))?;
+    let flags = b.u24().ok_or_else(|| too_short(what))?;
+    Ok((version, flags, b))
+}
+
+/// The movie header: its first video track, with the frames its sample tables list.
+fn movie_header(moov: &[u8]) -> Result<Track, String> {
+    let (version, _, mut mvhd) = full_box(need(moov, "moov", b"mvhd")?, "mvhd")?;
+    mvhd.skip(if version == 1 { 16 } else { 8 })
+        .ok_or_else(|| too_short("mvhd"))?;
+    let movie_timescale = mvhd.u32().ok_or_else(|| too_short("mvhd"))?;
+    let mut track = None;
+    for (kind, trak) in children(moov, "moov")? {
+        if &kind == b"trak" {
+            track = video_track(trak, movie_timescale)?;
+            if track.is_some() {
+                break;
+            }
+        }
+    }
+    let mut track = track.ok_or("the MP4 holds no video track")?;
+    if let Some(mvex) = find(moov, "moov", b"mvex")? {
+        for (kind, trex) in children(mvex, "mvex")? {
+            if &kind != b"trex" {
+                continue;
+            }
+            let (_, _, mut b) = full_box(trex, "trex")?;
+            let mut next = || b.u32().ok_or_else(|| too_short("trex"));
+            let (id, _description, duration, size, flags) =
+                (next()?, next()?, next()?, next()?, next()?);
+            if id == track.id {
+                track.defaults = (duration, size, flags);
+            }
+        }
+    }
+    Ok(track)
+}
+
+/// A track, if it is a video track (`hdlr` says `vide`).
+fn video_track(trak: &[u8], movie_timescale: u32) -> Result<Option<Track>, String> {
+    let mdia = need(trak, "trak", b"mdia")?;
+    let (_, _, mut hdlr) = full_box(need(mdia, "mdia", b"hdlr")?, "hdlr")?;
+    hdlr.skip(4).ok_or_else(|| too_short("hdlr"))?;
+    if hdlr.take(4) != Some(b"vide") {
+        return Ok(None);
+    }
+    let (version, _, mut tkhd) = full_box(need(trak, "trak", b"tkhd")?, "tkhd")?;
+    tkhd.skip(if version == 1 { 16 } else { 8 })
+        .ok_or_else(|| too_short("tkhd"))?;
+    let id = tkhd.u32().ok_or_else(|| too_short("tkhd"))?;
+    let (version, _, mut mdhd) = full_box(need(mdia, "mdia", b"mdhd")?, "mdhd")?;
+    mdhd.skip(if version == 1 { 16 } else { 8 })
+        .ok_or_else(|| too_short("mdhd"))?;
+    let timescale = mdhd
+        .u32()
+        .filter(|&t| t > 0)
+        .ok_or("its video track has no time scale (mdhd)")?;
+    let stbl = need(need(mdia, "mdia", b"minf")?, "minf", b"stbl")?;
+    let info = sample_entry(need(stbl, "stbl", b"stsd")?)?;
+    let samples = sample_tables(stbl)?;
+    let next_dts = end_of_decoding(stbl, &samples)?;
+    let shift = match find(trak, "trak", b"edts")? {
+        Some(edts) => edit_shift(edts, movie_timescale, timescale)?,
+        None => 0,
+    };
+    Ok(Some(Track {
+        id,
+        timescale,
+        info,
+        samples,
+        defaults: (0, 0, 0),
+        next_dts,
+        shift,
+    }))
+}
+
+/// How far the edit list (`elst`, ISO/IEC 14496-12 §8.6.6) moves the shown times back: the first
+/// edit that shows media starts at its media time, after any empty edits before it (their
+/// durations are in the movie's units). Later edits (cuts within the footage) are not applied.
+fn edit_shift(edts: &[u8], movie_timescale: u32, timescale: u32) -> Result<i64, String> {
+    let Some(elst) = find(edts, "edts", b"elst")? else {
+        return Ok(0);
+    };
+    let (version, _, mut b) = full_box(elst, "elst")?;
+    let count = b.u32().ok_or_else(|| too_short("elst"))?;
+    let mut delay = 0i64;
+    for _ in 0..count {
+        let (duration, media_time) = if version == 1 {
+            (b.u64(), b.u64().map(|t| t as i64))
+        } else {
+            (b.u32().map(u64::from), b.u32().map(|t| i64::from(t as i32)))
+        };
+        let (Some(duration), Some(media_time), Some(_rate)) = (duration, media_time, b.u32())
+        else {
+            return Err(too_short("edit list (elst)"));
+        };
+        if media_time >= 0 {
+            return Ok(media_time.saturating_sub(delay));
+        }
+        // An empty edit: nothing shown for its duration.
+        let units =
+            i128::from(duration) * i128::from(timescale) / i128::from(movie_timescale.max(1));
+        delay = delay.saturating_add(i64::try_from(units).unwrap_or(i64::MAX));
+    }
+    Ok(0)
+}
+
+/// What the decoder is told: from the first sample entry of `stsd` (ISO/IEC 14496-12 §12.1.3,
+/// a visual sample entry: 78 bytes of fields, then boxes such as the codec's configuration).
+fn sample_entry(stsd: &[u8]) -> Result<VideoTrack, String> {
+    let (_, _, mut b) = full_box(stsd, "stsd")?;
+    b.skip(4).ok_or_else(|| too_short("stsd"))?;
+    let rest = b.take(b.left()).unwrap_or_default();
+    let (kind, entry) = children(rest, "stsd")?
+        .into_iter()
+        .next()
+        .ok_or("its video track describes no codec (stsd)")?;
+    let mut e = Bytes::new(entry);
+    e.skip(24).ok_or_else(|| too_short("sample entry"))?;
+    let width = u32::from(e.u16().ok_or_else(|| too_short("sample entry"))?);
+    let height = u32::from(e.u16().ok_or_else(|| too_short("sample entry"))?);
+    e.skip(50).ok_or_else(|| too_short("sample entry"))?;
+    let boxes = e.take(e.left()).unwrap_or_default();
+    let side = MAX_PICTURE_SIDE as u32;
+    if width == 0 || height == 0 || width > side || height > side {
+        return Err(format!(
+            "its picture is {width}×{height}; the page reads pictures of 1 to {side} pixels a side"
+        ));
+    }
+    let config = |k: &FourCc| need(boxes, "sample entry", k);
+    let (codec, description) = match &kind {
+        b"avc1" | b"avc3" => {
+            let record = config(b"avcC")?;
+            let codec = avc_codec(record).ok_or("its H.264 configuration (avcC) is too short")?;
+            (
+                codec.replacen("avc1", &name(&kind), 1),
+                Some(record.to_vec()),
+            )
+        }
+        b"hvc1" | b"hev1" => {
+            let record = config(b"hvcC")?;
+            let codec = hevc_codec(&name(&kind), record)
+                .ok_or("its HEVC configuration (hvcC) is too short")?;
+            (codec, Some(record.to_vec()))
+        }
+        b"av01" => {
+            let record = config(b"av1C")?;
+            let codec = av1_codec(record).ok_or("its AV1 configuration (av1C) is too short")?;
+            (codec, Some(record.to_vec()))
+        }
+        b"vp08" => ("vp8".to_string(), None),
+        b"vp09" => {
+            let (_, _, mut v) = full_box(config(b"vpcC")?, "vpcC")?;
+            let (profile, level, depth) = (v.u8(), v.u8(), v.u8().map(|d| d >> 4));
+            let (Some(p), Some(l), Some(d)) = (profile, level, depth) else {
+                return Err(too_short("VP9 configuration (vpcC)"));
+            };
+            (format!("vp09.{p:02}.{l:02}.{d:02}"), None)
+        }
+        b"encv" => return Err("its video is encrypted".into()),
+        other => {
+            return Err(format!(
+                "its video codec {} is not one the page decodes",
+                name(other)
+            ))
+        }
+    };
+    Ok(VideoTrack {
+        container: "mp4",
+        codec,
+        description,
+        coded_width: width,
+        coded_height: height,
+        frames: None,
+    })
+}
+
+/// The frames of a movie header's sample tables: sizes (`stsz`/`stz2`), chunks (`stco`/`co64`,
+/// `stsc`), decode times (`stts`), shown-time offsets (`ctts`) and key frames (`stss`).
+fn sample_tables(stbl: &[u8]) -> Result<Vec<Sample>, String> {
+    let sizes = sample_sizes(stbl)?;
+    if sizes.is_empty() {
+        return Ok(Vec::new());
+    }
+    let chunks = chunk_offsets(stbl)?;
+    let runs = pairs(need(stbl, "stbl", b"stsc")?, "stsc", 12)?;
+    let mut samples = Vec::with_capacity(sizes.len());
+    let mut run = 0;
+    'chunks: for (k, &start) in chunks.iter().enumerate() {
+        let number = u32::try_from(k + 1).unwrap_or(u32::MAX);
+        while run + 1 < runs.len() && runs[run + 1].0 <= number {
+            run += 1;
+        }
+        let per_chunk = runs.get(run).map_or(0, |r| r.1);
+        let mut offset = start;
+        for _ in 0..per_chunk {
+            let Some(&size) = sizes.get(samples.len()) else {
+                break 'chunks;
+            };
+            samples.push(Sample {
+                offset,
+                size,
+                time: 0,
+                key: true,
+            });
+            offset = offset.saturating_add(u64::from(size));
+        }
+    }
+    if samples.len() < sizes.len() {
+        return Err(format!(
+            "its sample tables disagree: {} frames, but chunks for {} (damaged?)",
+            sizes.len(),
+            samples.len()
+        ));
+    }
+    decode_times(stbl, &mut samples)?;
+    if let Some(stss) = find(stbl, "stbl", b"stss")? {
+        let (_, _, mut b) = full_box(stss, "stss")?;
+        let count = b.u32().ok_or_else(|| too_short("stss"))? as usize;
+        if count > b.left() / 4 {
+            return Err(too_short("key frame table (stss)"));
+        }
+        samples.iter_mut().for_each(|s| s.key = false);
+        for _ in 0..count {
+            let n = b.u32().unwrap_or(0) as usize;
+            if let Some(s) = n.checked_sub(1).and_then(|i| samples.get_mut(i)) {
+                s.key = true;
+            }
+        }
+    }
+    Ok(samples)
+}
+
+/// Decode times from `stts`, plus the offsets of `ctts`: the times the frames are shown.
+fn decode_times(stbl: &[u8], samples: &mut [Sample]) -> Result<(), String> {
+    let mut dts = 0i64;
+    let mut i = 0;
+    let mut last = 0u32;
+    for (count, delta) in pairs(need(stbl, "stbl", b"stts")?, "stts", 8)? {
+        for _ in 0..count {
+            let Some(s) = samples.get_mut(i) else { break };
+            s.time = dts;
+            dts = dts.saturating_add(i64::from(delta));
+            i += 1;
+        }
+        last = delta;
+    }
+    for s in samples.iter_mut().skip(i) {
+        s.time = dts;
+        dts = dts.saturating_add(i64::from(last));
+    }
+    if let Some(ctts) = find(stbl, "stbl", b"ctts")? {
+        let mut i = 0;
+        for (count, offset) in pairs(ctts, "ctts", 8)? {
+            // Signed in version 1; version 0 files with negative offsets exist, so both are read
+            // as signed (common practice among readers).
+            let offset = i64::from(offset as i32);
+            for _ in 0..count {
+                let Some(s) = samples.get_mut(i) else { break };
+                s.time = s.time.saturating_add(offset);
+                i += 1;
+            }
+        }
+    }
+    Ok(())
+}
+
+/// The decode time after the last frame of the sample tables (where a first fragment starts).
+fn end_of_decoding(stbl: &[u8], samples: &[Sample]) -> Result<i64, String> {
+    let stts = pairs(need(stbl, "stbl", b"stts")?, "stts", 8)?;
+    let mut left = samples.len() as u64;
+    let mut dts = 0i64;
+    for (count, delta) in stts {
+        let n = u64::from(count).min(left);
+        dts = dts.saturating_add((n as i64).saturating_mul(i64::from(delta)));
+        left -= n;
+    }
+    Ok(dts)
+}
+
+/// A table of pairs of 32-bit numbers after a full box's entry count (`stts`, `ctts`; `stsc`
+/// with `width` 12 keeps its first two of three).
+fn pairs(data: &[u8], what: &str, width: usize) -> Result<Vec<(u32, u32)>, String> {
+    let (_, _, mut b) = full_box(data, what)?;
+    let count = b.u32().ok_or_else(|| too_short(what))? as usize;
+    if count > b.left() / width {
+        return Err(too_short(&format!("{what} table")));
+    }
+    let mut out = Vec::with_capacity(count);
+    for _ in 0..count {
+        let row = b.take(width).unwrap_or_default();
+        let word = |k: usize| u32::from_be_bytes([row[k], row[k + 1], row[k + 2], row[k + 3]]);
+        out.push((word(0), word(4)));
+    }
+    Ok(out)
+}
+
+/// Each frame's size, from `stsz` or the compact `stz2`.
+fn sample_sizes(stbl: &[u8]) -> Result<Vec<u32>, String> {
+    let too_many = || format!("more than {MAX_FOOTAGE_FRAMES} frames");
+    if let Some(stsz) = find(stbl, "stbl", b"stsz")? {
+        let (_, _, mut b) = full_box(stsz, "stsz")?;
+        let (Some(same), Some(count)) = (b.u32(), b.u32()) else {
+            return Err(too_short("stsz"));
+        };
+        let count = count as usize;
+        if count > MAX_FOOTAGE_FRAMES {
+            return Err(too_many());
+        }
+        if same != 0 {
+            return Ok(vec![same; count]);
+        }
+        if count > b.left() / 4 {
+            return Err(too_short("frame size table (stsz)"));
+        }
+        return Ok((0..count).map(|_| b.u32().unwrap_or(0)).collect());
+    }
+    let stz2 = need(stbl, "stbl", b"stz2")?;
+    let (_, _, mut b) = full_box(stz2, "stz2")?;
+    let (Some(field), Some(count)) = (b.u24().map(|v| v & 0xFF), b.u32()) else {
+        return Err(too_short("stz2"));
+    };
+    let count = count as usize;
+    if count > MAX_FOOTAGE_FRAMES {
+        return Err(too_many());
+    }
+    let bits = match field {
+        4 | 8 | 16 => field as usize,
+        _ => {
+            return Err(format!(
+                "its stz2 box has fields of {field} bits (4, 8 or 16 expected)"
+            ))
+        }
+    };
+    let bytes = b
+        .take((count * bits).div_ceil(8))
+        .ok_or_else(|| too_short("stz2"))?;
+    Ok((0..count)
+        .map(|i| match bits {
+            4 => {
+                let shift = if i % 2 == 0 { 4 } else { 0 };
+                u32::from((bytes[i / 2] >> shift) & 0x0F)
+            }
+            8 => u32::from(bytes[i]),
+            _ => u32::from(u16::from_be_bytes([bytes[2 * i], bytes[2 * i + 1]])),
+        })
+        .collect())
+}
+
+/// Where each chunk starts, from `stco` or `co64`.
+fn chunk_offsets(stbl: &[u8]) -> Result<Vec<u64>, String> {
+    let (data, wide) = match find(stbl, "stbl", b"stco")? {
+        Some(d) => (d, false),
+        None => (need(stbl, "stbl", b"co64")?, true),
+    };
+    let what = if wide { "co64" } else { "stco" };
+    let (_, _, mut b) = full_box(data, what)?;
+    let count = b.u32().ok_or_else(|| too_short(what))? as usize;
+    let width = if wide { 8 } else { 4 };
+    if count > b.left() / width {
+        return Err(too_short(&format!("chunk table ({what})")));
+    }
+    Ok((0..count)
+        .map(|_| {
+            if wide {
+                b.u64().unwrap_or(0)
+            } else {
+                u64::from(b.u32().unwrap_or(0))
+            }
+        })
+        .collect())
+}
+
+/// The frames of one movie fragment that belong to the video track (ISO/IEC 14496-12 §8.8:
+/// `traf` with its `tfhd` defaults, `tfdt` start time and `trun` runs of frames).
+fn fragment(moof: &[u8], moof_start: u64, track: &mut Track) -> Result<(), String> {
+    for (kind, traf) in children(moof, "moof")? {
+        if &kind != b"traf" {
+            continue;
+        }
+        let (_, flags, mut h) = full_box(need(traf, "traf", b"tfhd")?, "tfhd")?;
+        let mut next = || h.u32().ok_or_else(|| too_short("tfhd"));
+        if next()? != track.id {
+            continue;
+        }
+        let base = if flags & 0x1 != 0 {
+            (u64::from(next()?) << 32) | u64::from(next()?)
+        } else {
+            moof_start
+        };
+        if flags & 0x2 != 0 {
+            next()?;
+        }
+        let (mut duration, mut size, mut sample_flags) = track.defaults;
+        if flags & 0x8 != 0 {
+            duration = next()?;
+        }
+        if flags & 0x10 != 0 {
+            size = next()?;
+        }
+        if flags & 0x20 != 0 {
+            sample_flags = next()?;
+        }
+        if let Some(tfdt) = find(traf, "traf", b"tfdt")? {
+            let (version, _, mut t) = full_box(tfdt, "tfdt")?;
+            let time = if version == 1 {
+                t.u64()
+            } else {
+                t.u32().map(u64::from)
+            };
+            let time = time.ok_or_else(|| too_short("tfdt"))?;
+            track.next_dts = i64::try_from(time).unwrap_or(i64::MAX);
+        }
+        let defaults = (duration, size, sample_flags);
+        let mut data_at = base;
+        for (kind, trun) in children(traf, "traf")? {
+            if &kind == b"trun" {
+                data_at = track_run(trun, base, data_at, defaults, track)?;
+            }
+        }
+    }
+    Ok(())
+}
+
+/// One run of frames (`trun`); where the next run's data starts when it does not say.
+fn track_run(
+    trun: &[u8],
+    base: u64,
+    data_at: u64,
+    (duration, size, sample_flags): (u32, u32, u32),
+    track: &mut Track,
+) -> Result<u64, String> {
+    let (_, flags, mut b) = full_box(trun, "trun")?;
+    let count = b.u32().ok_or_else(|| too_short("trun"))? as usize;
+    let mut at = data_at;
+    if flags & 0x1 != 0 {
+        let offset = i64::from(b.u32().ok_or_else(|| too_short("trun"))? as i32);
+        at = base
+            .checked_add_signed(offset)
+            .ok_or("a run of frames starts before the file (damaged?)")?;
+    }
+    let first_flags = if flags & 0x4 != 0 {
+        Some(b.u32().ok_or_else(|| too_short("trun"))?)
+    } else {
+        None
+    };
+    let per_frame = 4 * (flags & 0xF00).count_ones() as usize;
+    if per_frame > 0 && count > b.left() / per_frame {
+        return Err(too_short("run of frames (trun)"));
+    }
+    if count > MAX_FOOTAGE_FRAMES - track.samples.len().min(MAX_FOOTAGE_FRAMES) {
+        return Err(format!("more than {MAX_FOOTAGE_FRAMES} frames"));
+    }
+    let mut dts = track.next_dts;
+    for j in 0..count {
+        let mut field = |bit: u32, default: u32| {
+            if flags & bit != 0 {
+                b.u32().unwrap_or(default)
+            } else {
+                default
+            }
+        };
+        let d = field(0x100, duration);
+        let s = field(0x200, size);
+        let f = field(
+            0x400,
+            if j == 0 {
+                first_flags.unwrap_or(sample_flags)
+            } else {
+                sample_flags
+            },
+        );
+        let shown = i64::from(field(0x800, 0) as i32);
+        track.samples.push(Sample {
+            offset: at,
+            size: s,
+            time: dts.saturating_add(shown),
+            // sample_is_non_sync_sample (§8.8.3.1).
+            key: f & 0x0001_0000 == 0,
+        });
+        at = at.saturating_add(u64::from(s));
+        dts = dts.saturating_add(i64::from(d));
+    }
+    track.next_dts = dts;
+    Ok(at)
+}
