@@ -105,6 +105,16 @@ fn a_projects_tallies_are_checked_in_the_report_and_by_score_counts() {
     assert!(dir
         .join("footbridge-plaza_2026-03-02_summary.html")
         .exists());
+    // With the report on standard output, nothing is written unasked into the working folder.
+    let elsewhere = scratch("handin-stdout");
+    let o = std::process::Command::new(env!("CARGO_BIN_EXE_throughline"))
+        .args(["run", &demo("detections.csv"), "--plan", &demo("plan.json")])
+        .args(["--edits", &project_path, "-q"])
+        .current_dir(&elsewhere)
+        .output()
+        .unwrap();
+    assert!(o.status.success(), "{}", stderr(&o));
+    assert_eq!(std::fs::read_dir(&elsewhere).unwrap().count(), 0);
     let o = throughline(&["score-counts", "--truth", &project_path, &report]);
     assert!(o.status.success(), "{}", stderr(&o));
     let out = stdout(&o);

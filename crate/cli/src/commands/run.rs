@@ -59,7 +59,8 @@ pub struct Args {
 #[derive(clap::Args)]
 struct HandinArgs {
     /// The site's name: writes SITE_DATE_grid.csv, _grid-long.csv, _movements.csv and _summary.html
-    /// next to the report (a project file's site is used when this is not given).
+    /// next to the report (a project file's site is used when this is not given and the
+    /// report goes to a file with -o).
     #[arg(long, value_name = "NAME")]
     site: Option<String>,
     /// The recording's clock time at frame 1, like 2026-03-02T07:00:00 (instead of the plan's).
@@ -163,7 +164,10 @@ fn stage_handin(
     project: Option<&throughline_core::project::Project>,
     files: &mut Outputs,
 ) -> Result<Vec<String>, Failure> {
-    if args.handin.site.is_none() && project.is_none_or(|p| p.site.is_none()) {
+    // Asked for by --site; or by a project that names its site, when the report goes to a file
+    // (with the report on standard output there is no folder to put them in unasked).
+    let site_in_project = project.is_some_and(|p| p.site.is_some());
+    if args.handin.site.is_none() && !(site_in_project && args.output.is_some()) {
         return Ok(Vec::new());
     }
     let inputs = handin::Inputs {
