@@ -63,8 +63,7 @@ export class ProjectPanel {
   async save() {
     try {
       const text = await this.client.writeProject(this.project());
-      const stem = this.store.work.site ? this.store.work.site.replace(/[^\w.-]+/g, "-") : "throughline";
-      download(`${stem}-project.json`, text, "application/json");
+      download(projectFileName(this.store.work.site), text, "application/json");
       this.messages.clear("project");
     } catch (e) {
       this.messages.say("project", "error", `The project could not be saved: ${/** @type {Error} */ (e).message}. Fix the plan (under Set up), then save again.`);
@@ -124,4 +123,12 @@ export class ProjectPanel {
     if (!why.length) return this.messages.clear("project-files");
     this.messages.say("project-files", "warn", `This work was made with other files. ${why.join(" ")} Its corrections name tracks of those files, so they may not apply here: open the footage and detections it was made with, or check each correction under Review, Edits.`);
   }
+}
+
+/**
+ * The name Save project gives the project file: from the site's name, when there is one.
+ * @param {string} site
+ */
+export function projectFileName(site) {
+  return `${site ? site.replace(/[^\w.-]+/g, "-") : "throughline"}-project.json`;
 }
