@@ -44,8 +44,9 @@
  */
 /**
  * What a file was, to tell whether work is opened against the same one (crate/core/src/fingerprint.rs):
- * its name, size in bytes, the SHA-256 of its first MiB, and for footage its duration in seconds.
- * @typedef {{name: string, size: number, head_sha256: string, duration_seconds?: number}} Fingerprint
+ * its name, size in bytes, the SHA-256 of its first MiB, and for footage its duration in seconds
+ * and the picture's size in pixels.
+ * @typedef {{name: string, size: number, head_sha256: string, duration_seconds?: number, width?: number, height?: number}} Fingerprint
  */
 
 /**
