@@ -1,6 +1,7 @@
 // @ts-check
 // The core's hand-in tables, shown as they are copied: tab-separated text (crate/core/src/handin)
-// read back into rows of cells and laid out as tables. The text is made of blocks parted by an
+// read back into rows of cells and laid out as tables (clock times shown without the date, which
+// the header block gives). The text is made of blocks parted by an
 // empty row: the header block (site, recording, plan, files, caution), then the tables, then notes
 // (the peak hour and its factor under the grid). Nothing is counted here; every cell is the core's.
 
@@ -38,6 +39,16 @@ function numeric(cell) {
 }
 
 /**
+ * A cell as shown: a clock time of the recording's day without its date (the header block gives
+ * the date; the files and the copy keep it whole).
+ * @param {string} cell
+ */
+function shown(cell) {
+  const m = cell.match(/^\d{4}-\d{2}-\d{2}T(\d{2}:\d{2})(:\d{2})$/);
+  return m ? m[1] + (m[2] === ":00" ? "" : m[2]) : cell;
+}
+
+/**
  * A table of a block whose first row names the columns. Rows whose `mark` cell says so are marked
  * (the peak hour's intervals); a row starting "Total" is the totals row.
  * @param {Block} block
@@ -47,7 +58,7 @@ function numeric(cell) {
 function sheetTable(block, mark, caption) {
   const [head, ...rows] = block;
   const at = mark ? head.indexOf(mark.column) : -1;
-  const cells = (/** @type {string[]} */ r, /** @type {"td" | "th"} */ tag) => r.map((c, i) => el(i === 0 && tag === "td" ? "th" : tag, { text: c, class: numeric(c) ? "n" : null, scope: i === 0 && tag === "td" ? "row" : null }));
+  const cells = (/** @type {string[]} */ r, /** @type {"td" | "th"} */ tag) => r.map((c, i) => el(i === 0 && tag === "td" ? "th" : tag, { text: shown(c), title: shown(c) === c ? null : c, class: numeric(c) ? "n" : null, scope: i === 0 && tag === "td" ? "row" : null }));
   return el("div", { class: "table-box sheet-box" }, el("table", {}, [
     el("caption", { class: "visually-hidden", text: caption }),
     el("thead", {}, el("tr", {}, cells(head, "th"))),

@@ -44,12 +44,16 @@ export class TallyPanel {
     store.subscribe(["tally"], () => this.showRun());
     store.subscribe(["tallyPress", "frame"], () => this.showCounts());
     store.subscribe(["frame"], () => this.stopAtEnd());
-    store.subscribe(["checks", "results"], () => {
-      const n = store.handCount.tallies.length;
-      byId("tally-count", HTMLElement).textContent = n ? `(${n})` : "";
-    });
+    store.subscribe(["checks", "results"], () => this.countKept());
+    this.countKept();
     this.offerLines();
     this.showRun();
+  }
+
+  /** The number of tallies kept, on the tab. */
+  countKept() {
+    const n = this.store.handCount.tallies.length;
+    byId("tally-count", HTMLElement).textContent = n ? `(${n})` : "";
   }
 
   listen() {
