@@ -111,7 +111,9 @@ test("a tally by key presses over part of the demo is compared with the tool's c
   const after = (await shownRows(page))["All lines together"];
   assert.deepEqual([after.hand, after.tool, after.difference, after.wapd, after.factor], [sumM, sumM, "0", "0.0%", "1.000"]);
   assert.match(await page.locator("#tally-correction").innerText(), /No correction factor applied/);
-  await screenshot(page, "16-hand-count-compared-laptop");
+  assert.match(await card.locator(".bin-events").innerText(), /The tool counted none here\.[\s\S]*track 23[\s\S]*rejected by you: counted twice/);
+  await card.scrollIntoViewIfNeeded();
+  await screenshot(page, "16-hand-count-compared-laptop", { fullPage: false });
   assert.deepEqual(seen.errors, []);
   assert.deepEqual(seen.foreign, []);
   await page.close();

@@ -143,27 +143,37 @@ export class TallyChecks {
     const bins = g.per_bin.length;
     const binOf = (/** @type {number} */ f) => Math.min(bins - 1, Math.floor((f - c.from_frame) / fps / c.bin_seconds));
     const inSample = (/** @type {number} */ f) => f >= c.from_frame && f <= c.to_frame;
-    const events = report.events.filter((e) => e.kind === "screenline" && e.name === g.screenline && e.direction === way && (g.class === "all" || e.class === g.class) && inSample(e.frame));
+    const same = (/** @type {CountEvent} */ e) => e.kind === "screenline" && e.name === g.screenline && e.direction === way && (g.class === "all" || e.class === g.class) && inSample(e.frame);
+    const events = report.events.filter(same);
+    const rejected = (report.rejected_events || []).filter(same);
     const presses = t.presses.filter((p) => p.screenline === g.screenline && p.direction === way && (g.class === "all" || p.class === g.class) && inSample(p.frame));
     /** @type {HTMLElement[]} */
     const parts = [el("p", { class: "hint", text: `${g.screenline}, ${g.direction}, ${g.class === "all" ? "all classes" : g.class}: the tool counted ${g.automated}, you ${g.manual}. Choose one to see it on the footage. Where the tool is wrong, reject its crossing (R) or add the one it missed (Count events); where you were, count again.` })];
     g.per_bin.forEach(([start, a, m], b) => {
       if (bins > 1) parts.push(el("p", { class: "bin-head", text: `From ${start}: tool ${a}, you ${m}` }));
       const mine = events.filter((e) => binOf(e.frame) === b);
-      const list = el("ol", { class: "review-list" }, mine.map((e) => el("li", {}, this.eventButton(e))));
+      const gone = rejected.filter((e) => binOf(e.frame) === b);
+      const list = el("ol", { class: "review-list" }, [...mine.map((e) => el("li", {}, this.eventButton(e, false))), ...gone.map((e) => el("li", {}, this.eventButton(e, true)))]);
       const own = presses.filter((p) => binOf(p.frame) === b).map((p) => el("button", { type: "button", class: "press", text: `${clockText((p.frame - 1) / fps)} (frame ${p.frame})`, onclick: () => this.review.showMoment(p.frame, []) }));
       parts.push(mine.length ? list : el("p", { class: "hint", text: "The tool counted none here." }));
+      if (!mine.length && gone.length) parts.push(list);
       parts.push(el("p", { class: "presses" }, own.length ? ["Your presses: ", ...own] : ["You pressed none here."]));
     });
     into.replaceChildren(...parts);
   }
 
-  /** @param {CountEvent} e */
-  eventButton(e) {
-    return el("button", { type: "button", onclick: () => this.review.showEvent(e) }, [
+  /**
+   * One of the tool's count events (or one rejected by the person), to see on the footage.
+   * @param {CountEvent} e
+   * @param {boolean} rejected
+   */
+  eventButton(e, rejected) {
+    const detail = [e.class || "unclassified", eventTracks(e), eventTime(e)];
+    if (rejected) detail.push(`rejected by you${e.reason ? `: ${e.reason}` : ""}`);
+    return el("button", { type: "button", class: rejected ? "rejected" : null, onclick: () => this.review.showEvent(e) }, [
       el("span", { class: "when", text: clockText(e.seconds) }),
       el("span", { class: "what" }, [directionGlyph(e), eventWhat(e)]),
-      el("span", { class: "detail", text: `${e.class || "unclassified"} · ${eventTracks(e)} · ${eventTime(e)}` }),
+      el("span", { class: "detail", text: detail.join(" · ") }),
     ]);
   }
 
@@ -175,7 +185,8 @@ export class TallyChecks {
    */
   factorButton(c, t, card) {
     const f = c.overall.correction_factor;
-    if (f === null || f === undefined) return null;
+    // No factor (nothing counted by the tool), or one that changes nothing: nothing to offer.
+    if (f === null || f === undefined || Math.abs(f - 1) < 0.0005) return null;
     const lines = t.screenlines.join(" and ");
     const reason = el("input", { type: "text", autocomplete: "off", placeholder: "why (optional)" });
     const form = el("form", { class: "edit-form", hidden: true }, [
