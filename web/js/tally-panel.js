@@ -174,7 +174,11 @@ export class TallyPanel {
     const what = el("span", { class: "what" });
     const count = el("span", { class: "count" });
     const root = el("button", { type: "button", class: "tally-key" }, [kbd, what, count]);
-    root.addEventListener("click", () => this.press(root.dataset.key || ""));
+    root.addEventListener("click", (e) => {
+      this.press(root.dataset.key || "");
+      // Clicked or tapped, it lets go of the focus: Space then plays, as everywhere, instead of pressing it again.
+      if (e.detail > 0) root.blur();
+    });
     return { root, kbd, what, count };
   }
 
