@@ -10,6 +10,7 @@ type Doubt = import("./js/protocol.js").Doubt;
 type Outcome = import("./js/edits.js").Outcome;
 type Project = import("./js/protocol.js").Project;
 type Fingerprint = import("./js/protocol.js").Fingerprint;
+type HandinContext = import("./js/protocol.js").HandinContext;
 
 declare function wasm_bindgen(init: { module_or_path: Uint8Array | BufferSource }): Promise<unknown>;
 
@@ -49,6 +50,14 @@ declare namespace wasm_bindgen {
     detectYuv(bytes: Uint8Array, width: number, height: number, layout: string): number;
     finishDetection(): DetectionSummary;
     detectionsText(): string;
+    /** The interval grid: a row per interval ("wide") or per interval, line, direction and class ("long"); CSV ("comma") or for the clipboard ("tab"). */
+    intervalGrid(layout: "wide" | "long", separator: "comma" | "tab", ctx: HandinContext): string;
+    /** The origin–destination matrix of movements. */
+    movementMatrix(separator: "comma" | "tab", ctx: HandinContext): string;
+    /** The client summary, a self-contained printable HTML page. */
+    summaryHtml(ctx: HandinContext): string;
+    /** The stem of the hand-in files' names: site and date. */
+    fileStem(ctx: HandinContext): string;
     free(): void;
   }
 

@@ -74,6 +74,20 @@ function setEdits(json, kind, picture) {
 }
 
 /**
+ * The hand-in tables of the last count, written by the core (CSV and tab-separated), and the stem
+ * of their file names.
+ * @param {import("./js/protocol.js").HandinContext} context
+ * @returns {import("./js/protocol.js").HandIn}
+ */
+function handIn(context) {
+  const s = core();
+  /** @param {"wide" | "long"} layout */
+  const grid = (layout) => ({ csv: s.intervalGrid(layout, "comma", context), tab: s.intervalGrid(layout, "tab", context) });
+  const matrix = { csv: s.movementMatrix("comma", context), tab: s.movementMatrix("tab", context) };
+  return { stem: s.fileStem(context), wide: grid("wide"), long: grid("long"), matrix };
+}
+
+/**
  * Does what `req` asks; its result goes back to the page as it is.
  * @param {RequestMessage} req
  * @param {Progress} progress
@@ -98,6 +112,8 @@ async function perform(req, progress) {
     case "cancelFind": findCancelled = true; return true;
     case "detectionsText": return core().detectionsText();
     case "tracksText": return core().tracksText();
+    case "handIn": return handIn(req.context);
+    case "summaryHtml": return core().summaryHtml(req.context);
     default: throw new Error(`unknown operation ${/** @type {{op: string}} */ (req).op}`);
   }
 }

@@ -25,6 +25,10 @@ import { EditSync } from "./edit-sync.js";
 import { Evidence } from "./evidence.js";
 import { EvidenceSheet } from "./evidence-sheet.js";
 import { ProjectPanel } from "./project-panel.js";
+import { TallyPanel } from "./tally-panel.js";
+import { TallyChecks } from "./tally-checks.js";
+import { HandinPanel } from "./handin-panel.js";
+import { ClientSummary } from "./client-summary.js";
 import { byId, el } from "./dom.js";
 
 const src = sources();
@@ -56,7 +60,11 @@ new ResultsPanel(store, (name) => {
   return method ? method.label : name;
 });
 new ExportsPanel(store, client);
-bindShortcuts(store, picture, editor, review);
+const tally = new TallyPanel(store, picture);
+new TallyChecks(store, review);
+const handin = new HandinPanel(store, client);
+new ClientSummary(store, client, picture, handin);
+bindShortcuts(store, picture, editor, review, tally);
 
 if (store.restored) planSync.send();
 if (store.work.edits.length || store.work.extras.tallies || store.work.extras.correction) editSync.send();

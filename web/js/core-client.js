@@ -232,6 +232,22 @@ export class CoreClient {
   tracksText() {
     return this.call({ op: "tracksText" });
   }
+
+  /**
+   * The hand-in tables of the last count (interval grid, movement matrix) and their file names' stem.
+   * @param {import("./protocol.js").HandinContext} context
+   */
+  handIn(context) {
+    return this.call({ op: "handIn", context });
+  }
+
+  /**
+   * The client summary of the last count, as a printable HTML page.
+   * @param {import("./protocol.js").HandinContext} context with the still, when there is one
+   */
+  summaryHtml(context) {
+    return this.call({ op: "summaryHtml", context });
+  }
 }
 
 /**

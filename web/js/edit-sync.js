@@ -23,7 +23,9 @@ export class EditSync {
     this.store = store;
     this.client = client;
     this.messages = messages;
-    store.subscribe(["edits"], () => this.send());
+    /** Whether the core was last given a project file (its hand counts must then be cleared by another). */
+    this.sentProject = false;
+    store.subscribe(["edits", "checks"], () => this.send());
     store.subscribe(["results"], () => this.sayNotApplied());
   }
 
@@ -41,14 +43,16 @@ export class EditSync {
   }
 
   /**
-   * The corrections as the core takes them: an edits file, or (when a project gave hand counts or
-   * a correction factor) a project file holding them too.
+   * The corrections as the core takes them: an edits file, or (when there are hand counts or a
+   * correction factor, or were at the last send) a project file holding them too.
    * @returns {{json: string, kind: "edits" | "project"}}
    */
   workText() {
     const work = this.store.work;
     const { tallies, correction } = work.extras;
-    if (!tallies && !correction) return { json: editsFileText(work.edits), kind: "edits" };
+    const wanted = Boolean(tallies || correction);
+    if (!wanted && !this.sentProject) return { json: editsFileText(work.edits), kind: "edits" };
+    this.sentProject = wanted;
     const plan = JSON.parse(planForCore(this.store.plan).json);
     const project = { format: "throughline-project", version: 1, plan, edits: work.edits, tallies: tallies || [], correction };
     return { json: JSON.stringify(project), kind: "project" };

@@ -11,8 +11,9 @@ import { CASING, STATE_COLOUR, TAG_GROUND } from "./palette.js";
 /** @typedef {import("./labels.js").Rect} Rect */
 /**
  * A label's content: text, an optional number after it (bold), an optional triangle before it
- * pointing along (dx, dy), and an optional key-colour stripe on its left edge.
- * @typedef {{text: string, count?: string, glyph?: {colour: string, dx: number, dy: number}, stripe?: string, colour?: string}} TagContent
+ * pointing along (dx, dy), an optional key-colour stripe on its left edge, and an optional key
+ * (a hand count's key for this line and direction) first, drawn as a light keycap.
+ * @typedef {{text: string, count?: string, glyph?: {colour: string, dx: number, dy: number}, stripe?: string, colour?: string, keycap?: string}} TagContent
  */
 
 /** Label sizes, screen pixels. */
@@ -203,6 +204,7 @@ function font(px, bold = false) {
 export function tagSize(ctx, tag, px) {
   ctx.font = font(px);
   let w = TAG.pad * 2 * px + ctx.measureText(tag.text).width;
+  if (tag.keycap) w += keycapWidth(ctx, tag.keycap, px) + 4 * px;
   if (tag.glyph) w += (TAG.glyph + 4) * px;
   if (tag.stripe) w += 3 * px;
   if (tag.count !== undefined) {
@@ -231,6 +233,7 @@ export function drawTag(ctx, r, tag, px) {
     ctx.fillRect(r.x, r.y, 3 * px, r.h);
     x += 3 * px;
   }
+  if (tag.keycap) x += drawKeycap(ctx, tag.keycap, x, mid, px) + 4 * px;
   if (tag.glyph) {
     trianglePath(ctx, x + (TAG.glyph / 2) * px, mid, tag.glyph.dx, tag.glyph.dy, TAG.glyph * px);
     ctx.fillStyle = tag.glyph.colour;
@@ -247,4 +250,38 @@ export function drawTag(ctx, r, tag, px) {
     ctx.fillStyle = "#FFFFFF";
     ctx.fillText(tag.count, x, mid + 0.5 * px);
   }
+}
+
+/**
+ * The width of a keycap, video pixels.
+ * @param {Ctx} ctx
+ * @param {string} key
+ * @param {number} px
+ */
+function keycapWidth(ctx, key, px) {
+  ctx.font = font(px, true);
+  return Math.max(14 * px, ctx.measureText(key).width + 6 * px);
+}
+
+/**
+ * A key as a light keycap with its letter in dark, its left edge at x; returns its width.
+ * @param {Ctx} ctx
+ * @param {string} key
+ * @param {number} x
+ * @param {number} mid the label's middle, y
+ * @param {number} px
+ */
+function drawKeycap(ctx, key, x, mid, px) {
+  const w = keycapWidth(ctx, key, px);
+  const h = 14 * px;
+  ctx.textBaseline = "middle";
+  ctx.fillStyle = "#F2F2F2";
+  ctx.beginPath();
+  ctx.roundRect(x, mid - h / 2, w, h, 2.5 * px);
+  ctx.fill();
+  ctx.fillStyle = "#10131A";
+  ctx.textAlign = "center";
+  ctx.fillText(key, x + w / 2, mid + 0.5 * px);
+  ctx.textAlign = "start";
+  return w;
 }

@@ -1,6 +1,6 @@
 // @ts-check
 // Where the labels over the picture go: each line's two count cards (one on each side, the
-// direction's name and its running count) and its name, each zone's name and counts, each ground
+// direction's name and its running count; while a hand count runs, its key and presses instead) and its name, each zone's name and counts, each ground
 // point's name. They are placed once for a plan, its counts and its tracks — not per frame, so they
 // hold still while the footage plays — where the tracks seldom go, never over one another, never
 // over a gate, and never past the picture's edge (labels.js).
@@ -10,6 +10,7 @@ import { tagSize, TAG } from "./marks.js";
 import { forwardSide, centroid } from "./geometry.js";
 import { actionUnder } from "./tracks.js";
 import { DIRECTION_COLOUR, STATE_COLOUR } from "./palette.js";
+import { runningCounts } from "./tally.js";
 
 /** @typedef {import("./geometry.js").Point} Point */
 /** @typedef {import("./labels.js").Rect} Rect */
@@ -29,6 +30,7 @@ import { DIRECTION_COLOUR, STATE_COLOUR } from "./palette.js";
  * @property {LiveCounts | null} live
  * @property {import("./tracks.js").ActionGrid | null} action
  * @property {(name: string) => string} keyColour
+ * @property {import("./tally.js").TallyRun | null} [tally] a hand count under way: its keys go on the count cards
  */
 
 /** Distances from a gate at which a count card may sit, screen pixels, nearest first (clear of its teeth). */
@@ -105,18 +107,21 @@ function blockGates(board, plan, px) {
 function countCards(ctx, input, line, i, put) {
   const side = forwardSide(line.points);
   if (!side) return;
-  const { live, px } = input;
+  const { live, px, tally } = input;
   const total = live ? live.at(line.name, Infinity) : null;
   for (const [dir, sign] of /** @type {const} */ ([["forward", 1], ["backward", -1]])) {
     const n = /** @type {Point} */ ([side.normal[0] * sign, side.normal[1] * sign]);
     const glyph = { colour: DIRECTION_COLOUR[dir], dx: n[0], dy: n[1] };
     const text = line[dir] || dir;
+    const key = tally ? tally.keys.find((k) => k.screenline === line.name && k.direction === dir) : undefined;
     /** @param {number} frame */
     const content = (frame) => {
+      // While a hand count runs, the card shows its key and the presses so far, not the tool's count.
+      if (tally) return { text, glyph, keycap: key ? key.key.toUpperCase() : undefined, count: key ? String(runningCounts(tally).get(key.key) || 0) : undefined };
       const now = live ? live.at(line.name, frame) : null;
       return { text, glyph, count: now ? String(now[dir]) : undefined };
     };
-    const widest = { text, glyph, count: total ? String(total[dir]) : undefined };
+    const widest = tally ? { text, glyph, keycap: key ? key.key.toUpperCase() : undefined, count: key ? "000" : undefined } : { text, glyph, count: total ? String(total[dir]) : undefined };
     const { w, h } = tagSize(ctx, widest, px);
     const reach = (Math.abs(n[0]) * w + Math.abs(n[1]) * h) / 2;
     /** @type {Point[]} */

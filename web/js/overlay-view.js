@@ -1,6 +1,7 @@
 // @ts-check
 // The drawing over the picture as a view: sizes the canvas to the footage and draws the frame's
-// marks (overlay.js) whenever the frame, the plan, the tracks, the counts or the focus change. The
+// marks (overlay.js) whenever the frame, the plan, the tracks, the counts or the focus change;
+// while a hand count runs, only the plan and each line's tally keys and presses. The
 // labels are placed again only when what they depend on changes (overlay-layout.js), so they hold
 // still while the footage plays. The labels drawn, and where, are written on the canvas as
 // `data-labels` (video pixels), so a test can check that none overlaps another or leaves the picture.
@@ -32,7 +33,8 @@ export class OverlayView {
     /** @param {() => void} [also] */
     const redraw = (also) => () => { if (also) also(); this.redraw(); };
     store.subscribe(["picture"], () => this.size());
-    store.subscribe(["plan", "geometry", "tracks", "results"], redraw(() => { this.layout = null; }));
+    store.subscribe(["plan", "geometry", "tracks", "results", "tally"], redraw(() => { this.layout = null; }));
+    store.subscribe(["tallyPress"], redraw());
     store.subscribe(["focus", "tracks", "plan"], redraw(() => { this.focus = this.focusPaths(); }));
     store.subscribe(["selection", "frame", "draft"], redraw());
     window.addEventListener("resize", redraw(() => { this.layout = null; }));
@@ -117,8 +119,11 @@ export class OverlayView {
   redraw() {
     const s = this.store;
     const px = this.px();
+    // While a hand count runs the tool's marks and counts are hidden, so they do not sway the person counting.
+    const tally = s.handCount.run;
+    const live = s.results && !tally ? s.results.live : null;
     if (!this.layout || this.layout.px !== px) {
-      const input = { plan: s.plan, width: this.canvas.width, height: this.canvas.height, px, live: s.results ? s.results.live : null, action: this.actionGrid(), keyColour: (/** @type {string} */ n) => this.keyColour(n) };
+      const input = { plan: s.plan, width: this.canvas.width, height: this.canvas.height, px, live, action: this.actionGrid(), keyColour: (/** @type {string} */ n) => this.keyColour(n), tally };
       this.layout = { ...layoutLabels(this.ctx, input), px };
     }
     const drawn = drawOverlay(this.ctx, {
@@ -126,8 +131,8 @@ export class OverlayView {
       frame: s.frame,
       px,
       selected: s.selected,
-      live: s.results ? s.results.live : null,
-      tracks: s.tracks,
+      live,
+      tracks: tally ? null : s.tracks,
       show: { paths: this.show.paths.checked, boxes: this.show.boxes.checked, numbers: this.show.numbers.checked },
       pathFrames: Math.round(2 * s.fps),
       beadEvery: Math.max(1, Math.round(s.fps / 2)),
@@ -138,6 +143,9 @@ export class OverlayView {
       layout: this.layout,
       keyColour: (name) => this.keyColour(name),
     });
+    // The keys a hand count shows on the picture, and their presses, for the browser tests to read.
+    if (tally) this.canvas.dataset.keycaps = JSON.stringify(this.layout.placed.map((p) => ({ key: p.key, ...p.content(s.frame) })).filter((t) => t.keycap).map(({ key, keycap, count }) => ({ key, keycap, count })));
+    else delete this.canvas.dataset.keycaps;
     this.canvas.dataset.labels = JSON.stringify(drawn.map(({ key, rect }) => ({ key, x: Math.round(rect.x), y: Math.round(rect.y), w: Math.round(rect.w), h: Math.round(rect.h) })));
   }
 }

@@ -2,8 +2,9 @@
 // Keeping a piece of work as a file: Save project writes the plan, the tracking method, the
 // corrections, the review decisions, the site's name and the fingerprints of the footage and
 // detections open (name, size, duration, SHA-256 of the first MiB), in the project file the core
-// reads and writes (docs/project.schema.json); Open project brings it all back. Work opened or kept
-// against other footage or detections than it was made with says so, in a message.
+// reads and writes (docs/project.schema.json), the footage's with the picture's size; Open project
+// brings it all back. Work opened or kept against other footage or detections than it was made
+// with says so, in a message.
 
 import { byId, download, showValue } from "./dom.js";
 import { planForCore } from "./plan.js";
@@ -63,8 +64,7 @@ export class ProjectPanel {
   async save() {
     try {
       const text = await this.client.writeProject(this.project());
-      const stem = this.store.work.site ? this.store.work.site.replace(/[^\w.-]+/g, "-") : "throughline";
-      download(`${stem}-project.json`, text, "application/json");
+      download(projectFileName(this.store.work.site), text, "application/json");
       this.messages.clear("project");
     } catch (e) {
       this.messages.say("project", "error", `The project could not be saved: ${/** @type {Error} */ (e).message}. Fix the plan (under Set up), then save again.`);
@@ -98,6 +98,9 @@ export class ProjectPanel {
     if (!footage) return;
     const duration = this.store.video.playable ? this.store.video.duration : 0;
     const print = await this.client.fingerprint(footage.name.replace(/^demo /, ""), footage.blob, Number.isFinite(duration) ? duration : 0);
+    // The picture's size goes with it: `throughline review` and the client summary's sketch read it.
+    const { playable, width, height } = this.store.video;
+    if (playable && width > 0 && height > 0) Object.assign(print, { width, height });
     if (this.store.footage === footage) this.store.fileFingerprinted("footage", print);
   }
 
@@ -124,4 +127,12 @@ export class ProjectPanel {
     if (!why.length) return this.messages.clear("project-files");
     this.messages.say("project-files", "warn", `This work was made with other files. ${why.join(" ")} Its corrections name tracks of those files, so they may not apply here: open the footage and detections it was made with, or check each correction under Review, Edits.`);
   }
+}
+
+/**
+ * The name Save project gives the project file: from the site's name, when there is one.
+ * @param {string} site
+ */
+export function projectFileName(site) {
+  return `${site ? site.replace(/[^\w.-]+/g, "-") : "throughline"}-project.json`;
 }

@@ -44,8 +44,9 @@
  */
 /**
  * What a file was, to tell whether work is opened against the same one (crate/core/src/fingerprint.rs):
- * its name, size in bytes, the SHA-256 of its first MiB, and for footage its duration in seconds.
- * @typedef {{name: string, size: number, head_sha256: string, duration_seconds?: number}} Fingerprint
+ * its name, size in bytes, the SHA-256 of its first MiB, and for footage its duration in seconds
+ * and the picture's size in pixels.
+ * @typedef {{name: string, size: number, head_sha256: string, duration_seconds?: number, width?: number, height?: number}} Fingerprint
  */
 
 /**
@@ -61,10 +62,24 @@
  * @property {import("./edits.js").Edit[]} edits
  * @property {{key: string, decision: string}[]} review
  * @property {string} [site]
- * @property {unknown[]} [tallies]
- * @property {unknown} [correction]
+ * @property {import("./tally.js").Tally[]} [tallies]
+ * @property {import("./tally.js").Correction} [correction]
  * @property {Fingerprint} [footage]
  * @property {Fingerprint} [detections]
+ */
+
+/**
+ * What the hand-in outputs say about where the counts come from (crate/core/src/handin, Context):
+ * the site, the plan's and project's file names, the footage and detections (fingerprints) and,
+ * for the client summary, a still of the footage as a `data:image/...` URL.
+ * @typedef {{site?: string, plan_name?: string, footage?: Fingerprint, detections?: Fingerprint, still?: string, project_name?: string}} HandinContext
+ */
+/** A table as CSV (the file) and as tab-separated text (for the clipboard). @typedef {{csv: string, tab: string}} SheetText */
+/**
+ * The hand-in tables written by the core: the stem of their file names (site and date), the
+ * interval grid with a row per interval (`wide`) or per interval, line, direction and class
+ * (`long`), and the movement matrix.
+ * @typedef {{stem: string, wide: SheetText, long: SheetText, matrix: SheetText}} HandIn
  */
 
 /** @typedef {"short_track" | "joined_track" | "close_together" | "hidden" | "barely_seen" | "starts_near_line" | "ends_near_line" | "class_changes"} DoubtKind */
@@ -137,10 +152,12 @@
  * @typedef {{op: "cancelFind"}} CancelFindRequest
  * @typedef {{op: "detectionsText"}} DetectionsTextRequest
  * @typedef {{op: "tracksText"}} TracksTextRequest
+ * @typedef {{op: "handIn", context: HandinContext}} HandInRequest
+ * @typedef {{op: "summaryHtml", context: HandinContext}} SummaryHtmlRequest
  * @typedef {InitRequest | LoadDetectionsRequest | SetPlanRequest | TrackRequest | StartDetectionRequest | DetectRgbaRequest
  *   | FinishDetectionRequest | FindInFootageRequest | CancelFindRequest | DetectionsTextRequest | TracksTextRequest
  *   | SetEditsRequest | EditsTextRequest | ReadProjectRequest | WriteProjectRequest | FingerprintRequest
- *   | FingerprintDiffersRequest} Request
+ *   | FingerprintDiffersRequest | HandInRequest | SummaryHtmlRequest} Request
  * @typedef {Request & {id: number}} RequestMessage a request as posted to the worker
  */
 
@@ -164,6 +181,8 @@
  * @property {true} cancelFind
  * @property {string} detectionsText
  * @property {string} tracksText
+ * @property {HandIn} handIn
+ * @property {string} summaryHtml the client summary, a printable HTML page
  */
 
 /**

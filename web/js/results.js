@@ -24,6 +24,8 @@ import { itemNames } from "./palette.js";
  * @property {CountEvent[]} events
  * @property {import("./edits.js").Outcome[]} [edits] the person's corrections, each with what it did or why it could not
  * @property {CountEvent[]} [rejected_events] counted crossings a person rejected; in no count
+ * @property {import("./tally-checks.js").TallyCheck[]} [checks] each hand count beside the tool's count of its frames
+ * @property {import("./tally-checks.js").AppliedCorrection} [correction] a correction factor the person chose, and what it gives
  */
 /** @typedef {{forward: number, backward: number}} DirectionCounts */
 /** @typedef {{start: string, end: string, partial: boolean, forward: number, backward: number, by_class: Record<string, DirectionCounts>}} IntervalCount */

@@ -5,22 +5,27 @@
 // selected line or zone. Ctrl+Z undoes what the view shown changes: the corrections and decisions
 // while reviewing, the plan otherwise; Ctrl+Shift+Z or Ctrl+Y redoes a correction. While reviewing,
 // N and P go to the next and previous doubtful moment, A accepts it (the count stands), R rejects
-// it (or the crossing chosen). No key here is one a tab list or a button already answers.
+// it (or the crossing chosen). While a hand count runs, each line's key counts a crossing and
+// Backspace takes back the last press, before anything else (tally-panel.js), except while typing.
+// No key here is one a tab list or a button already answers.
 
 /** @typedef {import("./store.js").PageStore} PageStore */
 /** @typedef {import("./picture.js").Picture} Picture */
 /** @typedef {import("./editor.js").Editor} Editor */
 /** @typedef {import("./review.js").Review} Review */
+/** @typedef {import("./tally-panel.js").TallyPanel} TallyPanel */
 
 /**
  * @param {PageStore} store
  * @param {Picture} picture
  * @param {Editor} editor
  * @param {Review} review
+ * @param {TallyPanel} tally
  */
-export function bindShortcuts(store, picture, editor, review) {
+export function bindShortcuts(store, picture, editor, review, tally) {
   document.addEventListener("keydown", (e) => {
     if (e.defaultPrevented) return; // taken already (the arrow keys on a tab list move between tabs)
+    if (tally.handleKey(e)) return e.preventDefault();
     const target = e.target instanceof Element ? e.target : null;
     if (target && target.closest("input, select, textarea")) return;
     // On a button, Enter and Space press it; Delete and Backspace there are no reason to delete a

@@ -8,6 +8,7 @@ import { LiveCounts } from "./live-counts.js";
 import { KeyColours } from "./palette.js";
 import { ReviewWork } from "./work.js";
 import { editsFileText } from "./edits.js";
+import { HandCount } from "./hand-count.js";
 
 /** @typedef {import("./plan.js").Plan} Plan */
 /** @typedef {import("./plan.js").PlanChange} PlanChange */
@@ -23,7 +24,7 @@ import { editsFileText } from "./edits.js";
  * What an action changed. "geometry": plan points moved in place while dragging (drawing only).
  * @typedef {"plan" | "geometry" | "selection" | "frame" | "footage" | "video" | "picture" | "detections"
  *   | "tracks" | "results" | "busy" | "planProblem" | "planName" | "frameRate" | "tool" | "draft" | "view"
- *   | "reviewTab" | "focus" | "edits" | "marks" | "site" | "prints" | "method"} Topic
+ *   | "reviewTab" | "focus" | "edits" | "marks" | "site" | "prints" | "method" | "tally" | "tallyPress" | "checks"} Topic
  */
 /** @typedef {{changed: Set<Topic>, why: string}} Change `why`: for "plan", a PlanChange */
 /** @typedef {(change: Change) => void} Listener */
@@ -40,7 +41,7 @@ import { editsFileText } from "./edits.js";
  */
 /** @typedef {{report: import("./results.js").Report, reportText: string, csv: string, live: LiveCounts}} Results */
 /** What the person is doing: setting up, reviewing against the footage, reading the results. @typedef {"setup" | "review" | "results"} View */
-/** The review's lists. @typedef {"doubtful" | "tracks" | "events" | "edits"} ReviewTab */
+/** The review's lists. @typedef {"doubtful" | "tracks" | "events" | "edits" | "tally"} ReviewTab */
 /**
  * The tracks being reviewed (tracker ids), the count event chosen, if one was, and the doubtful
  * moment chosen, if one was.
@@ -75,6 +76,8 @@ export class PageStore {
     /** The corrections and review decisions, kept from an earlier visit when there were any. */
     this.work = new ReviewWork(storage);
     this.workRestored = this.work.restore();
+    /** The hand counts: the tally under way, those kept, the correction factor chosen (hand-count.js). */
+    this.handCount = new HandCount(this.work, (topics) => this.emit(topics));
     /** @type {{footage: Fingerprint | null, detections: Fingerprint | null}} the files open now */
     this.prints = { footage: null, detections: null };
     /** @type {string | null} the selected line or zone: "line:2", "zone:0" */
@@ -457,7 +460,7 @@ export class PageStore {
       madeWith: { footage: project.footage || null, detections: project.detections || null },
       extras,
     });
-    this.emit(["plan", "planName", "method", "edits", "marks", "site"], "file");
+    this.emit(["plan", "planName", "method", "edits", "marks", "site", "checks"], "file");
   }
 
   /** @param {string} name the site's name, for the project file and printed sheets */

@@ -8,7 +8,7 @@
 /** A decision on a doubtful moment: the count stands, or it was wrong. @typedef {"accepted" | "rejected"} Decision */
 /** @typedef {import("./protocol.js").Fingerprint} Fingerprint */
 /** The footage and detections a piece of work was made with. @typedef {{footage: Fingerprint | null, detections: Fingerprint | null}} Prints */
-/** What a project file holds that the page keeps but does not edit: hand counts and a chosen correction factor. @typedef {{tallies?: unknown[], correction?: unknown}} Extras */
+/** What a project file holds beside the corrections: hand counts and a chosen correction factor (hand-count.js changes them). @typedef {{tallies?: import("./tally.js").Tally[], correction?: import("./tally.js").Correction}} Extras */
 /** The parts of the work that Undo brings back. @typedef {{edits: Edit[], marks: [string, Decision][]}} Snapshot */
 
 const STORAGE_KEY = "throughline.review.v1";

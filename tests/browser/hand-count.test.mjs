@@ -1,0 +1,140 @@
+// A hand count made with key presses over the second half of the demo (0:15 to 0:30, frames 376 to
+// 750), pressing at the simulator's true crossings (demo-site/demo/truth_report.json, our own
+// simulator's truth): the comparison the page shows puts the true counts beside the tool's count
+// of the same frames (the command line's report of the same detections and plan), with the
+// differences and APD, AAPD, WAPD and the correction factor as NCHRP Report 797 defines them
+// (worked out here from those counts, formulas as in ../shared/notes/trade.md). Backspace takes
+// back a wrong press; a press outside the sample is refused; each line's keys are drawn on the
+// picture beside its sides. Choosing the one difference lists the tool's event behind it (the
+// walker counted twice at 0:20, track 23); rejecting it with R leaves no difference. On a phone
+// the keys are buttons, and nothing scrolls sideways.
+import { test } from "node:test";
+import assert from "node:assert/strict";
+import { readFileSync } from "node:fs";
+import { useBrowser, openPage, run, showView, screenshot, demo, LAPTOP, PHONE } from "./harness.mjs";
+import { goToFrame, uncorrected } from "./review-helpers.mjs";
+import { trueCrossings, startTally, pressAt, keyOf } from "./handin-helpers.mjs";
+
+const env = useBrowser();
+const FROM = 376;
+const TO = 750;
+const plan = JSON.parse(readFileSync(demo("plan.json"), "utf8"));
+/** The plan's label of a line's direction. */
+const label = (line, way) => plan.screenlines.find((l) => l.name === line)[way];
+
+/** The comparison's rows on screen: {"line|direction": {hand, tool, difference, apd, aapd, wapd, factor}}. */
+async function shownRows(page) {
+  const rows = await page.locator(".tally-check").first().locator("tbody tr").evaluateAll((trs) => trs.map((tr) => [...tr.cells].map((c) => c.innerText.trim())));
+  return Object.fromEntries(rows.map(([what, hand, tool, difference, apd, aapd, wapd, factor]) => {
+    const [line, direction] = what.split("\n");
+    return [direction ? `${line}|${direction.replace(/^[▲▼] /, "")}` : line, { hand: Number(hand), tool: Number(tool), difference, apd, aapd, wapd, factor }];
+  }));
+}
+
+/** A share as the page prints it. */
+const pct = (v, signed = false) => (v === null ? "n/a" : `${signed && v > 0 ? "+" : ""}${(100 * v).toFixed(1)}%`);
+
+test("a tally by key presses over part of the demo is compared with the tool's count, against the simulator's truth", async () => {
+  const { page, seen } = await openPage(env, { viewport: LAPTOP });
+  await run(page);
+  await showView(page, "Review");
+  await startTally(page, "Ana", "0:15", "0:30");
+  assert.match(await page.locator("#tally-status").innerText(), /Ana counting 0:15\.00–0:30\.00/);
+
+  // One key per line and direction, on screen and on the picture beside the line's sides.
+  const keys = {};
+  for (const l of plan.screenlines) for (const way of ["forward", "backward"]) keys[`${l.name}|${way}`] = await keyOf(page, l.name, l[way]);
+  assert.equal(new Set(Object.values(keys)).size, 4, `four keys: ${JSON.stringify(keys)}`);
+  const onPicture = JSON.parse(await page.locator("#overlay").getAttribute("data-keycaps"));
+  assert.deepEqual(onPicture.map((k) => [k.key, k.keycap]).sort(), [["line:0:backward", keys["plaza midline|backward"]], ["line:0:forward", keys["plaza midline|forward"]], ["line:1:backward", keys["east-west divide|backward"]], ["line:1:forward", keys["east-west divide|forward"]]].sort());
+
+  // Outside the sample a press is refused, and said so.
+  await pressAt(page, 300, keys["plaza midline|forward"]);
+  assert.match(await page.locator("#tally-status").innerText(), /Not counted: frame 300 is outside the sample \(frames 376 to 750\)/);
+
+  // A press at every true crossing of the sample (the simulator's truth), one wrong press taken back.
+  const truth = trueCrossings(FROM, TO);
+  assert.ok(truth.length >= 4, `${truth.length} true crossings in the sample`);
+  for (const c of truth) await pressAt(page, c.frame, keys[`${c.name}|${c.direction}`]);
+  await pressAt(page, 700, keys["east-west divide|forward"]);
+  await page.keyboard.press("Backspace");
+  assert.match(await page.locator("#tally-status").innerText(), /Taken back: east-west divide ▲ at frame 700/);
+  const expected = {};
+  for (const k of Object.keys(keys)) expected[k] = truth.filter((c) => `${c.name}|${c.direction}` === k).length;
+  for (const [k, key] of Object.entries(keys)) {
+    assert.equal(await page.locator(`#tally-keys button[data-key="${key}"] .count`).innerText(), String(expected[k]), `running count of ${k}`);
+  }
+  const drawn = JSON.parse(await page.locator("#overlay").getAttribute("data-keycaps"));
+  assert.deepEqual(drawn.map((k) => Number(k.count)).reduce((a, b) => a + b), truth.length, "the presses are on the picture too");
+  await screenshot(page, "16-hand-count-laptop", { fullPage: false });
+
+  // Finished: beside the tool's count of the same frames (the command line's report: the same core).
+  await page.getByRole("button", { name: "Finish and compare" }).click();
+  await page.waitForSelector(".tally-check tbody tr");
+  const tool = uncorrected().events.filter((e) => e.kind === "screenline" && e.frame >= FROM && e.frame <= TO);
+  const rows = await shownRows(page);
+  const pairs = [];
+  for (const [k, m] of Object.entries(expected)) {
+    const [line, way] = k.split("|");
+    const a = tool.filter((e) => `${e.name}|${e.direction}` === k).length;
+    const row = rows[`${line}|${label(line, way)}`];
+    assert.equal(row.hand, m, `${k}: by hand = the simulator's truth`);
+    assert.equal(row.tool, a, `${k}: the tool's count of frames ${FROM}-${TO}`);
+    assert.equal(row.difference, a - m > 0 ? `+${a - m}` : String(a - m));
+    pairs.push([a, m]);
+  }
+  // NCHRP Report 797 over the sample's one bin per line and direction (15 s: one bin), pooled.
+  const withM = pairs.filter(([, m]) => m > 0);
+  const apd = withM.reduce((s, [a, m]) => s + (a - m) / m, 0) / withM.length;
+  const aapd = withM.reduce((s, [a, m]) => s + Math.abs(a - m) / m, 0) / withM.length;
+  const [sumA, sumM] = pairs.reduce(([sa, sm], [a, m]) => [sa + a, sm + m], [0, 0]);
+  const wapd = pairs.reduce((s, [a, m]) => s + Math.abs(a - m), 0) / sumM;
+  const total = rows["All lines together"];
+  assert.deepEqual([total.hand, total.tool, total.apd, total.aapd, total.wapd, total.factor], [sumM, sumA, pct(apd, true), pct(aapd), pct(wapd), (sumM / sumA).toFixed(3)]);
+  // On the demo: the tool counts one walker twice on the divide (westbound, frame 501).
+  assert.equal(rows[`east-west divide|${label("east-west divide", "forward")}`].difference, "+1");
+  const card = page.locator(".tally-check").first();
+  assert.match(await card.innerText(), /Sample size: 15\.0 s of footage \(07:00:15 to 07:00:30\), 4 crossings counted by hand/);
+  assert.match(await card.locator(".caution").innerText(), /loose estimate/);
+
+  // The difference lists the tool's event behind it; rejecting it (R, Enter) leaves none.
+  await card.getByRole("button", { name: /^\+1: show the tool's count events of east-west divide, westbound/ }).click();
+  const listed = card.locator(".bin-events .review-list button");
+  assert.equal(await listed.count(), 1);
+  assert.match(await listed.innerText(), /east-west divide: westbound[\s\S]*track 23/);
+  await listed.click();
+  await page.waitForFunction(() => /track 23/.test(document.getElementById("focus-strip").textContent));
+  await page.keyboard.press("r");
+  await page.getByLabel("Why it is wrong").fill("counted twice");
+  await page.keyboard.press("Enter");
+  await page.waitForFunction(() => document.querySelector(".tally-check tr.total").cells[3].textContent === "0");
+  const after = (await shownRows(page))["All lines together"];
+  assert.deepEqual([after.hand, after.tool, after.difference, after.wapd, after.factor], [sumM, sumM, "0", "0.0%", "1.000"]);
+  assert.match(await page.locator("#tally-correction").innerText(), /No correction factor applied/);
+  assert.match(await card.locator(".bin-events").innerText(), /The tool counted none here\.[\s\S]*track 23[\s\S]*rejected by you: counted twice/);
+  await card.scrollIntoViewIfNeeded();
+  await screenshot(page, "16-hand-count-compared-laptop", { fullPage: false });
+  assert.deepEqual(seen.errors, []);
+  assert.deepEqual(seen.foreign, []);
+  await page.close();
+});
+
+test("on a phone the tally's keys are buttons, and nothing scrolls sideways", async () => {
+  const { page, seen } = await openPage(env, { viewport: PHONE });
+  await run(page);
+  await showView(page, "Review");
+  await startTally(page, "Ben", "0:00", "0:10");
+  await goToFrame(page, 16);
+  // The simulator's first true crossing: the divide, westbound, at frame 16 (truth_report.json).
+  assert.deepEqual(trueCrossings(1, 250)[0], { frame: 16, name: "east-west divide", direction: "forward", class: "cyclist" });
+  await page.getByRole("button", { name: /^east-west divide, westbound \(key/ }).click();
+  const key = await keyOf(page, "east-west divide", "westbound");
+  assert.equal(await page.locator(`#tally-keys button[data-key="${key}"] .count`).innerText(), "1");
+  const [scroll, width] = await page.evaluate(() => [document.documentElement.scrollWidth, innerWidth]);
+  assert.ok(scroll <= width, `counting: page ${scroll} px wide in a ${width} px window`);
+  await screenshot(page, "16-hand-count-phone", { fullPage: false });
+  await page.getByRole("button", { name: "Discard" }).click();
+  assert.equal(await page.locator("#tally-live").isHidden(), true);
+  assert.deepEqual(seen.errors, []);
+  await page.close();
+});

@@ -1,0 +1,97 @@
+// @ts-check
+// The hand counts' part of the page store: the tally under way (not kept: a reload drops it), the
+// tallies finished (kept with the review's work, so in the browser's storage and the project file)
+// and the correction factor the person chose, if any. It changes only through the named actions
+// below, each telling the store's views what changed ("tally": a tally started or ended;
+// "tallyPress": a press made or taken back; "checks": the tallies kept or the factor changed, so
+// the core counts again with them).
+
+/** @typedef {import("./tally.js").Tally} Tally */
+/** @typedef {import("./tally.js").TallyRun} TallyRun */
+/** @typedef {import("./tally.js").Press} Press */
+/** @typedef {import("./tally.js").Correction} Correction */
+/** @typedef {import("./work.js").ReviewWork} ReviewWork */
+/** @typedef {(topics: import("./store.js").Topic[]) => void} Emit */
+
+export class HandCount {
+  /**
+   * @param {ReviewWork} work where the finished tallies and the factor are kept
+   * @param {Emit} emit tells the store's views
+   */
+  constructor(work, emit) {
+    this.work = work;
+    this.emit = emit;
+    /** @type {TallyRun | null} the tally under way */
+    this.run = null;
+  }
+
+  /** The tallies finished, in the order made. @returns {Tally[]} */
+  get tallies() {
+    return this.work.extras.tallies || [];
+  }
+
+  /** The correction factor chosen, or null. @returns {Correction | null} */
+  get correction() {
+    return this.work.extras.correction || null;
+  }
+
+  /** @param {TallyRun} run a new tally, with no presses yet */
+  tallyStarted(run) {
+    this.run = run;
+    this.emit(["tally"]);
+  }
+
+  /** @param {Press} press a crossing seen */
+  tallyPressed(press) {
+    if (!this.run) return;
+    this.run.tally.presses.push(press);
+    this.emit(["tallyPress"]);
+  }
+
+  /** Takes back the last press; returns it, or null when there was none. */
+  tallyPressUndone() {
+    const last = this.run ? this.run.tally.presses.pop() : undefined;
+    if (!last) return null;
+    this.emit(["tallyPress"]);
+    return last;
+  }
+
+  /** The tally under way is finished: it is kept, and the core compares it. */
+  tallyFinished() {
+    if (!this.run) return;
+    this.keep([...this.tallies, this.run.tally], this.correction);
+    this.run = null;
+    this.emit(["tally", "checks"]);
+  }
+
+  /** The tally under way is dropped, unkept. */
+  tallyDropped() {
+    this.run = null;
+    this.emit(["tally"]);
+  }
+
+  /** @param {number} index a kept tally, deleted */
+  tallyDeleted(index) {
+    this.keep(this.tallies.filter((_, i) => i !== index), this.correction);
+    this.emit(["checks"]);
+  }
+
+  /** @param {Correction | null} correction the factor chosen, or none */
+  correctionChosen(correction) {
+    this.keep(this.tallies, correction);
+    this.emit(["checks"]);
+  }
+
+  /**
+   * @param {Tally[]} tallies
+   * @param {Correction | null} correction
+   */
+  keep(tallies, correction) {
+    /** @type {import("./work.js").Extras} */
+    const extras = {};
+    if (tallies.length) extras.tallies = tallies;
+    if (correction) extras.correction = correction;
+    this.work.extras = extras;
+    this.work.save();
+  }
+}
