@@ -1,5 +1,6 @@
-// The counts-per-interval charts, read as a person reads them: with 6-second intervals the demo
-// gives five intervals a line. Each line's chart must have whole-number ticks rising from 0 evenly
+// The counts-per-interval charts, read as a person reads them: the demo read at 6.25 frames a
+// second (its 750 frames then last two minutes) in 15-second intervals, the shortest a plan
+// takes, gives eight intervals a line. Each line's chart must have whole-number ticks rising from 0 evenly
 // to at least its tallest bar, a legend naming both directions, and the two directions' bars told
 // apart by pattern as well as colour. The bar heights are the exported report's interval counts.
 // (Ticks at whole steps of 1, 2 or 5 times a power of ten: common practice for count axes.)
@@ -15,7 +16,9 @@ const scratch = mkdtempSync(join(tmpdir(), "tl-chart-"));
 
 test("each line's chart: whole, evenly rising ticks from 0, a legend of both directions, bars by pattern", async () => {
   const { page, seen } = await openPage(env, { viewport: LAPTOP });
-  await page.getByLabel("Interval (minutes)").fill("0.1");
+  await page.getByLabel("Frame rate (fps)").fill("6.25");
+  await page.getByLabel("Frame rate (fps)").press("Tab");
+  await page.getByLabel("Interval (minutes)").fill("0.25");
   await page.getByLabel("Interval (minutes)").press("Tab");
   await run(page);
   const report = JSON.parse(await downloadText(page, "Export report", scratch));
@@ -24,7 +27,7 @@ test("each line's chart: whole, evenly rising ticks from 0, a legend of both dir
   assert.equal(await figures.count(), report.screenlines.length, "one chart per line");
 
   for (const [i, line] of report.screenlines.entries()) {
-    assert.equal(line.intervals.length, 5, "30 s of footage in 6 s intervals");
+    assert.equal(line.intervals.length, 8, "120 s of footage in 15 s intervals");
     const figure = figures.nth(i);
     const ticks = (await figure.locator("text.tick").allTextContents()).map((t) => t.trim());
     for (const t of ticks) assert.match(t, /^\d+$/, `tick "${t}" is a whole number`);
@@ -44,8 +47,8 @@ test("each line's chart: whole, evenly rising ticks from 0, a legend of both dir
     })));
     const forward = bars.filter((b) => b.dir === "forward");
     const backward = bars.filter((b) => b.dir === "backward");
-    assert.equal(forward.length, 5);
-    assert.equal(backward.length, 5);
+    assert.equal(forward.length, 8);
+    assert.equal(backward.length, 8);
     assert.ok(forward.every((b) => !b.fill.startsWith("url(")), "forward bars are solid");
     assert.ok(backward.every((b) => b.fill.startsWith("url(#")), "backward bars are hatched");
     line.intervals.forEach((iv, k) => {
@@ -53,7 +56,7 @@ test("each line's chart: whole, evenly rising ticks from 0, a legend of both dir
       assert.match(backward[k].title, new RegExp(`: ${iv.backward}$`));
     });
   }
-  await page.locator("#chart").screenshot({ path: join(artefacts, "15-chart-six-second-intervals.png") });
+  await page.locator("#chart").screenshot({ path: join(artefacts, "15-chart-fifteen-second-intervals.png") });
   assert.deepEqual(seen.errors, []);
   await page.close();
 });
