@@ -32,26 +32,15 @@ export function stillOf(video) {
 }
 
 /**
- * The summary's body as nodes of this page. Its head (own style sheet and policy) is left out, and
- * its inline `style` attributes are set through the style object instead, which the page's policy
- * allows: the parser never sees one. (The core escapes every quote in text and attribute values,
- * so ` style="` can only be an attribute.)
+ * The summary's body as nodes of this page. Its head (own style sheet and policy) is left out; the
+ * core writes no inline `style` attribute (colours are SVG fills), so the page's policy holds.
  * @param {string} html
  * @returns {Node[]}
  */
 export function summaryNodes(html) {
-  const body = html.slice(html.indexOf("<body>") + 6, html.lastIndexOf("</body>")).replace(/ style="/g, ' data-style="');
+  const body = html.slice(html.indexOf("<body>") + 6, html.lastIndexOf("</body>"));
   const doc = new DOMParser().parseFromString(`<!doctype html><html><head></head><body>${body}</body></html>`, "text/html");
-  const nodes = [...doc.body.childNodes].map((n) => document.importNode(n, true));
-  for (const n of nodes) {
-    if (!(n instanceof Element)) continue;
-    for (const s of [n, ...n.querySelectorAll("[data-style]")]) {
-      if (!(s instanceof HTMLElement || s instanceof SVGElement) || !s.hasAttribute("data-style")) continue;
-      s.style.cssText = s.getAttribute("data-style") || "";
-      s.removeAttribute("data-style");
-    }
-  }
-  return nodes;
+  return [...doc.body.childNodes].map((n) => document.importNode(n, true));
 }
 
 export class ClientSummary {

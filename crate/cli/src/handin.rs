@@ -53,7 +53,11 @@ pub fn context(inputs: &Inputs) -> Result<Context, Failure> {
             eprintln!("warning: {why}");
         }
     }
-    let still = inputs.still.map(still_url).transpose()?;
+    let still_bytes = inputs.still.map(read_file).transpose()?;
+    let still = match (inputs.still, &still_bytes) {
+        (Some(path), Some(bytes)) => Some(still_url(path, bytes)?),
+        _ => None,
+    };
     Ok(Context {
         site: inputs
             .site
@@ -64,12 +68,12 @@ pub fn context(inputs: &Inputs) -> Result<Context, Failure> {
         detections,
         still,
         project_name: inputs.project.map(|(path, _)| file_name(path)),
+        still_size: still_bytes.as_deref().and_then(handin::picture_size),
     })
 }
 
 /// An image file as a `data:` URL.
-fn still_url(path: &Path) -> Result<String, Failure> {
-    let bytes = read_file(path)?;
+fn still_url(path: &Path, bytes: &[u8]) -> Result<String, Failure> {
     let kind = if bytes.starts_with(b"\x89PNG") {
         "image/png"
     } else if bytes.starts_with(&[0xFF, 0xD8]) {
@@ -78,7 +82,7 @@ fn still_url(path: &Path) -> Result<String, Failure> {
         return Err(bad_input(path, "the still must be a PNG or JPEG picture"));
     };
     use base64::Engine as _;
-    let encoded = base64::engine::general_purpose::STANDARD.encode(&bytes);
+    let encoded = base64::engine::general_purpose::STANDARD.encode(bytes);
     Ok(format!("data:{kind};base64,{encoded}"))
 }
 

@@ -123,3 +123,45 @@ fn a_projects_tallies_are_checked_in_the_report_and_by_score_counts() {
         "{out}"
     );
 }
+
+#[test]
+fn the_summary_draws_the_plan_at_the_stills_own_size() {
+    if !ffmpeg_or_skip("the_summary_draws_the_plan_at_the_stills_own_size") {
+        return;
+    }
+    // Stills of the demo footage at half size, as PNG and as JPEG, by ffmpeg; their size read
+    // from their headers must be ffmpeg's (320×180), so the plan is drawn over them in place.
+    let dir = scratch("still-size");
+    for name in ["still.png", "still.jpg"] {
+        let still = dir.join(name);
+        let status = std::process::Command::new("ffmpeg")
+            .args(["-v", "error", "-y", "-i", &demo("footage.webm")])
+            .args(["-frames:v", "1", "-vf", "scale=320:180"])
+            .arg(&still)
+            .status()
+            .unwrap();
+        assert!(status.success());
+        let report = dir.join("report.json").display().to_string();
+        let o = throughline(&[
+            "run",
+            &demo("detections.csv"),
+            "--plan",
+            &demo("plan.json"),
+            "-o",
+            &report,
+            "-q",
+            "--site",
+            "Still",
+            "--still",
+            &still.display().to_string(),
+        ]);
+        assert!(o.status.success(), "{}", stderr(&o));
+        let summary = std::fs::read_to_string(dir.join("still_2026-03-02_summary.html")).unwrap();
+        assert!(
+            summary.contains("viewBox=\"0 0 320 180\""),
+            "{name}: {}",
+            &summary[summary.find("<svg").unwrap_or(0)..][..200]
+        );
+        assert!(!summary.contains(" style=\""), "no inline style attributes");
+    }
+}

@@ -113,6 +113,11 @@ fn a_four_minute_tally_worked_by_hand() {
     let bins: Vec<(u64, u64)> = south.per_bin.iter().map(|b| (b.1, b.2)).collect();
     assert_eq!(bins, vec![(9, 10), (11, 10), (10, 10), (8, 10)]);
     assert_eq!(south.per_bin[1].0, "2026-03-02T07:01:00");
+    // Minute i holds frames 600i + 1 to 600(i + 1) at 10 frames a second.
+    assert_eq!(
+        check.bin_frames,
+        vec![[1, 600], [601, 1200], [1201, 1800], [1801, 2400]]
+    );
     // The other direction: nothing by hand, nothing automated.
     let north = check
         .groups
@@ -182,4 +187,31 @@ fn classes_pressed_are_compared_class_by_class() {
             ("north", "all", 0, 0)
         ]
     );
+}
+
+#[test]
+fn a_short_sample_is_told_in_seconds_and_frames_past_the_footage_are_not_counted() {
+    let mut hand = tally(&[3]);
+    hand.to_frame = 150;
+    let report = report_with(
+        &[3],
+        &Work {
+            tallies: vec![hand.clone()],
+            ..Work::default()
+        },
+    );
+    let check = &report.checks[0];
+    assert!(check.caution.contains("15 seconds"), "{}", check.caution);
+    assert_eq!(check.bin_frames, vec![[1, 150]]);
+    // A tally said to run to the last possible frame is cut at the footage's end (600 frames).
+    hand.to_frame = u32::MAX;
+    let report = report_with(
+        &[3],
+        &Work {
+            tallies: vec![hand],
+            ..Work::default()
+        },
+    );
+    assert_eq!(report.checks[0].to_frame, 600);
+    assert_eq!(report.checks[0].bin_frames, vec![[1, 600]]);
 }

@@ -71,6 +71,18 @@ impl Bins<'_> {
         clock_label(self.report, seconds)
     }
 
+    /// The first and last frame of bin `i` (the frames `index` puts in it).
+    fn frames(&self, i: usize) -> [u32; 2] {
+        let per_bin = self.bin * self.fps;
+        let first = |k: usize| self.from + (k as f64 * per_bin).ceil() as u32;
+        let end = if i + 1 == self.count {
+            self.to
+        } else {
+            first(i + 1).saturating_sub(1).min(self.to)
+        };
+        [first(i).min(self.to), end]
+    }
+
     fn start(&self, i: usize) -> String {
         self.label((f64::from(self.from) - 1.0) / self.fps + i as f64 * self.bin)
     }
@@ -136,9 +148,12 @@ fn group(
 /// Compares a tally with the report's (corrected) events in the same frames.
 pub fn check(tally: &Tally, report: &Report) -> TallyCheck {
     let fps = report.plan.frame_rate;
+    // Within the footage: frames past its end hold nothing to compare (and a file saying so
+    // must not make the bins grow without bound).
+    let last = report.frame_count.max(1);
     let (from, to) = (
-        tally.from_frame.min(tally.to_frame).max(1),
-        tally.from_frame.max(tally.to_frame).max(1),
+        tally.from_frame.min(tally.to_frame).clamp(1, last),
+        tally.from_frame.max(tally.to_frame).clamp(1, last),
     );
     let seconds = f64::from(to - from + 1) / fps;
     let bin = bin_seconds(seconds, report.plan.interval_minutes * 60.0);
@@ -179,6 +194,7 @@ pub fn check(tally: &Tally, report: &Report) -> TallyCheck {
         to: bins.label(f64::from(to) / fps),
         seconds: (seconds * 1000.0).round() / 1000.0,
         bin_seconds: (bin * 1000.0).round() / 1000.0,
+        bin_frames: (0..bins.count).map(|i| bins.frames(i)).collect(),
         caution: caution(seconds, overall.reference_total),
         groups,
         overall,
@@ -197,7 +213,12 @@ fn clock_label(report: &Report, seconds: f64) -> String {
 /// The thresholds (an hour, a hundred crossings) are our own rule of thumb.
 fn caution(seconds: f64, counted: u64) -> String {
     let minutes = seconds / 60.0;
-    let size = format!("{minutes:.1} minutes and {counted} crossings counted by hand");
+    let length = if seconds < 120.0 {
+        format!("{seconds:.0} seconds")
+    } else {
+        format!("{minutes:.1} minutes")
+    };
+    let size = format!("{length} and {counted} crossings counted by hand");
     if minutes < 60.0 || counted < 100 {
         format!(
             "A sample of {size} gives only a loose estimate of the error: differences this small \

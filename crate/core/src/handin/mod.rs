@@ -33,14 +33,52 @@ pub struct Context {
     pub still: Option<String>,
     /// The project file's name, for the command line that reproduces the counts.
     pub project_name: Option<String>,
+    /// The still's own size in pixels (its file's header says), when the footage's is not known.
+    pub still_size: Option<(u32, u32)>,
 }
 
 impl Context {
-    /// The picture's size in pixels, from the footage's fingerprint, when known.
+    /// The picture's size in pixels: the footage's fingerprint's, else the still's, when known.
     pub fn picture(&self) -> Option<(f64, f64)> {
-        let f = self.footage.as_ref()?;
-        Some((f64::from(f.width?), f64::from(f.height?)))
+        let from_footage = self
+            .footage
+            .as_ref()
+            .and_then(|f| Some((f.width?, f.height?)));
+        let (w, h) = from_footage.or(self.still_size)?;
+        Some((f64::from(w), f64::from(h)))
     }
+}
+
+/// The size of a PNG or JPEG picture from its header (PNG: the IHDR chunk; JPEG: the first
+/// start-of-frame segment), without decoding it. `None` for anything else.
+pub fn picture_size(bytes: &[u8]) -> Option<(u32, u32)> {
+    let be16 = |i: usize| Some(u16::from_be_bytes([*bytes.get(i)?, *bytes.get(i + 1)?]));
+    let be32 = |i: usize| Some(u32::from_be_bytes(bytes.get(i..i + 4)?.try_into().ok()?));
+    let size = if bytes.starts_with(b"\x89PNG\r\n\x1a\n") && bytes.get(12..16) == Some(b"IHDR") {
+        (be32(16)?, be32(20)?)
+    } else if bytes.starts_with(&[0xFF, 0xD8]) {
+        // Segments: 0xFF, a marker, a 16-bit length (counting itself); each step moves on.
+        let mut i = 2;
+        loop {
+            if *bytes.get(i)? != 0xFF {
+                return None;
+            }
+            let marker = *bytes.get(i + 1)?;
+            let length = usize::from(be16(i + 2)?);
+            let start_of_frame =
+                matches!(marker, 0xC0..=0xCF) && !matches!(marker, 0xC4 | 0xC8 | 0xCC);
+            if start_of_frame {
+                break (u32::from(be16(i + 7)?), u32::from(be16(i + 5)?));
+            }
+            if length < 2 {
+                return None;
+            }
+            i += 2 + length;
+        }
+    } else {
+        return None;
+    };
+    (size.0 > 0 && size.1 > 0).then_some(size)
 }
 
 /// A file name stem from the site and the recording's date: `footbridge-plaza_2026-03-02`

@@ -199,7 +199,7 @@ pub(super) fn interval_chart(line: &ScreenlineReport) -> String {
     }
     let _ = writeln!(
         s,
-        "</svg><figcaption>{}: <span style=\"color:{FORWARD}\">&#9632;</span> {} (solid), <span style=\"color:{BACKWARD}\">&#9636;</span> {} (hatched), counts per interval.</figcaption></figure>",
+        "</svg><figcaption>{}: <svg class=\"key\" width=\"12\" height=\"12\" aria-hidden=\"true\"><rect width=\"12\" height=\"12\" fill=\"{FORWARD}\"/></svg> {} (solid), <svg class=\"key\" width=\"12\" height=\"12\" aria-hidden=\"true\"><rect x=\"0.5\" y=\"0.5\" width=\"11\" height=\"11\" fill=\"url(#hatch)\" stroke=\"{BACKWARD}\"/></svg> {} (hatched), counts per interval.</figcaption></figure>",
         esc(&line.name),
         esc(&line.forward_label),
         esc(&line.backward_label)

@@ -48,6 +48,8 @@ pub struct TallyCheck {
     /// The sample's length in seconds, and the bins the measures are taken over.
     pub seconds: f64,
     pub bin_seconds: f64,
+    /// Each bin's first and last frame, in the order of every group's `per_bin`.
+    pub bin_frames: Vec<[u32; 2]>,
     pub groups: Vec<TallyGroup>,
     /// Every group's bins pooled (all classes together).
     pub overall: Measures,
