@@ -10,7 +10,9 @@
 //! - `bench`: speed, memory and quality of every method on simulated scenes, with a Python peer,
 //!   written into BENCHMARKS.md (`--counts`, `--detector`: one table each); `bench --page`: speed
 //!   of finding objects in the page (Chromium) ([`bench`]);
-//! - `shape`: function and file lengths and module loops under crate/ ([`shape`]).
+//! - `shape`: function and file lengths and module loops under crate/ ([`shape`]);
+//! - `fuzz`: every fuzz target for ten million runs (or as told), a table of the results
+//!   ([`fuzz`]); `test` runs each for a few seconds.
 //!
 //! Build output is found through `cargo metadata` ([`paths`]), so `CARGO_TARGET_DIR` is honoured.
 
@@ -19,6 +21,7 @@ use std::process::ExitCode;
 mod bench;
 mod builds;
 mod demo;
+mod fuzz;
 mod invariants;
 mod paths;
 mod serve;
@@ -27,7 +30,7 @@ mod shape;
 mod site;
 mod test;
 
-const USAGE: &str = "usage: cargo xtask <demo [--no-serve] | site | serve [--no-build] [--port N] | test | bench [--quick | --grid | --counts | --detector | --page] | demo-data | shape>";
+const USAGE: &str = "usage: cargo xtask <demo [--no-serve] | site | serve [--no-build] [--port N] | test | bench [--quick | --grid | --counts | --detector | --page] | demo-data | shape | fuzz [--runs N | --seconds S] [TARGET...]>";
 
 fn main() -> ExitCode {
     let args: Vec<String> = std::env::args().skip(1).collect();
@@ -40,6 +43,7 @@ fn main() -> ExitCode {
         Some("bench") => bench::bench(rest),
         Some("demo-data") => demo::demo_data(),
         Some("shape") => shape::command(),
+        Some("fuzz") => fuzz::command(rest),
         _ => Err(USAGE.into()),
     };
     match result {

@@ -1,6 +1,6 @@
 //! `cargo xtask test`: the whole suite, as CI runs it (`.ci/run`). Cheap invariants first, then the
 //! installs (every step idempotent, so a fresh machine and a warm one run the same script), format
-//! check, lints, every test, the wasm32 builds, the adapter against the command line in Node and in
+//! check, lints, every test, a short run of every fuzz target, the wasm32 builds, the adapter against the command line in Node and in
 //! headless Chromium, and the page end to end.
 
 use std::path::Path;
@@ -26,6 +26,8 @@ pub fn test() -> Result<(), String> {
         &["test", "--workspace"],
         &[(REQUIRE_FFMPEG_ENV, "1")],
     )?;
+    // Every reader of outside bytes under the fuzzer for a few seconds, its past crashes first.
+    crate::fuzz::smoke()?;
     ensure_wasm_tools()?;
     // The core must stay free of the browser, files, clocks and the terminal: prove it builds for wasm.
     let wasm32 = ["--target", "wasm32-unknown-unknown", "--release"];
