@@ -114,7 +114,7 @@ fn mp4_sizes_that_lie_are_refused_with_a_message() {
 
 /// A movie header with one video track whose sample table holds `table`.
 fn movie_with(table: &[u8]) -> Vec<u8> {
-    let mut entry = vec![0u8; 78];
+    let mut entry = [0u8; 78];
     entry[24..26].copy_from_slice(&64u16.to_be_bytes());
     entry[26..28].copy_from_slice(&48u16.to_be_bytes());
     let avc = [&entry[..], &mp4_box(b"avcC", &[1, 0x64, 0, 0x1F, 0xFF])].concat();
