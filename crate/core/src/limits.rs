@@ -2,6 +2,16 @@
 //! no number read from a file can make the program allocate without bound or work for ever; the
 //! error that enforces a limit names the limit and what to do.
 
+/// The largest magnitude of any number read from a file (a coordinate, score, frame, id, ground
+/// distance): a trillion is beyond any picture or count, and products of two such numbers stay
+/// exact enough in floating point and never overflow.
+pub const MAX_MAGNITUDE: f64 = 1e12;
+
+/// A finite number within [`MAX_MAGNITUDE`].
+pub fn in_range(v: f64) -> bool {
+    v.is_finite() && v.abs() <= MAX_MAGNITUDE
+}
+
 /// Frames per second a plan may give: from a time-lapse of a frame a minute to a high-speed camera.
 pub const MIN_FRAME_RATE: f64 = 1.0 / 60.0;
 pub const MAX_FRAME_RATE: f64 = 1000.0;

@@ -110,6 +110,16 @@ pub fn number(field: &str, name: &str, line: usize, column: usize) -> Result<f64
         )
         .at(line, Some(column)));
     }
+    if !crate::limits::in_range(v) {
+        return Err(Error::new(
+            ErrorKind::BadNumber,
+            format!(
+                "column `{name}` is `{field}`: values beyond ±1,000,000,000,000 are not taken \
+                 (no coordinate, score or frame is that large)"
+            ),
+        )
+        .at(line, Some(column)));
+    }
     Ok(v)
 }
 

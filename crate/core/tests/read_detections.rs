@@ -280,7 +280,8 @@ fn numbers_read_exactly_like_the_standard_parser() {
         "0.1",
         "0.3",
         "-7.25",
-        "123456789012345",
+        // Fifteen and sixteen significant digits, within the ±10^12 every value must keep to.
+        "123456789012.345",
         "1234567890.12345",
         "0.000000000000001",
         "99.99",
@@ -291,7 +292,8 @@ fn numbers_read_exactly_like_the_standard_parser() {
         "5.",
         "+4",
         "007.50",
-        "1234567890123456",
+        "123456789012.3456",
+        "999999999999",
     ];
     for text in samples {
         let line = format!("1,-1,{text},0,10,10,0.5\n");
@@ -316,4 +318,36 @@ fn numbers_read_exactly_like_the_standard_parser() {
             "{text}"
         );
     }
+}
+
+#[test]
+fn numbers_too_large_for_any_picture_are_refused_where_they_are() {
+    // Found by fuzzing: a score of 8e305 was read, then written back as `inf` (× 1000 overflows),
+    // and the file written could not be read again. Every number read is within ±10^12.
+    check_err(
+        b"1,-1,10,10,20,40,0.9\n2,-1,10,10,20,40,0.8e306\n",
+        ErrorKind::BadNumber,
+        Some(2),
+        Some(7),
+        "±1,000,000,000,000",
+    );
+    check_err(
+        b"frame,x,y,w,h,score\n1,1e13,10,20,40,0.9\n",
+        ErrorKind::BadNumber,
+        Some(2),
+        Some(2),
+        "are not taken",
+    );
+    let e = read_detections(
+        br#"[{"image_id": 1, "category_id": 1, "bbox": [1e300, 1, 2, 3], "score": 0.9}]"#,
+    )
+    .expect_err("refused");
+    assert!(e.to_string().contains("within ±10^12"), "{e}");
+    // Just within the limit still reads, and writes back readably.
+    check_ok(
+        "1,-1,1000000000000,10,20,40,0.9\n",
+        DetectionFormat::BenchmarkText,
+        1,
+        0,
+    );
 }

@@ -43,6 +43,17 @@ impl JsonSink<'_> {
 
     fn take(&mut self, n: usize, d: JsonDetection) -> Result<(), Problem> {
         let frame = frame_of(n, &d.image_id)?;
+        if !d
+            .bbox
+            .iter()
+            .chain([&d.score])
+            .all(|v| crate::limits::in_range(*v))
+        {
+            return Err((
+                ErrorKind::BadNumber,
+                format!("element {n}: bbox and score must be numbers within ±10^12"),
+            ));
+        }
         let Some(bbox) = self.bbox_of(n, &d.bbox)? else {
             return Ok(());
         };
@@ -121,10 +132,10 @@ impl JsonSink<'_> {
                 ),
             ));
         }
-        if v.iter().any(|x| !x.is_finite()) {
+        if v.iter().any(|x| !crate::limits::in_range(f64::from(*x))) {
             return Err((
                 ErrorKind::NotFinite,
-                format!("element {n}: embedding values must be finite numbers"),
+                format!("element {n}: embedding values must be finite numbers within ±10^12"),
             ));
         }
         let index = (self.out.embeddings.len() / v.len()) as u32;

@@ -83,9 +83,9 @@ fn check_spread(image: &[[f64; 2]], ground: &[[f64; 2]]) -> Result<(), String> {
     if image
         .iter()
         .chain(ground)
-        .any(|p| !(p[0].is_finite() && p[1].is_finite()))
+        .any(|p| !(crate::limits::in_range(p[0]) && crate::limits::in_range(p[1])))
     {
-        return Err("every point must have finite coordinates".into());
+        return Err("every point must have finite coordinates within ±10^12".into());
     }
     if has_collinear_triple(image) || has_collinear_triple(ground) {
         return Err(

@@ -224,10 +224,10 @@ fn zone(i: usize, z: &ZoneSpec, names: &mut HashSet<String>) -> Result<Zone, Err
 
 fn check_points(points: &[[f64; 2]], field: &str) -> Result<(), Error> {
     for (k, p) in points.iter().enumerate() {
-        if !(p[0].is_finite() && p[1].is_finite()) {
+        if !(crate::limits::in_range(p[0]) && crate::limits::in_range(p[1])) {
             return Err(err(
                 format!("{field}[{k}]"),
-                "coordinates must be finite numbers of pixels",
+                "coordinates must be finite numbers of pixels, within ±10^12",
             ));
         }
     }

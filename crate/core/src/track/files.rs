@@ -314,14 +314,9 @@ fn check_document(doc: &TracksDocument) -> Result<(), Error> {
                 )));
             }
             last = frame;
-            if !(x.is_finite()
-                && y.is_finite()
-                && w.is_finite()
-                && h.is_finite()
-                && score.is_finite())
-            {
+            if ![x, y, w, h, score].into_iter().all(crate::limits::in_range) {
                 return Err(bad(format!(
-                    "box {b} has a value that is not a finite number"
+                    "box {b} has a value that is not a finite number within ±10^12"
                 )));
             }
             if w < 0.0 || h < 0.0 {
