@@ -4,6 +4,7 @@
 //! command line and the page share them.
 
 mod bytes;
+mod codec;
 pub mod demux;
 mod mp4;
 mod webm;

@@ -14,7 +14,7 @@ use throughline_core::limits::{
 };
 
 use crate::bytes::{io_message, read_exact_vec, seek_to, too_short, Bytes};
-use crate::demux::{av1_codec, avc_codec, hevc_codec, vp9_codec, Chunk, VideoTrack};
+use crate::codec::{av1_codec, avc_codec, hevc_codec, vp9_codec, Chunk, VideoTrack};
 
 const EBML: u32 = 0x1A45_DFA3;
 const DOC_TYPE: u32 = 0x4282;
