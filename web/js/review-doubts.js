@@ -42,6 +42,9 @@ export function doubtTracks(d) {
   return t.length === 1 ? `track ${t[0]}` : `tracks ${t.slice(0, -1).join(", ")} and ${t[t.length - 1]}`;
 }
 
+/** Rows drawn at first, and added by each press of "Show more". */
+const ROWS_PER_PAGE = 300;
+
 export class DoubtList {
   /**
    * @param {PageStore} store
@@ -58,7 +61,11 @@ export class DoubtList {
     this.buttons = new Map();
     /** Where in the list shown the last moment chosen was, to go on from there when it leaves. */
     this.lastIndex = -1;
+    /** How many rows are drawn: a busy hour has thousands of moments, and a row per moment would
+     * make every click on the page slow. Next and Previous go on past the last row drawn. */
+    this.rowsDrawn = ROWS_PER_PAGE;
     this.hideAccepted.addEventListener("change", () => this.show());
+    store.subscribe(["tracks"], () => { this.rowsDrawn = ROWS_PER_PAGE; });
     store.subscribe(["results", "marks", "tracks"], () => this.show());
     store.subscribe(["focus"], () => this.mark());
   }
@@ -73,12 +80,19 @@ export class DoubtList {
     const doubts = this.store.doubts;
     const marks = this.store.work.marks;
     const shown = this.shown();
+    const place = new Map(doubts.map((d, i) => [d.key, i + 1]));
     this.buttons = new Map();
-    this.list.replaceChildren(...shown.map((d) => {
-      const b = el("button", { type: "button", class: "doubt", onclick: () => this.chosen(d) }, doubtRow(d, doubts.indexOf(d) + 1, marks.get(d.key)));
+    const rows = shown.slice(0, this.rowsDrawn).map((d) => {
+      const b = el("button", { type: "button", class: "doubt", onclick: () => this.chosen(d) }, doubtRow(d, place.get(d.key) || 0, marks.get(d.key)));
       this.buttons.set(d.key, b);
       return el("li", {}, b);
-    }));
+    });
+    const left = shown.length - rows.length;
+    if (left > 0) {
+      const more = el("button", { type: "button", text: `Show ${Math.min(left, ROWS_PER_PAGE)} more (${left} not listed yet)`, onclick: () => this.drawMore(ROWS_PER_PAGE) });
+      rows.push(el("li", { class: "more" }, [more]));
+    }
+    this.list.replaceChildren(...rows);
     const decided = doubts.filter((d) => marks.has(d.key)).length;
     this.badge.textContent = this.store.results ? `(${doubts.length - decided})` : "";
     this.status.textContent = this.statusText(doubts.length, decided, shown.length);
@@ -103,10 +117,23 @@ export class DoubtList {
     this.choose(d);
   }
 
-  /** The chosen moment's row is marked as the current one. */
+  /** @param {number} rows draws this many more rows */
+  drawMore(rows) {
+    this.rowsDrawn += rows;
+    this.show();
+  }
+
+  /** The chosen moment's row is marked as the current one (drawn first, if it was beyond the rows drawn). */
   mark() {
     const focus = this.store.focus;
     const key = focus && focus.doubt ? focus.doubt.key : null;
+    if (key && !this.buttons.has(key)) {
+      const at = this.shown().findIndex((d) => d.key === key);
+      if (at >= this.rowsDrawn) {
+        this.drawMore(Math.ceil((at + 1 - this.rowsDrawn) / ROWS_PER_PAGE) * ROWS_PER_PAGE);
+        return;
+      }
+    }
     for (const [k, b] of this.buttons) b.setAttribute("aria-current", String(k === key));
     const current = key ? this.buttons.get(key) : undefined;
     if (current) revealInList(this.list, current);

@@ -1,6 +1,8 @@
 // @ts-check
 // The Tracking panel: the method, Run and Cancel. Tracking runs in one piece inside the worker, so
-// Cancel replaces the worker and gives the new one the detections and plan again.
+// Cancel replaces the worker and gives the new one the detections and plan again, and the tracks
+// shown before the cancelled run: tracked again with their method (the same bytes), so the counts
+// on screen stay as they were and go on answering plan changes.
 
 import { byId, el } from "./dom.js";
 import { hasCountingGeometry } from "./plan.js";
@@ -34,6 +36,10 @@ export class RunPanel {
     this.status = byId("run-status", HTMLElement);
     /** @type {Promise<void> | null} while a new worker is given the detections and plan again */
     this.restoring = null;
+    /** @type {string | null} the method of the tracks shown (null: none shown) */
+    this.shownMethod = null;
+    /** @type {boolean} a cancelled run keeps the tracks shown before it */
+    this.keepShown = false;
     // The methods come from the core's registry once it has started.
     client.ready.then(() => this.listMethods()).catch(() => {});
     this.method.addEventListener("change", () => store.settingChanged("method", this.method.value));
@@ -57,10 +63,17 @@ export class RunPanel {
   cancelRun() {
     this.cancel.hidden = true;
     const detections = this.store.detections;
+    const previous = this.store.tracks && detections ? this.shownMethod : null;
+    this.keepShown = previous !== null;
     this.restoring = (async () => {
       await this.client.restart();
       if (detections) await this.client.loadDetections(await detections.source.arrayBuffer());
       await this.editSync.send();
+      if (previous !== null) {
+        this.status.textContent = "Bringing back the tracks shown before…";
+        await this.client.track(previous, "", () => {});
+        this.status.textContent = "The counts shown are those from before the cancelled run.";
+      }
       await this.planSync.send();
     })().finally(() => { this.restoring = null; });
   }
@@ -81,6 +94,7 @@ export class RunPanel {
         this.status.textContent = `Tracking… frame ${done} of ${total}`;
       });
       this.store.tracksReady(new TrackView(out.boxes, out.trackList));
+      this.shownMethod = this.method.value;
       const seconds = ((performance.now() - started) / 1000).toFixed(1);
       this.status.textContent = `${out.tracks} tracks in ${seconds} s.`;
       if (!hasCountingGeometry(this.store.plan)) {
@@ -91,8 +105,11 @@ export class RunPanel {
       if (this.store.view === "setup" && this.store.results) this.store.viewChosen("results");
     } catch (e) {
       this.status.textContent = "";
-      if (e instanceof Cancelled) {
+      if (e instanceof Cancelled && this.keepShown) {
+        this.messages.say("run", "warn", "Tracking was cancelled. The counts shown before are kept, with the detections and the plan: press Run to track again.");
+      } else if (e instanceof Cancelled) {
         this.store.trackingCancelled();
+        this.shownMethod = null;
         this.messages.say("run", "warn", "Tracking was cancelled. The detections and the plan are kept: press Run to track again.");
       } else {
         this.messages.say("run", "error", `Tracking stopped: ${/** @type {Error} */ (e).message}`);
