@@ -73,7 +73,13 @@ pub const MAX_CODED_FRAME_BYTES: u64 = 64 << 20;
 /// block group. A movie header holding five million frames' tables is about 80 MB.
 pub const MAX_CONTAINER_HEADER_BYTES: u64 = 128 << 20;
 
-/// Boxes (MP4) or elements (WebM) stepped over in one file, and how deep boxes may nest: a file
-/// cannot make the reader step for ever, however its sizes are set.
+/// Boxes (MP4) or elements (WebM) stepped over in one file: a file cannot make the reader step for
+/// ever, however its sizes are set. (Nesting needs no limit: the readers descend only along the
+/// fixed paths to the boxes they use, never recursively.)
 pub const MAX_CONTAINER_ELEMENTS: usize = 20_000_000;
-pub const MAX_BOX_DEPTH: usize = 16;
+
+/// Entries in one batch manifest: a year of 15-minute clips from one camera is 35,040.
+pub const MAX_MANIFEST_ENTRIES: usize = 100_000;
+
+/// Characters in an entry's name (its output folder's name).
+pub const MAX_ENTRY_NAME: usize = 100;

@@ -2,12 +2,17 @@
 
 use throughline_core::limits::MAX_FOOTAGE_FRAMES;
 
-use super::{children, find, full_box, need, Sample, Track};
+use super::{children, find, frames_fit, full_box, need, Sample, Track};
 use crate::bytes::too_short;
 
 /// The frames of one movie fragment that belong to the video track (ISO/IEC 14496-12 §8.8:
 /// `traf` with its `tfhd` defaults, `tfdt` start time and `trun` runs of frames).
-pub(super) fn fragment(moof: &[u8], moof_start: u64, track: &mut Track) -> Result<(), String> {
+pub(super) fn fragment(
+    moof: &[u8],
+    moof_start: u64,
+    track: &mut Track,
+    file_size: u64,
+) -> Result<(), String> {
     for (kind, traf) in children(moof, "moof")? {
         if &kind != b"traf" {
             continue;
@@ -49,7 +54,7 @@ pub(super) fn fragment(moof: &[u8], moof_start: u64, track: &mut Track) -> Resul
         let mut data_at = base;
         for (kind, trun) in children(traf, "traf")? {
             if &kind == b"trun" {
-                data_at = track_run(trun, base, data_at, defaults, track)?;
+                data_at = track_run(trun, base, data_at, defaults, track, file_size)?;
             }
         }
     }
@@ -63,6 +68,7 @@ fn track_run(
     data_at: u64,
     (duration, size, sample_flags): (u32, u32, u32),
     track: &mut Track,
+    file_size: u64,
 ) -> Result<u64, String> {
     let (_, flags, mut b) = full_box(trun, "trun")?;
     let count = b.u32().ok_or_else(|| too_short("trun"))? as usize;
@@ -85,6 +91,9 @@ fn track_run(
     if count > MAX_FOOTAGE_FRAMES - track.samples.len().min(MAX_FOOTAGE_FRAMES) {
         return Err(format!("more than {MAX_FOOTAGE_FRAMES} frames"));
     }
+    // Frames of the default size, or at least a byte each, all of them in the file.
+    let each = if flags & 0x200 != 0 { 1 } else { size };
+    frames_fit(track.samples.len() + count, each, file_size)?;
     let mut dts = track.next_dts;
     for j in 0..count {
         let mut field = |bit: u32, default: u32| {

@@ -85,12 +85,12 @@ pub(crate) fn read_movie<R: Read + Seek>(reader: &mut R, size: u64) -> Result<Mo
                 }
                 let data = read_exact_vec(reader, body)?;
                 if &kind == b"moov" {
-                    track = Some(movie_header(&data)?);
+                    track = Some(movie_header(&data, size)?);
                 } else {
                     let t = track
                         .as_mut()
                         .ok_or("a movie fragment comes before the movie header")?;
-                    fragment(&data, pos, t)?;
+                    fragment(&data, pos, t, size)?;
                 }
             }
             _ => {}
@@ -110,6 +110,21 @@ pub(crate) fn read_movie<R: Read + Seek>(reader: &mut R, size: u64) -> Result<Mo
         samples: t.samples,
         timescale: t.timescale,
     })
+}
+
+/// Refuses `count` frames of `each` bytes (at least one) where the file cannot hold them: tables
+/// that give one size for every frame, or runs of frames with a default size, are a few bytes
+/// whatever the count they claim, so the count is checked against the file before a frame is
+/// listed.
+fn frames_fit(count: usize, each: u32, file_size: u64) -> Result<(), String> {
+    let bytes = (count as u64).saturating_mul(u64::from(each.max(1)));
+    if bytes > file_size {
+        return Err(format!(
+            "it claims {count} frames of {} bytes, more than its {file_size} bytes hold (damaged?)",
+            each.max(1)
+        ));
+    }
+    Ok(())
 }
 
 /// The box at `pos`: its type, header length and whole length (a box of size 0 runs to the end of
@@ -201,7 +216,7 @@ fn full_box<'a>(data: &'a [u8], what: &str) -> Result<(u8, u32, Bytes<'a>), Stri
 }
 
 /// The movie header: its first video track, with the frames its sample tables list.
-fn movie_header(moov: &[u8]) -> Result<Track, String> {
+fn movie_header(moov: &[u8], file_size: u64) -> Result<Track, String> {
     let (version, _, mut mvhd) = full_box(need(moov, "moov", b"mvhd")?, "mvhd")?;
     mvhd.skip(if version == 1 { 16 } else { 8 })
         .ok_or_else(|| too_short("mvhd"))?;
@@ -209,7 +224,7 @@ fn movie_header(moov: &[u8]) -> Result<Track, String> {
     let mut track = None;
     for (kind, trak) in children(moov, "moov")? {
         if &kind == b"trak" {
-            track = video_track(trak, movie_timescale)?;
+            track = video_track(trak, movie_timescale, file_size)?;
             if track.is_some() {
                 break;
             }
@@ -234,7 +249,7 @@ fn movie_header(moov: &[u8]) -> Result<Track, String> {
 }
 
 /// A track, if it is a video track (`hdlr` says `vide`).
-fn video_track(trak: &[u8], movie_timescale: u32) -> Result<Option<Track>, String> {
+fn video_track(trak: &[u8], movie_timescale: u32, file_size: u64) -> Result<Option<Track>, String> {
     let mdia = need(trak, "trak", b"mdia")?;
     let (_, _, mut hdlr) = full_box(need(mdia, "mdia", b"hdlr")?, "hdlr")?;
     hdlr.skip(4).ok_or_else(|| too_short("hdlr"))?;
@@ -254,7 +269,7 @@ fn video_track(trak: &[u8], movie_timescale: u32) -> Result<Option<Track>, Strin
         .ok_or("its video track has no time scale (mdhd)")?;
     let stbl = need(need(mdia, "mdia", b"minf")?, "minf", b"stbl")?;
     let info = sample_entry(need(stbl, "stbl", b"stsd")?)?;
-    let samples = sample_tables(stbl)?;
+    let samples = sample_tables(stbl, file_size)?;
     let next_dts = end_of_decoding(stbl, &samples)?;
     let shift = match find(trak, "trak", b"edts")? {
         Some(edts) => edit_shift(edts, movie_timescale, timescale)?,

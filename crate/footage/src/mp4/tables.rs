@@ -3,13 +3,13 @@
 
 use throughline_core::limits::MAX_FOOTAGE_FRAMES;
 
-use super::{find, full_box, need, Sample};
+use super::{find, frames_fit, full_box, need, Sample};
 use crate::bytes::too_short;
 
 /// The frames of a movie header's sample tables: sizes (`stsz`/`stz2`), chunks (`stco`/`co64`,
 /// `stsc`), decode times (`stts`), shown-time offsets (`ctts`) and key frames (`stss`).
-pub(super) fn sample_tables(stbl: &[u8]) -> Result<Vec<Sample>, String> {
-    let sizes = sample_sizes(stbl)?;
+pub(super) fn sample_tables(stbl: &[u8], file_size: u64) -> Result<Vec<Sample>, String> {
+    let sizes = sample_sizes(stbl, file_size)?;
     if sizes.is_empty() {
         return Ok(Vec::new());
     }
@@ -127,7 +127,7 @@ fn pairs(data: &[u8], what: &str, width: usize) -> Result<Vec<(u32, u32)>, Strin
 }
 
 /// Each frame's size, from `stsz` or the compact `stz2`.
-fn sample_sizes(stbl: &[u8]) -> Result<Vec<u32>, String> {
+fn sample_sizes(stbl: &[u8], file_size: u64) -> Result<Vec<u32>, String> {
     let too_many = || format!("more than {MAX_FOOTAGE_FRAMES} frames");
     if let Some(stsz) = find(stbl, "stbl", b"stsz")? {
         let (_, _, mut b) = full_box(stsz, "stsz")?;
@@ -139,6 +139,7 @@ fn sample_sizes(stbl: &[u8]) -> Result<Vec<u32>, String> {
             return Err(too_many());
         }
         if same != 0 {
+            frames_fit(count, same, file_size)?;
             return Ok(vec![same; count]);
         }
         if count > b.left() / 4 {
