@@ -11,7 +11,7 @@ mod output;
 mod progress;
 
 use clap::{Parser, Subcommand};
-use commands::{count, detect, review, run, score, score_counts, simulate, track, tune};
+use commands::{batch, count, detect, review, run, score, score_counts, simulate, track, tune};
 use std::process::ExitCode;
 
 #[derive(Parser)]
@@ -53,6 +53,9 @@ enum Command {
     Tune(tune::Args),
     /// Score tracks against ground truth (HOTA, IDF1, MOTA…).
     Score(score::Args),
+    /// Count many clips: every entry of a manifest, on all cores, resuming after an interruption.
+    #[command(long_about = batch::LONG_ABOUT)]
+    Batch(batch::Args),
 }
 
 /// A closed pipe on standard output (`throughline track … | head`) ends the program quietly, as it
@@ -77,6 +80,7 @@ fn main() -> ExitCode {
         Command::ScoreCounts(args) => score_counts::run(args),
         Command::Tune(args) => tune::run(args),
         Command::Score(args) => score::run(args),
+        Command::Batch(args) => batch::run(args),
     };
     match result {
         Ok(()) => ExitCode::SUCCESS,

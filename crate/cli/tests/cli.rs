@@ -17,6 +17,7 @@ fn every_command_has_help() {
         vec!["score", "--help"],
         vec!["detect", "--help"],
         vec!["run", "--help"],
+        vec!["batch", "--help"],
     ] {
         let o = throughline(&args);
         assert!(o.status.success(), "{args:?}");

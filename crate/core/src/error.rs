@@ -41,6 +41,8 @@ pub enum ErrorKind {
     Settings,
     /// Input that is valid but cannot serve what was asked (a method that needs embeddings, say).
     Unsuitable,
+    /// A batch manifest's header or row: an unknown column, a missing file, a name used twice.
+    Manifest,
 }
 
 /// A problem with the input, where it is, and what to fix.

@@ -18,6 +18,7 @@ pub mod fingerprint;
 pub mod geometry;
 pub mod handin;
 pub mod limits;
+pub mod manifest;
 pub mod pipeline;
 pub mod plan;
 pub mod project;

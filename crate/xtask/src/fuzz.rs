@@ -15,7 +15,7 @@ use crate::paths::{root, target};
 use crate::sh::{run, works};
 
 /// Every fuzz target (crate/fuzz/fuzz_targets/<name>.rs).
-pub const TARGETS: [&str; 10] = [
+pub const TARGETS: [&str; 11] = [
     "detections",
     "tracks",
     "plan",
@@ -26,6 +26,7 @@ pub const TARGETS: [&str; 10] = [
     "y4m",
     "webm",
     "mp4",
+    "manifest",
 ];
 
 /// Seconds each target runs within `cargo xtask test`.

@@ -1,6 +1,7 @@
 //! One file per command, each with the same two items: its arguments (`Args`, for clap) and its
 //! `run`. `main` only dispatches; a new command is a new file here and one line in `main`.
 
+pub mod batch;
 pub mod count;
 pub mod detect;
 pub mod review;

@@ -1,0 +1,285 @@
+//! `throughline batch` as a user meets it: a manifest of several clips (scenes of our own
+//! simulator), one of them broken; a second run after an interruption; a changed input.
+
+mod common;
+
+use common::*;
+use std::path::Path;
+use std::process::Command;
+use std::time::{Duration, Instant};
+
+/// Three simulated clips and the demo's plan in `dir`, with a manifest of `rows` (name, clip,
+/// plan file).
+fn clips(dir: &Path, frames: &str, rows: &[(&str, &str, &str)]) -> String {
+    for seed in ["1", "2", "3"] {
+        let o = throughline(&[
+            "simulate",
+            "--out-dir",
+            &dir.join(format!("s{seed}")).display().to_string(),
+            "--seed",
+            seed,
+            "--frames",
+            frames,
+            "--density",
+            "20",
+        ]);
+        assert!(o.status.success(), "{}", stderr(&o));
+    }
+    std::fs::copy(demo("plan.json"), dir.join("plan.json")).unwrap();
+    write(
+        dir,
+        "bad-plan.json",
+        b"{\"frame_rate\": 25, \"screenlines\": [{\"name\": \"x\"}]}",
+    );
+    let mut manifest =
+        String::from("# three clips of one morning\nname,detections,plan,site,start\n");
+    for (name, clip, plan) in rows {
+        manifest.push_str(&format!(
+            "{name},{clip}/detections.txt,{plan},Plaza,2026-03-02T07:00:00\n"
+        ));
+    }
+    write(dir, "manifest.csv", manifest.as_bytes())
+}
+
+fn read(path: &Path) -> Vec<u8> {
+    std::fs::read(path).unwrap_or_else(|e| panic!("{}: {e}", path.display()))
+}
+
+#[test]
+fn a_broken_entry_is_reported_and_the_others_are_counted_as_throughline_run_counts_them() {
+    let dir = scratch("batch-broken");
+    let manifest = clips(
+        &dir,
+        "400",
+        &[
+            ("a", "s1", "plan.json"),
+            ("b", "s2", "bad-plan.json"),
+            ("c", "s3", "plan.json"),
+        ],
+    );
+    let out = dir.join("out");
+    let o = throughline(&["batch", &manifest, "--out", &out.display().to_string()]);
+    assert_eq!(o.status.code(), Some(1), "{}", stderr(&o));
+    let said = stderr(&o);
+    assert!(
+        said.contains("batch: 2 done, 0 skipped (done before, unchanged), 1 failed"),
+        "{said}"
+    );
+    assert!(said.contains("1 of 3 entries failed: b"), "{said}");
+    let why = String::from_utf8(read(&out.join("b/failed.txt"))).unwrap();
+    assert!(
+        why.starts_with("line 4 of the manifest: ") && why.contains("bad-plan.json"),
+        "{why}"
+    );
+    assert!(!out.join("b/report.json").exists());
+    let table = String::from_utf8(read(&out.join("batch.csv"))).unwrap();
+    assert!(
+        table.starts_with("name,status,reason\na,done,\"\"\nb,failed,\"line 4"),
+        "{table}"
+    );
+    // Each entry's outputs are the bytes `throughline run` writes for it alone.
+    for (name, clip) in [("a", "s1"), ("c", "s3")] {
+        let alone = dir.join(format!("alone-{name}"));
+        std::fs::create_dir_all(&alone).unwrap();
+        let o = throughline(&[
+            "run",
+            &dir.join(clip).join("detections.txt").display().to_string(),
+            "--plan",
+            &dir.join("plan.json").display().to_string(),
+            "--site",
+            "Plaza",
+            "--start",
+            "2026-03-02T07:00:00",
+            "-o",
+            &alone.join("report.json").display().to_string(),
+            "--csv",
+            &alone.join("counts.csv").display().to_string(),
+            "-q",
+        ]);
+        assert!(o.status.success(), "{}", stderr(&o));
+        let mut files: Vec<_> = std::fs::read_dir(&alone)
+            .unwrap()
+            .map(|e| e.unwrap().file_name())
+            .collect();
+        files.sort();
+        assert_eq!(
+            files.len(),
+            6,
+            "report, counts and four hand-in files: {files:?}"
+        );
+        for f in files {
+            assert_eq!(
+                read(&alone.join(&f)),
+                read(&out.join(name).join(&f)),
+                "{name}/{f:?}"
+            );
+        }
+    }
+}
+
+#[test]
+fn a_second_run_does_only_what_is_left_or_changed() {
+    let dir = scratch("batch-resume");
+    let manifest = clips(
+        &dir,
+        "300",
+        &[
+            ("a", "s1", "plan.json"),
+            ("b", "s2", "bad-plan.json"),
+            ("c", "s3", "plan.json"),
+        ],
+    );
+    let out = dir.join("out").display().to_string();
+    let first = throughline(&["batch", &manifest, "--out", &out, "--jobs", "2"]);
+    assert_eq!(first.status.code(), Some(1));
+    let report_c = read(&dir.join("out/c/report.json"));
+    // Unchanged: nothing is counted again; the broken entry is tried again and fails again.
+    let again = throughline(&["batch", &manifest, "--out", &out]);
+    assert!(
+        stderr(&again).contains("batch: 0 done, 2 skipped (done before, unchanged), 1 failed"),
+        "{}",
+        stderr(&again)
+    );
+    // The plan mended and one clip changed: those two are counted, the third is skipped.
+    std::fs::copy(dir.join("plan.json"), dir.join("bad-plan.json")).unwrap();
+    std::fs::copy(dir.join("s2/detections.txt"), dir.join("s3/detections.txt")).unwrap();
+    let mended = throughline(&["batch", &manifest, "--out", &out]);
+    assert!(mended.status.success(), "{}", stderr(&mended));
+    let said = stderr(&mended);
+    assert!(
+        said.contains("batch: 2 done, 1 skipped (done before, unchanged), 0 failed"),
+        "{said}"
+    );
+    assert!(said.contains("skipped  a"), "{said}");
+    assert!(
+        !dir.join("out/b/failed.txt").exists(),
+        "a mended entry's old failure is cleared"
+    );
+    assert_ne!(
+        read(&dir.join("out/c/report.json")),
+        report_c,
+        "c counted again from its new clip"
+    );
+    // One entry alone, as a task of a cluster's array job.
+    let only = throughline(&["batch", &manifest, "--out", &out, "--only", "2"]);
+    assert!(
+        stderr(&only).contains("batch: 0 done, 1 skipped"),
+        "{}",
+        stderr(&only)
+    );
+    let beyond = throughline(&["batch", &manifest, "--out", &out, "--only", "4"]);
+    assert_eq!(beyond.status.code(), Some(2));
+    assert!(
+        stderr(&beyond).contains("the manifest has 3 entries"),
+        "{}",
+        stderr(&beyond)
+    );
+}
+
+#[test]
+fn a_batch_killed_midway_resumes_where_it_stopped_and_gives_the_same_outputs() {
+    let dir = scratch("batch-killed");
+    let rows = [
+        ("a", "s1", "plan.json"),
+        ("b", "s2", "plan.json"),
+        ("c", "s3", "plan.json"),
+        ("d", "s1", "plan.json"),
+        ("e", "s2", "plan.json"),
+    ];
+    let manifest = clips(&dir, "3000", &rows);
+    let out = dir.join("out");
+    let mut batch = Command::new(env!("CARGO_BIN_EXE_throughline"))
+        .args([
+            "batch",
+            &manifest,
+            "--out",
+            &out.display().to_string(),
+            "--jobs",
+            "1",
+            "-q",
+        ])
+        .spawn()
+        .unwrap();
+    let started = Instant::now();
+    while !out.join("a/entry.json").exists() {
+        assert!(
+            started.elapsed() < Duration::from_secs(300),
+            "the first entry never finished"
+        );
+        std::thread::sleep(Duration::from_millis(20));
+    }
+    batch.kill().unwrap();
+    batch.wait().unwrap();
+    let left = rows
+        .iter()
+        .filter(|(n, ..)| !out.join(n).join("entry.json").exists())
+        .count();
+    assert!(left > 0, "killed before the last entry");
+    let resumed = throughline(&["batch", &manifest, "--out", &out.display().to_string()]);
+    assert!(resumed.status.success(), "{}", stderr(&resumed));
+    let skipped = rows.len() - left;
+    assert!(
+        stderr(&resumed).contains(&format!("batch: {left} done, {skipped} skipped")),
+        "{}",
+        stderr(&resumed)
+    );
+    // The same outputs as a batch never interrupted.
+    let whole = dir.join("whole");
+    let o = throughline(&[
+        "batch",
+        &manifest,
+        "--out",
+        &whole.display().to_string(),
+        "-q",
+    ]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    for (name, ..) in rows {
+        for f in ["report.json", "counts.csv", "plaza_2026-03-02_grid.csv"] {
+            assert_eq!(
+                read(&out.join(name).join(f)),
+                read(&whole.join(name).join(f)),
+                "{name}/{f}"
+            );
+        }
+    }
+}
+
+#[test]
+fn a_bad_manifest_is_refused_with_its_line_and_column() {
+    let dir = scratch("batch-manifest");
+    for (text, expected) in [
+        (
+            "name,plan,detections,colour\n",
+            "line 1, column 4: unknown column \"colour\"",
+        ),
+        (
+            "name,plan,detections\na,p.json\n",
+            "line 2: 2 fields where the header names 3",
+        ),
+        (
+            "name,plan,detections\nx/../y,p.json,d.txt\n",
+            "cannot be a folder's name",
+        ),
+        ("", "the manifest is empty"),
+    ] {
+        let m = write(&dir, "m.csv", text.as_bytes());
+        let o = throughline(&["batch", &m, "--out", &dir.join("out").display().to_string()]);
+        assert_eq!(o.status.code(), Some(1), "{text:?}");
+        let said = stderr(&o);
+        assert!(
+            said.contains("m.csv: ") && said.contains(expected),
+            "{said}"
+        );
+    }
+    let o = throughline(&[
+        "batch",
+        &dir.join("none.csv").display().to_string(),
+        "--out",
+        "x",
+    ]);
+    assert!(
+        stderr(&o).contains("none.csv: cannot read the file"),
+        "{}",
+        stderr(&o)
+    );
+}
