@@ -116,7 +116,10 @@ fn mp4_sizes_that_lie_are_refused_with_a_message() {
     same.extend_from_slice(&100u32.to_be_bytes());
     same.extend_from_slice(&5_000_000u32.to_be_bytes());
     let e = read_through([ftyp.clone(), movie_with(&mp4_box(b"stsz", &same))].concat()).unwrap();
-    assert!(e.contains("claims 5000000 frames of 100 bytes, more than its"), "{e}");
+    assert!(
+        e.contains("claims 5000000 frames of 100 bytes, more than its"),
+        "{e}"
+    );
 }
 
 /// A movie header with one video track whose sample table holds `table`.
