@@ -30,7 +30,7 @@ mod shape;
 mod site;
 mod test;
 
-const USAGE: &str = "usage: cargo xtask <demo [--no-serve] | site | serve [--no-build] [--port N] | test | bench [--quick | --grid | --counts | --detector | --page] | demo-data | shape | fuzz [--runs N | --seconds S] [TARGET...]>";
+const USAGE: &str = "usage: cargo xtask <demo [--no-serve] | site | serve [--no-build] [--port N] | test | bench [--quick | --grid | --counts | --detector | --page] | demo-data | shape | fuzz [--runs N | --seconds S] [--plain] [TARGET...]>";
 
 fn main() -> ExitCode {
     let args: Vec<String> = std::env::args().skip(1).collect();
