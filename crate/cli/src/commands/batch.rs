@@ -17,6 +17,7 @@ use std::time::Duration;
 use throughline_core::manifest::read_manifest;
 
 mod entry;
+mod merge;
 
 /// The long help of the command (`--help`).
 pub const LONG_ABOUT: &str = "Count many clips: every entry of a manifest, on all cores.\n\n\
@@ -79,6 +80,13 @@ pub fn run(args: Args) -> Result<(), Failure> {
     let summary = Summary::of(&jobs, &outcomes);
     if args.only.is_none() {
         summary.write(&args.out)?;
+        let (written, unmerged) = merge::merge_sites(&jobs, &outcomes, &args.out)?;
+        for path in written.iter().filter(|_| !args.quiet) {
+            eprintln!("merged: {}", path.display());
+        }
+        for line in unmerged {
+            eprintln!("{line}");
+        }
     }
     eprintln!("{}", summary.line());
     if summary.failed.is_empty() {

@@ -96,7 +96,7 @@ pub fn file_stem(report: &Report, ctx: &Context) -> String {
 }
 
 /// Lowercase ASCII letters and digits, other runs of characters as one dash.
-fn slug(text: &str) -> String {
+pub fn slug(text: &str) -> String {
     let mut out = String::new();
     for c in text.chars().flat_map(char::to_lowercase) {
         if c.is_ascii_alphanumeric() {

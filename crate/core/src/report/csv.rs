@@ -7,13 +7,6 @@ use super::Report;
 /// screenline, direction, class seen on that line, and interval (zeros included).
 pub fn counts_csv(report: &Report) -> String {
     let mut out = String::from("screenline,direction,class,interval_start,interval_end,count\n");
-    let quote = |s: &str| {
-        if s.contains([',', '"', '\n']) {
-            format!("\"{}\"", s.replace('"', "\"\""))
-        } else {
-            s.to_string()
-        }
-    };
     for line in &report.screenlines {
         for (forward, label) in [(true, &line.forward_label), (false, &line.backward_label)] {
             for class in line.by_class.keys() {
@@ -34,4 +27,13 @@ pub fn counts_csv(report: &Report) -> String {
         }
     }
     out
+}
+
+/// A CSV field: in double quotes (doubled inside) when it holds a comma, a quote or a line break.
+pub(super) fn quote(s: &str) -> String {
+    if s.contains([',', '"', '\n']) {
+        format!("\"{}\"", s.replace('"', "\"\""))
+    } else {
+        s.to_string()
+    }
 }

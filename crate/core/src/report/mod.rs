@@ -7,9 +7,11 @@
 
 mod checks;
 mod csv;
+mod merge;
 
 pub use checks::{Measures, TallyCheck, TallyGroup};
 pub use csv::counts_csv;
+pub use merge::{merged_counts_csv, Part};
 
 use crate::edits::Outcome;
 use crate::plan::PlanSpec;

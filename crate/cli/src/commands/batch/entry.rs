@@ -67,6 +67,19 @@ impl Job {
         }
     }
 
+    /// The value of a column that is not a file (`site`, `camera`, ...).
+    pub fn value(&self, column: &str) -> Option<&str> {
+        self.values
+            .iter()
+            .find(|(c, _)| *c == column)
+            .map(|(_, v)| v.as_str())
+    }
+
+    /// The entry's report, once counted.
+    pub fn report_path(&self) -> PathBuf {
+        self.dir.join("report.json")
+    }
+
     /// Counts the entry unless it is done already; never panics, whatever the files hold.
     pub fn run(&self) -> Outcome {
         let started = Instant::now();
@@ -124,7 +137,7 @@ impl Job {
             }
         }
         c.arg("-o")
-            .arg(self.dir.join("report.json"))
+            .arg(self.report_path())
             .arg("--csv")
             .arg(self.dir.join("counts.csv"))
             .arg("-q")
