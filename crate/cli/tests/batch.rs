@@ -403,3 +403,52 @@ fn the_clips_of_one_site_merge_on_the_clock_and_equal_the_whole_within_the_bound
         "three cameras' rows, two lines, two directions, two minutes"
     );
 }
+
+#[test]
+fn clips_that_start_between_interval_boundaries_are_merged_into_the_clocks_intervals() {
+    // Two clips of 30 s, the second starting at 07:00:30: both fall in 07:00-07:15, which they
+    // cover only in part; each crossing is counted once, in the interval of the clock it falls in.
+    let dir = scratch("batch-merge-clock");
+    let manifest = clips(
+        &dir,
+        "750",
+        &[("a", "s1", "plan.json"), ("b", "s2", "plan.json")],
+    );
+    let text = std::fs::read_to_string(&manifest).unwrap().replacen(
+        "b,s2/detections.txt,plan.json,Plaza,2026-03-02T07:00:00",
+        "b,s2/detections.txt,plan.json,Plaza,2026-03-02T07:00:30",
+        1,
+    );
+    std::fs::write(&manifest, text).unwrap();
+    let o = throughline(&[
+        "batch",
+        &manifest,
+        "--out",
+        &dir.join("out").display().to_string(),
+    ]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let sum = |name: &str| -> u64 {
+        String::from_utf8(read(&dir.join("out").join(name).join("counts.csv")))
+            .unwrap()
+            .lines()
+            .skip(1)
+            .map(|l| l.rsplit(',').next().unwrap().parse::<u64>().unwrap())
+            .sum()
+    };
+    let merged =
+        merged_rows(&String::from_utf8(read(&dir.join("out/plaza_merged-counts.csv"))).unwrap());
+    assert_eq!(
+        merged.len(),
+        4,
+        "one interval for each line direction: {merged:?}"
+    );
+    for ((camera, _, _, start), (_, partial)) in &merged {
+        assert_eq!(
+            (start.as_str(), partial.as_str()),
+            ("2026-03-02T07:00:00", "yes")
+        );
+        assert_eq!(camera, "", "no camera column: the clips are of one camera");
+    }
+    let total: u64 = merged.values().map(|(n, _)| n).sum();
+    assert_eq!(total, sum("a") + sum("b"));
+}

@@ -28,9 +28,10 @@ mod serve;
 mod sh;
 mod shape;
 mod site;
+mod slurm;
 mod test;
 
-const USAGE: &str = "usage: cargo xtask <demo [--no-serve] | site | serve [--no-build] [--port N] | test | bench [--quick | --grid | --counts | --detector | --page] | demo-data | shape | fuzz [--runs N | --seconds S] [--plain] [TARGET...]>";
+const USAGE: &str = "usage: cargo xtask <demo [--no-serve] | site | serve [--no-build] [--port N] | test | bench [--quick | --grid | --counts | --detector | --page] | demo-data | shape | fuzz [--runs N | --seconds S] [--plain] [TARGET...] | slurm>";
 
 fn main() -> ExitCode {
     let args: Vec<String> = std::env::args().skip(1).collect();
@@ -44,6 +45,7 @@ fn main() -> ExitCode {
         Some("demo-data") => demo::demo_data(),
         Some("shape") => shape::command(),
         Some("fuzz") => fuzz::command(rest),
+        Some("slurm") => slurm::check(),
         _ => Err(USAGE.into()),
     };
     match result {

@@ -1,6 +1,7 @@
 //! `cargo xtask test`: the whole suite, as CI runs it (`.ci/run`). Cheap invariants first, then the
 //! installs (every step idempotent, so a fresh machine and a warm one run the same script), format
-//! check, lints, every test, a short run of every fuzz target, the wasm32 builds, the adapter against the command line in Node and in
+//! check, lints, every test, a batch through a one-node Slurm cluster, a short run of every fuzz
+//! target, the wasm32 builds, the adapter against the command line in Node and in
 //! headless Chromium, and the page end to end.
 
 use std::path::Path;
@@ -26,6 +27,8 @@ pub fn test() -> Result<(), String> {
         &["test", "--workspace"],
         &[(REQUIRE_FFMPEG_ENV, "1")],
     )?;
+    // Batch work spread by a real Slurm scheduler: a one-node cluster on this machine.
+    crate::slurm::check()?;
     // Every reader of outside bytes under the fuzzer for a few seconds, its past crashes first.
     crate::fuzz::smoke()?;
     ensure_wasm_tools()?;

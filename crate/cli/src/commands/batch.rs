@@ -18,6 +18,7 @@ use throughline_core::manifest::read_manifest;
 
 mod entry;
 mod merge;
+mod slurm;
 
 /// The long help of the command (`--help`).
 pub const LONG_ABOUT: &str = "Count many clips: every entry of a manifest, on all cores.\n\n\
@@ -47,6 +48,10 @@ pub struct Args {
     /// Print only failures and the closing summary.
     #[arg(short, long)]
     quiet: bool,
+    /// Count nothing here: write OUT/slurm/ with an array job (one task per entry) for the Slurm
+    /// scheduler, a merge job that runs after it, and submit.sh that submits both.
+    #[arg(long, conflicts_with_all = ["only", "jobs"])]
+    emit_slurm: bool,
 }
 
 pub fn run(args: Args) -> Result<(), Failure> {
@@ -68,6 +73,9 @@ pub fn run(args: Args) -> Result<(), Failure> {
     };
     std::fs::create_dir_all(&args.out)
         .map_err(|e| bad_input(&args.out, format!("cannot make the output folder: {e}")))?;
+    if args.emit_slurm {
+        return slurm::emit(&args.manifest, &args.out, entries.len());
+    }
     let jobs: Vec<Job> = chosen
         .iter()
         .map(|&i| Job::new(&entries[i], &base, &args.out))

@@ -1,18 +1,20 @@
-//! The counts of several reports of one site, merged on the real clock: consecutive clips of one
-//! camera add up in the intervals they share (the one a cut falls in gets its part from each),
-//! and several cameras of one site are listed each on its own and, line by line, all together.
+//! The counts of several reports of one site, merged on the real clock: every counted crossing
+//! is placed in the interval of the clock it falls in (intervals of the plans' length from
+//! midnight: 07:00, 07:15, ... whatever time each clip starts at), so consecutive clips of one
+//! camera add up in the interval a cut falls in, and several cameras of one site are listed each
+//! on its own and, line by line, all together.
 //!
 //! An interval is marked partial unless the clips of that camera cover it whole (the clips'
 //! recording start and duration, to the whole second); in the rows of all cameras together, when
 //! it is partial for any camera.
 
 use super::csv::quote;
-use super::Report;
+use super::{EventKind, Report};
 use crate::error::{Error, ErrorKind};
 use crate::plan::clock::LocalTime;
-use std::collections::BTreeMap;
+use std::collections::{BTreeMap, BTreeSet};
 
-/// One report to merge, with the entry it came from and its camera.
+/// One report to merge, with the entry it came from and its camera (empty: the site's one camera).
 pub struct Part<'a> {
     pub entry: &'a str,
     pub camera: &'a str,
@@ -20,8 +22,8 @@ pub struct Part<'a> {
 }
 
 /// What the merged rows are keyed by: the camera ([`ALL`]: all together), the line and direction
-/// in order of first appearance, the class and the interval.
-type Key = (usize, usize, String, String, String);
+/// in order of first appearance, the class and the interval's number on the clock.
+type Key = (usize, usize, String, i64);
 
 /// The camera of the rows of all cameras together (after every camera's own rows).
 const ALL: usize = usize::MAX;
@@ -33,81 +35,163 @@ struct Cell {
     entries: Vec<String>,
 }
 
+/// What the parts of one camera recorded: the stretches of clock time, and the line directions and
+/// classes its reports list (each with a row per interval, zeros included).
+#[derive(Default)]
+struct Camera<'a> {
+    name: &'a str,
+    spans: Vec<(LocalTime, LocalTime)>,
+    rows: BTreeSet<(usize, String)>,
+}
+
 /// The merged counts as CSV: `site,camera,screenline,direction,class,interval_start,interval_end,
 /// count,partial,entries`, the rows of each camera first (in the order the cameras first appear),
 /// then, with more than one camera, the rows of all cameras together (camera `all cameras`).
 pub fn merged_counts_csv(site: &str, parts: &[Part]) -> Result<String, Error> {
-    let mut cameras: Vec<&str> = Vec::new();
-    let mut lines: Vec<(String, String)> = Vec::new();
-    let mut covered: Vec<Vec<(LocalTime, LocalTime)>> = Vec::new();
-    let mut cells: BTreeMap<Key, Cell> = BTreeMap::new();
+    let Some(first) = parts.first() else {
+        return Ok(String::new());
+    };
+    let minutes = first.report.plan.interval_minutes;
+    let mut merge = Merge {
+        length: (minutes * 60.0).round() as i64,
+        cameras: Vec::new(),
+        lines: Vec::new(),
+        cells: BTreeMap::new(),
+    };
     for part in parts {
-        let r = part.report;
-        let start = r.plan.start.as_deref().and_then(LocalTime::parse).ok_or_else(|| {
-            Error::new(
-                ErrorKind::Unsuitable,
-                format!(
-                    "{}: no recording start, so its counts cannot be placed on the clock beside the others: give the start column in the manifest (or the plan's start)",
-                    part.entry
-                ),
-            )
-        })?;
-        let cam = index_of(&mut cameras, part.camera);
-        if covered.len() < cameras.len() {
-            covered.push(Vec::new());
+        if (part.report.plan.interval_minutes - minutes).abs() > 1e-9 || merge.length < 1 {
+            return Err(unsuitable(format!(
+                "{}: intervals of {} minutes where {} has {minutes}: the clips of one site need one interval length",
+                part.entry, part.report.plan.interval_minutes, first.entry
+            )));
         }
-        covered[cam].push((start, start.plus_seconds(r.duration_seconds.floor() as i64)));
+        merge.add(part)?;
+    }
+    merge.add_zeros();
+    Ok(merge.csv(site))
+}
+
+/// The merge so far: the cameras, the line directions, and the count of each row.
+struct Merge<'a> {
+    /// Interval length in seconds.
+    length: i64,
+    cameras: Vec<Camera<'a>>,
+    lines: Vec<(String, String)>,
+    cells: BTreeMap<Key, Cell>,
+}
+
+impl<'a> Merge<'a> {
+    /// One report: its stretch of clock time, the rows it lists, and each crossing it counted.
+    fn add(&mut self, part: &Part<'a>) -> Result<(), Error> {
+        let r = part.report;
+        let start = clock_start(part)?;
+        let cam = match self.cameras.iter().position(|c| c.name == part.camera) {
+            Some(i) => i,
+            None => {
+                self.cameras.push(Camera {
+                    name: part.camera,
+                    ..Camera::default()
+                });
+                self.cameras.len() - 1
+            }
+        };
+        let end = start.plus_seconds(r.duration_seconds.floor() as i64);
+        self.cameras[cam].spans.push((start, end));
         for line in &r.screenlines {
-            for (forward, label) in [(true, &line.forward_label), (false, &line.backward_label)] {
-                let l = index_of(&mut lines, (line.name.clone(), label.clone()));
+            for label in [&line.forward_label, &line.backward_label] {
+                let l = index_of(&mut self.lines, (line.name.clone(), label.clone()));
                 for class in line.by_class.keys() {
-                    for i in &line.intervals {
-                        let c = i.by_class.get(class).copied().unwrap_or_default();
-                        let n = if forward { c.forward } else { c.backward };
-                        for camera in [cam, ALL] {
-                            let key = (camera, l, class.clone(), i.start.clone(), i.end.clone());
-                            let cell = cells.entry(key).or_default();
-                            cell.count += n;
-                            if !cell.entries.iter().any(|e| e == part.entry) {
-                                cell.entries.push(part.entry.to_string());
-                            }
+                    self.cameras[cam].rows.insert((l, class.clone()));
+                }
+            }
+        }
+        for e in r.events.iter().filter(|e| e.kind == EventKind::Screenline) {
+            let l = index_of(&mut self.lines, (e.name.clone(), e.label.clone()));
+            let at = start.seconds() as f64 + e.seconds;
+            let bin = (at / self.length as f64).floor() as i64;
+            for camera in [cam, ALL] {
+                let cell = self
+                    .cells
+                    .entry((camera, l, e.class.clone(), bin))
+                    .or_default();
+                cell.count += 1;
+                if !cell.entries.iter().any(|x| x == part.entry) {
+                    cell.entries.push(part.entry.to_string());
+                }
+            }
+        }
+        Ok(())
+    }
+
+    /// Every interval a camera recorded in, for every line direction and class it lists: zeros too.
+    fn add_zeros(&mut self) {
+        for (cam, camera) in self.cameras.iter().enumerate() {
+            for &(from, to) in &camera.spans {
+                let first_bin = from.seconds().div_euclid(self.length);
+                let last_bin = (to.seconds() - 1)
+                    .max(from.seconds())
+                    .div_euclid(self.length);
+                for bin in first_bin..=last_bin {
+                    for (l, class) in &camera.rows {
+                        for c in [cam, ALL] {
+                            self.cells.entry((c, *l, class.clone(), bin)).or_default();
                         }
                     }
                 }
             }
         }
     }
-    let mut out = String::from(
-        "site,camera,screenline,direction,class,interval_start,interval_end,count,partial,entries\n",
-    );
-    for ((camera, l, class, start, end), cell) in &cells {
-        if *camera == ALL && cameras.len() < 2 {
-            continue;
+
+    fn csv(&self, site: &str) -> String {
+        let mut out = String::from(
+            "site,camera,screenline,direction,class,interval_start,interval_end,count,partial,entries\n",
+        );
+        for ((camera, l, class, bin), cell) in &self.cells {
+            if *camera == ALL && self.cameras.len() < 2 {
+                continue;
+            }
+            let from = LocalTime::from_seconds(bin * self.length);
+            let to = from.plus_seconds(self.length);
+            let partial = match self.cameras.get(*camera) {
+                Some(c) => !covers(&c.spans, from, to),
+                None => self.cameras.iter().any(|c| !covers(&c.spans, from, to)),
+            };
+            let (line, label) = &self.lines[*l];
+            let camera_name = self.cameras.get(*camera).map_or("all cameras", |c| c.name);
+            let fields = [
+                site,
+                camera_name,
+                line,
+                label,
+                class,
+                &from.to_string(),
+                &to.to_string(),
+            ];
+            let quoted: Vec<String> = fields.iter().map(|f| quote(f)).collect();
+            out.push_str(&format!(
+                "{},{},{},{}\n",
+                quoted.join(","),
+                cell.count,
+                if partial { "yes" } else { "no" },
+                quote(&cell.entries.join(" "))
+            ));
         }
-        let partial = match covered.get(*camera) {
-            Some(spans) => !covers(spans, start, end),
-            None => covered.iter().any(|spans| !covers(spans, start, end)),
-        };
-        let (line, label) = &lines[*l];
-        let fields = [
-            site,
-            cameras.get(*camera).copied().unwrap_or("all cameras"),
-            line,
-            label,
-            class,
-            start,
-            end,
-        ];
-        let quoted: Vec<String> = fields.iter().map(|f| quote(f)).collect();
-        out.push_str(&format!(
-            "{},{},{},{}\n",
-            quoted.join(","),
-            cell.count,
-            if partial { "yes" } else { "no" },
-            quote(&cell.entries.join(" "))
-        ));
+        out
     }
-    Ok(out)
+}
+
+/// The clock time of a part's frame 1.
+fn clock_start(part: &Part) -> Result<LocalTime, Error> {
+    part.report.plan.start.as_deref().and_then(LocalTime::parse).ok_or_else(|| {
+        unsuitable(format!(
+            "{}: no recording start, so its counts cannot be placed on the clock beside the others: give the start column in the manifest (or the plan's start)",
+            part.entry
+        ))
+    })
+}
+
+fn unsuitable(message: String) -> Error {
+    Error::new(ErrorKind::Unsuitable, message)
 }
 
 /// The place of `item` in `list`, added at the end when new.
@@ -121,11 +205,8 @@ fn index_of<T: PartialEq>(list: &mut Vec<T>, item: T) -> usize {
     }
 }
 
-/// Whether the spans (recorded stretches) cover the interval from `start` to `end` whole.
-fn covers(spans: &[(LocalTime, LocalTime)], start: &str, end: &str) -> bool {
-    let (Some(mut from), Some(to)) = (LocalTime::parse(start), LocalTime::parse(end)) else {
-        return false;
-    };
+/// Whether the spans (recorded stretches) cover the interval from `from` to `to` whole.
+fn covers(spans: &[(LocalTime, LocalTime)], mut from: LocalTime, to: LocalTime) -> bool {
     let mut sorted = spans.to_vec();
     sorted.sort();
     for (a, b) in sorted {
@@ -152,13 +233,12 @@ mod tests {
         let first = (t("2026-03-02T07:00:00"), t("2026-03-02T07:07:30"));
         let second = (t("2026-03-02T07:07:30"), t("2026-03-02T07:20:00"));
         let late = (t("2026-03-02T07:08:00"), t("2026-03-02T07:20:00"));
-        let (a, b) = ("2026-03-02T07:00:00", "2026-03-02T07:15:00");
+        let (a, b) = (t("2026-03-02T07:00:00"), t("2026-03-02T07:15:00"));
         assert!(covers(&[second, first], a, b), "back to back, in any order");
         assert!(
             !covers(&[first, late], a, b),
             "half a minute missing at 07:07:30"
         );
         assert!(!covers(&[second], a, b), "the first half missing");
-        assert!(!covers(&[first, second], a, "not a time"));
     }
 }

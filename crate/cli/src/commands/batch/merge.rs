@@ -50,7 +50,7 @@ pub fn merge_sites(
             .zip(&reports)
             .map(|((job, _), report)| Part {
                 entry: &job.name,
-                camera: job.value("camera").unwrap_or(&job.name),
+                camera: job.value("camera").unwrap_or(""),
                 report,
             })
             .collect();

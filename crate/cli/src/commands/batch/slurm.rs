@@ -1,0 +1,93 @@
+//! `batch --emit-slurm`: the job scripts that spread a batch over a cluster run by the Slurm
+//! scheduler: an array job with one task per entry (each `throughline batch --only K`), and a
+//! merge job that starts when the array has ended and runs the batch once more (every entry done
+//! is skipped; one whose task failed or was stopped is counted again; then each site is merged).
+
+use crate::files::{bad_input, Failure};
+use crate::output::Outputs;
+use std::path::Path;
+
+/// Writes `OUT/slurm/count.sbatch`, `merge.sbatch` and `submit.sh` (paths in them absolute, so
+/// they run from any folder).
+pub fn emit(manifest: &Path, out: &Path, entries: usize) -> Result<(), Failure> {
+    let absolute = |p: &Path| {
+        std::fs::canonicalize(p)
+            .map(|p| p.display().to_string())
+            .map_err(|e| bad_input(p, format!("cannot resolve the path: {e}")))
+    };
+    let manifest = absolute(manifest)?;
+    let out = absolute(out)?;
+    let exe = std::env::current_exe().map_err(|e| {
+        bad_input(
+            Path::new("throughline"),
+            format!("cannot find the program itself: {e}"),
+        )
+    })?;
+    let exe = exe.display().to_string();
+    let dir = Path::new(&out).join("slurm");
+    std::fs::create_dir_all(&dir)
+        .map_err(|e| bad_input(&dir, format!("cannot make the folder: {e}")))?;
+    let quoted = |s: &str| format!("'{}'", s.replace('\'', "'\\''"));
+    let logs = quoted(&dir.display().to_string());
+    let count = format!(
+        "#!/bin/bash\n\
+         # One task per entry of {manifest} ({entries} entries), written by throughline batch --emit-slurm.\n\
+         #SBATCH --job-name=throughline-count\n\
+         #SBATCH --array=1-{entries}\n\
+         #SBATCH --ntasks=1\n\
+         #SBATCH --cpus-per-task=1\n\
+         #SBATCH --output={dir}/count-%A_%a.log\n\
+         exec {exe} batch {m} --out {o} --only \"$SLURM_ARRAY_TASK_ID\" --jobs 1 --quiet\n",
+        dir = dir.display(),
+        exe = quoted(&exe),
+        m = quoted(&manifest),
+        o = quoted(&out),
+    );
+    let merge = format!(
+        "#!/bin/bash\n\
+         # After the array job: the batch once more (done entries skipped, failed ones tried again), then each site merged.\n\
+         #SBATCH --job-name=throughline-merge\n\
+         #SBATCH --ntasks=1\n\
+         #SBATCH --output={dir}/merge-%j.log\n\
+         exec {exe} batch {m} --out {o} --quiet\n",
+        dir = dir.display(),
+        exe = quoted(&exe),
+        m = quoted(&manifest),
+        o = quoted(&out),
+    );
+    let submit = format!(
+        "#!/bin/sh\n\
+         # Submits the array job, then the merge job to start when every task has ended.\n\
+         set -e\n\
+         cd {logs}\n\
+         count=$(sbatch --parsable count.sbatch)\n\
+         count=${{count%%;*}}\n\
+         merge=$(sbatch --parsable --dependency=afterany:\"$count\" merge.sbatch)\n\
+         echo \"array job $count ({entries} tasks), merge job ${{merge%%;*}}\"\n",
+    );
+    let mut files = Outputs::new();
+    for (name, text) in [
+        ("count.sbatch", &count),
+        ("merge.sbatch", &merge),
+        ("submit.sh", &submit),
+    ] {
+        files.write(&dir.join(name), text)?;
+    }
+    files.commit()?;
+    make_executable(&dir.join("submit.sh"));
+    eprintln!(
+        "written: {0}/count.sbatch ({entries} tasks), {0}/merge.sbatch, {0}/submit.sh\n\
+         on the cluster's login node: sh {0}/submit.sh",
+        dir.display()
+    );
+    Ok(())
+}
+
+#[cfg(unix)]
+fn make_executable(path: &Path) {
+    use std::os::unix::fs::PermissionsExt;
+    let _ = std::fs::set_permissions(path, std::fs::Permissions::from_mode(0o755));
+}
+
+#[cfg(not(unix))]
+fn make_executable(_: &Path) {}
