@@ -397,6 +397,27 @@ fn the_clips_of_one_site_merge_on_the_clock_and_equal_the_whole_within_the_bound
         }
     }
     assert!(changed <= 4, "{changed} counts changed by the cut");
+    // The events behind the merged counts: one row per counted crossing, with its clip.
+    let events = String::from_utf8(read(&dir.join("out/plaza_merged-events.csv"))).unwrap();
+    for camera in ["north", "south"] {
+        let crossings = events
+            .lines()
+            .filter(|l| l.starts_with(&format!("Plaza,{camera},")) && l.contains(",screenline,"))
+            .count() as u64;
+        let counted: u64 = merged
+            .iter()
+            .filter(|(k, _)| k.0 == camera)
+            .map(|(_, v)| v.0)
+            .sum();
+        assert_eq!(
+            crossings, counted,
+            "{camera}: an event for every crossing counted"
+        );
+    }
+    assert!(
+        events.contains(",north-2,2026-03-02T07:01:"),
+        "the second clip's events on the clock"
+    );
     assert_eq!(
         merged.len(),
         3 * 2 * 2 * 2,

@@ -4,6 +4,8 @@
 //! camera add up in the interval a cut falls in, and several cameras of one site are listed each
 //! on its own and, line by line, all together.
 //!
+//! The events behind the merged counts are listed too, each with its entry and camera.
+//!
 //! An interval is marked partial unless the clips of that camera cover it whole (the clips'
 //! recording start and duration, to the whole second); in the rows of all cameras together, when
 //! it is partial for any camera.
@@ -172,11 +174,65 @@ impl<'a> Merge<'a> {
                 "{},{},{},{}\n",
                 quoted.join(","),
                 cell.count,
-                if partial { "yes" } else { "no" },
+                yes_no(partial),
                 quote(&cell.entries.join(" "))
             ));
         }
         out
+    }
+}
+
+/// Every counted crossing and zone event of the site's reports, with the entry and camera it came
+/// from, in clock order (ties in entry order): `site,camera,entry,time,kind,name,direction,class,
+/// track,frame,inferred,added,reason`. What a person checks a merged count against: each event
+/// leads back to its clip's report and frame, and the corrections behind it (added by a person,
+/// or counted while hidden) are marked.
+pub fn merged_events_csv(site: &str, parts: &[Part]) -> Result<String, Error> {
+    let mut rows: Vec<(f64, usize, String)> = Vec::new();
+    for (k, part) in parts.iter().enumerate() {
+        let start = clock_start(part)?;
+        for e in &part.report.events {
+            let at = start.seconds() as f64 + e.seconds;
+            let clock = LocalTime::from_seconds(at.floor() as i64);
+            let tenths = ((at - at.floor()) * 10.0).floor() as i64;
+            let kind = match e.kind {
+                EventKind::Screenline => "screenline",
+                EventKind::Zone => "zone",
+            };
+            let fields = [
+                quote(site),
+                quote(part.camera),
+                quote(part.entry),
+                format!("{clock}.{tenths}"),
+                kind.to_string(),
+                quote(&e.name),
+                quote(&e.label),
+                quote(&e.class),
+                e.track.to_string(),
+                e.frame.to_string(),
+                yes_no(e.inferred).to_string(),
+                yes_no(e.added).to_string(),
+                quote(e.reason.as_deref().unwrap_or("")),
+            ];
+            rows.push((at, k, fields.join(",")));
+        }
+    }
+    rows.sort_by(|a, b| a.0.total_cmp(&b.0).then(a.1.cmp(&b.1)));
+    let mut out = String::from(
+        "site,camera,entry,time,kind,name,direction,class,track,frame,inferred,added,reason\n",
+    );
+    for (_, _, row) in rows {
+        out.push_str(&row);
+        out.push('\n');
+    }
+    Ok(out)
+}
+
+fn yes_no(b: bool) -> &'static str {
+    if b {
+        "yes"
+    } else {
+        "no"
     }
 }
 

@@ -11,7 +11,7 @@ mod merge;
 
 pub use checks::{Measures, TallyCheck, TallyGroup};
 pub use csv::counts_csv;
-pub use merge::{merged_counts_csv, Part};
+pub use merge::{merged_counts_csv, merged_events_csv, Part};
 
 use crate::edits::Outcome;
 use crate::plan::PlanSpec;

@@ -1,12 +1,13 @@
 //! After a batch: the counts of each site's entries merged on the real clock
-//! (`OUT/SITE_merged-counts.csv`), when every entry of the site was counted.
+//! (`OUT/SITE_merged-counts.csv`) and the events behind them (`OUT/SITE_merged-events.csv`), when
+//! every entry of the site was counted.
 
 use super::entry::{Job, Outcome};
 use crate::files::{bad_input, Failure};
 use crate::output::Outputs;
 use std::path::{Path, PathBuf};
 use throughline_core::handin::slug;
-use throughline_core::report::{merged_counts_csv, Part, Report};
+use throughline_core::report::{merged_counts_csv, merged_events_csv, Part, Report};
 
 /// Writes each site's merged counts; the files written, and a line for each site left unmerged.
 pub fn merge_sites(
@@ -54,11 +55,16 @@ pub fn merge_sites(
                 report,
             })
             .collect();
-        match merged_counts_csv(site, &parts) {
-            Ok(csv) => {
-                let path = out.join(format!("{}_merged-counts.csv", slug(site)));
-                files.write(&path, &csv)?;
-                written.push(path);
+        let merged = merged_counts_csv(site, &parts).and_then(|counts| {
+            merged_events_csv(site, &parts).map(|events| [("counts", counts), ("events", events)])
+        });
+        match merged {
+            Ok(tables) => {
+                for (what, csv) in tables {
+                    let path = out.join(format!("{}_merged-{what}.csv", slug(site)));
+                    files.write(&path, &csv)?;
+                    written.push(path);
+                }
             }
             Err(e) => unmerged.push(format!("{site}: not merged: {e}")),
         }
