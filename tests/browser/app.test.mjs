@@ -305,6 +305,7 @@ test("a long tracking run can be cancelled; the counts shown before, the detecti
   assert.equal(await page.locator("#doubtful-list li").count(), 301, "300 moments and a Show more row");
   await page.getByRole("button", { name: /^Show 300 more \(\d+ not listed yet\)$/ }).click();
   assert.equal(await page.locator("#doubtful-list li").count(), 601);
+  assert.match(await page.evaluate(() => document.activeElement?.textContent || ""), /^\S+301\. /, "the keyboard goes on at the first new row");
   await showView(page, "Set up");
   await page.getByLabel("Method").selectOption("deepsort");
   await page.getByRole("button", { name: "Run", exact: true }).click();

@@ -89,7 +89,7 @@ export class DoubtList {
     });
     const left = shown.length - rows.length;
     if (left > 0) {
-      const more = el("button", { type: "button", text: `Show ${Math.min(left, ROWS_PER_PAGE)} more (${left} not listed yet)`, onclick: () => this.drawMore(ROWS_PER_PAGE) });
+      const more = el("button", { type: "button", text: `Show ${Math.min(left, ROWS_PER_PAGE)} more (${left} not listed yet)`, onclick: () => this.drawMore(ROWS_PER_PAGE, true) });
       rows.push(el("li", { class: "more" }, [more]));
     }
     this.list.replaceChildren(...rows);
@@ -117,10 +117,17 @@ export class DoubtList {
     this.choose(d);
   }
 
-  /** @param {number} rows draws this many more rows */
-  drawMore(rows) {
+  /**
+   * @param {number} rows draws this many more rows
+   * @param {boolean} [focusNew] moves the keyboard focus to the first new row (Show more was pressed)
+   */
+  drawMore(rows, focusNew = false) {
+    const first = this.rowsDrawn;
     this.rowsDrawn += rows;
     this.show();
+    const shown = this.shown();
+    const button = shown[first] ? this.buttons.get(shown[first].key) : undefined;
+    if (focusNew && button) button.focus();
   }
 
   /** The chosen moment's row is marked as the current one (drawn first, if it was beyond the rows drawn). */

@@ -66,15 +66,23 @@ export class RunPanel {
     const previous = this.store.tracks && detections ? this.shownMethod : null;
     this.keepShown = previous !== null;
     this.restoring = (async () => {
-      await this.client.restart();
-      if (detections) await this.client.loadDetections(await detections.source.arrayBuffer());
-      await this.editSync.send();
-      if (previous !== null) {
-        this.status.textContent = "Bringing back the tracks shown before…";
-        await this.client.track(previous, "", () => {});
-        this.status.textContent = "The counts shown are those from before the cancelled run.";
+      try {
+        await this.client.restart();
+        if (detections) await this.client.loadDetections(await detections.source.arrayBuffer());
+        await this.editSync.send();
+        if (previous !== null) {
+          this.status.textContent = "Bringing back the tracks shown before…";
+          await this.client.track(previous, "", () => {});
+          this.status.textContent = "The counts shown are those from before the cancelled run.";
+        }
+        await this.planSync.send();
+      } catch (e) {
+        // The counts on screen are no longer the engine's: take them away rather than show them.
+        this.store.trackingCancelled();
+        this.shownMethod = null;
+        this.status.textContent = "";
+        this.messages.say("run", "error", `The tracks from before could not be brought back (${/** @type {Error} */ (e).message}): press Run to track again.`);
       }
-      await this.planSync.send();
     })().finally(() => { this.restoring = null; });
   }
 
@@ -88,13 +96,15 @@ export class RunPanel {
     this.showBusy(true);
     this.status.textContent = "Tracking…";
     const started = performance.now();
+    // The method of this run, as chosen when Run was pressed (the list may change while it runs).
+    const method = this.method.value;
     try {
-      const out = await this.client.track(this.method.value, "", (done, total) => {
+      const out = await this.client.track(method, "", (done, total) => {
         this.bar.value = total ? done / total : 0;
         this.status.textContent = `Tracking… frame ${done} of ${total}`;
       });
       this.store.tracksReady(new TrackView(out.boxes, out.trackList));
-      this.shownMethod = this.method.value;
+      this.shownMethod = method;
       const seconds = ((performance.now() - started) / 1000).toFixed(1);
       this.status.textContent = `${out.tracks} tracks in ${seconds} s.`;
       if (!hasCountingGeometry(this.store.plan)) {

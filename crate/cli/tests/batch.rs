@@ -32,10 +32,10 @@ fn clips(dir: &Path, frames: &str, rows: &[(&str, &str, &str)]) -> String {
         b"{\"frame_rate\": 25, \"screenlines\": [{\"name\": \"x\"}]}",
     );
     let mut manifest =
-        String::from("# three clips of one morning\nname,detections,plan,site,start\n");
+        String::from("# clips of one morning, each from its own camera\nname,detections,plan,site,camera,start\n");
     for (name, clip, plan) in rows {
         manifest.push_str(&format!(
-            "{name},{clip}/detections.txt,{plan},Plaza,2026-03-02T07:00:00\n"
+            "{name},{clip}/detections.txt,{plan},Plaza,{name},2026-03-02T07:00:00\n"
         ));
     }
     write(dir, "manifest.csv", manifest.as_bytes())
@@ -435,11 +435,13 @@ fn clips_that_start_between_interval_boundaries_are_merged_into_the_clocks_inter
         "750",
         &[("a", "s1", "plan.json"), ("b", "s2", "plan.json")],
     );
-    let text = std::fs::read_to_string(&manifest).unwrap().replacen(
-        "b,s2/detections.txt,plan.json,Plaza,2026-03-02T07:00:00",
-        "b,s2/detections.txt,plan.json,Plaza,2026-03-02T07:00:30",
-        1,
-    );
+    let text = std::fs::read_to_string(&manifest)
+        .unwrap()
+        .replace("Plaza,a,", "Plaza,north,")
+        .replace(
+            "Plaza,b,2026-03-02T07:00:00",
+            "Plaza,north,2026-03-02T07:00:30",
+        );
     std::fs::write(&manifest, text).unwrap();
     let o = throughline(&[
         "batch",
@@ -468,8 +470,47 @@ fn clips_that_start_between_interval_boundaries_are_merged_into_the_clocks_inter
             (start.as_str(), partial.as_str()),
             ("2026-03-02T07:00:00", "yes")
         );
-        assert_eq!(camera, "", "no camera column: the clips are of one camera");
+        assert_eq!(camera, "north", "the two clips are of one camera");
     }
     let total: u64 = merged.values().map(|(n, _)| n).sum();
     assert_eq!(total, sum("a") + sum("b"));
+}
+
+#[test]
+fn what_would_mislead_a_merged_count_is_refused_and_a_lost_report_is_counted_again() {
+    let dir = scratch("batch-mislead");
+    let manifest = clips(
+        &dir,
+        "300",
+        &[("a", "s1", "plan.json"), ("b", "s2", "plan.json")],
+    );
+    let out = dir.join("out").display().to_string();
+    // Two clips of one camera at the same time: their crossings would count twice.
+    let same_camera = std::fs::read_to_string(&manifest)
+        .unwrap()
+        .replace("Plaza,a,", "Plaza,north,")
+        .replace("Plaza,b,", "Plaza,north,");
+    std::fs::write(&manifest, same_camera).unwrap();
+    let o = throughline(&["batch", &manifest, "--out", &out]);
+    assert_eq!(o.status.code(), Some(1), "{}", stderr(&o));
+    let said = stderr(&o);
+    assert!(
+        said.contains("Plaza: not merged: a (2026-03-02T07:00:00 to 2026-03-02T07:00:12) and b"),
+        "{said}"
+    );
+    assert!(
+        said.contains("counted twice") && said.contains("1 site(s) not merged"),
+        "{said}"
+    );
+    assert!(!dir.join("out/plaza_merged-counts.csv").exists());
+    // A clip's report lost after it was counted: it is counted again, not skipped.
+    std::fs::remove_file(dir.join("out/a/report.json")).unwrap();
+    let o = throughline(&["batch", &manifest, "--out", &out, "--only", "1"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    assert!(
+        stderr(&o).contains("batch: 1 done, 0 skipped"),
+        "{}",
+        stderr(&o)
+    );
+    assert!(dir.join("out/a/report.json").exists());
 }

@@ -81,5 +81,8 @@ pub const MAX_CONTAINER_ELEMENTS: usize = 20_000_000;
 /// Entries in one batch manifest: a year of 15-minute clips from one camera is 35,040.
 pub const MAX_MANIFEST_ENTRIES: usize = 100_000;
 
+/// Bytes of a batch manifest: 100,000 rows of 160 characters.
+pub const MAX_MANIFEST_BYTES: u64 = 16 << 20;
+
 /// Characters in an entry's name (its output folder's name).
 pub const MAX_ENTRY_NAME: usize = 100;

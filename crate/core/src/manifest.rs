@@ -16,7 +16,10 @@
 
 use crate::error::{Error, ErrorKind};
 use crate::limits::{MAX_ENTRY_NAME, MAX_MANIFEST_ENTRIES};
+use crate::plan::clock::LocalTime;
 use crate::text::{as_text, split_fields};
+use crate::track::Method;
+use std::collections::HashMap;
 
 /// The columns a manifest may have, in the order [`Entry::fields`] lists them.
 pub const COLUMNS: [&str; 12] = [
@@ -71,7 +74,13 @@ impl Entry {
 /// Reads a manifest: its entries in order, each checked (a name, a plan, detections or footage but
 /// not both, names unique and usable as a folder's name).
 pub fn read_manifest(bytes: &[u8]) -> Result<Vec<Entry>, Error> {
-    let text = as_text(bytes)?;
+    let text = as_text(bytes).map_err(|e| match e.kind {
+        ErrorKind::Binary => Error::new(
+            ErrorKind::Binary,
+            "this is not a text file: a manifest is CSV text, one row per clip (name,detections,plan,...)",
+        ),
+        _ => e,
+    })?;
     let mut rows = text
         .lines()
         .enumerate()
@@ -85,6 +94,9 @@ pub fn read_manifest(bytes: &[u8]) -> Result<Vec<Entry>, Error> {
     };
     let columns = read_header(header, header_line)?;
     let mut entries: Vec<Entry> = Vec::new();
+    // Names already used, in lower case (folders of names differing only in case are one folder on
+    // some systems), with the line that used each.
+    let mut names: HashMap<String, usize> = HashMap::new();
     for (line, row) in rows {
         if entries.len() == MAX_MANIFEST_ENTRIES {
             return Err(manifest_error(format!(
@@ -93,11 +105,10 @@ pub fn read_manifest(bytes: &[u8]) -> Result<Vec<Entry>, Error> {
             .at(line, None));
         }
         let entry = read_row(row, line, &columns)?;
-        if let Some(first) = entries.iter().find(|e| e.name() == entry.name()) {
+        if let Some(first) = names.insert(entry.name().to_lowercase(), line) {
             return Err(manifest_error(format!(
-                "the name {:?} is used twice (first on line {}): each entry needs a name of its own, its output folder",
+                "the name {:?} is used twice (first on line {first}, perhaps in other capitals): each entry needs a name of its own, its output folder",
                 entry.name(),
-                first.line
             ))
             .at(line, Some(1 + columns.iter().position(|&c| c == 0).unwrap_or(0))));
         }
@@ -122,10 +133,15 @@ fn read_header(header: &str, line: usize) -> Result<Vec<usize>, Error> {
     for (k, name) in split_fields(header).into_iter().enumerate() {
         let name = name.to_ascii_lowercase();
         let Some(c) = COLUMNS.iter().position(|&known| known == name) else {
+            let hint = if name.contains([';', '\t']) {
+                " (the columns must be separated by commas: save the sheet as CSV with commas)"
+            } else {
+                ""
+            };
             return Err(Error::new(
                 ErrorKind::BadHeader,
                 format!(
-                    "unknown column {name:?}: the columns are {}",
+                    "unknown column {name:?}: the columns are {}{hint}",
                     COLUMNS.join(", ")
                 ),
             )
@@ -195,20 +211,11 @@ fn read_row(row: &str, line: usize, columns: &[usize]) -> Result<Entry, Error> {
             "each entry needs a name, the folder its outputs go in",
         ));
     }
-    let usable = name.len() <= MAX_ENTRY_NAME
-        && !name.starts_with('.')
-        && name
-            .chars()
-            .all(|ch| ch.is_ascii_alphanumeric() || matches!(ch, '.' | '-' | '_'));
-    if !usable {
-        return Err(manifest_error(format!(
-            "the name {name:?} cannot be a folder's name: use up to {MAX_ENTRY_NAME} letters, digits, '.', '-' and '_', not starting with '.'"
-        ))
-        .at(line, column_of("name")));
-    }
+    check_name(name).map_err(|e| e.at(line, column_of("name")))?;
     if entry.plan().is_empty() {
         return Err(missing("plan", "each entry needs a counting plan"));
     }
+    check_values(&entry).map_err(|(e, column)| e.at(line, column_of(column)))?;
     match (entry.get("detections"), entry.get("footage")) {
         (None, None) => Err(missing(
             "detections",
@@ -224,6 +231,52 @@ fn read_row(row: &str, line: usize, columns: &[usize]) -> Result<Entry, Error> {
         }
         _ => Ok(entry),
     }
+}
+
+/// An entry's name: usable as a folder's name, and none of the batch's own files.
+fn check_name(name: &str) -> Result<(), Error> {
+    let usable = name.len() <= MAX_ENTRY_NAME
+        && !name.starts_with('.')
+        && name
+            .chars()
+            .all(|ch| ch.is_ascii_alphanumeric() || matches!(ch, '.' | '-' | '_'));
+    if !usable {
+        return Err(manifest_error(format!(
+            "the name {name:?} cannot be a folder's name: use up to {MAX_ENTRY_NAME} letters, digits, '.', '-' and '_', not starting with '.'"
+        )));
+    }
+    let lower = name.to_ascii_lowercase();
+    if lower == "slurm" || lower.ends_with(".csv") {
+        return Err(manifest_error(format!(
+            "the name {name:?} is kept for the batch's own files (slurm/, batch.csv, the merged CSVs): choose another"
+        )));
+    }
+    Ok(())
+}
+
+/// The values that must be known ones: the method, the start time; a camera only with a site. The
+/// error with the column it concerns.
+fn check_values(entry: &Entry) -> Result<(), (Error, &'static str)> {
+    if let Some(m) = entry.get("method").filter(|m| Method::parse(m).is_none()) {
+        return Err((manifest_error(format!(
+            "unknown method {m:?}: the methods are {} (or leave it empty for the best for the detections)",
+            Method::names().join(", ")
+        )), "method"));
+    }
+    if let Some(t) = entry.get("start").filter(|t| LocalTime::parse(t).is_none()) {
+        return Err((manifest_error(format!(
+            "the start {t:?} is not a clock time: write the time of the clip's first frame like 2026-03-02T07:00:00"
+        )), "start"));
+    }
+    if entry.get("camera").is_some() && entry.get("site").is_none() {
+        return Err((
+            manifest_error(
+                "a camera without a site: cameras are merged site by site, so give the site too",
+            ),
+            "camera",
+        ));
+    }
+    Ok(())
 }
 
 #[cfg(test)]
@@ -244,7 +297,7 @@ mod tests {
 
     #[test]
     fn mistakes_name_their_line_and_column() {
-        let cases: [(&[u8], &str); 8] = [
+        let cases: [(&[u8], &str); 15] = [
             (b"", "empty"),
             (b"name,plan,detections\n", "no entries"),
             (
@@ -255,7 +308,7 @@ mod tests {
             (b"name,plan,detections\na,p.json\n", "line 2: 2 fields"),
             (
                 b"name,plan,detections\na,p.json,x\na,p.json,y\n",
-                "line 3, column 1: the name \"a\" is used twice (first on line 2)",
+                "line 3, column 1: the name \"a\" is used twice (first on line 2",
             ),
             (
                 b"name,plan,detections\n../up,p.json,x\n",
@@ -265,6 +318,28 @@ mod tests {
                 b"name,plan,detections,footage\na,p.json,x,y.y4m\n",
                 "line 2, column 4: both detections and footage",
             ),
+            (
+                b"name,plan,detections\nA,p.json,x\na,p.json,y\n",
+                "used twice (first on line 2, perhaps in other capitals)",
+            ),
+            (
+                b"name,plan,detections\nslurm,p.json,x\n",
+                "kept for the batch's own files",
+            ),
+            (
+                b"name,plan,detections,method\na,p.json,x,kalman\n",
+                "line 2, column 4: unknown method \"kalman\"",
+            ),
+            (
+                b"name,plan,detections,start\na,p.json,x,yesterday\n",
+                "line 2, column 4: the start \"yesterday\" is not a clock time",
+            ),
+            (
+                b"name,plan,detections,camera\na,p.json,x,north\n",
+                "a camera without a site",
+            ),
+            (b"name;plan;detections\n", "separated by commas"),
+            (b"\0\0\0", "not a text file"),
         ];
         for (bytes, expected) in cases {
             let e = read_manifest(bytes).unwrap_err().to_string();

@@ -1,7 +1,8 @@
 //! `batch --emit-slurm` under a real Slurm scheduler: a one-node cluster on this machine
 //! (Debian's slurm-wlm and munge; controller and node daemons, the configuration in the target
 //! folder), a manifest of simulated clips submitted as the emitted array and merge jobs, and the
-//! merged counts compared with a one-machine batch. The daemons are stopped however it ends.
+//! merged counts compared with a one-machine batch. The Slurm daemons are stopped however it
+//! ends; munge, started when it was not running, is left running.
 
 use std::path::{Path, PathBuf};
 use std::process::Command;
@@ -180,22 +181,22 @@ fn output(program: &str, args: &[&str]) -> Result<String, String> {
     Ok(String::from_utf8_lossy(&o.stdout).into_owned())
 }
 
-/// Three simulated clips of one site (two cameras, one of them in two consecutive clips), the
-/// emitted jobs submitted and waited for, and the merged counts compared with a batch run here.
-fn submit_and_compare(cli: &Path, dir: &Path, cluster: &Cluster) -> Result<(), String> {
-    let cli_s = cli.display().to_string();
+/// A manifest of three simulated clips of one site (two cameras, one in two consecutive clips).
+fn three_clips(cli: &str, dir: &Path) -> Result<PathBuf, String> {
     for (name, seed) in [("north-1", "21"), ("north-2", "22"), ("south", "23")] {
         let out = dir.join(name).display().to_string();
-        let args = [
-            "simulate",
-            "--out-dir",
-            &out,
-            "--seed",
-            seed,
-            "--frames",
-            "750",
-        ];
-        run(&cli_s, &args)?;
+        run(
+            cli,
+            &[
+                "simulate",
+                "--out-dir",
+                &out,
+                "--seed",
+                seed,
+                "--frames",
+                "750",
+            ],
+        )?;
     }
     let plan = crate::paths::root().join("demo-site/demo/plan.json");
     std::fs::copy(&plan, dir.join("plan.json")).map_err(|e| e.to_string())?;
@@ -208,8 +209,17 @@ fn submit_and_compare(cli: &Path, dir: &Path, cluster: &Cluster) -> Result<(), S
          south,south/detections.txt,plan.json,Check Plaza,south,2026-03-02T07:00:00\n",
     )
     .map_err(|e| e.to_string())?;
+    Ok(manifest)
+}
+
+/// Three simulated clips of one site (two cameras, one of them in two consecutive clips), the
+/// emitted jobs submitted and waited for, and the merged counts compared with a batch run here.
+fn submit_and_compare(cli: &Path, dir: &Path, cluster: &Cluster) -> Result<(), String> {
+    let cli_s = cli.display().to_string();
+    let manifest = three_clips(&cli_s, dir)?;
     let m = manifest.display().to_string();
-    let on_cluster = dir.join("cluster-out");
+    // A space in the path: the scripts must quote it.
+    let on_cluster = dir.join("cluster out");
     let here = dir.join("here-out");
     run(
         &cli_s,
@@ -252,6 +262,18 @@ fn submit_and_compare(cli: &Path, dir: &Path, cluster: &Cluster) -> Result<(), S
     }
     if tasks != 3 {
         return Err(format!("{tasks} task logs where the array had 3 tasks"));
+    }
+    // The tasks did the counting: the merge job after them found every entry done.
+    let table = String::from_utf8_lossy(&read(on_cluster.join("batch.csv"))?).into_owned();
+    let skipped = table
+        .lines()
+        .skip(1)
+        .filter(|l| l.contains(",skipped,"))
+        .count();
+    if skipped != 3 {
+        return Err(format!(
+            "the merge job found {skipped} of 3 entries done by the array tasks:\n{table}"
+        ));
     }
     eprintln!("slurm: 3 array tasks and the merge job ran on a one-node cluster; merged counts equal the batch run here");
     Ok(())

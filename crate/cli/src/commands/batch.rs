@@ -6,7 +6,7 @@
 //! (`entry.json`, with the fingerprint of its inputs and settings) is written last: an entry whose
 //! record matches the inputs as they are now is skipped.
 
-use crate::files::{bad_input, bad_usage, read_file, Failure};
+use crate::files::{bad_input, bad_usage, Failure};
 use crate::progress;
 use entry::{Job, Outcome};
 use indicatif::{MultiProgress, ProgressBar};
@@ -14,6 +14,7 @@ use std::path::{Path, PathBuf};
 use std::sync::atomic::{AtomicUsize, Ordering};
 use std::sync::mpsc;
 use std::time::Duration;
+use throughline_core::limits::MAX_MANIFEST_BYTES;
 use throughline_core::manifest::read_manifest;
 
 mod entry;
@@ -55,7 +56,7 @@ pub struct Args {
 }
 
 pub fn run(args: Args) -> Result<(), Failure> {
-    let bytes = read_file(&args.manifest)?;
+    let bytes = read_manifest_file(&args.manifest)?;
     let entries = read_manifest(&bytes).map_err(|e| bad_input(&args.manifest, e))?;
     let base = args
         .manifest
@@ -86,30 +87,61 @@ pub fn run(args: Args) -> Result<(), Failure> {
     );
     let outcomes = run_all(&jobs, workers, args.quiet);
     let summary = Summary::of(&jobs, &outcomes);
+    let mut unmerged = Vec::new();
     if args.only.is_none() {
         summary.write(&args.out)?;
-        let (written, unmerged) = merge::merge_sites(&jobs, &outcomes, &args.out)?;
-        for path in written.iter().filter(|_| !args.quiet) {
+        let merged = merge::merge_sites(&jobs, &outcomes, &args.out)?;
+        for path in merged.written.iter().filter(|_| !args.quiet) {
             eprintln!("merged: {}", path.display());
         }
-        for line in unmerged {
+        for line in &merged.unmerged {
             eprintln!("{line}");
         }
+        unmerged = merged.unmerged;
     }
     eprintln!("{}", summary.line());
-    if summary.failed.is_empty() {
+    let mut problems = Vec::new();
+    if !summary.failed.is_empty() {
+        problems.push(format!(
+            "{} of {} entries failed: {}",
+            summary.failed.len(),
+            jobs.len(),
+            summary.failed.join(", ")
+        ));
+    }
+    if !unmerged.is_empty() {
+        problems.push(format!("{} site(s) not merged", unmerged.len()));
+    }
+    if problems.is_empty() {
         Ok(())
     } else {
         Err(Failure {
-            message: format!(
-                "{} of {} entries failed: {}",
-                summary.failed.len(),
-                jobs.len(),
-                summary.failed.join(", ")
-            ),
+            message: problems.join("; "),
             code: 1,
         })
     }
+}
+
+/// The manifest's bytes, refused past [`MAX_MANIFEST_BYTES`] before more is read (a device or a
+/// huge file given by mistake must not fill the memory).
+fn read_manifest_file(path: &Path) -> Result<Vec<u8>, Failure> {
+    use std::io::Read;
+    let file = std::fs::File::open(path)
+        .map_err(|e| bad_input(path, format!("cannot read the file: {e}")))?;
+    let mut bytes = Vec::new();
+    file.take(MAX_MANIFEST_BYTES + 1)
+        .read_to_end(&mut bytes)
+        .map_err(|e| bad_input(path, format!("cannot read the file: {e}")))?;
+    if bytes.len() as u64 > MAX_MANIFEST_BYTES {
+        return Err(bad_input(
+            path,
+            format!(
+                "larger than {} MiB: a manifest is a short CSV, one row per clip (is this the right file?)",
+                MAX_MANIFEST_BYTES >> 20
+            ),
+        ));
+    }
+    Ok(bytes)
 }
 
 /// What a worker tells the thread that shows progress.

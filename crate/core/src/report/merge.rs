@@ -1,8 +1,9 @@
 //! The counts of several reports of one site, merged on the real clock: every counted crossing
-//! is placed in the interval of the clock it falls in (intervals of the plans' length from
-//! midnight: 07:00, 07:15, ... whatever time each clip starts at), so consecutive clips of one
-//! camera add up in the interval a cut falls in, and several cameras of one site are listed each
-//! on its own and, line by line, all together.
+//! is placed in the interval of the clock it falls in (intervals of the plans' length counted from
+//! midnight of the first clip's day: 07:00, 07:15, ... whatever time each clip starts at), so
+//! consecutive clips of one camera add up in the interval a cut falls in, and several cameras of
+//! one site are listed each on its own and, line by line (by the lines' names), all together.
+//! Clips of one camera that overlap in time are refused: their crossings would count twice.
 //!
 //! The events behind the merged counts are listed too, each with its entry and camera.
 //!
@@ -37,13 +38,47 @@ struct Cell {
     entries: Vec<String>,
 }
 
-/// What the parts of one camera recorded: the stretches of clock time, and the line directions and
-/// classes its reports list (each with a row per interval, zeros included).
+/// What the parts of one camera recorded: the stretches of clock time (with the entry of each),
+/// and the line directions and classes its reports list (each with a row per interval, zeros
+/// included).
 #[derive(Default)]
 struct Camera<'a> {
     name: &'a str,
-    spans: Vec<(LocalTime, LocalTime)>,
+    spans: Vec<(LocalTime, LocalTime, &'a str)>,
     rows: BTreeSet<(usize, String)>,
+}
+
+impl Camera<'_> {
+    /// Sorts the clips by start; refuses two that overlap.
+    fn order(&mut self) -> Result<(), Error> {
+        self.spans.sort();
+        for pair in self.spans.windows(2) {
+            let ((a0, a1, a), (b0, b1, b)) = (pair[0], pair[1]);
+            if b0 < a1 {
+                return Err(unsuitable(format!(
+                    "{a} ({a0} to {a1}) and {b} ({b0} to {b1}) overlap, both of camera {:?}: their crossings would be counted twice; give each clip its own start time, or each camera its own name",
+                    self.name
+                )));
+            }
+        }
+        Ok(())
+    }
+
+    /// Whether the clips (sorted, apart) cover the interval from `from` to `to` whole.
+    fn covers(&self, from: LocalTime, to: LocalTime) -> bool {
+        let first = self.spans.partition_point(|s| s.1 <= from);
+        let mut reached = from;
+        for &(start, end, _) in &self.spans[first..] {
+            if start > reached {
+                return false;
+            }
+            reached = end;
+            if reached >= to {
+                return true;
+            }
+        }
+        false
+    }
 }
 
 /// The merged counts as CSV: `site,camera,screenline,direction,class,interval_start,interval_end,
@@ -54,7 +89,12 @@ pub fn merged_counts_csv(site: &str, parts: &[Part]) -> Result<String, Error> {
         return Ok(String::new());
     };
     let minutes = first.report.plan.interval_minutes;
+    let mut earliest = clock_start(first)?;
+    for part in parts {
+        earliest = earliest.min(clock_start(part)?);
+    }
     let mut merge = Merge {
+        origin: earliest.seconds().div_euclid(86_400) * 86_400,
         length: (minutes * 60.0).round() as i64,
         cameras: Vec::new(),
         lines: Vec::new(),
@@ -69,12 +109,17 @@ pub fn merged_counts_csv(site: &str, parts: &[Part]) -> Result<String, Error> {
         }
         merge.add(part)?;
     }
+    for camera in &mut merge.cameras {
+        camera.order()?;
+    }
     merge.add_zeros();
     Ok(merge.csv(site))
 }
 
 /// The merge so far: the cameras, the line directions, and the count of each row.
 struct Merge<'a> {
+    /// Midnight of the first clip's day, where the intervals are counted from (seconds).
+    origin: i64,
     /// Interval length in seconds.
     length: i64,
     cameras: Vec<Camera<'a>>,
@@ -98,7 +143,7 @@ impl<'a> Merge<'a> {
             }
         };
         let end = start.plus_seconds(r.duration_seconds.floor() as i64);
-        self.cameras[cam].spans.push((start, end));
+        self.cameras[cam].spans.push((start, end, part.entry));
         for line in &r.screenlines {
             for label in [&line.forward_label, &line.backward_label] {
                 let l = index_of(&mut self.lines, (line.name.clone(), label.clone()));
@@ -109,7 +154,7 @@ impl<'a> Merge<'a> {
         }
         for e in r.events.iter().filter(|e| e.kind == EventKind::Screenline) {
             let l = index_of(&mut self.lines, (e.name.clone(), e.label.clone()));
-            let at = start.seconds() as f64 + e.seconds;
+            let at = (start.seconds() - self.origin) as f64 + e.seconds;
             let bin = (at / self.length as f64).floor() as i64;
             for camera in [cam, ALL] {
                 let cell = self
@@ -128,11 +173,10 @@ impl<'a> Merge<'a> {
     /// Every interval a camera recorded in, for every line direction and class it lists: zeros too.
     fn add_zeros(&mut self) {
         for (cam, camera) in self.cameras.iter().enumerate() {
-            for &(from, to) in &camera.spans {
-                let first_bin = from.seconds().div_euclid(self.length);
-                let last_bin = (to.seconds() - 1)
-                    .max(from.seconds())
-                    .div_euclid(self.length);
+            for &(from, to, _) in &camera.spans {
+                let (from, to) = (from.seconds() - self.origin, to.seconds() - self.origin);
+                let first_bin = from.div_euclid(self.length);
+                let last_bin = (to - 1).max(from).div_euclid(self.length);
                 for bin in first_bin..=last_bin {
                     for (l, class) in &camera.rows {
                         for c in [cam, ALL] {
@@ -152,11 +196,11 @@ impl<'a> Merge<'a> {
             if *camera == ALL && self.cameras.len() < 2 {
                 continue;
             }
-            let from = LocalTime::from_seconds(bin * self.length);
+            let from = LocalTime::from_seconds(self.origin + bin * self.length);
             let to = from.plus_seconds(self.length);
             let partial = match self.cameras.get(*camera) {
-                Some(c) => !covers(&c.spans, from, to),
-                None => self.cameras.iter().any(|c| !covers(&c.spans, from, to)),
+                Some(c) => !c.covers(from, to),
+                None => self.cameras.iter().any(|c| !c.covers(from, to)),
             };
             let (line, label) = &self.lines[*l];
             let camera_name = self.cameras.get(*camera).map_or("all cameras", |c| c.name);
@@ -261,24 +305,6 @@ fn index_of<T: PartialEq>(list: &mut Vec<T>, item: T) -> usize {
     }
 }
 
-/// Whether the spans (recorded stretches) cover the interval from `from` to `to` whole.
-fn covers(spans: &[(LocalTime, LocalTime)], mut from: LocalTime, to: LocalTime) -> bool {
-    let mut sorted = spans.to_vec();
-    sorted.sort();
-    for (a, b) in sorted {
-        if a > from {
-            return false;
-        }
-        if b > from {
-            from = b;
-        }
-        if from >= to {
-            return true;
-        }
-    }
-    from >= to
-}
-
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -286,15 +312,47 @@ mod tests {
     #[test]
     fn an_interval_is_whole_only_where_the_clips_cover_it_without_a_gap() {
         let t = |s: &str| LocalTime::parse(s).unwrap();
-        let first = (t("2026-03-02T07:00:00"), t("2026-03-02T07:07:30"));
-        let second = (t("2026-03-02T07:07:30"), t("2026-03-02T07:20:00"));
-        let late = (t("2026-03-02T07:08:00"), t("2026-03-02T07:20:00"));
+        let camera = |spans: &[(&str, &str)]| {
+            let mut c = Camera {
+                spans: spans.iter().map(|&(a, b)| (t(a), t(b), "clip")).collect(),
+                ..Camera::default()
+            };
+            c.order().map(|()| c)
+        };
         let (a, b) = (t("2026-03-02T07:00:00"), t("2026-03-02T07:15:00"));
-        assert!(covers(&[second, first], a, b), "back to back, in any order");
+        let back_to_back = [
+            ("2026-03-02T07:07:30", "2026-03-02T07:20:00"),
+            ("2026-03-02T07:00:00", "2026-03-02T07:07:30"),
+        ];
         assert!(
-            !covers(&[first, late], a, b),
+            camera(&back_to_back).unwrap().covers(a, b),
+            "back to back, in any order"
+        );
+        let gap = [
+            ("2026-03-02T07:00:00", "2026-03-02T07:07:30"),
+            ("2026-03-02T07:08:00", "2026-03-02T07:20:00"),
+        ];
+        assert!(
+            !camera(&gap).unwrap().covers(a, b),
             "half a minute missing at 07:07:30"
         );
-        assert!(!covers(&[second], a, b), "the first half missing");
+        assert!(
+            !camera(&back_to_back[..1]).unwrap().covers(a, b),
+            "the first half missing"
+        );
+        let earlier = [
+            ("2026-03-02T06:00:00", "2026-03-02T06:10:00"),
+            ("2026-03-02T07:00:00", "2026-03-02T07:20:00"),
+        ];
+        assert!(
+            camera(&earlier).unwrap().covers(a, b),
+            "an earlier clip does not matter"
+        );
+        let overlap = [
+            ("2026-03-02T07:00:00", "2026-03-02T07:08:00"),
+            ("2026-03-02T07:07:30", "2026-03-02T07:20:00"),
+        ];
+        let e = camera(&overlap).err().unwrap().to_string();
+        assert!(e.contains("overlap") && e.contains("counted twice"), "{e}");
     }
 }

@@ -2,7 +2,7 @@
 
 use throughline_core::limits::MAX_FOOTAGE_FRAMES;
 
-use super::{children, find, frames_fit, full_box, need, Sample, Track};
+use super::{children, claim, find, full_box, need, Sample, Track};
 use crate::bytes::too_short;
 
 /// The frames of one movie fragment that belong to the video track (ISO/IEC 14496-12 §8.8:
@@ -93,7 +93,7 @@ fn track_run(
     }
     // Frames of the default size, or at least a byte each, all of them in the file.
     let each = if flags & 0x200 != 0 { 1 } else { size };
-    frames_fit(track.samples.len() + count, each, file_size)?;
+    track.claimed = claim(track.claimed, count, each, file_size)?;
     let mut dts = track.next_dts;
     for j in 0..count {
         let mut field = |bit: u32, default: u32| {

@@ -53,6 +53,8 @@ struct Track {
     next_dts: i64,
     /// What the edit list moves the track's times by (in the track's units).
     shift: i64,
+    /// Bytes the fragments' runs of frames claim so far (at least one a frame).
+    claimed: u64,
 }
 
 /// Reads the video track of an MP4 file of `size` bytes.
@@ -117,14 +119,22 @@ pub(crate) fn read_movie<R: Read + Seek>(reader: &mut R, size: u64) -> Result<Mo
 /// whatever the count they claim, so the count is checked against the file before a frame is
 /// listed.
 fn frames_fit(count: usize, each: u32, file_size: u64) -> Result<(), String> {
-    let bytes = (count as u64).saturating_mul(u64::from(each.max(1)));
+    claim(0, count, each, file_size).map(|_| ())
+}
+
+/// [`frames_fit`] for a run of frames after others that claimed `before` bytes: the bytes all of
+/// them claim.
+fn claim(before: u64, count: usize, each: u32, file_size: u64) -> Result<u64, String> {
+    let bytes = (count as u64)
+        .saturating_mul(u64::from(each.max(1)))
+        .saturating_add(before);
     if bytes > file_size {
         return Err(format!(
             "it claims {count} frames of {} bytes, more than its {file_size} bytes hold (damaged?)",
             each.max(1)
         ));
     }
-    Ok(())
+    Ok(bytes)
 }
 
 /// The box at `pos`: its type, header length and whole length (a box of size 0 runs to the end of
@@ -283,6 +293,7 @@ fn video_track(trak: &[u8], movie_timescale: u32, file_size: u64) -> Result<Opti
         defaults: (0, 0, 0),
         next_dts,
         shift,
+        claimed: 0,
     }))
 }
 

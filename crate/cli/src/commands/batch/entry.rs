@@ -87,12 +87,17 @@ impl Job {
             Ok(f) => f,
             Err(why) => return self.failed(why),
         };
-        if self.recorded_fingerprint().as_deref() == Some(fingerprint.as_str()) {
+        let done_before = self.recorded_fingerprint().as_deref() == Some(fingerprint.as_str());
+        if done_before && self.report_path().is_file() {
+            let _ = std::fs::remove_file(self.dir.join("failed.txt"));
             return Outcome::Skipped;
         }
         if let Err(e) = std::fs::create_dir_all(&self.dir) {
             return self.failed(format!("cannot make {}: {e}", self.dir.display()));
         }
+        // The record goes first: outputs put in place by a run stopped before its record is
+        // written must not pass for those of the inputs recorded before.
+        let _ = std::fs::remove_file(self.dir.join("entry.json"));
         let output = match self.command().output() {
             Ok(o) => o,
             Err(e) => return self.failed(format!("cannot start throughline run: {e}")),
@@ -125,15 +130,26 @@ impl Job {
         c.arg("run");
         for (column, path) in &self.files {
             let option = FILE_COLUMNS.iter().find(|(c, _)| c == column).map(|f| f.1);
-            if let Some(option) = option.filter(|o| !o.is_empty()) {
-                c.arg(option);
+            match option.filter(|o| !o.is_empty()) {
+                Some(option) => {
+                    let mut joined = std::ffi::OsString::from(format!("{option}="));
+                    joined.push(path);
+                    c.arg(joined);
+                }
+                // The detections, given alone: a path that starts with a dash is not an option.
+                None if path.to_string_lossy().starts_with('-') => {
+                    c.arg(Path::new(".").join(path));
+                }
+                None => {
+                    c.arg(path);
+                }
             }
-            c.arg(path);
         }
         for (column, value) in &self.values {
             let option = VALUE_COLUMNS.iter().find(|(c, _)| c == column).map(|v| v.1);
             if let Some(option) = option.filter(|o| !o.is_empty()) {
-                c.arg(option).arg(value);
+                // `--site=-North`: a value that starts with a dash stays a value.
+                c.arg(format!("{option}={value}"));
             }
         }
         c.arg("-o")

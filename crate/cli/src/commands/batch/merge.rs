@@ -1,20 +1,23 @@
 //! After a batch: the counts of each site's entries merged on the real clock
 //! (`OUT/SITE_merged-counts.csv`) and the events behind them (`OUT/SITE_merged-events.csv`), when
-//! every entry of the site was counted.
+//! every entry of the site was counted. A site that cannot be merged is said why, and leaves the
+//! merged files of an earlier batch as they were.
 
 use super::entry::{Job, Outcome};
-use crate::files::{bad_input, Failure};
+use crate::files::Failure;
 use crate::output::Outputs;
 use std::path::{Path, PathBuf};
 use throughline_core::handin::slug;
 use throughline_core::report::{merged_counts_csv, merged_events_csv, Part, Report};
 
-/// Writes each site's merged counts; the files written, and a line for each site left unmerged.
-pub fn merge_sites(
-    jobs: &[Job],
-    outcomes: &[Outcome],
-    out: &Path,
-) -> Result<(Vec<PathBuf>, Vec<String>), Failure> {
+/// What the merge did: the files written, and each site left unmerged with the reason.
+pub struct Merged {
+    pub written: Vec<PathBuf>,
+    pub unmerged: Vec<String>,
+}
+
+/// Writes each site's merged counts and events.
+pub fn merge_sites(jobs: &[Job], outcomes: &[Outcome], out: &Path) -> Result<Merged, Failure> {
     let mut sites: Vec<&str> = Vec::new();
     for job in jobs {
         if let Some(site) = job.value("site") {
@@ -23,52 +26,91 @@ pub fn merge_sites(
             }
         }
     }
-    let mut written = Vec::new();
-    let mut unmerged = Vec::new();
+    let stems = file_stems(&sites);
+    let mut merged = Merged {
+        written: Vec::new(),
+        unmerged: Vec::new(),
+    };
     let mut files = Outputs::new();
-    for site in sites {
+    for (site, stem) in sites.iter().zip(&stems) {
         let members: Vec<(&Job, &Outcome)> = jobs
             .iter()
             .zip(outcomes)
             .filter(|(j, _)| j.value("site") == Some(site))
             .collect();
-        if let Some((failed, _)) = members
-            .iter()
-            .find(|(_, o)| matches!(o, Outcome::Failed(_)))
-        {
-            unmerged.push(format!("{site}: not merged, as {} failed", failed.name));
-            continue;
-        }
-        let mut reports = Vec::new();
-        for (job, _) in &members {
-            let path = job.report_path();
-            let text = std::fs::read_to_string(&path)
-                .map_err(|e| bad_input(&path, format!("cannot read the file: {e}")))?;
-            reports.push(Report::from_json(&text).map_err(|e| bad_input(&path, e))?);
-        }
-        let parts: Vec<Part> = members
-            .iter()
-            .zip(&reports)
-            .map(|((job, _), report)| Part {
-                entry: &job.name,
-                camera: job.value("camera").unwrap_or(""),
-                report,
-            })
-            .collect();
-        let merged = merged_counts_csv(site, &parts).and_then(|counts| {
-            merged_events_csv(site, &parts).map(|events| [("counts", counts), ("events", events)])
-        });
-        match merged {
+        match site_tables(site, &members) {
             Ok(tables) => {
                 for (what, csv) in tables {
-                    let path = out.join(format!("{}_merged-{what}.csv", slug(site)));
+                    let path = out.join(format!("{stem}_merged-{what}.csv"));
                     files.write(&path, &csv)?;
-                    written.push(path);
+                    merged.written.push(path);
                 }
             }
-            Err(e) => unmerged.push(format!("{site}: not merged: {e}")),
+            Err(why) => merged.unmerged.push(format!("{site}: not merged: {why}")),
         }
     }
     files.commit()?;
-    Ok((written, unmerged))
+    Ok(merged)
+}
+
+/// A site's merged counts and events, or why they cannot be made.
+fn site_tables(
+    site: &str,
+    members: &[(&Job, &Outcome)],
+) -> Result<[(&'static str, String); 2], String> {
+    if let Some((failed, _)) = members
+        .iter()
+        .find(|(_, o)| matches!(o, Outcome::Failed(_)))
+    {
+        return Err(format!("{} failed", failed.name));
+    }
+    let mut reports = Vec::new();
+    for (job, _) in members {
+        let path = job.report_path();
+        let text = std::fs::read_to_string(&path)
+            .map_err(|e| format!("{}: cannot read the file: {e}", path.display()))?;
+        reports.push(Report::from_json(&text).map_err(|e| format!("{}: {e}", path.display()))?);
+    }
+    let parts: Vec<Part> = members
+        .iter()
+        .zip(&reports)
+        .map(|((job, _), report)| Part {
+            entry: &job.name,
+            camera: job.value("camera").unwrap_or(""),
+            report,
+        })
+        .collect();
+    let counts = merged_counts_csv(site, &parts).map_err(|e| e.to_string())?;
+    let events = merged_events_csv(site, &parts).map_err(|e| e.to_string())?;
+    Ok([("counts", counts), ("events", events)])
+}
+
+/// A file name stem for each site: its slug (`site-N` where nothing of the name is left), made
+/// unique with `-2`, `-3`… where two sites' slugs are the same.
+fn file_stems(sites: &[&str]) -> Vec<String> {
+    let mut stems: Vec<String> = Vec::new();
+    for (k, site) in sites.iter().enumerate() {
+        let base = Some(slug(site))
+            .filter(|s| !s.is_empty())
+            .unwrap_or_else(|| format!("site-{}", k + 1));
+        let mut stem = base.clone();
+        let mut n = 1;
+        while stems.contains(&stem) {
+            n += 1;
+            stem = format!("{base}-{n}");
+        }
+        stems.push(stem);
+    }
+    stems
+}
+
+#[cfg(test)]
+mod tests {
+    #[test]
+    fn every_site_gets_a_file_name_of_its_own() {
+        assert_eq!(
+            super::file_stems(&["Elm St.", "Elm St", "北", "Ñandú"]),
+            ["elm-st", "elm-st-2", "site-3", "and"]
+        );
+    }
 }

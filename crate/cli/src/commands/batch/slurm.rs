@@ -7,6 +7,9 @@ use crate::files::{bad_input, Failure};
 use crate::output::Outputs;
 use std::path::Path;
 
+/// Tasks in one array job: below Slurm's default MaxArraySize (1001).
+const MAX_TASKS: usize = 1000;
+
 /// Writes `OUT/slurm/count.sbatch`, `merge.sbatch` and `submit.sh` (paths in them absolute, so
 /// they run from any folder).
 pub fn emit(manifest: &Path, out: &Path, entries: usize) -> Result<(), Failure> {
@@ -28,17 +31,22 @@ pub fn emit(manifest: &Path, out: &Path, entries: usize) -> Result<(), Failure> 
     std::fs::create_dir_all(&dir)
         .map_err(|e| bad_input(&dir, format!("cannot make the folder: {e}")))?;
     let quoted = |s: &str| format!("'{}'", s.replace('\'', "'\\''"));
-    let logs = quoted(&dir.display().to_string());
+    // Slurm's default MaxArraySize is 1001: past 1000 entries, task K counts entries K, K+1000, …
+    let tasks = entries.min(MAX_TASKS);
     let count = format!(
         "#!/bin/bash\n\
-         # One task per entry of {manifest} ({entries} entries), written by throughline batch --emit-slurm.\n\
+         # The {entries} entries of {manifest} in {tasks} tasks, written by throughline batch --emit-slurm.\n\
+         # Needs the program, the manifest, its files and the output folder on storage every node sees.\n\
          #SBATCH --job-name=throughline-count\n\
-         #SBATCH --array=1-{entries}\n\
+         #SBATCH --array=1-{tasks}\n\
          #SBATCH --ntasks=1\n\
          #SBATCH --cpus-per-task=1\n\
-         #SBATCH --output={dir}/count-%A_%a.log\n\
-         exec {exe} batch {m} --out {o} --only \"$SLURM_ARRAY_TASK_ID\" --jobs 1 --quiet\n",
-        dir = dir.display(),
+         #SBATCH --output=count-%A_%a.log\n\
+         status=0\n\
+         for k in $(seq \"$SLURM_ARRAY_TASK_ID\" {MAX_TASKS} {entries}); do\n\
+         \x20 {exe} batch {m} --out {o} --only \"$k\" --jobs 1 --quiet || status=1\n\
+         done\n\
+         exit $status\n",
         exe = quoted(&exe),
         m = quoted(&manifest),
         o = quoted(&out),
@@ -48,22 +56,23 @@ pub fn emit(manifest: &Path, out: &Path, entries: usize) -> Result<(), Failure> 
          # After the array job: the batch once more (done entries skipped, failed ones tried again), then each site merged.\n\
          #SBATCH --job-name=throughline-merge\n\
          #SBATCH --ntasks=1\n\
-         #SBATCH --output={dir}/merge-%j.log\n\
+         #SBATCH --output=merge-%j.log\n\
          exec {exe} batch {m} --out {o} --quiet\n",
-        dir = dir.display(),
         exe = quoted(&exe),
         m = quoted(&manifest),
         o = quoted(&out),
     );
     let submit = format!(
         "#!/bin/sh\n\
-         # Submits the array job, then the merge job to start when every task has ended.\n\
+         # Submits the array job, then the merge job to start when every task has ended. The jobs\n\
+         # start in this folder, where their logs go.\n\
          set -e\n\
-         cd {logs}\n\
+         cd {dir}\n\
          count=$(sbatch --parsable count.sbatch)\n\
          count=${{count%%;*}}\n\
          merge=$(sbatch --parsable --dependency=afterany:\"$count\" merge.sbatch)\n\
-         echo \"array job $count ({entries} tasks), merge job ${{merge%%;*}}\"\n",
+         echo \"array job $count ({tasks} tasks for {entries} entries), merge job ${{merge%%;*}}\"\n",
+        dir = quoted(&dir.display().to_string()),
     );
     let mut files = Outputs::new();
     for (name, text) in [
@@ -76,7 +85,7 @@ pub fn emit(manifest: &Path, out: &Path, entries: usize) -> Result<(), Failure> 
     files.commit()?;
     make_executable(&dir.join("submit.sh"));
     eprintln!(
-        "written: {0}/count.sbatch ({entries} tasks), {0}/merge.sbatch, {0}/submit.sh\n\
+        "written: {0}/count.sbatch ({tasks} tasks for {entries} entries), {0}/merge.sbatch, {0}/submit.sh\n\
          on the cluster's login node: sh {0}/submit.sh",
         dir.display()
     );
