@@ -40,8 +40,10 @@ enum Budget {
 }
 
 /// How the targets are built: with AddressSanitizer (cargo fuzz's default), or `--plain`, without
-/// it, about twice as many runs a second (the readers are safe Rust: panics, hangs and memory
-/// limits are still caught; what AddressSanitizer adds is for unsafe code, of which they have none).
+/// it, several times as many runs a second (the readers are safe Rust: panics, hangs and the
+/// resident-memory limit are still caught, but not a single oversized allocation that the
+/// sanitizer's allocator would refuse; what AddressSanitizer adds otherwise is for unsafe code, of
+/// which the readers have none).
 #[derive(Clone, Copy, PartialEq)]
 enum Build {
     Checked,

@@ -77,8 +77,6 @@ impl LocalTime {
         })
     }
 
-    /// This time plus whole seconds (saturating: labels past the year 9999 are never needed, as
-    /// the number of intervals is limited).
     /// Seconds since 1970-01-01T00:00:00 on the same (local) clock.
     pub fn seconds(self) -> i64 {
         self.seconds
@@ -89,6 +87,8 @@ impl LocalTime {
         LocalTime { seconds }
     }
 
+    /// This time plus whole seconds (saturating: labels past the year 9999 are never needed, as
+    /// the number of intervals is limited).
     pub fn plus_seconds(self, s: i64) -> LocalTime {
         LocalTime {
             seconds: self.seconds.saturating_add(s),
