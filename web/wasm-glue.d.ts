@@ -11,6 +11,7 @@ type Outcome = import("./js/edits.js").Outcome;
 type Project = import("./js/protocol.js").Project;
 type Fingerprint = import("./js/protocol.js").Fingerprint;
 type HandinContext = import("./js/protocol.js").HandinContext;
+type MergedGrid = import("./js/protocol.js").MergedGrid;
 
 declare function wasm_bindgen(init: { module_or_path: Uint8Array | BufferSource }): Promise<unknown>;
 
@@ -25,6 +26,8 @@ declare namespace wasm_bindgen {
   function fingerprint(name: string, size: number, head: Uint8Array, duration: number): Fingerprint;
   /** Why `opened` is not the file `recorded` was taken of, or null (undefined) when it is. */
   function fingerprintDiffers(recorded: object, opened: object): string | null | undefined;
+  /** A merged counts file (throughline batch) as the interval grid of one camera and class. */
+  function mergedGrid(bytes: Uint8Array, camera: string, cls: string): MergedGrid;
 
   /** One page's state in the core: detections, plan, tracks. Errors are thrown as JS errors. */
   class Session {

@@ -114,6 +114,7 @@ async function perform(req, progress) {
     case "tracksText": return core().tracksText();
     case "handIn": return handIn(req.context);
     case "summaryHtml": return core().summaryHtml(req.context);
+    case "mergedGrid": return wasm_bindgen.mergedGrid(new Uint8Array(req.bytes), req.camera, req.class);
     default: throw new Error(`unknown operation ${/** @type {{op: string}} */ (req).op}`);
   }
 }

@@ -28,6 +28,7 @@ import { ProjectPanel } from "./project-panel.js";
 import { TallyPanel } from "./tally-panel.js";
 import { TallyChecks } from "./tally-checks.js";
 import { HandinPanel } from "./handin-panel.js";
+import { MergedPanel } from "./merged-panel.js";
 import { ClientSummary } from "./client-summary.js";
 import { byId, el } from "./dom.js";
 
@@ -63,6 +64,7 @@ new ExportsPanel(store, client);
 const tally = new TallyPanel(store, picture);
 new TallyChecks(store, review);
 const handin = new HandinPanel(store, client);
+new MergedPanel(client);
 new ClientSummary(store, client, picture, handin);
 bindShortcuts(store, picture, editor, review, tally);
 

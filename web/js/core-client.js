@@ -160,6 +160,18 @@ export class CoreClient {
   }
 
   /**
+   * A merged counts file (throughline batch) as the interval grid of one camera and class.
+   * @param {Blob} file
+   * @param {string} camera "" for the first
+   * @param {string} cls "" for all classes summed
+   * @returns {Promise<import("./protocol.js").MergedGrid>}
+   */
+  async mergedGrid(file, camera, cls) {
+    const bytes = await file.arrayBuffer();
+    return this.call({ op: "mergedGrid", bytes, camera, class: cls }, [bytes]);
+  }
+
+  /**
    * Why the file opened is not the one a project recorded, in a sentence; null when it is.
    * @param {object} recorded
    * @param {object} opened

@@ -154,10 +154,11 @@
  * @typedef {{op: "tracksText"}} TracksTextRequest
  * @typedef {{op: "handIn", context: HandinContext}} HandInRequest
  * @typedef {{op: "summaryHtml", context: HandinContext}} SummaryHtmlRequest
+ * @typedef {{op: "mergedGrid", bytes: ArrayBuffer, camera: string, class: string}} MergedGridRequest
  * @typedef {InitRequest | LoadDetectionsRequest | SetPlanRequest | TrackRequest | StartDetectionRequest | DetectRgbaRequest
  *   | FinishDetectionRequest | FindInFootageRequest | CancelFindRequest | DetectionsTextRequest | TracksTextRequest
  *   | SetEditsRequest | EditsTextRequest | ReadProjectRequest | WriteProjectRequest | FingerprintRequest
- *   | FingerprintDiffersRequest | HandInRequest | SummaryHtmlRequest} Request
+ *   | FingerprintDiffersRequest | HandInRequest | SummaryHtmlRequest | MergedGridRequest} Request
  * @typedef {Request & {id: number}} RequestMessage a request as posted to the worker
  */
 
@@ -183,6 +184,21 @@
  * @property {string} tracksText
  * @property {HandIn} handIn
  * @property {string} summaryHtml the client summary, a printable HTML page
+ * @property {MergedGrid} mergedGrid
+ */
+
+/**
+ * A merged counts file of many clips as an interval grid (crate/core/src/report/merged_grid.rs):
+ * one camera (`cameras` lists them) and one class (`classes`; "" for all summed), a row per interval
+ * on the clock, a count per line and direction (`columns`).
+ * @typedef {object} MergedGrid
+ * @property {string} site
+ * @property {string[]} cameras
+ * @property {string[]} classes
+ * @property {string} camera
+ * @property {string} class
+ * @property {{screenline: string, direction: string}[]} columns
+ * @property {{start: string, end: string, partial: boolean, counts: number[], total: number}[]} rows
  */
 
 /**

@@ -71,3 +71,13 @@ impl Session {
         Ok(handin::file_stem(self.ready()?, &context(ctx)?))
     }
 }
+
+/// The interval grid of a merged counts file (`throughline batch`'s SITE_merged-counts.csv) for one
+/// camera (the first when empty or unknown) and class (all classes summed when empty): `{site,
+/// cameras, classes, camera, class, columns: [{screenline, direction}], rows: [{start, end,
+/// partial, counts, total}]}`.
+#[wasm_bindgen(js_name = mergedGrid)]
+pub fn merged_grid(bytes: &[u8], camera: &str, class: &str) -> Result<JsValue, JsError> {
+    let merged = throughline_core::report::read_merged_counts(bytes).map_err(js_error)?;
+    crate::to_js(&merged.grid(camera, class))
+}

@@ -15,7 +15,7 @@ use crate::paths::{root, target};
 use crate::sh::{run, works};
 
 /// Every fuzz target (crate/fuzz/fuzz_targets/<name>.rs).
-pub const TARGETS: [&str; 11] = [
+pub const TARGETS: [&str; 12] = [
     "detections",
     "tracks",
     "plan",
@@ -27,6 +27,7 @@ pub const TARGETS: [&str; 11] = [
     "webm",
     "mp4",
     "manifest",
+    "merged",
 ];
 
 /// Seconds each target runs within `cargo xtask test`.

@@ -8,10 +8,12 @@
 mod checks;
 mod csv;
 mod merge;
+mod merged_grid;
 
 pub use checks::{Measures, TallyCheck, TallyGroup};
 pub use csv::counts_csv;
 pub use merge::{merged_counts_csv, merged_events_csv, Part};
+pub use merged_grid::{read_merged_counts, GridColumn, GridRow, MergedCounts, MergedGrid};
 
 use crate::edits::Outcome;
 use crate::plan::PlanSpec;
