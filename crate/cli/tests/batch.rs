@@ -242,6 +242,10 @@ fn a_batch_killed_midway_resumes_where_it_stopped_and_gives_the_same_outputs() {
             );
         }
     }
+    // And the same merged counts and events of the site.
+    for f in ["plaza_merged-counts.csv", "plaza_merged-events.csv"] {
+        assert_eq!(read(&out.join(f)), read(&whole.join(f)), "{f}");
+    }
 }
 
 #[test]
