@@ -2,6 +2,7 @@
 //! command returns (a message naming the file, and the exit code).
 
 use std::path::Path;
+use throughline_core::limits::MAX_TEXT_INPUT_BYTES;
 use throughline_core::pipeline::Work;
 use throughline_core::plan;
 use throughline_core::project::{self, Project};
@@ -30,9 +31,42 @@ pub fn bad_usage(message: &str) -> Failure {
     }
 }
 
+/// A text input's bytes. Reading stops early where it cannot be text (a NUL byte in the first
+/// 64 KiB: the first 64 KiB are enough for the reader to say so, naming what it expected) and past
+/// [`MAX_TEXT_INPUT_BYTES`], so a device or a video given by mistake cannot fill the memory.
 pub fn read_file(path: &Path) -> Result<Vec<u8>, Failure> {
-    std::fs::read(path).map_err(|e| bad_input(path, format!("cannot read the file: {e}")))
+    read_text(path, MAX_TEXT_INPUT_BYTES)
 }
+
+/// [`read_file`] with another limit than [`MAX_TEXT_INPUT_BYTES`].
+pub fn read_text(path: &Path, limit: u64) -> Result<Vec<u8>, Failure> {
+    use std::io::Read;
+    let cannot = |e: std::io::Error| bad_input(path, format!("cannot read the file: {e}"));
+    let file = std::fs::File::open(path).map_err(cannot)?;
+    let mut reader = file.take(limit + 1);
+    let mut bytes = Vec::new();
+    (&mut reader)
+        .take(BINARY_CHECK_BYTES)
+        .read_to_end(&mut bytes)
+        .map_err(cannot)?;
+    if bytes.contains(&0) {
+        return Ok(bytes);
+    }
+    reader.read_to_end(&mut bytes).map_err(cannot)?;
+    if bytes.len() as u64 > MAX_TEXT_INPUT_BYTES {
+        return Err(bad_input(
+            path,
+            format!(
+                "larger than {} GiB: is this the right file?",
+                MAX_TEXT_INPUT_BYTES >> 30
+            ),
+        ));
+    }
+    Ok(bytes)
+}
+
+/// What is read of a text input before deciding whether it is text at all.
+const BINARY_CHECK_BYTES: u64 = 1 << 16;
 
 /// How to name an input in messages: `-` is standard input.
 pub fn name(path: &Path) -> String {

@@ -187,3 +187,25 @@ fn a_reader_that_goes_away_ends_the_program_quietly() {
     assert!(!err.contains("panicked"), "{err}");
     assert_ne!(o.status.code(), Some(101), "{err}");
 }
+
+/// A device given as detections (`/dev/zero` never ends): read only as far as the bytes show it is
+/// not text, then refused by name. It used to be read whole, gigabytes of memory a few seconds.
+#[cfg(unix)]
+#[test]
+fn an_endless_device_as_detections_is_refused_without_reading_it_all() {
+    let o = throughline(&["run", "/dev/zero", "--plan", &demo("plan.json"), "-q"]);
+    assert_eq!(o.status.code(), Some(1));
+    assert!(
+        stderr(&o).contains("/dev/zero: this is a binary file, not a detections file"),
+        "{}",
+        stderr(&o)
+    );
+    let dir = scratch("hostile-dev-zero");
+    let o = throughline(&["batch", "/dev/zero", "--out", &dir.display().to_string()]);
+    assert_eq!(o.status.code(), Some(1));
+    assert!(
+        stderr(&o).contains("/dev/zero: this is not a text file"),
+        "{}",
+        stderr(&o)
+    );
+}

@@ -78,6 +78,10 @@ pub const MAX_CONTAINER_HEADER_BYTES: u64 = 128 << 20;
 /// fixed paths to the boxes they use, never recursively.)
 pub const MAX_CONTAINER_ELEMENTS: usize = 20_000_000;
 
+/// Bytes of a text input (detections, tracks, plan, settings, counts): a day of one camera's
+/// detections at 30 boxes a frame is about 2 GB.
+pub const MAX_TEXT_INPUT_BYTES: u64 = 4 << 30;
+
 /// Entries in one batch manifest: a year of 15-minute clips from one camera is 35,040.
 pub const MAX_MANIFEST_ENTRIES: usize = 100_000;
 

@@ -6,7 +6,7 @@
 //! (`entry.json`, with the fingerprint of its inputs and settings) is written last: an entry whose
 //! record matches the inputs as they are now is skipped.
 
-use crate::files::{bad_input, bad_usage, Failure};
+use crate::files::{bad_input, bad_usage, read_text, Failure};
 use crate::progress;
 use entry::{Job, Outcome};
 use indicatif::{MultiProgress, ProgressBar};
@@ -56,7 +56,7 @@ pub struct Args {
 }
 
 pub fn run(args: Args) -> Result<(), Failure> {
-    let bytes = read_manifest_file(&args.manifest)?;
+    let bytes = read_text(&args.manifest, MAX_MANIFEST_BYTES)?;
     let entries = read_manifest(&bytes).map_err(|e| bad_input(&args.manifest, e))?;
     let base = args
         .manifest
@@ -120,28 +120,6 @@ pub fn run(args: Args) -> Result<(), Failure> {
             code: 1,
         })
     }
-}
-
-/// The manifest's bytes, refused past [`MAX_MANIFEST_BYTES`] before more is read (a device or a
-/// huge file given by mistake must not fill the memory).
-fn read_manifest_file(path: &Path) -> Result<Vec<u8>, Failure> {
-    use std::io::Read;
-    let file = std::fs::File::open(path)
-        .map_err(|e| bad_input(path, format!("cannot read the file: {e}")))?;
-    let mut bytes = Vec::new();
-    file.take(MAX_MANIFEST_BYTES + 1)
-        .read_to_end(&mut bytes)
-        .map_err(|e| bad_input(path, format!("cannot read the file: {e}")))?;
-    if bytes.len() as u64 > MAX_MANIFEST_BYTES {
-        return Err(bad_input(
-            path,
-            format!(
-                "larger than {} MiB: a manifest is a short CSV, one row per clip (is this the right file?)",
-                MAX_MANIFEST_BYTES >> 20
-            ),
-        ));
-    }
-    Ok(bytes)
 }
 
 /// What a worker tells the thread that shows progress.
