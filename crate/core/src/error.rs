@@ -91,8 +91,32 @@ impl Error {
         if let Some(cut) = message.rfind(" at line ") {
             message.truncate(cut);
         }
+        let message = plain_json_words(&message);
         Error::new(kind, format!("{message}{hint}")).at(e.line().max(1), Some(e.column().max(1)))
     }
+}
+
+/// serde_json's words for what it expected, in words a person who does not program reads.
+pub fn plain_json_words(message: &str) -> String {
+    let mut m = message.to_string();
+    for (from, to) in [
+        (
+            "expected ident",
+            "this is not JSON here (a JSON document starts with { or [)",
+        ),
+        ("expected value", "a value is missing or is not JSON here"),
+        ("expected u32", "expected a whole number"),
+        ("expected u64", "expected a whole number"),
+        ("expected usize", "expected a whole number"),
+        ("expected u16", "expected a whole number"),
+        ("expected f64", "expected a number"),
+        ("expected f32", "expected a number"),
+    ] {
+        if m.contains(from) {
+            m = m.replace(from, to);
+        }
+    }
+    m
 }
 
 impl fmt::Display for Error {
@@ -110,3 +134,25 @@ impl fmt::Display for Error {
 }
 
 impl std::error::Error for Error {}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn json_mistakes_in_plain_words_and_the_setting_named() {
+        let e = serde_json::from_str::<serde_json::Value>("not json").unwrap_err();
+        let e = Error::from_json(ErrorKind::BadJson, &e, "");
+        assert_eq!(
+            e.to_string(),
+            "line 1, column 2: this is not JSON here (a JSON document starts with { or [)"
+        );
+        let e = crate::TrackerConfig::from_json(r#"{"max_age": "x"}"#, crate::Method::Sort)
+            .unwrap_err()
+            .to_string();
+        assert!(
+            e.starts_with("`max_age` in the settings file: invalid type: string \"x\", expected a whole number"),
+            "{e}"
+        );
+    }
+}

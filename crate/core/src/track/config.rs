@@ -126,14 +126,27 @@ impl TrackerConfig {
         let mut merged = serde_json::to_value(Self::for_method(method))
             .map_err(|e| settings_error(e.to_string()))?;
         if let serde_json::Value::Object(m) = &mut merged {
-            for (k, v) in fields {
+            for (k, v) in fields.clone() {
                 if k != "method" {
                     m.insert(k, v);
                 }
             }
         }
-        let config: TrackerConfig = serde_json::from_value(merged)
-            .map_err(|e| settings_error(format!("in the settings file: {e}")))?;
+        let config: TrackerConfig = serde_json::from_value(merged).map_err(|e| {
+            // Which field: the first whose value alone, over the defaults, is refused.
+            let field = fields.iter().find_map(|(k, v)| {
+                let mut one = serde_json::to_value(Self::for_method(method)).ok()?;
+                one.as_object_mut()?.insert(k.clone(), v.clone());
+                serde_json::from_value::<TrackerConfig>(one)
+                    .err()
+                    .map(|_| k.clone())
+            });
+            let message = crate::error::plain_json_words(&e.to_string());
+            match field {
+                Some(k) => settings_error(format!("`{k}` in the settings file: {message}")),
+                None => settings_error(format!("in the settings file: {message}")),
+            }
+        })?;
         config.validate()?;
         Ok(config)
     }
