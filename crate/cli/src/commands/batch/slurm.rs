@@ -33,9 +33,16 @@ pub fn emit(manifest: &Path, out: &Path, entries: usize) -> Result<(), Failure> 
     let quoted = |s: &str| format!("'{}'", s.replace('\'', "'\\''"));
     // Slurm's default MaxArraySize is 1001: past 1000 entries, task K counts entries K, K+1000, …
     let tasks = entries.min(MAX_TASKS);
+    let count_of =
+        |n: usize, one: &str, many: &str| format!("{n} {}", if n == 1 { one } else { many });
+    let how_many = format!(
+        "{} in {}",
+        count_of(entries, "entry", "entries"),
+        count_of(tasks, "task", "tasks")
+    );
     let count = format!(
         "#!/bin/bash\n\
-         # The {entries} entries of {manifest} in {tasks} tasks, written by throughline batch --emit-slurm.\n\
+         # {how_many} of {manifest}, written by throughline batch --emit-slurm.\n\
          # Needs the program, the manifest, its files and the output folder on storage every node sees.\n\
          #SBATCH --job-name=throughline-count\n\
          #SBATCH --array=1-{tasks}\n\
@@ -71,7 +78,7 @@ pub fn emit(manifest: &Path, out: &Path, entries: usize) -> Result<(), Failure> 
          count=$(sbatch --parsable count.sbatch)\n\
          count=${{count%%;*}}\n\
          merge=$(sbatch --parsable --dependency=afterany:\"$count\" merge.sbatch)\n\
-         echo \"array job $count ({tasks} tasks for {entries} entries), merge job ${{merge%%;*}}\"\n",
+         echo \"array job $count ({how_many}), merge job ${{merge%%;*}}\"\n",
         dir = quoted(&dir.display().to_string()),
     );
     let mut files = Outputs::new();
@@ -85,7 +92,7 @@ pub fn emit(manifest: &Path, out: &Path, entries: usize) -> Result<(), Failure> 
     files.commit()?;
     make_executable(&dir.join("submit.sh"));
     eprintln!(
-        "written: {0}/count.sbatch ({tasks} tasks for {entries} entries), {0}/merge.sbatch, {0}/submit.sh\n\
+        "written: {0}/count.sbatch ({how_many}), {0}/merge.sbatch, {0}/submit.sh\n\
          on the cluster's login node: sh {0}/submit.sh",
         dir.display()
     );
