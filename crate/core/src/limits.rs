@@ -78,6 +78,11 @@ pub const MAX_CONTAINER_HEADER_BYTES: u64 = 128 << 20;
 /// fixed paths to the boxes they use, never recursively.)
 pub const MAX_CONTAINER_ELEMENTS: usize = 20_000_000;
 
+/// A box narrower or lower than this many pixels is passed over as empty: a hundredth of a pixel,
+/// the precision detections are written back with, so what is read, written and read again keeps
+/// the same boxes.
+pub const MIN_BOX_SIDE: f64 = 0.01;
+
 /// Bytes of a text input (detections, tracks, plan, settings, counts): a day of one camera's
 /// detections at 30 boxes a frame is about 2 GB.
 pub const MAX_TEXT_INPUT_BYTES: u64 = 4 << 30;

@@ -5,6 +5,7 @@
 use super::{finish, Detection, DetectionFormat, Detections, ReadReport, Warnings};
 use crate::error::{Error, ErrorKind};
 use crate::geometry::BBox;
+use crate::limits::MIN_BOX_SIDE;
 use serde::de::{self, DeserializeSeed, SeqAccess, Visitor};
 use std::cell::RefCell;
 use std::collections::HashMap;
@@ -93,10 +94,10 @@ impl JsonSink<'_> {
                 ),
             ));
         }
-        if b.w == 0.0 || b.h == 0.0 {
+        if b.w < MIN_BOX_SIDE || b.h < MIN_BOX_SIDE {
             self.warnings.push(
                 None,
-                format!("element {n}: box with zero width or height passed over"),
+                format!("element {n}: box with zero width or height (under a hundredth of a pixel) passed over"),
             );
             return Ok(None);
         }

@@ -14,6 +14,7 @@ pub use write::{to_benchmark_text, to_csv, to_file_text};
 
 use crate::error::{Error, ErrorKind};
 use crate::geometry::BBox;
+use crate::limits::MIN_BOX_SIDE;
 use crate::text::{as_text, split_fields};
 use std::collections::HashMap;
 use std::fmt;
@@ -230,8 +231,11 @@ pub(crate) fn checked_box(
             .at(line, Some(col)));
         }
     }
-    if b.w == 0.0 || b.h == 0.0 {
-        warnings.push(Some(line), "box with zero width or height passed over");
+    if b.w < MIN_BOX_SIDE || b.h < MIN_BOX_SIDE {
+        warnings.push(
+            Some(line),
+            "box with zero width or height (under a hundredth of a pixel) passed over",
+        );
         return Ok(None);
     }
     Ok(Some(b))
