@@ -18,18 +18,52 @@ pub fn emit(manifest: &Path, out: &Path, entries: usize) -> Result<(), Failure> 
             .map(|p| p.display().to_string())
             .map_err(|e| bad_input(p, format!("cannot resolve the path: {e}")))
     };
-    let manifest = absolute(manifest)?;
-    let out = absolute(out)?;
-    let exe = std::env::current_exe().map_err(|e| {
-        bad_input(
-            Path::new("throughline"),
-            format!("cannot find the program itself: {e}"),
-        )
-    })?;
-    let exe = exe.display().to_string();
-    let dir = Path::new(&out).join("slurm");
+    let paths = Paths {
+        manifest: absolute(manifest)?,
+        out: absolute(out)?,
+        exe: std::env::current_exe()
+            .map_err(|e| {
+                bad_input(
+                    Path::new("throughline"),
+                    format!("cannot find the program itself: {e}"),
+                )
+            })?
+            .display()
+            .to_string(),
+    };
+    let dir = Path::new(&paths.out).join("slurm");
     std::fs::create_dir_all(&dir)
         .map_err(|e| bad_input(&dir, format!("cannot make the folder: {e}")))?;
+    let (how_many, [count, merge, submit]) = scripts(&paths, &dir, entries);
+    let mut files = Outputs::new();
+    for (name, text) in [
+        ("count.sbatch", &count),
+        ("merge.sbatch", &merge),
+        ("submit.sh", &submit),
+    ] {
+        files.write(&dir.join(name), text)?;
+    }
+    files.commit()?;
+    make_executable(&dir.join("submit.sh"));
+    eprintln!(
+        "written: {0}/count.sbatch ({how_many}), {0}/merge.sbatch, {0}/submit.sh\n\
+         on the cluster's login node: sh {0}/submit.sh",
+        dir.display()
+    );
+    Ok(())
+}
+
+/// The program, the manifest and the output folder, as absolute paths.
+struct Paths {
+    exe: String,
+    manifest: String,
+    out: String,
+}
+
+/// The array job, the merge job and the submitting script, with how the entries are spread
+/// ("12 entries in 12 tasks").
+fn scripts(paths: &Paths, dir: &Path, entries: usize) -> (String, [String; 3]) {
+    let (exe, manifest, out) = (&paths.exe, &paths.manifest, &paths.out);
     let quoted = |s: &str| format!("'{}'", s.replace('\'', "'\\''"));
     // Slurm's default MaxArraySize is 1001: past 1000 entries, task K counts entries K, K+1000, …
     let tasks = entries.min(MAX_TASKS);
@@ -54,9 +88,9 @@ pub fn emit(manifest: &Path, out: &Path, entries: usize) -> Result<(), Failure> 
          \x20 {exe} batch {m} --out {o} --only \"$k\" --jobs 1 --quiet || status=1\n\
          done\n\
          exit $status\n",
-        exe = quoted(&exe),
-        m = quoted(&manifest),
-        o = quoted(&out),
+        exe = quoted(exe),
+        m = quoted(manifest),
+        o = quoted(out),
     );
     let merge = format!(
         "#!/bin/bash\n\
@@ -65,9 +99,9 @@ pub fn emit(manifest: &Path, out: &Path, entries: usize) -> Result<(), Failure> 
          #SBATCH --ntasks=1\n\
          #SBATCH --output=merge-%j.log\n\
          exec {exe} batch {m} --out {o} --quiet\n",
-        exe = quoted(&exe),
-        m = quoted(&manifest),
-        o = quoted(&out),
+        exe = quoted(exe),
+        m = quoted(manifest),
+        o = quoted(out),
     );
     let submit = format!(
         "#!/bin/sh\n\
@@ -81,22 +115,7 @@ pub fn emit(manifest: &Path, out: &Path, entries: usize) -> Result<(), Failure> 
          echo \"array job $count ({how_many}), merge job ${{merge%%;*}}\"\n",
         dir = quoted(&dir.display().to_string()),
     );
-    let mut files = Outputs::new();
-    for (name, text) in [
-        ("count.sbatch", &count),
-        ("merge.sbatch", &merge),
-        ("submit.sh", &submit),
-    ] {
-        files.write(&dir.join(name), text)?;
-    }
-    files.commit()?;
-    make_executable(&dir.join("submit.sh"));
-    eprintln!(
-        "written: {0}/count.sbatch ({how_many}), {0}/merge.sbatch, {0}/submit.sh\n\
-         on the cluster's login node: sh {0}/submit.sh",
-        dir.display()
-    );
-    Ok(())
+    (how_many, [count, merge, submit])
 }
 
 #[cfg(unix)]
