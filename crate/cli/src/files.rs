@@ -65,6 +65,25 @@ pub fn read_text(path: &Path, limit: u64) -> Result<Vec<u8>, Failure> {
     Ok(bytes)
 }
 
+/// A binary input's bytes (a picture), refused past `limit` before more is read.
+pub fn read_binary(path: &Path, limit: u64) -> Result<Vec<u8>, Failure> {
+    use std::io::Read;
+    let cannot = |e: std::io::Error| bad_input(path, format!("cannot read the file: {e}"));
+    let mut bytes = Vec::new();
+    std::fs::File::open(path)
+        .map_err(cannot)?
+        .take(limit + 1)
+        .read_to_end(&mut bytes)
+        .map_err(cannot)?;
+    if bytes.len() as u64 > limit {
+        return Err(bad_input(
+            path,
+            format!("larger than {} MiB: is this the right file?", limit >> 20),
+        ));
+    }
+    Ok(bytes)
+}
+
 /// What is read of a text input before deciding whether it is text at all.
 const BINARY_CHECK_BYTES: u64 = 1 << 16;
 

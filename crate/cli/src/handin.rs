@@ -1,10 +1,11 @@
 //! The hand-in outputs `run` writes next to the report when a site is named: the interval grid
 //! (wide and long), the movement matrix and the client summary, named from the site and date.
 
-use crate::files::{bad_input, read_file, Failure};
+use crate::files::{bad_input, read_binary, Failure};
 use std::path::{Path, PathBuf};
 use throughline_core::fingerprint::{Fingerprint, HEAD_BYTES};
 use throughline_core::handin::{self, Context, GridLayout, Separator};
+use throughline_core::limits::MAX_STILL_BYTES;
 use throughline_core::project::Project;
 use throughline_core::report::Report;
 
@@ -53,7 +54,10 @@ pub fn context(inputs: &Inputs) -> Result<Context, Failure> {
             eprintln!("warning: {why}");
         }
     }
-    let still_bytes = inputs.still.map(read_file).transpose()?;
+    let still_bytes = inputs
+        .still
+        .map(|p| read_binary(p, MAX_STILL_BYTES))
+        .transpose()?;
     let still = match (inputs.still, &still_bytes) {
         (Some(path), Some(bytes)) => Some(still_url(path, bytes)?),
         _ => None,

@@ -163,5 +163,10 @@ fn the_summary_draws_the_plan_at_the_stills_own_size() {
             &summary[summary.find("<svg").unwrap_or(0)..][..200]
         );
         assert!(!summary.contains(" style=\""), "no inline style attributes");
+        // The whole picture is in it (a still's bytes hold NULs: read as a picture, not as text).
+        use base64::Engine as _;
+        let whole =
+            base64::engine::general_purpose::STANDARD.encode(std::fs::read(&still).unwrap());
+        assert!(summary.contains(&whole), "{name}: the still embedded whole");
     }
 }

@@ -87,6 +87,9 @@ pub const MIN_BOX_SIDE: f64 = 0.01;
 /// detections at 30 boxes a frame is about 2 GB.
 pub const MAX_TEXT_INPUT_BYTES: u64 = 4 << 30;
 
+/// Bytes of the still picture put in the client summary (a PNG or JPEG of one frame).
+pub const MAX_STILL_BYTES: u64 = 64 << 20;
+
 /// Entries in one batch manifest: a year of 15-minute clips from one camera is 35,040.
 pub const MAX_MANIFEST_ENTRIES: usize = 100_000;
 
