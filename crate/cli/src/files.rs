@@ -40,41 +40,31 @@ pub fn read_file(path: &Path) -> Result<Vec<u8>, Failure> {
 
 /// [`read_file`] with another limit than [`MAX_TEXT_INPUT_BYTES`].
 pub fn read_text(path: &Path, limit: u64) -> Result<Vec<u8>, Failure> {
-    use std::io::Read;
-    let cannot = |e: std::io::Error| bad_input(path, format!("cannot read the file: {e}"));
-    let file = std::fs::File::open(path).map_err(cannot)?;
-    let mut reader = file.take(limit + 1);
-    let mut bytes = Vec::new();
-    (&mut reader)
-        .take(BINARY_CHECK_BYTES)
-        .read_to_end(&mut bytes)
-        .map_err(cannot)?;
-    if bytes.contains(&0) {
-        return Ok(bytes);
-    }
-    reader.read_to_end(&mut bytes).map_err(cannot)?;
-    if bytes.len() as u64 > MAX_TEXT_INPUT_BYTES {
-        return Err(bad_input(
-            path,
-            format!(
-                "larger than {} GiB: is this the right file?",
-                MAX_TEXT_INPUT_BYTES >> 30
-            ),
-        ));
-    }
-    Ok(bytes)
+    read_limited(path, limit, true)
 }
 
 /// A binary input's bytes (a picture), refused past `limit` before more is read.
 pub fn read_binary(path: &Path, limit: u64) -> Result<Vec<u8>, Failure> {
+    read_limited(path, limit, false)
+}
+
+/// A file's bytes up to `limit` (more is refused, naming the limit); for `text`, no further than
+/// the first 64 KiB when they hold a NUL byte (the reader then says it is not text).
+fn read_limited(path: &Path, limit: u64, text: bool) -> Result<Vec<u8>, Failure> {
     use std::io::Read;
     let cannot = |e: std::io::Error| bad_input(path, format!("cannot read the file: {e}"));
+    let mut reader = std::fs::File::open(path).map_err(cannot)?.take(limit + 1);
     let mut bytes = Vec::new();
-    std::fs::File::open(path)
-        .map_err(cannot)?
-        .take(limit + 1)
-        .read_to_end(&mut bytes)
-        .map_err(cannot)?;
+    if text {
+        (&mut reader)
+            .take(BINARY_CHECK_BYTES)
+            .read_to_end(&mut bytes)
+            .map_err(cannot)?;
+        if bytes.contains(&0) {
+            return Ok(bytes);
+        }
+    }
+    reader.read_to_end(&mut bytes).map_err(cannot)?;
     if bytes.len() as u64 > limit {
         return Err(bad_input(
             path,

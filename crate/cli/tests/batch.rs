@@ -518,3 +518,22 @@ fn what_would_mislead_a_merged_count_is_refused_and_a_lost_report_is_counted_aga
     );
     assert!(dir.join("out/a/report.json").exists());
 }
+
+#[test]
+fn a_manifest_past_its_limit_is_refused_not_cut_short() {
+    let dir = scratch("batch-huge-manifest");
+    let mut text = String::from("name,detections,plan\n");
+    let mut k = 0;
+    while text.len() <= 17 << 20 {
+        text.push_str(&format!("clip-{k},clips/{k}.txt,plan.json\n"));
+        k += 1;
+    }
+    let m = write(&dir, "m.csv", text.as_bytes());
+    let o = throughline(&["batch", &m, "--out", &dir.join("out").display().to_string()]);
+    assert_eq!(o.status.code(), Some(1));
+    assert!(
+        stderr(&o).contains("m.csv: larger than 16 MiB"),
+        "{}",
+        stderr(&o)
+    );
+}
