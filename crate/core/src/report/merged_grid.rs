@@ -99,8 +99,7 @@ pub fn read_merged_counts(bytes: &[u8]) -> Result<MergedCounts, Error> {
                     .at(i + 1, None),
             );
         }
-        let row = read_row(line, i + 1)?;
-        let this_site = split_fields(line)[0].to_string();
+        let (this_site, row) = read_row(line, i + 1)?;
         match &site {
             None => site = Some(this_site),
             Some(s) if *s != this_site => {
@@ -121,7 +120,8 @@ pub fn read_merged_counts(bytes: &[u8]) -> Result<MergedCounts, Error> {
     Ok(MergedCounts { site, rows })
 }
 
-fn read_row(line: &str, at: usize) -> Result<Row, Error> {
+/// A row, with the site it names.
+fn read_row(line: &str, at: usize) -> Result<(String, Row), Error> {
     let f = split_fields(line);
     if f.len() != 10 {
         return Err(Error::new(
@@ -152,7 +152,7 @@ fn read_row(line: &str, at: usize) -> Result<Row, Error> {
             .at(at, Some(9)))
         }
     };
-    Ok(Row {
+    let row = Row {
         camera: f[1].to_string(),
         line: f[2].to_string(),
         direction: f[3].to_string(),
@@ -161,7 +161,8 @@ fn read_row(line: &str, at: usize) -> Result<Row, Error> {
         end: f[6].to_string(),
         count,
         partial,
-    })
+    };
+    Ok((f[0].to_string(), row))
 }
 
 impl MergedCounts {
