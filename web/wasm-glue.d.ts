@@ -51,6 +51,15 @@ declare namespace wasm_bindgen {
     startDetection(width: number, height: number, settings: string): void;
     detectRgba(rgba: Uint8Array, width: number, height: number): number;
     detectYuv(bytes: Uint8Array, width: number, height: number, layout: string): number;
+    /** Whether the clip is read once for its background before its frames are searched. */
+    wholeClipBackground(): boolean;
+    /** Whether the next frame of that first reading is one the background keeps. */
+    wantsSample(): boolean;
+    sampleYuv(bytes: Uint8Array, width: number, height: number, layout: string): void;
+    sampleRgba(rgba: Uint8Array, width: number, height: number): void;
+    passSample(): void;
+    /** The frames (from 1) the background keeps of a clip this long; empty without the first reading. */
+    backgroundFrames(total: number): Uint32Array;
     finishDetection(): DetectionSummary;
     detectionsText(): string;
     /** The interval grid: a row per interval ("wide") or per interval, line, direction and class ("long"); CSV ("comma") or for the clipboard ("tab"). */

@@ -13,7 +13,7 @@ if (typeof wasm_bindgen === "undefined") importScripts("pkg/throughline_wasm.js"
 /** @typedef {import("./js/protocol.js").Reply} Reply */
 /** @typedef {import("./js/protocol.js").FootageSearched} FootageSearched */
 /** @typedef {import("./js/protocol.js").FootageUnread} FootageUnread */
-/** @typedef {(done: number, total: number) => void} Progress */
+/** @typedef {(done: number, total: number, stage?: string) => void} Progress */
 
 /** Thrown where finding objects stops on request; answered as {kind: "cancelled"}. */
 class FindCancelled extends Error {}
@@ -107,6 +107,8 @@ async function perform(req, progress) {
     case "track": return track(req.method, req.settings, progress);
     case "startDetection": core().startDetection(req.width, req.height, req.settings); return true;
     case "detectRgba": return core().detectRgba(new Uint8Array(req.pixels), req.width, req.height);
+    case "backgroundFrames": return Array.from(core().backgroundFrames(req.total));
+    case "sampleRgba": core().sampleRgba(new Uint8Array(req.pixels), req.width, req.height); return null;
     case "finishDetection": tracked = false; return core().finishDetection();
     case "findInFootage": return findInFootage(req.footage, req.width, req.height, req.settings, req.expectedFrames, progress);
     case "cancelFind": findCancelled = true; return true;
@@ -158,7 +160,18 @@ async function findInFootage(file, width, height, settings, expected, progress) 
     if (!support.supported) return { fallback: "this browser cannot decode this video's format inside the page" };
     core().startDetection(width, height, settings);
     const total = info.frames || expected;
-    const searched = await decodeAndSearch(reader, config, { width, height, total }, progress);
+    if (core().wholeClipBackground()) {
+      // A first reading for the background (pictures sampled over the whole clip), as the
+      // command line reads a file: people in view at the start are found from the first frame.
+      const first = new wasm_bindgen.FootageReader(readRange, file.size);
+      try {
+        const sampling = (/** @type {number} */ done, /** @type {number} */ n) => progress(done, n, "background");
+        await decodeAndSearch(first, config, { width, height, total }, sampling, sampleFrame);
+      } finally {
+        first.free();
+      }
+    }
+    const searched = await decodeAndSearch(reader, config, { width, height, total }, progress, searchFrame);
     return { summary: core().finishDetection(), codec: info.codec, container: info.container, expected: total, ...searched };
   } finally {
     reader.free();
@@ -166,14 +179,21 @@ async function findInFootage(file, width, height, settings, expected, progress) 
 }
 
 /**
- * Feeds the reader's coded frames to a VideoDecoder, a few at a time, and each decoded frame to the
- * motion detector, until the footage ends, the decoder fails, or finding is cancelled.
+ * What is done with each decoded frame: searched, or read for the background.
+ * @typedef {(frame: VideoFrame, width: number, height: number, scratch: Scratch) => Promise<unknown>} FrameUse
+ */
+
+/**
+ * Feeds the reader's coded frames to a VideoDecoder, a few at a time, and each decoded frame to
+ * `use` (the motion detector, or its background), until the footage ends, the decoder fails, or
+ * finding is cancelled.
  * @param {wasm_bindgen.FootageReader} reader
  * @param {VideoDecoderConfig} config
  * @param {{width: number, height: number, total: number}} size the page's size, frames expected
  * @param {Progress} progress
+ * @param {FrameUse} use
  */
-async function decodeAndSearch(reader, config, { width, height, total }, progress) {
+async function decodeAndSearch(reader, config, { width, height, total }, progress, use) {
   const feed = new DecoderFeed(reader, config);
   let done = 0;
   let last = 0;
@@ -190,7 +210,7 @@ async function decodeAndSearch(reader, config, { width, height, total }, progres
       if (frame) {
         if (times.length < 250) times.push(frame.timestamp);
         try {
-          await searchFrame(frame, width, height, scratch);
+          await use(frame, width, height, scratch);
         } finally {
           frame.close();
         }
@@ -318,17 +338,48 @@ class Scratch {
  * @param {Scratch} scratch
  */
 async function searchFrame(frame, width, height, scratch) {
+  const pixels = await pixelsOf(frame, width, height, scratch);
+  return pixels.layout === "RGBA"
+    ? core().detectRgba(pixels.bytes, width, height)
+    : core().detectYuv(pixels.bytes, width, height, pixels.layout);
+}
+
+/**
+ * One decoded frame of the first reading to the detector's background, copied out only when it is
+ * one the background keeps.
+ * @param {VideoFrame} frame
+ * @param {number} width
+ * @param {number} height
+ * @param {Scratch} scratch
+ */
+async function sampleFrame(frame, width, height, scratch) {
+  if (!core().wantsSample()) return core().passSample();
+  const pixels = await pixelsOf(frame, width, height, scratch);
+  return pixels.layout === "RGBA"
+    ? core().sampleRgba(pixels.bytes, width, height)
+    : core().sampleYuv(pixels.bytes, width, height, pixels.layout);
+}
+
+/**
+ * A decoded frame's pixels: its own I420/NV12 bytes when it is the page's size, else drawn as RGBA.
+ * @param {VideoFrame} frame
+ * @param {number} width
+ * @param {number} height
+ * @param {Scratch} scratch
+ * @returns {Promise<{bytes: Uint8Array, layout: string}>}
+ */
+async function pixelsOf(frame, width, height, scratch) {
   const rect = frame.visibleRect;
   const direct = (frame.format === "I420" || frame.format === "NV12") && rect && rect.width === width && rect.height === height;
   if (direct) {
     const size = frame.allocationSize({ rect });
     if (scratch.bytes.length !== size) scratch.bytes = new Uint8Array(size);
     await frame.copyTo(scratch.bytes, { rect });
-    return core().detectYuv(scratch.bytes, width, height, /** @type {string} */ (frame.format));
+    return { bytes: scratch.bytes, layout: /** @type {string} */ (frame.format) };
   }
   const g = scratch.canvas(width, height);
   g.drawImage(frame, 0, 0, width, height);
-  return core().detectRgba(new Uint8Array(g.getImageData(0, 0, width, height).data.buffer), width, height);
+  return { bytes: new Uint8Array(g.getImageData(0, 0, width, height).data.buffer), layout: "RGBA" };
 }
 
 /**
@@ -379,7 +430,7 @@ self.onmessage = async (/** @type {MessageEvent<RequestMessage>} */ event) => {
   const req = event.data;
   const id = req.id;
   try {
-    const result = await perform(req, (done, total) => reply({ kind: "progress", id, done, total }));
+    const result = await perform(req, (done, total, stage) => reply(stage ? { kind: "progress", id, done, total, stage } : { kind: "progress", id, done, total }));
     const transfer = boxesIn(result);
     reply({ kind: "result", id, result }, transfer);
   } catch (e) {

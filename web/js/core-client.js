@@ -7,7 +7,7 @@ import { Cancelled } from "./protocol.js";
 /** @typedef {import("./protocol.js").Request} Request */
 /** @typedef {import("./protocol.js").ResultOf} ResultOf */
 /** @typedef {import("./protocol.js").Reply} Reply */
-/** @typedef {(done: number, total: number) => void} OnProgress */
+/** @typedef {(done: number, total: number, stage?: string) => void} OnProgress */
 /** @typedef {{resolve: (value: unknown) => void, reject: (error: Error) => void, onProgress: OnProgress | null}} Pending */
 
 export class CoreClient {
@@ -61,7 +61,7 @@ export class CoreClient {
     const p = this.pending.get(reply.id);
     if (!p) return;
     if (reply.kind === "progress") {
-      if (p.onProgress) p.onProgress(reply.done, reply.total);
+      if (p.onProgress) p.onProgress(reply.done, reply.total, reply.stage);
       return;
     }
     this.pending.delete(reply.id);
@@ -228,6 +228,25 @@ export class CoreClient {
    */
   detectRgba(pixels, width, height) {
     return this.call({ op: "detectRgba", pixels, width, height }, [pixels]);
+  }
+
+  /**
+   * For frames drawn here: whether the clip is read once for its background first, and which
+   * frames of that reading it keeps (`frames` of `total`, from 1), so only those are drawn.
+   * @param {number} total
+   */
+  backgroundFrames(total) {
+    return this.call({ op: "backgroundFrames", total });
+  }
+
+  /**
+   * One frame of the first reading as RGBA pixels (the buffer is handed over).
+   * @param {ArrayBuffer} pixels
+   * @param {number} width
+   * @param {number} height
+   */
+  sampleRgba(pixels, width, height) {
+    return this.call({ op: "sampleRgba", pixels, width, height }, [pixels]);
   }
 
   /** The found boxes become the detections; resolves to their summary. */

@@ -35,6 +35,10 @@ export class FindPanel {
     this.bar = byId("find-progress", HTMLProgressElement);
     this.status = byId("find-status", HTMLElement);
     this.cancelled = false;
+    /** @type {string | undefined} the step of finding that progress was last shown for */
+    this.stage = undefined;
+    /** performance.now() when that step started */
+    this.stageStarted = 0;
     for (const [id, key] of HEIGHTS) {
       const input = byId(id, HTMLInputElement);
       input.value = store.settings[key] ?? "";
@@ -61,15 +65,23 @@ export class FindPanel {
   }
 
   /**
-   * Progress of finding objects: bar, frames a second, time left.
+   * Progress of finding objects: bar, frames a second, time left. `stage` "background": the first
+   * reading, which learns the empty scene from frames spread over the whole clip.
    * @param {number} done
    * @param {number} total
    * @param {number} started performance.now() at the start
+   * @param {string} [stage]
    */
-  showProgress(done, total, started) {
-    const rate = done / Math.max(1e-3, (performance.now() - started) / 1000);
+  showProgress(done, total, started, stage) {
+    const now = performance.now();
+    if (this.stageStarted < started || stage !== this.stage) {
+      this.stage = stage;
+      this.stageStarted = now;
+    }
+    const rate = done / Math.max(1e-3, (now - this.stageStarted) / 1000);
     this.bar.value = done / Math.max(1, total);
-    this.status.textContent = `Frame ${done} of ${total}, ${rate.toFixed(0)} frames a second, ${Math.ceil(Math.max(0, total - done) / Math.max(rate, 1e-3))} s left`;
+    const step = stage === "background" ? "Learning the empty scene from the whole clip" : "Finding moving objects";
+    this.status.textContent = `${step}: frame ${done} of ${total}, ${rate.toFixed(0)} frames a second, ${Math.ceil(Math.max(0, total - done) / Math.max(rate, 1e-3))} s left`;
   }
 
   async find() {
@@ -118,7 +130,7 @@ export class FindPanel {
     const h = video.videoHeight;
     const total = Math.max(1, Math.round(video.duration * this.store.fps));
     const found = typeof VideoDecoder === "function"
-      ? await this.client.findInFootage(footage, w, h, this.detectorSettings(), total, (done, n) => this.showProgress(done, n, started))
+      ? await this.client.findInFootage(footage, w, h, this.detectorSettings(), total, (done, n, stage) => this.showProgress(done, n, started, stage))
       : { fallback: "this browser cannot decode video inside the page" };
     if ("fallback" in found) {
       this.messages.say("find", "warn", `Frames are taken by playing the footage, which is slower: ${found.fallback}.`);
@@ -158,6 +170,15 @@ export class FindPanel {
     const g = el("canvas", { width: w, height: h }).getContext("2d", { willReadFrequently: true });
     if (!g) throw new Error("this browser cannot draw the footage's frames");
     await this.client.startDetection(w, h, this.detectorSettings());
+    // The background first, from frames spread over the whole clip (the frames the worker names).
+    const sampled = await this.client.backgroundFrames(total);
+    for (const [k, f] of sampled.entries()) {
+      if (this.cancelled) throw new Cancelled();
+      await this.picture.presentFrame(f);
+      g.drawImage(this.picture.video, 0, 0, w, h);
+      await this.client.sampleRgba(g.getImageData(0, 0, w, h).data.buffer, w, h);
+      this.showProgress(k + 1, sampled.length, started, "background");
+    }
     for (let f = 1; f <= total; f++) {
       if (this.cancelled) throw new Cancelled();
       await this.picture.presentFrame(f);

@@ -147,6 +147,8 @@
  * @typedef {{op: "track", method: string, settings: string}} TrackRequest
  * @typedef {{op: "startDetection", width: number, height: number, settings: string}} StartDetectionRequest
  * @typedef {{op: "detectRgba", pixels: ArrayBuffer, width: number, height: number}} DetectRgbaRequest
+ * @typedef {{op: "backgroundFrames", total: number}} BackgroundFramesRequest
+ * @typedef {{op: "sampleRgba", pixels: ArrayBuffer, width: number, height: number}} SampleRgbaRequest
  * @typedef {{op: "finishDetection"}} FinishDetectionRequest
  * @typedef {{op: "findInFootage", footage: Blob, width: number, height: number, settings: string, expectedFrames: number}} FindInFootageRequest
  * @typedef {{op: "cancelFind"}} CancelFindRequest
@@ -158,7 +160,8 @@
  * @typedef {InitRequest | LoadDetectionsRequest | SetPlanRequest | TrackRequest | StartDetectionRequest | DetectRgbaRequest
  *   | FinishDetectionRequest | FindInFootageRequest | CancelFindRequest | DetectionsTextRequest | TracksTextRequest
  *   | SetEditsRequest | EditsTextRequest | ReadProjectRequest | WriteProjectRequest | FingerprintRequest
- *   | FingerprintDiffersRequest | HandInRequest | SummaryHtmlRequest | MergedGridRequest} Request
+ *   | FingerprintDiffersRequest | HandInRequest | SummaryHtmlRequest | MergedGridRequest | BackgroundFramesRequest
+ *   | SampleRgbaRequest} Request
  * @typedef {Request & {id: number}} RequestMessage a request as posted to the worker
  */
 
@@ -177,6 +180,8 @@
  * @property {TrackOutput} track
  * @property {true} startDetection
  * @property {number} detectRgba objects found in the frame
+ * @property {number[]} backgroundFrames frames (from 1) the background keeps of a clip this long; none when it forms over the opening frames
+ * @property {null} sampleRgba
  * @property {DetectionSummary} finishDetection the found boxes are now the detections
  * @property {FootageSearched | FootageUnread} findInFootage
  * @property {true} cancelFind
@@ -203,7 +208,8 @@
 
 /**
  * The worker's answers.
- * @typedef {{kind: "progress", id: number, done: number, total: number}} ProgressMessage
+ * @typedef {{kind: "progress", id: number, done: number, total: number, stage?: string}} ProgressMessage
+ *   `stage` "background": finding objects is reading the clip for its background first
  * @typedef {{kind: "result", id: number, result: ResultOf[keyof ResultOf]}} ResultMessage
  * @typedef {{kind: "error", id: number, message: string}} ErrorMessage the operation failed: `message` says why
  * @typedef {{kind: "cancelled", id: number}} CancelledMessage the operation was stopped on request

@@ -4,6 +4,7 @@
 //!
 //! Exit codes: 0 success, 1 bad input (a file that cannot be read or understood), 2 bad usage.
 
+mod bridging;
 mod commands;
 mod files;
 mod handin;

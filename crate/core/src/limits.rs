@@ -46,6 +46,10 @@ pub const MAX_COUNT: u64 = 1_000_000_000_000;
 /// Width or height of a picture, in pixels (8K footage is 7680 × 4320).
 pub const MAX_PICTURE_SIDE: usize = 8_192;
 
+/// Bytes of the pictures the detector keeps from the whole clip to form its background (fewer
+/// pictures are kept when they are large; at least a few whatever their size).
+pub const MAX_BACKGROUND_SAMPLE_BYTES: usize = 128 << 20;
+
 /// Length of a YUV4MPEG2 header or frame line, in bytes.
 pub const MAX_Y4M_LINE: u64 = 4_096;
 
@@ -98,3 +102,20 @@ pub const MAX_MANIFEST_BYTES: u64 = 16 << 20;
 
 /// Characters in an entry's name (its output folder's name).
 pub const MAX_ENTRY_NAME: usize = 100;
+
+/// Frames a lost track may be followed in the footage to bridge a gap (`bridge_frames`): ten
+/// seconds at 25 frames a second. The crops kept while following grow with it.
+pub const MAX_BRIDGE_FRAMES: u32 = 250;
+
+/// Tracks that start after one track ends that are tried as its continuation (the closest first):
+/// each try costs two visual followings over the gap.
+pub const MAX_BRIDGE_PAIRS_PER_END: usize = 4;
+
+/// Side of the search region of one gap, in working pixels (the picture reduced so that the lost
+/// box is at most 32 pixels long): a gap whose two ends lie further apart is not tried.
+pub const MAX_BRIDGE_REGION_SIDE: usize = 256;
+
+/// Bytes of footage crops held at once while bridging gaps: a gap that would need more, while
+/// others are being followed, is not tried (counted in the summary), so a crowd cannot fill the
+/// memory.
+pub const MAX_BRIDGE_HELD_BYTES: usize = 256 << 20;

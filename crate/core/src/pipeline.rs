@@ -10,6 +10,7 @@ use crate::error::Error;
 use crate::plan::Plan;
 use crate::project::Project;
 use crate::report::{AdjustedTotals, AppliedCorrection, Correction, Report};
+use crate::track::bridge::Bridger;
 use crate::track::{self, Method, TrackerConfig, Tracks};
 
 /// The settings a run uses: `method` if given, else the settings file's `method`, else the default
@@ -30,6 +31,13 @@ pub fn track(
     progress: &mut dyn FnMut(u32, u32),
 ) -> Result<Tracks, Error> {
     track::run_tracker(detections, config, progress)
+}
+
+/// Bridging of missed detections in footage of `width × height` pixels (V-IOU): feed it the
+/// footage's luma planes in order ([`Bridger::feed`]), then [`Bridger::finish`] gives the tracks
+/// with bridged gaps joined. Without footage the tracks are counted as they are.
+pub fn bridger(tracks: &Tracks, width: usize, height: usize) -> Bridger {
+    Bridger::new(tracks, width, height)
 }
 
 /// The tracks after the person's edits on tracks (merge, split, delete, reclassify), and what

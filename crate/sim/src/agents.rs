@@ -23,6 +23,18 @@ pub(crate) fn colour_of(id: i64) -> [f64; 3] {
     PALETTE[(h % 10) as usize]
 }
 
+/// The colour an agent is drawn in: its palette colour, or with the pale-clothes hard case, for a
+/// third of the people and riders (chosen by id, so no random number is drawn), a grey of the
+/// paving stones' own range and tint (`render`: 150–185, a little warm).
+pub(crate) fn clothes_of(id: i64, class: u16, pale_clothes: bool) -> [f64; 3] {
+    let h = (id as u64).wrapping_mul(0xD6E8_FEB8_6659_FD93);
+    if pale_clothes && class < 2 && (h >> 40).is_multiple_of(3) {
+        let v = 150.0 + ((h >> 20) % 36) as f64;
+        return [v * 1.02, v, v * 0.94];
+    }
+    colour_of(id)
+}
+
 #[derive(Debug, Clone)]
 pub(crate) struct Agent {
     pub(crate) id: i64,
@@ -104,26 +116,45 @@ pub(crate) fn spawn(
         a
     };
     let first = make(start.0, start.1, rng);
-    let pair = class == 0 && rng.chance(0.25);
+    // With the pairs hard case, pairs are more common and closer; the draws stay the same in number.
+    let hard = cfg.hard_cases.pairs;
+    let pair = class == 0 && rng.chance(if hard { 0.6 } else { 0.25 });
     let heading = first.heading;
     agents.push(first);
     if pair {
         // A companion walking side by side, offset across the direction of walking.
-        let off = cfg.height * 0.05;
+        let off = cfg.height * if hard { 0.035 } else { 0.05 };
         let (px, py) = (-heading.sin() * off, heading.cos() * off);
         let mut companion = make(start.0 + px, start.1 + py, rng);
         companion.target = (target.0 + px, target.1 + py);
         agents.push(companion);
+    } else if hard && class == 0 && rng.chance(1.0 / 3.0) {
+        // Someone faster a few steps behind on nearly the same way, who will overtake.
+        let (back, side) = (cfg.height * 0.12, cfg.height * 0.025);
+        let (dx, dy) = (heading.cos(), heading.sin());
+        let (px, py) = (-dy * side, dx * side);
+        let mut overtaker = make(start.0 - dx * back + px, start.1 - dy * back + py, rng);
+        overtaker.target = (target.0 + px, target.1 + py);
+        overtaker.speed = base_speed * 1.4;
+        agents.push(overtaker);
     }
 }
 
-pub(crate) fn step_agent(a: &mut Agent, rng: &mut Rng, occluder: Option<Occluder>) {
+/// One frame of an agent's walk or ride. People stop now and then: for 0.4–2 s, or 3–10 s with
+/// `long_pauses` (the same draws either way, so the default scene is unchanged).
+pub(crate) fn step_agent(
+    a: &mut Agent,
+    rng: &mut Rng,
+    occluder: Option<Occluder>,
+    long_pauses: bool,
+) {
     if a.stop_frames > 0 {
         a.stop_frames -= 1;
         return;
     }
     if a.class == 0 && rng.chance(0.002) {
-        a.stop_frames = 10 + rng.below(40) as u32;
+        let (shortest, spread) = if long_pauses { (75, 175) } else { (10, 40) };
+        a.stop_frames = shortest + rng.below(spread) as u32;
     }
     let want = (a.target.1 - a.y).atan2(a.target.0 - a.x);
     let mut turn = want - a.heading;

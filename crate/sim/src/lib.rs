@@ -12,5 +12,6 @@ pub mod rng;
 pub mod scene;
 
 pub use scene::{
-    generate, generate_with, truth_text, truth_tracks, AgentView, Scene, SceneConfig, CLASSES,
+    generate, generate_with, truth_text, truth_tracks, AgentView, HardCases, Scene, SceneConfig,
+    CLASSES,
 };

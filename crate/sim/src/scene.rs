@@ -5,11 +5,12 @@
 //! with slow turns, speed changes, short stops and some pairs walking side by side; perspective makes
 //! agents near the top of the picture smaller. A detector model turns the true boxes into detections:
 //! misses that grow with occlusion, box jitter, lower scores for partly hidden agents, false positives,
-//! class confusions and optional appearance embeddings of settable quality. Everything is
+//! class confusions and optional appearance embeddings of settable quality. The hard cases
+//! ([`HardCases`], off by default) make common what troubles a motion detector. Everything is
 //! deterministic for a seed. Boxes are pixels, top-left x/y + width/height; frames are 1-based.
 
-use crate::agents::{colour_of, spawn, step_agent, Agent};
-pub use crate::config::{Occluder, SceneConfig, CLASSES, FRAME_RATE};
+use crate::agents::{clothes_of, spawn, step_agent, Agent};
+pub use crate::config::{HardCases, Occluder, SceneConfig, CLASSES, FRAME_RATE};
 use crate::rng::Rng;
 use throughline_core::detections::{Detection, Detections};
 use throughline_core::geometry::BBox;
@@ -57,6 +58,9 @@ pub fn generate_with(cfg: &SceneConfig, on_frame: &mut dyn FnMut(u32, &[AgentVie
     // holds steady however long they take to cross; the warm-up fills the scene before frame 1.
     let warm_up = 400;
     for step in 0..(warm_up + cfg.frames) {
+        if step == warm_up && cfg.hard_cases.standing_start {
+            sim.standing_start();
+        }
         sim.arrivals();
         sim.move_agents();
         if step < warm_up {
@@ -135,11 +139,22 @@ impl<'a> Simulation<'a> {
         }
     }
 
+    /// The standing-start hard case, just before frame 1: about half the people in view stand
+    /// still for 2–8 s (those already stopping keep the longer of the two).
+    fn standing_start(&mut self) {
+        let cfg = self.cfg;
+        for a in &mut self.agents {
+            if a.class == 0 && visible(&a.bbox(cfg), cfg).is_some() && self.rng.chance(0.5) {
+                a.stop_frames = a.stop_frames.max(50 + self.rng.below(150) as u32);
+            }
+        }
+    }
+
     /// Every agent one step on; those that arrived or left the picture are gone.
     fn move_agents(&mut self) {
         let cfg = self.cfg;
         for a in &mut self.agents {
-            step_agent(a, &mut self.rng, self.occluder);
+            step_agent(a, &mut self.rng, self.occluder, cfg.hard_cases.long_pauses);
         }
         self.agents.retain(|a| {
             let b = a.bbox(cfg);
@@ -239,7 +254,7 @@ impl<'a> Simulation<'a> {
                     id: a.truth_id.unwrap_or(0),
                     class: a.class,
                     bbox: a.bbox(self.cfg),
-                    colour: colour_of(a.id),
+                    colour: clothes_of(a.id, a.class, self.cfg.hard_cases.pale_clothes),
                 });
             }
         }

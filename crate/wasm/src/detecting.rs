@@ -87,15 +87,93 @@ impl Session {
     }
 
     fn detect_planar(&mut self, yuv: &[u8], w: usize, h: usize) -> Result<u32, JsError> {
-        let (detector, found) = self
-            .detector
-            .as_mut()
-            .ok_or_else(|| js_error("start detection first"))?;
+        let (detector, found) = self.started_detector()?;
         let picture = detect::Picture::planar(w, h, yuv, true).ok_or_else(short_frame)?;
         let boxes = detector.detect_found(&picture).map_err(js_error)?;
         let n = boxes.len() as u32;
         found.push(boxes);
         Ok(n)
+    }
+
+    fn started_detector(&mut self) -> Result<&mut (detect::Detector, FoundBoxes), JsError> {
+        self.detector
+            .as_mut()
+            .ok_or_else(|| js_error("start detection first"))
+    }
+
+    /// Whether the clip should be read once for its background before its frames go to
+    /// [`Session::detect_yuv`]: each frame, in order from the first, to [`Session::sample_yuv`]
+    /// when [`Session::wants_sample`] says so, else [`Session::pass_sample`] (the command line
+    /// reads a file the same way, so both find the same boxes).
+    #[wasm_bindgen(js_name = wholeClipBackground)]
+    pub fn whole_clip_background(&mut self) -> Result<bool, JsError> {
+        Ok(self.started_detector()?.0.samples_whole_clip())
+    }
+
+    /// Whether the next frame of the first reading is one the background keeps.
+    #[wasm_bindgen(js_name = wantsSample)]
+    pub fn wants_sample(&mut self) -> Result<bool, JsError> {
+        Ok(self.started_detector()?.0.wants_sample())
+    }
+
+    /// The next frame of the first reading, as [`Session::detect_yuv`] takes it.
+    #[wasm_bindgen(js_name = sampleYuv)]
+    pub fn sample_yuv(
+        &mut self,
+        bytes: &[u8],
+        width: u32,
+        height: u32,
+        layout: &str,
+    ) -> Result<(), JsError> {
+        let (w, h) = (width as usize, height as usize);
+        let planar = match layout {
+            "I420" => None,
+            "NV12" => Some(nv12_to_i420(bytes, w, h).ok_or_else(short_frame)?),
+            other => {
+                return Err(js_error(format!(
+                    "frames laid out as {other} cannot be read directly; draw them as RGBA"
+                )))
+            }
+        };
+        self.sample_planar(planar.as_deref().unwrap_or(bytes), w, h)
+    }
+
+    /// The next frame of the first reading as RGBA pixels.
+    #[wasm_bindgen(js_name = sampleRgba)]
+    pub fn sample_rgba(&mut self, rgba: &[u8], width: u32, height: u32) -> Result<(), JsError> {
+        let (w, h) = (width as usize, height as usize);
+        let yuv = detect::rgba_to_yuv420(rgba, w, h).ok_or_else(short_frame)?;
+        self.sample_planar(&yuv, w, h)
+    }
+
+    /// The frames (from 1) a first reading of a clip of `total` frames keeps for the background,
+    /// for footage whose frames are drawn one by one: giving just these to
+    /// [`Session::sample_rgba`] forms the same background as reading every frame. Empty when the
+    /// background forms over the opening frames instead.
+    #[wasm_bindgen(js_name = backgroundFrames)]
+    pub fn background_frames(&mut self, total: u32) -> Result<Vec<u32>, JsError> {
+        let detector = &self.started_detector()?.0;
+        if !detector.samples_whole_clip() {
+            return Ok(Vec::new());
+        }
+        Ok(detector
+            .background_frames(total as usize)
+            .into_iter()
+            .map(|i| i as u32 + 1)
+            .collect())
+    }
+
+    /// Counts the next frame of the first reading without giving it (one not wanted).
+    #[wasm_bindgen(js_name = passSample)]
+    pub fn pass_sample(&mut self) -> Result<(), JsError> {
+        self.started_detector()?.0.pass_sample();
+        Ok(())
+    }
+
+    fn sample_planar(&mut self, yuv: &[u8], w: usize, h: usize) -> Result<(), JsError> {
+        let (detector, _) = self.started_detector()?;
+        let picture = detect::Picture::planar(w, h, yuv, true).ok_or_else(short_frame)?;
+        detector.sample(&picture).map_err(js_error)
     }
 
     /// Ends detection: the boxes found become the session's detections (frames from 1 in the

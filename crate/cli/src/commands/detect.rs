@@ -14,8 +14,10 @@ pub const LONG_ABOUT: &str = "Find moving objects in footage from a fixed camera
     Reads YUV4MPEG2 (4:2:0 or mono, 8 bits), as `ffmpeg -i INPUT -pix_fmt yuv420p -f yuv4mpegpipe -` \
     writes it, from a file or from standard input (-), and writes detections for `track` and `run`: \
     CSV (frame,x,y,w,h,score,class) when classes are guessed (with far_height/near_height set), \
-    else the benchmark text format (frame,-1,x,y,w,h,score,-1,-1,-1). The background forms over the \
-    first second (warm_up_frames); nothing is reported meanwhile. Settings: docs/detector-settings.md.";
+    else the benchmark text format (frame,-1,x,y,w,h,score,-1,-1,-1). A file is read twice: first for \
+    the background (pictures sampled over the whole clip), then to find objects from its first frame. \
+    From standard input the background forms over the first two seconds (warm_up_frames), where nothing \
+    is reported. Settings: docs/detector-settings.md.";
 
 /// Find moving objects in footage from a fixed camera, without any model.
 #[derive(clap::Args)]
@@ -67,7 +69,9 @@ pub fn run(args: Args) -> Result<(), Failure> {
     })
 }
 
-/// Reads YUV4MPEG2 frames from a file or standard input (`-`) and runs the detector on each.
+/// Reads YUV4MPEG2 frames from a file or standard input (`-`) and runs the detector on each. A
+/// file is read twice: once for the background (pictures sampled over the whole clip), then to
+/// detect; standard input only once, the background forming over the opening frames.
 pub fn detect_footage(
     footage: &Path,
     config: Option<&Path>,
@@ -77,43 +81,27 @@ pub fn detect_footage(
         Some((p, text)) => DetectorConfig::from_json(&text).map_err(|e| bad_input(p, e))?,
         None => DetectorConfig::default(),
     };
-    let input: Box<dyn Read> = if footage == Path::new("-") {
-        Box::new(std::io::stdin().lock())
-    } else {
-        Box::new(
-            std::fs::File::open(footage)
-                .map_err(|e| bad_input(footage, format!("cannot read the file: {e}")))?,
-        )
-    };
-    let mut reader = y4m::Reader::new(BufReader::with_capacity(1 << 20, input))
-        .map_err(|e| bad_input(footage, e))?;
+    let mut reader = open_y4m(footage)?;
     let header = *reader.header();
     let mut detector = Detector::new(config, header.width, header.height);
+    if detector.samples_whole_clip() {
+        if footage == Path::new("-") {
+            if !quiet {
+                eprintln!(
+                    "note: footage from standard input is read once, so the background forms over \
+                     its first frames (warm_up_frames) and nothing is found in them; give a file to \
+                     form it from the whole clip"
+                );
+            }
+        } else {
+            sample_clip(reader, &mut detector, footage, quiet)?;
+            reader = open_y4m(footage)?;
+        }
+    }
     let bar = progress::spinner(quiet, "detecting {spinner} frame {pos} ({per_sec})");
     let mut per_frame = Vec::new();
-    loop {
-        let frame = match reader.next_frame().map_err(|e| bad_input(footage, e))? {
-            y4m::Next::Frame(frame) => frame,
-            y4m::Next::End => break,
-            y4m::Next::CutShort => {
-                // Keep what was found in the whole frames rather than lose it.
-                let k = reader.frames_read() + 1;
-                eprintln!(
-                    "warning: {}: the stream ends inside frame {k}; frames 1 to {} are used",
-                    name(footage),
-                    k - 1
-                );
-                break;
-            }
-        };
-        let colour = header.layout == y4m::Layout::Yuv420;
-        // `frame` holds exactly `header.frame_bytes()`, which is what `planar` needs.
-        let Some(pic) = Picture::planar(header.width, header.height, frame, colour) else {
-            return Err(bad_input(
-                footage,
-                "a frame is shorter than its header says",
-            ));
-        };
+    while let Some(frame) = next_frame(&mut reader, footage, true)? {
+        let pic = picture(&header, frame, footage)?;
         per_frame.push(
             detector
                 .detect_found(&pic)
@@ -126,4 +114,79 @@ pub fn detect_footage(
         return Err(bad_input(footage, "the stream holds no frames"));
     }
     Ok(detector.detections_from(per_frame))
+}
+
+type Y4m = y4m::Reader<BufReader<Box<dyn Read>>>;
+
+/// A YUV4MPEG2 reader over a file, or standard input for `-`.
+fn open_y4m(footage: &Path) -> Result<Y4m, Failure> {
+    let input: Box<dyn Read> = if footage == Path::new("-") {
+        Box::new(std::io::stdin().lock())
+    } else {
+        Box::new(
+            std::fs::File::open(footage)
+                .map_err(|e| bad_input(footage, format!("cannot read the file: {e}")))?,
+        )
+    };
+    y4m::Reader::new(BufReader::with_capacity(1 << 20, input)).map_err(|e| bad_input(footage, e))
+}
+
+/// The first reading: every frame offered to the detector's background sampler (only the ones it
+/// keeps are copied).
+fn sample_clip(
+    mut reader: Y4m,
+    detector: &mut Detector,
+    footage: &Path,
+    quiet: bool,
+) -> Result<(), Failure> {
+    let header = *reader.header();
+    let bar = progress::spinner(quiet, "background {spinner} frame {pos} ({per_sec})");
+    while let Some(frame) = next_frame(&mut reader, footage, false)? {
+        if detector.wants_sample() {
+            let pic = picture(&header, frame, footage)?;
+            detector.sample(&pic).map_err(|e| bad_input(footage, e))?;
+        } else {
+            detector.pass_sample();
+        }
+        bar.inc(1);
+    }
+    bar.finish_and_clear();
+    Ok(())
+}
+
+/// The next whole frame, or `None` at the end; a stream cut inside a frame ends at the frame
+/// before (said once, when `warn`).
+fn next_frame<'a>(
+    reader: &'a mut Y4m,
+    footage: &Path,
+    warn: bool,
+) -> Result<Option<&'a [u8]>, Failure> {
+    let k = reader.frames_read() + 1;
+    match reader.next_frame().map_err(|e| bad_input(footage, e))? {
+        y4m::Next::Frame(frame) => Ok(Some(frame)),
+        y4m::Next::End => Ok(None),
+        y4m::Next::CutShort => {
+            // Keep what was found in the whole frames rather than lose it.
+            if warn {
+                eprintln!(
+                    "warning: {}: the stream ends inside frame {k}; frames 1 to {} are used",
+                    name(footage),
+                    k - 1
+                );
+            }
+            Ok(None)
+        }
+    }
+}
+
+/// A frame's bytes as the detector's picture.
+fn picture<'a>(
+    header: &y4m::Header,
+    frame: &'a [u8],
+    footage: &Path,
+) -> Result<Picture<'a>, Failure> {
+    let colour = header.layout == y4m::Layout::Yuv420;
+    // `frame` holds exactly `header.frame_bytes()`, which is what `planar` needs.
+    Picture::planar(header.width, header.height, frame, colour)
+        .ok_or_else(|| bad_input(footage, "a frame is shorter than its header says"))
 }

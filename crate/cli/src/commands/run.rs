@@ -3,6 +3,7 @@
 use super::count::{stage_report, summarise, ReportPaths};
 use super::detect::detect_footage;
 use super::track::{track_detections, track_file, TrackingArgs};
+use crate::bridging::bridge_with_footage;
 use crate::files::{
     bad_input, bad_usage, read_plan, read_settings, read_work, write_tracks, Failure,
 };
@@ -24,13 +25,15 @@ pub const LONG_ABOUT: &str = "Track detections, then count them against a plan.\
 #[derive(clap::Args)]
 pub struct Args {
     /// Detections file (as for `track`); or give --y4m to find them in footage.
-    #[arg(required_unless_present = "y4m", conflicts_with = "y4m")]
+    #[arg(required_unless_present = "y4m")]
     detections: Option<PathBuf>,
-    /// Footage as YUV4MPEG2 (a file, or - for standard input) instead of a detections file:
-    /// moving objects are found by the built-in detector (fixed camera).
+    /// Footage as YUV4MPEG2 (a file, or - for standard input). Alone: moving objects are found by
+    /// the built-in detector (fixed camera). With a detections file: the footage they were found
+    /// in. Either way, from a file, gaps where detections were missed are bridged by following
+    /// objects in the footage (V-IOU; `bridge_frames` in the tracker settings, 0 for off).
     #[arg(long, value_name = "FILE")]
     y4m: Option<PathBuf>,
-    /// Detector settings (JSON; see docs/detector-settings.md), with --y4m.
+    /// Detector settings (JSON; see docs/detector-settings.md), with --y4m and no detections file.
     #[arg(long, value_name = "FILE", requires = "y4m")]
     detector_config: Option<PathBuf>,
     /// Counting plan (JSON).
@@ -132,12 +135,13 @@ pub fn run(args: Args) -> Result<(), Failure> {
     Ok(())
 }
 
-/// The tracks: of the detections file, or of the objects found in the footage.
+/// The tracks: of the detections file, or of the objects found in the footage; with footage,
+/// bridged where detections were missed.
 fn track_source(args: &Args, plan: &Plan) -> Result<throughline_core::Tracks, Failure> {
     let mut timer = Timer::new();
     let how = &args.tracking;
     match (&args.y4m, &args.detections) {
-        (Some(footage), _) => {
+        (Some(footage), None) => {
             let settings = read_settings(how.config.as_deref())?;
             let default_margin = plan.spec.rules.hysteresis < FOOTAGE_HYSTERESIS;
             if !how.quiet && !plan.screenlines.is_empty() && default_margin {
@@ -149,7 +153,18 @@ fn track_source(args: &Args, plan: &Plan) -> Result<throughline_core::Tracks, Fa
                 );
             }
             let dets = detect_footage(footage, args.detector_config.as_deref(), how.quiet)?;
-            track_detections(&dets, footage, how, settings, &mut timer)
+            let tracks = track_detections(&dets, footage, how, settings, &mut timer)?;
+            bridge_with_footage(tracks, footage, how.quiet)
+        }
+        (Some(footage), Some(path)) => {
+            if args.detector_config.is_some() {
+                return Err(bad_usage(
+                    "--detector-config is for finding objects in the footage; with a detections \
+                     file the footage only bridges missed detections: leave one of the two out",
+                ));
+            }
+            let tracks = track_file(path, how, &mut timer)?;
+            bridge_with_footage(tracks, footage, how.quiet)
         }
         (None, Some(path)) => track_file(path, how, &mut timer),
         // clap requires one of the two.

@@ -43,6 +43,17 @@ pub struct Args {
     /// Leave out the plinth that hides people behind it.
     #[arg(long)]
     no_occluder: bool,
+    /// Make common what troubles a motion detector: `all` (when given alone), or some of
+    /// standing-start (people standing in view at frame 1), pairs (side by side, overtaking),
+    /// long-pauses (stops of 3–10 s mid-walk), pale-clothes (clothes the paving's grey).
+    #[arg(
+        long,
+        value_name = "CASES",
+        num_args = 0..=1,
+        default_missing_value = "all",
+        value_delimiter = ','
+    )]
+    hard_cases: Vec<String>,
     /// Also render the frames, as YUV4MPEG2 (4:2:0, 25 fps) to this file (`-` for standard output).
     #[arg(long, value_name = "FILE.y4m")]
     render: Option<PathBuf>,
@@ -68,6 +79,12 @@ impl Args {
                 "--width and --height must be between 32 and {side} pixels"
             )));
         }
+        let hard_cases = if self.hard_cases.is_empty() {
+            sim::HardCases::default()
+        } else {
+            sim::HardCases::parse(&self.hard_cases.join(","))
+                .map_err(|e| bad_usage(&format!("--hard-cases: {e}")))?
+        };
         Ok(sim::SceneConfig {
             seed: self.seed,
             frames: self.frames,
@@ -79,6 +96,7 @@ impl Args {
             embedding_dim: self.embedding_dim,
             embedding_noise: self.embedding_noise,
             occluder: !self.no_occluder,
+            hard_cases,
             ..sim::SceneConfig::default()
         })
     }

@@ -1,5 +1,6 @@
 //! `throughline track`: link per-frame detections into tracks.
 
+use crate::bridging::bridge_with_footage;
 use crate::files::{bad_input, read_file, read_settings, write_tracks, Failure};
 use crate::output::{check_paths, Outputs};
 use crate::progress::{self, Timer};
@@ -19,6 +20,10 @@ pub const LONG_ABOUT: &str = "Link per-frame detections into tracks.\n\n\
 pub struct Args {
     /// Detections file.
     detections: PathBuf,
+    /// The footage the detections were found in, as a YUV4MPEG2 file: gaps where detections were
+    /// missed are bridged by following objects in it (V-IOU; `bridge_frames` in the settings).
+    #[arg(long, value_name = "FILE")]
+    y4m: Option<PathBuf>,
     /// Where to write the tracks (.txt: benchmark text; otherwise JSON).
     #[arg(short, long, value_name = "OUT")]
     output: Option<PathBuf>,
@@ -47,8 +52,17 @@ pub fn run(args: Args) -> Result<(), Failure> {
     progress::timed(args.stats, |timer| {
         let path = &args.detections;
         let output = args.output.as_deref();
-        check_paths(&[Some(path), args.tracking.config.as_deref()], &[output])?;
-        let tracks = track_file(path, &args.tracking, timer)?;
+        let inputs = [
+            Some(path.as_path()),
+            args.tracking.config.as_deref(),
+            args.y4m.as_deref(),
+        ];
+        check_paths(&inputs, &[output])?;
+        let mut tracks = track_file(path, &args.tracking, timer)?;
+        if let Some(footage) = &args.y4m {
+            tracks = bridge_with_footage(tracks, footage, args.tracking.quiet)?;
+            timer.lap("bridge");
+        }
         match output {
             Some(p) => {
                 let mut files = Outputs::new();

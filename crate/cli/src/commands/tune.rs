@@ -38,7 +38,8 @@ pub fn run(args: Args) -> Result<(), Failure> {
     let methods: Vec<Method> = match args.method {
         Some(m) => vec![m],
         None => Method::ALL
-            .into_iter()
+            .iter()
+            .copied()
             .filter(|m| !m.def().needs_embeddings || dets.detections.embedding_dim > 0)
             .collect(),
     };

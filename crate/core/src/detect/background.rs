@@ -1,9 +1,12 @@
 //! The background model: the approximate running median of McFarlane & Schofield (1995) with a
 //! running estimate of each pixel's mean absolute deviation for its threshold, formed first from the
-//! median of pictures sampled over the warm-up; shadows told apart by brightness ratio and chroma.
-//! See the module notes of `detect` for the method and its sources.
+//! per-pixel median of pictures sampled over the whole clip (or, when the footage can be read only
+//! once, over the warm-up); shadows told apart by brightness ratio and chroma. See the module notes
+//! of `detect` for the method and its sources.
 
 use super::{DetectorConfig, Picture};
+use crate::geometry::BBox;
+use crate::limits;
 
 /// Background, deviation and chroma background of one picture size, with the pictures kept while
 /// the first background forms.
@@ -19,7 +22,56 @@ pub(super) struct Background {
     samples: Vec<Vec<u8>>,
     samples_uv: Vec<(Vec<u8>, Vec<u8>)>,
     /// Frames each pixel has been foreground in a row (saturating).
-    fg_run: Vec<u8>,
+    fg_run: Vec<u16>,
+    /// Pictures offered from the whole clip before detection (see [`Sampler`]); `None` once the
+    /// background has formed or when none were offered.
+    clip: Option<Sampler>,
+    /// Foreground frames in a row after which a pixel is learnt anyway ([`STILL_FRAMES`], or
+    /// [`STILL_FRAMES_WHOLE_CLIP`] when the background came from the whole clip).
+    still_frames: u16,
+    /// The light of the picture last looked at against the background's ([`Self::gain`]).
+    gain: u32,
+}
+
+/// Pictures kept from the whole clip, evenly spaced whatever its length, read once before
+/// detection: every `step`-th picture from the first, the step doubling (and every other picture
+/// let go) whenever more than `max_kept` would be kept. The pictures kept depend only on the clip,
+/// so every adapter that offers the same frames forms the same background.
+struct Sampler {
+    step: usize,
+    offered: usize,
+    max_kept: usize,
+    /// Picture index (0-based) and its luma (then chroma, when there is colour) planes.
+    kept: Vec<(usize, Vec<u8>)>,
+}
+
+impl Sampler {
+    fn new(frame_bytes: usize) -> Sampler {
+        let fit = limits::MAX_BACKGROUND_SAMPLE_BYTES / frame_bytes.max(1);
+        Sampler {
+            step: 1,
+            offered: 0,
+            max_kept: fit.clamp(MIN_CLIP_SAMPLES, MAX_CLIP_SAMPLES),
+            kept: Vec::new(),
+        }
+    }
+
+    fn wants_next(&self) -> bool {
+        self.offered.is_multiple_of(self.step)
+    }
+
+    /// Takes the next picture's planes (`planes` is called only when it is kept).
+    fn offer(&mut self, planes: impl FnOnce() -> Vec<u8>) {
+        if self.wants_next() {
+            self.kept.push((self.offered, planes()));
+            if self.kept.len() > self.max_kept {
+                self.step *= 2;
+                let step = self.step;
+                self.kept.retain(|(i, _)| i.is_multiple_of(step));
+            }
+        }
+        self.offered += 1;
+    }
 }
 
 impl Background {
@@ -37,7 +89,73 @@ impl Background {
             samples: Vec::new(),
             samples_uv: Vec::new(),
             fg_run: vec![0; n],
+            clip: None,
+            still_frames: STILL_FRAMES,
+            gain: UNIT_GAIN,
         }
+    }
+
+    /// Whether the next picture offered to [`Self::sample`] would be kept (an adapter can skip
+    /// copying the others).
+    pub(super) fn wants_sample(&self) -> bool {
+        self.clip.as_ref().is_none_or(Sampler::wants_next) && !self.detecting()
+    }
+
+    /// Whether detection has started (a picture went to [`Self::ready`]).
+    pub(super) fn detecting(&self) -> bool {
+        self.frames_seen > 0
+    }
+
+    /// Offers the next picture of the clip, read through once before detection starts. After the
+    /// last one, detection starts at the clip's first picture with a background from them all.
+    pub(super) fn sample(&mut self, pic: &Picture) {
+        let n = self.width * self.height;
+        let (cw, ch) = Picture::chroma_size(self.width, self.height);
+        let nc = if pic.uv.is_some() { 2 * cw * ch } else { 0 };
+        // Sized as for colour pictures either way, so the pictures kept depend on the size only.
+        let clip = self
+            .clip
+            .get_or_insert_with(|| Sampler::new(n + 2 * cw * ch));
+        clip.offer(|| {
+            let mut planes = Vec::with_capacity(n + nc);
+            planes.extend_from_slice(&pic.y[..n]);
+            if let Some((u, v)) = pic.uv {
+                planes.extend_from_slice(&u[..cw * ch]);
+                planes.extend_from_slice(&v[..cw * ch]);
+            }
+            planes
+        });
+    }
+
+    /// Counts the next picture of the clip without taking it (one [`Self::wants_sample`] declined).
+    pub(super) fn pass_sample(&mut self) {
+        let n = self.width * self.height;
+        let (cw, ch) = Picture::chroma_size(self.width, self.height);
+        let clip = self
+            .clip
+            .get_or_insert_with(|| Sampler::new(n + 2 * cw * ch));
+        if clip.wants_next() {
+            // Only a picture the sampler declines may be passed over: keep the spacing even.
+            return;
+        }
+        clip.offered += 1;
+    }
+
+    /// The pictures a reading of `total` pictures would keep: every `step`-th from the first, the
+    /// step the least power of two that keeps no more than the sampler holds.
+    pub(super) fn clip_frames(&self, total: usize) -> Vec<usize> {
+        let (cw, ch) = Picture::chroma_size(self.width, self.height);
+        let max_kept = Sampler::new(self.width * self.height + 2 * cw * ch).max_kept;
+        let mut step = 1;
+        while total.div_ceil(step) > max_kept {
+            step *= 2;
+        }
+        (0..total).step_by(step).collect()
+    }
+
+    /// Pictures kept so far by [`Self::sample`].
+    pub(super) fn samples_kept(&self) -> usize {
+        self.clip.as_ref().map_or(0, |c| c.kept.len())
     }
 
     /// Takes the next picture into the warm-up; `false` while the background is still forming
@@ -46,7 +164,22 @@ impl Background {
         let n = self.width * self.height;
         let (cw, ch) = Picture::chroma_size(self.width, self.height);
         self.frames_seen += 1;
-        if self.frames_seen <= warm_up {
+        if let Some(clip) = self.clip.take().filter(|c| !c.kept.is_empty()) {
+            // Whole-clip samples: no warm-up, the background holds from the first picture.
+            let nc = cw * ch;
+            for (_, mut planes) in clip.kept {
+                if planes.len() == n + 2 * nc {
+                    let (u, v) = planes[n..].split_at(nc);
+                    self.samples_uv.push((u.to_vec(), v.to_vec()));
+                }
+                planes.truncate(n);
+                self.samples.push(planes);
+            }
+            self.still_frames = STILL_FRAMES_WHOLE_CLIP;
+            self.form_background(n, cw * ch);
+            return true;
+        }
+        if self.frames_seen <= warm_up && self.bg.is_empty() {
             // The first background is the per-pixel median of pictures sampled over the warm-up,
             // so objects that move during it are left out of it.
             let stride = warm_up.div_ceil(WARM_UP_SAMPLES).max(1);
@@ -82,7 +215,7 @@ impl Background {
             let mid = buf.len() / 2;
             *buf.select_nth_unstable(mid).1
         };
-        let mut buf = Vec::with_capacity(WARM_UP_SAMPLES as usize);
+        let mut buf = Vec::with_capacity(self.samples.len());
         let luma: Vec<&Vec<u8>> = self.samples.iter().collect();
         self.bg = (0..n).map(|i| median(&luma, i, &mut buf)).collect();
         for i in 0..n {
@@ -104,26 +237,24 @@ impl Background {
         self.samples_uv = Vec::new();
     }
 
-    /// Marks foreground pixels in `mask` and moves the background towards this picture (after the
-    /// warm-up: see [`Self::ready`]).
+    /// Marks foreground pixels in `mask` (after the warm-up: see [`Self::ready`]); then
+    /// [`Self::learn`] moves the background towards this picture.
     pub(super) fn foreground(&mut self, pic: &Picture, c: &DetectorConfig, mask: &mut [u8]) {
         let w = self.width;
         let (cw, _) = Picture::chroma_size(self.width, self.height);
-        // The background follows each pixel by one level a frame; a pixel under an object (or its
-        // shadow) is left alone, unless it has been so for `STILL_FRAMES` in a row: then it is a
-        // stopped object or a ghost (where an object stood while the background formed) and is
-        // learnt, faster.
-        let step: i16 = 1;
         // The threshold in sixteenths, so the per-pixel test stays in integers.
         let factor = (c.deviation_factor * 16.0).round().clamp(0.0, 4096.0) as u32;
         let min_difference = u32::from(c.min_difference);
+        // The background is kept at one light; this picture's light against it (a cloud, a
+        // camera's exposure) is measured over the pixels that were background in the last one.
+        self.gain = self.gain(pic);
         for yy in 0..self.height {
             let row = yy * w;
             let crow = (yy / 2) * cw;
             for xx in 0..w {
                 let i = row + xx;
                 let p = pic.y[i];
-                let b = self.bg[i];
+                let b = lit(self.bg[i], self.gain);
                 let d = p.abs_diff(b);
                 let limit = ((u32::from(self.dev[i]) * factor) >> 4).max(min_difference);
                 // `changed`: not the background (an object or its shadow). Shadows are left out of
@@ -149,28 +280,92 @@ impl Background {
                 } else {
                     0
                 };
-                if !changed {
-                    self.bg[i] = toward(b, p, step);
-                    self.dev[i] = toward(self.dev[i], d, 1).max(2);
-                } else if self.fg_run[i] >= STILL_FRAMES {
-                    self.bg[i] = toward(b, p, 3);
-                }
+            }
+        }
+    }
+
+    /// Moves the background towards the picture [`Self::foreground`] last looked at, by one level
+    /// (at the background's light), where it was background and outside every object's box: the
+    /// parts of a person that look like the paving are not learnt, or they would leave a ghost. A
+    /// pixel that has been foreground for `still_frames` in a row is a stopped object or a ghost
+    /// and is learnt, faster. `covered` is a working buffer of one byte a pixel.
+    pub(super) fn learn(&mut self, pic: &Picture, objects: &[BBox], covered: &mut [u8]) {
+        let (w, h) = (self.width, self.height);
+        covered.fill(0);
+        for b in objects {
+            let (x0, y0) = (b.x.max(0.0) as usize, b.y.max(0.0) as usize);
+            let (x1, y1) = (((b.x + b.w) as usize).min(w), ((b.y + b.h) as usize).min(h));
+            for row in covered.chunks_mut(w).take(y1).skip(y0) {
+                row[x0.min(x1)..x1].fill(1);
+            }
+        }
+        let gain = self.gain;
+        // Inside a box, background-like pixels are learnt on one frame in COVERED_PACE only: the
+        // parts of a person that look like the paving barely move it, but a box that is no
+        // object (the background gone wrong there) still heals.
+        let slow_turn = self.frames_seen.is_multiple_of(COVERED_PACE);
+        for (i, &c) in covered.iter().enumerate().take(w * h) {
+            let p = pic.y[i];
+            if self.fg_run[i] == 0 && (c == 0 || slow_turn) {
+                let d = p.abs_diff(lit(self.bg[i], gain));
+                self.bg[i] = toward(self.bg[i], unlit(p, gain), 1);
+                self.dev[i] = toward(self.dev[i], d, 1).max(2);
+            } else if self.fg_run[i] >= self.still_frames {
+                self.bg[i] = toward(self.bg[i], unlit(p, gain), 3);
             }
         }
         if let Some((u, v)) = pic.uv {
+            let (cw, _) = Picture::chroma_size(w, h);
             for (i, (bu, bv)) in self.bg_u.iter_mut().zip(self.bg_v.iter_mut()).enumerate() {
                 let li = (i / cw) * 2 * w + (i % cw) * 2;
-                if self
-                    .fg_run
-                    .get(li)
-                    .is_none_or(|&r| r == 0 || r >= STILL_FRAMES)
-                {
-                    *bu = toward(*bu, u[i], step);
-                    *bv = toward(*bv, v[i], step);
+                let learn = match (self.fg_run.get(li), covered.get(li)) {
+                    (Some(&r), Some(&c)) => {
+                        (r == 0 && (c == 0 || slow_turn)) || r >= self.still_frames
+                    }
+                    _ => true,
+                };
+                if learn {
+                    *bu = toward(*bu, u[i], 1);
+                    *bv = toward(*bv, v[i], 1);
                 }
             }
         }
     }
+}
+
+impl Background {
+    /// The light of `pic` against the background's, in 65536ths: the ratio of their sums over
+    /// every seventh pixel that was background in the last picture (all pixels at first), within
+    /// a half and twice.
+    fn gain(&self, pic: &Picture) -> u32 {
+        let (mut now, mut then) = (0u64, 0u64);
+        for i in (0..self.bg.len()).step_by(7) {
+            if self.fg_run[i] == 0 {
+                now += u64::from(pic.y[i]);
+                then += u64::from(self.bg[i]);
+            }
+        }
+        if then == 0 {
+            return UNIT_GAIN;
+        }
+        ((now << 16) / then).clamp(u64::from(UNIT_GAIN / 2), u64::from(UNIT_GAIN * 2)) as u32
+    }
+}
+
+/// Frames per step of learning inside an object's box.
+const COVERED_PACE: u32 = 8;
+
+/// A gain of one, in 65536ths.
+const UNIT_GAIN: u32 = 1 << 16;
+
+/// A background level seen in a picture of light `gain`.
+fn lit(level: u8, gain: u32) -> u8 {
+    ((u32::from(level) * gain + UNIT_GAIN / 2) >> 16).min(255) as u8
+}
+
+/// A picture's level of light `gain` at the background's light.
+fn unlit(level: u8, gain: u32) -> u8 {
+    (((u32::from(level) << 16) + gain / 2) / gain).min(255) as u8
 }
 
 /// Pictures kept to form the first background (sampled evenly over the warm-up).
@@ -179,7 +374,17 @@ const WARM_UP_SAMPLES: u32 = 25;
 /// Frames in a row (5 s at 25 fps) after which a foreground pixel is learnt into the background
 /// anyway, three levels a frame. Long enough that a person walking slowly towards the camera, who
 /// covers a pixel for a few seconds, is not learnt.
-const STILL_FRAMES: u8 = 125;
+const STILL_FRAMES: u16 = 125;
+
+/// The same when the background came from the whole clip (60 s at 25 fps): no ghost of the opening
+/// frames is left to clear, so a person who stands still stays foreground; only a lasting change
+/// (a parked vehicle, a moved bench) is learnt.
+const STILL_FRAMES_WHOLE_CLIP: u16 = 1_500;
+
+/// Least and most pictures kept from the whole clip (fewer for large pictures, within
+/// [`limits::MAX_BACKGROUND_SAMPLE_BYTES`]).
+const MIN_CLIP_SAMPLES: usize = 4;
+const MAX_CLIP_SAMPLES: usize = 64;
 
 /// Moves `from` up to `step` levels towards `to`.
 fn toward(from: u8, to: u8, step: i16) -> u8 {

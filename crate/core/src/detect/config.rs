@@ -9,7 +9,12 @@ use serde::{Deserialize, Serialize};
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 #[serde(default, deny_unknown_fields)]
 pub struct DetectorConfig {
-    /// Frames during which the background forms and nothing is reported.
+    /// Form the background from pictures sampled over the whole clip, read once before detection
+    /// ([`super::Detector::sample`]), so nothing warms up and people in view at the start are
+    /// found. Off, or when the footage can be read only once (a pipe), it forms over
+    /// `warm_up_frames`.
+    pub whole_clip_background: bool,
+    /// Frames during which the background forms and nothing is reported (without the whole clip).
     pub warm_up_frames: u32,
     /// Least difference from the background (grey levels) that can count as foreground.
     pub min_difference: u8,
@@ -41,6 +46,7 @@ pub struct DetectorConfig {
 impl Default for DetectorConfig {
     fn default() -> Self {
         Self {
+            whole_clip_background: true,
             warm_up_frames: 50,
             min_difference: 18,
             deviation_factor: 3.0,

@@ -2,11 +2,14 @@
 //! background, foreground where a pixel differs from it by more than its own usual variation, shadows
 //! taken out, the mask cleaned, and the connected blobs turned into boxes the trackers take.
 //!
-//! Background: the approximate running median of McFarlane & Schofield (1995) — each frame the
-//! background value moves one grey level towards the pixel (faster while it forms) — with a running
-//! estimate of each pixel's mean absolute deviation, the same way, for its threshold. Pixels under a
-//! moving object update 16 times more slowly, so a person who stops is absorbed only after a while
-//! (about 255 × 16 / 25 s at 25 fps for the largest difference).
+//! Background: first the per-pixel median (and median absolute deviation) of pictures spread evenly
+//! over the whole clip, read once before detection ([`Detector::sample`]; or, for footage that can
+//! be read only once, over the opening `warm_up_frames`); then the approximate running median of
+//! McFarlane & Schofield (1995) — each frame the background value moves one grey level towards the
+//! pixel — with each pixel's usual deviation followed the same way, for its threshold. Pixels under
+//! an object are not learnt, unless they stay so for a long time (5 s after an opening-frames
+//! background, which may hold a ghost of whoever stood there; 60 s after a whole-clip one), so a
+//! person who stands still stays foreground.
 //!
 //! Shadows: a pixel darker than the background by a limited ratio whose chromaticity (U, V) is about
 //! the background's is a shadow, not an object (the brightness/chromaticity test of Horprasert et
@@ -114,6 +117,56 @@ impl Detector {
             .collect())
     }
 
+    /// Whether detection should be preceded by a first reading of the whole clip through
+    /// [`Self::sample`] (`whole_clip_background` in the settings).
+    pub fn samples_whole_clip(&self) -> bool {
+        self.config.whole_clip_background
+    }
+
+    /// Whether the next picture given to [`Self::sample`] is one it keeps: an adapter can skip
+    /// copying the others out of a decoder and pass any picture of the right size instead.
+    pub fn wants_sample(&self) -> bool {
+        self.background.wants_sample()
+    }
+
+    /// Offers the next picture of a first reading of the whole clip, in order from its first
+    /// frame, before any call of [`Self::detect`]. A few dozen pictures spread evenly over the clip
+    /// are kept, whatever its length, and the background is their per-pixel median: an object in
+    /// view at the start is foreground from the first frame, and nothing needs to warm up. Without
+    /// this reading, the background forms over the first `warm_up_frames` instead.
+    pub fn sample(&mut self, pic: &Picture) -> Result<(), Error> {
+        self.check_size(pic)?;
+        if self.background.detecting() {
+            return Err(Error::new(
+                ErrorKind::Unsuitable,
+                "the clip is read for its background before detection starts, not after",
+            ));
+        }
+        self.background.sample(pic);
+        Ok(())
+    }
+
+    /// Counts the next picture of the first reading without giving it, when [`Self::wants_sample`]
+    /// said it is not kept (a picture it wants must be given to [`Self::sample`]; passing it does
+    /// nothing).
+    pub fn pass_sample(&mut self) {
+        if !self.background.detecting() {
+            self.background.pass_sample();
+        }
+    }
+
+    /// The pictures (0-based) that a first reading of a clip of `total` pictures keeps: giving
+    /// only these to [`Self::sample`], in order, forms the same background (for footage that is
+    /// sought rather than read through).
+    pub fn background_frames(&self, total: usize) -> Vec<usize> {
+        self.background.clip_frames(total)
+    }
+
+    /// Pictures kept so far from the first reading of the clip.
+    pub fn samples_kept(&self) -> usize {
+        self.background.samples_kept()
+    }
+
     /// Expected object height (pixels) for an object standing at row `y`, if perspective is set.
     fn expected_height(&self, y: f64) -> Option<f64> {
         let c = &self.config;
@@ -127,6 +180,28 @@ impl Detector {
     /// Finds the moving objects in the next picture: `(box, score)` with the score the share of the
     /// box that is foreground. A picture of another size than the detector's is refused.
     pub fn detect(&mut self, pic: &Picture) -> Result<Vec<(BBox, f64)>, Error> {
+        self.check_size(pic)?;
+        if !self.background.ready(pic, self.config.warm_up_frames) {
+            return Ok(Vec::new());
+        }
+        self.background
+            .foreground(pic, &self.config, &mut self.mask);
+        // Clean-up: opening removes specks, closing fills small holes and joins near pixels.
+        mask::erode(&mut self.mask, &mut self.scratch, self.width, self.height);
+        mask::dilate(&mut self.mask, &mut self.scratch, self.width, self.height);
+        mask::dilate(&mut self.mask, &mut self.scratch, self.width, self.height);
+        mask::dilate(&mut self.mask, &mut self.scratch, self.width, self.height);
+        mask::erode(&mut self.mask, &mut self.scratch, self.width, self.height);
+        mask::erode(&mut self.mask, &mut self.scratch, self.width, self.height);
+        let blobs = mask::label_components(&self.mask, &mut self.labels, self.width, self.height);
+        let found = self.boxes(blobs);
+        let objects: Vec<BBox> = found.iter().map(|(b, _)| *b).collect();
+        self.background.learn(pic, &objects, &mut self.scratch);
+        Ok(found)
+    }
+
+    /// Refuses a picture of another size than the detector's, or with planes too short.
+    fn check_size(&self, pic: &Picture) -> Result<(), Error> {
         let n = self.width * self.height;
         let (cw, ch) = Picture::chroma_size(self.width, self.height);
         if pic.width != self.width || pic.height != self.height || pic.y.len() < n {
@@ -146,19 +221,6 @@ impl Detector {
                 ));
             }
         }
-        if !self.background.ready(pic, self.config.warm_up_frames) {
-            return Ok(Vec::new());
-        }
-        self.background
-            .foreground(pic, &self.config, &mut self.mask);
-        // Clean-up: opening removes specks, closing fills small holes and joins near pixels.
-        mask::erode(&mut self.mask, &mut self.scratch, self.width, self.height);
-        mask::dilate(&mut self.mask, &mut self.scratch, self.width, self.height);
-        mask::dilate(&mut self.mask, &mut self.scratch, self.width, self.height);
-        mask::dilate(&mut self.mask, &mut self.scratch, self.width, self.height);
-        mask::erode(&mut self.mask, &mut self.scratch, self.width, self.height);
-        mask::erode(&mut self.mask, &mut self.scratch, self.width, self.height);
-        let blobs = mask::label_components(&self.mask, &mut self.labels, self.width, self.height);
-        Ok(self.boxes(blobs))
+        Ok(())
     }
 }

@@ -2,10 +2,17 @@
 //! plain ground when there is none), and each line's counts per interval as bars (forward solid
 //! orange, backward hatched blue, as in the page).
 
-use super::summary::esc;
 use super::Context;
 use crate::report::{Report, ScreenlineReport};
 use std::fmt::Write as _;
+
+/// Text made safe inside HTML.
+pub(super) fn esc(text: &str) -> String {
+    text.replace('&', "&amp;")
+        .replace('<', "&lt;")
+        .replace('>', "&gt;")
+        .replace('"', "&quot;")
+}
 
 const FORWARD: &str = "#E69F00";
 const BACKWARD: &str = "#0072B2";

@@ -3,18 +3,10 @@
 //! factor, the interval chart, how the count was checked, the caution, and what reproduces it.
 //! Marks follow the visual language in DEVELOPERS.md (forward orange, backward blue hatched).
 
-use super::sketch::{interval_chart, plan_sketch};
+use super::sketch::{esc, interval_chart, plan_sketch};
 use super::{command_line, file_stem, recording, short_hashes, Context};
 use crate::report::{PeakHour, Report};
 use std::fmt::Write as _;
-
-/// Text made safe inside HTML.
-pub(super) fn esc(text: &str) -> String {
-    text.replace('&', "&amp;")
-        .replace('<', "&lt;")
-        .replace('>', "&gt;")
-        .replace('"', "&quot;")
-}
 
 const STYLE: &str = "body{font:14px/1.45 system-ui,sans-serif;color:#1a1a1a;max-width:60rem;margin:2rem auto;padding:0 1rem}\
 h1{font-size:1.6rem;margin:0}h2{font-size:1.1rem;margin:1.6rem 0 .4rem;border-bottom:1px solid #ccc}\

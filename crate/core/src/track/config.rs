@@ -5,7 +5,7 @@
 
 use super::Method;
 use crate::error::{Error, ErrorKind};
-use crate::limits::{MAX_AGE_FRAMES, MAX_GALLERY};
+use crate::limits::{MAX_AGE_FRAMES, MAX_BRIDGE_FRAMES, MAX_GALLERY};
 use schemars::JsonSchema;
 use serde::{Deserialize, Serialize};
 
@@ -68,6 +68,28 @@ pub struct TrackerConfig {
     pub gallery_size: u32,
     /// `deepsort`: largest squared Mahalanobis distance for a match (chi-square 95%, 4 d.o.f.).
     pub max_mahalanobis: f64,
+    /// With footage: the longest gap, in frames, between a track's last detection and another
+    /// track's first that is bridged by following the object in the pictures (V-IOU); 0 turns
+    /// bridging off. Written out only when it differs from the default, so settings, tracks and
+    /// reports made without it keep their bytes.
+    #[serde(
+        default = "default_bridge_frames",
+        skip_serializing_if = "is_default_bridge_frames"
+    )]
+    pub bridge_frames: u32,
+}
+
+/// Frames bridged by default: none. Bridging is asked for in the settings (25, one second at 25
+/// frames a second, is a good start) until the page bridges too: the page and the command line
+/// must give the same counts for the same footage.
+pub const DEFAULT_BRIDGE_FRAMES: u32 = 0;
+
+fn default_bridge_frames() -> u32 {
+    DEFAULT_BRIDGE_FRAMES
+}
+
+fn is_default_bridge_frames(v: &u32) -> bool {
+    *v == DEFAULT_BRIDGE_FRAMES
 }
 
 impl TrackerConfig {
@@ -87,6 +109,7 @@ impl TrackerConfig {
             max_cosine_distance: 0.2,
             gallery_size: 100,
             max_mahalanobis: super::kalman::CHI2_95_4DOF,
+            bridge_frames: DEFAULT_BRIDGE_FRAMES,
         };
         (method.def().defaults)(base)
     }
@@ -189,6 +212,13 @@ impl TrackerConfig {
             return Err(settings_error(format!(
                 "`max_age` is {}, but a track may coast at most {MAX_AGE_FRAMES} frames",
                 self.max_age
+            )));
+        }
+        if self.bridge_frames > MAX_BRIDGE_FRAMES {
+            return Err(settings_error(format!(
+                "`bridge_frames` is {}, but a gap of at most {MAX_BRIDGE_FRAMES} frames may be \
+                 bridged (0 turns bridging off)",
+                self.bridge_frames
             )));
         }
         Ok(())

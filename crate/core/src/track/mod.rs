@@ -10,6 +10,7 @@
 //! Boxes are pixels, top-left x/y + width/height; frames are 1-based.
 
 pub mod assign;
+pub mod bridge;
 mod config;
 pub mod files;
 pub mod kalman;
@@ -102,7 +103,12 @@ pub fn run_tracker(
         ));
     }
     let total = detections.last_frame();
-    let mut tracker = tracker::Tracker::new(config.clone(), detections);
+    let def = config.method.def();
+    let steps = tracker::MethodSteps {
+        associate: def.associate,
+        motion: def.motion,
+    };
+    let mut tracker = tracker::Tracker::new(config.clone(), steps, detections);
     let mut frames = detections.by_frame().peekable();
     let mut frame = 1;
     // Frame by frame from 1 to the last with a detection (none for no detections).

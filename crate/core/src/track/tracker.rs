@@ -3,7 +3,6 @@
 //! else about a track's life is the same for every method.
 
 use super::kalman::{BoxMotion, KalmanFilter};
-use super::methods::{Association, MethodDef};
 use super::{Track, TrackBox, TrackerConfig, Tracks};
 use crate::detections::{Detection, Detections};
 use crate::geometry::BBox;
@@ -52,11 +51,38 @@ impl LiveTrack {
     }
 }
 
+/// A match of live track `track` (index into the tracker's live tracks) to detection `det` (index
+/// into the frame's detections).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub(crate) struct Match {
+    pub track: usize,
+    pub det: usize,
+}
+
+/// What a method decided for one frame.
+pub(crate) struct Association {
+    pub matches: Vec<Match>,
+    /// Detections that may start a new track.
+    pub new_tracks: Vec<usize>,
+}
+
+/// A method's association step for one frame (`methods/`: the tracker is given it, and does not
+/// know the methods).
+pub(crate) type Step = fn(&Tracker, &[Detection]) -> Association;
+
+/// What the tracker needs of the chosen method: its association step, and whether live tracks
+/// are predicted with the Kalman filter.
+#[derive(Clone, Copy)]
+pub(crate) struct MethodSteps {
+    pub associate: Step,
+    pub motion: bool,
+}
+
 /// The state shared by every method: live tracks, the motion model and the numbering.
 pub(crate) struct Tracker<'a> {
     pub(crate) config: TrackerConfig,
     /// The chosen method.
-    def: &'static MethodDef,
+    def: MethodSteps,
     pub(crate) motion: BoxMotion,
     pub(crate) detections: &'a Detections,
     /// Boxed, so that removing a track from the middle shifts pointers, not whole filters.
@@ -71,9 +97,9 @@ pub(crate) struct Tracker<'a> {
 }
 
 impl<'a> Tracker<'a> {
-    pub(crate) fn new(config: TrackerConfig, detections: &'a Detections) -> Self {
+    pub(crate) fn new(config: TrackerConfig, def: MethodSteps, detections: &'a Detections) -> Self {
         Self {
-            def: config.method.def(),
+            def,
             config,
             motion: BoxMotion::default(),
             detections,

@@ -2,7 +2,7 @@
 //! view over five scenes per miss rate; summed crossings per direction against the truth, the worst
 //! single scene, and count events with no true match (missed) or no counted match (extra).
 
-use super::core_api::{maximise_edges, Edge};
+use super::core_api::{tally, Crossing, EventTally, Window};
 use super::measure::machine_line;
 use super::read_json;
 use super::scene::{detections_for, simulate_scene, Sim, METHODS};
@@ -78,6 +78,7 @@ fn tally_scene(bin: &str, miss: f64, seed: u64, tallies: &mut [Tally]) -> Result
             miss: Some(miss),
             embedding_dim: 16,
             render: None,
+            hard_cases: false,
         },
     )?;
     let truth = read_json(&dir.join("truth_report.json"))?;
@@ -105,20 +106,14 @@ fn tally_scene(bin: &str, miss: f64, seed: u64, tallies: &mut [Tally]) -> Result
     Ok(())
 }
 
-/// Event matching window: one second at 25 fps ...
-const EVENT_FRAMES: f64 = 25.0;
-/// ... and a little more than a person's height at the front of a 640x360 picture.
-const EVENT_PIXELS: f64 = 100.0;
+/// The event matching window of the count and detector tables: one second at 25 fps and a little
+/// more than a person's height at the front of a 640x360 picture.
+pub const NEAR_IN_TIME_AND_PLACE: Window = Window {
+    frames: 25.0,
+    pixels: Some(100.0),
+};
 
-/// A screenline count event of a report.
-struct Crossing {
-    line: String,
-    direction: String,
-    frame: f64,
-    x: f64,
-    y: f64,
-}
-
+/// The screenline count events of a report.
 fn crossings(report: &serde_json::Value) -> Vec<Crossing> {
     report["events"]
         .as_array()
@@ -135,34 +130,20 @@ fn crossings(report: &serde_json::Value) -> Vec<Crossing> {
         .collect()
 }
 
-/// Count events matched one to one with the true ones: same line and direction, at most
-/// [`EVENT_FRAMES`] frames and [`EVENT_PIXELS`] pixels apart (where the anchor met the line), with
-/// the most pairs and then the closest (maximum-weight assignment, so a nearby crossing of
-/// someone else is not taken first). Returns (missed, extra).
+/// Count events matched one to one with the true ones within `window`
+/// (`throughline_eval::events`): the tally of true, counted and matched crossings.
+pub fn event_tally(
+    truth: &serde_json::Value,
+    counted: &serde_json::Value,
+    window: Window,
+) -> EventTally {
+    tally(&crossings(truth), &crossings(counted), window)
+}
+
+/// Missed and extra count events within [`NEAR_IN_TIME_AND_PLACE`].
 pub fn event_errors(truth: &serde_json::Value, counted: &serde_json::Value) -> (usize, usize) {
-    let (t, c) = (crossings(truth), crossings(counted));
-    let mut edges = Vec::new();
-    for (i, a) in t.iter().enumerate() {
-        for (j, b) in c.iter().enumerate() {
-            let frames = (a.frame - b.frame).abs();
-            let pixels = (a.x - b.x).hypot(a.y - b.y);
-            if a.line == b.line
-                && a.direction == b.direction
-                && frames <= EVENT_FRAMES
-                && pixels <= EVENT_PIXELS
-            {
-                // Every pair outweighs any closeness: first as many pairs as possible.
-                let closeness = 1.0 - (frames / EVENT_FRAMES + pixels / EVENT_PIXELS) / 2.0;
-                edges.push(Edge {
-                    row: i,
-                    col: j,
-                    cost: 1000.0 + closeness,
-                });
-            }
-        }
-    }
-    let matched = maximise_edges(t.len(), c.len(), &edges).len();
-    (t.len() - matched, c.len() - matched)
+    let t = event_tally(truth, counted, NEAR_IN_TIME_AND_PLACE);
+    (t.missed(), t.extra())
 }
 
 /// Sums of (true forward, true backward, counted forward, counted backward) over the screenlines.

@@ -135,6 +135,7 @@ fn detector_line(bin: &str, s: &DetectorScene, quick: bool) -> Result<String, St
             miss: None,
             embedding_dim: 0,
             render: Some(&y4m),
+            hard_cases: false,
         },
     )?;
     let y = y4m.display().to_string();

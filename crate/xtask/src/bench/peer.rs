@@ -5,8 +5,8 @@ use std::path::Path;
 use std::process::Command;
 
 use super::core_api::{boxes_to_tracks, read_benchmark_boxes};
+use super::judge::{Judge, Row};
 use super::measure::best_of;
-use super::methods::{Judge, Row};
 use super::read;
 use crate::paths::target;
 use crate::sh::run;

@@ -23,6 +23,8 @@ pub struct Sim<'a> {
     pub embedding_dim: u32,
     /// Also render the frames as YUV4MPEG2 to this file.
     pub render: Option<&'a Path>,
+    /// Every hard case of the simulator on (`simulate --hard-cases`).
+    pub hard_cases: bool,
 }
 
 /// The folder of a scene (or of anything else a benchmark keeps) under target/bench.
@@ -76,6 +78,9 @@ pub fn simulate_scene(bin: &str, sim: &Sim) -> Result<(PathBuf, String), String>
     .to_vec();
     if let Some(m) = sim.miss {
         args.extend(["--miss-rate".into(), m.to_string()]);
+    }
+    if sim.hard_cases {
+        args.push("--hard-cases".into());
     }
     if let Some(r) = sim.render {
         args.extend(["--render".into(), r.display().to_string()]);

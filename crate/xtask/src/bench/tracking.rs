@@ -1,8 +1,9 @@
 //! The speed table (every method at about 10, 50 and 200 detections per frame) and the grid
 //! (density × miss rate: quality, counts, speed, memory), with the Python peer beside `sort`.
 
+use super::judge::{Row, SceneSpec};
 use super::measure::{machine_line, RUNS};
-use super::methods::{measure_scene, Row, SceneSpec};
+use super::methods::measure_scene;
 use super::peer::{python_with_peers, PEER};
 use super::scene::bench_dir;
 use super::table::{error, write_section};

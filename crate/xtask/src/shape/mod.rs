@@ -13,6 +13,8 @@ use std::path::{Path, PathBuf};
 use crate::paths::root;
 
 mod cycles;
+mod deep;
+mod paths;
 mod scan;
 mod strip;
 
@@ -95,6 +97,8 @@ pub fn check(repo: &Path) -> Result<Found, String> {
         }
     }
     found.module_loops = cycles::problems(&module_edges(measured()));
+    let deep_edges = deep::edges(measured().map(|(rel, s)| (rel.as_path(), s.named.as_slice())));
+    found.module_loops.extend(cycles::problems(&deep_edges));
     Ok(found)
 }
 

@@ -12,6 +12,8 @@ pub struct Scanned {
     pub crate_names: Vec<String>,
     /// `#[cfg(test)] mod NAME;`: test modules kept in files of their own.
     pub test_file_modules: Vec<String>,
+    /// Every `crate::` and `super::` path, outside test items (for loops at every depth).
+    pub named: Vec<super::paths::Named>,
 }
 
 /// Measures a file whose comments and literals are blanked; `depth` is how many modules deep the
@@ -33,11 +35,13 @@ pub fn scan(blanked: &str, depth: usize) -> Scanned {
         }
     }
     let crate_names = code.iter().flat_map(|l| crate_names(l, depth)).collect();
+    let named = code.iter().flat_map(|l| super::paths::named(l)).collect();
     Scanned {
         code_lines: in_test.iter().filter(|&&t| !t).count(),
         functions,
         crate_names,
         test_file_modules,
+        named,
     }
 }
 

@@ -4,8 +4,9 @@
 //! numbering, output) is the tracker's and the same for every method.
 //!
 //! Adding a method: a new file here defining its `DEF`, and in this file one `mod` line, one
-//! variant of [`Method`] and its arm in [`Method::def`]. The command line, the settings search and
-//! the page take the list from [`Method::ALL`].
+//! variant of [`Method`], its place in [`Method::ALL`], its arm in [`Method::def`] and its name in
+//! the test below. The command line, the settings search, the schemas (a name) and the page take
+//! the list from [`Method::ALL`].
 //!
 //! Costs are distances in `[0, 1]` (1 − IoU, or cosine distance) and every assignment is the optimal
 //! one from [`crate::track::assign::solve_edges`]. Where a method's paper matches greedily (the IoU
@@ -17,15 +18,15 @@ mod iou;
 mod matching;
 mod sort;
 
-use super::tracker::Tracker;
+use super::tracker::Step;
+pub(crate) use super::tracker::{Association, Match};
 use super::TrackerConfig;
-use crate::detections::Detection;
 use schemars::JsonSchema;
 use serde::{Deserialize, Serialize};
 use std::fmt;
 
 /// The published tracking methods Throughline implements.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize, Deserialize, JsonSchema)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize, Deserialize)]
 #[serde(rename_all = "lowercase")]
 pub enum Method {
     Iou,
@@ -34,9 +35,24 @@ pub enum Method {
     Deepsort,
 }
 
+/// In the documents' schemas a method is a name (the list is [`Method::ALL`], documented in
+/// docs/tracker-settings.md), so adding a method leaves the committed schemas as they are.
+impl JsonSchema for Method {
+    fn schema_name() -> std::borrow::Cow<'static, str> {
+        "Method".into()
+    }
+
+    fn json_schema(_: &mut schemars::SchemaGenerator) -> schemars::Schema {
+        schemars::json_schema!({
+            "type": "string",
+            "description": "A tracking method's name, as `--method` takes it (docs/tracker-settings.md)."
+        })
+    }
+}
+
 impl Method {
     /// Every method, in the order help texts and the page list them.
-    pub const ALL: [Method; 4] = [
+    pub const ALL: &'static [Method] = &[
         Method::Iou,
         Method::Sort,
         Method::Bytetrack,
@@ -59,7 +75,7 @@ impl Method {
     }
 
     pub fn parse(s: &str) -> Option<Method> {
-        Self::ALL.into_iter().find(|m| m.name() == s)
+        Self::ALL.iter().copied().find(|m| m.name() == s)
     }
 
     /// Every method's name.
@@ -100,26 +116,11 @@ pub struct MethodDef {
     /// Its default settings, made from the settings every method shares.
     pub defaults: fn(TrackerConfig) -> TrackerConfig,
     /// The association step of one frame.
-    pub(crate) associate: fn(&Tracker, &[Detection]) -> Association,
+    pub(crate) associate: Step,
     /// The values the settings search (`throughline tune`) tries where the method differs from
     /// the others: frames a track may coast, and the cosine gate.
     pub search_max_age: &'static [u32],
     pub search_max_cosine_distance: &'static [f64],
-}
-
-/// A match of live track `track` (index into the tracker's live tracks) to detection `det` (index
-/// into the frame's detections).
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
-pub(crate) struct Match {
-    pub track: usize,
-    pub det: usize,
-}
-
-/// What a method decided for one frame.
-pub(crate) struct Association {
-    pub matches: Vec<Match>,
-    /// Detections that may start a new track.
-    pub new_tracks: Vec<usize>,
 }
 
 #[cfg(test)]
@@ -128,7 +129,7 @@ mod tests {
 
     #[test]
     fn every_method_is_written_by_its_name() {
-        for m in Method::ALL {
+        for &m in Method::ALL {
             assert_eq!(
                 serde_json::to_string(&m).unwrap(),
                 format!("\"{}\"", m.name())
