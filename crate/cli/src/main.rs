@@ -10,6 +10,7 @@ mod files;
 mod handin;
 mod output;
 mod progress;
+mod streaming;
 
 use clap::{Parser, Subcommand};
 use commands::{batch, count, detect, review, run, score, score_counts, simulate, track, tune};

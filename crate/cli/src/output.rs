@@ -44,6 +44,15 @@ impl Outputs {
         path: &Path,
         fill: impl FnOnce(&mut dyn Write) -> std::io::Result<()>,
     ) -> Result<(), Failure> {
+        self.write_from_any_thread(path, |w| fill(w))
+    }
+
+    /// Like [`Outputs::write_with`], with a writer that `fill` may hand to another thread.
+    pub fn write_from_any_thread(
+        &mut self,
+        path: &Path,
+        fill: impl FnOnce(&mut (dyn Write + Send)) -> std::io::Result<()>,
+    ) -> Result<(), Failure> {
         if is_special(path) {
             let mut f = std::fs::OpenOptions::new()
                 .write(true)

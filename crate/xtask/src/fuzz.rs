@@ -15,8 +15,9 @@ use crate::paths::{root, target};
 use crate::sh::{run, works};
 
 /// Every fuzz target (crate/fuzz/fuzz_targets/<name>.rs).
-pub const TARGETS: [&str; 12] = [
+pub const TARGETS: [&str; 13] = [
     "detections",
+    "pieces",
     "tracks",
     "plan",
     "counts",

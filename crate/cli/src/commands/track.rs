@@ -4,6 +4,7 @@ use crate::bridging::bridge_with_footage;
 use crate::files::{bad_input, read_file, read_settings, write_tracks, Failure};
 use crate::output::{check_paths, Outputs};
 use crate::progress::{self, Timer};
+use crate::streaming;
 use std::path::{Path, PathBuf};
 use throughline_core::{detections, pipeline, Detections, Method, Tracks};
 
@@ -58,6 +59,18 @@ pub fn run(args: Args) -> Result<(), Failure> {
             args.y4m.as_deref(),
         ];
         check_paths(&inputs, &[output])?;
+        if let Some(p) = output.filter(|p| is_text_output(p) && args.y4m.is_none()) {
+            let how = streaming::How {
+                method: args.tracking.method,
+                config: args.tracking.config.as_deref(),
+                quiet: args.tracking.quiet,
+            };
+            if let Some(done) = streaming::track_streamed(path, how, p)? {
+                timer.lap("read, track and write");
+                report_streamed(path, p, &args.tracking, &done);
+                return Ok(());
+            }
+        }
         let mut tracks = track_file(path, &args.tracking, timer)?;
         if let Some(footage) = &args.y4m {
             tracks = bridge_with_footage(tracks, footage, args.tracking.quiet)?;
@@ -95,6 +108,34 @@ pub fn run(args: Args) -> Result<(), Failure> {
     })
 }
 
+/// Whether tracks written to `p` are benchmark text (else the JSON tracks document).
+fn is_text_output(p: &Path) -> bool {
+    p.extension().is_some_and(|e| e.eq_ignore_ascii_case("txt"))
+}
+
+/// What a piecewise run prints: what a whole run prints, in the same order.
+fn report_streamed(path: &Path, out: &Path, how: &TrackingArgs, done: &streaming::Streamed) {
+    if how.quiet {
+        return;
+    }
+    print_warning_list(path, &done.read.warnings, done.read.skipped_rows);
+    print_crowded(path, &done.end.crowded_frames);
+    eprintln!(
+        "{}: {} detections ({}) over {} frames",
+        path.display(),
+        done.read.rows,
+        detections::DetectionFormat::BenchmarkText,
+        done.read.last_frame,
+    );
+    eprintln!(
+        "{}: {} tracks with {}, written to {}",
+        path.display(),
+        done.end.tracks,
+        done.config.method,
+        out.display()
+    );
+}
+
 /// Reads a detections file and tracks it, reporting warnings and progress on stderr.
 pub fn track_file(path: &Path, how: &TrackingArgs, timer: &mut Timer) -> Result<Tracks, Failure> {
     let settings = read_settings(how.config.as_deref())?;
@@ -120,17 +161,20 @@ pub fn track_file(path: &Path, how: &TrackingArgs, timer: &mut Timer) -> Result<
 }
 
 fn print_warnings(path: &Path, report: &detections::ReadReport) {
-    for w in &report.warnings {
+    print_warning_list(path, &report.warnings, report.skipped_rows);
+}
+
+fn print_warning_list(path: &Path, warnings: &[detections::Warning], skipped_rows: usize) {
+    for w in warnings {
         match w.line {
             Some(l) => eprintln!("warning: {}: line {l}: {}", path.display(), w.message),
             None => eprintln!("warning: {}: {}", path.display(), w.message),
         }
     }
-    if report.skipped_rows > report.warnings.len() {
+    if skipped_rows > warnings.len() {
         eprintln!(
-            "warning: {} rows passed over in all ({} listed above)",
-            report.skipped_rows,
-            report.warnings.len()
+            "warning: {skipped_rows} rows passed over in all ({} listed above)",
+            warnings.len()
         );
     }
 }
@@ -161,25 +205,28 @@ pub fn track_detections(
     .map_err(|e| bad_input(path, e))?;
     bar.finish_and_clear();
     timer.lap("track");
-    if !how.quiet && !tracks.crowded_frames.is_empty() {
-        let first: Vec<String> = tracks
-            .crowded_frames
-            .iter()
-            .take(5)
-            .map(u32::to_string)
-            .collect();
-        eprintln!(
-            "warning: {}: {} frames (frame {}{}) held so many overlapping boxes that they were \
-             matched cheapest pair first rather than optimally; check the detections there",
-            path.display(),
-            tracks.crowded_frames.len(),
-            first.join(", "),
-            if tracks.crowded_frames.len() > 5 {
-                ", …"
-            } else {
-                ""
-            }
-        );
+    if !how.quiet {
+        print_crowded(path, &tracks.crowded_frames);
     }
     Ok(tracks)
+}
+
+/// The warning for frames whose crowd was matched cheapest pair first.
+fn print_crowded(path: &Path, crowded_frames: &[u32]) {
+    if crowded_frames.is_empty() {
+        return;
+    }
+    let first: Vec<String> = crowded_frames.iter().take(5).map(u32::to_string).collect();
+    eprintln!(
+        "warning: {}: {} frames (frame {}{}) held so many overlapping boxes that they were \
+         matched cheapest pair first rather than optimally; check the detections there",
+        path.display(),
+        crowded_frames.len(),
+        first.join(", "),
+        if crowded_frames.len() > 5 {
+            ", …"
+        } else {
+            ""
+        }
+    );
 }

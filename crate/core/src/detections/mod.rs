@@ -10,6 +10,7 @@ mod csv;
 mod json;
 mod write;
 
+pub use benchmark::{Pieces, PiecesSummary};
 pub use write::{to_benchmark_text, to_csv, to_file_text};
 
 use crate::error::{Error, ErrorKind};
@@ -210,6 +211,25 @@ pub fn read_detections(bytes: &[u8]) -> Result<ReadReport, Error> {
     } else {
         benchmark::read(text)
     }
+}
+
+/// Whether a file that starts with `first` (its first bytes, cut at a line end) is benchmark
+/// text, which can be read a piece at a time ([`Pieces`]); `None` when [`read_detections`] would
+/// take it otherwise or refuse it. The byte-order mark, if any, is dropped from the returned text.
+pub fn benchmark_text_start(first: &[u8]) -> Option<&str> {
+    let text = as_text(first).ok()?;
+    let body = text.trim_start();
+    if body.is_empty() || body.starts_with('[') || body.starts_with('{') {
+        return None;
+    }
+    let first_row = text
+        .lines()
+        .map(str::trim)
+        .find(|l| !l.is_empty() && !l.starts_with('#'))?;
+    let is_header = split_fields(first_row)
+        .iter()
+        .any(|f| !f.is_empty() && f.parse::<f64>().is_err());
+    (!is_header).then_some(text)
 }
 
 /// Checks a box; `Ok(None)` (with a warning) for a zero-size box, an error for a negative size.

@@ -45,25 +45,55 @@ pub fn write_benchmark_text(tracks: &Tracks, out: &mut impl std::io::Write) -> s
         .collect();
     // (frame, id) pairs are unique, so an unstable sort gives the same order.
     rows.sort_unstable_by_key(|&(f, id, _)| (f, id));
-    const PIECE: usize = 1 << 16;
-    let mut buf: Vec<u8> = Vec::with_capacity(PIECE + 128);
+    let mut lines = BenchmarkLines::new(out);
     for (frame, id, b) in rows {
-        push_digits(&mut buf, u64::from(frame), 0);
-        buf.push(b',');
-        push_digits(&mut buf, u64::from(id), 0);
-        buf.push(b',');
-        for v in [b.bbox.x, b.bbox.y, b.bbox.w, b.bbox.h] {
-            write_decimal(&mut buf, v, 2);
-            buf.push(b',');
-        }
-        write_decimal(&mut buf, b.score, 4);
-        buf.extend_from_slice(b",-1,-1,-1\n");
-        if buf.len() >= PIECE {
-            out.write_all(&buf)?;
-            buf.clear();
+        lines.push(frame, id, b)?;
+    }
+    lines.flush()
+}
+
+/// Benchmark text lines of tracks' boxes, given in order and written a piece at a time.
+pub struct BenchmarkLines<W: std::io::Write> {
+    out: W,
+    buf: Vec<u8>,
+}
+
+impl<W: std::io::Write> BenchmarkLines<W> {
+    const PIECE: usize = 1 << 16;
+
+    pub fn new(out: W) -> Self {
+        Self {
+            out,
+            buf: Vec::with_capacity(Self::PIECE + 128),
         }
     }
-    out.write_all(&buf)
+
+    /// The line of box `b` of track `id` in `frame`.
+    pub fn push(&mut self, frame: u32, id: u32, b: &TrackBox) -> std::io::Result<()> {
+        let buf = &mut self.buf;
+        push_digits(buf, u64::from(frame), 0);
+        buf.push(b',');
+        push_digits(buf, u64::from(id), 0);
+        buf.push(b',');
+        for v in [b.bbox.x, b.bbox.y, b.bbox.w, b.bbox.h] {
+            write_decimal(buf, v, 2);
+            buf.push(b',');
+        }
+        write_decimal(buf, b.score, 4);
+        buf.extend_from_slice(b",-1,-1,-1\n");
+        if buf.len() >= Self::PIECE {
+            self.out.write_all(buf)?;
+            buf.clear();
+        }
+        Ok(())
+    }
+
+    /// Writes what is left in the buffer.
+    pub fn flush(&mut self) -> std::io::Result<()> {
+        self.out.write_all(&self.buf)?;
+        self.buf.clear();
+        Ok(())
+    }
 }
 
 /// Writes `v` rounded to `places` decimals, without trailing zeros (`12.5`, `3`, `-0.25`): the same

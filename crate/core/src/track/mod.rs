@@ -15,6 +15,7 @@ mod config;
 pub mod files;
 pub mod kalman;
 pub mod methods;
+pub mod stream;
 mod tracker;
 
 pub use config::{default_method, resolve_config, TrackerConfig};
@@ -89,26 +90,14 @@ pub fn run_tracker(
     config: &TrackerConfig,
     progress: &mut dyn FnMut(u32, u32),
 ) -> Result<Tracks, Error> {
-    config.validate()?;
-    let def = config.method.def();
-    if def.needs_embeddings && detections.embedding_dim == 0 {
-        return Err(Error::new(
-            ErrorKind::Unsuitable,
-            format!(
-                "the {} method needs detections with appearance embeddings (CSV columns \
-                 e0,e1,… or a JSON \"embedding\" array); these detections have none: use \
-                 --method bytetrack or sort",
-                def.name
-            ),
-        ));
-    }
+    check_run(config, detections)?;
     let total = detections.last_frame();
     let def = config.method.def();
     let steps = tracker::MethodSteps {
         associate: def.associate,
         motion: def.motion,
     };
-    let mut tracker = tracker::Tracker::new(config.clone(), steps, detections);
+    let mut tracker = tracker::Tracker::new(config.clone(), steps);
     let mut frames = detections.by_frame().peekable();
     let mut frame = 1;
     // Frame by frame from 1 to the last with a detection (none for no detections).
@@ -120,7 +109,7 @@ pub fn run_tracker(
             }
             _ => &[],
         };
-        tracker.step(frame, dets);
+        tracker.step(frame, dets, detections);
         if frame == total {
             break;
         }
@@ -136,5 +125,23 @@ pub fn run_tracker(
         frame = next;
     }
     progress(total, total);
-    Ok(tracker.close(total))
+    Ok(tracker.close(total, detections))
+}
+
+/// The settings are valid and the detections carry what the method needs.
+fn check_run(config: &TrackerConfig, detections: &Detections) -> Result<(), Error> {
+    config.validate()?;
+    let def = config.method.def();
+    if def.needs_embeddings && detections.embedding_dim == 0 {
+        return Err(Error::new(
+            ErrorKind::Unsuitable,
+            format!(
+                "the {} method needs detections with appearance embeddings (CSV columns \
+                 e0,e1,… or a JSON \"embedding\" array); these detections have none: use \
+                 --method bytetrack or sort",
+                def.name
+            ),
+        ));
+    }
+    Ok(())
 }

@@ -68,7 +68,8 @@ pub(crate) struct Association {
 
 /// A method's association step for one frame (`methods/`: the tracker is given it, and does not
 /// know the methods).
-pub(crate) type Step = fn(&Tracker, &[Detection]) -> Association;
+/// It is given the frame's detections and what they refer to (their appearance vectors).
+pub(crate) type Step = fn(&Tracker, &[Detection], &Detections) -> Association;
 
 /// What the tracker needs of the chosen method: its association step, and whether live tracks
 /// are predicted with the Kalman filter.
@@ -79,12 +80,11 @@ pub(crate) struct MethodSteps {
 }
 
 /// The state shared by every method: live tracks, the motion model and the numbering.
-pub(crate) struct Tracker<'a> {
+pub(crate) struct Tracker {
     pub(crate) config: TrackerConfig,
     /// The chosen method.
     def: MethodSteps,
     pub(crate) motion: BoxMotion,
-    pub(crate) detections: &'a Detections,
     /// Boxed, so that removing a track from the middle shifts pointers, not whole filters.
     #[allow(clippy::vec_box)]
     pub(crate) live: Vec<Box<LiveTrack>>,
@@ -96,19 +96,23 @@ pub(crate) struct Tracker<'a> {
     next_id: u32,
 }
 
-impl<'a> Tracker<'a> {
-    pub(crate) fn new(config: TrackerConfig, def: MethodSteps, detections: &'a Detections) -> Self {
+impl Tracker {
+    pub(crate) fn new(config: TrackerConfig, def: MethodSteps) -> Self {
         Self {
             def,
             config,
             motion: BoxMotion::default(),
-            detections,
             live: Vec::new(),
             crowded: Cell::new(false),
             crowded_frames: Vec::new(),
             finished: Vec::new(),
             next_id: 1,
         }
+    }
+
+    /// How many tracks have been confirmed (numbered) so far.
+    pub(crate) fn confirmed(&self) -> u32 {
+        self.next_id - 1
     }
 
     /// Whether no track is alive (nothing to predict or end).
@@ -128,20 +132,22 @@ impl<'a> Tracker<'a> {
         self.live[t].predicted_box(self.def.motion)
     }
 
-    pub(crate) fn step(&mut self, frame: u32, dets: &[Detection]) {
+    /// One frame: `dets` are its detections, `ctx` what they refer to (appearance vectors, class
+    /// names).
+    pub(crate) fn step(&mut self, frame: u32, dets: &[Detection], ctx: &Detections) {
         if self.def.motion {
             for t in &mut self.live {
                 self.motion.predict(&mut t.kf);
             }
         }
-        let assoc: Association = (self.def.associate)(self, dets);
+        let assoc: Association = (self.def.associate)(self, dets, ctx);
         if self.crowded.take() {
             self.crowded_frames.push(frame);
         }
         let mut matched = vec![false; self.live.len()];
         for m in &assoc.matches {
             matched[m.track] = true;
-            self.observe(m.track, frame, &dets[m.det]);
+            self.observe(m.track, frame, &dets[m.det], ctx);
         }
         for (i, was_matched) in matched.iter().enumerate() {
             if !was_matched {
@@ -149,23 +155,23 @@ impl<'a> Tracker<'a> {
             }
         }
         for &d in &assoc.new_tracks {
-            self.start(frame, &dets[d]);
+            self.start(frame, &dets[d], ctx);
         }
         self.promote();
-        self.retire();
+        self.retire(ctx);
     }
 
-    fn observe(&mut self, i: usize, frame: u32, det: &Detection) {
+    fn observe(&mut self, i: usize, frame: u32, det: &Detection, ctx: &Detections) {
         if self.def.motion {
             self.motion.update(&mut self.live[i].kf, &det.bbox);
         }
-        self.record(i, frame, det);
+        self.record(i, frame, det, ctx);
     }
 
     /// Everything an observation changes but the motion filter.
-    fn record(&mut self, i: usize, frame: u32, det: &Detection) {
+    fn record(&mut self, i: usize, frame: u32, det: &Detection, ctx: &Detections) {
         let gallery_size = self.config.gallery_size as usize;
-        let embedding = self.detections.embedding(det).and_then(unit_vector);
+        let embedding = ctx.embedding(det).and_then(unit_vector);
         let motion = self.def.motion;
         let t = &mut self.live[i];
         t.last_box = det.bbox;
@@ -215,7 +221,7 @@ impl<'a> Tracker<'a> {
     }
 
     /// Starts a tentative track on a detection; its filter starts on the detection's box.
-    fn start(&mut self, frame: u32, det: &Detection) {
+    fn start(&mut self, frame: u32, det: &Detection, ctx: &Detections) {
         self.live.push(Box::new(LiveTrack {
             id: None,
             kf: self.motion.initiate(&det.bbox),
@@ -229,7 +235,7 @@ impl<'a> Tracker<'a> {
             boxes: Vec::new(),
             gallery: VecDeque::new(),
         }));
-        self.record(self.live.len() - 1, frame, det);
+        self.record(self.live.len() - 1, frame, det, ctx);
     }
 
     /// Confirms tentative tracks that have earned it, numbering them in order of creation.
@@ -247,7 +253,7 @@ impl<'a> Tracker<'a> {
     }
 
     /// Drops tentative tracks that missed and ends confirmed tracks unseen for too long.
-    fn retire(&mut self) {
+    fn retire(&mut self, ctx: &Detections) {
         let max_age = self.config.max_age;
         let mut i = 0;
         while i < self.live.len() {
@@ -263,15 +269,45 @@ impl<'a> Tracker<'a> {
             // `remove`, not `swap_remove`: the order of live tracks decides numbering ties.
             let t = self.live.remove(i);
             if t.is_confirmed() {
-                self.finished.push(finish(*t, self.detections));
+                self.finished.push(finish(*t, ctx));
             }
         }
     }
 
-    pub(crate) fn close(mut self, frame_count: u32) -> Tracks {
+    /// For a run written out as it goes ([`super::stream`]): moves into `out` the boxes no later
+    /// frame can change, as `(frame, track number, box)`: every box of the tracks that ended,
+    /// and of each live confirmed track every box up to its last observation (the predicted
+    /// boxes after it are dropped if it ends unseen). Returns the first frame that may still
+    /// gain or lose a box (at most `next_frame`): every box of an earlier frame is now out.
+    pub(crate) fn drain_settled(
+        &mut self,
+        next_frame: u32,
+        out: &mut Vec<(u32, u32, TrackBox)>,
+    ) -> u32 {
+        for t in self.finished.drain(..) {
+            out.extend(t.boxes.into_iter().map(|b| (b.frame, t.id, b)));
+        }
+        let mut open_from = next_frame;
+        for t in &mut self.live {
+            if let Some(id) = t.id {
+                let observed = t
+                    .boxes
+                    .iter()
+                    .rposition(|b| b.observed)
+                    .map_or(0, |i| i + 1);
+                out.extend(t.boxes.drain(..observed).map(|b| (b.frame, id, b)));
+            }
+            if let Some(b) = t.boxes.first() {
+                open_from = open_from.min(b.frame);
+            }
+        }
+        open_from
+    }
+
+    pub(crate) fn close(mut self, frame_count: u32, ctx: &Detections) -> Tracks {
         for t in std::mem::take(&mut self.live) {
             if t.is_confirmed() {
-                self.finished.push(finish(*t, self.detections));
+                self.finished.push(finish(*t, ctx));
             }
         }
         let mut tracks = self.finished;
@@ -304,7 +340,8 @@ fn finish(t: LiveTrack, detections: &Detections) -> Track {
     }
     // A finished track's boxes are kept to the end of the run: without the growth slack.
     boxes.shrink_to_fit();
-    let observed = boxes.iter().filter(|b| b.observed).count().max(1);
+    // Every observation added one observed box (boxes already written out included).
+    let observed = t.hits.max(1);
     // Most votes wins; among equals, the class that appears first in the file (lowest index).
     let mut votes = t.class_votes;
     votes.sort_by(|a, b| b.1.cmp(&a.1).then(a.0.cmp(&b.0)));
@@ -319,7 +356,7 @@ fn finish(t: LiveTrack, detections: &Detections) -> Track {
     Track {
         id: t.id.unwrap_or(0),
         class: class_votes.first().map(|(name, _)| name.clone()),
-        mean_score: t.score_sum / observed as f64,
+        mean_score: t.score_sum / f64::from(observed),
         class_votes,
         boxes,
     }

@@ -3,7 +3,7 @@
 
 use super::matching::match_iou;
 use super::{Association, MethodDef};
-use crate::detections::Detection;
+use crate::detections::{Detection, Detections};
 use crate::track::tracker::Tracker;
 use crate::track::TrackerConfig;
 
@@ -33,7 +33,7 @@ fn defaults(base: TrackerConfig) -> TrackerConfig {
 /// ByteTrack: high-score detections against confirmed tracks, then low-score detections against the
 /// confirmed tracks still visible last frame, then the remaining high-score detections against
 /// tentative tracks. Only high-score detections above `new_track_score` start tracks.
-fn associate(tracker: &Tracker, dets: &[Detection]) -> Association {
+fn associate(tracker: &Tracker, dets: &[Detection], _: &Detections) -> Association {
     let c = &tracker.config;
     let high: Vec<usize> = (0..dets.len())
         .filter(|&d| dets[d].score >= c.high_score)

@@ -4,7 +4,7 @@
 
 use super::matching::{match_iou, split};
 use super::{Association, Match, MethodDef};
-use crate::detections::Detection;
+use crate::detections::{Detection, Detections};
 use crate::limits::MAX_CANDIDATES;
 use crate::track::assign::{assign_edges, Edge};
 use crate::track::tracker::{unit_vector, Tracker};
@@ -91,14 +91,14 @@ fn appearance_edges(
 
 /// DeepSORT: a matching cascade over confirmed tracks, most recently seen first, on appearance gated
 /// by motion; then IoU for tentative tracks and tracks missed for one frame only.
-fn associate(tracker: &Tracker, dets: &[Detection]) -> Association {
+fn associate(tracker: &Tracker, dets: &[Detection], ctx: &Detections) -> Association {
     let c = &tracker.config;
     let usable: Vec<usize> = (0..dets.len())
         .filter(|&d| dets[d].score >= c.min_score)
         .collect();
     let embeddings: Vec<Option<Vec<f32>>> = usable
         .iter()
-        .map(|&d| tracker.detections.embedding(&dets[d]).and_then(unit_vector))
+        .map(|&d| ctx.embedding(&dets[d]).and_then(unit_vector))
         .collect();
     let mut unmatched: Vec<usize> = (0..usable.len()).collect();
     let mut matches = Vec::new();

@@ -2,7 +2,7 @@
 //! tracks and detections, and the one-stage association of IoU chaining and SORT.
 
 use super::{Association, Match};
-use crate::detections::Detection;
+use crate::detections::{Detection, Detections};
 use crate::limits::MAX_CANDIDATES;
 use crate::track::assign::{assign_edges, Edge};
 use crate::track::tracker::Tracker;
@@ -94,7 +94,7 @@ fn keep_unused(items: &[usize], used: &[bool]) -> Vec<usize> {
 }
 
 /// IoU chaining and SORT: one assignment of all live tracks to detections above `min_score`.
-pub(super) fn single_stage(tracker: &Tracker, dets: &[Detection]) -> Association {
+pub(super) fn single_stage(tracker: &Tracker, dets: &[Detection], _: &Detections) -> Association {
     let c = &tracker.config;
     let usable: Vec<usize> = (0..dets.len())
         .filter(|&d| dets[d].score >= c.min_score)

@@ -1,0 +1,247 @@
+//! `throughline track DETECTIONS -o OUT.txt` on benchmark text: the file is read, tracked and
+//! written a piece at a time, so memory follows the tracks alive at once, not the length of the
+//! recording (a day of one camera is millions of frames). The output is the same bytes as
+//! reading the whole file first (`track/stream.rs` in the core says why).
+//!
+//! Whenever the piecewise way cannot promise that, it gives up before anything is put in place
+//! and the caller reads the whole file instead: another format, frames out of order (the whole
+//! reader sorts them), a settings or method problem, or any mistake in the file (the whole
+//! reader's message then names it, as it always has).
+
+use crate::files::{read_settings, Failure};
+use crate::output::Outputs;
+use crate::progress;
+use indicatif::ProgressBar;
+use std::io::Read;
+use std::path::Path;
+use std::sync::mpsc::{sync_channel, Receiver, SyncSender};
+use throughline_core::detections::{self, Detection, Pieces, PiecesSummary};
+use throughline_core::track::files::BenchmarkLines;
+use throughline_core::track::stream::{StreamEnd, StreamTracker};
+use throughline_core::track::TrackBox;
+use throughline_core::{pipeline, Detections, Method, TrackerConfig};
+
+/// Bytes read at a time; a line longer than this sends the file to the whole reader.
+const PIECE: usize = 8 << 20;
+
+/// What a piecewise run read and found.
+pub struct Streamed {
+    pub read: PiecesSummary,
+    pub end: StreamEnd,
+    pub config: TrackerConfig,
+}
+
+/// Tracks `path` into `output` piece by piece; `Ok(None)` when the whole reader must do it.
+/// How to track: what `--method`, `--config` and `--quiet` said.
+pub struct How<'a> {
+    pub method: Option<Method>,
+    pub config: Option<&'a Path>,
+    pub quiet: bool,
+}
+
+pub fn track_streamed(path: &Path, how: How, output: &Path) -> Result<Option<Streamed>, Failure> {
+    let special = std::fs::metadata(output).is_ok_and(|m| !m.is_file());
+    let Ok(mut file) = std::fs::File::open(path) else {
+        return Ok(None);
+    };
+    // A pipe could not be read again by the whole reader if this gave up half way.
+    let regular = file.metadata().is_ok_and(|m| m.is_file());
+    let mut reader = PieceReader::default();
+    if special || !regular || !reader.fill(&mut file) {
+        return Ok(None);
+    }
+    if detections::benchmark_text_start(reader.whole_lines()).is_none() {
+        return Ok(None);
+    }
+    let settings = read_settings(how.config)?;
+    let ctx = Detections::default();
+    let Ok(config) =
+        pipeline::tracker_config(&ctx, how.method, settings.as_ref().map(|s| s.1.as_str()))
+    else {
+        return Ok(None);
+    };
+    let Ok(tracker) = StreamTracker::new(&config, &ctx) else {
+        return Ok(None);
+    };
+    let size = file.metadata().map_or(0, |m| m.len());
+    let bar = progress::bar(
+        how.quiet,
+        size,
+        "tracking {bar:30} {bytes}/{total_bytes} ({bytes_per_sec}, {eta} left)",
+    );
+    let mut outcome = None;
+    let mut files = Outputs::new();
+    files.write_from_any_thread(output, |w| {
+        outcome = pipeline(file, reader, tracker, w, &bar)?;
+        Ok(())
+    })?;
+    bar.finish_and_clear();
+    let Some((read, end)) = outcome else {
+        return Ok(None);
+    };
+    files.commit()?;
+    Ok(Some(Streamed { read, end, config }))
+}
+
+/// The next rows of the file, and the class names first seen in them.
+struct Batch {
+    rows: Vec<Detection>,
+    new_classes: Vec<String>,
+}
+
+/// Boxes settled by the tracker, in benchmark text order.
+type Settled = Vec<(u32, u32, TrackBox)>;
+
+/// Three stages at once, so that a long file keeps both cores busy: reading and parsing, the
+/// tracker (this thread), and writing the text. `Ok(None)` when the reading gave up (nothing is
+/// put in place).
+fn pipeline(
+    file: std::fs::File,
+    reader: PieceReader,
+    mut tracker: StreamTracker,
+    w: &mut (dyn std::io::Write + Send),
+    bar: &ProgressBar,
+) -> std::io::Result<Option<(PiecesSummary, StreamEnd)>> {
+    std::thread::scope(|s| {
+        let (rows_in, rows_out) = sync_channel::<Batch>(2);
+        let (boxes_in, boxes_out) = sync_channel::<Settled>(2);
+        let reading = s.spawn(move || read_rows(file, reader, rows_in, bar));
+        let writing = s.spawn(move || write_boxes(w, boxes_out));
+        let mut ctx = Detections::default();
+        for batch in rows_out {
+            ctx.classes.extend(batch.new_classes);
+            tracker.rows(&batch.rows, &ctx);
+            let mut settled = Vec::new();
+            tracker.settled(&mut |f, id, b| settled.push((f, id, *b)));
+            if boxes_in.send(settled).is_err() {
+                break;
+            }
+        }
+        let read = reading.join().unwrap_or(None);
+        if let Some(read) = read {
+            let mut settled = Vec::new();
+            let end = tracker.finish(&ctx, &mut |f, id, b| settled.push((f, id, *b)));
+            // A failed send means the writer stopped: its join below gives the reason.
+            let _ = boxes_in.send(settled);
+            drop(boxes_in);
+            join_writer(writing)?;
+            return Ok(Some((read, end)));
+        }
+        drop(boxes_in);
+        join_writer(writing)?;
+        Ok(None)
+    })
+}
+
+fn join_writer(
+    writing: std::thread::ScopedJoinHandle<'_, std::io::Result<()>>,
+) -> std::io::Result<()> {
+    writing
+        .join()
+        .unwrap_or_else(|_| Err(std::io::Error::other("the writing stopped")))
+}
+
+/// The reading stage: pieces parsed into rows, sent on; the totals, or `None` when it gave up
+/// (a mistake, frames out of order, a line longer than a piece, bytes that are not UTF-8).
+fn read_rows(
+    mut file: std::fs::File,
+    mut reader: PieceReader,
+    send: SyncSender<Batch>,
+    bar: &ProgressBar,
+) -> Option<PiecesSummary> {
+    let mut pieces = Pieces::new();
+    let mut sent_classes = 0;
+    let mut first = true;
+    loop {
+        let text = reader.text(first)?;
+        first = false;
+        let mut rows = Vec::new();
+        if pieces.read(text, &mut rows).is_err() || pieces.out_of_order() {
+            return None;
+        }
+        let classes = &pieces.classes().classes;
+        let new_classes = classes[sent_classes..].to_vec();
+        sent_classes = classes.len();
+        send.send(Batch { rows, new_classes }).ok()?;
+        bar.set_position(reader.done);
+        if reader.at_end {
+            return pieces.finish().ok();
+        }
+        if !reader.fill(&mut file) {
+            return None;
+        }
+    }
+}
+
+/// The writing stage: settled boxes as benchmark text.
+fn write_boxes(
+    w: &mut (dyn std::io::Write + Send),
+    boxes: Receiver<Settled>,
+) -> std::io::Result<()> {
+    let mut lines = BenchmarkLines::new(w);
+    for batch in boxes {
+        for (f, id, b) in &batch {
+            lines.push(*f, *id, b)?;
+        }
+    }
+    lines.flush()
+}
+
+/// The file's bytes a piece at a time, each cut after its last line end (the rest is carried
+/// to the next piece).
+#[derive(Default)]
+struct PieceReader {
+    buf: Vec<u8>,
+    /// Bytes of `buf` that end at a line end (all of them at the end of the file).
+    cut: usize,
+    at_end: bool,
+    /// Bytes read so far.
+    done: u64,
+}
+
+impl PieceReader {
+    /// Drops the last piece and reads the next one; false when reading failed or a line is
+    /// longer than a piece.
+    fn fill(&mut self, file: &mut std::fs::File) -> bool {
+        self.buf.drain(..self.cut);
+        let had = self.buf.len();
+        self.buf.resize(PIECE, 0);
+        let mut filled = had;
+        while filled < PIECE {
+            match file.read(&mut self.buf[filled..]) {
+                Ok(0) => {
+                    self.at_end = true;
+                    break;
+                }
+                Ok(n) => filled += n,
+                Err(e) if e.kind() == std::io::ErrorKind::Interrupted => {}
+                Err(_) => return false,
+            }
+        }
+        self.buf.truncate(filled);
+        self.done += (filled - had) as u64;
+        self.cut = if self.at_end {
+            filled
+        } else {
+            match self.buf.iter().rposition(|&b| b == b'\n') {
+                Some(i) => i + 1,
+                None => return false,
+            }
+        };
+        true
+    }
+
+    fn whole_lines(&self) -> &[u8] {
+        &self.buf[..self.cut]
+    }
+
+    /// The piece as text (the first without its byte-order mark); `None` if it is not UTF-8.
+    fn text(&self, first: bool) -> Option<&str> {
+        let bytes = self.whole_lines();
+        let bytes = match first {
+            true => bytes.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(bytes),
+            false => bytes,
+        };
+        std::str::from_utf8(bytes).ok()
+    }
+}

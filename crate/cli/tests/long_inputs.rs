@@ -1,0 +1,118 @@
+//! `throughline track DETECTIONS -o OUT.txt` reads benchmark text a piece at a time (a day of one
+//! camera does not fit in memory); these check that the user cannot tell, except by the memory
+//! used: the same bytes and messages as reading the whole file, including for files the
+//! piecewise reader hands back to the whole one (frames out of order, a mistake, another format).
+
+mod common;
+
+use common::*;
+
+/// The demo's detections tracked to benchmark text and to the JSON document, and the JSON's
+/// boxes: what the whole reader gives.
+fn tracked(detections: &str, name: &str) -> (String, std::process::Output) {
+    let dir = scratch(name);
+    let out = dir.join("tracks.txt").display().to_string();
+    let o = throughline(&["track", detections, "-o", &out]);
+    (std::fs::read_to_string(&out).unwrap_or_default(), o)
+}
+
+#[test]
+fn rows_out_of_frame_order_give_the_same_tracks_as_sorted_rows() {
+    let text = std::fs::read_to_string(demo("detections.txt")).unwrap();
+    let mut lines: Vec<&str> = text.lines().collect();
+    // The first 300 rows moved to the end: frames go back there.
+    lines.rotate_left(300);
+    let dir = scratch("long_unsorted");
+    let shuffled = write(&dir, "shuffled.txt", (lines.join("\n") + "\n").as_bytes());
+    let (sorted_out, a) = tracked(&demo("detections.txt"), "long_sorted_out");
+    let (shuffled_out, b) = tracked(&shuffled, "long_shuffled_out");
+    assert!(a.status.success() && b.status.success(), "{}", stderr(&b));
+    assert!(!sorted_out.is_empty());
+    assert_eq!(sorted_out, shuffled_out);
+}
+
+#[test]
+fn the_text_output_has_the_boxes_of_the_json_document() {
+    let (text, o) = tracked(&demo("detections.txt"), "long_text");
+    assert!(o.status.success(), "{}", stderr(&o));
+    let json = throughline(&["track", &demo("detections.txt"), "--quiet"]);
+    let doc: serde_json::Value = serde_json::from_slice(&json.stdout).unwrap();
+    let boxes: usize = doc["tracks"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|t| t["boxes"].as_array().map_or(0, Vec::len))
+        .sum();
+    assert_eq!(text.lines().count(), boxes);
+    let tracks = doc["tracks"].as_array().unwrap().len();
+    assert!(
+        stderr(&o).contains(&format!("{tracks} tracks with sort")),
+        "{}",
+        stderr(&o)
+    );
+}
+
+#[test]
+fn a_mistake_late_in_the_file_is_named_and_the_previous_output_kept() {
+    let mut text = std::fs::read_to_string(demo("detections.txt")).unwrap();
+    let line = text.lines().count() + 1;
+    text.push_str("9999,-1,10,10,-4,20,0.9\n");
+    let dir = scratch("long_mistake");
+    let bad = write(&dir, "bad.txt", text.as_bytes());
+    let out = write(&dir, "tracks.txt", b"earlier tracks\n");
+    let o = throughline(&["track", &bad, "-o", &out]);
+    assert_eq!(o.status.code(), Some(1));
+    assert!(
+        stderr(&o).contains(&format!("line {line}")) && stderr(&o).contains("must not be negative"),
+        "{}",
+        stderr(&o)
+    );
+    assert_eq!(std::fs::read_to_string(&out).unwrap(), "earlier tracks\n");
+    assert!(
+        std::fs::read_dir(&dir).unwrap().count() == 2,
+        "no temporary file left"
+    );
+}
+
+#[test]
+fn warnings_of_the_whole_file_are_printed_once_in_file_order() {
+    let dir = scratch("long_warnings");
+    let file = write(
+        &dir,
+        "w.txt",
+        b"1,-1,10,10,0,20,0.9\n1,-1,10,10,20,20,1.7\n2,-1,10,10,20,0,0.9\n",
+    );
+    let out = dir.join("t.txt").display().to_string();
+    let o = throughline(&["track", &file, "-o", &out]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let err = stderr(&o);
+    let first = err.find("line 1:").expect("line 1 warned");
+    let second = err.find("line 2:").expect("line 2 warned");
+    let third = err.find("line 3:").expect("line 3 warned");
+    assert!(first < second && second < third, "{err}");
+    assert!(err.contains("1 detections"), "{err}");
+}
+
+#[test]
+fn detections_from_a_pipe_give_the_same_tracks_even_out_of_order() {
+    use std::io::Write;
+    use std::process::{Command, Stdio};
+    let text = std::fs::read_to_string(demo("detections.txt")).unwrap();
+    let mut lines: Vec<&str> = text.lines().collect();
+    lines.rotate_left(300);
+    let (expected, _) = tracked(&demo("detections.txt"), "long_pipe_expected");
+    let dir = scratch("long_pipe");
+    let out = dir.join("tracks.txt").display().to_string();
+    let mut child = Command::new(env!("CARGO_BIN_EXE_throughline"))
+        .args(["track", "/dev/stdin", "-o", &out, "--quiet"])
+        .stdin(Stdio::piped())
+        .spawn()
+        .unwrap();
+    let body = lines.join("\n") + "\n";
+    let mut stdin = child.stdin.take().unwrap();
+    let feeder = std::thread::spawn(move || stdin.write_all(body.as_bytes()));
+    let status = child.wait().unwrap();
+    feeder.join().unwrap().unwrap();
+    assert!(status.success());
+    assert_eq!(std::fs::read_to_string(&out).unwrap(), expected);
+}

@@ -1,0 +1,141 @@
+//! Tracking an input too long to hold, written out as it goes: rows go in a batch at a time in
+//! frame order ([`StreamTracker::rows`]), boxes come out as soon as no later frame can change
+//! them ([`StreamTracker::settled`]), in the order of the benchmark text format (frame, then
+//! track number). Memory follows the live tracks and the boxes not yet settled (about
+//! `max_age` frames of them), not the length of the input.
+//!
+//! Every box, number and order is that of [`super::run_tracker`] on the same rows followed by
+//! [`super::files::write_benchmark_text`]: the same tracker is stepped through the same frames.
+
+use super::tracker::{MethodSteps, Tracker};
+use super::{TrackBox, TrackerConfig};
+use crate::detections::{Detection, Detections};
+use crate::error::Error;
+
+/// A tracker fed rows in frame order, giving out settled boxes.
+pub struct StreamTracker {
+    tracker: Tracker,
+    /// The next frame to step (frames before it are done).
+    next: u32,
+    /// Rows of the last frame of the latest batch: it may go on in the next batch.
+    carry: Vec<Detection>,
+    /// Boxes out of the tracker, not yet given out: `(frame, track number, box)`.
+    pending: Vec<(u32, u32, TrackBox)>,
+}
+
+/// What a finished stream found: what `run_tracker`'s [`super::Tracks`] would say of itself.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct StreamEnd {
+    pub tracks: u32,
+    pub last_frame: u32,
+    /// Frames whose crowd was matched cheapest pair first.
+    pub crowded_frames: Vec<u32>,
+}
+
+impl StreamTracker {
+    /// A tracker for `config`, refused as [`super::run_tracker`] refuses it. `ctx` is what the
+    /// rows refer to (class names): the detections without their rows.
+    pub fn new(config: &TrackerConfig, ctx: &Detections) -> Result<Self, Error> {
+        super::check_run(config, ctx)?;
+        let def = config.method.def();
+        let steps = MethodSteps {
+            associate: def.associate,
+            motion: def.motion,
+        };
+        Ok(Self {
+            tracker: Tracker::new(config.clone(), steps),
+            next: 1,
+            carry: Vec::new(),
+            pending: Vec::new(),
+        })
+    }
+
+    /// The next rows of the input, in frame order (a frame's rows may be cut between batches);
+    /// `ctx` names their classes. Frames must not go back ([`crate::detections::Pieces`] says
+    /// when they did): a row of an earlier frame would be tracked as if it came later.
+    pub fn rows(&mut self, rows: &[Detection], ctx: &Detections) {
+        let mut rest = rows;
+        if let (Some(c), Some(r)) = (self.carry.first(), rest.first()) {
+            if c.frame == r.frame {
+                let n = rest.iter().take_while(|d| d.frame == c.frame).count();
+                self.carry.extend_from_slice(&rest[..n]);
+                rest = &rest[n..];
+            }
+        }
+        if rest.is_empty() {
+            return;
+        }
+        let carried = std::mem::take(&mut self.carry);
+        if let Some(first) = carried.first() {
+            self.frame(first.frame, &carried, ctx);
+        }
+        let mut frames = rest.chunk_by(|a, b| a.frame == b.frame).peekable();
+        while let Some(dets) = frames.next() {
+            if frames.peek().is_none() {
+                self.carry = carried;
+                self.carry.clear();
+                self.carry.extend_from_slice(dets);
+                return;
+            }
+            self.frame(dets[0].frame, dets, ctx);
+        }
+    }
+
+    /// Steps through `frame`: the empty frames before it while a track is alive (with none
+    /// alive they change nothing), then the frame with its detections.
+    fn frame(&mut self, frame: u32, dets: &[Detection], ctx: &Detections) {
+        while self.next < frame && !self.tracker.is_idle() {
+            self.tracker.step(self.next, &[], ctx);
+            self.next += 1;
+        }
+        self.tracker.step(frame, dets, ctx);
+        self.next = frame + 1;
+    }
+
+    /// The boxes that no later row can change, in benchmark text order, handed to `write`
+    /// one at a time.
+    pub fn settled(&mut self, write: &mut dyn FnMut(u32, u32, &TrackBox)) {
+        let open_from = self.tracker.drain_settled(self.next, &mut self.pending);
+        give_out(&mut self.pending, open_from, write);
+    }
+
+    /// Ends the input: the rest of the boxes, in order, and what the run found.
+    pub fn finish(
+        mut self,
+        ctx: &Detections,
+        write: &mut dyn FnMut(u32, u32, &TrackBox),
+    ) -> StreamEnd {
+        let carried = std::mem::take(&mut self.carry);
+        if let Some(first) = carried.first() {
+            self.frame(first.frame, &carried, ctx);
+        }
+        let last_frame = self.next.saturating_sub(1);
+        self.tracker.drain_settled(self.next, &mut self.pending);
+        let tracks = self.tracker.confirmed();
+        let rest = self.tracker.close(last_frame, ctx);
+        for t in &rest.tracks {
+            self.pending
+                .extend(t.boxes.iter().map(|&b| (b.frame, t.id, b)));
+        }
+        give_out(&mut self.pending, u32::MAX, write);
+        StreamEnd {
+            tracks,
+            last_frame,
+            crowded_frames: rest.crowded_frames,
+        }
+    }
+}
+
+/// Gives out, in (frame, track number) order, the pending boxes of frames before `open_from`.
+fn give_out(
+    pending: &mut Vec<(u32, u32, TrackBox)>,
+    open_from: u32,
+    write: &mut dyn FnMut(u32, u32, &TrackBox),
+) {
+    // (frame, number) pairs are unique, so an unstable sort gives the one order.
+    pending.sort_unstable_by_key(|&(f, id, _)| (f, id));
+    let settled = pending.partition_point(|&(f, _, _)| f < open_from);
+    for (f, id, b) in pending.drain(..settled) {
+        write(f, id, &b);
+    }
+}
