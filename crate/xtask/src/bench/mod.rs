@@ -13,14 +13,19 @@
 //! - **Events** ([`events`]; `--events`): counted crossings matched one by one with the true ones,
 //!   missed and extra against the aims of 3% and 2%, from footage alone (the simulator's hard cases
 //!   through the motion detector) and from brought detections in a crowd (every method).
+//! - **Goals** ([`goals`], [`day`]; `--goals`): the speed goals, each figure beside its goal,
+//!   with the Python loop's own tracking time measured in the same run and a day of one camera
+//!   tracked for the memory goal.
 //! - **Page** ([`page`]; `--page`): finding objects in headless Chromium; printed, not written.
 
 use std::path::Path;
 
 mod core_api;
 mod counts;
+mod day;
 mod detector;
 mod events;
+mod goals;
 mod judge;
 mod measure;
 mod methods;
@@ -30,7 +35,7 @@ mod scene;
 mod table;
 mod tracking;
 
-/// `bench [--quick | --grid | --counts | --detector | --events | --page]`.
+/// `bench [--quick | --grid | --counts | --detector | --events | --goals | --page]`.
 pub fn bench(args: &[String]) -> Result<(), String> {
     let has = |flag: &str| args.iter().any(|a| a == flag);
     if has("--page") {
@@ -38,6 +43,9 @@ pub fn bench(args: &[String]) -> Result<(), String> {
     }
     if has("--detector") {
         return detector::detector_bench(has("--quick"));
+    }
+    if has("--goals") {
+        return goals::goals_bench(has("--quick"));
     }
     if has("--events") {
         return events::events_bench(has("--quick"));
@@ -48,6 +56,7 @@ pub fn bench(args: &[String]) -> Result<(), String> {
     tracking::tracking_bench(has("--quick"), has("--grid"))?;
     if !has("--quick") {
         counts::counts_bench()?;
+        goals::goals_bench(false)?;
     }
     Ok(())
 }
