@@ -14,9 +14,12 @@
 //!   missed and extra against the aims of 3% and 2%, from footage alone (the simulator's hard cases
 //!   through the motion detector) and from brought detections in a crowd (every method).
 //! - **Page** ([`page`]; `--page`): finding objects in headless Chromium; printed, not written.
+//! - **One crowded frame** ([`big_frame`]; `--big-frame`): 1,000, 10,000 and 100,000 overlapping
+//!   boxes in one frame, tracked with `sort`: time and peak memory of the association.
 
 use std::path::Path;
 
+mod big_frame;
 mod core_api;
 mod counts;
 mod detector;
@@ -30,9 +33,12 @@ mod scene;
 mod table;
 mod tracking;
 
-/// `bench [--quick | --grid | --counts | --detector | --events | --page]`.
+/// `bench [--quick | --grid | --counts | --detector | --events | --page | --big-frame]`.
 pub fn bench(args: &[String]) -> Result<(), String> {
     let has = |flag: &str| args.iter().any(|a| a == flag);
+    if has("--big-frame") {
+        return big_frame::big_frame_bench();
+    }
     if has("--page") {
         return page::page_bench();
     }

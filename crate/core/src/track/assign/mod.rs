@@ -167,9 +167,9 @@ pub struct Assignment {
 /// far-apart tracks costs many tiny problems instead of one large one, by the sparse solver
 /// ([`sparse`]: time and memory follow the edges, never rows × columns).
 ///
-/// The sparse solver is used at every size: on components of 10 to 400 rows it took 1.1 to 20
-/// times less time than the dense one ([`solve`]) and never more (BENCHMARKS.md, "One crowded
-/// frame"). It solves the integer problem [`solve`] would, so the total is the same; among equally
+/// The sparse solver is used at every size: on components of 10 to 400 rows it took as long as
+/// the dense one ([`solve`]) or up to 20 times less, and 1–3 µs either way below 10 rows
+/// (BENCHMARKS.md, "One crowded frame"). It solves the integer problem [`solve`] would, so the total is the same; among equally
 /// good matchings (ties) the two may pick different ones. On every scene compared when it
 /// replaced the dense solver (the demo and simulated scenes up to 294 people in view, every
 /// method) the tracks stayed byte for byte the same.
@@ -261,14 +261,11 @@ fn sparse_component(
         1.0
     };
     let to_int = |c: f64| (c * scale).round() as i64;
-    let ints: Vec<(usize, usize, i64)> = group
-        .iter()
-        .map(|e| {
-            let (i, j) = local(e, rs, cs);
-            (i, j, to_int(value(e)))
-        })
-        .collect();
-    let mut found = sparse::solve(rs.len(), cs.len(), &ints, to_int(fill), steps);
+    let ints = group.iter().map(|e| {
+        let (i, j) = local(e, rs, cs);
+        (i, j, to_int(value(e)))
+    });
+    let mut found = sparse::solve(rs.len(), cs.len(), ints, to_int(fill), steps);
     for p in &mut found.pairs {
         *p = (rs[p.0], cs[p.1]);
     }

@@ -36,14 +36,18 @@ pub(super) struct Solved {
 
 /// Least total cost over the `edges` `(row, col, cost)` with rows `0..rows` and columns
 /// `0..cols`, a row left unmatched costing `unmatched` (which must exceed every edge's cost).
-/// `steps` is the budget of work left, decreased by what this call uses.
-pub(super) fn solve(
+/// `steps` is the budget of work left, decreased by what this call uses. The edges are read twice
+/// (counted, then placed), never copied whole.
+pub(super) fn solve<E>(
     rows: usize,
     cols: usize,
-    edges: &[(usize, usize, i64)],
+    edges: E,
     unmatched: i64,
     steps: &mut u64,
-) -> Solved {
+) -> Solved
+where
+    E: Iterator<Item = (usize, usize, i64)> + Clone,
+{
     let mut s = State::new(rows, cols, edges, unmatched);
     s.cheapest_free_first();
     let mut out_of_steps = false;
@@ -90,18 +94,21 @@ struct State {
 }
 
 impl State {
-    fn new(rows: usize, cols: usize, edges: &[(usize, usize, i64)], unmatched: i64) -> Self {
+    fn new<E>(rows: usize, cols: usize, edges: E, unmatched: i64) -> Self
+    where
+        E: Iterator<Item = (usize, usize, i64)> + Clone,
+    {
         let mut start = vec![0usize; rows + 1];
-        for &(r, _, _) in edges {
+        for (r, _, _) in edges.clone() {
             start[r + 1] += 1;
         }
         for r in 0..rows {
             start[r + 1] += start[r];
         }
         let mut fill = start.clone();
-        let mut col = vec![0u32; edges.len()];
-        let mut cost = vec![0i64; edges.len()];
-        for &(r, c, w) in edges {
+        let mut col = vec![0u32; start[rows]];
+        let mut cost = vec![0i64; start[rows]];
+        for (r, c, w) in edges {
             col[fill[r]] = c as u32;
             cost[fill[r]] = w;
             fill[r] += 1;
