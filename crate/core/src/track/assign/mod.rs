@@ -13,7 +13,9 @@
 //!
 //! [`solve_gated`] adds gating as trackers need it: the result is that of clamping entries above the
 //! gate to just above it, solving, and dropping the pairs above the gate, computed component by
-//! component. When no entry passes the gate nothing is matched.
+//! component. When no entry passes the gate nothing is matched. The trackers' assignments
+//! ([`assign_edges`]) solve each component with the sparse solver of `assign/sparse.rs`, in time and
+//! memory that follow the candidate pairs.
 
 mod sparse;
 #[cfg(test)]
@@ -143,8 +145,8 @@ pub fn solve_gated(cost: &CostMatrix, gate: f64) -> Vec<(usize, usize)> {
 
 /// Least-cost assignment over the listed candidate pairs only (every other pair is impossible),
 /// keeping pairs whose cost is at most `gate`; the result of [`solve_gated`] on the matrix the
-/// edges describe (see [`assign_edges`], which also says whether a component was too large to
-/// solve exactly).
+/// edges describe (see [`assign_edges`], which also says whether the search ran out of steps and
+/// finished greedily).
 pub fn solve_edges(rows: usize, cols: usize, edges: &[Edge], gate: f64) -> Vec<(usize, usize)> {
     assign_edges(rows, cols, edges, gate).pairs
 }
@@ -165,7 +167,7 @@ pub struct Assignment {
 /// edges that pass the gate (weight = clamp value − cost), which splits exactly over the connected
 /// components of those edges. Each component is solved on its own, so a frame with hundreds of
 /// far-apart tracks costs many tiny problems instead of one large one, by the sparse solver
-/// ([`sparse`]: time and memory follow the edges, never rows × columns).
+/// (`assign/sparse.rs`: time and memory follow the edges, never rows × columns).
 ///
 /// The sparse solver is used at every size: on components of 10 to 400 rows it took as long as
 /// the dense one ([`solve`]) or up to 20 times less, and 1–3 µs either way below 10 rows
