@@ -155,8 +155,10 @@ fn a_frame_where_every_box_overlaps_every_other_costs_bounded_time() {
         &dir.join("t.txt").display().to_string(),
     ]);
     assert!(o.status.success(), "{}", stderr(&o));
+    // The sparse solver matches even this crowd exactly, well within its step budget: no frame is
+    // reported as matched greedily.
     assert!(
-        stderr(&o).contains("3 frames (frame 2, 3, 4)"),
+        !stderr(&o).contains("cheapest pair first"),
         "{}",
         stderr(&o)
     );

@@ -8,8 +8,8 @@
 //! - `test`: cheap invariants, then install what the checks need, then format check, lints, every
 //!   test, the wasm32 builds, the browser tests ([`test`], [`invariants`]);
 //! - `bench`: speed, memory and quality of every method on simulated scenes, with a Python peer,
-//!   written into BENCHMARKS.md (`--counts`, `--detector`, `--events`, `--goals`: one table each); `bench --page`: speed
-//!   of finding objects in the page (Chromium) ([`bench`]);
+//!   written into BENCHMARKS.md (`--counts`, `--detector`, `--events`, `--goals`, `--big-frame`: one
+//!   table each); `bench --page`: speed of finding objects in the page (Chromium) ([`bench`]);
 //! - `shape`: function and file lengths and module loops under crate/ ([`shape`]);
 //! - `fuzz`: every fuzz target for ten million runs (or as told), a table of the results
 //!   ([`fuzz`]); `test` runs each for a few seconds.
@@ -31,7 +31,7 @@ mod site;
 mod slurm;
 mod test;
 
-const USAGE: &str = "usage: cargo xtask <demo [--no-serve] | site | serve [--no-build] [--port N] | test | bench [--quick | --grid | --counts | --detector | --events | --goals | --page] | demo-data | shape | fuzz [--runs N | --seconds S] [--plain] [TARGET...] | slurm>";
+const USAGE: &str = "usage: cargo xtask <demo [--no-serve] | site | serve [--no-build] [--port N] | test | bench [--quick | --grid | --counts | --detector | --events | --goals | --page | --big-frame] | demo-data | shape | fuzz [--runs N | --seconds S] [--plain] [TARGET...] | slurm>";
 
 fn main() -> ExitCode {
     let args: Vec<String> = std::env::args().skip(1).collect();

@@ -75,8 +75,9 @@ pub struct Tracks {
     pub frame_count: u32,
     /// Sorted by id.
     pub tracks: Vec<Track>,
-    /// Frames so crowded (more than `limits::MAX_COMPONENT` tracks and boxes all overlapping)
-    /// that they were matched greedily, cheapest pairs first, instead of optimally.
+    /// Frames so crowded that the exact assignment ran out of its budget
+    /// (`limits::MAX_ASSIGNMENT_STEPS`) and the tracks it had not placed were matched greedily,
+    /// cheapest pairs first, instead of optimally.
     pub crowded_frames: Vec<u32>,
 }
 

@@ -120,7 +120,8 @@ impl Tracker {
         self.live.is_empty()
     }
 
-    /// Notes that this frame's association matched a crowd greedily (see `assign::assign_edges`).
+    /// Notes that this frame's association ran out of steps and matched the rest greedily (see
+    /// `assign::assign_edges`).
     pub(crate) fn note_crowd(&self, greedy: bool) {
         if greedy {
             self.crowded.set(true);

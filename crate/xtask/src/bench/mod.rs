@@ -17,9 +17,12 @@
 //!   with the Python loop's own tracking time measured in the same run and a day of one camera
 //!   tracked for the memory goal.
 //! - **Page** ([`page`]; `--page`): finding objects in headless Chromium; printed, not written.
+//! - **One crowded frame** ([`big_frame`]; `--big-frame`): 1,000, 10,000 and 100,000 overlapping
+//!   boxes in one frame, tracked with `sort`: time and peak memory of the association.
 
 use std::path::Path;
 
+mod big_frame;
 mod core_api;
 mod counts;
 mod day;
@@ -35,9 +38,12 @@ mod scene;
 mod table;
 mod tracking;
 
-/// `bench [--quick | --grid | --counts | --detector | --events | --goals | --page]`.
+/// `bench [--quick | --grid | --counts | --detector | --events | --goals | --page | --big-frame]`.
 pub fn bench(args: &[String]) -> Result<(), String> {
     let has = |flag: &str| args.iter().any(|a| a == flag);
+    if has("--big-frame") {
+        return big_frame::big_frame_bench();
+    }
     if has("--page") {
         return page::page_bench();
     }
