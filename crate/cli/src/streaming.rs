@@ -21,8 +21,11 @@ use throughline_core::track::stream::{StreamEnd, StreamTracker};
 use throughline_core::track::TrackBox;
 use throughline_core::{pipeline, Detections, Method, TrackerConfig};
 
-/// Bytes read at a time; a line longer than this sends the file to the whole reader.
-const PIECE: usize = 8 << 20;
+/// Bytes read at a time: a sixteenth of the file, so that even a small file keeps the three
+/// stages busy at once, between these bounds. A line longer than a piece sends the file to the
+/// whole reader.
+const PIECE: usize = 1 << 20;
+const LEAST_PIECE: usize = 64 << 10;
 
 /// What a piecewise run read and found.
 pub struct Streamed {
@@ -197,6 +200,8 @@ struct PieceReader {
     at_end: bool,
     /// Bytes read so far.
     done: u64,
+    /// The file's size when it was opened.
+    size: u64,
 }
 
 impl PieceReader {
@@ -205,9 +210,17 @@ impl PieceReader {
     fn fill(&mut self, file: &mut std::fs::File) -> bool {
         self.buf.drain(..self.cut);
         let had = self.buf.len();
-        self.buf.resize(PIECE, 0);
+        // No bigger than what is left of the file (and one byte to see its end).
+        let len = file.metadata().map_or(u64::MAX, |m| m.len());
+        if self.done == 0 {
+            self.size = len;
+        }
+        let left = len.saturating_sub(self.done);
+        let piece = usize::try_from(self.size / 16).map_or(PIECE, |p| p.clamp(LEAST_PIECE, PIECE));
+        let size = usize::try_from(left).map_or(piece, |l| piece.min(had + l + 1));
+        self.buf.resize(size, 0);
         let mut filled = had;
-        while filled < PIECE {
+        while filled < size {
             match file.read(&mut self.buf[filled..]) {
                 Ok(0) => {
                     self.at_end = true;
