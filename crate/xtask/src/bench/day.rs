@@ -21,6 +21,7 @@ const SEGMENT_FRAMES: u32 = 20_000;
 pub fn day_bench(bin: &str, quick: bool) -> Result<Day, String> {
     let repeats = if quick { 10 } else { 100 };
     let dir = bench_dir("day")?;
+    std::fs::create_dir_all(&dir).map_err(|e| format!("{}: {e}", dir.display()))?;
     let file = dir.join(format!("day-{repeats}.txt"));
     if !file.exists() {
         let (seg, _) = simulate_scene(

@@ -7,7 +7,6 @@
 use std::path::Path;
 use std::time::Instant;
 
-use super::core_api::read_detections;
 use super::judge::SceneSpec;
 use super::measure::{best_of, machine_line};
 use super::peer::python_with_peers;
@@ -105,7 +104,7 @@ fn scene_lines(
         let out = dir.join(format!("goal-{method}.txt")).display().to_string();
         let args = ["track", &inp, "--method", method, "-o", &out, "--quiet"];
         let whole = best_of(runs, bin, &args)?.seconds;
-        let parse = parse_seconds(Path::new(&inp), runs)?;
+        let parse = parse_seconds(bin, Path::new(&inp), runs)?;
         let at = format!("{method}, {per_frame:.0} boxes a frame");
         if let Some(p) = peer {
             let ratio = p / whole;
@@ -125,7 +124,7 @@ fn scene_lines(
         });
     }
     let floor = floor_seconds(&dir.join("detections.txt"), runs)?;
-    let parse = parse_seconds(&dir.join("detections.txt"), runs)?;
+    let parse = parse_seconds(bin, &dir.join("detections.txt"), runs)?;
     let ratio = parse / floor;
     lines.push(Line {
         figure: format!("parsing benchmark text, {per_frame:.0} boxes a frame, against a plain split-and-parse loop"),
@@ -180,18 +179,34 @@ fn peer_tracking_seconds(python: &str, dir: &Path, runs: usize) -> Result<f64, S
     Ok(best)
 }
 
-/// Reading the file and parsing it with Throughline's reader, in this process: the least of
+/// Reading the file and parsing it with Throughline's reader: the `read` stage of a release
+/// `throughline track --stats` (JSON output, so that the stages are timed apart), the least of
 /// `runs`.
-fn parse_seconds(path: &Path, runs: usize) -> Result<f64, String> {
-    least_of(runs, || {
-        let bytes = std::fs::read(path).map_err(|e| format!("{}: {e}", path.display()))?;
-        let report = read_detections(&bytes).map_err(|e| e.to_string())?;
-        Ok(report.detections.rows.len())
-    })
+fn parse_seconds(bin: &str, path: &Path, runs: usize) -> Result<f64, String> {
+    let inp = path.display().to_string();
+    let out = path.with_extension("goal.json").display().to_string();
+    let mut best = f64::INFINITY;
+    for _ in 0..runs.max(1) {
+        let o = std::process::Command::new(bin)
+            .args(["track", &inp, "-o", &out, "--quiet", "--stats"])
+            .output()
+            .map_err(|e| format!("cannot start {bin}: {e}"))?;
+        let err = String::from_utf8_lossy(&o.stderr);
+        let seconds = err
+            .split("(read ")
+            .nth(1)
+            .and_then(|r| r.split_whitespace().next())
+            .and_then(|v| v.parse::<f64>().ok())
+            .ok_or_else(|| format!("no read time in: {err}"))?;
+        best = best.min(seconds);
+    }
+    let _ = std::fs::remove_file(&out);
+    Ok(best)
 }
 
 /// Reading the file and parsing it with the plainest loop there is (split lines, split commas,
-/// parse seven numbers, keep them): the floor a reader is measured against.
+/// parse seven numbers, keep them): the floor a reader is measured against (xtask is built
+/// optimised for it, see the workspace's Cargo.toml).
 fn floor_seconds(path: &Path, runs: usize) -> Result<f64, String> {
     least_of(runs, || {
         let bytes = std::fs::read(path).map_err(|e| format!("{}: {e}", path.display()))?;
