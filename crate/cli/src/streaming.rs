@@ -1,12 +1,14 @@
 //! `throughline track DETECTIONS -o OUT.txt` on benchmark text: the file is read, tracked and
 //! written a piece at a time, so memory follows the tracks alive at once, not the length of the
-//! recording (a day of one camera is millions of frames). The output is the same bytes as
-//! reading the whole file first (`track/stream.rs` in the core says why).
+//! recording (a day of one camera is millions of frames), and three threads share the work:
+//! reading and parsing, the tracker, writing. The output is the same bytes as reading the whole
+//! file first (`track/stream.rs` in the core says why).
 //!
 //! Whenever the piecewise way cannot promise that, it gives up before anything is put in place
 //! and the caller reads the whole file instead: another format, frames out of order (the whole
-//! reader sorts them), a settings or method problem, or any mistake in the file (the whole
-//! reader's message then names it, as it always has).
+//! reader sorts them), a settings or method problem, any mistake in the file (the whole
+//! reader's message then names it, as it always has), a pipe (it could not be read again) or an
+//! output that is not a regular file (what was written could not be taken back).
 
 use crate::files::{read_settings, Failure};
 use crate::output::Outputs;
@@ -34,7 +36,6 @@ pub struct Streamed {
     pub config: TrackerConfig,
 }
 
-/// Tracks `path` into `output` piece by piece; `Ok(None)` when the whole reader must do it.
 /// How to track: what `--method`, `--config` and `--quiet` said.
 pub struct How<'a> {
     pub method: Option<Method>,
@@ -42,6 +43,7 @@ pub struct How<'a> {
     pub quiet: bool,
 }
 
+/// Tracks `path` into `output` piece by piece; `Ok(None)` when the whole reader must do it.
 pub fn track_streamed(path: &Path, how: How, output: &Path) -> Result<Option<Streamed>, Failure> {
     let special = std::fs::metadata(output).is_ok_and(|m| !m.is_file());
     let Ok(mut file) = std::fs::File::open(path) else {

@@ -190,12 +190,12 @@ fn assign(rows: usize, cols: usize, edges: &[Edge], gate: f64, mut steps: u64) -
     let mut pairs = Vec::new();
     let mut greedy = false;
     // Most components of a tracking frame are one track and one box.
-    for group in components(rows, cols, &edges) {
+    for group in components(rows, cols, &edges).groups() {
         if let [e] = group[..] {
             pairs.push((e.row, e.col));
             continue;
         }
-        let (rs, cs) = rows_and_cols(&group);
+        let (rs, cs) = rows_and_cols(group);
         if rs.len() == 1 || cs.len() == 1 {
             // One row or one column: the cheapest edge is the optimum (first listed among equals).
             let best = group.iter().min_by(|a, b| {
@@ -206,7 +206,7 @@ fn assign(rows: usize, cols: usize, edges: &[Edge], gate: f64, mut steps: u64) -
             pairs.extend(best.map(|e| (e.row, e.col)));
             continue;
         }
-        let found = sparse_component(&group, &rs, &cs, above, |e| e.cost, &mut steps);
+        let found = sparse_component(group, &rs, &cs, above, |e| e.cost, &mut steps);
         greedy |= found.out_of_steps;
         pairs.extend(found.pairs);
     }
@@ -276,7 +276,7 @@ fn sparse_component(
 
 /// Groups edges by the connected component of rows and columns they join (union-find over rows
 /// `0..rows` and columns `rows..rows + cols`), in a fixed order.
-fn components<'a>(rows: usize, cols: usize, edges: &[&'a Edge]) -> Vec<Vec<&'a Edge>> {
+fn components<'a>(rows: usize, cols: usize, edges: &[&'a Edge]) -> Components<'a> {
     let mut parent: Vec<usize> = (0..rows + cols).collect();
     fn find(parent: &mut [usize], mut i: usize) -> usize {
         while parent[i] != i {
@@ -297,10 +297,36 @@ fn components<'a>(rows: usize, cols: usize, edges: &[&'a Edge]) -> Vec<Vec<&'a E
         .map(|(k, e)| (find(&mut parent, e.row), k))
         .collect();
     by_root.sort_unstable();
-    by_root
-        .chunk_by(|a, b| a.0 == b.0)
-        .map(|g| g.iter().map(|&(_, k)| edges[k]).collect())
-        .collect()
+    let flat = by_root.iter().map(|&(_, k)| edges[k]).collect();
+    let mut ends: Vec<usize> = by_root
+        .windows(2)
+        .enumerate()
+        .filter(|(_, w)| w[0].0 != w[1].0)
+        .map(|(i, _)| i + 1)
+        .collect();
+    if !by_root.is_empty() {
+        ends.push(by_root.len());
+    }
+    Components { flat, ends }
+}
+
+/// The edges of every component one after another, and where each component ends: one list for
+/// a frame, not one per component (most components of a frame are one track and one box).
+struct Components<'a> {
+    flat: Vec<&'a Edge>,
+    ends: Vec<usize>,
+}
+
+impl<'a> Components<'a> {
+    /// Each component's edges, in order.
+    fn groups(&self) -> impl Iterator<Item = &[&'a Edge]> {
+        let mut start = 0;
+        self.ends.iter().map(move |&end| {
+            let group = &self.flat[start..end];
+            start = end;
+            group
+        })
+    }
 }
 
 /// An edge's row and column within a component's sorted rows and columns.
@@ -338,16 +364,16 @@ pub fn maximise_edges(rows: usize, cols: usize, edges: &[Edge]) -> Vec<(usize, u
         .collect();
     let mut pairs = Vec::new();
     let mut steps = MAX_ASSIGNMENT_STEPS;
-    for group in components(rows, cols, &edges) {
+    for group in components(rows, cols, &edges).groups() {
         if let [e] = group[..] {
             pairs.push((e.row, e.col));
             continue;
         }
-        let (rs, cs) = rows_and_cols(&group);
+        let (rs, cs) = rows_and_cols(group);
         if rs.len() <= DENSE_UP_TO && cs.len() <= DENSE_UP_TO {
-            pairs.extend(dense_component(&group, &rs, &cs, 0.0, |e| -e.cost));
+            pairs.extend(dense_component(group, &rs, &cs, 0.0, |e| -e.cost));
         } else {
-            let found = sparse_component(&group, &rs, &cs, 0.0, |e| -e.cost, &mut steps);
+            let found = sparse_component(group, &rs, &cs, 0.0, |e| -e.cost, &mut steps);
             pairs.extend(found.pairs);
         }
     }

@@ -217,10 +217,10 @@ fn dense_maximum(rows: usize, cols: usize, edges: &[Edge]) -> Vec<(usize, usize)
 fn sparse_maximum(rows: usize, cols: usize, edges: &[Edge]) -> Vec<(usize, usize)> {
     let listed: Vec<&Edge> = edges.iter().filter(|e| e.cost > 0.0).collect();
     let mut pairs = Vec::new();
-    for group in components(rows, cols, &listed) {
-        let (rs, cs) = rows_and_cols(&group);
+    for group in components(rows, cols, &listed).groups() {
+        let (rs, cs) = rows_and_cols(group);
         let mut steps = u64::MAX;
-        let found = sparse_component(&group, &rs, &cs, 0.0, |e| -e.cost, &mut steps);
+        let found = sparse_component(group, &rs, &cs, 0.0, |e| -e.cost, &mut steps);
         pairs.extend(found.pairs);
     }
     pairs
