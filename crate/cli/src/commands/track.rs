@@ -97,15 +97,20 @@ pub fn run(args: Args) -> Result<(), Failure> {
         timer.lap("write");
         if !args.tracking.quiet {
             eprintln!(
-                "{}: {} tracks with {}{}",
+                "{}: {} with {}{}",
                 path.display(),
-                tracks.tracks.len(),
+                track_count(tracks.tracks.len()),
                 tracks.config.method,
                 output.map_or(String::new(), |p| format!(", written to {}", p.display()))
             );
         }
         Ok(())
     })
+}
+
+/// "1 track", "30 tracks".
+fn track_count(n: usize) -> String {
+    format!("{n} track{}", if n == 1 { "" } else { "s" })
 }
 
 /// Whether tracks written to `p` are benchmark text (else the JSON tracks document).
@@ -128,9 +133,9 @@ fn report_streamed(path: &Path, out: &Path, how: &TrackingArgs, done: &streaming
         done.read.last_frame,
     );
     eprintln!(
-        "{}: {} tracks with {}, written to {}",
+        "{}: {} with {}, written to {}",
         path.display(),
-        done.end.tracks,
+        track_count(done.end.tracks as usize),
         done.config.method,
         out.display()
     );
