@@ -50,9 +50,19 @@ pub fn track_streamed(path: &Path, how: How, output: &Path) -> Result<Option<Str
         return Ok(None);
     };
     // A pipe could not be read again by the whole reader if this gave up half way.
-    let regular = file.metadata().is_ok_and(|m| m.is_file());
-    let mut reader = PieceReader::default();
-    if special || !regular || !reader.fill(&mut file) {
+    let Some(size) = file
+        .metadata()
+        .ok()
+        .filter(|m| m.is_file())
+        .map(|m| m.len())
+    else {
+        return Ok(None);
+    };
+    let mut reader = PieceReader {
+        size,
+        ..PieceReader::default()
+    };
+    if special || !reader.fill(&mut file) {
         return Ok(None);
     }
     if detections::benchmark_text_start(reader.whole_lines()).is_none() {
@@ -68,7 +78,6 @@ pub fn track_streamed(path: &Path, how: How, output: &Path) -> Result<Option<Str
     let Ok(tracker) = StreamTracker::new(&config, &ctx) else {
         return Ok(None);
     };
-    let size = file.metadata().map_or(0, |m| m.len());
     let bar = progress::bar(
         how.quiet,
         size,
@@ -212,14 +221,13 @@ impl PieceReader {
     fn fill(&mut self, file: &mut std::fs::File) -> bool {
         self.buf.drain(..self.cut);
         let had = self.buf.len();
-        // No bigger than what is left of the file (and one byte to see its end).
-        let len = file.metadata().map_or(u64::MAX, |m| m.len());
-        if self.done == 0 {
-            self.size = len;
-        }
-        let left = len.saturating_sub(self.done);
+        // No bigger than what is left of the file (and one byte to see its end); a file grown
+        // past its size at opening is read on in whole pieces.
         let piece = usize::try_from(self.size / 16).map_or(PIECE, |p| p.clamp(LEAST_PIECE, PIECE));
-        let size = usize::try_from(left).map_or(piece, |l| piece.min(had + l + 1));
+        let size = match usize::try_from(self.size.saturating_sub(self.done)) {
+            Ok(left) if left > 0 => piece.min(had + left + 1),
+            _ => piece,
+        };
         self.buf.resize(size, 0);
         let mut filled = had;
         while filled < size {

@@ -10,8 +10,9 @@ use std::time::Instant;
 use super::judge::SceneSpec;
 use super::measure::{best_of, machine_line};
 use super::peer::python_with_peers;
-use super::scene::{detections_for, simulate_scene, Sim, METHODS};
+use super::scene::{detections_for, simulate_scene, METHODS};
 use super::table::write_section;
+use super::tracking::{detections_per_frame, speed_specs};
 use crate::builds::build_cli;
 use crate::paths::cli_binary;
 
@@ -40,21 +41,9 @@ pub fn goals_bench(quick: bool) -> Result<(), String> {
     let python = python_with_peers();
     let frames = if quick { 300 } else { 1500 };
     let mut lines = Vec::new();
-    for (label, density, width) in [
-        ("speed-10", 13.0, 640.0),
-        ("speed-50", 65.0, 1920.0),
-        ("speed-200", 265.0, 5120.0),
-    ] {
-        let spec = SceneSpec {
-            label: label.into(),
-            density,
-            width,
-            height: 360.0,
-            miss: 0.12,
-            frames,
-        };
+    for spec in speed_specs(frames) {
         lines.extend(scene_lines(&bin, python.as_deref(), &spec, quick)?);
-        eprintln!("{label} measured");
+        eprintln!("{} measured", spec.label);
     }
     let day = super::day::day_bench(&bin, quick)?;
     lines.push(Line {
@@ -91,9 +80,9 @@ fn scene_lines(
     s: &SceneSpec,
     quick: bool,
 ) -> Result<Vec<Line>, String> {
-    let (dir, _) = simulate_scene(bin, &scene(s))?;
+    let (dir, _) = simulate_scene(bin, &s.sim())?;
     let runs = if quick { 1 } else { 5 };
-    let per_frame = per_frame(&dir.join("detections.txt"), s.frames)?;
+    let per_frame = detections_per_frame(&s.label, s.frames)?;
     let mut lines = Vec::new();
     let peer = match python {
         Some(py) => Some(peer_tracking_seconds(py, &dir, runs.min(3))?),
@@ -135,48 +124,12 @@ fn scene_lines(
     Ok(lines)
 }
 
-fn scene(s: &SceneSpec) -> Sim<'_> {
-    Sim {
-        folder: &s.label,
-        seed: 42,
-        frames: s.frames,
-        density: s.density,
-        width: s.width,
-        height: s.height,
-        miss: Some(s.miss),
-        embedding_dim: 16,
-        render: None,
-        hard_cases: false,
-    }
-}
-
-fn per_frame(path: &Path, frames: u32) -> Result<f64, String> {
-    let text = std::fs::read(path).map_err(|e| format!("{}: {e}", path.display()))?;
-    let lines = text.iter().filter(|&&b| b == b'\n').count();
-    Ok(lines as f64 / f64::from(frames))
-}
-
 /// The Python loop's own tracking time (it prints `stats: tracking N s`), the least of `runs`.
 fn peer_tracking_seconds(python: &str, dir: &Path, runs: usize) -> Result<f64, String> {
     let inp = dir.join("detections.txt").display().to_string();
     let out = dir.join("goal-peer.txt").display().to_string();
-    let mut best = f64::INFINITY;
-    for _ in 0..runs {
-        let o = std::process::Command::new(python)
-            .args(["tests/bench/sort_peer.py", &inp, &out])
-            .current_dir(crate::paths::root())
-            .output()
-            .map_err(|e| format!("cannot start {python}: {e}"))?;
-        let err = String::from_utf8_lossy(&o.stderr);
-        let seconds = err
-            .split("stats: tracking ")
-            .nth(1)
-            .and_then(|r| r.split_whitespace().next())
-            .and_then(|v| v.parse::<f64>().ok())
-            .ok_or_else(|| format!("the Python peer printed no tracking time: {err}"))?;
-        best = best.min(seconds);
-    }
-    Ok(best)
+    let args = ["tests/bench/sort_peer.py", &inp, &out];
+    least_reported(runs, python, &args, "stats: tracking ")
 }
 
 /// Reading the file and parsing it with Throughline's reader: the `read` stage of a release
@@ -185,22 +138,30 @@ fn peer_tracking_seconds(python: &str, dir: &Path, runs: usize) -> Result<f64, S
 fn parse_seconds(bin: &str, path: &Path, runs: usize) -> Result<f64, String> {
     let inp = path.display().to_string();
     let out = path.with_extension("goal.json").display().to_string();
+    let args = ["track", &inp, "-o", &out, "--quiet", "--stats"];
+    let seconds = least_reported(runs, bin, &args, "(read ");
+    let _ = std::fs::remove_file(&out);
+    seconds
+}
+
+/// The least of `runs` runs of the number a program prints on standard error after `key`.
+fn least_reported(runs: usize, program: &str, args: &[&str], key: &str) -> Result<f64, String> {
     let mut best = f64::INFINITY;
     for _ in 0..runs.max(1) {
-        let o = std::process::Command::new(bin)
-            .args(["track", &inp, "-o", &out, "--quiet", "--stats"])
+        let o = std::process::Command::new(program)
+            .args(args)
+            .current_dir(crate::paths::root())
             .output()
-            .map_err(|e| format!("cannot start {bin}: {e}"))?;
+            .map_err(|e| format!("cannot start {program}: {e}"))?;
         let err = String::from_utf8_lossy(&o.stderr);
         let seconds = err
-            .split("(read ")
+            .split(key)
             .nth(1)
             .and_then(|r| r.split_whitespace().next())
             .and_then(|v| v.parse::<f64>().ok())
-            .ok_or_else(|| format!("no read time in: {err}"))?;
+            .ok_or_else(|| format!("{program} printed no `{key}` time: {err}"))?;
         best = best.min(seconds);
     }
-    let _ = std::fs::remove_file(&out);
     Ok(best)
 }
 

@@ -8,7 +8,7 @@ use super::core_api::read_benchmark_boxes;
 use super::core_api::{count, score, tracks_to_boxes, IdBox, Plan, Tracks};
 use super::measure::Measured;
 use super::read;
-use super::scene::sim_plan;
+use super::scene::{sim_plan, Sim};
 
 /// One scene of the speed table or the grid.
 pub struct SceneSpec {
@@ -18,6 +18,24 @@ pub struct SceneSpec {
     pub height: f64,
     pub miss: f64,
     pub frames: u32,
+}
+
+impl SceneSpec {
+    /// The simulator's settings for this scene (seed 42, embeddings of 16 values for deepsort).
+    pub fn sim(&self) -> Sim<'_> {
+        Sim {
+            folder: &self.label,
+            seed: 42,
+            frames: self.frames,
+            density: self.density,
+            width: self.width,
+            height: self.height,
+            miss: Some(self.miss),
+            embedding_dim: 16,
+            render: None,
+            hard_cases: false,
+        }
+    }
 }
 
 /// Per screenline: (name, true forward, true backward, counted forward, counted backward).

@@ -6,7 +6,7 @@ use std::path::Path;
 use super::core_api::from_json;
 use super::judge::{Judge, Row, SceneSpec};
 use super::measure::{best_of, measure};
-use super::scene::{detections_for, simulate_scene, Sim, METHODS};
+use super::scene::{detections_for, simulate_scene, METHODS};
 use super::{peer, read};
 
 /// Simulates a scene into files, then runs every method (and the peer) on it.
@@ -16,21 +16,7 @@ pub fn measure_scene(
     s: &SceneSpec,
     runs: usize,
 ) -> Result<Vec<(String, Row)>, String> {
-    let (dir, _) = simulate_scene(
-        bin,
-        &Sim {
-            folder: &s.label,
-            seed: 42,
-            frames: s.frames,
-            density: s.density,
-            width: s.width,
-            height: s.height,
-            miss: Some(s.miss),
-            embedding_dim: 16,
-            render: None,
-            hard_cases: false,
-        },
-    )?;
+    let (dir, _) = simulate_scene(bin, &s.sim())?;
     let judge = Judge::load(&dir, s)?;
     let mut rows = Vec::new();
     for method in METHODS {
