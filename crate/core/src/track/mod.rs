@@ -93,12 +93,7 @@ pub fn run_tracker(
 ) -> Result<Tracks, Error> {
     check_run(config, detections)?;
     let total = detections.last_frame();
-    let def = config.method.def();
-    let steps = tracker::MethodSteps {
-        associate: def.associate,
-        motion: def.motion,
-    };
-    let mut tracker = tracker::Tracker::new(config.clone(), steps);
+    let mut tracker = tracker_for(config);
     let mut frames = detections.by_frame().peekable();
     let mut frame = 1;
     // Frame by frame from 1 to the last with a detection (none for no detections).
@@ -127,6 +122,16 @@ pub fn run_tracker(
     }
     progress(total, total);
     Ok(tracker.close(total, detections))
+}
+
+/// A tracker running the configured method's steps.
+fn tracker_for(config: &TrackerConfig) -> tracker::Tracker {
+    let def = config.method.def();
+    let steps = tracker::MethodSteps {
+        associate: def.associate,
+        motion: def.motion,
+    };
+    tracker::Tracker::new(config.clone(), steps)
 }
 
 /// The settings are valid and the detections carry what the method needs.

@@ -7,7 +7,7 @@
 //! Every box, number and order is that of [`super::run_tracker`] on the same rows followed by
 //! [`super::files::write_benchmark_text`]: the same tracker is stepped through the same frames.
 
-use super::tracker::{MethodSteps, Tracker};
+use super::tracker::Tracker;
 use super::{TrackBox, TrackerConfig};
 use crate::detections::{Detection, Detections};
 use crate::error::Error;
@@ -37,13 +37,8 @@ impl StreamTracker {
     /// rows refer to (class names): the detections without their rows.
     pub fn new(config: &TrackerConfig, ctx: &Detections) -> Result<Self, Error> {
         super::check_run(config, ctx)?;
-        let def = config.method.def();
-        let steps = MethodSteps {
-            associate: def.associate,
-            motion: def.motion,
-        };
         Ok(Self {
-            tracker: Tracker::new(config.clone(), steps),
+            tracker: super::tracker_for(config),
             next: 1,
             carry: Vec::new(),
             pending: Vec::new(),
@@ -65,20 +60,26 @@ impl StreamTracker {
         if rest.is_empty() {
             return;
         }
-        let carried = std::mem::take(&mut self.carry);
-        if let Some(first) = carried.first() {
-            self.frame(first.frame, &carried, ctx);
-        }
+        let mut carried = self.step_carried(ctx);
         let mut frames = rest.chunk_by(|a, b| a.frame == b.frame).peekable();
         while let Some(dets) = frames.next() {
             if frames.peek().is_none() {
+                carried.clear();
+                carried.extend_from_slice(dets);
                 self.carry = carried;
-                self.carry.clear();
-                self.carry.extend_from_slice(dets);
                 return;
             }
             self.frame(dets[0].frame, dets, ctx);
         }
+    }
+
+    /// Steps through the carried frame, if any, and gives back its buffer for reuse.
+    fn step_carried(&mut self, ctx: &Detections) -> Vec<Detection> {
+        let carried = std::mem::take(&mut self.carry);
+        if let Some(first) = carried.first() {
+            self.frame(first.frame, &carried, ctx);
+        }
+        carried
     }
 
     /// Steps through `frame`: the empty frames before it while a track is alive (with none
@@ -105,10 +106,7 @@ impl StreamTracker {
         ctx: &Detections,
         write: &mut dyn FnMut(u32, u32, &TrackBox),
     ) -> StreamEnd {
-        let carried = std::mem::take(&mut self.carry);
-        if let Some(first) = carried.first() {
-            self.frame(first.frame, &carried, ctx);
-        }
+        self.step_carried(ctx);
         let last_frame = self.next.saturating_sub(1);
         self.tracker.drain_settled(self.next, &mut self.pending);
         let tracks = self.tracker.confirmed();
