@@ -19,8 +19,7 @@ use std::path::Path;
 use std::sync::mpsc::{sync_channel, Receiver, SyncSender};
 use throughline_core::detections::{self, Detection, Pieces, PiecesSummary};
 use throughline_core::track::files::BenchmarkLines;
-use throughline_core::track::stream::{StreamEnd, StreamTracker};
-use throughline_core::track::TrackBox;
+use throughline_core::track::stream::{Drained, InOrder, StreamEnd, StreamTracker};
 use throughline_core::{pipeline, Detections, Method, TrackerConfig};
 
 /// Bytes read at a time: a sixteenth of the file, so that even a small file keeps the three
@@ -103,11 +102,8 @@ struct Batch {
     new_classes: Vec<String>,
 }
 
-/// Boxes settled by the tracker, in benchmark text order.
-type Settled = Vec<(u32, u32, TrackBox)>;
-
 /// Three stages at once, so that a long file keeps both cores busy: reading and parsing, the
-/// tracker (this thread), and writing the text. `Ok(None)` when the reading gave up (nothing is
+/// tracker (this thread), and putting the boxes in order and writing the text. `Ok(None)` when the reading gave up (nothing is
 /// put in place).
 fn pipeline(
     file: std::fs::File,
@@ -118,25 +114,22 @@ fn pipeline(
 ) -> std::io::Result<Option<(PiecesSummary, StreamEnd)>> {
     std::thread::scope(|s| {
         let (rows_in, rows_out) = sync_channel::<Batch>(2);
-        let (boxes_in, boxes_out) = sync_channel::<Settled>(2);
+        let (boxes_in, boxes_out) = sync_channel::<Drained>(2);
         let reading = s.spawn(move || read_rows(file, reader, rows_in, bar));
         let writing = s.spawn(move || write_boxes(w, boxes_out));
         let mut ctx = Detections::default();
         for batch in rows_out {
             ctx.classes.extend(batch.new_classes);
             tracker.rows(&batch.rows, &ctx);
-            let mut settled = Vec::new();
-            tracker.settled(&mut |f, id, b| settled.push((f, id, *b)));
-            if boxes_in.send(settled).is_err() {
+            if boxes_in.send(tracker.drain()).is_err() {
                 break;
             }
         }
         let read = reading.join().unwrap_or(None);
         if let Some(read) = read {
-            let mut settled = Vec::new();
-            let end = tracker.finish(&ctx, &mut |f, id, b| settled.push((f, id, *b)));
+            let (rest, end) = tracker.finish_drained(&ctx);
             // A failed send means the writer stopped: its join below gives the reason.
-            let _ = boxes_in.send(settled);
+            let _ = boxes_in.send(rest);
             drop(boxes_in);
             join_writer(writing)?;
             return Ok(Some((read, end)));
@@ -187,15 +180,22 @@ fn read_rows(
     }
 }
 
-/// The writing stage: settled boxes as benchmark text.
+/// The writing stage: the tracker's boxes put in order and written as benchmark text.
 fn write_boxes(
     w: &mut (dyn std::io::Write + Send),
-    boxes: Receiver<Settled>,
+    boxes: Receiver<Drained>,
 ) -> std::io::Result<()> {
     let mut lines = BenchmarkLines::new(w);
+    let mut in_order = InOrder::default();
+    let mut failed = None;
     for batch in boxes {
-        for (f, id, b) in &batch {
-            lines.push(*f, *id, b)?;
+        in_order.give_out(batch, &mut |f, id, b| {
+            if failed.is_none() {
+                failed = lines.push(f, id, b).err();
+            }
+        });
+        if let Some(e) = failed.take() {
+            return Err(e);
         }
     }
     lines.flush()

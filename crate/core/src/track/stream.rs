@@ -4,6 +4,9 @@
 //! track number). Memory follows the live tracks and the boxes not yet settled (about
 //! `max_age` frames of them), not the length of the input.
 //!
+//! Putting the boxes in order is a stage of its own ([`InOrder`]), so that a program can run it
+//! beside the tracker: [`StreamTracker::drain`] hands out the boxes as they leave the tracker.
+//!
 //! Every box, number and order is that of [`super::run_tracker`] on the same rows followed by
 //! [`super::files::write_benchmark_text`]: the same tracker is stepped through the same frames.
 
@@ -19,8 +22,44 @@ pub struct StreamTracker {
     next: u32,
     /// Rows of the last frame of the latest batch: it may go on in the next batch.
     carry: Vec<Detection>,
-    /// Boxes out of the tracker, not yet given out: `(frame, track number, box)`.
-    pending: Vec<(u32, u32, TrackBox)>,
+    /// Boxes out of the tracker, not yet given out (for [`Self::settled`]).
+    in_order: InOrder,
+}
+
+/// A box out of the tracker: `(frame, track number, box)`.
+pub type OutBox = (u32, u32, TrackBox);
+
+/// Boxes as they left the tracker, in no order, and the first frame that may still gain a box:
+/// every box of an earlier frame has left.
+#[derive(Debug, Default)]
+pub struct Drained {
+    pub boxes: Vec<OutBox>,
+    pub open_from: u32,
+}
+
+/// Puts drained boxes in benchmark text order (frame, then track number) and gives out those of
+/// the frames no later box can join.
+#[derive(Debug, Default)]
+pub struct InOrder {
+    pending: Vec<OutBox>,
+}
+
+impl InOrder {
+    /// Takes a drained batch; hands to `write`, in order, every box of a frame before its
+    /// `open_from`.
+    pub fn give_out(&mut self, mut d: Drained, write: &mut dyn FnMut(u32, u32, &TrackBox)) {
+        if self.pending.is_empty() {
+            std::mem::swap(&mut self.pending, &mut d.boxes);
+        } else {
+            self.pending.append(&mut d.boxes);
+        }
+        // (frame, number) pairs are unique, so an unstable sort gives the one order.
+        self.pending.sort_unstable_by_key(|&(f, id, _)| (f, id));
+        let settled = self.pending.partition_point(|&(f, _, _)| f < d.open_from);
+        for (f, id, b) in self.pending.drain(..settled) {
+            write(f, id, &b);
+        }
+    }
 }
 
 /// What a finished stream found: what `run_tracker`'s [`super::Tracks`] would say of itself.
@@ -41,7 +80,7 @@ impl StreamTracker {
             tracker: super::tracker_for(config),
             next: 1,
             carry: Vec::new(),
-            pending: Vec::new(),
+            in_order: InOrder::default(),
         })
     }
 
@@ -96,8 +135,16 @@ impl StreamTracker {
     /// The boxes that no later row can change, in benchmark text order, handed to `write`
     /// one at a time.
     pub fn settled(&mut self, write: &mut dyn FnMut(u32, u32, &TrackBox)) {
-        let open_from = self.tracker.drain_settled(self.next, &mut self.pending);
-        give_out(&mut self.pending, open_from, write);
+        let d = self.drain();
+        self.in_order.give_out(d, write);
+    }
+
+    /// The boxes that left the tracker since the last call, in no order ([`InOrder`] orders
+    /// them).
+    pub fn drain(&mut self) -> Drained {
+        let mut boxes = Vec::new();
+        let open_from = self.tracker.drain_settled(self.next, &mut boxes);
+        Drained { boxes, open_from }
     }
 
     /// Ends the input: the rest of the boxes, in order, and what the run found.
@@ -106,34 +153,34 @@ impl StreamTracker {
         ctx: &Detections,
         write: &mut dyn FnMut(u32, u32, &TrackBox),
     ) -> StreamEnd {
+        let mut in_order = std::mem::take(&mut self.in_order);
+        let (rest, end) = self.finish_drained(ctx);
+        in_order.give_out(rest, write);
+        end
+    }
+
+    /// Ends the input: the rest of the boxes (every frame settled), and what the run found.
+    pub fn finish_drained(mut self, ctx: &Detections) -> (Drained, StreamEnd) {
         self.step_carried(ctx);
         let last_frame = self.next.saturating_sub(1);
-        self.tracker.drain_settled(self.next, &mut self.pending);
+        let mut boxes = Vec::new();
+        self.tracker.drain_settled(self.next, &mut boxes);
         let tracks = self.tracker.confirmed();
         let rest = self.tracker.close(last_frame, ctx);
         for t in &rest.tracks {
-            self.pending
-                .extend(t.boxes.iter().map(|&b| (b.frame, t.id, b)));
+            boxes.extend(t.boxes.iter().map(|&b| (b.frame, t.id, b)));
         }
-        give_out(&mut self.pending, u32::MAX, write);
-        StreamEnd {
+        let end = StreamEnd {
             tracks,
             last_frame,
             crowded_frames: rest.crowded_frames,
-        }
-    }
-}
-
-/// Gives out, in (frame, track number) order, the pending boxes of frames before `open_from`.
-fn give_out(
-    pending: &mut Vec<(u32, u32, TrackBox)>,
-    open_from: u32,
-    write: &mut dyn FnMut(u32, u32, &TrackBox),
-) {
-    // (frame, number) pairs are unique, so an unstable sort gives the one order.
-    pending.sort_unstable_by_key(|&(f, id, _)| (f, id));
-    let settled = pending.partition_point(|&(f, _, _)| f < open_from);
-    for (f, id, b) in pending.drain(..settled) {
-        write(f, id, &b);
+        };
+        (
+            Drained {
+                boxes,
+                open_from: u32::MAX,
+            },
+            end,
+        )
     }
 }

@@ -291,24 +291,39 @@ fn components<'a>(rows: usize, cols: usize, edges: &[&'a Edge]) -> Components<'a
             parent[a.max(b)] = a.min(b);
         }
     }
-    let mut by_root: Vec<(usize, usize)> = edges
-        .iter()
-        .enumerate()
-        .map(|(k, e)| (find(&mut parent, e.row), k))
-        .collect();
-    by_root.sort_unstable();
-    let flat = by_root.iter().map(|&(_, k)| edges[k]).collect();
-    let mut ends: Vec<usize> = by_root
-        .windows(2)
-        .enumerate()
-        .filter(|(_, w)| w[0].0 != w[1].0)
-        .map(|(i, _)| i + 1)
-        .collect();
-    if !by_root.is_empty() {
-        ends.push(by_root.len());
+    // The edges by root, then by their order in `edges`: a counting sort over the roots, which
+    // lie in `0..rows + cols` (the order sorting the pairs (root, edge) would give).
+    let roots: Vec<usize> = edges.iter().map(|e| find(&mut parent, e.row)).collect();
+    let mut start = parent;
+    start.fill(0);
+    for &r in &roots {
+        start[r] += 1;
+    }
+    let mut ends = Vec::new();
+    let mut at = 0;
+    for count in &mut start {
+        let n = *count;
+        *count = at;
+        at += n;
+        if n > 0 {
+            ends.push(at);
+        }
+    }
+    let mut flat: Vec<&Edge> = Vec::with_capacity(edges.len());
+    flat.resize(edges.len(), &PLACEHOLDER);
+    for (&r, &e) in roots.iter().zip(edges) {
+        flat[start[r]] = e;
+        start[r] += 1;
     }
     Components { flat, ends }
 }
+
+/// What fills [`Components::flat`] before every place is written.
+const PLACEHOLDER: Edge = Edge {
+    row: 0,
+    col: 0,
+    cost: 0.0,
+};
 
 /// The edges of every component one after another, and where each component ends: one list for
 /// a frame, not one per component (most components of a frame are one track and one box).
