@@ -52,7 +52,7 @@ impl Lines {
     fn next_row(&mut self, raw: &str) -> Result<Option<Detection>, Error> {
         self.line += 1;
         let line = self.line;
-        let l = raw.trim();
+        let l = crate::text::trim(raw);
         if l.is_empty() || l.starts_with('#') {
             return Ok(None);
         }
@@ -116,7 +116,7 @@ fn cut_fields(l: &str) -> ([&str; 8], usize) {
     {
         if b == b',' {
             if count < cut.len() {
-                cut[count] = l.get(start..k).unwrap_or("").trim();
+                cut[count] = crate::text::trim(l.get(start..k).unwrap_or(""));
             }
             count += 1;
             start = k + 1;

@@ -94,7 +94,7 @@ pub(super) fn read(text: &str) -> Result<ReadReport, Error> {
     let mut vector = Vec::new();
     for (i, raw) in text.lines().enumerate() {
         let line = i + 1;
-        let l = raw.trim();
+        let l = crate::text::trim(raw);
         if l.is_empty() || l.starts_with('#') {
             continue;
         }
