@@ -13,6 +13,7 @@ pub mod assign;
 pub mod bridge;
 mod config;
 pub mod files;
+mod gallery;
 pub mod kalman;
 pub mod methods;
 pub mod stream;

@@ -2,12 +2,12 @@
 //! frame at a time. The chosen method decides only the association (see `methods/`); everything
 //! else about a track's life is the same for every method.
 
+use super::gallery::Gallery;
 use super::kalman::{BoxMotion, KalmanFilter};
 use super::{Track, TrackBox, TrackerConfig, Tracks};
 use crate::detections::{Detection, Detections};
 use crate::geometry::BBox;
 use std::cell::Cell;
-use std::collections::VecDeque;
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 enum Phase {
@@ -32,7 +32,7 @@ pub(crate) struct LiveTrack {
     class_votes: Vec<(u16, u32)>,
     boxes: Vec<TrackBox>,
     /// Unit-length appearance vectors of its latest detections (DeepSORT's gallery).
-    pub(crate) gallery: VecDeque<Vec<f32>>,
+    pub(crate) gallery: Gallery,
 }
 
 impl LiveTrack {
@@ -184,10 +184,7 @@ impl Tracker {
             vote(&mut t.class_votes, c);
         }
         if let Some(e) = embedding {
-            if t.gallery.len() == gallery_size {
-                t.gallery.pop_front();
-            }
-            t.gallery.push_back(e);
+            t.gallery.push(&e, gallery_size);
         }
         if t.phase == Phase::Coasting {
             t.phase = Phase::Confirmed;
@@ -234,7 +231,7 @@ impl Tracker {
             score_sum: 0.0,
             class_votes: Vec::new(),
             boxes: Vec::new(),
-            gallery: VecDeque::new(),
+            gallery: Gallery::default(),
         }));
         self.record(self.live.len() - 1, frame, det, ctx);
     }

@@ -26,21 +26,6 @@ fn defaults(base: TrackerConfig) -> TrackerConfig {
     base
 }
 
-/// Cosine distance between a unit vector and the closest vector of a gallery.
-fn gallery_distance(gallery: &std::collections::VecDeque<Vec<f32>>, e: &[f32]) -> f64 {
-    gallery
-        .iter()
-        .map(|g| {
-            let dot: f64 = g
-                .iter()
-                .zip(e)
-                .map(|(a, b)| f64::from(*a) * f64::from(*b))
-                .sum();
-            1.0 - dot
-        })
-        .fold(f64::INFINITY, f64::min)
-}
-
 /// Appearance costs between one cascade level's tracks and the detections still unmatched, for the
 /// pairs inside each track's motion gate (in a crowd, only the `MAX_CANDIDATES` nearest by motion).
 fn appearance_edges(
@@ -81,7 +66,7 @@ fn appearance_edges(
                 edges.push(Edge {
                     row: r,
                     col: k,
-                    cost: gallery_distance(&t.gallery, e),
+                    cost: t.gallery.distance(e),
                 });
             }
         }
