@@ -9,6 +9,7 @@
 //
 // Prints one JSON object (seconds): {load, track, count, total, progress: {...}, core: {...}}.
 import { readFileSync } from "node:fs";
+import { basename } from "node:path";
 import { serveSite, launch } from "../browser/harness.mjs";
 
 const [detections, plan, runsArg] = process.argv.slice(2);
@@ -36,7 +37,7 @@ async function inThePage(browser, origin) {
   await page.goto(`${origin}/`);
   await page.waitForSelector("body[data-ready=true]", { timeout: 30000 });
   await page.getByLabel("Open plan").setInputFiles(plan);
-  await page.waitForFunction(() => document.getElementById("plan-name").textContent !== "none");
+  await page.waitForFunction((name) => document.getElementById("plan-name").textContent.includes(name), basename(plan));
   await page.evaluate(() => {
     const w = /** @type {any} */ (window);
     w.benchSamples = [];
