@@ -21,6 +21,8 @@ export class FilesPanel {
     this.messages = messages;
     this.footageName = byId("footage-name", HTMLElement);
     this.detectionsName = byId("detections-name", HTMLElement);
+    /** Moves while the core reads a detections file (in one call: it has no steps to count). */
+    this.detectionsBar = byId("detections-progress", HTMLProgressElement);
     this.planName = byId("plan-name", HTMLElement);
     /** @type {((text: string, name: string) => void) | null} opens a project file (project-panel.js), once there is one */
     this.openProject = null;
@@ -86,6 +88,7 @@ export class FilesPanel {
   async openDetections(bytes, name) {
     this.messages.clear("detections");
     this.detectionsName.textContent = `${name} (reading…)`;
+    this.detectionsBar.hidden = false;
     try {
       const source = new Blob([bytes]); // a copy: the bytes themselves go to the worker
       const summary = await this.client.loadDetections(bytes);
@@ -98,6 +101,8 @@ export class FilesPanel {
     } catch (e) {
       this.detectionsName.textContent = `${name}: not read`;
       this.messages.say("detections", "error", `${name} could not be read: ${/** @type {Error} */ (e).message}`);
+    } finally {
+      this.detectionsBar.hidden = true;
     }
   }
 

@@ -4,6 +4,8 @@
 //! method: they point at the mistakes trackers make near a line (a walker broken in two, two
 //! walkers joined, a shadow, someone unseen in a crowd).
 
+use std::collections::HashMap;
+
 use crate::edits::Way;
 use crate::geometry::{BBox, Point};
 use crate::plan::{Anchor, Plan};
@@ -87,9 +89,20 @@ pub fn doubts(
         .iter()
         .filter(|e| e.kind == EventKind::Screenline && !e.added)
         .collect();
+    let mut by_id: HashMap<u32, &Track> = HashMap::new();
+    for t in &tracks.tracks {
+        by_id.entry(t.id).or_insert(t);
+    }
+    // In time order (as the report writes them), the crossings more than CLOSE_SECONDS before one
+    // cannot be close to it nor to any after it, so they are passed over for good.
+    let in_time_order = crossings.windows(2).all(|w| w[0].seconds <= w[1].seconds);
+    let mut from = 0;
     let mut out = Vec::new();
     for (k, e) in crossings.iter().enumerate() {
-        crossing_doubts(e, &crossings[..k], tracks, fps, &mut out);
+        while in_time_order && e.seconds - crossings[from].seconds > CLOSE_SECONDS {
+            from += 1;
+        }
+        crossing_doubts(e, &crossings[from..k], &by_id, fps, &mut out);
     }
     let extent = picture.unwrap_or_else(|| extent_of(tracks));
     let footage = (fps, report.frame_count);
@@ -110,9 +123,12 @@ pub fn doubts(
 /// all their reasons, and the weights added.
 fn grouped(doubts: Vec<Doubt>) -> Vec<Doubt> {
     let mut out: Vec<Doubt> = Vec::new();
+    // Where each key's entry is in `out`: an hour of a busy scene has thousands of moments.
+    let mut at: HashMap<String, usize> = HashMap::new();
     for d in doubts {
-        match out.iter_mut().find(|o| o.key == d.key) {
-            Some(o) => {
+        match at.get(&d.key) {
+            Some(&k) => {
+                let o = &mut out[k];
                 o.weight += d.weight;
                 o.kinds.extend(d.kinds);
                 o.why.extend(d.why);
@@ -122,7 +138,10 @@ fn grouped(doubts: Vec<Doubt>) -> Vec<Doubt> {
                     }
                 }
             }
-            None => out.push(d),
+            None => {
+                at.insert(d.key.clone(), out.len());
+                out.push(d);
+            }
         }
     }
     out
@@ -156,19 +175,26 @@ fn doubt(kind: DoubtKind, e: &Event, tracks: Vec<u32>, why: String, weight: u32)
     }
 }
 
-/// The boxes of a counted track (all its tracker ids).
+/// The boxes of a counted track (all its tracker ids), from the tracks by id.
 fn boxes_of<'a>(
-    tracks: &'a Tracks,
+    by_id: &'a HashMap<u32, &'a Track>,
     ids: &'a [u32],
 ) -> impl Iterator<Item = &'a crate::track::TrackBox> {
     ids.iter()
-        .filter_map(|id| tracks.tracks.iter().find(|t| t.id == *id))
+        .filter_map(|id| by_id.get(id))
         .flat_map(|t| &t.boxes)
 }
 
-fn crossing_doubts(e: &Event, earlier: &[&Event], tracks: &Tracks, fps: f64, out: &mut Vec<Doubt>) {
+/// The doubts about crossing `e`; `earlier` holds the crossings before it that may be close to it.
+fn crossing_doubts(
+    e: &Event,
+    earlier: &[&Event],
+    by_id: &HashMap<u32, &Track>,
+    fps: f64,
+    out: &mut Vec<Doubt>,
+) {
     let ids = &e.track_ids;
-    let boxes: Vec<_> = boxes_of(tracks, ids).collect();
+    let boxes: Vec<_> = boxes_of(by_id, ids).collect();
     let seen = boxes.iter().filter(|b| b.observed).count();
     let span = match (boxes.first(), boxes.last()) {
         (Some(a), Some(b)) => f64::from(b.frame - a.frame + 1) / fps,

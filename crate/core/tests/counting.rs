@@ -215,6 +215,33 @@ fn a_fragment_starting_past_the_line_is_joined_and_counted_once() {
 }
 
 #[test]
+fn fragments_are_joined_up_to_the_join_gap_and_not_one_frame_more() {
+    // docs/counting-rules.md: a track starting at most `join_seconds` (2 s: 20 frames at 10 fps)
+    // after one ended. Track 1 ends at frame 10 at y = 190 heading down 4 px a frame; the later
+    // piece starts where it would be. Others start before, during and long after, far away.
+    let a = track(1, "pedestrian", &walk(1, 10, 100.0, 154.0, 0.0, 4.0));
+    let others = [(1, 3), (5, 4), (12, 5), (200, 6)]
+        .map(|(f0, id)| track(id, "pedestrian", &walk(f0, 10, 380.0, 20.0, 0.0, 1.0)));
+    for (gap, joined) in [(20, true), (21, false)] {
+        let later = track(
+            2,
+            "pedestrian",
+            &walk(10 + gap, 10, 100.0, 190.0 + 4.0 * f64::from(gap), 0.0, 4.0),
+        );
+        let mut list = vec![a.clone(), later];
+        list.extend(others.iter().cloned());
+        let r = run(LINE, list);
+        let joins: Vec<[u32; 2]> = r.joins.iter().map(|j| j.tracks).collect();
+        assert_eq!(
+            joins,
+            if joined { vec![[1, 2]] } else { vec![] },
+            "gap {gap}"
+        );
+        check_line(&r, u64::from(joined), 0);
+    }
+}
+
+#[test]
 fn intervals_carry_wall_clock_labels_and_classes() {
     // 10 frames per second, 1-minute intervals, 3 minutes of footage.
     let plan = r#"{"frame_rate": 10, "start": "2026-03-02T07:59:30", "interval_minutes": 1,

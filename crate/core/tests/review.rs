@@ -92,6 +92,23 @@ fn two_crossings_close_together_are_doubted_once() {
 }
 
 #[test]
+fn crossings_within_a_second_are_close_and_a_later_one_is_not() {
+    // Three walkers on one path: the second crosses 0.9 s after the first (close), the third
+    // 1.2 s after the second and 2.1 s after the first (close to neither).
+    let q = queue(vec![
+        walk(1, 1, 90, (200.0, 50.0), (0.0, 4.0), 0.9),
+        walk(2, 10, 80, (200.0, 50.0), (0.0, 4.0), 0.9),
+        walk(3, 22, 70, (200.0, 50.0), (0.0, 4.0), 0.9),
+    ]);
+    let close: Vec<&Vec<u32>> = q
+        .iter()
+        .filter(|d| d.kinds.contains(&DoubtKind::CloseTogether))
+        .map(|d| &d.tracks)
+        .collect();
+    assert_eq!(close, vec![&vec![1, 2]], "{q:#?}");
+}
+
+#[test]
 fn a_crossing_the_detector_barely_saw_is_doubted() {
     let q = queue(vec![walk(1, 1, 90, (200.0, 50.0), (0.0, 4.0), 0.3)]);
     assert_eq!(kinds(&q), vec![DoubtKind::BarelySeen], "{q:#?}");

@@ -75,16 +75,23 @@ impl Session {
     /// keeps this one array to draw boxes and trails without asking again for every frame.
     #[wasm_bindgen(js_name = allBoxes)]
     pub fn all_boxes(&self) -> Float32Array {
-        let mut rows: Vec<[f32; FRAME_BOX_STRIDE]> = Vec::new();
-        for t in self.shown() {
-            for b in &t.boxes {
-                let mut row = [b.frame as f32; FRAME_BOX_STRIDE];
-                row[1..].copy_from_slice(&box_values(t.id, b));
-                rows.push(row);
-            }
+        // Sorted by an integer key (frame, id), which is unique, so an unstable sort gives the
+        // one order; then copied once into the array (an hour of boxes is millions of them).
+        let mut rows: Vec<(u64, &track::TrackBox, u32)> = self
+            .shown()
+            .flat_map(|t| {
+                t.boxes
+                    .iter()
+                    .map(|b| ((u64::from(b.frame) << 32) | u64::from(t.id), b, t.id))
+            })
+            .collect();
+        rows.sort_unstable_by_key(|r| r.0);
+        let mut values = Vec::with_capacity(rows.len() * FRAME_BOX_STRIDE);
+        for (_, b, id) in rows {
+            values.push(b.frame as f32);
+            values.extend_from_slice(&box_values(id, b));
         }
-        rows.sort_by(|a, b| a[0].total_cmp(&b[0]).then(a[1].total_cmp(&b[1])));
-        Float32Array::from(rows.concat().as_slice())
+        Float32Array::from(values.as_slice())
     }
 
     /// The tracks (after edits) without their boxes: `[{id, class, first_frame, last_frame, seen,

@@ -138,7 +138,17 @@ impl Session {
     /// Sets the counting plan from its JSON text; errors name the field to fix.
     #[wasm_bindgen(js_name = setPlan)]
     pub fn set_plan(&mut self, json: &str) -> Result<(), JsError> {
-        self.plan = Some(plan::Plan::from_json(json).map_err(js_error)?);
+        let plan = plan::Plan::from_json(json).map_err(js_error)?;
+        // The page gives the plan again after each run, whose tracking counted with it already:
+        // the same plan over the same tracks is the same report, and an hour of tracks takes
+        // seconds to count.
+        if self.plan.as_ref() == Some(&plan) && self.report.is_some() {
+            return match &self.report {
+                Some(Err(e)) => Err(js_error(e)),
+                _ => Ok(()),
+            };
+        }
+        self.plan = Some(plan);
         self.recounted()
     }
 

@@ -42,6 +42,24 @@ pub fn node_in(dir: &str, args: &[&str]) -> Result<(), String> {
     run_in(dir, "node", args, &[(TARGET_DIR_ENV, &target)])
 }
 
+/// Like [`node_in`] from the repository root, but returns what it printed on standard output
+/// (its standard error goes to ours).
+pub fn node_output(args: &[&str]) -> Result<String, String> {
+    let target = target_dir()?.display().to_string();
+    eprintln!("+ node {}", args.join(" "));
+    let out = Command::new("node")
+        .args(args)
+        .env(TARGET_DIR_ENV, &target)
+        .current_dir(root())
+        .stderr(std::process::Stdio::inherit())
+        .output()
+        .map_err(|e| format!("cannot start `node`: {e}"))?;
+    if !out.status.success() {
+        return Err(format!("`node {}` failed ({})", args.join(" "), out.status));
+    }
+    Ok(String::from_utf8_lossy(&out.stdout).into_owned())
+}
+
 /// Whether `program arg` runs and succeeds (e.g. `ffprobe -version`).
 pub fn works(program: &str, arg: &str) -> bool {
     Command::new(program)

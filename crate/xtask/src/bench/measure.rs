@@ -71,3 +71,24 @@ pub fn machine_line() -> String {
         .unwrap_or_default();
     format!("{cpu}, {cores} cores, {date}")
 }
+
+/// The least of `runs` runs of the number a program prints on standard error after `key`.
+pub fn least_reported(runs: usize, program: &str, args: &[&str], key: &str) -> Result<f64, String> {
+    let mut best = f64::INFINITY;
+    for _ in 0..runs.max(1) {
+        let o = std::process::Command::new(program)
+            .args(args)
+            .current_dir(crate::paths::root())
+            .output()
+            .map_err(|e| format!("cannot start {program}: {e}"))?;
+        let err = String::from_utf8_lossy(&o.stderr);
+        let seconds = err
+            .split(key)
+            .nth(1)
+            .and_then(|r| r.split_whitespace().next())
+            .and_then(|v| v.parse::<f64>().ok())
+            .ok_or_else(|| format!("{program} printed no `{key}` time: {err}"))?;
+        best = best.min(seconds);
+    }
+    Ok(best)
+}

@@ -17,6 +17,8 @@
 //!   with the Python loop's own tracking time measured in the same run and a day of one camera
 //!   tracked for the memory goal.
 //! - **Page** ([`page`]; `--page`): finding objects in headless Chromium; printed, not written.
+//!   The page's goals ([`page_hour`], in `--goals`): an hour of detections opened, tracked and
+//!   counted in Chromium, and the core's tracking there against the same calls natively.
 //! - **One crowded frame** ([`big_frame`]; `--big-frame`): 1,000, 10,000 and 100,000 overlapping
 //!   boxes in one frame, tracked with `sort`: time and peak memory of the association.
 
@@ -33,12 +35,14 @@ mod judge;
 mod measure;
 mod methods;
 mod page;
+mod page_hour;
 mod peer;
 mod scene;
 mod table;
 mod tracking;
 
-/// `bench [--quick | --grid | --counts | --detector | --events | --goals | --page | --big-frame]`.
+/// `bench [--quick | --grid | --counts | --detector | --events | --goals [--page-only] | --page |
+/// --big-frame]`.
 pub fn bench(args: &[String]) -> Result<(), String> {
     let has = |flag: &str| args.iter().any(|a| a == flag);
     if has("--big-frame") {
@@ -49,6 +53,9 @@ pub fn bench(args: &[String]) -> Result<(), String> {
     }
     if has("--detector") {
         return detector::detector_bench(has("--quick"));
+    }
+    if has("--goals") && has("--page-only") {
+        return goals::page_goals_bench(has("--quick"));
     }
     if has("--goals") {
         return goals::goals_bench(has("--quick"));
