@@ -251,6 +251,13 @@ pub struct MotionGate {
 }
 
 impl MotionGate {
+    /// The centre x a box must have to pass the gate, widened by `slack` pixels on each side (so
+    /// that rounding in [`Self::distance_sq`] never lets pass a box outside it).
+    pub fn centre_x_span(&self, slack: f64) -> (f64, f64) {
+        let (m, b) = (self.mean[0], self.bounds[0] + slack);
+        (m - b, m + b)
+    }
+
     /// Squared Mahalanobis distance of a box, or `None` when it is beyond the gate.
     pub fn distance_sq(&self, b: &BBox) -> Option<f64> {
         let y = measurement(b) - self.mean;

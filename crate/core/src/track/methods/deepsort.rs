@@ -39,6 +39,16 @@ fn appearance_edges(
     let c = &tracker.config;
     let mut edges = Vec::new();
     let mut near: Vec<(f64, usize)> = Vec::new();
+    // The unmatched detections with an appearance vector by centre x, so that each track measures
+    // only those within its gate's reach in x (then in order, as if all had been measured).
+    let mut by_x: Vec<(f64, usize)> = unmatched
+        .iter()
+        .enumerate()
+        .filter(|&(_, &d)| embeddings[d].is_some())
+        .map(|(k, &d)| (dets[usable[d]].bbox.centre().x, k))
+        .collect();
+    by_x.sort_unstable_by(|a, b| a.0.total_cmp(&b.0).then(a.1.cmp(&b.1)));
+    let mut reach: Vec<usize> = Vec::new();
     for (r, &ti) in tracks.iter().enumerate() {
         let t = &tracker.live[ti];
         if t.gallery.is_empty() {
@@ -47,12 +57,15 @@ fn appearance_edges(
         let Some(gate) = tracker.motion.gate(&t.kf, c.max_mahalanobis) else {
             continue;
         };
+        let (lo, hi) = gate.centre_x_span(1.0);
+        let start = by_x.partition_point(|e| e.0 < lo);
+        let end = by_x.partition_point(|e| e.0 <= hi);
+        reach.clear();
+        reach.extend(by_x[start..end.max(start)].iter().map(|e| e.1));
+        reach.sort_unstable();
         near.clear();
-        for (k, &d) in unmatched.iter().enumerate() {
-            if embeddings[d].is_none() {
-                continue;
-            }
-            if let Some(m) = gate.distance_sq(&dets[usable[d]].bbox) {
+        for &k in &reach {
+            if let Some(m) = gate.distance_sq(&dets[usable[unmatched[k]]].bbox) {
                 near.push((m, k));
             }
         }
