@@ -92,6 +92,8 @@ pub(super) fn read(text: &str) -> Result<ReadReport, Error> {
     let mut columns: Option<CsvColumns> = None;
     out.rows.reserve(super::line_count(text));
     let mut vector = Vec::new();
+    // The appearance columns' names for messages, made once rather than for every value.
+    let mut embedding_names: Vec<String> = Vec::new();
     for (i, raw) in text.lines().enumerate() {
         let line = i + 1;
         let l = crate::text::trim(raw);
@@ -102,6 +104,7 @@ pub(super) fn read(text: &str) -> Result<ReadReport, Error> {
         let Some(cols) = &columns else {
             let cols = csv_columns(&fields, line)?;
             out.embedding_dim = cols.embedding.len();
+            embedding_names = (0..cols.embedding.len()).map(|k| format!("e{k}")).collect();
             columns = Some(cols);
             continue;
         };
@@ -126,8 +129,8 @@ pub(super) fn read(text: &str) -> Result<ReadReport, Error> {
         );
         let score = get(cols.score, "score")?;
         vector.clear();
-        for (k, &c) in cols.embedding.iter().enumerate() {
-            vector.push(get(c, &format!("e{k}"))? as f32);
+        for (&c, name) in cols.embedding.iter().zip(&embedding_names) {
+            vector.push(get(c, name)? as f32);
         }
         let Some(bbox) = checked_box(b, line, cols.w + 1, &mut warnings)? else {
             continue;
