@@ -44,20 +44,46 @@ impl Gallery {
     /// product summed in f64 over the values in order); infinite when empty. The closest does not
     /// depend on the order the vectors are looked at in.
     pub(crate) fn distance(&self, e: &[f32]) -> f64 {
-        if self.dim == 0 {
+        let dim = self.dim;
+        if dim == 0 {
             return f64::INFINITY;
         }
-        self.data
-            .chunks_exact(self.dim)
-            .map(|g| {
-                let dot: f64 = g
-                    .iter()
-                    .zip(e)
-                    .map(|(a, b)| f64::from(*a) * f64::from(*b))
-                    .sum();
-                1.0 - dot
-            })
-            .fold(f64::INFINITY, f64::min)
+        let plain = |g: &[f32]| -> f64 {
+            let dot: f64 = g
+                .iter()
+                .zip(e)
+                .map(|(a, b)| f64::from(*a) * f64::from(*b))
+                .sum();
+            1.0 - dot
+        };
+        if e.len() < dim {
+            // Never with one file's vectors (all of one length); kept to the shorter length.
+            return self
+                .data
+                .chunks_exact(dim)
+                .map(plain)
+                .fold(f64::INFINITY, f64::min);
+        }
+        // Four vectors at a time: four sums in flight instead of one chain of additions, each
+        // summed in the order one vector alone would be (the closest is the same).
+        let mut closest = f64::INFINITY;
+        let mut four = self.data.chunks_exact(4 * dim);
+        for g in &mut four {
+            let mut dots = [0.0f64; 4];
+            for (d, &x) in e[..dim].iter().enumerate() {
+                let x = f64::from(x);
+                for (j, dot) in dots.iter_mut().enumerate() {
+                    *dot += f64::from(g[j * dim + d]) * x;
+                }
+            }
+            for dot in dots {
+                closest = closest.min(1.0 - dot);
+            }
+        }
+        for g in four.remainder().chunks_exact(dim) {
+            closest = closest.min(plain(g));
+        }
+        closest
     }
 }
 
@@ -70,9 +96,9 @@ mod tests {
     fn keeps_the_latest_vectors_as_a_queue_would() {
         // Against a plain queue of vectors (the form it replaced): the same distances after every
         // push, full or not.
-        let size = 3;
+        let size = 9;
         let (mut g, mut q) = (Gallery::default(), VecDeque::<Vec<f32>>::new());
-        for k in 0..10u8 {
+        for k in 0..12u8 {
             let v = [f32::from(k).sin(), f32::from(k).cos()];
             g.push(&v, size);
             if q.len() == size {
