@@ -32,12 +32,21 @@ pub fn as_text(bytes: &[u8]) -> Result<&str, Error> {
 /// Splits a CSV line on commas, honouring double quotes around a field.
 pub fn split_fields(line: &str) -> Vec<&str> {
     let mut fields = Vec::new();
+    split_fields_into(line, &mut fields);
+    fields
+}
+
+/// [`split_fields`] into a list kept from line to line (cleared first). Commas and quotes are
+/// ASCII, so the bytes are looked at, not decoded: no other character's bytes can be taken for
+/// them.
+pub fn split_fields_into<'a>(line: &'a str, fields: &mut Vec<&'a str>) {
+    fields.clear();
     let mut start = 0;
     let mut in_quotes = false;
-    for (i, ch) in line.char_indices() {
-        match ch {
-            '"' => in_quotes = !in_quotes,
-            ',' if !in_quotes => {
+    for (i, &b) in line.as_bytes().iter().enumerate() {
+        match b {
+            b'"' => in_quotes = !in_quotes,
+            b',' if !in_quotes => {
                 fields.push(unquote(&line[start..i]));
                 start = i + 1;
             }
@@ -45,7 +54,6 @@ pub fn split_fields(line: &str) -> Vec<&str> {
         }
     }
     fields.push(unquote(&line[start..]));
-    fields
 }
 
 /// [`str::trim`], quicker for the usual field that starts and ends with a visible ASCII

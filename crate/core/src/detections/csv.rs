@@ -6,7 +6,7 @@ use super::{
 };
 use crate::error::{Error, ErrorKind};
 use crate::geometry::BBox;
-use crate::text::{frame_number, number, split_fields};
+use crate::text::{frame_number, number, split_fields_into};
 use std::collections::HashMap;
 
 struct CsvColumns {
@@ -94,13 +94,14 @@ pub(super) fn read(text: &str) -> Result<ReadReport, Error> {
     let mut vector = Vec::new();
     // The appearance columns' names for messages, made once rather than for every value.
     let mut embedding_names: Vec<String> = Vec::new();
+    let mut fields = Vec::new();
     for (i, raw) in text.lines().enumerate() {
         let line = i + 1;
         let l = crate::text::trim(raw);
         if l.is_empty() || l.starts_with('#') {
             continue;
         }
-        let fields = split_fields(l);
+        split_fields_into(l, &mut fields);
         let Some(cols) = &columns else {
             let cols = csv_columns(&fields, line)?;
             out.embedding_dim = cols.embedding.len();
