@@ -260,7 +260,7 @@ impl Background {
             dev: &self.dev,
             bg_u: &self.bg_u,
             bg_v: &self.bg_v,
-            lit_level: levels(|l| lit(l, gain)),
+            gain,
             // The threshold in sixteenths, so the per-pixel test stays in integers.
             factor: (c.deviation_factor * 16.0).round().clamp(0.0, 4096.0) as u32,
             min_difference: u32::from(c.min_difference),

@@ -10,8 +10,8 @@ pub(super) struct Test<'a> {
     pub(super) dev: &'a [u8],
     pub(super) bg_u: &'a [u8],
     pub(super) bg_v: &'a [u8],
-    /// The background's level seen at this picture's light.
-    pub(super) lit_level: [u8; 256],
+    /// This picture's light against the background's, in 65536ths.
+    pub(super) gain: u32,
     /// The threshold's factor on the deviation, in sixteenths.
     pub(super) factor: u32,
     pub(super) min_difference: u32,
@@ -22,42 +22,41 @@ pub(super) struct Test<'a> {
 
 impl Test<'_> {
     /// Marks the foreground of the rows from `y0` (as many as `mask` holds) and counts each pixel's
-    /// frames in a row changed (`run`, the same rows).
+    /// frames in a row changed (`run`, the same rows). Two passes a row: the test against the
+    /// threshold, branch-free so it vectorises; then shadows taken out of the few pixels marked.
     pub(super) fn rows(&self, y0: usize, mask: &mut [u8], run: &mut [u16]) {
         let w = self.pic.width;
         let (cw, _) = Picture::chroma_size(w, self.pic.height);
+        let (factor, least, gain) = (self.factor, self.min_difference, self.gain);
         for (r, (mask, run)) in mask.chunks_mut(w).zip(run.chunks_mut(w)).enumerate() {
-            let yy = y0 + r;
-            let crow = (yy / 2) * cw;
-            for xx in 0..w {
-                let i = yy * w + xx;
-                let p = self.pic.y[i];
-                let b = self.lit_level[usize::from(self.bg[i])];
-                let d = p.abs_diff(b);
-                let limit = ((u32::from(self.dev[i]) * self.factor) >> 4).max(self.min_difference);
+            let at = (y0 + r) * w;
+            let (y, bg) = (&self.pic.y[at..at + w], &self.bg[at..at + w]);
+            let pixels = (mask.iter_mut().zip(run.iter_mut()))
+                .zip(y.iter().zip(bg).zip(&self.dev[at..at + w]));
+            for ((m, run), ((&p, &b), &dev)) in pixels {
+                let d = p.abs_diff(lit(b, gain));
+                let limit = ((u32::from(dev) * factor) >> 4).max(least);
                 // `changed`: not the background (an object or its shadow). Shadows are left out of
                 // the mask but not learnt either, or a lingering shadow would leave a ghost.
                 let changed = u32::from(d) > limit;
-                let mut fg = changed;
-                if fg && p < b {
-                    if let Some((u, v)) = self.pic.uv {
-                        let ci = crow + xx / 2;
-                        let ratio = f32::from(p) / f32::from(b.max(1));
-                        if ratio >= self.shadow_low
-                            && ratio <= self.shadow_high
-                            && u[ci].abs_diff(self.bg_u[ci]) <= self.shadow_chroma
-                            && v[ci].abs_diff(self.bg_v[ci]) <= self.shadow_chroma
-                        {
-                            fg = false;
-                        }
+                *m = u8::from(changed);
+                *run = if changed { run.saturating_add(1) } else { 0 };
+            }
+            if let Some((u, v)) = self.pic.uv {
+                let crow = ((y0 + r) / 2) * cw;
+                for (xx, m) in mask.iter_mut().enumerate().filter(|(_, m)| **m != 0) {
+                    let (p, b) = (y[xx], lit(bg[xx], gain));
+                    let ci = crow + xx / 2;
+                    let ratio = f32::from(p) / f32::from(b.max(1));
+                    if p < b
+                        && ratio >= self.shadow_low
+                        && ratio <= self.shadow_high
+                        && u[ci].abs_diff(self.bg_u[ci]) <= self.shadow_chroma
+                        && v[ci].abs_diff(self.bg_v[ci]) <= self.shadow_chroma
+                    {
+                        *m = 0;
                     }
                 }
-                mask[xx] = u8::from(fg);
-                run[xx] = if changed {
-                    run[xx].saturating_add(1)
-                } else {
-                    0
-                };
             }
         }
     }
@@ -69,6 +68,7 @@ pub(super) struct Learning<'a> {
     pub(super) fg_run: &'a [u16],
     /// 1 inside an object's box.
     pub(super) covered: &'a [u8],
+    /// The background's level at this picture's light.
     pub(super) lit_level: [u8; 256],
     /// A picture's level at the background's light.
     pub(super) unlit_level: [u8; 256],
@@ -84,22 +84,42 @@ impl Learning<'_> {
     }
 
     /// Moves the background and deviation of the luma pixels from `i0` (as many as `bg` holds).
+    /// Each pixel's three outcomes are worked out and one chosen, without branches, so it
+    /// vectorises; a picture's levels go through the table first, a piece at a time.
     pub(super) fn luma(&self, i0: usize, bg: &mut [u8], dev: &mut [u8]) {
-        let n = bg.len();
-        let pixels = (bg.iter_mut().zip(dev.iter_mut()))
-            .zip(
-                self.fg_run[i0..i0 + n]
-                    .iter()
-                    .zip(&self.covered[i0..i0 + n]),
-            )
-            .zip(&self.pic.y[i0..i0 + n]);
-        for (((bg, dev), (&run, &c)), &p) in pixels {
-            if self.calm(run, c) {
-                let d = p.abs_diff(self.lit_level[usize::from(*bg)]);
-                *bg = toward(*bg, self.unlit_level[usize::from(p)], 1);
-                *dev = toward(*dev, d, 1).max(2);
-            } else if run >= self.still_frames {
-                *bg = toward(*bg, self.unlit_level[usize::from(p)], 3);
+        const PIECE: usize = 256;
+        let (mut target, mut seen) = ([0u8; PIECE], [0u8; PIECE]);
+        for (k, (bg, dev)) in bg.chunks_mut(PIECE).zip(dev.chunks_mut(PIECE)).enumerate() {
+            let (at, n) = (i0 + k * PIECE, bg.len());
+            let y = &self.pic.y[at..at + n];
+            for ((t, s), (&p, &b)) in target.iter_mut().zip(&mut seen).zip(y.iter().zip(&*bg)) {
+                *t = self.unlit_level[usize::from(p)];
+                *s = self.lit_level[usize::from(b)];
+            }
+            // Every slice cut to `n` and indexed: the bounds checks go and the loop vectorises.
+            let (bg, dev, y) = (&mut bg[..n], &mut dev[..n], &y[..n]);
+            let (run, covered) = (&self.fg_run[at..at + n], &self.covered[at..at + n]);
+            let (target, seen) = (&target[..n], &seen[..n]);
+            let (slow_turn, still_frames) = (self.slow_turn, self.still_frames);
+            for x in 0..n {
+                // `&` and `|`, not `&&` and `||`: no branch.
+                let calm = (run[x] == 0) & ((covered[x] == 0) | slow_turn);
+                let still = run[x] >= still_frames;
+                let b = bg[x];
+                let d = y[x].abs_diff(seen[x]);
+                let (one, three) = (toward(b, target[x], 1), toward(b, target[x], 3));
+                dev[x] = if calm {
+                    toward(dev[x], d, 1).max(2)
+                } else {
+                    dev[x]
+                };
+                bg[x] = if calm {
+                    one
+                } else if still {
+                    three
+                } else {
+                    b
+                };
             }
         }
     }
@@ -148,8 +168,9 @@ pub(super) fn levels(f: impl Fn(u8) -> u8) -> [u8; 256] {
     std::array::from_fn(|l| f(l as u8))
 }
 
-/// Moves `from` up to `step` levels towards `to`.
-pub(super) fn toward(from: u8, to: u8, step: i16) -> u8 {
-    let d = i16::from(to) - i16::from(from);
-    (i16::from(from) + d.clamp(-step, step)) as u8
+/// Moves `from` up to `step` levels towards `to` (in saturating bytes, which vectorise).
+pub(super) fn toward(from: u8, to: u8, step: u8) -> u8 {
+    let up = to.saturating_sub(from).min(step);
+    let down = from.saturating_sub(to).min(step);
+    from + up - down
 }
