@@ -66,6 +66,7 @@ pub fn goals_bench(quick: bool) -> Result<(), String> {
         goal: "< 1 s",
         met: Some(seconds < 1.0),
     });
+    lines.push(page_detector_line());
     lines.extend(unmeasured());
     let table = render(&lines, quick);
     write_section("<!-- goals:begin -->", "<!-- goals:end -->", &table)?;
@@ -204,7 +205,6 @@ fn unmeasured() -> Vec<Line> {
     [
         ("wasm build in Chromium / native, same input", "≤ 1.5x"),
         ("one hour of detections (90,000 frames, 30 boxes) loaded, tracked and counted in the page", "< 10 s"),
-        ("720p footage searched by the fixed-camera detector in the page", "≥ 2x real time"),
     ]
     .into_iter()
     .map(|(figure, goal)| Line {
@@ -214,6 +214,39 @@ fn unmeasured() -> Vec<Line> {
         met: None,
     })
     .collect()
+}
+
+/// 720p footage (25 fps) searched in the page, VP9 WebM and H.264 MP4 (`bench --page`'s script):
+/// the slower container against twice real time; "not measured" when the browser run fails.
+fn page_detector_line() -> Line {
+    let figure = "720p footage (25 fps) searched by the fixed-camera detector in the page".into();
+    let goal = "≥ 2x real time (50 frames/s)";
+    let rates = match super::page::page_720p() {
+        Ok(rates) => rates,
+        Err(e) => {
+            eprintln!("the page's detector was not measured: {e}");
+            Vec::new()
+        }
+    };
+    let slowest = rates.iter().map(|(_, r)| r.unwrap_or(0.0)).reduce(f64::min);
+    let value = rates
+        .iter()
+        .map(|(c, r)| match r {
+            Some(r) => format!("{r:.0} frames/s ({c}, {:.1}x)", r / 25.0),
+            None => format!("{c}: not decoded in the page"),
+        })
+        .collect::<Vec<_>>()
+        .join(", ");
+    Line {
+        figure,
+        value: if value.is_empty() {
+            "—".into()
+        } else {
+            value
+        },
+        goal,
+        met: slowest.map(|r| r >= 50.0),
+    }
 }
 
 fn render(lines: &[Line], quick: bool) -> String {
