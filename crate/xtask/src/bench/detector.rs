@@ -151,8 +151,14 @@ fn detector_line(bin: &str, s: &DetectorScene, quick: bool) -> Result<String, St
     let c = config.display().to_string();
     let found = dir.join("found.txt").display().to_string();
     let runs = if quick { 1 } else { 3 };
-    let detect = ["detect", "--y4m", &y, "--config", &c, "-o", &found, "--quiet"];
-    let one = best_of(runs, bin, &[&detect[..], &["--stats", "--threads", "1"]].concat())?;
+    let detect = [
+        "detect", "--y4m", &y, "--config", &c, "-o", &found, "--quiet",
+    ];
+    let one = best_of(
+        runs,
+        bin,
+        &[&detect[..], &["--stats", "--threads", "1"]].concat(),
+    )?;
     let m = best_of(runs, bin, &[&detect[..], &["--stats"]].concat())?;
     let (recall, precision, class_right) = found_against_truth(&dir, Path::new(&found), s.frames)?;
     let class_cell = class_right.unwrap_or_else(|| "–".to_string());
