@@ -208,6 +208,8 @@ async function decodeAndSearch(reader, config, { width, height, total }, progres
       }
       const frame = feed.waiting.shift();
       if (frame) {
+        // Frames in flight: the decoder is kept fed (a few frames ahead) while this one is searched.
+        while (feed.waiting.length < 4 && feed.step());
         if (times.length < 250) times.push(frame.timestamp);
         try {
           await use(frame, width, height, scratch);

@@ -6,6 +6,7 @@
 
 mod bridging;
 mod commands;
+mod cores;
 mod files;
 mod handin;
 mod output;

@@ -705,3 +705,51 @@ fn detect_finds_moving_objects_in_footage_from_a_file_and_from_standard_input() 
     ]);
     assert_eq!(both.status.code(), Some(0), "{}", stderr(&both));
 }
+
+#[test]
+fn detect_on_several_threads_writes_the_bytes_of_one() {
+    // A relation between runs (no outside value): each frame's per-pixel work cut into bands on
+    // threads gives the one-thread boxes, byte for byte, with and without the heights.
+    let dir = scratch("detect-threads");
+    let d = dir.display().to_string();
+    let y4m = dir.join("frames.y4m").display().to_string();
+    let o = throughline(&[
+        "simulate",
+        "--out-dir",
+        &d,
+        "--frames",
+        "60",
+        "--width",
+        "320",
+        "--height",
+        "180",
+        "--density",
+        "14",
+        "--render",
+        &y4m,
+        "--seed",
+        "9",
+    ]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let heights = write(
+        &dir,
+        "heights.json",
+        br#"{"far_height": 17, "near_height": 46}"#,
+    );
+    for config in [None, Some(heights.as_str())] {
+        let found = |threads: &str| {
+            let mut args = vec!["detect", "--y4m", &y4m, "-q", "--threads", threads];
+            args.extend(config.map(|c| ["--config", c]).into_iter().flatten());
+            let o = throughline(&args);
+            assert!(o.status.success(), "{}", stderr(&o));
+            o.stdout
+        };
+        let one = found("1");
+        assert!(one.len() > 1000, "{} bytes of boxes", one.len());
+        for threads in ["2", "3"] {
+            assert!(found(threads) == one, "{threads} threads, {config:?}");
+        }
+    }
+    let o = throughline(&["detect", "--y4m", &y4m, "--threads", "0"]);
+    assert!(!o.status.success() && stderr(&o).contains("--threads"));
+}

@@ -1,5 +1,6 @@
 //! `throughline detect`: find moving objects in footage from a fixed camera, without any model.
 
+use crate::cores::Cores;
 use crate::files::{bad_input, name, read_settings, Failure};
 use crate::output::{check_paths, Outputs};
 use crate::progress::{self, Timer};
@@ -37,6 +38,10 @@ pub struct Args {
     /// Print the time taken and the peak memory on standard error at the end.
     #[arg(long)]
     stats: bool,
+    /// Threads to search each frame with (the boxes are the same for any number); by default one
+    /// a core.
+    #[arg(long, value_name = "N", value_parser = clap::value_parser!(u16).range(1..=64))]
+    threads: Option<u16>,
 }
 
 pub fn run(args: Args) -> Result<(), Failure> {
@@ -44,7 +49,8 @@ pub fn run(args: Args) -> Result<(), Failure> {
         let footage = &args.y4m;
         let output = args.output.as_deref();
         check_paths(&[Some(footage), args.config.as_deref()], &[output])?;
-        let dets = detect_footage(footage, args.config.as_deref(), args.quiet)?;
+        let cores = Cores::new(args.threads.map(usize::from));
+        let dets = detect_footage(footage, args.config.as_deref(), &cores, args.quiet)?;
         timer.lap("detect");
         let text = detections::to_file_text(&dets);
         match output {
@@ -69,12 +75,14 @@ pub fn run(args: Args) -> Result<(), Failure> {
     })
 }
 
-/// Reads YUV4MPEG2 frames from a file or standard input (`-`) and runs the detector on each. A
-/// file is read twice: once for the background (pictures sampled over the whole clip), then to
-/// detect; standard input only once, the background forming over the opening frames.
+/// Reads YUV4MPEG2 frames from a file or standard input (`-`) and runs the detector on each, its
+/// per-pixel work shared over `cores`. A file is read twice: once for the background (pictures
+/// sampled over the whole clip), then to detect; standard input only once, the background forming
+/// over the opening frames.
 pub fn detect_footage(
     footage: &Path,
     config: Option<&Path>,
+    cores: &Cores,
     quiet: bool,
 ) -> Result<Detections, Failure> {
     let config = match read_settings(config)? {
@@ -104,7 +112,7 @@ pub fn detect_footage(
         let pic = picture(&header, frame, footage)?;
         per_frame.push(
             detector
-                .detect_found(&pic)
+                .detect_found_spread(&pic, cores)
                 .map_err(|e| bad_input(footage, e))?,
         );
         bar.inc(1);

@@ -4,6 +4,7 @@ use super::count::{stage_report, summarise, ReportPaths};
 use super::detect::detect_footage;
 use super::track::{track_detections, track_file, TrackingArgs};
 use crate::bridging::bridge_with_footage;
+use crate::cores::Cores;
 use crate::files::{
     bad_input, bad_usage, read_plan, read_settings, read_work, write_tracks, Failure,
 };
@@ -152,7 +153,8 @@ fn track_source(args: &Args, plan: &Plan) -> Result<throughline_core::Tracks, Fa
                     throughline_core::plan::DEFAULT_HYSTERESIS
                 );
             }
-            let dets = detect_footage(footage, args.detector_config.as_deref(), how.quiet)?;
+            let cores = Cores::new(None);
+            let dets = detect_footage(footage, args.detector_config.as_deref(), &cores, how.quiet)?;
             let tracks = track_detections(&dets, footage, how, settings, &mut timer)?;
             bridge_with_footage(tracks, footage, how.quiet)
         }

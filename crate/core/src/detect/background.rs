@@ -4,6 +4,8 @@
 //! once, over the warm-up); shadows told apart by brightness ratio and chroma. See the module notes
 //! of `detect` for the method and its sources.
 
+use super::pixels::{levels, lit, unlit, Learning, Test, UNIT_GAIN};
+use super::spread::{band_rows, Job, Spread};
 use super::{DetectorConfig, Picture};
 use crate::geometry::BBox;
 use crate::limits;
@@ -238,50 +240,41 @@ impl Background {
     }
 
     /// Marks foreground pixels in `mask` (after the warm-up: see [`Self::ready`]); then
-    /// [`Self::learn`] moves the background towards this picture.
-    pub(super) fn foreground(&mut self, pic: &Picture, c: &DetectorConfig, mask: &mut [u8]) {
-        let w = self.width;
-        let (cw, _) = Picture::chroma_size(self.width, self.height);
-        // The threshold in sixteenths, so the per-pixel test stays in integers.
-        let factor = (c.deviation_factor * 16.0).round().clamp(0.0, 4096.0) as u32;
-        let min_difference = u32::from(c.min_difference);
+    /// [`Self::learn`] moves the background towards this picture. The rows are cut into bands,
+    /// run as `spread` says.
+    pub(super) fn foreground(
+        &mut self,
+        pic: &Picture,
+        c: &DetectorConfig,
+        mask: &mut [u8],
+        spread: &dyn Spread,
+    ) {
+        let n = self.width * self.height;
         // The background is kept at one light; this picture's light against it (a cloud, a
         // camera's exposure) is measured over the pixels that were background in the last one.
         self.gain = self.gain(pic);
-        for yy in 0..self.height {
-            let row = yy * w;
-            let crow = (yy / 2) * cw;
-            for xx in 0..w {
-                let i = row + xx;
-                let p = pic.y[i];
-                let b = lit(self.bg[i], self.gain);
-                let d = p.abs_diff(b);
-                let limit = ((u32::from(self.dev[i]) * factor) >> 4).max(min_difference);
-                // `changed`: not the background (an object or its shadow). Shadows are left out of
-                // the mask but not learnt either, or a lingering shadow would leave a ghost.
-                let changed = u32::from(d) > limit;
-                let mut fg = changed;
-                if fg && p < b {
-                    if let Some((u, v)) = pic.uv {
-                        let ci = crow + xx / 2;
-                        let ratio = f32::from(p) / f32::from(b.max(1));
-                        if ratio >= c.shadow_low
-                            && ratio <= c.shadow_high
-                            && u[ci].abs_diff(self.bg_u[ci]) <= c.shadow_chroma
-                            && v[ci].abs_diff(self.bg_v[ci]) <= c.shadow_chroma
-                        {
-                            fg = false;
-                        }
-                    }
-                }
-                mask[i] = u8::from(fg);
-                self.fg_run[i] = if changed {
-                    self.fg_run[i].saturating_add(1)
-                } else {
-                    0
-                };
-            }
-        }
+        let gain = self.gain;
+        let test = &Test {
+            pic: *pic,
+            bg: &self.bg,
+            dev: &self.dev,
+            bg_u: &self.bg_u,
+            bg_v: &self.bg_v,
+            gain,
+            // The threshold in sixteenths, so the per-pixel test stays in integers.
+            factor: (c.deviation_factor * 16.0).round().clamp(0.0, 4096.0) as u32,
+            min_difference: u32::from(c.min_difference),
+            shadow_low: c.shadow_low,
+            shadow_high: c.shadow_high,
+            shadow_chroma: c.shadow_chroma,
+        };
+        let rows = band_rows(self.height, spread.bands());
+        let bands = mask[..n].chunks_mut(rows * self.width);
+        let runs = self.fg_run.chunks_mut(rows * self.width);
+        let jobs = (bands.zip(runs).enumerate())
+            .map(|(k, (mask, run))| Box::new(move || test.rows(k * rows, mask, run)) as Job)
+            .collect();
+        spread.run(jobs);
     }
 
     /// Moves the background towards the picture [`Self::foreground`] last looked at, by one level
@@ -289,7 +282,13 @@ impl Background {
     /// parts of a person that look like the paving are not learnt, or they would leave a ghost. A
     /// pixel that has been foreground for `still_frames` in a row is a stopped object or a ghost
     /// and is learnt, faster. `covered` is a working buffer of one byte a pixel.
-    pub(super) fn learn(&mut self, pic: &Picture, objects: &[BBox], covered: &mut [u8]) {
+    pub(super) fn learn(
+        &mut self,
+        pic: &Picture,
+        objects: &[BBox],
+        covered: &mut [u8],
+        spread: &dyn Spread,
+    ) {
         let (w, h) = (self.width, self.height);
         covered.fill(0);
         for b in objects {
@@ -300,36 +299,31 @@ impl Background {
             }
         }
         let gain = self.gain;
-        // Inside a box, background-like pixels are learnt on one frame in COVERED_PACE only: the
-        // parts of a person that look like the paving barely move it, but a box that is no
-        // object (the background gone wrong there) still heals.
-        let slow_turn = self.frames_seen.is_multiple_of(COVERED_PACE);
-        for (i, &c) in covered.iter().enumerate().take(w * h) {
-            let p = pic.y[i];
-            if self.fg_run[i] == 0 && (c == 0 || slow_turn) {
-                let d = p.abs_diff(lit(self.bg[i], gain));
-                self.bg[i] = toward(self.bg[i], unlit(p, gain), 1);
-                self.dev[i] = toward(self.dev[i], d, 1).max(2);
-            } else if self.fg_run[i] >= self.still_frames {
-                self.bg[i] = toward(self.bg[i], unlit(p, gain), 3);
-            }
-        }
-        if let Some((u, v)) = pic.uv {
-            let (cw, _) = Picture::chroma_size(w, h);
-            for (i, (bu, bv)) in self.bg_u.iter_mut().zip(self.bg_v.iter_mut()).enumerate() {
-                let li = (i / cw) * 2 * w + (i % cw) * 2;
-                let learn = match (self.fg_run.get(li), covered.get(li)) {
-                    (Some(&r), Some(&c)) => {
-                        (r == 0 && (c == 0 || slow_turn)) || r >= self.still_frames
-                    }
-                    _ => true,
-                };
-                if learn {
-                    *bu = toward(*bu, u[i], 1);
-                    *bv = toward(*bv, v[i], 1);
-                }
-            }
-        }
+        let learning = &Learning {
+            pic: *pic,
+            fg_run: &self.fg_run,
+            covered,
+            lit_level: levels(|l| lit(l, gain)),
+            unlit_level: levels(|l| unlit(l, gain)),
+            // Inside a box, background-like pixels are learnt on one frame in COVERED_PACE only:
+            // the parts of a person that look like the paving barely move it, but a box that is
+            // no object (the background gone wrong there) still heals.
+            slow_turn: self.frames_seen.is_multiple_of(COVERED_PACE),
+            still_frames: self.still_frames,
+        };
+        let rows = band_rows(h, spread.bands());
+        let (cw, _) = Picture::chroma_size(w, h);
+        let luma = (self
+            .bg
+            .chunks_mut(rows * w)
+            .zip(self.dev.chunks_mut(rows * w)))
+        .enumerate()
+        .map(|(k, (bg, dev))| Box::new(move || learning.luma(k * rows * w, bg, dev)) as Job);
+        let chroma = (self.bg_u.chunks_mut(rows / 2 * cw))
+            .zip(self.bg_v.chunks_mut(rows / 2 * cw))
+            .enumerate()
+            .map(|(k, (u, v))| Box::new(move || learning.chroma(k * rows / 2, u, v)) as Job);
+        spread.run(luma.chain(chroma).collect());
     }
 }
 
@@ -355,19 +349,6 @@ impl Background {
 /// Frames per step of learning inside an object's box.
 const COVERED_PACE: u32 = 8;
 
-/// A gain of one, in 65536ths.
-const UNIT_GAIN: u32 = 1 << 16;
-
-/// A background level seen in a picture of light `gain`.
-fn lit(level: u8, gain: u32) -> u8 {
-    ((u32::from(level) * gain + UNIT_GAIN / 2) >> 16).min(255) as u8
-}
-
-/// A picture's level of light `gain` at the background's light.
-fn unlit(level: u8, gain: u32) -> u8 {
-    (((u32::from(level) << 16) + gain / 2) / gain).min(255) as u8
-}
-
 /// Pictures kept to form the first background (sampled evenly over the warm-up).
 const WARM_UP_SAMPLES: u32 = 25;
 
@@ -385,9 +366,3 @@ const STILL_FRAMES_WHOLE_CLIP: u16 = 1_500;
 /// [`limits::MAX_BACKGROUND_SAMPLE_BYTES`]).
 const MIN_CLIP_SAMPLES: usize = 4;
 const MAX_CLIP_SAMPLES: usize = 64;
-
-/// Moves `from` up to `step` levels towards `to`.
-fn toward(from: u8, to: u8, step: i16) -> u8 {
-    let d = i16::from(to) - i16::from(from);
-    (i16::from(from) + d.clamp(-step, step)) as u8
-}

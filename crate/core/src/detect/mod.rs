@@ -24,10 +24,13 @@ mod classify;
 mod config;
 mod mask;
 mod picture;
+mod pixels;
+mod spread;
 
 pub use classify::{APPEARANCE_DIM, GUESSED_CLASSES};
 pub use config::DetectorConfig;
 pub use picture::{rgba_to_yuv420, Picture};
+pub use spread::{InTurn, Job, Spread};
 
 use crate::detections::{Detection, Detections};
 use crate::error::{Error, ErrorKind};
@@ -106,7 +109,17 @@ impl Detector {
 
     /// [`Self::detect`], each box with its appearance vector when `appearance` is on.
     pub fn detect_found(&mut self, pic: &Picture) -> Result<Vec<Found>, Error> {
-        let boxes = self.detect(pic)?;
+        self.detect_found_spread(pic, &InTurn)
+    }
+
+    /// [`Self::detect_found`] with the per-pixel work in bands run as `spread` says (on several
+    /// cores, say): the same boxes however they run.
+    pub fn detect_found_spread(
+        &mut self,
+        pic: &Picture,
+        spread: &dyn Spread,
+    ) -> Result<Vec<Found>, Error> {
+        let boxes = self.detect_spread(pic, spread)?;
         Ok(boxes
             .into_iter()
             .map(|(bbox, score)| Found {
@@ -180,12 +193,21 @@ impl Detector {
     /// Finds the moving objects in the next picture: `(box, score)` with the score the share of the
     /// box that is foreground. A picture of another size than the detector's is refused.
     pub fn detect(&mut self, pic: &Picture) -> Result<Vec<(BBox, f64)>, Error> {
+        self.detect_spread(pic, &InTurn)
+    }
+
+    /// [`Self::detect`] with the per-pixel work in bands run as `spread` says.
+    pub fn detect_spread(
+        &mut self,
+        pic: &Picture,
+        spread: &dyn Spread,
+    ) -> Result<Vec<(BBox, f64)>, Error> {
         self.check_size(pic)?;
         if !self.background.ready(pic, self.config.warm_up_frames) {
             return Ok(Vec::new());
         }
         self.background
-            .foreground(pic, &self.config, &mut self.mask);
+            .foreground(pic, &self.config, &mut self.mask, spread);
         // Clean-up: opening removes specks, closing fills small holes and joins near pixels.
         mask::erode(&mut self.mask, &mut self.scratch, self.width, self.height);
         mask::dilate(&mut self.mask, &mut self.scratch, self.width, self.height);
@@ -196,7 +218,8 @@ impl Detector {
         let blobs = mask::label_components(&self.mask, &mut self.labels, self.width, self.height);
         let found = self.boxes(blobs);
         let objects: Vec<BBox> = found.iter().map(|(b, _)| *b).collect();
-        self.background.learn(pic, &objects, &mut self.scratch);
+        self.background
+            .learn(pic, &objects, &mut self.scratch, spread);
         Ok(found)
     }
 
