@@ -23,6 +23,8 @@ export class FilesPanel {
     this.detectionsName = byId("detections-name", HTMLElement);
     /** Moves while the core reads a detections file (in one call: it has no steps to count). */
     this.detectionsBar = byId("detections-progress", HTMLProgressElement);
+    /** Detections files being read now: the bar stays while any is. */
+    this.readingFiles = 0;
     this.planName = byId("plan-name", HTMLElement);
     /** @type {((text: string, name: string) => void) | null} opens a project file (project-panel.js), once there is one */
     this.openProject = null;
@@ -89,6 +91,7 @@ export class FilesPanel {
     this.messages.clear("detections");
     this.detectionsName.textContent = `${name} (reading…)`;
     this.detectionsBar.hidden = false;
+    this.readingFiles += 1;
     try {
       const source = new Blob([bytes]); // a copy: the bytes themselves go to the worker
       const summary = await this.client.loadDetections(bytes);
@@ -102,7 +105,8 @@ export class FilesPanel {
       this.detectionsName.textContent = `${name}: not read`;
       this.messages.say("detections", "error", `${name} could not be read: ${/** @type {Error} */ (e).message}`);
     } finally {
-      this.detectionsBar.hidden = true;
+      this.readingFiles -= 1;
+      if (this.readingFiles === 0) this.detectionsBar.hidden = true;
     }
   }
 

@@ -103,8 +103,8 @@ struct Batch {
 }
 
 /// Three stages at once, so that a long file keeps both cores busy: reading and parsing, the
-/// tracker (this thread), and putting the boxes in order and writing the text. `Ok(None)` when the reading gave up (nothing is
-/// put in place).
+/// tracker (this thread), and putting the boxes in order and writing the text. `Ok(None)` when
+/// the reading gave up (nothing is put in place).
 fn pipeline(
     file: std::fs::File,
     reader: PieceReader,

@@ -252,23 +252,29 @@ fn close_together(
     let near = earlier.iter().rev().find(|o| {
         o.name == e.name
             && o.track != e.track
-            && e.seconds - o.seconds <= CLOSE_SECONDS
+            && (e.seconds - o.seconds).abs() <= CLOSE_SECONDS
             && (o.x - e.x).hypot(o.y - e.y) <= height.max(1.0)
     });
     if let Some(o) = near {
+        // Named in time order (the list is in time order but for a report put together by hand).
+        let (first, then): (&Event, &Event) = if o.seconds <= e.seconds {
+            (o, e)
+        } else {
+            (e, o)
+        };
         let why = format!(
             "Two crossings of `{}` {:.1} s and {:.0} px apart (tracks {} and {}): one person \
              counted twice, or two people close together?",
             e.name,
-            e.seconds - o.seconds,
+            then.seconds - first.seconds,
             (o.x - e.x).hypot(o.y - e.y),
-            o.track,
-            e.track
+            first.track,
+            then.track
         );
         out.push(doubt(
             DoubtKind::CloseTogether,
             e,
-            vec![o.track, e.track],
+            vec![first.track, then.track],
             why,
             4,
         ));

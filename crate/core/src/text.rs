@@ -168,17 +168,24 @@ mod tests {
 
     #[test]
     fn trim_is_str_trim() {
-        // Against the standard library's own `str::trim`, on every white space character Unicode
-        // lists (the ASCII ones, NEL, no-break space, the EN/EM spaces, line and paragraph
-        // separators, ideographic space…) and on visible text, at either end or both.
-        let spaces = [
-            " ", "\t", "\n", "\u{b}", "\u{c}", "\r", "\u{85}", "\u{a0}", "\u{1680}", "\u{2000}",
-            "\u{200a}", "\u{2028}", "\u{2029}", "\u{202f}", "\u{205f}", "\u{3000}", "\u{1}", "",
-        ];
+        // Against the standard library's own `str::trim`, on every character Unicode calls
+        // white space (found by `char::is_whitespace` over all of Unicode), a control character,
+        // nothing, and visible text, at either end or both.
+        let mut spaces: Vec<String> = (0..=0x10FFFF)
+            .filter_map(char::from_u32)
+            .filter(|c| c.is_whitespace())
+            .map(String::from)
+            .collect();
+        assert!(
+            spaces.len() >= 25,
+            "{} white space characters",
+            spaces.len()
+        );
+        spaces.extend(["\u{1}".to_string(), String::new()]);
         let middles = ["", "1", "-2.5", "a b", "é", "x\u{a0}y", "1e3", "\u{feff}7"];
-        for l in spaces {
+        for l in &spaces {
             for m in middles {
-                for r in spaces {
+                for r in &spaces {
                     let s = format!("{l}{m}{r}");
                     assert_eq!(trim(&s), s.trim(), "{s:?}");
                 }

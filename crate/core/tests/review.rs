@@ -109,6 +109,35 @@ fn crossings_within_a_second_are_close_and_a_later_one_is_not() {
 }
 
 #[test]
+fn crossings_exactly_a_second_apart_are_close_in_any_order() {
+    // The queue's own rule (review.rs, `CLOSE_SECONDS`: within one second, our rule of thumb):
+    // the second walker crosses 10 frames, exactly 1.0 s, after the first. Listed in time order
+    // (as counting writes them) and in reverse (the queue then compares every pair), the same
+    // pair is found.
+    let plan = Plan::from_json(PLAN).unwrap();
+    let tracks = Tracks {
+        config: TrackerConfig::for_method(Method::Sort),
+        frame_count: 100,
+        tracks: vec![
+            walk(1, 1, 90, (200.0, 50.0), (0.0, 4.0), 0.9),
+            walk(2, 11, 80, (200.0, 50.0), (0.0, 4.0), 0.9),
+        ],
+        crowded_frames: Vec::new(),
+    };
+    let mut report = pipeline::count(&tracks, &plan, None, &Default::default()).unwrap();
+    for _ in 0..2 {
+        let q = doubts(&tracks, &plan, &report, Some((400.0, 400.0)));
+        let close: Vec<&Vec<u32>> = q
+            .iter()
+            .filter(|d| d.kinds.contains(&DoubtKind::CloseTogether))
+            .map(|d| &d.tracks)
+            .collect();
+        assert_eq!(close, vec![&vec![1, 2]], "{q:#?}");
+        report.events.reverse();
+    }
+}
+
+#[test]
 fn a_crossing_the_detector_barely_saw_is_doubted() {
     let q = queue(vec![walk(1, 1, 90, (200.0, 50.0), (0.0, 4.0), 0.3)]);
     assert_eq!(kinds(&q), vec![DoubtKind::BarelySeen], "{q:#?}");

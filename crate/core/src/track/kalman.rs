@@ -144,8 +144,13 @@ impl BoxMotion {
         }
     }
 
-    /// One frame ahead. A size that would shrink below one pixel stops shrinking.
+    /// One frame ahead. A size that would shrink below one pixel stops shrinking. The filter must
+    /// be one [`Self::initiate`] started (its covariance block-diagonal; see [`Self::update`]).
     pub fn predict(&self, kf: &mut KalmanFilter) {
+        debug_assert!(
+            block_diagonal(&kf.p),
+            "a box filter's covariance must be block-diagonal"
+        );
         for i in 2..4 {
             if kf.x[i] + kf.x[i + 4] < 1.0 {
                 kf.x[i + 4] = 0.0;
@@ -179,7 +184,14 @@ impl BoxMotion {
     /// covariance S = P₁₁ + R is diagonal and the update is four scalar updates. The arithmetic is
     /// that of the matrix form bit for bit (S⁻¹ by the cofactors nalgebra's 4 × 4 inverse uses;
     /// the terms the matrix form adds are exact zeros), checked against it in the tests.
+    ///
+    /// The filter must be one [`Self::initiate`] started and only this motion model's `predict`
+    /// and `update` changed: with any other covariance the result would be wrong.
     pub fn update(&self, kf: &mut KalmanFilter, b: &BBox) -> bool {
+        debug_assert!(
+            block_diagonal(&kf.p),
+            "a box filter's covariance must be block-diagonal"
+        );
         let r = self.measurement_noise(kf.x[3])[(0, 0)];
         let s = [0, 1, 2, 3].map(|i| kf.p[(i, i)] + r);
         // nalgebra's 4 × 4 inverse of a diagonal matrix: each diagonal cofactor, times 1 / det.
@@ -239,6 +251,11 @@ impl BoxMotion {
     }
 }
 
+/// Whether every entry off the four (value, velocity) blocks is zero.
+fn block_diagonal(p: &StateCov) -> bool {
+    (0..8).all(|i| (0..8).all(|j| i % 4 == j % 4 || p[(i, j)] == 0.0))
+}
+
 /// A Mahalanobis gate around one filter's predicted box, prepared once per frame.
 #[derive(Debug, Clone)]
 pub struct MotionGate {
@@ -251,11 +268,18 @@ pub struct MotionGate {
 }
 
 impl MotionGate {
-    /// The centre x a box must have to pass the gate, widened by `slack` pixels on each side (so
-    /// that rounding in [`Self::distance_sq`] never lets pass a box outside it).
-    pub fn centre_x_span(&self, slack: f64) -> (f64, f64) {
-        let (m, b) = (self.mean[0], self.bounds[0] + slack);
-        (m - b, m + b)
+    /// Whether a box whose centre is at `x` may pass the gate as far as x alone says: the first
+    /// test [`Self::distance_sq`] makes, made the same way (so no box it lets pass is left out).
+    /// Over centres in increasing order the answer is false, then true, then false.
+    pub fn centre_x_within(&self, x: f64) -> std::cmp::Ordering {
+        let y = x - self.mean[0];
+        if y < -self.bounds[0] {
+            std::cmp::Ordering::Less
+        } else if y > self.bounds[0] {
+            std::cmp::Ordering::Greater
+        } else {
+            std::cmp::Ordering::Equal
+        }
     }
 
     /// Squared Mahalanobis distance of a box, or `None` when it is beyond the gate.

@@ -148,22 +148,18 @@ impl StreamTracker {
     }
 
     /// Ends the input: the rest of the boxes, in order, and what the run found.
-    pub fn finish(
-        mut self,
-        ctx: &Detections,
-        write: &mut dyn FnMut(u32, u32, &TrackBox),
-    ) -> StreamEnd {
-        let mut in_order = std::mem::take(&mut self.in_order);
+    pub fn finish(self, ctx: &Detections, write: &mut dyn FnMut(u32, u32, &TrackBox)) -> StreamEnd {
         let (rest, end) = self.finish_drained(ctx);
-        in_order.give_out(rest, write);
+        InOrder::default().give_out(rest, write);
         end
     }
 
-    /// Ends the input: the rest of the boxes (every frame settled), and what the run found.
+    /// Ends the input: the rest of the boxes (every frame settled, those [`Self::settled`] still
+    /// held included), and what the run found.
     pub fn finish_drained(mut self, ctx: &Detections) -> (Drained, StreamEnd) {
         self.step_carried(ctx);
         let last_frame = self.next.saturating_sub(1);
-        let mut boxes = Vec::new();
+        let mut boxes = std::mem::take(&mut self.in_order.pending);
         self.tracker.drain_settled(self.next, &mut boxes);
         let tracks = self.tracker.confirmed();
         let rest = self.tracker.close(last_frame, ctx);

@@ -57,9 +57,8 @@ fn appearance_edges(
         let Some(gate) = tracker.motion.gate(&t.kf, c.max_mahalanobis) else {
             continue;
         };
-        let (lo, hi) = gate.centre_x_span(1.0);
-        let start = by_x.partition_point(|e| e.0 < lo);
-        let end = by_x.partition_point(|e| e.0 <= hi);
+        let start = by_x.partition_point(|e| gate.centre_x_within(e.0).is_lt());
+        let end = by_x.partition_point(|e| gate.centre_x_within(e.0).is_le());
         reach.clear();
         reach.extend(by_x[start..end.max(start)].iter().map(|e| e.1));
         reach.sort_unstable();
