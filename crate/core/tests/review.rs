@@ -100,12 +100,15 @@ fn crossings_within_a_second_are_close_and_a_later_one_is_not() {
         walk(2, 10, 80, (200.0, 50.0), (0.0, 4.0), 0.9),
         walk(3, 22, 70, (200.0, 50.0), (0.0, 4.0), 0.9),
     ]);
-    let close: Vec<&Vec<u32>> = q
-        .iter()
+    assert_eq!(close_pairs(&q), vec![&vec![1, 2]], "{q:#?}");
+}
+
+/// The tracks of each entry doubted as two crossings close together.
+fn close_pairs(q: &[Doubt]) -> Vec<&Vec<u32>> {
+    q.iter()
         .filter(|d| d.kinds.contains(&DoubtKind::CloseTogether))
         .map(|d| &d.tracks)
-        .collect();
-    assert_eq!(close, vec![&vec![1, 2]], "{q:#?}");
+        .collect()
 }
 
 #[test]
@@ -127,12 +130,7 @@ fn crossings_exactly_a_second_apart_are_close_in_any_order() {
     let mut report = pipeline::count(&tracks, &plan, None, &Default::default()).unwrap();
     for _ in 0..2 {
         let q = doubts(&tracks, &plan, &report, Some((400.0, 400.0)));
-        let close: Vec<&Vec<u32>> = q
-            .iter()
-            .filter(|d| d.kinds.contains(&DoubtKind::CloseTogether))
-            .map(|d| &d.tracks)
-            .collect();
-        assert_eq!(close, vec![&vec![1, 2]], "{q:#?}");
+        assert_eq!(close_pairs(&q), vec![&vec![1, 2]], "{q:#?}");
         report.events.reverse();
     }
 }

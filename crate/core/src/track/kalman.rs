@@ -394,17 +394,7 @@ mod tests {
                 let mut reference = kf.clone();
                 let ok = matrix_update(&m, &mut reference, &b);
                 assert_eq!(m.update(&mut kf, &b), ok);
-                for i in 0..8 {
-                    assert_eq!(kf.x[i].to_bits(), reference.x[i].to_bits(), "x[{i}]");
-                    for j in 0..8 {
-                        // Off the blocks both are zero (the matrix form may sign it).
-                        let (a, r) = (kf.p[(i, j)], reference.p[(i, j)]);
-                        assert!(
-                            a.to_bits() == r.to_bits() || (a == 0.0 && r == 0.0),
-                            "p[{i},{j}]"
-                        );
-                    }
-                }
+                assert_same(&kf, &reference);
             }
         }
     }
