@@ -174,8 +174,9 @@ fn next_frame<'a>(
         y4m::Next::Frame(frame) => Ok(Some(frame)),
         y4m::Next::End => Ok(None),
         y4m::Next::CutShort => {
-            // Keep what was found in the whole frames rather than lose it.
-            if warn {
+            // Keep what was found in the whole frames rather than lose it (with none, the
+            // caller's "holds no frames" says it all).
+            if warn && k > 1 {
                 eprintln!(
                     "warning: {}: the stream ends inside frame {k}; frames 1 to {} are used",
                     name(footage),
