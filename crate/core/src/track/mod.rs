@@ -17,6 +17,7 @@ mod gallery;
 pub mod kalman;
 pub mod methods;
 pub mod stream;
+mod strips;
 mod tracker;
 
 pub use config::{default_method, resolve_config, TrackerConfig};

@@ -2,12 +2,14 @@
 //! frame at a time. The chosen method decides only the association (see `methods/`); everything
 //! else about a track's life is the same for every method.
 
+use super::assign::{self, Edge};
 use super::gallery::Gallery;
 use super::kalman::{BoxMotion, KalmanFilter};
+use super::strips::Strips;
 use super::{Track, TrackBox, TrackerConfig, Tracks};
 use crate::detections::{Detection, Detections};
 use crate::geometry::BBox;
-use std::cell::Cell;
+use std::cell::{Cell, RefCell};
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 enum Phase {
@@ -94,6 +96,22 @@ pub(crate) struct Tracker {
     crowded_frames: Vec<u32>,
     finished: Vec<Track>,
     next_id: u32,
+    /// Memory the association reuses from frame to frame.
+    pub(crate) reuse: RefCell<Reuse>,
+}
+
+/// Memory the association reuses from frame to frame (cleared, never shrunk): once a run has
+/// warmed up, matching a frame allocates nothing but for groups of tracks competing for boxes.
+#[derive(Debug, Default)]
+pub(crate) struct Reuse {
+    /// The frame's boxes being matched, and their index by place.
+    pub boxes: Vec<BBox>,
+    pub index: Strips,
+    /// Candidate pairs: the frame's, one track's, and the boxes near a track.
+    pub edges: Vec<Edge>,
+    pub mine: Vec<Edge>,
+    pub near: Vec<usize>,
+    pub assign: assign::Buffers,
 }
 
 impl Tracker {
@@ -107,6 +125,7 @@ impl Tracker {
             crowded_frames: Vec::new(),
             finished: Vec::new(),
             next_id: 1,
+            reuse: RefCell::default(),
         }
     }
 

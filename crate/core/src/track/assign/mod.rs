@@ -180,22 +180,69 @@ pub fn assign_edges(rows: usize, cols: usize, edges: &[Edge], gate: f64) -> Assi
 }
 
 /// [`assign_edges`] within a budget of `steps`.
-fn assign(rows: usize, cols: usize, edges: &[Edge], gate: f64, mut steps: u64) -> Assignment {
+fn assign(rows: usize, cols: usize, edges: &[Edge], gate: f64, steps: u64) -> Assignment {
+    let mut buffers = Buffers::default();
+    let greedy = assign_reusing(rows, cols, edges, gate, steps, &mut buffers);
+    Assignment {
+        pairs: buffers.pairs,
+        greedy,
+    }
+}
+
+/// What an assignment works in, kept by a caller that assigns every frame so that, once the run
+/// has warmed up, a frame allocates nothing but for components of more than one row and column.
+#[derive(Debug, Default)]
+pub struct Buffers {
+    /// The pairs found, sorted: the answer of the last call.
+    pub pairs: Vec<(usize, usize)>,
+    /// Indices of the edges that pass the gate.
+    kept: Vec<usize>,
+    components: Components,
+}
+
+/// [`assign_edges`] into `buffers.pairs`, reusing the buffers' memory; returns whether part of it
+/// was matched greedily.
+pub fn assign_edges_reusing(
+    rows: usize,
+    cols: usize,
+    edges: &[Edge],
+    gate: f64,
+    buffers: &mut Buffers,
+) -> bool {
+    assign_reusing(rows, cols, edges, gate, MAX_ASSIGNMENT_STEPS, buffers)
+}
+
+fn assign_reusing(
+    rows: usize,
+    cols: usize,
+    edges: &[Edge],
+    gate: f64,
+    mut steps: u64,
+    buffers: &mut Buffers,
+) -> bool {
     let passes = |c: f64| c.is_finite() && c <= gate;
-    let edges: Vec<&Edge> = edges
-        .iter()
-        .filter(|e| passes(e.cost) && e.row < rows && e.col < cols)
-        .collect();
+    let Buffers {
+        pairs,
+        kept,
+        components,
+    } = buffers;
+    kept.clear();
+    kept.extend((0..edges.len()).filter(|&i| {
+        let e = &edges[i];
+        passes(e.cost) && e.row < rows && e.col < cols
+    }));
     let above = gate + gate.abs().max(1.0) * 1e-5;
-    let mut pairs = Vec::new();
+    pairs.clear();
     let mut greedy = false;
+    components.group(rows, cols, edges, kept);
     // Most components of a tracking frame are one track and one box.
-    for group in components(rows, cols, &edges).groups() {
-        if let [e] = group[..] {
-            pairs.push((e.row, e.col));
+    for indices in components.groups() {
+        if let [i] = indices[..] {
+            pairs.push((edges[i].row, edges[i].col));
             continue;
         }
-        let (rs, cs) = rows_and_cols(group);
+        let group: Vec<&Edge> = indices.iter().map(|&i| &edges[i]).collect();
+        let (rs, cs) = rows_and_cols(&group);
         if rs.len() == 1 || cs.len() == 1 {
             // One row or one column: the cheapest edge is the optimum (first listed among equals).
             let best = group.iter().min_by(|a, b| {
@@ -206,12 +253,12 @@ fn assign(rows: usize, cols: usize, edges: &[Edge], gate: f64, mut steps: u64) -
             pairs.extend(best.map(|e| (e.row, e.col)));
             continue;
         }
-        let found = sparse_component(group, &rs, &cs, above, |e| e.cost, &mut steps);
+        let found = sparse_component(&group, &rs, &cs, above, |e| e.cost, &mut steps);
         greedy |= found.out_of_steps;
         pairs.extend(found.pairs);
     }
     pairs.sort_unstable();
-    Assignment { pairs, greedy }
+    greedy
 }
 
 /// Components of [`maximise_edges`] with at most this many rows and columns are solved by the
@@ -274,67 +321,72 @@ fn sparse_component(
     found
 }
 
-/// Groups edges by the connected component of rows and columns they join (union-find over rows
-/// `0..rows` and columns `rows..rows + cols`), in a fixed order.
-fn components<'a>(rows: usize, cols: usize, edges: &[&'a Edge]) -> Components<'a> {
-    let mut parent: Vec<usize> = (0..rows + cols).collect();
-    fn find(parent: &mut [usize], mut i: usize) -> usize {
-        while parent[i] != i {
-            parent[i] = parent[parent[i]];
-            i = parent[i];
-        }
-        i
-    }
-    for e in edges {
-        let (a, b) = (find(&mut parent, e.row), find(&mut parent, rows + e.col));
-        if a != b {
-            parent[a.max(b)] = a.min(b);
-        }
-    }
-    // The edges by root, then by their order in `edges`: a counting sort over the roots, which
-    // lie in `0..rows + cols` (the order sorting the pairs (root, edge) would give).
-    let roots: Vec<usize> = edges.iter().map(|e| find(&mut parent, e.row)).collect();
-    let mut start = parent;
-    start.fill(0);
-    for &r in &roots {
-        start[r] += 1;
-    }
-    let mut ends = Vec::new();
-    let mut at = 0;
-    for count in &mut start {
-        let n = *count;
-        *count = at;
-        at += n;
-        if n > 0 {
-            ends.push(at);
-        }
-    }
-    let mut flat: Vec<&Edge> = Vec::with_capacity(edges.len());
-    flat.resize(edges.len(), &PLACEHOLDER);
-    for (&r, &e) in roots.iter().zip(edges) {
-        flat[start[r]] = e;
-        start[r] += 1;
-    }
-    Components { flat, ends }
-}
-
-/// What fills [`Components::flat`] before every place is written.
-const PLACEHOLDER: Edge = Edge {
-    row: 0,
-    col: 0,
-    cost: 0.0,
-};
-
-/// The edges of every component one after another, and where each component ends: one list for
-/// a frame, not one per component (most components of a frame are one track and one box).
-struct Components<'a> {
-    flat: Vec<&'a Edge>,
+/// The edges grouped by the connected component of rows and columns they join (union-find over
+/// rows `0..rows` and columns `rows..rows + cols`), in a fixed order: as indices into the edges,
+/// each component's one after another, in one list for a frame (not one per component: most
+/// components of a frame are one track and one box). Its memory is kept from call to call.
+#[derive(Debug, Default)]
+struct Components {
+    /// Indices of the edges, component after component.
+    flat: Vec<usize>,
+    /// Where each component ends in `flat`.
     ends: Vec<usize>,
+    parent: Vec<usize>,
+    roots: Vec<usize>,
 }
 
-impl<'a> Components<'a> {
-    /// Each component's edges, in order.
-    fn groups(&self) -> impl Iterator<Item = &[&'a Edge]> {
+impl Components {
+    /// Groups `edges[k]` for every `k` in `kept` (in that order within a component).
+    fn group(&mut self, rows: usize, cols: usize, edges: &[Edge], kept: &[usize]) {
+        fn find(parent: &mut [usize], mut i: usize) -> usize {
+            while parent[i] != i {
+                parent[i] = parent[parent[i]];
+                i = parent[i];
+            }
+            i
+        }
+        let parent = &mut self.parent;
+        parent.clear();
+        parent.extend(0..rows + cols);
+        for &k in kept {
+            let e = &edges[k];
+            let (a, b) = (find(parent, e.row), find(parent, rows + e.col));
+            if a != b {
+                parent[a.max(b)] = a.min(b);
+            }
+        }
+        // The edges by root, then by their order in `kept`: a counting sort over the roots, which
+        // lie in `0..rows + cols` (the order sorting the pairs (root, edge) would give).
+        self.roots.clear();
+        for &k in kept {
+            let root = find(parent, edges[k].row);
+            self.roots.push(root);
+        }
+        let start = parent;
+        start.fill(0);
+        for &r in &self.roots {
+            start[r] += 1;
+        }
+        self.ends.clear();
+        let mut at = 0;
+        for count in start.iter_mut() {
+            let n = *count;
+            *count = at;
+            at += n;
+            if n > 0 {
+                self.ends.push(at);
+            }
+        }
+        self.flat.clear();
+        self.flat.resize(kept.len(), 0);
+        for (&r, &k) in self.roots.iter().zip(kept) {
+            self.flat[start[r]] = k;
+            start[r] += 1;
+        }
+    }
+
+    /// Each component's edge indices, in order.
+    fn groups(&self) -> impl Iterator<Item = &[usize]> {
         let mut start = 0;
         self.ends.iter().map(move |&end| {
             let group = &self.flat[start..end];
@@ -373,22 +425,27 @@ pub fn total_cost(cost: &CostMatrix, pairs: &[(usize, usize)]) -> f64 {
 /// total splits over the connected components of the listed pairs; each component is solved on its
 /// own, densely up to [`DENSE_UP_TO`] rows and columns, beyond that by the sparse solver.
 pub fn maximise_edges(rows: usize, cols: usize, edges: &[Edge]) -> Vec<(usize, usize)> {
-    let edges: Vec<&Edge> = edges
-        .iter()
-        .filter(|e| e.cost.is_finite() && e.cost > 0.0 && e.row < rows && e.col < cols)
+    let kept: Vec<usize> = (0..edges.len())
+        .filter(|&i| {
+            let e = &edges[i];
+            e.cost.is_finite() && e.cost > 0.0 && e.row < rows && e.col < cols
+        })
         .collect();
     let mut pairs = Vec::new();
     let mut steps = MAX_ASSIGNMENT_STEPS;
-    for group in components(rows, cols, &edges).groups() {
-        if let [e] = group[..] {
-            pairs.push((e.row, e.col));
+    let mut components = Components::default();
+    components.group(rows, cols, edges, &kept);
+    for indices in components.groups() {
+        if let [i] = indices[..] {
+            pairs.push((edges[i].row, edges[i].col));
             continue;
         }
-        let (rs, cs) = rows_and_cols(group);
+        let group: Vec<&Edge> = indices.iter().map(|&i| &edges[i]).collect();
+        let (rs, cs) = rows_and_cols(&group);
         if rs.len() <= DENSE_UP_TO && cs.len() <= DENSE_UP_TO {
-            pairs.extend(dense_component(group, &rs, &cs, 0.0, |e| -e.cost));
+            pairs.extend(dense_component(&group, &rs, &cs, 0.0, |e| -e.cost));
         } else {
-            let found = sparse_component(group, &rs, &cs, 0.0, |e| -e.cost, &mut steps);
+            let found = sparse_component(&group, &rs, &cs, 0.0, |e| -e.cost, &mut steps);
             pairs.extend(found.pairs);
         }
     }

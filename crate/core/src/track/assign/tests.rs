@@ -215,12 +215,15 @@ fn dense_maximum(rows: usize, cols: usize, edges: &[Edge]) -> Vec<(usize, usize)
 
 /// `maximise_edges` with every component of more than one pair solved by the sparse solver.
 fn sparse_maximum(rows: usize, cols: usize, edges: &[Edge]) -> Vec<(usize, usize)> {
-    let listed: Vec<&Edge> = edges.iter().filter(|e| e.cost > 0.0).collect();
+    let listed: Vec<usize> = (0..edges.len()).filter(|&i| edges[i].cost > 0.0).collect();
     let mut pairs = Vec::new();
-    for group in components(rows, cols, &listed).groups() {
-        let (rs, cs) = rows_and_cols(group);
+    let mut components = Components::default();
+    components.group(rows, cols, edges, &listed);
+    for indices in components.groups() {
+        let group: Vec<&Edge> = indices.iter().map(|&i| &edges[i]).collect();
+        let (rs, cs) = rows_and_cols(&group);
         let mut steps = u64::MAX;
-        let found = sparse_component(group, &rs, &cs, 0.0, |e| -e.cost, &mut steps);
+        let found = sparse_component(&group, &rs, &cs, 0.0, |e| -e.cost, &mut steps);
         pairs.extend(found.pairs);
     }
     pairs

@@ -118,8 +118,7 @@ fn associate(tracker: &Tracker, dets: &[Detection], ctx: &Detections) -> Associa
         let edges = appearance_edges(tracker, dets, &tracks, &unmatched, &usable, &embeddings);
         let found = assign_edges(tracks.len(), unmatched.len(), &edges, c.max_cosine_distance);
         tracker.note_crowd(found.greedy);
-        let pairs = found.pairs;
-        let (level_matches, _, left) = split(pairs, &tracks, &unmatched);
+        let (level_matches, _, left) = split(&found.pairs, &tracks, &unmatched);
         matches.extend(level_matches.into_iter().map(|m| Match {
             track: m.track,
             det: usable[m.det],
