@@ -54,6 +54,7 @@ test("bridging with the footage open gives throughline run --y4m's report", asyn
   const said = await page.locator("#bridged-summary").innerText();
   await screenshot(page, "16-bridged", { fullPage: false });
   const reportText = await downloadText(page, "Export report", scratch);
+  const tracksText = await downloadText(page, "Export tracks", scratch);
   await showView(page, "Set up");
   const planText = await downloadText(page, "Save plan", scratch);
 
@@ -62,10 +63,13 @@ test("bridging with the footage open gives throughline run --y4m's report", asyn
   const settings = join(scratch, "bridge.json");
   writeFileSync(settings, '{"bridge_frames": 25}');
   const out = join(scratch, "cli-report.json");
-  const ran = spawnSync(cli, ["run", files.detections, "--method", "iou", "--y4m", files.decoded, "--config", settings, "--plan", plan, "-o", out]);
+  const tracks = join(scratch, "cli-tracks.txt");
+  const ran = spawnSync(cli, ["run", files.detections, "--method", "iou", "--y4m", files.decoded, "--config", settings, "--plan", plan,
+    "-o", out, "--tracks", tracks]);
   assert.equal(ran.status, 0, String(ran.stderr));
   const cliSaid = String(ran.stderr);
   assert.equal(reportText, readFileSync(out, "utf8"), "the page's report equals throughline run --y4m");
+  assert.equal(tracksText, readFileSync(tracks, "utf8"), "and its tracks, bridged boxes included");
 
   // The gaps the command line says it bridged are the page's, in words on the page.
   const joined = Number(/tracks joined to the one before them: (\d+)/.exec(cliSaid)[1]);
