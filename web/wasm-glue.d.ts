@@ -12,6 +12,7 @@ type Project = import("./js/protocol.js").Project;
 type Fingerprint = import("./js/protocol.js").Fingerprint;
 type HandinContext = import("./js/protocol.js").HandinContext;
 type MergedGrid = import("./js/protocol.js").MergedGrid;
+type BridgeSummary = import("./js/protocol.js").BridgeSummary;
 
 declare function wasm_bindgen(init: { module_or_path: Uint8Array | BufferSource }): Promise<unknown>;
 
@@ -62,6 +63,8 @@ declare namespace wasm_bindgen {
     backgroundFrames(total: number): Uint32Array;
     finishDetection(): DetectionSummary;
     detectionsText(): string;
+    /** After track(), when its settings bridge (bridge_frames above 0): a handle fed the footage's frames; else undefined. */
+    startBridging(width: number, height: number): FootageBridge | undefined;
     /** The interval grid: a row per interval ("wide") or per interval, line, direction and class ("long"); CSV ("comma") or for the clipboard ("tab"). */
     intervalGrid(layout: "wide" | "long", separator: "comma" | "tab", ctx: HandinContext): string;
     /** The origin–destination matrix of movements. */
@@ -70,6 +73,19 @@ declare namespace wasm_bindgen {
     summaryHtml(ctx: HandinContext): string;
     /** The stem of the hand-in files' names: site and date. */
     fileStem(ctx: HandinContext): string;
+    free(): void;
+  }
+
+  /** Joins the session's tracks across missed detections, fed the footage's luma planes frame by frame (crate/wasm/src/bridging.rs). */
+  class FootageBridge {
+    /** The last frame (1-based) the gaps need; 0 when none needs footage. */
+    lastFrameNeeded(): number;
+    /** Frame `frame` (1-based, in order) as its luma plane (width x height bytes). */
+    feed(frame: number, luma: Uint8Array): void;
+    /** Frame `frame` as RGBA pixels. */
+    feedRgba(frame: number, rgba: Uint8Array): void;
+    /** Makes the bridged tracks the session's and counts them; consumes the handle. */
+    finish(session: Session): BridgeSummary;
     free(): void;
   }
 

@@ -2,7 +2,8 @@
 // Runs the Throughline core (WebAssembly) off the page's main thread, so the page never freezes.
 // A classic worker, not a module one: classic workers also start from a Blob URL, which the single-file
 // build needs when the page is opened from disk. The single-file build puts wasm-bindgen's glue in front
-// of this file; the site loads it from pkg/.
+// of this file; the site loads it from pkg/. Decoding footage (decoding.js) is a second script of the
+// same worker: `cargo xtask site` writes the two as one worker.js.
 //
 // The messages in and out are typed in js/protocol.js: a request {id, op, ...fields} is answered by
 // {kind: "progress"} messages from operations that report progress (tracking, finding objects), then
@@ -13,16 +14,19 @@ if (typeof wasm_bindgen === "undefined") importScripts("pkg/throughline_wasm.js"
 /** @typedef {import("./js/protocol.js").Reply} Reply */
 /** @typedef {import("./js/protocol.js").FootageSearched} FootageSearched */
 /** @typedef {import("./js/protocol.js").FootageUnread} FootageUnread */
+/** @typedef {import("./js/protocol.js").TrackFootage} TrackFootage */
 /** @typedef {(done: number, total: number, stage?: string) => void} Progress */
-
-/** Thrown where finding objects stops on request; answered as {kind: "cancelled"}. */
-class FindCancelled extends Error {}
 
 /** @type {wasm_bindgen.Session | null} */
 let session = null;
-let findCancelled = false;
 /** Whether the session has tracks (of the detections it holds now). */
 let tracked = false;
+/**
+ * The tracking under way, settled when it ends. Bridging awaits the decoder, so other requests
+ * could come in between: they wait for it, and so never see tracks not yet bridged.
+ * @type {Promise<unknown>}
+ */
+let tracking = Promise.resolve();
 
 /** The core's session; operations other than init need it. */
 function core() {
@@ -38,15 +42,18 @@ async function init(wasmBytes) {
 }
 
 /**
- * Tracks the loaded detections; progress at most every 50 ms, and at the end.
+ * Tracks the loaded detections; progress at most every 50 ms, and at the end. With footage and
+ * settings that bridge missed detections, the tracks are then bridged with it (`bridge`).
  * @param {string} method
  * @param {string} settings
+ * @param {TrackFootage | null} footage
  * @param {Progress} progress
+ * @returns {Promise<import("./js/protocol.js").Tracked>}
  */
-function track(method, settings, progress) {
+async function track(method, settings, footage, progress) {
   const s = core();
   let last = 0;
-  const n = s.track(method, settings, (done, total) => {
+  s.track(method, settings, (done, total) => {
     const now = Date.now();
     if (now - last > 50 || done === total) {
       last = now;
@@ -54,7 +61,54 @@ function track(method, settings, progress) {
     }
   });
   tracked = true;
-  return { tracks: n, boxes: s.allBoxes(), trackList: s.trackList() };
+  const bridged = await bridge(footage, progress);
+  const trackList = s.trackList();
+  return { tracks: trackList.length, boxes: s.allBoxes(), trackList, bridged };
+}
+
+/**
+ * Bridges the tracks just made across missed detections when their settings ask for it and footage
+ * is open, as `throughline run --y4m` does: the footage is decoded again as for finding objects, up
+ * to the last frame a gap needs, and each frame's luma plane goes to the core's FootageBridge, which
+ * then makes the bridged tracks the session's. Resolves to what it did, to {skipped: why} when the
+ * footage cannot be decoded here (the tracks stay as tracked), or to null when nothing is bridged.
+ * @param {TrackFootage | null} footage
+ * @param {Progress} progress
+ * @returns {Promise<import("./js/protocol.js").Bridged>}
+ */
+async function bridge(footage, progress) {
+  if (!footage) return null;
+  const bridger = core().startBridging(footage.width, footage.height);
+  if (!bridger) return null;
+  try {
+    const last = bridger.lastFrameNeeded();
+    if (last > 0) {
+      const opened = await openFootage(footage.file);
+      if ("fallback" in opened) {
+        bridger.free();
+        return { skipped: opened.fallback };
+      }
+      try {
+        let frame = 0;
+        /** @type {FrameUse} */
+        const feed = async (decoded, width, height, scratch) => {
+          const pixels = await pixelsOf(decoded, width, height, scratch);
+          frame++;
+          if (pixels.layout === "RGBA") bridger.feedRgba(frame, pixels.bytes);
+          else bridger.feed(frame, pixels.bytes.subarray(0, width * height));
+        };
+        findCancelled = false;
+        const size = { width: footage.width, height: footage.height, total: last, until: last };
+        await decodeAndSearch(opened.reader, opened.config, size, (done, n) => progress(done, n, "bridging"), feed);
+      } finally {
+        opened.reader.free();
+      }
+    }
+  } catch (e) {
+    bridger.free();
+    return { skipped: messageOf(e) };
+  }
+  return bridger.finish(core());
 }
 
 /**
@@ -104,7 +158,7 @@ async function perform(req, progress) {
     case "writeProject": return wasm_bindgen.writeProject(req.project);
     case "fingerprint": return wasm_bindgen.fingerprint(req.name, req.size, new Uint8Array(req.head), req.duration);
     case "fingerprintDiffers": return wasm_bindgen.fingerprintDiffers(req.recorded, req.opened) || null;
-    case "track": return track(req.method, req.settings, progress);
+    case "track": return track(req.method, req.settings, req.footage, progress);
     case "startDetection": core().startDetection(req.width, req.height, req.settings); return true;
     case "detectRgba": return core().detectRgba(new Uint8Array(req.pixels), req.width, req.height);
     case "backgroundFrames": return Array.from(core().backgroundFrames(req.total));
@@ -139,31 +193,16 @@ async function perform(req, progress) {
  */
 async function findInFootage(file, width, height, settings, expected, progress) {
   findCancelled = false;
-  if (typeof VideoDecoder !== "function" || typeof FileReaderSync !== "function") {
-    return { fallback: "this browser cannot decode video inside the page" };
-  }
-  const sync = new FileReaderSync();
-  /** @type {(offset: number, length: number) => Uint8Array} */
-  const readRange = (offset, length) => new Uint8Array(sync.readAsArrayBuffer(file.slice(offset, offset + length)));
-  let reader;
+  const opened = await openFootage(file);
+  if ("fallback" in opened) return opened;
+  const { reader, info, config } = opened;
   try {
-    reader = new wasm_bindgen.FootageReader(readRange, file.size);
-  } catch (e) {
-    return { fallback: `the footage is ${messageOf(e)}` };
-  }
-  try {
-    const info = reader.info();
-    /** @type {VideoDecoderConfig} */
-    const config = { codec: info.codec, codedWidth: info.codedWidth, codedHeight: info.codedHeight };
-    if (info.description) config.description = info.description;
-    const support = await VideoDecoder.isConfigSupported(config).catch(() => ({ supported: false }));
-    if (!support.supported) return { fallback: "this browser cannot decode this video's format inside the page" };
     core().startDetection(width, height, settings);
     const total = info.frames || expected;
     if (core().wholeClipBackground()) {
       // A first reading for the background (pictures sampled over the whole clip), as the
       // command line reads a file: people in view at the start are found from the first frame.
-      const first = new wasm_bindgen.FootageReader(readRange, file.size);
+      const first = opened.again();
       try {
         const sampling = (/** @type {number} */ done, /** @type {number} */ n) => progress(done, n, "background");
         await decodeAndSearch(first, config, { width, height, total }, sampling, sampleFrame);
@@ -175,159 +214,6 @@ async function findInFootage(file, width, height, settings, expected, progress) 
     return { summary: core().finishDetection(), codec: info.codec, container: info.container, expected: total, ...searched };
   } finally {
     reader.free();
-  }
-}
-
-/**
- * What is done with each decoded frame: searched, or read for the background.
- * @typedef {(frame: VideoFrame, width: number, height: number, scratch: Scratch) => Promise<unknown>} FrameUse
- */
-
-/**
- * Feeds the reader's coded frames to a VideoDecoder, a few at a time, and each decoded frame to
- * `use` (the motion detector, or its background), until the footage ends, the decoder fails, or
- * finding is cancelled.
- * @param {wasm_bindgen.FootageReader} reader
- * @param {VideoDecoderConfig} config
- * @param {{width: number, height: number, total: number}} size the page's size, frames expected
- * @param {Progress} progress
- * @param {FrameUse} use
- */
-async function decodeAndSearch(reader, config, { width, height, total }, progress, use) {
-  const feed = new DecoderFeed(reader, config);
-  let done = 0;
-  let last = 0;
-  const times = []; // µs, of the first frames shown
-  const scratch = new Scratch();
-  try {
-    for (;;) {
-      if (findCancelled) throw new FindCancelled();
-      if (feed.failure) {
-        feed.stopped = feed.stopped || `the decoder stopped at frame ${done + 1}: ${feed.failure.message}`;
-        break;
-      }
-      const frame = feed.waiting.shift();
-      if (frame) {
-        // Frames in flight: the decoder is kept fed (a few frames ahead) while this one is searched.
-        while (feed.waiting.length < 4 && feed.step());
-        if (times.length < 250) times.push(frame.timestamp);
-        try {
-          await use(frame, width, height, scratch);
-        } finally {
-          frame.close();
-        }
-        done++;
-        const now = Date.now();
-        if (now - last > 100) {
-          last = now;
-          progress(done, Math.max(total, done));
-        }
-      } else if (!feed.step()) {
-        if (feed.flushed) break;
-        await feed.wait();
-      }
-    }
-  } finally {
-    feed.close();
-  }
-  if (done === 0) throw new Error(feed.stopped || "the decoder gave no frames");
-  progress(done, done);
-  return { frames: done, stopped: feed.stopped, frameRate: frameRate(times) };
-}
-
-/** A VideoDecoder fed from a FootageReader, and the decoded frames waiting to be searched. */
-class DecoderFeed {
-  /**
-   * @param {wasm_bindgen.FootageReader} reader
-   * @param {VideoDecoderConfig} config
-   */
-  constructor(reader, config) {
-    this.reader = reader;
-    /** @type {VideoFrame[]} */
-    this.waiting = [];
-    /** @type {Error | null} */
-    this.failure = null;
-    /** @type {string | null} why reading stopped before the end (damaged footage) */
-    this.stopped = null;
-    this.fed = false;
-    this.flushed = false;
-    this.read = 0;
-    /** @type {(() => void) | null} */
-    this.wake = null;
-    this.decoder = new VideoDecoder({
-      output: (frame) => { this.waiting.push(frame); this.nudge(); },
-      error: (e) => { this.failure = e; this.nudge(); },
-    });
-    this.decoder.addEventListener("dequeue", () => this.nudge());
-    this.decoder.configure(config);
-  }
-
-  nudge() {
-    const w = this.wake;
-    this.wake = null;
-    if (w) w();
-  }
-
-  /** Resolves when the decoder has something new: a frame, room for more, the end or a failure. */
-  wait() {
-    return new Promise((resolve) => { this.wake = () => resolve(undefined); });
-  }
-
-  /** Gives the decoder one more coded frame (or, at the end, flushes it); false when it has enough. */
-  step() {
-    if (this.fed || this.decoder.decodeQueueSize >= 4) return false;
-    let chunk = null;
-    try {
-      chunk = this.reader.next();
-    } catch (e) {
-      // Damaged footage: search what was read before the damage, then stop.
-      this.stopped = `${messageOf(e)} (after frame ${this.read})`;
-    }
-    if (chunk) {
-      this.read++;
-      this.decoder.decode(new EncodedVideoChunk({ type: chunk.key ? "key" : "delta", timestamp: chunk.timestamp, data: chunk.data }));
-    } else {
-      this.fed = true;
-      this.decoder.flush().then(() => { this.flushed = true; this.nudge(); }, (e) => { this.failure = this.failure || e; this.nudge(); });
-    }
-    return true;
-  }
-
-  close() {
-    for (const f of this.waiting) f.close();
-    if (this.decoder.state !== "closed") this.decoder.close();
-  }
-}
-
-/**
- * Frames a second from the median time between frames shown one after another (µs); null if unknown.
- * @param {number[]} times
- */
-function frameRate(times) {
-  const steps = times.slice(1).map((t, i) => t - times[i]).filter((d) => d > 0).sort((a, b) => a - b);
-  return steps.length ? 1e6 / steps[steps.length >> 1] : null;
-}
-
-/** The byte buffer and the canvas kept from frame to frame. */
-class Scratch {
-  constructor() {
-    this.bytes = new Uint8Array(0);
-    /** @type {OffscreenCanvasRenderingContext2D | null} */
-    this.g = null;
-  }
-
-  /**
-   * A 2D context of this size for frames drawn as RGBA.
-   * @param {number} width
-   * @param {number} height
-   */
-  canvas(width, height) {
-    if (!this.g) {
-      const g = new OffscreenCanvas(width, height).getContext("2d", { willReadFrequently: true });
-      if (!g) throw new Error("this browser cannot draw frames off screen");
-      this.g = g;
-    }
-    return this.g;
   }
 }
 
@@ -360,28 +246,6 @@ async function sampleFrame(frame, width, height, scratch) {
   return pixels.layout === "RGBA"
     ? core().sampleRgba(pixels.bytes, width, height)
     : core().sampleYuv(pixels.bytes, width, height, pixels.layout);
-}
-
-/**
- * A decoded frame's pixels: its own I420/NV12 bytes when it is the page's size, else drawn as RGBA.
- * @param {VideoFrame} frame
- * @param {number} width
- * @param {number} height
- * @param {Scratch} scratch
- * @returns {Promise<{bytes: Uint8Array, layout: string}>}
- */
-async function pixelsOf(frame, width, height, scratch) {
-  const rect = frame.visibleRect;
-  const direct = (frame.format === "I420" || frame.format === "NV12") && rect && rect.width === width && rect.height === height;
-  if (direct) {
-    const size = frame.allocationSize({ rect });
-    if (scratch.bytes.length !== size) scratch.bytes = new Uint8Array(size);
-    await frame.copyTo(scratch.bytes, { rect });
-    return { bytes: scratch.bytes, layout: /** @type {string} */ (frame.format) };
-  }
-  const g = scratch.canvas(width, height);
-  g.drawImage(frame, 0, 0, width, height);
-  return { bytes: new Uint8Array(g.getImageData(0, 0, width, height).data.buffer), layout: "RGBA" };
 }
 
 /**
@@ -432,7 +296,10 @@ self.onmessage = async (/** @type {MessageEvent<RequestMessage>} */ event) => {
   const req = event.data;
   const id = req.id;
   try {
-    const result = await perform(req, (done, total, stage) => reply(stage ? { kind: "progress", id, done, total, stage } : { kind: "progress", id, done, total }));
+    if (req.op !== "cancelFind") await tracking;
+    const done = perform(req, (done, total, stage) => reply(stage ? { kind: "progress", id, done, total, stage } : { kind: "progress", id, done, total }));
+    if (req.op === "track") tracking = done.catch(() => null);
+    const result = await done;
     const transfer = boxesIn(result);
     reply({ kind: "result", id, result }, transfer);
   } catch (e) {

@@ -181,13 +181,16 @@ export class CoreClient {
   }
 
   /**
-   * Tracks the loaded detections with `method` ("" for the best for them).
+   * Tracks the loaded detections with `method` ("" for the best for them); when the settings
+   * bridge missed detections and `footage` is given, the worker reads it again to bridge them
+   * (progress stage "bridging").
    * @param {string} method
    * @param {string} settings tracker settings JSON, "" for the method's defaults
+   * @param {import("./protocol.js").TrackFootage | null} footage
    * @param {OnProgress} onProgress
    */
-  track(method, settings, onProgress) {
-    return this.call({ op: "track", method, settings }, [], onProgress);
+  track(method, settings, footage, onProgress) {
+    return this.call({ op: "track", method, settings, footage }, [], onProgress);
   }
 
   /**

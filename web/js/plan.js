@@ -29,7 +29,11 @@
  * @property {Calibration} [calibration]
  */
 /** Why the plan changed: an edit here, a file opened, the demo's plan, an undo. @typedef {"edit" | "file" | "demo" | "undo"} PlanChange */
-/** Choices kept with the plan: the tracking method and the detector's two heights. @typedef {{method: string, farHeight?: string, nearHeight?: string}} Settings */
+/**
+ * Choices kept with the plan: the tracking method, the longest gap in the detections to bridge with
+ * the footage (frames, as typed; "" or "0": off) and the detector's two heights.
+ * @typedef {{method: string, bridgeFrames?: string, farHeight?: string, nearHeight?: string}} Settings
+ */
 
 const STORAGE_KEY = "throughline.work.v1";
 const UNDO_DEPTH = 100;
@@ -240,7 +244,7 @@ export class PlanHistory {
   }
 
   /**
-   * @param {"method" | "farHeight" | "nearHeight"} key
+   * @param {"method" | "bridgeFrames" | "farHeight" | "nearHeight"} key
    * @param {string} value
    */
   setSetting(key, value) {

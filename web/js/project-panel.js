@@ -47,7 +47,7 @@ export class ProjectPanel {
     /** @type {Record<string, unknown>} */
     const p = {
       plan: JSON.parse(planForCore(plan).json),
-      tracking: settings.method ? { method: settings.method } : {},
+      tracking: trackingOf(settings),
       edits: work.edits,
       review: [...work.marks].map(([key, decision]) => ({ key, decision })),
     };
@@ -135,4 +135,17 @@ export class ProjectPanel {
  */
 export function projectFileName(site) {
   return `${site ? site.replace(/[^\w.-]+/g, "-") : "throughline"}-project.json`;
+}
+
+/**
+ * The project's tracking: the method chosen, and the longest gap to bridge with the footage when
+ * one is set (as tracker settings).
+ * @param {import("./plan.js").Settings} settings
+ */
+function trackingOf(settings) {
+  /** @type {{method?: string, settings?: {bridge_frames: number}}} */
+  const tracking = settings.method ? { method: settings.method } : {};
+  const bridge = Number(settings.bridgeFrames || "");
+  if (Number.isInteger(bridge) && bridge > 0) tracking.settings = { bridge_frames: bridge };
+  return tracking;
 }

@@ -58,7 +58,7 @@
  * @property {number} [version]
  * @property {string} [generator]
  * @property {object} plan
- * @property {{method?: string, settings?: object}} tracking
+ * @property {{method?: string, settings?: Record<string, unknown>}} tracking
  * @property {import("./edits.js").Edit[]} edits
  * @property {{key: string, decision: string}[]} review
  * @property {string} [site]
@@ -89,6 +89,25 @@
  * top-left + size, observed 1/0), ordered by frame (crate/wasm/src/lib.rs, allBoxes).
  * @typedef {{tracks: number, boxes: Float32Array, trackList: TrackInfo[]}} TrackOutput
  */
+
+/**
+ * Footage to bridge missed detections with after tracking (when the settings' `bridge_frames` is
+ * above 0): the file and the picture's size in pixels.
+ * @typedef {{file: Blob, width: number, height: number}} TrackFootage
+ */
+
+/**
+ * What bridging did (crate/wasm/src/bridging.rs): gaps between a track's end and a later track's
+ * start followed in the footage, those whose forward and backward followings met, those not
+ * followed (the footage ended first, or too many at once), and the gaps bridged (tracks joined).
+ * @typedef {{followed: number, met: number, not_followed: number, joined: number}} BridgeSummary
+ */
+/**
+ * Bridging after a run: what it did, or why the footage could not be read for it (`skipped`:
+ * the tracks are as tracked); null when the settings do not bridge or no footage was given.
+ * @typedef {BridgeSummary | {skipped: string} | null} Bridged
+ */
+/** @typedef {TrackOutput & {bridged: Bridged}} Tracked the tracks of a run, after any bridging */
 
 /**
  * The report (JSON text) and counts CSV, exactly as the command line writes them, and the doubtful
@@ -144,7 +163,7 @@
  * @typedef {{op: "writeProject", project: object}} WriteProjectRequest
  * @typedef {{op: "fingerprint", name: string, size: number, head: ArrayBuffer, duration: number}} FingerprintRequest
  * @typedef {{op: "fingerprintDiffers", recorded: object, opened: object}} FingerprintDiffersRequest
- * @typedef {{op: "track", method: string, settings: string}} TrackRequest
+ * @typedef {{op: "track", method: string, settings: string, footage: TrackFootage | null}} TrackRequest
  * @typedef {{op: "startDetection", width: number, height: number, settings: string}} StartDetectionRequest
  * @typedef {{op: "detectRgba", pixels: ArrayBuffer, width: number, height: number}} DetectRgbaRequest
  * @typedef {{op: "backgroundFrames", total: number}} BackgroundFramesRequest
@@ -177,7 +196,7 @@
  * @property {string} writeProject the project file
  * @property {Fingerprint} fingerprint
  * @property {string | null} fingerprintDiffers why the file opened is not the one recorded, or null
- * @property {TrackOutput} track
+ * @property {Tracked} track
  * @property {true} startDetection
  * @property {number} detectRgba objects found in the frame
  * @property {number[]} backgroundFrames frames (from 1) the background keeps of a clip this long; none when it forms over the opening frames
@@ -209,7 +228,8 @@
 /**
  * The worker's answers.
  * @typedef {{kind: "progress", id: number, done: number, total: number, stage?: string}} ProgressMessage
- *   `stage` "background": finding objects is reading the clip for its background first
+ *   `stage` "background": finding objects is reading the clip for its background first;
+ *   "bridging": tracking is reading the footage to bridge missed detections
  * @typedef {{kind: "result", id: number, result: ResultOf[keyof ResultOf]}} ResultMessage
  * @typedef {{kind: "error", id: number, message: string}} ErrorMessage the operation failed: `message` says why
  * @typedef {{kind: "cancelled", id: number}} CancelledMessage the operation was stopped on request

@@ -84,7 +84,8 @@ export class ResultsPanel {
       root.hidden = false;
       const report = store.results.report;
       byId("caution", HTMLElement).textContent = report.caution;
-      byId("summary", HTMLElement).replaceChildren(summaryLine(report, methodLabel), ...totals(report));
+      const bridged = bridgedLine(store.bridged);
+      byId("summary", HTMLElement).replaceChildren(summaryLine(report, methodLabel), ...(bridged ? [bridged] : []), ...totals(report));
       showIntervals(report, keyColour);
       byId("zones-table", HTMLElement).replaceChildren(...zones(report));
       byId("movements-table", HTMLElement).replaceChildren(...movements(report));
@@ -101,6 +102,24 @@ function summaryLine(report, methodLabel) {
   const t = report.tracker;
   const how = t ? ` Tracked with ${methodLabel(t.method)}.` : "";
   return el("p", { class: "hint", text: `${report.tracks_counted} paths counted over ${report.frame_count} frames (${clockText(report.duration_seconds)}); where one person's or vehicle's track broke into pieces, the pieces were joined into one path.${how}` });
+}
+
+/**
+ * What bridging missed detections with the footage did to the tracks counted, in words; null when
+ * it did not run.
+ * @param {import("./protocol.js").Bridged} bridged
+ */
+function bridgedLine(bridged) {
+  if (!bridged) return null;
+  if ("skipped" in bridged) {
+    return el("p", { class: "note", text: `Gaps where the detections missed someone were not bridged: ${bridged.skipped}. These counts are from the detections alone.` });
+  }
+  const { followed, joined, not_followed: left } = bridged;
+  const tried = followed === 0
+    ? "no track ended where another began soon after, so nothing was followed in the footage"
+    : `${joined} of ${followed} ${followed === 1 ? "gap" : "gaps"} where one track ended and another began soon after ${joined === 1 ? "was" : "were"} bridged by following the person or vehicle in the footage, joining the two tracks into one`;
+  const more = left > 0 ? ` ${left} more could not be followed (the footage ended first, or too many at once).` : "";
+  return el("p", { class: "hint", id: "bridged-summary", text: `Missed detections: ${tried}.${more}` });
 }
 
 /** @param {Report} report */

@@ -1,8 +1,9 @@
 // @ts-check
-// The Tracking panel: the method, Run and Cancel. Tracking runs in one piece inside the worker, so
-// Cancel replaces the worker and gives the new one the detections and plan again, and the tracks
-// shown before the cancelled run: tracked again with their method (the same bytes), so the counts
-// on screen stay as they were and go on answering plan changes.
+// The Tracking panel: the method, bridging of missed detections, Run and Cancel. Tracking runs in
+// one piece inside the worker (with footage open and bridging on, the worker then reads the footage
+// again to bridge gaps), so Cancel replaces the worker and gives the new one the detections and plan
+// again, and the tracks shown before the cancelled run: tracked again as they were (the same bytes),
+// so the counts on screen stay as they were and go on answering plan changes.
 
 import { byId, el } from "./dom.js";
 import { hasCountingGeometry } from "./plan.js";
@@ -14,6 +15,11 @@ import { TrackView } from "./tracks.js";
 /** @typedef {import("./messages.js").Messages} Messages */
 /** @typedef {import("./plan-sync.js").PlanSync} PlanSync */
 /** @typedef {import("./edit-sync.js").EditSync} EditSync */
+/**
+ * How tracks were made: the method ("" for the best for the detections), the tracker settings JSON
+ * ("" for the method's defaults) and the footage bridged with (null: none).
+ * @typedef {{method: string, settings: string, footage: import("./protocol.js").TrackFootage | null}} TrackingRun
+ */
 
 export class RunPanel {
   /**
@@ -36,17 +42,23 @@ export class RunPanel {
     this.status = byId("run-status", HTMLElement);
     /** @type {Promise<void> | null} while a new worker is given the detections and plan again */
     this.restoring = null;
-    /** @type {string | null} the method of the tracks shown (null: none shown) */
-    this.shownMethod = null;
+    this.bridgeFrames = byId("bridge-frames", HTMLInputElement);
+    /** @type {TrackingRun | null} how the tracks shown were made (null: none shown) */
+    this.shown = null;
     /** @type {boolean} a cancelled run keeps the tracks shown before it */
     this.keepShown = false;
     // The methods come from the core's registry once it has started.
     client.ready.then(() => this.listMethods()).catch(() => {});
     this.method.addEventListener("change", () => store.settingChanged("method", this.method.value));
+    this.bridgeFrames.value = store.settings.bridgeFrames ?? "";
+    this.bridgeFrames.addEventListener("change", () => store.settingChanged("bridgeFrames", this.bridgeFrames.value.trim()));
     this.cancel.addEventListener("click", () => this.cancelRun());
     this.run.addEventListener("click", () => this.track());
     store.subscribe(["busy"], () => { this.run.disabled = store.tracking || store.finding; });
-    store.subscribe(["method"], () => this.listMethods());
+    store.subscribe(["method"], () => {
+      this.listMethods();
+      this.bridgeFrames.value = store.settings.bridgeFrames ?? "";
+    });
     store.subscribe(["detections"], () => { this.status.textContent = "Ready: press Run to track and count."; });
   }
 
@@ -63,7 +75,7 @@ export class RunPanel {
   cancelRun() {
     this.cancel.hidden = true;
     const detections = this.store.detections;
-    const previous = this.store.tracks && detections ? this.shownMethod : null;
+    const previous = this.store.tracks && detections ? this.shown : null;
     this.keepShown = previous !== null;
     this.restoring = (async () => {
       try {
@@ -72,14 +84,14 @@ export class RunPanel {
         await this.editSync.send();
         if (previous !== null) {
           this.status.textContent = "Bringing back the tracks shown before…";
-          await this.client.track(previous, "", () => {});
+          await this.client.track(previous.method, previous.settings, previous.footage, () => {});
           this.status.textContent = "The counts shown are those from before the cancelled run.";
         }
         await this.planSync.send();
       } catch (e) {
         // The counts on screen are no longer the engine's: take them away rather than show them.
         this.store.trackingCancelled();
-        this.shownMethod = null;
+        this.shown = null;
         this.status.textContent = "";
         this.messages.say("run", "error", `The tracks from before could not be brought back (${/** @type {Error} */ (e).message}): press Run to track again.`);
       }
@@ -96,17 +108,24 @@ export class RunPanel {
     this.showBusy(true);
     this.status.textContent = "Tracking…";
     const started = performance.now();
-    // The method of this run, as chosen when Run was pressed (the list may change while it runs).
-    const method = this.method.value;
+    // This run as set when Run was pressed (the fields may change while it runs).
+    const run = this.trackingRun();
     try {
-      const out = await this.client.track(method, "", (done, total) => {
+      const out = await this.client.track(run.method, run.settings, run.footage, (done, total, stage) => {
         this.bar.value = total ? done / total : 0;
-        this.status.textContent = `Tracking… frame ${done} of ${total}`;
+        this.status.textContent = stage === "bridging"
+          ? `Following people across missed detections in the footage… frame ${done} of ${total}`
+          : `Tracking… frame ${done} of ${total}`;
       });
-      this.store.tracksReady(new TrackView(out.boxes, out.trackList));
-      this.shownMethod = method;
+      this.store.tracksReady(new TrackView(out.boxes, out.trackList), out.bridged);
+      this.shown = run;
       const seconds = ((performance.now() - started) / 1000).toFixed(1);
-      this.status.textContent = `${out.tracks} tracks in ${seconds} s.`;
+      const n = out.bridged && "joined" in out.bridged ? out.bridged.joined : null;
+      const joined = n === null ? "" : `, ${n} ${n === 1 ? "gap" : "gaps"} bridged with the footage`;
+      this.status.textContent = `${out.tracks} tracks in ${seconds} s${joined}.`;
+      if (run.settings && !run.footage) {
+        this.messages.say("run", "warn", "Bridging gaps in the detections needs the footage: open it under Set up, Files, and press Run again. These counts are from the detections alone.");
+      }
       if (!hasCountingGeometry(this.store.plan)) {
         this.messages.say("run", "warn", "The plan has no lines or zones, so nothing was counted. Press Draw line and click two points across the path, or open a plan file; the counts appear at once.");
       }
@@ -119,7 +138,7 @@ export class RunPanel {
         this.messages.say("run", "warn", "Tracking was cancelled. The counts shown before are kept, with the detections and the plan: press Run to track again.");
       } else if (e instanceof Cancelled) {
         this.store.trackingCancelled();
-        this.shownMethod = null;
+        this.shown = null;
         this.messages.say("run", "warn", "Tracking was cancelled. The detections and the plan are kept: press Run to track again.");
       } else {
         this.messages.say("run", "error", `Tracking stopped: ${/** @type {Error} */ (e).message}`);
@@ -127,6 +146,21 @@ export class RunPanel {
     } finally {
       this.showBusy(false);
     }
+  }
+
+  /**
+   * How Run tracks now: the method chosen, tracker settings with the longest gap to bridge when one
+   * is given ("" for the method's defaults: no bridging), and the footage when it plays here.
+   * @returns {TrackingRun}
+   */
+  trackingRun() {
+    const text = this.bridgeFrames.value.trim();
+    const n = Number(text);
+    // Anything but a number of frames goes to the core as it is, which says what to fix.
+    const settings = text === "" || n === 0 ? "" : JSON.stringify({ bridge_frames: Number.isFinite(n) ? n : text });
+    const { footage, video } = this.store;
+    const withFootage = footage && video.playable && settings ? { file: footage.blob, width: video.width, height: video.height } : null;
+    return { method: this.method.value, settings, footage: withFootage };
   }
 
   /** @param {boolean} on */

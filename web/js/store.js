@@ -69,6 +69,8 @@ export class PageStore {
     this.detections = null;
     /** @type {TrackView | null} */
     this.tracks = null;
+    /** @type {import("./protocol.js").Bridged} what bridging missed detections did to the tracks shown */
+    this.bridged = null;
     /** @type {Results | null} */
     this.results = null;
     /** @type {Doubt[]} the doubtful moments of the latest count, most doubtful first */
@@ -199,9 +201,14 @@ export class PageStore {
 
   // ------------------------------------------------------------ tracking and counts
 
-  /** @param {TrackView} tracks */
-  tracksReady(tracks) {
+  /**
+   * @param {TrackView} tracks
+   * @param {import("./protocol.js").Bridged} [bridged] for a new run's tracks, what bridging with the
+   *   footage did (null: it did not run); left out for the same run's tracks after corrections
+   */
+  tracksReady(tracks, bridged) {
     this.tracks = tracks;
+    if (bridged !== undefined) this.bridged = bridged;
     this.emit(["tracks"]);
   }
 
@@ -232,6 +239,7 @@ export class PageStore {
    */
   forgetTracking() {
     this.tracks = null;
+    this.bridged = null;
     this.results = null;
     this.doubts = [];
     this.focus = null;
@@ -389,7 +397,7 @@ export class PageStore {
   }
 
   /**
-   * @param {"method" | "farHeight" | "nearHeight"} key
+   * @param {"method" | "bridgeFrames" | "farHeight" | "nearHeight"} key
    * @param {string} value
    */
   settingChanged(key, value) {
@@ -447,7 +455,10 @@ export class PageStore {
    */
   projectOpened(project, name) {
     this.plans.replace(/** @type {Plan} */ (project.plan), "file");
-    this.plans.setSetting("method", project.tracking && project.tracking.method ? project.tracking.method : "");
+    const tracking = project.tracking || {};
+    this.plans.setSetting("method", tracking.method || "");
+    const bridge = tracking.settings ? tracking.settings.bridge_frames : undefined;
+    this.plans.setSetting("bridgeFrames", bridge === undefined ? "" : String(bridge));
     this.planName = `${name} (project)`;
     /** @type {import("./work.js").Extras} */
     const extras = {};

@@ -9,6 +9,7 @@ use throughline_core::{detect, detections, pipeline, plan, report, track, Method
 use wasm_bindgen::prelude::*;
 
 mod boxes;
+mod bridging;
 mod corrections;
 mod detecting;
 mod facts;
@@ -16,6 +17,7 @@ mod footage;
 mod handin;
 
 pub use boxes::{BOX_STRIDE, FRAME_BOX_STRIDE};
+pub use bridging::FootageBridge;
 pub use facts::core_facts;
 pub use footage::FootageReader;
 
@@ -54,6 +56,9 @@ pub struct Session {
     detections: Option<detections::ReadReport>,
     plan: Option<plan::Plan>,
     tracks: Option<track::Tracks>,
+    /// How many times [`Session::track`] made tracks: a [`FootageBridge`] joins only the tracks
+    /// of the run it was made from.
+    tracking_runs: u32,
     /// The person's corrections (in order), tallies and correction factor; they apply to every
     /// tracks and plan given after.
     work: pipeline::Work,
@@ -154,7 +159,8 @@ impl Session {
 
     /// Tracks the loaded detections. `method` may be empty for the default; `settings` is an optional
     /// settings file's text. `progress(done, total)` is called every few hundred frames. Returns the
-    /// number of tracks.
+    /// number of tracks. When the settings bridge (`bridge_frames`), footage given to
+    /// [`Session::start_bridging`]'s handle then joins tracks across missed detections.
     pub fn track(
         &mut self,
         method: &str,
@@ -181,6 +187,7 @@ impl Session {
             pipeline::track(&report.detections, &config, &mut on_progress).map_err(js_error)?;
         let n = tracks.tracks.len() as u32;
         self.tracks = Some(tracks);
+        self.tracking_runs = self.tracking_runs.wrapping_add(1);
         self.recounted()?;
         Ok(n)
     }

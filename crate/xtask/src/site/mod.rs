@@ -32,6 +32,7 @@ pub const OFFLINE_FILE: &str = "throughline-offline.html";
 struct Parts {
     index: String,
     css: String,
+    /// `web/worker.js` then `web/decoding.js`: one classic worker script.
     worker: String,
     /// web/js/*.js by file name.
     modules: BTreeMap<String, String>,
@@ -111,7 +112,12 @@ fn read_parts(pkg: &Path) -> Result<Parts, String> {
     Ok(Parts {
         index: read(&web.join("index.html"))?,
         css: read(&web.join("style.css"))?,
-        worker: read(&web.join("worker.js"))?,
+        // Two classic scripts of one worker, written as one (the single file needs one script).
+        worker: format!(
+            "{}\n{}",
+            read(&web.join("worker.js"))?,
+            read(&web.join("decoding.js"))?
+        ),
         modules,
         glue: read(&pkg.join("throughline_wasm.js"))?,
         wasm: fs::read(&wasm_path).map_err(|e| format!("{}: {e}", wasm_path.display()))?,

@@ -1,0 +1,99 @@
+// Bridging missed detections in the page, as a person would: open footage, detections and a plan,
+// choose the IoU tracker, type a longest gap to bridge, Run. The worker decodes the footage again
+// (WebCodecs) up to the last gap and follows people across the gaps in the core; the report the
+// page exports must equal `throughline run DETECTIONS --y4m FRAMES --config {bridge_frames: 25}`
+// on ffmpeg's decoding of the same footage, byte for byte (Chromium's VP9 decoder and ffmpeg's give
+// the same pixels, as app.test.mjs checks for finding objects), with at least one gap bridged.
+import { test } from "node:test";
+import assert from "node:assert/strict";
+import { readFileSync, writeFileSync, mkdtempSync } from "node:fs";
+import { execFileSync, spawnSync } from "node:child_process";
+import { join } from "node:path";
+import { tmpdir } from "node:os";
+import { useBrowser, openPage, downloadText, showView, screenshot, targetDir } from "./harness.mjs";
+
+const cli = join(targetDir, "release/throughline");
+const scratch = mkdtempSync(join(tmpdir(), "tl-bridging-"));
+const env = useBrowser();
+
+/**
+ * A scene of our own simulator whose detector misses three boxes in ten (the scene of
+ * crate/cli/tests/bridge.rs), its frames as a VP9 WebM (lossless, so the people look as rendered)
+ * and as ffmpeg decodes that WebM (YUV4MPEG2, for the command line).
+ */
+function scene() {
+  const rendered = join(scratch, "rendered.y4m");
+  execFileSync(cli, ["simulate", "--out-dir", scratch, "--seed", "5", "--frames", "150", "--density", "6", "--miss-rate", "0.3",
+    "--false-positives", "0", "--width", "320", "--height", "180", "--render", rendered]);
+  const webm = join(scratch, "walkers.webm");
+  execFileSync("ffmpeg", ["-v", "error", "-y", "-i", rendered, "-c:v", "libvpx-vp9", "-lossless", "1", "-an", webm]);
+  const decoded = join(scratch, "decoded.y4m");
+  execFileSync("ffmpeg", ["-v", "error", "-y", "-i", webm, "-f", "yuv4mpegpipe", "-pix_fmt", "yuv420p", decoded]);
+  // Two lines the simulated people cross in these six seconds, so the report has counts.
+  const lines = [{ name: "middle", points: [[160, 0], [160, 180]] }, { name: "near", points: [[0, 140], [320, 140]] }];
+  writeFileSync(join(scratch, "plan.json"), JSON.stringify({ frame_rate: 25, screenlines: lines }));
+  return { webm, decoded, detections: join(scratch, "detections.txt"), plan: join(scratch, "plan.json") };
+}
+
+test("bridging with the footage open gives throughline run --y4m's report", async () => {
+  const files = scene();
+  const { page, seen } = await openPage(env);
+  await page.getByLabel("Open footage").setInputFiles(files.webm);
+  await page.getByLabel("Open detections").setInputFiles(files.detections);
+  await page.getByLabel("Open plan").setInputFiles(files.plan);
+  await page.waitForFunction(() => /^detections\.txt/.test(document.getElementById("detections-name").textContent));
+  await page.waitForFunction(() => document.getElementById("overlay").width === 320);
+  await page.getByLabel("Method", { exact: true }).selectOption("iou");
+  const bridge = page.getByLabel("Bridge gaps up to (frames)");
+  await bridge.fill("25");
+  await bridge.press("Tab");
+  await page.getByRole("button", { name: "Run", exact: true }).click();
+  await page.waitForFunction(() => /tracks in/.test(document.getElementById("run-status").textContent), null, { timeout: 60000 });
+  const status = await page.locator("#run-status").innerText();
+  await page.waitForSelector("#bridged-summary");
+  const said = await page.locator("#bridged-summary").innerText();
+  await screenshot(page, "16-bridged", { fullPage: false });
+  const reportText = await downloadText(page, "Export report", scratch);
+  const tracksText = await downloadText(page, "Export tracks", scratch);
+  await showView(page, "Set up");
+  const planText = await downloadText(page, "Save plan", scratch);
+
+  const plan = join(scratch, "page-plan.json");
+  writeFileSync(plan, planText);
+  const settings = join(scratch, "bridge.json");
+  writeFileSync(settings, '{"bridge_frames": 25}');
+  const out = join(scratch, "cli-report.json");
+  const tracks = join(scratch, "cli-tracks.txt");
+  const ran = spawnSync(cli, ["run", files.detections, "--method", "iou", "--y4m", files.decoded, "--config", settings, "--plan", plan,
+    "-o", out, "--tracks", tracks]);
+  assert.equal(ran.status, 0, String(ran.stderr));
+  const cliSaid = String(ran.stderr);
+  assert.equal(reportText, readFileSync(out, "utf8"), "the page's report equals throughline run --y4m");
+  assert.equal(tracksText, readFileSync(tracks, "utf8"), "and its tracks, bridged boxes included");
+
+  // The gaps the command line says it bridged are the page's, in words on the page.
+  const joined = Number(/tracks joined to the one before them: (\d+)/.exec(cliSaid)[1]);
+  const followed = Number(/(\d+) gaps between tracks followed in the footage/.exec(cliSaid)[1]);
+  assert.ok(joined >= 1, `the command line bridged at least one gap: ${cliSaid}`);
+  assert.match(said, new RegExp(`^Missed detections: ${joined} of ${followed} gaps .* were bridged by following`));
+  assert.match(status, new RegExp(`, ${joined} gaps? bridged with the footage\\.$`));
+  const report = JSON.parse(reportText);
+  assert.equal(report.tracker.bridge_frames, 25);
+  assert.ok(report.events.length >= 2, "people crossed the lines");
+
+  // Bridging off again: the same detections give the report of the detections alone.
+  await bridge.fill("0");
+  await bridge.press("Tab");
+  await page.getByRole("button", { name: "Run", exact: true }).click();
+  await page.waitForFunction(() => !/bridged/.test(document.getElementById("run-status").textContent) && /tracks in/.test(document.getElementById("run-status").textContent), null, { timeout: 60000 });
+  await showView(page, "Results");
+  assert.equal(await page.locator("#bridged-summary").count(), 0);
+  const plain = await downloadText(page, "Export report", scratch);
+  const plainOut = join(scratch, "cli-plain.json");
+  execFileSync(cli, ["run", files.detections, "--method", "iou", "--plan", plan, "-o", plainOut, "-q"]);
+  assert.equal(plain, readFileSync(plainOut, "utf8"), "without bridging, throughline run's report");
+  assert.notEqual(plain, reportText);
+  assert.deepEqual(seen.errors, []);
+  assert.deepEqual(seen.foreign, []);
+  await page.close();
+});
