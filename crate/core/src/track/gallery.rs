@@ -36,7 +36,7 @@ impl Gallery {
             return;
         }
         let slot = if self.count < size {
-            if self.count % LANES == 0 {
+            if self.count.is_multiple_of(LANES) {
                 self.data.resize(self.data.len() + LANES * self.dim, 0.0);
             }
             self.count += 1;
