@@ -24,21 +24,7 @@ pub fn day_bench(bin: &str, quick: bool) -> Result<Day, String> {
     std::fs::create_dir_all(&dir).map_err(|e| format!("{}: {e}", dir.display()))?;
     let file = dir.join(format!("day-{repeats}.txt"));
     if !file.exists() {
-        let (seg, _) = simulate_scene(
-            bin,
-            &Sim {
-                folder: "day-segment",
-                seed: 7,
-                frames: SEGMENT_FRAMES,
-                density: 42.0,
-                width: 640.0,
-                height: 360.0,
-                miss: Some(0.12),
-                embedding_dim: 0,
-                render: None,
-                hard_cases: false,
-            },
-        )?;
+        let (seg, _) = simulate_scene(bin, &Sim::plaza("day-segment", SEGMENT_FRAMES, 42.0))?;
         repeat(&seg.join("detections.txt"), &file, repeats)?;
     }
     let out = dir.join("day-tracks.txt");

@@ -90,18 +90,7 @@ pub fn page_hour(bin: &str, quick: bool) -> Result<PageHour, String> {
 /// The hour's scene: the plaza at 640 × 360, about 30 detections a frame (47 in view, 12%
 /// missed), 25 frames a second, so 90,000 frames are one hour.
 fn hour_scene(folder: &str, frames: u32) -> Sim<'_> {
-    Sim {
-        folder,
-        seed: 7,
-        frames,
-        density: 47.0,
-        width: 640.0,
-        height: 360.0,
-        miss: Some(0.12),
-        embedding_dim: 0,
-        render: None,
-        hard_cases: false,
-    }
+    Sim::plaza(folder, frames, 47.0)
 }
 
 /// Reading and tracking natively with `sort`: the `read` and `track` stages of a release

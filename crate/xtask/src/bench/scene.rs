@@ -27,6 +27,25 @@ pub struct Sim<'a> {
     pub hard_cases: bool,
 }
 
+impl<'a> Sim<'a> {
+    /// The plain plaza at 640 × 360, seed 7, 12% missed detections, no footage, no appearance
+    /// vectors: the long recordings (a day of one camera, an hour in the page) are made of it.
+    pub fn plaza(folder: &'a str, frames: u32, density: f64) -> Self {
+        Self {
+            folder,
+            seed: 7,
+            frames,
+            density,
+            width: 640.0,
+            height: 360.0,
+            miss: Some(0.12),
+            embedding_dim: 0,
+            render: None,
+            hard_cases: false,
+        }
+    }
+}
+
 /// The folder of a scene (or of anything else a benchmark keeps) under target/bench.
 pub fn bench_dir(folder: &str) -> Result<PathBuf, String> {
     Ok(target("bench")?.join(folder))
