@@ -8,6 +8,7 @@
 mod benchmark;
 mod csv;
 mod json;
+mod reading;
 mod write;
 
 pub use benchmark::{Pieces, PiecesSummary};
@@ -163,6 +164,8 @@ pub const MAX_WARNINGS: usize = 20;
 pub(crate) struct Warnings {
     kept: Vec<Warning>,
     count: usize,
+    /// Where in `kept` the one warning about scores outside 0..1 is, once given.
+    score_at: Option<usize>,
 }
 
 impl Warnings {
@@ -170,6 +173,7 @@ impl Warnings {
         Self {
             kept: Vec::new(),
             count: 0,
+            score_at: None,
         }
     }
 
@@ -179,6 +183,20 @@ impl Warnings {
             self.kept.push(Warning {
                 line,
                 message: message.into(),
+            });
+        }
+    }
+
+    /// Warns about the first score outside 0..1.
+    pub(crate) fn note_score(&mut self, score: f64, line: usize) {
+        if !(0.0..=1.0).contains(&score) && self.score_at.is_none() {
+            self.score_at = Some(self.kept.len());
+            // Not a skipped row: counted as a warning but the row is kept.
+            self.kept.push(Warning {
+                line: Some(line),
+                message: format!(
+                    "score {score} is outside 0..1; score thresholds assume 0..1 (first such row; rows kept)"
+                ),
             });
         }
     }
@@ -239,6 +257,10 @@ pub(crate) fn checked_box(
     w_column: usize,
     warnings: &mut Warnings,
 ) -> Result<Option<BBox>, Error> {
+    // The usual box, decided at once: sides of at least a hundredth of a pixel are not negative.
+    if b.w >= MIN_BOX_SIDE && b.h >= MIN_BOX_SIDE {
+        return Ok(Some(b));
+    }
     for (v, name, col) in [(b.w, "w", w_column), (b.h, "h", w_column + 1)] {
         if v < 0.0 {
             return Err(Error::new(
@@ -259,19 +281,6 @@ pub(crate) fn checked_box(
         return Ok(None);
     }
     Ok(Some(b))
-}
-
-pub(crate) fn note_score(score: f64, line: usize, warned: &mut bool, warnings: &mut Warnings) {
-    if !(0.0..=1.0).contains(&score) && !*warned {
-        *warned = true;
-        // Not a skipped row: counted as a warning but the row is kept.
-        warnings.kept.push(Warning {
-            line: Some(line),
-            message: format!(
-                "score {score} is outside 0..1; score thresholds assume 0..1 (first such row; rows kept)"
-            ),
-        });
-    }
 }
 
 /// Lines in a text: room for one row each, so a large file's rows are held without slack (a
