@@ -6,21 +6,35 @@ use crate::error::{Error, ErrorKind};
 /// The file as text: a UTF-8 byte-order mark dropped; binary files and bad UTF-8 refused with the
 /// line of the first bad byte.
 pub fn as_text(bytes: &[u8]) -> Result<&str, Error> {
-    let bytes = bytes.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(bytes);
-    let looks_binary = bytes.iter().take(1 << 16).any(|&b| b == 0);
-    if looks_binary {
+    if looks_binary(bytes) {
         return Err(Error::new(
             ErrorKind::Binary,
             "this is a binary file, not a detections file: expected text (benchmark text, CSV) or JSON; \
              a video goes in as footage, not as detections",
         ));
     }
+    part_as_text(without_bom(bytes), 1)
+}
+
+/// The bytes without a UTF-8 byte-order mark at their start.
+pub fn without_bom(bytes: &[u8]) -> &[u8] {
+    bytes.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(bytes)
+}
+
+/// Whether a file is not text: a NUL byte in its first 64 KiB (after a byte-order mark).
+pub fn looks_binary(bytes: &[u8]) -> bool {
+    without_bom(bytes).iter().take(1 << 16).any(|&b| b == 0)
+}
+
+/// A part of a file, from its line `first_line` on, as text: bad UTF-8 refused with the line of
+/// the first bad byte, as [`as_text`] does for a whole file.
+pub fn part_as_text(bytes: &[u8], first_line: usize) -> Result<&str, Error> {
     std::str::from_utf8(bytes).map_err(|e| {
         let line = bytes[..e.valid_up_to()]
             .iter()
             .filter(|&&b| b == b'\n')
             .count()
-            + 1;
+            + first_line;
         Error::new(
             ErrorKind::Binary,
             "the file is not UTF-8 text: save it as UTF-8 (plain ASCII digits and commas are fine)",

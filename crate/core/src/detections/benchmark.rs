@@ -14,15 +14,22 @@ use crate::text::{frame_number, number, plain_decimal_prefix};
 const BENCHMARK_COLUMNS: [&str; 7] = ["frame", "id", "x", "y", "w", "h", "score"];
 
 pub(super) fn read(text: &str) -> Result<ReadReport, Error> {
-    let mut lines = Lines::new();
+    let (r, error) = read_part(text, 1);
+    if let Some(e) = error {
+        return Err(e);
+    }
+    finish(r.out, DetectionFormat::BenchmarkText, r.warnings)
+}
+
+/// Reads the lines of `text`, the part of a file from line `first_line` on: the rows in file
+/// order, and the first error, which stopped the reading (what was read before it is kept: its
+/// classes are needed to merge parts).
+pub(super) fn read_part(text: &str, first_line: usize) -> (Reading, Option<Error>) {
+    let mut lines = Lines::new(first_line);
     let mut rows = Vec::with_capacity(super::line_count(text));
-    lines.read(text, &mut rows)?;
+    let read = lines.read(text, &mut rows);
     lines.r.out.rows = rows;
-    finish(
-        lines.r.out,
-        DetectionFormat::BenchmarkText,
-        lines.r.warnings,
-    )
+    (lines.r, read.err())
 }
 
 /// The reader's state between lines: the line number, classes seen, warnings.
@@ -32,8 +39,11 @@ struct Lines {
 }
 
 impl Lines {
-    fn new() -> Self {
-        Self { r: Reading::new(1) }
+    /// A reading from line `first_line` (1-based) on.
+    fn new(first_line: usize) -> Self {
+        Self {
+            r: Reading::new(first_line),
+        }
     }
 
     /// Reads the rows on the lines of `text` (whole lines, the next ones of the file) onto
@@ -248,7 +258,7 @@ impl Default for Pieces {
 impl Pieces {
     pub fn new() -> Self {
         Self {
-            lines: Lines::new(),
+            lines: Lines::new(1),
             rows: 0,
             last_frame: 0,
             out_of_order: false,

@@ -84,20 +84,31 @@ fn csv_columns(header: &[&str], line: usize) -> Result<CsvColumns, Error> {
 }
 
 pub(super) fn read(text: &str) -> Result<ReadReport, Error> {
-    let mut lines = CsvLines::new(1, None);
+    let (r, error) = read_part(text, 1, None);
+    if let Some(e) = error {
+        return Err(e);
+    }
+    finish(r.out, DetectionFormat::CsvWithHeader, r.warnings)
+}
+
+/// Reads the lines of `text`, the part of a file from line `first_line` on (after the header
+/// when its `columns` are given): the rows in file order, and the first error, which stopped the
+/// reading (what was read before it is kept: its classes are needed to merge parts).
+pub(super) fn read_part(
+    text: &str,
+    first_line: usize,
+    columns: Option<Header>,
+) -> (Reading, Option<Error>) {
+    let mut lines = CsvLines::new(first_line, columns);
     lines.r.out.rows.reserve(super::line_count(text));
-    lines.read(text)?;
-    if lines.columns.is_none() {
-        return Err(Error::new(
+    let read = lines.read(text).and_then(|()| match lines.columns {
+        Some(_) => Ok(()),
+        None => Err(Error::new(
             ErrorKind::Empty,
             "the CSV file has a header but no rows",
-        ));
-    }
-    finish(
-        lines.r.out,
-        DetectionFormat::CsvWithHeader,
-        lines.r.warnings,
-    )
+        )),
+    });
+    (lines.r, read.err())
 }
 
 /// What each column of a row is, for the quick reading of a line.

@@ -7,11 +7,13 @@
 
 mod benchmark;
 mod csv;
+mod halves;
 mod json;
 mod reading;
 mod write;
 
 pub use benchmark::{Pieces, PiecesSummary};
+pub use halves::{cut_in_two, cut_near, merge, Cut, Part};
 pub use write::{to_benchmark_text, to_csv, to_file_text};
 
 use crate::error::{Error, ErrorKind};
@@ -205,6 +207,16 @@ impl Warnings {
 /// Reads detections from a whole file, recognising the format from its content.
 pub fn read_detections(bytes: &[u8]) -> Result<ReadReport, Error> {
     let text = as_text(bytes)?;
+    match recognise(text)? {
+        DetectionFormat::JsonResults => json::read(text),
+        DetectionFormat::CsvWithHeader => csv::read(text),
+        DetectionFormat::BenchmarkText => benchmark::read(text),
+    }
+}
+
+/// The format of a file that starts with `text` (its whole text, or its start up to the end of
+/// its first line that is not blank or a comment: nothing after that line is looked at).
+fn recognise(text: &str) -> Result<DetectionFormat, Error> {
     let body = text.trim_start();
     if body.is_empty() {
         return Err(Error::new(
@@ -214,21 +226,23 @@ pub fn read_detections(bytes: &[u8]) -> Result<ReadReport, Error> {
         ));
     }
     if body.starts_with('[') || body.starts_with('{') {
-        return json::read(text);
+        return Ok(DetectionFormat::JsonResults);
     }
-    let first = text
-        .lines()
-        .map(str::trim)
-        .find(|l| !l.is_empty() && !l.starts_with('#'))
-        .unwrap_or("");
+    let first = first_row(text).unwrap_or("");
     let is_header = split_fields(first)
         .iter()
         .any(|f| !f.is_empty() && f.parse::<f64>().is_err());
-    if is_header {
-        csv::read(text)
-    } else {
-        benchmark::read(text)
-    }
+    Ok(match is_header {
+        true => DetectionFormat::CsvWithHeader,
+        false => DetectionFormat::BenchmarkText,
+    })
+}
+
+/// The first line that is neither blank nor a comment, trimmed.
+fn first_row(text: &str) -> Option<&str> {
+    text.lines()
+        .map(str::trim)
+        .find(|l| !l.is_empty() && !l.starts_with('#'))
 }
 
 /// Whether a file that starts with `first` (its first bytes, cut at a line end) is benchmark
@@ -236,18 +250,8 @@ pub fn read_detections(bytes: &[u8]) -> Result<ReadReport, Error> {
 /// take it otherwise or refuse it. The byte-order mark, if any, is dropped from the returned text.
 pub fn benchmark_text_start(first: &[u8]) -> Option<&str> {
     let text = as_text(first).ok()?;
-    let body = text.trim_start();
-    if body.is_empty() || body.starts_with('[') || body.starts_with('{') {
-        return None;
-    }
-    let first_row = text
-        .lines()
-        .map(str::trim)
-        .find(|l| !l.is_empty() && !l.starts_with('#'))?;
-    let is_header = split_fields(first_row)
-        .iter()
-        .any(|f| !f.is_empty() && f.parse::<f64>().is_err());
-    (!is_header).then_some(text)
+    first_row(text)?;
+    (recognise(text).ok()? == DetectionFormat::BenchmarkText).then_some(text)
 }
 
 /// Checks a box; `Ok(None)` (with a warning) for a zero-size box, an error for a negative size.

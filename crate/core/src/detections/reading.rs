@@ -33,12 +33,15 @@ impl Reading {
 
     /// The index of the class named on the current line, numbering a new name.
     pub fn class(&mut self, name: &str) -> Result<u16, Error> {
+        self.class_at(name, self.line)
+    }
+
+    /// The index of a class first named on `line`, numbering a new name.
+    pub fn class_at(&mut self, name: &str, line: usize) -> Result<u16, Error> {
         let known = self.out.classes.len();
-        let class = self
-            .out
-            .class_on_line(&mut self.class_index, name, self.line)?;
+        let class = self.out.class_on_line(&mut self.class_index, name, line)?;
         if self.out.classes.len() > known {
-            self.class_lines.push(self.line);
+            self.class_lines.push(line);
         }
         Ok(class)
     }
