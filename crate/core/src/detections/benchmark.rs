@@ -18,7 +18,12 @@ pub(super) fn read(text: &str) -> Result<ReadReport, Error> {
     if let Some(e) = error {
         return Err(e);
     }
-    finish(r.out, DetectionFormat::BenchmarkText, r.warnings)
+    finish(
+        r.out,
+        DetectionFormat::BenchmarkText,
+        r.warnings,
+        !r.out_of_order,
+    )
 }
 
 /// Reads the lines of `text`, the part of a file from line `first_line` on: the rows in file
@@ -75,6 +80,7 @@ impl Lines {
                 }
             };
             if let Some(d) = row {
+                self.r.note_frame(d.frame);
                 rows.push(d);
             }
         }
@@ -235,8 +241,6 @@ fn cut_fields(l: &str) -> ([&str; 8], usize) {
 pub struct Pieces {
     lines: Lines,
     rows: usize,
-    last_frame: u32,
-    out_of_order: bool,
 }
 
 /// What [`Pieces`] saw in all.
@@ -260,8 +264,6 @@ impl Pieces {
         Self {
             lines: Lines::new(1),
             rows: 0,
-            last_frame: 0,
-            out_of_order: false,
         }
     }
 
@@ -270,17 +272,13 @@ impl Pieces {
     pub fn read(&mut self, text: &str, rows: &mut Vec<Detection>) -> Result<(), Error> {
         rows.clear();
         self.lines.read(text, rows)?;
-        for d in rows.iter() {
-            self.out_of_order |= d.frame < self.last_frame;
-            self.last_frame = self.last_frame.max(d.frame);
-        }
         self.rows += rows.len();
         Ok(())
     }
 
     /// Whether a row's frame came before an earlier row's.
     pub fn out_of_order(&self) -> bool {
-        self.out_of_order
+        self.lines.r.out_of_order
     }
 
     /// The classes named so far, in order of first appearance (the detections' class indices).
@@ -301,7 +299,7 @@ impl Pieces {
         }
         Ok(PiecesSummary {
             rows: self.rows,
-            last_frame: self.last_frame,
+            last_frame: self.lines.r.last_frame,
             warnings: self.lines.r.warnings.kept,
             skipped_rows: self.lines.r.warnings.count,
         })

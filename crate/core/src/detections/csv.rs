@@ -88,7 +88,12 @@ pub(super) fn read(text: &str) -> Result<ReadReport, Error> {
     if let Some(e) = error {
         return Err(e);
     }
-    finish(r.out, DetectionFormat::CsvWithHeader, r.warnings)
+    finish(
+        r.out,
+        DetectionFormat::CsvWithHeader,
+        r.warnings,
+        !r.out_of_order,
+    )
 }
 
 /// Reads the lines of `text`, the part of a file from line `first_line` on (after the header
@@ -284,6 +289,7 @@ impl CsvLines {
             name => Some(self.r.class(name)?),
         };
         let embedding = self.r.out.push_embedding(&self.vector);
+        self.r.note_frame(frame);
         self.r.out.rows.push(Detection {
             frame,
             bbox,

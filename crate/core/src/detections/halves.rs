@@ -6,7 +6,7 @@
 
 use super::reading::Reading;
 use super::{benchmark, csv, finish, first_row, recognise, DetectionFormat, ReadReport, Warnings};
-use super::{Detection, MAX_WARNINGS};
+use super::{newlines, MAX_WARNINGS};
 use crate::error::Error;
 use crate::text::{as_text, looks_binary, part_as_text, split_fields, without_bom};
 
@@ -56,7 +56,7 @@ pub fn cut_near(bytes: &[u8], near: usize) -> Option<Cut> {
     if at >= bytes.len() {
         return None;
     }
-    let line = bytes[..at].iter().filter(|&&b| b == b'\n').count() + 1;
+    let line = newlines(&bytes[..at]) + 1;
     Some(Cut {
         at,
         line,
@@ -144,7 +144,7 @@ pub fn merge(first: Part, second: Part) -> Result<ReadReport, Error> {
         return Err(e);
     }
     let format = first.format;
-    let (Some(mut whole), Some(rest)) = (first.reading, second.reading) else {
+    let (Some(mut whole), Some(mut rest)) = (first.reading, second.reading) else {
         return Err(second.error.unwrap_or_else(shorter));
     };
     let mut classes = Vec::with_capacity(rest.out.classes.len());
@@ -157,16 +157,23 @@ pub fn merge(first: Part, second: Part) -> Result<ReadReport, Error> {
     let dim = whole.out.embedding_dim.max(1);
     let vectors = u32::try_from(whole.out.embeddings.len() / dim).unwrap_or(u32::MAX);
     whole.out.embeddings.extend_from_slice(&rest.out.embeddings);
-    whole
-        .out
-        .rows
-        .extend(rest.out.rows.iter().map(|d| Detection {
-            class: d.class.and_then(|c| classes.get(usize::from(c)).copied()),
-            embedding: d.embedding.map(|e| e.saturating_add(vectors)),
-            ..*d
-        }));
+    if !classes.is_empty() || vectors > 0 {
+        for d in &mut rest.out.rows {
+            d.class = d.class.and_then(|c| classes.get(usize::from(c)).copied());
+            d.embedding = d.embedding.map(|e| e.saturating_add(vectors));
+        }
+    }
+    let in_order = !whole.out_of_order
+        && !rest.out_of_order
+        && rest
+            .out
+            .rows
+            .first()
+            .is_none_or(|d| d.frame >= whole.last_frame);
+    whole.out.rows.extend_from_slice(&rest.out.rows);
+    drop(rest.out.rows);
     merge_warnings(&mut whole.warnings, rest.warnings);
-    finish(whole.out, format, whole.warnings)
+    finish(whole.out, format, whole.warnings, in_order)
 }
 
 /// The second part's warnings after the first's, kept and counted as one reading keeps them:

@@ -17,6 +17,9 @@ pub(crate) struct Reading {
     /// The line where each class of `out.classes` was first named.
     pub class_lines: Vec<usize>,
     pub warnings: Warnings,
+    /// The greatest frame of a row so far, and whether a row's frame came before an earlier's.
+    pub last_frame: u32,
+    pub out_of_order: bool,
 }
 
 impl Reading {
@@ -28,6 +31,8 @@ impl Reading {
             class_index: HashMap::new(),
             class_lines: Vec::new(),
             warnings: Warnings::new(),
+            last_frame: 0,
+            out_of_order: false,
         }
     }
 
@@ -44,6 +49,12 @@ impl Reading {
             self.class_lines.push(line);
         }
         Ok(class)
+    }
+
+    /// Notes the frame of a row read.
+    pub fn note_frame(&mut self, frame: u32) {
+        self.out_of_order |= frame < self.last_frame;
+        self.last_frame = self.last_frame.max(frame);
     }
 
     /// [`checked_box`] on the current line.
