@@ -165,8 +165,8 @@ impl Header {
 type Values = [f64; 6];
 
 /// The reader's state between lines.
-pub(super) struct CsvLines {
-    pub(super) r: Reading,
+struct CsvLines {
+    r: Reading,
     /// `None` until the header is read.
     columns: Option<Header>,
     vector: Vec<f32>,
@@ -175,7 +175,7 @@ pub(super) struct CsvLines {
 impl CsvLines {
     /// A reading from line `first_line`, of a part of the file after its header when `columns`
     /// are given.
-    pub(super) fn new(first_line: usize, columns: Option<Header>) -> Self {
+    fn new(first_line: usize, columns: Option<Header>) -> Self {
         let mut lines = Self {
             r: Reading::new(first_line),
             columns: None,
@@ -196,7 +196,7 @@ impl CsvLines {
     /// comment, a blank line, quotes, white space, another way of writing a number, a mistake)
     /// by [`CsvLines::next_row`], so that what is read and every message are the general
     /// reading's.
-    pub(super) fn read(&mut self, text: &str) -> Result<(), Error> {
+    fn read(&mut self, text: &str) -> Result<(), Error> {
         let bytes = text.as_bytes();
         let mut fields = Vec::new();
         let mut at = 0;

@@ -45,8 +45,8 @@ pub fn cut_near(bytes: &[u8], near: usize) -> Option<Cut> {
     if looks_binary(bytes) {
         return None;
     }
-    let start_len = without_bom(bytes).as_ptr() as usize - bytes.as_ptr() as usize;
-    let first_row_end = first_row_end(bytes, start_len)?;
+    let bom = bytes.len() - without_bom(bytes).len();
+    let first_row_end = first_row_end(bytes, bom)?;
     let start = as_text(&bytes[..first_row_end]).ok()?;
     let format = recognise(start).ok()?;
     let header = first_row(start)?.to_string();
