@@ -11,6 +11,7 @@ mod files;
 mod handin;
 mod output;
 mod progress;
+mod reading;
 mod streaming;
 
 use clap::{Parser, Subcommand};

@@ -116,3 +116,65 @@ fn detections_from_a_pipe_give_the_same_tracks_even_out_of_order() {
     assert!(status.success());
     assert_eq!(std::fs::read_to_string(&out).unwrap(), expected);
 }
+
+/// The demo's detections four times over, each copy 750 frames after the last (1.4 MB: read in
+/// two parts on two threads by `-o OUT.json`), with `extra` rows after the third copy.
+fn four_demos(extra: &str) -> String {
+    let text = std::fs::read_to_string(demo("detections.txt")).unwrap();
+    let mut out = String::new();
+    for copy in 0..4u32 {
+        for line in text.lines() {
+            let (frame, rest) = line.split_once(',').unwrap();
+            let frame: u32 = frame.parse().unwrap();
+            out.push_str(&format!("{},{rest}\n", frame + 750 * copy));
+        }
+        if copy == 2 {
+            out.push_str(extra);
+        }
+    }
+    out
+}
+
+/// What `track` says of a file beside its output, the output's name taken out.
+fn said(o: &std::process::Output, out: &str) -> String {
+    stderr(o).replace(out, "OUT")
+}
+
+#[test]
+fn a_large_file_read_on_two_threads_says_what_the_piecewise_reading_says() {
+    // A box too small and a class late in the file, and a score outside 0..1 in both halves:
+    // the same warnings and counts whichever way the file is read (frames in order: the
+    // piecewise reading keeps it).
+    let extra = "2250,-1,10,10,0,10,0.5,-1\n2250,-1,10,10,10,10,1.5,7\n";
+    let dir = scratch("long_two_threads");
+    let big = four_demos(extra).replacen("0.792", "1.25", 1);
+    assert!(big.len() > 1 << 20);
+    let path = write(&dir, "big.txt", big.as_bytes());
+    let (txt, json) = (
+        dir.join("t.txt").display().to_string(),
+        dir.join("t.json").display().to_string(),
+    );
+    let pieces = throughline(&["track", &path, "-o", &txt]);
+    let halves = throughline(&["track", &path, "-o", &json]);
+    assert!(pieces.status.success(), "{}", stderr(&pieces));
+    assert!(halves.status.success(), "{}", stderr(&halves));
+    assert!(
+        said(&halves, &json).contains("passed over"),
+        "{}",
+        stderr(&halves)
+    );
+    assert_eq!(said(&pieces, &txt), said(&halves, &json));
+}
+
+#[test]
+fn a_mistake_late_in_a_large_file_is_named_at_its_line() {
+    let dir = scratch("long_two_threads_bad");
+    let big = four_demos("2250,-1,10,x,10,10,0.5\n");
+    let line = big.lines().position(|l| l.contains(",x,")).unwrap() + 1;
+    let path = write(&dir, "bad.txt", big.as_bytes());
+    let out = dir.join("t.json").display().to_string();
+    let o = throughline(&["track", &path, "-o", &out]);
+    assert_eq!(o.status.code(), Some(1));
+    let expected = format!("line {line}, column 4: `x` in column `y` is not a number");
+    assert!(stderr(&o).contains(&expected), "{}", stderr(&o));
+}

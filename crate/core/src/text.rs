@@ -6,21 +6,35 @@ use crate::error::{Error, ErrorKind};
 /// The file as text: a UTF-8 byte-order mark dropped; binary files and bad UTF-8 refused with the
 /// line of the first bad byte.
 pub fn as_text(bytes: &[u8]) -> Result<&str, Error> {
-    let bytes = bytes.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(bytes);
-    let looks_binary = bytes.iter().take(1 << 16).any(|&b| b == 0);
-    if looks_binary {
+    if looks_binary(bytes) {
         return Err(Error::new(
             ErrorKind::Binary,
             "this is a binary file, not a detections file: expected text (benchmark text, CSV) or JSON; \
              a video goes in as footage, not as detections",
         ));
     }
+    part_as_text(without_bom(bytes), 1)
+}
+
+/// The bytes without a UTF-8 byte-order mark at their start.
+pub fn without_bom(bytes: &[u8]) -> &[u8] {
+    bytes.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(bytes)
+}
+
+/// Whether a file is not text: a NUL byte in its first 64 KiB (after a byte-order mark).
+pub fn looks_binary(bytes: &[u8]) -> bool {
+    without_bom(bytes).iter().take(1 << 16).any(|&b| b == 0)
+}
+
+/// A part of a file, from its line `first_line` on, as text: bad UTF-8 refused with the line of
+/// the first bad byte, as [`as_text`] does for a whole file.
+pub fn part_as_text(bytes: &[u8], first_line: usize) -> Result<&str, Error> {
     std::str::from_utf8(bytes).map_err(|e| {
         let line = bytes[..e.valid_up_to()]
             .iter()
             .filter(|&&b| b == b'\n')
             .count()
-            + 1;
+            + first_line;
         Error::new(
             ErrorKind::Binary,
             "the file is not UTF-8 text: save it as UTF-8 (plain ASCII digits and commas are fine)",
@@ -80,36 +94,47 @@ fn unquote(field: &str) -> &str {
 /// the digits form an integer below 2^53 (exact in f64) and one division by an exact power of ten
 /// rounds correctly (Clinger's fast path). Anything else returns `None` and goes to `str::parse`.
 fn parse_plain_decimal(field: &str) -> Option<f64> {
+    match plain_decimal_prefix(field.as_bytes()) {
+        Some((v, taken)) if taken == field.len() => Some(v),
+        _ => None,
+    }
+}
+
+/// The plain decimal `[-]digits[.digits]` that `bytes` start with, and how many bytes it takes:
+/// what [`number`] reads from a field of exactly those bytes, for a reader that cuts fields and
+/// reads numbers in one pass. `None` when there are no digits, more than 15 of them, or more
+/// than 16 characters after the sign (the longer forms are left to `str::parse`).
+pub fn plain_decimal_prefix(bytes: &[u8]) -> Option<(f64, usize)> {
     const POW10: [f64; 16] = [
         1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15,
     ];
-    let bytes = field.as_bytes();
-    let (negative, digits) = match bytes.first() {
-        Some(b'-') => (true, &bytes[1..]),
-        _ => (false, bytes),
-    };
-    if digits.is_empty() || digits.len() > 16 {
-        return None;
-    }
+    let negative = bytes.first() == Some(&b'-');
+    let start = usize::from(negative);
     let mut mantissa: u64 = 0;
     let mut count = 0;
-    let mut decimals = None;
-    for (i, &b) in digits.iter().enumerate() {
+    let mut point = None;
+    let mut end = start;
+    while let Some(&b) = bytes.get(end) {
         match b {
             b'0'..=b'9' => {
                 mantissa = mantissa * 10 + u64::from(b - b'0');
                 count += 1;
             }
-            b'.' if decimals.is_none() => decimals = Some(digits.len() - i - 1),
-            _ => return None,
+            b'.' if point.is_none() => point = Some(end),
+            _ => break,
+        }
+        end += 1;
+        // Sixteen characters at most: the mantissa stays below 10^16, far from overflowing.
+        if end - start > 16 {
+            return None;
         }
     }
-    let decimals = decimals.unwrap_or(0);
+    let decimals = point.map_or(0, |p| end - p - 1);
     if count == 0 || count > 15 || decimals >= POW10.len() {
         return None;
     }
     let v = mantissa as f64 / POW10[decimals];
-    Some(if negative { -v } else { v })
+    Some((if negative { -v } else { v }, end))
 }
 
 pub fn number(field: &str, name: &str, line: usize, column: usize) -> Result<f64, Error> {

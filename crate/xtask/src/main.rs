@@ -31,7 +31,7 @@ mod site;
 mod slurm;
 mod test;
 
-const USAGE: &str = "usage: cargo xtask <demo [--no-serve] | site | serve [--no-build] [--port N] | test | bench [--quick | --grid | --counts | --detector | --events | --goals [--page-only] | --page | --big-frame] | demo-data | shape | fuzz [--runs N | --seconds S] [--plain] [TARGET...] | slurm>";
+const USAGE: &str = "usage: cargo xtask <demo [--no-serve] | site | serve [--no-build] [--port N] | test | bench [--quick | --grid | --counts | --detector | --events | --goals [--page-only | --parse-only] | --page | --big-frame] | demo-data | shape | fuzz [--runs N | --seconds S] [--plain] [TARGET...] | slurm>";
 
 fn main() -> ExitCode {
     let args: Vec<String> = std::env::args().skip(1).collect();

@@ -145,7 +145,7 @@ fn report_streamed(path: &Path, out: &Path, how: &TrackingArgs, done: &streaming
 pub fn track_file(path: &Path, how: &TrackingArgs, timer: &mut Timer) -> Result<Tracks, Failure> {
     let settings = read_settings(how.config.as_deref())?;
     let bytes = read_file(path)?;
-    let report = detections::read_detections(&bytes).map_err(|e| bad_input(path, e))?;
+    let report = crate::reading::read_detections(&bytes).map_err(|e| bad_input(path, e))?;
     drop(bytes);
     timer.lap("read");
     if !how.quiet {

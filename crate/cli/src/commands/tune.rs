@@ -5,7 +5,7 @@ use crate::output::{check_paths, Outputs};
 use crate::progress;
 use std::path::PathBuf;
 use throughline_core::track::files as tracks_io;
-use throughline_core::{detections, Method};
+use throughline_core::Method;
 use throughline_eval::tune;
 
 /// Search tracker settings that score best against ground truth; prints a settings file.
@@ -31,7 +31,7 @@ pub fn run(args: Args) -> Result<(), Failure> {
     let (detections, truth) = (&args.detections, &args.truth);
     check_paths(&[Some(detections), Some(truth)], &[args.output.as_deref()])?;
     let metric = tune::Metric::parse(&args.metric).unwrap_or(tune::Metric::Hota);
-    let dets = detections::read_detections(&read_file(detections)?)
+    let dets = crate::reading::read_detections(&read_file(detections)?)
         .map_err(|e| bad_input(detections, e))?;
     let gt =
         tracks_io::read_benchmark_boxes(&read_file(truth)?).map_err(|e| bad_input(truth, e))?;

@@ -4,54 +4,94 @@
 //! [`read`] takes a whole file; [`Pieces`] takes it a piece at a time (whole lines) for files too
 //! large to hold, with the same rows, warnings and errors line for line.
 
-use super::{
-    checked_box, finish, note_score, Detection, DetectionFormat, Detections, ReadReport, Warning,
-    Warnings,
-};
+use super::reading::Reading;
+use super::{finish, Detection, DetectionFormat, Detections, ReadReport, Warning};
 use crate::error::{Error, ErrorKind};
 use crate::geometry::BBox;
-use crate::text::{frame_number, number};
-use std::collections::HashMap;
+use crate::limits::in_range;
+use crate::text::{frame_number, number, plain_decimal_prefix};
 
 const BENCHMARK_COLUMNS: [&str; 7] = ["frame", "id", "x", "y", "w", "h", "score"];
 
 pub(super) fn read(text: &str) -> Result<ReadReport, Error> {
-    let mut lines = Lines::new();
-    lines.out.rows.reserve(super::line_count(text));
-    for raw in text.lines() {
-        if let Some(d) = lines.next_row(raw)? {
-            lines.out.rows.push(d);
-        }
+    let (r, error) = read_part(text, 1);
+    if let Some(e) = error {
+        return Err(e);
     }
-    finish(lines.out, DetectionFormat::BenchmarkText, lines.warnings)
+    finish(
+        r.out,
+        DetectionFormat::BenchmarkText,
+        r.warnings,
+        !r.out_of_order,
+    )
+}
+
+/// Reads the lines of `text`, the part of a file from line `first_line` on: the rows in file
+/// order, and the first error, which stopped the reading (what was read before it is kept: its
+/// classes are needed to merge parts).
+pub(super) fn read_part(text: &str, first_line: usize) -> (Reading, Option<Error>) {
+    let mut lines = Lines::new(first_line);
+    let mut rows = Vec::with_capacity(super::line_count(text));
+    let read = lines.read(text, &mut rows);
+    lines.r.out.rows = rows;
+    (lines.r, read.err())
 }
 
 /// The reader's state between lines: the line number, classes seen, warnings.
 struct Lines {
-    line: usize,
-    /// Rows are not kept here by [`Pieces`]; its class names are.
-    out: Detections,
-    class_index: HashMap<String, u16>,
-    warnings: Warnings,
-    warned_score: bool,
+    /// Rows are not kept here: [`read`] and [`Pieces`] take them as they come.
+    r: Reading,
 }
 
 impl Lines {
-    fn new() -> Self {
+    /// A reading from line `first_line` (1-based) on.
+    fn new(first_line: usize) -> Self {
         Self {
-            line: 0,
-            out: Detections::default(),
-            class_index: HashMap::new(),
-            warnings: Warnings::new(),
-            warned_score: false,
+            r: Reading::new(first_line),
         }
+    }
+
+    /// Reads the rows on the lines of `text` (whole lines, the next ones of the file) onto
+    /// `rows`. The usual line is read by [`quick_row`]; any other (a comment, a blank line, white
+    /// space, another way of writing a number, a mistake) by [`Lines::next_row`], so that what is
+    /// read and every message are the general reading's.
+    fn read(&mut self, text: &str, rows: &mut Vec<Detection>) -> Result<(), Error> {
+        let bytes = text.as_bytes();
+        let mut at = 0;
+        while let Some(rest) = bytes.get(at..).filter(|r| !r.is_empty()) {
+            let row = match quick_row(rest) {
+                Some((values, class, taken)) => {
+                    at += taken;
+                    self.r.line += 1;
+                    self.row(values, class)?
+                }
+                None => {
+                    let taken = rest
+                        .iter()
+                        .position(|&b| b == b'\n')
+                        .map_or(rest.len(), |i| i + 1);
+                    let raw = text.get(at..at + taken).unwrap_or_default();
+                    at += taken;
+                    // What `str::lines` gives: the line without its `\n` or `\r\n`.
+                    let raw = raw
+                        .strip_suffix('\n')
+                        .map_or(raw, |l| l.strip_suffix('\r').unwrap_or(l));
+                    self.next_row(raw)?
+                }
+            };
+            if let Some(d) = row {
+                self.r.note_frame(d.frame);
+                rows.push(d);
+            }
+        }
+        Ok(())
     }
 
     /// The detection on the next line, if it holds one (blank lines, comments and passed-over
     /// rows give `None`).
     fn next_row(&mut self, raw: &str) -> Result<Option<Detection>, Error> {
-        self.line += 1;
-        let line = self.line;
+        self.r.line += 1;
+        let line = self.r.line;
         let l = crate::text::trim(raw);
         if l.is_empty() || l.starts_with('#') {
             return Ok(None);
@@ -71,24 +111,20 @@ impl Lines {
         for (k, name) in BENCHMARK_COLUMNS.iter().enumerate() {
             v[k] = number(fields[k], name, line, k + 1)?;
         }
-        let frame = frame_number(v[0], line, 1)?;
-        let Some(bbox) = checked_box(
-            BBox::new(v[2], v[3], v[4], v[5]),
-            line,
-            5,
-            &mut self.warnings,
-        )?
-        else {
+        self.row(v, fields.get(7).and_then(|f| f.parse::<i64>().ok()))
+    }
+
+    /// The detection of the current line from its seven numbers and the eighth column's whole
+    /// number, if any.
+    fn row(&mut self, v: [f64; 7], class: Option<i64>) -> Result<Option<Detection>, Error> {
+        let frame = frame_number(v[0], self.r.line, 1)?;
+        let Some(bbox) = self.r.checked_box(BBox::new(v[2], v[3], v[4], v[5]), 5)? else {
             return Ok(None);
         };
-        note_score(v[6], line, &mut self.warned_score, &mut self.warnings);
+        self.r.note_score(v[6]);
         // Column 8 holds a class in ground-truth style files; -1 (or a world coordinate) means none.
-        let class = match fields.get(7).map(|f| f.parse::<i64>()) {
-            Some(Ok(c)) if c > 0 => Some(self.out.class_on_line(
-                &mut self.class_index,
-                &c.to_string(),
-                line,
-            )?),
+        let class = match class {
+            Some(c) if c > 0 => Some(self.r.class(&c.to_string())?),
             _ => None,
         };
         Ok(Some(Detection {
@@ -99,6 +135,79 @@ impl Lines {
             embedding: None,
         }))
     }
+}
+
+/// The usual line, read in one pass over its bytes: seven plain decimals (as
+/// [`plain_decimal_prefix`] reads them, within [`in_range`]) between single commas, then
+/// perhaps a comma and a whole number (`[-]digits`) ending the line or followed by a comma and
+/// anything. Gives the seven numbers, the whole number and the bytes taken up to and including
+/// the line's end; `None` for any other line, left to the general reading.
+fn quick_row(b: &[u8]) -> Option<([f64; 7], Option<i64>, usize)> {
+    let mut v = [0.0; 7];
+    let mut at = 0;
+    for (k, slot) in v.iter_mut().enumerate() {
+        let (x, taken) = plain_decimal_prefix(b.get(at..)?)?;
+        if !in_range(x) {
+            return None;
+        }
+        *slot = x;
+        at += taken;
+        if k < 6 {
+            (b.get(at) == Some(&b',')).then_some(())?;
+            at += 1;
+        }
+    }
+    if let Some(end) = line_end(b, at) {
+        return Some((v, None, end));
+    }
+    (b.get(at) == Some(&b',')).then_some(())?;
+    at += 1;
+    let (class, taken) = whole_number_prefix(b.get(at..)?)?;
+    at += taken;
+    if let Some(end) = line_end(b, at) {
+        return Some((v, Some(class), end));
+    }
+    (b.get(at) == Some(&b',')).then_some(())?;
+    let rest = b.get(at..)?;
+    Some((
+        v,
+        Some(class),
+        at + rest
+            .iter()
+            .position(|&c| c == b'\n')
+            .map_or(rest.len(), |i| i + 1),
+    ))
+}
+
+/// Where the next line starts when `b` has a line end (`\n`, `\r\n`, or the end of the text)
+/// at `at`.
+fn line_end(b: &[u8], at: usize) -> Option<usize> {
+    match b.get(at) {
+        None => Some(at),
+        Some(b'\n') => Some(at + 1),
+        Some(b'\r') if b.get(at + 1) == Some(&b'\n') => Some(at + 2),
+        _ => None,
+    }
+}
+
+/// `[-]digits` (1 to 18 digits: no `i64` overflows) at the start of `b`, as `str::parse::<i64>`
+/// reads it, and how many bytes it takes.
+fn whole_number_prefix(b: &[u8]) -> Option<(i64, usize)> {
+    let negative = b.first() == Some(&b'-');
+    let start = usize::from(negative);
+    let digits = b
+        .get(start..)?
+        .iter()
+        .take(19)
+        .take_while(|c| c.is_ascii_digit())
+        .count();
+    if digits == 0 || digits > 18 {
+        return None;
+    }
+    let n = b[start..start + digits]
+        .iter()
+        .fold(0i64, |n, &c| n * 10 + i64::from(c - b'0'));
+    Some((if negative { -n } else { n }, start + digits))
 }
 
 /// Benchmark text has no quoting: fields are cut in place in one pass over the line's bytes,
@@ -132,8 +241,6 @@ fn cut_fields(l: &str) -> ([&str; 8], usize) {
 pub struct Pieces {
     lines: Lines,
     rows: usize,
-    last_frame: u32,
-    out_of_order: bool,
 }
 
 /// What [`Pieces`] saw in all.
@@ -155,10 +262,8 @@ impl Default for Pieces {
 impl Pieces {
     pub fn new() -> Self {
         Self {
-            lines: Lines::new(),
+            lines: Lines::new(1),
             rows: 0,
-            last_frame: 0,
-            out_of_order: false,
         }
     }
 
@@ -166,30 +271,24 @@ impl Pieces {
     /// the contents of `rows`.
     pub fn read(&mut self, text: &str, rows: &mut Vec<Detection>) -> Result<(), Error> {
         rows.clear();
-        for raw in text.lines() {
-            if let Some(d) = self.lines.next_row(raw)? {
-                self.out_of_order |= d.frame < self.last_frame;
-                self.last_frame = self.last_frame.max(d.frame);
-                rows.push(d);
-            }
-        }
+        self.lines.read(text, rows)?;
         self.rows += rows.len();
         Ok(())
     }
 
     /// Whether a row's frame came before an earlier row's.
     pub fn out_of_order(&self) -> bool {
-        self.out_of_order
+        self.lines.r.out_of_order
     }
 
     /// The classes named so far, in order of first appearance (the detections' class indices).
     pub fn classes(&self) -> &Detections {
-        &self.lines.out
+        &self.lines.r.out
     }
 
     /// The totals, or the whole-file reader's error for a file without a detection row.
     pub fn finish(self) -> Result<PiecesSummary, Error> {
-        if self.rows == 0 && self.lines.warnings.count == 0 {
+        if self.rows == 0 && self.lines.r.warnings.count == 0 {
             return Err(Error::new(
                 ErrorKind::Empty,
                 format!(
@@ -200,9 +299,9 @@ impl Pieces {
         }
         Ok(PiecesSummary {
             rows: self.rows,
-            last_frame: self.last_frame,
-            warnings: self.lines.warnings.kept,
-            skipped_rows: self.lines.warnings.count,
+            last_frame: self.lines.r.last_frame,
+            warnings: self.lines.r.warnings.kept,
+            skipped_rows: self.lines.r.warnings.count,
         })
     }
 }

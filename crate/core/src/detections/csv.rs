@@ -1,13 +1,12 @@
 //! CSV with a header naming `frame,x,y,w,h,score`, optionally `class` and appearance columns
 //! `e0,e1,…` (in any order; quoted fields allowed).
 
-use super::{
-    checked_box, finish, note_score, Detection, DetectionFormat, Detections, ReadReport, Warnings,
-};
+use super::reading::Reading;
+use super::{finish, Detection, DetectionFormat, ReadReport};
 use crate::error::{Error, ErrorKind};
 use crate::geometry::BBox;
-use crate::text::{frame_number, number, split_fields_into};
-use std::collections::HashMap;
+use crate::limits::in_range;
+use crate::text::{frame_number, number, plain_decimal_prefix, split_fields_into};
 
 struct CsvColumns {
     frame: usize,
@@ -85,30 +84,163 @@ fn csv_columns(header: &[&str], line: usize) -> Result<CsvColumns, Error> {
 }
 
 pub(super) fn read(text: &str) -> Result<ReadReport, Error> {
-    let mut out = Detections::default();
-    let mut class_index = HashMap::new();
-    let mut warnings = Warnings::new();
-    let mut warned_score = false;
-    let mut columns: Option<CsvColumns> = None;
-    out.rows.reserve(super::line_count(text));
-    let mut vector = Vec::new();
-    // The appearance columns' names for messages, made once rather than for every value.
-    let mut embedding_names: Vec<String> = Vec::new();
-    let mut fields = Vec::new();
-    for (i, raw) in text.lines().enumerate() {
-        let line = i + 1;
+    let (r, error) = read_part(text, 1, None);
+    if let Some(e) = error {
+        return Err(e);
+    }
+    finish(
+        r.out,
+        DetectionFormat::CsvWithHeader,
+        r.warnings,
+        !r.out_of_order,
+    )
+}
+
+/// Reads the lines of `text`, the part of a file from line `first_line` on (after the header
+/// when its `columns` are given): the rows in file order, and the first error, which stopped the
+/// reading (what was read before it is kept: its classes are needed to merge parts).
+pub(super) fn read_part(
+    text: &str,
+    first_line: usize,
+    columns: Option<Header>,
+) -> (Reading, Option<Error>) {
+    let mut lines = CsvLines::new(first_line, columns);
+    lines.r.out.rows.reserve(super::line_count(text));
+    let read = lines.read(text).and_then(|()| match lines.columns {
+        Some(_) => Ok(()),
+        None => Err(Error::new(
+            ErrorKind::Empty,
+            "the CSV file has a header but no rows",
+        )),
+    });
+    (lines.r, read.err())
+}
+
+/// What each column of a row is, for the quick reading of a line.
+#[derive(Clone, Copy)]
+enum Role {
+    /// frame, x, y, w, h, score: the place of the value in [`Values`].
+    Number(usize),
+    /// The appearance vector's value of this index.
+    Embedding(usize),
+    Class,
+    /// A column the reader does not use.
+    Other,
+}
+
+/// The header's columns, and what is made of them once for every row.
+pub(super) struct Header {
+    cols: CsvColumns,
+    roles: Vec<Role>,
+    /// The appearance columns' names for messages, made once rather than for every value.
+    embedding_names: Vec<String>,
+}
+
+impl Header {
+    /// The columns named by a header line (its fields), or the error naming what is missing.
+    pub(super) fn new(fields: &[&str], line: usize) -> Result<Header, Error> {
+        let cols = csv_columns(fields, line)?;
+        let mut roles = vec![Role::Other; cols.count];
+        let numbers = [cols.frame, cols.x, cols.y, cols.w, cols.h, cols.score];
+        // Distinct names are at distinct columns, so no column has two roles.
+        if let Some(c) = cols.class {
+            roles[c] = Role::Class;
+        }
+        for (k, &c) in cols.embedding.iter().enumerate() {
+            roles[c] = Role::Embedding(k);
+        }
+        for (k, &c) in numbers.iter().enumerate() {
+            roles[c] = Role::Number(k);
+        }
+        let embedding_names = (0..cols.embedding.len()).map(|k| format!("e{k}")).collect();
+        Ok(Header {
+            cols,
+            roles,
+            embedding_names,
+        })
+    }
+}
+
+/// The numbers of one row: frame, x, y, w, h, score (the appearance vector is kept apart).
+type Values = [f64; 6];
+
+/// The reader's state between lines.
+struct CsvLines {
+    r: Reading,
+    /// `None` until the header is read.
+    columns: Option<Header>,
+    vector: Vec<f32>,
+}
+
+impl CsvLines {
+    /// A reading from line `first_line`, of a part of the file after its header when `columns`
+    /// are given.
+    fn new(first_line: usize, columns: Option<Header>) -> Self {
+        let mut lines = Self {
+            r: Reading::new(first_line),
+            columns: None,
+            vector: Vec::new(),
+        };
+        if let Some(h) = columns {
+            lines.set_header(h);
+        }
+        lines
+    }
+
+    fn set_header(&mut self, h: Header) {
+        self.r.out.embedding_dim = h.cols.embedding.len();
+        self.columns = Some(h);
+    }
+
+    /// Reads the lines of `text`. The usual line is read by [`quick_row`]; any other (a
+    /// comment, a blank line, quotes, white space, another way of writing a number, a mistake)
+    /// by [`CsvLines::next_row`], so that what is read and every message are the general
+    /// reading's.
+    fn read(&mut self, text: &str) -> Result<(), Error> {
+        let bytes = text.as_bytes();
+        let mut fields = Vec::new();
+        let mut at = 0;
+        while let Some(rest) = bytes.get(at..).filter(|r| !r.is_empty()) {
+            if let Some(h) = &self.columns {
+                if let Some((values, class, taken)) = quick_row(h, rest, &mut self.vector) {
+                    self.r.line += 1;
+                    let class = text.get(at + class.0..at + class.1).unwrap_or_default();
+                    at += taken;
+                    self.row(values, class)?;
+                    continue;
+                }
+            }
+            let taken = rest
+                .iter()
+                .position(|&b| b == b'\n')
+                .map_or(rest.len(), |i| i + 1);
+            let raw = text.get(at..at + taken).unwrap_or_default();
+            at += taken;
+            // What `str::lines` gives: the line without its `\n` or `\r\n`.
+            let raw = raw
+                .strip_suffix('\n')
+                .map_or(raw, |l| l.strip_suffix('\r').unwrap_or(l));
+            self.next_row(raw, &mut fields)?;
+        }
+        Ok(())
+    }
+
+    /// The next line read field by field: the header, a row, or nothing (a comment or a blank
+    /// line).
+    fn next_row<'a>(&mut self, raw: &'a str, fields: &mut Vec<&'a str>) -> Result<(), Error> {
+        self.r.line += 1;
+        let line = self.r.line;
         let l = crate::text::trim(raw);
         if l.is_empty() || l.starts_with('#') {
-            continue;
+            return Ok(());
         }
-        split_fields_into(l, &mut fields);
-        let Some(cols) = &columns else {
-            let cols = csv_columns(&fields, line)?;
-            out.embedding_dim = cols.embedding.len();
-            embedding_names = (0..cols.embedding.len()).map(|k| format!("e{k}")).collect();
-            columns = Some(cols);
-            continue;
+        split_fields_into(l, fields);
+        let Some(h) = &self.columns else {
+            let h = Header::new(fields, line)?;
+            self.set_header(h);
+            return Ok(());
         };
+        let cols = &h.cols;
         if fields.len() != cols.count {
             return Err(Error::new(
                 ErrorKind::WrongColumnCount,
@@ -121,42 +253,116 @@ pub(super) fn read(text: &str) -> Result<ReadReport, Error> {
             .at(line, None));
         }
         let get = |k: usize, name: &str| number(fields[k], name, line, k + 1);
-        let frame = frame_number(get(cols.frame, "frame")?, line, cols.frame + 1)?;
-        let b = BBox::new(
+        let frame = get(cols.frame, "frame")?;
+        frame_number(frame, line, cols.frame + 1)?;
+        let numbers = [
+            frame,
             get(cols.x, "x")?,
             get(cols.y, "y")?,
             get(cols.w, "w")?,
             get(cols.h, "h")?,
-        );
-        let score = get(cols.score, "score")?;
-        vector.clear();
-        for (&c, name) in cols.embedding.iter().zip(&embedding_names) {
-            vector.push(get(c, name)? as f32);
+            get(cols.score, "score")?,
+        ];
+        self.vector.clear();
+        for (&c, name) in cols.embedding.iter().zip(&h.embedding_names) {
+            self.vector.push(get(c, name)? as f32);
         }
-        let Some(bbox) = checked_box(b, line, cols.w + 1, &mut warnings)? else {
-            continue;
+        let class = cols.class.map_or("", |c| fields[c]);
+        self.row(numbers, class)
+    }
+
+    /// The row of the current line from its numbers, the appearance vector in `self.vector` and
+    /// the class column's text (empty for none).
+    fn row(&mut self, v: Values, class: &str) -> Result<(), Error> {
+        let Some(h) = &self.columns else {
+            return Ok(());
         };
-        note_score(score, line, &mut warned_score, &mut warnings);
-        let class = match cols.class.map(|c| fields[c]) {
-            Some(name) if !name.is_empty() => {
-                Some(out.class_on_line(&mut class_index, name, line)?)
-            }
-            _ => None,
+        let [frame, x, y, w, hh, score] = v;
+        let frame = frame_number(frame, self.r.line, h.cols.frame + 1)?;
+        let w_column = h.cols.w + 1;
+        let Some(bbox) = self.r.checked_box(BBox::new(x, y, w, hh), w_column)? else {
+            return Ok(());
         };
-        let embedding = out.push_embedding(&vector);
-        out.rows.push(Detection {
+        self.r.note_score(score);
+        let class = match class {
+            "" => None,
+            name => Some(self.r.class(name)?),
+        };
+        let embedding = self.r.out.push_embedding(&self.vector);
+        self.r.note_frame(frame);
+        self.r.out.rows.push(Detection {
             frame,
             bbox,
             score,
             class,
             embedding,
         });
+        Ok(())
     }
-    if columns.is_none() {
-        return Err(Error::new(
-            ErrorKind::Empty,
-            "the CSV file has a header but no rows",
-        ));
+}
+
+/// The usual row, read in one pass over its bytes: the header's number of fields between single
+/// commas, each number a plain decimal (as [`plain_decimal_prefix`] reads it, within
+/// [`in_range`]) and every other field without quotes or white space at its ends. Gives the
+/// numbers (the appearance vector into `vector`), where the class's text is and the bytes taken
+/// up to and including the line's end; `None` for any other line, left to the general reading.
+fn quick_row(
+    h: &Header,
+    b: &[u8],
+    vector: &mut Vec<f32>,
+) -> Option<(Values, (usize, usize), usize)> {
+    if b.first() == Some(&b'#') {
+        return None;
     }
-    finish(out, DetectionFormat::CsvWithHeader, warnings)
+    let mut numbers = [0.0; 6];
+    let mut class = (0, 0);
+    vector.clear();
+    vector.resize(h.cols.embedding.len(), 0.0);
+    let mut at = 0;
+    for (k, role) in h.roles.iter().enumerate() {
+        if k > 0 {
+            (b.get(at) == Some(&b',')).then_some(())?;
+            at += 1;
+        }
+        let field = b.get(at..)?;
+        let taken = match *role {
+            Role::Number(i) => {
+                let (x, taken) = plain_decimal_prefix(field)?;
+                numbers[i] = in_range(x).then_some(x)?;
+                taken
+            }
+            Role::Embedding(i) => {
+                let (x, taken) = plain_decimal_prefix(field)?;
+                vector[i] = in_range(x).then_some(x)? as f32;
+                taken
+            }
+            Role::Class => {
+                let taken = plain_text(field)?;
+                class = (at, at + taken);
+                taken
+            }
+            Role::Other => plain_text(field)?,
+        };
+        at += taken;
+    }
+    let end = match b.get(at) {
+        None => at,
+        Some(b'\n') => at + 1,
+        Some(b'\r') if b.get(at + 1) == Some(&b'\n') => at + 2,
+        _ => return None,
+    };
+    Some((numbers, class, end))
+}
+
+/// The length of a field of text at the start of `b` that the general reading takes as it is:
+/// no quotes, and nothing to trim (empty, or a visible ASCII character at either end).
+fn plain_text(b: &[u8]) -> Option<usize> {
+    let n = b
+        .iter()
+        .position(|&c| matches!(c, b',' | b'\n' | b'\r' | b'"'))
+        .unwrap_or(b.len());
+    let visible = |c: Option<&u8>| c.is_some_and(|c| (b'!'..=b'~').contains(c));
+    let field = &b[..n];
+    let plain = field.is_empty() || (visible(field.first()) && visible(field.last()));
+    (b.get(n) != Some(&b'"') && plain).then_some(n)
 }

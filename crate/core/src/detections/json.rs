@@ -208,5 +208,5 @@ pub(super) fn read(text: &str) -> Result<ReadReport, Error> {
         };
         return Err(Error::from_json(kind, &e, hint));
     }
-    finish(out, DetectionFormat::JsonResults, warnings)
+    finish(out, DetectionFormat::JsonResults, warnings, false)
 }

@@ -7,10 +7,13 @@
 
 mod benchmark;
 mod csv;
+mod halves;
 mod json;
+mod reading;
 mod write;
 
 pub use benchmark::{Pieces, PiecesSummary};
+pub use halves::{cut_in_two, cut_near, merge, Cut, Part};
 pub use write::{to_benchmark_text, to_csv, to_file_text};
 
 use crate::error::{Error, ErrorKind};
@@ -163,6 +166,8 @@ pub const MAX_WARNINGS: usize = 20;
 pub(crate) struct Warnings {
     kept: Vec<Warning>,
     count: usize,
+    /// Where in `kept` the one warning about scores outside 0..1 is, once given.
+    score_at: Option<usize>,
 }
 
 impl Warnings {
@@ -170,6 +175,7 @@ impl Warnings {
         Self {
             kept: Vec::new(),
             count: 0,
+            score_at: None,
         }
     }
 
@@ -182,11 +188,35 @@ impl Warnings {
             });
         }
     }
+
+    /// Warns about the first score outside 0..1.
+    pub(crate) fn note_score(&mut self, score: f64, line: usize) {
+        if !(0.0..=1.0).contains(&score) && self.score_at.is_none() {
+            self.score_at = Some(self.kept.len());
+            // Not a skipped row: counted as a warning but the row is kept.
+            self.kept.push(Warning {
+                line: Some(line),
+                message: format!(
+                    "score {score} is outside 0..1; score thresholds assume 0..1 (first such row; rows kept)"
+                ),
+            });
+        }
+    }
 }
 
 /// Reads detections from a whole file, recognising the format from its content.
 pub fn read_detections(bytes: &[u8]) -> Result<ReadReport, Error> {
     let text = as_text(bytes)?;
+    match recognise(text)? {
+        DetectionFormat::JsonResults => json::read(text),
+        DetectionFormat::CsvWithHeader => csv::read(text),
+        DetectionFormat::BenchmarkText => benchmark::read(text),
+    }
+}
+
+/// The format of a file that starts with `text` (its whole text, or its start up to the end of
+/// its first line that is not blank or a comment: nothing after that line is looked at).
+fn recognise(text: &str) -> Result<DetectionFormat, Error> {
     let body = text.trim_start();
     if body.is_empty() {
         return Err(Error::new(
@@ -196,21 +226,23 @@ pub fn read_detections(bytes: &[u8]) -> Result<ReadReport, Error> {
         ));
     }
     if body.starts_with('[') || body.starts_with('{') {
-        return json::read(text);
+        return Ok(DetectionFormat::JsonResults);
     }
-    let first = text
-        .lines()
-        .map(str::trim)
-        .find(|l| !l.is_empty() && !l.starts_with('#'))
-        .unwrap_or("");
+    let first = first_row(text).unwrap_or("");
     let is_header = split_fields(first)
         .iter()
         .any(|f| !f.is_empty() && f.parse::<f64>().is_err());
-    if is_header {
-        csv::read(text)
-    } else {
-        benchmark::read(text)
-    }
+    Ok(match is_header {
+        true => DetectionFormat::CsvWithHeader,
+        false => DetectionFormat::BenchmarkText,
+    })
+}
+
+/// The first line that is neither blank nor a comment, trimmed.
+fn first_row(text: &str) -> Option<&str> {
+    text.lines()
+        .map(str::trim)
+        .find(|l| !l.is_empty() && !l.starts_with('#'))
 }
 
 /// Whether a file that starts with `first` (its first bytes, cut at a line end) is benchmark
@@ -218,18 +250,8 @@ pub fn read_detections(bytes: &[u8]) -> Result<ReadReport, Error> {
 /// take it otherwise or refuse it. The byte-order mark, if any, is dropped from the returned text.
 pub fn benchmark_text_start(first: &[u8]) -> Option<&str> {
     let text = as_text(first).ok()?;
-    let body = text.trim_start();
-    if body.is_empty() || body.starts_with('[') || body.starts_with('{') {
-        return None;
-    }
-    let first_row = text
-        .lines()
-        .map(str::trim)
-        .find(|l| !l.is_empty() && !l.starts_with('#'))?;
-    let is_header = split_fields(first_row)
-        .iter()
-        .any(|f| !f.is_empty() && f.parse::<f64>().is_err());
-    (!is_header).then_some(text)
+    first_row(text)?;
+    (recognise(text).ok()? == DetectionFormat::BenchmarkText).then_some(text)
 }
 
 /// Checks a box; `Ok(None)` (with a warning) for a zero-size box, an error for a negative size.
@@ -239,6 +261,10 @@ pub(crate) fn checked_box(
     w_column: usize,
     warnings: &mut Warnings,
 ) -> Result<Option<BBox>, Error> {
+    // The usual box, decided at once: sides of at least a hundredth of a pixel are not negative.
+    if b.w >= MIN_BOX_SIDE && b.h >= MIN_BOX_SIDE {
+        return Ok(Some(b));
+    }
     for (v, name, col) in [(b.w, "w", w_column), (b.h, "h", w_column + 1)] {
         if v < 0.0 {
             return Err(Error::new(
@@ -261,29 +287,28 @@ pub(crate) fn checked_box(
     Ok(Some(b))
 }
 
-pub(crate) fn note_score(score: f64, line: usize, warned: &mut bool, warnings: &mut Warnings) {
-    if !(0.0..=1.0).contains(&score) && !*warned {
-        *warned = true;
-        // Not a skipped row: counted as a warning but the row is kept.
-        warnings.kept.push(Warning {
-            line: Some(line),
-            message: format!(
-                "score {score} is outside 0..1; score thresholds assume 0..1 (first such row; rows kept)"
-            ),
-        });
-    }
-}
-
 /// Lines in a text: room for one row each, so a large file's rows are held without slack (a
 /// bound from the file's size, not from a number written in it).
 pub(crate) fn line_count(text: &str) -> usize {
-    text.bytes().filter(|&b| b == b'\n').count() + 1
+    newlines(text.as_bytes()) + 1
 }
 
+/// How many `\n` bytes there are, counted a block at a time into a byte (a block of 192 holds
+/// at most 192), which compilers turn into a few vector instructions a block.
+pub(crate) fn newlines(bytes: &[u8]) -> usize {
+    bytes
+        .chunks(192)
+        .map(|block| usize::from(block.iter().fold(0u8, |n, &b| n + u8::from(b == b'\n'))))
+        .sum()
+}
+
+/// The report of a reading: an error for a file without rows, else the rows sorted by frame
+/// (`in_order`: known to be sorted already).
 pub(crate) fn finish(
     mut detections: Detections,
     format: DetectionFormat,
     warnings: Warnings,
+    in_order: bool,
 ) -> Result<ReadReport, Error> {
     if detections.rows.is_empty() && warnings.count == 0 {
         return Err(Error::new(
@@ -291,7 +316,9 @@ pub(crate) fn finish(
             format!("the {format} file has no detection rows"),
         ));
     }
-    detections.sort_by_frame();
+    if !in_order {
+        detections.sort_by_frame();
+    }
     detections.rows.shrink_to_fit();
     Ok(ReadReport {
         detections,

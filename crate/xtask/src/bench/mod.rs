@@ -41,8 +41,8 @@ mod scene;
 mod table;
 mod tracking;
 
-/// `bench [--quick | --grid | --counts | --detector | --events | --goals [--page-only] | --page |
-/// --big-frame]`.
+/// `bench [--quick | --grid | --counts | --detector | --events | --goals [--page-only |
+/// --parse-only] | --page | --big-frame]`.
 pub fn bench(args: &[String]) -> Result<(), String> {
     let has = |flag: &str| args.iter().any(|a| a == flag);
     if has("--big-frame") {
@@ -53,6 +53,9 @@ pub fn bench(args: &[String]) -> Result<(), String> {
     }
     if has("--detector") {
         return detector::detector_bench(has("--quick"));
+    }
+    if has("--goals") && has("--parse-only") {
+        return goals::parse_goals_bench(has("--quick"));
     }
     if has("--goals") && has("--page-only") {
         return goals::page_goals_bench(has("--quick"));

@@ -1,0 +1,69 @@
+//! What a reader of rows of text (benchmark text, CSV) keeps from line to line: the line number,
+//! the rows and classes read, and the warnings. A file may be read in parts that start at any
+//! line ([`super::halves`]), so each part also notes where each class was first named and which
+//! warning is the one about scores, for the parts to be merged into the whole file's reading.
+
+use super::{checked_box, Detections, Warnings};
+use crate::error::Error;
+use crate::geometry::BBox;
+use std::collections::HashMap;
+
+pub(crate) struct Reading {
+    /// The number of the line last read (one before the first line, to begin with).
+    pub line: usize,
+    /// The rows in file order (not yet sorted by frame), the classes and appearance vectors.
+    pub out: Detections,
+    class_index: HashMap<String, u16>,
+    /// The line where each class of `out.classes` was first named.
+    pub class_lines: Vec<usize>,
+    pub warnings: Warnings,
+    /// The greatest frame of a row so far, and whether a row's frame came before an earlier's.
+    pub last_frame: u32,
+    pub out_of_order: bool,
+}
+
+impl Reading {
+    /// A reading whose first line is `first_line` (1-based).
+    pub fn new(first_line: usize) -> Self {
+        Self {
+            line: first_line.saturating_sub(1),
+            out: Detections::default(),
+            class_index: HashMap::new(),
+            class_lines: Vec::new(),
+            warnings: Warnings::new(),
+            last_frame: 0,
+            out_of_order: false,
+        }
+    }
+
+    /// The index of the class named on the current line, numbering a new name.
+    pub fn class(&mut self, name: &str) -> Result<u16, Error> {
+        self.class_at(name, self.line)
+    }
+
+    /// The index of a class first named on `line`, numbering a new name.
+    pub fn class_at(&mut self, name: &str, line: usize) -> Result<u16, Error> {
+        let known = self.out.classes.len();
+        let class = self.out.class_on_line(&mut self.class_index, name, line)?;
+        if self.out.classes.len() > known {
+            self.class_lines.push(line);
+        }
+        Ok(class)
+    }
+
+    /// Notes the frame of a row read.
+    pub fn note_frame(&mut self, frame: u32) {
+        self.out_of_order |= frame < self.last_frame;
+        self.last_frame = self.last_frame.max(frame);
+    }
+
+    /// [`checked_box`] on the current line.
+    pub fn checked_box(&mut self, b: BBox, w_column: usize) -> Result<Option<BBox>, Error> {
+        checked_box(b, self.line, w_column, &mut self.warnings)
+    }
+
+    /// Warns once about a score outside 0..1 (the row is kept).
+    pub fn note_score(&mut self, score: f64) {
+        self.warnings.note_score(score, self.line);
+    }
+}
