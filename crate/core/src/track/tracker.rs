@@ -101,7 +101,8 @@ pub(crate) struct Tracker {
 }
 
 /// Memory the association reuses from frame to frame (cleared, never shrunk): once a run has
-/// warmed up, matching a frame allocates nothing but for groups of tracks competing for boxes.
+/// warmed up, the frame's boxes, their index, the candidate pairs and the assignment's groups
+/// take no new memory (the lists of matches and of what is left over still do).
 #[derive(Debug, Default)]
 pub(crate) struct Reuse {
     /// The frame's boxes being matched, and their index by place.

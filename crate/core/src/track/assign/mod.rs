@@ -190,7 +190,7 @@ fn assign(rows: usize, cols: usize, edges: &[Edge], gate: f64, steps: u64) -> As
 }
 
 /// What an assignment works in, kept by a caller that assigns every frame so that, once the run
-/// has warmed up, a frame allocates nothing but for components of more than one row and column.
+/// has warmed up, a frame allocates nothing but for components of more than one edge.
 #[derive(Debug, Default)]
 pub struct Buffers {
     /// The pairs found, sorted: the answer of the last call.
