@@ -97,3 +97,87 @@ test("bridging with the footage open gives throughline run --y4m's report", asyn
   assert.deepEqual(seen.foreign, []);
   await page.close();
 });
+
+/** Sets the gap's field as a person types it and leaves it. */
+async function gap(page, text) {
+  const field = page.getByLabel("Bridge gaps up to (frames)");
+  await field.fill(text);
+  await field.press("Tab");
+}
+
+/** Presses Run and waits for its status line to say the tracks are in. */
+async function runTracks(page) {
+  await page.getByRole("button", { name: "Run", exact: true }).click();
+  await page.waitForFunction(() => /tracks in/.test(document.getElementById("run-status").textContent), null, { timeout: 60000 });
+}
+
+/** The run's message (`Messages.say("run", …)`), or "" when none is shown. */
+async function runMessage(page) {
+  const m = page.locator('#messages [data-key="run"]');
+  return (await m.count()) ? m.innerText() : "";
+}
+
+test("bridging's footage and gap are checked in the page; Find waits for Run; footage changed or damaged is said", async () => {
+  const files = scene();
+  const { page, seen } = await openPage(env);
+  await page.getByLabel("Open detections").setInputFiles(files.detections);
+  await page.getByLabel("Open plan").setInputFiles(files.plan);
+  await page.waitForFunction(() => /^detections\.txt/.test(document.getElementById("detections-name").textContent));
+  await page.getByLabel("Method", { exact: true }).selectOption("iou");
+
+  // The gap's field: anything but a whole number from 0 to the core's limit is refused before
+  // tracking, naming the field as the page labels it (not the settings file's `bridge_frames`).
+  for (const typed of ["1.5", "-3", "300"]) {
+    await gap(page, typed);
+    await page.getByRole("button", { name: "Run", exact: true }).click();
+    const said = await runMessage(page);
+    assert.match(said, new RegExp(`"Bridge gaps up to \\(frames\\)" under Set up, Missed detections is ${typed.replace(".", "\\.")}: type a whole number of frames from 1 to 250`));
+    assert.doesNotMatch(said, /bridge_frames/);
+  }
+  assert.equal(await page.locator("#run-status").innerText(), "Ready: press Run to track and count.", "nothing was tracked");
+
+  // Footage with sound and no picture plays (videoWidth 0): nothing to bridge with, and it says so.
+  const sound = join(scratch, "sound.webm");
+  execFileSync("ffmpeg", ["-v", "error", "-y", "-f", "lavfi", "-i", "sine=frequency=440:duration=2", "-c:a", "libopus", sound]);
+  await page.getByLabel("Open footage").setInputFiles(sound);
+  await page.waitForFunction(() => document.getElementById("video").readyState >= 1);
+  await gap(page, "25");
+  await runTracks(page);
+  assert.match(await runMessage(page), /needs footage with a picture, and sound\.webm has none/);
+
+  // Footage that does not play: its own message, not "open it".
+  const bad = join(scratch, "not-video.webm");
+  writeFileSync(bad, "not a video");
+  await page.getByLabel("Open footage").setInputFiles(bad);
+  await page.waitForSelector('#messages [data-key="footage"]');
+  await runTracks(page);
+  assert.match(await runMessage(page), /needs footage that plays here, and not-video\.webm does not/);
+
+  // The real footage, damaged a third of the way in: bridged up to the damage, and said so.
+  const bytes = readFileSync(files.webm);
+  const from = Math.floor(bytes.length / 3);
+  bytes.fill(0xff, from, from + 4096);
+  const damaged = join(scratch, "damaged.webm");
+  writeFileSync(damaged, bytes);
+  await page.getByLabel("Open footage").setInputFiles(damaged);
+  await page.waitForFunction(() => document.getElementById("overlay").width === 320);
+  // Find moving objects is disabled from the moment Run is pressed until it ends (the worker would
+  // only start it after tracking and bridging, and its Cancel must not reach Run's bridging).
+  const findWhileRunning = await page.evaluate(() => {
+    document.getElementById("run").click();
+    return /** @type {HTMLButtonElement} */ (document.getElementById("find-objects")).disabled;
+  });
+  assert.equal(findWhileRunning, true);
+  await page.waitForFunction(() => /tracks in/.test(document.getElementById("run-status").textContent), null, { timeout: 60000 });
+  assert.equal(await page.locator("#find-objects").isDisabled(), false, "Find is back once Run ends");
+  await showView(page, "Results");
+  const said = await page.locator("#bridged-summary").innerText();
+  assert.match(said, /Reading the footage stopped early: .*damaged.*press Run again\./s);
+  assert.doesNotMatch(said, /the footage ended first/);
+
+  // Other footage opened: the summary says the tracks were bridged with the footage before.
+  await page.getByLabel("Open footage").setInputFiles(files.webm);
+  await page.waitForFunction(() => /bridged with damaged\.webm, the footage open before/.test(document.getElementById("bridged-summary").textContent));
+  assert.deepEqual(seen.foreign, []);
+  await page.close();
+});
