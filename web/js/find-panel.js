@@ -50,7 +50,7 @@ export class FindPanel {
     });
     this.button.addEventListener("click", () => this.find());
     // Not while Run tracks: the worker would only start finding once tracking and bridging end.
-    store.subscribe(["video", "busy"], () => { this.button.disabled = !store.video.playable || store.finding || store.tracking; });
+    store.subscribe(["footage", "video", "busy"], () => { this.button.disabled = !store.video.playable || store.finding || store.tracking; });
   }
 
   /** Detector settings JSON from the two height fields. */

@@ -158,7 +158,7 @@ export class PageStore {
   footageOpened(name, blob) {
     this.footage = { name, blob };
     this.video = { playable: false, width: 0, height: 0, frames: 0, duration: 0 }; // until videoReady
-    this.emit(["footage", "video"]);
+    this.emit(["footage"]);
   }
 
   /**
