@@ -176,3 +176,42 @@ test("bridging's footage and gap are checked in the page; Find waits for Run; fo
   assert.deepEqual(seen.foreign, []);
   await page.close();
 });
+
+test("the worker answers in the order asked: a count asked after a second Run waits for its bridging, not only the first's", async () => {
+  const files = scene();
+  const { page } = await openPage(env);
+  const webm = readFileSync(files.webm).toString("base64");
+  const detections = readFileSync(files.detections, "utf8");
+  const plan = readFileSync(files.plan, "utf8");
+  // A worker of the page's own, asked as the page asks: two Runs that bridge (each awaits the
+  // decoder), then a count. The count must wait for the second Run's bridging too, not only the
+  // first's: it is then the count asked again after everything, of bridged tracks.
+  const order = await page.evaluate(async ({ webm, detections, plan }) => {
+    const worker = new Worker("worker.js");
+    const wasm = new Uint8Array(await (await fetch("pkg/throughline_wasm_bg.wasm")).arrayBuffer());
+    /** @type {Map<number, (m: any) => void>} */
+    const waiting = new Map();
+    const done = [];
+    worker.onmessage = (e) => {
+      if (e.data.kind === "progress") return;
+      done.push(e.data.id);
+      waiting.get(e.data.id)(e.data);
+    };
+    let next = 0;
+    const ask = (req) => new Promise((resolve) => { const id = ++next; waiting.set(id, resolve); worker.postMessage({ id, ...req }); });
+    await ask({ op: "init", wasm });
+    await ask({ op: "loadDetections", bytes: new TextEncoder().encode(detections).buffer });
+    const file = new Blob([Uint8Array.from(atob(webm), (c) => c.charCodeAt(0))]);
+    const bridged = ask({ op: "track", method: "iou", settings: '{"bridge_frames": 25}', footage: { file, width: 320, height: 180 } });
+    const again = ask({ op: "track", method: "iou", settings: '{"bridge_frames": 25}', footage: { file, width: 320, height: 180 } });
+    const counted = ask({ op: "setPlan", json: plan, width: 320, height: 180 });
+    const [first, , count] = await Promise.all([bridged, again, counted]);
+    const after = await ask({ op: "setPlan", json: plan, width: 320, height: 180 });
+    worker.terminate();
+    return { done, joined: first.result.bridged.joined, count: count.result.report, after: after.result.report };
+  }, { webm, detections, plan });
+  assert.ok(order.joined >= 1, "the first Run bridged gaps");
+  assert.deepEqual(order.done.slice(2), [3, 4, 5, 6], "answered in the order asked");
+  assert.equal(order.count, order.after, "the count is of the second Run's bridged tracks");
+  await page.close();
+});
