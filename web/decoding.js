@@ -8,9 +8,6 @@
 /** Thrown where finding objects stops on request; answered as {kind: "cancelled"}. */
 class FindCancelled extends Error {}
 
-/** Set by the page's Cancel while finding objects; checked between frames. */
-let findCancelled = false;
-
 /**
  * Footage opened for WebCodecs: a reader at its first frame, what the reader says of it, the
  * decoder's configuration, and `again()` for another reader from the start.
@@ -67,14 +64,16 @@ async function openFootage(file) {
 /**
  * Feeds the reader's coded frames to a VideoDecoder, a few at a time, and each decoded frame to
  * `use` (the motion detector, its background, or bridging), until the footage ends, `until` frames
- * were used, the decoder fails, or finding is cancelled.
+ * were used, the decoder fails, or `cancelled()` says so (checked between frames; then it throws
+ * FindCancelled).
  * @param {wasm_bindgen.FootageReader} reader
  * @param {VideoDecoderConfig} config
  * @param {{width: number, height: number, total: number, until?: number}} size the page's size, frames expected, frames wanted (all when absent)
  * @param {Progress} progress
  * @param {FrameUse} use
+ * @param {() => boolean} cancelled whether the request decoding for was cancelled
  */
-async function decodeAndSearch(reader, config, { width, height, total, until = Infinity }, progress, use) {
+async function decodeAndSearch(reader, config, { width, height, total, until = Infinity }, progress, use, cancelled) {
   const feed = new DecoderFeed(reader, config);
   let done = 0;
   let last = 0;
@@ -82,7 +81,7 @@ async function decodeAndSearch(reader, config, { width, height, total, until = I
   const scratch = new Scratch();
   try {
     for (;;) {
-      if (findCancelled) throw new FindCancelled();
+      if (cancelled()) throw new FindCancelled();
       if (feed.failure) {
         feed.stopped = feed.stopped || `the decoder stopped at frame ${done + 1}: ${feed.failure.message}`;
         break;

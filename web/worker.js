@@ -22,11 +22,15 @@ let session = null;
 /** Whether the session has tracks (of the detections it holds now). */
 let tracked = false;
 /**
- * The tracking under way, settled when it ends. Bridging awaits the decoder, so other requests
- * could come in between: they wait for it, and so never see tracks not yet bridged.
+ * Settled when the last tracking request to arrive has ended. Bridging awaits the decoder, so other
+ * requests could come in between: each waits for the tracking asked for before it (the promise is
+ * taken and replaced when a message arrives, so in the order they came), and so never sees tracks
+ * not yet bridged.
  * @type {Promise<unknown>}
  */
 let tracking = Promise.resolve();
+/** The latest Find moving objects request's cancel token, made when the request arrives. @type {{cancelled: boolean}} */
+let findToken = { cancelled: false };
 
 /** The core's session; operations other than init need it. */
 function core() {
@@ -78,8 +82,15 @@ async function track(method, settings, footage, progress) {
  */
 async function bridge(footage, progress) {
   if (!footage) return null;
-  const bridger = core().startBridging(footage.width, footage.height);
+  let bridger;
+  try {
+    bridger = core().startBridging(footage.width, footage.height);
+  } catch (e) {
+    return { skipped: messageOf(e) }; // the tracks stay as tracked, here as on the page
+  }
   if (!bridger) return null;
+  /** @type {string | null} why reading the footage stopped early (damaged footage) */
+  let stopped = null;
   try {
     const last = bridger.lastFrameNeeded();
     if (last > 0) {
@@ -97,9 +108,10 @@ async function bridge(footage, progress) {
           if (pixels.layout === "RGBA") bridger.feedRgba(frame, pixels.bytes);
           else bridger.feed(frame, pixels.bytes.subarray(0, width * height));
         };
-        findCancelled = false;
         const size = { width: footage.width, height: footage.height, total: last, until: last };
-        await decodeAndSearch(opened.reader, opened.config, size, (done, n) => progress(done, n, "bridging"), feed);
+        // Not cancelled from the page: Cancel on Run replaces the worker.
+        const searched = await decodeAndSearch(opened.reader, opened.config, size, (done, n) => progress(done, n, "bridging"), feed, () => false);
+        stopped = searched.stopped;
       } finally {
         opened.reader.free();
       }
@@ -108,7 +120,8 @@ async function bridge(footage, progress) {
     bridger.free();
     return { skipped: messageOf(e) };
   }
-  return bridger.finish(core());
+  const summary = bridger.finish(core());
+  return stopped ? { ...summary, stopped } : summary;
 }
 
 /**
@@ -145,8 +158,9 @@ function handIn(context) {
  * Does what `req` asks; its result goes back to the page as it is.
  * @param {RequestMessage} req
  * @param {Progress} progress
+ * @param {{cancelled: boolean}} token this request's cancel token (Find moving objects')
  */
-async function perform(req, progress) {
+async function perform(req, progress, token) {
   if (req.op !== "init") core(); // every other operation needs the core started
   switch (req.op) {
     case "init": return init(req.wasm);
@@ -164,8 +178,8 @@ async function perform(req, progress) {
     case "backgroundFrames": return Array.from(core().backgroundFrames(req.total));
     case "sampleRgba": core().sampleRgba(new Uint8Array(req.pixels), req.width, req.height); return null;
     case "finishDetection": tracked = false; return core().finishDetection();
-    case "findInFootage": return findInFootage(req.footage, req.width, req.height, req.settings, req.expectedFrames, progress);
-    case "cancelFind": findCancelled = true; return true;
+    case "findInFootage": return findInFootage(req.footage, req.width, req.height, req.settings, req.expectedFrames, progress, token);
+    case "cancelFind": findToken.cancelled = true; return true;
     case "detectionsText": return core().detectionsText();
     case "tracksText": return core().tracksText();
     case "handIn": return handIn(req.context);
@@ -189,10 +203,11 @@ async function perform(req, progress) {
  * @param {string} settings detector settings JSON
  * @param {number} expected
  * @param {Progress} progress
+ * @param {{cancelled: boolean}} token set by the page's Cancel of this request
  * @returns {Promise<FootageSearched | FootageUnread>}
  */
-async function findInFootage(file, width, height, settings, expected, progress) {
-  findCancelled = false;
+async function findInFootage(file, width, height, settings, expected, progress, token) {
+  const cancelled = () => token.cancelled;
   const opened = await openFootage(file);
   if ("fallback" in opened) return opened;
   const { reader, info, config } = opened;
@@ -205,12 +220,12 @@ async function findInFootage(file, width, height, settings, expected, progress) 
       const first = opened.again();
       try {
         const sampling = (/** @type {number} */ done, /** @type {number} */ n) => progress(done, n, "background");
-        await decodeAndSearch(first, config, { width, height, total }, sampling, sampleFrame);
+        await decodeAndSearch(first, config, { width, height, total }, sampling, sampleFrame, cancelled);
       } finally {
         first.free();
       }
     }
-    const searched = await decodeAndSearch(reader, config, { width, height, total }, progress, searchFrame);
+    const searched = await decodeAndSearch(reader, config, { width, height, total }, progress, searchFrame, cancelled);
     return { summary: core().finishDetection(), codec: info.codec, container: info.container, expected: total, ...searched };
   } finally {
     reader.free();
@@ -295,15 +310,21 @@ function boxesIn(result) {
 self.onmessage = async (/** @type {MessageEvent<RequestMessage>} */ event) => {
   const req = event.data;
   const id = req.id;
+  // Cancel acts at once, on the Find asked for last; the others wait for the tracking asked for
+  // before them, and a track request makes the next requests wait for it.
+  const token = req.op === "findInFootage" ? (findToken = { cancelled: false }) : findToken;
+  const previous = req.op === "cancelFind" ? Promise.resolve() : tracking;
+  let release = () => {};
+  if (req.op === "track") tracking = new Promise((resolve) => { release = () => resolve(undefined); });
   try {
-    if (req.op !== "cancelFind") await tracking;
-    const done = perform(req, (done, total, stage) => reply(stage ? { kind: "progress", id, done, total, stage } : { kind: "progress", id, done, total }));
-    if (req.op === "track") tracking = done.catch(() => null);
-    const result = await done;
+    await previous;
+    const result = await perform(req, (done, total, stage) => reply(stage ? { kind: "progress", id, done, total, stage } : { kind: "progress", id, done, total }), token);
     const transfer = boxesIn(result);
     reply({ kind: "result", id, result }, transfer);
   } catch (e) {
     if (e instanceof FindCancelled) reply({ kind: "cancelled", id });
     else reply({ kind: "error", id, message: messageOf(e) });
+  } finally {
+    release();
   }
 };

@@ -76,7 +76,9 @@ test("without bridging settings there is no handle; a handle of older tracks is 
   session.track("", "", undefined);
   assert.equal(session.startBridging(320, 180), undefined);
   session.track("", '{"bridge_frames": 10}', undefined);
-  assert.throws(() => session.startBridging(0, 180), /0x180 pixels/);
+  // Footage with no picture (an audio-only file) or too large a one: what to open instead.
+  assert.throws(() => session.startBridging(0, 180), /footage of 0x180 pixels: open footage with a picture of 1 to 8192 pixels a side/);
+  assert.throws(() => session.startBridging(320, 8193), /320x8193 pixels: open footage with a picture of 1 to 8192/);
   const old = session.startBridging(320, 180);
   session.track("", '{"bridge_frames": 10}', undefined);
   assert.throws(() => old.finish(session), /run tracking again/);

@@ -49,7 +49,8 @@ export class FindPanel {
       client.cancelFind();
     });
     this.button.addEventListener("click", () => this.find());
-    store.subscribe(["video", "busy"], () => { this.button.disabled = !store.video.playable || store.finding; });
+    // Not while Run tracks: the worker would only start finding once tracking and bridging end.
+    store.subscribe(["footage", "video", "busy"], () => { this.button.disabled = !store.video.playable || store.finding || store.tracking; });
   }
 
   /** Detector settings JSON from the two height fields. */

@@ -99,8 +99,9 @@
 /**
  * What bridging did (crate/wasm/src/bridging.rs): gaps between a track's end and a later track's
  * start followed in the footage, those whose forward and backward followings met, those not
- * followed (the footage ended first, or too many at once), and the gaps bridged (tracks joined).
- * @typedef {{followed: number, met: number, not_followed: number, joined: number}} BridgeSummary
+ * followed (the footage ended first, or too many at once), and the gaps bridged (tracks joined);
+ * `stopped`: why reading the footage stopped early (damaged footage), when it did.
+ * @typedef {{followed: number, met: number, not_followed: number, joined: number, stopped?: string}} BridgeSummary
  */
 /**
  * Bridging after a run: what it did, or why the footage could not be read for it (`skipped`:
@@ -143,12 +144,13 @@
 
 /**
  * What the page takes from the core's own tables instead of writing it again: the tracking methods
- * (registered once in the core) and the crossing margins, in box heights, by default and for boxes
- * found in footage.
+ * (registered once in the core), the crossing margins, in box heights, by default and for boxes
+ * found in footage, and the longest gap (frames) bridging may be asked to bridge.
  * @typedef {object} CoreFacts
  * @property {{name: string, label: string, needs_embeddings: boolean}[]} methods
  * @property {number} default_hysteresis
  * @property {number} footage_hysteresis
+ * @property {number} max_bridge_frames
  */
 
 /**

@@ -75,7 +75,7 @@ export class ResultsPanel {
     const root = byId("results", HTMLElement);
     /** @param {string} name */
     const keyColour = (name) => store.keyColours.colour(name, itemNames(store.plan));
-    store.subscribe(["results"], () => {
+    store.subscribe(["results", "footage"], () => {
       byId("results-empty", HTMLElement).hidden = Boolean(store.results);
       if (!store.results) {
         root.hidden = true;
@@ -84,7 +84,8 @@ export class ResultsPanel {
       root.hidden = false;
       const report = store.results.report;
       byId("caution", HTMLElement).textContent = report.caution;
-      const bridged = bridgedLine(store.bridged);
+      const { bridged: summary, bridgedWith: was } = store;
+      const bridged = bridgedLine(summary, was && was !== store.footage ? was.name : null);
       byId("summary", HTMLElement).replaceChildren(summaryLine(report, methodLabel), ...(bridged ? [bridged] : []), ...totals(report));
       showIntervals(report, keyColour);
       byId("zones-table", HTMLElement).replaceChildren(...zones(report));
@@ -108,18 +109,28 @@ function summaryLine(report, methodLabel) {
  * What bridging missed detections with the footage did to the tracks counted, in words; null when
  * it did not run.
  * @param {import("./protocol.js").Bridged} bridged
+ * @param {string | null} before the footage's name when other footage has been opened since
  */
-function bridgedLine(bridged) {
+function bridgedLine(bridged, before) {
   if (!bridged) return null;
   if ("skipped" in bridged) {
     return el("p", { class: "note", text: `Gaps where the detections missed someone were not bridged: ${bridged.skipped}. These counts are from the detections alone.` });
   }
-  const { followed, joined, not_followed: left } = bridged;
-  const tried = followed === 0
-    ? "no track ended where another began soon after, so nothing was followed in the footage"
-    : `${joined} of ${followed} ${followed === 1 ? "gap" : "gaps"} where one track ended and another began soon after ${joined === 1 ? "was" : "were"} bridged by following the person or vehicle in the footage, joining the two tracks into one`;
-  const more = left > 0 ? ` ${left} more could not be followed (the footage ended first, or too many at once).` : "";
-  return el("p", { class: "hint", id: "bridged-summary", text: `Missed detections: ${tried}.${more}` });
+  const { followed, joined, not_followed: left, stopped } = bridged;
+  const gaps = (/** @type {number} */ n) => `${n} ${n === 1 ? "gap" : "gaps"}`;
+  const ended = stopped ? "reading the footage stopped early" : "the footage ended first, or too many at once";
+  let text;
+  if (followed === 0 && left > 0) {
+    text = `${gaps(left)} where one track ended and another began soon after could not be followed in the footage (${ended}), so none was bridged.`;
+  } else if (followed === 0) {
+    text = "no track ended where another began soon after, so nothing was followed in the footage.";
+  } else {
+    const more = left > 0 ? ` ${left} more could not be followed (${ended}).` : "";
+    text = `${joined} of ${gaps(followed)} where one track ended and another began soon after ${joined === 1 ? "was" : "were"} bridged by following the person or vehicle in the footage, joining the two tracks into one.${more}`;
+  }
+  if (stopped) text += ` Reading the footage stopped early: ${stopped}. The file may be damaged or cut short: re-encode it with ffmpeg and press Run again.`;
+  if (before) text += ` These tracks were bridged with ${before}, the footage open before; press Run to bridge with the footage open now.`;
+  return el("p", { class: before ? "note" : "hint", id: "bridged-summary", text: `Missed detections: ${text}` });
 }
 
 /** @param {Report} report */

@@ -49,6 +49,7 @@ export class RunPanel {
     this.keepShown = false;
     // The methods come from the core's registry once it has started.
     client.ready.then(() => this.listMethods()).catch(() => {});
+    client.ready.then(() => { if (client.facts) this.bridgeFrames.max = String(client.facts.max_bridge_frames); }).catch(() => {});
     this.method.addEventListener("change", () => store.settingChanged("method", this.method.value));
     this.bridgeFrames.value = store.settings.bridgeFrames ?? "";
     this.bridgeFrames.addEventListener("change", () => store.settingChanged("bridgeFrames", this.bridgeFrames.value.trim()));
@@ -105,11 +106,15 @@ export class RunPanel {
       return;
     }
     this.messages.clear("run");
+    // This run as set when Run was pressed (the fields may change while it runs).
+    const run = this.trackingRun();
+    if (typeof run === "string") {
+      this.messages.say("run", "error", run);
+      return;
+    }
     this.showBusy(true);
     this.status.textContent = "Tracking…";
     const started = performance.now();
-    // This run as set when Run was pressed (the fields may change while it runs).
-    const run = this.trackingRun();
     try {
       const out = await this.client.track(run.method, run.settings, run.footage, (done, total, stage) => {
         this.bar.value = total ? done / total : 0;
@@ -123,9 +128,7 @@ export class RunPanel {
       const n = out.bridged && "joined" in out.bridged ? out.bridged.joined : null;
       const joined = n === null ? "" : `, ${n} ${n === 1 ? "gap" : "gaps"} bridged with the footage`;
       this.status.textContent = `${out.tracks} tracks in ${seconds} s${joined}.`;
-      if (run.settings && !run.footage) {
-        this.messages.say("run", "warn", "Bridging gaps in the detections needs the footage: open it under Set up, Files, and press Run again. These counts are from the detections alone.");
-      }
+      if (run.settings && !run.footage) this.messages.say("run", "warn", `${this.whyNoFootage()} These counts are from the detections alone.`);
       if (!hasCountingGeometry(this.store.plan)) {
         this.messages.say("run", "warn", "The plan has no lines or zones, so nothing was counted. Press Draw line and click two points across the path, or open a plan file; the counts appear at once.");
       }
@@ -150,17 +153,31 @@ export class RunPanel {
 
   /**
    * How Run tracks now: the method chosen, tracker settings with the longest gap to bridge when one
-   * is given ("" for the method's defaults: no bridging), and the footage when it plays here.
-   * @returns {TrackingRun}
+   * is given ("" for the method's defaults: no bridging), and the footage when it plays here with a
+   * picture; or what to fix in the gap's field, in words.
+   * @returns {TrackingRun | string}
    */
   trackingRun() {
     const text = this.bridgeFrames.value.trim();
+    const max = this.client.facts ? this.client.facts.max_bridge_frames : Infinity;
     const n = Number(text);
-    // Anything but a number of frames goes to the core as it is, which says what to fix.
-    const settings = text === "" || n === 0 ? "" : JSON.stringify({ bridge_frames: Number.isFinite(n) ? n : text });
+    if (this.bridgeFrames.validity.badInput || !/^\d*$/.test(text) || n > max) {
+      const typed = this.bridgeFrames.validity.badInput ? "is not a number" : `is ${text}`;
+      return `"Bridge gaps up to (frames)" under Set up, Missed detections ${typed}: type a whole number of frames from 1 to ${max}, or 0 or nothing to leave bridging off.`;
+    }
+    const settings = n === 0 ? "" : JSON.stringify({ bridge_frames: n });
     const { footage, video } = this.store;
-    const withFootage = footage && video.playable && settings ? { file: footage.blob, width: video.width, height: video.height } : null;
+    const pictured = video.playable && video.width > 0 && video.height > 0;
+    const withFootage = footage && pictured && settings ? { file: footage.blob, width: video.width, height: video.height } : null;
     return { method: this.method.value, settings, footage: withFootage };
+  }
+
+  /** Why a run that asked for bridging had no footage to bridge with, and what to do. */
+  whyNoFootage() {
+    const { footage, video } = this.store;
+    if (!footage) return "Bridging gaps in the detections needs the footage: open it under Set up, Files, and press Run again.";
+    if (!video.playable) return `Bridging gaps in the detections needs footage that plays here, and ${footage.name} does not (or not yet: wait for its picture, or see the message under it), then press Run again.`;
+    return `Bridging gaps in the detections needs footage with a picture, and ${footage.name} has none (sound alone?): open the video itself under Set up, Files, and press Run again.`;
   }
 
   /** @param {boolean} on */

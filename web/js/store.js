@@ -71,6 +71,8 @@ export class PageStore {
     this.tracks = null;
     /** @type {import("./protocol.js").Bridged} what bridging missed detections did to the tracks shown */
     this.bridged = null;
+    /** @type {{name: string, blob: Blob} | null} the footage open when `bridged` was made (other footage may be open now) */
+    this.bridgedWith = null;
     /** @type {Results | null} */
     this.results = null;
     /** @type {Doubt[]} the doubtful moments of the latest count, most doubtful first */
@@ -155,6 +157,7 @@ export class PageStore {
    */
   footageOpened(name, blob) {
     this.footage = { name, blob };
+    this.video = { playable: false, width: 0, height: 0, frames: 0, duration: 0 }; // until videoReady
     this.emit(["footage"]);
   }
 
@@ -208,7 +211,7 @@ export class PageStore {
    */
   tracksReady(tracks, bridged) {
     this.tracks = tracks;
-    if (bridged !== undefined) this.bridged = bridged;
+    if (bridged !== undefined) [this.bridged, this.bridgedWith] = [bridged, this.footage];
     this.emit(["tracks"]);
   }
 

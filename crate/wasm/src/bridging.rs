@@ -52,7 +52,8 @@ impl Session {
         let side = limits::MAX_PICTURE_SIDE as u32;
         if width == 0 || height == 0 || width > side || height > side {
             return Err(js_error(format!(
-                "footage of {width}x{height} pixels cannot be followed"
+                "footage of {width}x{height} pixels: open footage with a picture of 1 to {side} \
+                 pixels a side"
             )));
         }
         let (width, height) = (width as usize, height as usize);

@@ -2,7 +2,7 @@
 
 use crate::to_js;
 use serde::Serialize;
-use throughline_core::{plan, Method};
+use throughline_core::{limits, plan, Method};
 use wasm_bindgen::prelude::*;
 
 /// A tracking method as the page lists it.
@@ -14,16 +14,18 @@ struct MethodFacts {
 }
 
 /// What the page takes from the core's own tables rather than writing again: the tracking
-/// methods, and the crossing margins (box heights) by default and for boxes found in footage.
+/// methods, the crossing margins (box heights) by default and for boxes found in footage, and the
+/// longest gap (frames) the tracker settings' `bridge_frames` may ask to bridge.
 #[derive(Serialize)]
 struct CoreFacts {
     methods: Vec<MethodFacts>,
     default_hysteresis: f64,
     footage_hysteresis: f64,
+    max_bridge_frames: u32,
 }
 
 /// [`CoreFacts`] as a plain object: `{methods: [{name, label, needs_embeddings}],
-/// default_hysteresis, footage_hysteresis}`.
+/// default_hysteresis, footage_hysteresis, max_bridge_frames}`.
 #[wasm_bindgen(js_name = coreFacts)]
 pub fn core_facts() -> Result<JsValue, JsError> {
     let methods = Method::ALL
@@ -41,5 +43,6 @@ pub fn core_facts() -> Result<JsValue, JsError> {
         methods,
         default_hysteresis: plan::DEFAULT_HYSTERESIS,
         footage_hysteresis: plan::FOOTAGE_HYSTERESIS,
+        max_bridge_frames: limits::MAX_BRIDGE_FRAMES,
     })
 }

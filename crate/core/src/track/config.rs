@@ -80,8 +80,9 @@ pub struct TrackerConfig {
 }
 
 /// Frames bridged by default: none. Bridging is asked for in the settings (25, one second at 25
-/// frames a second, is a good start) until the page bridges too: the page and the command line
-/// must give the same counts for the same footage.
+/// frames a second, is a good start); it stays off by default because it moved the event-level
+/// errors little where measured (BENCHMARKS.md, "Visual bridging of missed detections") and costs
+/// a second reading of the footage.
 pub const DEFAULT_BRIDGE_FRAMES: u32 = 0;
 
 fn default_bridge_frames() -> u32 {
