@@ -2,9 +2,9 @@
 
 use crate::cores::Cores;
 use crate::files::{bad_input, name, read_settings, Failure};
+use crate::frames::{each_frame, next_frame, open_y4m, Y4m};
 use crate::output::{check_paths, Outputs};
 use crate::progress::{self, Timer};
-use std::io::{BufReader, Read};
 use std::path::{Path, PathBuf};
 use throughline_core::detect::{Detector, DetectorConfig, Picture};
 use throughline_core::{detections, Detections};
@@ -76,7 +76,7 @@ pub fn run(args: Args) -> Result<(), Failure> {
 }
 
 /// Reads YUV4MPEG2 frames from a file or standard input (`-`) and runs the detector on each, its
-/// per-pixel work shared over `cores`. A file is read twice: once for the background (pictures
+/// work shared over `cores` (the next frames read meanwhile in a thread of their own). A file is read twice: once for the background (pictures
 /// sampled over the whole clip), then to detect; standard input only once, the background forming
 /// over the opening frames.
 pub fn detect_footage(
@@ -108,7 +108,7 @@ pub fn detect_footage(
     }
     let bar = progress::spinner(quiet, "detecting {spinner} frame {pos} ({per_sec})");
     let mut per_frame = Vec::new();
-    while let Some(frame) = next_frame(&mut reader, footage, true)? {
+    each_frame(&mut reader, footage, |frame| {
         let pic = picture(&header, frame, footage)?;
         per_frame.push(
             detector
@@ -116,27 +116,13 @@ pub fn detect_footage(
                 .map_err(|e| bad_input(footage, e))?,
         );
         bar.inc(1);
-    }
+        Ok(())
+    })?;
     bar.finish_and_clear();
     if per_frame.is_empty() {
         return Err(bad_input(footage, "the stream holds no frames"));
     }
     Ok(detector.detections_from(per_frame))
-}
-
-type Y4m = y4m::Reader<BufReader<Box<dyn Read>>>;
-
-/// A YUV4MPEG2 reader over a file, or standard input for `-`.
-fn open_y4m(footage: &Path) -> Result<Y4m, Failure> {
-    let input: Box<dyn Read> = if footage == Path::new("-") {
-        Box::new(std::io::stdin().lock())
-    } else {
-        Box::new(
-            std::fs::File::open(footage)
-                .map_err(|e| bad_input(footage, format!("cannot read the file: {e}")))?,
-        )
-    };
-    y4m::Reader::new(BufReader::with_capacity(1 << 20, input)).map_err(|e| bad_input(footage, e))
 }
 
 /// The first reading: every frame offered to the detector's background sampler (only the ones it
@@ -160,32 +146,6 @@ fn sample_clip(
     }
     bar.finish_and_clear();
     Ok(())
-}
-
-/// The next whole frame, or `None` at the end; a stream cut inside a frame ends at the frame
-/// before (said once, when `warn`).
-fn next_frame<'a>(
-    reader: &'a mut Y4m,
-    footage: &Path,
-    warn: bool,
-) -> Result<Option<&'a [u8]>, Failure> {
-    let k = reader.frames_read() + 1;
-    match reader.next_frame().map_err(|e| bad_input(footage, e))? {
-        y4m::Next::Frame(frame) => Ok(Some(frame)),
-        y4m::Next::End => Ok(None),
-        y4m::Next::CutShort => {
-            // Keep what was found in the whole frames rather than lose it (with none, the
-            // caller's "holds no frames" says it all).
-            if warn && k > 1 {
-                eprintln!(
-                    "warning: {}: the stream ends inside frame {k}; frames 1 to {} are used",
-                    name(footage),
-                    k - 1
-                );
-            }
-            Ok(None)
-        }
-    }
 }
 
 /// A frame's bytes as the detector's picture.
