@@ -4,7 +4,7 @@
 //! frames reach the caller one at a time and in order, so what is found does not change.
 
 use crate::files::{bad_input, name, Failure};
-use std::io::{BufReader, Read};
+use std::io::{BufRead, BufReader, Read};
 use std::path::Path;
 use std::sync::mpsc;
 use throughline_footage::y4m;
@@ -30,8 +30,8 @@ pub fn open_y4m(footage: &Path) -> Result<Y4m, Failure> {
 
 /// The next whole frame, or `None` at the end; a stream cut inside a frame ends at the frame
 /// before (said once, when `warn`).
-pub fn next_frame<'a>(
-    reader: &'a mut Y4m,
+pub fn next_frame<'a, R: BufRead>(
+    reader: &'a mut y4m::Reader<R>,
     footage: &Path,
     warn: bool,
 ) -> Result<Option<&'a [u8]>, Failure> {

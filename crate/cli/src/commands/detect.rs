@@ -2,9 +2,10 @@
 
 use crate::cores::Cores;
 use crate::files::{bad_input, name, read_settings, Failure};
-use crate::frames::{each_frame, next_frame, open_y4m, Y4m};
+use crate::frames::{each_frame, next_frame, open_y4m};
 use crate::output::{check_paths, Outputs};
 use crate::progress::{self, Timer};
+use std::io::BufReader;
 use std::path::{Path, PathBuf};
 use throughline_core::detect::{Detector, DetectorConfig, Picture};
 use throughline_core::{detections, Detections};
@@ -102,21 +103,22 @@ pub fn detect_footage(
                 );
             }
         } else {
-            sample_clip(reader, &mut detector, footage, quiet)?;
-            reader = open_y4m(footage)?;
+            sample_clip(&mut detector, footage, quiet)?;
         }
     }
     let bar = progress::spinner(quiet, "detecting {spinner} frame {pos} ({per_sec})");
     let mut per_frame = Vec::new();
-    each_frame(&mut reader, footage, |frame| {
-        let pic = picture(&header, frame, footage)?;
-        per_frame.push(
-            detector
-                .detect_found_spread(&pic, cores)
-                .map_err(|e| bad_input(footage, e))?,
-        );
-        bar.inc(1);
-        Ok(())
+    cores.within(|| {
+        each_frame(&mut reader, footage, |frame| {
+            let pic = picture(&header, frame, footage)?;
+            per_frame.push(
+                detector
+                    .detect_found_spread(&pic, cores)
+                    .map_err(|e| bad_input(footage, e))?,
+            );
+            bar.inc(1);
+            Ok(())
+        })
     })?;
     bar.finish_and_clear();
     if per_frame.is_empty() {
@@ -125,22 +127,27 @@ pub fn detect_footage(
     Ok(detector.detections_from(per_frame))
 }
 
-/// The first reading: every frame offered to the detector's background sampler (only the ones it
-/// keeps are copied).
-fn sample_clip(
-    mut reader: Y4m,
-    detector: &mut Detector,
-    footage: &Path,
-    quiet: bool,
-) -> Result<(), Failure> {
+/// The first reading: every frame offered to the detector's background sampler, only the ones it
+/// keeps read (the others passed over by a seek).
+fn sample_clip(detector: &mut Detector, footage: &Path, quiet: bool) -> Result<(), Failure> {
+    let file = std::fs::File::open(footage)
+        .map_err(|e| bad_input(footage, format!("cannot read the file: {e}")))?;
+    // A small buffer: most frames are passed over, and a kept frame is read past it.
+    let mut reader = y4m::Reader::new(BufReader::with_capacity(1 << 12, file))
+        .map_err(|e| bad_input(footage, e))?;
     let header = *reader.header();
     let bar = progress::spinner(quiet, "background {spinner} frame {pos} ({per_sec})");
-    while let Some(frame) = next_frame(&mut reader, footage, false)? {
+    loop {
         if detector.wants_sample() {
+            let Some(frame) = next_frame(&mut reader, footage, false)? else {
+                break;
+            };
             let pic = picture(&header, frame, footage)?;
             detector.sample(&pic).map_err(|e| bad_input(footage, e))?;
-        } else {
+        } else if reader.pass_frame().map_err(|e| bad_input(footage, e))? {
             detector.pass_sample();
+        } else {
+            break;
         }
         bar.inc(1);
     }

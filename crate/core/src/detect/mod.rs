@@ -127,7 +127,7 @@ impl Detector {
         self.detect_found_spread(pic, &InTurn)
     }
 
-    /// [`Self::detect_found`] with the per-pixel work in bands run as `spread` says (on several
+    /// [`Self::detect_found`] with the work in bands run as `spread` says (on several
     /// cores, say): the same boxes however they run.
     pub fn detect_found_spread(
         &mut self,
@@ -211,7 +211,7 @@ impl Detector {
         self.detect_spread(pic, &InTurn)
     }
 
-    /// [`Self::detect`] with the per-pixel work in bands run as `spread` says.
+    /// [`Self::detect`] with the work in bands run as `spread` says.
     pub fn detect_spread(
         &mut self,
         pic: &Picture,
