@@ -77,9 +77,9 @@ pub fn run(args: Args) -> Result<(), Failure> {
 }
 
 /// Reads YUV4MPEG2 frames from a file or standard input (`-`) and runs the detector on each, its
-/// work shared over `cores` (the next frames read meanwhile in a thread of their own). A file is read twice: once for the background (pictures
-/// sampled over the whole clip), then to detect; standard input only once, the background forming
-/// over the opening frames.
+/// work shared over `cores` (the next frames read meanwhile in a thread of their own). A file is
+/// read twice: once for the background (pictures sampled over the whole clip), then to detect;
+/// standard input only once, the background forming over the opening frames.
 pub fn detect_footage(
     footage: &Path,
     config: Option<&Path>,
