@@ -8,6 +8,7 @@ mod bridging;
 mod commands;
 mod cores;
 mod files;
+mod frames;
 mod handin;
 mod output;
 mod progress;

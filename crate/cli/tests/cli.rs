@@ -708,8 +708,8 @@ fn detect_finds_moving_objects_in_footage_from_a_file_and_from_standard_input() 
 
 #[test]
 fn detect_on_several_threads_writes_the_bytes_of_one() {
-    // A relation between runs (no outside value): each frame's per-pixel work cut into bands on
-    // threads gives the one-thread boxes, byte for byte, with and without the heights.
+    // A relation between runs (no outside value): each frame's work cut into bands on threads,
+    // the next frames read meanwhile, gives the one-thread boxes, byte for byte, with and without the heights.
     let dir = scratch("detect-threads");
     let d = dir.display().to_string();
     let y4m = dir.join("frames.y4m").display().to_string();

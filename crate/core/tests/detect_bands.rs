@@ -1,4 +1,4 @@
-//! The detector's per-pixel work cut into bands of rows (`detect::Spread`): the boxes are the ones
+//! The detector's work cut into bands of rows (`detect::Spread`): the boxes are the ones
 //! found in one piece, whatever the number of bands and the order they run in. A relation between
 //! two runs on the simulator's rendered frames (no outside reference value).
 
@@ -52,7 +52,7 @@ fn crop(frame: &[u8], w: usize, h: usize) -> Vec<u8> {
 }
 
 /// Every frame's boxes, the background from the whole clip (or, with `whole_clip` false, from the
-/// opening frames), the per-pixel work run as `spread` says.
+/// opening frames), the work run as `spread` says.
 fn boxes(
     frames: &[Vec<u8>],
     w: usize,

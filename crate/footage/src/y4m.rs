@@ -3,7 +3,7 @@
 //! `FRAME` line and the planes. [`Reader`] reads them one at a time from any `BufRead` (a file or
 //! standard input), so footage is never held whole.
 
-use std::io::{BufRead, Read};
+use std::io::{BufRead, Read, Seek, SeekFrom};
 use throughline_core::limits::{self, MAX_PICTURE_SIDE as MAX_SIDE};
 
 /// Colour layout of the frames.
@@ -159,6 +159,29 @@ impl<R: BufRead> Reader<R> {
         }
         self.frames_read = k;
         Ok(Next::Frame(&self.frame))
+    }
+}
+
+impl<R: BufRead + Seek> Reader<R> {
+    /// Passes over the next frame without reading its planes (a seek past them): `false` at the
+    /// end. For a first reading that needs only some frames; a frame cut short at the very end is
+    /// passed over as if whole (a reading with [`Self::next_frame`] finds it cut short).
+    pub fn pass_frame(&mut self) -> Result<bool, String> {
+        if short_line(&mut self.input, &mut self.line).map_err(|e| e.to_string())? == 0 {
+            return Ok(false);
+        }
+        let k = self.frames_read + 1;
+        if !self.line.starts_with(b"FRAME") {
+            return Err(format!(
+                "frame {k} does not start with FRAME: the stream is damaged or not YUV4MPEG2"
+            ));
+        }
+        let bytes = i64::try_from(self.frame.len()).map_err(|e| e.to_string())?;
+        self.input
+            .seek(SeekFrom::Current(bytes))
+            .map_err(|e| e.to_string())?;
+        self.frames_read = k;
+        Ok(true)
     }
 }
 

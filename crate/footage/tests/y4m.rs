@@ -32,3 +32,28 @@ fn y4m_headers_as_ffmpeg_writes_them() {
         .unwrap_err()
         .contains("ffmpeg"));
 }
+
+#[test]
+fn frames_passed_over_leave_the_next_ones_whole() {
+    // A 2x2 mono stream of four frames, the last cut short (the format's own layout: a FRAME line
+    // before each frame's bytes).
+    let mut bytes = b"YUV4MPEG2 W2 H2 Cmono\n".to_vec();
+    for k in 1..=3u8 {
+        bytes.extend_from_slice(b"FRAME\n");
+        bytes.extend_from_slice(&[k; 4]);
+    }
+    bytes.extend_from_slice(b"FRAME\n\x04\x04");
+    let mut r = y4m::Reader::new(std::io::Cursor::new(bytes)).unwrap();
+    assert_eq!(r.pass_frame(), Ok(true));
+    assert_eq!(r.next_frame(), Ok(y4m::Next::Frame(&[2; 4][..])));
+    assert_eq!(r.pass_frame(), Ok(true));
+    assert_eq!(r.frames_read(), 3);
+    // The cut-short frame is passed over as if whole; then the end.
+    assert_eq!(r.pass_frame(), Ok(true));
+    assert_eq!(r.pass_frame(), Ok(false));
+    let mut bad = y4m::Reader::new(std::io::Cursor::new(
+        b"YUV4MPEG2 W2 H2 Cmono\nFRAMX\n".to_vec(),
+    ))
+    .unwrap();
+    assert!(bad.pass_frame().unwrap_err().contains("FRAME"));
+}

@@ -2,9 +2,10 @@
 
 use crate::cores::Cores;
 use crate::files::{bad_input, name, read_settings, Failure};
+use crate::frames::{each_frame, next_frame, open_y4m};
 use crate::output::{check_paths, Outputs};
 use crate::progress::{self, Timer};
-use std::io::{BufReader, Read};
+use std::io::BufReader;
 use std::path::{Path, PathBuf};
 use throughline_core::detect::{Detector, DetectorConfig, Picture};
 use throughline_core::{detections, Detections};
@@ -76,9 +77,9 @@ pub fn run(args: Args) -> Result<(), Failure> {
 }
 
 /// Reads YUV4MPEG2 frames from a file or standard input (`-`) and runs the detector on each, its
-/// per-pixel work shared over `cores`. A file is read twice: once for the background (pictures
-/// sampled over the whole clip), then to detect; standard input only once, the background forming
-/// over the opening frames.
+/// work shared over `cores` (the next frames read meanwhile in a thread of their own). A file is
+/// read twice: once for the background (pictures sampled over the whole clip), then to detect;
+/// standard input only once, the background forming over the opening frames.
 pub fn detect_footage(
     footage: &Path,
     config: Option<&Path>,
@@ -102,21 +103,23 @@ pub fn detect_footage(
                 );
             }
         } else {
-            sample_clip(reader, &mut detector, footage, quiet)?;
-            reader = open_y4m(footage)?;
+            sample_clip(&mut detector, footage, quiet)?;
         }
     }
     let bar = progress::spinner(quiet, "detecting {spinner} frame {pos} ({per_sec})");
     let mut per_frame = Vec::new();
-    while let Some(frame) = next_frame(&mut reader, footage, true)? {
-        let pic = picture(&header, frame, footage)?;
-        per_frame.push(
-            detector
-                .detect_found_spread(&pic, cores)
-                .map_err(|e| bad_input(footage, e))?,
-        );
-        bar.inc(1);
-    }
+    cores.within(|| {
+        each_frame(&mut reader, footage, |frame| {
+            let pic = picture(&header, frame, footage)?;
+            per_frame.push(
+                detector
+                    .detect_found_spread(&pic, cores)
+                    .map_err(|e| bad_input(footage, e))?,
+            );
+            bar.inc(1);
+            Ok(())
+        })
+    })?;
     bar.finish_and_clear();
     if per_frame.is_empty() {
         return Err(bad_input(footage, "the stream holds no frames"));
@@ -124,68 +127,32 @@ pub fn detect_footage(
     Ok(detector.detections_from(per_frame))
 }
 
-type Y4m = y4m::Reader<BufReader<Box<dyn Read>>>;
-
-/// A YUV4MPEG2 reader over a file, or standard input for `-`.
-fn open_y4m(footage: &Path) -> Result<Y4m, Failure> {
-    let input: Box<dyn Read> = if footage == Path::new("-") {
-        Box::new(std::io::stdin().lock())
-    } else {
-        Box::new(
-            std::fs::File::open(footage)
-                .map_err(|e| bad_input(footage, format!("cannot read the file: {e}")))?,
-        )
-    };
-    y4m::Reader::new(BufReader::with_capacity(1 << 20, input)).map_err(|e| bad_input(footage, e))
-}
-
-/// The first reading: every frame offered to the detector's background sampler (only the ones it
-/// keeps are copied).
-fn sample_clip(
-    mut reader: Y4m,
-    detector: &mut Detector,
-    footage: &Path,
-    quiet: bool,
-) -> Result<(), Failure> {
+/// The first reading: every frame offered to the detector's background sampler, only the ones it
+/// keeps read (the others passed over by a seek).
+fn sample_clip(detector: &mut Detector, footage: &Path, quiet: bool) -> Result<(), Failure> {
+    let file = std::fs::File::open(footage)
+        .map_err(|e| bad_input(footage, format!("cannot read the file: {e}")))?;
+    // A small buffer: most frames are passed over, and a kept frame is read past it.
+    let mut reader = y4m::Reader::new(BufReader::with_capacity(1 << 12, file))
+        .map_err(|e| bad_input(footage, e))?;
     let header = *reader.header();
     let bar = progress::spinner(quiet, "background {spinner} frame {pos} ({per_sec})");
-    while let Some(frame) = next_frame(&mut reader, footage, false)? {
+    loop {
         if detector.wants_sample() {
+            let Some(frame) = next_frame(&mut reader, footage, false)? else {
+                break;
+            };
             let pic = picture(&header, frame, footage)?;
             detector.sample(&pic).map_err(|e| bad_input(footage, e))?;
-        } else {
+        } else if reader.pass_frame().map_err(|e| bad_input(footage, e))? {
             detector.pass_sample();
+        } else {
+            break;
         }
         bar.inc(1);
     }
     bar.finish_and_clear();
     Ok(())
-}
-
-/// The next whole frame, or `None` at the end; a stream cut inside a frame ends at the frame
-/// before (said once, when `warn`).
-fn next_frame<'a>(
-    reader: &'a mut Y4m,
-    footage: &Path,
-    warn: bool,
-) -> Result<Option<&'a [u8]>, Failure> {
-    let k = reader.frames_read() + 1;
-    match reader.next_frame().map_err(|e| bad_input(footage, e))? {
-        y4m::Next::Frame(frame) => Ok(Some(frame)),
-        y4m::Next::End => Ok(None),
-        y4m::Next::CutShort => {
-            // Keep what was found in the whole frames rather than lose it (with none, the
-            // caller's "holds no frames" says it all).
-            if warn && k > 1 {
-                eprintln!(
-                    "warning: {}: the stream ends inside frame {k}; frames 1 to {} are used",
-                    name(footage),
-                    k - 1
-                );
-            }
-            Ok(None)
-        }
-    }
 }
 
 /// A frame's bytes as the detector's picture.

@@ -4,7 +4,7 @@
 //! once, over the warm-up); shadows told apart by brightness ratio and chroma. See the module notes
 //! of `detect` for the method and its sources.
 
-use super::pixels::{levels, lit, unlit, Learning, Test, UNIT_GAIN};
+use super::pixels::{levels, lit, unlit, Band, Learning, Test, UNIT_GAIN};
 use super::spread::{band_rows, Job, Spread};
 use super::{DetectorConfig, Picture};
 use crate::geometry::BBox;
@@ -162,7 +162,7 @@ impl Background {
 
     /// Takes the next picture into the warm-up; `false` while the background is still forming
     /// (nothing can be reported for this picture), `true` once it can tell foreground.
-    pub(super) fn ready(&mut self, pic: &Picture, warm_up: u32) -> bool {
+    pub(super) fn ready(&mut self, pic: &Picture, warm_up: u32, spread: &dyn Spread) -> bool {
         let n = self.width * self.height;
         let (cw, ch) = Picture::chroma_size(self.width, self.height);
         self.frames_seen += 1;
@@ -178,7 +178,7 @@ impl Background {
                 self.samples.push(planes);
             }
             self.still_frames = STILL_FRAMES_WHOLE_CLIP;
-            self.form_background(n, cw * ch);
+            self.form_background(spread);
             return true;
         }
         if self.frames_seen <= warm_up && self.bg.is_empty() {
@@ -193,7 +193,7 @@ impl Background {
                 }
             }
             if self.frames_seen == warm_up {
-                self.form_background(n, cw * ch);
+                self.form_background(spread);
             }
             return false;
         }
@@ -203,38 +203,42 @@ impl Background {
             if let Some((u, v)) = pic.uv {
                 self.samples_uv = vec![(u[..cw * ch].to_vec(), v[..cw * ch].to_vec())];
             }
-            self.form_background(n, cw * ch);
+            self.form_background(spread);
         }
         true
     }
 
-    /// The background and each pixel's usual deviation from the warm-up pictures (medians); the
-    /// pictures are then let go.
-    fn form_background(&mut self, n: usize, nc: usize) {
-        let median = |planes: &[&Vec<u8>], i: usize, buf: &mut Vec<u8>| {
-            buf.clear();
-            buf.extend(planes.iter().map(|p| p[i]));
-            let mid = buf.len() / 2;
-            *buf.select_nth_unstable(mid).1
-        };
-        let mut buf = Vec::with_capacity(self.samples.len());
-        let luma: Vec<&Vec<u8>> = self.samples.iter().collect();
-        self.bg = (0..n).map(|i| median(&luma, i, &mut buf)).collect();
-        for i in 0..n {
-            let b = self.bg[i];
-            buf.clear();
-            buf.extend(luma.iter().map(|p| p[i].abs_diff(b)));
-            let mid = buf.len() / 2;
-            self.dev[i] = (*buf.select_nth_unstable(mid).1).max(2);
+    /// The background and each pixel's usual deviation from the warm-up pictures (medians), in
+    /// bands run as `spread` says; the pictures are then let go.
+    fn form_background(&mut self, spread: &dyn Spread) {
+        let (w, h) = (self.width, self.height);
+        let (cw, ch) = Picture::chroma_size(w, h);
+        let rows = band_rows(h, spread.bands());
+        self.bg = vec![0; w * h];
+        let luma: &Vec<&[u8]> = &self.samples.iter().map(Vec::as_slice).collect();
+        let us: &Vec<&[u8]> = &self.samples_uv.iter().map(|p| p.0.as_slice()).collect();
+        let vs: &Vec<&[u8]> = &self.samples_uv.iter().map(|p| p.1.as_slice()).collect();
+        let size = (rows * w).max(1);
+        let bands = self.bg.chunks_mut(size).zip(self.dev.chunks_mut(size));
+        let mut jobs: Vec<Job> = (bands.enumerate())
+            .map(|(k, (bg, dev))| Box::new(move || medians(luma, k * size, bg, dev)) as Job)
+            .collect();
+        if !us.is_empty() {
+            let size = (rows / 2 * cw).max(1);
+            let planes = self.bg_u[..cw * ch]
+                .chunks_mut(size)
+                .zip(self.bg_v.chunks_mut(size));
+            jobs.extend(planes.enumerate().map(|(k, (bu, bv))| {
+                Box::new(move || {
+                    let mut buf = Vec::with_capacity(us.len());
+                    for (i, (bu, bv)) in bu.iter_mut().zip(bv).enumerate() {
+                        *bu = median(us, k * size + i, &mut buf);
+                        *bv = median(vs, k * size + i, &mut buf);
+                    }
+                }) as Job
+            }));
         }
-        if !self.samples_uv.is_empty() {
-            let us: Vec<&Vec<u8>> = self.samples_uv.iter().map(|p| &p.0).collect();
-            let vs: Vec<&Vec<u8>> = self.samples_uv.iter().map(|p| &p.1).collect();
-            for i in 0..nc {
-                self.bg_u[i] = median(&us, i, &mut buf);
-                self.bg_v[i] = median(&vs, i, &mut buf);
-            }
-        }
+        spread.run(jobs);
         self.samples = Vec::new();
         self.samples_uv = Vec::new();
     }
@@ -252,7 +256,7 @@ impl Background {
         let n = self.width * self.height;
         // The background is kept at one light; this picture's light against it (a cloud, a
         // camera's exposure) is measured over the pixels that were background in the last one.
-        self.gain = self.gain(pic);
+        self.gain = self.gain(pic, spread);
         let gain = self.gain;
         let test = &Test {
             pic: *pic,
@@ -290,19 +294,11 @@ impl Background {
         spread: &dyn Spread,
     ) {
         let (w, h) = (self.width, self.height);
-        covered.fill(0);
-        for b in objects {
-            let (x0, y0) = (b.x.max(0.0) as usize, b.y.max(0.0) as usize);
-            let (x1, y1) = (((b.x + b.w) as usize).min(w), ((b.y + b.h) as usize).min(h));
-            for row in covered.chunks_mut(w).take(y1).skip(y0) {
-                row[x0.min(x1)..x1].fill(1);
-            }
-        }
         let gain = self.gain;
         let learning = &Learning {
             pic: *pic,
             fg_run: &self.fg_run,
-            covered,
+            objects,
             lit_level: levels(|l| lit(l, gain)),
             unlit_level: levels(|l| unlit(l, gain)),
             // Inside a box, background-like pixels are learnt on one frame in COVERED_PACE only:
@@ -313,17 +309,26 @@ impl Background {
         };
         let rows = band_rows(h, spread.bands());
         let (cw, _) = Picture::chroma_size(w, h);
-        let luma = (self
+        let luma = self
             .bg
             .chunks_mut(rows * w)
-            .zip(self.dev.chunks_mut(rows * w)))
-        .enumerate()
-        .map(|(k, (bg, dev))| Box::new(move || learning.luma(k * rows * w, bg, dev)) as Job);
-        let chroma = (self.bg_u.chunks_mut(rows / 2 * cw))
-            .zip(self.bg_v.chunks_mut(rows / 2 * cw))
-            .enumerate()
-            .map(|(k, (u, v))| Box::new(move || learning.chroma(k * rows / 2, u, v)) as Job);
-        spread.run(luma.chain(chroma).collect());
+            .zip(self.dev.chunks_mut(rows * w));
+        let chroma = (self.bg_u.chunks_mut(rows / 2 * cw)).zip(self.bg_v.chunks_mut(rows / 2 * cw));
+        let jobs = (luma
+            .zip(chroma)
+            .zip(covered.chunks_mut(rows * w))
+            .enumerate())
+        .map(|(k, (((bg, dev), (bg_u, bg_v)), covered))| {
+            let planes = Band {
+                bg,
+                dev,
+                bg_u,
+                bg_v,
+            };
+            Box::new(move || learning.band(k * rows, planes, covered)) as Job
+        })
+        .collect();
+        spread.run(jobs);
     }
 }
 
@@ -331,19 +336,52 @@ impl Background {
     /// The light of `pic` against the background's, in 65536ths: the ratio of their sums over
     /// every seventh pixel that was background in the last picture (all pixels at first), within
     /// a half and twice.
-    fn gain(&self, pic: &Picture) -> u32 {
-        let (mut now, mut then) = (0u64, 0u64);
-        for i in (0..self.bg.len()).step_by(7) {
-            if self.fg_run[i] == 0 {
-                now += u64::from(pic.y[i]);
-                then += u64::from(self.bg[i]);
-            }
-        }
+    fn gain(&self, pic: &Picture, spread: &dyn Spread) -> u32 {
+        let size = (band_rows(self.height, spread.bands()) * self.width).max(1);
+        let mut sums = vec![(0u64, 0u64); self.bg.len().div_ceil(size)];
+        let (bg, fg_run) = (&self.bg, &self.fg_run);
+        let jobs = (sums.iter_mut().enumerate())
+            .map(|(k, sum)| {
+                Box::new(move || {
+                    // Every seventh pixel of the picture, counted from its first.
+                    let i0 = (k * size).next_multiple_of(7);
+                    for i in (i0..bg.len().min((k + 1) * size)).step_by(7) {
+                        if fg_run[i] == 0 {
+                            sum.0 += u64::from(pic.y[i]);
+                            sum.1 += u64::from(bg[i]);
+                        }
+                    }
+                }) as Job
+            })
+            .collect();
+        spread.run(jobs);
+        let (now, then) = sums.iter().fold((0, 0), |(a, b), &(c, d)| (a + c, b + d));
         if then == 0 {
             return UNIT_GAIN;
         }
         ((now << 16) / then).clamp(u64::from(UNIT_GAIN / 2), u64::from(UNIT_GAIN * 2)) as u32
     }
+}
+
+/// The per-pixel median of the pictures `planes` from pixel `i0` (as many as `bg` holds) into
+/// `bg`, and the median of their distances from it (at least 2) into `dev`.
+fn medians(planes: &[&[u8]], i0: usize, bg: &mut [u8], dev: &mut [u8]) {
+    let mut buf = Vec::with_capacity(planes.len());
+    for (k, (b, d)) in bg.iter_mut().zip(dev).enumerate() {
+        *b = median(planes, i0 + k, &mut buf);
+        buf.clear();
+        buf.extend(planes.iter().map(|p| p[i0 + k].abs_diff(*b)));
+        let mid = buf.len() / 2;
+        *d = (*buf.select_nth_unstable(mid).1).max(2);
+    }
+}
+
+/// The median (the upper of the middle two) of the pictures `planes` at pixel `i`.
+fn median(planes: &[&[u8]], i: usize, buf: &mut Vec<u8>) -> u8 {
+    buf.clear();
+    buf.extend(planes.iter().map(|p| p[i]));
+    let mid = buf.len() / 2;
+    *buf.select_nth_unstable(mid).1
 }
 
 /// Frames per step of learning inside an object's box.

@@ -1,4 +1,5 @@
-//! The foreground mask's clean-up (3x3 opening and closing) and its connected blobs.
+//! The foreground mask's clean-up (3x3 opening, then closing), a band of rows at a time, and the
+//! blobs it leaves (found in `label`).
 
 /// A blob found in one picture, before it becomes a detection.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -19,13 +20,46 @@ impl Blob {
     }
 }
 
+/// Rows above and below a band that its clean-up reads: each of the six passes reaches one row.
+const HALO: usize = 6;
+
+/// Working buffers of one band's clean-up.
+#[derive(Default)]
+pub(super) struct CleanUp {
+    rows: Vec<u8>,
+    tmp: Vec<u8>,
+}
+
+/// Cleans the rows of `raw` (a whole 0/1 mask `w` wide and `h` high) from `y0`, as many as `out`
+/// holds, into `out`: opening removes specks, closing fills small holes and joins near pixels. The
+/// band is cleaned with [`HALO`] rows of its neighbours around it, so it comes out as it would from
+/// the whole mask cleaned at once (edges repeated at the picture's edges only).
+pub(super) fn clean(raw: &[u8], out: &mut [u8], w: usize, h: usize, y0: usize, buf: &mut CleanUp) {
+    if w == 0 {
+        return;
+    }
+    let y1 = y0 + out.len() / w;
+    let (a, b) = (y0.saturating_sub(HALO), (y1 + HALO).min(h));
+    buf.rows.clear();
+    buf.rows.extend_from_slice(&raw[a * w..b * w]);
+    buf.tmp.resize(buf.rows.len(), 0);
+    let (m, t) = (&mut buf.rows, &mut buf.tmp);
+    erode(m, t, w, b - a);
+    dilate(m, t, w, b - a);
+    dilate(m, t, w, b - a);
+    dilate(m, t, w, b - a);
+    erode(m, t, w, b - a);
+    erode(m, t, w, b - a);
+    out.copy_from_slice(&m[(y0 - a) * w..(y1 - a) * w]);
+}
+
 /// 3x3 erosion of a 0/1 mask, as a row pass then a column pass.
-pub(super) fn erode(mask: &mut [u8], tmp: &mut [u8], w: usize, h: usize) {
+fn erode(mask: &mut [u8], tmp: &mut [u8], w: usize, h: usize) {
     morph::<false>(mask, tmp, w, h);
 }
 
 /// 3x3 dilation of a 0/1 mask.
-pub(super) fn dilate(mask: &mut [u8], tmp: &mut [u8], w: usize, h: usize) {
+fn dilate(mask: &mut [u8], tmp: &mut [u8], w: usize, h: usize) {
     morph::<true>(mask, tmp, w, h);
 }
 
@@ -64,87 +98,3 @@ fn morph<const DILATE: bool>(mask: &mut [u8], tmp: &mut [u8], w: usize, h: usize
         }
     }
 }
-
-/// Connected components (8-connected) of a 0/1 mask by two passes with union-find; `labels` gets
-/// each pixel's component number (0 = background).
-pub(super) fn label_components(mask: &[u8], labels: &mut [u32], w: usize, h: usize) -> Vec<Blob> {
-    let mut parent: Vec<u32> = vec![0];
-    fn find(parent: &mut [u32], mut a: u32) -> u32 {
-        while parent[a as usize] != a {
-            parent[a as usize] = parent[parent[a as usize] as usize];
-            a = parent[a as usize];
-        }
-        a
-    }
-    labels[..w * h].fill(0);
-    for y in 0..h {
-        for x in foreground_in_row(&mask[y * w..][..w]) {
-            let i = y * w + x;
-            let mut neighbours = [0u32; 4];
-            if x > 0 {
-                neighbours[0] = labels[i - 1];
-            }
-            if y > 0 {
-                let up = i - w;
-                neighbours[1] = labels[up];
-                if x > 0 {
-                    neighbours[2] = labels[up - 1];
-                }
-                if x + 1 < w {
-                    neighbours[3] = labels[up + 1];
-                }
-            }
-            let mut label = 0;
-            for &n in neighbours.iter().filter(|&&n| n != 0) {
-                let r = find(&mut parent, n);
-                if label == 0 {
-                    label = r;
-                } else if r != label {
-                    let (lo, hi) = (label.min(r), label.max(r));
-                    parent[hi as usize] = lo;
-                    label = lo;
-                }
-            }
-            if label == 0 {
-                label = parent.len() as u32;
-                parent.push(label);
-            }
-            labels[i] = label;
-        }
-    }
-    let mut blobs: Vec<Option<Blob>> = vec![None; parent.len()];
-    for y in 0..h {
-        for x in foreground_in_row(&mask[y * w..][..w]) {
-            let i = y * w + x;
-            let root = find(&mut parent, labels[i]);
-            labels[i] = root;
-            let b = blobs[root as usize].get_or_insert(Blob {
-                x0: x,
-                y0: y,
-                x1: x,
-                y1: y,
-                area: 0,
-            });
-            b.x0 = b.x0.min(x);
-            b.x1 = b.x1.max(x);
-            b.y1 = y;
-            b.area += 1;
-        }
-    }
-    blobs.into_iter().flatten().collect()
-}
-
-/// The places of a row's foreground pixels, left to right, passing over background a span of
-/// [`SPAN`] at a time where it can (most of a picture is background).
-fn foreground_in_row(row: &[u8]) -> impl Iterator<Item = usize> + '_ {
-    row.chunks(SPAN).enumerate().flat_map(|(k, span)| {
-        let quiet = span.iter().all(|&m| m == 0);
-        let places = span.iter().enumerate().filter(|(_, &m)| m != 0);
-        places
-            .map(move |(x, _)| k * SPAN + x)
-            .take(if quiet { 0 } else { SPAN })
-    })
-}
-
-/// Pixels of a row looked at together when passing over background.
-const SPAN: usize = 32;

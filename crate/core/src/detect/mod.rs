@@ -22,6 +22,7 @@ mod background;
 mod blobs;
 mod classify;
 mod config;
+mod label;
 mod mask;
 mod picture;
 mod pixels;
@@ -36,6 +37,9 @@ use crate::detections::{Detection, Detections};
 use crate::error::{Error, ErrorKind};
 use crate::geometry::BBox;
 use background::Background;
+use label::BandRuns;
+use mask::{Blob, CleanUp};
+use spread::band_rows;
 
 /// One object found in a picture.
 #[derive(Debug, Clone, PartialEq)]
@@ -53,9 +57,17 @@ pub struct Detector {
     width: usize,
     height: usize,
     background: Background,
+    /// 1 where the last picture differs from the background (before the clean-up).
+    changed: Vec<u8>,
+    /// The cleaned foreground of the last picture, which the boxes are cut from.
     mask: Vec<u8>,
-    scratch: Vec<u8>,
-    labels: Vec<u32>,
+    /// 1 inside a box found in the last picture (for the learning).
+    covered: Vec<u8>,
+    /// Each band's working buffers and runs of foreground (see `label`).
+    clean_ups: Vec<CleanUp>,
+    band_runs: Vec<BandRuns>,
+    /// The blobs' joining across bands, a working buffer.
+    first_runs: Vec<u32>,
 }
 
 impl Detector {
@@ -66,9 +78,12 @@ impl Detector {
             width,
             height,
             background: Background::new(width, height),
+            changed: vec![0; n],
             mask: vec![0; n],
-            scratch: vec![0; n],
-            labels: vec![0; n],
+            covered: vec![0; n],
+            clean_ups: Vec::new(),
+            band_runs: Vec::new(),
+            first_runs: Vec::new(),
         }
     }
 
@@ -112,7 +127,7 @@ impl Detector {
         self.detect_found_spread(pic, &InTurn)
     }
 
-    /// [`Self::detect_found`] with the per-pixel work in bands run as `spread` says (on several
+    /// [`Self::detect_found`] with the work in bands run as `spread` says (on several
     /// cores, say): the same boxes however they run.
     pub fn detect_found_spread(
         &mut self,
@@ -196,31 +211,55 @@ impl Detector {
         self.detect_spread(pic, &InTurn)
     }
 
-    /// [`Self::detect`] with the per-pixel work in bands run as `spread` says.
+    /// [`Self::detect`] with the work in bands run as `spread` says.
     pub fn detect_spread(
         &mut self,
         pic: &Picture,
         spread: &dyn Spread,
     ) -> Result<Vec<(BBox, f64)>, Error> {
         self.check_size(pic)?;
-        if !self.background.ready(pic, self.config.warm_up_frames) {
+        if !self
+            .background
+            .ready(pic, self.config.warm_up_frames, spread)
+        {
             return Ok(Vec::new());
         }
         self.background
-            .foreground(pic, &self.config, &mut self.mask, spread);
-        // Clean-up: opening removes specks, closing fills small holes and joins near pixels.
-        mask::erode(&mut self.mask, &mut self.scratch, self.width, self.height);
-        mask::dilate(&mut self.mask, &mut self.scratch, self.width, self.height);
-        mask::dilate(&mut self.mask, &mut self.scratch, self.width, self.height);
-        mask::dilate(&mut self.mask, &mut self.scratch, self.width, self.height);
-        mask::erode(&mut self.mask, &mut self.scratch, self.width, self.height);
-        mask::erode(&mut self.mask, &mut self.scratch, self.width, self.height);
-        let blobs = mask::label_components(&self.mask, &mut self.labels, self.width, self.height);
+            .foreground(pic, &self.config, &mut self.changed, spread);
+        let blobs = self.blobs(spread);
         let found = self.boxes(blobs);
         let objects: Vec<BBox> = found.iter().map(|(b, _)| *b).collect();
         self.background
-            .learn(pic, &objects, &mut self.scratch, spread);
+            .learn(pic, &objects, &mut self.covered, spread);
         Ok(found)
+    }
+
+    /// The blobs of the foreground just marked: each band of rows cleaned into `mask` and its runs
+    /// listed, the bands run as `spread` says; then the runs joined across the bands' edges.
+    fn blobs(&mut self, spread: &dyn Spread) -> Vec<Blob> {
+        let (w, h) = (self.width, self.height);
+        if w * h == 0 {
+            return Vec::new();
+        }
+        let rows = band_rows(h, spread.bands());
+        let bands = h.div_ceil(rows);
+        self.clean_ups.resize_with(bands, CleanUp::default);
+        self.band_runs.resize_with(bands, BandRuns::default);
+        let changed = &self.changed;
+        let work = self.clean_ups.iter_mut().zip(&mut self.band_runs);
+        let jobs = (self.mask[..w * h]
+            .chunks_mut(rows * w)
+            .zip(work)
+            .enumerate())
+        .map(|(k, (out, (clean_up, runs)))| {
+            Box::new(move || {
+                mask::clean(changed, out, w, h, k * rows, clean_up);
+                label::band_runs(out, w, k * rows, runs);
+            }) as Job
+        })
+        .collect();
+        spread.run(jobs);
+        label::blobs(&self.band_runs, &mut self.first_runs)
     }
 
     /// Refuses a picture of another size than the detector's, or with planes too short.

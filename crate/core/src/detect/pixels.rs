@@ -2,6 +2,7 @@
 //! the learning, and the arithmetic of light levels they share. The method is in `background`.
 
 use super::Picture;
+use crate::geometry::BBox;
 
 /// The foreground test of one picture against the background: what every band reads.
 pub(super) struct Test<'a> {
@@ -66,8 +67,8 @@ impl Test<'_> {
 pub(super) struct Learning<'a> {
     pub(super) pic: Picture<'a>,
     pub(super) fg_run: &'a [u16],
-    /// 1 inside an object's box.
-    pub(super) covered: &'a [u8],
+    /// The boxes of the objects found in the picture.
+    pub(super) objects: &'a [BBox],
     /// The background's level at this picture's light.
     pub(super) lit_level: [u8; 256],
     /// A picture's level at the background's light.
@@ -83,13 +84,39 @@ impl Learning<'_> {
         run == 0 && (covered == 0 || self.slow_turn)
     }
 
-    /// Moves the background and deviation of the luma pixels from `i0` (as many as `bg` holds).
-    /// Each pixel's three outcomes are worked out and one chosen, without branches, so it
-    /// vectorises; a picture's levels go through the table first, a piece at a time.
-    pub(super) fn luma(&self, i0: usize, bg: &mut [u8], dev: &mut [u8]) {
+    /// Learns the band of rows from `y0` (as many as `bg` holds; `bg_u` and `bg_v` hold its
+    /// chroma rows): marks the objects' boxes in `covered` (one byte a pixel of the band), then
+    /// moves the luma and the chroma background.
+    pub(super) fn band(&self, y0: usize, planes: Band, covered: &mut [u8]) {
+        let w = self.pic.width;
+        self.cover(y0, covered);
+        self.luma(y0 * w, planes.bg, planes.dev, covered);
+        self.chroma(y0 / 2, planes.bg_u, planes.bg_v, covered);
+    }
+
+    /// 1 in `covered` (the band of rows from `y0`) inside an object's box, else 0.
+    fn cover(&self, y0: usize, covered: &mut [u8]) {
+        let (w, h) = (self.pic.width, self.pic.height);
+        let y1 = y0 + covered.len() / w.max(1);
+        covered.fill(0);
+        for b in self.objects {
+            let (x0, top) = (b.x.max(0.0) as usize, b.y.max(0.0) as usize);
+            let (x1, bottom) = (((b.x + b.w) as usize).min(w), ((b.y + b.h) as usize).min(h));
+            for y in top.max(y0)..bottom.min(y1) {
+                covered[(y - y0) * w..][x0.min(x1)..x1].fill(1);
+            }
+        }
+    }
+
+    /// Moves the background and deviation of the luma pixels from `i0` (as many as `bg` holds;
+    /// `covered` from the same pixel). Each pixel's three outcomes are worked out and one chosen,
+    /// without branches, so it vectorises; a picture's levels go through the table first, a piece
+    /// at a time.
+    fn luma(&self, i0: usize, bg: &mut [u8], dev: &mut [u8], covered: &[u8]) {
         const PIECE: usize = 256;
         let (mut target, mut seen) = ([0u8; PIECE], [0u8; PIECE]);
-        for (k, (bg, dev)) in bg.chunks_mut(PIECE).zip(dev.chunks_mut(PIECE)).enumerate() {
+        let pieces = bg.chunks_mut(PIECE).zip(dev.chunks_mut(PIECE));
+        for (k, ((bg, dev), covered)) in pieces.zip(covered.chunks(PIECE)).enumerate() {
             let (at, n) = (i0 + k * PIECE, bg.len());
             let y = &self.pic.y[at..at + n];
             for ((t, s), (&p, &b)) in target.iter_mut().zip(&mut seen).zip(y.iter().zip(&*bg)) {
@@ -98,7 +125,7 @@ impl Learning<'_> {
             }
             // Every slice cut to `n` and indexed: the bounds checks go and the loop vectorises.
             let (bg, dev, y) = (&mut bg[..n], &mut dev[..n], &y[..n]);
-            let (run, covered) = (&self.fg_run[at..at + n], &self.covered[at..at + n]);
+            let (run, covered) = (&self.fg_run[at..at + n], &covered[..n]);
             let (target, seen) = (&target[..n], &seen[..n]);
             let (slow_turn, still_frames) = (self.slow_turn, self.still_frames);
             for x in 0..n {
@@ -125,8 +152,8 @@ impl Learning<'_> {
     }
 
     /// Moves the chroma background of the chroma rows from `cy0` (as many as `bg_u` holds), where
-    /// the top-left luma pixel of each is learnt.
-    pub(super) fn chroma(&self, cy0: usize, bg_u: &mut [u8], bg_v: &mut [u8]) {
+    /// the top-left luma pixel of each is learnt; `covered` starts at luma row `2 * cy0`.
+    fn chroma(&self, cy0: usize, bg_u: &mut [u8], bg_v: &mut [u8], covered: &[u8]) {
         let Some((u, v)) = self.pic.uv else { return };
         let w = self.pic.width;
         let (cw, _) = Picture::chroma_size(w, self.pic.height);
@@ -135,8 +162,8 @@ impl Learning<'_> {
             let (u, v) = (&u[cy * cw..][..cw], &v[cy * cw..][..cw]);
             for (cx, ((bu, bv), (&u, &v))) in bu.iter_mut().zip(bv).zip(u.iter().zip(v)).enumerate()
             {
-                let li = cy * 2 * w + cx * 2;
-                let learn = match (self.fg_run.get(li), self.covered.get(li)) {
+                let (li, local) = (cy * 2 * w + cx * 2, r * 2 * w + cx * 2);
+                let learn = match (self.fg_run.get(li), covered.get(local)) {
                     (Some(&r), Some(&c)) => self.calm(r, c) || r >= self.still_frames,
                     _ => true,
                 };
@@ -147,6 +174,14 @@ impl Learning<'_> {
             }
         }
     }
+}
+
+/// One band's share of the background's planes, learnt by [`Learning::band`].
+pub(super) struct Band<'a> {
+    pub(super) bg: &'a mut [u8],
+    pub(super) dev: &'a mut [u8],
+    pub(super) bg_u: &'a mut [u8],
+    pub(super) bg_v: &'a mut [u8],
 }
 
 /// A gain of one, in 65536ths.

@@ -1,8 +1,11 @@
-//! How the detector's per-pixel work is shared out: the core cuts each picture into bands of whole
-//! rows and says what each band does; an adapter says how the bands run, one after another or on
-//! several cores at once (the command line uses threads, the core never does, so it runs the same
-//! in the page). Each pixel's result depends on that pixel alone, so the boxes are the same
-//! however the bands are cut and run.
+//! How the detector's work is shared out: the core cuts each picture into bands of whole rows and
+//! says what each band does, stage by stage (the picture's light, the foreground test, the clean-up
+//! and the blobs' runs, the learning; once, the first background's medians); an adapter says how
+//! the bands run, one after another or on several cores at once (the command line uses threads, the
+//! core never does, so it runs the same in the page). A band's result is the whole picture's there
+//! (the per-pixel stages read their own pixels, the clean-up reads a few rows beyond the band, and
+//! blobs are joined across band edges afterwards, in order), so the boxes are the same however the
+//! bands are cut and run.
 
 /// One band's work.
 pub type Job<'a> = Box<dyn FnOnce() + Send + 'a>;

@@ -1,0 +1,95 @@
+//! Reading YUV4MPEG2 footage for the detector, from a file or standard input, and frames in
+//! flight: a thread of its own reads the next frames while the caller searches the one before, so
+//! reading the file (about a tenth of the detector's time on one core) overlaps the search. The
+//! frames reach the caller one at a time and in order, so what is found does not change.
+
+use crate::files::{bad_input, name, Failure};
+use std::io::{BufRead, BufReader, Read};
+use std::path::Path;
+use std::sync::mpsc;
+use throughline_footage::y4m;
+
+/// A YUV4MPEG2 stream being read.
+pub type Y4m = y4m::Reader<BufReader<Box<dyn Read + Send>>>;
+
+/// Frames read ahead of the one being searched.
+const AHEAD: usize = 3;
+
+/// A YUV4MPEG2 reader over a file, or standard input for `-`.
+pub fn open_y4m(footage: &Path) -> Result<Y4m, Failure> {
+    let input: Box<dyn Read + Send> = if footage == Path::new("-") {
+        Box::new(std::io::stdin())
+    } else {
+        Box::new(
+            std::fs::File::open(footage)
+                .map_err(|e| bad_input(footage, format!("cannot read the file: {e}")))?,
+        )
+    };
+    y4m::Reader::new(BufReader::with_capacity(1 << 20, input)).map_err(|e| bad_input(footage, e))
+}
+
+/// The next whole frame, or `None` at the end; a stream cut inside a frame ends at the frame
+/// before (said once, when `warn`).
+pub fn next_frame<'a, R: BufRead>(
+    reader: &'a mut y4m::Reader<R>,
+    footage: &Path,
+    warn: bool,
+) -> Result<Option<&'a [u8]>, Failure> {
+    let k = reader.frames_read() + 1;
+    match reader.next_frame().map_err(|e| bad_input(footage, e))? {
+        y4m::Next::Frame(frame) => Ok(Some(frame)),
+        y4m::Next::End => Ok(None),
+        y4m::Next::CutShort => {
+            // Keep what was found in the whole frames rather than lose it (with none, the
+            // caller's "holds no frames" says it all).
+            if warn && k > 1 {
+                eprintln!(
+                    "warning: {}: the stream ends inside frame {k}; frames 1 to {} are used",
+                    name(footage),
+                    k - 1
+                );
+            }
+            Ok(None)
+        }
+    }
+}
+
+/// Calls `each` with every whole frame of `reader`, in order, the frames read ahead in a thread
+/// of their own (a cut-short end said as [`next_frame`] says it). Stops at the first error, of
+/// the reading or of `each`.
+pub fn each_frame(
+    reader: &mut Y4m,
+    footage: &Path,
+    mut each: impl FnMut(&[u8]) -> Result<(), Failure>,
+) -> Result<(), Failure> {
+    let (full, read) = mpsc::sync_channel::<Result<Vec<u8>, Failure>>(AHEAD);
+    let (done, spare) = mpsc::channel::<Vec<u8>>();
+    std::thread::scope(|s| {
+        s.spawn(move || loop {
+            let frame = match next_frame(reader, footage, true) {
+                Ok(Some(frame)) => {
+                    // A buffer the caller has finished with, or a new one while few are out.
+                    let mut buf = spare.try_recv().unwrap_or_default();
+                    buf.clear();
+                    buf.extend_from_slice(frame);
+                    Ok(buf)
+                }
+                Ok(None) => break,
+                Err(e) => Err(e),
+            };
+            let failed = frame.is_err();
+            // A send fails when the caller has stopped: then there is nothing more to read for.
+            if full.send(frame).is_err() || failed {
+                break;
+            }
+        });
+        // Owned here, so an early return lets go of the channel and the reading thread ends.
+        let read = read;
+        for frame in read.iter() {
+            let frame = frame?;
+            each(&frame)?;
+            done.send(frame).ok();
+        }
+        Ok(())
+    })
+}
