@@ -43,6 +43,23 @@ pub fn part_as_text(bytes: &[u8], first_line: usize) -> Result<&str, Error> {
     })
 }
 
+/// The line of `text` that starts at byte `at` as `str::lines` gives it (without its `\n` or
+/// `\r\n`), and the bytes it takes with its line end.
+pub fn line_at(text: &str, at: usize) -> (&str, usize) {
+    let rest = text.as_bytes().get(at..).unwrap_or_default();
+    let taken = rest
+        .iter()
+        .position(|&b| b == b'\n')
+        .map_or(rest.len(), |i| i + 1);
+    // Cut on bytes: a line end is always a character boundary (and a start that is not one
+    // gives an empty line, not a panic).
+    let raw = text.get(at..at + taken).unwrap_or_default();
+    let line = raw
+        .strip_suffix('\n')
+        .map_or(raw, |l| l.strip_suffix('\r').unwrap_or(l));
+    (line, taken)
+}
+
 /// Splits a CSV line on commas, honouring double quotes around a field.
 pub fn split_fields(line: &str) -> Vec<&str> {
     let mut fields = Vec::new();

@@ -6,7 +6,7 @@ use super::{finish, Detection, DetectionFormat, ReadReport};
 use crate::error::{Error, ErrorKind};
 use crate::geometry::BBox;
 use crate::limits::in_range;
-use crate::text::{frame_number, number, plain_decimal_prefix, split_fields_into};
+use crate::text::{frame_number, line_at, number, plain_decimal_prefix, split_fields_into};
 
 struct CsvColumns {
     frame: usize,
@@ -210,16 +210,8 @@ impl CsvLines {
                     continue;
                 }
             }
-            let taken = rest
-                .iter()
-                .position(|&b| b == b'\n')
-                .map_or(rest.len(), |i| i + 1);
-            let raw = text.get(at..at + taken).unwrap_or_default();
+            let (raw, taken) = line_at(text, at);
             at += taken;
-            // What `str::lines` gives: the line without its `\n` or `\r\n`.
-            let raw = raw
-                .strip_suffix('\n')
-                .map_or(raw, |l| l.strip_suffix('\r').unwrap_or(l));
             self.next_row(raw, &mut fields)?;
         }
         Ok(())
