@@ -186,8 +186,12 @@ mod tests {
                 for (nx, ny) in
                     (0..9).map(|k| ((x + k % 3).wrapping_sub(1), (y + k / 3).wrapping_sub(1)))
                 {
+                    // Off the picture (a wrapped -1 included) before any index is made.
+                    if nx >= w || ny >= h {
+                        continue;
+                    }
                     let j = ny * w + nx;
-                    if nx < w && ny < h && mask[j] != 0 && !seen[j] {
+                    if mask[j] != 0 && !seen[j] {
                         seen[j] = true;
                         stack.push(j);
                     }
