@@ -5,7 +5,7 @@
 //! large to hold, with the same rows, warnings and errors line for line.
 
 use super::reading::Reading;
-use super::{finish, Detection, DetectionFormat, Detections, ReadReport, Warning};
+use super::{Detection, DetectionFormat, Detections, ReadReport, Warning};
 use crate::error::{Error, ErrorKind};
 use crate::geometry::BBox;
 use crate::limits::in_range;
@@ -15,15 +15,7 @@ const BENCHMARK_COLUMNS: [&str; 7] = ["frame", "id", "x", "y", "w", "h", "score"
 
 pub(super) fn read(text: &str) -> Result<ReadReport, Error> {
     let (r, error) = read_part(text, 1);
-    if let Some(e) = error {
-        return Err(e);
-    }
-    finish(
-        r.out,
-        DetectionFormat::BenchmarkText,
-        r.warnings,
-        !r.out_of_order,
-    )
+    r.report(DetectionFormat::BenchmarkText, error)
 }
 
 /// Reads the lines of `text`, the part of a file from line `first_line` on: the rows in file

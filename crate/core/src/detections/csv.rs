@@ -2,7 +2,7 @@
 //! `e0,e1,…` (in any order; quoted fields allowed).
 
 use super::reading::Reading;
-use super::{finish, Detection, DetectionFormat, ReadReport};
+use super::{Detection, DetectionFormat, ReadReport};
 use crate::error::{Error, ErrorKind};
 use crate::geometry::BBox;
 use crate::limits::in_range;
@@ -85,15 +85,7 @@ fn csv_columns(header: &[&str], line: usize) -> Result<CsvColumns, Error> {
 
 pub(super) fn read(text: &str) -> Result<ReadReport, Error> {
     let (r, error) = read_part(text, 1, None);
-    if let Some(e) = error {
-        return Err(e);
-    }
-    finish(
-        r.out,
-        DetectionFormat::CsvWithHeader,
-        r.warnings,
-        !r.out_of_order,
-    )
+    r.report(DetectionFormat::CsvWithHeader, error)
 }
 
 /// Reads the lines of `text`, the part of a file from line `first_line` on (after the header

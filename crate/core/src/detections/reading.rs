@@ -3,7 +3,7 @@
 //! line ([`super::halves`]), so each part also notes where each class was first named and which
 //! warning is the one about scores, for the parts to be merged into the whole file's reading.
 
-use super::{checked_box, Detections, Warnings};
+use super::{checked_box, finish, DetectionFormat, Detections, ReadReport, Warnings};
 use crate::error::Error;
 use crate::geometry::BBox;
 use std::collections::HashMap;
@@ -65,5 +65,17 @@ impl Reading {
     /// Warns once about a score outside 0..1 (the row is kept).
     pub fn note_score(&mut self, score: f64) {
         self.warnings.note_score(score, self.line);
+    }
+
+    /// The report of a whole file read in one part, or `error` if the reading stopped at one.
+    pub fn report(
+        self,
+        format: DetectionFormat,
+        error: Option<Error>,
+    ) -> Result<ReadReport, Error> {
+        match error {
+            Some(e) => Err(e),
+            None => finish(self.out, format, self.warnings, !self.out_of_order),
+        }
     }
 }
