@@ -1,11 +1,11 @@
-//! `throughline track DETECTIONS -o OUT.txt` on benchmark text: the file is read, tracked and
-//! written a piece at a time, so memory follows the tracks alive at once, not the length of the
+//! `throughline track DETECTIONS -o OUT.txt` on benchmark text or CSV: the file is read, tracked
+//! and written a piece at a time, so memory follows the tracks alive at once, not the length of the
 //! recording (a day of one camera is millions of frames), and three threads share the work:
 //! reading and parsing, the tracker, writing. The output is the same bytes as reading the whole
 //! file first (`track/stream.rs` in the core says why).
 //!
 //! Whenever the piecewise way cannot promise that, it gives up before anything is put in place
-//! and the caller reads the whole file instead: another format, frames out of order (the whole
+//! and the caller reads the whole file instead: JSON, frames out of order (the whole
 //! reader sorts them), a settings or method problem, any mistake in the file (the whole
 //! reader's message then names it, as it always has), a pipe (it could not be read again) or an
 //! output that is not a regular file (what was written could not be taken back).
@@ -17,7 +17,8 @@ use indicatif::ProgressBar;
 use std::io::Read;
 use std::path::Path;
 use std::sync::mpsc::{sync_channel, Receiver, SyncSender};
-use throughline_core::detections::{self, Detection, Pieces, PiecesSummary};
+use throughline_core::detections::PiecesSummary;
+use throughline_core::detections::{self, CsvPieces, Detection, DetectionFormat, Pieces};
 use throughline_core::track::files::BenchmarkLines;
 use throughline_core::track::stream::{Drained, InOrder, StreamEnd, StreamTracker};
 use throughline_core::{pipeline, Detections, Method, TrackerConfig};
@@ -30,6 +31,7 @@ const LEAST_PIECE: usize = 64 << 10;
 
 /// What a piecewise run read and found.
 pub struct Streamed {
+    pub format: DetectionFormat,
     pub read: PiecesSummary,
     pub end: StreamEnd,
     pub config: TrackerConfig,
@@ -64,11 +66,16 @@ pub fn track_streamed(path: &Path, how: How, output: &Path) -> Result<Option<Str
     if special || !reader.fill(&mut file) {
         return Ok(None);
     }
-    if detections::benchmark_text_start(reader.whole_lines()).is_none() {
+    let Some(parser) = Parser::for_start(reader.whole_lines()) else {
         return Ok(None);
-    }
+    };
+    let format = parser.format();
     let settings = read_settings(how.config)?;
-    let ctx = Detections::default();
+    // The vectors' length decides the method when none is named, as the whole reading's would.
+    let ctx = Detections {
+        embedding_dim: parser.embedding_dim(),
+        ..Detections::default()
+    };
     let Ok(config) =
         pipeline::tracker_config(&ctx, how.method, settings.as_ref().map(|s| s.1.as_str()))
     else {
@@ -85,7 +92,7 @@ pub fn track_streamed(path: &Path, how: How, output: &Path) -> Result<Option<Str
     let mut outcome = None;
     let mut files = Outputs::new();
     files.write_from_any_thread(output, |w| {
-        outcome = pipeline(file, reader, tracker, w, &bar)?;
+        outcome = pipeline(file, reader, parser, tracker, w, &bar)?;
         Ok(())
     })?;
     bar.finish_and_clear();
@@ -93,13 +100,100 @@ pub fn track_streamed(path: &Path, how: How, output: &Path) -> Result<Option<Str
         return Ok(None);
     };
     files.commit()?;
-    Ok(Some(Streamed { read, end, config }))
+    Ok(Some(Streamed {
+        format,
+        read,
+        end,
+        config,
+    }))
 }
 
-/// The next rows of the file, and the class names first seen in them.
-struct Batch {
-    rows: Vec<Detection>,
-    new_classes: Vec<String>,
+/// The next rows of the file.
+enum Batch {
+    /// Benchmark text: rows (their last frame may go on in the next batch) and the class names
+    /// first seen in them.
+    Rows {
+        rows: Vec<Detection>,
+        new_classes: Vec<String>,
+    },
+    /// CSV: whole frames with their own appearance vectors, and every class named so far.
+    Frames(Detections),
+}
+
+/// The reading of pieces of one of the two formats read piecewise.
+enum Parser {
+    Text { pieces: Pieces, sent_classes: usize },
+    Csv { pieces: CsvPieces, dim: usize },
+}
+
+impl Parser {
+    /// The parser for a file that starts with `first` (whole lines), if it can be read piecewise.
+    fn for_start(first: &[u8]) -> Option<Parser> {
+        if detections::benchmark_text_start(first).is_some() {
+            return Some(Parser::Text {
+                pieces: Pieces::new(),
+                sent_classes: 0,
+            });
+        }
+        let dim = detections::csv_start(first)?;
+        Some(Parser::Csv {
+            pieces: CsvPieces::new(),
+            dim,
+        })
+    }
+
+    fn format(&self) -> DetectionFormat {
+        match self {
+            Parser::Text { .. } => DetectionFormat::BenchmarkText,
+            Parser::Csv { .. } => DetectionFormat::CsvWithHeader,
+        }
+    }
+
+    fn embedding_dim(&self) -> usize {
+        match self {
+            Parser::Text { .. } => 0,
+            Parser::Csv { dim, .. } => *dim,
+        }
+    }
+
+    /// The rows of the next piece; `None` to give up (a mistake, frames out of order, a header
+    /// read otherwise than at the start).
+    fn read(&mut self, text: &str) -> Option<Batch> {
+        match self {
+            Parser::Text {
+                pieces,
+                sent_classes,
+            } => {
+                let mut rows = Vec::new();
+                if pieces.read(text, &mut rows).is_err() || pieces.out_of_order() {
+                    return None;
+                }
+                let classes = &pieces.classes().classes;
+                let new_classes = classes[*sent_classes..].to_vec();
+                *sent_classes = classes.len();
+                Some(Batch::Rows { rows, new_classes })
+            }
+            Parser::Csv { pieces, dim } => {
+                let mut batch = Detections::default();
+                let same = pieces.read(text, &mut batch).is_ok()
+                    && !pieces.out_of_order()
+                    && pieces.embedding_dim() == Some(*dim);
+                same.then_some(Batch::Frames(batch))
+            }
+        }
+    }
+
+    /// The rows still held (CSV's last frame) and the totals; `None` to give up.
+    fn finish(self) -> Option<(Option<Batch>, PiecesSummary)> {
+        match self {
+            Parser::Text { pieces, .. } => Some((None, pieces.finish().ok()?)),
+            Parser::Csv { pieces, .. } => {
+                let mut batch = Detections::default();
+                let read = pieces.finish(&mut batch).ok()?;
+                Some((Some(Batch::Frames(batch)), read))
+            }
+        }
+    }
 }
 
 /// Three stages at once, so that a long file keeps both cores busy: reading and parsing, the
@@ -108,6 +202,7 @@ struct Batch {
 fn pipeline(
     file: std::fs::File,
     reader: PieceReader,
+    parser: Parser,
     mut tracker: StreamTracker,
     w: &mut (dyn std::io::Write + Send),
     bar: &ProgressBar,
@@ -115,12 +210,20 @@ fn pipeline(
     std::thread::scope(|s| {
         let (rows_in, rows_out) = sync_channel::<Batch>(2);
         let (boxes_in, boxes_out) = sync_channel::<Drained>(2);
-        let reading = s.spawn(move || read_rows(file, reader, rows_in, bar));
+        let reading = s.spawn(move || read_rows(file, reader, parser, rows_in, bar));
         let writing = s.spawn(move || write_boxes(w, boxes_out));
         let mut ctx = Detections::default();
         for batch in rows_out {
-            ctx.classes.extend(batch.new_classes);
-            tracker.rows(&batch.rows, &ctx);
+            match batch {
+                Batch::Rows { rows, new_classes } => {
+                    ctx.classes.extend(new_classes);
+                    tracker.rows(&rows, &ctx);
+                }
+                Batch::Frames(frames) => {
+                    tracker.frames(&frames.rows, &frames);
+                    ctx.classes = frames.classes;
+                }
+            }
             if boxes_in.send(tracker.drain()).is_err() {
                 break;
             }
@@ -153,26 +256,22 @@ fn join_writer(
 fn read_rows(
     mut file: std::fs::File,
     mut reader: PieceReader,
+    mut parser: Parser,
     send: SyncSender<Batch>,
     bar: &ProgressBar,
 ) -> Option<PiecesSummary> {
-    let mut pieces = Pieces::new();
-    let mut sent_classes = 0;
     let mut first = true;
     loop {
         let text = reader.text(first)?;
         first = false;
-        let mut rows = Vec::new();
-        if pieces.read(text, &mut rows).is_err() || pieces.out_of_order() {
-            return None;
-        }
-        let classes = &pieces.classes().classes;
-        let new_classes = classes[sent_classes..].to_vec();
-        sent_classes = classes.len();
-        send.send(Batch { rows, new_classes }).ok()?;
+        send.send(parser.read(text)?).ok()?;
         bar.set_position(reader.done);
         if reader.at_end {
-            return pieces.finish().ok();
+            let (last, read) = parser.finish()?;
+            if let Some(batch) = last {
+                send.send(batch).ok()?;
+            }
+            return Some(read);
         }
         if !reader.fill(&mut file) {
             return None;

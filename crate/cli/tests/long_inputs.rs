@@ -31,18 +31,23 @@ fn rows_out_of_frame_order_give_the_same_tracks_as_sorted_rows() {
     assert_eq!(sorted_out, shuffled_out);
 }
 
+/// The boxes of every track of a JSON tracks document.
+fn box_count(doc: &serde_json::Value) -> usize {
+    doc["tracks"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|t| t["boxes"].as_array().map_or(0, Vec::len))
+        .sum()
+}
+
 #[test]
 fn the_text_output_has_the_boxes_of_the_json_document() {
     let (text, o) = tracked(&demo("detections.txt"), "long_text");
     assert!(o.status.success(), "{}", stderr(&o));
     let json = throughline(&["track", &demo("detections.txt"), "--quiet"]);
     let doc: serde_json::Value = serde_json::from_slice(&json.stdout).unwrap();
-    let boxes: usize = doc["tracks"]
-        .as_array()
-        .unwrap()
-        .iter()
-        .map(|t| t["boxes"].as_array().map_or(0, Vec::len))
-        .sum();
+    let boxes = box_count(&doc);
     assert_eq!(text.lines().count(), boxes);
     let tracks = doc["tracks"].as_array().unwrap().len();
     assert!(
@@ -177,4 +182,61 @@ fn a_mistake_late_in_a_large_file_is_named_at_its_line() {
     assert_eq!(o.status.code(), Some(1));
     let expected = format!("line {line}, column 4: `x` in column `y` is not a number");
     assert!(stderr(&o).contains(&expected), "{}", stderr(&o));
+}
+
+#[test]
+fn csv_with_appearance_read_piecewise_gives_the_whole_readings_tracks_and_words() {
+    // DeepSORT on a simulated crowd's CSV (1.3 MB: many pieces): `-o OUT.txt` reads it a piece
+    // at a time, `-o OUT.json` whole (in two parts); the same boxes and the same messages, and a
+    // mistake in the last row hands the file back to the whole reader, which names the line.
+    let dir = scratch("long_csv");
+    let scene = dir.display().to_string();
+    let sim = throughline(&[
+        "simulate",
+        "--out-dir",
+        &scene,
+        "--seed",
+        "11",
+        "--frames",
+        "900",
+        "--density",
+        "30",
+        "--embedding-dim",
+        "8",
+    ]);
+    assert!(sim.status.success(), "{}", stderr(&sim));
+    let csv = dir.join("detections.csv").display().to_string();
+    assert!(std::fs::metadata(&csv).unwrap().len() > 1 << 20);
+    let (txt, json) = (
+        dir.join("t.txt").display().to_string(),
+        dir.join("t.json").display().to_string(),
+    );
+    let pieces = throughline(&["track", &csv, "-o", &txt]);
+    let whole = throughline(&["track", &csv, "-o", &json]);
+    assert!(pieces.status.success(), "{}", stderr(&pieces));
+    assert!(whole.status.success(), "{}", stderr(&whole));
+    assert!(
+        said(&pieces, &txt).contains("with deepsort"),
+        "{}",
+        stderr(&pieces)
+    );
+    assert_eq!(said(&pieces, &txt), said(&whole, &json));
+    let doc: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(&json).unwrap()).unwrap();
+    let boxes = box_count(&doc);
+    let text = std::fs::read_to_string(&txt).unwrap();
+    assert_eq!(text.lines().count(), boxes);
+
+    let mut bad = std::fs::read_to_string(&csv).unwrap();
+    let line = bad.lines().count() + 1;
+    bad.push_str("900,1,1,5,5,0.9,pedestrian,1,2,3\n");
+    let bad_path = write(&dir, "bad.csv", bad.as_bytes());
+    let o = throughline(&["track", &bad_path, "-o", &txt]);
+    assert_eq!(o.status.code(), Some(1));
+    assert!(
+        stderr(&o).contains(&format!("line {line}")),
+        "{}",
+        stderr(&o)
+    );
+    assert_eq!(std::fs::read_to_string(&txt).unwrap(), text);
 }

@@ -15,9 +15,10 @@ use crate::paths::{root, target};
 use crate::sh::{run, works};
 
 /// Every fuzz target (crate/fuzz/fuzz_targets/<name>.rs).
-pub const TARGETS: [&str; 14] = [
+pub const TARGETS: [&str; 15] = [
     "detections",
     "pieces",
+    "csv_pieces",
     "halves",
     "tracks",
     "plan",

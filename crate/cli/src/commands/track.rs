@@ -129,7 +129,7 @@ fn report_streamed(path: &Path, out: &Path, how: &TrackingArgs, done: &streaming
         "{}: {} detections ({}) over {} frames",
         path.display(),
         done.read.rows,
-        detections::DetectionFormat::BenchmarkText,
+        done.format,
         done.read.last_frame,
     );
     eprintln!(

@@ -4,8 +4,8 @@
 //! [`read`] takes a whole file; [`Pieces`] takes it a piece at a time (whole lines) for files too
 //! large to hold, with the same rows, warnings and errors line for line.
 
-use super::reading::Reading;
-use super::{Detection, DetectionFormat, Detections, ReadReport, Warning};
+use super::reading::{PiecesSummary, Reading};
+use super::{Detection, DetectionFormat, Detections, ReadReport};
 use crate::error::{Error, ErrorKind};
 use crate::geometry::BBox;
 use crate::limits::in_range;
@@ -227,16 +227,6 @@ pub struct Pieces {
     rows: usize,
 }
 
-/// What [`Pieces`] saw in all.
-#[derive(Debug, Clone, PartialEq)]
-pub struct PiecesSummary {
-    pub rows: usize,
-    pub last_frame: u32,
-    /// The first few warnings, in file order, and how many rows were passed over in all.
-    pub warnings: Vec<Warning>,
-    pub skipped_rows: usize,
-}
-
 impl Default for Pieces {
     fn default() -> Self {
         Self::new()
@@ -272,20 +262,8 @@ impl Pieces {
 
     /// The totals, or the whole-file reader's error for a file without a detection row.
     pub fn finish(self) -> Result<PiecesSummary, Error> {
-        if self.rows == 0 && self.lines.r.warnings.count == 0 {
-            return Err(Error::new(
-                ErrorKind::Empty,
-                format!(
-                    "the {} file has no detection rows",
-                    DetectionFormat::BenchmarkText
-                ),
-            ));
-        }
-        Ok(PiecesSummary {
-            rows: self.rows,
-            last_frame: self.lines.r.last_frame,
-            warnings: self.lines.r.warnings.kept,
-            skipped_rows: self.lines.r.warnings.count,
-        })
+        self.lines
+            .r
+            .summary(self.rows, DetectionFormat::BenchmarkText)
     }
 }

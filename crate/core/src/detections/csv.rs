@@ -1,8 +1,8 @@
 //! CSV with a header naming `frame,x,y,w,h,score`, optionally `class` and appearance columns
 //! `e0,e1,…` (in any order; quoted fields allowed).
 
-use super::reading::Reading;
-use super::{Detection, DetectionFormat, ReadReport};
+use super::reading::{PiecesSummary, Reading};
+use super::{Detection, DetectionFormat, Detections, ReadReport};
 use crate::error::{Error, ErrorKind};
 use crate::geometry::BBox;
 use crate::limits::in_range;
@@ -108,6 +108,99 @@ pub(super) fn read_part(
     (lines.r, read.err())
 }
 
+/// CSV read a piece at a time, for a file too large to hold (`throughline track -o OUT.txt`):
+/// give it whole lines in file order ([`CsvPieces::read`]). Each batch it gives out holds whole
+/// frames with their own appearance vectors (numbered from 0 in the batch), so that a batch can
+/// be tracked and dropped: the last frame read is kept until a later line shows it has ended.
+/// The rows, warnings and errors are those of reading the whole file at once as long as frames
+/// never go back ([`CsvPieces::out_of_order`] says when one did).
+pub struct CsvPieces {
+    lines: CsvLines,
+    /// Rows read so far (given out or kept).
+    rows: usize,
+}
+
+impl Default for CsvPieces {
+    fn default() -> Self {
+        Self::new()
+    }
+}
+
+impl CsvPieces {
+    pub fn new() -> Self {
+        Self {
+            lines: CsvLines::new(1, None),
+            rows: 0,
+        }
+    }
+
+    /// Reads the rows on the lines of `text` (whole lines, the next ones of the file) and puts
+    /// in `batch`, in place of what it held, the rows of every frame before the last one read,
+    /// their vectors, the classes named so far and the vectors' length.
+    pub fn read(&mut self, text: &str, batch: &mut Detections) -> Result<(), Error> {
+        let kept = self.lines.r.out.rows.len();
+        self.lines.read(text)?;
+        let rows = &self.lines.r.out.rows;
+        self.rows += rows.len() - kept;
+        let last = rows.last().map(|d| d.frame);
+        let last_starts = rows
+            .iter()
+            .rposition(|d| Some(d.frame) != last)
+            .map_or(0, |k| k + 1);
+        self.give_out(last_starts, batch);
+        Ok(())
+    }
+
+    /// Whether a row's frame came before an earlier row's.
+    pub fn out_of_order(&self) -> bool {
+        self.lines.r.out_of_order
+    }
+
+    /// The length of the appearance vectors, once the header is read (0: none).
+    pub fn embedding_dim(&self) -> Option<usize> {
+        self.lines.columns.as_ref().map(Header::embedding_dim)
+    }
+
+    /// Ends the file: the last frame's rows into `batch` as [`Self::read`] gives out rows, and
+    /// the totals, or the whole-file reader's error for a file without rows.
+    pub fn finish(mut self, batch: &mut Detections) -> Result<PiecesSummary, Error> {
+        self.give_out(self.lines.r.out.rows.len(), batch);
+        if self.lines.columns.is_none() {
+            return Err(Error::new(
+                ErrorKind::Empty,
+                "the CSV file has a header but no rows",
+            ));
+        }
+        self.lines
+            .r
+            .summary(self.rows, DetectionFormat::CsvWithHeader)
+    }
+
+    /// Moves the rows before `end` (and their vectors) into `batch`; the rest stay, their vectors
+    /// numbered again from 0.
+    fn give_out(&mut self, end: usize, batch: &mut Detections) {
+        let out = &mut self.lines.r.out;
+        batch.classes.clone_from(&out.classes);
+        batch.embedding_dim = out.embedding_dim;
+        batch.rows.clear();
+        batch.embeddings.clear();
+        std::mem::swap(&mut batch.rows, &mut out.rows);
+        std::mem::swap(&mut batch.embeddings, &mut out.embeddings);
+        let dim = out.embedding_dim;
+        let first_kept = batch.rows[end..].iter().find_map(|d| d.embedding);
+        for mut d in batch.rows.drain(end..) {
+            if let Some(e) = d.embedding {
+                let at = e as usize * dim;
+                d.embedding = out.push_embedding(&batch.embeddings[at..at + dim]);
+            }
+            out.rows.push(d);
+        }
+        if let Some(e) = first_kept {
+            batch.embeddings.truncate(e as usize * dim);
+        }
+    }
+}
+
 /// What each column of a row is, for the quick reading of a line.
 #[derive(Clone, Copy)]
 enum Role {
@@ -150,6 +243,11 @@ impl Header {
             roles,
             embedding_names,
         })
+    }
+
+    /// The length of the appearance vectors the header names (0: none).
+    pub(super) fn embedding_dim(&self) -> usize {
+        self.cols.embedding.len()
     }
 }
 

@@ -12,8 +12,10 @@ mod json;
 mod reading;
 mod write;
 
-pub use benchmark::{Pieces, PiecesSummary};
+pub use benchmark::Pieces;
+pub use csv::CsvPieces;
 pub use halves::{cut_in_two, cut_near, merge, Cut, Part};
+pub use reading::PiecesSummary;
 pub use write::{to_benchmark_text, to_csv, to_file_text};
 
 use crate::error::{Error, ErrorKind};
@@ -252,6 +254,18 @@ pub fn benchmark_text_start(first: &[u8]) -> Option<&str> {
     let text = as_text(first).ok()?;
     first_row(text)?;
     (recognise(text).ok()? == DetectionFormat::BenchmarkText).then_some(text)
+}
+
+/// Whether a file that starts with `first` (its first bytes, cut at a line end) is CSV with a
+/// header whose rows can be read a piece at a time ([`CsvPieces`]), and the length of its
+/// appearance vectors; `None` when [`read_detections`] would take it otherwise or refuse its
+/// header.
+pub fn csv_start(first: &[u8]) -> Option<usize> {
+    let text = as_text(first).ok()?;
+    let header = first_row(text)?;
+    (recognise(text).ok()? == DetectionFormat::CsvWithHeader).then_some(())?;
+    let fields = split_fields(header);
+    csv::Header::new(&fields, 1).ok().map(|h| h.embedding_dim())
 }
 
 /// Checks a box; `Ok(None)` (with a warning) for a zero-size box, an error for a negative size.

@@ -3,10 +3,20 @@
 //! line ([`super::halves`]), so each part also notes where each class was first named and which
 //! warning is the one about scores, for the parts to be merged into the whole file's reading.
 
-use super::{checked_box, finish, DetectionFormat, Detections, ReadReport, Warnings};
-use crate::error::Error;
+use super::{checked_box, finish, DetectionFormat, Detections, ReadReport, Warning, Warnings};
+use crate::error::{Error, ErrorKind};
 use crate::geometry::BBox;
 use std::collections::HashMap;
+
+/// What a reading a piece at a time ([`super::Pieces`], [`super::CsvPieces`]) saw in all.
+#[derive(Debug, Clone, PartialEq)]
+pub struct PiecesSummary {
+    pub rows: usize,
+    pub last_frame: u32,
+    /// The first few warnings, in file order, and how many rows were passed over in all.
+    pub warnings: Vec<Warning>,
+    pub skipped_rows: usize,
+}
 
 pub(crate) struct Reading {
     /// The number of the line last read (one before the first line, to begin with).
@@ -77,5 +87,22 @@ impl Reading {
             Some(e) => Err(e),
             None => finish(self.out, format, self.warnings, !self.out_of_order),
         }
+    }
+
+    /// The totals of a reading a piece at a time that gave out `rows` rows, or the whole-file
+    /// reader's error for a file without a detection row.
+    pub fn summary(self, rows: usize, format: DetectionFormat) -> Result<PiecesSummary, Error> {
+        if rows == 0 && self.warnings.count == 0 {
+            return Err(Error::new(
+                ErrorKind::Empty,
+                format!("the {format} file has no detection rows"),
+            ));
+        }
+        Ok(PiecesSummary {
+            rows,
+            last_frame: self.last_frame,
+            warnings: self.warnings.kept,
+            skipped_rows: self.warnings.count,
+        })
     }
 }

@@ -112,6 +112,17 @@ impl StreamTracker {
         }
     }
 
+    /// The next rows of the input, whole frames in frame order: no later batch goes on with
+    /// their last frame ([`crate::detections::CsvPieces`] gives batches so), so every frame is
+    /// stepped now and `ctx` (their classes and appearance vectors, which may be this batch's
+    /// own) is not looked at again. Not for a stream fed by [`Self::rows`].
+    pub fn frames(&mut self, rows: &[Detection], ctx: &Detections) {
+        self.step_carried(ctx);
+        for dets in rows.chunk_by(|a, b| a.frame == b.frame) {
+            self.frame(dets[0].frame, dets, ctx);
+        }
+    }
+
     /// Steps through the carried frame, if any, and gives back its buffer for reuse.
     fn step_carried(&mut self, ctx: &Detections) -> Vec<Detection> {
         let carried = std::mem::take(&mut self.carry);
