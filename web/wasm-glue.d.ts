@@ -63,6 +63,8 @@ declare namespace wasm_bindgen {
     backgroundFrames(total: number): Uint32Array;
     finishDetection(): DetectionSummary;
     detectionsText(): string;
+    /** After track() with no footage to bridge with: the tracks' settings say nothing was bridged (bridge_frames 0); the gap length asked for. */
+    notBridged(): number;
     /** After track(), when its settings bridge (bridge_frames above 0): a handle fed the footage's frames; else undefined. */
     startBridging(width: number, height: number): FootageBridge | undefined;
     /** The interval grid: a row per interval ("wide") or per interval, line, direction and class ("long"); CSV ("comma") or for the clipboard ("tab"). */

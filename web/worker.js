@@ -76,16 +76,22 @@ async function track(method, settings, footage, progress) {
  * to the last frame a gap needs, and each frame's luma plane goes to the core's FootageBridge, which
  * then makes the bridged tracks the session's. Resolves to what it did, to {skipped: why} when the
  * footage cannot be decoded here (the tracks stay as tracked), or to null when nothing is bridged.
+ * Whenever no footage bridges them, the tracks' settings say so (`notBridged`), as the command
+ * line's report does without --y4m.
  * @param {TrackFootage | null} footage
  * @param {Progress} progress
  * @returns {Promise<import("./js/protocol.js").Bridged>}
  */
 async function bridge(footage, progress) {
-  if (!footage) return null;
+  if (!footage) {
+    core().notBridged();
+    return null;
+  }
   let bridger;
   try {
     bridger = core().startBridging(footage.width, footage.height);
   } catch (e) {
+    core().notBridged();
     return { skipped: messageOf(e) }; // the tracks stay as tracked, here as on the page
   }
   if (!bridger) return null;
@@ -97,6 +103,7 @@ async function bridge(footage, progress) {
       const opened = await openFootage(footage.file);
       if ("fallback" in opened) {
         bridger.free();
+        core().notBridged();
         return { skipped: opened.fallback };
       }
       try {
@@ -118,6 +125,7 @@ async function bridge(footage, progress) {
     }
   } catch (e) {
     bridger.free();
+    core().notBridged();
     return { skipped: messageOf(e) };
   }
   const summary = bridger.finish(core());

@@ -5,7 +5,7 @@
 import { test } from "node:test";
 import assert from "node:assert/strict";
 import { readFileSync, writeFileSync, mkdtempSync } from "node:fs";
-import { execFileSync } from "node:child_process";
+import { execFileSync, spawnSync } from "node:child_process";
 import { createRequire } from "node:module";
 import { join } from "node:path";
 import { tmpdir } from "node:os";
@@ -82,4 +82,32 @@ test("without bridging settings there is no handle; a handle of older tracks is 
   const old = session.startBridging(320, 180);
   session.track("", '{"bridge_frames": 10}', undefined);
   assert.throws(() => old.finish(session), /run tracking again/);
+});
+
+test("without footage to bridge with, the report says nothing was bridged, as the command line's does", () => {
+  // `throughline run` without --y4m and the page's worker with no footage open both call the
+  // core's not_bridged: the same report, which names no bridging; the command line adds a note.
+  const dir = mkdtempSync(join(tmpdir(), "tl-nobridge-"));
+  execFileSync(cli, ["simulate", "--out-dir", dir, "--seed", "3", "--frames", "60", "--density", "4",
+    "--width", "320", "--height", "180"]);
+  const plan = '{ "frame_rate": 25, "screenlines": [ { "name": "mid", "points": [[0, 110], [320, 110]] } ] }';
+  writeFileSync(join(dir, "plan.json"), plan);
+  const settings = '{"bridge_frames": 10}';
+  writeFileSync(join(dir, "on.json"), settings);
+  const out = join(dir, "report.json");
+  const run = spawnSync(cli, ["run", join(dir, "detections.txt"), "--config", join(dir, "on.json"),
+    "--plan", join(dir, "plan.json"), "-o", out], { encoding: "utf8" });
+  assert.equal(run.status, 0, run.stderr);
+  assert.match(run.stderr, /bridge gaps of up to 10 frames, which follows objects in the footage: give it with --y4m FILE; nothing was bridged/);
+  const session = new Session();
+  session.loadDetections(readFileSync(join(dir, "detections.txt")));
+  session.setPlan(plan);
+  session.track("", settings, undefined);
+  assert.equal(JSON.parse(session.report()).tracker.bridge_frames, 10);
+  assert.equal(session.notBridged(), 10);
+  assert.equal(session.notBridged(), 0);
+  assert.equal(session.startBridging(320, 180), undefined);
+  const report = session.report();
+  assert.equal(report, readFileSync(out, "utf8"), "report equals throughline run without --y4m");
+  assert.equal(JSON.parse(report).tracker.bridge_frames, undefined);
 });

@@ -11,7 +11,11 @@ use throughline_footage::y4m;
 
 /// The tracks with the gaps the footage bridges joined (the settings' `bridge_frames`; none when
 /// it is 0). Standard input cannot be read twice: it is left unbridged, with a note.
-pub fn bridge_with_footage(tracks: Tracks, footage: &Path, quiet: bool) -> Result<Tracks, Failure> {
+pub fn bridge_with_footage(
+    mut tracks: Tracks,
+    footage: &Path,
+    quiet: bool,
+) -> Result<Tracks, Failure> {
     if tracks.config.bridge_frames == 0 {
         return Ok(tracks);
     }
@@ -23,6 +27,7 @@ pub fn bridge_with_footage(tracks: Tracks, footage: &Path, quiet: bool) -> Resul
                  \"bridge_frames\": 0 in the tracker settings turns bridging off)"
             );
         }
+        pipeline::not_bridged(&mut tracks);
         return Ok(tracks);
     }
     let file = std::fs::File::open(footage)
@@ -74,4 +79,22 @@ pub fn bridge_with_footage(tracks: Tracks, footage: &Path, quiet: bool) -> Resul
         );
     }
     Ok(bridged)
+}
+
+/// Tracks made without footage: gaps the settings ask to bridge are not bridged (bridging follows
+/// objects in the pictures), the report says so (`bridge_frames` 0) and a note tells how.
+pub fn without_footage(mut tracks: Tracks, quiet: bool) -> Tracks {
+    let asked = pipeline::not_bridged(&mut tracks);
+    if asked > 0 && !quiet {
+        eprintln!("{}", no_footage_note(asked));
+    }
+    tracks
+}
+
+/// What is said when the settings ask to bridge gaps and no footage is given.
+pub fn no_footage_note(asked: u32) -> String {
+    format!(
+        "note: the tracker settings ask to bridge gaps of up to {asked} frames, which follows \
+         objects in the footage: give it with --y4m FILE; nothing was bridged"
+    )
 }

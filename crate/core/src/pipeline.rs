@@ -40,6 +40,14 @@ pub fn bridger(tracks: &Tracks, width: usize, height: usize) -> Bridger {
     Bridger::new(tracks, width, height)
 }
 
+/// Marks tracks whose gaps no footage bridged although the settings asked for it (no footage
+/// was given, or it could not be read): their settings say `bridge_frames` 0 from then on, so
+/// that the report does not name a bridging that did not happen. Returns the gap length that was
+/// asked for (0: none). The command line and the page call it alike.
+pub fn not_bridged(tracks: &mut Tracks) -> u32 {
+    std::mem::take(&mut tracks.config.bridge_frames)
+}
+
 /// The tracks after the person's edits on tracks (merge, split, delete, reclassify), and what
 /// became of each of those edits (`None` for the edits on counts).
 pub fn correct_tracks(tracks: &Tracks, edits: &[Edit]) -> (Tracks, Vec<Option<Outcome>>) {

@@ -33,6 +33,22 @@ struct BridgeSummary {
 
 #[wasm_bindgen]
 impl Session {
+    /// After [`Session::track`] without footage to bridge with (none is open, or it cannot be
+    /// decoded here): the tracks' settings then say no gap was bridged (`bridge_frames` 0), as
+    /// `throughline run` without `--y4m` writes them, and the counts are made again. Returns the
+    /// gap length the settings asked for (0: none; nothing changes then).
+    #[wasm_bindgen(js_name = notBridged)]
+    pub fn not_bridged(&mut self) -> Result<u32, JsError> {
+        let Some(tracks) = self.tracks.as_mut() else {
+            return Ok(0);
+        };
+        let asked = pipeline::not_bridged(tracks);
+        if asked > 0 {
+            self.recounted()?;
+        }
+        Ok(asked)
+    }
+
     /// After [`Session::track`], when its settings bridge (`bridge_frames` above 0): a handle that
     /// takes the footage's frames (`width` x `height` pixels, the detections' picture) and joins
     /// the tracks across the gaps it bridges. `undefined` when the settings do not bridge.

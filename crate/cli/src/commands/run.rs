@@ -3,7 +3,7 @@
 use super::count::{stage_report, summarise, ReportPaths};
 use super::detect::detect_footage;
 use super::track::{track_detections, track_file, TrackingArgs};
-use crate::bridging::bridge_with_footage;
+use crate::bridging::{bridge_with_footage, without_footage};
 use crate::cores::Cores;
 use crate::files::{
     bad_input, bad_usage, read_plan, read_settings, read_work, write_tracks, Failure,
@@ -168,9 +168,15 @@ fn track_source(args: &Args, plan: &Plan) -> Result<throughline_core::Tracks, Fa
             let tracks = track_file(path, how, &mut timer)?;
             bridge_with_footage(tracks, footage, how.quiet)
         }
-        (None, Some(path)) => track_file(path, how, &mut timer),
+        (None, Some(path)) => Ok(without_footage(
+            track_file(path, how, &mut timer)?,
+            how.quiet,
+        )),
         // clap requires one of the two.
-        (None, None) => track_file(Path::new("-"), how, &mut timer),
+        (None, None) => Ok(without_footage(
+            track_file(Path::new("-"), how, &mut timer)?,
+            how.quiet,
+        )),
     }
 }
 

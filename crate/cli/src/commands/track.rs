@@ -1,6 +1,6 @@
 //! `throughline track`: link per-frame detections into tracks.
 
-use crate::bridging::bridge_with_footage;
+use crate::bridging::{bridge_with_footage, no_footage_note, without_footage};
 use crate::files::{bad_input, read_file, read_settings, write_tracks, Failure};
 use crate::output::{check_paths, Outputs};
 use crate::progress::{self, Timer};
@@ -71,11 +71,15 @@ pub fn run(args: Args) -> Result<(), Failure> {
                 return Ok(());
             }
         }
-        let mut tracks = track_file(path, &args.tracking, timer)?;
-        if let Some(footage) = &args.y4m {
-            tracks = bridge_with_footage(tracks, footage, args.tracking.quiet)?;
-            timer.lap("bridge");
-        }
+        let tracks = track_file(path, &args.tracking, timer)?;
+        let tracks = match &args.y4m {
+            Some(footage) => {
+                let bridged = bridge_with_footage(tracks, footage, args.tracking.quiet)?;
+                timer.lap("bridge");
+                bridged
+            }
+            None => without_footage(tracks, args.tracking.quiet),
+        };
         match output {
             Some(p) => {
                 let mut files = Outputs::new();
@@ -132,6 +136,9 @@ fn report_streamed(path: &Path, out: &Path, how: &TrackingArgs, done: &streaming
         done.format,
         done.read.last_frame,
     );
+    if done.config.bridge_frames > 0 {
+        eprintln!("{}", no_footage_note(done.config.bridge_frames));
+    }
     eprintln!(
         "{}: {} with {}, written to {}",
         path.display(),
