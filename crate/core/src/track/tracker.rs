@@ -113,6 +113,8 @@ pub(crate) struct Reuse {
     pub mine: Vec<Edge>,
     pub near: Vec<usize>,
     pub assign: assign::Buffers,
+    /// Which tracks and detections of a matching were used.
+    pub used: Vec<bool>,
 }
 
 impl Tracker {
@@ -165,7 +167,10 @@ impl Tracker {
         if self.crowded.take() {
             self.crowded_frames.push(frame);
         }
-        let mut matched = vec![false; self.live.len()];
+        // The matching's marks are free again: their memory serves here.
+        let mut matched = std::mem::take(&mut self.reuse.get_mut().used);
+        matched.clear();
+        matched.resize(self.live.len(), false);
         for m in &assoc.matches {
             matched[m.track] = true;
             self.observe(m.track, frame, &dets[m.det], ctx);
@@ -175,6 +180,7 @@ impl Tracker {
                 self.miss(i, frame);
             }
         }
+        self.reuse.get_mut().used = matched;
         for &d in &assoc.new_tracks {
             self.start(frame, &dets[d], ctx);
         }

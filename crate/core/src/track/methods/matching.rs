@@ -24,6 +24,7 @@ pub(super) fn match_iou(
         mine,
         near,
         assign,
+        used,
     } = &mut *reuse;
     boxes.clear();
     boxes.extend(dets.iter().map(|&d| all[d].bbox));
@@ -49,7 +50,7 @@ pub(super) fn match_iou(
     }
     let greedy = assign_edges_reusing(tracks.len(), dets.len(), edges, gate, assign);
     tracker.note_crowd(greedy);
-    split(&assign.pairs, tracks, dets)
+    split_reusing(&assign.pairs, tracks, dets, used)
 }
 
 /// A track's candidates cut to the [`MAX_CANDIDATES`] cheapest (ties by column), so that a crowd
@@ -70,8 +71,19 @@ pub(super) fn split(
     tracks: &[usize],
     dets: &[usize],
 ) -> (Vec<Match>, Vec<usize>, Vec<usize>) {
-    let mut track_used = vec![false; tracks.len()];
-    let mut det_used = vec![false; dets.len()];
+    split_reusing(pairs, tracks, dets, &mut Vec::new())
+}
+
+/// [`split`], marking what is used in `used`'s memory (the tracks' marks, then the detections').
+fn split_reusing(
+    pairs: &[(usize, usize)],
+    tracks: &[usize],
+    dets: &[usize],
+    used: &mut Vec<bool>,
+) -> (Vec<Match>, Vec<usize>, Vec<usize>) {
+    used.clear();
+    used.resize(tracks.len() + dets.len(), false);
+    let (track_used, det_used) = used.split_at_mut(tracks.len());
     let matches = pairs
         .iter()
         .map(|&(r, c)| {
@@ -83,8 +95,8 @@ pub(super) fn split(
             }
         })
         .collect();
-    let left_tracks = keep_unused(tracks, &track_used);
-    let left_dets = keep_unused(dets, &det_used);
+    let left_tracks = keep_unused(tracks, track_used);
+    let left_dets = keep_unused(dets, det_used);
     (matches, left_tracks, left_dets)
 }
 
