@@ -2,6 +2,8 @@
 //! one block of memory (a ring once full), so that measuring a detection against it reads memory
 //! in order instead of following one pointer a vector, several vectors at a time.
 
+use crate::detections::{Detection, Detections};
+
 /// How many vectors are measured side by side: the vectors are kept in blocks of this many,
 /// value by value (the first value of each, then the second, ...), so that one read of memory
 /// serves them all and the products vectorise.
@@ -83,6 +85,54 @@ impl Gallery {
             }
         }
         1.0 - largest
+    }
+}
+
+/// The appearance vectors of one frame's detections made unit length, once for both the
+/// association and the galleries.
+#[derive(Debug, Default)]
+pub(crate) struct Units {
+    dim: usize,
+    /// Detection `d`'s vector at `d * dim` (zeros where it has none).
+    values: Vec<f32>,
+    /// Whether detection `d` has a vector of length above zero.
+    has: Vec<bool>,
+}
+
+impl Units {
+    /// The unit vectors of `dets` (their vectors in `ctx`), in place of the last frame's.
+    pub(crate) fn fill(&mut self, dets: &[Detection], ctx: &Detections) {
+        self.dim = ctx.embedding_dim;
+        self.values.clear();
+        self.has.clear();
+        for d in dets {
+            let v = ctx.embedding(d).unwrap_or_default();
+            let norm = v.iter().map(|x| f64::from(*x).powi(2)).sum::<f64>().sqrt();
+            let has = norm > 0.0 && v.len() == self.dim;
+            self.has.push(has);
+            match has {
+                true => self
+                    .values
+                    .extend(v.iter().map(|x| (f64::from(*x) / norm) as f32)),
+                false => self.values.resize(self.values.len() + self.dim, 0.0),
+            }
+        }
+    }
+
+    /// Forgets the last frame's vectors (for a method that does not compare appearance).
+    pub(crate) fn clear(&mut self) {
+        self.values.clear();
+        self.has.clear();
+    }
+
+    /// Detection `d`'s unit vector, if it has one.
+    pub(crate) fn get(&self, d: usize) -> Option<&[f32]> {
+        let at = d * self.dim;
+        self.has
+            .get(d)
+            .copied()
+            .unwrap_or(false)
+            .then(|| &self.values[at..at + self.dim])
     }
 }
 

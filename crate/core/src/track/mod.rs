@@ -132,6 +132,7 @@ fn tracker_for(config: &TrackerConfig) -> tracker::Tracker {
     let steps = tracker::MethodSteps {
         associate: def.associate,
         motion: def.motion,
+        appearance: def.needs_embeddings,
     };
     tracker::Tracker::new(config.clone(), steps)
 }

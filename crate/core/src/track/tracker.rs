@@ -3,7 +3,7 @@
 //! else about a track's life is the same for every method.
 
 use super::assign::{self, Edge};
-use super::gallery::Gallery;
+use super::gallery::{Gallery, Units};
 use super::kalman::{BoxMotion, KalmanFilter};
 use super::strips::Strips;
 use super::{Track, TrackBox, TrackerConfig, Tracks};
@@ -79,6 +79,9 @@ pub(crate) type Step = fn(&Tracker, &[Detection], &Detections) -> Association;
 pub(crate) struct MethodSteps {
     pub associate: Step,
     pub motion: bool,
+    /// Whether it compares appearance: the frame's vectors are made unit length and kept in each
+    /// track's gallery.
+    pub appearance: bool,
 }
 
 /// The state shared by every method: live tracks, the motion model and the numbering.
@@ -98,6 +101,8 @@ pub(crate) struct Tracker {
     next_id: u32,
     /// Memory the association reuses from frame to frame.
     pub(crate) reuse: RefCell<Reuse>,
+    /// This frame's appearance vectors, unit length (methods that compare appearance only).
+    pub(crate) units: Units,
 }
 
 /// Memory the association reuses from frame to frame (cleared, never shrunk): once a run has
@@ -129,6 +134,7 @@ impl Tracker {
             finished: Vec::new(),
             next_id: 1,
             reuse: RefCell::default(),
+            units: Units::default(),
         }
     }
 
@@ -163,6 +169,10 @@ impl Tracker {
                 self.motion.predict(&mut t.kf);
             }
         }
+        match self.def.appearance {
+            true => self.units.fill(dets, ctx),
+            false => self.units.clear(),
+        }
         let assoc: Association = (self.def.associate)(self, dets, ctx);
         if self.crowded.take() {
             self.crowded_frames.push(frame);
@@ -173,7 +183,7 @@ impl Tracker {
         matched.resize(self.live.len(), false);
         for m in &assoc.matches {
             matched[m.track] = true;
-            self.observe(m.track, frame, &dets[m.det], ctx);
+            self.observe(m.track, frame, dets, m.det);
         }
         for (i, was_matched) in matched.iter().enumerate() {
             if !was_matched {
@@ -182,23 +192,24 @@ impl Tracker {
         }
         self.reuse.get_mut().used = matched;
         for &d in &assoc.new_tracks {
-            self.start(frame, &dets[d], ctx);
+            self.start(frame, dets, d);
         }
         self.promote();
         self.retire(ctx);
     }
 
-    fn observe(&mut self, i: usize, frame: u32, det: &Detection, ctx: &Detections) {
+    /// Track `i` matched to detection `d` of the frame's `dets`.
+    fn observe(&mut self, i: usize, frame: u32, dets: &[Detection], d: usize) {
         if self.def.motion {
-            self.motion.update(&mut self.live[i].kf, &det.bbox);
+            self.motion.update(&mut self.live[i].kf, &dets[d].bbox);
         }
-        self.record(i, frame, det, ctx);
+        self.record(i, frame, dets, d);
     }
 
     /// Everything an observation changes but the motion filter.
-    fn record(&mut self, i: usize, frame: u32, det: &Detection, ctx: &Detections) {
+    fn record(&mut self, i: usize, frame: u32, dets: &[Detection], d: usize) {
         let gallery_size = self.config.gallery_size as usize;
-        let embedding = ctx.embedding(det).and_then(unit_vector);
+        let det = &dets[d];
         let motion = self.def.motion;
         let t = &mut self.live[i];
         t.last_box = det.bbox;
@@ -209,8 +220,8 @@ impl Tracker {
         if let Some(c) = det.class {
             vote(&mut t.class_votes, c);
         }
-        if let Some(e) = embedding {
-            t.gallery.push(&e, gallery_size);
+        if let Some(e) = self.units.get(d) {
+            t.gallery.push(e, gallery_size);
         }
         if t.phase == Phase::Coasting {
             t.phase = Phase::Confirmed;
@@ -245,7 +256,8 @@ impl Tracker {
     }
 
     /// Starts a tentative track on a detection; its filter starts on the detection's box.
-    fn start(&mut self, frame: u32, det: &Detection, ctx: &Detections) {
+    fn start(&mut self, frame: u32, dets: &[Detection], d: usize) {
+        let det = &dets[d];
         self.live.push(Box::new(LiveTrack {
             id: None,
             kf: self.motion.initiate(&det.bbox),
@@ -259,7 +271,7 @@ impl Tracker {
             boxes: Vec::new(),
             gallery: Gallery::default(),
         }));
-        self.record(self.live.len() - 1, frame, det, ctx);
+        self.record(self.live.len() - 1, frame, dets, d);
     }
 
     /// Confirms tentative tracks that have earned it, numbering them in order of creation.
@@ -350,11 +362,6 @@ fn vote(votes: &mut Vec<(u16, u32)>, class: u16) {
         Some((_, n)) => *n += 1,
         None => votes.push((class, 1)),
     }
-}
-
-pub(crate) fn unit_vector(v: &[f32]) -> Option<Vec<f32>> {
-    let norm = v.iter().map(|x| f64::from(*x).powi(2)).sum::<f64>().sqrt();
-    (norm > 0.0).then(|| v.iter().map(|x| (f64::from(*x) / norm) as f32).collect())
 }
 
 fn finish(t: LiveTrack, detections: &Detections) -> Track {

@@ -7,7 +7,7 @@ use super::{Association, Match, MethodDef};
 use crate::detections::{Detection, Detections};
 use crate::limits::MAX_CANDIDATES;
 use crate::track::assign::{assign_edges, Edge};
-use crate::track::tracker::{unit_vector, Tracker};
+use crate::track::tracker::Tracker;
 use crate::track::TrackerConfig;
 
 pub(super) const DEF: MethodDef = MethodDef {
@@ -34,8 +34,9 @@ fn appearance_edges(
     tracks: &[usize],
     unmatched: &[usize],
     usable: &[usize],
-    embeddings: &[Option<Vec<f32>>],
 ) -> Vec<Edge> {
+    // The frame's vectors, unit length (made once by the tracker for this and the galleries).
+    let unit = |k: usize| tracker.units.get(usable[k]);
     let c = &tracker.config;
     let mut edges = Vec::new();
     let mut near: Vec<(f64, usize)> = Vec::new();
@@ -44,7 +45,7 @@ fn appearance_edges(
     let mut by_x: Vec<(f64, usize)> = unmatched
         .iter()
         .enumerate()
-        .filter(|&(_, &d)| embeddings[d].is_some())
+        .filter(|&(_, &d)| unit(d).is_some())
         .map(|(k, &d)| (dets[usable[d]].bbox.centre().x, k))
         .collect();
     by_x.sort_unstable_by(|a, b| a.0.total_cmp(&b.0).then(a.1.cmp(&b.1)));
@@ -74,7 +75,7 @@ fn appearance_edges(
             near.sort_by_key(|&(_, k)| k);
         }
         for &(_, k) in &near {
-            if let Some(e) = &embeddings[unmatched[k]] {
+            if let Some(e) = unit(unmatched[k]) {
                 edges.push(Edge {
                     row: r,
                     col: k,
@@ -88,14 +89,10 @@ fn appearance_edges(
 
 /// DeepSORT: a matching cascade over confirmed tracks, most recently seen first, on appearance gated
 /// by motion; then IoU for tentative tracks and tracks missed for one frame only.
-fn associate(tracker: &Tracker, dets: &[Detection], ctx: &Detections) -> Association {
+fn associate(tracker: &Tracker, dets: &[Detection], _: &Detections) -> Association {
     let c = &tracker.config;
     let usable: Vec<usize> = (0..dets.len())
         .filter(|&d| dets[d].score >= c.min_score)
-        .collect();
-    let embeddings: Vec<Option<Vec<f32>>> = usable
-        .iter()
-        .map(|&d| ctx.embedding(&dets[d]).and_then(unit_vector))
         .collect();
     let mut unmatched: Vec<usize> = (0..usable.len()).collect();
     let mut matches = Vec::new();
@@ -115,7 +112,7 @@ fn associate(tracker: &Tracker, dets: &[Detection], ctx: &Detections) -> Associa
         for &t in &tracks {
             seen_by_cascade[t] = true;
         }
-        let edges = appearance_edges(tracker, dets, &tracks, &unmatched, &usable, &embeddings);
+        let edges = appearance_edges(tracker, dets, &tracks, &unmatched, &usable);
         let found = assign_edges(tracks.len(), unmatched.len(), &edges, c.max_cosine_distance);
         tracker.note_crowd(found.greedy);
         let (level_matches, _, left) = split(&found.pairs, &tracks, &unmatched);
