@@ -5,6 +5,7 @@
 import { test } from "node:test";
 import assert from "node:assert/strict";
 import { readFileSync, writeFileSync, mkdtempSync } from "node:fs";
+import { execFileSync } from "node:child_process";
 import { join } from "node:path";
 import { tmpdir } from "node:os";
 import { useBrowser, openPage, showView, run, screenshot, demo, LAPTOP } from "./harness.mjs";
@@ -90,3 +91,24 @@ test("a WebM whose index points at itself, which browsers play, is read whole", 
   assert.deepEqual(seen.errors, []);
   await page.close();
 });
+
+test("sound without a picture is named as such, and the page goes on working", async () => {
+  // A WebM holding only an Opus tone (ffmpeg's sine source): browsers play it, with no picture to
+  // draw on. Once this crashed the page's tab.
+  const tone = join(scratch, "tone.webm");
+  execFileSync("ffmpeg", ["-v", "error", "-y", "-f", "lavfi", "-i", "sine=frequency=440:duration=2", "-c:a", "libopus", tone]);
+  const { page, seen } = await openPage(env, { viewport: LAPTOP });
+  let crashed = false;
+  page.on("crash", () => { crashed = true; });
+  await showView(page, "Set up");
+  await page.getByLabel("Open footage").setInputFiles(tone);
+  await page.waitForFunction(() => document.getElementById("messages").textContent.includes("tone.webm"), null, { timeout: 15000 });
+  assert.match(await page.locator("#messages").innerText(), /tone\.webm has no picture \(sound only\?\): open the video itself/);
+  await run(page);
+  await showView(page, "Results");
+  assert.match(await page.locator("#summary").innerText(), /plaza midline/);
+  assert.equal(crashed, false);
+  assert.deepEqual(seen.errors, []);
+  await page.close();
+});
+

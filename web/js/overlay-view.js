@@ -46,6 +46,7 @@ export class OverlayView {
     const picture = this.store.picture;
     if (!picture) return;
     const { width: w, height: h } = picture;
+    if (!(w > 0 && h > 0)) return;
     if (this.canvas.width !== w || this.canvas.height !== h) {
       this.canvas.width = w;
       this.canvas.height = h;

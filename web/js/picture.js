@@ -68,6 +68,8 @@ export class Picture {
 
   ready() {
     const v = this.video;
+    // Sound alone (or a picture the browser cannot size) has nothing to draw on or count in.
+    if (!(v.videoWidth > 0 && v.videoHeight > 0)) return this.noPicture();
     this.store.videoReady(v.videoWidth, v.videoHeight, Math.round(v.duration * this.store.fps), v.duration);
     this.seekFrame(1);
   }
@@ -81,6 +83,13 @@ export class Picture {
     this.messages.say("footage", "error", `This browser cannot play ${name}: ${why}. Browsers play WebM and MP4 video (from most cameras and phones). To convert it on this computer, the free program ffmpeg can do it with this command:\n`, [
       el("code", { text: `ffmpeg -i "${name}" -c:v libvpx-vp9 -crf 32 -b:v 0 -an "${stem}.webm"` }),
     ]);
+  }
+
+  /** The footage plays but shows nothing: sound only, most likely. */
+  noPicture() {
+    this.store.videoFailed();
+    const name = this.store.footage ? this.store.footage.name : "the footage";
+    this.messages.say("footage", "error", `${name} has no picture (sound only?): open the video itself, as WebM or MP4. The detections and plan stay as they were.`);
   }
 
   /** The clock and the scrub bar show the frame on screen. */
