@@ -314,9 +314,18 @@ test("a long tracking run can be cancelled; the counts shown before, the detecti
   await page.getByLabel("Method").selectOption("deepsort");
   await page.getByRole("button", { name: "Run", exact: true }).click();
   await page.waitForFunction(() => /Tracking… frame \d+ of 15000/.test(document.getElementById("run-status").textContent));
+  // Every state the Run bar's words go through while the tracks from before come back.
+  await page.evaluate(() => {
+    const status = /** @type {HTMLElement} */ (document.getElementById("run-status"));
+    const seen = /** @type {string[]} */ ([]);
+    Object.assign(window, { statusesSeen: seen });
+    new MutationObserver(() => seen.push(status.textContent || "")).observe(status, { childList: true, characterData: true, subtree: true });
+  });
   await page.getByRole("button", { name: "Cancel", exact: true }).click();
   await page.waitForFunction(() => /Tracking was cancelled. The counts shown before are kept/.test(document.getElementById("messages").textContent));
   await page.waitForFunction(() => /from before the cancelled run/.test(document.getElementById("run-status").textContent), null, { timeout: 120000 });
+  const statuses = await page.evaluate(() => /** @type {any} */ (window).statusesSeen);
+  assert.ok(statuses.some((t) => /^Bringing back the tracks shown before: tracking again, frame \d+ of 15000…$/.test(t)), statuses.join(" | "));
   await showView(page, "Results");
   assert.equal(await page.locator("#results").isVisible(), true, "the counts shown before are still shown");
   const after = readFileSync(await saveDownload(page, "Export report"), "utf8");

@@ -85,7 +85,10 @@ export class RunPanel {
         await this.editSync.send();
         if (previous !== null) {
           this.status.textContent = "Bringing back the tracks shown before…";
-          await this.client.track(previous.method, previous.settings, previous.footage, () => {});
+          await this.client.track(previous.method, previous.settings, previous.footage, (done, total, stage) => {
+            const what = stage === "bridging" ? "following people in the footage again" : "tracking again";
+            this.status.textContent = `Bringing back the tracks shown before: ${what}, frame ${done} of ${total}…`;
+          });
           this.status.textContent = "The counts shown are those from before the cancelled run.";
         }
         await this.planSync.send();
