@@ -1,6 +1,7 @@
 //! The detector's settings, read from a JSON settings file (docs/detector-settings.md); every
 //! field has a default.
 
+use crate::detections::Perspective;
 use crate::error::{Error, ErrorKind};
 use serde::{Deserialize, Serialize};
 
@@ -41,6 +42,11 @@ pub struct DetectorConfig {
     /// vector, so the `deepsort` method can use clothes to tell people apart. Off by default: on
     /// the simulator's footage it made the counts worse (BENCHMARKS.md).
     pub appearance: bool,
+    /// Pass the boxes found through a tracker that cuts a box covering the predicted places of
+    /// two or more of its tracks, and wider than one person at its row, into one box per track
+    /// (people walking side by side or overtaking seen as one blob; [`crate::track::cut_merged`]);
+    /// needs `far_height` or `near_height`.
+    pub split_merged: bool,
 }
 
 impl Default for DetectorConfig {
@@ -59,11 +65,28 @@ impl Default for DetectorConfig {
             width_ratio: 0.35,
             guess_class: true,
             appearance: false,
+            split_merged: true,
         }
     }
 }
 
 impl DetectorConfig {
+    /// The expected size of a person at each row of a picture `picture_height` rows high, from the
+    /// two heights (one given: the same at every row); `None` with neither.
+    pub fn perspective(&self, picture_height: usize) -> Option<Perspective> {
+        let (far_height, near_height) = match (self.far_height, self.near_height) {
+            (Some(f), Some(n)) => (f, n),
+            (Some(h), None) | (None, Some(h)) => (h, h),
+            (None, None) => return None,
+        };
+        Some(Perspective {
+            far_height,
+            near_height,
+            picture_height: picture_height.max(1) as f64,
+            width_ratio: self.width_ratio,
+        })
+    }
+
     /// Reads a settings file's text; unknown or mistyped fields are named in the error.
     pub fn from_json(text: &str) -> Result<DetectorConfig, Error> {
         let c: DetectorConfig = serde_json::from_str(text).map_err(|e| {

@@ -36,6 +36,7 @@ pub use spread::{InTurn, Job, Spread};
 use crate::detections::{Detection, Detections};
 use crate::error::{Error, ErrorKind};
 use crate::geometry::BBox;
+use crate::track;
 use background::Background;
 use label::BandRuns;
 use mask::{Blob, CleanUp};
@@ -88,23 +89,18 @@ impl Detector {
     }
 
     /// The boxes found in each picture (in the order given; frames numbered from 1) as
-    /// [`Detections`] for the trackers, each with its guessed class where there is one. Class
-    /// names are listed in order of first appearance, as a detections file's reader lists them, so
-    /// the detections written out and read back are the same.
+    /// [`Detections`] for the trackers, each with its guessed class where there is one. With
+    /// `split_merged` (and a height), blobs that cover two or more tracks are first cut into one
+    /// box per track ([`crate::track::cut_merged`]). Class names are listed in order of first
+    /// appearance, as a detections file's reader lists them, so the detections written out and
+    /// read back are the same.
     pub fn detections_from(
         &self,
         found_per_frame: impl IntoIterator<Item = Vec<Found>>,
     ) -> Detections {
         let mut out = Detections::default();
-        let mut index: [Option<u16>; GUESSED_CLASSES.len()] = [None; GUESSED_CLASSES.len()];
         for (k, found) in found_per_frame.into_iter().enumerate() {
             for f in found {
-                let class = self.guess_class(&f.bbox).map(|g| {
-                    *index[g as usize].get_or_insert_with(|| {
-                        out.classes.push(GUESSED_CLASSES[g as usize].to_string());
-                        (out.classes.len() - 1) as u16
-                    })
-                });
                 let embedding = f.appearance.map(|v| {
                     out.embedding_dim = v.len();
                     out.embeddings.extend(v);
@@ -114,10 +110,23 @@ impl Detector {
                     frame: k as u32 + 1,
                     bbox: f.bbox,
                     score: f.score,
-                    class,
+                    class: None,
                     embedding,
                 });
             }
+        }
+        let perspective = self.config.perspective(self.height);
+        if let Some(p) = perspective.filter(|_| self.config.split_merged) {
+            out.rows = track::cut_merged(&out, &p);
+        }
+        let mut index: [Option<u16>; GUESSED_CLASSES.len()] = [None; GUESSED_CLASSES.len()];
+        for r in &mut out.rows {
+            r.class = self.guess_class(&r.bbox).map(|g| {
+                *index[g as usize].get_or_insert_with(|| {
+                    out.classes.push(GUESSED_CLASSES[g as usize].to_string());
+                    (out.classes.len() - 1) as u16
+                })
+            });
         }
         out
     }
@@ -197,12 +206,7 @@ impl Detector {
 
     /// Expected object height (pixels) for an object standing at row `y`, if perspective is set.
     fn expected_height(&self, y: f64) -> Option<f64> {
-        let c = &self.config;
-        match (c.far_height, c.near_height) {
-            (Some(f), Some(n)) => Some(f + (n - f) * (y / self.height.max(1) as f64)),
-            (Some(h), None) | (None, Some(h)) => Some(h),
-            (None, None) => None,
-        }
+        self.config.perspective(self.height).map(|p| p.height_at(y))
     }
 
     /// Finds the moving objects in the next picture: `(box, score)` with the score the share of the

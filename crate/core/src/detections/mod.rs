@@ -9,12 +9,14 @@ mod benchmark;
 mod csv;
 mod halves;
 mod json;
+mod perspective;
 mod reading;
 mod write;
 
 pub use benchmark::Pieces;
 pub use csv::CsvPieces;
 pub use halves::{cut_in_two, cut_near, merge, Cut, Part};
+pub use perspective::Perspective;
 pub use reading::PiecesSummary;
 pub use write::{to_benchmark_text, to_csv, to_file_text};
 

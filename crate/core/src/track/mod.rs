@@ -15,6 +15,7 @@ mod config;
 pub mod files;
 mod gallery;
 pub mod kalman;
+mod merges;
 pub mod methods;
 pub mod stream;
 mod strips;
@@ -23,7 +24,7 @@ mod tracker;
 pub use config::{default_method, resolve_config, TrackerConfig};
 pub use methods::{Method, MethodDef};
 
-use crate::detections::{Detection, Detections};
+use crate::detections::{Detection, Detections, Perspective};
 use crate::error::{Error, ErrorKind};
 use crate::geometry::BBox;
 use serde::Serialize;
@@ -94,8 +95,31 @@ pub fn run_tracker(
     progress: &mut dyn FnMut(u32, u32),
 ) -> Result<Tracks, Error> {
     check_run(config, detections)?;
-    let total = detections.last_frame();
     let mut tracker = tracker_for(config);
+    step_through(&mut tracker, detections, progress);
+    Ok(tracker.close(detections.last_frame(), detections))
+}
+
+/// The detections with every blob that covers the predicted boxes of two or more tracks, and is
+/// wider than one person at its row by `perspective`, cut into one box per track at their
+/// predicted places (`merges`): the boxes a tracker stepped through with the cut saw, in frame
+/// order. The guiding tracker is `sort` with its defaults, the method footage is tracked with by
+/// default; tracking the result with it gives the guiding run's tracks. For boxes found in
+/// footage (the detector calls it), so a detections file written from footage holds the cut boxes.
+pub fn cut_merged(detections: &Detections, perspective: &Perspective) -> Vec<Detection> {
+    let mut tracker = tracker_for(&TrackerConfig::for_method(Method::Sort));
+    tracker.perspective = Some(*perspective);
+    step_through(&mut tracker, detections, &mut |_, _| {});
+    tracker.cut_rows
+}
+
+/// Steps the tracker through every frame from 1 to the last with a detection.
+fn step_through(
+    tracker: &mut tracker::Tracker,
+    detections: &Detections,
+    progress: &mut dyn FnMut(u32, u32),
+) {
+    let total = detections.last_frame();
     let mut frames = detections.by_frame().peekable();
     let mut frame = 1;
     // Frame by frame from 1 to the last with a detection (none for no detections).
@@ -123,7 +147,6 @@ pub fn run_tracker(
         frame = next;
     }
     progress(total, total);
-    Ok(tracker.close(total, detections))
 }
 
 /// A tracker running the configured method's steps.

@@ -5,9 +5,10 @@
 use super::assign::{self, Edge};
 use super::gallery::{Gallery, Units};
 use super::kalman::{BoxMotion, KalmanFilter};
+use super::merges;
 use super::strips::Strips;
 use super::{Track, TrackBox, TrackerConfig, Tracks};
-use crate::detections::{Detection, Detections};
+use crate::detections::{Detection, Detections, Perspective};
 use crate::geometry::BBox;
 use std::cell::{Cell, RefCell};
 
@@ -103,7 +104,17 @@ pub(crate) struct Tracker {
     pub(crate) reuse: RefCell<Reuse>,
     /// This frame's appearance vectors, unit length (methods that compare appearance only).
     pub(crate) units: Units,
+    /// The expected size of a person at each row, set only by [`super::cut_merged`] (boxes found
+    /// in footage): a box that covers the predictions of two or more tracks is cut into one box
+    /// per track (`merges`).
+    pub(crate) perspective: Option<Perspective>,
+    /// With a perspective: every frame's detections as associated (blobs cut), in frame order.
+    pub(crate) cut_rows: Vec<Detection>,
 }
+
+/// A track guides the cutting of a merged blob while it is confirmed and seen within this many
+/// frames (a prediction long unseen has drifted from where the person is).
+const GUIDE_UNSEEN: u32 = 5;
 
 /// Memory the association reuses from frame to frame (cleared, never shrunk): once a run has
 /// warmed up, the frame's boxes, their index, the candidate pairs and the assignment's groups
@@ -135,6 +146,8 @@ impl Tracker {
             next_id: 1,
             reuse: RefCell::default(),
             units: Units::default(),
+            perspective: None,
+            cut_rows: Vec::new(),
         }
     }
 
@@ -169,6 +182,16 @@ impl Tracker {
                 self.motion.predict(&mut t.kf);
             }
         }
+        let cut;
+        let dets = match &self.perspective {
+            Some(p) => {
+                cut = merges::split_merged(&self.guides(), dets, p);
+                let dets = cut.as_deref().unwrap_or(dets);
+                self.cut_rows.extend_from_slice(dets);
+                dets
+            }
+            None => dets,
+        };
         match self.def.appearance {
             true => self.units.fill(dets, ctx),
             false => self.units.clear(),
@@ -196,6 +219,14 @@ impl Tracker {
         }
         self.promote();
         self.retire(ctx);
+    }
+
+    /// The predicted boxes of the tracks that may guide the cutting of a merged blob.
+    fn guides(&self) -> Vec<BBox> {
+        (0..self.live.len())
+            .filter(|&t| self.live[t].is_confirmed() && self.live[t].unseen <= GUIDE_UNSEEN)
+            .map(|t| self.predicted_box(t))
+            .collect()
     }
 
     /// Track `i` matched to detection `d` of the frame's `dets`.
