@@ -155,6 +155,31 @@ fn coasting_across_the_line_counts_and_says_inferred() {
 }
 
 #[test]
+fn a_gap_is_counted_on_the_straight_line_between_where_it_was_seen() {
+    // Seen walking down 4 px a frame to y = 176 (frame 7), unseen for 20 frames while the tracker's
+    // prediction ran on at the old pace and turned back (as a prediction far from any detection
+    // may), then seen again at y = 256 (frame 28) walking on. Between the two sightings it went
+    // 80 px in 21 frames: over the line at y = 200 at frame 7 + 24 / 80 × 21 = 13.3 (the event
+    // names the first frame after it, 14), where a person counting from the pictures would put it.
+    // The predicted path touches the line at frames 13, 21 and 27.3 (forward, back, forward).
+    let mut path = walk(1, 7, 100.0, 152.0, 0.0, 4.0);
+    for k in 1..=20u32 {
+        let drift = if k <= 10 {
+            4.0 * f64::from(k)
+        } else {
+            4.0 * f64::from(20 - k)
+        };
+        path.push((7 + k, 100.0, 176.0 + drift, false));
+    }
+    path.extend(walk(28, 10, 100.0, 256.0, 0.0, 4.0));
+    let r = run(LINE, vec![track(1, "pedestrian", &path)]);
+    check_line(&r, 1, 0);
+    let e = &r.events[0];
+    assert!(e.inferred);
+    assert_eq!(e.frame, 14, "{e:#?}");
+}
+
+#[test]
 fn polyline_segments_and_a_vertex_count_once() {
     // A bent line: (0,200) -> (200,200) -> (400,300).
     let plan = r#"{"frame_rate": 10, "screenlines": [{"name": "bend", "points": [[0,200],[200,200],[400,300]]}]}"#;
