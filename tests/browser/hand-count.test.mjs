@@ -91,7 +91,7 @@ test("a tally by key presses over part of the demo is compared with the tool's c
   const wapd = pairs.reduce((s, [a, m]) => s + Math.abs(a - m), 0) / sumM;
   const total = rows["All lines together"];
   assert.deepEqual([total.hand, total.tool, total.apd, total.aapd, total.wapd, total.factor], [sumM, sumA, pct(apd, true), pct(aapd), pct(wapd), (sumM / sumA).toFixed(3)]);
-  // On the demo: the tool counts one walker twice on the divide (westbound, frame 501).
+  // On the demo: the tool counts one walker twice on the divide (westbound, frame 500).
   assert.equal(rows[`east-west divide|${label("east-west divide", "forward")}`].difference, "+1");
   const card = page.locator(".tally-check").first();
   assert.match(await card.innerText(), /Sample size: 15\.0 s of footage \(07:00:15 to 07:00:30\), 4 crossings counted by hand/);

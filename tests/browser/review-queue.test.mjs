@@ -30,9 +30,9 @@ test("the queue leads to the demo's double count; rejecting it gives the line's 
   assert.equal(listed, cliQueue.length, "the page lists as many moments as throughline review --picture 640x360");
   assert.match(await page.getByRole("tab", { name: /Doubtful moments/ }).getAttribute("aria-selected"), /true/, "Review opens on the queue");
   await page.keyboard.press("n");
-  await page.waitForFunction(() => document.getElementById("clock").textContent.startsWith("frame 501 "));
+  await page.waitForFunction(() => document.getElementById("clock").textContent.startsWith("frame 500 "));
   const strip = await page.locator("#focus-strip").innerText();
-  assert.match(strip, /Doubtful moment 1 of \d+ · 0:19\.97 · tracks 18 and 23 · two crossings close together, counted while hidden/);
+  assert.match(strip, /Doubtful moment 1 of \d+ · 0:19\.95 · tracks 18 and 23 · two crossings close together, counted while hidden/);
   await screenshot(page, "15-queue-first", { fullPage: false });
   await page.keyboard.press("r");
   await page.keyboard.type("one walker counted twice");

@@ -116,6 +116,33 @@ fn jitter_on_the_line_does_not_multiply_counts() {
 }
 
 #[test]
+fn a_shallow_walk_along_the_line_is_timed_where_it_crosses_not_at_its_last_touch() {
+    // Drifts 0.4 px a frame across the line while the box jitters ±3 px (the margin is 7.5 px):
+    // the anchor touches the line again and again between frames 13 and 28; the steady path
+    // crosses at frame 21. Common practice: the moment of a crossing is where the path's middle
+    // passes the line, not the last jitter across it.
+    let path: Vec<(u32, f64, f64, bool)> = (1..=50u32)
+        .map(|f| {
+            let jitter = if f % 2 == 0 { 3.0 } else { -3.0 };
+            (
+                f,
+                10.0 * f64::from(f),
+                192.0 + 0.4 * f64::from(f - 1) + jitter,
+                true,
+            )
+        })
+        .collect();
+    let r = run(LINE, vec![track(1, "pedestrian", &path)]);
+    check_line(&r, 1, 0);
+    let e = &r.events[0];
+    assert!(
+        (19..=23).contains(&e.frame),
+        "timed at frame {}: {e:#?}",
+        e.frame
+    );
+}
+
+#[test]
 fn coasting_across_the_line_counts_and_says_inferred() {
     let mut path = walk(1, 30, 100.0, 150.0, 0.0, 4.0);
     for p in path.iter_mut().filter(|p| (12..=16).contains(&p.0)) {
@@ -125,6 +152,31 @@ fn coasting_across_the_line_counts_and_says_inferred() {
     check_line(&r, 1, 0);
     assert!(r.events[0].inferred);
     assert_eq!(r.screenlines[0].inferred, 1);
+}
+
+#[test]
+fn a_gap_is_counted_on_the_straight_line_between_where_it_was_seen() {
+    // Seen walking down 4 px a frame to y = 176 (frame 7), unseen for 20 frames while the tracker's
+    // prediction ran on at the old pace and turned back (as a prediction far from any detection
+    // may), then seen again at y = 256 (frame 28) walking on. Between the two sightings it went
+    // 80 px in 21 frames: over the line at y = 200 at frame 7 + 24 / 80 × 21 = 13.3 (the event
+    // names the first frame after it, 14), where a person counting from the pictures would put it.
+    // The predicted path touches the line at frames 13, 21 and 27.3 (forward, back, forward).
+    let mut path = walk(1, 7, 100.0, 152.0, 0.0, 4.0);
+    for k in 1..=20u32 {
+        let drift = if k <= 10 {
+            4.0 * f64::from(k)
+        } else {
+            4.0 * f64::from(20 - k)
+        };
+        path.push((7 + k, 100.0, 176.0 + drift, false));
+    }
+    path.extend(walk(28, 10, 100.0, 256.0, 0.0, 4.0));
+    let r = run(LINE, vec![track(1, "pedestrian", &path)]);
+    check_line(&r, 1, 0);
+    let e = &r.events[0];
+    assert!(e.inferred);
+    assert_eq!(e.frame, 14, "{e:#?}");
 }
 
 #[test]

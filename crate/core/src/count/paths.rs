@@ -1,5 +1,6 @@
 //! Stage 1: each tracker track as a path of anchor points, one per frame (predicted boxes
-//! included), the form every later stage counts on.
+//! included, those of a gap between two sightings put on the line between them), the form every
+//! later stage counts on.
 
 use crate::geometry::{BBox, Point};
 use crate::plan::{Anchor, Screenline};
@@ -65,7 +66,8 @@ fn class_of(t: &Track) -> String {
 }
 
 fn path(t: &Track, anchor: Anchor) -> Vec<PathPoint> {
-    t.boxes
+    let mut points: Vec<PathPoint> = t
+        .boxes
         .iter()
         .map(|b| PathPoint {
             frame: b.frame,
@@ -73,7 +75,32 @@ fn path(t: &Track, anchor: Anchor) -> Vec<PathPoint> {
             height: b.bbox.h,
             observed: b.observed,
         })
-        .collect()
+        .collect();
+    interpolate_gaps(&mut points);
+    points
+}
+
+/// Puts the predicted points of each gap between two observed points on the straight line between
+/// those two, by frame: the tracker's predictions were made before the object was found again and
+/// drift with the velocity it had when lost, whereas the two ends are where it was seen. The
+/// points stay unobserved (a crossing among them is inferred).
+fn interpolate_gaps(points: &mut [PathPoint]) {
+    let mut last_seen: Option<usize> = None;
+    for k in 0..points.len() {
+        if !points[k].observed {
+            continue;
+        }
+        if let Some(i) = last_seen.filter(|&i| k > i + 1) {
+            let (a, b) = (points[i], points[k]);
+            let span = f64::from(b.frame - a.frame);
+            for q in &mut points[i + 1..k] {
+                let t = f64::from(q.frame - a.frame) / span;
+                q.p = Point::new(a.p.x + t * (b.p.x - a.p.x), a.p.y + t * (b.p.y - a.p.y));
+                q.height = a.height + t * (b.height - a.height);
+            }
+        }
+        last_seen = Some(k);
+    }
 }
 
 /// Distance from a point to the nearest segment of a screenline, pixels.
