@@ -22,8 +22,17 @@ pub(super) const DEF: MethodDef = MethodDef {
     search_max_cosine_distance: &[0.15, 0.3],
 };
 
+/// Longer-lived tracks and quicker confirmation than the shared defaults. An unseen track is found
+/// again by appearance, so it may wait longer: 70 frames is the reference implementation's
+/// `max_age` (from memory: nwojke/deep_sort, `Tracker`). A tentative track ends at its first missed
+/// frame, so in a crowd where people are hidden every other frame three hits in a row are rare and
+/// people went untracked: two are asked for (measured in BENCHMARKS.md, "Crossings one by one").
 fn defaults(base: TrackerConfig) -> TrackerConfig {
-    base
+    TrackerConfig {
+        max_age: 70,
+        min_hits: 2,
+        ..base
+    }
 }
 
 /// Appearance costs between one cascade level's tracks and the detections still unmatched, for the
