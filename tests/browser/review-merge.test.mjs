@@ -1,5 +1,5 @@
 // Merging two tracks in the page, as a person would: in Review, Tracks, choose track 21 (a cyclist
-// first seen at frame 386), Merge…, and from the tracks not seen at the same time, nearest first,
+// first seen at frame 382), Merge…, and from the tracks not seen at the same time, nearest first,
 // choose track 17 (a cyclist last seen at frame 378), give a reason, Merge. Right or wrong as a
 // judgement, the counts must follow at once, and be what `throughline run --edits` gives for that
 // one correction, written here by hand in the edits file's format (docs/edits-format.md): byte for
@@ -19,23 +19,23 @@ test("merge: track 21 joins track 17; the counts follow, as throughline run --ed
   const box = page.locator("#tracks-correct");
   await box.getByRole("button", { name: "Merge with another track (Tracks list)" }).click();
   const choices = await box.getByLabel("Track to merge with").locator("option").allInnerTexts();
-  // Only tracks that never share a frame with track 21 (frames 386–599) are offered, nearest first.
+  // Only tracks that never share a frame with track 21 (frames 382–599) are offered, nearest first.
   const tracks = JSON.parse(replay([])).events; // (only to name the tracks the counting joins)
   assert.ok(tracks.some((e) => e.track_ids.join() === "15,21"), "the counting itself joins 15 and 21 (docs/counting-rules.md)");
-  // First offered: track 15, which ends 2 s before track 21 begins, 0.9 box heights from it: the
+  // First offered: track 15, which ends 1.8 s before track 21 begins, 0.7 box heights from it: the
   // piece the counting's own join rule puts with it. No offered track shares a frame with 21.
-  assert.match(choices[0], /^track 15 · cyclist · ends 2\.0 s before, 0\.9 box heights away$/);
+  assert.match(choices[0], /^track 15 · cyclist · ends 1\.8 s before, 0\.7 box heights away$/);
   const offered = choices.map((c) => Number(c.match(/^track (\d+)/)[1]));
   for (const id of [18, 19, 20, 22, 23]) assert.ok(!offered.includes(id), `track ${id} is seen while 21 is`);
   const seventeen = choices.find((c) => c.startsWith("track 17 "));
-  assert.match(seventeen, /^track 17 · cyclist · ends 0\.3 s before, 3\.7 box heights away$/);
+  assert.match(seventeen, /^track 17 · cyclist · ends 0\.2 s before, 3\.5 box heights away$/);
   await box.getByLabel("Track to merge with").selectOption({ label: seventeen });
   await box.getByLabel("Reason (optional)").fill("one cyclist, lost by the kiosk");
   await box.getByRole("button", { name: "Merge", exact: true }).click();
   await countedWith(page, 1);
   await screenshot(page, "15-merged", { fullPage: false });
 
-  const want = replay([{ edit: "merge_tracks", track: { id: 21, frames: [386, 599] }, into: { id: 17, frames: [244, 378] }, reason: "one cyclist, lost by the kiosk" }]);
+  const want = replay([{ edit: "merge_tracks", track: { id: 21, frames: [382, 599] }, into: { id: 17, frames: [244, 378] }, reason: "one cyclist, lost by the kiosk" }]);
   const got = await pageReport(page);
   assert.equal(got, want, "the page's report equals throughline run --edits with the hand-written merge");
   const report = JSON.parse(got);

@@ -22,8 +22,19 @@ pub(super) const DEF: MethodDef = MethodDef {
     search_max_cosine_distance: &[0.15, 0.3],
 };
 
+/// Longer-lived tracks and quicker confirmation than the shared defaults (measured in
+/// BENCHMARKS.md, "Crossings one by one"). An unseen track is found again by appearance, so it may
+/// wait longer: 50 frames (2 s at 25 a second). The reference implementation keeps 70 (from
+/// memory: nwojke/deep_sort, `Tracker`), but with the bundled demo's short embeddings (8 values)
+/// tracks lost that long were found again on other people. A tentative track ends at its first
+/// missed frame, so in a crowd where people are hidden every other frame three hits in a row are
+/// rare and people went untracked: two are asked for.
 fn defaults(base: TrackerConfig) -> TrackerConfig {
-    base
+    TrackerConfig {
+        max_age: 50,
+        min_hits: 2,
+        ..base
+    }
 }
 
 /// Appearance costs between one cascade level's tracks and the detections still unmatched, for the
