@@ -108,89 +108,103 @@ pub fn track_streamed(path: &Path, how: How, output: &Path) -> Result<Option<Str
     }))
 }
 
-/// The next rows of the file.
-enum Batch {
-    /// Benchmark text: rows (their last frame may go on in the next batch) and the class names
-    /// first seen in them.
-    Rows {
-        rows: Vec<Detection>,
-        new_classes: Vec<String>,
-    },
-    /// CSV: whole frames with their own appearance vectors, and every class named so far.
+/// The next rows of the file, and the class names first seen in them.
+struct Batch {
+    rows: Rows,
+    new_classes: Vec<String>,
+}
+
+enum Rows {
+    /// Benchmark text: rows, whose last frame may go on in the next batch.
+    Text(Vec<Detection>),
+    /// CSV: whole frames with their own appearance vectors.
     Frames(Detections),
 }
 
-/// The reading of pieces of one of the two formats read piecewise.
-enum Parser {
-    Text { pieces: Pieces, sent_classes: usize },
+/// The reading of pieces of one of the two formats read piecewise, and how many class names it
+/// has sent on.
+struct Parser {
+    format: Format,
+    sent_classes: usize,
+}
+
+enum Format {
+    Text(Pieces),
     Csv { pieces: CsvPieces, dim: usize },
 }
 
 impl Parser {
     /// The parser for a file that starts with `first` (whole lines), if it can be read piecewise.
     fn for_start(first: &[u8]) -> Option<Parser> {
-        if detections::benchmark_text_start(first).is_some() {
-            return Some(Parser::Text {
-                pieces: Pieces::new(),
-                sent_classes: 0,
-            });
-        }
-        let dim = detections::csv_start(first)?;
-        Some(Parser::Csv {
-            pieces: CsvPieces::new(),
-            dim,
+        let format = if detections::benchmark_text_start(first).is_some() {
+            Format::Text(Pieces::new())
+        } else {
+            let dim = detections::csv_start(first)?;
+            Format::Csv {
+                pieces: CsvPieces::new(),
+                dim,
+            }
+        };
+        Some(Parser {
+            format,
+            sent_classes: 0,
         })
     }
 
     fn format(&self) -> DetectionFormat {
-        match self {
-            Parser::Text { .. } => DetectionFormat::BenchmarkText,
-            Parser::Csv { .. } => DetectionFormat::CsvWithHeader,
+        match self.format {
+            Format::Text(_) => DetectionFormat::BenchmarkText,
+            Format::Csv { .. } => DetectionFormat::CsvWithHeader,
         }
     }
 
     fn embedding_dim(&self) -> usize {
-        match self {
-            Parser::Text { .. } => 0,
-            Parser::Csv { dim, .. } => *dim,
+        match self.format {
+            Format::Text(_) => 0,
+            Format::Csv { dim, .. } => dim,
         }
     }
 
     /// The rows of the next piece; `None` to give up (a mistake, frames out of order, a header
     /// read otherwise than at the start).
     fn read(&mut self, text: &str) -> Option<Batch> {
-        match self {
-            Parser::Text {
-                pieces,
-                sent_classes,
-            } => {
+        let (rows, named) = match &mut self.format {
+            Format::Text(pieces) => {
                 let mut rows = Vec::new();
                 if pieces.read(text, &mut rows).is_err() || pieces.out_of_order() {
                     return None;
                 }
-                let classes = &pieces.classes().classes;
-                let new_classes = classes[*sent_classes..].to_vec();
-                *sent_classes = classes.len();
-                Some(Batch::Rows { rows, new_classes })
+                (Rows::Text(rows), pieces.classes())
             }
-            Parser::Csv { pieces, dim } => {
+            Format::Csv { pieces, dim } => {
                 let mut batch = Detections::default();
                 let same = pieces.read(text, &mut batch).is_ok()
                     && !pieces.out_of_order()
                     && pieces.embedding_dim() == Some(*dim);
-                same.then_some(Batch::Frames(batch))
+                if !same {
+                    return None;
+                }
+                (Rows::Frames(batch), pieces.classes())
             }
-        }
+        };
+        let new_classes = named.classes[self.sent_classes..].to_vec();
+        self.sent_classes = named.classes.len();
+        Some(Batch { rows, new_classes })
     }
 
-    /// The rows still held (CSV's last frame) and the totals; `None` to give up.
+    /// The rows still held (CSV's last frame, whose class names were sent with the rows before
+    /// it) and the totals; `None` to give up.
     fn finish(self) -> Option<(Option<Batch>, PiecesSummary)> {
-        match self {
-            Parser::Text { pieces, .. } => Some((None, pieces.finish().ok()?)),
-            Parser::Csv { pieces, .. } => {
+        match self.format {
+            Format::Text(pieces) => Some((None, pieces.finish().ok()?)),
+            Format::Csv { pieces, .. } => {
                 let mut batch = Detections::default();
                 let read = pieces.finish(&mut batch).ok()?;
-                Some((Some(Batch::Frames(batch)), read))
+                let last = Batch {
+                    rows: Rows::Frames(batch),
+                    new_classes: Vec::new(),
+                };
+                Some((Some(last), read))
             }
         }
     }
@@ -214,12 +228,12 @@ fn pipeline(
         let writing = s.spawn(move || write_boxes(w, boxes_out));
         let mut ctx = Detections::default();
         for batch in rows_out {
-            match batch {
-                Batch::Rows { rows, new_classes } => {
-                    ctx.classes.extend(new_classes);
-                    tracker.rows(&rows, &ctx);
-                }
-                Batch::Frames(frames) => {
+            ctx.classes.extend(batch.new_classes);
+            match batch.rows {
+                Rows::Text(rows) => tracker.rows(&rows, &ctx),
+                Rows::Frames(mut frames) => {
+                    // The batch's own vectors with every class named so far, lent and taken back.
+                    frames.classes = std::mem::take(&mut ctx.classes);
                     tracker.frames(&frames.rows, &frames);
                     ctx.classes = frames.classes;
                 }

@@ -136,7 +136,7 @@ impl CsvPieces {
 
     /// Reads the rows on the lines of `text` (whole lines, the next ones of the file) and puts
     /// in `batch`, in place of what it held, the rows of every frame before the last one read,
-    /// their vectors, the classes named so far and the vectors' length.
+    /// their vectors and the vectors' length; the class names are [`Self::classes`]'.
     pub fn read(&mut self, text: &str, batch: &mut Detections) -> Result<(), Error> {
         let kept = self.lines.r.out.rows.len();
         self.lines.read(text)?;
@@ -154,6 +154,11 @@ impl CsvPieces {
     /// Whether a row's frame came before an earlier row's.
     pub fn out_of_order(&self) -> bool {
         self.lines.r.out_of_order
+    }
+
+    /// The classes named so far, in order of first appearance (the rows' class indices).
+    pub fn classes(&self) -> &Detections {
+        &self.lines.r.out
     }
 
     /// The length of the appearance vectors, once the header is read (0: none).
@@ -180,7 +185,7 @@ impl CsvPieces {
     /// numbered again from 0.
     fn give_out(&mut self, end: usize, batch: &mut Detections) {
         let out = &mut self.lines.r.out;
-        batch.classes.clone_from(&out.classes);
+        batch.classes.clear();
         batch.embedding_dim = out.embedding_dim;
         batch.rows.clear();
         batch.embeddings.clear();
