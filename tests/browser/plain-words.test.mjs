@@ -2,7 +2,7 @@
 // (not the program's name for it), no documents they cannot open and no codec strings, and the two
 // words of the trade it uses explained where they appear ("counted while hidden", "part"). A zone's
 // numbers add up, and the page says how: first seen inside + entries = exits + last seen inside,
-// with the exported report's own numbers.
+// with the exported report's own numbers. The demo's invitation to press Run does not outlive the run.
 import { test } from "node:test";
 import assert from "node:assert/strict";
 import { mkdtempSync } from "node:fs";
@@ -15,7 +15,10 @@ const scratch = mkdtempSync(join(tmpdir(), "tl-words-"));
 
 test("results in plain words: the method's label, explained terms, zones that add up, no paths or codecs", async () => {
   const { page, seen } = await openPage(env);
+  // The demo's invitation to press Run goes once Run has counted it (it would mislead after).
+  await page.waitForFunction(() => /Press Run to track and count it/.test(document.getElementById("messages").textContent));
   await run(page);
+  assert.doesNotMatch(await page.locator("#messages").innerText(), /Press Run/);
   const report = JSON.parse(await downloadText(page, "Export report", scratch));
   const summary = await page.locator("#summary").innerText();
 

@@ -79,6 +79,11 @@ export class Demo {
         this.messages.clear("plan-replaced");
       }
       this.messages.say("demo", "ok", "This is the bundled demo: a simulated footbridge plaza. Press Run to track and count it, or open your own footage, detections and plan.");
+      // Once it is counted (or other files are open) the invitation is out of date.
+      const stop = this.store.subscribe(["results", "detections"], () => {
+        this.messages.clear("demo");
+        stop();
+      });
     } catch (e) {
       this.messages.say("demo", "warn", `The demo could not be opened (${/** @type {Error} */ (e).message}). Open your own footage and detections.`);
     }
