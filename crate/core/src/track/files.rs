@@ -9,6 +9,8 @@
 use crate::error::{Error, ErrorKind};
 use crate::geometry::BBox;
 use crate::text;
+use crate::track::lines::round;
+pub use crate::track::lines::{write_decimal, BenchmarkLines};
 use crate::track::{Track, TrackBox, TrackerConfig, Tracks};
 use serde::{Deserialize, Serialize};
 
@@ -16,16 +18,6 @@ use serde::{Deserialize, Serialize};
 pub const TRACKS_FORMAT: &str = "throughline-tracks";
 /// Version of the tracks document layout.
 pub const TRACKS_VERSION: u32 = 1;
-
-fn round(v: f64, places: i32) -> f64 {
-    let p = 10f64.powi(places);
-    let r = (v * p).round() / p;
-    if r == 0.0 {
-        0.0
-    } else {
-        r
-    }
-}
 
 /// Writes tracks in the benchmark text format.
 pub fn to_benchmark_text(tracks: &Tracks) -> String {
@@ -50,117 +42,6 @@ pub fn write_benchmark_text(tracks: &Tracks, out: &mut impl std::io::Write) -> s
         lines.push(frame, id, b)?;
     }
     lines.flush()
-}
-
-/// Benchmark text lines of tracks' boxes, given in order and written a piece at a time.
-pub struct BenchmarkLines<W: std::io::Write> {
-    out: W,
-    buf: Vec<u8>,
-}
-
-impl<W: std::io::Write> BenchmarkLines<W> {
-    const PIECE: usize = 1 << 16;
-
-    pub fn new(out: W) -> Self {
-        Self {
-            out,
-            buf: Vec::with_capacity(Self::PIECE + 128),
-        }
-    }
-
-    /// The line of box `b` of track `id` in `frame`.
-    pub fn push(&mut self, frame: u32, id: u32, b: &TrackBox) -> std::io::Result<()> {
-        let buf = &mut self.buf;
-        push_digits(buf, u64::from(frame), 0);
-        buf.push(b',');
-        push_digits(buf, u64::from(id), 0);
-        buf.push(b',');
-        for v in [b.bbox.x, b.bbox.y, b.bbox.w, b.bbox.h] {
-            write_decimal(buf, v, 2);
-            buf.push(b',');
-        }
-        write_decimal(buf, b.score, 4);
-        buf.extend_from_slice(b",-1,-1,-1\n");
-        if buf.len() >= Self::PIECE {
-            self.out.write_all(buf)?;
-            buf.clear();
-        }
-        Ok(())
-    }
-
-    /// Writes what is left in the buffer.
-    pub fn flush(&mut self) -> std::io::Result<()> {
-        self.out.write_all(&self.buf)?;
-        self.buf.clear();
-        Ok(())
-    }
-}
-
-/// Writes `v` rounded to `places` decimals, without trailing zeros (`12.5`, `3`, `-0.25`): the same
-/// text as formatting [`round`]`(v, places)`, written without the general float formatter.
-pub fn write_decimal(out: &mut Vec<u8>, v: f64, places: u32) {
-    if places == 2 && v.is_finite() && v.abs() < 1e12 {
-        // The common case (pixel coordinates), without the general loop.
-        let scaled = (v.abs() * 100.0).round() as u64;
-        if scaled == 0 {
-            out.push(b'0');
-            return;
-        }
-        if v < 0.0 {
-            out.push(b'-');
-        }
-        push_digits(out, scaled / 100, 0);
-        let (tens, units) = ((scaled % 100 / 10) as u8, (scaled % 10) as u8);
-        if tens != 0 || units != 0 {
-            out.push(b'.');
-            out.push(b'0' + tens);
-            if units != 0 {
-                out.push(b'0' + units);
-            }
-        }
-        return;
-    }
-    let scale = 10u64.pow(places);
-    let scaled = (v.abs() * scale as f64).round();
-    if !v.is_finite() || scaled >= 1e15 {
-        out.extend_from_slice(round(v, places as i32).to_string().as_bytes());
-        return;
-    }
-    let scaled = scaled as u64;
-    if scaled == 0 {
-        out.push(b'0');
-        return;
-    }
-    if v < 0.0 {
-        out.push(b'-');
-    }
-    push_digits(out, scaled / scale, 0);
-    let mut frac = scaled % scale;
-    if frac > 0 {
-        let mut digits = places as usize;
-        while frac.is_multiple_of(10) {
-            frac /= 10;
-            digits -= 1;
-        }
-        out.push(b'.');
-        push_digits(out, frac, digits);
-    }
-}
-
-/// Appends the decimal digits of `n`, padded with leading zeros to at least `width` digits.
-fn push_digits(out: &mut Vec<u8>, mut n: u64, width: usize) {
-    let mut buf = [b'0'; 20];
-    let mut i = buf.len();
-    loop {
-        i -= 1;
-        buf[i] = b'0' + (n % 10) as u8;
-        n /= 10;
-        if n == 0 {
-            break;
-        }
-    }
-    let start = i.min(buf.len() - width.min(buf.len()));
-    out.extend_from_slice(&buf[start..]);
 }
 
 #[derive(Serialize, Deserialize)]

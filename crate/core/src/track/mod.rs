@@ -15,6 +15,7 @@ mod config;
 pub mod files;
 mod gallery;
 pub mod kalman;
+mod lines;
 mod merges;
 pub mod methods;
 pub mod stream;

@@ -42,6 +42,8 @@ pub struct Drained {
 #[derive(Debug, Default)]
 pub struct InOrder {
     pending: Vec<OutBox>,
+    /// The pending boxes' (frame, number) keys and places, sorted.
+    keys: Vec<(u64, usize)>,
 }
 
 impl InOrder {
@@ -53,11 +55,21 @@ impl InOrder {
         } else {
             self.pending.append(&mut d.boxes);
         }
+        // Sorted by a key and place, not moved about: a box is as large as eight keys.
         // (frame, number) pairs are unique, so an unstable sort gives the one order.
-        self.pending.sort_unstable_by_key(|&(f, id, _)| (f, id));
-        let settled = self.pending.partition_point(|&(f, _, _)| f < d.open_from);
-        for (f, id, b) in self.pending.drain(..settled) {
-            write(f, id, &b);
+        let key = |&(f, id, _): &OutBox| (u64::from(f) << 32) | u64::from(id);
+        self.keys.clear();
+        self.keys
+            .extend(self.pending.iter().enumerate().map(|(k, b)| (key(b), k)));
+        self.keys.sort_unstable();
+        let open_from = u64::from(d.open_from) << 32;
+        let settled = self.keys.partition_point(|&(k, _)| k < open_from);
+        for &(_, k) in &self.keys[..settled] {
+            let (f, id, b) = &self.pending[k];
+            write(*f, *id, b);
+        }
+        if settled > 0 {
+            self.pending.retain(|b| key(b) >= open_from);
         }
     }
 }
