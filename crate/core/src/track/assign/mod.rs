@@ -17,13 +17,16 @@
 //! ([`assign_edges`]) solve each component with the sparse solver of `assign/sparse.rs`, in time and
 //! memory that follow the candidate pairs.
 
+mod components;
 mod sparse;
 #[cfg(test)]
 mod tests;
 
 use crate::limits::MAX_ASSIGNMENT_STEPS;
+use components::Components;
 use pathfinding::kuhn_munkres::kuhn_munkres_min;
 use pathfinding::matrix::Matrix;
+use std::borrow::Borrow;
 
 /// A dense cost matrix in row-major order.
 #[derive(Debug, Clone, PartialEq)]
@@ -198,6 +201,16 @@ pub struct Buffers {
     /// Indices of the edges that pass the gate.
     kept: Vec<usize>,
     components: Components,
+    scratch: Scratch,
+}
+
+/// What one component of more than one edge is solved in, kept from component to component.
+#[derive(Debug, Default)]
+struct Scratch {
+    group: Vec<Edge>,
+    rs: Vec<usize>,
+    cs: Vec<usize>,
+    state: sparse::State,
 }
 
 /// [`assign_edges`] into `buffers.pairs`, reusing the buffers' memory; returns whether part of it
@@ -225,6 +238,7 @@ fn assign_reusing(
         pairs,
         kept,
         components,
+        scratch,
     } = buffers;
     kept.clear();
     kept.extend((0..edges.len()).filter(|&i| {
@@ -241,8 +255,15 @@ fn assign_reusing(
             pairs.push((edges[i].row, edges[i].col));
             continue;
         }
-        let group: Vec<&Edge> = indices.iter().map(|&i| &edges[i]).collect();
-        let (rs, cs) = rows_and_cols(&group);
+        let Scratch {
+            group,
+            rs,
+            cs,
+            state,
+        } = &mut *scratch;
+        group.clear();
+        group.extend(indices.iter().map(|&i| edges[i]));
+        rows_and_cols_into(group, rs, cs);
         if rs.len() == 1 || cs.len() == 1 {
             // One row or one column: the cheapest edge is the optimum (first listed among equals).
             let best = group.iter().min_by(|a, b| {
@@ -253,9 +274,8 @@ fn assign_reusing(
             pairs.extend(best.map(|e| (e.row, e.col)));
             continue;
         }
-        let found = sparse_component(&group, &rs, &cs, above, |e| e.cost, &mut steps);
-        greedy |= found.out_of_steps;
-        pairs.extend(found.pairs);
+        let edge_cost = |e: &Edge| e.cost;
+        greedy |= sparse_component_in(state, group, (rs, cs), above, edge_cost, &mut steps, pairs);
     }
     pairs.sort_unstable();
     greedy
@@ -290,19 +310,36 @@ fn dense_component(
 
 /// [`dense_component`] by the sparse solver, on the integers the dense one would use, within a
 /// budget of `steps`.
-fn sparse_component(
-    group: &[&Edge],
+fn sparse_component<G: Borrow<Edge>>(
+    group: &[G],
     rs: &[usize],
     cs: &[usize],
     fill: f64,
     value: impl Fn(&Edge) -> f64,
     steps: &mut u64,
-) -> sparse::Solved {
+) -> Vec<(usize, usize)> {
+    let mut pairs = Vec::new();
+    let mut state = sparse::State::default();
+    sparse_component_in(&mut state, group, (rs, cs), fill, value, steps, &mut pairs);
+    pairs
+}
+
+/// [`sparse_component`] in the memory of `state`, its pairs added to `pairs`; returns whether
+/// the budget ran out.
+fn sparse_component_in<G: Borrow<Edge>>(
+    state: &mut sparse::State,
+    group: &[G],
+    (rs, cs): (&[usize], &[usize]),
+    fill: f64,
+    value: impl Fn(&Edge) -> f64,
+    steps: &mut u64,
+    pairs: &mut Vec<(usize, usize)>,
+) -> bool {
     // The scaling of [`solve`] on this component's matrix.
     let full = group.len() >= rs.len() * cs.len();
     let max_abs = group
         .iter()
-        .map(|e| value(e).abs())
+        .map(|e| value(e.borrow()).abs())
         .fold(if full { 0.0 } else { fill.abs() }, f64::max);
     let scale = if max_abs > 0.0 {
         INTEGER_RANGE / max_abs
@@ -311,89 +348,17 @@ fn sparse_component(
     };
     let to_int = |c: f64| (c * scale).round() as i64;
     let ints = group.iter().map(|e| {
+        let e = e.borrow();
         let (i, j) = local(e, rs, cs);
         (i, j, to_int(value(e)))
     });
-    let mut found = sparse::solve(rs.len(), cs.len(), ints, to_int(fill), steps);
-    for p in &mut found.pairs {
+    let found = pairs.len();
+    let dims = (rs.len(), cs.len());
+    let out_of_steps = sparse::solve_in(state, dims, ints, to_int(fill), steps, pairs);
+    for p in &mut pairs[found..] {
         *p = (rs[p.0], cs[p.1]);
     }
-    found
-}
-
-/// The edges grouped by the connected component of rows and columns they join (union-find over
-/// rows `0..rows` and columns `rows..rows + cols`), in a fixed order: as indices into the edges,
-/// each component's one after another, in one list for a frame (not one per component: most
-/// components of a frame are one track and one box). Its memory is kept from call to call.
-#[derive(Debug, Default)]
-struct Components {
-    /// Indices of the edges, component after component.
-    flat: Vec<usize>,
-    /// Where each component ends in `flat`.
-    ends: Vec<usize>,
-    parent: Vec<usize>,
-    roots: Vec<usize>,
-}
-
-impl Components {
-    /// Groups `edges[k]` for every `k` in `kept` (in that order within a component).
-    fn group(&mut self, rows: usize, cols: usize, edges: &[Edge], kept: &[usize]) {
-        fn find(parent: &mut [usize], mut i: usize) -> usize {
-            while parent[i] != i {
-                parent[i] = parent[parent[i]];
-                i = parent[i];
-            }
-            i
-        }
-        let parent = &mut self.parent;
-        parent.clear();
-        parent.extend(0..rows + cols);
-        for &k in kept {
-            let e = &edges[k];
-            let (a, b) = (find(parent, e.row), find(parent, rows + e.col));
-            if a != b {
-                parent[a.max(b)] = a.min(b);
-            }
-        }
-        // The edges by root, then by their order in `kept`: a counting sort over the roots, which
-        // lie in `0..rows + cols` (the order sorting the pairs (root, edge) would give).
-        self.roots.clear();
-        for &k in kept {
-            let root = find(parent, edges[k].row);
-            self.roots.push(root);
-        }
-        let start = parent;
-        start.fill(0);
-        for &r in &self.roots {
-            start[r] += 1;
-        }
-        self.ends.clear();
-        let mut at = 0;
-        for count in start.iter_mut() {
-            let n = *count;
-            *count = at;
-            at += n;
-            if n > 0 {
-                self.ends.push(at);
-            }
-        }
-        self.flat.clear();
-        self.flat.resize(kept.len(), 0);
-        for (&r, &k) in self.roots.iter().zip(kept) {
-            self.flat[start[r]] = k;
-            start[r] += 1;
-        }
-    }
-
-    /// Each component's edge indices, in order.
-    fn groups(&self) -> impl Iterator<Item = &[usize]> {
-        let mut start = 0;
-        self.ends.iter().map(move |&end| {
-            let group = &self.flat[start..end];
-            start = end;
-            group
-        })
-    }
+    out_of_steps
 }
 
 /// An edge's row and column within a component's sorted rows and columns.
@@ -404,14 +369,22 @@ fn local(e: &Edge, rs: &[usize], cs: &[usize]) -> (usize, usize) {
 }
 
 /// The distinct rows and columns of a component, sorted.
-fn rows_and_cols(group: &[&Edge]) -> (Vec<usize>, Vec<usize>) {
-    let mut rs: Vec<usize> = group.iter().map(|e| e.row).collect();
-    let mut cs: Vec<usize> = group.iter().map(|e| e.col).collect();
+fn rows_and_cols<G: Borrow<Edge>>(group: &[G]) -> (Vec<usize>, Vec<usize>) {
+    let (mut rs, mut cs) = (Vec::new(), Vec::new());
+    rows_and_cols_into(group, &mut rs, &mut cs);
+    (rs, cs)
+}
+
+/// [`rows_and_cols`] into `rs` and `cs`, in place of what they held.
+fn rows_and_cols_into<G: Borrow<Edge>>(group: &[G], rs: &mut Vec<usize>, cs: &mut Vec<usize>) {
+    rs.clear();
+    rs.extend(group.iter().map(|e| e.borrow().row));
+    cs.clear();
+    cs.extend(group.iter().map(|e| e.borrow().col));
     rs.sort_unstable();
     rs.dedup();
     cs.sort_unstable();
     cs.dedup();
-    (rs, cs)
 }
 
 /// Total cost of a set of pairs.
@@ -445,8 +418,14 @@ pub fn maximise_edges(rows: usize, cols: usize, edges: &[Edge]) -> Vec<(usize, u
         if rs.len() <= DENSE_UP_TO && cs.len() <= DENSE_UP_TO {
             pairs.extend(dense_component(&group, &rs, &cs, 0.0, |e| -e.cost));
         } else {
-            let found = sparse_component(&group, &rs, &cs, 0.0, |e| -e.cost, &mut steps);
-            pairs.extend(found.pairs);
+            pairs.extend(sparse_component(
+                &group,
+                &rs,
+                &cs,
+                0.0,
+                |e| -e.cost,
+                &mut steps,
+            ));
         }
     }
     pairs.sort_unstable();

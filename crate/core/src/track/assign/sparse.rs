@@ -27,28 +27,24 @@ use std::collections::BinaryHeap;
 /// No row or column.
 const NONE: u32 = u32::MAX;
 
-/// What [`solve`] found: pairs `(row, col)` sorted by row, and whether the step budget ran out
-/// (the rows placed after that were matched greedily).
-pub(super) struct Solved {
-    pub pairs: Vec<(usize, usize)>,
-    pub out_of_steps: bool,
-}
-
 /// Least total cost over the `edges` `(row, col, cost)` with rows `0..rows` and columns
-/// `0..cols`, a row left unmatched costing `unmatched` (which must exceed every edge's cost).
-/// `steps` is the budget of work left, decreased by what this call uses. The edges are read twice
-/// (counted, then placed), never copied whole.
-pub(super) fn solve<E>(
-    rows: usize,
-    cols: usize,
+/// `0..cols`, a row left unmatched costing `unmatched` (which must exceed every edge's cost):
+/// the pairs `(row, col)`, by row, added to `pairs`; returns whether the budget of work `steps`
+/// (decreased by what this call uses) ran out, the rows placed after that matched greedily. The
+/// edges are read twice (counted, then placed), never copied whole. Works in the memory of `s`,
+/// kept by a caller that solves many components (it holds nothing between calls).
+pub(super) fn solve_in<E>(
+    s: &mut State,
+    (rows, cols): (usize, usize),
     edges: E,
     unmatched: i64,
     steps: &mut u64,
-) -> Solved
+    pairs: &mut Vec<(usize, usize)>,
+) -> bool
 where
     E: Iterator<Item = (usize, usize, i64)> + Clone,
 {
-    let mut s = State::new(rows, cols, edges, unmatched);
+    s.refill(rows, cols, edges, unmatched);
     s.cheapest_free_first();
     let mut out_of_steps = false;
     for row in 0..rows {
@@ -60,19 +56,18 @@ where
     if out_of_steps {
         s.place_rest_greedily();
     }
-    let pairs = (0..rows)
-        .filter(|&r| (s.mate[r] as usize) < cols)
-        .map(|r| (r, s.mate[r] as usize))
-        .collect();
-    Solved {
-        pairs,
-        out_of_steps,
-    }
+    pairs.extend(
+        (0..rows)
+            .filter(|&r| (s.mate[r] as usize) < cols)
+            .map(|r| (r, s.mate[r] as usize)),
+    );
+    out_of_steps
 }
 
 /// The graph (rows' pairs in compressed rows, each row's dummy column being `cols + row`), the
 /// matching and prices, and Dijkstra's scratch space, reset after each search.
-struct State {
+#[derive(Debug, Default)]
+pub(super) struct State {
     cols: usize,
     start: Vec<usize>,
     col: Vec<u32>,
@@ -94,43 +89,49 @@ struct State {
 }
 
 impl State {
-    fn new<E>(rows: usize, cols: usize, edges: E, unmatched: i64) -> Self
+    /// The graph of `edges`, with no row matched, in place of what the state held (its memory
+    /// kept).
+    fn refill<E>(&mut self, rows: usize, cols: usize, edges: E, unmatched: i64)
     where
         E: Iterator<Item = (usize, usize, i64)> + Clone,
     {
-        let mut start = vec![0usize; rows + 1];
+        let start = &mut self.start;
+        start.clear();
+        start.resize(rows + 1, 0);
         for (r, _, _) in edges.clone() {
             start[r + 1] += 1;
         }
         for r in 0..rows {
             start[r + 1] += start[r];
         }
-        let mut fill = start.clone();
-        let mut col = vec![0u32; start[rows]];
-        let mut cost = vec![0i64; start[rows]];
+        // Each row's next free place, from its start (in the search's list of columns, lent:
+        // empty between searches).
+        let fill = &mut self.touched;
+        fill.clear();
+        fill.extend_from_slice(&start[..rows]);
+        let n = start[rows];
+        self.col.clear();
+        self.col.resize(n, 0);
+        self.cost.clear();
+        self.cost.resize(n, 0);
         for (r, c, w) in edges {
-            col[fill[r]] = c as u32;
-            cost[fill[r]] = w;
+            self.col[fill[r]] = c as u32;
+            self.cost[fill[r]] = w;
             fill[r] += 1;
         }
+        fill.clear();
         let all = cols + rows;
-        Self {
-            cols,
-            start,
-            col,
-            cost,
-            unmatched,
-            price: vec![0; all],
-            owner: vec![NONE; all],
-            mate: vec![NONE; rows],
-            mate_cost: vec![0; rows],
-            dist: vec![i64::MAX; all],
-            from: vec![NONE; all],
-            from_cost: vec![0; all],
-            done: vec![false; all],
-            touched: Vec::new(),
-            heap: BinaryHeap::new(),
-        }
+        self.cols = cols;
+        self.unmatched = unmatched;
+        refilled(&mut self.price, all, 0);
+        refilled(&mut self.owner, all, NONE);
+        refilled(&mut self.mate, rows, NONE);
+        refilled(&mut self.mate_cost, rows, 0);
+        refilled(&mut self.dist, all, i64::MAX);
+        refilled(&mut self.from, all, NONE);
+        refilled(&mut self.from_cost, all, 0);
+        refilled(&mut self.done, all, false);
+        self.heap.clear();
     }
 
     /// Row `r`'s pairs, its dummy last: (column, cost).
@@ -278,4 +279,10 @@ impl State {
             }
         }
     }
+}
+
+/// `v` as `len` copies of `value`, in its own memory.
+fn refilled<T: Clone>(v: &mut Vec<T>, len: usize, value: T) {
+    v.clear();
+    v.resize(len, value);
 }

@@ -223,8 +223,14 @@ fn sparse_maximum(rows: usize, cols: usize, edges: &[Edge]) -> Vec<(usize, usize
         let group: Vec<&Edge> = indices.iter().map(|&i| &edges[i]).collect();
         let (rs, cs) = rows_and_cols(&group);
         let mut steps = u64::MAX;
-        let found = sparse_component(&group, &rs, &cs, 0.0, |e| -e.cost, &mut steps);
-        pairs.extend(found.pairs);
+        pairs.extend(sparse_component(
+            &group,
+            &rs,
+            &cs,
+            0.0,
+            |e| -e.cost,
+            &mut steps,
+        ));
     }
     pairs
 }
