@@ -415,17 +415,12 @@ pub fn maximise_edges(rows: usize, cols: usize, edges: &[Edge]) -> Vec<(usize, u
         }
         let group: Vec<&Edge> = indices.iter().map(|&i| &edges[i]).collect();
         let (rs, cs) = rows_and_cols(&group);
+        let gain = |e: &Edge| -e.cost;
         if rs.len() <= DENSE_UP_TO && cs.len() <= DENSE_UP_TO {
-            pairs.extend(dense_component(&group, &rs, &cs, 0.0, |e| -e.cost));
+            pairs.extend(dense_component(&group, &rs, &cs, 0.0, gain));
         } else {
-            pairs.extend(sparse_component(
-                &group,
-                &rs,
-                &cs,
-                0.0,
-                |e| -e.cost,
-                &mut steps,
-            ));
+            let found = sparse_component(&group, &rs, &cs, 0.0, gain, &mut steps);
+            pairs.extend(found);
         }
     }
     pairs.sort_unstable();

@@ -223,14 +223,9 @@ fn sparse_maximum(rows: usize, cols: usize, edges: &[Edge]) -> Vec<(usize, usize
         let group: Vec<&Edge> = indices.iter().map(|&i| &edges[i]).collect();
         let (rs, cs) = rows_and_cols(&group);
         let mut steps = u64::MAX;
-        pairs.extend(sparse_component(
-            &group,
-            &rs,
-            &cs,
-            0.0,
-            |e| -e.cost,
-            &mut steps,
-        ));
+        let gain = |e: &Edge| -e.cost;
+        let found = sparse_component(&group, &rs, &cs, 0.0, gain, &mut steps);
+        pairs.extend(found);
     }
     pairs
 }
