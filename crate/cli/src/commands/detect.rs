@@ -108,17 +108,15 @@ pub fn detect_footage(
     }
     let bar = progress::spinner(quiet, "detecting {spinner} frame {pos} ({per_sec})");
     let mut per_frame = Vec::new();
-    cores.within(|| {
-        each_frame(&mut reader, footage, |frame| {
-            let pic = picture(&header, frame, footage)?;
-            per_frame.push(
-                detector
-                    .detect_found_spread(&pic, cores)
-                    .map_err(|e| bad_input(footage, e))?,
-            );
-            bar.inc(1);
-            Ok(())
-        })
+    each_frame(&mut reader, footage, |frame| {
+        let pic = picture(&header, frame, footage)?;
+        per_frame.push(
+            detector
+                .detect_found_spread(&pic, cores)
+                .map_err(|e| bad_input(footage, e))?,
+        );
+        bar.inc(1);
+        Ok(())
     })?;
     bar.finish_and_clear();
     if per_frame.is_empty() {

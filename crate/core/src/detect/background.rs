@@ -4,6 +4,7 @@
 //! once, over the warm-up); shadows told apart by brightness ratio and chroma. See the module notes
 //! of `detect` for the method and its sources.
 
+use super::median::medians_into;
 use super::pixels::{levels, lit, unlit, Band, Learning, Test, UNIT_GAIN};
 use super::spread::{band_rows, Job, Spread};
 use super::{DetectorConfig, Picture};
@@ -230,11 +231,8 @@ impl Background {
                 .zip(self.bg_v.chunks_mut(size));
             jobs.extend(planes.enumerate().map(|(k, (bu, bv))| {
                 Box::new(move || {
-                    let mut buf = Vec::with_capacity(us.len());
-                    for (i, (bu, bv)) in bu.iter_mut().zip(bv).enumerate() {
-                        *bu = median(us, k * size + i, &mut buf);
-                        *bv = median(vs, k * size + i, &mut buf);
-                    }
+                    medians_into(us, k * size, None, bu);
+                    medians_into(vs, k * size, None, bv);
                 }) as Job
             }));
         }
@@ -366,22 +364,9 @@ impl Background {
 /// The per-pixel median of the pictures `planes` from pixel `i0` (as many as `bg` holds) into
 /// `bg`, and the median of their distances from it (at least 2) into `dev`.
 fn medians(planes: &[&[u8]], i0: usize, bg: &mut [u8], dev: &mut [u8]) {
-    let mut buf = Vec::with_capacity(planes.len());
-    for (k, (b, d)) in bg.iter_mut().zip(dev).enumerate() {
-        *b = median(planes, i0 + k, &mut buf);
-        buf.clear();
-        buf.extend(planes.iter().map(|p| p[i0 + k].abs_diff(*b)));
-        let mid = buf.len() / 2;
-        *d = (*buf.select_nth_unstable(mid).1).max(2);
-    }
-}
-
-/// The median (the upper of the middle two) of the pictures `planes` at pixel `i`.
-fn median(planes: &[&[u8]], i: usize, buf: &mut Vec<u8>) -> u8 {
-    buf.clear();
-    buf.extend(planes.iter().map(|p| p[i]));
-    let mid = buf.len() / 2;
-    *buf.select_nth_unstable(mid).1
+    medians_into(planes, i0, None, bg);
+    medians_into(planes, i0, Some(bg), dev);
+    dev.iter_mut().for_each(|d| *d = (*d).max(2));
 }
 
 /// Frames per step of learning inside an object's box.

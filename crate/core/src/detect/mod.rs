@@ -24,6 +24,7 @@ mod classify;
 mod config;
 mod label;
 mod mask;
+mod median;
 mod picture;
 mod pixels;
 mod spread;
