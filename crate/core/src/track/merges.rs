@@ -33,15 +33,21 @@ pub(crate) fn split_merged(
     perspective: &Perspective,
 ) -> Option<Vec<Detection>> {
     let held = holders(guides, dets, perspective);
+    // How many guides each detection holds: most hold one or none, and only those that hold two
+    // or more gather their guides.
+    let mut holding = vec![0usize; dets.len()];
+    for &i in held.iter().flatten() {
+        holding[i] += 1;
+    }
     let mut out: Option<Vec<Detection>> = None;
     for (i, d) in dets.iter().enumerate() {
-        let mine: Vec<BBox> = held
-            .iter()
-            .zip(guides)
-            .filter(|(h, _)| **h == Some(i))
-            .map(|(_, g)| *g)
-            .collect();
-        let pieces = if mine.len() >= 2 {
+        let pieces = if holding[i] >= 2 {
+            let mine: Vec<BBox> = held
+                .iter()
+                .zip(guides)
+                .filter(|(h, _)| **h == Some(i))
+                .map(|(_, g)| *g)
+                .collect();
             pieces(&d.bbox, mine, perspective)
         } else {
             Vec::new()
