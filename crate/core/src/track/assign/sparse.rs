@@ -104,22 +104,18 @@ impl State {
         for r in 0..rows {
             start[r + 1] += start[r];
         }
-        // Each row's next free place, from its start (in the search's list of columns, lent:
-        // empty between searches).
-        let fill = &mut self.touched;
-        fill.clear();
-        fill.extend_from_slice(&start[..rows]);
         let n = start[rows];
-        self.col.clear();
-        self.col.resize(n, 0);
-        self.cost.clear();
-        self.cost.resize(n, 0);
+        refilled(&mut self.col, n, 0);
+        refilled(&mut self.cost, n, 0);
+        // Each row's start serves as its next free place while the pairs are placed; it then
+        // holds the next row's start, and moving every start down one row puts them back.
         for (r, c, w) in edges {
-            self.col[fill[r]] = c as u32;
-            self.cost[fill[r]] = w;
-            fill[r] += 1;
+            self.col[start[r]] = c as u32;
+            self.cost[start[r]] = w;
+            start[r] += 1;
         }
-        fill.clear();
+        start.copy_within(..rows, 1);
+        start[0] = 0;
         let all = cols + rows;
         self.cols = cols;
         self.unmatched = unmatched;
