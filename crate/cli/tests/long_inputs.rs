@@ -240,3 +240,29 @@ fn csv_with_appearance_read_piecewise_gives_the_whole_readings_tracks_and_words(
     );
     assert_eq!(std::fs::read_to_string(&txt).unwrap(), text);
 }
+
+/// A file too short for any track to be confirmed says why and which setting to lower, read
+/// whole (JSON out) or a piece at a time (text out); and the setting it names does the job.
+#[test]
+fn a_file_with_no_confirmed_track_says_which_setting_to_lower() {
+    let dir = scratch("long_two_frames");
+    let two = write(
+        &dir,
+        "two.txt",
+        b"1,-1,10,10,20,20,0.9\n2,-1,11,10,20,20,0.9\n",
+    );
+    for out in ["tracks.txt", "tracks.json"] {
+        let out = dir.join(out).display().to_string();
+        let o = throughline(&["track", &two, "-o", &out]);
+        assert!(o.status.success(), "{}", stderr(&o));
+        let said = stderr(&o);
+        assert!(said.contains("0 tracks with sort"), "{said}");
+        assert!(said.contains("no track was kept"), "{said}");
+        assert!(said.contains("3 frames in a row (`min_hits`)"), "{said}");
+    }
+    let settings = write(&dir, "settings.json", br#"{"min_hits": 1}"#);
+    let out = dir.join("again.txt").display().to_string();
+    let o = throughline(&["track", &two, "-o", &out, "--config", &settings]);
+    assert!(stderr(&o).contains("1 track with sort"), "{}", stderr(&o));
+    assert!(!stderr(&o).contains("no track was kept"), "{}", stderr(&o));
+}

@@ -6,7 +6,7 @@ use crate::output::{check_paths, Outputs};
 use crate::progress::{self, Timer};
 use crate::streaming;
 use std::path::{Path, PathBuf};
-use throughline_core::{detections, pipeline, Detections, Method, Tracks};
+use throughline_core::{detections, pipeline, Detections, Method, TrackerConfig, Tracks};
 
 /// The long help of the command (`--help`).
 pub const LONG_ABOUT: &str = "Link per-frame detections into tracks.\n\n\
@@ -139,6 +139,9 @@ fn report_streamed(path: &Path, out: &Path, how: &TrackingArgs, done: &streaming
     if done.config.bridge_frames > 0 {
         eprintln!("{}", no_footage_note(done.config.bridge_frames));
     }
+    if done.end.tracks == 0 && done.read.rows > 0 {
+        eprintln!("{}", nothing_kept_note(path, &done.config));
+    }
     eprintln!(
         "{}: {} with {}, written to {}",
         path.display(),
@@ -219,8 +222,32 @@ pub fn track_detections(
     timer.lap("track");
     if !how.quiet {
         print_crowded(path, &tracks.crowded_frames);
+        if tracks.tracks.is_empty() && !dets.rows.is_empty() {
+            eprintln!("{}", nothing_kept_note(path, &config));
+        }
     }
     Ok(tracks)
+}
+
+/// Why detections gave no track, and which settings to lower (a short or low-scoring file).
+fn nothing_kept_note(path: &Path, config: &TrackerConfig) -> String {
+    let confirm = if config.confirm_score > config.min_score {
+        format!(
+            " and one of its detections scored at least {} (`confirm_score`)",
+            config.confirm_score
+        )
+    } else {
+        String::new()
+    };
+    format!(
+        "note: {}: no track was kept. With these settings a track is kept once it has been seen \
+         in {} frames in a row (`min_hits`){confirm}; detections scoring under {} are not used \
+         (`min_score`). For a short file or low scores, lower them in a settings file given \
+         with --config, such as one holding {{\"min_hits\": 1}} (docs/tracker-settings.md).",
+        path.display(),
+        config.min_hits,
+        config.min_score
+    )
 }
 
 /// The warning for frames whose crowd was matched cheapest pair first.
