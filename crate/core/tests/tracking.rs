@@ -109,6 +109,44 @@ fn deepsort_without_embeddings_says_what_to_do() {
     );
 }
 
+/// With `iou_needs_appearance`, overlap alone does not hand a track to someone else: a person
+/// (vector 1,0) walks for ten frames and is then hidden, while another (vector 0,1) steps into the
+/// very place the first was predicted at and walks on. `deepsort`'s IoU stage takes the
+/// newcomer's box for the hidden person's track (the published method); with the setting it
+/// refuses a pair its appearance stage refuses, so the newcomer is a track of their own.
+#[test]
+fn deepsort_can_refuse_a_hidden_persons_track_to_a_newcomer_in_their_place() {
+    let mut text = String::from("frame,x,y,w,h,score,class,e0,e1\n");
+    for f in 1..=20u32 {
+        let x = 10 + 4 * f;
+        let look = if f <= 10 { "1,0" } else { "0,1" };
+        text.push_str(&format!("{f},{x},100,20,50,0.9,pedestrian,{look}\n"));
+    }
+    let dets = detections(&text);
+    let tracked = |needs: bool| {
+        let config = TrackerConfig {
+            iou_needs_appearance: needs,
+            ..TrackerConfig::for_method(Method::Deepsort)
+        };
+        let t = run_tracker(&dets, &config, &mut |_, _| {}).expect("tracker runs");
+        let holding = |frame: u32| {
+            t.tracks
+                .iter()
+                .find(|tr| tr.boxes.iter().any(|b| b.frame == frame && b.observed))
+                .map(|tr| tr.id)
+        };
+        (holding(5), holding(15))
+    };
+    let (first, second) = tracked(true);
+    assert!(first.is_some() && second.is_some());
+    assert_ne!(
+        first, second,
+        "the newcomer was given the first person's track"
+    );
+    let (first, second) = tracked(false);
+    assert_eq!(first, second, "the published method: one track by overlap");
+}
+
 #[test]
 fn tracks_are_numbered_in_order_of_confirmation_and_runs_are_deterministic() {
     let scene = generate(&SceneConfig {

@@ -77,6 +77,15 @@ pub struct TrackerConfig {
         skip_serializing_if = "is_default_bridge_frames"
     )]
     pub bridge_frames: u32,
+    /// `deepsort`: the IoU stage (tentative tracks, and tracks missed in the appearance stage)
+    /// refuses a pair further apart in appearance than `max_cosine_distance`, as the appearance
+    /// stage does. Off by default (the published method); written out only when on.
+    #[serde(default, skip_serializing_if = "is_false")]
+    pub iou_needs_appearance: bool,
+}
+
+fn is_false(v: &bool) -> bool {
+    !*v
 }
 
 /// Frames bridged by default: none. Bridging is asked for in the settings (25, one second at 25
@@ -111,6 +120,7 @@ impl TrackerConfig {
             gallery_size: 100,
             max_mahalanobis: super::kalman::CHI2_95_4DOF,
             bridge_frames: DEFAULT_BRIDGE_FRAMES,
+            iou_needs_appearance: false,
         };
         (method.def().defaults)(base)
     }

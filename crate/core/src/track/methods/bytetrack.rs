@@ -49,16 +49,16 @@ fn associate(tracker: &Tracker, dets: &[Detection], _: &Detections) -> Associati
         .collect();
 
     let (mut matches, left_tracks, left_high) =
-        match_iou(tracker, &confirmed, &high, dets, c.min_iou);
+        match_iou(tracker, &confirmed, &high, dets, c.min_iou, None);
     // The second stage only tries tracks that were seen in the previous frame (ByteTrack's "tracked"
     // state); tracks already coasting wait for a high-score box.
     let visible: Vec<usize> = left_tracks
         .into_iter()
         .filter(|&t| tracker.live[t].unseen == 0)
         .collect();
-    let (second, _, _) = match_iou(tracker, &visible, &low, dets, c.low_min_iou);
+    let (second, _, _) = match_iou(tracker, &visible, &low, dets, c.low_min_iou, None);
     matches.extend(second);
-    let (third, _, left_high) = match_iou(tracker, &tentative, &left_high, dets, c.min_iou);
+    let (third, _, left_high) = match_iou(tracker, &tentative, &left_high, dets, c.min_iou, None);
     matches.extend(third);
     let new_tracks = left_high
         .into_iter()

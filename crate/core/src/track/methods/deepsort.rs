@@ -99,7 +99,11 @@ fn appearance_edges(
 }
 
 /// DeepSORT: a matching cascade over confirmed tracks, most recently seen first, on appearance gated
-/// by motion; then IoU for tentative tracks and tracks missed for one frame only.
+/// by motion; then IoU for tentative tracks and tracks missed for one frame only. With
+/// `iou_needs_appearance` (not in the published method) the IoU stage refuses a pair whose
+/// appearance the cascade would refuse: in a crowd, a track whose person is hidden for a frame
+/// otherwise takes the box of a newcomer overlapping its place and follows them (measured in
+/// BENCHMARKS.md, "Crossings one by one": identity switches in the crowd 699 → 402).
 fn associate(tracker: &Tracker, dets: &[Detection], _: &Detections) -> Association {
     let c = &tracker.config;
     let usable: Vec<usize> = (0..dets.len())
@@ -147,7 +151,14 @@ fn associate(tracker: &Tracker, dets: &[Detection], _: &Detections) -> Associati
         })
         .collect();
     let left_dets: Vec<usize> = unmatched.iter().map(|&k| usable[k]).collect();
-    let (iou_matches, _, new_tracks) = match_iou(tracker, &iou_tracks, &left_dets, dets, c.min_iou);
+    let (iou_matches, _, new_tracks) = match_iou(
+        tracker,
+        &iou_tracks,
+        &left_dets,
+        dets,
+        c.min_iou,
+        c.iou_needs_appearance.then_some(c.max_cosine_distance),
+    );
     matches.extend(iou_matches);
     Association {
         matches,

@@ -8,13 +8,16 @@ use crate::track::assign::{assign_edges_reusing, Edge};
 use crate::track::tracker::{Reuse, Tracker};
 
 /// Matches `tracks` to `dets` (both lists of indices) on 1 − IoU with a least IoU; returns the
-/// matches and the tracks and detections left over, in their original order.
+/// matches and the tracks and detections left over, in their original order. With `max_cosine`
+/// (methods that compare appearance), a track with appearance vectors is not matched to a
+/// detection whose vector is further than that from all of them.
 pub(super) fn match_iou(
     tracker: &Tracker,
     tracks: &[usize],
     dets: &[usize],
     all: &[Detection],
     min_iou: f64,
+    max_cosine: Option<f64>,
 ) -> (Vec<Match>, Vec<usize>, Vec<usize>) {
     let mut reuse = tracker.reuse.borrow_mut();
     let Reuse {
@@ -37,7 +40,16 @@ pub(super) fn match_iou(
         mine.clear();
         for &c in near.iter() {
             let iou = tb.iou(&boxes[c]);
-            if iou > 0.0 && 1.0 - iou <= gate {
+            // With appearance: a box that does not look like the track is not its match,
+            // however well it overlaps (one person walking into another's place).
+            let unlike = max_cosine.is_some_and(|most| {
+                let g = &tracker.live[t].gallery;
+                tracker
+                    .units
+                    .get(dets[c])
+                    .is_some_and(|e| !g.is_empty() && g.distance(e) > most)
+            });
+            if iou > 0.0 && 1.0 - iou <= gate && !unlike {
                 mine.push(Edge {
                     row: r,
                     col: c,
@@ -116,7 +128,7 @@ pub(super) fn single_stage(tracker: &Tracker, dets: &[Detection], _: &Detections
         .filter(|&d| dets[d].score >= c.min_score)
         .collect();
     let tracks: Vec<usize> = (0..tracker.live.len()).collect();
-    let (matches, _, new_tracks) = match_iou(tracker, &tracks, &usable, dets, c.min_iou);
+    let (matches, _, new_tracks) = match_iou(tracker, &tracks, &usable, dets, c.min_iou, None);
     Association {
         matches,
         new_tracks,
