@@ -82,7 +82,7 @@ pub fn events_bench(quick: bool) -> Result<(), String> {
          detector with the two heights 34 and 91, default method `sort`); frames/s is the whole run's. \
          Brought detections: the simulator's detections of a crowd (no footage), 90 in view, 1280x720, \
          {frames} frames each, seeds {}, 15% missed boxes and 0.5 false boxes a frame, embeddings of 16 \
-         values for `deepsort`, counted by `throughline run` with each method's defaults. The grid's plan \
+         values for `deepsort`, counted by `throughline run` with each method's defaults, and `deepsort` again with `{{\"iou_needs_appearance\": true}}`. The grid's plan \
          (`sim_plan`: two screenlines), crossings summed over both lines and the scenes. Each true \
          crossing is matched to at most one counted crossing of the same line and direction at most 25 \
          frames (one second) and about a person's height at the front of the picture (100 pixels at \
@@ -198,11 +198,25 @@ fn footage_line(bin: &str, seeds: &[u64], frames: u32) -> Result<Line, String> {
     })
 }
 
+/// The crowd's trackers: each method with its defaults, then `deepsort` with the IoU stage
+/// asking for appearance too (a setting, off by default): (label, method, settings).
+const CROWD_TRACKERS: [(&str, &str, Option<&str>); METHODS.len() + 1] = [
+    (METHODS[0], METHODS[0], None),
+    (METHODS[1], METHODS[1], None),
+    (METHODS[2], METHODS[2], None),
+    (METHODS[3], METHODS[3], None),
+    (
+        "deepsort, `iou_needs_appearance`",
+        "deepsort",
+        Some(r#"{"iou_needs_appearance": true}"#),
+    ),
+];
+
 /// Brought detections of a crowd, each seed's scene simulated once and counted by `run` with
-/// every method: one line a method.
+/// every tracker of [`CROWD_TRACKERS`]: one line each.
 fn crowd_lines(bin: &str, seeds: &[u64], frames: u32) -> Result<Vec<Line>, String> {
-    // Per method: within a second and a person's height, and within a second alone.
-    let mut tallies = [(EventTally::default(), EventTally::default()); METHODS.len()];
+    // Per tracker: within a second and a person's height, and within a second alone.
+    let mut tallies = [(EventTally::default(), EventTally::default()); CROWD_TRACKERS.len()];
     for &seed in seeds {
         let folder = format!("events-crowd-{seed}");
         let sim = Sim {
@@ -219,26 +233,32 @@ fn crowd_lines(bin: &str, seeds: &[u64], frames: u32) -> Result<Vec<Line>, Strin
         };
         let (dir, plan) = simulate_scene(bin, &sim)?;
         let truth = read_json(&dir.join("truth_report.json"))?;
-        for (tally, method) in tallies.iter_mut().zip(METHODS) {
-            let report = dir.join(format!("{method}-report.json"));
+        for (k, (tally, (_, method, settings))) in
+            tallies.iter_mut().zip(CROWD_TRACKERS).enumerate()
+        {
+            let report = dir.join(format!("{k}-{method}-report.json"));
             let (inp, r) = (detections_for(&dir, method), shown(&report));
-            run(
-                bin,
-                &[
-                    "run", &inp, "--plan", &plan, "--method", method, "-o", &r, "--quiet",
-                ],
-            )?;
+            let mut args = vec![
+                "run", &inp, "--plan", &plan, "--method", method, "-o", &r, "--quiet",
+            ];
+            let config = dir.join(format!("{k}-settings.json"));
+            let config = shown(&config);
+            if let Some(text) = settings {
+                std::fs::write(&config, text).map_err(|e| format!("{config}: {e}"))?;
+                args.extend(["--config", &config]);
+            }
+            run(bin, &args)?;
             let counted = read_json(&report)?;
             tally.0 += event_tally(&truth, &counted, same_event(sim.height));
             tally.1 += event_tally(&truth, &counted, SAME_SECOND);
         }
     }
-    Ok(METHODS
+    Ok(CROWD_TRACKERS
         .into_iter()
         .zip(tallies)
-        .map(|(method, (tally, same_second))| Line {
+        .map(|((label, _, _), (tally, same_second))| Line {
             input: "brought detections, 90 in view, 15% missed",
-            method,
+            method: label,
             tally,
             same_second,
             frames_per_second: None,
