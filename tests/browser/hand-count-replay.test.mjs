@@ -3,14 +3,16 @@
 // and the project saved by the page replays on the command line: `throughline run --edits
 // project.json` gives the page's report byte for byte (its checks and the factor applied among
 // it), and `throughline score-counts --truth project.json` on that report gives the page's checks.
-// The hand counts are kept in the browser too: after a reload they are listed again.
+// The hand counts are kept in the browser too: after a reload they are listed again. The demo is
+// tracked with SORT here, which counts one walker twice in the sample (the default `deepsort`
+// counts the demo as its truth, and a factor would be 1).
 import { test } from "node:test";
 import assert from "node:assert/strict";
 import { execFileSync } from "node:child_process";
 import { writeFileSync } from "node:fs";
 import { join } from "node:path";
 import { useBrowser, openPage, run, showView, downloadText, LAPTOP } from "./harness.mjs";
-import { pageReport, replay, scratch, cli } from "./review-helpers.mjs";
+import { pageReport, replay, scratch, cli, chooseMethod } from "./review-helpers.mjs";
 import { trueCrossings, startTally, pressAt, keyOf, nameSite, SITE } from "./handin-helpers.mjs";
 
 const env = useBrowser();
@@ -28,6 +30,7 @@ async function tallyKeys(page) {
 test("two hand counts and a chosen factor, saved in the project, replay with run --edits and score-counts", async () => {
   const { page, seen } = await openPage(env, { viewport: LAPTOP });
   await nameSite(page, SITE);
+  await chooseMethod(page, "sort");
   await run(page);
   await showView(page, "Review");
   // The simulator's true crossings of 0:15 to 0:30 (truth_report.json).
@@ -69,7 +72,8 @@ test("two hand counts and a chosen factor, saved in the project, replay with run
   assert.deepEqual(project.tallies.map((t) => [t.who, t.from_frame, t.to_frame, t.presses.length]), [["Ana", 376, 750, truth.length], ["Ben", 376, 750, truth.length - 1]]);
   assert.deepEqual(project.correction, { factor: 0.8, screenlines: ["plaza midline", "east-west divide"], reason: "sample check" });
 
-  // The command line replays the project: the same report, checks and factor included.
+  // The command line replays the project: the same report, checks and factor included (tracked
+  // with the project's method, SORT, with no --method given).
   const projectPath = join(scratch, "replay-project.json");
   writeFileSync(projectPath, projectText);
   assert.equal(replay(projectPath), report, "throughline run --edits project.json = the page's report");

@@ -1,5 +1,5 @@
 // Correcting the counts themselves, as a person would. In Review, Count events: choose the first
-// crossing (track 10 westbound over the east-west divide at frame 16, counted while hidden), press R,
+// crossing (track 9 westbound over the east-west divide at frame 16, counted while hidden), press R,
 // say why, Enter: it is rejected. Then, with nothing in focus, step to frame 455, open "Add a
 // crossing the tool missed", choose the plaza midline, "towards bridge", a pedestrian, say why, Add
 // crossing. The divide loses one westbound count, the midline gains one towards the bridge, and the
@@ -16,7 +16,7 @@ test("reject a crossing and add a missed one; the counts follow, as throughline 
   const { page, seen } = await reviewDemo(env);
   const before = uncorrected();
   const first = before.events[0];
-  assert.deepEqual([first.name, first.direction, first.track, first.frame], ["east-west divide", "forward", 10, 16]);
+  assert.deepEqual([first.name, first.direction, first.track, first.frame], ["east-west divide", "forward", 9, 16]);
 
   await openTab(page, "Count events");
   await page.locator("#events button").first().click();
@@ -39,7 +39,7 @@ test("reject a crossing and add a missed one; the counts follow, as throughline 
   await screenshot(page, "15-crossings-corrected", { fullPage: false });
 
   const want = replay([
-    { edit: "reject_crossing", screenline: "east-west divide", direction: "forward", track: 10, frame: 16, reason: "a shadow, not a cyclist" },
+    { edit: "reject_crossing", screenline: "east-west divide", direction: "forward", track: 9, frame: 16, reason: "a shadow, not a cyclist" },
     { edit: "add_crossing", screenline: "plaza midline", direction: "backward", class: "pedestrian", frame: 455, reason: "missed in the crowd" },
   ]);
   const got = await pageReport(page);

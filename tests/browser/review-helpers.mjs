@@ -18,7 +18,7 @@ export const DEMO = { detections: demo("detections.csv"), plan: demo("plan.json"
  * `throughline run` on the demo with these corrections (an edits list, or a file's path): the
  * report's text, the reference the page's report must equal byte for byte.
  * @param {object[] | string} edits
- * @param {{plan?: string, csv?: string}} [more]
+ * @param {{plan?: string, csv?: string, method?: string}} [more]
  */
 export function replay(edits, more = {}) {
   let file = edits;
@@ -29,6 +29,7 @@ export function replay(edits, more = {}) {
   const out = join(scratch, `cli-report-${Date.now()}.json`);
   const args = ["run", DEMO.detections, "--plan", more.plan || DEMO.plan, "--edits", file, "-o", out, "-q"];
   if (more.csv) args.push("--csv", more.csv);
+  if (more.method) args.push("--method", more.method);
   execFileSync(cli, args);
   return readFileSync(out, "utf8");
 }
@@ -104,7 +105,22 @@ export function reportTotals(reportText) {
   return Object.fromEntries(report.screenlines.map((l) => [l.name, { forward: l.forward, backward: l.backward }]));
 }
 
-/** The report of the demo with no corrections (the command line's), parsed. */
-export function uncorrected() {
-  return JSON.parse(replay([]));
+/**
+ * The report of the demo with no corrections (the command line's), parsed.
+ * @param {string} [method] a method other than the default
+ */
+export function uncorrected(method) {
+  return JSON.parse(replay([], { method }));
+}
+
+/**
+ * Chooses the tracking method under Set up, as a person picks it from the list before Run. The
+ * demo's walk-throughs of a correction use `sort` (as for detections without appearance vectors):
+ * with the default `deepsort` the demo's counts already equal the simulator's truth.
+ * @param {import("playwright-core").Page} page
+ * @param {string} method
+ */
+export async function chooseMethod(page, method) {
+  await showView(page, "Set up");
+  await page.getByLabel("Method").selectOption(method);
 }

@@ -19,14 +19,14 @@ test("merge: track 21 joins track 17; the counts follow, as throughline run --ed
   const box = page.locator("#tracks-correct");
   await box.getByRole("button", { name: "Merge with another track (Tracks list)" }).click();
   const choices = await box.getByLabel("Track to merge with").locator("option").allInnerTexts();
-  // Only tracks that never share a frame with track 21 (frames 382–599) are offered, nearest first.
+  // Only tracks that never share a frame with track 21 (frames 382–624) are offered, nearest first.
   const tracks = JSON.parse(replay([])).events; // (only to name the tracks the counting joins)
-  assert.ok(tracks.some((e) => e.track_ids.join() === "15,21"), "the counting itself joins 15 and 21 (docs/counting-rules.md)");
-  // First offered: track 15, which ends 1.8 s before track 21 begins, 0.7 box heights from it: the
+  assert.ok(tracks.some((e) => e.track_ids.join() === "18,21"), "the counting itself joins 18 and 21 (docs/counting-rules.md)");
+  // First offered: track 18, which ends 1.8 s before track 21 begins, 0.7 box heights from it: the
   // piece the counting's own join rule puts with it. No offered track shares a frame with 21.
-  assert.match(choices[0], /^track 15 · cyclist · ends 1\.8 s before, 0\.7 box heights away$/);
+  assert.match(choices[0], /^track 18 · cyclist · ends 1\.8 s before, 0\.7 box heights away$/);
   const offered = choices.map((c) => Number(c.match(/^track (\d+)/)[1]));
-  for (const id of [18, 19, 20, 22, 23]) assert.ok(!offered.includes(id), `track ${id} is seen while 21 is`);
+  for (const id of [14, 15, 16, 19, 20, 22, 23]) assert.ok(!offered.includes(id), `track ${id} is seen while 21 is`);
   const seventeen = choices.find((c) => c.startsWith("track 17 "));
   assert.match(seventeen, /^track 17 · cyclist · ends 0\.2 s before, 3\.5 box heights away$/);
   await box.getByLabel("Track to merge with").selectOption({ label: seventeen });
@@ -35,7 +35,7 @@ test("merge: track 21 joins track 17; the counts follow, as throughline run --ed
   await countedWith(page, 1);
   await screenshot(page, "15-merged", { fullPage: false });
 
-  const want = replay([{ edit: "merge_tracks", track: { id: 21, frames: [382, 599] }, into: { id: 17, frames: [244, 378] }, reason: "one cyclist, lost by the kiosk" }]);
+  const want = replay([{ edit: "merge_tracks", track: { id: 21, frames: [382, 624] }, into: { id: 17, frames: [244, 378] }, reason: "one cyclist, lost by the kiosk" }]);
   const got = await pageReport(page);
   assert.equal(got, want, "the page's report equals throughline run --edits with the hand-written merge");
   const report = JSON.parse(got);

@@ -10,7 +10,7 @@ import { reviewDemo, chooseTrack, openTab, countedWith, pageReport, replay } fro
 const env = useBrowser();
 
 const DELETE = { edit: "delete_track", track: { id: 19, frames: [339, 750] } };
-const REJECT = { edit: "reject_crossing", screenline: "east-west divide", direction: "forward", track: 10, frame: 16 };
+const REJECT = { edit: "reject_crossing", screenline: "east-west divide", direction: "forward", track: 9, frame: 16 };
 
 test("undo and redo: the counts follow each step, as throughline run --edits gives them", async () => {
   const { page, seen } = await reviewDemo(env);
@@ -39,7 +39,7 @@ test("undo and redo: the counts follow each step, as throughline run --edits giv
   await step(() => page.keyboard.press("Control+Shift+z"), [DELETE]);
   await step(() => page.getByRole("button", { name: "Redo correction" }).click(), [DELETE, REJECT]);
   assert.equal(await page.getByRole("button", { name: "Redo correction" }).isDisabled(), true, "nothing left to redo");
-  assert.match(await page.locator("#edit-list").innerText(), /1\.\s+Track 19 left out[\s\S]*2\.\s+Crossing of east-west divide, westbound, by track 10 at frame 16/);
+  assert.match(await page.locator("#edit-list").innerText(), /1\.\s+Track 19 left out[\s\S]*2\.\s+Crossing of east-west divide, westbound, by track 9 at frame 16/);
 
   // Under Set up, Ctrl+Z undoes the plan: a renamed line gets its name back; the corrections stay.
   await showView(page, "Set up");

@@ -124,6 +124,90 @@ fn a_bad_edits_file_is_refused_with_its_line() {
     assert!(stderr(&o).contains("not corrections"), "{}", stderr(&o));
 }
 
+/// A project saved by the page records the method and settings it tracked with; `run` and
+/// `review` given the project and no --method or --config track the same way (its corrections name
+/// those tracks), and say so; --method still chooses otherwise.
+#[test]
+fn a_projects_method_and_settings_are_used_unless_the_command_line_names_its_own() {
+    let dir = scratch("project_method");
+    let plan: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(demo("plan.json")).unwrap()).unwrap();
+    let project = write(
+        &dir,
+        "project.json",
+        serde_json::json!({"format": "throughline-project", "version": 1, "plan": plan,
+            "tracking": {"method": "sort", "settings": {"max_age": 40}}, "edits": []})
+        .to_string()
+        .as_bytes(),
+    );
+    let settings = write(
+        &dir,
+        "settings.json",
+        br#"{"method": "sort", "max_age": 40}"#,
+    );
+    let (dets, plan) = (demo("detections.csv"), demo("plan.json"));
+    let run = |more: &[&str]| {
+        let mut args = vec!["run", &dets, "--plan", &plan];
+        args.extend_from_slice(more);
+        let o = throughline(&args);
+        assert!(o.status.success(), "{}", stderr(&o));
+        let report: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+        (report["tracker"].clone(), stderr(&o))
+    };
+    let (from_project, said) = run(&["--edits", &project]);
+    assert!(said.contains("tracking as the project"), "{said}");
+    assert_eq!(from_project["method"], "sort");
+    assert_eq!(from_project["max_age"], 40);
+    assert_eq!(from_project, run(&["--config", &settings, "-q"]).0);
+    let (chosen, said) = run(&["--edits", &project, "--method", "deepsort"]);
+    assert_eq!(chosen["method"], "deepsort");
+    assert!(!said.contains("tracking as the project"), "{said}");
+    let queue = |more: &[&str]| {
+        let mut args = vec!["review", &dets, "--plan", &plan, "--json", "-q"];
+        args.extend_from_slice(more);
+        throughline(&args).stdout
+    };
+    assert_eq!(
+        queue(&["--edits", &project]),
+        queue(&["--config", &settings])
+    );
+}
+
+/// The demo's detections carry appearance vectors, so `deepsort` is the default; its counts of
+/// each line and direction are the simulator's true ones (demo-site/demo/truth_report.json, from
+/// the scene's own truth), with nothing to correct.
+#[test]
+fn the_demo_with_the_default_method_counts_the_simulators_true_crossings() {
+    let counted = report_of(&[
+        "run",
+        &demo("detections.csv"),
+        "--plan",
+        &demo("plan.json"),
+        "-q",
+    ]);
+    assert_eq!(counted["tracker"]["method"], "deepsort");
+    let truth: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(demo("truth_report.json")).unwrap()).unwrap();
+    let lines = |r: &serde_json::Value| -> Vec<(String, u64, u64)> {
+        r["screenlines"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|l| {
+                let n = |k: &str| l[k].as_u64().unwrap();
+                (
+                    l["name"].as_str().unwrap().to_string(),
+                    n("forward"),
+                    n("backward"),
+                )
+            })
+            .collect()
+    };
+    assert_eq!(lines(&counted), lines(&truth));
+}
+
+/// With SORT (as for detections without appearance vectors) the demo counts one walker twice;
+/// with the default `deepsort` its counts are already the simulator's.
 #[test]
 fn the_review_queue_leads_to_the_demos_double_count_and_rejecting_it_gives_the_true_count() {
     let o = throughline(&[
@@ -131,6 +215,8 @@ fn the_review_queue_leads_to_the_demos_double_count_and_rejecting_it_gives_the_t
         &demo("detections.csv"),
         "--plan",
         &demo("plan.json"),
+        "--method",
+        "sort",
         "--json",
         "-q",
     ]);
@@ -157,6 +243,8 @@ fn the_review_queue_leads_to_the_demos_double_count_and_rejecting_it_gives_the_t
         &demo("plan.json"),
         "--edits",
         &edits,
+        "--method",
+        "sort",
         "-q",
     ]);
     // The simulator's truth for the demo (demo-site/demo/truth_report.json): after the person's

@@ -1,6 +1,6 @@
 //! `throughline review`: the moments of a count most likely wrong, to check against the footage.
 
-use super::track::{track_file, TrackingArgs};
+use super::track::{track_file_with, with_project, TrackingArgs};
 use crate::files::{bad_input, read_plan, read_work, Failure};
 use crate::progress::Timer;
 use std::path::PathBuf;
@@ -41,9 +41,12 @@ pub fn run(args: Args) -> Result<(), Failure> {
     let plan = read_plan(&args.plan)?;
     let (work, project) = read_work(args.edits.as_deref())?;
     let recorded = project
-        .and_then(|p| p.footage)
+        .as_ref()
+        .and_then(|p| p.footage.as_ref())
         .and_then(|f| Some((f64::from(f.width?), f64::from(f.height?))));
-    let tracks = track_file(&args.detections, &args.tracking, &mut Timer::new())?;
+    let (how, settings) =
+        with_project(&args.tracking, args.edits.as_deref().zip(project.as_ref()))?;
+    let tracks = track_file_with(&args.detections, &how, settings, &mut Timer::new())?;
     let report = pipeline::count(&tracks, &plan, Some(&tracks.config), &work)
         .map_err(|e| bad_input(&args.plan, e))?;
     let shown = pipeline::correct_tracks(&tracks, &work.edits).0;

@@ -2,12 +2,10 @@
 
 use super::count::{stage_report, summarise, ReportPaths};
 use super::detect::detect_footage;
-use super::track::{track_detections, track_file, TrackingArgs};
+use super::track::{track_detections, track_file_with, with_project, TrackingArgs};
 use crate::bridging::{bridge_with_footage, without_footage};
 use crate::cores::Cores;
-use crate::files::{
-    bad_input, bad_usage, read_plan, read_settings, read_work, write_tracks, Failure,
-};
+use crate::files::{bad_input, bad_usage, read_plan, read_work, write_tracks, Failure};
 use crate::handin;
 use crate::output::{check_paths, Outputs};
 use crate::progress::Timer;
@@ -104,7 +102,8 @@ pub fn run(args: Args) -> Result<(), Failure> {
     // The plan is checked first: a mistake in it should not cost a whole tracking run.
     let plan = with_start(read_plan(&args.plan)?, args.handin.start.as_deref())?;
     let (work, project) = read_work(args.edits.as_deref())?;
-    let tracks = track_source(&args, &plan)?;
+    let project_at = args.edits.as_deref().zip(project.as_ref());
+    let tracks = track_source(&args, &plan, project_at)?;
     let report = pipeline::count(&tracks, &plan, Some(&tracks.config), &work)
         .map_err(|e| bad_input(&args.plan, e))?;
     let mut files = Outputs::new();
@@ -138,12 +137,16 @@ pub fn run(args: Args) -> Result<(), Failure> {
 
 /// The tracks: of the detections file, or of the objects found in the footage; with footage,
 /// bridged where detections were missed.
-fn track_source(args: &Args, plan: &Plan) -> Result<throughline_core::Tracks, Failure> {
+fn track_source(
+    args: &Args,
+    plan: &Plan,
+    project: Option<(&Path, &throughline_core::project::Project)>,
+) -> Result<throughline_core::Tracks, Failure> {
     let mut timer = Timer::new();
-    let how = &args.tracking;
+    let (how, settings) = with_project(&args.tracking, project)?;
+    let how = &how;
     match (&args.y4m, &args.detections) {
         (Some(footage), None) => {
-            let settings = read_settings(how.config.as_deref())?;
             let default_margin = plan.spec.rules.hysteresis < FOOTAGE_HYSTERESIS;
             if !how.quiet && !plan.screenlines.is_empty() && default_margin {
                 eprintln!(
@@ -165,16 +168,16 @@ fn track_source(args: &Args, plan: &Plan) -> Result<throughline_core::Tracks, Fa
                      file the footage only bridges missed detections: leave one of the two out",
                 ));
             }
-            let tracks = track_file(path, how, &mut timer)?;
+            let tracks = track_file_with(path, how, settings, &mut timer)?;
             bridge_with_footage(tracks, footage, how.quiet)
         }
         (None, Some(path)) => Ok(without_footage(
-            track_file(path, how, &mut timer)?,
+            track_file_with(path, how, settings, &mut timer)?,
             how.quiet,
         )),
         // clap requires one of the two.
         (None, None) => Ok(without_footage(
-            track_file(Path::new("-"), how, &mut timer)?,
+            track_file_with(Path::new("-"), how, settings, &mut timer)?,
             how.quiet,
         )),
     }

@@ -151,9 +151,64 @@ fn report_streamed(path: &Path, out: &Path, how: &TrackingArgs, done: &streaming
     );
 }
 
-/// Reads a detections file and tracks it, reporting warnings and progress on stderr.
+/// Tracker settings: where they were read, and their JSON text.
+pub type Settings<'a> = Option<(&'a Path, String)>;
+
+/// The tracking options and settings (where they were read, their JSON text) for `run` and
+/// `review` given corrections: the command line's; but when it names neither a method nor a
+/// settings file, those a project file records (what the page tracked with), so that the
+/// project's corrections meet the tracks they were made on.
+pub fn with_project<'a>(
+    how: &'a TrackingArgs,
+    project: Option<(&'a Path, &throughline_core::project::Project)>,
+) -> Result<(TrackingArgs, Settings<'a>), Failure> {
+    let own = || TrackingArgs {
+        method: how.method,
+        config: how.config.clone(),
+        quiet: how.quiet,
+    };
+    let recorded = project.filter(|(_, p)| {
+        how.method.is_none()
+            && how.config.is_none()
+            && (p.tracking.method.is_some() || p.tracking.settings.is_some())
+    });
+    let Some((path, p)) = recorded else {
+        return Ok((own(), read_settings(how.config.as_deref())?));
+    };
+    let settings = p.tracking.settings.as_ref().map(|v| (path, v.to_string()));
+    if !how.quiet {
+        let method = p
+            .tracking
+            .method
+            .map_or("its default".to_string(), |m| m.to_string());
+        eprintln!(
+            "note: tracking as the project {} says: {method}{} (give --method or --config to choose \
+             otherwise)",
+            path.display(),
+            if settings.is_some() { ", with its settings" } else { "" }
+        );
+    }
+    let chosen = TrackingArgs {
+        method: p.tracking.method,
+        ..own()
+    };
+    Ok((chosen, settings))
+}
+
+/// Reads a detections file and tracks it with the settings of `how` (its settings file),
+/// reporting warnings and progress on stderr.
 pub fn track_file(path: &Path, how: &TrackingArgs, timer: &mut Timer) -> Result<Tracks, Failure> {
     let settings = read_settings(how.config.as_deref())?;
+    track_file_with(path, how, settings, timer)
+}
+
+/// [`track_file`] with the settings given: (where they were read, their JSON text).
+pub fn track_file_with(
+    path: &Path,
+    how: &TrackingArgs,
+    settings: Settings,
+    timer: &mut Timer,
+) -> Result<Tracks, Failure> {
     let bytes = read_file(path)?;
     let report = crate::reading::read_detections(&bytes).map_err(|e| bad_input(path, e))?;
     drop(bytes);

@@ -79,7 +79,8 @@ pub struct TrackerConfig {
     pub bridge_frames: u32,
     /// `deepsort`: the IoU stage (tentative tracks, and tracks missed in the appearance stage)
     /// refuses a pair further apart in appearance than `max_cosine_distance`, as the appearance
-    /// stage does. Off by default (the published method); written out only when on.
+    /// stage does (not in the published method; on by default for `deepsort`). Written out only
+    /// when on, so that other methods' settings, tracks and reports keep their bytes.
     #[serde(default, skip_serializing_if = "is_false")]
     pub iou_needs_appearance: bool,
 }

@@ -22,17 +22,21 @@ pub(super) const DEF: MethodDef = MethodDef {
     search_max_cosine_distance: &[0.15, 0.3],
 };
 
-/// Longer-lived tracks and quicker confirmation than the shared defaults (measured in
-/// BENCHMARKS.md, "Crossings one by one"). An unseen track is found again by appearance, so it may
-/// wait longer: 50 frames (2 s at 25 a second). The reference implementation keeps 70 (from
-/// memory: nwojke/deep_sort, `Tracker`), but with the bundled demo's short embeddings (8 values)
-/// tracks lost that long were found again on other people. A tentative track ends at its first
-/// missed frame, so in a crowd where people are hidden every other frame three hits in a row are
-/// rare and people went untracked: two are asked for.
+/// Longer-lived tracks and quicker confirmation than the shared defaults, and appearance asked
+/// for in the IoU stage too (measured in BENCHMARKS.md, "Crossings one by one"). An unseen track is
+/// found again by appearance, so it may wait longer: 50 frames (2 s at 25 a second). The reference
+/// implementation keeps 70 (from memory: nwojke/deep_sort, `Tracker`), but with the bundled demo's
+/// short embeddings (8 values) tracks lost that long were found again on other people. A tentative
+/// track ends at its first missed frame, so in a crowd where people are hidden every other frame
+/// three hits in a row are rare and people went untracked: two are asked for. In the published
+/// IoU stage a track whose person is hidden for a frame is matched by overlap alone to whoever
+/// steps into its place (`iou_needs_appearance` refuses that: identity switches in the simulated
+/// crowd 699 → 402).
 fn defaults(base: TrackerConfig) -> TrackerConfig {
     TrackerConfig {
         max_age: 50,
         min_hits: 2,
+        iou_needs_appearance: true,
         ..base
     }
 }
@@ -99,11 +103,8 @@ fn appearance_edges(
 }
 
 /// DeepSORT: a matching cascade over confirmed tracks, most recently seen first, on appearance gated
-/// by motion; then IoU for tentative tracks and tracks missed for one frame only. With
-/// `iou_needs_appearance` (not in the published method) the IoU stage refuses a pair whose
-/// appearance the cascade would refuse: in a crowd, a track whose person is hidden for a frame
-/// otherwise takes the box of a newcomer overlapping its place and follows them (measured in
-/// BENCHMARKS.md, "Crossings one by one": identity switches in the crowd 699 → 402).
+/// by motion; then IoU for tentative tracks and tracks missed for one frame only (with
+/// `iou_needs_appearance`, only pairs the appearance stage would not refuse).
 fn associate(tracker: &Tracker, dets: &[Detection], _: &Detections) -> Association {
     let c = &tracker.config;
     let usable: Vec<usize> = (0..dets.len())
