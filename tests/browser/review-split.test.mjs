@@ -24,12 +24,12 @@ test("split: track 23 split at frame 663; one path more, as throughline run --ed
   await screenshot(page, "15-split", { fullPage: false });
 
   const got = await pageReport(page);
-  assert.equal(got, replay([{ edit: "split_track", track: { id: 23, frames: [441, 750] }, at_frame: 663 }]), "equals throughline run --edits");
+  assert.equal(got, replay([{ edit: "split_track", track: { id: 23, frames: [436, 750] }, at_frame: 663 }]), "equals throughline run --edits");
   const report = JSON.parse(got);
   const before = uncorrected();
   assert.equal(report.tracks_counted, before.tracks_counted + 1, "one path more");
   assert.equal(report.zones[0].entries, before.zones[0].entries - 1, "the kiosk entry of track 23 is gone");
-  assert.match(report.edits[0].note, /track 23 is two: 23 \(frames 441–662\) and 29 \(frames 663–750\)/);
+  assert.match(report.edits[0].note, /track 23 is two: 23 \(frames 436–662\) and 29 \(frames 663–750\)/);
   assert.match(await page.locator("#edit-list").innerText(), /Track 23 split in two at frame 663[\s\S]*applied: track 23 is two/);
   assert.deepEqual(seen.errors, []);
   await page.close();

@@ -147,6 +147,56 @@ fn deepsort_can_refuse_a_hidden_persons_track_to_a_newcomer_in_their_place() {
     assert_eq!(first, second, "the published method: one track by overlap");
 }
 
+/// `deepsort`'s tentative tracks wait (`tentative_max_age`): a person seen only every other frame
+/// is one track from the first frame, where the published rule (a tentative track ends at its
+/// first missed frame) never confirms them.
+#[test]
+fn deepsort_confirms_a_person_seen_every_other_frame() {
+    let mut text = String::from("frame,x,y,w,h,score,class,e0,e1\n");
+    for f in (1..=29u32).step_by(2) {
+        text.push_str(&format!(
+            "{f},{},100,20,50,0.9,pedestrian,1,0\n",
+            10 + 2 * f
+        ));
+    }
+    let dets = detections(&text);
+    let t = run(&dets, Method::Deepsort);
+    assert_eq!(t.tracks.len(), 1, "{t:?}");
+    assert_eq!(
+        (t.tracks[0].first_frame(), t.tracks[0].last_frame()),
+        (1, 29)
+    );
+    let published = TrackerConfig {
+        tentative_max_age: 0,
+        ..TrackerConfig::for_method(Method::Deepsort)
+    };
+    let t = run_tracker(&dets, &published, &mut |_, _| {}).unwrap();
+    assert!(t.tracks.is_empty(), "{t:?}");
+}
+
+/// A waiting tentative track ends when a track seen in the frame covers its place: someone (vector
+/// 1,0) is seen once, then someone else (0,1) stands in that very place for twenty frames, and at
+/// frame 8 a box looking like the first shows up there again. The first one's tentative track was
+/// ended at frame 2 (its place taken), so that box only starts a new tentative track, which is
+/// never confirmed: one track, the one standing there, not a second track on the same spot.
+#[test]
+fn a_waiting_tentative_track_ends_when_its_place_is_taken() {
+    let mut text = String::from("frame,x,y,w,h,score,class,e0,e1\n");
+    text.push_str("1,10,100,20,50,0.9,pedestrian,1,0\n");
+    for f in 2..=20u32 {
+        text.push_str(&format!("{f},10,100,20,50,0.9,pedestrian,0,1\n"));
+        if f == 8 {
+            text.push_str("8,10,100,20,50,0.9,pedestrian,1,0\n");
+        }
+    }
+    let t = run(&detections(&text), Method::Deepsort);
+    assert_eq!(t.tracks.len(), 1, "{t:?}");
+    assert_eq!(
+        (t.tracks[0].first_frame(), t.tracks[0].last_frame()),
+        (2, 20)
+    );
+}
+
 #[test]
 fn tracks_are_numbered_in_order_of_confirmation_and_runs_are_deterministic() {
     let scene = generate(&SceneConfig {

@@ -83,6 +83,16 @@ pub struct TrackerConfig {
     /// when on, so that other methods' settings, tracks and reports keep their bytes.
     #[serde(default, skip_serializing_if = "is_false")]
     pub iou_needs_appearance: bool,
+    /// Frames a tentative track may go unseen and still be confirmed later (0: it ends at its
+    /// first missed frame, as in the published methods). While it waits, a track seen in the
+    /// frame whose box covers its predicted box (IoU at least `tracker::TAKEN_IOU`) ends it: its
+    /// person went to that track. Written out only when not 0.
+    #[serde(default, skip_serializing_if = "is_zero")]
+    pub tentative_max_age: u32,
+}
+
+fn is_zero(v: &u32) -> bool {
+    *v == 0
 }
 
 fn is_false(v: &bool) -> bool {
@@ -122,6 +132,7 @@ impl TrackerConfig {
             max_mahalanobis: super::kalman::CHI2_95_4DOF,
             bridge_frames: DEFAULT_BRIDGE_FRAMES,
             iou_needs_appearance: false,
+            tentative_max_age: 0,
         };
         (method.def().defaults)(base)
     }

@@ -112,6 +112,11 @@ pub(crate) struct Tracker {
     pub(crate) cut_rows: Vec<Detection>,
 }
 
+/// A tentative track waiting unseen (`tentative_max_age`) ends when a track seen in the frame
+/// covers its predicted box at least this much (IoU): its person went to that track, and two
+/// tracks on one person would both be confirmed.
+pub(crate) const TAKEN_IOU: f64 = 0.7;
+
 /// A track guides the cutting of a merged blob while it is confirmed and seen within this many
 /// frames (a prediction long unseen has drifted from where the person is).
 const GUIDE_UNSEEN: u32 = 5;
@@ -322,13 +327,17 @@ impl Tracker {
     /// Drops tentative tracks that missed and ends confirmed tracks unseen for too long.
     fn retire(&mut self, ctx: &Detections) {
         let max_age = self.config.max_age;
+        let waiting = self.config.tentative_max_age;
+        let taken = self.taken_waiting();
         let mut i = 0;
+        let mut k = 0;
         while i < self.live.len() {
             let t = &self.live[i];
             let gone = match t.phase {
-                Phase::Tentative => t.unseen > 0,
+                Phase::Tentative => t.unseen > waiting || taken.get(k).copied().unwrap_or(false),
                 _ => t.unseen > max_age,
             };
+            k += 1;
             if !gone {
                 i += 1;
                 continue;
@@ -339,6 +348,46 @@ impl Tracker {
                 self.finished.push(finish(*t, ctx));
             }
         }
+    }
+
+    /// For each live track in order, whether it is a tentative track left unseen in this frame
+    /// whose predicted box a track seen in this frame covers (IoU at least [`TAKEN_IOU`]); empty
+    /// when tentative tracks do not wait (`tentative_max_age` 0). The seen tracks' boxes are found
+    /// by place, so a crowded frame costs about one look per waiting track.
+    fn taken_waiting(&mut self) -> Vec<bool> {
+        if self.config.tentative_max_age == 0
+            || !self
+                .live
+                .iter()
+                .any(|t| t.phase == Phase::Tentative && t.unseen > 0)
+        {
+            return Vec::new();
+        }
+        let motion = self.def.motion;
+        let reuse = self.reuse.get_mut();
+        reuse.boxes.clear();
+        reuse.boxes.extend(
+            self.live
+                .iter()
+                .filter(|t| t.unseen == 0)
+                .map(|t| t.predicted_box(motion)),
+        );
+        reuse.index.refill(&reuse.boxes);
+        let mut taken = Vec::with_capacity(self.live.len());
+        for t in &self.live {
+            let waits = t.phase == Phase::Tentative && t.unseen > 0;
+            taken.push(
+                waits && {
+                    let b = t.predicted_box(motion);
+                    reuse.index.near(&b, &mut reuse.near);
+                    reuse
+                        .near
+                        .iter()
+                        .any(|&o| b.iou(&reuse.boxes[o]) >= TAKEN_IOU)
+                },
+            );
+        }
+        taken
     }
 
     /// For a run written out as it goes ([`super::stream`]): moves into `out` the boxes no later
