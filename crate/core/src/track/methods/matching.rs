@@ -41,15 +41,18 @@ pub(super) fn match_iou(
         for &c in near.iter() {
             let iou = tb.iou(&boxes[c]);
             // With appearance: a box that does not look like the track is not its match,
-            // however well it overlaps (one person walking into another's place).
-            let unlike = max_cosine.is_some_and(|most| {
-                let g = &tracker.live[t].gallery;
-                tracker
-                    .units
-                    .get(dets[c])
-                    .is_some_and(|e| !g.is_empty() && g.distance(e) > most)
-            });
-            if iou > 0.0 && 1.0 - iou <= gate && !unlike {
+            // however well it overlaps (one person walking into another's place). Measured
+            // only for the pairs the overlap lets through.
+            let unlike = || {
+                max_cosine.is_some_and(|most| {
+                    let g = &tracker.live[t].gallery;
+                    tracker
+                        .units
+                        .get(dets[c])
+                        .is_some_and(|e| !g.is_empty() && g.distance(e) > most)
+                })
+            };
+            if iou > 0.0 && 1.0 - iou <= gate && !unlike() {
                 mine.push(Edge {
                     row: r,
                     col: c,
