@@ -87,7 +87,10 @@ pub fn name(path: &Path) -> String {
 }
 
 /// A settings file's path and text, when one was given.
-pub fn read_settings(path: Option<&Path>) -> Result<Option<(&Path, String)>, Failure> {
+/// Tracker settings: where they were read, and their JSON text.
+pub type Settings<'a> = Option<(&'a Path, String)>;
+
+pub fn read_settings(path: Option<&Path>) -> Result<Settings<'_>, Failure> {
     match path {
         Some(p) => {
             let bytes = read_file(p)?;

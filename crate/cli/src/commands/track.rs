@@ -1,7 +1,7 @@
 //! `throughline track`: link per-frame detections into tracks.
 
 use crate::bridging::{bridge_with_footage, no_footage_note, without_footage};
-use crate::files::{bad_input, read_file, read_settings, write_tracks, Failure};
+use crate::files::{bad_input, read_file, read_settings, write_tracks, Failure, Settings};
 use crate::output::{check_paths, Outputs};
 use crate::progress::{self, Timer};
 use crate::streaming;
@@ -36,7 +36,7 @@ pub struct Args {
 }
 
 /// How to track: the options `track` and `run` share.
-#[derive(clap::Args)]
+#[derive(clap::Args, Clone)]
 pub struct TrackingArgs {
     /// Tracking method [default: deepsort when the detections carry embeddings, else sort].
     #[arg(long, value_parser = super::method_parser())]
@@ -151,9 +151,6 @@ fn report_streamed(path: &Path, out: &Path, how: &TrackingArgs, done: &streaming
     );
 }
 
-/// Tracker settings: where they were read, and their JSON text.
-pub type Settings<'a> = Option<(&'a Path, String)>;
-
 /// The tracking options and settings (where they were read, their JSON text) for `run` and
 /// `review` given corrections: the command line's; but when it names neither a method nor a
 /// settings file, those a project file records (what the page tracked with), so that the
@@ -162,18 +159,13 @@ pub fn with_project<'a>(
     how: &'a TrackingArgs,
     project: Option<(&'a Path, &throughline_core::project::Project)>,
 ) -> Result<(TrackingArgs, Settings<'a>), Failure> {
-    let own = || TrackingArgs {
-        method: how.method,
-        config: how.config.clone(),
-        quiet: how.quiet,
-    };
     let recorded = project.filter(|(_, p)| {
         how.method.is_none()
             && how.config.is_none()
             && (p.tracking.method.is_some() || p.tracking.settings.is_some())
     });
     let Some((path, p)) = recorded else {
-        return Ok((own(), read_settings(how.config.as_deref())?));
+        return Ok((how.clone(), read_settings(how.config.as_deref())?));
     };
     let settings = p.tracking.settings.as_ref().map(|v| (path, v.to_string()));
     if !how.quiet {
@@ -190,7 +182,7 @@ pub fn with_project<'a>(
     }
     let chosen = TrackingArgs {
         method: p.tracking.method,
-        ..own()
+        ..how.clone()
     };
     Ok((chosen, settings))
 }
@@ -255,7 +247,7 @@ pub fn track_detections(
     dets: &Detections,
     path: &Path,
     how: &TrackingArgs,
-    settings: Option<(&Path, String)>,
+    settings: Settings,
     timer: &mut Timer,
 ) -> Result<Tracks, Failure> {
     let config =
