@@ -269,7 +269,7 @@ test("footage alone: the page decodes WebM and MP4 itself, finds what the comman
   // The saved plan carries the margin, and throughline run on the exported files gives the page's report.
   await showView(page, "Set up");
   const planPath = await saveDownload(page, "Save plan");
-  assert.deepEqual(JSON.parse(readFileSync(planPath, "utf8")).rules, { hysteresis: 0.35, zone_hysteresis: 0.15 });
+  assert.deepEqual(JSON.parse(readFileSync(planPath, "utf8")).rules, { hysteresis: 0.35, zone_hysteresis: 0.1 });
   const cliReport = join(scratch, "footage-report.json");
   execFileSync(cli, ["run", exportedPath, "--plan", planPath, "-o", cliReport, "-q"]);
   assert.deepEqual(JSON.parse(readFileSync(cliReport, "utf8")), report, "report equals throughline run on the exported detections and plan");

@@ -12,7 +12,7 @@ import { execFileSync } from "node:child_process";
 import { writeFileSync } from "node:fs";
 import { join } from "node:path";
 import { useBrowser, openPage, run, showView, downloadText, LAPTOP } from "./harness.mjs";
-import { pageReport, replay, scratch, cli, chooseMethod } from "./review-helpers.mjs";
+import { pageReport, replay, scratch, cli, withTheKnownDoubleCount, PLAN_AS_GIVEN } from "./review-helpers.mjs";
 import { trueCrossings, startTally, pressAt, keyOf, nameSite, SITE } from "./handin-helpers.mjs";
 
 const env = useBrowser();
@@ -30,7 +30,7 @@ async function tallyKeys(page) {
 test("two hand counts and a chosen factor, saved in the project, replay with run --edits and score-counts", async () => {
   const { page, seen } = await openPage(env, { viewport: LAPTOP });
   await nameSite(page, SITE);
-  await chooseMethod(page, "sort");
+  await withTheKnownDoubleCount(page);
   await run(page);
   await showView(page, "Review");
   // The simulator's true crossings of 0:15 to 0:30 (truth_report.json).
@@ -76,7 +76,7 @@ test("two hand counts and a chosen factor, saved in the project, replay with run
   // with the project's method, SORT, with no --method given).
   const projectPath = join(scratch, "replay-project.json");
   writeFileSync(projectPath, projectText);
-  assert.equal(replay(projectPath), report, "throughline run --edits project.json = the page's report");
+  assert.equal(replay(projectPath, { plan: PLAN_AS_GIVEN }), report, "throughline run --edits project.json = the page's report");
   const parsed = JSON.parse(report);
   assert.equal(parsed.checks.length, 2);
   assert.equal(parsed.correction.factor, 0.8);

@@ -145,7 +145,7 @@ export function setLabel(line, key, text) {
 }
 
 /**
- * The plan's `rules.hysteresis` (null: the default, 0.15); `zones`, when given, sets
+ * The plan's `rules.hysteresis` (null: the default, 0.1); `zones`, when given, sets
  * `rules.zone_hysteresis` too (zone edges keep their own margin).
  * @param {Plan} plan
  * @param {number | null} v

@@ -16,6 +16,9 @@ pub fn in_range(v: f64) -> bool {
 pub const MIN_FRAME_RATE: f64 = 1.0 / 60.0;
 pub const MAX_FRAME_RATE: f64 = 1000.0;
 
+/// Longest span a plan may average paths over before counting (`rules.smooth_seconds`).
+pub const MAX_SMOOTH_SECONDS: f64 = 10.0;
+
 /// Interval length in minutes: from a quarter of a minute to a day.
 pub const MIN_INTERVAL_MINUTES: f64 = 0.25;
 pub const MAX_INTERVAL_MINUTES: f64 = 1440.0;

@@ -96,7 +96,7 @@ fn crossing_and_crossing_back_counts_both() {
 
 #[test]
 fn jitter_on_the_line_does_not_multiply_counts() {
-    // Approaches, wobbles ±3 px around the line for 20 frames (hysteresis is 0.15 × 50 = 7.5 px),
+    // Approaches, wobbles ±3 px around the line for 20 frames (the margin is 0.1 × 50 = 5 px),
     // then walks on: one crossing.
     let mut path = walk(1, 10, 100.0, 160.0, 0.0, 4.0);
     for k in 0..20u32 {
@@ -115,9 +115,71 @@ fn jitter_on_the_line_does_not_multiply_counts() {
     check_line(&run(LINE, vec![track(1, "pedestrian", &stay)]), 0, 0);
 }
 
+/// [`LINE`] with its rules replaced by `rules` (a JSON object's inside).
+fn line_with(rules: &str) -> String {
+    LINE.replace(
+        r#""frame_rate": 10,"#,
+        &format!(r#""frame_rate": 10, "rules": {{{rules}}},"#),
+    )
+}
+
+#[test]
+fn a_box_jumping_to_either_side_of_the_line_is_counted_once_on_its_averaged_path() {
+    // Walks down across the line, but for 12 frames around it the box jumps 10 px above and below
+    // the steady path in turn (two people's boxes swapping, a box grown by a shadow), most jumps
+    // past the 5 px margin. Counted on the boxes as given, every jump is a crossing confirmed; on
+    // the path averaged over 0.5 s (2 frames either side at 10 a second) the jumps cancel and one
+    // crossing is left, where the steady path crosses (y = 170 + 2.5k meets 200 at k = 12).
+    let path: Vec<(u32, f64, f64, bool)> = (0..30u32)
+        .map(|k| {
+            let steady = 170.0 + 2.5 * f64::from(k);
+            let jump = match k {
+                6..=17 if k % 2 == 0 => -10.0,
+                6..=17 => 10.0,
+                _ => 0.0,
+            };
+            (1 + k, 100.0, steady + jump, true)
+        })
+        .collect();
+    let as_given = run(
+        &line_with(r#""smooth_seconds": 0"#),
+        vec![track(1, "p", &path)],
+    );
+    let l = &as_given.screenlines[0];
+    assert!(l.forward + l.backward > 1, "{:#?}", as_given.events);
+    let averaged = run(
+        &line_with(r#""smooth_seconds": 0.5"#),
+        vec![track(1, "p", &path)],
+    );
+    check_line(&averaged, 1, 0);
+    assert!(
+        (11..=15).contains(&averaged.events[0].frame),
+        "{:#?}",
+        averaged.events
+    );
+    // The default averages too (0.35 s: 2 frames either side at 10 a second).
+    check_line(&run(LINE, vec![track(1, "p", &path)]), 1, 0);
+}
+
+#[test]
+fn averaging_keeps_where_a_path_starts_and_ends() {
+    // Ends 8 px past the line, just over the margin: the last point is not pulled back towards the
+    // path's middle, so the crossing is still confirmed at the end of the track.
+    let path = walk(1, 13, 100.0, 160.0, 0.0, 4.0);
+    assert_eq!(path.last().map(|p| p.2), Some(208.0));
+    check_line(
+        &run(
+            &line_with(r#""smooth_seconds": 2"#),
+            vec![track(1, "p", &path)],
+        ),
+        1,
+        0,
+    );
+}
+
 #[test]
 fn a_shallow_walk_along_the_line_is_timed_where_it_crosses_not_at_its_last_touch() {
-    // Drifts 0.4 px a frame across the line while the box jitters ±3 px (the margin is 7.5 px):
+    // Drifts 0.4 px a frame across the line while the box jitters ±3 px (the margin is 5 px):
     // the anchor touches the line again and again between frames 13 and 28; the steady path
     // crosses at frame 21. Common practice: the moment of a crossing is where the path's middle
     // passes the line, not the last jitter across it.
@@ -437,6 +499,10 @@ fn plan_errors_name_the_field() {
         (
             r#"{"frame_rate": 25, "rules": {"hysteresis": -1}}"#,
             "rules.hysteresis",
+        ),
+        (
+            r#"{"frame_rate": 25, "rules": {"smooth_seconds": 1e9}}"#,
+            "rules.smooth_seconds",
         ),
         (
             r#"{"frame_rate": 25, "calibration": {"pairs": [{"image": [0,0], "ground": [0,0]}]}}"#,

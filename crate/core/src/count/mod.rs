@@ -56,7 +56,9 @@ pub fn corrected(
     edits: &[Edit],
 ) -> Result<(Report, Vec<Option<Outcome>>), Error> {
     let timeline = Timeline::new(tracks, plan)?;
-    let (counted, joins) = joins::join_fragments(paths::pieces(tracks, plan.spec.anchor), plan);
+    let half = plan.spec.rules.smooth_half_frames(plan.spec.frame_rate);
+    let (counted, joins) =
+        joins::join_fragments(paths::pieces(tracks, plan.spec.anchor, half), plan);
     let mut events: Vec<Event> = plan
         .screenlines
         .iter()

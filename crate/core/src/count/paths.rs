@@ -1,6 +1,6 @@
 //! Stage 1: each tracker track as a path of anchor points, one per frame (predicted boxes
-//! included, those of a gap between two sightings put on the line between them), the form every
-//! later stage counts on.
+//! included, those of a gap between two sightings put on the line between them), averaged over a
+//! few frames either side (`rules.smooth_seconds`), the form every later stage counts on.
 
 use crate::geometry::{BBox, Point};
 use crate::plan::{Anchor, Screenline};
@@ -39,8 +39,9 @@ impl Counted {
     }
 }
 
-/// Every track with boxes, as a counted path of its own.
-pub(super) fn pieces(tracks: &Tracks, anchor: Anchor) -> Vec<Counted> {
+/// Every track with boxes, as a counted path of its own, averaged over `half` frames either side
+/// of each point.
+pub(super) fn pieces(tracks: &Tracks, anchor: Anchor, half: u32) -> Vec<Counted> {
     tracks
         .tracks
         .iter()
@@ -48,7 +49,7 @@ pub(super) fn pieces(tracks: &Tracks, anchor: Anchor) -> Vec<Counted> {
         .map(|t| Counted {
             ids: vec![t.id],
             class: class_of(t),
-            points: path(t, anchor),
+            points: path(t, anchor, half),
             joins: Vec::new(),
         })
         .collect()
@@ -65,7 +66,7 @@ fn class_of(t: &Track) -> String {
     t.class.clone().unwrap_or_else(|| UNCLASSIFIED.to_string())
 }
 
-fn path(t: &Track, anchor: Anchor) -> Vec<PathPoint> {
+fn path(t: &Track, anchor: Anchor, half: u32) -> Vec<PathPoint> {
     let mut points: Vec<PathPoint> = t
         .boxes
         .iter()
@@ -77,7 +78,43 @@ fn path(t: &Track, anchor: Anchor) -> Vec<PathPoint> {
         })
         .collect();
     interpolate_gaps(&mut points);
+    smooth(&mut points, half);
     points
+}
+
+/// Replaces each point's anchor and box height by their mean over the path's points at most
+/// `half` frames before and after it. The window stays centred: near the path's ends it shrinks
+/// to the frames on hand, so the first and last points stay where they were (a moving average that
+/// does not pull a path's start and end towards its middle). Time linear in the points, whatever
+/// `half` is (sums from the start, then differences).
+fn smooth(points: &mut [PathPoint], half: u32) {
+    let (Some(first), Some(last)) = (points.first(), points.last()) else {
+        return;
+    };
+    let (first, last) = (first.frame, last.frame);
+    if half == 0 {
+        return;
+    }
+    let frames: Vec<u32> = points.iter().map(|q| q.frame).collect();
+    // sums[k]: x, y and height summed over points[..k].
+    let mut sums = Vec::with_capacity(points.len() + 1);
+    let mut acc = [0.0f64; 3];
+    sums.push(acc);
+    for q in points.iter() {
+        acc[0] += q.p.x;
+        acc[1] += q.p.y;
+        acc[2] += q.height;
+        sums.push(acc);
+    }
+    for q in points.iter_mut() {
+        let w = half.min(q.frame - first).min(last - q.frame);
+        let lo = frames.partition_point(|&f| f < q.frame - w);
+        let hi = frames.partition_point(|&f| f <= q.frame + w);
+        let n = (hi - lo) as f64;
+        let mean = |c: usize| (sums[hi][c] - sums[lo][c]) / n;
+        q.p = Point::new(mean(0), mean(1));
+        q.height = mean(2);
+    }
 }
 
 /// Puts the predicted points of each gap between two observed points on the straight line between

@@ -6,8 +6,8 @@ use super::{Homography, Plan, PlanSpec, Rules, Screenline, ScreenlineSpec, Zone,
 use crate::error::{Error, ErrorKind};
 use crate::geometry::{Point, Polygon, Segment};
 use crate::limits::{
-    MAX_FRAME_RATE, MAX_INTERVAL_MINUTES, MAX_PLAN_ITEMS, MAX_POINTS, MAX_YEAR, MIN_FRAME_RATE,
-    MIN_INTERVAL_MINUTES, MIN_YEAR,
+    MAX_FRAME_RATE, MAX_INTERVAL_MINUTES, MAX_PLAN_ITEMS, MAX_POINTS, MAX_SMOOTH_SECONDS, MAX_YEAR,
+    MIN_FRAME_RATE, MIN_INTERVAL_MINUTES, MIN_YEAR,
 };
 use std::collections::HashSet;
 
@@ -130,6 +130,12 @@ fn rules(r: &Rules) -> Result<(), Error> {
     }
     if !(r.join_box_heights.is_finite() && (0.0..=10.0).contains(&r.join_box_heights)) {
         return Err(err("rules.join_box_heights", "must be between 0 and 10"));
+    }
+    if !(r.smooth_seconds.is_finite() && (0.0..=MAX_SMOOTH_SECONDS).contains(&r.smooth_seconds)) {
+        return Err(err(
+            "rules.smooth_seconds",
+            format!("must be between 0 and {MAX_SMOOTH_SECONDS} seconds (0: no averaging)"),
+        ));
     }
     Ok(())
 }

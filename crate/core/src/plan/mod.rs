@@ -78,6 +78,10 @@ pub struct Rules {
     /// the edge of the picture cannot be left by much before its leaver is out of sight.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub zone_hysteresis: Option<f64>,
+    /// Each track's path is counted after averaging its anchor over this many seconds centred on
+    /// each frame (0: counted on the boxes as the tracker gave them), so that a box jittering on a
+    /// line or beside a line's end does not decide a crossing.
+    pub smooth_seconds: f64,
 }
 
 impl Rules {
@@ -85,10 +89,22 @@ impl Rules {
     pub fn zone_hysteresis(&self) -> f64 {
         self.zone_hysteresis.unwrap_or(self.hysteresis)
     }
+
+    /// How many frames either side of each point a path is averaged over at `frame_rate`
+    /// (`smooth_seconds` and the frame rate are bounded by the plan's checks).
+    pub fn smooth_half_frames(&self, frame_rate: f64) -> u32 {
+        (self.smooth_seconds * frame_rate / 2.0).round() as u32
+    }
 }
 
 /// How far past a line a crossing must get, as a fraction of the box height, unless the plan says.
-pub const DEFAULT_HYSTERESIS: f64 = 0.15;
+/// Measured with paths averaged over [`DEFAULT_SMOOTH_SECONDS`] (BENCHMARKS.md, "Counting on
+/// averaged paths": 0.15 on the boxes as given).
+pub const DEFAULT_HYSTERESIS: f64 = 0.1;
+
+/// Over how many seconds each path is averaged before counting, unless the plan says (about 9
+/// frames at 25 a second; BENCHMARKS.md, "Counting on averaged paths").
+pub const DEFAULT_SMOOTH_SECONDS: f64 = 0.35;
 
 /// The larger line margin suggested for boxes found by the fixed-camera detector, whose boxes jump
 /// where people join or split; zones then keep [`DEFAULT_HYSTERESIS`] (see docs/detector-settings.md).
@@ -104,6 +120,7 @@ impl Default for Rules {
             join_seconds: 2.0,
             join_box_heights: 1.0,
             zone_hysteresis: None,
+            smooth_seconds: DEFAULT_SMOOTH_SECONDS,
         }
     }
 }
