@@ -64,6 +64,9 @@ test("open files, draw a line, run, and export what throughline run gives", asyn
   await newName.press("Enter");
   await page.getByLabel("Forward label of south walk").fill("to the kiosk side");
   await page.getByLabel("Forward label of south walk").press("Tab");
+  // A counting rule set in the page goes into the plan the command line is given below.
+  await page.getByLabel("Path averaging (seconds)").fill("0.5");
+  await page.getByLabel("Path averaging (seconds)").press("Tab");
   await screenshot(page, "2-line-drawn");
 
   await runAndWait(page);
@@ -83,6 +86,7 @@ test("open files, draw a line, run, and export what throughline run gives", asyn
   const plan = JSON.parse(readFileSync(planPath, "utf8"));
   assert.equal(plan.screenlines.length, 3);
   assert.equal(plan.screenlines[2].forward, "to the kiosk side");
+  assert.equal(plan.rules.smooth_seconds, 0.5);
 
   const cliReport = join(scratch, "cli-report.json");
   const cliCsv = join(scratch, "cli-counts.csv");

@@ -4,7 +4,7 @@
 // the plan from being used. Every field is made once and updated in place as the plan changes.
 
 import { byId, el, download, showValue } from "./dom.js";
-import { planForCore, setHysteresis } from "./plan.js";
+import { planForCore, setHysteresis, setRule } from "./plan.js";
 import { LineList, ZoneList, GroundPointList } from "./plan-lists.js";
 import { itemNames } from "./palette.js";
 
@@ -40,6 +40,7 @@ export class PlanPanel {
       interval: byId("interval-minutes", HTMLInputElement),
       anchor: byId("anchor", HTMLSelectElement),
       hysteresis: byId("hysteresis", HTMLInputElement),
+      smooth: byId("smooth-seconds", HTMLInputElement),
     };
     this.toolButtons = [...document.querySelectorAll("[data-tool]")].filter((b) => b instanceof HTMLButtonElement);
     this.bindFields();
@@ -68,6 +69,7 @@ export class PlanPanel {
       [f.interval, (p, v) => setOrDelete(p, "interval_minutes", number(v))],
       [f.anchor, (p, v) => { p.anchor = v; }],
       [f.hysteresis, (p, v) => setHysteresis(p, number(v))],
+      [f.smooth, (p, v) => setRule(p, "smooth_seconds", number(v))],
     ];
     for (const [input, set] of bindings) {
       input.addEventListener("change", () => {
@@ -93,6 +95,7 @@ export class PlanPanel {
     showValue(f.interval, String(plan.interval_minutes ?? 15));
     showValue(f.anchor, plan.anchor || "bottom");
     showValue(f.hysteresis, plan.rules && plan.rules.hysteresis !== undefined ? String(plan.rules.hysteresis) : "");
+    showValue(f.smooth, plan.rules && plan.rules.smooth_seconds !== undefined ? String(plan.rules.smooth_seconds) : "");
   }
 
   showLists() {

@@ -15,7 +15,7 @@
  * @typedef {{image: Point, ground: (number | null)[]}} GroundPair
  */
 /** @typedef {{pairs: GroundPair[], unit?: string}} Calibration */
-/** @typedef {{hysteresis?: number, zone_hysteresis?: number, [key: string]: unknown}} Rules */
+/** @typedef {{hysteresis?: number, zone_hysteresis?: number, smooth_seconds?: number, [key: string]: unknown}} Rules */
 /**
  * The plan as edited. Fields the page does not edit are kept as they came.
  * @typedef {object} Plan
@@ -142,6 +142,20 @@ export function setLabel(line, key, text) {
   const t = text.trim();
   if (t) line[key] = t;
   else delete line[key];
+}
+
+/**
+ * Sets one of the plan's counting rules, or (null) leaves it to its default.
+ * @param {Plan} plan
+ * @param {string} key
+ * @param {number | null} v
+ */
+export function setRule(plan, key, v) {
+  const rules = { ...(plan.rules || {}) };
+  if (v === null) delete rules[key];
+  else rules[key] = v;
+  if (Object.keys(rules).length) plan.rules = rules;
+  else delete plan.rules;
 }
 
 /**
