@@ -4,6 +4,7 @@
 mod common;
 
 use common::*;
+use std::path::Path;
 
 fn report_of(args: &[&str]) -> serde_json::Value {
     let o = throughline(args);
@@ -211,15 +212,22 @@ fn the_demo_counted_with_each_motion_method_gives_the_simulators_true_crossings(
     }
 }
 
-/// The review queue's first moment on the demo (SORT) names a crossing; rejecting it in an edits
-/// file takes exactly that crossing off its line and direction, and nothing else.
+/// The demo's plan counted on the boxes as given, with the margin used before paths were averaged
+/// (tests/fixtures/demo-plan-boxes-as-given.json): with SORT one walker is counted twice on the
+/// divide, a known mistake. The review queue leads to it, and rejecting it in an edits file gives
+/// the simulator's true counts.
 #[test]
-fn rejecting_the_review_queues_first_crossing_takes_it_off_its_line() {
+fn the_review_queue_leads_to_a_known_double_count_and_rejecting_it_gives_the_true_count() {
+    let plan = Path::new(env!("CARGO_MANIFEST_DIR"))
+        .join("../../tests/fixtures/demo-plan-boxes-as-given.json")
+        .display()
+        .to_string();
+    let detections = demo("detections.csv");
     let o = throughline(&[
         "review",
-        &demo("detections.csv"),
+        &detections,
         "--plan",
-        &demo("plan.json"),
+        &plan,
         "--method",
         "sort",
         "--json",
@@ -229,6 +237,7 @@ fn rejecting_the_review_queues_first_crossing_takes_it_off_its_line() {
     let queue: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
     let first = &queue[0];
     assert_eq!(first["kinds"][0], "close_together", "{first}");
+    assert_eq!(first["frame"], 500, "{first}");
     let crossing = first["crossing"].clone();
     let dir = scratch("review");
     let edits = write(
@@ -237,12 +246,11 @@ fn rejecting_the_review_queues_first_crossing_takes_it_off_its_line() {
         serde_json::json!({"format": "throughline-edits", "version": 1, "edits": [
             {"edit": "reject_crossing", "screenline": crossing["screenline"],
              "direction": crossing["direction"], "track": crossing["track"],
-             "frame": crossing["frame"], "reason": "checked: counted twice"}]})
+             "frame": crossing["frame"], "reason": "counted twice"}]})
         .to_string()
         .as_bytes(),
     );
     let counted = |extra: &[&str]| {
-        let (detections, plan) = (demo("detections.csv"), demo("plan.json"));
         let mut args = vec![
             "run",
             &detections,
@@ -255,16 +263,15 @@ fn rejecting_the_review_queues_first_crossing_takes_it_off_its_line() {
         args.extend_from_slice(extra);
         line_counts(&report_of(&args))
     };
-    let mut want = counted(&[]);
-    let line = want
-        .iter_mut()
-        .find(|l| l.0 == crossing["screenline"])
-        .unwrap();
-    match crossing["direction"].as_str() {
-        Some("forward") => line.1 -= 1,
-        _ => line.2 -= 1,
-    }
-    assert_eq!(counted(&["--edits", &edits]), want);
+    // The simulator's truth for the demo (demo-site/demo/truth_report.json).
+    let truth: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(demo("truth_report.json")).unwrap()).unwrap();
+    assert_ne!(
+        counted(&[]),
+        line_counts(&truth),
+        "as counted, one line is off"
+    );
+    assert_eq!(counted(&["--edits", &edits]), line_counts(&truth));
 }
 
 #[test]
@@ -307,4 +314,41 @@ fn the_picture_size_comes_from_picture_or_from_the_project_and_a_bad_one_is_refu
     ]);
     assert_eq!(o.status.code(), Some(2));
     assert!(stderr(&o).contains("WIDTHxHEIGHT"), "{}", stderr(&o));
+}
+
+/// A project saved before paths were averaged for counting (by 0.1.x) is replayed with a note
+/// saying how to count as it did; one saved since gets none.
+#[test]
+fn a_project_saved_before_averaged_paths_gets_a_note_on_the_rules() {
+    let dir = scratch("older-project");
+    let plan: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(demo("plan.json")).unwrap()).unwrap();
+    let stderr_for = |generator: &str| {
+        let project = serde_json::json!({
+            "format": "throughline-project", "version": 1, "generator": generator,
+            "plan": plan, "tracking": {}, "edits": [], "review": []
+        });
+        let file = write(
+            &dir,
+            &format!("{}.json", generator.replace(' ', "-")),
+            project.to_string().as_bytes(),
+        );
+        let o = throughline(&[
+            "run",
+            &demo("detections.csv"),
+            "--plan",
+            &demo("plan.json"),
+            "--edits",
+            &file,
+        ]);
+        assert!(o.status.success(), "{}", stderr(&o));
+        stderr(&o)
+    };
+    let old = stderr_for("throughline 0.1.0");
+    assert!(
+        old.contains("was saved by throughline 0.1.0")
+            && old.contains(r#""smooth_seconds": 0, "hysteresis": 0.15"#),
+        "{old}"
+    );
+    assert!(!stderr_for("throughline 0.2.0").contains("was saved by"));
 }

@@ -100,6 +100,14 @@ impl Project {
         Ok(p)
     }
 
+    /// Whether the project was saved by a version that counted paths as the tracker gave them with
+    /// a crossing margin of 0.15 (before 0.2.0; since then paths are averaged before counting and
+    /// the margin is 0.1): replayed now, its counts and the crossings its corrections name may
+    /// differ unless the plan sets those rules.
+    pub fn saved_before_averaged_paths(&self) -> bool {
+        self.generator.starts_with("throughline 0.1.")
+    }
+
     /// The project file's text, marked with its format, version and this program.
     pub fn to_json(&self) -> String {
         let mut p = self.clone();

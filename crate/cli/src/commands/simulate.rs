@@ -57,7 +57,8 @@ pub struct Args {
     /// Also render the frames, as YUV4MPEG2 (4:2:0, 25 fps) to this file (`-` for standard output).
     #[arg(long, value_name = "FILE.y4m")]
     render: Option<PathBuf>,
-    /// Also count the true tracks with this plan: truth_report.json and truth_counts.csv.
+    /// Also count the true tracks with this plan: truth_report.json and truth_counts.csv (the true
+    /// paths counted as they are: the plan's `rules.smooth_seconds` is taken as 0).
     #[arg(long, value_name = "PLAN")]
     plan: Option<PathBuf>,
 }

@@ -154,11 +154,24 @@ fn report_streamed(path: &Path, out: &Path, how: &TrackingArgs, done: &streaming
 /// The tracking options and settings (where they were read, their JSON text) for `run` and
 /// `review` given corrections: the command line's; but when it names neither a method nor a
 /// settings file, those a project file records (what the page tracked with), so that the
-/// project's corrections meet the tracks they were made on.
+/// project's corrections meet the tracks they were made on. A project saved before paths were
+/// averaged for counting gets a note saying how to count as it did.
 pub fn with_project<'a>(
     how: &'a TrackingArgs,
     project: Option<(&'a Path, &throughline_core::project::Project)>,
 ) -> Result<(TrackingArgs, Settings<'a>), Failure> {
+    if let Some((path, p)) = project.filter(|(_, p)| !how.quiet && p.saved_before_averaged_paths())
+    {
+        eprintln!(
+            "note: {} was saved by {}, which counted paths as the tracker gave them with a \
+             crossing margin of 0.15; this version averages them over 0.35 s first, with a margin \
+             of 0.1 (docs/counting-rules.md), so counts, and the crossings its corrections name, \
+             may differ. To count as it did, give the plan \"rules\": {{\"smooth_seconds\": 0, \
+             \"hysteresis\": 0.15}}",
+            path.display(),
+            p.generator
+        );
+    }
     let recorded = project.filter(|(_, p)| {
         how.method.is_none()
             && how.config.is_none()

@@ -83,37 +83,52 @@ fn path(t: &Track, anchor: Anchor, half: u32) -> Vec<PathPoint> {
 }
 
 /// Replaces each point's anchor and box height by their mean over the path's points at most
-/// `half` frames before and after it. The window stays centred: near the path's ends it shrinks
-/// to the frames on hand, so the first and last points stay where they were (a moving average that
-/// does not pull a path's start and end towards its middle). Time linear in the points, whatever
-/// `half` is (sums from the start, then differences).
+/// `half` frames before and after it. The window stays centred: near the path's ends, and next to a
+/// frame missing from the path (tracks read from a file may skip frames), it shrinks to the frames
+/// on hand on both sides, so the first and last points of each stretch stay exactly where they
+/// were (a moving average that does not pull a path's start and end towards its middle). Time
+/// linear in the points, whatever `half` is.
 fn smooth(points: &mut [PathPoint], half: u32) {
-    let (Some(first), Some(last)) = (points.first(), points.last()) else {
-        return;
-    };
-    let (first, last) = (first.frame, last.frame);
     if half == 0 {
         return;
     }
-    let frames: Vec<u32> = points.iter().map(|q| q.frame).collect();
-    // sums[k]: x, y and height summed over points[..k].
-    let mut sums = Vec::with_capacity(points.len() + 1);
+    let mut start = 0;
+    while start < points.len() {
+        // One stretch of consecutive frames: the point at index k is frame `first + k`.
+        let mut end = start + 1;
+        while end < points.len() && points[end].frame == points[end - 1].frame + 1 {
+            end += 1;
+        }
+        smooth_stretch(&mut points[start..end], half as usize);
+        start = end;
+    }
+}
+
+/// [`smooth`] over points of consecutive frames.
+fn smooth_stretch(points: &mut [PathPoint], half: usize) {
+    let n = points.len();
+    // sums[k]: x, y and height summed over points[..k], each less the first point's (so that the
+    // differences below keep their precision far from the picture's origin).
+    let origin = (points[0].p, points[0].height);
+    let mut sums = Vec::with_capacity(n + 1);
     let mut acc = [0.0f64; 3];
     sums.push(acc);
     for q in points.iter() {
-        acc[0] += q.p.x;
-        acc[1] += q.p.y;
-        acc[2] += q.height;
+        acc[0] += q.p.x - origin.0.x;
+        acc[1] += q.p.y - origin.0.y;
+        acc[2] += q.height - origin.1;
         sums.push(acc);
     }
-    for q in points.iter_mut() {
-        let w = half.min(q.frame - first).min(last - q.frame);
-        let lo = frames.partition_point(|&f| f < q.frame - w);
-        let hi = frames.partition_point(|&f| f <= q.frame + w);
-        let n = (hi - lo) as f64;
-        let mean = |c: usize| (sums[hi][c] - sums[lo][c]) / n;
-        q.p = Point::new(mean(0), mean(1));
-        q.height = mean(2);
+    for (k, q) in points.iter_mut().enumerate() {
+        let w = half.min(k).min(n - 1 - k);
+        if w == 0 {
+            continue;
+        }
+        let (lo, hi) = (k - w, k + w + 1);
+        let count = (hi - lo) as f64;
+        let mean = |c: usize| (sums[hi][c] - sums[lo][c]) / count;
+        q.p = Point::new(origin.0.x + mean(0), origin.0.y + mean(1));
+        q.height = origin.1 + mean(2);
     }
 }
 
@@ -146,4 +161,42 @@ pub(super) fn distance_to_line(line: &Screenline, q: &Point) -> f64 {
         .iter()
         .map(|s| s.distance_to(q))
         .fold(f64::INFINITY, f64::min)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::{smooth, PathPoint};
+    use crate::geometry::Point;
+
+    fn at(frame: u32, y: f64) -> PathPoint {
+        PathPoint {
+            frame,
+            p: Point::new(100.0, y),
+            height: 50.0,
+            observed: true,
+        }
+    }
+
+    #[test]
+    fn each_point_is_the_mean_of_a_centred_window_that_shrinks_at_ends_and_gaps() {
+        // Worked by hand, half-window 2: frames 1-5 then 9-10 (frames 6-8 missing, as a tracks file
+        // may have them). Frame 1 keeps its place (no point before it), frame 2 averages 1-3,
+        // frame 3 averages 1-5, frame 4 averages 3-5, frame 5 (next to the gap) and 9 and 10 keep
+        // theirs: nothing is pulled across the gap.
+        let ys = [0.0, 10.0, 40.0, 20.0, 30.0, 90.0, 70.0];
+        let frames = [1, 2, 3, 4, 5, 9, 10];
+        let mut path: Vec<PathPoint> = frames.iter().zip(ys).map(|(&f, y)| at(f, y)).collect();
+        smooth(&mut path, 2);
+        let got: Vec<f64> = path.iter().map(|q| q.p.y).collect();
+        assert_eq!(
+            got,
+            [0.0, 50.0 / 3.0, 20.0, 30.0, 30.0, 90.0, 70.0],
+            "{got:?}"
+        );
+        assert!(path.iter().all(|q| q.p.x == 100.0 && q.height == 50.0));
+        // Half-window 0 leaves every point as it was.
+        let mut same: Vec<PathPoint> = frames.iter().zip(ys).map(|(&f, y)| at(f, y)).collect();
+        smooth(&mut same, 0);
+        assert_eq!(same.iter().map(|q| q.p.y).collect::<Vec<_>>(), ys);
+    }
 }
