@@ -53,15 +53,7 @@ fn run_replays_an_edits_file_and_a_project_file_alike() {
             .as_bytes(),
     );
     let run = |file: &str| {
-        let o = throughline(&[
-            "run",
-            &demo("detections.csv"),
-            "--plan",
-            &demo("plan.json"),
-            "--edits",
-            file,
-        ]);
-        assert!(o.status.success(), "{}", stderr(&o));
+        let o = run_demo_with_edits(file);
         (stdout(&o), stderr(&o))
     };
     let (from_edits, said) = run(&file);
@@ -333,16 +325,7 @@ fn a_project_saved_before_averaged_paths_gets_a_note_on_the_rules() {
             &format!("{}.json", generator.replace(' ', "-")),
             project.to_string().as_bytes(),
         );
-        let o = throughline(&[
-            "run",
-            &demo("detections.csv"),
-            "--plan",
-            &demo("plan.json"),
-            "--edits",
-            &file,
-        ]);
-        assert!(o.status.success(), "{}", stderr(&o));
-        stderr(&o)
+        stderr(&run_demo_with_edits(&file))
     };
     let old = stderr_for("throughline 0.1.0");
     assert!(
@@ -351,4 +334,19 @@ fn a_project_saved_before_averaged_paths_gets_a_note_on_the_rules() {
         "{old}"
     );
     assert!(!stderr_for("throughline 0.2.0").contains("was saved by"));
+}
+
+/// `throughline run` on the demo's detections and plan with an edits or project file; it must
+/// succeed.
+fn run_demo_with_edits(file: &str) -> std::process::Output {
+    let o = throughline(&[
+        "run",
+        &demo("detections.csv"),
+        "--plan",
+        &demo("plan.json"),
+        "--edits",
+        file,
+    ]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    o
 }
