@@ -47,3 +47,23 @@ test("a project reopens on the same files; against other footage it warns", asyn
   assert.deepEqual(seen.errors, []);
   await page.close();
 });
+
+test("a project saved before paths were averaged says how to count as it did", async () => {
+  const { page, seen } = await reviewDemo(env);
+  await showView(page, "Set up");
+  const saved = JSON.parse(await downloadText(page, "Save project", scratch));
+  const older = join(scratch, "older-project.json");
+  writeFileSync(older, JSON.stringify({ ...saved, generator: "throughline 0.1.0" }));
+  await page.getByLabel("Open project").setInputFiles(older);
+  const note = page.locator(".message[data-key=project-rules]");
+  await note.waitFor();
+  assert.match(await note.innerText(), /older-project\.json was saved by throughline 0\.1\.0, .*set Crossing margin to 0\.15 and Path averaging to 0 under Set up\./s);
+  // Saved again by this version, it opens with no such note.
+  const again = join(scratch, "saved-again.json");
+  writeFileSync(again, await downloadText(page, "Save project", scratch));
+  await page.getByLabel("Open project").setInputFiles(again);
+  await page.waitForFunction(() => /saved-again\.json opened/.test(document.getElementById("messages").textContent));
+  assert.equal(await note.count(), 0);
+  assert.deepEqual(seen.errors, []);
+  await page.close();
+});

@@ -89,6 +89,7 @@ export class ProjectPanel {
     this.projectName.textContent = name;
     const n = project.edits.length;
     this.messages.say("project", "ok", `${name} opened: its plan, ${n} correction${n === 1 ? "" : "s"} and ${project.review.length} review decision${project.review.length === 1 ? "" : "s"}.${this.store.tracks ? "" : " Press Run to track; the corrections are applied to the tracks."}`);
+    this.sayIfOlderRules(project, name);
     await this.check();
   }
 
@@ -110,6 +111,19 @@ export class ProjectPanel {
     if (!d) return;
     const print = d.name ? await this.client.fingerprint(d.name.replace(/^demo /, ""), d.source, 0) : null;
     if (this.store.detections === d) this.store.fileFingerprinted("detections", print);
+  }
+
+  /**
+   * A project saved before paths were averaged for counting (by 0.1.x; the command line's
+   * `Project::saved_before_averaged_paths` asks the same) counted with other rules: says so, and
+   * how to count as it did.
+   * @param {import("./protocol.js").Project} project
+   * @param {string} name
+   */
+  sayIfOlderRules(project, name) {
+    const by = project.generator || "";
+    if (!by.startsWith("throughline 0.1.")) return this.messages.clear("project-rules");
+    this.messages.say("project-rules", "warn", `${name} was saved by ${by}, which counted paths as the tracker gave them with a crossing margin of 0.15. This version averages each path over 0.35 s first, with a margin of 0.1, so its counts, and the crossings its corrections name, may differ. To count as it did, set Crossing margin to 0.15 and Path averaging to 0 under Set up.`);
   }
 
   /** Says so when the footage or detections open are not those the work was made with. */
