@@ -162,12 +162,13 @@ pub fn with_project<'a>(
 ) -> Result<(TrackingArgs, Settings<'a>), Failure> {
     if let Some((path, p)) = project.filter(|(_, p)| !how.quiet && p.saved_before_averaged_paths())
     {
+        use throughline_core::plan::{DEFAULT_HYSTERESIS, DEFAULT_SMOOTH_SECONDS};
         eprintln!(
             "note: {} was saved by {}, which counted paths as the tracker gave them with a \
-             crossing margin of 0.15; this version averages them over 0.35 s first, with a margin \
-             of 0.1 (docs/counting-rules.md), so counts, and the crossings its corrections name, \
-             may differ. To count as it did, give the plan \"rules\": {{\"smooth_seconds\": 0, \
-             \"hysteresis\": 0.15}}",
+             crossing margin of 0.15; this version averages them over {DEFAULT_SMOOTH_SECONDS} s \
+             first, with a margin of {DEFAULT_HYSTERESIS} (docs/counting-rules.md), so counts, and \
+             the crossings its corrections name, may differ. To count as it did, give the plan \
+             \"rules\": {{\"smooth_seconds\": 0, \"hysteresis\": 0.15}}",
             path.display(),
             p.generator
         );

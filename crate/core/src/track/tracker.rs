@@ -324,70 +324,61 @@ impl Tracker {
         }
     }
 
-    /// Drops tentative tracks that missed and ends confirmed tracks unseen for too long.
+    /// Drops tentative tracks that missed and ends confirmed tracks unseen for too long. A
+    /// tentative track may wait unseen up to `tentative_max_age` frames, unless a track seen in
+    /// this frame has taken its place ([`TAKEN_IOU`]).
     fn retire(&mut self, ctx: &Detections) {
-        let max_age = self.config.max_age;
-        let waiting = self.config.tentative_max_age;
-        let taken = self.taken_waiting();
-        let mut i = 0;
-        let mut k = 0;
-        while i < self.live.len() {
-            let t = &self.live[i];
-            let gone = match t.phase {
-                Phase::Tentative => t.unseen > waiting || taken.get(k).copied().unwrap_or(false),
+        let (max_age, waiting) = (self.config.max_age, self.config.tentative_max_age);
+        let motion = self.def.motion;
+        let watch = self.index_seen_if_any_wait();
+        let reuse = self.reuse.get_mut();
+        // In order, so that the order of live tracks (which decides numbering ties) is kept.
+        let ended: Vec<_> = self
+            .live
+            .extract_if(.., |t| match t.phase {
+                Phase::Tentative => {
+                    t.unseen > waiting
+                        || (watch && t.unseen > 0 && {
+                            let b = t.predicted_box(motion);
+                            reuse.index.near(&b, &mut reuse.near);
+                            reuse
+                                .near
+                                .iter()
+                                .any(|&o| b.iou(&reuse.boxes[o]) >= TAKEN_IOU)
+                        })
+                }
                 _ => t.unseen > max_age,
-            };
-            k += 1;
-            if !gone {
-                i += 1;
-                continue;
-            }
-            // `remove`, not `swap_remove`: the order of live tracks decides numbering ties.
-            let t = self.live.remove(i);
+            })
+            .collect();
+        for t in ended {
             if t.is_confirmed() {
                 self.finished.push(finish(*t, ctx));
             }
         }
     }
 
-    /// For each live track in order, whether it is a tentative track left unseen in this frame
-    /// whose predicted box a track seen in this frame covers (IoU at least [`TAKEN_IOU`]); empty
-    /// when tentative tracks do not wait (`tentative_max_age` 0). The seen tracks' boxes are found
-    /// by place, so a crowded frame costs about one look per waiting track.
-    fn taken_waiting(&mut self) -> Vec<bool> {
-        if self.config.tentative_max_age == 0
-            || !self
+    /// When a tentative track waits unseen (`tentative_max_age` above 0), puts the predicted boxes
+    /// of the tracks seen in this frame in the reused index, so that a crowded frame costs about
+    /// one look per waiting track; says whether it did.
+    fn index_seen_if_any_wait(&mut self) -> bool {
+        let waits = self.config.tentative_max_age > 0
+            && self
                 .live
                 .iter()
-                .any(|t| t.phase == Phase::Tentative && t.unseen > 0)
-        {
-            return Vec::new();
-        }
-        let motion = self.def.motion;
-        let reuse = self.reuse.get_mut();
-        reuse.boxes.clear();
-        reuse.boxes.extend(
-            self.live
-                .iter()
-                .filter(|t| t.unseen == 0)
-                .map(|t| t.predicted_box(motion)),
-        );
-        reuse.index.refill(&reuse.boxes);
-        let mut taken = Vec::with_capacity(self.live.len());
-        for t in &self.live {
-            let waits = t.phase == Phase::Tentative && t.unseen > 0;
-            taken.push(
-                waits && {
-                    let b = t.predicted_box(motion);
-                    reuse.index.near(&b, &mut reuse.near);
-                    reuse
-                        .near
-                        .iter()
-                        .any(|&o| b.iou(&reuse.boxes[o]) >= TAKEN_IOU)
-                },
+                .any(|t| t.phase == Phase::Tentative && t.unseen > 0);
+        if waits {
+            let motion = self.def.motion;
+            let reuse = self.reuse.get_mut();
+            reuse.boxes.clear();
+            reuse.boxes.extend(
+                self.live
+                    .iter()
+                    .filter(|t| t.unseen == 0)
+                    .map(|t| t.predicted_box(motion)),
             );
+            reuse.index.refill(&reuse.boxes);
         }
-        taken
+        waits
     }
 
     /// For a run written out as it goes ([`super::stream`]): moves into `out` the boxes no later
