@@ -46,6 +46,7 @@ new Workspace(store);
 const files = new FilesPanel(store, client, messages);
 const demo = new Demo(src.demo, store, files, messages);
 const planPanel = new PlanPanel(store, messages, { demoAgain: () => demo.open(true) });
+client.ready.then(() => { if (client.facts) planPanel.showDefaults(client.facts); }).catch(() => {});
 const focusGround = (/** @type {number} */ i) => planPanel.focusGround(i);
 new CoordsForm(store, { focusGround });
 const editor = new Editor(byId("overlay", HTMLCanvasElement), store, { focusGround });

@@ -87,6 +87,17 @@ export class PlanPanel {
     byId("load-demo", HTMLButtonElement).addEventListener("click", () => actions.demoAgain());
   }
 
+  /**
+   * The rules' defaults as the fields' placeholders, and the longest averaging the core takes as
+   * its field's maximum: from the core's own constants, once the engine has started.
+   * @param {import("./protocol.js").CoreFacts} facts
+   */
+  showDefaults(facts) {
+    this.fields.hysteresis.placeholder = String(facts.default_hysteresis);
+    this.fields.smooth.placeholder = String(facts.default_smooth_seconds);
+    this.fields.smooth.max = String(facts.max_smooth_seconds);
+  }
+
   showSettings() {
     const plan = this.store.plan;
     const f = this.fields;

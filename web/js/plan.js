@@ -159,19 +159,16 @@ export function setRule(plan, key, v) {
 }
 
 /**
- * The plan's `rules.hysteresis` (null: the default, 0.1); `zones`, when given, sets
- * `rules.zone_hysteresis` too (zone edges keep their own margin).
+ * The plan's `rules.hysteresis` (null: the default); `zones`, when given, sets
+ * `rules.zone_hysteresis` too unless the plan has its own (zone edges keep their own margin).
  * @param {Plan} plan
  * @param {number | null} v
  * @param {number} [zones]
  */
 export function setHysteresis(plan, v, zones) {
-  const rules = { ...(plan.rules || {}) };
-  if (v === null) delete rules.hysteresis;
-  else rules.hysteresis = v;
-  if (zones !== undefined && rules.zone_hysteresis === undefined) rules.zone_hysteresis = zones;
-  if (Object.keys(rules).length) plan.rules = rules;
-  else delete plan.rules;
+  const ownZones = plan.rules?.zone_hysteresis !== undefined;
+  setRule(plan, "hysteresis", v);
+  if (zones !== undefined && !ownZones) setRule(plan, "zone_hysteresis", zones);
 }
 
 /**

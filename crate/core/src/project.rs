@@ -105,7 +105,7 @@ impl Project {
     /// the margin is 0.1): replayed now, its counts and the crossings its corrections name may
     /// differ unless the plan sets those rules.
     pub fn saved_before_averaged_paths(&self) -> bool {
-        self.generator.starts_with("throughline 0.1.")
+        crate::plan::counted_before_averaged_paths(&self.generator)
     }
 
     /// The project file's text, marked with its format, version and this program.

@@ -93,6 +93,35 @@ fn reports_validate_against_the_schema_and_read_back_byte_for_byte() {
     assert!(e.to_string().contains("missing field"), "{e}");
 }
 
+#[test]
+fn a_report_counted_before_averaged_paths_reads_back_with_its_own_rules() {
+    // Written by 0.1.x: no `smooth_seconds` among its rules, a margin of 0.15 written out. It was
+    // counted on the boxes as given, so it reads back with 0, not today's default.
+    let text = demo_report().to_json();
+    let old = text
+        .replace(
+            &format!(
+                "\"generator\": \"throughline {}\"",
+                throughline_core::VERSION
+            ),
+            "\"generator\": \"throughline 0.1.9\"",
+        )
+        .replace("\"hysteresis\": 0.1,", "\"hysteresis\": 0.15,");
+    let mut old: Value = serde_json::from_str(&old).unwrap();
+    old["plan"]["rules"]
+        .as_object_mut()
+        .unwrap()
+        .remove("smooth_seconds");
+    let read = Report::from_json(&old.to_string()).unwrap();
+    assert_eq!(read.generator, "throughline 0.1.9");
+    assert_eq!(read.plan.rules.smooth_seconds, 0.0);
+    assert_eq!(read.plan.rules.hysteresis, 0.15);
+    // This version's reports keep the rules they were counted with.
+    let now = Report::from_json(&text).unwrap();
+    let want = throughline_core::plan::DEFAULT_SMOOTH_SECONDS;
+    assert_eq!(now.plan.rules.smooth_seconds, want);
+}
+
 /// Every object's property names and required properties, by path (`screenlines[].points`),
 /// following `$ref`s into `$defs` and through `anyOf`/`oneOf` alternatives and array items.
 fn shape(schema: &Value) -> BTreeMap<String, (BTreeSet<String>, BTreeSet<String>)> {

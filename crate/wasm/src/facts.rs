@@ -14,18 +14,25 @@ struct MethodFacts {
 }
 
 /// What the page takes from the core's own tables rather than writing again: the tracking
-/// methods, the crossing margins (box heights) by default and for boxes found in footage, and the
-/// longest gap (frames) the tracker settings' `bridge_frames` may ask to bridge.
+/// methods, the crossing margins (box heights) by default and for boxes found in footage, the
+/// seconds paths are averaged over by default and at most, the longest gap (frames) the tracker
+/// settings' `bridge_frames` may ask to bridge, and how to tell a project saved before paths
+/// were averaged (how its `generator` begins; the margin it counted with).
 #[derive(Serialize)]
 struct CoreFacts {
     methods: Vec<MethodFacts>,
     default_hysteresis: f64,
     footage_hysteresis: f64,
+    default_smooth_seconds: f64,
+    max_smooth_seconds: f64,
     max_bridge_frames: u32,
+    generator_before_averaged_paths: &'static str,
+    hysteresis_before_averaged_paths: f64,
 }
 
 /// [`CoreFacts`] as a plain object: `{methods: [{name, label, needs_embeddings}],
-/// default_hysteresis, footage_hysteresis, max_bridge_frames}`.
+/// default_hysteresis, footage_hysteresis, default_smooth_seconds, max_smooth_seconds,
+/// max_bridge_frames, generator_before_averaged_paths, hysteresis_before_averaged_paths}`.
 #[wasm_bindgen(js_name = coreFacts)]
 pub fn core_facts() -> Result<JsValue, JsError> {
     let methods = Method::ALL
@@ -43,6 +50,10 @@ pub fn core_facts() -> Result<JsValue, JsError> {
         methods,
         default_hysteresis: plan::DEFAULT_HYSTERESIS,
         footage_hysteresis: plan::FOOTAGE_HYSTERESIS,
+        default_smooth_seconds: plan::DEFAULT_SMOOTH_SECONDS,
+        max_smooth_seconds: limits::MAX_SMOOTH_SECONDS,
         max_bridge_frames: limits::MAX_BRIDGE_FRAMES,
+        generator_before_averaged_paths: plan::GENERATOR_BEFORE_AVERAGED_PATHS,
+        hysteresis_before_averaged_paths: plan::HYSTERESIS_BEFORE_AVERAGED_PATHS,
     })
 }

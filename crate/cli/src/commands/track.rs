@@ -162,13 +162,15 @@ pub fn with_project<'a>(
 ) -> Result<(TrackingArgs, Settings<'a>), Failure> {
     if let Some((path, p)) = project.filter(|(_, p)| !how.quiet && p.saved_before_averaged_paths())
     {
-        use throughline_core::plan::{DEFAULT_HYSTERESIS, DEFAULT_SMOOTH_SECONDS};
+        use throughline_core::plan::{
+            DEFAULT_HYSTERESIS, DEFAULT_SMOOTH_SECONDS, HYSTERESIS_BEFORE_AVERAGED_PATHS as OLD,
+        };
         eprintln!(
             "note: {} was saved by {}, which counted paths as the tracker gave them with a \
-             crossing margin of 0.15; this version averages them over {DEFAULT_SMOOTH_SECONDS} s \
+             crossing margin of {OLD}; this version averages them over {DEFAULT_SMOOTH_SECONDS} s \
              first, with a margin of {DEFAULT_HYSTERESIS} (docs/counting-rules.md), so counts, and \
              the crossings its corrections name, may differ. To count as it did, give the plan \
-             \"rules\": {{\"smooth_seconds\": 0, \"hysteresis\": 0.15}}",
+             \"rules\": {{\"smooth_seconds\": 0, \"hysteresis\": {OLD}}}",
             path.display(),
             p.generator
         );

@@ -106,6 +106,19 @@ pub const DEFAULT_HYSTERESIS: f64 = 0.1;
 /// frames at 25 a second; BENCHMARKS.md, "Counting on averaged paths").
 pub const DEFAULT_SMOOTH_SECONDS: f64 = 0.35;
 
+/// How the `generator` of a document written before 0.2.0 begins (every output names its program
+/// and version): those versions counted paths as the tracker gave them (no `rules.smooth_seconds`)
+/// with a crossing margin of [`HYSTERESIS_BEFORE_AVERAGED_PATHS`].
+pub const GENERATOR_BEFORE_AVERAGED_PATHS: &str = "throughline 0.1.";
+
+/// The crossing margin before paths were averaged (0.1.x's default).
+pub const HYSTERESIS_BEFORE_AVERAGED_PATHS: f64 = 0.15;
+
+/// Whether a document with this `generator` was counted before paths were averaged.
+pub fn counted_before_averaged_paths(generator: &str) -> bool {
+    generator.starts_with(GENERATOR_BEFORE_AVERAGED_PATHS)
+}
+
 /// The larger line margin suggested for boxes found by the fixed-camera detector, whose boxes jump
 /// where people join or split; zones then keep [`DEFAULT_HYSTERESIS`] (see docs/detector-settings.md).
 pub const FOOTAGE_HYSTERESIS: f64 = 0.35;

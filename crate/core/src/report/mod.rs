@@ -308,14 +308,20 @@ impl Report {
         serde_json::to_value(schemars::schema_for!(Report)).unwrap_or_default()
     }
 
-    /// Reads a report written by [`Report::to_json`].
+    /// Reads a report written by [`Report::to_json`]. A report written before paths were
+    /// averaged has no `rules.smooth_seconds`: it reads back as 0, how it was counted, not as
+    /// today's default.
     pub fn from_json(text: &str) -> Result<Report, crate::error::Error> {
-        serde_json::from_str(text).map_err(|e| {
+        let mut report: Report = serde_json::from_str(text).map_err(|e| {
             crate::error::Error::from_json(
                 crate::error::ErrorKind::BadJson,
                 &e,
                 "; expected a Throughline report (as `throughline run` writes it)",
             )
-        })
+        })?;
+        if crate::plan::counted_before_averaged_paths(&report.generator) {
+            report.plan.rules.smooth_seconds = 0.0;
+        }
+        Ok(report)
     }
 }
