@@ -276,6 +276,18 @@ fn run_tracks_and_counts_with_a_plan_writing_report_and_csv() {
         keys
     };
     assert_eq!(events(&r), events(&r2));
+    // The same tracks as benchmark text (no classes; predicted boxes with score 0, read back as
+    // predicted) count the same crossings by the same tracks: the format cannot carry classes,
+    // which here decide no join.
+    let text = dir.join("tracks.txt").display().to_string();
+    let o = throughline(&["track", &demo("detections.csv"), "-o", &text, "-q"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let report3 = dir.join("report3.json").display().to_string();
+    let plan = demo("plan.json");
+    let o = throughline(&["count", &text, "--plan", &plan, "-o", &report3, "-q"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let r3: serde_json::Value = serde_json::from_slice(&std::fs::read(&report3).unwrap()).unwrap();
+    assert_eq!(events(&r), events(&r3));
 }
 
 #[test]

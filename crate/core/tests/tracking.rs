@@ -319,3 +319,31 @@ fn decimals_are_written_like_rounded_floats() {
         assert_eq!(s, want, "{v} to {places} places");
     }
 }
+
+#[test]
+fn benchmark_text_tracks_read_back_with_their_predicted_boxes() {
+    // A walker missed in frames 6-7: `track` writes those boxes with score 0, and they read back
+    // as predicted (the JSON document's flag), the rest as seen.
+    let tracks = run(&detections(&walker(12, &[6, 7], "")), Method::Sort);
+    let text = files::to_benchmark_text(&tracks);
+    let back = files::boxes_to_tracks(&files::read_benchmark_boxes(text.as_bytes()).unwrap());
+    let flags = |t: &Tracks| -> Vec<(u32, bool)> {
+        t.tracks[0]
+            .boxes
+            .iter()
+            .map(|b| (b.frame, b.observed))
+            .collect()
+    };
+    assert_eq!(flags(&back), flags(&tracks));
+    assert!(flags(&back).contains(&(6, false)), "{:?}", flags(&back));
+    // Without scores (six columns, or a seventh that is not a number) or with score 0 on every
+    // line, every box was seen.
+    for rows in [
+        "1,1,0,0,5,5\n2,1,1,0,5,5\n",
+        "1,1,0,0,5,5,x\n2,1,1,0,5,5,x\n",
+        "1,1,0,0,5,5,0\n2,1,1,0,5,5,0\n",
+    ] {
+        let t = files::boxes_to_tracks(&files::read_benchmark_boxes(rows.as_bytes()).unwrap());
+        assert!(t.tracks[0].boxes.iter().all(|b| b.observed), "{rows}");
+    }
+}

@@ -10,6 +10,7 @@ fn row(frame: u32, id: i64, x: f64) -> IdBox {
         frame,
         id,
         bbox: BBox::new(x, 0.0, 10.0, 10.0),
+        score: 1.0,
     }
 }
 

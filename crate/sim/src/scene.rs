@@ -173,7 +173,12 @@ impl<'a> Simulation<'a> {
             return;
         }
         let id = self.truth_id(i);
-        self.truth.push(IdBox { frame, id, bbox: b });
+        self.truth.push(IdBox {
+            frame,
+            id,
+            bbox: b,
+            score: 1.0,
+        });
         let hidden: f64 = nearer
             .iter()
             .filter_map(|&j| boxes[j])

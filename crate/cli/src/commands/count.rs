@@ -10,7 +10,8 @@ use throughline_core::track::files as tracks_io;
 /// Count existing tracks against a plan.
 #[derive(clap::Args)]
 pub struct Args {
-    /// Tracks: a tracks JSON document, or benchmark text (then every box counts as observed).
+    /// Tracks: a tracks JSON document, or benchmark text (then a box with score 0 counts as
+    /// predicted, as `track` writes them, and every other box as observed).
     tracks: PathBuf,
     /// Counting plan (JSON).
     #[arg(long, value_name = "PLAN")]

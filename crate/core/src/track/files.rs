@@ -246,6 +246,9 @@ pub struct IdBox {
     pub frame: u32,
     pub id: i64,
     pub bbox: BBox,
+    /// The seventh column when it is a number (a tracker's score; Throughline writes 0 for a
+    /// predicted box), else 1.
+    pub score: f64,
 }
 
 /// Reads `frame,id,x,y,w,h[,…]` rows (tracker output or ground truth), in file order.
@@ -306,6 +309,7 @@ pub fn read_benchmark_boxes(bytes: &[u8]) -> Result<Vec<IdBox>, Error> {
             frame,
             id,
             bbox: BBox::new(v[2], v[3], v[4], v[5]),
+            score: fields.get(6).and_then(|s| s.parse().ok()).unwrap_or(1.0),
         });
     }
     if out.is_empty() {
@@ -327,21 +331,27 @@ pub fn tracks_to_boxes(tracks: &Tracks) -> Vec<IdBox> {
                 frame: b.frame,
                 id: i64::from(t.id),
                 bbox: b.bbox,
+                score: b.score,
             })
         })
         .collect()
 }
 
-/// Tracks from benchmark-text rows (tracker output without classes or flags): every box is taken as
-/// observed, and ids are kept. Rows with a negative id are passed over.
+/// Tracks from benchmark-text rows (tracker output without classes or flags), ids kept. A box
+/// with score 0 is taken as predicted, not seen (Throughline's `track` writes predicted boxes so,
+/// and counting draws a gap between seen boxes straight), unless every box has score 0 (a file
+/// without scores); every other box as observed. Rows with a negative id are passed over.
 pub fn boxes_to_tracks(rows: &[IdBox]) -> Tracks {
+    let with_id = || rows.iter().filter(|r| r.id >= 0);
+    let scored = with_id().any(|r| r.score != 0.0);
     let mut by_id: std::collections::BTreeMap<i64, Vec<TrackBox>> = Default::default();
-    for r in rows.iter().filter(|r| r.id >= 0) {
+    for r in with_id() {
+        let observed = !scored || r.score != 0.0;
         by_id.entry(r.id).or_default().push(TrackBox {
             frame: r.frame,
             bbox: r.bbox,
-            score: 1.0,
-            observed: true,
+            score: if observed { 1.0 } else { 0.0 },
+            observed,
         });
     }
     let tracks: Vec<Track> = by_id
