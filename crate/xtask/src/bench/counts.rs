@@ -79,6 +79,7 @@ fn tally_scene(bin: &str, miss: f64, seed: u64, tallies: &mut [Tally]) -> Result
             embedding_dim: 16,
             render: None,
             hard_cases: false,
+            zones: false,
         },
     )?;
     let truth = read_json(&dir.join("truth_report.json"))?;
@@ -113,13 +114,13 @@ pub const NEAR_IN_TIME_AND_PLACE: Window = Window {
     pixels: Some(100.0),
 };
 
-/// The screenline count events of a report.
-fn crossings(report: &serde_json::Value) -> Vec<Crossing> {
+/// The count events of one kind (`screenline`, `zone`) of a report, a zone's name as its line.
+fn events_of(report: &serde_json::Value, kind: &str) -> Vec<Crossing> {
     report["events"]
         .as_array()
         .into_iter()
         .flatten()
-        .filter(|e| e["kind"] == "screenline")
+        .filter(|e| e["kind"] == kind)
         .map(|e| Crossing {
             line: e["name"].as_str().unwrap_or_default().to_string(),
             direction: e["direction"].as_str().unwrap_or_default().to_string(),
@@ -137,7 +138,24 @@ pub fn event_tally(
     counted: &serde_json::Value,
     window: Window,
 ) -> EventTally {
-    tally(&crossings(truth), &crossings(counted), window)
+    tally(
+        &events_of(truth, "screenline"),
+        &events_of(counted, "screenline"),
+        window,
+    )
+}
+
+/// [`event_tally`] for zone entries and exits: the same zone and way (in or out) within `window`.
+pub fn zone_event_tally(
+    truth: &serde_json::Value,
+    counted: &serde_json::Value,
+    window: Window,
+) -> EventTally {
+    tally(
+        &events_of(truth, "zone"),
+        &events_of(counted, "zone"),
+        window,
+    )
 }
 
 /// Missed and extra count events within [`NEAR_IN_TIME_AND_PLACE`].

@@ -146,6 +146,7 @@ fn detector_line(bin: &str, s: &DetectorScene, quick: bool) -> Result<String, St
             embedding_dim: 0,
             render: Some(&y4m),
             hard_cases: false,
+            zones: false,
         },
     )?;
     let y = y4m.display().to_string();

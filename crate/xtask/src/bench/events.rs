@@ -7,7 +7,7 @@
 use std::path::Path;
 
 use super::core_api::{EventTally, Window};
-use super::counts::event_tally;
+use super::counts::{event_tally, zone_event_tally};
 use super::measure::{machine_line, measure};
 use super::read_json;
 use super::scene::{bench_dir, detections_for, simulate_scene, Sim, METHODS};
@@ -83,7 +83,9 @@ pub fn events_bench(quick: bool) -> Result<(), String> {
          Brought detections: the simulator's detections of a crowd (no footage), 90 in view, 1280x720, \
          {frames} frames each, seeds {}, 15% missed boxes and 0.5 false boxes a frame, embeddings of 16 \
          values for `deepsort`, counted by `throughline run` with each method's defaults, and `deepsort` again as published: `{{\"iou_needs_appearance\": false, \"tentative_max_age\": 0}}`. The grid's plan \
-         (`sim_plan`: two screenlines), crossings summed over both lines and the scenes. Each true \
+         (`sim_plan`: two screenlines; for the crowd also two zones, `sim_plan_with_zones`, whose \
+         entries and exits are matched the same way, a zone and its way in or out for a line and \
+         its direction), crossings summed over both lines and the scenes. Each true \
          crossing is matched to at most one counted crossing of the same line and direction at most 25 \
          frames (one second) and about a person's height at the front of the picture (100 pixels at \
          640x360, 200 at 1280x720) apart where it met the line, one to one, as many pairs as possible \
@@ -157,6 +159,7 @@ fn footage_line(bin: &str, seeds: &[u64], frames: u32) -> Result<Line, String> {
             embedding_dim: 0,
             render: Some(&y4m),
             hard_cases: true,
+            zones: false,
         };
         let (dir, plan) = simulate_scene(bin, &sim)?;
         let config = dir.join("detector.json");
@@ -213,11 +216,19 @@ const CROWD_TRACKERS: [(&str, &str, Option<&str>); METHODS.len() + 1] = [
     ),
 ];
 
+/// One tracker's tallies on the crowd: screenline crossings, then zone entries and exits, each
+/// within a second and a person's height, and within a second alone.
+#[derive(Default, Clone, Copy)]
+struct CrowdTallies {
+    lines: (EventTally, EventTally),
+    zones: (EventTally, EventTally),
+}
+
 /// Brought detections of a crowd, each seed's scene simulated once and counted by `run` with
-/// every tracker of [`CROWD_TRACKERS`]: one line each.
+/// every tracker of [`CROWD_TRACKERS`]: a line each for the screenlines' crossings, then one each
+/// for the zones' entries and exits.
 fn crowd_lines(bin: &str, seeds: &[u64], frames: u32) -> Result<Vec<Line>, String> {
-    // Per tracker: within a second and a person's height, and within a second alone.
-    let mut tallies = [(EventTally::default(), EventTally::default()); CROWD_TRACKERS.len()];
+    let mut tallies = [CrowdTallies::default(); CROWD_TRACKERS.len()];
     for &seed in seeds {
         let folder = format!("events-crowd-{seed}");
         let sim = Sim {
@@ -231,6 +242,7 @@ fn crowd_lines(bin: &str, seeds: &[u64], frames: u32) -> Result<Vec<Line>, Strin
             embedding_dim: 16,
             render: None,
             hard_cases: false,
+            zones: true,
         };
         let (dir, plan) = simulate_scene(bin, &sim)?;
         let truth = read_json(&dir.join("truth_report.json"))?;
@@ -250,21 +262,31 @@ fn crowd_lines(bin: &str, seeds: &[u64], frames: u32) -> Result<Vec<Line>, Strin
             }
             run(bin, &args)?;
             let counted = read_json(&report)?;
-            tally.0 += event_tally(&truth, &counted, same_event(sim.height));
-            tally.1 += event_tally(&truth, &counted, SAME_SECOND);
+            let near = same_event(sim.height);
+            tally.lines.0 += event_tally(&truth, &counted, near);
+            tally.lines.1 += event_tally(&truth, &counted, SAME_SECOND);
+            tally.zones.0 += zone_event_tally(&truth, &counted, near);
+            tally.zones.1 += zone_event_tally(&truth, &counted, SAME_SECOND);
         }
     }
-    Ok(CROWD_TRACKERS
-        .into_iter()
-        .zip(tallies)
-        .map(|((label, _, _), (tally, same_second))| Line {
-            input: "brought detections, 90 in view, 15% missed",
-            method: label,
-            tally,
-            same_second,
-            frames_per_second: None,
-        })
-        .collect())
+    let line = |input, method, (tally, same_second)| Line {
+        input,
+        method,
+        tally,
+        same_second,
+        frames_per_second: None,
+    };
+    let crossings = CROWD_TRACKERS
+        .iter()
+        .zip(&tallies)
+        .map(|((label, _, _), t)| {
+            line("brought detections, 90 in view, 15% missed", label, t.lines)
+        });
+    let zones = CROWD_TRACKERS
+        .iter()
+        .zip(&tallies)
+        .map(|((label, _, _), t)| line("the same, zone entries and exits", label, t.zones));
+    Ok(crossings.chain(zones).collect())
 }
 
 fn shown(path: &Path) -> String {

@@ -34,6 +34,7 @@ impl SceneSpec {
             embedding_dim: 16,
             render: None,
             hard_cases: false,
+            zones: false,
         }
     }
 }

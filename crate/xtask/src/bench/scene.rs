@@ -25,6 +25,8 @@ pub struct Sim<'a> {
     pub render: Option<&'a Path>,
     /// Every hard case of the simulator on (`simulate --hard-cases`).
     pub hard_cases: bool,
+    /// Two zones in the plan besides its two screenlines ([`sim_plan_with_zones`]).
+    pub zones: bool,
 }
 
 impl<'a> Sim<'a> {
@@ -42,6 +44,7 @@ impl<'a> Sim<'a> {
             embedding_dim: 0,
             render: None,
             hard_cases: false,
+            zones: false,
         }
     }
 }
@@ -66,13 +69,33 @@ pub fn sim_plan(width: f64, height: f64) -> String {
     )
 }
 
+/// [`sim_plan`] with two zones as well: a court west of the divide, astride the midline, and a
+/// terrace east of it, behind the midline (each a rectangle, its sides in fractions of the picture).
+pub fn sim_plan_with_zones(width: f64, height: f64) -> String {
+    let rectangle = |x0: f64, y0: f64, x1: f64, y1: f64| {
+        let (x0, x1, y0, y1) = (x0 * width, x1 * width, y0 * height, y1 * height);
+        serde_json::json!([[x0, y0], [x1, y0], [x1, y1], [x0, y1]])
+    };
+    let mut plan: serde_json::Value =
+        serde_json::from_str(&sim_plan(width, height)).unwrap_or_default();
+    plan["zones"] = serde_json::json!([
+        {"name": "west court", "polygon": rectangle(0.156, 0.347, 0.4375, 0.833)},
+        {"name": "east terrace", "polygon": rectangle(0.594, 0.208, 0.922, 0.583)},
+    ]);
+    plan.to_string()
+}
+
 /// Writes the grid's plan and simulates the scene into its folder; returns the folder and the
 /// plan's path.
 pub fn simulate_scene(bin: &str, sim: &Sim) -> Result<(PathBuf, String), String> {
     let dir = bench_dir(sim.folder)?;
     std::fs::create_dir_all(&dir).map_err(|e| e.to_string())?;
     let plan = dir.join("plan.json");
-    std::fs::write(&plan, sim_plan(sim.width, sim.height)).map_err(|e| e.to_string())?;
+    let text = match sim.zones {
+        true => sim_plan_with_zones(sim.width, sim.height),
+        false => sim_plan(sim.width, sim.height),
+    };
+    std::fs::write(&plan, text).map_err(|e| e.to_string())?;
     let text = |v: &dyn std::fmt::Display| v.to_string();
     let mut args: Vec<String> = [
         "simulate",
