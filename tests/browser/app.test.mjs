@@ -65,9 +65,12 @@ test("open files, draw a line, run, and export what throughline run gives", asyn
   await page.getByLabel("Forward label of south walk").fill("to the kiosk side");
   await page.getByLabel("Forward label of south walk").press("Tab");
   // The rules' fields show the core's defaults (plan::DEFAULT_HYSTERESIS, DEFAULT_SMOOTH_SECONDS)
-  // and take no more averaging than the core does (limits::MAX_SMOOTH_SECONDS).
+  // and take no more than the core does (limits::MAX_HYSTERESIS, MAX_SMOOTH_SECONDS); the page's
+  // own copies in index.html, shown until the engine starts, are the same.
   const averaging = page.getByLabel("Path averaging (seconds)");
-  assert.equal(await page.getByLabel("Crossing margin (× box height)").getAttribute("placeholder"), "0.1");
+  const margin = page.getByLabel("Crossing margin (× box height)");
+  assert.equal(await margin.getAttribute("placeholder"), "0.1");
+  assert.equal(await margin.getAttribute("max"), "2");
   assert.equal(await averaging.getAttribute("placeholder"), "0.35");
   assert.equal(await averaging.getAttribute("max"), "10");
   // A counting rule set in the page goes into the plan the command line is given below.

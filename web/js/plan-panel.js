@@ -88,14 +88,17 @@ export class PlanPanel {
   }
 
   /**
-   * The rules' defaults as the fields' placeholders, and the longest averaging the core takes as
-   * its field's maximum: from the core's own constants, once the engine has started.
+   * The rules' defaults as the fields' placeholders, and the most the core takes as the fields'
+   * maximums: from the core's own constants once the engine has started (the page's own copies
+   * in index.html show until then).
    * @param {import("./protocol.js").CoreFacts} facts
    */
   showDefaults(facts) {
-    this.fields.hysteresis.placeholder = String(facts.default_hysteresis);
-    this.fields.smooth.placeholder = String(facts.default_smooth_seconds);
-    this.fields.smooth.max = String(facts.max_smooth_seconds);
+    const { hysteresis, smooth } = this.fields;
+    hysteresis.placeholder = String(facts.default_hysteresis);
+    hysteresis.max = String(facts.max_hysteresis);
+    smooth.placeholder = String(facts.default_smooth_seconds);
+    smooth.max = String(facts.max_smooth_seconds);
   }
 
   showSettings() {

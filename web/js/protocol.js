@@ -145,13 +145,14 @@
 /**
  * What the page takes from the core's own tables instead of writing it again: the tracking methods
  * (registered once in the core), the crossing margins, in box heights, by default and for boxes
- * found in footage, the seconds paths are averaged over by default and at most, the longest gap
+ * found in footage and at most, the seconds paths are averaged over by default and at most, the longest gap
  * (frames) bridging may be asked to bridge, and how a project saved before paths were averaged is
  * told (how its generator begins) with the margin it counted with.
  * @typedef {object} CoreFacts
  * @property {{name: string, label: string, needs_embeddings: boolean}[]} methods
  * @property {number} default_hysteresis
  * @property {number} footage_hysteresis
+ * @property {number} max_hysteresis
  * @property {number} default_smooth_seconds
  * @property {number} max_smooth_seconds
  * @property {number} max_bridge_frames

@@ -8,6 +8,8 @@
 //! - boxes are in pixels, **top-left x/y plus width/height** ([`geometry::BBox`]), image y pointing down;
 //! - frame numbers are **1-based**, as in the benchmark text format.
 
+#![forbid(unsafe_code)]
+
 pub mod accuracy;
 pub mod count;
 pub mod detect;

@@ -16,6 +16,10 @@ pub fn in_range(v: f64) -> bool {
 pub const MIN_FRAME_RATE: f64 = 1.0 / 60.0;
 pub const MAX_FRAME_RATE: f64 = 1000.0;
 
+/// Widest crossing margin a plan may ask for (`rules.hysteresis`, `rules.zone_hysteresis`), in box
+/// heights.
+pub const MAX_HYSTERESIS: f64 = 2.0;
+
 /// Longest span a plan may average paths over before counting (`rules.smooth_seconds`).
 pub const MAX_SMOOTH_SECONDS: f64 = 10.0;
 

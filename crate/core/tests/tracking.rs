@@ -338,12 +338,36 @@ fn benchmark_text_tracks_read_back_with_their_predicted_boxes() {
     assert!(flags(&back).contains(&(6, false)), "{:?}", flags(&back));
     // Without scores (six columns, or a seventh that is not a number) or with score 0 on every
     // line, every box was seen.
+    // A ground truth's seventh column is a flag, not a score: only lines of the form `track`
+    // writes (ten columns, the last three -1) give a score.
     for rows in [
         "1,1,0,0,5,5\n2,1,1,0,5,5\n",
-        "1,1,0,0,5,5,x\n2,1,1,0,5,5,x\n",
-        "1,1,0,0,5,5,0\n2,1,1,0,5,5,0\n",
+        "1,1,0,0,5,5,x,-1,-1,-1\n2,1,1,0,5,5,1,-1,-1,-1\n",
+        "1,1,0,0,5,5,0,-1,-1,-1\n2,1,1,0,5,5,0,-1,-1,-1\n",
+        "1,1,0,0,5,5,0,1,1\n2,1,1,0,5,5,1,1,1\n3,2,1,0,5,5,1,1,1\n",
     ] {
         let t = files::boxes_to_tracks(&files::read_benchmark_boxes(rows.as_bytes()).unwrap());
         assert!(t.tracks[0].boxes.iter().all(|b| b.observed), "{rows}");
     }
+}
+
+#[test]
+fn a_seen_box_is_never_written_with_the_predicted_score() {
+    // A box seen with a score that rounds to 0 is written as 0.0001, so that reading it back
+    // does not take it for a prediction; a predicted box keeps 0.
+    let mut tracks = run(&detections(&walker(12, &[6, 7], "")), Method::Sort);
+    for b in &mut tracks.tracks[0].boxes {
+        if b.observed {
+            b.score = 0.00002;
+        }
+    }
+    let text = files::to_benchmark_text(&tracks);
+    assert!(
+        text.lines().any(|l| l.ends_with(",0.0001,-1,-1,-1")),
+        "{text}"
+    );
+    assert!(text.lines().any(|l| l.ends_with(",0,-1,-1,-1")), "{text}");
+    let back = files::boxes_to_tracks(&files::read_benchmark_boxes(text.as_bytes()).unwrap());
+    let seen = |t: &Tracks| t.tracks[0].boxes.iter().filter(|b| b.observed).count();
+    assert_eq!(seen(&back), seen(&tracks));
 }

@@ -14,7 +14,7 @@ struct MethodFacts {
 }
 
 /// What the page takes from the core's own tables rather than writing again: the tracking
-/// methods, the crossing margins (box heights) by default and for boxes found in footage, the
+/// methods, the crossing margins (box heights) by default, for boxes found in footage and at most, the
 /// seconds paths are averaged over by default and at most, the longest gap (frames) the tracker
 /// settings' `bridge_frames` may ask to bridge, and how to tell a project saved before paths
 /// were averaged (how its `generator` begins; the margin it counted with).
@@ -23,6 +23,7 @@ struct CoreFacts {
     methods: Vec<MethodFacts>,
     default_hysteresis: f64,
     footage_hysteresis: f64,
+    max_hysteresis: f64,
     default_smooth_seconds: f64,
     max_smooth_seconds: f64,
     max_bridge_frames: u32,
@@ -31,7 +32,7 @@ struct CoreFacts {
 }
 
 /// [`CoreFacts`] as a plain object: `{methods: [{name, label, needs_embeddings}],
-/// default_hysteresis, footage_hysteresis, default_smooth_seconds, max_smooth_seconds,
+/// default_hysteresis, footage_hysteresis, max_hysteresis, default_smooth_seconds, max_smooth_seconds,
 /// max_bridge_frames, generator_before_averaged_paths, hysteresis_before_averaged_paths}`.
 #[wasm_bindgen(js_name = coreFacts)]
 pub fn core_facts() -> Result<JsValue, JsError> {
@@ -50,6 +51,7 @@ pub fn core_facts() -> Result<JsValue, JsError> {
         methods,
         default_hysteresis: plan::DEFAULT_HYSTERESIS,
         footage_hysteresis: plan::FOOTAGE_HYSTERESIS,
+        max_hysteresis: limits::MAX_HYSTERESIS,
         default_smooth_seconds: plan::DEFAULT_SMOOTH_SECONDS,
         max_smooth_seconds: limits::MAX_SMOOTH_SECONDS,
         max_bridge_frames: limits::MAX_BRIDGE_FRAMES,

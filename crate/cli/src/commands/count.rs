@@ -10,8 +10,9 @@ use throughline_core::track::files as tracks_io;
 /// Count existing tracks against a plan.
 #[derive(clap::Args)]
 pub struct Args {
-    /// Tracks: a tracks JSON document, or benchmark text (then a box with score 0 counts as
-    /// predicted, as `track` writes them, and every other box as observed).
+    /// Tracks: a tracks JSON document, or benchmark text (then, on lines of the form `track`
+    /// writes, a box with score 0 counts as predicted, unless every box has score 0; every other
+    /// box as observed).
     tracks: PathBuf,
     /// Counting plan (JSON).
     #[arg(long, value_name = "PLAN")]

@@ -6,8 +6,8 @@ use super::{Homography, Plan, PlanSpec, Rules, Screenline, ScreenlineSpec, Zone,
 use crate::error::{Error, ErrorKind};
 use crate::geometry::{Point, Polygon, Segment};
 use crate::limits::{
-    MAX_FRAME_RATE, MAX_INTERVAL_MINUTES, MAX_PLAN_ITEMS, MAX_POINTS, MAX_SMOOTH_SECONDS, MAX_YEAR,
-    MIN_FRAME_RATE, MIN_INTERVAL_MINUTES, MIN_YEAR,
+    MAX_FRAME_RATE, MAX_HYSTERESIS, MAX_INTERVAL_MINUTES, MAX_PLAN_ITEMS, MAX_POINTS,
+    MAX_SMOOTH_SECONDS, MAX_YEAR, MIN_FRAME_RATE, MIN_INTERVAL_MINUTES, MIN_YEAR,
 };
 use std::collections::HashSet;
 
@@ -113,14 +113,13 @@ fn sizes(spec: &PlanSpec) -> Result<(), Error> {
 }
 
 fn rules(r: &Rules) -> Result<(), Error> {
-    let margin = "must be between 0 and 2 (a fraction of the box height)";
-    if !(r.hysteresis.is_finite() && (0.0..=2.0).contains(&r.hysteresis)) {
-        return Err(err("rules.hysteresis", margin));
+    let margin = format!("must be between 0 and {MAX_HYSTERESIS} (a fraction of the box height)");
+    let within = |h: f64| h.is_finite() && (0.0..=MAX_HYSTERESIS).contains(&h);
+    if !within(r.hysteresis) {
+        return Err(err("rules.hysteresis", &margin));
     }
-    if r.zone_hysteresis
-        .is_some_and(|h| !(h.is_finite() && (0.0..=2.0).contains(&h)))
-    {
-        return Err(err("rules.zone_hysteresis", margin));
+    if r.zone_hysteresis.is_some_and(|h| !within(h)) {
+        return Err(err("rules.zone_hysteresis", &margin));
     }
     if !(r.join_seconds.is_finite() && (0.0..=60.0).contains(&r.join_seconds)) {
         return Err(err(

@@ -308,9 +308,9 @@ impl Report {
         serde_json::to_value(schemars::schema_for!(Report)).unwrap_or_default()
     }
 
-    /// Reads a report written by [`Report::to_json`]. A report written before paths were
-    /// averaged has no `rules.smooth_seconds`: it reads back as 0, how it was counted, not as
-    /// today's default.
+    /// Reads a report written by [`Report::to_json`]. A report written by 0.1.x was counted on
+    /// paths as the tracker gave them (those versions had no `rules.smooth_seconds`): its rules
+    /// read back with 0, how it was counted, not with today's default.
     pub fn from_json(text: &str) -> Result<Report, crate::error::Error> {
         let mut report: Report = serde_json::from_str(text).map_err(|e| {
             crate::error::Error::from_json(

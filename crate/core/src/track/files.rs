@@ -246,8 +246,9 @@ pub struct IdBox {
     pub frame: u32,
     pub id: i64,
     pub bbox: BBox,
-    /// The seventh column when it is a number (a tracker's score; Throughline writes 0 for a
-    /// predicted box), else 1.
+    /// The seventh column, a tracker's score, on a line of the form Throughline writes (ten
+    /// columns, the last three `-1`; 0 for a predicted box) when it is a number; else 1 (ground
+    /// truth's seventh column is a flag, not a score).
     pub score: f64,
 }
 
@@ -309,7 +310,7 @@ pub fn read_benchmark_boxes(bytes: &[u8]) -> Result<Vec<IdBox>, Error> {
             frame,
             id,
             bbox: BBox::new(v[2], v[3], v[4], v[5]),
-            score: fields.get(6).and_then(|s| s.parse().ok()).unwrap_or(1.0),
+            score: tracker_score(&fields).unwrap_or(1.0),
         });
     }
     if out.is_empty() {
@@ -319,6 +320,12 @@ pub fn read_benchmark_boxes(bytes: &[u8]) -> Result<Vec<IdBox>, Error> {
         ));
     }
     Ok(out)
+}
+
+/// The score of a line `frame,id,x,y,w,h,score,-1,-1,-1` (as `track` writes them), if it is one.
+fn tracker_score(fields: &[&str]) -> Option<f64> {
+    let own_form = fields.len() == 10 && fields[7..].iter().all(|f| f.trim() == "-1");
+    own_form.then(|| fields[6].trim().parse().ok()).flatten()
 }
 
 /// Tracker output as id boxes (for scoring).
@@ -339,8 +346,9 @@ pub fn tracks_to_boxes(tracks: &Tracks) -> Vec<IdBox> {
 
 /// Tracks from benchmark-text rows (tracker output without classes or flags), ids kept. A box
 /// with score 0 is taken as predicted, not seen (Throughline's `track` writes predicted boxes so,
-/// and counting draws a gap between seen boxes straight), unless every box has score 0 (a file
-/// without scores); every other box as observed. Rows with a negative id are passed over.
+/// and seen ones never with 0; counting draws a gap between seen boxes straight), unless every box
+/// has score 0 (a file without scores); every other box as observed. Rows with a negative id are
+/// passed over.
 pub fn boxes_to_tracks(rows: &[IdBox]) -> Tracks {
     let with_id = || rows.iter().filter(|r| r.id >= 0);
     let scored = with_id().any(|r| r.score != 0.0);

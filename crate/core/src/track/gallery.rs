@@ -19,9 +19,11 @@ pub(crate) struct Gallery {
     dim: usize,
     /// How many vectors are kept.
     count: usize,
-    /// The vectors in blocks of [`LANES`]: vector `k`'s value `d` at
-    /// `(k / LANES) * LANES * dim + d * LANES + k % LANES`; grows a block at a time up to `size`
-    /// vectors (never sized by the setting in advance). Places of a block not yet used hold 0.
+    /// Fewer than [`LANES`] vectors: one after another, vector `k`'s value `d` at `k * dim + d`
+    /// (a short-lived track reserves no more than it keeps). From [`LANES`] on, in blocks of
+    /// [`LANES`]: vector `k`'s value `d` at `(k / LANES) * LANES * dim + d * LANES + k % LANES`,
+    /// growing a block at a time up to `size` vectors (never sized by the setting in advance);
+    /// places of a block not yet used hold 0.
     data: Vec<f32>,
     /// Once full: the slot the next push overwrites (the oldest vector's).
     next: usize,
@@ -48,20 +50,53 @@ impl Gallery {
         if v.len() != self.dim || v.is_empty() || size == 0 {
             return;
         }
-        let slot = if self.count < size {
-            if self.count.is_multiple_of(LANES) {
+        let length = v.iter().map(|&x| f64::from(x).powi(2)).sum::<f64>().sqrt();
+        self.longest = self.longest.max(length);
+        if self.count < size {
+            let slot = self.count;
+            self.count += 1;
+            if slot < LANES {
+                self.data.extend_from_slice(v);
+                if self.count == LANES {
+                    self.data = self.in_blocks();
+                }
+                return;
+            }
+            if slot.is_multiple_of(LANES) {
                 self.data.resize(self.data.len() + LANES * self.dim, 0.0);
             }
-            self.count += 1;
-            self.count - 1
+            self.put(slot, v);
         } else {
             let slot = self.next;
             self.next = (self.next + 1) % size;
-            slot
-        };
-        let length = v.iter().map(|&x| f64::from(x).powi(2)).sum::<f64>().sqrt();
-        self.longest = self.longest.max(length);
-        let base = (slot / LANES) * LANES * self.dim + slot % LANES;
+            self.put(slot, v);
+        }
+    }
+
+    /// Whether the vectors are kept in blocks (else one after another).
+    fn in_blocks_now(&self) -> bool {
+        self.count >= LANES
+    }
+
+    /// The first [`LANES`] vectors, kept one after another, laid out as one block.
+    fn in_blocks(&self) -> Vec<f32> {
+        let mut block = vec![0.0; LANES * self.dim];
+        for (k, v) in self.data.chunks_exact(self.dim).enumerate() {
+            for (d, &x) in v.iter().enumerate() {
+                block[d * LANES + k] = x;
+            }
+        }
+        block
+    }
+
+    /// Writes `v` over the vector in `slot`.
+    fn put(&mut self, slot: usize, v: &[f32]) {
+        let dim = self.dim;
+        if !self.in_blocks_now() {
+            self.data[slot * dim..(slot + 1) * dim].copy_from_slice(v);
+            return;
+        }
+        let base = (slot / LANES) * LANES * dim + slot % LANES;
         for (d, &x) in v.iter().enumerate() {
             self.data[base + d * LANES] = x;
         }
@@ -87,7 +122,8 @@ impl Gallery {
         // Never with one file's vectors (all of one length); a shorter one is measured over its
         // own length.
         let e = &e[..dim.min(e.len())];
-        let largest = match self.screening_slack(e) {
+        let slack = self.screening_slack(e).filter(|_| self.in_blocks_now());
+        let largest = match slack {
             Some(slack) => self.largest_dot_screened(e, slack),
             None => (0..self.count)
                 .map(|k| self.exact_dot(k, e))
@@ -143,6 +179,13 @@ impl Gallery {
 
     /// Vector `k`'s dot product with `e`, summed in `f64` in the order of the values.
     fn exact_dot(&self, k: usize, e: &[f32]) -> f64 {
+        if !self.in_blocks_now() {
+            let v = &self.data[k * self.dim..(k + 1) * self.dim];
+            return v
+                .iter()
+                .zip(e)
+                .fold(0.0, |s, (&g, &x)| s + f64::from(g) * f64::from(x));
+        }
         let (start, lane) = ((k / LANES) * LANES * self.dim, k % LANES);
         self.data[start..start + LANES * self.dim]
             .chunks_exact(LANES)
@@ -227,7 +270,16 @@ mod tests {
         // for galleries that fill whole blocks of vectors and parts of one, and a probe shorter
         // than the vectors kept.
         let mut rng = Rng::new(3);
-        for (dim, size) in [(2, 9), (1, 1), (3, 4), (5, 3), (16, 100), (16, 7)] {
+        for (dim, size) in [
+            (2, 9),
+            (1, 1),
+            (3, 4),
+            (5, 3),
+            (16, 100),
+            (16, 7),
+            (4, 16),
+            (3, 17),
+        ] {
             let (mut g, mut q) = (Gallery::default(), VecDeque::<Vec<f32>>::new());
             for _ in 0..(size * 5 / 2 + 1) {
                 let v: Vec<f32> = (0..dim).map(|_| rng.range(-1.0, 1.0) as f32).collect();

@@ -55,8 +55,18 @@ fn push_line(buf: &mut Vec<u8>, frame: u32, id: u32, b: &TrackBox) {
         write_decimal(buf, v, 2);
         buf.push(b',');
     }
-    write_decimal(buf, b.score, 4);
+    write_decimal(buf, written_score(b), 4);
     buf.extend_from_slice(b",-1,-1,-1\n");
+}
+
+/// The score a line gives `b`: 0 marks a predicted box (`count` reads it back so), so a seen box
+/// whose score would round to 0 is written as the least score above it, 0.0001.
+fn written_score(b: &TrackBox) -> f64 {
+    if b.observed && round(b.score, 4) == 0.0 {
+        0.0001
+    } else {
+        b.score
+    }
 }
 
 /// `v` rounded to `places` decimals, with no negative zero.
@@ -171,7 +181,7 @@ impl Row<'_> {
         if !coordinates
             .iter()
             .all(|&v| common(v, Self::MOST_COORDINATE))
-            || !common(b.score, Self::MOST_SCORE)
+            || !common(written_score(b), Self::MOST_SCORE)
         {
             return false;
         }
@@ -184,7 +194,7 @@ impl Row<'_> {
             row.decimal::<2>(v);
             row.byte(b',');
         }
-        row.decimal::<4>(b.score);
+        row.decimal::<4>(written_score(b));
         row.put(b",-1,-1,-1\n");
         *len += row.at;
         true
