@@ -38,6 +38,13 @@ test("with the defaults the demo's counts are the true ones; the queue's first m
   assert.match(strip, new RegExp(`Doubtful moment 1 of ${cliQueue.length} · \\d:\\d\\d\\.\\d\\d · tracks ${first.tracks[0]} and ${first.tracks[1]} · two crossings close together`), strip);
   console.log(`queue walk-through, defaults: ${strip.split("\n")[0]}`);
   await screenshot(page, "15-queue-defaults-first", { fullPage: false });
+  // As README says: the arrow keys step back and forth (the Review tab was clicked last, and a tab
+  // in focus takes the arrows to change tabs until N lets go of it).
+  const atFrame = (/** @type {number} */ f) => page.waitForFunction((g) => document.getElementById("clock").textContent.startsWith(`frame ${g} `), f);
+  await page.keyboard.press("ArrowRight");
+  await atFrame(first.frame + 1);
+  await page.keyboard.press("ArrowLeft");
+  await atFrame(first.frame);
   await page.keyboard.press("a");
   await page.waitForFunction(() => /Accepted: the count stands/.test(document.getElementById("focus-strip").textContent));
   assert.match(await page.locator("#doubtful-list li").first().innerText(), /accepted/);

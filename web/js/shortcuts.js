@@ -62,12 +62,21 @@ function undoKeys(e, store) {
  */
 function reviewKey(key, review) {
   switch (key.toLowerCase()) {
-    case "n": review.stepDoubt(1); return true;
-    case "p": review.stepDoubt(-1); return true;
+    case "n": review.stepDoubt(1); leaveTabs(); return true;
+    case "p": review.stepDoubt(-1); leaveTabs(); return true;
     case "a": review.accept(); return true;
     case "r": review.reject(); return true;
     default: return false;
   }
+}
+
+/**
+ * After N or P the arrow keys step the moment's frames: a tab in focus (Review just chosen, where
+ * they would change tabs) lets go of it.
+ */
+function leaveTabs() {
+  const at = document.activeElement;
+  if (at instanceof HTMLElement && at.getAttribute("role") === "tab") at.blur();
 }
 
 /**

@@ -761,3 +761,34 @@ fn detect_on_several_threads_writes_the_bytes_of_one() {
     let o = throughline(&["detect", "--y4m", &y4m, "--threads", "0"]);
     assert!(!o.status.success() && stderr(&o).contains("--threads"));
 }
+
+#[test]
+fn an_empty_plan_and_a_tracks_box_of_negative_width_say_what_is_wrong() {
+    // Found by a newcomer's trial: an empty plan once said "EOF while parsing a value", and a
+    // tracks file's negative width named neither the side nor its value.
+    let dir = scratch("empty_plan_negative_tracks");
+    let plan = write(&dir, "plan.json", b"");
+    let o = throughline(&["run", &demo("detections.txt"), "--plan", &plan]);
+    assert_eq!(o.status.code(), Some(1));
+    let e = stderr(&o);
+    assert!(
+        e.contains("plan.json") && e.contains("the file is empty"),
+        "{e}"
+    );
+    let tracks = write(
+        &dir,
+        "tracks.txt",
+        b"1,1,10,20,30,40,1,-1,-1,-1\n2,1,12,20,-30,40,1,-1,-1,-1\n",
+    );
+    let o = throughline(&["count", &tracks, "--plan", &demo("plan.json")]);
+    assert_eq!(o.status.code(), Some(1));
+    let e = stderr(&o);
+    assert!(
+        e.contains("tracks.txt") && e.contains("line 2, column 5"),
+        "{e}"
+    );
+    assert!(
+        e.contains("box w is -30: sizes must not be negative"),
+        "{e}"
+    );
+}

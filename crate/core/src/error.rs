@@ -105,6 +105,22 @@ pub fn plain_json_words(message: &str) -> String {
             "this is not JSON here (a JSON document starts with { or [)",
         ),
         ("expected value", "a value is missing or is not JSON here"),
+        (
+            "EOF while parsing a value",
+            "the file is empty, or ends where a value should be",
+        ),
+        (
+            "EOF while parsing an object",
+            "the file ends before its JSON object does (a } is missing)",
+        ),
+        (
+            "EOF while parsing a list",
+            "the file ends before its JSON list does (a ] is missing)",
+        ),
+        (
+            "EOF while parsing a string",
+            "the file ends inside a string (a closing \" is missing)",
+        ),
         ("expected u32", "expected a whole number"),
         ("expected u64", "expected a whole number"),
         ("expected usize", "expected a whole number"),

@@ -33,9 +33,30 @@ mod test;
 
 const USAGE: &str = "usage: cargo xtask <demo [--no-serve] | site | serve [--no-build] [--port N] | test | bench [--quick | --grid | --counts | --detector | --events | --goals [--page-only | --parse-only] | --page | --big-frame] | demo-data | shape | fuzz [--runs N | --seconds S] [--plain] [TARGET...] | slurm>";
 
+/// What each task does, printed with [`USAGE`] for `--help`.
+const TASKS: &str = "\
+demo        build the command line, count the bundled demo and compare with its truth, build the page
+            and serve it on 127.0.0.1 (--no-serve: build only, no server)
+site        build the page into demo-site/ and its single offline file
+serve       serve demo-site/ on 127.0.0.1 (--no-build: as it is)
+test        every check: invariants, installs, format, lints, Rust, wasm and browser tests
+bench       speed, memory and quality, written into BENCHMARKS.md (one table with a flag)
+demo-data   make the bundled demo again with the simulator
+shape       the longest functions and files, and any module loop
+fuzz        every fuzz target (or those named) for ten million runs, or as told
+slurm       the batch on a real Slurm scheduler";
+
 fn main() -> ExitCode {
     let args: Vec<String> = std::env::args().skip(1).collect();
     let rest = args.get(1..).unwrap_or_default();
+    // Asked for help, no task runs (`cargo xtask demo --help` once ran the whole demo).
+    if args
+        .iter()
+        .any(|a| a == "--help" || a == "-h" || a == "help")
+    {
+        println!("{USAGE}\n\n{TASKS}");
+        return ExitCode::SUCCESS;
+    }
     let result = match args.first().map(String::as_str) {
         Some("demo") => demo::demo(rest),
         Some("site") => site::build(),

@@ -270,6 +270,24 @@ pub fn csv_start(first: &[u8]) -> Option<usize> {
     csv::Header::new(&fields, 1).ok().map(|h| h.embedding_dim())
 }
 
+/// The error for a box of line `line` with a negative width or height (its width in column
+/// `w_column`, 1-based), naming which, its value and its column; none for other boxes.
+pub(crate) fn negative_side(b: &BBox, line: usize, w_column: usize) -> Option<Error> {
+    [(b.w, "w", w_column), (b.h, "h", w_column + 1)]
+        .into_iter()
+        .find(|(v, ..)| *v < 0.0)
+        .map(|(v, name, col)| {
+            Error::new(
+                ErrorKind::NegativeSize,
+                format!(
+                    "box {name} is {v}: sizes must not be negative (boxes are top-left x,y then \
+                     width,height, not two corners)"
+                ),
+            )
+            .at(line, Some(col))
+        })
+}
+
 /// Checks a box; `Ok(None)` (with a warning) for a zero-size box, an error for a negative size.
 pub(crate) fn checked_box(
     b: BBox,
@@ -281,17 +299,8 @@ pub(crate) fn checked_box(
     if b.w >= MIN_BOX_SIDE && b.h >= MIN_BOX_SIDE {
         return Ok(Some(b));
     }
-    for (v, name, col) in [(b.w, "w", w_column), (b.h, "h", w_column + 1)] {
-        if v < 0.0 {
-            return Err(Error::new(
-                ErrorKind::NegativeSize,
-                format!(
-                    "box {name} is {v}: sizes must not be negative (boxes are top-left x,y then width,height, \
-                     not two corners)"
-                ),
-            )
-            .at(line, Some(col)));
-        }
+    if let Some(e) = negative_side(&b, line, w_column) {
+        return Err(e);
     }
     if b.w < MIN_BOX_SIDE || b.h < MIN_BOX_SIDE {
         warnings.push(

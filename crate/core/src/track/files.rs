@@ -299,17 +299,14 @@ pub fn read_benchmark_boxes(bytes: &[u8]) -> Result<Vec<IdBox>, Error> {
             )
             .at(line, Some(2)));
         }
-        if v[4] < 0.0 || v[5] < 0.0 {
-            return Err(Error::new(
-                ErrorKind::NegativeSize,
-                "box sizes must not be negative (x,y,w,h: top-left then width and height)",
-            )
-            .at(line, Some(5)));
+        let bbox = BBox::new(v[2], v[3], v[4], v[5]);
+        if let Some(e) = crate::detections::negative_side(&bbox, line, 5) {
+            return Err(e);
         }
         out.push(IdBox {
             frame,
             id,
-            bbox: BBox::new(v[2], v[3], v[4], v[5]),
+            bbox,
             score: tracker_score(&fields).unwrap_or(1.0),
         });
     }
