@@ -284,8 +284,9 @@ fn run_tracks_and_counts_with_a_plan_writing_report_and_csv() {
     assert!(o.status.success(), "{}", stderr(&o));
     let report3 = dir.join("report3.json").display().to_string();
     let plan = demo("plan.json");
-    let o = throughline(&["count", &text, "--plan", &plan, "-o", &report3, "-q"]);
+    let o = throughline(&["count", &text, "--plan", &plan, "-o", &report3]);
     assert!(o.status.success(), "{}", stderr(&o));
+    assert!(stderr(&o).contains("carries no classes"), "{}", stderr(&o));
     let r3: serde_json::Value = serde_json::from_slice(&std::fs::read(&report3).unwrap()).unwrap();
     assert_eq!(events(&r), events(&r3));
 }

@@ -60,6 +60,26 @@ pub fn line_at(text: &str, at: usize) -> (&str, usize) {
     (line, taken)
 }
 
+/// A CSV line `text` (line `line`) with `found` fields where its header names `want` columns; when
+/// the line has semicolons or tabs, says that the fields must be separated by commas.
+pub fn wrong_field_count(found: usize, want: usize, text: &str, line: usize) -> Error {
+    let fields = if found == 1 { "field" } else { "fields" };
+    let other = [(';', "semicolons"), ('\t', "tabs")]
+        .into_iter()
+        .find(|(c, _)| text.contains(*c));
+    let hint = other.map_or(String::new(), |(_, name)| {
+        format!(
+            "; fields are separated by commas, and this line has {name} (a spreadsheet set to \
+             another language may save them so)"
+        )
+    });
+    Error::new(
+        ErrorKind::WrongColumnCount,
+        format!("{found} {fields}, but the header names {want} columns{hint}"),
+    )
+    .at(line, None)
+}
+
 /// Splits a CSV line on commas, honouring double quotes around a field.
 pub fn split_fields(line: &str) -> Vec<&str> {
     let mut fields = Vec::new();

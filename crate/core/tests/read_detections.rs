@@ -192,6 +192,14 @@ fn bad_input_names_the_place_and_the_fix() {
         None,
         "header names 6",
     );
+    // Semicolons (a spreadsheet saving in another language's way) are named as the cause.
+    check_err(
+        b"frame,x,y,w,h,score\n1;2;3;4;5;0.9\n",
+        WrongColumnCount,
+        Some(2),
+        None,
+        "1 field, but the header names 6 columns; fields are separated by commas, and this line has semicolons",
+    );
     check_err(
         b"frame,x,y,w,h,score,e0,e2\n",
         BadHeader,

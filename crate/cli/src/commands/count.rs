@@ -46,6 +46,13 @@ pub fn run(args: Args) -> Result<(), Failure> {
         (t, Some(config))
     } else {
         let boxes = tracks_io::read_benchmark_boxes(&bytes).map_err(|e| bad_input(path, e))?;
+        if !args.quiet {
+            eprintln!(
+                "note: {}: benchmark text carries no classes, so every count is unclassified; \
+                 the tracks as JSON (`throughline track … -o tracks.json`) keep them",
+                path.display()
+            );
+        }
         (tracks_io::boxes_to_tracks(&boxes), None)
     };
     let report = pipeline::count(&tracks, &plan, tracker.as_ref(), &work)

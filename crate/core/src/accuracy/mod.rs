@@ -71,15 +71,7 @@ pub fn read_counts_csv(bytes: &[u8]) -> Result<Vec<CountRow>, Error> {
     for (i, line) in lines {
         let f = text::split_fields(line);
         if f.len() != names.len() {
-            return Err(Error::new(
-                ErrorKind::WrongColumnCount,
-                format!(
-                    "{} fields, but the header names {} columns",
-                    f.len(),
-                    names.len()
-                ),
-            )
-            .at(i + 1, None));
+            return Err(text::wrong_field_count(f.len(), names.len(), line, i + 1));
         }
         let count: u64 = f[cn]
             .trim()

@@ -329,15 +329,12 @@ impl CsvLines {
         };
         let cols = &h.cols;
         if fields.len() != cols.count {
-            return Err(Error::new(
-                ErrorKind::WrongColumnCount,
-                format!(
-                    "{} fields, but the header names {} columns",
-                    fields.len(),
-                    cols.count
-                ),
-            )
-            .at(line, None));
+            return Err(crate::text::wrong_field_count(
+                fields.len(),
+                cols.count,
+                l,
+                line,
+            ));
         }
         let get = |k: usize, name: &str| number(fields[k], name, line, k + 1);
         let frame = get(cols.frame, "frame")?;
