@@ -138,11 +138,7 @@ pub fn event_tally(
     counted: &serde_json::Value,
     window: Window,
 ) -> EventTally {
-    tally(
-        &events_of(truth, "screenline"),
-        &events_of(counted, "screenline"),
-        window,
-    )
+    tally_of("screenline", truth, counted, window)
 }
 
 /// [`event_tally`] for zone entries and exits: the same zone and way (in or out) within `window`.
@@ -151,11 +147,16 @@ pub fn zone_event_tally(
     counted: &serde_json::Value,
     window: Window,
 ) -> EventTally {
-    tally(
-        &events_of(truth, "zone"),
-        &events_of(counted, "zone"),
-        window,
-    )
+    tally_of("zone", truth, counted, window)
+}
+
+fn tally_of(
+    kind: &str,
+    truth: &serde_json::Value,
+    counted: &serde_json::Value,
+    window: Window,
+) -> EventTally {
+    tally(&events_of(truth, kind), &events_of(counted, kind), window)
 }
 
 /// Missed and extra count events within [`NEAR_IN_TIME_AND_PLACE`].
