@@ -125,7 +125,7 @@ export class ProjectPanel {
     const facts = this.client.facts;
     if (!facts || !by.startsWith(facts.generator_before_averaged_paths)) return this.messages.clear("project-rules");
     const old = facts.hysteresis_before_averaged_paths;
-    this.messages.say("project-rules", "warn", `${name} was saved by ${by}, which counted paths as the tracker gave them with a crossing margin of ${old}. This version averages each path over ${facts.default_smooth_seconds} s first, with a margin of ${facts.default_hysteresis}, so its counts, and the crossings its corrections name, may differ. To count as it did, set Crossing margin to ${old} and Path averaging to 0 under Set up.`);
+    this.messages.say("project-rules", "warn", `${name} was saved by ${by}, which counted paths as the tracker gave them with a crossing margin of ${old}. By default this version averages each path over ${facts.default_smooth_seconds} s first, with a margin of ${facts.default_hysteresis}, so its counts, and the crossings its corrections name, may differ. To count as it did, set Crossing margin to ${old} and Path averaging to 0 under Set up.`);
   }
 
   /** Says so when the footage or detections open are not those the work was made with. */

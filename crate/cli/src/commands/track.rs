@@ -167,8 +167,9 @@ pub fn with_project<'a>(
         };
         eprintln!(
             "note: {} was saved by {}, which counted paths as the tracker gave them with a \
-             crossing margin of {OLD}; this version averages them over {DEFAULT_SMOOTH_SECONDS} s \
-             first, with a margin of {DEFAULT_HYSTERESIS} (docs/counting-rules.md), so counts, and \
+             crossing margin of {OLD}; by default this version averages them over \
+             {DEFAULT_SMOOTH_SECONDS} s first, with a margin of {DEFAULT_HYSTERESIS} \
+             (docs/counting-rules.md), so counts, and \
              the crossings its corrections name, may differ. To count as it did, give the plan \
              \"rules\": {{\"smooth_seconds\": 0, \"hysteresis\": {OLD}}}",
             path.display(),
