@@ -315,6 +315,21 @@ fn a_bad_plan_is_refused_before_tracking_and_names_the_field() {
     let o = throughline(&["count", &demo("truth.txt"), "--plan", &typo]);
     assert_eq!(o.status.code(), Some(1));
     assert!(stderr(&o).contains("screenline"), "{}", stderr(&o));
+    // A value of the wrong kind names its field as well as where it is (a newcomer's trial
+    // found only the line and column).
+    let quoted = write(
+        &dir,
+        "quoted.json",
+        b"{\n  \"frame_rate\": \"25\",\n  \"screenlines\": []\n}\n",
+    );
+    let o = throughline(&["count", &demo("truth.txt"), "--plan", &quoted]);
+    assert_eq!(o.status.code(), Some(1));
+    let e = stderr(&o);
+    assert!(
+        e.contains("line 2, column 20: `frame_rate`: invalid type"),
+        "{e}"
+    );
+    assert!(e.contains("expected a number"), "{e}");
 }
 
 #[test]

@@ -189,12 +189,31 @@ pub struct Plan {
     pub calibration: Option<Homography>,
 }
 
+/// The last key (`"name":`) written on line `line` (1-based) before column `column` (1-based, in
+/// bytes, as serde_json counts), if there is one.
+fn key_before(text: &str, line: usize, column: usize) -> Option<&str> {
+    let row = text.lines().nth(line.checked_sub(1)?)?;
+    let before = row.get(..column.min(row.len()))?;
+    let colon = before.rfind(':')?;
+    let quoted = before[..colon].trim_end().strip_suffix('"')?;
+    let start = quoted.rfind('"')?;
+    Some(&quoted[start + 1..]).filter(|k| !k.is_empty())
+}
+
 impl Plan {
     /// Reads and checks a plan from JSON text. Errors name the field (or the line and column of a
     /// syntax error) and say what to fix.
     pub fn from_json(text: &str) -> Result<Plan, Error> {
-        let spec: PlanSpec = serde_json::from_str(text)
-            .map_err(|e| Error::from_json(ErrorKind::Plan, &e, " (see docs/plan-format.md)"))?;
+        let spec: PlanSpec = serde_json::from_str(text).map_err(|e| {
+            let err = Error::from_json(ErrorKind::Plan, &e, " (see docs/plan-format.md)");
+            // A value of the wrong kind (`"frame_rate": "25"`): serde_json says where, not
+            // which field; the key written before it on its line says.
+            let key = e.is_data().then(|| key_before(text, e.line(), e.column()));
+            match key.flatten() {
+                Some(k) => err.in_field(k),
+                None => err,
+            }
+        })?;
         Plan::from_spec(spec)
     }
 
@@ -207,5 +226,22 @@ impl Plan {
     /// Checks a plan given as a structure.
     pub fn from_spec(spec: PlanSpec) -> Result<Plan, Error> {
         check::plan(spec)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::key_before;
+
+    #[test]
+    fn the_key_before_a_value_is_found_on_its_line_or_not_at_all() {
+        let text = "{\n  \"frame_rate\": \"25\",\n  \"start\": \"07:30\", \"anchor\": 7\n}";
+        assert_eq!(key_before(text, 2, 20), Some("frame_rate"));
+        assert_eq!(key_before(text, 3, 30), Some("anchor"));
+        // A colon inside a string is not a key's; a line with none, or out of range, gives none.
+        assert_eq!(key_before(text, 3, 16), None);
+        assert_eq!(key_before(text, 1, 1), None);
+        assert_eq!(key_before(text, 9, 1), None);
+        assert_eq!(key_before(text, 0, 1), None);
     }
 }
