@@ -1,10 +1,11 @@
 // Merging two tracks in the page, as a person would: in Review, Tracks, choose track 21 (a cyclist
-// first seen at frame 382), Merge…, and from the tracks not seen at the same time, nearest first,
-// choose track 17 (a cyclist last seen at frame 378), give a reason, Merge. Right or wrong as a
+// seen from frame 382 to 624), Merge…, and from the tracks not seen at the same time, nearest first,
+// choose track 27 (a cyclist first seen at frame 627), give a reason, Merge (the later piece goes
+// into the earlier, whose number the merged track keeps). Right or wrong as a
 // judgement, the counts must follow at once, and be what `throughline run --edits` gives for that
 // one correction, written here by hand in the edits file's format (docs/edits-format.md): byte for
 // byte. On the demo this merge adds a crossing of the plaza midline (the joined path crosses it in
-// the gap) and a kiosk visit, so the counts visibly change.
+// the gap), so the counts visibly change.
 import { test } from "node:test";
 import assert from "node:assert/strict";
 import { useBrowser, screenshot } from "./harness.mjs";
@@ -12,7 +13,7 @@ import { reviewDemo, chooseTrack, countedWith, pageReport, replay, screenTotals,
 
 const env = useBrowser();
 
-test("merge: track 21 joins track 17; the counts follow, as throughline run --edits gives them", async () => {
+test("merge: track 27 joins track 21; the counts follow, as throughline run --edits gives them", async () => {
   const { page, seen } = await reviewDemo(env);
   const before = await page.locator("#track-list button").count();
   await chooseTrack(page, 21);
@@ -27,15 +28,15 @@ test("merge: track 21 joins track 17; the counts follow, as throughline run --ed
   assert.match(choices[0], /^track 18 · cyclist · ends 1\.8 s before, 0\.7 box heights away$/);
   const offered = choices.map((c) => Number(c.match(/^track (\d+)/)[1]));
   for (const id of [14, 15, 16, 19, 20, 22, 23]) assert.ok(!offered.includes(id), `track ${id} is seen while 21 is`);
-  const seventeen = choices.find((c) => c.startsWith("track 17 "));
-  assert.match(seventeen, /^track 17 · cyclist · ends 0\.2 s before, 3\.5 box heights away$/);
-  await box.getByLabel("Track to merge with").selectOption({ label: seventeen });
-  await box.getByLabel("Reason (optional)").fill("one cyclist, lost by the kiosk");
+  const later = choices.find((c) => c.startsWith("track 27 "));
+  assert.match(later, /^track 27 · cyclist · starts 0\.1 s after, 5\.3 box heights away$/);
+  await box.getByLabel("Track to merge with").selectOption({ label: later });
+  await box.getByLabel("Reason (optional)").fill("one cyclist, lost in the crowd");
   await box.getByRole("button", { name: "Merge", exact: true }).click();
   await countedWith(page, 1);
   await screenshot(page, "15-merged", { fullPage: false });
 
-  const want = replay([{ edit: "merge_tracks", track: { id: 21, frames: [382, 624] }, into: { id: 17, frames: [244, 378] }, reason: "one cyclist, lost by the kiosk" }]);
+  const want = replay([{ edit: "merge_tracks", track: { id: 27, frames: [627, 689] }, into: { id: 21, frames: [382, 624] }, reason: "one cyclist, lost in the crowd" }]);
   const got = await pageReport(page);
   assert.equal(got, want, "the page's report equals throughline run --edits with the hand-written merge");
   const report = JSON.parse(got);
@@ -46,7 +47,7 @@ test("merge: track 21 joins track 17; the counts follow, as throughline run --ed
   await page.getByRole("tab", { name: "Review" }).click();
   await openTab(page, "Tracks");
   assert.equal(await page.locator("#track-list button").count(), before - 1, "one track fewer");
-  assert.match(await page.locator("#focus-strip").innerText(), /track 17\b/, "the merged track stays in focus");
+  assert.match(await page.locator("#focus-strip").innerText(), /track 21\b/, "the merged track, numbered as its first piece, stays in focus");
   assert.deepEqual(seen.errors, []);
   await page.close();
 });

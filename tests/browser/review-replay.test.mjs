@@ -31,7 +31,7 @@ function headSha(path) {
 test("exported edits and a saved project replay with throughline run --edits, byte for byte", async () => {
   const { page, seen } = await reviewDemo(env);
   await chooseTrack(page, 21);
-  await correct(page, "Merge with another track", (f) => f.getByLabel("Track to merge with").selectOption("17"), "Merge", 1);
+  await correct(page, "Merge with another track", (f) => f.getByLabel("Track to merge with").selectOption("27"), "Merge", 1);
   await chooseTrack(page, 23);
   await goToFrame(page, 663);
   await correct(page, "Split at this frame", null, "Split", 2);

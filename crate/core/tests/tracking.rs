@@ -174,6 +174,43 @@ fn deepsort_confirms_a_person_seen_every_other_frame() {
     assert!(t.tracks.is_empty(), "{t:?}");
 }
 
+/// `deepsort` keeps low-score boxes (from `min_score` 0.1) for tracks already followed but starts
+/// tracks only from `start_score` (0.3): a walker seen at 0.9 for ten frames, then partly hidden
+/// (0.2) for ten, stays one track through all twenty seen frames; the same low-score boxes alone
+/// start nothing; and with the shared `min_score` 0.3 (as before) the track ends at frame 10.
+#[test]
+fn deepsort_follows_a_person_through_low_score_boxes_but_starts_no_track_on_them() {
+    let walk = |first: u32, scores: &dyn Fn(u32) -> f64| {
+        let mut text = String::from("frame,x,y,w,h,score,class,e0,e1\n");
+        for f in first..=20u32 {
+            let x = 10 + 4 * f;
+            text.push_str(&format!("{f},{x},100,20,50,{},pedestrian,1,0\n", scores(f)));
+        }
+        detections(&text)
+    };
+    let hidden_later = walk(1, &|f| if f <= 10 { 0.9 } else { 0.2 });
+    let t = run(&hidden_later, Method::Deepsort);
+    assert_eq!(t.tracks.len(), 1, "{t:?}");
+    let seen: Vec<u32> = t.tracks[0]
+        .boxes
+        .iter()
+        .filter(|b| b.observed)
+        .map(|b| b.frame)
+        .collect();
+    assert_eq!(seen, (1..=20).collect::<Vec<u32>>());
+
+    let only_low = walk(1, &|_| 0.2);
+    assert!(run(&only_low, Method::Deepsort).tracks.is_empty());
+
+    let before = TrackerConfig {
+        min_score: 0.3,
+        ..TrackerConfig::for_method(Method::Deepsort)
+    };
+    let t = run_tracker(&hidden_later, &before, &mut |_, _| {}).unwrap();
+    assert_eq!(t.tracks.len(), 1, "{t:?}");
+    assert_eq!(t.tracks[0].last_frame(), 10);
+}
+
 /// A waiting tentative track ends when a track seen in the frame covers its place: someone (vector
 /// 1,0) is seen once, then someone else (0,1) stands in that very place for twenty frames, and at
 /// frame 8 a box looking like the first shows up there again. The first one's tentative track was

@@ -89,6 +89,16 @@ pub struct TrackerConfig {
     /// person went to that track. Written out only when not 0.
     #[serde(default, skip_serializing_if = "is_zero")]
     pub tentative_max_age: u32,
+    /// Least score of a detection that starts a new track; one scoring from `min_score` up to this
+    /// only continues a track already followed (as ByteTrack's second stage keeps low-score boxes,
+    /// which are mostly people partly hidden). 0: every detection used may start one. `bytetrack`
+    /// starts tracks at `new_track_score` besides. Written out only when not 0.
+    #[serde(default, skip_serializing_if = "is_zero_score")]
+    pub start_score: f64,
+}
+
+fn is_zero_score(v: &f64) -> bool {
+    *v == 0.0
 }
 
 fn is_zero(v: &u32) -> bool {
@@ -133,6 +143,7 @@ impl TrackerConfig {
             bridge_frames: DEFAULT_BRIDGE_FRAMES,
             iou_needs_appearance: false,
             tentative_max_age: 0,
+            start_score: 0.0,
         };
         (method.def().defaults)(base)
     }
@@ -216,6 +227,7 @@ impl TrackerConfig {
             ("confirm_score", self.confirm_score),
             ("high_score", self.high_score),
             ("new_track_score", self.new_track_score),
+            ("start_score", self.start_score),
             ("max_mahalanobis", self.max_mahalanobis),
         ];
         for (name, v) in finite {

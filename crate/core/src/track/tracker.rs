@@ -220,7 +220,9 @@ impl Tracker {
         }
         self.reuse.get_mut().used = matched;
         for &d in &assoc.new_tracks {
-            self.start(frame, dets, d);
+            if dets[d].score >= self.config.start_score {
+                self.start(frame, dets, d);
+            }
         }
         self.promote();
         self.retire(ctx);

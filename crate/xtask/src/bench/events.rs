@@ -82,7 +82,7 @@ pub fn events_bench(quick: bool) -> Result<(), String> {
          detector with the two heights 34 and 91, default method `sort`); frames/s is the whole run's. \
          Brought detections: the simulator's detections of a crowd (no footage), 90 in view, 1280x720, \
          {frames} frames each, seeds {}, 15% missed boxes and 0.5 false boxes a frame, embeddings of 16 \
-         values for `deepsort`, counted by `throughline run` with each method's defaults, and `deepsort` again as published: `{{\"iou_needs_appearance\": false, \"tentative_max_age\": 0}}`. The grid's plan \
+         values for `deepsort`, counted by `throughline run` with each method's defaults, and `deepsort` again as published: `{{\"iou_needs_appearance\": false, \"tentative_max_age\": 0, \"min_score\": 0.3, \"start_score\": 0}}`. The grid's plan \
          (`sim_plan`: two screenlines; for the crowd also two zones, `sim_plan_with_zones`, whose \
          entries and exits are matched the same way, a zone and its way in or out for a line and \
          its direction), crossings summed over both lines and the scenes. Each true \
@@ -202,8 +202,8 @@ fn footage_line(bin: &str, seeds: &[u64], frames: u32) -> Result<Line, String> {
 }
 
 /// The crowd's trackers: each method with its defaults, then `deepsort` as published beside it
-/// (the IoU stage on overlap alone, a tentative track ended at its first miss): (label, method,
-/// settings).
+/// (the IoU stage on overlap alone, a tentative track ended at its first miss, boxes under 0.3 not
+/// used): (label, method, settings).
 const CROWD_TRACKERS: [(&str, &str, Option<&str>); METHODS.len() + 1] = [
     (METHODS[0], METHODS[0], None),
     (METHODS[1], METHODS[1], None),
@@ -212,7 +212,9 @@ const CROWD_TRACKERS: [(&str, &str, Option<&str>); METHODS.len() + 1] = [
     (
         "deepsort as published",
         "deepsort",
-        Some(r#"{"iou_needs_appearance": false, "tentative_max_age": 0}"#),
+        Some(
+            r#"{"iou_needs_appearance": false, "tentative_max_age": 0, "min_score": 0.3, "start_score": 0}"#,
+        ),
     ),
 ];
 
