@@ -808,3 +808,45 @@ fn an_empty_plan_and_a_tracks_box_of_negative_width_say_what_is_wrong() {
         "{e}"
     );
 }
+
+#[test]
+fn count_and_run_word_an_empty_file_alike() {
+    // Found by a newcomer's trial: `run` said "the file is empty" and `count` "no rows found".
+    let dir = scratch("empty_inputs");
+    let empty = write(&dir, "empty.txt", b"\n");
+    for args in [
+        vec!["run", &empty, "--plan", &demo("plan.json")],
+        vec!["count", &empty, "--plan", &demo("plan.json")],
+    ] {
+        let o = throughline(&args);
+        assert_eq!(o.status.code(), Some(1));
+        let e = stderr(&o);
+        assert!(
+            e.contains("empty.txt: the file is empty: expected "),
+            "{args:?}: {e}"
+        );
+    }
+    let comments = write(&dir, "comments.txt", b"# frame,id,x,y,w,h\n");
+    let o = throughline(&["count", &comments, "--plan", &demo("plan.json")]);
+    assert!(stderr(&o).contains("no rows found, only comments"));
+}
+
+#[test]
+fn count_given_a_tracking_method_says_where_it_belongs() {
+    // Found by a newcomer's trial: clap's own tip was "to pass '--method' as a value, use
+    // '-- --method'", which leads nowhere.
+    let o = throughline(&[
+        "count",
+        &demo("detections.txt"),
+        "--plan",
+        &demo("plan.json"),
+        "--method",
+        "sort",
+    ]);
+    assert_eq!(o.status.code(), Some(2));
+    let e = stderr(&o);
+    assert!(
+        e.contains("counts tracks already made") && e.contains("throughline track"),
+        "{e}"
+    );
+}

@@ -1,6 +1,8 @@
 //! `throughline count`: count existing tracks against a plan; and the report writing `run` shares.
 
-use crate::files::{bad_input, looks_like_json_object, read_file, read_plan, read_work, Failure};
+use crate::files::{
+    bad_input, bad_usage, looks_like_json_object, read_file, read_plan, read_work, Failure,
+};
 use crate::output::{check_paths, Outputs};
 use std::path::{Path, PathBuf};
 use throughline_core::pipeline;
@@ -29,9 +31,22 @@ pub struct Args {
     /// Corrections to replay: an edits file or a project file saved by the page.
     #[arg(long, value_name = "FILE")]
     edits: Option<PathBuf>,
+    /// Not `count`'s (its tracks are already made): accepted only to say where it belongs.
+    #[arg(long, hide = true, value_name = "METHOD")]
+    method: Option<String>,
+    /// Not `count`'s, as `method`.
+    #[arg(long, hide = true, value_name = "FILE")]
+    config: Option<PathBuf>,
 }
 
 pub fn run(args: Args) -> Result<(), Failure> {
+    if args.method.is_some() || args.config.is_some() {
+        return Err(bad_usage(
+            "`count` counts tracks already made, so it takes no tracking method or settings: \
+             give `--method` or `--config` to `throughline track` when making the tracks, or use \
+             `throughline run DETECTIONS --plan PLAN --method …`, which tracks and counts in one step",
+        ));
+    }
     let path = &args.tracks;
     check_paths(
         &[Some(path), Some(&args.plan), args.edits.as_deref()],

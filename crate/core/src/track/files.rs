@@ -311,9 +311,16 @@ pub fn read_benchmark_boxes(bytes: &[u8]) -> Result<Vec<IdBox>, Error> {
         });
     }
     if out.is_empty() {
+        let what = match text.trim().is_empty() {
+            true => "the file is empty",
+            false => "no rows found, only comments",
+        };
         return Err(Error::new(
             ErrorKind::Empty,
-            "no rows found: expected frame,id,x,y,w,h lines",
+            format!(
+                "{what}: expected tracks or ground truth as benchmark text \
+                 (frame,id,x,y,w,h lines), or the tracks JSON that `throughline track` writes"
+            ),
         ));
     }
     Ok(out)
