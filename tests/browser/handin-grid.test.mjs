@@ -118,6 +118,12 @@ test("an hour and more of intervals: the peak hour and its factor are marked, an
   const notes = await page.locator("#grid-view .peak-note").allInnerTexts();
   assert.match(notes[0], /^Peak hour \(all lines\): 2026-03-02T07:00:00 to 2026-03-02T08:00:00, \d+$/);
   assert.match(notes[1], /^Peak hour factor: 0\.\d{3}, busiest interval \d+$/);
+  // The grid (15 columns) is wider than the panel on a laptop: a line under it says it scrolls.
+  await page.locator("#grid-view").scrollIntoViewIfNeeded();
+  const wide = page.locator("#grid-view .wide-note");
+  await wide.waitFor({ state: "visible" });
+  assert.match(await wide.innerText(), /^\u2194 \d+ columns, more than the panel shows: scroll the table sideways/);
+  assert.equal(await page.locator("#matrix-view .wide-note").first().isHidden(), true, "the movements table fits: no such line");
 
   await showView(page, "Set up");
   const planPath = join(scratch, "plan.json");

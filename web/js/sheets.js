@@ -59,7 +59,7 @@ function sheetTable(block, mark, caption) {
   const [head, ...rows] = block;
   const at = mark ? head.indexOf(mark.column) : -1;
   const cells = (/** @type {string[]} */ r, /** @type {"td" | "th"} */ tag) => r.map((c, i) => el(i === 0 && tag === "td" ? "th" : tag, { text: shown(c), title: shown(c) === c ? null : c, class: numeric(c) ? "n" : null, scope: i === 0 && tag === "td" ? "row" : null }));
-  return el("div", { class: "table-box sheet-box" }, el("table", {}, [
+  const box = el("div", { class: "table-box sheet-box" }, el("table", {}, [
     el("caption", { class: "visually-hidden", text: caption }),
     el("thead", {}, el("tr", {}, cells(head, "th"))),
     el("tbody", {}, rows.map((r) => {
@@ -67,6 +67,19 @@ function sheetTable(block, mark, caption) {
       return el("tr", { class: peak ? "peak" : r[0] === "Total" ? "total" : null }, cells(r, "td"));
     })),
   ]));
+  return el("div", {}, [box, wideNote(box, head.length)]);
+}
+
+/**
+ * A line under a table wider than its box saying that it scrolls sideways, shown only while it
+ * is wider (the panel's width changes with the window, and is 0 while the tab is hidden).
+ * @param {HTMLElement} box
+ * @param {number} columns
+ */
+function wideNote(box, columns) {
+  const note = el("p", { class: "hint wide-note", hidden: true, text: `\u2194 ${columns} columns, more than the panel shows: scroll the table sideways (or copy or download it) to see them all.` });
+  new ResizeObserver(() => { note.hidden = box.scrollWidth <= box.clientWidth + 1; }).observe(box);
+  return note;
 }
 
 /**
