@@ -408,3 +408,69 @@ fn a_seen_box_is_never_written_with_the_predicted_score() {
     let seen = |t: &Tracks| t.tracks[0].boxes.iter().filter(|b| b.observed).count();
     assert_eq!(seen(&back), seen(&tracks));
 }
+
+/// Settings written out (a report's `tracker`, a tracks file's `settings`, `tune`'s file) read back
+/// as a settings file over the method's defaults give the same settings, for every method, with
+/// each setting added after the first release at 0 (or off) and at another value. Found in review:
+/// `deepsort` with `start_score` 0 once came back as 0.3, its default.
+#[test]
+fn written_settings_read_back_as_the_same_settings_for_every_method() {
+    for &method in Method::ALL {
+        let d = TrackerConfig::for_method(method);
+        let variants = [
+            d.clone(),
+            TrackerConfig {
+                start_score: 0.0,
+                tentative_max_age: 0,
+                iou_needs_appearance: false,
+                bridge_frames: 0,
+                ..d.clone()
+            },
+            TrackerConfig {
+                start_score: 0.45,
+                tentative_max_age: 7,
+                iou_needs_appearance: true,
+                bridge_frames: 12,
+                ..d.clone()
+            },
+        ];
+        for c in variants {
+            let text = serde_json::to_string(&c).unwrap();
+            let back = TrackerConfig::from_json(&text, method).unwrap();
+            assert_eq!(back, c, "{text}");
+        }
+    }
+    // Settings of the other methods at their defaults are written without the later fields, as
+    // before they existed (reports and tracks files keep their bytes).
+    let sort = serde_json::to_string(&TrackerConfig::for_method(Method::Sort)).unwrap();
+    for later in [
+        "bridge_frames",
+        "iou_needs_appearance",
+        "tentative_max_age",
+        "start_score",
+    ] {
+        assert!(!sort.contains(later), "{sort}");
+    }
+}
+
+/// Score thresholds are checked like the other shares (a newcomer's trial: `start_score` 7 tracked
+/// nothing and said nothing; negative scores passed).
+#[test]
+fn score_thresholds_outside_0_to_1_are_refused_by_name() {
+    for (field, value) in [
+        ("start_score", "7"),
+        ("min_score", "-1"),
+        ("high_score", "-0.5"),
+        ("new_track_score", "3"),
+        ("confirm_score", "1.5"),
+    ] {
+        let text = format!("{{\"{field}\": {value}}}");
+        let e = TrackerConfig::from_json(&text, Method::Deepsort).unwrap_err();
+        assert!(
+            e.to_string().contains(&format!(
+                "`{field}` is {value}, but must be between 0 and 1"
+            )),
+            "{e}"
+        );
+    }
+}

@@ -41,8 +41,10 @@ pub fn resolve_config(
     }
 }
 
-/// Every setting of every method. Fields a method does not use are ignored by it.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, JsonSchema)]
+/// Every setting of every method. Fields a method does not use are ignored by it. When written out
+/// (reports, tracks files, `tune`), the settings added after the first release appear only where
+/// a file without them would be read otherwise.
+#[derive(Debug, Clone, PartialEq, Deserialize, JsonSchema)]
 #[serde(deny_unknown_fields)]
 pub struct TrackerConfig {
     pub method: Method,
@@ -72,16 +74,13 @@ pub struct TrackerConfig {
     /// track's first that is bridged by following the object in the pictures (V-IOU); 0 turns
     /// bridging off. Written out only when it differs from the default, so settings, tracks and
     /// reports made without it keep their bytes.
-    #[serde(
-        default = "default_bridge_frames",
-        skip_serializing_if = "is_default_bridge_frames"
-    )]
+    #[serde(default = "default_bridge_frames")]
     pub bridge_frames: u32,
     /// `deepsort`: the IoU stage (tentative tracks, and tracks missed in the appearance stage)
     /// refuses a pair further apart in appearance than `max_cosine_distance`, as the appearance
-    /// stage does (not in the published method; on by default for `deepsort`). Written out only
-    /// when on, so that other methods' settings, tracks and reports keep their bytes.
-    #[serde(default, skip_serializing_if = "is_false")]
+    /// stage does (not in the published method; on by default for `deepsort`). Written out when
+    /// on, or off for a method whose default is on.
+    #[serde(default)]
     pub iou_needs_appearance: bool,
     /// Frames a tentative track may go unseen and still be confirmed later (0: it ends at its
     /// first missed frame, as in the published methods). While it waits, a track seen in the
@@ -92,21 +91,72 @@ pub struct TrackerConfig {
     /// Least score of a detection that starts a new track; one scoring from `min_score` up to this
     /// only continues a track already followed (as ByteTrack's second stage keeps low-score boxes,
     /// which are mostly people partly hidden). 0: every detection used may start one. `bytetrack`
-    /// starts tracks at `new_track_score` besides. Written out only when not 0.
-    #[serde(default, skip_serializing_if = "is_zero_score")]
+    /// starts tracks at `new_track_score` besides. Written out when not 0, or 0 for a method whose
+    /// default is not.
+    #[serde(default)]
     pub start_score: f64,
 }
 
-fn is_zero_score(v: &f64) -> bool {
-    *v == 0.0
+impl Serialize for TrackerConfig {
+    /// Every field in order, except the later settings (`bridge_frames`, `iou_needs_appearance`,
+    /// `tentative_max_age`, `start_score`) where they have the value a file without them reads as
+    /// and the method's default is that value too: so files written before those settings keep
+    /// their bytes, and a file written now, read back as settings over the method's defaults
+    /// (`--config`), gives these settings again.
+    fn serialize<S: serde::Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
+        use serde::ser::SerializeStruct;
+        let d = TrackerConfig::for_method(self.method);
+        let mut out = s.serialize_struct("TrackerConfig", 16)?;
+        out.serialize_field("method", &self.method)?;
+        out.serialize_field("min_score", &self.min_score)?;
+        out.serialize_field("min_iou", &self.min_iou)?;
+        out.serialize_field("min_hits", &self.min_hits)?;
+        out.serialize_field("max_age", &self.max_age)?;
+        out.serialize_field("confirm_score", &self.confirm_score)?;
+        out.serialize_field("high_score", &self.high_score)?;
+        out.serialize_field("new_track_score", &self.new_track_score)?;
+        out.serialize_field("low_min_iou", &self.low_min_iou)?;
+        out.serialize_field("max_cosine_distance", &self.max_cosine_distance)?;
+        out.serialize_field("gallery_size", &self.gallery_size)?;
+        out.serialize_field("max_mahalanobis", &self.max_mahalanobis)?;
+        let bridge = !(is_default_bridge_frames(&self.bridge_frames)
+            && is_default_bridge_frames(&d.bridge_frames));
+        let needs = self.iou_needs_appearance || d.iou_needs_appearance;
+        let waits = !(is_zero(&self.tentative_max_age) && is_zero(&d.tentative_max_age));
+        let starts = self.start_score != 0.0 || d.start_score != 0.0;
+        optional(&mut out, "bridge_frames", bridge, &self.bridge_frames)?;
+        optional(
+            &mut out,
+            "iou_needs_appearance",
+            needs,
+            &self.iou_needs_appearance,
+        )?;
+        optional(
+            &mut out,
+            "tentative_max_age",
+            waits,
+            &self.tentative_max_age,
+        )?;
+        optional(&mut out, "start_score", starts, &self.start_score)?;
+        out.end()
+    }
+}
+
+/// A field written when `write`, else skipped.
+fn optional<S: serde::ser::SerializeStruct, T: Serialize>(
+    out: &mut S,
+    name: &'static str,
+    write: bool,
+    value: &T,
+) -> Result<(), S::Error> {
+    match write {
+        true => out.serialize_field(name, value),
+        false => out.skip_field(name),
+    }
 }
 
 fn is_zero(v: &u32) -> bool {
     *v == 0
-}
-
-fn is_false(v: &bool) -> bool {
-    !*v
 }
 
 /// Frames bridged by default: none. Bridging is asked for in the settings (25, one second at 25
@@ -210,10 +260,16 @@ impl TrackerConfig {
 
     /// Checks ranges, naming the field to fix.
     pub fn validate(&self) -> Result<(), Error> {
+        // Scores are thresholds on detections' scores, which are 0..1 (the readers warn of others).
         let unit = [
             ("min_iou", self.min_iou),
             ("low_min_iou", self.low_min_iou),
             ("max_cosine_distance", self.max_cosine_distance),
+            ("min_score", self.min_score),
+            ("confirm_score", self.confirm_score),
+            ("high_score", self.high_score),
+            ("new_track_score", self.new_track_score),
+            ("start_score", self.start_score),
         ];
         for (name, v) in unit {
             if !(0.0..=1.0).contains(&v) {
@@ -222,14 +278,7 @@ impl TrackerConfig {
                 )));
             }
         }
-        let finite = [
-            ("min_score", self.min_score),
-            ("confirm_score", self.confirm_score),
-            ("high_score", self.high_score),
-            ("new_track_score", self.new_track_score),
-            ("start_score", self.start_score),
-            ("max_mahalanobis", self.max_mahalanobis),
-        ];
+        let finite = [("max_mahalanobis", self.max_mahalanobis)];
         for (name, v) in finite {
             if !v.is_finite() {
                 return Err(settings_error(format!("`{name}` must be a finite number")));
