@@ -67,3 +67,32 @@ test("a project saved before paths were averaged says how to count as it did", a
   assert.deepEqual(seen.errors, []);
   await page.close();
 });
+
+test("a project tracked before DeepSORT kept low-score boxes is tracked as it was, and its merge applies", async () => {
+  const { page, seen } = await reviewDemo(env);
+  await showView(page, "Set up");
+  const saved = JSON.parse(await downloadText(page, "Save project", scratch));
+  // 0.2.0's DeepSORT ended track 17 at frame 378; the person merged 21 into it then.
+  const merge = { edit: "merge_tracks", track: { id: 21, frames: [382, 624] }, into: { id: 17, frames: [244, 378] }, reason: "one cyclist" };
+  const older = join(scratch, "tracked-older.json");
+  writeFileSync(older, JSON.stringify({ ...saved, generator: "throughline 0.2.0", tracking: {}, edits: [merge] }));
+  await page.getByLabel("Open project").setInputFiles(older);
+  const note = page.locator(".message[data-key=project-tracking]");
+  await note.waitFor();
+  assert.match(await note.innerText(), /tracked-older\.json was tracked by throughline 0\.2\.0, .*it is tracked the same way here/s);
+  await page.getByRole("button", { name: "Run", exact: true }).click();
+  await countedWith(page, 1);
+  // The same as the command line replaying that project (it tracks it as it was too).
+  const want = replay(older);
+  assert.equal(await pageReport(page), want);
+  assert.equal(JSON.parse(want).edits[0].applied, true);
+  // Saved again, the project carries those settings, and the command line gives the same report.
+  const again = join(scratch, "tracked-again.json");
+  await showView(page, "Set up");
+  const text = await downloadText(page, "Save project", scratch);
+  assert.deepEqual(JSON.parse(text).tracking, { settings: { min_score: 0.3, start_score: 0 } });
+  writeFileSync(again, text);
+  assert.equal(replay(again), want);
+  assert.deepEqual(seen.errors, []);
+  await page.close();
+});

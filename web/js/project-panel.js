@@ -90,6 +90,7 @@ export class ProjectPanel {
     const n = project.edits.length;
     this.messages.say("project", "ok", `${name} opened: its plan, ${n} correction${n === 1 ? "" : "s"} and ${project.review.length} review decision${project.review.length === 1 ? "" : "s"}.${this.store.tracks ? "" : " Press Run to track; the corrections are applied to the tracks."}`);
     this.sayIfOlderRules(project, name);
+    this.keepOlderTracking(project, name);
     await this.check();
   }
 
@@ -128,6 +129,23 @@ export class ProjectPanel {
     this.messages.say("project-rules", "warn", `${name} was saved by ${by}, which counted paths as the tracker gave them with a crossing margin of ${old}. By default this version averages each path over ${facts.default_smooth_seconds} s first, with a margin of ${facts.default_hysteresis}, so its counts, and the crossings its corrections name, may differ. To count as it did, set Crossing margin to ${old} and Path averaging to 0 under Set up.`);
   }
 
+  /**
+   * A project tracked before `deepsort` kept low-score boxes (the command line's
+   * `Project::tracked_before_low_score_boxes` asks the same) is tracked as it was, so that its
+   * corrections meet their tracks: its settings are those of the version that saved it.
+   * @param {import("./protocol.js").Project} project
+   * @param {string} name
+   */
+  keepOlderTracking(project, name) {
+    const by = project.generator || "";
+    const facts = this.client.facts;
+    const method = project.tracking ? project.tracking.method || "" : "";
+    const older = facts && facts.generators_before_low_score_boxes.some((g) => by.startsWith(g)) && (method === "" || method === "deepsort");
+    if (!facts || !older) return this.messages.clear("project-tracking");
+    if (!this.store.settings.tracker) this.store.plans.setSetting("tracker", facts.settings_before_low_score_boxes);
+    this.messages.say("project-tracking", "ok", `${name} was tracked by ${by}, whose DeepSORT used no box scoring under 0.3 and let any box it used start a track; it is tracked the same way here, so that its corrections meet their tracks. It is saved with those settings.`);
+  }
+
   /** Says so when the footage or detections open are not those the work was made with. */
   async check() {
     const { madeWith } = this.store.work;
@@ -159,9 +177,12 @@ export function projectFileName(site) {
  * @param {import("./plan.js").Settings} settings
  */
 function trackingOf(settings) {
-  /** @type {{method?: string, settings?: {bridge_frames: number}}} */
+  /** @type {{method?: string, settings?: Record<string, unknown>}} */
   const tracking = settings.method ? { method: settings.method } : {};
+  /** @type {Record<string, unknown>} */
+  const fields = settings.tracker ? JSON.parse(settings.tracker) : {};
   const bridge = Number(settings.bridgeFrames || "");
-  if (Number.isInteger(bridge) && bridge > 0) tracking.settings = { bridge_frames: bridge };
+  if (Number.isInteger(bridge) && bridge > 0) fields.bridge_frames = bridge;
+  if (Object.keys(fields).length) tracking.settings = fields;
   return tracking;
 }

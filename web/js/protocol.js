@@ -158,6 +158,8 @@
  * @property {number} max_bridge_frames
  * @property {string} generator_before_averaged_paths
  * @property {number} hysteresis_before_averaged_paths
+ * @property {string[]} generators_before_low_score_boxes
+ * @property {string} settings_before_low_score_boxes
  */
 
 /**

@@ -17,8 +17,8 @@ import { TrackView } from "./tracks.js";
 /** @typedef {import("./edit-sync.js").EditSync} EditSync */
 /**
  * How tracks were made: the method ("" for the best for the detections), the tracker settings JSON
- * ("" for the method's defaults) and the footage bridged with (null: none).
- * @typedef {{method: string, settings: string, footage: import("./protocol.js").TrackFootage | null}} TrackingRun
+ * ("" for the method's defaults), the footage bridged with (null: none) and whether bridging was asked for.
+ * @typedef {{method: string, settings: string, footage: import("./protocol.js").TrackFootage | null, bridging: boolean}} TrackingRun
  */
 
 export class RunPanel {
@@ -131,7 +131,7 @@ export class RunPanel {
       const n = out.bridged && "joined" in out.bridged ? out.bridged.joined : null;
       const joined = n === null ? "" : `, ${n} ${n === 1 ? "gap" : "gaps"} bridged with the footage`;
       this.status.textContent = `${out.tracks} tracks in ${seconds} s${joined}.`;
-      if (run.settings && !run.footage) this.messages.say("run", "warn", `${this.whyNoFootage()} These counts are from the detections alone.`);
+      if (run.bridging && !run.footage) this.messages.say("run", "warn", `${this.whyNoFootage()} These counts are from the detections alone.`);
       if (!hasCountingGeometry(this.store.plan)) {
         this.messages.say("run", "warn", "The plan has no lines or zones, so nothing was counted. Press Draw line and click two points across the path, or open a plan file; the counts appear at once.");
       }
@@ -168,11 +168,17 @@ export class RunPanel {
       const typed = this.bridgeFrames.validity.badInput ? "is not a number" : `is ${text}`;
       return `"Bridge gaps up to (frames)" under Set up, Missed detections ${typed}: type a whole number of frames from 1 to ${max}, or 0 or nothing to leave bridging off.`;
     }
-    const settings = n === 0 ? "" : JSON.stringify({ bridge_frames: n });
+    // Settings the page has no field for (an older project's) apply to the method they were for.
+    const method = this.method.value;
+    const tracker = this.store.settings.tracker;
+    /** @type {Record<string, unknown>} */
+    const fields = tracker && (method === "" || method === "deepsort") ? JSON.parse(tracker) : {};
+    if (n > 0) fields.bridge_frames = n;
+    const settings = Object.keys(fields).length ? JSON.stringify(fields) : "";
     const { footage, video } = this.store;
     const pictured = video.playable && video.width > 0 && video.height > 0;
-    const withFootage = footage && pictured && settings ? { file: footage.blob, width: video.width, height: video.height } : null;
-    return { method: this.method.value, settings, footage: withFootage };
+    const withFootage = footage && pictured && n > 0 ? { file: footage.blob, width: video.width, height: video.height } : null;
+    return { method, settings, footage: withFootage, bridging: n > 0 };
   }
 
   /** Why a run that asked for bridging had no footage to bridge with, and what to do. */

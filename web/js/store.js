@@ -460,8 +460,10 @@ export class PageStore {
     this.plans.replace(/** @type {Plan} */ (project.plan), "file");
     const tracking = project.tracking || {};
     this.plans.setSetting("method", tracking.method || "");
-    const bridge = tracking.settings ? tracking.settings.bridge_frames : undefined;
+    const { bridge_frames: bridge, ...others } = tracking.settings || {};
     this.plans.setSetting("bridgeFrames", bridge === undefined ? "" : String(bridge));
+    // Settings the page has no field for (an older project's, to track as it did) are kept whole.
+    this.plans.setSetting("tracker", Object.keys(others).length ? JSON.stringify(others) : "");
     this.planName = `${name} (project)`;
     /** @type {import("./work.js").Extras} */
     const extras = {};

@@ -350,3 +350,52 @@ fn run_demo_with_edits(file: &str) -> std::process::Output {
     assert!(o.status.success(), "{}", stderr(&o));
     o
 }
+
+/// A project the page saved with 0.2.0 (`deepsort` by default, before it kept boxes scoring
+/// 0.1–0.3) is tracked again as it was, so its corrections meet their tracks: its merge of track
+/// 21 into track 17 (frames 244–378 then) applies. Saved by this version, the same merge does not
+/// (track 17 now lives on to frame 399, while 21 is seen) and is reported as not applied.
+#[test]
+fn a_project_tracked_before_low_score_boxes_is_tracked_as_it_was() {
+    let dir = scratch("low-score-project");
+    let plan: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(demo("plan.json")).unwrap()).unwrap();
+    let merge = serde_json::json!({"edit": "merge_tracks", "track": {"id": 21, "frames": [382, 624]},
+        "into": {"id": 17, "frames": [244, 378]}, "reason": "one cyclist"});
+    let replay = |generator: &str| {
+        let project = serde_json::json!({
+            "format": "throughline-project", "version": 1, "generator": generator,
+            "plan": plan, "tracking": {}, "edits": [merge], "review": []
+        });
+        let file = write(
+            &dir,
+            &format!("{}.json", generator.replace(' ', "-")),
+            project.to_string().as_bytes(),
+        );
+        let out = dir.join("report.json").display().to_string();
+        let o = throughline(&[
+            "run",
+            &demo("detections.csv"),
+            "--plan",
+            &demo("plan.json"),
+            "--edits",
+            &file,
+            "-o",
+            &out,
+        ]);
+        assert!(o.status.success(), "{}", stderr(&o));
+        let report: serde_json::Value =
+            serde_json::from_str(&std::fs::read_to_string(&out).unwrap()).unwrap();
+        (report["edits"][0]["applied"].as_bool(), stderr(&o))
+    };
+    let (applied, said) = replay("throughline 0.2.0");
+    assert_eq!(applied, Some(true), "{said}");
+    assert!(
+        said.contains("with the settings throughline 0.2.0 tracked with")
+            && said.contains(r#"{"min_score":0.3,"start_score":0}"#),
+        "{said}"
+    );
+    let (applied, said) = replay(&format!("throughline {}", env!("CARGO_PKG_VERSION")));
+    assert_eq!(applied, Some(false), "{said}");
+    assert!(!said.contains("tracked with"), "{said}");
+}

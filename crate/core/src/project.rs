@@ -20,6 +20,13 @@ pub const FORMAT: &str = "throughline-project";
 /// Version of the project file's layout.
 pub const VERSION: u32 = 1;
 
+/// How the `generator` of a project tracked before `deepsort` kept low-score boxes begins.
+pub const GENERATORS_BEFORE_LOW_SCORE_BOXES: [&str; 2] = ["throughline 0.1.", "throughline 0.2."];
+
+/// The tracker settings of those versions' `deepsort` where today's differ: boxes used from 0.3,
+/// and any of them may start a track.
+pub const SETTINGS_BEFORE_LOW_SCORE_BOXES: &str = r#"{"min_score":0.3,"start_score":0}"#;
+
 /// The tracking the project uses: a method (or the default for the detections) and settings.
 #[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize, JsonSchema)]
 pub struct Tracking {
@@ -106,6 +113,33 @@ impl Project {
     /// differ unless the plan sets those rules.
     pub fn saved_before_averaged_paths(&self) -> bool {
         crate::plan::counted_before_averaged_paths(&self.generator)
+    }
+
+    /// Whether the project was tracked by a version whose `deepsort` used no box scoring under
+    /// 0.3 and let any box it used start a track (before 0.3.0), with a method that is or may be
+    /// `deepsort` (none named: the default for detections with appearance vectors).
+    pub fn tracked_before_low_score_boxes(&self) -> bool {
+        GENERATORS_BEFORE_LOW_SCORE_BOXES
+            .iter()
+            .any(|g| self.generator.starts_with(g))
+            && matches!(self.tracking.method, None | Some(Method::Deepsort))
+    }
+
+    /// The tracker settings (JSON) to make the project's tracks again as they were made: its own,
+    /// over [`SETTINGS_BEFORE_LOW_SCORE_BOXES`] when it was tracked before low-score boxes were
+    /// kept (those settings change nothing for `sort` and `iou`, the other default). `None`: the
+    /// method's defaults.
+    pub fn tracking_settings(&self) -> Option<String> {
+        let own = self.tracking.settings.clone();
+        if !self.tracked_before_low_score_boxes() {
+            return own.map(|v| v.to_string());
+        }
+        let mut merged: serde_json::Map<String, serde_json::Value> =
+            serde_json::from_str(SETTINGS_BEFORE_LOW_SCORE_BOXES).unwrap_or_default();
+        if let Some(serde_json::Value::Object(fields)) = own {
+            merged.extend(fields);
+        }
+        Some(serde_json::Value::Object(merged).to_string())
     }
 
     /// The project file's text, marked with its format, version and this program.

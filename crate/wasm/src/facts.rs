@@ -2,7 +2,7 @@
 
 use crate::to_js;
 use serde::Serialize;
-use throughline_core::{limits, plan, Method};
+use throughline_core::{limits, plan, project, Method};
 use wasm_bindgen::prelude::*;
 
 /// A tracking method as the page lists it.
@@ -29,11 +29,14 @@ struct CoreFacts {
     max_bridge_frames: u32,
     generator_before_averaged_paths: &'static str,
     hysteresis_before_averaged_paths: f64,
+    generators_before_low_score_boxes: [&'static str; 2],
+    settings_before_low_score_boxes: &'static str,
 }
 
 /// [`CoreFacts`] as a plain object: `{methods: [{name, label, needs_embeddings}],
 /// default_hysteresis, footage_hysteresis, max_hysteresis, default_smooth_seconds, max_smooth_seconds,
-/// max_bridge_frames, generator_before_averaged_paths, hysteresis_before_averaged_paths}`.
+/// max_bridge_frames, generator_before_averaged_paths, hysteresis_before_averaged_paths,
+/// generators_before_low_score_boxes, settings_before_low_score_boxes}`.
 #[wasm_bindgen(js_name = coreFacts)]
 pub fn core_facts() -> Result<JsValue, JsError> {
     let methods = Method::ALL
@@ -57,5 +60,7 @@ pub fn core_facts() -> Result<JsValue, JsError> {
         max_bridge_frames: limits::MAX_BRIDGE_FRAMES,
         generator_before_averaged_paths: plan::GENERATOR_BEFORE_AVERAGED_PATHS,
         hysteresis_before_averaged_paths: plan::HYSTERESIS_BEFORE_AVERAGED_PATHS,
+        generators_before_low_score_boxes: project::GENERATORS_BEFORE_LOW_SCORE_BOXES,
+        settings_before_low_score_boxes: project::SETTINGS_BEFORE_LOW_SCORE_BOXES,
     })
 }

@@ -154,8 +154,9 @@ fn report_streamed(path: &Path, out: &Path, how: &TrackingArgs, done: &streaming
 /// The tracking options and settings (where they were read, their JSON text) for `run` and
 /// `review` given corrections: the command line's; but when it names neither a method nor a
 /// settings file, those a project file records (what the page tracked with), so that the
-/// project's corrections meet the tracks they were made on. A project saved before paths were
-/// averaged for counting gets a note saying how to count as it did.
+/// project's corrections meet the tracks they were made on (a project tracked before `deepsort`
+/// kept low-score boxes, with the settings it was tracked with). A project saved before paths
+/// were averaged for counting gets a note saying how to count as it did.
 pub fn with_project<'a>(
     how: &'a TrackingArgs,
     project: Option<(&'a Path, &throughline_core::project::Project)>,
@@ -179,22 +180,33 @@ pub fn with_project<'a>(
     let recorded = project.filter(|(_, p)| {
         how.method.is_none()
             && how.config.is_none()
-            && (p.tracking.method.is_some() || p.tracking.settings.is_some())
+            && (p.tracking.method.is_some()
+                || p.tracking.settings.is_some()
+                || p.tracked_before_low_score_boxes())
     });
     let Some((path, p)) = recorded else {
         return Ok((how.clone(), read_settings(how.config.as_deref())?));
     };
-    let settings = p.tracking.settings.as_ref().map(|v| (path, v.to_string()));
+    let settings = p.tracking_settings().map(|v| (path, v));
     if !how.quiet {
         let method = p
             .tracking
             .method
             .map_or("its default".to_string(), |m| m.to_string());
+        let with = match (p.tracked_before_low_score_boxes(), settings.is_some()) {
+            (true, _) => format!(
+                ", with the settings {} tracked with (`deepsort` then used no box scoring under \
+                 0.3, and any box it used could start a track: {})",
+                p.generator,
+                throughline_core::project::SETTINGS_BEFORE_LOW_SCORE_BOXES
+            ),
+            (false, true) => ", with its settings".to_string(),
+            (false, false) => String::new(),
+        };
         eprintln!(
-            "note: tracking as the project {} says: {method}{} (give --method or --config to choose \
-             otherwise)",
+            "note: tracking as the project {} says: {method}{with} (give --method or --config to \
+             choose otherwise)",
             path.display(),
-            if settings.is_some() { ", with its settings" } else { "" }
         );
     }
     let chosen = TrackingArgs {
@@ -305,13 +317,41 @@ fn nothing_kept_note(path: &Path, config: &TrackerConfig) -> String {
     };
     format!(
         "note: {}: no track was kept. With these settings a track is kept once it has been seen \
-         in {} frames in a row (`min_hits`){confirm}; detections scoring under {} are not used \
-         (`min_score`). For a short file or low scores, lower them in a settings file given \
-         with --config, such as one holding {{\"min_hits\": 1}} (docs/tracker-settings.md).",
+         in {} frames in a row (`min_hits`){confirm}; {}. For a short file or low scores, lower \
+         them in a settings file given with --config, such as one holding {{\"min_hits\": 1}} \
+         (docs/tracker-settings.md).",
         path.display(),
         config.min_hits,
-        config.min_score
+        score_rule(config)
     )
+}
+
+/// Which scores are used and which start tracks, naming the settings that decide.
+fn score_rule(config: &TrackerConfig) -> String {
+    let mut starts = vec![(config.start_score, "`start_score`")];
+    if config.method == Method::Bytetrack {
+        starts.push((config.new_track_score, "`new_track_score`"));
+    }
+    let (start, name) = starts
+        .into_iter()
+        .fold((config.min_score, "`min_score`"), |a, b| {
+            if b.0 > a.0 {
+                b
+            } else {
+                a
+            }
+        });
+    match start > config.min_score {
+        true => format!(
+            "detections scoring under {} are not used (`min_score`), and only those scoring at \
+             least {start} start a track ({name})",
+            config.min_score
+        ),
+        false => format!(
+            "detections scoring under {} are not used (`min_score`)",
+            config.min_score
+        ),
+    }
 }
 
 /// The warning for frames whose crowd was matched cheapest pair first.
