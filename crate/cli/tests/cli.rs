@@ -330,6 +330,17 @@ fn a_bad_plan_is_refused_before_tracking_and_names_the_field() {
         "{e}"
     );
     assert!(e.contains("expected a number"), "{e}");
+    // A misspelt field inside a zone is not blamed on the field before it (a newcomer's trial
+    // found "`name`: unknown field `poligon`").
+    let zone = write(
+        &dir,
+        "zone.json",
+        b"{\n  \"frame_rate\": 25,\n  \"zones\": [{\"name\": \"kiosk\", \"poligon\": [[0,0],[9,0],[9,9]]}]\n}\n",
+    );
+    let o = throughline(&["count", &demo("truth.txt"), "--plan", &zone]);
+    let e = stderr(&o);
+    assert!(e.contains("unknown field `poligon`"), "{e}");
+    assert!(!e.contains("`name`: unknown"), "{e}");
 }
 
 #[test]
@@ -810,7 +821,7 @@ fn an_empty_plan_and_a_tracks_box_of_negative_width_say_what_is_wrong() {
 }
 
 #[test]
-fn count_and_run_word_an_empty_file_alike() {
+fn count_and_run_say_the_file_is_empty() {
     // Found by a newcomer's trial: `run` said "the file is empty" and `count` "no rows found".
     let dir = scratch("empty_inputs");
     let empty = write(&dir, "empty.txt", b"\n");
@@ -828,7 +839,27 @@ fn count_and_run_word_an_empty_file_alike() {
     }
     let comments = write(&dir, "comments.txt", b"# frame,id,x,y,w,h\n");
     let o = throughline(&["count", &comments, "--plan", &demo("plan.json")]);
-    assert!(stderr(&o).contains("no rows found, only comments"));
+    assert!(stderr(&o).contains("comments.txt: the file has only comments, no rows: expected "));
+    assert!(
+        stderr(&o).contains("or the tracks JSON that `throughline track -o tracks.json` writes")
+    );
+    // A JSON array is read as JSON, and told what a tracks document is.
+    let array = write(&dir, "array.json", b"[]");
+    let o = throughline(&["count", &array, "--plan", &demo("plan.json")]);
+    assert!(
+        stderr(&o).contains("expected a Throughline tracks document"),
+        "{}",
+        stderr(&o)
+    );
+    // Ground truth is benchmark text only: `score` does not offer the JSON.
+    let tracks = write(&dir, "t.txt", b"1,1,10,20,30,40,1,-1,-1,-1\n");
+    let o = throughline(&["score", &tracks, "--truth", &empty]);
+    assert!(
+        stderr(&o).contains("empty.txt: the file is empty"),
+        "{}",
+        stderr(&o)
+    );
+    assert!(!stderr(&o).contains("tracks JSON"), "{}", stderr(&o));
 }
 
 #[test]

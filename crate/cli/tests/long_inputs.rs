@@ -266,3 +266,34 @@ fn a_file_with_no_confirmed_track_says_which_setting_to_lower() {
     assert!(stderr(&o).contains("1 track with sort"), "{}", stderr(&o));
     assert!(!stderr(&o).contains("no track was kept"), "{}", stderr(&o));
 }
+
+/// Boxes that continue tracks but start none (deepsort's 0.1–0.3): the note names `start_score`,
+/// the setting that decides, and lowering it does the job. Found in review: the note named only
+/// `min_score`, and lowering that changed nothing.
+#[test]
+fn low_scoring_boxes_that_start_no_track_name_start_score() {
+    let dir = scratch("long_low_scores");
+    let mut csv = String::from("frame,x,y,w,h,score,class,e0,e1\n");
+    for f in 1..=10 {
+        csv.push_str(&format!(
+            "{f},{},100,20,50,0.2,pedestrian,1,0\n",
+            10 + 4 * f
+        ));
+    }
+    let low = write(&dir, "low.csv", csv.as_bytes());
+    let out = dir.join("tracks.json").display().to_string();
+    let o = throughline(&["track", &low, "-o", &out]);
+    let said = stderr(&o);
+    assert!(said.contains("no track was kept"), "{said}");
+    assert!(
+        said.contains("only those scoring at least 0.3 start a track (`start_score`)"),
+        "{said}"
+    );
+    let settings = write(&dir, "settings.json", br#"{"start_score": 0}"#);
+    let o = throughline(&["track", &low, "-o", &out, "--config", &settings]);
+    assert!(
+        stderr(&o).contains("1 track with deepsort"),
+        "{}",
+        stderr(&o)
+    );
+}

@@ -55,12 +55,20 @@ pub fn run(args: Args) -> Result<(), Failure> {
     let plan = read_plan(&args.plan)?;
     let (work, _project) = read_work(args.edits.as_deref())?;
     let bytes = read_file(path)?;
-    let (tracks, tracker) = if looks_like_json_object(&bytes) {
+    // A JSON array is no tracks document either, but the JSON reader says what one is.
+    let json = looks_like_json_object(&bytes)
+        || bytes.iter().find(|b| !b.is_ascii_whitespace()) == Some(&b'[');
+    let (tracks, tracker) = if json {
         let t = tracks_io::from_json(&bytes).map_err(|e| bad_input(path, e))?;
         let config = t.config.clone();
         (t, Some(config))
     } else {
-        let boxes = tracks_io::read_benchmark_boxes(&bytes).map_err(|e| bad_input(path, e))?;
+        let boxes = tracks_io::read_benchmark_boxes(&bytes).map_err(|mut e| {
+            if e.kind == throughline_core::error::ErrorKind::Empty {
+                e.message += ", or the tracks JSON that `throughline track -o tracks.json` writes";
+            }
+            bad_input(path, e)
+        })?;
         if !args.quiet {
             eprintln!(
                 "note: {}: benchmark text carries no classes, so every count is unclassified; \

@@ -207,8 +207,10 @@ impl Plan {
         let spec: PlanSpec = serde_json::from_str(text).map_err(|e| {
             let err = Error::from_json(ErrorKind::Plan, &e, " (see docs/plan-format.md)");
             // A value of the wrong kind (`"frame_rate": "25"`): serde_json says where, not
-            // which field; the key written before it on its line says.
-            let key = e.is_data().then(|| key_before(text, e.line(), e.column()));
+            // which field; the key written before it on its line says. (Not for an unknown or
+            // missing field: the key before is another field, or the object's own.)
+            let wrong_value = e.is_data() && e.to_string().starts_with("invalid ");
+            let key = wrong_value.then(|| key_before(text, e.line(), e.column()));
             match key.flatten() {
                 Some(k) => err.in_field(k),
                 None => err,

@@ -313,14 +313,11 @@ pub fn read_benchmark_boxes(bytes: &[u8]) -> Result<Vec<IdBox>, Error> {
     if out.is_empty() {
         let what = match text.trim().is_empty() {
             true => "the file is empty",
-            false => "no rows found, only comments",
+            false => "the file has only comments, no rows",
         };
         return Err(Error::new(
             ErrorKind::Empty,
-            format!(
-                "{what}: expected tracks or ground truth as benchmark text \
-                 (frame,id,x,y,w,h lines), or the tracks JSON that `throughline track` writes"
-            ),
+            format!("{what}: expected benchmark text, lines of frame,id,x,y,w,h"),
         ));
     }
     Ok(out)
