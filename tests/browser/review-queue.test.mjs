@@ -73,7 +73,7 @@ test("the queue leads to the demo's double count; rejecting it gives the line's 
   await page.keyboard.press("n");
   await page.waitForFunction(() => document.getElementById("clock").textContent.startsWith("frame 500 "));
   const strip = await page.locator("#focus-strip").innerText();
-  assert.match(strip, /Doubtful moment 1 of \d+ · 0:19\.95 · tracks 20 and 25 · two crossings close together, counted while hidden/);
+  assert.match(strip, /Doubtful moment 1 of \d+ · 0:19\.96 · tracks 20 and 25 · two crossings close together, counted while hidden/);
   await screenshot(page, "15-queue-first", { fullPage: false });
   await page.keyboard.press("r");
   await page.keyboard.type("one walker counted twice");

@@ -62,7 +62,9 @@ export class FocusStrip {
     const n = this.store.doubts.findIndex((x) => x.key === d.key);
     const decision = this.store.work.marks.get(d.key);
     const place = n >= 0 ? `Doubtful moment ${n + 1} of ${this.store.doubts.length}` : "Doubtful moment (corrected: no longer in the queue)";
-    const parts = [place, clockText(d.seconds), doubtTracks(d), doubtHeadline(d)];
+    // The time of the frame the footage goes to, as the clock under the picture shows it (a
+    // crossing's own moment falls between two frames).
+    const parts = [place, clockText((d.frame - 1) / this.store.fps), doubtTracks(d), doubtHeadline(d)];
     if (decision) parts.push(decision === "accepted" ? "\u2713 accepted" : "\u2717 rejected");
     this.what.replaceChildren(el("span", { class: "doubt-mark", "aria-hidden": "true", text: "\u25CC " }), parts.filter(Boolean).join(" · "));
     this.buttons.replaceChildren(
