@@ -70,6 +70,15 @@ pub fn run(args: Args) -> Result<(), Failure> {
         );
     }
     println!("all: {}", measures(&acc.overall));
+    if acc.automated_not_compared > 0 {
+        eprintln!(
+            "warning: {} of the report's counts are of classes the reference does not name for their \
+             line and direction (tracks without classes count as `unclassified`), so they are left \
+             out of the comparison: count tracks that carry classes (the tracks JSON, or `run`), or \
+             compare all classes together with the reference's class left empty or `all`",
+            acc.automated_not_compared
+        );
+    }
     if acc.unmatched_reference_rows > 0 {
         eprintln!(
             "warning: {} reference rows name a screenline or direction the report does not have",

@@ -155,6 +155,10 @@ pub struct Accuracy {
     pub overall: Measures,
     /// Reference rows whose screenline and direction the automated counts do not have.
     pub unmatched_reference_rows: usize,
+    /// Automated counts left out: of a class no reference row of their screenline and direction
+    /// names, where no reference row counts all classes together (e.g. unclassified counts from
+    /// tracks without classes, against a manual count by class).
+    pub automated_not_compared: u64,
 }
 
 /// The measures over pairs of (automated, reference) counts, one pair per interval.
@@ -243,9 +247,35 @@ pub fn compare(automated: &[CountRow], reference: &[CountRow]) -> Accuracy {
             }
         })
         .collect();
+    let not_compared = not_compared(automated, reference);
     Accuracy {
         groups,
         overall: measures(&all_pairs),
         unmatched_reference_rows: unmatched,
+        automated_not_compared: not_compared,
     }
+}
+
+/// The automated counts no reference row compares: see [`Accuracy::automated_not_compared`].
+fn not_compared(automated: &[CountRow], reference: &[CountRow]) -> u64 {
+    let line = |r: &CountRow| (r.screenline.clone(), r.direction.clone());
+    let all_classes: std::collections::BTreeSet<_> = reference
+        .iter()
+        .filter(|r| r.class.is_none())
+        .map(line)
+        .collect();
+    let classes: std::collections::BTreeSet<_> = reference
+        .iter()
+        .filter_map(|r| Some((line(r), r.class.clone()?)))
+        .collect();
+    let lines: std::collections::BTreeSet<_> = reference.iter().map(line).collect();
+    automated
+        .iter()
+        .filter(|r| {
+            let class = r.class.clone().unwrap_or_else(|| "all".into());
+            lines.contains(&line(r))
+                && !all_classes.contains(&line(r))
+                && !classes.contains(&(line(r), class))
+        })
+        .fold(0u64, |sum, r| sum.saturating_add(r.count))
 }
