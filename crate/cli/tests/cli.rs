@@ -487,6 +487,59 @@ fn score_counts_compares_a_report_with_a_manual_count() {
     assert!(stderr(&o).contains("direction labels"), "{}", stderr(&o));
 }
 
+/// The table a person reads: rows with no crossing either way are left out (and said to be), the
+/// pooled row says what it pools; counts from tracks without classes against a count by class
+/// are said to be left out (a newcomer's trial: "0 vs 33, APD -100.0%" and nothing else).
+#[test]
+fn score_counts_table_reads_plainly_and_says_what_it_leaves_out() {
+    let dir = scratch("score_counts_plain");
+    let report = dir.join("report.json").display().to_string();
+    let o = throughline(&[
+        "run",
+        &demo("detections.csv"),
+        "--plan",
+        &demo("plan.json"),
+        "-o",
+        &report,
+        "-q",
+    ]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let o = throughline(&[
+        "score-counts",
+        "--truth",
+        &demo("truth_counts.csv"),
+        &report,
+    ]);
+    let table = String::from_utf8_lossy(&o.stdout).to_string();
+    assert!(!table.contains(" 0 vs 0,"), "{table}");
+    assert!(
+        table.contains("more with no crossing in either count"),
+        "{table}"
+    );
+    assert!(table.contains("all rows pooled: "), "{table}");
+    // Tracks as benchmark text carry no classes: their counts are `unclassified`.
+    let tracks = dir.join("tracks.txt").display().to_string();
+    let o = throughline(&["track", &demo("detections.csv"), "-o", &tracks, "-q"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let plain = dir.join("plain.json").display().to_string();
+    let o = throughline(&[
+        "count",
+        &tracks,
+        "--plan",
+        &demo("plan.json"),
+        "-o",
+        &plain,
+        "-q",
+    ]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let o = throughline(&["score-counts", "--truth", &demo("truth_counts.csv"), &plain]);
+    assert!(
+        stderr(&o).contains("of classes the reference does not name for their line and direction"),
+        "{}",
+        stderr(&o)
+    );
+}
+
 #[test]
 fn tune_prints_a_settings_file_that_track_accepts() {
     let dir = scratch("tune");

@@ -60,7 +60,10 @@ pub fn run(args: Args) -> Result<(), Failure> {
         return Ok(());
     }
     println!("screenline / direction / class: intervals, automated vs reference, APD, AAPD, WAPD, correction factor");
-    for g in &acc.groups {
+    let counted = |g: &&accuracy::GroupAccuracy| {
+        g.measures.automated_total > 0 || g.measures.reference_total > 0
+    };
+    for g in acc.groups.iter().filter(counted) {
         println!(
             "{} / {} / {}: {}",
             g.screenline,
@@ -69,7 +72,18 @@ pub fn run(args: Args) -> Result<(), Failure> {
             measures(&g.measures)
         );
     }
-    println!("all: {}", measures(&acc.overall));
+    let quiet = acc.groups.len() - acc.groups.iter().filter(counted).count();
+    if quiet > 0 {
+        println!("({quiet} more with no crossing in either count; --json lists them)");
+    }
+    println!(
+        "all rows pooled: {}",
+        measures(&acc.overall).replacen(
+            "intervals",
+            "line, direction, class and interval cells",
+            1
+        )
+    );
     if acc.automated_not_compared > 0 {
         eprintln!(
             "warning: {} of the report's counts are of classes the reference does not name for their \
