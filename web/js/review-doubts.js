@@ -83,7 +83,7 @@ export class DoubtList {
     const place = new Map(doubts.map((d, i) => [d.key, i + 1]));
     this.buttons = new Map();
     const rows = shown.slice(0, this.rowsDrawn).map((d) => {
-      const b = el("button", { type: "button", class: "doubt", onclick: () => this.chosen(d) }, doubtRow(d, place.get(d.key) || 0, marks.get(d.key)));
+      const b = el("button", { type: "button", class: "doubt", onclick: () => this.chosen(d) }, doubtRow(d, place.get(d.key) || 0, marks.get(d.key), this.store.fps));
       this.buttons.set(d.key, b);
       return el("li", {}, b);
     });
@@ -173,13 +173,14 @@ export class DoubtList {
  * @param {Doubt} d
  * @param {number} n its place in the queue, from 1
  * @param {import("./work.js").Decision | undefined} decision
+ * @param {number} fps the frame rate: the time shown is the frame's, as the clock under the picture shows it
  */
-function doubtRow(d, n, decision) {
+function doubtRow(d, n, decision, fps) {
   const badge = decision ? el("span", { class: `decision ${decision}`, text: decision === "accepted" ? "\u2713 accepted" : "\u2717 rejected" }) : null;
   const where = [doubtTracks(d), `frame ${d.frame}`];
   if (d.time) where.push(d.time.slice(11));
   return [
-    el("span", { class: "when", text: clockText(d.seconds) }),
+    el("span", { class: "when", text: clockText((d.frame - 1) / fps) }),
     el("span", { class: "what" }, [`${n}. ${doubtHeadline(d)}`, badge ? " " : null, badge]),
     el("span", { class: "detail" }, [...d.why.map((w) => el("span", { class: "why", text: w })), el("span", { text: where.join(" · ") })]),
   ];

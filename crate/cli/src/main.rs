@@ -23,8 +23,9 @@ use std::process::ExitCode;
 #[command(
     name = "throughline",
     version,
-    about = "Turn detections from video into tracks, on your own computer.",
-    long_about = "Turn detections from video into tracks, on your own computer.\n\n\
+    about = "Turn detections from video, or the footage itself, into tracks and counts by line, direction, class and interval, on your own computer.",
+    long_about = "Turn detections from video, or the footage itself, into tracks and counts by line, \
+    direction, class and interval, on your own computer.\n\n\
                   Nothing is uploaded: every file stays where it is. Boxes are pixels, top-left x,y then \
                   width,height; frames are numbered from 1."
 )]

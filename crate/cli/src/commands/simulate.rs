@@ -146,13 +146,23 @@ pub fn run(args: Args) -> Result<(), Failure> {
         files.write(&targets[4], &report::counts_csv(&report))?;
     }
     files.commit()?;
+    let written = if plan.is_some() {
+        &names[..]
+    } else {
+        &names[..3]
+    };
     eprintln!(
-        "simulated {} frames: {} true boxes of {} agents, {} detections, written to {}",
+        "simulated {} frames: {} true boxes of {} agents, {} detections, written to {} ({}{})",
         cfg.frames,
         scene.truth.len(),
         scene.truth_classes.len(),
         scene.detections.rows.len(),
-        dir.display()
+        dir.display(),
+        written.join(", "),
+        match &plan {
+            Some(_) => "; the last two are the true counts, to compare with `score-counts`",
+            None => "; give --plan to have the true counts too",
+        }
     );
     Ok(())
 }
