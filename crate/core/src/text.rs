@@ -67,12 +67,16 @@ pub fn wrong_field_count(found: usize, want: usize, text: &str, line: usize) -> 
     let other = [(';', "semicolons"), ('\t', "tabs")]
         .into_iter()
         .find(|(c, _)| text.contains(*c));
-    let hint = other.map_or(String::new(), |(_, name)| {
-        format!(
+    let hint = match other {
+        Some((_, name)) => format!(
             "; fields are separated by commas, and this line has {name} (a spreadsheet set to \
              another language may save them so)"
-        )
-    });
+        ),
+        None if found < want => "; give a value for each column the header names, in its order \
+             (a value not known is left empty between two commas)"
+            .to_string(),
+        None => "; a value holding a comma must be in double quotes".to_string(),
+    };
     Error::new(
         ErrorKind::WrongColumnCount,
         format!("{found} {fields}, but the header names {want} columns{hint}"),

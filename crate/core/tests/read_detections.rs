@@ -192,6 +192,21 @@ fn bad_input_names_the_place_and_the_fix() {
         None,
         "header names 6",
     );
+    // A value missing or one too many: what to do is said (a newcomer's trial).
+    check_err(
+        b"frame,x,y,w,h,score,class\n1,2,3,4,5,0.9\n",
+        WrongColumnCount,
+        Some(2),
+        None,
+        "6 fields, but the header names 7 columns; give a value for each column the header names",
+    );
+    check_err(
+        b"frame,x,y,w,h,score,class\n1,2,3,4,5,0.9,car,red\n",
+        WrongColumnCount,
+        Some(2),
+        None,
+        "must be in double quotes",
+    );
     // Semicolons (a spreadsheet saving in another language's way) are named as the cause.
     check_err(
         b"frame,x,y,w,h,score\n1;2;3;4;5;0.9\n",
