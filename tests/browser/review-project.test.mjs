@@ -93,6 +93,17 @@ test("a project tracked before DeepSORT kept low-score boxes is tracked as it wa
   assert.deepEqual(JSON.parse(text).tracking, { settings: { min_score: 0.3, start_score: 0 } });
   writeFileSync(again, text);
   assert.equal(replay(again), want);
+  // With settings of its own, the older defaults go under them, as on the command line.
+  const own = join(scratch, "tracked-own.json");
+  writeFileSync(own, JSON.stringify({ ...saved, generator: "throughline 0.2.0", tracking: { settings: { max_age: 5 } }, edits: [] }));
+  await page.getByLabel("Open project").setInputFiles(own);
+  await page.waitForFunction(() => /tracked-own\.json was tracked by/.test(document.getElementById("messages").textContent));
+  await page.getByRole("button", { name: "Run", exact: true }).click();
+  await countedWith(page, 0);
+  const ownReport = await pageReport(page);
+  assert.equal(ownReport, replay(own));
+  const { max_age, min_score, start_score } = JSON.parse(ownReport).tracker;
+  assert.deepEqual({ max_age, min_score, start_score }, { max_age: 5, min_score: 0.3, start_score: 0 });
   assert.deepEqual(seen.errors, []);
   await page.close();
 });

@@ -32,7 +32,7 @@
 /**
  * Choices kept with the plan: the tracking method, the longest gap in the detections to bridge with
  * the footage (frames, as typed; "" or "0": off) and the detector's two heights.
- * @typedef {{method: string, bridgeFrames?: string, farHeight?: string, nearHeight?: string, tracker?: string}} Settings
+ * @typedef {{method: string, bridgeFrames?: string, farHeight?: string, nearHeight?: string, tracker?: string, trackerFor?: string}} Settings
  */
 
 const STORAGE_KEY = "throughline.work.v1";
@@ -255,7 +255,7 @@ export class PlanHistory {
   }
 
   /**
-   * @param {"method" | "bridgeFrames" | "farHeight" | "nearHeight" | "tracker"} key
+   * @param {"method" | "bridgeFrames" | "farHeight" | "nearHeight" | "tracker" | "trackerFor"} key
    * @param {string} value
    */
   setSetting(key, value) {

@@ -142,8 +142,11 @@ export class ProjectPanel {
     const method = project.tracking ? project.tracking.method || "" : "";
     const older = facts && facts.generators_before_low_score_boxes.some((g) => by.startsWith(g)) && (method === "" || method === "deepsort");
     if (!facts || !older) return this.messages.clear("project-tracking");
-    if (!this.store.settings.tracker) this.store.plans.setSetting("tracker", facts.settings_before_low_score_boxes);
-    this.messages.say("project-tracking", "ok", `${name} was tracked by ${by}, whose DeepSORT used no box scoring under 0.3 and let any box it used start a track; it is tracked the same way here, so that its corrections meet their tracks. It is saved with those settings.`);
+    // The older defaults under the project's own settings, as the command line lays them.
+    const merged = { ...JSON.parse(facts.settings_before_low_score_boxes), ...JSON.parse(this.store.settings.tracker || "{}") };
+    this.store.plans.setSetting("tracker", JSON.stringify(merged));
+    this.store.plans.setSetting("trackerFor", method);
+    this.messages.say("project-tracking", "ok", `${name} was tracked by ${by}, whose DeepSORT used no box scoring under 0.3 and let any box it used start a track; it is tracked the same way here while the method stays ${method === "" ? "the best for these detections" : method}, so that its corrections meet their tracks, and saved with those settings.`);
   }
 
   /** Says so when the footage or detections open are not those the work was made with. */
@@ -180,7 +183,7 @@ function trackingOf(settings) {
   /** @type {{method?: string, settings?: Record<string, unknown>}} */
   const tracking = settings.method ? { method: settings.method } : {};
   /** @type {Record<string, unknown>} */
-  const fields = settings.tracker ? JSON.parse(settings.tracker) : {};
+  const fields = settings.tracker && (settings.trackerFor || "") === (settings.method || "") ? JSON.parse(settings.tracker) : {};
   const bridge = Number(settings.bridgeFrames || "");
   if (Number.isInteger(bridge) && bridge > 0) fields.bridge_frames = bridge;
   if (Object.keys(fields).length) tracking.settings = fields;

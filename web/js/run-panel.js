@@ -170,9 +170,9 @@ export class RunPanel {
     }
     // Settings the page has no field for (an older project's) apply to the method they were for.
     const method = this.method.value;
-    const tracker = this.store.settings.tracker;
+    const { tracker, trackerFor } = this.store.settings;
     /** @type {Record<string, unknown>} */
-    const fields = tracker && (method === "" || method === "deepsort") ? JSON.parse(tracker) : {};
+    const fields = tracker && (trackerFor || "") === method ? JSON.parse(tracker) : {};
     if (n > 0) fields.bridge_frames = n;
     const settings = Object.keys(fields).length ? JSON.stringify(fields) : "";
     const { footage, video } = this.store;

@@ -462,8 +462,10 @@ export class PageStore {
     this.plans.setSetting("method", tracking.method || "");
     const { bridge_frames: bridge, ...others } = tracking.settings || {};
     this.plans.setSetting("bridgeFrames", bridge === undefined ? "" : String(bridge));
-    // Settings the page has no field for (an older project's, to track as it did) are kept whole.
+    // Settings the page has no field for (an older project's, to track as it did) are kept whole,
+    // with the method they are for: they apply, and are saved, only while it is the one chosen.
     this.plans.setSetting("tracker", Object.keys(others).length ? JSON.stringify(others) : "");
+    this.plans.setSetting("trackerFor", tracking.method || "");
     this.planName = `${name} (project)`;
     /** @type {import("./work.js").Extras} */
     const extras = {};

@@ -398,4 +398,26 @@ fn a_project_tracked_before_low_score_boxes_is_tracked_as_it_was() {
     let (applied, said) = replay(&format!("throughline {}", env!("CARGO_PKG_VERSION")));
     assert_eq!(applied, Some(false), "{said}");
     assert!(!said.contains("tracked with"), "{said}");
+    // With settings of one's own, the older ones are not laid under them: the note says what to add.
+    let settings = write(&dir, "mine.json", br#"{"max_age": 50}"#);
+    let old = dir.join("throughline-0.2.0.json").display().to_string();
+    let o = throughline(&[
+        "run",
+        &demo("detections.csv"),
+        "--plan",
+        &demo("plan.json"),
+        "--edits",
+        &old,
+        "--config",
+        &settings,
+        "-o",
+        &dir.join("mine.json.report").display().to_string(),
+    ]);
+    assert!(
+        stderr(&o).contains(
+            r#"To track as it did, put {"min_score":0.3,"start_score":0} in the settings file"#
+        ),
+        "{}",
+        stderr(&o)
+    );
 }

@@ -20,8 +20,9 @@ pub const FORMAT: &str = "throughline-project";
 /// Version of the project file's layout.
 pub const VERSION: u32 = 1;
 
-/// How the `generator` of a project tracked before `deepsort` kept low-score boxes begins.
-pub const GENERATORS_BEFORE_LOW_SCORE_BOXES: [&str; 2] = ["throughline 0.1.", "throughline 0.2."];
+/// How the `generator` of a project tracked before `deepsort` kept low-score boxes begins (0.2.x;
+/// 0.1.x's `deepsort` differed in more than this, and its projects are tracked with today's).
+pub const GENERATORS_BEFORE_LOW_SCORE_BOXES: [&str; 1] = ["throughline 0.2."];
 
 /// The tracker settings of those versions' `deepsort` where today's differ: boxes used from 0.3,
 /// and any of them may start a track.
@@ -116,7 +117,7 @@ impl Project {
     }
 
     /// Whether the project was tracked by a version whose `deepsort` used no box scoring under
-    /// 0.3 and let any box it used start a track (before 0.3.0), with a method that is or may be
+    /// 0.3 and let any box it used start a track (0.2.x), with a method that is or may be
     /// `deepsort` (none named: the default for detections with appearance vectors).
     pub fn tracked_before_low_score_boxes(&self) -> bool {
         GENERATORS_BEFORE_LOW_SCORE_BOXES

@@ -29,7 +29,7 @@ struct CoreFacts {
     max_bridge_frames: u32,
     generator_before_averaged_paths: &'static str,
     hysteresis_before_averaged_paths: f64,
-    generators_before_low_score_boxes: [&'static str; 2],
+    generators_before_low_score_boxes: [&'static str; 1],
     settings_before_low_score_boxes: &'static str,
 }
 

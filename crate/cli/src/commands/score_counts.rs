@@ -89,7 +89,8 @@ pub fn run(args: Args) -> Result<(), Failure> {
             "warning: {} of the report's counts are of classes the reference does not name for their \
              line and direction (tracks without classes count as `unclassified`), so they are left \
              out of the comparison: count tracks that carry classes (the tracks JSON, or `run`), or \
-             compare all classes together with the reference's class left empty or `all`",
+             compare all classes together with a counts CSV as the reference whose class column \
+             is `all` (or empty)",
             acc.automated_not_compared
         );
     }

@@ -177,6 +177,20 @@ pub fn with_project<'a>(
             p.generator
         );
     }
+    let chosen_here = how.method.is_some() || how.config.is_some();
+    if let Some((path, p)) =
+        project.filter(|(_, p)| !how.quiet && chosen_here && p.tracked_before_low_score_boxes())
+    {
+        eprintln!(
+            "note: {} was tracked by {}, whose `deepsort` used no box scoring under 0.3 and let any \
+             box it used start a track; with --method or --config given here, this version's \
+             defaults apply where those are silent, so some of its corrections may not meet their \
+             tracks. To track as it did, put {} in the settings file",
+            path.display(),
+            p.generator,
+            throughline_core::project::SETTINGS_BEFORE_LOW_SCORE_BOXES
+        );
+    }
     let recorded = project.filter(|(_, p)| {
         how.method.is_none()
             && how.config.is_none()

@@ -155,9 +155,10 @@ pub struct Accuracy {
     pub overall: Measures,
     /// Reference rows whose screenline and direction the automated counts do not have.
     pub unmatched_reference_rows: usize,
-    /// Automated counts left out: of a class no reference row of their screenline and direction
-    /// names, where no reference row counts all classes together (e.g. unclassified counts from
-    /// tracks without classes, against a manual count by class).
+    /// Automated counts left out for their class: of a class no reference row of their screenline
+    /// and direction names, where no reference row counts all classes together (e.g. unclassified
+    /// counts from tracks without classes, against a manual count by class). Counts of intervals
+    /// the reference lacks are not among them.
     pub automated_not_compared: u64,
 }
 

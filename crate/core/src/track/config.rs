@@ -85,8 +85,8 @@ pub struct TrackerConfig {
     /// Frames a tentative track may go unseen and still be confirmed later (0: it ends at its
     /// first missed frame, as in the published methods). While it waits, a track seen in the
     /// frame whose box covers its predicted box (IoU at least `tracker::TAKEN_IOU`) ends it: its
-    /// person went to that track. Written out only when not 0.
-    #[serde(default, skip_serializing_if = "is_zero")]
+    /// person went to that track. Written out when not 0, or 0 for a method whose default is not.
+    #[serde(default)]
     pub tentative_max_age: u32,
     /// Least score of a detection that starts a new track; one scoring from `min_score` up to this
     /// only continues a track already followed (as ByteTrack's second stage keeps low-score boxes,
@@ -273,6 +273,12 @@ impl TrackerConfig {
         ];
         for (name, v) in unit {
             if !(0.0..=1.0).contains(&v) {
+                if name.ends_with("_score") {
+                    return Err(settings_error(format!(
+                        "`{name}` is {v}, but must be between 0 and 1: scores are read as 0..1 \
+                         (a percentage divided by 100)"
+                    )));
+                }
                 return Err(settings_error(format!(
                     "`{name}` is {v}, but must be between 0 and 1"
                 )));
