@@ -441,15 +441,7 @@ fn the_committed_demo_footage_decodes_and_matches_its_detections() {
 fn score_counts_compares_a_report_with_a_manual_count() {
     let dir = scratch("score_counts");
     let report = dir.join("report.json").display().to_string();
-    let o = throughline(&[
-        "run",
-        &demo("detections.csv"),
-        "--plan",
-        &demo("plan.json"),
-        "-o",
-        &report,
-        "-q",
-    ]);
+    let o = run_demo(&["-o", &report, "-q"]);
     assert!(o.status.success(), "{}", stderr(&o));
     // The simulator's true counts, in the counts CSV layout, stand in for a manual count.
     let o = throughline(&[
@@ -494,15 +486,7 @@ fn score_counts_compares_a_report_with_a_manual_count() {
 fn score_counts_table_reads_plainly_and_says_what_it_leaves_out() {
     let dir = scratch("score_counts_plain");
     let report = dir.join("report.json").display().to_string();
-    let o = throughline(&[
-        "run",
-        &demo("detections.csv"),
-        "--plan",
-        &demo("plan.json"),
-        "-o",
-        &report,
-        "-q",
-    ]);
+    let o = run_demo(&["-o", &report, "-q"]);
     assert!(o.status.success(), "{}", stderr(&o));
     let o = throughline(&[
         "score-counts",

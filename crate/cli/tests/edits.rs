@@ -373,16 +373,7 @@ fn a_project_tracked_before_low_score_boxes_is_tracked_as_it_was() {
             project.to_string().as_bytes(),
         );
         let out = dir.join("report.json").display().to_string();
-        let o = throughline(&[
-            "run",
-            &demo("detections.csv"),
-            "--plan",
-            &demo("plan.json"),
-            "--edits",
-            &file,
-            "-o",
-            &out,
-        ]);
+        let o = run_demo(&["--edits", &file, "-o", &out]);
         assert!(o.status.success(), "{}", stderr(&o));
         let report: serde_json::Value =
             serde_json::from_str(&std::fs::read_to_string(&out).unwrap()).unwrap();
@@ -401,18 +392,8 @@ fn a_project_tracked_before_low_score_boxes_is_tracked_as_it_was() {
     // With settings of one's own, the older ones are not laid under them: the note says what to add.
     let settings = write(&dir, "mine.json", br#"{"max_age": 50}"#);
     let old = dir.join("throughline-0.2.0.json").display().to_string();
-    let o = throughline(&[
-        "run",
-        &demo("detections.csv"),
-        "--plan",
-        &demo("plan.json"),
-        "--edits",
-        &old,
-        "--config",
-        &settings,
-        "-o",
-        &dir.join("mine.json.report").display().to_string(),
-    ]);
+    let out = dir.join("mine-report.json").display().to_string();
+    let o = run_demo(&["--edits", &old, "--config", &settings, "-o", &out]);
     assert!(
         stderr(&o).contains(
             r#"To track as it did, put {"min_score":0.3,"start_score":0} in the settings file"#

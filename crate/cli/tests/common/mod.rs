@@ -37,6 +37,15 @@ pub fn demo(file: &str) -> String {
         .to_string()
 }
 
+/// `throughline run` on the demo's detections (CSV) and plan, with `more` arguments after them.
+#[allow(dead_code)] // not every test file uses it
+pub fn run_demo(more: &[&str]) -> Output {
+    let (detections, plan) = (demo("detections.csv"), demo("plan.json"));
+    let mut args = vec!["run", &detections, "--plan", &plan];
+    args.extend_from_slice(more);
+    throughline(&args)
+}
+
 /// Whether ffmpeg and ffprobe run. When they do not, the test `name` says it is skipped (on the
 /// terminal itself: the test harness keeps back what `eprintln!` prints from a passing test), or
 /// fails when `THROUGHLINE_REQUIRE_FFMPEG` is `1`.
