@@ -69,7 +69,7 @@ pub fn run(args: Args) -> Result<(), Failure> {
             g.screenline,
             g.direction,
             g.class,
-            measures(&g.measures)
+            measures(&g.measures, "interval")
         );
     }
     let quiet = acc.groups.len() - acc.groups.iter().filter(counted).count();
@@ -78,11 +78,7 @@ pub fn run(args: Args) -> Result<(), Failure> {
     }
     println!(
         "all rows pooled: {}",
-        measures(&acc.overall).replacen(
-            "intervals",
-            "line, direction, class and interval cells",
-            1
-        )
+        measures(&acc.overall, "line, direction, class and interval cell")
     );
     if acc.automated_not_compared > 0 {
         eprintln!(
@@ -104,11 +100,12 @@ pub fn run(args: Args) -> Result<(), Failure> {
 }
 
 /// One row of the table: intervals, totals, APD, AAPD, WAPD and the correction factor.
-fn measures(m: &Measures) -> String {
+fn measures(m: &Measures, what: &str) -> String {
     let pct = |v: Option<f64>| v.map_or("   n/a".to_string(), |x| format!("{:+6.1}%", 100.0 * x));
     let factor = |v: Option<f64>| v.map_or("n/a".to_string(), |x| format!("{x:.3}"));
+    let plural = if m.intervals == 1 { "" } else { "s" };
     format!(
-        "{} intervals, {} vs {}, APD {}, AAPD {}, WAPD {}, factor {}",
+        "{} {what}{plural}, {} vs {}, APD {}, AAPD {}, WAPD {}, factor {}",
         m.intervals,
         m.automated_total,
         m.reference_total,
@@ -164,10 +161,10 @@ fn tallies(truth: &Path, report_path: &Path, bytes: &[u8], json: bool) -> Result
                 g.class,
                 g.manual,
                 g.automated,
-                measures(&g.measures)
+                measures(&g.measures, "interval")
             );
         }
-        println!("  all: {}", measures(&c.overall));
+        println!("  all: {}", measures(&c.overall, "interval"));
         println!("  {}", c.caution);
     }
     Ok(())
