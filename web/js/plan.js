@@ -38,6 +38,17 @@
 const STORAGE_KEY = "throughline.work.v1";
 const UNDO_DEPTH = 100;
 
+/**
+ * The tracker settings the page has no field for (an older project's) that apply with `method`:
+ * a fresh object, empty unless they were kept for that method.
+ * @param {Settings} settings
+ * @param {string} method "" for the best for the detections
+ * @returns {Record<string, unknown>}
+ */
+export function trackerFields(settings, method) {
+  return settings.tracker && (settings.trackerFor || "") === method ? JSON.parse(settings.tracker) : {};
+}
+
 /** @returns {Plan} */
 export function emptyPlan(frameRate = 25) {
   return { frame_rate: frameRate, interval_minutes: 15, anchor: "bottom", screenlines: [], zones: [] };

@@ -7,7 +7,7 @@
 // with says so, in a message.
 
 import { byId, download, showValue } from "./dom.js";
-import { planForCore } from "./plan.js";
+import { planForCore, trackerFields } from "./plan.js";
 
 /** @typedef {import("./store.js").PageStore} PageStore */
 /** @typedef {import("./core-client.js").CoreClient} CoreClient */
@@ -182,8 +182,7 @@ export function projectFileName(site) {
 function trackingOf(settings) {
   /** @type {{method?: string, settings?: Record<string, unknown>}} */
   const tracking = settings.method ? { method: settings.method } : {};
-  /** @type {Record<string, unknown>} */
-  const fields = settings.tracker && (settings.trackerFor || "") === (settings.method || "") ? JSON.parse(settings.tracker) : {};
+  const fields = trackerFields(settings, settings.method || "");
   const bridge = Number(settings.bridgeFrames || "");
   if (Number.isInteger(bridge) && bridge > 0) fields.bridge_frames = bridge;
   if (Object.keys(fields).length) tracking.settings = fields;

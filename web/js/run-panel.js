@@ -6,7 +6,7 @@
 // so the counts on screen stay as they were and go on answering plan changes.
 
 import { byId, el } from "./dom.js";
-import { hasCountingGeometry } from "./plan.js";
+import { hasCountingGeometry, trackerFields } from "./plan.js";
 import { Cancelled } from "./protocol.js";
 import { TrackView } from "./tracks.js";
 
@@ -170,9 +170,7 @@ export class RunPanel {
     }
     // Settings the page has no field for (an older project's) apply to the method they were for.
     const method = this.method.value;
-    const { tracker, trackerFor } = this.store.settings;
-    /** @type {Record<string, unknown>} */
-    const fields = tracker && (trackerFor || "") === method ? JSON.parse(tracker) : {};
+    const fields = trackerFields(this.store.settings, method);
     if (n > 0) fields.bridge_frames = n;
     const settings = Object.keys(fields).length ? JSON.stringify(fields) : "";
     const { footage, video } = this.store;

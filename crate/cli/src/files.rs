@@ -109,7 +109,16 @@ pub fn read_plan(path: &Path) -> Result<plan::Plan, Failure> {
 
 /// Whether a file's first non-blank byte opens a JSON object (a tracks document or a report).
 pub fn looks_like_json_object(bytes: &[u8]) -> bool {
-    bytes.iter().find(|b| !b.is_ascii_whitespace()) == Some(&b'{')
+    first_mark(bytes) == Some(b'{')
+}
+
+/// Whether a file's first non-blank byte opens JSON, an object or an array.
+pub fn looks_like_json(bytes: &[u8]) -> bool {
+    matches!(first_mark(bytes), Some(b'{' | b'['))
+}
+
+fn first_mark(bytes: &[u8]) -> Option<u8> {
+    bytes.iter().copied().find(|b| !b.is_ascii_whitespace())
 }
 
 /// Writes tracks as benchmark text for a `.txt` path, otherwise as the JSON document, a piece at

@@ -1,7 +1,7 @@
 //! `throughline count`: count existing tracks against a plan; and the report writing `run` shares.
 
 use crate::files::{
-    bad_input, bad_usage, looks_like_json_object, read_file, read_plan, read_work, Failure,
+    bad_input, bad_usage, looks_like_json, read_file, read_plan, read_work, Failure,
 };
 use crate::output::{check_paths, Outputs};
 use std::path::{Path, PathBuf};
@@ -56,9 +56,7 @@ pub fn run(args: Args) -> Result<(), Failure> {
     let (work, _project) = read_work(args.edits.as_deref())?;
     let bytes = read_file(path)?;
     // A JSON array is no tracks document either, but the JSON reader says what one is.
-    let json = looks_like_json_object(&bytes)
-        || bytes.iter().find(|b| !b.is_ascii_whitespace()) == Some(&b'[');
-    let (tracks, tracker) = if json {
+    let (tracks, tracker) = if looks_like_json(&bytes) {
         let t = tracks_io::from_json(&bytes).map_err(|e| bad_input(path, e))?;
         let config = t.config.clone();
         (t, Some(config))

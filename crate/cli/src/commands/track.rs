@@ -342,29 +342,17 @@ fn nothing_kept_note(path: &Path, config: &TrackerConfig) -> String {
 
 /// Which scores are used and which start tracks, naming the settings that decide.
 fn score_rule(config: &TrackerConfig) -> String {
-    let mut starts = vec![(config.start_score, "`start_score`")];
-    if config.method == Method::Bytetrack {
-        starts.push((config.new_track_score, "`new_track_score`"));
+    let used = format!(
+        "detections scoring under {} are not used (`min_score`)",
+        config.min_score
+    );
+    let (mut start, mut name) = (config.start_score, "`start_score`");
+    if config.method == Method::Bytetrack && config.new_track_score > start {
+        (start, name) = (config.new_track_score, "`new_track_score`");
     }
-    let (start, name) = starts
-        .into_iter()
-        .fold((config.min_score, "`min_score`"), |a, b| {
-            if b.0 > a.0 {
-                b
-            } else {
-                a
-            }
-        });
     match start > config.min_score {
-        true => format!(
-            "detections scoring under {} are not used (`min_score`), and only those scoring at \
-             least {start} start a track ({name})",
-            config.min_score
-        ),
-        false => format!(
-            "detections scoring under {} are not used (`min_score`)",
-            config.min_score
-        ),
+        true => format!("{used}, and only those scoring at least {start} start a track ({name})"),
+        false => used,
     }
 }
 

@@ -119,44 +119,52 @@ impl Serialize for TrackerConfig {
         out.serialize_field("max_cosine_distance", &self.max_cosine_distance)?;
         out.serialize_field("gallery_size", &self.gallery_size)?;
         out.serialize_field("max_mahalanobis", &self.max_mahalanobis)?;
-        let bridge = !(is_default_bridge_frames(&self.bridge_frames)
-            && is_default_bridge_frames(&d.bridge_frames));
-        let needs = self.iou_needs_appearance || d.iou_needs_appearance;
-        let waits = !(is_zero(&self.tentative_max_age) && is_zero(&d.tentative_max_age));
-        let starts = self.start_score != 0.0 || d.start_score != 0.0;
-        optional(&mut out, "bridge_frames", bridge, &self.bridge_frames)?;
-        optional(
+        // Each with the value a file without it reads as.
+        later(
+            &mut out,
+            "bridge_frames",
+            &self.bridge_frames,
+            &d.bridge_frames,
+            &DEFAULT_BRIDGE_FRAMES,
+        )?;
+        later(
             &mut out,
             "iou_needs_appearance",
-            needs,
             &self.iou_needs_appearance,
+            &d.iou_needs_appearance,
+            &false,
         )?;
-        optional(
+        later(
             &mut out,
             "tentative_max_age",
-            waits,
             &self.tentative_max_age,
+            &d.tentative_max_age,
+            &0,
         )?;
-        optional(&mut out, "start_score", starts, &self.start_score)?;
+        later(
+            &mut out,
+            "start_score",
+            &self.start_score,
+            &d.start_score,
+            &0.0,
+        )?;
         out.end()
     }
 }
 
-/// A field written when `write`, else skipped.
-fn optional<S: serde::ser::SerializeStruct, T: Serialize>(
+/// A setting added after the first release: skipped where both it and the method's default are
+/// `unset`, the value a file without it reads as; else written.
+fn later<S: serde::ser::SerializeStruct, T: Serialize + PartialEq>(
     out: &mut S,
     name: &'static str,
-    write: bool,
     value: &T,
+    default: &T,
+    unset: &T,
 ) -> Result<(), S::Error> {
-    match write {
-        true => out.serialize_field(name, value),
-        false => out.skip_field(name),
+    match value == unset && default == unset {
+        true => out.skip_field(name),
+        false => out.serialize_field(name, value),
     }
-}
-
-fn is_zero(v: &u32) -> bool {
-    *v == 0
 }
 
 /// Frames bridged by default: none. Bridging is asked for in the settings (25, one second at 25
@@ -167,10 +175,6 @@ pub const DEFAULT_BRIDGE_FRAMES: u32 = 0;
 
 fn default_bridge_frames() -> u32 {
     DEFAULT_BRIDGE_FRAMES
-}
-
-fn is_default_bridge_frames(v: &u32) -> bool {
-    *v == DEFAULT_BRIDGE_FRAMES
 }
 
 impl TrackerConfig {
