@@ -40,6 +40,8 @@ declare namespace wasm_bindgen {
     countsCsv(): string;
     tracksText(): string;
     allBoxes(): Float32Array;
+    /** The tracks' paths as counted under the plan: id, frame, x, y, observed (1/0) a point. */
+    countedPaths(ids: Uint32Array): Float32Array;
     trackList(): TrackInfo[];
     /** Sets the corrections (an edits file's or a project file's text) and counts again. */
     setEdits(json: string): Outcome[];

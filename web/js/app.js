@@ -41,7 +41,7 @@ client.ready.catch((e) => messages.say("engine", "error", `The counting engine d
 const planSync = new PlanSync(store, client);
 const editSync = new EditSync(store, client, messages);
 const picture = new Picture(store, messages);
-new OverlayView(store);
+new OverlayView(store, client);
 new Workspace(store);
 const files = new FilesPanel(store, client, messages);
 const demo = new Demo(src.demo, store, files, messages);

@@ -127,6 +127,25 @@ export class CoreClient {
     return this.call({ op: "setEdits", json, kind, ...sizeOf(picture) });
   }
 
+  /**
+   * The tracks' paths as the counting sees them under the plan (averaged count points, one a
+   * frame): a Map id -> path.
+   * @param {number[]} ids
+   * @returns {Promise<Map<number, import("./tracks.js").Path>>}
+   */
+  async countedPaths(ids) {
+    const values = await this.call({ op: "countedPaths", ids });
+    /** @type {Map<number, import("./tracks.js").Path>} */
+    const out = new Map();
+    for (let o = 0; o + 5 <= values.length; o += 5) {
+      let path = out.get(values[o]);
+      if (!path) out.set(values[o], (path = { pts: [], seen: [] }));
+      path.pts.push([values[o + 2], values[o + 3]]);
+      path.seen.push(values[o + 4] > 0);
+    }
+    return out;
+  }
+
   /** The corrections as an edits file, written by the core. */
   editsText() {
     return this.call({ op: "editsText" });

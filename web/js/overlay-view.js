@@ -16,9 +16,13 @@ import { countPoint } from "./tracks.js";
 /** @typedef {import("./overlay-layout.js").Layout} Layout */
 
 export class OverlayView {
-  /** @param {PageStore} store */
-  constructor(store) {
+  /**
+   * @param {PageStore} store
+   * @param {import("./core-client.js").CoreClient} client asked for the focused tracks' paths as counted
+   */
+  constructor(store, client) {
     this.store = store;
+    this.client = client;
     this.canvas = byId("overlay", HTMLCanvasElement);
     const ctx = this.canvas.getContext("2d");
     if (!ctx) throw new Error("this browser cannot draw on the picture");
@@ -35,7 +39,7 @@ export class OverlayView {
     store.subscribe(["picture"], () => this.size());
     store.subscribe(["plan", "geometry", "tracks", "results", "tally"], redraw(() => { this.layout = null; }));
     store.subscribe(["tallyPress"], redraw());
-    store.subscribe(["focus", "tracks", "plan"], redraw(() => { this.focus = this.focusPaths(); }));
+    store.subscribe(["focus", "tracks", "plan", "results"], redraw(() => { this.focus = this.focusPaths(); }));
     store.subscribe(["selection", "frame", "draft"], redraw());
     window.addEventListener("resize", redraw(() => { this.layout = null; }));
     for (const box of Object.values(this.show)) box.addEventListener("change", redraw());
@@ -82,16 +86,29 @@ export class OverlayView {
     return this.action.grid;
   }
 
-  /** The focused tracks' whole paths, from their first frame to their last. */
+  /**
+   * The focused tracks' whole paths, from their first frame to their last, as measured; their paths
+   * as counted (averaged by the core under the plan) follow when the core answers, unless the
+   * focus has moved on by then.
+   * @returns {import("./overlay.js").Scene["focus"]}
+   */
   focusPaths() {
-    const { focus, tracks, plan } = this.store;
+    const { focus, tracks, plan, results } = this.store;
     if (!focus || !tracks) return null;
     const ids = new Set(focus.tracks);
     const info = tracks.list.filter((t) => ids.has(t.id));
-    if (!info.length) return { ids, paths: new Map() };
+    if (!info.length) return { ids, paths: new Map(), counted: null };
     const from = Math.min(...info.map((t) => t.first_frame));
     const to = Math.max(...info.map((t) => t.last_frame));
-    return { ids, paths: tracks.paths(from, to, plan.anchor, ids) };
+    const shown = { ids, paths: tracks.paths(from, to, plan.anchor, ids), counted: null };
+    if (results) {
+      this.client.countedPaths([...ids]).then((counted) => {
+        if (this.focus !== shown) return;
+        this.focus = { ...shown, counted };
+        this.redraw();
+      }).catch(() => {}); // without a plan the core has no counted paths: the measured ones stay
+    }
+    return shown;
   }
 
   /**
@@ -147,6 +164,13 @@ export class OverlayView {
     // The keys a hand count shows on the picture, and their presses, for the browser tests to read.
     if (tally) this.canvas.dataset.keycaps = JSON.stringify(this.layout.placed.map((p) => ({ key: p.key, ...p.content(s.frame) })).filter((t) => t.keycap).map(({ key, keycap, count }) => ({ key, keycap, count })));
     else delete this.canvas.dataset.keycaps;
+    // The focused tracks' paths as drawn, and whether as counted or as measured, for the browser tests.
+    const f = this.focus;
+    const paths = f ? [...f.paths].map(([id, measured]) => {
+      const counted = f.counted ? f.counted.get(id) : undefined;
+      return { id, drawn: counted ? "counted" : "measured", pts: (counted || measured).pts.map(([x, y]) => [Math.round(x * 10) / 10, Math.round(y * 10) / 10]) };
+    }) : [];
+    this.canvas.dataset.focusPaths = JSON.stringify(paths);
     this.canvas.dataset.labels = JSON.stringify(drawn.map(({ key, rect }) => ({ key, x: Math.round(rect.x), y: Math.round(rect.y), w: Math.round(rect.w), h: Math.round(rect.h) })));
   }
 }

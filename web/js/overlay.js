@@ -7,7 +7,7 @@
 import { forwardSide, distanceToSegment } from "./geometry.js";
 import { anchorMark, beadedPath, boxCorners, casedStroke, drawTag, tagSize, tracePath, triangle } from "./marks.js";
 import { countPoint } from "./tracks.js";
-import { DIRECTION_COLOUR, PLAN_INK, STATE_COLOUR } from "./palette.js";
+import { CASING, DIRECTION_COLOUR, PLAN_INK, STATE_COLOUR } from "./palette.js";
 
 /** @typedef {import("./geometry.js").Point} Point */
 /** @typedef {CanvasRenderingContext2D} Ctx */
@@ -15,8 +15,9 @@ import { DIRECTION_COLOUR, PLAN_INK, STATE_COLOUR } from "./palette.js";
 
 /**
  * What to draw for one frame. `px`: video pixels per screen pixel; `pathFrames`: how many frames of
- * each track's path to show; `focus`: the tracks being reviewed (the others are dimmed) and their
- * whole paths; `focusPoint`: where the count event being reviewed happened; `focusDoubtful`: the
+ * each track's path to show; `focus`: the tracks being reviewed (the others are dimmed), their
+ * whole paths as measured and, once the core has answered, as counted (`counted`, averaged under
+ * the plan's rules); `focusPoint`: where the count event being reviewed happened; `focusDoubtful`: the
  * moment in focus is from the doubtful-moments queue (its ring is drawn in the doubtful colour).
  * @typedef {object} Scene
  * @property {import("./plan.js").Plan} plan
@@ -29,7 +30,7 @@ import { DIRECTION_COLOUR, PLAN_INK, STATE_COLOUR } from "./palette.js";
  * @property {number} pathFrames
  * @property {number} beadEvery
  * @property {import("./store.js").Draft | null} draft
- * @property {{ids: Set<number>, paths: Map<number, import("./tracks.js").Path>} | null} focus
+ * @property {{ids: Set<number>, paths: Map<number, import("./tracks.js").Path>, counted: Map<number, import("./tracks.js").Path> | null} | null} focus
  * @property {Point | null} focusPoint
  * @property {boolean} focusDoubtful
  * @property {import("./overlay-layout.js").Layout} layout
@@ -213,8 +214,19 @@ function drawTracks(ctx, tracks, scene) {
     }
   }
   ctx.globalAlpha = 1;
-  // The track in focus is drawn as measured, jitter and all: jitter about a line is what makes double counts.
-  if (focus) for (const path of focus.paths.values()) beadedPath(ctx, path, px, 1.8, scene.beadEvery);
+  // The track in focus: the path the counting used (averaged), over the count points as measured,
+  // so a person sees both the boxes' jitter and what was counted from it.
+  if (focus) {
+    for (const [id, path] of focus.paths) {
+      const counted = focus.counted ? focus.counted.get(id) : undefined;
+      if (!counted) {
+        beadedPath(ctx, path, px, 1.8, scene.beadEvery);
+        continue;
+      }
+      measuredPoints(ctx, path, px);
+      beadedPath(ctx, counted, px, 1.8, scene.beadEvery);
+    }
+  }
   tracks.forEachBox(frame, (id, x, y, w, h, seen) => {
     dim(id);
     if (scene.show.boxes) boxCorners(ctx, x, y, w, h, px, seen ? STATE_COLOUR.seen : STATE_COLOUR.hidden);
@@ -223,6 +235,26 @@ function drawTracks(ctx, tracks, scene) {
     anchorMark(ctx, countPoint(x, y, w, h, plan.anchor), px, { seen, counted: counted ? DIRECTION_COLOUR[counted] : null, focused });
   });
   ctx.globalAlpha = 1;
+}
+
+/**
+ * A track's count points as measured, each a small dot (white seen, sky blue predicted), drawn
+ * under its counted path.
+ * @param {Ctx} ctx
+ * @param {import("./tracks.js").Path} path
+ * @param {number} px
+ */
+function measuredPoints(ctx, { pts, seen }, px) {
+  for (let i = 0; i < pts.length; i++) {
+    ctx.beginPath();
+    ctx.arc(pts[i][0], pts[i][1], 1.6 * px, 0, Math.PI * 2);
+    ctx.fillStyle = CASING;
+    ctx.fill();
+    ctx.beginPath();
+    ctx.arc(pts[i][0], pts[i][1], 0.9 * px, 0, Math.PI * 2);
+    ctx.fillStyle = seen[i] ? STATE_COLOUR.seen : STATE_COLOUR.hidden;
+    ctx.fill();
+  }
 }
 
 /**

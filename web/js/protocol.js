@@ -187,11 +187,12 @@
  * @typedef {{op: "handIn", context: HandinContext}} HandInRequest
  * @typedef {{op: "summaryHtml", context: HandinContext}} SummaryHtmlRequest
  * @typedef {{op: "mergedGrid", bytes: ArrayBuffer, camera: string, class: string}} MergedGridRequest
+ * @typedef {{op: "countedPaths", ids: number[]}} CountedPathsRequest
  * @typedef {InitRequest | LoadDetectionsRequest | SetPlanRequest | TrackRequest | StartDetectionRequest | DetectRgbaRequest
  *   | FinishDetectionRequest | FindInFootageRequest | CancelFindRequest | DetectionsTextRequest | TracksTextRequest
  *   | SetEditsRequest | EditsTextRequest | ReadProjectRequest | WriteProjectRequest | FingerprintRequest
  *   | FingerprintDiffersRequest | HandInRequest | SummaryHtmlRequest | MergedGridRequest | BackgroundFramesRequest
- *   | SampleRgbaRequest} Request
+ *   | SampleRgbaRequest | CountedPathsRequest} Request
  * @typedef {Request & {id: number}} RequestMessage a request as posted to the worker
  */
 
@@ -220,6 +221,8 @@
  * @property {HandIn} handIn
  * @property {string} summaryHtml the client summary, a printable HTML page
  * @property {MergedGrid} mergedGrid
+ * @property {Float32Array} countedPaths the tracks' paths as counted, 5 values a point: id, frame
+ *   (1-based), x, y (pixels), observed (1/0); track after track, each in frame order
  */
 
 /**

@@ -2,6 +2,8 @@
 //! command line and the page call these functions and nothing else to track and count, so they
 //! cannot drift apart: the same files give the same report, byte for byte.
 
+pub use crate::count::{counted_path, CountedPoint};
+
 use crate::accuracy::{self, Tally};
 use crate::count;
 use crate::detections::Detections;

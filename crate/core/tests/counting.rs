@@ -1,7 +1,7 @@
 //! Counting on hand-worked tracks: each case draws a small path across a line or zone and states
 //! what a person counting by eye would write down.
 
-use throughline_core::count::{count, peak_hour, percentile};
+use throughline_core::count::{count, counted_path, peak_hour, percentile};
 use throughline_core::geometry::BBox;
 use throughline_core::plan::Plan;
 use throughline_core::report::{counts_csv, Direction, Report};
@@ -159,6 +159,48 @@ fn a_box_jumping_to_either_side_of_the_line_is_counted_once_on_its_averaged_path
     );
     // The default averages too (0.35 s: 2 frames either side at 10 a second).
     check_line(&run(LINE, vec![track(1, "p", &path)]), 1, 0);
+}
+
+#[test]
+fn the_path_drawn_for_review_is_the_averaged_path_that_was_counted() {
+    // The jumping box of the test above: the path the page draws for a track under review
+    // (`counted_path`) crosses the line once, where the one crossing was counted, while the boxes'
+    // own count points cross it 7 times.
+    let path: Vec<(u32, f64, f64, bool)> = (0..30u32)
+        .map(|k| {
+            let jump = match k {
+                6..=17 if k % 2 == 0 => -10.0,
+                6..=17 => 10.0,
+                _ => 0.0,
+            };
+            (1 + k, 100.0, 170.0 + 2.5 * f64::from(k) + jump, true)
+        })
+        .collect();
+    let plan = Plan::from_json(&line_with(r#""smooth_seconds": 0.5"#)).expect("valid plan");
+    let drawn = counted_path(&track(1, "p", &path), &plan);
+    let sides = |ys: Vec<f64>| {
+        ys.windows(2)
+            .filter(|w| (w[0] < 200.0) != (w[1] < 200.0))
+            .count()
+    };
+    assert_eq!(sides(path.iter().map(|p| p.2).collect()), 7);
+    assert_eq!(sides(drawn.iter().map(|q| q.at.y).collect()), 1);
+    let report = run(
+        &line_with(r#""smooth_seconds": 0.5"#),
+        vec![track(1, "p", &path)],
+    );
+    let cross = drawn
+        .windows(2)
+        .position(|w| w[1].at.y >= 200.0)
+        .expect("crosses")
+        + 2;
+    assert_eq!(report.events[0].frame, cross as u32, "{drawn:?}");
+    // One point a frame, from the first box to the last, all seen; x is where the boxes were.
+    assert_eq!(drawn.len(), 30);
+    assert!(drawn
+        .iter()
+        .enumerate()
+        .all(|(k, q)| q.frame == 1 + k as u32 && q.observed && q.at.x == 100.0));
 }
 
 #[test]

@@ -4,8 +4,8 @@
 use crate::{to_js, Session};
 use js_sys::Float32Array;
 use serde::Serialize;
-use throughline_core::track;
 use throughline_core::track::files as tracks_io;
+use throughline_core::{pipeline, track};
 use wasm_bindgen::prelude::*;
 
 /// Values per box in [`Session::boxes_at`]: id, x, y, w, h (pixels, top-left + size), observed (1/0).
@@ -13,6 +13,9 @@ pub const BOX_STRIDE: usize = 6;
 
 /// Values per box in [`Session::all_boxes`]: frame (1-based), then the [`BOX_STRIDE`] values.
 pub const FRAME_BOX_STRIDE: usize = 7;
+
+/// Values per point in [`Session::counted_paths`]: id, frame (1-based), x, y (pixels), observed (1/0).
+pub const PATH_STRIDE: usize = 5;
 
 /// One box as [`BOX_STRIDE`] values: id, x, y, w, h, observed (1/0).
 fn box_values(id: u32, b: &track::TrackBox) -> [f32; BOX_STRIDE] {
@@ -92,6 +95,33 @@ impl Session {
             values.extend_from_slice(&box_values(id, b));
         }
         Float32Array::from(values.as_slice())
+    }
+
+    /// The paths of the tracks `ids` (after edits) as the counting sees them under the plan: count
+    /// points averaged over `rules.smooth_seconds`, one a frame, [`PATH_STRIDE`] values each, track
+    /// by track in the order of `ids` (an id with no track is left out). The page draws these for
+    /// the tracks under review, so the path it shows is the one that was counted.
+    #[wasm_bindgen(js_name = countedPaths)]
+    pub fn counted_paths(&self, ids: &[u32]) -> Result<Float32Array, JsError> {
+        let plan = self.plan()?;
+        let tracks = self.tracks()?;
+        let mut values = Vec::new();
+        for &id in ids {
+            let Some(t) = tracks.tracks.iter().find(|t| t.id == id) else {
+                continue;
+            };
+            for q in pipeline::counted_path(t, plan) {
+                let point: [f32; PATH_STRIDE] = [
+                    id as f32,
+                    q.frame as f32,
+                    q.at.x as f32,
+                    q.at.y as f32,
+                    f32::from(u8::from(q.observed)),
+                ];
+                values.extend_from_slice(&point);
+            }
+        }
+        Ok(Float32Array::from(values.as_slice()))
     }
 
     /// The tracks (after edits) without their boxes: `[{id, class, first_frame, last_frame, seen,

@@ -237,6 +237,13 @@ impl Session {
             .ok_or_else(|| js_error("run tracking first"))
     }
 
+    /// The plan last given.
+    fn plan(&self) -> Result<&plan::Plan, JsError> {
+        self.plan
+            .as_ref()
+            .ok_or_else(|| js_error("open or draw a plan first"))
+    }
+
     /// The tracks' boxes to draw (none before tracking).
     fn shown(&self) -> impl Iterator<Item = &track::Track> {
         self.edited

@@ -25,7 +25,7 @@ mod timeline;
 mod visits;
 mod zones;
 
-pub use paths::UNCLASSIFIED;
+pub use paths::{counted_path, CountedPoint, UNCLASSIFIED};
 pub use stats::{peak_hour, percentile, HourRun};
 
 use crate::edits::{Edit, Outcome};

@@ -3,7 +3,7 @@
 //! few frames either side (`rules.smooth_seconds`), the form every later stage counts on.
 
 use crate::geometry::{BBox, Point};
-use crate::plan::{Anchor, Screenline};
+use crate::plan::{Anchor, Plan, Screenline};
 use crate::track::{Track, Tracks};
 
 /// Label used for tracks without a class.
@@ -51,6 +51,33 @@ pub(super) fn pieces(tracks: &Tracks, anchor: Anchor, half: u32) -> Vec<Counted>
             class: class_of(t),
             points: path(t, anchor, half),
             joins: Vec::new(),
+        })
+        .collect()
+}
+
+/// One point of a track's path as the counting sees it (see [`counted_path`]).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct CountedPoint {
+    /// 1-based.
+    pub frame: u32,
+    /// The count point after averaging, pixels.
+    pub at: Point,
+    /// Whether the tracker saw the object in this frame (else the point is inferred).
+    pub observed: bool,
+}
+
+/// A track's path as the counting sees it under `plan`: its count points (the plan's anchor), a
+/// gap between two sightings on the straight line between them, averaged over
+/// `rules.smooth_seconds`. What the page draws for a track under review, so that the path shown is
+/// the one that crossed (or did not cross) the line.
+pub fn counted_path(track: &Track, plan: &Plan) -> Vec<CountedPoint> {
+    let half = plan.spec.rules.smooth_half_frames(plan.spec.frame_rate);
+    path(track, plan.spec.anchor, half)
+        .into_iter()
+        .map(|q| CountedPoint {
+            frame: q.frame,
+            at: q.p,
+            observed: q.observed,
         })
         .collect()
 }
