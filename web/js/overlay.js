@@ -238,23 +238,32 @@ function drawTracks(ctx, tracks, scene) {
 }
 
 /**
- * A track's count points as measured, each a small dot (white seen, sky blue predicted), drawn
- * under its counted path.
+ * Where a track's boxes put its count point in the frames it was seen: a small dot each, faint,
+ * under its counted path (predicted points are not measurements and get none).
  * @param {Ctx} ctx
  * @param {import("./tracks.js").Path} path
  * @param {number} px
  */
 function measuredPoints(ctx, { pts, seen }, px) {
+  const alpha = ctx.globalAlpha;
+  ctx.globalAlpha = alpha * 0.75;
+  ctx.fillStyle = CASING;
+  ctx.beginPath();
   for (let i = 0; i < pts.length; i++) {
-    ctx.beginPath();
-    ctx.arc(pts[i][0], pts[i][1], 1.6 * px, 0, Math.PI * 2);
-    ctx.fillStyle = CASING;
-    ctx.fill();
-    ctx.beginPath();
-    ctx.arc(pts[i][0], pts[i][1], 0.9 * px, 0, Math.PI * 2);
-    ctx.fillStyle = seen[i] ? STATE_COLOUR.seen : STATE_COLOUR.hidden;
-    ctx.fill();
+    if (!seen[i]) continue;
+    ctx.moveTo(pts[i][0] + 1.5 * px, pts[i][1]);
+    ctx.arc(pts[i][0], pts[i][1], 1.5 * px, 0, Math.PI * 2);
   }
+  ctx.fill();
+  ctx.fillStyle = STATE_COLOUR.seen;
+  ctx.beginPath();
+  for (let i = 0; i < pts.length; i++) {
+    if (!seen[i]) continue;
+    ctx.moveTo(pts[i][0] + 0.8 * px, pts[i][1]);
+    ctx.arc(pts[i][0], pts[i][1], 0.8 * px, 0, Math.PI * 2);
+  }
+  ctx.fill();
+  ctx.globalAlpha = alpha;
 }
 
 /**
