@@ -9,6 +9,7 @@ type CoreFacts = import("./js/protocol.js").CoreFacts;
 type Doubt = import("./js/protocol.js").Doubt;
 type Outcome = import("./js/edits.js").Outcome;
 type Project = import("./js/protocol.js").Project;
+type ProjectAge = import("./js/protocol.js").ProjectAge;
 type Fingerprint = import("./js/protocol.js").Fingerprint;
 type HandinContext = import("./js/protocol.js").HandinContext;
 type MergedGrid = import("./js/protocol.js").MergedGrid;
@@ -21,6 +22,8 @@ declare namespace wasm_bindgen {
   function coreFacts(): CoreFacts;
   /** Reads a project file's text; errors name the line and column. */
   function readProject(text: string): Project;
+  /** How a project file saved by an older version differs from this one's. */
+  function projectAge(text: string): ProjectAge;
   /** A project (plain object) as the project file's text; format, version and generator filled in. */
   function writeProject(project: object): string;
   /** A file's fingerprint from its name, size, first bytes (at least the first MiB) and duration (0: none). */

@@ -160,6 +160,14 @@ export class CoreClient {
   }
 
   /**
+   * How a project file saved by an older version differs from this one's (the core decides).
+   * @param {string} text
+   */
+  projectAge(text) {
+    return this.call({ op: "projectAge", text });
+  }
+
+  /**
    * The project file's text for a project object (checked against its layout by the core).
    * @param {object} project
    */

@@ -89,8 +89,9 @@ export class ProjectPanel {
     this.projectName.textContent = name;
     const n = project.edits.length;
     this.messages.say("project", "ok", `${name} opened: its plan, ${n} correction${n === 1 ? "" : "s"} and ${project.review.length} review decision${project.review.length === 1 ? "" : "s"}.${this.store.tracks ? "" : " Press Run to track; the corrections are applied to the tracks."}`);
-    this.sayIfOlderRules(project, name);
-    this.keepOlderTracking(project, name);
+    const age = await this.client.projectAge(text);
+    this.sayIfOlderRules(age, project, name);
+    this.keepOlderTracking(age, project, name);
     await this.check();
   }
 
@@ -115,38 +116,35 @@ export class ProjectPanel {
   }
 
   /**
-   * A project saved before paths were averaged for counting (by 0.1.x; the command line's
-   * `Project::saved_before_averaged_paths` asks the same) counted with other rules: says so, and
-   * how to count as it did.
+   * A project saved before paths were averaged for counting (the core's `projectAge` decides, as
+   * the command line's `Project::saved_before_averaged_paths`) counted with other rules: says so,
+   * and how to count as it did.
+   * @param {import("./protocol.js").ProjectAge} age
    * @param {import("./protocol.js").Project} project
    * @param {string} name
    */
-  sayIfOlderRules(project, name) {
-    const by = project.generator || "";
+  sayIfOlderRules(age, project, name) {
+    const old = age.counted_before_averaged_paths;
     const facts = this.client.facts;
-    if (!facts || !by.startsWith(facts.generator_before_averaged_paths)) return this.messages.clear("project-rules");
-    const old = facts.hysteresis_before_averaged_paths;
-    this.messages.say("project-rules", "warn", `${name} was saved by ${by}, which counted paths as the tracker gave them with a crossing margin of ${old}. By default this version averages each path over ${facts.default_smooth_seconds} s first, with a margin of ${facts.default_hysteresis}, so its counts, and the crossings its corrections name, may differ. To count as it did, set Crossing margin to ${old} and Path averaging to 0 under Set up.`);
+    if (old === null || !facts) return this.messages.clear("project-rules");
+    this.messages.say("project-rules", "warn", `${name} was saved by ${project.generator}, which counted paths as the tracker gave them with a crossing margin of ${old}. By default this version averages each path over ${facts.default_smooth_seconds} s first, with a margin of ${facts.default_hysteresis}, so its counts, and the crossings its corrections name, may differ. To count as it did, set Crossing margin to ${old} and Path averaging to 0 under Set up.`);
   }
 
   /**
-   * A project tracked before `deepsort` kept low-score boxes (the command line's
-   * `Project::tracked_before_low_score_boxes` asks the same) is tracked as it was, so that its
-   * corrections meet their tracks: its settings are those of the version that saved it.
+   * A project tracked before `deepsort` kept low-score boxes (the core's `projectAge` decides, as
+   * the command line's `Project::tracked_before_low_score_boxes`) is tracked as it was, so that its
+   * corrections meet their tracks: with the settings the core gives, its own over the older defaults.
+   * @param {import("./protocol.js").ProjectAge} age
    * @param {import("./protocol.js").Project} project
    * @param {string} name
    */
-  keepOlderTracking(project, name) {
-    const by = project.generator || "";
-    const facts = this.client.facts;
+  keepOlderTracking(age, project, name) {
+    const settings = age.tracked_before_low_score_boxes;
+    if (settings === null) return this.messages.clear("project-tracking");
     const method = project.tracking ? project.tracking.method || "" : "";
-    const older = facts && facts.generators_before_low_score_boxes.some((g) => by.startsWith(g)) && (method === "" || method === "deepsort");
-    if (!facts || !older) return this.messages.clear("project-tracking");
-    // The older defaults under the project's own settings, as the command line lays them.
-    const merged = { ...JSON.parse(facts.settings_before_low_score_boxes), ...JSON.parse(this.store.settings.tracker || "{}") };
-    this.store.plans.setSetting("tracker", JSON.stringify(merged));
+    this.store.plans.setSetting("tracker", settings);
     this.store.plans.setSetting("trackerFor", method);
-    this.messages.say("project-tracking", "ok", `${name} was tracked by ${by}, whose DeepSORT used no box scoring under 0.3 and let any box it used start a track; it is tracked the same way here while the method stays ${method === "" ? "the best for these detections" : method}, so that its corrections meet their tracks, and saved with those settings.`);
+    this.messages.say("project-tracking", "ok", `${name} was tracked by ${project.generator}, whose DeepSORT used no box scoring under 0.3 and let any box it used start a track; it is tracked the same way here while the method stays ${method === "" ? "the best for these detections" : method}, so that its corrections meet their tracks, and saved with those settings.`);
   }
 
   /** Says so when the footage or detections open are not those the work was made with. */

@@ -145,9 +145,8 @@
 /**
  * What the page takes from the core's own tables instead of writing it again: the tracking methods
  * (registered once in the core), the crossing margins, in box heights, by default and for boxes
- * found in footage and at most, the seconds paths are averaged over by default and at most, the longest gap
- * (frames) bridging may be asked to bridge, and how a project saved before paths were averaged is
- * told (how its generator begins) with the margin it counted with.
+ * found in footage and at most, the seconds paths are averaged over by default and at most, and the
+ * longest gap (frames) bridging may be asked to bridge.
  * @typedef {object} CoreFacts
  * @property {{name: string, label: string, needs_embeddings: boolean}[]} methods
  * @property {number} default_hysteresis
@@ -156,10 +155,6 @@
  * @property {number} default_smooth_seconds
  * @property {number} max_smooth_seconds
  * @property {number} max_bridge_frames
- * @property {string} generator_before_averaged_paths
- * @property {number} hysteresis_before_averaged_paths
- * @property {string[]} generators_before_low_score_boxes
- * @property {string} settings_before_low_score_boxes
  */
 
 /**
@@ -171,6 +166,7 @@
  * @typedef {{op: "setEdits", json: string, kind: "edits" | "project", width: number, height: number}} SetEditsRequest
  * @typedef {{op: "editsText"}} EditsTextRequest
  * @typedef {{op: "readProject", text: string}} ReadProjectRequest
+ * @typedef {{op: "projectAge", text: string}} ProjectAgeRequest
  * @typedef {{op: "writeProject", project: object}} WriteProjectRequest
  * @typedef {{op: "fingerprint", name: string, size: number, head: ArrayBuffer, duration: number}} FingerprintRequest
  * @typedef {{op: "fingerprintDiffers", recorded: object, opened: object}} FingerprintDiffersRequest
@@ -192,7 +188,7 @@
  *   | FinishDetectionRequest | FindInFootageRequest | CancelFindRequest | DetectionsTextRequest | TracksTextRequest
  *   | SetEditsRequest | EditsTextRequest | ReadProjectRequest | WriteProjectRequest | FingerprintRequest
  *   | FingerprintDiffersRequest | HandInRequest | SummaryHtmlRequest | MergedGridRequest | BackgroundFramesRequest
- *   | SampleRgbaRequest | CountedPathsRequest} Request
+ *   | SampleRgbaRequest | CountedPathsRequest | ProjectAgeRequest} Request
  * @typedef {Request & {id: number}} RequestMessage a request as posted to the worker
  */
 
@@ -205,6 +201,7 @@
  * @property {Corrected} setEdits
  * @property {string} editsText the edits file
  * @property {Project} readProject
+ * @property {ProjectAge} projectAge
  * @property {string} writeProject the project file
  * @property {Fingerprint} fingerprint
  * @property {string | null} fingerprintDiffers why the file opened is not the one recorded, or null
@@ -237,6 +234,13 @@
  * @property {string} class
  * @property {{screenline: string, direction: string}[]} columns
  * @property {{start: string, end: string, partial: boolean, counts: number[], total: number}[]} rows
+ */
+
+/**
+ * How a project saved by an older version differs (crate/wasm/src/corrections.rs): saved before
+ * paths were averaged for counting, the crossing margin it counted with (else null); tracked before
+ * DeepSORT kept low-score boxes, the tracker settings that make its tracks again (else null).
+ * @typedef {{counted_before_averaged_paths: number | null, tracked_before_low_score_boxes: string | null}} ProjectAge
  */
 
 /**

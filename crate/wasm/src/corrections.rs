@@ -3,10 +3,11 @@
 //! command line agree on every format.
 
 use crate::{js_error, to_js, Session};
+use serde::Serialize;
 use throughline_core::edits::EditList;
 use throughline_core::fingerprint::Fingerprint;
 use throughline_core::project::{self, Project};
-use throughline_core::{pipeline, review};
+use throughline_core::{pipeline, plan, review};
 use wasm_bindgen::prelude::*;
 
 #[wasm_bindgen]
@@ -63,6 +64,35 @@ impl Session {
 #[wasm_bindgen(js_name = readProject)]
 pub fn read_project(text: &str) -> Result<JsValue, JsError> {
     to_js(&Project::from_json(text).map_err(js_error)?)
+}
+
+/// What a project saved by an older version needs to be counted and tracked as it was.
+#[derive(Serialize)]
+struct ProjectAge {
+    /// Saved before paths were averaged for counting: its counts were made on the paths as the
+    /// tracker gave them, with this crossing margin (`None`: saved since).
+    counted_before_averaged_paths: Option<f64>,
+    /// Tracked before `deepsort` kept low-score boxes: the tracker settings (JSON) that make its
+    /// tracks again, the project's own over the older defaults (`None`: tracked since, or with
+    /// another method).
+    tracked_before_low_score_boxes: Option<String>,
+}
+
+/// How a project file's version differs from this one's (the command line asks the same of
+/// [`Project`]): `{counted_before_averaged_paths: margin | null, tracked_before_low_score_boxes:
+/// settings JSON | null}`. The page says so, and tracks such a project as it was tracked.
+#[wasm_bindgen(js_name = projectAge)]
+pub fn project_age(text: &str) -> Result<JsValue, JsError> {
+    let p = Project::from_json(text).map_err(js_error)?;
+    to_js(&ProjectAge {
+        counted_before_averaged_paths: p
+            .saved_before_averaged_paths()
+            .then_some(plan::HYSTERESIS_BEFORE_AVERAGED_PATHS),
+        tracked_before_low_score_boxes: p
+            .tracked_before_low_score_boxes()
+            .then(|| p.tracking_settings())
+            .flatten(),
+    })
 }
 
 /// A project (a plain object) as the project file's text, checked against its layout.

@@ -2,7 +2,7 @@
 
 use crate::to_js;
 use serde::Serialize;
-use throughline_core::{limits, plan, project, Method};
+use throughline_core::{limits, plan, Method};
 use wasm_bindgen::prelude::*;
 
 /// A tracking method as the page lists it.
@@ -16,8 +16,8 @@ struct MethodFacts {
 /// What the page takes from the core's own tables rather than writing again: the tracking
 /// methods, the crossing margins (box heights) by default, for boxes found in footage and at most, the
 /// seconds paths are averaged over by default and at most, the longest gap (frames) the tracker
-/// settings' `bridge_frames` may ask to bridge, and how to tell a project saved before paths
-/// were averaged (how its `generator` begins; the margin it counted with).
+/// settings' `bridge_frames` may ask to bridge. (What an older project needs is answered for each
+/// project, by `projectAge`.)
 #[derive(Serialize)]
 struct CoreFacts {
     methods: Vec<MethodFacts>,
@@ -27,16 +27,11 @@ struct CoreFacts {
     default_smooth_seconds: f64,
     max_smooth_seconds: f64,
     max_bridge_frames: u32,
-    generator_before_averaged_paths: &'static str,
-    hysteresis_before_averaged_paths: f64,
-    generators_before_low_score_boxes: [&'static str; 1],
-    settings_before_low_score_boxes: &'static str,
 }
 
 /// [`CoreFacts`] as a plain object: `{methods: [{name, label, needs_embeddings}],
 /// default_hysteresis, footage_hysteresis, max_hysteresis, default_smooth_seconds, max_smooth_seconds,
-/// max_bridge_frames, generator_before_averaged_paths, hysteresis_before_averaged_paths,
-/// generators_before_low_score_boxes, settings_before_low_score_boxes}`.
+/// max_bridge_frames}`.
 #[wasm_bindgen(js_name = coreFacts)]
 pub fn core_facts() -> Result<JsValue, JsError> {
     let methods = Method::ALL
@@ -58,9 +53,5 @@ pub fn core_facts() -> Result<JsValue, JsError> {
         default_smooth_seconds: plan::DEFAULT_SMOOTH_SECONDS,
         max_smooth_seconds: limits::MAX_SMOOTH_SECONDS,
         max_bridge_frames: limits::MAX_BRIDGE_FRAMES,
-        generator_before_averaged_paths: plan::GENERATOR_BEFORE_AVERAGED_PATHS,
-        hysteresis_before_averaged_paths: plan::HYSTERESIS_BEFORE_AVERAGED_PATHS,
-        generators_before_low_score_boxes: project::GENERATORS_BEFORE_LOW_SCORE_BOXES,
-        settings_before_low_score_boxes: project::SETTINGS_BEFORE_LOW_SCORE_BOXES,
     })
 }
