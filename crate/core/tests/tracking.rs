@@ -453,6 +453,39 @@ fn written_settings_read_back_as_the_same_settings_for_every_method() {
     }
 }
 
+/// The written settings name every field the settings' JSON Schema lists (schemars, from the
+/// struct itself): `TrackerConfig`'s serializer lists its fields by hand, so a field added to the
+/// struct and not to the serializer would be dropped from reports and tracks files silently.
+#[test]
+fn written_settings_name_every_field_of_the_settings() {
+    let schema = serde_json::to_value(schemars::schema_for!(TrackerConfig)).unwrap();
+    let mut fields: Vec<&str> = schema["properties"]
+        .as_object()
+        .expect("the schema lists the fields")
+        .keys()
+        .map(String::as_str)
+        .collect();
+    fields.sort_unstable();
+    for &method in Method::ALL {
+        let every = TrackerConfig {
+            start_score: 0.45,
+            tentative_max_age: 7,
+            iou_needs_appearance: true,
+            bridge_frames: 12,
+            ..TrackerConfig::for_method(method)
+        };
+        let written = serde_json::to_value(&every).unwrap();
+        let mut keys: Vec<&str> = written
+            .as_object()
+            .unwrap()
+            .keys()
+            .map(String::as_str)
+            .collect();
+        keys.sort_unstable();
+        assert_eq!(keys, fields, "{method:?}");
+    }
+}
+
 /// Score thresholds are checked like the other shares (a newcomer's trial: `start_score` 7 tracked
 /// nothing and said nothing; negative scores passed).
 #[test]

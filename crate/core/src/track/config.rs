@@ -102,7 +102,8 @@ impl Serialize for TrackerConfig {
     /// `tentative_max_age`, `start_score`) where they have the value a file without them reads as
     /// and the method's default is that value too: so files written before those settings keep
     /// their bytes, and a file written now, read back as settings over the method's defaults
-    /// (`--config`), gives these settings again.
+    /// (`--config`), gives these settings again. A new field goes here too (the test
+    /// `written_settings_name_every_field_of_the_settings` fails until it does).
     fn serialize<S: serde::Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
         use serde::ser::SerializeStruct;
         let d = TrackerConfig::for_method(self.method);
