@@ -26,13 +26,16 @@ pub fn tracker_config(
     track::resolve_config(method, settings_json, detections.embedding_dim > 0)
 }
 
-/// Tracks the detections; `progress(done, total)` in frames.
+/// Tracks the detections; `progress(done, total)` in frames. The boxes are rounded as the tracks
+/// files write them (hundredths of a pixel), so that `track` then `count` gives `run`'s report.
 pub fn track(
     detections: &Detections,
     config: &TrackerConfig,
     progress: &mut dyn FnMut(u32, u32),
 ) -> Result<Tracks, Error> {
-    track::run_tracker(detections, config, progress)
+    let mut tracks = track::run_tracker(detections, config, progress)?;
+    track::files::round_as_written(&mut tracks);
+    Ok(tracks)
 }
 
 /// Bridging of missed detections in footage of `width × height` pixels (V-IOU): feed it the

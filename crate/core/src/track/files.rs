@@ -94,6 +94,24 @@ struct TrackOut<'a> {
     boxes: BoxesOut<'a>,
 }
 
+/// Places the tracks files keep: box coordinates (hundredths of a pixel) and scores.
+const BOX_PLACES: i32 = 2;
+const SCORE_PLACES: i32 = 4;
+
+/// Rounds every box and score as the tracks files write them, so that tracks written by `track`
+/// and read back by `count` are the very values `run` counts: the same report either way.
+/// ([`crate::pipeline::track`] and bridging's joins give tracks so rounded.)
+pub(crate) fn round_as_written(tracks: &mut Tracks) {
+    for t in &mut tracks.tracks {
+        t.mean_score = round(t.mean_score, SCORE_PLACES);
+        for b in &mut t.boxes {
+            let r = |v: f64| round(v, BOX_PLACES);
+            b.bbox = BBox::new(r(b.bbox.x), r(b.bbox.y), r(b.bbox.w), r(b.bbox.h));
+            b.score = round(b.score, SCORE_PLACES);
+        }
+    }
+}
+
 /// A track's boxes as `[frame, x, y, w, h, score, observed]` arrays, rounded as they are read back.
 struct BoxesOut<'a>(&'a [TrackBox]);
 
@@ -102,11 +120,11 @@ impl Serialize for BoxesOut<'_> {
         s.collect_seq(self.0.iter().map(|b| {
             (
                 b.frame,
-                round(b.bbox.x, 2),
-                round(b.bbox.y, 2),
-                round(b.bbox.w, 2),
-                round(b.bbox.h, 2),
-                round(b.score, 4),
+                round(b.bbox.x, BOX_PLACES),
+                round(b.bbox.y, BOX_PLACES),
+                round(b.bbox.w, BOX_PLACES),
+                round(b.bbox.h, BOX_PLACES),
+                round(b.score, SCORE_PLACES),
                 u8::from(b.observed),
             )
         }))
@@ -127,7 +145,7 @@ fn document(tracks: &Tracks) -> TracksOut<'_> {
             .map(|t| TrackOut {
                 id: t.id,
                 class: &t.class,
-                mean_score: round(t.mean_score, 4),
+                mean_score: round(t.mean_score, SCORE_PLACES),
                 first_frame: t.first_frame(),
                 last_frame: t.last_frame(),
                 observed_boxes: t.boxes.iter().filter(|b| b.observed).count(),

@@ -175,7 +175,9 @@ impl Bridger {
     pub fn finish(mut self, tracks: &Tracks) -> (Tracks, BridgeSummary) {
         self.summary.not_followed += self.active.len() + (self.gaps.len() - self.next);
         self.met.sort_by_key(|m| m.gap);
-        let (out, joins) = join::apply(tracks, &self.gaps, &self.met);
+        let (mut out, joins) = join::apply(tracks, &self.gaps, &self.met);
+        // The bridged boxes are rounded as the tracks files write them, like the tracker's.
+        crate::track::files::round_as_written(&mut out);
         self.summary.joins = joins;
         (out, self.summary)
     }
