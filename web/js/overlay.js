@@ -247,22 +247,16 @@ function drawTracks(ctx, tracks, scene) {
 function measuredPoints(ctx, { pts, seen }, px) {
   const alpha = ctx.globalAlpha;
   ctx.globalAlpha = alpha * 0.75;
-  ctx.fillStyle = CASING;
-  ctx.beginPath();
-  for (let i = 0; i < pts.length; i++) {
-    if (!seen[i]) continue;
-    ctx.moveTo(pts[i][0] + 1.5 * px, pts[i][1]);
-    ctx.arc(pts[i][0], pts[i][1], 1.5 * px, 0, Math.PI * 2);
+  for (const [colour, radius] of /** @type {const} */ ([[CASING, 1.5], [STATE_COLOUR.seen, 0.8]])) {
+    ctx.fillStyle = colour;
+    ctx.beginPath();
+    for (let i = 0; i < pts.length; i++) {
+      if (!seen[i]) continue;
+      ctx.moveTo(pts[i][0] + radius * px, pts[i][1]);
+      ctx.arc(pts[i][0], pts[i][1], radius * px, 0, Math.PI * 2);
+    }
+    ctx.fill();
   }
-  ctx.fill();
-  ctx.fillStyle = STATE_COLOUR.seen;
-  ctx.beginPath();
-  for (let i = 0; i < pts.length; i++) {
-    if (!seen[i]) continue;
-    ctx.moveTo(pts[i][0] + 0.8 * px, pts[i][1]);
-    ctx.arc(pts[i][0], pts[i][1], 0.8 * px, 0, Math.PI * 2);
-  }
-  ctx.fill();
   ctx.globalAlpha = alpha;
 }
 
