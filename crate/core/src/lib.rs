@@ -17,6 +17,7 @@ pub mod detections;
 pub mod edits;
 pub mod error;
 pub mod fingerprint;
+pub mod formats;
 pub mod geometry;
 pub mod handin;
 pub mod limits;

@@ -15,7 +15,7 @@ use schemars::JsonSchema;
 use serde::{Deserialize, Serialize};
 
 /// Identifies a project file.
-pub const FORMAT: &str = "throughline-project";
+pub const FORMAT: &str = crate::formats::PROJECT;
 
 /// Version of the project file's layout.
 pub const VERSION: u32 = 1;

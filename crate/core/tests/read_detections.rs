@@ -374,3 +374,34 @@ fn numbers_too_large_for_any_picture_are_refused_where_they_are() {
         0,
     );
 }
+
+/// Throughline's own documents given where detections belong (a newcomer's trial: `review
+/// tracks.json` said "expected" twice and never that the file was a tracks file) say what they are
+/// and what takes them; any other JSON object says detections in JSON are an array.
+#[test]
+fn own_documents_given_as_detections_say_what_they_are() {
+    for (text, hint) in [
+        (
+            r#"{"format":"throughline-tracks","version":1,"tracks":[]}"#,
+            "this is a tracks file of Throughline (\"format\": \"throughline-tracks\"), not detections: count it with `throughline count FILE --plan PLAN`",
+        ),
+        (
+            "{\n  \"format\": \"throughline-report\",\n  \"version\": 1\n}",
+            "this is a report of counts of Throughline",
+        ),
+        (
+            r#" {"format": "throughline-project"}"#,
+            "a project file of Throughline",
+        ),
+        (
+            r#"{"format": "throughline-edits", "edits": []}"#,
+            "an edits file of Throughline",
+        ),
+        (
+            r#"{"detections": []}"#,
+            "this JSON is an object; detections in JSON are a JSON array of",
+        ),
+    ] {
+        check_err(text.as_bytes(), ErrorKind::BadJson, Some(1), Some(1), hint);
+    }
+}

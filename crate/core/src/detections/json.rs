@@ -186,7 +186,53 @@ impl<'de> Visitor<'de> for JsonSink<'_> {
     }
 }
 
+/// Throughline's own documents, by their `"format"`: what each is, and what takes it.
+const OWN_DOCUMENTS: [(&str, &str, &str); 4] = [
+    (
+        crate::formats::TRACKS,
+        "a tracks file",
+        "count it with `throughline count FILE --plan PLAN`, or score it with `throughline score`",
+    ),
+    (
+        crate::formats::REPORT,
+        "a report of counts",
+        "compare it with a reference using `throughline score-counts`",
+    ),
+    (
+        crate::formats::PROJECT,
+        "a project file",
+        "give it with `--edits` beside the detections it was made from",
+    ),
+    (
+        crate::formats::EDITS,
+        "an edits file",
+        "give it with `--edits` beside the detections it was made from",
+    ),
+];
+
+/// The error for a JSON object where the array of detections belongs: one of Throughline's own
+/// documents (its `"format"` near the start says which) named, with what takes it instead.
+fn not_an_array(text: &str) -> Error {
+    let head = &text[..text.floor_char_boundary(400)];
+    let own = OWN_DOCUMENTS
+        .iter()
+        .find(|(format, ..)| head.contains(&format!("\"{format}\"")));
+    let message = match own {
+        Some((format, name, what)) => format!(
+            "this is {name} of Throughline (\"format\": \"{format}\"), not detections: {what}; \
+             `track`, `run`, `review` and `tune` take detections"
+        ),
+        None => "this JSON is an object; detections in JSON are a JSON array of \
+                 {\"image_id\": frame, \"category_id\": class, \"bbox\": [x, y, w, h], \"score\": s}"
+            .to_string(),
+    };
+    Error::new(ErrorKind::BadJson, message).at(1, Some(1))
+}
+
 pub(super) fn read(text: &str) -> Result<ReadReport, Error> {
+    if text.trim_start().starts_with('{') {
+        return Err(not_an_array(text));
+    }
     let mut out = Detections::default();
     let mut warnings = Warnings::new();
     let failure = RefCell::new(None);

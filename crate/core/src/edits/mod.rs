@@ -17,7 +17,7 @@ use schemars::JsonSchema;
 use serde::{Deserialize, Serialize};
 
 /// Identifies an edits file.
-pub const FORMAT: &str = "throughline-edits";
+pub const FORMAT: &str = crate::formats::EDITS;
 
 /// Version of the edits file's layout.
 pub const VERSION: u32 = 1;

@@ -23,7 +23,7 @@ use serde::{Deserialize, Serialize};
 use std::collections::BTreeMap;
 
 /// Identifies a Throughline report.
-pub const FORMAT: &str = "throughline-report";
+pub const FORMAT: &str = crate::formats::REPORT;
 
 /// Version of the report's layout.
 pub const VERSION: u32 = 1;
