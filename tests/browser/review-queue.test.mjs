@@ -66,7 +66,9 @@ test("the queue leads to the demo's double count; rejecting it gives the line's 
   assert.notDeepEqual(before["east-west divide"], truth["east-west divide"], "as counted, the divide is off the truth");
   await showView(page, "Review");
   const first = page.locator("#doubtful-list li").first();
-  assert.match(await first.innerText(), new RegExp(`${cliQueue[0].why[0].replace(/[.*+?^${}()|[\]\\`]/g, "\\$&")}`), "the first moment is throughline review's first");
+  // The page shows the names the command line writes between backticks as quoted names.
+  const firstWhy = cliQueue[0].why[0].replace(/`([^`]*)`/g, "\u201C$1\u201D");
+  assert.match(await first.innerText(), new RegExp(`${firstWhy.replace(/[.*+?^${}()|[\]\\]/g, "\\$&")}`), "the first moment is throughline review's first");
   const listed = await page.locator("#doubtful-list li").count();
   assert.equal(listed, cliQueue.length, "the page lists as many moments as throughline review --picture 640x360");
   assert.match(await page.getByRole("tab", { name: /Doubtful moments/ }).getAttribute("aria-selected"), /true/, "Review opens on the queue");

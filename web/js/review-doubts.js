@@ -182,6 +182,15 @@ function doubtRow(d, n, decision, fps) {
   return [
     el("span", { class: "when", text: clockText((d.frame - 1) / fps) }),
     el("span", { class: "what" }, [`${n}. ${doubtHeadline(d)}`, badge ? " " : null, badge]),
-    el("span", { class: "detail" }, [...d.why.map((w) => el("span", { class: "why", text: w })), el("span", { text: where.join(" · ") })]),
+    el("span", { class: "detail" }, [...d.why.map((w) => el("span", { class: "why", text: quoted(w) })), el("span", { text: where.join(" · ") })]),
   ];
+}
+
+/**
+ * The core writes names in its sentences between backticks (as the command line prints them); on
+ * the page they read as quoted names: `east-west divide` → “east-west divide”.
+ * @param {string} text
+ */
+function quoted(text) {
+  return text.replace(/`([^`]*)`/g, "\u201C$1\u201D");
 }

@@ -840,7 +840,7 @@ fn an_empty_plan_and_a_tracks_box_of_negative_width_say_what_is_wrong() {
     assert_eq!(o.status.code(), Some(1));
     let e = stderr(&o);
     assert!(
-        e.contains("plan.json") && e.contains("the file is empty"),
+        e.contains("plan.json") && e.contains("is it empty, or cut short?"),
         "{e}"
     );
     let tracks = write(
@@ -857,6 +857,23 @@ fn an_empty_plan_and_a_tracks_box_of_negative_width_say_what_is_wrong() {
     );
     assert!(
         e.contains("box w is -30: sizes must not be negative"),
+        "{e}"
+    );
+    // The same box in a tracks document names its frame, the side and its value (a later trial:
+    // it said "box 1 has a negative width or height", numbering boxes from 0).
+    let json = dir.join("tracks.json").display().to_string();
+    let o = throughline(&["track", &demo("detections.csv"), "-o", &json, "-q"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let mut doc: serde_json::Value =
+        serde_json::from_slice(&std::fs::read(&json).unwrap()).unwrap();
+    doc["tracks"][0]["boxes"][1][3] = serde_json::json!(-30);
+    std::fs::write(&json, doc.to_string()).unwrap();
+    let o = throughline(&["count", &json, "--plan", &demo("plan.json")]);
+    assert_eq!(o.status.code(), Some(1));
+    let e = stderr(&o);
+    assert!(
+        e.contains("tracks.json")
+            && e.contains("the box of frame 2 has w -30: sizes must not be negative"),
         "{e}"
     );
 }

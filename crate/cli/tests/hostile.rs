@@ -99,7 +99,10 @@ fn broken_tracks_files_are_refused_naming_the_track() {
         "negative.json",
         doc("[[1,0,0,-10,10,0.9,1]]").as_bytes(),
     );
-    fails_with(&["count", &negative, "--plan", &plan], "negative width");
+    fails_with(
+        &["count", &negative, "--plan", &plan],
+        "has w -10: sizes must not be negative",
+    );
     let twice = write(&dir, "twice.txt", b"1,7,0,0,10,10\n1,7,5,5,10,10\n");
     fails_with(
         &["count", &twice, "--plan", &plan],

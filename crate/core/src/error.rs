@@ -107,7 +107,7 @@ pub fn plain_json_words(message: &str) -> String {
         ("expected value", "a value is missing or is not JSON here"),
         (
             "EOF while parsing a value",
-            "the file is empty, or ends where a value should be",
+            "the file ends where a value should be: is it empty, or cut short?",
         ),
         (
             "EOF while parsing an object",

@@ -31,7 +31,14 @@ pub struct Args {
 
 fn read_json_value(path: &Path) -> Result<serde_json::Value, Failure> {
     let bytes = read_file(path)?;
-    serde_json::from_slice(&bytes).map_err(|e| bad_input(path, format!("not valid JSON: {e}")))
+    serde_json::from_slice(&bytes).map_err(|e| {
+        let e = throughline_core::Error::from_json(
+            throughline_core::ErrorKind::BadJson,
+            &e,
+            " (a report as `run` or `count` writes it; docs/report.schema.json)",
+        );
+        bad_input(path, e)
+    })
 }
 
 pub fn run(args: Args) -> Result<(), Failure> {
@@ -76,9 +83,18 @@ pub fn run(args: Args) -> Result<(), Failure> {
     if quiet > 0 {
         println!("({quiet} more with no crossing in either count; --json lists them)");
     }
+    let o = &acc.overall;
+    let totals = (o.reference_total > 0).then(|| {
+        let d = o.automated_total as f64 / o.reference_total as f64 - 1.0;
+        format!(
+            "; the totals differ by {:+.1}% (APD and AAPD are means over the cells)",
+            100.0 * d
+        )
+    });
     println!(
-        "all rows pooled: {}",
-        measures(&acc.overall, "line, direction, class and interval cell")
+        "all rows pooled: {}{}",
+        measures(o, "line, direction, class and interval cell"),
+        totals.unwrap_or_default()
     );
     if acc.automated_not_compared > 0 {
         eprintln!(

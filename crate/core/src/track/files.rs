@@ -94,9 +94,8 @@ struct TrackOut<'a> {
     boxes: BoxesOut<'a>,
 }
 
-/// Places the tracks files keep: box coordinates (hundredths of a pixel) and scores.
-const BOX_PLACES: i32 = 2;
-const SCORE_PLACES: i32 = 4;
+const BOX_PLACES: i32 = lines::BOX_PLACES as i32;
+const SCORE_PLACES: i32 = lines::SCORE_PLACES as i32;
 
 /// Rounds every box and score as the tracks files write them, so that tracks written by `track`
 /// and read back by `count` are the very values `run` counts: the same report either way.
@@ -239,18 +238,21 @@ fn check_document(doc: &TracksDocument) -> Result<(), Error> {
         for (b, &(frame, x, y, w, h, score, _)) in t.boxes.iter().enumerate() {
             if frame <= last {
                 return Err(bad(format!(
-                    "box {b} is at frame {frame}, after frame {last}: boxes go one a frame, in increasing frames from 1"
+                    "box {} is at frame {frame}, after frame {last}: boxes go one a frame, in increasing frames from 1",
+                    b + 1
                 )));
             }
             last = frame;
             if ![x, y, w, h, score].into_iter().all(crate::limits::in_range) {
                 return Err(bad(format!(
-                    "box {b} has a value that is not a finite number within ±10^12"
+                    "the box of frame {frame} has a value that is not a finite number within ±10^12"
                 )));
             }
-            if w < 0.0 || h < 0.0 {
+            if let Some((side, v)) = [("w", w), ("h", h)].into_iter().find(|(_, v)| *v < 0.0) {
                 return Err(bad(format!(
-                    "box {b} has a negative width or height (boxes are x, y, w, h)"
+                    "the box of frame {frame} has {side} {v}: sizes must not be negative (boxes are \
+                     [frame, x, y, w, h, score, observed]: top-left x, y then width, height, not \
+                     two corners)"
                 )));
             }
         }

@@ -52,17 +52,21 @@ fn push_line(buf: &mut Vec<u8>, frame: u32, id: u32, b: &TrackBox) {
     push_digits(buf, u64::from(id), 0);
     buf.push(b',');
     for v in [b.bbox.x, b.bbox.y, b.bbox.w, b.bbox.h] {
-        write_decimal(buf, v, 2);
+        write_decimal(buf, v, BOX_PLACES);
         buf.push(b',');
     }
-    write_decimal(buf, written_score(b), 4);
+    write_decimal(buf, written_score(b), SCORE_PLACES);
     buf.extend_from_slice(b",-1,-1,-1\n");
 }
+
+/// Decimal places the tracks files keep: box coordinates (hundredths of a pixel) and scores.
+pub(crate) const BOX_PLACES: u32 = 2;
+pub(crate) const SCORE_PLACES: u32 = 4;
 
 /// The score a line gives `b`: 0 marks a predicted box (`count` reads it back so), so a seen box
 /// whose score would round to 0 is written as the least score above it, 0.0001.
 fn written_score(b: &TrackBox) -> f64 {
-    if b.observed && round(b.score, 4) == 0.0 {
+    if b.observed && round(b.score, SCORE_PLACES as i32) == 0.0 {
         0.0001
     } else {
         b.score
