@@ -152,19 +152,12 @@ export class CoreClient {
   }
 
   /**
-   * Reads a project file; rejects with what is wrong where.
+   * Reads a project file: the project and how its version differs from this one's (the core
+   * decides); rejects with what is wrong where.
    * @param {string} text
    */
   readProject(text) {
     return this.call({ op: "readProject", text });
-  }
-
-  /**
-   * How a project file saved by an older version differs from this one's (the core decides).
-   * @param {string} text
-   */
-  projectAge(text) {
-    return this.call({ op: "projectAge", text });
   }
 
   /**

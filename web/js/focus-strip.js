@@ -94,7 +94,7 @@ export class FocusStrip {
   /** @param {number} id */
   showTrack(id) {
     const cls = this.store.tracks ? this.store.tracks.classes.get(id) : null;
-    this.what.replaceChildren(`In focus: track ${id}${cls ? ` (${cls})` : ""}, its whole path drawn as counted, over dots where its boxes were.`);
+    this.what.replaceChildren(`In focus: track ${id}${cls ? ` (${cls})` : ""}, its whole path drawn${this.store.results ? " as counted, over dots where its boxes were" : ""}.`);
     this.buttons.replaceChildren(this.clearButton());
   }
 

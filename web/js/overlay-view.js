@@ -39,7 +39,11 @@ export class OverlayView {
     store.subscribe(["picture"], () => this.size());
     store.subscribe(["plan", "geometry", "tracks", "results", "tally"], redraw(() => { this.layout = null; }));
     store.subscribe(["tallyPress"], redraw());
-    store.subscribe(["focus", "tracks", "plan", "results"], redraw(() => { this.focus = this.focusPaths(); }));
+    store.subscribe(["focus", "tracks", "plan"], redraw(() => { this.focus = this.focusPaths(); }));
+    // Asked once the worker has counted with the plan and corrections shown (after the paths above).
+    store.subscribe(["focus", "results"], () => this.askCounted());
+    /** @type {{ids: number[]} | null} the last request for counted paths, to drop stale answers */
+    this.countedAsk = null;
     store.subscribe(["selection", "frame", "draft"], redraw());
     window.addEventListener("resize", redraw(() => { this.layout = null; }));
     for (const box of Object.values(this.show)) box.addEventListener("change", redraw());
@@ -87,28 +91,46 @@ export class OverlayView {
   }
 
   /**
-   * The focused tracks' whole paths, from their first frame to their last, as measured; their paths
-   * as counted (averaged by the core under the plan) follow when the core answers, unless the
-   * focus has moved on by then.
+   * The focused tracks' whole paths, from their first frame to their last, as measured; their
+   * paths as counted stay those last given for the same tracks until the core answers again
+   * (`askCounted`), so a correction or a plan change does not flicker the drawing.
    * @returns {import("./overlay.js").Scene["focus"]}
    */
   focusPaths() {
-    const { focus, tracks, plan, results } = this.store;
+    const { focus, tracks, plan } = this.store;
     if (!focus || !tracks) return null;
     const ids = new Set(focus.tracks);
     const info = tracks.list.filter((t) => ids.has(t.id));
-    if (!info.length) return { ids, paths: new Map(), counted: null };
+    if (!info.length) return { ids, paths: new Map(), counted: null, steps: [] };
     const from = Math.min(...info.map((t) => t.first_frame));
     const to = Math.max(...info.map((t) => t.last_frame));
-    const shown = { ids, paths: tracks.paths(from, to, plan.anchor, ids), counted: null };
-    if (results) {
-      this.client.countedPaths([...ids]).then((counted) => {
-        if (this.focus !== shown) return;
-        this.focus = { ...shown, counted };
-        this.redraw();
-      }).catch(() => {}); // without a plan the core has no counted paths: the measured ones stay
+    const before = this.focus;
+    const kept = before && before.counted && sameIds(before.ids, ids) ? before : null;
+    return { ids, paths: tracks.paths(from, to, plan.anchor, ids), counted: kept ? kept.counted : null, steps: kept ? kept.steps : [] };
+  }
+
+  /**
+   * Asks the core for the focused tracks' paths as counted (averaged under the plan), once there
+   * are counts: the answer is drawn unless another request, other counts or another focus came
+   * first. A failure is written on the canvas (`data-counted-paths-error`); the measured paths stay.
+   */
+  askCounted() {
+    const f = this.focus;
+    const results = this.store.results;
+    if (!f || !f.paths.size || !results) {
+      this.countedAsk = null;
+      return;
     }
-    return shown;
+    const ask = (this.countedAsk = { ids: [...f.ids] });
+    this.client.countedPaths(ask.ids).then((counted) => {
+      const now = this.focus;
+      if (this.countedAsk !== ask || this.store.results !== results || !now || !sameIds(now.ids, f.ids)) return;
+      this.focus = { ...now, counted, steps: joinSteps(results.report.joins, counted) };
+      delete this.canvas.dataset.countedPathsError;
+      this.redraw();
+    }).catch((/** @type {Error} */ e) => {
+      if (this.countedAsk === ask) this.canvas.dataset.countedPathsError = e.message;
+    });
   }
 
   /**
@@ -171,6 +193,36 @@ export class OverlayView {
       return { id, drawn: counted ? "counted" : "measured", pts: (counted || measured).pts.map(([x, y]) => [Math.round(x * 10) / 10, Math.round(y * 10) / 10]) };
     }) : [];
     this.canvas.dataset.focusPaths = JSON.stringify(paths);
+    this.canvas.dataset.focusSteps = JSON.stringify(f ? f.steps : []);
     this.canvas.dataset.labels = JSON.stringify(drawn.map(({ key, rect }) => ({ key, x: Math.round(rect.x), y: Math.round(rect.y), w: Math.round(rect.w), h: Math.round(rect.h) })));
   }
+}
+
+/**
+ * Whether two sets of track ids are the same.
+ * @param {Set<number>} a
+ * @param {Set<number>} b
+ */
+function sameIds(a, b) {
+  return a.size === b.size && [...a].every((id) => b.has(id));
+}
+
+/**
+ * Where the counting joined one focused fragment to the next (the report's `joins`): from the
+ * first's last counted point to the next one's first, the step its path takes across the gap.
+ * @param {{tracks: number[]}[]} joins
+ * @param {Map<number, import("./tracks.js").Path>} counted
+ * @returns {[import("./geometry.js").Point, import("./geometry.js").Point][]}
+ */
+function joinSteps(joins, counted) {
+  /** @type {[import("./geometry.js").Point, import("./geometry.js").Point][]} */
+  const steps = [];
+  for (const { tracks } of joins || []) {
+    for (let k = 0; k + 1 < tracks.length; k++) {
+      const a = counted.get(tracks[k]);
+      const b = counted.get(tracks[k + 1]);
+      if (a && b && a.pts.length && b.pts.length) steps.push([a.pts[a.pts.length - 1], b.pts[0]]);
+    }
+  }
+  return steps;
 }

@@ -17,7 +17,7 @@ import { CASING, DIRECTION_COLOUR, PLAN_INK, STATE_COLOUR } from "./palette.js";
  * What to draw for one frame. `px`: video pixels per screen pixel; `pathFrames`: how many frames of
  * each track's path to show; `focus`: the tracks being reviewed (the others are dimmed), their
  * whole paths as measured and, once the core has answered, as counted (`counted`, averaged under
- * the plan's rules); `focusPoint`: where the count event being reviewed happened; `focusDoubtful`: the
+ * the plan's rules, and `steps`: where the counting joined one fragment to the next); `focusPoint`: where the count event being reviewed happened; `focusDoubtful`: the
  * moment in focus is from the doubtful-moments queue (its ring is drawn in the doubtful colour).
  * @typedef {object} Scene
  * @property {import("./plan.js").Plan} plan
@@ -30,7 +30,7 @@ import { CASING, DIRECTION_COLOUR, PLAN_INK, STATE_COLOUR } from "./palette.js";
  * @property {number} pathFrames
  * @property {number} beadEvery
  * @property {import("./store.js").Draft | null} draft
- * @property {{ids: Set<number>, paths: Map<number, import("./tracks.js").Path>, counted: Map<number, import("./tracks.js").Path> | null} | null} focus
+ * @property {{ids: Set<number>, paths: Map<number, import("./tracks.js").Path>, counted: Map<number, import("./tracks.js").Path> | null, steps: [Point, Point][]} | null} focus
  * @property {Point | null} focusPoint
  * @property {boolean} focusDoubtful
  * @property {import("./overlay-layout.js").Layout} layout
@@ -226,6 +226,8 @@ function drawTracks(ctx, tracks, scene) {
       measuredPoints(ctx, path, px);
       beadedPath(ctx, counted, px, 1.8, scene.beadEvery);
     }
+    // A join is an inference, drawn as a predicted stretch is: dashed, in the predicted colour.
+    for (const step of focus.steps) beadedPath(ctx, { pts: step, seen: [false, false] }, px, 1.8, scene.beadEvery);
   }
   tracks.forEachBox(frame, (id, x, y, w, h, seen) => {
     dim(id);
@@ -247,7 +249,7 @@ function drawTracks(ctx, tracks, scene) {
 function measuredPoints(ctx, { pts, seen }, px) {
   const alpha = ctx.globalAlpha;
   ctx.globalAlpha = alpha * 0.75;
-  for (const [colour, radius] of /** @type {const} */ ([[CASING, 1.5], [STATE_COLOUR.seen, 0.8]])) {
+  for (const [colour, radius] of /** @type {const} */ ([[CASING, 1.9], [STATE_COLOUR.seen, 1.1]])) {
     ctx.fillStyle = colour;
     ctx.beginPath();
     for (let i = 0; i < pts.length; i++) {

@@ -78,8 +78,9 @@ export class ProjectPanel {
    */
   async open(text, name) {
     let project;
+    let age;
     try {
-      project = await this.client.readProject(text);
+      ({ project, age } = await this.client.readProject(text));
     } catch (e) {
       this.messages.say("project", "error", `${name} could not be opened as a project: ${/** @type {Error} */ (e).message}`);
       return;
@@ -89,7 +90,6 @@ export class ProjectPanel {
     this.projectName.textContent = name;
     const n = project.edits.length;
     this.messages.say("project", "ok", `${name} opened: its plan, ${n} correction${n === 1 ? "" : "s"} and ${project.review.length} review decision${project.review.length === 1 ? "" : "s"}.${this.store.tracks ? "" : " Press Run to track; the corrections are applied to the tracks."}`);
-    const age = await this.client.projectAge(text);
     this.sayIfOlderRules(age, project, name);
     this.keepOlderTracking(age, project, name);
     await this.check();

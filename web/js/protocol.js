@@ -166,7 +166,6 @@
  * @typedef {{op: "setEdits", json: string, kind: "edits" | "project", width: number, height: number}} SetEditsRequest
  * @typedef {{op: "editsText"}} EditsTextRequest
  * @typedef {{op: "readProject", text: string}} ReadProjectRequest
- * @typedef {{op: "projectAge", text: string}} ProjectAgeRequest
  * @typedef {{op: "writeProject", project: object}} WriteProjectRequest
  * @typedef {{op: "fingerprint", name: string, size: number, head: ArrayBuffer, duration: number}} FingerprintRequest
  * @typedef {{op: "fingerprintDiffers", recorded: object, opened: object}} FingerprintDiffersRequest
@@ -188,7 +187,7 @@
  *   | FinishDetectionRequest | FindInFootageRequest | CancelFindRequest | DetectionsTextRequest | TracksTextRequest
  *   | SetEditsRequest | EditsTextRequest | ReadProjectRequest | WriteProjectRequest | FingerprintRequest
  *   | FingerprintDiffersRequest | HandInRequest | SummaryHtmlRequest | MergedGridRequest | BackgroundFramesRequest
- *   | SampleRgbaRequest | CountedPathsRequest | ProjectAgeRequest} Request
+ *   | SampleRgbaRequest | CountedPathsRequest} Request
  * @typedef {Request & {id: number}} RequestMessage a request as posted to the worker
  */
 
@@ -200,8 +199,7 @@
  * @property {Results | null} setPlan the report and CSV when there are tracks, else null
  * @property {Corrected} setEdits
  * @property {string} editsText the edits file
- * @property {Project} readProject
- * @property {ProjectAge} projectAge
+ * @property {{project: Project, age: ProjectAge}} readProject the project, and how its version differs from this one's
  * @property {string} writeProject the project file
  * @property {Fingerprint} fingerprint
  * @property {string | null} fingerprintDiffers why the file opened is not the one recorded, or null

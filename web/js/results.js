@@ -22,6 +22,7 @@ import { itemNames } from "./palette.js";
  * @property {{origin: string, destination: string, class: string, count: number, u_turn: boolean}[]} movements
  * @property {{unit: string, by_class: Record<string, Summary>, all: Summary} | null} speeds
  * @property {CountEvent[]} events
+ * @property {{tracks: number[], gap_frames: number}[]} joins fragments the counting joined into one path, in time order
  * @property {import("./edits.js").Outcome[]} [edits] the person's corrections, each with what it did or why it could not
  * @property {CountEvent[]} [rejected_events] counted crossings a person rejected; in no count
  * @property {import("./tally-checks.js").TallyCheck[]} [checks] each hand count beside the tool's count of its frames

@@ -507,3 +507,42 @@ fn score_thresholds_outside_0_to_1_are_refused_by_name() {
         );
     }
 }
+
+/// The tracks as `track` writes them (JSON document; benchmark text, which carries no classes and
+/// no settings) read back and counted give the report `run` makes from the tracker's own tracks,
+/// for every method, with the demo's plan and with paths counted as given: the tracker's boxes are
+/// rounded as the files write them before anything counts them.
+#[test]
+fn written_tracks_count_as_run_counts_them_for_every_method() {
+    use throughline_core::{pipeline, plan::Plan};
+    let demo = |f: &str| format!("{}/../../demo-site/demo/{f}", env!("CARGO_MANIFEST_DIR"));
+    let detections = read_detections(&std::fs::read(demo("detections.csv")).unwrap())
+        .unwrap()
+        .detections;
+    let plan_text = std::fs::read_to_string(demo("plan.json")).unwrap();
+    let as_given = plan_text.replacen('{', r#"{"rules": {"smooth_seconds": 0},"#, 1);
+    let work = pipeline::Work::default();
+    for plan in [&plan_text, &as_given].map(|t| Plan::from_json(t).unwrap()) {
+        for &method in Method::ALL {
+            let config = TrackerConfig::for_method(method);
+            let tracks = pipeline::track(&detections, &config, &mut |_, _| {}).unwrap();
+            let report = |t: &Tracks, c: Option<&TrackerConfig>| {
+                pipeline::count(t, &plan, c, &work).unwrap().to_json()
+            };
+            let run = report(&tracks, Some(&config));
+            let back = files::from_json(files::to_json(&tracks).as_bytes()).unwrap();
+            assert_eq!(report(&back, Some(&back.config)), run, "{method:?}, JSON");
+            // Benchmark text: the same boxes, all of them unclassified, so compare without classes.
+            let mut plain = tracks.clone();
+            plain.tracks.iter_mut().for_each(|t| t.class = None);
+            let text = files::to_benchmark_text(&tracks);
+            let back =
+                files::boxes_to_tracks(&files::read_benchmark_boxes(text.as_bytes()).unwrap());
+            assert_eq!(
+                report(&back, None),
+                report(&plain, None),
+                "{method:?}, text"
+            );
+        }
+    }
+}

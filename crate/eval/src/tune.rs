@@ -3,8 +3,9 @@
 
 use crate::tracking_metrics::{score, Scores};
 use throughline_core::detections::Detections;
+use throughline_core::pipeline;
 use throughline_core::track::files::{tracks_to_boxes, IdBox};
-use throughline_core::track::{run_tracker, Method, TrackerConfig};
+use throughline_core::track::{Method, TrackerConfig};
 
 /// What to maximise.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -81,7 +82,7 @@ pub fn tune(
 ) -> Result<Vec<Trial>, String> {
     let mut trials = Vec::with_capacity(candidates.len());
     for (k, config) in candidates.iter().enumerate() {
-        let tracks = run_tracker(detections, config, &mut |_, _| {}).map_err(|e| e.message)?;
+        let tracks = pipeline::track(detections, config, &mut |_, _| {}).map_err(|e| e.message)?;
         let scores = score(truth, &tracks_to_boxes(&tracks)).map_err(|e| e.message)?;
         trials.push(Trial {
             config: config.clone(),

@@ -9,13 +9,13 @@
 use crate::error::{Error, ErrorKind};
 use crate::geometry::BBox;
 use crate::text;
-use crate::track::lines::round;
+use crate::track::lines::{self, round};
 pub use crate::track::lines::{write_decimal, BenchmarkLines};
 use crate::track::{Track, TrackBox, TrackerConfig, Tracks};
 use serde::{Deserialize, Serialize};
 
 /// Identifies a Throughline tracks document.
-pub const TRACKS_FORMAT: &str = "throughline-tracks";
+pub const TRACKS_FORMAT: &str = crate::formats::TRACKS;
 /// Version of the tracks document layout.
 pub const TRACKS_VERSION: u32 = 1;
 
