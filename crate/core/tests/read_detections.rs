@@ -405,3 +405,20 @@ fn own_documents_given_as_detections_say_what_they_are() {
         check_err(text.as_bytes(), ErrorKind::BadJson, Some(1), Some(1), hint);
     }
 }
+
+/// Benchmark text whose rows carry object ids (tracks or a ground truth given where detections
+/// belong; a newcomer's trial: `review tracks.txt` tracked them again without a word) is read as
+/// detections, with one warning at the first such row.
+#[test]
+fn benchmark_rows_with_object_ids_are_read_with_one_warning() {
+    let r = read_detections(b"1,-1,1,1,5,5,0.9\n2,7,1,1,5,5,0.9\n3,7,2,1,5,5,0.9\n").unwrap();
+    assert_eq!(r.detections.rows.len(), 3);
+    assert_eq!(r.skipped_rows, 0);
+    assert_eq!(r.warnings.len(), 1, "{:?}", r.warnings);
+    assert_eq!(r.warnings[0].line, Some(2));
+    assert!(r.warnings[0]
+        .message
+        .contains("column 2 holds an object id (7), not -1"));
+    let plain = read_detections(b"1,-1,1,1,5,5,0.9\n2,-1,1,1,5,5,0.9\n").unwrap();
+    assert!(plain.warnings.is_empty());
+}

@@ -230,6 +230,26 @@ fn warnings_read_in_two_parts_are_kept_and_counted_as_in_one() {
     check_halves(format!("{loud}{}{loud}{}", tiny.repeat(25), tiny.repeat(25)).as_bytes());
     check_halves(format!("{}{}{loud}", fine.repeat(3), tiny.repeat(40)).as_bytes());
     check_halves(tiny.repeat(30).as_bytes());
+    // Rows carrying object ids (tracks given as detections): one warning in all, with the one
+    // about scores, wherever the cut falls.
+    let with_id = "2,7,1,1,1,1,0.5\n";
+    check_halves(
+        format!(
+            "{}{with_id}{}{with_id}{loud}",
+            tiny.repeat(19),
+            tiny.repeat(3)
+        )
+        .as_bytes(),
+    );
+    check_halves(
+        format!(
+            "{}{with_id}{loud}{}{with_id}",
+            fine.repeat(40),
+            tiny.repeat(2)
+        )
+        .as_bytes(),
+    );
+    check_halves(format!("{with_id}{}{with_id}{}", tiny.repeat(25), tiny.repeat(25)).as_bytes());
 }
 
 #[test]

@@ -106,6 +106,7 @@ impl Lines {
             return Ok(None);
         };
         self.r.note_score(v[6]);
+        self.r.note_id(v[1]);
         // Column 8 holds a class in ground-truth style files; -1 (or a world coordinate) means none.
         let class = match class {
             Some(c) if c > 0 => Some(self.r.class(&c.to_string())?),

@@ -187,17 +187,26 @@ pub fn merge(first: Part, second: Part) -> Result<ReadReport, Error> {
 }
 
 /// The second part's warnings after the first's, kept and counted as one reading keeps them:
-/// one warning about scores in all, at most [`MAX_WARNINGS`] of the others.
+/// one warning about scores and one about object ids in all, at most [`MAX_WARNINGS`] of the
+/// others.
 fn merge_warnings(first: &mut Warnings, second: Warnings) {
     first.count += second.count;
     for (i, w) in second.kept.into_iter().enumerate() {
-        if second.score_at == Some(i) {
-            if first.score_at.is_none() {
-                first.score_at = Some(first.kept.len());
+        let once = if second.score_at == Some(i) {
+            Some(&mut first.score_at)
+        } else if second.id_at == Some(i) {
+            Some(&mut first.id_at)
+        } else {
+            None
+        };
+        match once {
+            Some(at) if at.is_none() => {
+                *at = Some(first.kept.len());
                 first.kept.push(w);
             }
-        } else if first.kept.len() < MAX_WARNINGS {
-            first.kept.push(w);
+            Some(_) => {}
+            None if first.kept.len() < MAX_WARNINGS => first.kept.push(w),
+            None => {}
         }
     }
 }

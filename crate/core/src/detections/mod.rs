@@ -172,6 +172,8 @@ pub(crate) struct Warnings {
     count: usize,
     /// Where in `kept` the one warning about scores outside 0..1 is, once given.
     score_at: Option<usize>,
+    /// Where in `kept` the one warning about object ids in benchmark text is, once given.
+    id_at: Option<usize>,
 }
 
 impl Warnings {
@@ -180,6 +182,7 @@ impl Warnings {
             kept: Vec::new(),
             count: 0,
             score_at: None,
+            id_at: None,
         }
     }
 
@@ -189,6 +192,22 @@ impl Warnings {
             self.kept.push(Warning {
                 line,
                 message: message.into(),
+            });
+        }
+    }
+
+    /// Warns about the first row of benchmark text that carries an object id (column 2 not -1):
+    /// tracks or a ground truth given as detections, read as detections and tracked again.
+    pub(crate) fn note_id(&mut self, id: f64, line: usize) {
+        if id >= 0.0 && self.id_at.is_none() {
+            self.id_at = Some(self.kept.len());
+            self.kept.push(Warning {
+                line: Some(line),
+                message: format!(
+                    "column 2 holds an object id ({id}), not -1: this looks like tracks or a ground \
+                     truth, read here as detections and tracked again (to count tracks as they are: \
+                     `throughline count FILE --plan PLAN`) (first such row; rows kept)"
+                ),
             });
         }
     }

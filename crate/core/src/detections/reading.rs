@@ -72,6 +72,11 @@ impl Reading {
         checked_box(b, self.line, w_column, &mut self.warnings)
     }
 
+    /// Warns once about a row carrying an object id (the row is kept).
+    pub fn note_id(&mut self, id: f64) {
+        self.warnings.note_id(id, self.line);
+    }
+
     /// Warns once about a score outside 0..1 (the row is kept).
     pub fn note_score(&mut self, score: f64) {
         self.warnings.note_score(score, self.line);
