@@ -20,10 +20,8 @@ declare function wasm_bindgen(init: { module_or_path: Uint8Array | BufferSource 
 declare namespace wasm_bindgen {
   /** The tracking methods and default margins, from the core's own tables. */
   function coreFacts(): CoreFacts;
-  /** Reads a project file's text; errors name the line and column. */
-  function readProject(text: string): Project;
-  /** How a project file saved by an older version differs from this one's. */
-  function projectAge(text: string): ProjectAge;
+  /** Reads a project file's text (and how its version differs); errors name the line and column. */
+  function readProject(text: string): { project: Project, age: ProjectAge };
   /** A project (plain object) as the project file's text; format, version and generator filled in. */
   function writeProject(project: object): string;
   /** A file's fingerprint from its name, size, first bytes (at least the first MiB) and duration (0: none). */

@@ -176,7 +176,7 @@ async function perform(req, progress, token) {
     case "setPlan": core().setPlan(req.json); return results(req);
     case "setEdits": return setEdits(req.json, req.kind, req);
     case "editsText": return core().editsText();
-    case "readProject": return { project: wasm_bindgen.readProject(req.text), age: wasm_bindgen.projectAge(req.text) };
+    case "readProject": return wasm_bindgen.readProject(req.text);
     case "writeProject": return wasm_bindgen.writeProject(req.project);
     case "fingerprint": return wasm_bindgen.fingerprint(req.name, req.size, new Uint8Array(req.head), req.duration);
     case "fingerprintDiffers": return wasm_bindgen.fingerprintDiffers(req.recorded, req.opened) || null;

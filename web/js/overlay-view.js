@@ -34,6 +34,8 @@ export class OverlayView {
     this.action = null;
     /** @type {import("./overlay.js").Scene["focus"]} */
     this.focus = null;
+    /** @type {import("./overlay.js").Scene["focus"] | undefined} the focus last written on the canvas */
+    this.focusWritten = undefined;
     /** @param {() => void} [also] */
     const redraw = (also) => () => { if (also) also(); this.redraw(); };
     store.subscribe(["picture"], () => this.size());
@@ -134,6 +136,20 @@ export class OverlayView {
   }
 
   /**
+   * The focused tracks' paths as drawn, and whether as counted or as measured, written on the
+   * canvas for the browser tests: once per focus drawn, not on every frame played.
+   */
+  writeFocus() {
+    const f = (this.focusWritten = this.focus);
+    const paths = f ? [...f.paths].map(([id, measured]) => {
+      const counted = f.counted ? f.counted.get(id) : undefined;
+      return { id, drawn: counted ? "counted" : "measured", pts: (counted || measured).pts.map(([x, y]) => [Math.round(x * 10) / 10, Math.round(y * 10) / 10]) };
+    }) : [];
+    this.canvas.dataset.focusPaths = JSON.stringify(paths);
+    this.canvas.dataset.focusSteps = JSON.stringify(f ? f.steps : []);
+  }
+
+  /**
    * Where the moment in focus happened: the chosen crossing; for a doubtful moment, its crossing
    * (counted or rejected), else where its first track was at its frame.
    * @returns {import("./geometry.js").Point | null}
@@ -186,14 +202,7 @@ export class OverlayView {
     // The keys a hand count shows on the picture, and their presses, for the browser tests to read.
     if (tally) this.canvas.dataset.keycaps = JSON.stringify(this.layout.placed.map((p) => ({ key: p.key, ...p.content(s.frame) })).filter((t) => t.keycap).map(({ key, keycap, count }) => ({ key, keycap, count })));
     else delete this.canvas.dataset.keycaps;
-    // The focused tracks' paths as drawn, and whether as counted or as measured, for the browser tests.
-    const f = this.focus;
-    const paths = f ? [...f.paths].map(([id, measured]) => {
-      const counted = f.counted ? f.counted.get(id) : undefined;
-      return { id, drawn: counted ? "counted" : "measured", pts: (counted || measured).pts.map(([x, y]) => [Math.round(x * 10) / 10, Math.round(y * 10) / 10]) };
-    }) : [];
-    this.canvas.dataset.focusPaths = JSON.stringify(paths);
-    this.canvas.dataset.focusSteps = JSON.stringify(f ? f.steps : []);
+    if (this.focus !== this.focusWritten) this.writeFocus();
     this.canvas.dataset.labels = JSON.stringify(drawn.map(({ key, rect }) => ({ key, x: Math.round(rect.x), y: Math.round(rect.y), w: Math.round(rect.w), h: Math.round(rect.h) })));
   }
 }

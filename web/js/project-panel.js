@@ -116,9 +116,9 @@ export class ProjectPanel {
   }
 
   /**
-   * A project saved before paths were averaged for counting (the core's `projectAge` decides, as
-   * the command line's `Project::saved_before_averaged_paths`) counted with other rules: says so,
-   * and how to count as it did.
+   * A project saved before paths were averaged for counting (the core decides, answering
+   * `readProject`, as the command line's `Project::saved_before_averaged_paths`) counted with other
+   * rules: says so, and how to count as it did.
    * @param {import("./protocol.js").ProjectAge} age
    * @param {import("./protocol.js").Project} project
    * @param {string} name
@@ -131,9 +131,10 @@ export class ProjectPanel {
   }
 
   /**
-   * A project tracked before `deepsort` kept low-score boxes (the core's `projectAge` decides, as
-   * the command line's `Project::tracked_before_low_score_boxes`) is tracked as it was, so that its
-   * corrections meet their tracks: with the settings the core gives, its own over the older defaults.
+   * A project tracked before `deepsort` kept low-score boxes (the core decides, answering
+   * `readProject`, as the command line's `Project::tracked_before_low_score_boxes`) is tracked as
+   * it was, so that its corrections meet their tracks: with the settings the core gives, its own
+   * over the older defaults.
    * @param {import("./protocol.js").ProjectAge} age
    * @param {import("./protocol.js").Project} project
    * @param {string} name

@@ -250,15 +250,7 @@ fn run_tracks_and_counts_with_a_plan_writing_report_and_csv() {
     assert!(header.starts_with("screenline,direction,class,interval_start,interval_end,count\n"));
     // count on the written tracks gives the same counts as run.
     let report2 = dir.join("report2.json").display().to_string();
-    let o = throughline(&[
-        "count",
-        &tracks,
-        "--plan",
-        &demo("plan.json"),
-        "-o",
-        &report2,
-        "-q",
-    ]);
+    let o = count_with_demo_plan(&tracks, &["-o", &report2, "-q"]);
     assert!(o.status.success(), "{}", stderr(&o));
     // The tracker's boxes are rounded as the tracks file writes them (0.01 pixel) before `run`
     // counts them, so counting the written tracks gives `run`'s report, byte for byte.
@@ -444,17 +436,9 @@ fn the_committed_demo_footage_decodes_and_matches_its_detections() {
 #[test]
 fn score_counts_compares_a_report_with_a_manual_count() {
     let dir = scratch("score_counts");
-    let report = dir.join("report.json").display().to_string();
-    let o = run_demo(&["-o", &report, "-q"]);
-    assert!(o.status.success(), "{}", stderr(&o));
+    let report = demo_report(&dir);
     // The simulator's true counts, in the counts CSV layout, stand in for a manual count.
-    let o = throughline(&[
-        "score-counts",
-        "--truth",
-        &demo("truth_counts.csv"),
-        &report,
-        "--json",
-    ]);
+    let o = score_against_demo_truth(&report, &["--json"]);
     assert!(o.status.success(), "{}", stderr(&o));
     let a: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
     for key in [
@@ -489,15 +473,7 @@ fn score_counts_compares_a_report_with_a_manual_count() {
 #[test]
 fn score_counts_table_reads_plainly_and_says_what_it_leaves_out() {
     let dir = scratch("score_counts_plain");
-    let report = dir.join("report.json").display().to_string();
-    let o = run_demo(&["-o", &report, "-q"]);
-    assert!(o.status.success(), "{}", stderr(&o));
-    let o = throughline(&[
-        "score-counts",
-        "--truth",
-        &demo("truth_counts.csv"),
-        &report,
-    ]);
+    let o = score_against_demo_truth(&demo_report(&dir), &[]);
     let table = String::from_utf8_lossy(&o.stdout).to_string();
     assert!(!table.contains(" 0 vs 0,"), "{table}");
     assert!(
@@ -510,17 +486,9 @@ fn score_counts_table_reads_plainly_and_says_what_it_leaves_out() {
     let o = throughline(&["track", &demo("detections.csv"), "-o", &tracks, "-q"]);
     assert!(o.status.success(), "{}", stderr(&o));
     let plain = dir.join("plain.json").display().to_string();
-    let o = throughline(&[
-        "count",
-        &tracks,
-        "--plan",
-        &demo("plan.json"),
-        "-o",
-        &plain,
-        "-q",
-    ]);
+    let o = count_with_demo_plan(&tracks, &["-o", &plain, "-q"]);
     assert!(o.status.success(), "{}", stderr(&o));
-    let o = throughline(&["score-counts", "--truth", &demo("truth_counts.csv"), &plain]);
+    let o = score_against_demo_truth(&plain, &[]);
     assert!(
         stderr(&o).contains("of classes the reference does not name for their line and direction"),
         "{}",

@@ -59,11 +59,12 @@ impl Session {
     }
 }
 
-/// Reads a project file's text; errors name the line and column. Returns the project as a plain
-/// object (as `docs/project.schema.json` describes it).
-#[wasm_bindgen(js_name = readProject)]
-pub fn read_project(text: &str) -> Result<JsValue, JsError> {
-    to_js(&Project::from_json(text).map_err(js_error)?)
+/// A project file read: the project as a plain object (as `docs/project.schema.json` describes
+/// it) and how its version differs from this one's.
+#[derive(Serialize)]
+struct ProjectRead {
+    project: Project,
+    age: ProjectAge,
 }
 
 /// What a project saved by an older version needs to be counted and tracked as it was.
@@ -78,13 +79,14 @@ struct ProjectAge {
     tracked_before_low_score_boxes: Option<String>,
 }
 
-/// How a project file's version differs from this one's (the command line asks the same of
+/// Reads a project file's text; errors name the line and column. Returns `{project, age}`: the
+/// project, and how its version differs from this one's (the command line asks the same of
 /// [`Project`]): `{counted_before_averaged_paths: margin | null, tracked_before_low_score_boxes:
 /// settings JSON | null}`. The page says so, and tracks such a project as it was tracked.
-#[wasm_bindgen(js_name = projectAge)]
-pub fn project_age(text: &str) -> Result<JsValue, JsError> {
+#[wasm_bindgen(js_name = readProject)]
+pub fn read_project(text: &str) -> Result<JsValue, JsError> {
     let p = Project::from_json(text).map_err(js_error)?;
-    to_js(&ProjectAge {
+    let age = ProjectAge {
         counted_before_averaged_paths: p
             .saved_before_averaged_paths()
             .then_some(plan::HYSTERESIS_BEFORE_AVERAGED_PATHS),
@@ -92,7 +94,8 @@ pub fn project_age(text: &str) -> Result<JsValue, JsError> {
             .tracked_before_low_score_boxes()
             .then(|| p.tracking_settings())
             .flatten(),
-    })
+    };
+    to_js(&ProjectRead { project: p, age })
 }
 
 /// A project (a plain object) as the project file's text, checked against its layout.

@@ -17,7 +17,7 @@ struct MethodFacts {
 /// methods, the crossing margins (box heights) by default, for boxes found in footage and at most, the
 /// seconds paths are averaged over by default and at most, the longest gap (frames) the tracker
 /// settings' `bridge_frames` may ask to bridge. (What an older project needs is answered for each
-/// project, by `projectAge`.)
+/// project, by `readProject`.)
 #[derive(Serialize)]
 struct CoreFacts {
     methods: Vec<MethodFacts>,

@@ -46,6 +46,33 @@ pub fn run_demo(more: &[&str]) -> Output {
     throughline(&args)
 }
 
+/// `throughline count` of a tracks file with the demo's plan, with `more` arguments after them.
+#[allow(dead_code)] // not every test file uses it
+pub fn count_with_demo_plan(tracks: &str, more: &[&str]) -> Output {
+    let plan = demo("plan.json");
+    let mut args = vec!["count", tracks, "--plan", &plan];
+    args.extend_from_slice(more);
+    throughline(&args)
+}
+
+/// The demo's report, written by `throughline run` into `dir` as `report.json`; its path.
+#[allow(dead_code)] // not every test file uses it
+pub fn demo_report(dir: &Path) -> String {
+    let report = dir.join("report.json").display().to_string();
+    let o = run_demo(&["-o", &report, "-q"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    report
+}
+
+/// `throughline score-counts` of `report` against the demo's true counts, with `more` arguments.
+#[allow(dead_code)] // not every test file uses it
+pub fn score_against_demo_truth(report: &str, more: &[&str]) -> Output {
+    let truth = demo("truth_counts.csv");
+    let mut args = vec!["score-counts", "--truth", &truth, report];
+    args.extend_from_slice(more);
+    throughline(&args)
+}
+
 /// Whether ffmpeg and ffprobe run. When they do not, the test `name` says it is skipped (on the
 /// terminal itself: the test harness keeps back what `eprintln!` prints from a passing test), or
 /// fails when `THROUGHLINE_REQUIRE_FFMPEG` is `1`.

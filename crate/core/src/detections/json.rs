@@ -186,6 +186,9 @@ impl<'de> Visitor<'de> for JsonSink<'_> {
     }
 }
 
+/// What takes a project or edits file.
+const WITH_EDITS: &str = "give it with `--edits` beside the detections it was made from";
+
 /// Throughline's own documents, by their `"format"`: what each is, and what takes it.
 const OWN_DOCUMENTS: [(&str, &str, &str); 4] = [
     (
@@ -198,16 +201,8 @@ const OWN_DOCUMENTS: [(&str, &str, &str); 4] = [
         "a report of counts",
         "compare it with a reference using `throughline score-counts`",
     ),
-    (
-        crate::formats::PROJECT,
-        "a project file",
-        "give it with `--edits` beside the detections it was made from",
-    ),
-    (
-        crate::formats::EDITS,
-        "an edits file",
-        "give it with `--edits` beside the detections it was made from",
-    ),
+    (crate::formats::PROJECT, "a project file", WITH_EDITS),
+    (crate::formats::EDITS, "an edits file", WITH_EDITS),
 ];
 
 /// The error for a JSON object where the array of detections belongs: one of Throughline's own

@@ -104,11 +104,19 @@ pub(crate) fn round_as_written(tracks: &mut Tracks) {
     for t in &mut tracks.tracks {
         t.mean_score = round(t.mean_score, SCORE_PLACES);
         for b in &mut t.boxes {
-            let r = |v: f64| round(v, BOX_PLACES);
-            b.bbox = BBox::new(r(b.bbox.x), r(b.bbox.y), r(b.bbox.w), r(b.bbox.h));
-            b.score = round(b.score, SCORE_PLACES);
+            (b.bbox, b.score) = as_written(b);
         }
     }
+}
+
+/// A box and its score rounded as the tracks files write them.
+fn as_written(b: &TrackBox) -> (BBox, f64) {
+    let r = |v: f64| round(v, BOX_PLACES);
+    let bb = b.bbox;
+    (
+        BBox::new(r(bb.x), r(bb.y), r(bb.w), r(bb.h)),
+        round(b.score, SCORE_PLACES),
+    )
 }
 
 /// A track's boxes as `[frame, x, y, w, h, score, observed]` arrays, rounded as they are read back.
@@ -117,15 +125,8 @@ struct BoxesOut<'a>(&'a [TrackBox]);
 impl Serialize for BoxesOut<'_> {
     fn serialize<S: serde::Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
         s.collect_seq(self.0.iter().map(|b| {
-            (
-                b.frame,
-                round(b.bbox.x, BOX_PLACES),
-                round(b.bbox.y, BOX_PLACES),
-                round(b.bbox.w, BOX_PLACES),
-                round(b.bbox.h, BOX_PLACES),
-                round(b.score, SCORE_PLACES),
-                u8::from(b.observed),
-            )
+            let (bb, score) = as_written(b);
+            (b.frame, bb.x, bb.y, bb.w, bb.h, score, u8::from(b.observed))
         }))
     }
 }
