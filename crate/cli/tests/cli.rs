@@ -456,6 +456,10 @@ fn score_counts_compares_a_report_with_a_manual_count() {
     let o = throughline(&["score-counts", "--truth", &report, &report, "--json"]);
     let a: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
     assert_eq!(a["overall"]["wapd"], 0.0);
+    // Equal totals are said to be equal, not to differ by +0.0%.
+    let o = throughline(&["score-counts", "--truth", &report, &report]);
+    let table = String::from_utf8_lossy(&o.stdout);
+    assert!(table.contains("; the totals are equal ("), "{table}");
     // A reference that names nothing of the report is an error that says what to check.
     let other = write(
         &dir,

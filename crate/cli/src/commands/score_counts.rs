@@ -86,10 +86,12 @@ pub fn run(args: Args) -> Result<(), Failure> {
     let o = &acc.overall;
     let totals = (o.reference_total > 0).then(|| {
         let d = o.automated_total as f64 / o.reference_total as f64 - 1.0;
-        format!(
-            "; the totals differ by {:+.1}% (APD and AAPD are means over the cells)",
-            100.0 * d
-        )
+        let how = if o.automated_total == o.reference_total {
+            "the totals are equal".to_string()
+        } else {
+            format!("the totals differ by {:+.1}%", 100.0 * d)
+        };
+        format!("; {how} (APD and AAPD are means over the cells)")
     });
     println!(
         "all rows pooled: {}{}",
