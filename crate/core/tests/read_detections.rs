@@ -422,3 +422,35 @@ fn benchmark_rows_with_object_ids_are_read_with_one_warning() {
     let plain = read_detections(b"1,-1,1,1,5,5,0.9\n2,-1,1,1,5,5,0.9\n").unwrap();
     assert!(plain.warnings.is_empty());
 }
+
+/// A file cut short while being copied can end inside a field and still read (a newcomer's
+/// trial: a CSV cut in its last class read as class `pedestria`, without a word): a last row with
+/// no line break after it is kept and named in a warning, after any others, and not counted as
+/// passed over. A file that ends with a line break, or with a comment, gets no such warning.
+#[test]
+fn a_last_row_without_a_line_break_is_named_as_perhaps_cut_short() {
+    let cut = b"frame,x,y,w,h,score,class\n1,1,1,5,5,0.9,pedestrian\n2,1,1,5,5,0.9,pedestria";
+    let r = read_detections(cut).unwrap();
+    assert_eq!(r.detections.rows.len(), 2);
+    assert_eq!(r.skipped_rows, 0);
+    assert_eq!(r.warnings.len(), 1, "{:?}", r.warnings);
+    assert_eq!(r.warnings[0].line, Some(3));
+    let message = &r.warnings[0].message;
+    assert!(message.contains("\"2,1,1,5,5,0.9,pedestria\""), "{message}");
+    assert!(message.contains("cut short"), "{message}");
+    let whole = read_detections(b"1,-1,1,1,5,5,0.9\n2,-1,1,1,5,5,0.9\r\n").unwrap();
+    assert!(whole.warnings.is_empty());
+    let comment = read_detections(b"1,-1,1,1,5,5,0.9\n# the end").unwrap();
+    assert!(comment.warnings.is_empty());
+    // Past the kept warnings, it is still given, last.
+    let mut many = String::new();
+    for f in 1..=30 {
+        many.push_str(&format!("{f},-1,1,1,0,5,0.9\n"));
+    }
+    many.push_str("31,-1,1,1,5,5,0.9");
+    let r = read_detections(many.as_bytes()).unwrap();
+    assert_eq!(r.skipped_rows, 30);
+    let last = r.warnings.last().unwrap();
+    assert_eq!(last.line, Some(31));
+    assert!(last.message.contains("line break"), "{}", last.message);
+}

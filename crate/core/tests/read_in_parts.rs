@@ -250,6 +250,10 @@ fn warnings_read_in_two_parts_are_kept_and_counted_as_in_one() {
         .as_bytes(),
     );
     check_halves(format!("{with_id}{}{with_id}{}", tiny.repeat(25), tiny.repeat(25)).as_bytes());
+    // A last row with no line break after it: named last, past the kept warnings too.
+    let open = "9,-1,1,1,1,1,0.5";
+    check_halves(format!("{}{loud}{open}", tiny.repeat(25)).as_bytes());
+    check_halves(format!("{}{open}", fine.repeat(30)).as_bytes());
 }
 
 #[test]

@@ -180,17 +180,31 @@ fn csv_with_appearance_tracked_piece_by_piece_is_the_same_text() {
 
 #[test]
 fn csv_pieces_give_the_whole_readings_warnings_and_errors() {
-    let text = "frame,x,y,w,h,score,e0\n1,1,1,5,5,0.9,1\n1,2,2,0,5,0.9,1\n2,1,1,5,5,1.5,0\n";
-    let mut pieces = CsvPieces::new();
     let mut batch = Detections::default();
-    for line in text.split_inclusive('\n') {
-        pieces.read(line, &mut batch).unwrap();
+    // The last text: a file that ends with a line break, and one cut inside its last row.
+    let rows = "frame,x,y,w,h,score,e0\n1,1,1,5,5,0.9,1\n1,2,2,0,5,0.9,1\n2,1,1,5,5,1.5,0";
+    for text in [format!("{rows}\n"), rows.to_string()] {
+        let mut pieces = CsvPieces::new();
+        for line in text.split_inclusive('\n') {
+            pieces.read(line, &mut batch).unwrap();
+        }
+        let read = pieces.finish(&mut batch).unwrap();
+        let whole = read_detections(text.as_bytes()).unwrap();
+        assert_eq!(read.warnings, whole.warnings);
+        assert_eq!(read.skipped_rows, whole.skipped_rows);
+        assert_eq!(read.rows, whole.detections.rows.len());
     }
-    let read = pieces.finish(&mut batch).unwrap();
+    // Benchmark text cut inside its last row, read in pieces: the whole reading's warning.
+    let text = "1,-1,1,1,5,5,0.9\n2,-1,1,1,5,5,0.9\n3,-1,1,1,5,5,0.";
+    let mut pieces = Pieces::new();
+    let mut rows = Vec::new();
+    for line in text.split_inclusive('\n') {
+        pieces.read(line, &mut rows).unwrap();
+    }
+    let read = pieces.finish().unwrap();
     let whole = read_detections(text.as_bytes()).unwrap();
     assert_eq!(read.warnings, whole.warnings);
-    assert_eq!(read.skipped_rows, whole.skipped_rows);
-    assert_eq!(read.rows, whole.detections.rows.len());
+    assert_eq!(read.warnings.len(), 1);
     let bad = "frame,x,y,w,h,score\n1,1,1,5,5,0.9\n\n2,1,1,5\n";
     let mut pieces = CsvPieces::new();
     pieces

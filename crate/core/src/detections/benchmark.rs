@@ -68,6 +68,7 @@ impl Lines {
                 rows.push(d);
             }
         }
+        self.r.note_end(text);
         Ok(())
     }
 

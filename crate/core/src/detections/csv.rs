@@ -309,6 +309,7 @@ impl CsvLines {
             at += taken;
             self.next_row(raw, &mut fields)?;
         }
+        self.r.note_end(text);
         Ok(())
     }
 

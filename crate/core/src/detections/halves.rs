@@ -191,6 +191,7 @@ pub fn merge(first: Part, second: Part) -> Result<ReadReport, Error> {
 /// others.
 fn merge_warnings(first: &mut Warnings, second: Warnings) {
     first.count += second.count;
+    first.open_end = second.open_end;
     for (i, w) in second.kept.into_iter().enumerate() {
         let once = if second.score_at == Some(i) {
             Some(&mut first.score_at)

@@ -174,6 +174,8 @@ pub(crate) struct Warnings {
     score_at: Option<usize>,
     /// Where in `kept` the one warning about object ids in benchmark text is, once given.
     id_at: Option<usize>,
+    /// The warning about a last row with no line break after it (given after all others).
+    open_end: Option<Warning>,
 }
 
 impl Warnings {
@@ -183,7 +185,38 @@ impl Warnings {
             count: 0,
             score_at: None,
             id_at: None,
+            open_end: None,
         }
+    }
+
+    /// The warnings kept, in file order, the one about the file's end last.
+    pub(crate) fn into_kept(self) -> Vec<Warning> {
+        let mut kept = self.kept;
+        kept.extend(self.open_end);
+        kept
+    }
+
+    /// Notes whether `text`, the file's text read so far from its last piece, ends inside a row:
+    /// a file cut short (copied or saved in part) can end inside a field and still read (a class
+    /// `pedestria`), so such a last row is named, kept, and not counted as passed over.
+    pub(crate) fn note_end(&mut self, text: &str, line: usize) {
+        let Some(last) = text.rsplit('\n').next().filter(|_| !text.is_empty()) else {
+            return;
+        };
+        let row = crate::text::trim(last);
+        self.open_end = (!row.is_empty() && !row.starts_with('#')).then(|| {
+            let shown: String = row.chars().take(60).collect();
+            let more = if shown.len() < row.len() { "…" } else { "" };
+            Warning {
+                line: Some(line),
+                message: format!(
+                    "the file ends without a line break after its last row (\"{shown}{more}\"): \
+                     if the file was cut short (copied or saved only in part), that row may be \
+                     incomplete (a class or a number cut off); check it against the source (row \
+                     kept)"
+                ),
+            }
+        });
     }
 
     pub(crate) fn push(&mut self, line: Option<usize>, message: impl Into<String>) {
@@ -367,8 +400,8 @@ pub(crate) fn finish(
     Ok(ReadReport {
         detections,
         format,
-        warnings: warnings.kept,
         skipped_rows: warnings.count,
+        warnings: warnings.into_kept(),
     })
 }
 

@@ -82,6 +82,11 @@ impl Reading {
         self.warnings.note_score(score, self.line);
     }
 
+    /// Notes whether the text just read ends inside a row (see [`Warnings::note_end`]).
+    pub fn note_end(&mut self, text: &str) {
+        self.warnings.note_end(text, self.line);
+    }
+
     /// The report of a whole file read in one part, or `error` if the reading stopped at one.
     pub fn report(
         self,
@@ -106,8 +111,8 @@ impl Reading {
         Ok(PiecesSummary {
             rows,
             last_frame: self.last_frame,
-            warnings: self.warnings.kept,
             skipped_rows: self.warnings.count,
+            warnings: self.warnings.into_kept(),
         })
     }
 }
