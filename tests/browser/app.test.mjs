@@ -125,10 +125,10 @@ test("open files, draw a line, run, and export what throughline run gives", asyn
   await page.emulateMedia({ media: "screen" });
   assert.equal(await page.locator("#print-head").isVisible(), false);
 
-  // An event is a click away from its moment in the footage (Review, Count events).
+  // An event is a click away from its moment in the footage (Review, Events).
   const first = report.events[0];
   await showView(page, "Review");
-  await page.getByRole("tab", { name: /Count events/ }).click();
+  await page.getByRole("tab", { name: /^Events/ }).click();
   await page.locator("#events button").first().click();
   await page.waitForFunction((f) => document.getElementById("clock").textContent.startsWith(`frame ${f} `), first.frame, { timeout: 10000 });
   await screenshot(page, "4-event-shown");

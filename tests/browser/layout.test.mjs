@@ -30,6 +30,11 @@ test("laptop: Run and the whole picture are in view without scrolling, and stay 
   await showView(page, "Review");
   assert.ok(await inViewport(page, "#stage"));
   assert.ok(await inViewport(page, "#run"), "Run stays within reach while reviewing");
+  // The review's five tabs, their counts shown, sit on one row (a newcomer's trial: "Hand count"
+  // wrapped onto a row of its own).
+  const tops = await page.locator("#view-review .tabs [role=tab]").evaluateAll((tabs) => tabs.map((t) => Math.round(t.getBoundingClientRect().top)));
+  assert.equal(tops.length, 5);
+  assert.equal(new Set(tops).size, 1, `the review's tabs start at ${tops.join(", ")} px`);
   await screenshot(page, "12-laptop-review", { fullPage: false });
   assert.deepEqual(seen.errors, []);
   await page.close();

@@ -1,4 +1,4 @@
-// Correcting the counts themselves, as a person would. In Review, Count events: choose the first
+// Correcting the counts themselves, as a person would. In Review, Events: choose the first
 // crossing (track 9 westbound over the east-west divide at frame 16, counted while hidden), press R,
 // say why, Enter: it is rejected. Then, with nothing in focus, step to frame 455, open "Add a
 // crossing the tool missed", choose the plaza midline, "towards bridge", a pedestrian, say why, Add
@@ -18,7 +18,7 @@ test("reject a crossing and add a missed one; the counts follow, as throughline 
   const first = before.events[0];
   assert.deepEqual([first.name, first.direction, first.track, first.frame], ["east-west divide", "forward", 9, 16]);
 
-  await openTab(page, "Count events");
+  await openTab(page, "Events");
   await page.locator("#events button").first().click();
   assert.equal(await page.getByRole("button", { name: "Reject this crossing" }).isVisible(), true);
   await page.keyboard.press("r");

@@ -43,7 +43,7 @@ export async function reviewDemo(env) {
 }
 
 /**
- * Opens one of the review's tabs: "Doubtful moments", "Tracks", "Count events", "Edits".
+ * Opens one of the review's tabs: "To check", "Tracks", "Events", "Edits".
  * @param {import("playwright-core").Page} page
  * @param {string} name
  */

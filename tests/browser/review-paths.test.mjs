@@ -53,7 +53,7 @@ test("two fragments the counting joined are drawn with the step between them", a
   assert.deepEqual(report.joins.map((j) => j.tracks), [[18, 21]]);
   const k = report.events.findIndex((e) => e.track_ids.length === 2);
   assert.deepEqual(report.events[k].track_ids, [18, 21]);
-  await openTab(page, "Count events");
+  await openTab(page, "Events");
   await page.locator("#events button").nth(k).click();
   const paths = await drawnPaths(page, [18, 21]);
   const steps = JSON.parse(await page.locator("#overlay").getAttribute("data-focus-steps"));

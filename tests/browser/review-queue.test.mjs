@@ -71,7 +71,7 @@ test("the queue leads to the demo's double count; rejecting it gives the line's 
   assert.match(await first.innerText(), new RegExp(`${firstWhy.replace(/[.*+?^${}()|[\]\\]/g, "\\$&")}`), "the first moment is throughline review's first");
   const listed = await page.locator("#doubtful-list li").count();
   assert.equal(listed, cliQueue.length, "the page lists as many moments as throughline review --picture 640x360");
-  assert.match(await page.getByRole("tab", { name: /Doubtful moments/ }).getAttribute("aria-selected"), /true/, "Review opens on the queue");
+  assert.match(await page.getByRole("tab", { name: /To check/ }).getAttribute("aria-selected"), /true/, "Review opens on the queue");
   await page.keyboard.press("n");
   await page.waitForFunction(() => document.getElementById("clock").textContent.startsWith("frame 500 "));
   const strip = await page.locator("#focus-strip").innerText();

@@ -15,7 +15,7 @@ test("reload: the corrections and decisions come back and are applied when track
   await page.locator("#tracks-correct").getByRole("button", { name: "Delete this track (Tracks list)" }).click();
   await page.locator("#tracks-correct").getByRole("button", { name: "Delete track", exact: true }).click();
   await countedWith(page, 1);
-  await openTab(page, "Doubtful moments");
+  await openTab(page, "To check");
   await page.locator("#clock").click();
   await page.keyboard.press("n");
   await page.keyboard.press("r");
@@ -27,7 +27,7 @@ test("reload: the corrections and decisions come back and are applied when track
   const before = await pageReport(page);
   await openTab(page, "Edits");
   const editsBefore = await page.locator("#edit-list").innerText();
-  await openTab(page, "Doubtful moments");
+  await openTab(page, "To check");
   const decided = await page.locator("#doubtful-list .decision").allInnerTexts();
   assert.deepEqual(decided.sort(), ["\u2713 accepted"], "the rejected moment left the queue; the accepted one is marked");
 
@@ -43,7 +43,7 @@ test("reload: the corrections and decisions come back and are applied when track
   assert.equal(await pageReport(page), before, "the same report as before the reload");
   await openTab(page, "Edits");
   assert.equal(await page.locator("#edit-list").innerText(), editsBefore);
-  await openTab(page, "Doubtful moments");
+  await openTab(page, "To check");
   assert.deepEqual(await page.locator("#doubtful-list .decision").allInnerTexts(), decided);
   assert.deepEqual(seen.errors, []);
   await page.close();

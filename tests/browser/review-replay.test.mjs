@@ -39,7 +39,7 @@ test("exported edits and a saved project replay with throughline run --edits, by
   await correct(page, "Delete this track", (f) => f.getByLabel("Reason (optional)").fill("reflection"), "Delete track", 3);
   await chooseTrack(page, 12);
   await correct(page, "Change class", (f) => f.getByLabel("New class").fill("scooter"), "Set class", 4);
-  await openTab(page, "Doubtful moments");
+  await openTab(page, "To check");
   await page.locator("#clock").click();
   await page.keyboard.press("n");
   await page.keyboard.press("r");
@@ -48,7 +48,7 @@ test("exported edits and a saved project replay with throughline run --edits, by
   await page.keyboard.press("n");
   await page.keyboard.press("a");
   await page.getByRole("button", { name: "Show all tracks" }).click();
-  await openTab(page, "Count events");
+  await openTab(page, "Events");
   await goToFrame(page, 455);
   await page.getByText("Add a crossing the tool missed").click();
   await page.getByLabel("Direction", { exact: true }).selectOption("backward");

@@ -18,7 +18,7 @@ test("undo and redo: the counts follow each step, as throughline run --edits giv
   await page.locator("#tracks-correct").getByRole("button", { name: "Delete this track (Tracks list)" }).click();
   await page.locator("#tracks-correct").getByRole("button", { name: "Delete track", exact: true }).click();
   await countedWith(page, 1);
-  await openTab(page, "Count events");
+  await openTab(page, "Events");
   await page.locator("#events button").first().click();
   await page.getByRole("button", { name: "Reject this crossing" }).click();
   await page.getByRole("button", { name: "Reject crossing", exact: true }).click();

@@ -145,7 +145,7 @@ function totals(report) {
   }
   const out = [table(headers, rows, [3, 4, 5, 6])];
   if (report.screenlines.some((l) => l.inferred > 0)) {
-    out.push(el("p", { class: "note", text: "Counted while hidden: crossings made while the person or vehicle was out of the camera's sight; where it crossed was predicted from how it moved before and after. They are among the counts; check them in Review, Count events." }));
+    out.push(el("p", { class: "note", text: "Counted while hidden: crossings made while the person or vehicle was out of the camera's sight; where it crossed was predicted from how it moved before and after. They are among the counts; check them in Review, Events." }));
   }
   for (const l of report.screenlines) {
     if (l.peak_hour) {

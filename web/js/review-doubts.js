@@ -94,7 +94,7 @@ export class DoubtList {
     }
     this.list.replaceChildren(...rows);
     const decided = doubts.filter((d) => marks.has(d.key)).length;
-    this.badge.textContent = this.store.results ? `(${doubts.length - decided})` : "";
+    this.badge.textContent = this.store.results ? `${doubts.length - decided}` : "";
     this.status.textContent = this.statusText(doubts.length, decided, shown.length);
     this.mark();
   }

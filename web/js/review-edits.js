@@ -52,7 +52,7 @@ export class EditList {
     // How many corrections the counts shown are made with (-1: counting, or not counted yet).
     const counted = results && (outcomes || []).length === work.edits.length && work.edits.every((_, i) => outcomeOf(work.edits, outcomes, i));
     this.list.dataset.counted = String(counted ? work.edits.length : -1);
-    this.badge.textContent = work.edits.length ? `(${work.edits.length})` : "";
+    this.badge.textContent = work.edits.length ? `${work.edits.length}` : "";
     this.empty.hidden = work.edits.length > 0;
     this.undo.disabled = !work.undoStack.length;
     this.redo.disabled = !work.redoStack.length;

@@ -51,7 +51,7 @@ export class EventList {
     if (rejected.length) {
       this.list.append(el("li", { class: "list-head", text: "Rejected by you: not counted" }), ...rejected.map((e) => el("li", {}, this.row(e, true))));
     }
-    this.badge.textContent = report ? `(${events.length})` : "";
+    this.badge.textContent = report ? `${events.length}` : "";
     this.mark();
   }
 

@@ -64,7 +64,7 @@ export class TrackList {
     });
     if (shown.length > MAX_TRACKS_SHOWN) rows.push(el("li", { class: "more", text: `… and ${shown.length - MAX_TRACKS_SHOWN} more: narrow the list with the filters.` }));
     this.list.replaceChildren(...rows);
-    this.badge.textContent = this.facts.length ? `(${this.facts.length})` : "";
+    this.badge.textContent = this.facts.length ? `${this.facts.length}` : "";
     this.shown.textContent = this.facts.length ? `${shown.length} of ${this.facts.length} tracks. Choose one to see it from its first frame, its whole path drawn.` : "";
     this.mark();
   }

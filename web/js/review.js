@@ -96,7 +96,7 @@ export class Review {
   }
 
   /**
-   * The next (1) or previous (-1) doubtful moment, shown in the Doubtful moments list.
+   * The next (1) or previous (-1) doubtful moment, shown in the To check list.
    * @param {number} step
    */
   stepDoubt(step) {

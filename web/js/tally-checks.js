@@ -148,7 +148,7 @@ export class TallyChecks {
     const rejected = (report.rejected_events || []).filter(same);
     const presses = t.presses.filter((p) => p.screenline === g.screenline && p.direction === way && (g.class === "all" || p.class === g.class) && inSample(p.frame));
     /** @type {HTMLElement[]} */
-    const parts = [el("p", { class: "hint", text: `${g.screenline}, ${g.direction}, ${g.class === "all" ? "all classes" : g.class}: the tool counted ${g.automated}, you ${g.manual}. Choose one to see it on the footage. Where the tool is wrong, reject its crossing (R) or add the one it missed (Count events); where you were, count again.` })];
+    const parts = [el("p", { class: "hint", text: `${g.screenline}, ${g.direction}, ${g.class === "all" ? "all classes" : g.class}: the tool counted ${g.automated}, you ${g.manual}. Choose one to see it on the footage. Where the tool is wrong, reject its crossing (R) or add the one it missed (Events); where you were, count again.` })];
     g.per_bin.forEach(([start, a, m], b) => {
       if (bins > 1) parts.push(el("p", { class: "bin-head", text: `From ${start}: tool ${a}, you ${m}` }));
       const mine = events.filter((e) => binOf(e.frame) === b);

@@ -53,7 +53,7 @@ export class TallyPanel {
   /** The number of tallies kept, on the tab. */
   countKept() {
     const n = this.store.handCount.tallies.length;
-    byId("tally-count", HTMLElement).textContent = n ? `(${n})` : "";
+    byId("tally-count", HTMLElement).textContent = n ? `${n}` : "";
   }
 
   listen() {
