@@ -15,6 +15,7 @@ import { el, byId, clockText, revealInList } from "./dom.js";
 /** Each reason in a few words, for the list's headline and the focus strip. @type {Record<DoubtKind, string>} */
 export const DOUBT_WORDS = {
   short_track: "short track",
+  at_track_end: "at a track's end",
   joined_track: "pieces joined",
   close_together: "two crossings close together",
   hidden: "counted while hidden",

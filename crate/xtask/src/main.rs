@@ -8,7 +8,7 @@
 //! - `test`: cheap invariants, then install what the checks need, then format check, lints, every
 //!   test, the wasm32 builds, the browser tests ([`test`], [`invariants`]);
 //! - `bench`: speed, memory and quality of every method on simulated scenes, with a Python peer,
-//!   written into BENCHMARKS.md (`--counts`, `--detector`, `--events`, `--goals`, `--big-frame`: one
+//!   written into BENCHMARKS.md (`--counts`, `--detector`, `--events`, `--queue`, `--goals`, `--big-frame`: one
 //!   table each); `bench --page`: speed of finding objects in the page (Chromium) ([`bench`]);
 //! - `shape`: function and file lengths and module loops under crate/ ([`shape`]);
 //! - `fuzz`: every fuzz target for ten million runs (or as told), a table of the results
@@ -31,7 +31,7 @@ mod site;
 mod slurm;
 mod test;
 
-const USAGE: &str = "usage: cargo xtask <demo [--no-serve] | site | serve [--no-build] [--port N] | test | bench [--quick | --grid | --counts | --detector | --events | --goals [--page-only | --parse-only] | --page | --big-frame] | demo-data | shape | fuzz [--runs N | --seconds S] [--plain] [TARGET...] | slurm>";
+const USAGE: &str = "usage: cargo xtask <demo [--no-serve] | site | serve [--no-build] [--port N] | test | bench [--quick | --grid | --counts | --detector | --events | --queue | --goals [--page-only | --parse-only] | --page | --big-frame] | demo-data | shape | fuzz [--runs N | --seconds S] [--plain] [TARGET...] | slurm>";
 
 /// What each task does, printed with [`USAGE`] for `--help`.
 const TASKS: &str = "\

@@ -46,18 +46,33 @@ pub fn node_in(dir: &str, args: &[&str]) -> Result<(), String> {
 /// (its standard error goes to ours).
 pub fn node_output(args: &[&str]) -> Result<String, String> {
     let target = target_dir()?.display().to_string();
-    eprintln!("+ node {}", args.join(" "));
-    let out = Command::new("node")
+    let out = output_with("node", args, &[(TARGET_DIR_ENV, &target)])?;
+    Ok(String::from_utf8_lossy(&out).into_owned())
+}
+
+/// Like [`run`], but returns what the program printed on standard output (its standard error
+/// goes to ours).
+pub fn output(program: &str, args: &[&str]) -> Result<Vec<u8>, String> {
+    output_with(program, args, &[])
+}
+
+fn output_with(program: &str, args: &[&str], env: &[(&str, &str)]) -> Result<Vec<u8>, String> {
+    eprintln!("+ {program} {}", args.join(" "));
+    let out = Command::new(program)
         .args(args)
-        .env(TARGET_DIR_ENV, &target)
+        .envs(env.iter().copied())
         .current_dir(root())
         .stderr(std::process::Stdio::inherit())
         .output()
-        .map_err(|e| format!("cannot start `node`: {e}"))?;
+        .map_err(|e| format!("cannot start `{program}`: {e}"))?;
     if !out.status.success() {
-        return Err(format!("`node {}` failed ({})", args.join(" "), out.status));
+        return Err(format!(
+            "`{program} {}` failed ({})",
+            args.join(" "),
+            out.status
+        ));
     }
-    Ok(String::from_utf8_lossy(&out.stdout).into_owned())
+    Ok(out.stdout)
 }
 
 /// Whether `program arg` runs and succeeds (e.g. `ffprobe -version`).

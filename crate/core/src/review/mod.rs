@@ -7,12 +7,15 @@
 use std::collections::HashMap;
 
 use crate::edits::Way;
-use crate::geometry::{BBox, Point};
-use crate::plan::{Anchor, Plan};
+use crate::geometry::BBox;
+use crate::plan::Plan;
 use crate::report::{Direction, Event, EventKind, Report};
 use crate::track::{Track, Tracks};
 use schemars::JsonSchema;
 use serde::Serialize;
+
+mod signs;
+use signs::{class_doubt, crossing_doubts, line_end_doubts};
 
 /// Why a moment is doubtful.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, JsonSchema)]
@@ -20,6 +23,9 @@ use serde::Serialize;
 pub enum DoubtKind {
     /// Counted from a track seen less than a second (or fewer than 8 boxes).
     ShortTrack,
+    /// Counted within moments of where its track begins or ends, away from the picture's edge
+    /// and the footage's: the tracker may have lost someone there, or swapped two people.
+    AtTrackEnd,
     /// Counted after joining tracks the tracker had lost and found.
     JoinedTrack,
     /// Two crossings of one line within a second and a box height of each other.
@@ -66,8 +72,16 @@ pub struct Doubt {
     pub weight: u32,
 }
 
-/// Thresholds of the rules of thumb (our own choice).
+/// Thresholds of the rules of thumb (our own choice). The weights that order the queue were
+/// chosen from how often each sign pointed at a wrong or missed crossing in simulated crowds
+/// (BENCHMARKS.md, "The review queue"): a long time hidden at the line and a crossing at a
+/// track's very end point at mistakes far more often than two crossings close together or a
+/// track that appears near a line, which a busy line has by the hundred.
 const SHORT_SECONDS: f64 = 1.0;
+/// Hidden at the line this long or longer: doubted more (seconds), and most.
+const HIDDEN_LONG: [f64; 2] = [0.4, 1.2];
+/// A crossing this close to its track's first or last box (seconds): doubted, and more so.
+const AT_END_SECONDS: [f64; 2] = [1.6, 0.8];
 const SHORT_BOXES: usize = 8;
 const CLOSE_SECONDS: f64 = 1.0;
 const LOW_SCORE: f64 = 0.45;
@@ -83,7 +97,11 @@ pub fn doubts(
     report: &Report,
     picture: Option<(f64, f64)>,
 ) -> Vec<Doubt> {
-    let fps = plan.spec.frame_rate;
+    let scene = Scene {
+        fps: plan.spec.frame_rate,
+        size: picture.unwrap_or_else(|| extent_of(tracks)),
+        frame_count: report.frame_count,
+    };
     let crossings: Vec<&Event> = report
         .events
         .iter()
@@ -102,12 +120,10 @@ pub fn doubts(
         while in_time_order && e.seconds - crossings[from].seconds > CLOSE_SECONDS {
             from += 1;
         }
-        crossing_doubts(e, &crossings[from..k], &by_id, fps, &mut out);
+        crossing_doubts(e, &crossings[from..k], &by_id, &scene, &mut out);
     }
-    let extent = picture.unwrap_or_else(|| extent_of(tracks));
-    let footage = (fps, report.frame_count);
     for t in &tracks.tracks {
-        line_end_doubts(t, plan, report, (extent, footage), &mut out);
+        line_end_doubts(t, plan, report, &scene, &mut out);
         class_doubt(t, report, &mut out);
     }
     let mut queue = grouped(out);
@@ -117,6 +133,36 @@ pub fn doubts(
             .then(a.seconds.total_cmp(&b.seconds))
     });
     queue
+}
+
+/// What the signs need of the footage: its frame rate, the picture's size in pixels and its
+/// length in frames.
+struct Scene {
+    fps: f64,
+    size: (f64, f64),
+    frame_count: u32,
+}
+
+impl Scene {
+    /// Whether a box touches the picture's edge (where people come into view and leave it).
+    fn at_edge(&self, b: &BBox) -> bool {
+        let (w, h) = self.size;
+        b.x <= EDGE_SHARE * w
+            || b.y <= EDGE_SHARE * h
+            || b.x + b.w >= (1.0 - EDGE_SHARE) * w
+            || b.y + b.h >= (1.0 - EDGE_SHARE) * h
+    }
+
+    /// Whether a track that begins (`starts`) or ends at `frame` does so because the footage
+    /// does: within its first second, or its last.
+    fn at_footage_edge(&self, frame: u32, starts: bool) -> bool {
+        let second = self.fps.round().max(1.0) as u32;
+        if starts {
+            frame <= second
+        } else {
+            frame + second > self.frame_count
+        }
+    }
 }
 
 /// One entry per moment: the doubts about one crossing (or one track's end) become one entry with
@@ -185,102 +231,6 @@ fn boxes_of<'a>(
         .flat_map(|t| &t.boxes)
 }
 
-/// The doubts about crossing `e`; `earlier` holds the crossings before it that may be close to it.
-fn crossing_doubts(
-    e: &Event,
-    earlier: &[&Event],
-    by_id: &HashMap<u32, &Track>,
-    fps: f64,
-    out: &mut Vec<Doubt>,
-) {
-    let ids = &e.track_ids;
-    let boxes: Vec<_> = boxes_of(by_id, ids).collect();
-    let seen = boxes.iter().filter(|b| b.observed).count();
-    let span = match (boxes.first(), boxes.last()) {
-        (Some(a), Some(b)) => f64::from(b.frame - a.frame + 1) / fps,
-        _ => 0.0,
-    };
-    if span < SHORT_SECONDS || seen < SHORT_BOXES {
-        let why = format!(
-            "Counted from a track seen for only {span:.1} s ({seen} boxes): it may be a piece of \
-             someone counted already, or not a {} at all.",
-            e.class
-        );
-        out.push(doubt(DoubtKind::ShortTrack, e, ids.clone(), why, 4));
-    }
-    if ids.len() > 1 {
-        let list: Vec<String> = ids.iter().map(u32::to_string).collect();
-        let why = format!(
-            "Counted after joining tracks {} that the tracker lost and found again near the line: \
-             check that they are one {}.",
-            list.join(" and "),
-            e.class
-        );
-        out.push(doubt(DoubtKind::JoinedTrack, e, ids.clone(), why, 3));
-    }
-    close_together(e, earlier, &boxes, out);
-    if e.inferred {
-        let why = "Counted while hidden: where it crossed the line was predicted, not seen.".into();
-        out.push(doubt(DoubtKind::Hidden, e, ids.clone(), why, 2));
-    }
-    let near: Vec<f64> = boxes
-        .iter()
-        .filter(|b| b.observed && b.frame.abs_diff(e.frame) <= 12)
-        .map(|b| b.score)
-        .collect();
-    let score = near.iter().sum::<f64>() / near.len().max(1) as f64;
-    if !near.is_empty() && score < LOW_SCORE {
-        let why = format!(
-            "The detector barely saw it at the line (confidence {score:.2}): check it is a {}.",
-            e.class
-        );
-        out.push(doubt(DoubtKind::BarelySeen, e, ids.clone(), why, 2));
-    }
-}
-
-/// Another crossing of the same line less than a second before, within a box height.
-fn close_together(
-    e: &Event,
-    earlier: &[&Event],
-    boxes: &[&crate::track::TrackBox],
-    out: &mut Vec<Doubt>,
-) {
-    let height = boxes
-        .iter()
-        .min_by_key(|b| b.frame.abs_diff(e.frame))
-        .map_or(0.0, |b| b.bbox.h);
-    let near = earlier.iter().rev().find(|o| {
-        o.name == e.name
-            && o.track != e.track
-            && (e.seconds - o.seconds).abs() <= CLOSE_SECONDS
-            && (o.x - e.x).hypot(o.y - e.y) <= height.max(1.0)
-    });
-    if let Some(o) = near {
-        // Named in time order (the list is in time order but for a report put together by hand).
-        let (first, then): (&Event, &Event) = if o.seconds <= e.seconds {
-            (o, e)
-        } else {
-            (e, o)
-        };
-        let why = format!(
-            "Two crossings of `{}` {:.1} s and {:.0} px apart (tracks {} and {}): one person \
-             counted twice, or two people close together?",
-            e.name,
-            then.seconds - first.seconds,
-            (o.x - e.x).hypot(o.y - e.y),
-            first.track,
-            then.track
-        );
-        out.push(doubt(
-            DoubtKind::CloseTogether,
-            e,
-            vec![first.track, then.track],
-            why,
-            4,
-        ));
-    }
-}
-
 /// The picture's size as far as the boxes reach.
 fn extent_of(tracks: &Tracks) -> (f64, f64) {
     tracks
@@ -293,119 +243,4 @@ fn extent_of(tracks: &Tracks) -> (f64, f64) {
                 f64::max(h, b.bbox.y + b.bbox.h),
             )
         })
-}
-
-fn anchor(b: &BBox, a: Anchor) -> Point {
-    match a {
-        Anchor::Bottom => b.bottom_centre(),
-        Anchor::Centre => b.centre(),
-    }
-}
-
-/// A track that appears or disappears within a box height of a line, away from the picture's
-/// edge, may be someone the tracker lost and found: counted twice, or not at all. Tracks there
-/// from the footage's first second, or to its last, are left out: they appear and disappear
-/// because the footage starts and ends.
-fn line_end_doubts(
-    t: &Track,
-    plan: &Plan,
-    report: &Report,
-    ((w, h), (fps, frame_count)): ((f64, f64), (f64, u32)),
-    out: &mut Vec<Doubt>,
-) {
-    let (Some(first), Some(last)) = (t.boxes.first(), t.boxes.last()) else {
-        return;
-    };
-    let at_edge = |b: &BBox| {
-        b.x <= EDGE_SHARE * w
-            || b.y <= EDGE_SHARE * h
-            || b.x + b.w >= (1.0 - EDGE_SHARE) * w
-            || b.y + b.h >= (1.0 - EDGE_SHARE) * h
-    };
-    let second = fps.round().max(1.0) as u32;
-    for (tb, starts) in [(first, true), (last, false)] {
-        let footage_edge = if starts {
-            tb.frame <= second
-        } else {
-            tb.frame + second > frame_count
-        };
-        if at_edge(&tb.bbox) || footage_edge {
-            continue;
-        }
-        let p = anchor(&tb.bbox, plan.spec.anchor);
-        let near = plan.screenlines.iter().find_map(|l| {
-            let d = l
-                .segments
-                .iter()
-                .map(|s| s.distance_to(&p))
-                .fold(f64::INFINITY, f64::min);
-            (d <= NEAR_LINE_HEIGHTS * tb.bbox.h).then_some((l, d / tb.bbox.h.max(1.0)))
-        });
-        let Some((line, heights)) = near else {
-            continue;
-        };
-        let seconds = (f64::from(tb.frame) - 1.0) / plan.spec.frame_rate;
-        let (kind, verb) = if starts {
-            (DoubtKind::StartsNearLine, "appears")
-        } else {
-            (DoubtKind::EndsNearLine, "disappears")
-        };
-        out.push(Doubt {
-            key: format!("{kind:?}:{}:{}", t.id, tb.frame),
-            kinds: vec![kind],
-            frame: tb.frame,
-            seconds: (seconds * 1000.0).round() / 1000.0,
-            time: label_at(report, seconds),
-            tracks: vec![t.id],
-            crossing: None,
-            why: vec![format!(
-                "Track {} {verb} {heights:.1} box heights from `{}`, not at the picture's edge: \
-                 someone lost and found again may be counted twice, or not at all.",
-                t.id, line.name
-            )],
-            weight: 3,
-        });
-    }
-}
-
-/// The clock label of a moment, as the report's events write it.
-fn label_at(report: &Report, seconds: f64) -> String {
-    let spec = &report.plan;
-    match spec
-        .start
-        .as_deref()
-        .and_then(crate::plan::clock::LocalTime::parse)
-    {
-        Some(t) => t.plus_seconds(seconds.floor() as i64).to_string(),
-        None => crate::plan::clock::elapsed(seconds),
-    }
-}
-
-/// A counted track whose boxes were given different classes.
-fn class_doubt(t: &Track, report: &Report, out: &mut Vec<Doubt>) {
-    let total: u32 = t.class_votes.iter().map(|v| v.1).sum();
-    let Some((top, n)) = t.class_votes.first() else {
-        return;
-    };
-    if total < 5 || f64::from(*n) / f64::from(total) >= CLASS_SHARE {
-        return;
-    }
-    let Some(e) = report.events.iter().find(|e| e.track_ids.contains(&t.id)) else {
-        return;
-    };
-    let votes: Vec<String> = t
-        .class_votes
-        .iter()
-        .map(|(c, n)| format!("{c} {n} times"))
-        .collect();
-    let why = format!(
-        "Its boxes were called {}: it is counted as {top}; check its class.",
-        votes.join(", ")
-    );
-    let mut d = doubt(DoubtKind::ClassChanges, e, vec![t.id], why, 1);
-    d.key = format!("ClassChanges:{}", t.id);
-    if e.kind != EventKind::Screenline {
-        d.crossing = None;
-    }
-    out.push(d);
 }

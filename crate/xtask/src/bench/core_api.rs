@@ -10,5 +10,5 @@ pub use throughline_core::track::files::{
     boxes_to_tracks, from_json, read_benchmark_boxes, tracks_to_boxes, IdBox,
 };
 pub use throughline_core::track::Tracks;
-pub use throughline_eval::events::{tally, Crossing, EventTally, Window};
+pub use throughline_eval::events::{match_crossings, tally, Crossing, EventTally, Window};
 pub use throughline_eval::tracking_metrics::score;

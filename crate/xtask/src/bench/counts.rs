@@ -115,7 +115,7 @@ pub const NEAR_IN_TIME_AND_PLACE: Window = Window {
 };
 
 /// The count events of one kind (`screenline`, `zone`) of a report, a zone's name as its line.
-fn events_of(report: &serde_json::Value, kind: &str) -> Vec<Crossing> {
+pub fn events_of(report: &serde_json::Value, kind: &str) -> Vec<Crossing> {
     report["events"]
         .as_array()
         .into_iter()

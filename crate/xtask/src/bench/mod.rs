@@ -13,6 +13,9 @@
 //! - **Events** ([`events`]; `--events`): counted crossings matched one by one with the true ones,
 //!   missed and extra against the aims of 3% and 2%, from footage alone (the simulator's hard cases
 //!   through the motion detector) and from brought detections in a crowd (every method).
+//! - **Queue** ([`queue`]; `--queue`): how many of the wrong and missed crossings the review
+//!   queue's first moments point at, in a crowd of brought detections and from footage alone,
+//!   against the same moments in a random order.
 //! - **Goals** ([`goals`], [`day`]; `--goals`): the speed goals, each figure beside its goal,
 //!   with the Python loop's own tracking time measured in the same run and a day of one camera
 //!   tracked for the memory goal.
@@ -37,11 +40,12 @@ mod methods;
 mod page;
 mod page_hour;
 mod peer;
+mod queue;
 mod scene;
 mod table;
 mod tracking;
 
-/// `bench [--quick | --grid | --counts | --detector | --events | --goals [--page-only |
+/// `bench [--quick | --grid | --counts | --detector | --events | --queue | --goals [--page-only |
 /// --parse-only] | --page | --big-frame]`.
 pub fn bench(args: &[String]) -> Result<(), String> {
     let has = |flag: &str| args.iter().any(|a| a == flag);
@@ -65,6 +69,9 @@ pub fn bench(args: &[String]) -> Result<(), String> {
     }
     if has("--events") {
         return events::events_bench(has("--quick"));
+    }
+    if has("--queue") {
+        return queue::queue_bench(has("--quick"));
     }
     if has("--counts") {
         return counts::counts_bench();

@@ -1,0 +1,299 @@
+//! The signs that a moment may be wrong, each a rule of thumb of our own (the thresholds and
+//! weights are in the parent module): about a crossing (a short track, joined pieces, two crossings
+//! close together, hidden, barely seen, at a track's end) and about a track (appearing or
+//! vanishing near a line, a class that changes).
+
+use std::collections::HashMap;
+
+use super::{
+    boxes_of, doubt, Doubt, DoubtKind, Scene, AT_END_SECONDS, CLASS_SHARE, CLOSE_SECONDS,
+    HIDDEN_LONG, LOW_SCORE, NEAR_LINE_HEIGHTS, SHORT_BOXES, SHORT_SECONDS,
+};
+use crate::geometry::{BBox, Point};
+use crate::plan::{Anchor, Plan};
+use crate::report::{Event, EventKind, Report};
+use crate::track::Track;
+
+/// The doubts about crossing `e`; `earlier` holds the crossings before it that may be close to it.
+pub(super) fn crossing_doubts(
+    e: &Event,
+    earlier: &[&Event],
+    by_id: &HashMap<u32, &Track>,
+    scene: &Scene,
+    out: &mut Vec<Doubt>,
+) {
+    let ids = &e.track_ids;
+    let boxes: Vec<_> = boxes_of(by_id, ids).collect();
+    let seen = boxes.iter().filter(|b| b.observed).count();
+    let first = boxes.iter().min_by_key(|b| b.frame);
+    let last = boxes.iter().max_by_key(|b| b.frame);
+    let span = match (first, last) {
+        (Some(a), Some(b)) => f64::from(b.frame - a.frame + 1) / scene.fps,
+        _ => 0.0,
+    };
+    if span < SHORT_SECONDS || seen < SHORT_BOXES {
+        let why = format!(
+            "Counted from a track seen for only {span:.1} s ({seen} boxes): it may be a piece of \
+             someone counted already, or not a {} at all.",
+            e.class
+        );
+        out.push(doubt(DoubtKind::ShortTrack, e, ids.clone(), why, 6));
+    } else if let (Some(a), Some(b)) = (first, last) {
+        at_track_end(e, (a, b), scene, out);
+    }
+    if ids.len() > 1 {
+        let list: Vec<String> = ids.iter().map(u32::to_string).collect();
+        let why = format!(
+            "Counted after joining tracks {} that the tracker lost and found again near the line: \
+             check that they are one {}.",
+            list.join(" and "),
+            e.class
+        );
+        out.push(doubt(DoubtKind::JoinedTrack, e, ids.clone(), why, 2));
+    }
+    close_together(e, earlier, &boxes, out);
+    if e.inferred {
+        hidden(e, &boxes, scene.fps, out);
+    }
+    let near: Vec<f64> = boxes
+        .iter()
+        .filter(|b| b.observed && b.frame.abs_diff(e.frame) <= 12)
+        .map(|b| b.score)
+        .collect();
+    let score = near.iter().sum::<f64>() / near.len().max(1) as f64;
+    if !near.is_empty() && score < LOW_SCORE {
+        let why = format!(
+            "The detector barely saw it at the line (confidence {score:.2}): check it is a {}.",
+            e.class
+        );
+        out.push(doubt(DoubtKind::BarelySeen, e, ids.clone(), why, 3));
+    }
+}
+
+/// A crossing counted while hidden, doubted the more the longer it was unseen around the line:
+/// the frames between its last box seen before the crossing and its first seen after.
+fn hidden(e: &Event, boxes: &[&crate::track::TrackBox], fps: f64, out: &mut Vec<Doubt>) {
+    let seen = boxes.iter().filter(|b| b.observed);
+    let before = seen
+        .clone()
+        .filter(|b| b.frame <= e.frame)
+        .map(|b| b.frame)
+        .max();
+    let after = seen.filter(|b| b.frame > e.frame).map(|b| b.frame).min();
+    let unseen = match (before, after) {
+        (Some(a), Some(b)) => f64::from(b - a - 1) / fps,
+        _ => 0.0,
+    };
+    let weight = match unseen {
+        u if u >= HIDDEN_LONG[1] => 6,
+        u if u >= HIDDEN_LONG[0] => 3,
+        _ => 1,
+    };
+    let why = if unseen >= 0.1 {
+        format!(
+            "Counted while hidden for {unseen:.1} s: where it crossed the line was predicted, not \
+             seen; the longer unseen, the likelier the track came back on someone else."
+        )
+    } else {
+        "Counted while hidden: where it crossed the line was predicted, not seen.".into()
+    };
+    out.push(doubt(
+        DoubtKind::Hidden,
+        e,
+        e.track_ids.clone(),
+        why,
+        weight,
+    ));
+}
+
+/// A crossing within moments of its track's first or last box: the tracker may have picked this
+/// person up again just before the line (someone counted twice), or lost them, or swapped two
+/// people there; or the track begins at the picture's edge on the line, and which side it came
+/// from was not seen (leaving those out pointed at fewer mistakes in the simulated crowds). Ends
+/// where the footage itself starts or ends are left out.
+fn at_track_end(
+    e: &Event,
+    (first, last): (&crate::track::TrackBox, &crate::track::TrackBox),
+    scene: &Scene,
+    out: &mut Vec<Doubt>,
+) {
+    let ends = [(first, true), (last, false)]
+        .into_iter()
+        .filter(|(b, starts)| !scene.at_footage_edge(b.frame, *starts));
+    let Some((b, starts)) = ends.min_by_key(|(b, _)| b.frame.abs_diff(e.frame)) else {
+        return;
+    };
+    let seconds = f64::from(b.frame.abs_diff(e.frame)) / scene.fps;
+    let weight = match seconds {
+        s if s < AT_END_SECONDS[1] => 5,
+        s if s < AT_END_SECONDS[0] => 2,
+        _ => return,
+    };
+    let why = if starts {
+        format!(
+            "Counted {seconds:.1} s after its track begins: the tracker may have lost this {} \
+             just before the line (counted twice?), taken someone else for them, or not seen \
+             which side they came from.",
+            e.class
+        )
+    } else {
+        format!(
+            "Counted {seconds:.1} s before its track ends: the tracker may have lost this {} \
+             just after the line, or followed someone else across it.",
+            e.class
+        )
+    };
+    out.push(doubt(
+        DoubtKind::AtTrackEnd,
+        e,
+        e.track_ids.clone(),
+        why,
+        weight,
+    ));
+}
+
+/// Another crossing of the same line less than a second before, within a box height.
+fn close_together(
+    e: &Event,
+    earlier: &[&Event],
+    boxes: &[&crate::track::TrackBox],
+    out: &mut Vec<Doubt>,
+) {
+    let height = boxes
+        .iter()
+        .min_by_key(|b| b.frame.abs_diff(e.frame))
+        .map_or(0.0, |b| b.bbox.h);
+    let near = earlier.iter().rev().find(|o| {
+        o.name == e.name
+            && o.track != e.track
+            && (e.seconds - o.seconds).abs() <= CLOSE_SECONDS
+            && (o.x - e.x).hypot(o.y - e.y) <= height.max(1.0)
+    });
+    if let Some(o) = near {
+        // Named in time order (the list is in time order but for a report put together by hand).
+        let (first, then): (&Event, &Event) = if o.seconds <= e.seconds {
+            (o, e)
+        } else {
+            (e, o)
+        };
+        let why = format!(
+            "Two crossings of `{}` {:.1} s and {:.0} px apart (tracks {} and {}): one person \
+             counted twice, or two people close together?",
+            e.name,
+            then.seconds - first.seconds,
+            (o.x - e.x).hypot(o.y - e.y),
+            first.track,
+            then.track
+        );
+        out.push(doubt(
+            DoubtKind::CloseTogether,
+            e,
+            vec![first.track, then.track],
+            why,
+            2,
+        ));
+    }
+}
+
+fn anchor(b: &BBox, a: Anchor) -> Point {
+    match a {
+        Anchor::Bottom => b.bottom_centre(),
+        Anchor::Centre => b.centre(),
+    }
+}
+
+/// A track that appears or disappears within a box height of a line, away from the picture's
+/// edge, may be someone the tracker lost and found: counted twice, or not at all. Tracks there
+/// from the footage's first second, or to its last, are left out: they appear and disappear
+/// because the footage starts and ends.
+pub(super) fn line_end_doubts(
+    t: &Track,
+    plan: &Plan,
+    report: &Report,
+    scene: &Scene,
+    out: &mut Vec<Doubt>,
+) {
+    let (Some(first), Some(last)) = (t.boxes.first(), t.boxes.last()) else {
+        return;
+    };
+    for (tb, starts) in [(first, true), (last, false)] {
+        if scene.at_edge(&tb.bbox) || scene.at_footage_edge(tb.frame, starts) {
+            continue;
+        }
+        let p = anchor(&tb.bbox, plan.spec.anchor);
+        let near = plan.screenlines.iter().find_map(|l| {
+            let d = l
+                .segments
+                .iter()
+                .map(|s| s.distance_to(&p))
+                .fold(f64::INFINITY, f64::min);
+            (d <= NEAR_LINE_HEIGHTS * tb.bbox.h).then_some((l, d / tb.bbox.h.max(1.0)))
+        });
+        let Some((line, heights)) = near else {
+            continue;
+        };
+        let seconds = (f64::from(tb.frame) - 1.0) / plan.spec.frame_rate;
+        let (kind, verb) = if starts {
+            (DoubtKind::StartsNearLine, "appears")
+        } else {
+            (DoubtKind::EndsNearLine, "disappears")
+        };
+        out.push(Doubt {
+            key: format!("{kind:?}:{}:{}", t.id, tb.frame),
+            kinds: vec![kind],
+            frame: tb.frame,
+            seconds: (seconds * 1000.0).round() / 1000.0,
+            time: label_at(report, seconds),
+            tracks: vec![t.id],
+            crossing: None,
+            why: vec![format!(
+                "Track {} {verb} {heights:.1} box heights from `{}`, not at the picture's edge: \
+                 someone lost and found again may be counted twice, or not at all.",
+                t.id, line.name
+            )],
+            weight: 1,
+        });
+    }
+}
+
+/// The clock label of a moment, as the report's events write it.
+fn label_at(report: &Report, seconds: f64) -> String {
+    let spec = &report.plan;
+    match spec
+        .start
+        .as_deref()
+        .and_then(crate::plan::clock::LocalTime::parse)
+    {
+        Some(t) => t.plus_seconds(seconds.floor() as i64).to_string(),
+        None => crate::plan::clock::elapsed(seconds),
+    }
+}
+
+/// A counted track whose boxes were given different classes.
+pub(super) fn class_doubt(t: &Track, report: &Report, out: &mut Vec<Doubt>) {
+    let total: u32 = t.class_votes.iter().map(|v| v.1).sum();
+    let Some((top, n)) = t.class_votes.first() else {
+        return;
+    };
+    if total < 5 || f64::from(*n) / f64::from(total) >= CLASS_SHARE {
+        return;
+    }
+    let Some(e) = report.events.iter().find(|e| e.track_ids.contains(&t.id)) else {
+        return;
+    };
+    let votes: Vec<String> = t
+        .class_votes
+        .iter()
+        .map(|(c, n)| format!("{c} {n} times"))
+        .collect();
+    let why = format!(
+        "Its boxes were called {}: it is counted as {top}; check its class.",
+        votes.join(", ")
+    );
+    let mut d = doubt(DoubtKind::ClassChanges, e, vec![t.id], why, 1);
+    d.key = format!("ClassChanges:{}", t.id);
+    if e.kind != EventKind::Screenline {
+        d.crossing = None;
+    }
+    out.push(d);
+}
