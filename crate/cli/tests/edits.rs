@@ -402,3 +402,31 @@ fn a_project_tracked_before_low_score_boxes_is_tracked_as_it_was() {
         stderr(&o)
     );
 }
+
+/// In a crowd the queue is long: `--first N` lists the N most doubtful moments and says how many
+/// more there are (a list of a thousand moments told a newcomer nothing about where to stop).
+#[test]
+fn review_lists_the_first_moments_and_says_how_many_are_left() {
+    let (dets, plan) = (demo("detections.csv"), demo("plan.json"));
+    let all = throughline(&["review", &dets, "--plan", &plan, "--json", "-q"]);
+    let all: serde_json::Value = serde_json::from_slice(&all.stdout).unwrap();
+    let n = all.as_array().unwrap().len();
+    assert!(n > 2, "{all}");
+    let o = throughline(&["review", &dets, "--plan", &plan, "--first", "2", "-q"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let text = String::from_utf8_lossy(&o.stdout);
+    assert!(text.starts_with("1. ") && text.contains("\n2. "), "{text}");
+    assert!(!text.contains("\n3. "), "{text}");
+    assert!(
+        text.contains(&format!(
+            "2 of {n} moments to check listed, most doubtful first ({} more",
+            n - 2
+        )),
+        "{text}"
+    );
+    let o = throughline(&[
+        "review", &dets, "--plan", &plan, "--first", "2", "--json", "-q",
+    ]);
+    let two: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    assert_eq!(two.as_array().unwrap()[..], all.as_array().unwrap()[..2]);
+}

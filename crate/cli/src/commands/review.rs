@@ -10,9 +10,11 @@ use throughline_core::{pipeline, review};
 pub const LONG_ABOUT: &str = "List the moments of a count most likely wrong, most doubtful first.\n\n\
     Tracks and counts the detections as `run` does (with --edits, after the corrections), then lists \
     what a person should check against the footage before trusting the counts: crossings by short \
-    or joined tracks, two crossings close together, crossings while hidden or barely seen, tracks \
-    that appear or disappear near a line, tracks whose class changes. Each with its time, frame, \
-    tracks and why, in plain words. The browser app shows the same queue beside the footage.";
+    or joined tracks, crossings just as a track begins or ends, two crossings close together, \
+    crossings while hidden (the longer, the more doubtful) or barely seen, tracks that appear or \
+    disappear near a line, tracks whose class changes. Each with its time, frame, tracks and why, \
+    in plain words. In a crowd the list is long: check the first ones (--first N lists only \
+    those), and a sample by hand. The browser app shows the same queue beside the footage.";
 
 /// List the moments of a count most likely wrong, most doubtful first.
 #[derive(clap::Args)]
@@ -32,6 +34,9 @@ pub struct Args {
     /// recorded for the footage, else the extent of the boxes.
     #[arg(long, value_name = "WxH", value_parser = picture_size)]
     picture: Option<(f64, f64)>,
+    /// List only the N most doubtful moments (default: every one).
+    #[arg(long, value_name = "N")]
+    first: Option<usize>,
     /// Print one JSON array instead of a list.
     #[arg(long)]
     json: bool,
@@ -51,22 +56,35 @@ pub fn run(args: Args) -> Result<(), Failure> {
         .map_err(|e| bad_input(&args.plan, e))?;
     let shown = pipeline::correct_tracks(&tracks, &work.edits).0;
     let queue = review::doubts(&shown, &plan, &report, args.picture.or(recorded));
+    let listed = &queue[..args.first.unwrap_or(queue.len()).min(queue.len())];
     if args.json {
         println!(
             "{}",
-            serde_json::to_string_pretty(&queue).unwrap_or_default()
+            serde_json::to_string_pretty(listed).unwrap_or_default()
         );
         return Ok(());
     }
     if queue.is_empty() {
         println!("Nothing doubtful found. Counts are estimates all the same: check a sample against a manual count.");
+        return Ok(());
     }
-    for (k, d) in queue.iter().enumerate() {
+    for (k, d) in listed.iter().enumerate() {
         println!("{}. {} (frame {}):", k + 1, d.time, d.frame);
         for why in &d.why {
             println!("   {why}");
         }
     }
+    let crossings = report.events.iter().filter(|e| !e.added).count();
+    let more = match queue.len() - listed.len() {
+        0 => String::new(),
+        n => format!(" ({n} more not listed: leave out --first to list every one)"),
+    };
+    println!(
+        "{} of {} moments to check listed, most doubtful first{more}; {crossings} count events in all. \
+         Check the first ones against the footage, and a sample of the counts by hand.",
+        listed.len(),
+        queue.len()
+    );
     Ok(())
 }
 
