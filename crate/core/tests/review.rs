@@ -183,7 +183,11 @@ fn the_reasons_about_one_crossing_make_one_entry() {
     );
     // Two crossings close together weigh 2, a second unseen at the line 3.
     assert_eq!((q[0].weight, q[0].why.len()), (5, 2));
-    assert!(q[0].why[1].contains("hidden for 1.0 s"), "{:?}", q[0].why);
+    assert!(
+        q[0].why[1].contains("hidden for 10 frames (1.0 s): where track 2 crossed"),
+        "{:?}",
+        q[0].why
+    );
 }
 
 /// The longer a track was unseen around the line, the likelier it came back on someone else: in
@@ -208,7 +212,7 @@ fn a_crossing_hidden_longer_is_more_doubtful() {
     assert_eq!((hidden[0].tracks[0], hidden[1].tracks[0]), (2, 1));
     assert!(hidden[0].weight > hidden[1].weight);
     assert!(
-        hidden[0].why[0].contains("hidden for 1.5 s"),
+        hidden[0].why[0].contains("on `deck` while hidden for 15 frames (1.5 s)"),
         "{:?}",
         hidden[0].why
     );

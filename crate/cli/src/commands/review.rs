@@ -69,7 +69,15 @@ pub fn run(args: Args) -> Result<(), Failure> {
         return Ok(());
     }
     for (k, d) in listed.iter().enumerate() {
-        println!("{}. {} (frame {}):", k + 1, d.time, d.frame);
+        let tracks: Vec<String> = d.tracks.iter().map(u32::to_string).collect();
+        let which = if tracks.len() == 1 { "track" } else { "tracks" };
+        println!(
+            "{}. {} (frame {}, {which} {}):",
+            k + 1,
+            d.time,
+            d.frame,
+            tracks.join(", ")
+        );
         for why in &d.why {
             println!("   {why}");
         }

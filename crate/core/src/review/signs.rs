@@ -80,23 +80,32 @@ fn hidden(e: &Event, boxes: &[&crate::track::TrackBox], fps: f64, out: &mut Vec<
         .map(|b| b.frame)
         .max();
     let after = seen.filter(|b| b.frame > e.frame).map(|b| b.frame).min();
-    let unseen = match (before, after) {
-        (Some(a), Some(b)) => f64::from(b - a - 1) / fps,
-        _ => 0.0,
+    let frames = match (before, after) {
+        (Some(a), Some(b)) => b - a - 1,
+        _ => 0,
     };
+    let unseen = f64::from(frames) / fps;
     let weight = match unseen {
         u if u >= HIDDEN_LONG[1] => 6,
         u if u >= HIDDEN_LONG[0] => 3,
         _ => 1,
     };
-    let why = if unseen >= 0.1 {
-        format!(
-            "Counted while hidden for {unseen:.1} s: where it crossed the line was predicted, not \
-             seen; the longer unseen, the likelier the track came back on someone else."
-        )
-    } else {
-        "Counted while hidden: where it crossed the line was predicted, not seen.".into()
+    let how_long = match frames {
+        0 => String::new(),
+        1 => " for 1 frame".to_string(),
+        n if unseen < 0.1 => format!(" for {n} frames"),
+        n => format!(" for {n} frames ({unseen:.1} s)"),
     };
+    let likely = if weight > 1 {
+        "; the longer unseen, the likelier the track came back on someone else"
+    } else {
+        ""
+    };
+    let why = format!(
+        "Counted {} on `{}` while hidden{how_long}: where track {} crossed was predicted, not \
+         seen{likely}.",
+        e.label, e.name, e.track
+    );
     out.push(doubt(
         DoubtKind::Hidden,
         e,
