@@ -119,13 +119,29 @@ fn resolved(path: &Path) -> PathBuf {
     }
 }
 
-/// Refuses an output that is an input or the same file as another output (usage error, exit 2).
+/// Refuses an output that is an input or the same file as another output, or whose folder does
+/// not exist (usage errors, exit 2: before any work is done).
 /// Standard input and output (`-`) and special files (such as /dev/null) are not compared.
 pub fn check_paths(inputs: &[Option<&Path>], outputs: &[Option<&Path>]) -> Result<(), Failure> {
     let real = |p: &&Path| *p != Path::new("-") && !is_special(p);
     let inputs: Vec<&Path> = inputs.iter().flatten().copied().filter(real).collect();
     let outputs: Vec<&Path> = outputs.iter().flatten().copied().filter(real).collect();
     for (k, out) in outputs.iter().enumerate() {
+        let folder = out
+            .parent()
+            .filter(|p| !p.as_os_str().is_empty())
+            .unwrap_or(Path::new("."));
+        if !folder.is_dir() {
+            return Err(Failure {
+                message: format!(
+                    "{}: the folder {} does not exist: create it first, or write the output \
+                     elsewhere",
+                    out.display(),
+                    folder.display()
+                ),
+                code: 2,
+            });
+        }
         let r = resolved(out);
         if let Some(input) = inputs.iter().find(|i| resolved(i) == r) {
             return Err(Failure {

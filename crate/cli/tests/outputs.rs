@@ -90,6 +90,23 @@ fn an_output_that_is_an_input_or_another_output_is_refused() {
         std::fs::read(&dets).unwrap(),
         std::fs::read(demo("detections.txt")).unwrap()
     );
+    // An output in a folder that does not exist is refused before the work, not after it (a
+    // newcomer's trial: "os error 2" once everything was tracked).
+    let nowhere = dir.join("no-such-folder").join("report.json");
+    let o = throughline(&[
+        "run",
+        &dets,
+        "--plan",
+        &plan,
+        "-o",
+        &nowhere.display().to_string(),
+    ]);
+    assert_eq!(o.status.code(), Some(2), "{}", stderr(&o));
+    assert!(
+        stderr(&o).contains("no-such-folder does not exist: create it first"),
+        "{}",
+        stderr(&o)
+    );
     // Writing to a device is not a clash: /dev/null takes any number of outputs.
     let o = throughline(&[
         "run",

@@ -116,12 +116,13 @@ pub fn run(args: Args) -> Result<(), Failure> {
     let targets: Vec<PathBuf> = names.iter().map(|n| dir.join(n)).collect();
     let mut outputs: Vec<Option<&Path>> = targets.iter().map(|p| Some(p.as_path())).collect();
     outputs.push(args.render.as_deref());
-    check_paths(&[args.plan.as_deref()], &outputs)?;
-    let plan = args.plan.as_deref().map(read_plan).transpose()?;
+    // The scene's own folder is made here; any other folder must be there already.
     std::fs::create_dir_all(dir).map_err(|e| Failure {
         message: format!("{}: cannot create the folder: {e}", dir.display()),
         code: 1,
     })?;
+    check_paths(&[args.plan.as_deref()], &outputs)?;
+    let plan = args.plan.as_deref().map(read_plan).transpose()?;
     let mut files = Outputs::new();
     let scene = match &args.render {
         None => sim::generate(&cfg),
