@@ -469,6 +469,36 @@ fn score_counts_compares_a_report_with_a_manual_count() {
     let o = throughline(&["score-counts", "--truth", &other, &report]);
     assert_eq!(o.status.code(), Some(1));
     assert!(stderr(&o).contains("direction labels"), "{}", stderr(&o));
+    // A label misspelt in some rows of a manual count: those rows are named and the pooled line
+    // says the comparison is incomplete (a newcomer's trial: `south` for `southbound` left a
+    // real miss out of a score that read as perfect).
+    let truth = std::fs::read_to_string(demo("truth_counts.csv")).unwrap();
+    let typo = write(
+        &dir,
+        "typo.csv",
+        truth
+            .replace(",towards camera,", ",towards camra,")
+            .as_bytes(),
+    );
+    let o = throughline(&["score-counts", "--truth", &typo, &report]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let (out, err) = (String::from_utf8_lossy(&o.stdout), stderr(&o));
+    assert!(out.contains("INCOMPLETE: "), "{out}");
+    assert!(err.contains("`plaza midline` / `towards camra` ("), "{err}");
+    assert!(err.contains("the report has `"), "{err}");
+    // A manual count on a clock apart from the report's: said, not read as everything missed.
+    let late = write(&dir, "late.csv", truth.replace("T07:", "T19:").as_bytes());
+    let o = throughline(&["score-counts", "--truth", &late, &report]);
+    assert!(
+        stderr(&o).contains("none of the reference's intervals (2026-03-02T19:00:00"),
+        "{}",
+        stderr(&o)
+    );
+    assert!(
+        stderr(&o).contains("check the start time"),
+        "{}",
+        stderr(&o)
+    );
 }
 
 /// The table a person reads: rows with no crossing either way are left out (and said to be), the

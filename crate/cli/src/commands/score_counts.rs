@@ -93,8 +93,12 @@ pub fn run(args: Args) -> Result<(), Failure> {
         };
         format!("; {how} (APD and AAPD are means over the cells)")
     });
+    let left_out = match acc.unmatched_reference_rows {
+        0 => String::new(),
+        n => format!(" — INCOMPLETE: {n} reference rows left out (see the warning)"),
+    };
     println!(
-        "all rows pooled: {}{}",
+        "all rows pooled: {}{}{left_out}",
         measures(o, "line, direction, class and interval cell"),
         totals.unwrap_or_default()
     );
@@ -109,12 +113,40 @@ pub fn run(args: Args) -> Result<(), Failure> {
         );
     }
     if acc.unmatched_reference_rows > 0 {
+        eprintln!("warning: {}", unmatched(&acc));
+    }
+    if let Some([m0, m1, a0, a1]) = &acc.intervals_apart {
         eprintln!(
-            "warning: {} reference rows name a screenline or direction the report does not have",
-            acc.unmatched_reference_rows
+            "warning: none of the reference's intervals ({m0} to {m1}) is among the report's \
+             ({a0} to {a1}), so every count compared reads as missed: check the start time of the \
+             plan and of the manual count (a clock 12 hours apart, or another date?)"
         );
     }
     Ok(())
+}
+
+/// The warning about reference rows left out for their line or direction, naming them and the
+/// report's own (a typo in a label, or a capital letter, left rows out of a score that looked
+/// perfect).
+fn unmatched(acc: &accuracy::Accuracy) -> String {
+    let quoted = |l: &str, d: &str| format!("`{l}` / `{d}`");
+    let left: Vec<String> = acc
+        .unmatched_labels
+        .iter()
+        .map(|(l, d, n)| {
+            let rows = if *n == 1 { "row" } else { "rows" };
+            format!("{} ({n} {rows})", quoted(l, d))
+        })
+        .collect();
+    let known: Vec<String> = acc.known_labels.iter().map(|(l, d)| quoted(l, d)).collect();
+    format!(
+        "{} reference rows name a screenline and direction the report does not have, so they are \
+         left out and the comparison is incomplete: {}; the report has {} (check the spelling and \
+         capital letters, as in the counts CSV)",
+        acc.unmatched_reference_rows,
+        left.join(", "),
+        known.join(", ")
+    )
 }
 
 /// One row of the table: intervals, totals, APD, AAPD, WAPD and the correction factor.

@@ -155,6 +155,14 @@ pub struct Accuracy {
     pub overall: Measures,
     /// Reference rows whose screenline and direction the automated counts do not have.
     pub unmatched_reference_rows: usize,
+    /// Their screenlines and directions, each with how many rows name it (in order of names).
+    pub unmatched_labels: Vec<(String, String, usize)>,
+    /// The screenlines and directions the automated counts have (in order of names).
+    pub known_labels: Vec<(String, String)>,
+    /// When no interval of the reference is an interval of the automated counts (which have
+    /// some): the first and last interval start of each, reference first. A clock set apart (a
+    /// start time of 07:45 for 17:45) then reads as nothing counted.
+    pub intervals_apart: Option<[String; 4]>,
     /// Automated counts left out for their class: of a class no reference row of their screenline
     /// and direction names, where no reference row counts all classes together (e.g. unclassified
     /// counts from tracks without classes, against a manual count by class). Counts of intervals
@@ -214,10 +222,12 @@ pub fn compare(automated: &[CountRow], reference: &[CountRow]) -> Accuracy {
         *all = all.saturating_add(r.count);
     }
     let mut groups: BTreeMap<Key, Vec<(String, u64, u64)>> = BTreeMap::new();
-    let mut unmatched = 0;
+    let mut unmatched: BTreeMap<(String, String), usize> = BTreeMap::new();
     for r in reference {
         if !known.contains(&(r.screenline.clone(), r.direction.clone())) {
-            unmatched += 1;
+            *unmatched
+                .entry((r.screenline.clone(), r.direction.clone()))
+                .or_default() += 1;
             continue;
         }
         let class = r.class.clone().unwrap_or_else(|| "all".into());
@@ -252,9 +262,32 @@ pub fn compare(automated: &[CountRow], reference: &[CountRow]) -> Accuracy {
     Accuracy {
         groups,
         overall: measures(&all_pairs),
-        unmatched_reference_rows: unmatched,
+        unmatched_reference_rows: unmatched.values().sum(),
+        unmatched_labels: unmatched.into_iter().map(|((l, d), n)| (l, d, n)).collect(),
+        known_labels: known.into_iter().collect(),
+        intervals_apart: intervals_apart(automated, reference),
         automated_not_compared: not_compared,
     }
+}
+
+/// The first and last interval starts of the reference and of the automated counts, when none of
+/// the reference's is among the automated counts'.
+fn intervals_apart(automated: &[CountRow], reference: &[CountRow]) -> Option<[String; 4]> {
+    let starts = |rows: &[CountRow]| -> std::collections::BTreeSet<String> {
+        rows.iter().map(|r| r.interval_start.clone()).collect()
+    };
+    let (a, m) = (starts(automated), starts(reference));
+    if a.is_empty() || m.is_empty() || !a.is_disjoint(&m) {
+        return None;
+    }
+    let ends = |s: &std::collections::BTreeSet<String>| {
+        (
+            s.first().cloned().unwrap_or_default(),
+            s.last().cloned().unwrap_or_default(),
+        )
+    };
+    let ((m0, m1), (a0, a1)) = (ends(&m), ends(&a));
+    Some([m0, m1, a0, a1])
 }
 
 /// The automated counts no reference row compares: see [`Accuracy::automated_not_compared`].
