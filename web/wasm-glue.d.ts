@@ -22,6 +22,8 @@ declare namespace wasm_bindgen {
   function coreFacts(): CoreFacts;
   /** Reads a project file's text (and how its version differs); errors name the line and column. */
   function readProject(text: string): { project: Project, age: ProjectAge };
+  /** Checks a plan file's text as the command line reads it; errors name the line and column. */
+  function checkPlan(text: string): void;
   /** A project (plain object) as the project file's text; format, version and generator filled in. */
   function writeProject(project: object): string;
   /** A file's fingerprint from its name, size, first bytes (at least the first MiB) and duration (0: none). */

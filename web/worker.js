@@ -177,6 +177,7 @@ async function perform(req, progress, token) {
     case "setEdits": return setEdits(req.json, req.kind, req);
     case "editsText": return core().editsText();
     case "readProject": return wasm_bindgen.readProject(req.text);
+    case "checkPlan": wasm_bindgen.checkPlan(req.text); return true;
     case "writeProject": return wasm_bindgen.writeProject(req.project);
     case "fingerprint": return wasm_bindgen.fingerprint(req.name, req.size, new Uint8Array(req.head), req.duration);
     case "fingerprintDiffers": return wasm_bindgen.fingerprintDiffers(req.recorded, req.opened) || null;

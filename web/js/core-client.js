@@ -152,6 +152,15 @@ export class CoreClient {
   }
 
   /**
+   * Checks a plan file's text as the command line reads it; rejects with what is wrong where
+   * (the line and column in that text).
+   * @param {string} text
+   */
+  checkPlan(text) {
+    return this.call({ op: "checkPlan", text });
+  }
+
+  /**
    * Reads a project file: the project and how its version differs from this one's (the core
    * decides); rejects with what is wrong where.
    * @param {string} text

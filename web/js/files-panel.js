@@ -4,6 +4,7 @@
 
 import { byId } from "./dom.js";
 import { parsePlanText } from "./plan.js";
+import { Cancelled } from "./protocol.js";
 
 /** @typedef {import("./store.js").PageStore} PageStore */
 /** @typedef {import("./core-client.js").CoreClient} CoreClient */
@@ -114,14 +115,28 @@ export class FilesPanel {
    * @param {string} text
    * @param {string} name
    */
-  openPlanFile(text, name) {
+  async openPlanFile(text, name) {
     // A project file holds a plan and more: it is opened as the project it is.
     if (this.openProject && isProjectText(text)) return this.openProject(text, name);
+    let plan;
     try {
-      this.store.planReplaced(parsePlanText(text, name), "file", name);
+      plan = parsePlanText(text, name);
     } catch (e) {
       this.messages.say("plan-file", "error", /** @type {Error} */ (e).message);
+      return;
     }
+    try {
+      // The core checks the file as the command line would, so a mistake is named at its line in
+      // the file and the plan in use stays (a plan taken with a misspelt field counted nothing).
+      await this.client.checkPlan(text);
+    } catch (e) {
+      if (e instanceof Cancelled) return;
+      const why = withoutDocs(/** @type {Error} */ (e).message);
+      this.messages.say("plan-file", "error", `${name} was not opened: ${why}. The plan in use is unchanged; fix the file and open it again.`);
+      return;
+    }
+    this.messages.clear("plan-file");
+    this.store.planReplaced(plan, "file", name);
   }
 
   /** Warns when the detections cannot belong to this footage: too big, or running past its end. */
@@ -148,4 +163,13 @@ export class FilesPanel {
  */
 function isProjectText(text) {
   return /"format"\s*:\s*"throughline-project"/.test(text.slice(0, 400));
+}
+
+/**
+ * A core message without its pointer to the repository's documentation, which the page (one
+ * offline file) does not carry.
+ * @param {string} message
+ */
+export function withoutDocs(message) {
+  return message.replace(/ \(see docs\/[\w.-]+\)/g, "");
 }

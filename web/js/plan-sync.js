@@ -5,6 +5,7 @@
 
 import { planForCore } from "./plan.js";
 import { Cancelled } from "./protocol.js";
+import { withoutDocs } from "./files-panel.js";
 
 /** @typedef {import("./store.js").PageStore} PageStore */
 /** @typedef {import("./core-client.js").CoreClient} CoreClient */
@@ -35,7 +36,9 @@ export class PlanSync {
     } catch (e) {
       // A worker replaced on Cancel drops the plan it was given; it gets it again.
       if (e instanceof Cancelled) return;
-      this.store.planChecked(`The plan needs a fix: ${/** @type {Error} */ (e).message}` + (calibrationNote ? `\n${calibrationNote}` : ""));
+      // The core read the page's own copy of the plan: its lines and columns are not the file's.
+      const why = withoutDocs(/** @type {Error} */ (e).message).replace(/^line \d+, column \d+: /, "");
+      this.store.planChecked(`The plan needs a fix: ${why}` + (calibrationNote ? `\n${calibrationNote}` : ""));
     }
   }
 }

@@ -166,6 +166,7 @@
  * @typedef {{op: "setEdits", json: string, kind: "edits" | "project", width: number, height: number}} SetEditsRequest
  * @typedef {{op: "editsText"}} EditsTextRequest
  * @typedef {{op: "readProject", text: string}} ReadProjectRequest
+ * @typedef {{op: "checkPlan", text: string}} CheckPlanRequest
  * @typedef {{op: "writeProject", project: object}} WriteProjectRequest
  * @typedef {{op: "fingerprint", name: string, size: number, head: ArrayBuffer, duration: number}} FingerprintRequest
  * @typedef {{op: "fingerprintDiffers", recorded: object, opened: object}} FingerprintDiffersRequest
@@ -185,7 +186,7 @@
  * @typedef {{op: "countedPaths", ids: number[]}} CountedPathsRequest
  * @typedef {InitRequest | LoadDetectionsRequest | SetPlanRequest | TrackRequest | StartDetectionRequest | DetectRgbaRequest
  *   | FinishDetectionRequest | FindInFootageRequest | CancelFindRequest | DetectionsTextRequest | TracksTextRequest
- *   | SetEditsRequest | EditsTextRequest | ReadProjectRequest | WriteProjectRequest | FingerprintRequest
+ *   | SetEditsRequest | EditsTextRequest | ReadProjectRequest | CheckPlanRequest | WriteProjectRequest | FingerprintRequest
  *   | FingerprintDiffersRequest | HandInRequest | SummaryHtmlRequest | MergedGridRequest | BackgroundFramesRequest
  *   | SampleRgbaRequest | CountedPathsRequest} Request
  * @typedef {Request & {id: number}} RequestMessage a request as posted to the worker
@@ -200,6 +201,7 @@
  * @property {Corrected} setEdits
  * @property {string} editsText the edits file
  * @property {{project: Project, age: ProjectAge}} readProject the project, and how its version differs from this one's
+ * @property {true} checkPlan the plan file reads as the command line reads it
  * @property {string} writeProject the project file
  * @property {Fingerprint} fingerprint
  * @property {string | null} fingerprintDiffers why the file opened is not the one recorded, or null

@@ -132,7 +132,43 @@ pub fn plain_json_words(message: &str) -> String {
             m = m.replace(from, to);
         }
     }
+    if let Some(name) = nearest_known_field(&m) {
+        m.push_str(&format!(" (did you mean `{name}`?)"));
+    }
     m
+}
+
+/// For serde's "unknown field `foward`, expected one of `name`, `forward`, …" (or "expected
+/// `a` or `b`"): the expected name nearest the unknown one, when it is a likely typo (at most two
+/// letters apart, case aside, or the same but for case).
+fn nearest_known_field(message: &str) -> Option<&str> {
+    let rest = message.strip_prefix("unknown field `")?;
+    let (unknown, expected) = rest.split_once("`, expected ")?;
+    let names = expected.split('`').skip(1).step_by(2);
+    let lower = unknown.to_lowercase();
+    names
+        .map(|n| (n, edit_distance(&lower, &n.to_lowercase())))
+        .filter(|&(_, d)| d <= 2 && d < unknown.chars().count())
+        .min_by_key(|&(_, d)| d)
+        .map(|(n, _)| n)
+}
+
+/// Levenshtein distance over characters (names are short: a field name, not file contents).
+fn edit_distance(a: &str, b: &str) -> usize {
+    let b: Vec<char> = b.chars().collect();
+    let mut row: Vec<usize> = (0..=b.len()).collect();
+    for (i, ca) in a.chars().enumerate() {
+        let mut diagonal = row[0];
+        row[0] = i + 1;
+        for (j, cb) in b.iter().enumerate() {
+            let above = row[j + 1];
+            row[j + 1] = (above + 1)
+                .min(row[j] + 1)
+                .min(diagonal + usize::from(ca != *cb));
+            diagonal = above;
+        }
+    }
+    row[b.len()]
 }
 
 impl fmt::Display for Error {
@@ -170,5 +206,20 @@ mod tests {
             e.starts_with("`max_age` in the settings file: invalid type: string \"x\", expected a whole number"),
             "{e}"
         );
+    }
+
+    #[test]
+    fn a_misspelt_field_is_named_with_the_nearest_known_one() {
+        let plan = r#"{"frame_rate": 25, "screenlines": [{"name": "a", "points": [[0, 0], [9, 9]], "foward": "in"}]}"#;
+        let e = crate::plan::Plan::from_json(plan).unwrap_err().to_string();
+        assert!(e.contains("unknown field `foward`"), "{e}");
+        assert!(e.contains("(did you mean `forward`?)"), "{e}");
+        // Nothing near: no guess.
+        let e = crate::plan::Plan::from_json(r#"{"frame_rate": 25, "colour": 1}"#)
+            .unwrap_err()
+            .to_string();
+        assert!(!e.contains("did you mean"), "{e}");
+        assert_eq!(edit_distance("frame_rat", "frame_rate"), 1);
+        assert_eq!(edit_distance("", "ab"), 2);
     }
 }

@@ -49,6 +49,13 @@ fn to_js(value: &impl Serialize) -> Result<JsValue, JsError> {
         .map_err(js_error)
 }
 
+/// Checks a plan file's text as the command line reads it, before the page takes it: an error
+/// names the line and column in that text (the page's own copy of a plan is laid out anew).
+#[wasm_bindgen(js_name = checkPlan)]
+pub fn check_plan(text: &str) -> Result<(), JsError> {
+    plan::Plan::from_json(text).map(|_| ()).map_err(js_error)
+}
+
 /// The state of one page: detections, plan, tracks.
 #[wasm_bindgen]
 #[derive(Default)]
