@@ -75,6 +75,9 @@ pub fn wrong_field_count(found: usize, want: usize, text: &str, line: usize) -> 
         None if found < want => "; give a value for each column the header names, in its order \
              (a value not known is left empty between two commas)"
             .to_string(),
+        None if has_decimal_comma(text) => "; numbers are written with a full stop (0.9, not \
+             0,9), and a value holding a comma must be in double quotes"
+            .to_string(),
         None => "; a value holding a comma must be in double quotes".to_string(),
     };
     Error::new(
@@ -82,6 +85,17 @@ pub fn wrong_field_count(found: usize, want: usize, text: &str, line: usize) -> 
         format!("{found} {fields}, but the header names {want} columns{hint}"),
     )
     .at(line, None)
+}
+
+/// Whether a line with too many fields looks written with decimal commas: a field `0` then a
+/// field of one to three digits (`…,0,9,` where the score `0.9` was meant).
+fn has_decimal_comma(text: &str) -> bool {
+    let fields: Vec<&str> = text.split(',').map(str::trim).collect();
+    fields.windows(2).any(|w| {
+        let whole = !w[0].is_empty() && w[0].bytes().all(|b| b.is_ascii_digit());
+        let part = (1..=3).contains(&w[1].len()) && w[1].bytes().all(|b| b.is_ascii_digit());
+        whole && part && w[0] == "0"
+    })
 }
 
 /// Splits a CSV line on commas, honouring double quotes around a field.

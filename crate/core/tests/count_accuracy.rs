@@ -62,6 +62,10 @@ fn zero_reference_intervals_are_kept_out_of_apd_but_not_wapd() {
     assert_eq!(m.zero_reference_intervals, 1);
     assert_eq!(m.apd, Some(0.0));
     assert!((m.wapd.unwrap() - 0.3).abs() < 1e-12);
+    // A reference of none gives no factor (was 0.000, which would scale counts away).
+    let none = rows(&format!("{HEADER}gate,out,car,a,b,0\n"));
+    let m = compare(&auto, &none).overall;
+    assert_eq!(m.correction_factor, None);
 }
 
 /// Counts of a class the reference does not name for their line are counted as left out (a

@@ -207,6 +207,14 @@ fn bad_input_names_the_place_and_the_fix() {
         None,
         "must be in double quotes",
     );
+    // A decimal comma (a spreadsheet in another language) is named as the likely cause.
+    check_err(
+        b"frame,x,y,w,h,score,class\n1,2,3,4,5,0,9,car\n",
+        WrongColumnCount,
+        Some(2),
+        None,
+        "numbers are written with a full stop (0.9, not 0,9)",
+    );
     // Semicolons (a spreadsheet saving in another language's way) are named as the cause.
     check_err(
         b"frame,x,y,w,h,score\n1;2;3;4;5;0.9\n",

@@ -193,7 +193,8 @@ pub fn measures(pairs: &[(u64, u64)]) -> Measures {
         apd: (n > 0.0).then(|| with_m.iter().sum::<f64>() / n),
         aapd: (n > 0.0).then(|| with_m.iter().map(|d| d.abs()).sum::<f64>() / n),
         wapd: (sum_m > 0).then(|| sum_abs / sum_m as f64),
-        correction_factor: (sum_a > 0).then(|| sum_m as f64 / sum_a as f64),
+        // None when either total is 0: no count to scale, or no reference to scale it to.
+        correction_factor: (sum_a > 0 && sum_m > 0).then(|| sum_m as f64 / sum_a as f64),
     }
 }
 

@@ -390,7 +390,7 @@ pub(crate) fn finish(
     if detections.rows.is_empty() && warnings.count == 0 {
         return Err(Error::new(
             ErrorKind::Empty,
-            format!("the {format} file has no detection rows"),
+            format!("the file ({format}) has no detection rows"),
         ));
     }
     if !in_order {

@@ -105,7 +105,7 @@ impl Reading {
         if rows == 0 && self.warnings.count == 0 {
             return Err(Error::new(
                 ErrorKind::Empty,
-                format!("the {format} file has no detection rows"),
+                format!("the file ({format}) has no detection rows"),
             ));
         }
         Ok(PiecesSummary {
