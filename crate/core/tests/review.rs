@@ -240,3 +240,20 @@ fn tracks_there_when_the_footage_starts_or_ends_are_not_doubted_for_it() {
     let q = queue(vec![walk(1, 1, 100, (200.0, 195.0), (0.0, 0.0), 0.9)]);
     assert!(q.is_empty(), "{q:#?}");
 }
+
+/// Someone on the line as the footage starts, who then walks off it, may have just crossed: no
+/// crossing can be counted (the side they came from was not seen), so the moment is doubted (a
+/// newcomer's trial: the one miss of a new scene, a cyclist on the line at frame 3, was not in the
+/// queue). Near the line but not on it, or standing on it throughout, is not doubted.
+#[test]
+fn a_track_on_a_line_as_the_footage_starts_and_leaving_it_is_doubted() {
+    let q = queue(vec![walk(1, 1, 50, (200.0, 201.0), (0.0, 4.0), 0.9)]);
+    assert_eq!(kinds(&q), vec![DoubtKind::StartsNearLine], "{q:#?}");
+    assert!(
+        q[0].why[0].contains("is on `deck` as the footage starts"),
+        "{:?}",
+        q[0].why
+    );
+    let q = queue(vec![walk(1, 1, 50, (200.0, 170.0), (0.0, -3.0), 0.9)]);
+    assert!(q.is_empty(), "{q:#?}");
+}

@@ -86,6 +86,8 @@ const SHORT_BOXES: usize = 8;
 const CLOSE_SECONDS: f64 = 1.0;
 const LOW_SCORE: f64 = 0.45;
 const NEAR_LINE_HEIGHTS: f64 = 1.0;
+/// On a line: this close to it, in box heights (a track there as the footage starts or ends).
+const ON_LINE_HEIGHTS: f64 = 0.25;
 const EDGE_SHARE: f64 = 0.03;
 const CLASS_SHARE: f64 = 0.7;
 

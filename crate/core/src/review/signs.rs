@@ -7,7 +7,7 @@ use std::collections::HashMap;
 
 use super::{
     boxes_of, doubt, Doubt, DoubtKind, Scene, AT_END_SECONDS, CLASS_SHARE, CLOSE_SECONDS,
-    HIDDEN_LONG, LOW_SCORE, NEAR_LINE_HEIGHTS, SHORT_BOXES, SHORT_SECONDS,
+    HIDDEN_LONG, LOW_SCORE, NEAR_LINE_HEIGHTS, ON_LINE_HEIGHTS, SHORT_BOXES, SHORT_SECONDS,
 };
 use crate::geometry::{BBox, Point};
 use crate::plan::{Anchor, Plan};
@@ -213,8 +213,9 @@ fn anchor(b: &BBox, a: Anchor) -> Point {
 
 /// A track that appears or disappears within a box height of a line, away from the picture's
 /// edge, may be someone the tracker lost and found: counted twice, or not at all. Tracks there
-/// from the footage's first second, or to its last, are left out: they appear and disappear
-/// because the footage starts and ends.
+/// from the footage's first second, or to its last, appear and disappear because the footage
+/// starts and ends: they are doubted only when on the line itself, leaving it, with no crossing
+/// of it counted (someone crossing as the recording began is not counted: a newcomer's trial).
 pub(super) fn line_end_doubts(
     t: &Track,
     plan: &Plan,
@@ -226,26 +227,61 @@ pub(super) fn line_end_doubts(
         return;
     };
     for (tb, starts) in [(first, true), (last, false)] {
-        if scene.at_edge(&tb.bbox) || scene.at_footage_edge(tb.frame, starts) {
+        if scene.at_edge(&tb.bbox) {
             continue;
         }
-        let p = anchor(&tb.bbox, plan.spec.anchor);
-        let near = plan.screenlines.iter().find_map(|l| {
-            let d = l
-                .segments
+        let h = tb.bbox.h.max(1.0);
+        let at = |b: &BBox, l: &crate::plan::Screenline| {
+            let p = anchor(b, plan.spec.anchor);
+            l.segments
                 .iter()
                 .map(|s| s.distance_to(&p))
-                .fold(f64::INFINITY, f64::min);
-            (d <= NEAR_LINE_HEIGHTS * tb.bbox.h).then_some((l, d / tb.bbox.h.max(1.0)))
+                .fold(f64::INFINITY, f64::min)
+        };
+        let near = plan.screenlines.iter().find_map(|l| {
+            let d = at(&tb.bbox, l);
+            (d <= NEAR_LINE_HEIGHTS * h).then_some((l, d / h))
         });
         let Some((line, heights)) = near else {
             continue;
         };
-        let seconds = (f64::from(tb.frame) - 1.0) / plan.spec.frame_rate;
-        let (kind, verb) = if starts {
-            (DoubtKind::StartsNearLine, "appears")
+        let why = if scene.at_footage_edge(tb.frame, starts) {
+            // There because the footage starts or ends: doubted only on the line itself, for a
+            // track that leaves it and has no crossing of it counted (it may have been crossing).
+            let leaves = t
+                .boxes
+                .iter()
+                .any(|b| at(&b.bbox, line) > ON_LINE_HEIGHTS * h);
+            let counted = report
+                .events
+                .iter()
+                .any(|e| e.name == line.name && e.track_ids.contains(&t.id));
+            if heights > ON_LINE_HEIGHTS || !leaves || counted {
+                continue;
+            }
+            let (when, how) = match starts {
+                true => ("starts", "if it had just crossed"),
+                false => ("ends", "if it was crossing"),
+            };
+            format!(
+                "Track {} is on `{}` as the footage {when}: {how}, that crossing is not counted \
+                 (which side it came from or went to was not seen).",
+                t.id, line.name
+            )
         } else {
-            (DoubtKind::EndsNearLine, "disappears")
+            let verb = if starts { "appears" } else { "disappears" };
+            format!(
+                "Track {} {verb} close to `{}` ({heights:.1} times its box's height away), not at \
+                 the picture's edge: someone lost and found again may be counted twice, or not at \
+                 all.",
+                t.id, line.name
+            )
+        };
+        let seconds = (f64::from(tb.frame) - 1.0) / plan.spec.frame_rate;
+        let kind = if starts {
+            DoubtKind::StartsNearLine
+        } else {
+            DoubtKind::EndsNearLine
         };
         out.push(Doubt {
             key: format!("{kind:?}:{}:{}", t.id, tb.frame),
@@ -255,11 +291,7 @@ pub(super) fn line_end_doubts(
             time: label_at(report, seconds),
             tracks: vec![t.id],
             crossing: None,
-            why: vec![format!(
-                "Track {} {verb} {heights:.1} box heights from `{}`, not at the picture's edge: \
-                 someone lost and found again may be counted twice, or not at all.",
-                t.id, line.name
-            )],
+            why: vec![why],
             weight: 1,
         });
     }
