@@ -38,6 +38,7 @@ declare namespace wasm_bindgen {
     constructor();
     loadDetections(bytes: Uint8Array): DetectionSummary;
     setPlan(json: string): void;
+    planOutsidePicture(width: number, height: number): string[];
     track(method: string, settings: string, progress: (done: number, total: number) => void): number;
     report(): string;
     countsCsv(): string;

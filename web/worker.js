@@ -178,6 +178,7 @@ async function perform(req, progress, token) {
     case "editsText": return core().editsText();
     case "readProject": return wasm_bindgen.readProject(req.text);
     case "checkPlan": wasm_bindgen.checkPlan(req.text); return true;
+    case "planOutsidePicture": return core().planOutsidePicture(req.width, req.height);
     case "writeProject": return wasm_bindgen.writeProject(req.project);
     case "fingerprint": return wasm_bindgen.fingerprint(req.name, req.size, new Uint8Array(req.head), req.duration);
     case "fingerprintDiffers": return wasm_bindgen.fingerprintDiffers(req.recorded, req.opened) || null;

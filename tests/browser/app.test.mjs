@@ -195,6 +195,13 @@ test("files the page cannot use get messages that say what to do, and the plan s
   await page.getByLabel("Open detections").setInputFiles(big);
   await page.waitForFunction(() => /different size/.test(document.getElementById("messages").textContent));
 
+  // A plan drawn for a larger picture: its line below this one's is named (it would count nothing).
+  const below = join(scratch, "plan-below.json");
+  writeFileSync(below, '{"frame_rate": 25, "screenlines": [{"name": "crossing A", "points": [[60, 400], [600, 400]]}]}');
+  await page.getByLabel("Open plan").setInputFiles(below);
+  await page.waitForFunction(() => /wholly outside the picture/.test(document.getElementById("plan-error").textContent));
+  assert.match(await page.locator("#plan-error").innerText(), /line .crossing A. lies wholly outside the picture \(640 × 360\)/);
+
   // A plan with no lines or zones.
   const empty = join(scratch, "empty-plan.json");
   writeFileSync(empty, '{"frame_rate": 25}');

@@ -118,6 +118,15 @@ export class CoreClient {
   }
 
   /**
+   * The plan's lines and zones lying wholly outside the picture, named ("line `a`").
+   * @param {{width: number, height: number}} picture
+   * @returns {Promise<string[]>}
+   */
+  planOutsidePicture(picture) {
+    return this.call({ op: "planOutsidePicture", ...sizeOf(picture) });
+  }
+
+  /**
    * Sets the person's corrections and counts again; resolves to the counts and the edited tracks.
    * @param {string} json an edits file, or a project file (`kind` "project": its hand counts and correction factor too)
    * @param {"edits" | "project"} kind

@@ -24,6 +24,8 @@ export class PlanSync {
       clearTimeout(this.timer);
       this.timer = setTimeout(() => this.send(), why === "edit" ? 120 : 0);
     });
+    // Footage opened after the plan: the plan is checked against its picture too.
+    store.subscribe(["video"], () => { if (store.video.playable) this.send(); });
   }
 
   /** Gives the plan to the core now; the counts it gives back, if any, become the page's. */
@@ -33,6 +35,16 @@ export class PlanSync {
     try {
       const results = await this.client.setPlan(json, this.store.picture);
       if (results) this.store.resultsReady(results);
+      const video = this.store.video;
+      if (video.playable) {
+        const outside = await this.client.planOutsidePicture(video);
+        if (outside.length) {
+          const which = outside.join(", ");
+          const lie = outside.length === 1 ? "lies" : "lie";
+          const note = `${which} ${lie} wholly outside the picture (${video.width} × ${video.height}): nothing is counted there. Was this plan drawn for other footage?`;
+          this.store.planChecked([calibrationNote, note].filter(Boolean).join("\n"));
+        }
+      }
     } catch (e) {
       // A worker replaced on Cancel drops the plan it was given; it gets it again.
       if (e instanceof Cancelled) return;

@@ -167,6 +167,7 @@
  * @typedef {{op: "editsText"}} EditsTextRequest
  * @typedef {{op: "readProject", text: string}} ReadProjectRequest
  * @typedef {{op: "checkPlan", text: string}} CheckPlanRequest
+ * @typedef {{op: "planOutsidePicture", width: number, height: number}} PlanOutsidePictureRequest
  * @typedef {{op: "writeProject", project: object}} WriteProjectRequest
  * @typedef {{op: "fingerprint", name: string, size: number, head: ArrayBuffer, duration: number}} FingerprintRequest
  * @typedef {{op: "fingerprintDiffers", recorded: object, opened: object}} FingerprintDiffersRequest
@@ -186,7 +187,8 @@
  * @typedef {{op: "countedPaths", ids: number[]}} CountedPathsRequest
  * @typedef {InitRequest | LoadDetectionsRequest | SetPlanRequest | TrackRequest | StartDetectionRequest | DetectRgbaRequest
  *   | FinishDetectionRequest | FindInFootageRequest | CancelFindRequest | DetectionsTextRequest | TracksTextRequest
- *   | SetEditsRequest | EditsTextRequest | ReadProjectRequest | CheckPlanRequest | WriteProjectRequest | FingerprintRequest
+ *   | SetEditsRequest | EditsTextRequest | ReadProjectRequest | CheckPlanRequest | PlanOutsidePictureRequest
+ *   | WriteProjectRequest | FingerprintRequest
  *   | FingerprintDiffersRequest | HandInRequest | SummaryHtmlRequest | MergedGridRequest | BackgroundFramesRequest
  *   | SampleRgbaRequest | CountedPathsRequest} Request
  * @typedef {Request & {id: number}} RequestMessage a request as posted to the worker
@@ -202,6 +204,7 @@
  * @property {string} editsText the edits file
  * @property {{project: Project, age: ProjectAge}} readProject the project, and how its version differs from this one's
  * @property {true} checkPlan the plan file reads as the command line reads it
+ * @property {string[]} planOutsidePicture the plan's lines and zones wholly outside the picture, named
  * @property {string} writeProject the project file
  * @property {Fingerprint} fingerprint
  * @property {string | null} fingerprintDiffers why the file opened is not the one recorded, or null

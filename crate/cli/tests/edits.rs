@@ -295,6 +295,33 @@ fn the_picture_size_comes_from_picture_or_from_the_project_and_a_bad_one_is_refu
         given,
         "the boxes' extent is not the picture on the demo"
     );
+    // A size that does not fit is said not to (a newcomer's trial: a smaller picture dropped
+    // moments without a word); the right one raises no warning.
+    let (plan_path, dets) = (demo("plan.json"), demo("detections.csv"));
+    let review = |size: &str| {
+        let o = throughline(&[
+            "review",
+            &dets,
+            "--plan",
+            &plan_path,
+            "--picture",
+            size,
+            "--first",
+            "0",
+        ]);
+        stderr(&o)
+    };
+    let small = review("320x180");
+    assert!(
+        small.contains("well past the picture's 320 × 180"),
+        "{small}"
+    );
+    assert!(small.contains("line `plaza midline`"), "{small}");
+    assert!(
+        small.contains("wholly outside the picture (320 × 180)"),
+        "{small}"
+    );
+    assert!(!review("640x360").contains("warning"));
 
     let o = throughline(&[
         "review",

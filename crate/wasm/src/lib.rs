@@ -147,6 +147,16 @@ impl Session {
         Ok(detections::to_file_text(&report.detections))
     }
 
+    /// The plan's lines and zones lying wholly outside a picture of `width` × `height` pixels,
+    /// named (`Plan::outside_picture`); none before a plan is set.
+    #[wasm_bindgen(js_name = planOutsidePicture)]
+    pub fn plan_outside_picture(&self, width: f64, height: f64) -> Vec<String> {
+        self.plan
+            .as_ref()
+            .map(|p| p.outside_picture(width, height))
+            .unwrap_or_default()
+    }
+
     /// Sets the counting plan from its JSON text; errors name the field to fix.
     #[wasm_bindgen(js_name = setPlan)]
     pub fn set_plan(&mut self, json: &str) -> Result<(), JsError> {

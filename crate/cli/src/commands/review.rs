@@ -55,7 +55,11 @@ pub fn run(args: Args) -> Result<(), Failure> {
     let report = pipeline::count(&tracks, &plan, Some(&tracks.config), &work)
         .map_err(|e| bad_input(&args.plan, e))?;
     let shown = pipeline::correct_tracks(&tracks, &work.edits).0;
-    let queue = review::doubts(&shown, &plan, &report, args.picture.or(recorded));
+    let picture = args.picture.or(recorded);
+    if let Some(size) = picture {
+        warn_misfit(&shown, &plan, size, args.tracking.quiet);
+    }
+    let queue = review::doubts(&shown, &plan, &report, picture);
     let listed = &queue[..args.first.unwrap_or(queue.len()).min(queue.len())];
     if args.json {
         println!(
@@ -94,6 +98,38 @@ pub fn run(args: Args) -> Result<(), Failure> {
         queue.len()
     );
     Ok(())
+}
+
+/// Warns when the picture's size does not fit the tracks or the plan: boxes reaching well past
+/// it (a size for other footage: which moments are at the picture's edge is then misjudged), or
+/// lines and zones wholly outside it (they count nothing).
+fn warn_misfit(
+    tracks: &throughline_core::track::Tracks,
+    plan: &throughline_core::plan::Plan,
+    (w, h): (f64, f64),
+    quiet: bool,
+) {
+    if quiet {
+        return;
+    }
+    let boxes = tracks.tracks.iter().flat_map(|t| &t.boxes);
+    let (right, bottom) = boxes.fold((0.0_f64, 0.0_f64), |(r, b), tb| {
+        (r.max(tb.bbox.x + tb.bbox.w), b.max(tb.bbox.y + tb.bbox.h))
+    });
+    if right > 1.25 * w || bottom > 1.25 * h {
+        eprintln!(
+            "warning: boxes reach {right:.0} × {bottom:.0} pixels, well past the picture's {w} × \
+             {h}: is the picture's size right? (it decides which tracks begin or end at the \
+             picture's edge)"
+        );
+    }
+    let outside = plan.outside_picture(w, h);
+    if !outside.is_empty() {
+        eprintln!(
+            "warning: {} wholly outside the picture ({w} × {h}): nothing is counted there",
+            outside.join(", ") + if outside.len() == 1 { " lies" } else { " lie" }
+        );
+    }
 }
 
 /// `--picture WxH`: two whole numbers of pixels from 1 to 100,000.

@@ -229,11 +229,46 @@ impl Plan {
     pub fn from_spec(spec: PlanSpec) -> Result<Plan, Error> {
         check::plan(spec)
     }
+
+    /// The lines and zones lying wholly beyond one edge of a picture of `width` × `height`
+    /// pixels, named ("line `a`", "zone `b`"): a plan drawn for other footage counts nothing
+    /// there, and says nothing of it.
+    pub fn outside_picture(&self, width: f64, height: f64) -> Vec<String> {
+        let beyond = |points: &[[f64; 2]]| {
+            !points.is_empty()
+                && (points.iter().all(|p| p[0] < 0.0)
+                    || points.iter().all(|p| p[0] > width)
+                    || points.iter().all(|p| p[1] < 0.0)
+                    || points.iter().all(|p| p[1] > height))
+        };
+        let lines = self.spec.screenlines.iter().filter(|l| beyond(&l.points));
+        let zones = self.spec.zones.iter().filter(|z| beyond(&z.polygon));
+        lines
+            .map(|l| format!("line `{}`", l.name))
+            .chain(zones.map(|z| format!("zone `{}`", z.name)))
+            .collect()
+    }
 }
 
 #[cfg(test)]
 mod tests {
-    use super::key_before;
+    use super::{key_before, Plan};
+
+    #[test]
+    fn lines_and_zones_beyond_the_picture_are_named() {
+        let plan = Plan::from_json(
+            r#"{"frame_rate": 25, "screenlines": [
+                {"name": "in", "points": [[-50, 100], [700, 100]]},
+                {"name": "below", "points": [[60, 400], [600, 420]]}],
+              "zones": [{"name": "far", "polygon": [[650, 10], [700, 10], [700, 50]]}]}"#,
+        )
+        .unwrap();
+        assert_eq!(
+            plan.outside_picture(640.0, 360.0),
+            vec!["line `below`", "zone `far`"]
+        );
+        assert!(plan.outside_picture(1024.0, 576.0).is_empty());
+    }
 
     #[test]
     fn the_key_before_a_value_is_found_on_its_line_or_not_at_all() {
