@@ -83,25 +83,7 @@ pub fn run(args: Args) -> Result<(), Failure> {
     if quiet > 0 {
         println!("({quiet} more with no crossing in either count; --json lists them)");
     }
-    let o = &acc.overall;
-    let totals = (o.reference_total > 0).then(|| {
-        let d = o.automated_total as f64 / o.reference_total as f64 - 1.0;
-        let how = if o.automated_total == o.reference_total {
-            "the totals are equal".to_string()
-        } else {
-            format!("the totals differ by {:+.1}%", 100.0 * d)
-        };
-        format!("; {how} (APD and AAPD are means over the cells)")
-    });
-    let left_out = match acc.unmatched_reference_rows {
-        0 => String::new(),
-        n => format!(" — INCOMPLETE: {n} reference rows left out (see the warning)"),
-    };
-    println!(
-        "all rows pooled: {}{}{left_out}",
-        measures(o, "line, direction, class and interval cell"),
-        totals.unwrap_or_default()
-    );
+    println!("{}", pooled(&acc));
     if acc.automated_not_compared > 0 {
         eprintln!(
             "warning: {} of the report's counts are of classes the reference does not name for their \
@@ -123,6 +105,30 @@ pub fn run(args: Args) -> Result<(), Failure> {
         );
     }
     Ok(())
+}
+
+/// The pooled line: every compared cell together, the totals' own difference, and whether
+/// reference rows were left out.
+fn pooled(acc: &accuracy::Accuracy) -> String {
+    let o = &acc.overall;
+    let totals = (o.reference_total > 0).then(|| {
+        let d = o.automated_total as f64 / o.reference_total as f64 - 1.0;
+        let how = if o.automated_total == o.reference_total {
+            "the totals are equal".to_string()
+        } else {
+            format!("the totals differ by {:+.1}%", 100.0 * d)
+        };
+        format!("; {how} (APD and AAPD are means over the cells)")
+    });
+    let left_out = match acc.unmatched_reference_rows {
+        0 => String::new(),
+        n => format!(" — INCOMPLETE: {n} reference rows left out (see the warning)"),
+    };
+    format!(
+        "all rows pooled: {}{}{left_out}",
+        measures(o, "line, direction, class and interval cell"),
+        totals.unwrap_or_default()
+    )
 }
 
 /// The warning about reference rows left out for their line or direction, naming them and the
