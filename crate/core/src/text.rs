@@ -98,6 +98,17 @@ fn has_decimal_comma(text: &str) -> bool {
     })
 }
 
+/// The last key (`"name":`) written on line `line` (1-based) before column `column` (1-based, in
+/// bytes, as serde_json counts), if there is one: the field of a value serde_json found wrong.
+pub fn key_before(text: &str, line: usize, column: usize) -> Option<&str> {
+    let row = text.lines().nth(line.checked_sub(1)?)?;
+    let before = row.get(..column.min(row.len()))?;
+    let colon = before.rfind(':')?;
+    let quoted = before[..colon].trim_end().strip_suffix('"')?;
+    let start = quoted.rfind('"')?;
+    Some(&quoted[start + 1..]).filter(|k| !k.is_empty())
+}
+
 /// Splits a CSV line on commas, honouring double quotes around a field.
 pub fn split_fields(line: &str) -> Vec<&str> {
     let mut fields = Vec::new();
@@ -244,7 +255,19 @@ pub fn frame_number(v: f64, line: usize, column: usize) -> Result<u32, Error> {
 
 #[cfg(test)]
 mod tests {
-    use super::trim;
+    use super::{key_before, trim};
+
+    #[test]
+    fn the_key_before_a_value_is_found_on_its_line_or_not_at_all() {
+        let text = "{\n  \"frame_rate\": \"25\",\n  \"start\": \"07:30\", \"anchor\": 7\n}";
+        assert_eq!(key_before(text, 2, 20), Some("frame_rate"));
+        assert_eq!(key_before(text, 3, 30), Some("anchor"));
+        // A colon inside a string is not a key's; a line with none, or out of range, gives none.
+        assert_eq!(key_before(text, 3, 16), None);
+        assert_eq!(key_before(text, 1, 1), None);
+        assert_eq!(key_before(text, 9, 1), None);
+        assert_eq!(key_before(text, 0, 1), None);
+    }
 
     #[test]
     fn trim_is_str_trim() {

@@ -462,3 +462,38 @@ fn a_last_row_without_a_line_break_is_named_as_perhaps_cut_short() {
     assert_eq!(last.line, Some(31));
     assert!(last.message.contains("line break"), "{}", last.message);
 }
+
+/// A JSON element's mistake is placed at its field in that element, pretty-printed or not (a
+/// newcomer's trial: `"image_id": 12.5` was placed at the next element's line, and a box value
+/// written as a string named neither the element nor the field).
+#[test]
+fn a_json_elements_mistake_is_placed_at_its_field() {
+    let element = |id: &str, x: &str| {
+        format!("  {{\n    \"image_id\": {id},\n    \"bbox\": [{x}, 2, 3, 4],\n    \"score\": 0.5\n  }}")
+    };
+    let text = format!(
+        "[\n{},\n{},\n{}\n]\n",
+        element("1", "1"),
+        element("12.5", "1"),
+        element("3", "1")
+    );
+    let e = read_detections(text.as_bytes()).unwrap_err();
+    assert_eq!(e.kind, ErrorKind::BadFrame);
+    // Element 2 starts on line 7; its image_id is on line 8, column 5.
+    assert_eq!((e.line, e.column), (Some(8), Some(5)), "{e}");
+    assert!(e.message.starts_with("element 2: image_id"), "{e}");
+    let text = format!(
+        "[\n{},\n{}\n]\n",
+        element("1", "1"),
+        element("2", "\"54.2\"")
+    );
+    let e = read_detections(text.as_bytes()).unwrap_err();
+    assert_eq!(e.line, Some(9), "{e}");
+    assert_eq!(e.field.as_deref(), Some("bbox"), "{e}");
+    assert!(
+        e.message
+            .starts_with("element 2: invalid type: string \"54.2\""),
+        "{e}"
+    );
+    assert!(!e.message.contains("expected a JSON array"), "{e}");
+}

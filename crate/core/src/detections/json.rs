@@ -27,17 +27,27 @@ struct JsonSink<'a> {
     out: &'a mut Detections,
     classes: HashMap<String, u16>,
     warnings: &'a mut Warnings,
-    /// The kind of a validation error raised inside the visitor, to keep it apart from syntax errors.
-    failure: &'a RefCell<Option<ErrorKind>>,
+    /// A validation error raised inside the visitor (its kind and the element's field it is
+    /// about), to keep it apart from syntax errors; and the number of the element being read.
+    failure: &'a RefCell<Failure>,
 }
 
-/// A problem with one element: its kind and message (the element number included).
-type Problem = (ErrorKind, String);
+/// Where reading the array stopped: the element being read (1-based; 0 before the first), and
+/// for a validation error its kind and the field concerned.
+#[derive(Default)]
+struct Failure {
+    element: usize,
+    problem: Option<(ErrorKind, &'static str)>,
+}
+
+/// A problem with one element: its kind, message (the element number included) and the field
+/// it is about.
+type Problem = (ErrorKind, String, &'static str);
 
 impl JsonSink<'_> {
     fn push<E: de::Error>(&mut self, n: usize, d: JsonDetection) -> Result<(), E> {
-        self.take(n, d).map_err(|(kind, message)| {
-            *self.failure.borrow_mut() = Some(kind);
+        self.take(n, d).map_err(|(kind, message, field)| {
+            self.failure.borrow_mut().problem = Some((kind, field));
             E::custom(message)
         })
     }
@@ -53,6 +63,7 @@ impl JsonSink<'_> {
             return Err((
                 ErrorKind::BadNumber,
                 format!("element {n}: bbox and score must be numbers within ±10^12"),
+                "bbox",
             ));
         }
         let Some(bbox) = self.bbox_of(n, &d.bbox)? else {
@@ -82,6 +93,7 @@ impl JsonSink<'_> {
                     "element {n}: bbox must have 4 numbers [x, y, w, h], found {}",
                     bbox.len()
                 ),
+                "bbox",
             ));
         }
         let b = BBox::new(bbox[0], bbox[1], bbox[2], bbox[3]);
@@ -92,6 +104,7 @@ impl JsonSink<'_> {
                     "element {n}: bbox width and height must not be negative (bbox is [x, y, w, h], \
                      not two corners)"
                 ),
+                "bbox",
             ));
         }
         if b.w < MIN_BOX_SIDE || b.h < MIN_BOX_SIDE {
@@ -113,7 +126,11 @@ impl JsonSink<'_> {
         };
         match self.out.intern_class(&mut self.classes, &name) {
             Some(c) => Ok(Some(c)),
-            None => Err((ErrorKind::TooManyClasses, "more than 65535 classes".into())),
+            None => Err((
+                ErrorKind::TooManyClasses,
+                "more than 65535 classes".into(),
+                "category_id",
+            )),
         }
     }
 
@@ -131,12 +148,14 @@ impl JsonSink<'_> {
                     v.len(),
                     self.out.embedding_dim
                 ),
+                "embedding",
             ));
         }
         if v.iter().any(|x| !crate::limits::in_range(f64::from(*x))) {
             return Err((
                 ErrorKind::NotFinite,
                 format!("element {n}: embedding values must be finite numbers within ±10^12"),
+                "embedding",
             ));
         }
         let index = (self.out.embeddings.len() / v.len()) as u32;
@@ -155,10 +174,12 @@ fn frame_of(n: usize, image_id: &serde_json::Value) -> Result<u32, Problem> {
                 "element {n}: image_id 0, but frames are numbered from 1: if the file counts \
                  from 0, add 1 to every image_id"
             ),
+            "image_id",
         )),
         _ => Err((
             ErrorKind::BadFrame,
             format!("element {n}: image_id must be the frame number, a whole number of 1 or more"),
+            "image_id",
         )),
     }
 }
@@ -178,7 +199,11 @@ impl<'de> Visitor<'de> for JsonSink<'_> {
 
     fn visit_seq<A: SeqAccess<'de>>(mut self, mut seq: A) -> Result<(), A::Error> {
         let mut n = 0;
-        while let Some(d) = seq.next_element::<JsonDetection>()? {
+        loop {
+            self.failure.borrow_mut().element = n + 1;
+            let Some(d) = seq.next_element::<JsonDetection>()? else {
+                break;
+            };
             n += 1;
             self.push(n, d)?;
         }
@@ -230,7 +255,7 @@ pub(super) fn read(text: &str) -> Result<ReadReport, Error> {
     }
     let mut out = Detections::default();
     let mut warnings = Warnings::new();
-    let failure = RefCell::new(None);
+    let failure = RefCell::new(Failure::default());
     let sink = JsonSink {
         out: &mut out,
         classes: HashMap::new(),
@@ -240,14 +265,84 @@ pub(super) fn read(text: &str) -> Result<ReadReport, Error> {
     let mut de = serde_json::Deserializer::from_str(text);
     let result = sink.deserialize(&mut de).and_then(|()| de.end());
     if let Err(e) = result {
-        let kind = failure.borrow().unwrap_or(ErrorKind::BadJson);
-        let hint = if kind == ErrorKind::BadJson {
-            "; expected a JSON array of {\"image_id\": frame, \"category_id\": class, \
-             \"bbox\": [x, y, w, h], \"score\": s}"
-        } else {
-            ""
-        };
-        return Err(Error::from_json(kind, &e, hint));
+        return Err(placed(text, &e, &failure.borrow()));
     }
     finish(out, DetectionFormat::JsonResults, warnings, false)
+}
+
+/// The error where reading stopped. A validation error is placed at its field in the element
+/// (the parser has moved past it by then: its own place is the next element's); a value of the
+/// wrong kind inside an element is named with its element and field; anything else is the
+/// array's shape.
+fn placed(text: &str, e: &serde_json::Error, failure: &Failure) -> Error {
+    let element = failure.element;
+    if let Some((kind, field)) = failure.problem {
+        let err = Error::from_json(kind, e, "");
+        return match field_place(text, element, field) {
+            Some((line, column)) => err.at(line, Some(column)),
+            None => err,
+        };
+    }
+    if e.is_data() && element > 0 {
+        let mut err = Error::from_json(ErrorKind::BadJson, e, "");
+        err.message = format!("element {element}: {}", err.message);
+        return match crate::text::key_before(text, e.line(), e.column()) {
+            Some(key) => err.in_field(key),
+            None => err,
+        };
+    }
+    let hint = "; expected a JSON array of {\"image_id\": frame, \"category_id\": class, \
+                \"bbox\": [x, y, w, h], \"score\": s}";
+    Error::from_json(ErrorKind::BadJson, e, hint)
+}
+
+/// The line and column (1-based) of `"field"` in the `element`th object of the top array (or of
+/// the object's `{` when the field is not written in it), found by a scan that skips strings.
+fn field_place(text: &str, element: usize, field: &str) -> Option<(usize, usize)> {
+    let (mut depth, mut count, mut in_string, mut escaped) = (0usize, 0usize, false, false);
+    let mut start = None;
+    for (at, c) in text.char_indices() {
+        if in_string {
+            (escaped, in_string) = match (escaped, c) {
+                (true, _) => (false, true),
+                (false, '\\') => (true, true),
+                (false, '"') => (false, false),
+                _ => (false, true),
+            };
+            continue;
+        }
+        match c {
+            '"' => in_string = true,
+            '[' | '{' => {
+                depth += 1;
+                if c == '{' && depth == 2 {
+                    count += 1;
+                    if count == element {
+                        start = Some(at);
+                    }
+                }
+            }
+            ']' | '}' => {
+                depth = depth.saturating_sub(1);
+                if let (Some(s), 1) = (start, depth) {
+                    let object = &text[s..=at];
+                    let key = object.find(&format!("\"{field}\"")).unwrap_or(0);
+                    return Some(line_and_column(text, s + key));
+                }
+            }
+            _ => {}
+        }
+    }
+    start.map(|s| line_and_column(text, s))
+}
+
+/// The 1-based line and column (in characters) of byte `at` of `text`.
+fn line_and_column(text: &str, at: usize) -> (usize, usize) {
+    let before = &text[..at];
+    let line = before.matches('\n').count() + 1;
+    let column = before[before.rfind('\n').map_or(0, |n| n + 1)..]
+        .chars()
+        .count()
+        + 1;
+    (line, column)
 }

@@ -189,17 +189,6 @@ pub struct Plan {
     pub calibration: Option<Homography>,
 }
 
-/// The last key (`"name":`) written on line `line` (1-based) before column `column` (1-based, in
-/// bytes, as serde_json counts), if there is one.
-fn key_before(text: &str, line: usize, column: usize) -> Option<&str> {
-    let row = text.lines().nth(line.checked_sub(1)?)?;
-    let before = row.get(..column.min(row.len()))?;
-    let colon = before.rfind(':')?;
-    let quoted = before[..colon].trim_end().strip_suffix('"')?;
-    let start = quoted.rfind('"')?;
-    Some(&quoted[start + 1..]).filter(|k| !k.is_empty())
-}
-
 impl Plan {
     /// Reads and checks a plan from JSON text. Errors name the field (or the line and column of a
     /// syntax error) and say what to fix.
@@ -210,7 +199,7 @@ impl Plan {
             // which field; the key written before it on its line says. (Not for an unknown or
             // missing field: the key before is another field, or the object's own.)
             let wrong_value = e.is_data() && e.to_string().starts_with("invalid ");
-            let key = wrong_value.then(|| key_before(text, e.line(), e.column()));
+            let key = wrong_value.then(|| crate::text::key_before(text, e.line(), e.column()));
             match key.flatten() {
                 Some(k) => err.in_field(k),
                 None => err,
@@ -252,7 +241,7 @@ impl Plan {
 
 #[cfg(test)]
 mod tests {
-    use super::{key_before, Plan};
+    use super::Plan;
 
     #[test]
     fn lines_and_zones_beyond_the_picture_are_named() {
@@ -268,17 +257,5 @@ mod tests {
             vec!["line `below`", "zone `far`"]
         );
         assert!(plan.outside_picture(1024.0, 576.0).is_empty());
-    }
-
-    #[test]
-    fn the_key_before_a_value_is_found_on_its_line_or_not_at_all() {
-        let text = "{\n  \"frame_rate\": \"25\",\n  \"start\": \"07:30\", \"anchor\": 7\n}";
-        assert_eq!(key_before(text, 2, 20), Some("frame_rate"));
-        assert_eq!(key_before(text, 3, 30), Some("anchor"));
-        // A colon inside a string is not a key's; a line with none, or out of range, gives none.
-        assert_eq!(key_before(text, 3, 16), None);
-        assert_eq!(key_before(text, 1, 1), None);
-        assert_eq!(key_before(text, 9, 1), None);
-        assert_eq!(key_before(text, 0, 1), None);
     }
 }
