@@ -9,6 +9,10 @@ use crate::sh::run;
 use crate::site;
 
 pub fn demo(args: &[String]) -> Result<(), String> {
+    eprintln!(
+        "Building the command line (release; the first time on a fresh machine takes a few \
+         minutes, with no output while it compiles)"
+    );
     build_cli()?;
     std::fs::create_dir_all(root().join("out/demo"))
         .map_err(|e| format!("cannot create out/demo: {e}"))?;

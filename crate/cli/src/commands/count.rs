@@ -131,7 +131,7 @@ pub fn summarise(report: &Report, quiet: bool) {
     }
     for l in &report.screenlines {
         eprintln!(
-            "{}: {} {}, {} {} ({} inferred while unseen)",
+            "{}: {} {}, {} {} ({} of them counted while hidden)",
             l.name, l.forward, l.forward_label, l.backward, l.backward_label, l.inferred
         );
     }

@@ -56,8 +56,13 @@ pub fn run(args: Args) -> Result<(), Failure> {
         .map_err(|e| bad_input(&args.plan, e))?;
     let shown = pipeline::correct_tracks(&tracks, &work.edits).0;
     let picture = args.picture.or(recorded);
-    if let Some(size) = picture {
-        warn_misfit(&shown, &plan, size, args.tracking.quiet);
+    match picture {
+        Some(size) => warn_misfit(&shown, &plan, size, args.tracking.quiet),
+        None if !args.tracking.quiet => eprintln!(
+            "note: the picture's size is taken from the boxes' extent; give --picture WxH (the \
+             footage's size), or a project file with --edits, to list what the page lists"
+        ),
+        None => {}
     }
     let queue = review::doubts(&shown, &plan, &report, picture);
     let listed = &queue[..args.first.unwrap_or(queue.len()).min(queue.len())];
