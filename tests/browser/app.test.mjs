@@ -166,13 +166,16 @@ test("files the page cannot use get messages that say what to do, and the plan s
   await page.waitForFunction(() => /not valid JSON/.test(document.getElementById("messages").textContent));
   assert.equal(await page.getByLabel("Name of line 1").inputValue(), "plaza midline", "the plan in use is kept");
 
-  // A plan the core refuses is not taken: the message names the file and the line in it, as the
-  // command line does (a newcomer's trial: a misspelt field was taken, and Run counted nothing).
+  // A plan the page can mend (a line of one point) is taken, with what to mend.
   const wrongField = join(scratch, "plan-field.json");
   writeFileSync(wrongField, '{"frame_rate": 25, "screenlines": [{"name": "a", "points": [[0, 0]]}]}');
   await page.getByLabel("Open plan").setInputFiles(wrongField);
-  await page.waitForFunction(() => /plan-field\.json was not opened/.test(document.getElementById("messages").textContent));
-  assert.match(await messages.innerText(), /screenlines/);
+  await page.waitForFunction(() => /needs a fix/.test(document.getElementById("plan-error").textContent));
+  assert.match(await page.locator("#plan-error").innerText(), /screenlines/);
+  await page.getByRole("button", { name: "Undo" }).first().click();
+  assert.equal(await page.getByLabel("Name of line 1").inputValue(), "plaza midline", "undo brings the plan back");
+  // One only the file can mend is not taken: the message names the file and the line in it, as
+  // the command line does (a newcomer's trial: a misspelt field was taken, and Run counted nothing).
   const misspelt = join(scratch, "plan-misspelt.json");
   writeFileSync(misspelt, '{\n  "frame_rate": 25,\n  "screenlines": [\n    {"name": "a", "points": [[0, 0], [9, 9]], "foward": "in"}\n  ]\n}\n');
   await page.getByLabel("Open plan").setInputFiles(misspelt);

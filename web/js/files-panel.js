@@ -5,6 +5,7 @@
 import { byId } from "./dom.js";
 import { parsePlanText } from "./plan.js";
 import { Cancelled } from "./protocol.js";
+import { withoutDocs } from "./messages.js";
 
 /** @typedef {import("./store.js").PageStore} PageStore */
 /** @typedef {import("./core-client.js").CoreClient} CoreClient */
@@ -126,13 +127,14 @@ export class FilesPanel {
       return;
     }
     try {
-      // The core checks the file as the command line would, so a mistake is named at its line in
-      // the file and the plan in use stays (a plan taken with a misspelt field counted nothing).
+      // The core reads the file's fields as the command line would, so a mistake only the file
+      // can mend is named at its line there and the plan in use stays (a plan taken with a
+      // misspelt field counted nothing); what the page can mend is shown after it is taken.
       await this.client.checkPlan(text);
     } catch (e) {
-      if (e instanceof Cancelled) return;
-      const why = withoutDocs(/** @type {Error} */ (e).message);
-      this.messages.say("plan-file", "error", `${name} was not opened: ${why}. The plan in use is unchanged; fix the file and open it again.`);
+      const why = e instanceof Cancelled ? "the engine was restarted while reading it" : withoutDocs(/** @type {Error} */ (e).message);
+      const what = e instanceof Cancelled ? "open it again" : "fix the file and open it again";
+      this.messages.say("plan-file", "error", `${name} was not opened: ${why}. The plan in use is unchanged; ${what}.`);
       return;
     }
     this.messages.clear("plan-file");
@@ -163,13 +165,4 @@ export class FilesPanel {
  */
 function isProjectText(text) {
   return /"format"\s*:\s*"throughline-project"/.test(text.slice(0, 400));
-}
-
-/**
- * A core message without its pointer to the repository's documentation, which the page (one
- * offline file) does not carry.
- * @param {string} message
- */
-export function withoutDocs(message) {
-  return message.replace(/ \(see docs\/[\w.-]+\)/g, "");
 }

@@ -30,3 +30,12 @@ export class Messages {
     for (const m of this.root.querySelectorAll(".message")) if (m instanceof HTMLElement && m.dataset.key === key) m.remove();
   }
 }
+
+/**
+ * A core message without its pointer to the repository's documentation, which the page (one
+ * offline file) does not carry.
+ * @param {string} message
+ */
+export function withoutDocs(message) {
+  return message.replace(/ \(see docs\/[\w.-]+\)/g, "");
+}

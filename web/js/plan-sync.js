@@ -5,7 +5,7 @@
 
 import { planForCore } from "./plan.js";
 import { Cancelled } from "./protocol.js";
-import { withoutDocs } from "./files-panel.js";
+import { withoutDocs } from "./messages.js";
 
 /** @typedef {import("./store.js").PageStore} PageStore */
 /** @typedef {import("./core-client.js").CoreClient} CoreClient */

@@ -51,7 +51,8 @@ pub struct Error {
     pub kind: ErrorKind,
     /// 1-based line, when the error belongs to one.
     pub line: Option<usize>,
-    /// 1-based column (field number for text formats, character for JSON).
+    /// 1-based column (field number for text formats; for JSON the byte in the line, as
+    /// serde_json counts).
     pub column: Option<usize>,
     /// The field of a plan or settings file it concerns, as a JSON path (`screenlines[0].points`).
     pub field: Option<String>,
@@ -146,7 +147,11 @@ fn nearest_known_field(message: &str) -> Option<&str> {
     let (unknown, expected) = rest.split_once("`, expected ")?;
     let names = expected.split('`').skip(1).step_by(2);
     let lower = unknown.to_lowercase();
+    let length = lower.chars().count();
     names
+        // Names more than two letters longer or shorter are more than two apart: not measured
+        // (a key of any length costs no more than the names' own).
+        .filter(|n| n.chars().count().abs_diff(length) <= 2)
         .map(|n| (n, edit_distance(&lower, &n.to_lowercase())))
         .filter(|&(_, d)| d <= 2 && d < unknown.chars().count())
         .min_by_key(|&(_, d)| d)

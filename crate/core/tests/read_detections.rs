@@ -496,4 +496,40 @@ fn a_json_elements_mistake_is_placed_at_its_field() {
         "{e}"
     );
     assert!(!e.message.contains("expected a JSON array"), "{e}");
+    // A field left out: the element named, placed at its start, no other field blamed.
+    let e =
+        read_detections(b"[{\"image_id\": 1, \"category_id\": 1, \"score\": 0.9}]").unwrap_err();
+    assert_eq!(
+        (e.line, e.column, e.field.as_deref()),
+        (Some(1), Some(2), None),
+        "{e}"
+    );
+    assert!(
+        e.message.starts_with("element 1: missing field `bbox`"),
+        "{e}"
+    );
+    // An element that is not an object: the array's shape said, no type name of ours.
+    let good = "{\"image_id\": 1, \"bbox\": [1, 2, 3, 4], \"score\": 0.5}";
+    for (text, n) in [(format!("[{good}, \"x\"]"), 2), ("[1, 2]".to_string(), 1)] {
+        let e = read_detections(text.as_bytes()).unwrap_err();
+        assert_eq!(e.field, None, "{e}");
+        assert!(
+            e.message.starts_with(&format!("element {n}: invalid type")),
+            "{e}"
+        );
+        assert!(
+            e.message
+                .contains("expected an object; expected a JSON array of"),
+            "{e}"
+        );
+        assert!(!e.message.contains("JsonDetection"), "{e}");
+    }
+    // A score out of range is placed at the score, and a value reading as a key's name is not
+    // taken for the key.
+    let e = read_detections(
+        b"[{\"image_id\": 1, \"category_id\": \"score\", \"bbox\": [1, 2, 3, 4], \"score\": 1e13}]",
+    )
+    .unwrap_err();
+    assert_eq!(e.column, Some(64), "{e}");
+    assert!(e.message.contains("score must be a number"), "{e}");
 }

@@ -177,14 +177,14 @@ fn the_reasons_about_one_crossing_make_one_entry() {
     }
     let q = queue(vec![walk(1, 1, 90, (200.0, 50.0), (0.0, 4.0), 0.9), a]);
     assert_eq!(q.len(), 1, "{q:#?}");
+    // Most weighty first: a second unseen at the line weighs 3, two crossings close together 2.
     assert_eq!(
         q[0].kinds,
-        vec![DoubtKind::CloseTogether, DoubtKind::Hidden]
+        vec![DoubtKind::Hidden, DoubtKind::CloseTogether]
     );
-    // Two crossings close together weigh 2, a second unseen at the line 3.
     assert_eq!((q[0].weight, q[0].why.len()), (5, 2));
     assert!(
-        q[0].why[1].contains("hidden for 10 frames (1.0 s): where track 2 crossed"),
+        q[0].why[0].contains("hidden for 10 frames (1.0 s): where track 2 crossed"),
         "{:?}",
         q[0].why
     );
@@ -215,6 +215,19 @@ fn a_crossing_hidden_longer_is_more_doubtful() {
         hidden[0].why[0].contains("on `deck` while hidden for 15 frames (1.5 s)"),
         "{:?}",
         hidden[0].why
+    );
+    // Crossed on the very step where the track is seen again: as long unseen (a review found it
+    // counted as unseen for no time).
+    let mut back = walk(3, 1, 90, (300.0, 50.0), (0.0, 4.0), 0.9);
+    for b in &mut back.boxes[23..38] {
+        b.observed = false;
+    }
+    let q = queue(vec![back]);
+    assert_eq!(q[0].kinds, vec![DoubtKind::Hidden], "{q:#?}");
+    assert!(
+        q[0].why[0].contains("hidden for 15 frames (1.5 s)"),
+        "{:?}",
+        q[0].why
     );
 }
 
@@ -256,4 +269,24 @@ fn a_track_on_a_line_as_the_footage_starts_and_leaving_it_is_doubted() {
     );
     let q = queue(vec![walk(1, 1, 50, (200.0, 170.0), (0.0, -3.0), 0.9)]);
     assert!(q.is_empty(), "{q:#?}");
+    let q = queue(vec![walk(1, 1, 100, (200.0, 201.0), (0.0, 0.0), 0.9)]);
+    assert!(q.is_empty(), "standing on the line throughout: {q:#?}");
+    // On the nearer of two lines a box height apart (a review found the first listed taken).
+    let plan = Plan::from_json(
+        r#"{"frame_rate": 10, "screenlines": [{"name": "deck", "points": [[0, 200], [400, 200]]},
+            {"name": "rail", "points": [[0, 230], [400, 230]]}], "rules": {"join_seconds": 0}}"#,
+    )
+    .unwrap();
+    let tracks = Tracks {
+        config: TrackerConfig::for_method(Method::Sort),
+        frame_count: 100,
+        tracks: vec![walk(1, 1, 40, (200.0, 231.0), (0.0, 4.0), 0.9)],
+        crowded_frames: Vec::new(),
+    };
+    let report = pipeline::count(&tracks, &plan, None, &Default::default()).unwrap();
+    let q = doubts(&tracks, &plan, &report, Some((400.0, 400.0)));
+    let on_rail = q
+        .iter()
+        .any(|d| d.why[0].contains("is on `rail` as the footage starts"));
+    assert!(on_rail, "{q:#?}");
 }

@@ -49,11 +49,15 @@ fn to_js(value: &impl Serialize) -> Result<JsValue, JsError> {
         .map_err(js_error)
 }
 
-/// Checks a plan file's text as the command line reads it, before the page takes it: an error
-/// names the line and column in that text (the page's own copy of a plan is laid out anew).
+/// Checks a plan file's text before the page takes it: JSON, unknown or misspelt fields and
+/// values of the wrong kind, each named at its line and column in that text (the page's own copy
+/// of a plan is laid out anew). What the page can mend (a name used twice, a line of one point)
+/// is found when the plan is set, as before.
 #[wasm_bindgen(js_name = checkPlan)]
 pub fn check_plan(text: &str) -> Result<(), JsError> {
-    plan::Plan::from_json(text).map(|_| ()).map_err(js_error)
+    plan::Plan::spec_from_json(text)
+        .map(|_| ())
+        .map_err(js_error)
 }
 
 /// The state of one page: detections, plan, tracks.

@@ -136,22 +136,28 @@ fn pooled(acc: &accuracy::Accuracy) -> String {
 /// perfect).
 fn unmatched(acc: &accuracy::Accuracy) -> String {
     let quoted = |l: &str, d: &str| format!("`{l}` / `{d}`");
-    let left: Vec<String> = acc
-        .unmatched_labels
-        .iter()
-        .map(|(l, d, n)| {
-            let rows = if *n == 1 { "row" } else { "rows" };
-            format!("{} ({n} {rows})", quoted(l, d))
-        })
-        .collect();
-    let known: Vec<String> = acc.known_labels.iter().map(|(l, d)| quoted(l, d)).collect();
+    // At most this many of each list are named; the rest are counted.
+    const NAMED: usize = 10;
+    let listed = |names: Vec<String>| {
+        let more = names.len().saturating_sub(NAMED);
+        let mut text = names.into_iter().take(NAMED).collect::<Vec<_>>().join(", ");
+        if more > 0 {
+            text.push_str(&format!(" and {more} more"));
+        }
+        text
+    };
+    let left = acc.unmatched_labels.iter().map(|(l, d, n)| {
+        let rows = if *n == 1 { "row" } else { "rows" };
+        format!("{} ({n} {rows})", quoted(l, d))
+    });
+    let known = acc.known_labels.iter().map(|(l, d)| quoted(l, d));
     format!(
         "{} reference rows name a screenline and direction the report does not have, so they are \
          left out and the comparison is incomplete: {}; the report has {} (check the spelling and \
          capital letters, as in the counts CSV)",
         acc.unmatched_reference_rows,
-        left.join(", "),
-        known.join(", ")
+        listed(left.collect()),
+        listed(known.collect())
     )
 }
 

@@ -116,7 +116,9 @@ pub fn run(args: Args) -> Result<(), Failure> {
     let targets: Vec<PathBuf> = names.iter().map(|n| dir.join(n)).collect();
     let mut outputs: Vec<Option<&Path>> = targets.iter().map(|p| Some(p.as_path())).collect();
     outputs.push(args.render.as_deref());
-    // The scene's own folder is made here; any other folder must be there already.
+    // The scene's own folder is made here, once the other outputs are known to be fine; any
+    // other folder must be there already.
+    check_paths(&[args.plan.as_deref()], &[args.render.as_deref()])?;
     std::fs::create_dir_all(dir).map_err(|e| Failure {
         message: format!("{}: cannot create the folder: {e}", dir.display()),
         code: 1,

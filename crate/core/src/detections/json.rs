@@ -54,16 +54,18 @@ impl JsonSink<'_> {
 
     fn take(&mut self, n: usize, d: JsonDetection) -> Result<(), Problem> {
         let frame = frame_of(n, &d.image_id)?;
-        if !d
-            .bbox
-            .iter()
-            .chain([&d.score])
-            .all(|v| crate::limits::in_range(*v))
-        {
+        if !d.bbox.iter().all(|v| crate::limits::in_range(*v)) {
             return Err((
                 ErrorKind::BadNumber,
-                format!("element {n}: bbox and score must be numbers within ±10^12"),
+                format!("element {n}: bbox values must be numbers within ±10^12"),
                 "bbox",
+            ));
+        }
+        if !crate::limits::in_range(d.score) {
+            return Err((
+                ErrorKind::BadNumber,
+                format!("element {n}: score must be a number within ±10^12"),
+                "score",
             ));
         }
         let Some(bbox) = self.bbox_of(n, &d.bbox)? else {
@@ -276,29 +278,47 @@ pub(super) fn read(text: &str) -> Result<ReadReport, Error> {
 /// array's shape.
 fn placed(text: &str, e: &serde_json::Error, failure: &Failure) -> Error {
     let element = failure.element;
+    let at_field = |err: Error, field: Option<&str>| match field_place(text, element, field) {
+        Some((line, column)) => err.at(line, Some(column)),
+        None => err,
+    };
     if let Some((kind, field)) = failure.problem {
-        let err = Error::from_json(kind, e, "");
-        return match field_place(text, element, field) {
-            Some((line, column)) => err.at(line, Some(column)),
-            None => err,
+        return at_field(Error::from_json(kind, e, ""), Some(field));
+    }
+    let message = e.to_string();
+    if message.contains("JsonDetection") || !e.is_data() || element == 0 {
+        // The array's shape: not an array, an element that is not an object, broken JSON.
+        let mut err = Error::from_json(ErrorKind::BadJson, e, SHAPE);
+        err.message = err.message.replace("struct JsonDetection", "an object");
+        return match message.contains("JsonDetection") && element > 0 {
+            true => Error {
+                message: format!("element {element}: {}", err.message),
+                ..err
+            },
+            false => err,
         };
     }
-    if e.is_data() && element > 0 {
-        let mut err = Error::from_json(ErrorKind::BadJson, e, "");
-        err.message = format!("element {element}: {}", err.message);
-        return match crate::text::key_before(text, e.line(), e.column()) {
-            Some(key) => err.in_field(key),
-            None => err,
-        };
+    let mut err = Error::from_json(ErrorKind::BadJson, e, "");
+    err.message = format!("element {element}: {}", err.message);
+    if message.starts_with("missing field") {
+        // Placed at the element's start: the parser is at its end by then.
+        return at_field(err, None);
     }
-    let hint = "; expected a JSON array of {\"image_id\": frame, \"category_id\": class, \
-                \"bbox\": [x, y, w, h], \"score\": s}";
-    Error::from_json(ErrorKind::BadJson, e, hint)
+    // A value of the wrong kind: the key written before it names it.
+    match crate::text::key_before(text, e.line(), e.column()) {
+        Some(key) if message.starts_with("invalid ") => err.in_field(key),
+        _ => err,
+    }
 }
 
-/// The line and column (1-based) of `"field"` in the `element`th object of the top array (or of
-/// the object's `{` when the field is not written in it), found by a scan that skips strings.
-fn field_place(text: &str, element: usize, field: &str) -> Option<(usize, usize)> {
+/// What the detections JSON looks like, for a mistake in its shape.
+const SHAPE: &str = "; expected a JSON array of {\"image_id\": frame, \"category_id\": class, \
+                     \"bbox\": [x, y, w, h], \"score\": s}";
+
+/// The line and column (1-based) of the key `"field"` in the `element`th object of the top array
+/// (or of the object's `{` when no field is given, or it is not written as a key there), found by
+/// a scan that skips strings.
+fn field_place(text: &str, element: usize, field: Option<&str>) -> Option<(usize, usize)> {
     let (mut depth, mut count, mut in_string, mut escaped) = (0usize, 0usize, false, false);
     let mut start = None;
     for (at, c) in text.char_indices() {
@@ -325,8 +345,7 @@ fn field_place(text: &str, element: usize, field: &str) -> Option<(usize, usize)
             ']' | '}' => {
                 depth = depth.saturating_sub(1);
                 if let (Some(s), 1) = (start, depth) {
-                    let object = &text[s..=at];
-                    let key = object.find(&format!("\"{field}\"")).unwrap_or(0);
+                    let key = field.and_then(|f| key_at(&text[s..=at], f)).unwrap_or(0);
                     return Some(line_and_column(text, s + key));
                 }
             }
@@ -336,13 +355,20 @@ fn field_place(text: &str, element: usize, field: &str) -> Option<(usize, usize)
     start.map(|s| line_and_column(text, s))
 }
 
-/// The 1-based line and column (in characters) of byte `at` of `text`.
+/// Where `"field"` is written as a key in `object` (followed by a colon): a value that happens to
+/// read the same is not taken for it.
+fn key_at(object: &str, field: &str) -> Option<usize> {
+    let quoted = format!("\"{field}\"");
+    object
+        .match_indices(&quoted)
+        .map(|(k, _)| k)
+        .find(|&k| object[k + quoted.len()..].trim_start().starts_with(':'))
+}
+
+/// The 1-based line and column of byte `at` of `text`, the column in bytes as serde_json counts.
 fn line_and_column(text: &str, at: usize) -> (usize, usize) {
     let before = &text[..at];
     let line = before.matches('\n').count() + 1;
-    let column = before[before.rfind('\n').map_or(0, |n| n + 1)..]
-        .chars()
-        .count()
-        + 1;
+    let column = at - before.rfind('\n').map_or(0, |n| n + 1) + 1;
     (line, column)
 }

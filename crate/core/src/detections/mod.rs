@@ -164,7 +164,8 @@ pub struct ReadReport {
     pub skipped_rows: usize,
 }
 
-/// At most this many warnings are kept; the rest are only counted.
+/// At most this many warnings are kept (and the one about the file's end, when given); the rest
+/// are only counted.
 pub const MAX_WARNINGS: usize = 20;
 
 pub(crate) struct Warnings {
@@ -212,8 +213,7 @@ impl Warnings {
                 message: format!(
                     "the file ends without a line break after its last row (\"{shown}{more}\"): \
                      if the file was cut short (copied or saved only in part), that row may be \
-                     incomplete (a class or a number cut off); check it against the source (row \
-                     kept)"
+                     incomplete (a class or a number cut off); check it against the source"
                 ),
             }
         });

@@ -193,7 +193,15 @@ impl Plan {
     /// Reads and checks a plan from JSON text. Errors name the field (or the line and column of a
     /// syntax error) and say what to fix.
     pub fn from_json(text: &str) -> Result<Plan, Error> {
-        let spec: PlanSpec = serde_json::from_str(text).map_err(|e| {
+        Plan::from_spec(Plan::spec_from_json(text)?)
+    }
+
+    /// Reads a plan's fields from JSON text, without the checks of their values: the mistakes
+    /// only the file can mend (JSON, unknown or misspelt fields, values of the wrong kind), each
+    /// at its line and column. The page takes a file that passes this, and shows what the checks
+    /// find for the person to mend there.
+    pub fn spec_from_json(text: &str) -> Result<PlanSpec, Error> {
+        serde_json::from_str(text).map_err(|e| {
             let err = Error::from_json(ErrorKind::Plan, &e, " (see docs/plan-format.md)");
             // A value of the wrong kind (`"frame_rate": "25"`): serde_json says where, not
             // which field; the key written before it on its line says. (Not for an unknown or
@@ -204,8 +212,7 @@ impl Plan {
                 Some(k) => err.in_field(k),
                 None => err,
             }
-        })?;
-        Plan::from_spec(spec)
+        })
     }
 
     /// The JSON Schema of a plan file's fields, generated from [`PlanSpec`] (without the ranges

@@ -23,8 +23,8 @@ use signs::{class_doubt, crossing_doubts, line_end_doubts};
 pub enum DoubtKind {
     /// Counted from a track seen less than a second (or fewer than 8 boxes).
     ShortTrack,
-    /// Counted within moments of where its track begins or ends, away from the picture's edge
-    /// and the footage's: the tracker may have lost someone there, or swapped two people.
+    /// Counted within moments of where its track begins or ends (not where the footage itself
+    /// starts or ends): the tracker may have lost someone there, or swapped two people.
     AtTrackEnd,
     /// Counted after joining tracks the tracker had lost and found.
     JoinedTrack,
@@ -162,24 +162,31 @@ impl Scene {
         if starts {
             frame <= second
         } else {
-            frame + second > self.frame_count
+            frame.saturating_add(second) > self.frame_count
         }
     }
 }
 
 /// One entry per moment: the doubts about one crossing (or one track's end) become one entry with
-/// all their reasons, and the weights added.
+/// all their reasons, most weighty first, and the weights added.
 fn grouped(doubts: Vec<Doubt>) -> Vec<Doubt> {
     let mut out: Vec<Doubt> = Vec::new();
+    // Each entry's reasons with their own weights, to order them once all are in.
+    let mut reasons: Vec<Vec<(u32, DoubtKind, String)>> = Vec::new();
     // Where each key's entry is in `out`: an hour of a busy scene has thousands of moments.
     let mut at: HashMap<String, usize> = HashMap::new();
-    for d in doubts {
+    for mut d in doubts {
+        let these: Vec<_> = d
+            .kinds
+            .drain(..)
+            .zip(d.why.drain(..))
+            .map(|(k, w)| (d.weight, k, w))
+            .collect();
         match at.get(&d.key) {
             Some(&k) => {
                 let o = &mut out[k];
                 o.weight += d.weight;
-                o.kinds.extend(d.kinds);
-                o.why.extend(d.why);
+                reasons[k].extend(these);
                 for t in d.tracks {
                     if !o.tracks.contains(&t) {
                         o.tracks.push(t);
@@ -189,8 +196,13 @@ fn grouped(doubts: Vec<Doubt>) -> Vec<Doubt> {
             None => {
                 at.insert(d.key.clone(), out.len());
                 out.push(d);
+                reasons.push(these);
             }
         }
+    }
+    for (o, mut r) in out.iter_mut().zip(reasons) {
+        r.sort_by_key(|reason| std::cmp::Reverse(reason.0));
+        (o.kinds, o.why) = r.into_iter().map(|(_, k, w)| (k, w)).unzip();
     }
     out
 }

@@ -74,12 +74,14 @@ pub(super) fn crossing_doubts(
 /// the frames between its last box seen before the crossing and its first seen after.
 fn hidden(e: &Event, boxes: &[&crate::track::TrackBox], fps: f64, out: &mut Vec<Doubt>) {
     let seen = boxes.iter().filter(|b| b.observed);
+    // The crossing's frame is the first at or past the line: the step into it may be the one
+    // where the track is seen again.
     let before = seen
         .clone()
-        .filter(|b| b.frame <= e.frame)
+        .filter(|b| b.frame < e.frame)
         .map(|b| b.frame)
         .max();
-    let after = seen.filter(|b| b.frame > e.frame).map(|b| b.frame).min();
+    let after = seen.filter(|b| b.frame >= e.frame).map(|b| b.frame).min();
     let frames = match (before, after) {
         (Some(a), Some(b)) => b - a - 1,
         _ => 0,
@@ -118,8 +120,8 @@ fn hidden(e: &Event, boxes: &[&crate::track::TrackBox], fps: f64, out: &mut Vec<
 /// A crossing within moments of its track's first or last box: the tracker may have picked this
 /// person up again just before the line (someone counted twice), or lost them, or swapped two
 /// people there; or the track begins at the picture's edge on the line, and which side it came
-/// from was not seen (leaving those out pointed at fewer mistakes in the simulated crowds). Ends
-/// where the footage itself starts or ends are left out.
+/// from was not seen (these are kept: the queue pointed at fewer mistakes in the simulated crowds
+/// without them). Ends where the footage itself starts or ends are left out.
 fn at_track_end(
     e: &Event,
     (first, last): (&crate::track::TrackBox, &crate::track::TrackBox),
@@ -231,43 +233,20 @@ pub(super) fn line_end_doubts(
             continue;
         }
         let h = tb.bbox.h.max(1.0);
-        let at = |b: &BBox, l: &crate::plan::Screenline| {
-            let p = anchor(b, plan.spec.anchor);
-            l.segments
-                .iter()
-                .map(|s| s.distance_to(&p))
-                .fold(f64::INFINITY, f64::min)
-        };
-        let near = plan.screenlines.iter().find_map(|l| {
-            let d = at(&tb.bbox, l);
-            (d <= NEAR_LINE_HEIGHTS * h).then_some((l, d / h))
-        });
-        let Some((line, heights)) = near else {
+        // The nearest line, in box heights.
+        let nearest = plan
+            .screenlines
+            .iter()
+            .map(|l| (l, distance(&tb.bbox, l, plan.spec.anchor) / h))
+            .min_by(|a, b| a.1.total_cmp(&b.1));
+        let Some((line, heights)) = nearest.filter(|n| n.1 <= NEAR_LINE_HEIGHTS) else {
             continue;
         };
         let why = if scene.at_footage_edge(tb.frame, starts) {
-            // There because the footage starts or ends: doubted only on the line itself, for a
-            // track that leaves it and has no crossing of it counted (it may have been crossing).
-            let leaves = t
-                .boxes
-                .iter()
-                .any(|b| at(&b.bbox, line) > ON_LINE_HEIGHTS * h);
-            let counted = report
-                .events
-                .iter()
-                .any(|e| e.name == line.name && e.track_ids.contains(&t.id));
-            if heights > ON_LINE_HEIGHTS || !leaves || counted {
-                continue;
+            match on_the_line_as_footage_ends(t, line, (heights, h), starts, (plan, report)) {
+                Some(why) => why,
+                None => continue,
             }
-            let (when, how) = match starts {
-                true => ("starts", "if it had just crossed"),
-                false => ("ends", "if it was crossing"),
-            };
-            format!(
-                "Track {} is on `{}` as the footage {when}: {how}, that crossing is not counted \
-                 (which side it came from or went to was not seen).",
-                t.id, line.name
-            )
         } else {
             let verb = if starts { "appears" } else { "disappears" };
             format!(
@@ -295,6 +274,48 @@ pub(super) fn line_end_doubts(
             weight: 1,
         });
     }
+}
+
+/// How far a box's anchor is from a line, in pixels.
+fn distance(b: &BBox, line: &crate::plan::Screenline, a: Anchor) -> f64 {
+    let p = anchor(b, a);
+    line.segments
+        .iter()
+        .map(|s| s.distance_to(&p))
+        .fold(f64::INFINITY, f64::min)
+}
+
+/// Why a track there as the footage starts (or ends) is doubted: on the line itself (`heights`
+/// from it; `h` its box's height), leaving it, with no crossing of it counted, it may have been
+/// crossing. `None` otherwise: it appears or disappears because the footage starts or ends.
+fn on_the_line_as_footage_ends(
+    t: &Track,
+    line: &crate::plan::Screenline,
+    (heights, h): (f64, f64),
+    starts: bool,
+    (plan, report): (&Plan, &Report),
+) -> Option<String> {
+    let anchor = plan.spec.anchor;
+    let leaves = t
+        .boxes
+        .iter()
+        .any(|b| distance(&b.bbox, line, anchor) > ON_LINE_HEIGHTS * h);
+    let counted = report
+        .events
+        .iter()
+        .any(|e| e.name == line.name && e.track_ids.contains(&t.id));
+    if heights > ON_LINE_HEIGHTS || !leaves || counted {
+        return None;
+    }
+    let (when, how) = match starts {
+        true => ("starts", "if it had just crossed"),
+        false => ("ends", "if it was crossing"),
+    };
+    Some(format!(
+        "Track {} is on `{}` as the footage {when}: {how}, that crossing is not counted (which \
+         side it came from or went to was not seen).",
+        t.id, line.name
+    ))
 }
 
 /// The clock label of a moment, as the report's events write it.
