@@ -10,7 +10,7 @@ use super::core_api::{EventTally, Window};
 use super::counts::{event_tally, zone_event_tally};
 use super::measure::{machine_line, measure};
 use super::read_json;
-use super::scene::{bench_dir, detections_for, simulate_scene, Sim, METHODS};
+use super::scene::{detections_for, hard_cases_footage, simulate_scene, Sim, METHODS};
 use super::table::write_section;
 use crate::builds::build_cli;
 use crate::paths::cli_binary;
@@ -147,24 +147,7 @@ fn footage_line(bin: &str, seeds: &[u64], frames: u32) -> Result<Line, String> {
         (EventTally::default(), EventTally::default(), 0.0);
     for &seed in seeds {
         let folder = format!("events-footage-{seed}");
-        let y4m = bench_dir(&folder)?.join("frames.y4m");
-        let sim = Sim {
-            folder: &folder,
-            seed,
-            frames,
-            density: 30.0,
-            width: 640.0,
-            height: 360.0,
-            miss: None,
-            embedding_dim: 0,
-            render: Some(&y4m),
-            hard_cases: true,
-            zones: false,
-        };
-        let (dir, plan) = simulate_scene(bin, &sim)?;
-        let config = dir.join("detector.json");
-        std::fs::write(&config, r#"{"far_height": 34, "near_height": 91}"#)
-            .map_err(|e| e.to_string())?;
+        let (dir, plan, y4m, config, height) = hard_cases_footage(bin, &folder, seed, frames)?;
         let report = dir.join("report.json");
         let (y, c, r) = (shown(&y4m), shown(&config), shown(&report));
         let m = measure(
@@ -189,7 +172,7 @@ fn footage_line(bin: &str, seeds: &[u64], frames: u32) -> Result<Line, String> {
             read_json(&dir.join("truth_report.json"))?,
             read_json(&report)?,
         );
-        tally += event_tally(&truth, &counted, same_event(sim.height));
+        tally += event_tally(&truth, &counted, same_event(height));
         same_second += event_tally(&truth, &counted, SAME_SECOND);
     }
     Ok(Line {

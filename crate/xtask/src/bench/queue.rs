@@ -11,7 +11,7 @@ use super::core_api::{match_crossings, Window};
 use super::counts::events_of;
 use super::measure::machine_line;
 use super::read_json;
-use super::scene::{bench_dir, detections_for, simulate_scene, Sim};
+use super::scene::{detections_for, hard_cases_footage, simulate_scene, Sim};
 use super::table::write_section;
 use crate::builds::build_cli;
 use crate::paths::cli_binary;
@@ -124,24 +124,7 @@ fn crowd_scene(bin: &str, seed: u64, frames: u32, tally: &mut Tally) -> Result<(
 /// The hard cases rendered and searched by the motion detector, tracked with the default method.
 fn footage_scene(bin: &str, seed: u64, frames: u32, tally: &mut Tally) -> Result<(), String> {
     let folder = format!("queue-footage-{seed}");
-    let y4m = bench_dir(&folder)?.join("frames.y4m");
-    let sim = Sim {
-        folder: &folder,
-        seed,
-        frames,
-        density: 30.0,
-        width: 640.0,
-        height: 360.0,
-        miss: None,
-        embedding_dim: 0,
-        render: Some(&y4m),
-        hard_cases: true,
-        zones: false,
-    };
-    let (dir, plan) = simulate_scene(bin, &sim)?;
-    let config = dir.join("detector.json");
-    std::fs::write(&config, r#"{"far_height": 34, "near_height": 91}"#)
-        .map_err(|e| e.to_string())?;
+    let (dir, plan, y4m, config, height) = hard_cases_footage(bin, &folder, seed, frames)?;
     let found = shown(&dir.join("found.csv"));
     let searched = run(
         bin,
@@ -159,7 +142,7 @@ fn footage_scene(bin: &str, seed: u64, frames: u32, tally: &mut Tally) -> Result
     // The frames are large: keep only the results, even after a failure.
     std::fs::remove_file(&y4m).ok();
     searched?;
-    queue_of(bin, (&dir, &plan, &found), &[], sim.height, tally)
+    queue_of(bin, (&dir, &plan, &found), &[], height, tally)
 }
 
 /// Counts, reviews and tracks one scene's detections and adds its figures to `tally`.

@@ -49,6 +49,36 @@ impl<'a> Sim<'a> {
     }
 }
 
+/// The footage scene of the events and queue tables, simulated: the hard cases at 30 in view,
+/// 640 × 360, rendered to `frames.y4m` in its folder, with the motion detector's settings (the
+/// two heights 34 and 91) in `detector.json` beside it. (folder, plan, frames, settings, height)
+pub fn hard_cases_footage(
+    bin: &str,
+    folder: &str,
+    seed: u64,
+    frames: u32,
+) -> Result<(PathBuf, String, PathBuf, PathBuf, f64), String> {
+    let y4m = bench_dir(folder)?.join("frames.y4m");
+    let sim = Sim {
+        folder,
+        seed,
+        frames,
+        density: 30.0,
+        width: 640.0,
+        height: 360.0,
+        miss: None,
+        embedding_dim: 0,
+        render: Some(&y4m),
+        hard_cases: true,
+        zones: false,
+    };
+    let (height, (dir, plan)) = (sim.height, simulate_scene(bin, &sim)?);
+    let config = dir.join("detector.json");
+    std::fs::write(&config, r#"{"far_height": 34, "near_height": 91}"#)
+        .map_err(|e| e.to_string())?;
+    Ok((dir, plan, y4m, config, height))
+}
+
 /// The folder of a scene (or of anything else a benchmark keeps) under target/bench.
 pub fn bench_dir(folder: &str) -> Result<PathBuf, String> {
     Ok(target("bench")?.join(folder))
