@@ -216,19 +216,7 @@ fn crowd_lines(bin: &str, seeds: &[u64], frames: u32) -> Result<Vec<Line>, Strin
     let mut tallies = [CrowdTallies::default(); CROWD_TRACKERS.len()];
     for &seed in seeds {
         let folder = format!("events-crowd-{seed}");
-        let sim = Sim {
-            folder: &folder,
-            seed,
-            frames,
-            density: 90.0,
-            width: 1280.0,
-            height: 720.0,
-            miss: Some(0.15),
-            embedding_dim: 16,
-            render: None,
-            hard_cases: false,
-            zones: true,
-        };
+        let sim = Sim::crowd(&folder, seed, frames, true);
         let (dir, plan) = simulate_scene(bin, &sim)?;
         let truth = read_json(&dir.join("truth_report.json"))?;
         for (k, (tally, (_, method, settings))) in

@@ -102,19 +102,7 @@ fn row(input: &str, t: &Tally) -> String {
 /// The crowd of brought detections, tracked with `deepsort`.
 fn crowd_scene(bin: &str, seed: u64, frames: u32, tally: &mut Tally) -> Result<(), String> {
     let folder = format!("queue-crowd-{seed}");
-    let sim = Sim {
-        folder: &folder,
-        seed,
-        frames,
-        density: 90.0,
-        width: 1280.0,
-        height: 720.0,
-        miss: Some(0.15),
-        embedding_dim: 16,
-        render: None,
-        hard_cases: false,
-        zones: false,
-    };
+    let sim = Sim::crowd(&folder, seed, frames, false);
     let (dir, plan) = simulate_scene(bin, &sim)?;
     let detections = detections_for(&dir, "deepsort");
     let args = ["--method", "deepsort"];

@@ -47,6 +47,24 @@ impl<'a> Sim<'a> {
             zones: false,
         }
     }
+
+    /// The crowd of brought detections of the events and queue tables: 90 in view at 1280 × 720,
+    /// 15% of boxes missed, appearance vectors of 16 values; `zones`: two zones in the plan too.
+    pub fn crowd(folder: &'a str, seed: u64, frames: u32, zones: bool) -> Self {
+        Self {
+            folder,
+            seed,
+            frames,
+            density: 90.0,
+            width: 1280.0,
+            height: 720.0,
+            miss: Some(0.15),
+            embedding_dim: 16,
+            render: None,
+            hard_cases: false,
+            zones,
+        }
+    }
 }
 
 /// The footage scene of the events and queue tables, simulated: the hard cases at 30 in view,
