@@ -137,7 +137,7 @@ function bridgedLine(bridged, before) {
 /** @param {Report} report */
 function totals(report) {
   const rows = report.screenlines.map((l) => [l.name, `${l.forward_label}: ${l.forward}`, `${l.backward_label}: ${l.backward}`, l.forward + l.backward, l.inferred]);
-  const headers = ["Line", "Forward", "Backward", "Both", "Counted while hidden"];
+  const headers = ["Line", "Forward", "Backward", "Total", "Counted while hidden"];
   // Corrected counts say so: crossings added by hand are in the totals, rejected ones are not.
   if (report.screenlines.some((l) => l.added || l.rejected)) {
     headers.push("Added by hand", "Rejected");
