@@ -532,4 +532,12 @@ fn a_json_elements_mistake_is_placed_at_its_field() {
     .unwrap_err();
     assert_eq!(e.column, Some(64), "{e}");
     assert!(e.message.contains("score must be a number"), "{e}");
+    // Scores given as percentages are read with one warning, as in the text formats.
+    let r = read_detections(b"[{\"image_id\": 1, \"bbox\": [1, 2, 3, 4], \"score\": 85}]").unwrap();
+    assert_eq!(r.warnings.len(), 1);
+    let w = &r.warnings[0].message;
+    assert!(
+        w.starts_with("element 1: score 85 is outside 0..1 (a percentage?)"),
+        "{w}"
+    );
 }

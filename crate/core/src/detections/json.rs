@@ -71,6 +71,7 @@ impl JsonSink<'_> {
         let Some(bbox) = self.bbox_of(n, &d.bbox)? else {
             return Ok(());
         };
+        self.warnings.note_score(d.score, None, n);
         let class = self.class_of(d.category_id.as_ref())?;
         let embedding = match d.embedding {
             None => None,

@@ -245,15 +245,21 @@ impl Warnings {
         }
     }
 
-    /// Warns about the first score outside 0..1.
-    pub(crate) fn note_score(&mut self, score: f64, line: usize) {
+    /// Warns about the first score outside 0..1, on `line` (text) or in element `element` (JSON,
+    /// `line` None).
+    pub(crate) fn note_score(&mut self, score: f64, line: Option<usize>, element: usize) {
         if !(0.0..=1.0).contains(&score) && self.score_at.is_none() {
             self.score_at = Some(self.kept.len());
+            let (place, what) = match line {
+                Some(_) => (String::new(), "row"),
+                None => (format!("element {element}: "), "element"),
+            };
             // Not a skipped row: counted as a warning but the row is kept.
             self.kept.push(Warning {
-                line: Some(line),
+                line,
                 message: format!(
-                    "score {score} is outside 0..1; score thresholds assume 0..1 (first such row; rows kept)"
+                    "{place}score {score} is outside 0..1 (a percentage?); score thresholds assume \
+                     0..1 (first such {what}; all kept)"
                 ),
             });
         }

@@ -79,7 +79,7 @@ impl Reading {
 
     /// Warns once about a score outside 0..1 (the row is kept).
     pub fn note_score(&mut self, score: f64) {
-        self.warnings.note_score(score, self.line);
+        self.warnings.note_score(score, Some(self.line), 0);
     }
 
     /// Notes whether the text just read ends inside a row (see [`Warnings::note_end`]).
