@@ -469,6 +469,11 @@ fn score_counts_compares_a_report_with_a_manual_count() {
     let o = throughline(&["score-counts", "--truth", &other, &report]);
     assert_eq!(o.status.code(), Some(1));
     assert!(stderr(&o).contains("direction labels"), "{}", stderr(&o));
+    assert!(
+        stderr(&o).contains("the reference has `nowhere` / `in` (1 row); the report has `"),
+        "{}",
+        stderr(&o)
+    );
     // A label misspelt in some rows of a manual count: those rows are named and the pooled line
     // says the comparison is incomplete (a newcomer's trial: `south` for `southbound` left a
     // real miss out of a score that read as perfect).

@@ -56,10 +56,14 @@ pub fn run(args: Args) -> Result<(), Failure> {
     };
     let acc = accuracy::compare(&automated, &reference);
     if acc.groups.is_empty() {
+        let (left, known) = labels(&acc);
         return Err(bad_input(
             truth,
-            "no reference row names a screenline and direction of the report: check the names and the \
-             direction labels (they must be the plan's labels, as in the counts CSV)",
+            format!(
+                "no reference row names a screenline and direction of the report: check the names \
+                 and the direction labels (they must be the plan's labels, as in the counts CSV); \
+                 the reference has {left}; the report has {known}"
+            ),
         ));
     }
     if args.json {
@@ -135,6 +139,18 @@ fn pooled(acc: &accuracy::Accuracy) -> String {
 /// report's own (a typo in a label, or a capital letter, left rows out of a score that looked
 /// perfect).
 fn unmatched(acc: &accuracy::Accuracy) -> String {
+    let (left, known) = labels(acc);
+    format!(
+        "{} reference rows name a screenline and direction the report does not have, so they are \
+         left out and the comparison is incomplete: {left}; the report has {known} (check the \
+         spelling and capital letters, as in the counts CSV)",
+        acc.unmatched_reference_rows,
+    )
+}
+
+/// The reference's lines and directions the report lacks (with their rows), and the report's
+/// own, each a list of at most ten named.
+fn labels(acc: &accuracy::Accuracy) -> (String, String) {
     let quoted = |l: &str, d: &str| format!("`{l}` / `{d}`");
     // At most this many of each list are named; the rest are counted.
     const NAMED: usize = 10;
@@ -151,14 +167,7 @@ fn unmatched(acc: &accuracy::Accuracy) -> String {
         format!("{} ({n} {rows})", quoted(l, d))
     });
     let known = acc.known_labels.iter().map(|(l, d)| quoted(l, d));
-    format!(
-        "{} reference rows name a screenline and direction the report does not have, so they are \
-         left out and the comparison is incomplete: {}; the report has {} (check the spelling and \
-         capital letters, as in the counts CSV)",
-        acc.unmatched_reference_rows,
-        listed(left.collect()),
-        listed(known.collect())
-    )
+    (listed(left.collect()), listed(known.collect()))
 }
 
 /// One row of the table: intervals, totals, APD, AAPD, WAPD and the correction factor.
