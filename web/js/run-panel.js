@@ -127,6 +127,10 @@ export class RunPanel {
       });
       this.store.tracksReady(new TrackView(out.boxes, out.trackList), out.bridged);
       this.shown = run;
+      // Counted before Run says it is done: "tracks in" is then the end of the whole run, and
+      // Run and Find come back in the same step (a check of the plan against the picture made
+      // the count's round trip longer, and a test saw "done" with Find still disabled).
+      await this.planSync.send();
       const seconds = ((performance.now() - started) / 1000).toFixed(1);
       const n = out.bridged && "joined" in out.bridged ? out.bridged.joined : null;
       const joined = n === null ? "" : `, ${n} ${n === 1 ? "gap" : "gaps"} bridged with the footage`;
@@ -135,7 +139,6 @@ export class RunPanel {
       if (!hasCountingGeometry(this.store.plan)) {
         this.messages.say("run", "warn", "The plan has no lines or zones, so nothing was counted. Press Draw line and click two points across the path, or open a plan file; the counts appear at once.");
       }
-      await this.planSync.send();
       // From setting up, on to the counts; a person already reviewing stays where they are.
       if (this.store.view === "setup" && this.store.results) this.store.viewChosen("results");
     } catch (e) {
