@@ -204,3 +204,17 @@ fn plan_examples_validate_and_what_the_schema_forbids_is_refused() {
         assert!(Plan::from_json(text).is_err(), "the checks accept {text}");
     }
 }
+
+/// A plan's misspelt field is named with the nearest field of the plan's layout (a newcomer's
+/// trial); nothing near, no guess.
+#[test]
+fn a_misspelt_plan_field_is_named_with_the_nearest_known_one() {
+    let plan = r#"{"frame_rate": 25, "screenlines": [{"name": "a", "points": [[0, 0], [9, 9]], "foward": "in"}]}"#;
+    let e = Plan::from_json(plan).unwrap_err().to_string();
+    assert!(e.contains("unknown field `foward`"), "{e}");
+    assert!(e.contains("(did you mean `forward`?)"), "{e}");
+    let e = Plan::from_json(r#"{"frame_rate": 25, "colour": 1}"#)
+        .unwrap_err()
+        .to_string();
+    assert!(!e.contains("did you mean"), "{e}");
+}
