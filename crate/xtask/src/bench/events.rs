@@ -24,7 +24,7 @@ const AIM_EXTRA: f64 = 2.0;
 /// simulator's 25 fps) and about a person's height at the front of the picture apart where the
 /// anchor met the line (100 pixels at 640x360, as in the other tables; 200 at 1280x720), so a
 /// crossing elsewhere on the line in the same second does not hide a miss.
-fn same_event(height: f64) -> Window {
+pub(super) fn same_event(height: f64) -> Window {
     Window {
         frames: 25.0,
         pixels: Some(100.0 * height / 360.0),
@@ -262,6 +262,6 @@ fn crowd_lines(bin: &str, seeds: &[u64], frames: u32) -> Result<Vec<Line>, Strin
     Ok(crossings.chain(zones).collect())
 }
 
-fn shown(path: &Path) -> String {
+pub(super) fn shown(path: &Path) -> String {
     path.display().to_string()
 }

@@ -9,6 +9,7 @@ use std::path::Path;
 
 use super::core_api::{match_crossings, Window};
 use super::counts::events_of;
+use super::events::{same_event, shown};
 use super::measure::machine_line;
 use super::read_json;
 use super::scene::{detections_for, hard_cases_footage, simulate_scene, Sim};
@@ -163,15 +164,8 @@ fn queue_of(
         read_json(Path::new(&report))?,
     );
     let tracks = read_json(Path::new(&tracks))?;
-    let window = Window {
-        frames: 25.0,
-        pixels: Some(100.0 * height / 360.0),
-    };
-    let labels = Labels::new(&truth, &counted, window);
-    let pointed: Vec<Vec<usize>> = doubts
-        .iter()
-        .map(|d| labels.pointed(d, &counted, &tracks))
-        .collect();
+    let labels = Labels::new(&truth, &counted, &tracks, same_event(height));
+    let pointed: Vec<Vec<usize>> = doubts.iter().map(|d| labels.pointed(d)).collect();
     add(
         tally,
         &pointed,
@@ -220,16 +214,27 @@ fn found_in(pointed: &[Vec<usize>], order: &[usize], n: usize) -> usize {
         .len()
 }
 
-/// A scene's wrong and missed crossings: the extra ones by their event (line, track, frame), the
-/// missed ones by line, frame and place.
-struct Labels {
-    extra: HashMap<(String, u64, u64), usize>,
+/// A crossing as a review moment names it: line, track, frame.
+type EventKey = (String, u64, u64);
+
+/// A scene's wrong and missed crossings: the extra ones by their event, the missed ones by line,
+/// frame and place; and where each counted crossing met its line and each track's boxes were, to
+/// place the moments.
+struct Labels<'a> {
+    extra: HashMap<EventKey, usize>,
     missed: Vec<(String, f64, f64, f64)>,
     window: Window,
+    places: HashMap<EventKey, (f64, f64)>,
+    tracks: HashMap<u64, &'a serde_json::Value>,
 }
 
-impl Labels {
-    fn new(truth: &serde_json::Value, counted: &serde_json::Value, window: Window) -> Self {
+impl<'a> Labels<'a> {
+    fn new(
+        truth: &serde_json::Value,
+        counted: &serde_json::Value,
+        tracks: &'a serde_json::Value,
+        window: Window,
+    ) -> Self {
         let (t, c) = (
             events_of(truth, "screenline"),
             events_of(counted, "screenline"),
@@ -252,10 +257,23 @@ impl Labels {
             .filter(|i| !true_matched.contains(i))
             .map(|i| (t[i].line.clone(), t[i].frame, t[i].x, t[i].y))
             .collect();
+        let places = events
+            .iter()
+            .zip(&c)
+            .map(|(e, c)| (event_key(e), (c.x, c.y)))
+            .collect();
+        let tracks = tracks["tracks"]
+            .as_array()
+            .into_iter()
+            .flatten()
+            .filter_map(|t| Some((t["id"].as_u64()?, t)))
+            .collect();
         Self {
             extra,
             missed,
             window,
+            places,
+            tracks,
         }
     }
 
@@ -264,12 +282,7 @@ impl Labels {
     }
 
     /// The errors a moment points at (extra ones numbered first, then the missed ones).
-    fn pointed(
-        &self,
-        d: &serde_json::Value,
-        counted: &serde_json::Value,
-        tracks: &serde_json::Value,
-    ) -> Vec<usize> {
+    fn pointed(&self, d: &serde_json::Value) -> Vec<usize> {
         let mut out = Vec::new();
         let frame = d["frame"].as_f64().unwrap_or(0.0);
         let crossing = &d["crossing"];
@@ -283,10 +296,11 @@ impl Labels {
                 crossing["frame"].as_u64().unwrap_or(0),
             );
             out.extend(self.extra.get(&key).copied());
-            (Some(key.0.clone()), event_place(counted, &key))
+            (Some(key.0.clone()), self.places.get(&key).copied())
         } else {
             let track = d["tracks"][0].as_u64().unwrap_or(0);
-            (None, box_place(tracks, track, frame))
+            let boxes = self.tracks.get(&track).map(|t| &t["boxes"]);
+            (None, boxes.and_then(|b| box_place(b, frame)))
         };
         let Some((x, y)) = place else {
             return out;
@@ -305,7 +319,7 @@ impl Labels {
     }
 }
 
-fn event_key(e: &serde_json::Value) -> (String, u64, u64) {
+fn event_key(e: &serde_json::Value) -> EventKey {
     (
         e["name"].as_str().unwrap_or_default().to_string(),
         e["track"].as_u64().unwrap_or(0),
@@ -313,22 +327,9 @@ fn event_key(e: &serde_json::Value) -> (String, u64, u64) {
     )
 }
 
-/// Where a counted crossing met its line.
-fn event_place(counted: &serde_json::Value, key: &(String, u64, u64)) -> Option<(f64, f64)> {
-    let e = counted["events"]
-        .as_array()?
-        .iter()
-        .find(|e| e["kind"] == "screenline" && event_key(e) == *key)?;
-    Some((e["x"].as_f64()?, e["y"].as_f64()?))
-}
-
 /// The bottom centre of a track's box in a frame (tracks JSON: boxes as [frame, x, y, w, h, ...]).
-fn box_place(tracks: &serde_json::Value, id: u64, frame: f64) -> Option<(f64, f64)> {
-    let t = tracks["tracks"]
-        .as_array()?
-        .iter()
-        .find(|t| t["id"].as_u64() == Some(id))?;
-    let b = t["boxes"]
+fn box_place(boxes: &serde_json::Value, frame: f64) -> Option<(f64, f64)> {
+    let b = boxes
         .as_array()?
         .iter()
         .find(|b| b[0].as_f64() == Some(frame))?;
@@ -340,8 +341,4 @@ fn box_place(tracks: &serde_json::Value, id: u64, frame: f64) -> Option<(f64, f6
 
 fn refs(v: &[String]) -> Vec<&str> {
     v.iter().map(String::as_str).collect()
-}
-
-fn shown(path: &Path) -> String {
-    path.display().to_string()
 }
