@@ -117,10 +117,7 @@ fn warn_misfit(
     if quiet {
         return;
     }
-    let boxes = tracks.tracks.iter().flat_map(|t| &t.boxes);
-    let (right, bottom) = boxes.fold((0.0_f64, 0.0_f64), |(r, b), tb| {
-        (r.max(tb.bbox.x + tb.bbox.w), b.max(tb.bbox.y + tb.bbox.h))
-    });
+    let (right, bottom) = review::extent_of(tracks);
     if right > 1.25 * w || bottom > 1.25 * h {
         eprintln!(
             "warning: boxes reach {right:.0} × {bottom:.0} pixels, well past the picture's {w} × \

@@ -245,8 +245,9 @@ fn boxes_of<'a>(
         .flat_map(|t| &t.boxes)
 }
 
-/// The picture's size as far as the boxes reach.
-fn extent_of(tracks: &Tracks) -> (f64, f64) {
+/// The picture's size as far as the boxes reach: the queue's picture when none is given, and
+/// what a given size is checked against.
+pub fn extent_of(tracks: &Tracks) -> (f64, f64) {
     tracks
         .tracks
         .iter()
