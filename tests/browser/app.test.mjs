@@ -160,6 +160,19 @@ test("files the page cannot use get messages that say what to do, and the plan s
   await page.waitForFunction(() => /could not be read/.test(document.getElementById("messages").textContent));
   assert.match(await messages.innerText(), /line 1, column 5/);
 
+  // Rows passed over and a last row perhaps cut short: the warning about the cut comes first, so
+  // that it shows among the few the page lists, and the rest are said to be there.
+  const cut = join(scratch, "cut.txt");
+  const zeroWidth = Array.from({ length: 8 }, (_, k) => `${k + 1},-1,10,20,0,40,0.9`);
+  writeFileSync(cut, [...zeroWidth, "9,-1,10,20,30,40,0.9", "10,-1,10,20,30,40,0.9"].join("\n"));
+  await page.getByLabel("Open detections").setInputFiles(cut);
+  await page.waitForFunction(() => /rows skipped/.test(document.getElementById("messages").textContent));
+  const cutSaid = (await messages.innerText()).split("\n").filter((l) => l.trim());
+  const head = cutSaid.findIndex((l) => /cut\.txt: 8 rows skipped\./.test(l));
+  assert.ok(head >= 0, cutSaid.join("\n"));
+  assert.match(cutSaid[head + 1], /line 10: the file ends without a line break after its last row \("10,-1,10,20,30,40,0\.9"\)/);
+  assert.match(cutSaid[head + 6], /… and 4 more\./);
+
   const notJson = join(scratch, "plan-typo.json");
   writeFileSync(notJson, '{"frame_rate": 25,, }');
   await page.getByLabel("Open plan").setInputFiles(notJson);

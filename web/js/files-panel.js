@@ -99,7 +99,7 @@ export class FilesPanel {
       const summary = await this.client.loadDetections(bytes);
       this.store.detectionsLoaded(summary, source, `${name}: ${summary.rows} boxes, ${summary.frames} frames`, name);
       if (summary.warnings.length || summary.skipped_rows) {
-        this.messages.say("detections", "warn", `${name}: ${summary.skipped_rows} rows skipped.\n${summary.warnings.slice(0, 5).join("\n")}`);
+        this.messages.say("detections", "warn", readingWarnings(name, summary.skipped_rows, summary.warnings));
       }
       if (!this.store.video.playable) this.store.pictureSized(Math.ceil(summary.max_x) || 640, Math.ceil(summary.max_y) || 360);
       this.checkFit();
@@ -165,4 +165,19 @@ export class FilesPanel {
  */
 function isProjectText(text) {
   return /"format"\s*:\s*"throughline-project"/.test(text.slice(0, 400));
+}
+
+/**
+ * What the page says of a file read with warnings: how many rows were skipped (when any), then
+ * the core's first warnings (the one about a last row perhaps cut short comes first), and how
+ * many more there are.
+ * @param {string} name
+ * @param {number} skipped
+ * @param {string[]} warnings
+ */
+export function readingWarnings(name, skipped, warnings) {
+  const shown = warnings.slice(0, 5);
+  const more = warnings.length - shown.length;
+  const head = skipped ? `${name}: ${skipped} ${skipped === 1 ? "row" : "rows"} skipped.` : `${name}: read with ${warnings.length === 1 ? "a warning" : "warnings"}.`;
+  return [head, ...shown, ...(more > 0 ? [`… and ${more} more.`] : [])].join("\n");
 }

@@ -296,7 +296,13 @@ fn warnings_are_counted_even_past_the_kept_ones() {
     }
     let r = read_detections(text.as_bytes()).unwrap();
     assert_eq!(r.skipped_rows, 50);
-    assert_eq!(r.warnings.len(), throughline_core::detections::MAX_WARNINGS);
+    // The first MAX_WARNINGS rows passed over, then one saying how many there were in all.
+    let max = throughline_core::detections::MAX_WARNINGS;
+    assert_eq!(r.warnings.len(), max + 1);
+    assert_eq!(
+        r.warnings[max].message,
+        format!("50 rows passed over in all (the first {max} listed)")
+    );
     assert_eq!(r.detections.rows.len(), 50);
 }
 
@@ -433,8 +439,9 @@ fn benchmark_rows_with_object_ids_are_read_with_one_warning() {
 
 /// A file cut short while being copied can end inside a field and still read (a newcomer's
 /// trial: a CSV cut in its last class read as class `pedestria`, without a word): a last row with
-/// no line break after it is kept and named in a warning, after any others, and not counted as
-/// passed over. A file that ends with a line break, or with a comment, gets no such warning.
+/// no line break after it is kept and named in a warning, before any others (a list cut short for
+/// room keeps it), and not counted as passed over. A file that ends with a line break, or with a
+/// comment, gets no such warning. Rows passed over beyond those listed are said in a last warning.
 #[test]
 fn a_last_row_without_a_line_break_is_named_as_perhaps_cut_short() {
     let cut = b"frame,x,y,w,h,score,class\n1,1,1,5,5,0.9,pedestrian\n2,1,1,5,5,0.9,pedestria";
@@ -450,7 +457,7 @@ fn a_last_row_without_a_line_break_is_named_as_perhaps_cut_short() {
     assert!(whole.warnings.is_empty());
     let comment = read_detections(b"1,-1,1,1,5,5,0.9\n# the end").unwrap();
     assert!(comment.warnings.is_empty());
-    // Past the kept warnings, it is still given, last.
+    // Past the kept warnings, it is still given, first; the last says how many were passed over.
     let mut many = String::new();
     for f in 1..=30 {
         many.push_str(&format!("{f},-1,1,1,0,5,0.9\n"));
@@ -458,9 +465,19 @@ fn a_last_row_without_a_line_break_is_named_as_perhaps_cut_short() {
     many.push_str("31,-1,1,1,5,5,0.9");
     let r = read_detections(many.as_bytes()).unwrap();
     assert_eq!(r.skipped_rows, 30);
+    let first = &r.warnings[0];
+    assert_eq!(first.line, Some(31));
+    assert!(first.message.contains("line break"), "{}", first.message);
     let last = r.warnings.last().unwrap();
-    assert_eq!(last.line, Some(31));
-    assert!(last.message.contains("line break"), "{}", last.message);
+    assert_eq!(last.line, None);
+    assert_eq!(
+        last.message,
+        "30 rows passed over in all (the first 20 listed)"
+    );
+    assert_eq!(r.warnings.len(), 22);
+    // All listed: no such last warning (21 rows passed over, 20 listed, would need one).
+    let few = read_detections(b"1,-1,1,1,0,5,0.9\n2,-1,1,1,5,5,0.9\n").unwrap();
+    assert_eq!(few.warnings.len(), 1, "{:?}", few.warnings);
 }
 
 /// A JSON element's mistake is placed at its field in that element, pretty-printed or not (a
@@ -540,4 +557,8 @@ fn a_json_elements_mistake_is_placed_at_its_field() {
         w.starts_with("element 1: score 85 is outside 0..1 (a percentage?)"),
         "{w}"
     );
+    // A score below 0 is warned of too, but not asked about as a percentage.
+    let r = read_detections(b"1,-1,1,1,5,5,-3\n").unwrap();
+    let w = &r.warnings[0].message;
+    assert!(w.starts_with("score -3 is outside 0..1; "), "{w}");
 }

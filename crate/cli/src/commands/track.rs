@@ -127,7 +127,7 @@ fn report_streamed(path: &Path, out: &Path, how: &TrackingArgs, done: &streaming
     if how.quiet {
         return;
     }
-    print_warning_list(path, &done.read.warnings, done.read.skipped_rows);
+    print_warning_list(path, &done.read.warnings);
     print_crowded(path, &done.end.crowded_frames);
     eprintln!(
         "{}: {} detections ({}) over {} frames",
@@ -266,21 +266,17 @@ pub fn track_file_with(
 }
 
 fn print_warnings(path: &Path, report: &detections::ReadReport) {
-    print_warning_list(path, &report.warnings, report.skipped_rows);
+    print_warning_list(path, &report.warnings);
 }
 
-fn print_warning_list(path: &Path, warnings: &[detections::Warning], skipped_rows: usize) {
+/// The reader's warnings (the last says how many rows were passed over in all, when not all are
+/// listed).
+fn print_warning_list(path: &Path, warnings: &[detections::Warning]) {
     for w in warnings {
         match w.line {
             Some(l) => eprintln!("warning: {}: line {l}: {}", path.display(), w.message),
             None => eprintln!("warning: {}: {}", path.display(), w.message),
         }
-    }
-    if skipped_rows > warnings.len() {
-        eprintln!(
-            "warning: {skipped_rows} rows passed over in all ({} listed above)",
-            warnings.len()
-        );
     }
 }
 

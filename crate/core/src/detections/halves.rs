@@ -206,7 +206,10 @@ fn merge_warnings(first: &mut Warnings, second: Warnings) {
                 first.kept.push(w);
             }
             Some(_) => {}
-            None if first.kept.len() < MAX_WARNINGS => first.kept.push(w),
+            None if first.kept.len() < MAX_WARNINGS => {
+                first.listed += 1;
+                first.kept.push(w);
+            }
             None => {}
         }
     }

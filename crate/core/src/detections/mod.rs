@@ -164,13 +164,16 @@ pub struct ReadReport {
     pub skipped_rows: usize,
 }
 
-/// At most this many warnings are kept (and the one about the file's end, when given); the rest
-/// are only counted.
-pub const MAX_WARNINGS: usize = 20;
+/// At most this many warnings are kept (and the one about the file's end, when given, and a last
+/// one saying how many rows were passed over in all when not all are listed); the rest are only
+/// counted.
+pub use crate::limits::MAX_WARNINGS;
 
 pub(crate) struct Warnings {
     kept: Vec<Warning>,
     count: usize,
+    /// How many of the `count` rows passed over have a warning in `kept`.
+    listed: usize,
     /// Where in `kept` the one warning about scores outside 0..1 is, once given.
     score_at: Option<usize>,
     /// Where in `kept` the one warning about object ids in benchmark text is, once given.
@@ -184,16 +187,29 @@ impl Warnings {
         Self {
             kept: Vec::new(),
             count: 0,
+            listed: 0,
             score_at: None,
             id_at: None,
             open_end: None,
         }
     }
 
-    /// The warnings kept, in file order, the one about the file's end last.
+    /// The warnings kept: the one about the file's end first (a row that may be incomplete matters
+    /// more than any row passed over, and a list cut short for the page's room must not hide it),
+    /// then the others in file order, then, when not every row passed over is listed, how many
+    /// were in all.
     pub(crate) fn into_kept(self) -> Vec<Warning> {
-        let mut kept = self.kept;
-        kept.extend(self.open_end);
+        let mut kept: Vec<Warning> = self.open_end.into_iter().collect();
+        kept.extend(self.kept);
+        if self.count > self.listed {
+            kept.push(Warning {
+                line: None,
+                message: format!(
+                    "{} rows passed over in all (the first {} listed)",
+                    self.count, self.listed
+                ),
+            });
+        }
         kept
     }
 
@@ -222,6 +238,7 @@ impl Warnings {
     pub(crate) fn push(&mut self, line: Option<usize>, message: impl Into<String>) {
         self.count += 1;
         if self.kept.len() < MAX_WARNINGS {
+            self.listed += 1;
             self.kept.push(Warning {
                 line,
                 message: message.into(),
@@ -254,12 +271,18 @@ impl Warnings {
                 Some(_) => (String::new(), "row"),
                 None => (format!("element {element}: "), "element"),
             };
+            // A score above 1 and up to 100 may be a percentage; one below 0 is not.
+            let hint = if score > 1.0 && score <= 100.0 {
+                " (a percentage?)"
+            } else {
+                ""
+            };
             // Not a skipped row: counted as a warning but the row is kept.
             self.kept.push(Warning {
                 line,
                 message: format!(
-                    "{place}score {score} is outside 0..1 (a percentage?); score thresholds assume \
-                     0..1 (first such {what}; all kept)"
+                    "{place}score {score} is outside 0..1{hint}; score thresholds assume 0..1 \
+                     (first such {what}; all kept)"
                 ),
             });
         }
