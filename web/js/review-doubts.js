@@ -15,13 +15,14 @@ import { el, byId, clockText, revealInList } from "./dom.js";
 /** Each reason in a few words, for the list's headline and the focus strip. @type {Record<DoubtKind, string>} */
 export const DOUBT_WORDS = {
   short_track: "short track",
-  at_track_end: "at a track's end",
+  at_track_end: "near a track's start or end",
   joined_track: "pieces joined",
   close_together: "two crossings close together",
   hidden: "counted while hidden",
   barely_seen: "barely seen",
   starts_near_line: "appears near a line",
   ends_near_line: "vanishes near a line",
+  on_line_at_footage_edge: "on a line as the footage starts or ends",
   class_changes: "class changes",
 };
 

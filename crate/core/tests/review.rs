@@ -247,6 +247,43 @@ fn a_crossing_just_after_its_track_begins_is_doubted() {
     assert!(!kinds(&q).contains(&DoubtKind::AtTrackEnd), "{q:#?}");
 }
 
+/// By a line drawn near the picture's edge (a doorway), every crossing comes moments after its
+/// track comes into view: a lesser doubt (weight 1), saying so, so that such crossings do not
+/// crowd out the likelier mistakes (a review: six clean walkers at a doorway came first, weight 5).
+/// The reasons name an object without a class as an "object".
+#[test]
+fn a_crossing_just_after_coming_into_view_at_the_edge_weighs_little() {
+    let plan = Plan::from_json(
+        r#"{"frame_rate": 10, "screenlines": [{"name": "door", "points": [[30, 0], [30, 400]]}],
+            "rules": {"join_seconds": 0}}"#,
+    )
+    .unwrap();
+    let mut doorway = walk(1, 30, 40, (4.0, 300.0), (4.0, 0.0), 0.9);
+    doorway.class = None;
+    let tracks = Tracks {
+        config: TrackerConfig::for_method(Method::Sort),
+        frame_count: 100,
+        tracks: vec![doorway],
+        crowded_frames: Vec::new(),
+    };
+    let report = pipeline::count(&tracks, &plan, None, &Default::default()).unwrap();
+    let q = doubts(&tracks, &plan, &report, Some((400.0, 400.0)));
+    let at_edge = q
+        .iter()
+        .find(|d| d.tracks == [1])
+        .expect("the doorway crossing");
+    assert_eq!(at_edge.kinds, vec![DoubtKind::AtTrackEnd], "{q:#?}");
+    assert_eq!(at_edge.weight, 1, "{q:#?}");
+    assert!(
+        at_edge.why[0].contains(
+            "comes into view at the picture's edge: which side of the line \
+             this object came from was not seen"
+        ),
+        "{:?}",
+        at_edge.why
+    );
+}
+
 #[test]
 fn tracks_there_when_the_footage_starts_or_ends_are_not_doubted_for_it() {
     // In the middle of the picture, next to the line, from frame 1 to the footage's last frame.
@@ -261,12 +298,24 @@ fn tracks_there_when_the_footage_starts_or_ends_are_not_doubted_for_it() {
 #[test]
 fn a_track_on_a_line_as_the_footage_starts_and_leaving_it_is_doubted() {
     let q = queue(vec![walk(1, 1, 50, (200.0, 201.0), (0.0, 4.0), 0.9)]);
-    assert_eq!(kinds(&q), vec![DoubtKind::StartsNearLine], "{q:#?}");
+    assert_eq!(kinds(&q), vec![DoubtKind::OnLineAtFootageEdge], "{q:#?}");
     assert!(
         q[0].why[0].contains("is on `deck` as the footage starts"),
         "{:?}",
         q[0].why
     );
+    // And as it ends: walking onto the line in the footage's last second, and still on it.
+    let q = queue(vec![walk(1, 60, 41, (200.0, 121.0), (0.0, 2.0), 0.9)]);
+    assert_eq!(kinds(&q), vec![DoubtKind::OnLineAtFootageEdge], "{q:#?}");
+    assert!(
+        q[0].why[0].contains("is on `deck` as the footage ends: if it was crossing"),
+        "{:?}",
+        q[0].why
+    );
+    assert_eq!(q[0].frame, 100);
+    // Near the line as the footage ends, not on it: not doubted.
+    let q = queue(vec![walk(1, 60, 41, (200.0, 101.0), (0.0, 2.0), 0.9)]);
+    assert!(q.is_empty(), "{q:#?}");
     let q = queue(vec![walk(1, 1, 50, (200.0, 170.0), (0.0, -3.0), 0.9)]);
     assert!(q.is_empty(), "{q:#?}");
     let q = queue(vec![walk(1, 1, 100, (200.0, 201.0), (0.0, 0.0), 0.9)]);

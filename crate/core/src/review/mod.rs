@@ -34,9 +34,13 @@ pub enum DoubtKind {
     Hidden,
     /// The detector barely saw it near the line (low confidence).
     BarelySeen,
-    /// A track that appears or disappears near a line, away from the picture's edge.
+    /// A track that appears or disappears near a line, away from the picture's edge (and not
+    /// because the footage starts or ends).
     StartsNearLine,
     EndsNearLine,
+    /// A track on a line as the footage starts (or ends) that leaves it, with no crossing of that
+    /// line counted: it may have been crossing.
+    OnLineAtFootageEdge,
     /// A counted track whose boxes were given different classes.
     ClassChanges,
 }

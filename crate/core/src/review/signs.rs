@@ -34,8 +34,8 @@ pub(super) fn crossing_doubts(
     if span < SHORT_SECONDS || seen < SHORT_BOXES {
         let why = format!(
             "Counted from a track seen for only {span:.1} s ({seen} boxes): it may be a piece of \
-             someone counted already, or not a {} at all.",
-            e.class
+             someone counted already, or not {} at all.",
+            a_noun(&e.class)
         );
         out.push(doubt(DoubtKind::ShortTrack, e, ids.clone(), why, 6));
     } else if let (Some(a), Some(b)) = (first, last) {
@@ -47,7 +47,7 @@ pub(super) fn crossing_doubts(
             "Counted after joining tracks {} that the tracker lost and found again near the line: \
              check that they are one {}.",
             list.join(" and "),
-            e.class
+            noun(&e.class)
         );
         out.push(doubt(DoubtKind::JoinedTrack, e, ids.clone(), why, 2));
     }
@@ -63,8 +63,8 @@ pub(super) fn crossing_doubts(
     let score = near.iter().sum::<f64>() / near.len().max(1) as f64;
     if !near.is_empty() && score < LOW_SCORE {
         let why = format!(
-            "The detector barely saw it at the line (confidence {score:.2}): check it is a {}.",
-            e.class
+            "The detector barely saw it at the line (confidence {score:.2}): check it is {}.",
+            a_noun(&e.class)
         );
         out.push(doubt(DoubtKind::BarelySeen, e, ids.clone(), why, 3));
     }
@@ -119,9 +119,10 @@ fn hidden(e: &Event, boxes: &[&crate::track::TrackBox], fps: f64, out: &mut Vec<
 
 /// A crossing within moments of its track's first or last box: the tracker may have picked this
 /// person up again just before the line (someone counted twice), or lost them, or swapped two
-/// people there; or the track begins at the picture's edge on the line, and which side it came
-/// from was not seen (these are kept: the queue pointed at fewer mistakes in the simulated crowds
-/// without them). Ends where the footage itself starts or ends are left out.
+/// people there. Ends where the footage itself starts or ends are left out; an end at the
+/// picture's edge (someone coming into view or leaving it by a line drawn near the edge, as at a
+/// doorway) is a lesser doubt, weight 1: there every crossing is near its track's end, and which
+/// side it came from, or went to, was not seen.
 fn at_track_end(
     e: &Event,
     (first, last): (&crate::track::TrackBox, &crate::track::TrackBox),
@@ -135,24 +136,32 @@ fn at_track_end(
         return;
     };
     let seconds = f64::from(b.frame.abs_diff(e.frame)) / scene.fps;
+    let at_edge = scene.at_edge(&b.bbox);
     let weight = match seconds {
+        _ if seconds >= AT_END_SECONDS[0] => return,
+        _ if at_edge => 1,
         s if s < AT_END_SECONDS[1] => 5,
-        s if s < AT_END_SECONDS[0] => 2,
-        _ => return,
+        _ => 2,
     };
-    let why = if starts {
-        format!(
-            "Counted {seconds:.1} s after its track begins: the tracker may have lost this {} \
+    let what = noun(&e.class);
+    let why = match (starts, at_edge) {
+        (true, true) => format!(
+            "Counted {seconds:.1} s after its track comes into view at the picture's edge: which \
+             side of the line this {what} came from was not seen."
+        ),
+        (false, true) => format!(
+            "Counted {seconds:.1} s before its track leaves the picture at its edge: which side of \
+             the line this {what} went to was not seen."
+        ),
+        (true, false) => format!(
+            "Counted {seconds:.1} s after its track begins: the tracker may have lost this {what} \
              just before the line (counted twice?), taken someone else for them, or not seen \
-             which side they came from.",
-            e.class
-        )
-    } else {
-        format!(
-            "Counted {seconds:.1} s before its track ends: the tracker may have lost this {} \
-             just after the line, or followed someone else across it.",
-            e.class
-        )
+             which side they came from."
+        ),
+        (false, false) => format!(
+            "Counted {seconds:.1} s before its track ends: the tracker may have lost this {what} \
+             just after the line, or followed someone else across it."
+        ),
     };
     out.push(doubt(
         DoubtKind::AtTrackEnd,
@@ -161,6 +170,22 @@ fn at_track_end(
         why,
         weight,
     ));
+}
+
+/// A class as a noun in the reasons' sentences ("object" for boxes without one).
+fn noun(class: &str) -> &str {
+    if class == crate::count::UNCLASSIFIED {
+        "object"
+    } else {
+        class
+    }
+}
+
+/// [`noun`] with "a" or "an" before it.
+fn a_noun(class: &str) -> String {
+    let n = noun(class);
+    let vowel = n.chars().next().is_some_and(|c| "aeiouAEIOU".contains(c));
+    format!("{} {n}", if vowel { "an" } else { "a" })
 }
 
 /// Another crossing of the same line less than a second before, within a box height.
@@ -242,7 +267,8 @@ pub(super) fn line_end_doubts(
         let Some((line, heights)) = nearest.filter(|n| n.1 <= NEAR_LINE_HEIGHTS) else {
             continue;
         };
-        let why = if scene.at_footage_edge(tb.frame, starts) {
+        let at_footage_edge = scene.at_footage_edge(tb.frame, starts);
+        let why = if at_footage_edge {
             match on_the_line_as_footage_ends(t, line, (heights, h), starts, (plan, report)) {
                 Some(why) => why,
                 None => continue,
@@ -257,13 +283,19 @@ pub(super) fn line_end_doubts(
             )
         };
         let seconds = (f64::from(tb.frame) - 1.0) / plan.spec.frame_rate;
-        let kind = if starts {
+        // The key names the end (a person's decisions on a moment are kept by its key).
+        let end = if starts {
             DoubtKind::StartsNearLine
         } else {
             DoubtKind::EndsNearLine
         };
+        let kind = if at_footage_edge {
+            DoubtKind::OnLineAtFootageEdge
+        } else {
+            end
+        };
         out.push(Doubt {
-            key: format!("{kind:?}:{}:{}", t.id, tb.frame),
+            key: format!("{end:?}:{}:{}", t.id, tb.frame),
             kinds: vec![kind],
             frame: tb.frame,
             seconds: (seconds * 1000.0).round() / 1000.0,
