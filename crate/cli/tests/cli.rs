@@ -459,7 +459,10 @@ fn score_counts_compares_a_report_with_a_manual_count() {
     // Equal totals are said to be equal, not to differ by +0.0%.
     let o = throughline(&["score-counts", "--truth", &report, &report]);
     let table = String::from_utf8_lossy(&o.stdout);
-    assert!(table.contains("; the totals are equal ("), "{table}");
+    assert!(
+        table.contains("; the totals are equal, though errors in the cells may cancel (AAPD) ("),
+        "{table}"
+    );
     // A reference that names nothing of the report is an error that says what to check.
     let other = write(
         &dir,
@@ -471,6 +474,29 @@ fn score_counts_compares_a_report_with_a_manual_count() {
     assert!(stderr(&o).contains("direction labels"), "{}", stderr(&o));
     assert!(
         stderr(&o).contains("the reference has `nowhere` / `in` (1 row); the report has `"),
+        "{}",
+        stderr(&o)
+    );
+    // A report with no screenlines at all (a plan of zones): its list reads "none", not nothing.
+    let zones_plan = write(
+        &dir,
+        "zones.json",
+        br#"{"frame_rate": 25, "zones": [{"name": "z", "polygon": [[0, 0], [99, 0], [99, 99], [0, 99]]}]}"#,
+    );
+    let zones_report = dir.join("zones-report.json").display().to_string();
+    let o = throughline(&[
+        "run",
+        &demo("detections.txt"),
+        "--plan",
+        &zones_plan,
+        "-o",
+        &zones_report,
+        "--quiet",
+    ]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let o = throughline(&["score-counts", "--truth", &other, &zones_report]);
+    assert!(
+        stderr(&o).ends_with("the report has none\n"),
         "{}",
         stderr(&o)
     );

@@ -100,13 +100,33 @@ fn has_decimal_comma(text: &str) -> bool {
 
 /// The last key (`"name":`) written on line `line` (1-based) before column `column` (1-based, in
 /// bytes, as serde_json counts), if there is one: the field of a value serde_json found wrong.
+/// Strings are followed from the line's start, so a colon inside a value (`"0:9"`) is not taken
+/// for the one after a key.
 pub fn key_before(text: &str, line: usize, column: usize) -> Option<&str> {
     let row = text.lines().nth(line.checked_sub(1)?)?;
     let before = row.get(..column.min(row.len()))?;
-    let colon = before.rfind(':')?;
-    let quoted = before[..colon].trim_end().strip_suffix('"')?;
-    let start = quoted.rfind('"')?;
-    Some(&quoted[start + 1..]).filter(|k| !k.is_empty())
+    let bytes = before.as_bytes();
+    // The last string closed (its bounds), and the key found so far.
+    let (mut last, mut key) = (None, None);
+    let mut i = 0;
+    while i < bytes.len() {
+        match bytes[i] {
+            b'"' => {
+                let start = i + 1;
+                i = start;
+                while i < bytes.len() && bytes[i] != b'"' {
+                    i += if bytes[i] == b'\\' { 2 } else { 1 };
+                }
+                last = (i < bytes.len()).then_some((start, i));
+            }
+            b':' => key = last.take().or(key),
+            b' ' | b'\t' => {}
+            _ => last = None,
+        }
+        i += 1;
+    }
+    let (start, end) = key?;
+    before.get(start..end).filter(|k| !k.is_empty())
 }
 
 /// Splits a CSV line on commas, honouring double quotes around a field.
@@ -262,8 +282,11 @@ mod tests {
         let text = "{\n  \"frame_rate\": \"25\",\n  \"start\": \"07:30\", \"anchor\": 7\n}";
         assert_eq!(key_before(text, 2, 20), Some("frame_rate"));
         assert_eq!(key_before(text, 3, 30), Some("anchor"));
-        // A colon inside a string is not a key's; a line with none, or out of range, gives none.
-        assert_eq!(key_before(text, 3, 16), None);
+        // A colon inside a value is not a key's (a review found `"score": "0:9"` named no field);
+        // a line with no key, or out of range, gives none.
+        assert_eq!(key_before(text, 3, 16), Some("start"));
+        assert_eq!(key_before("{\"score\": \"0:9\"}", 1, 16), Some("score"));
+        assert_eq!(key_before("{\"a\\\":b\": \"x\"}", 1, 16), Some("a\\\":b"));
         assert_eq!(key_before(text, 1, 1), None);
         assert_eq!(key_before(text, 9, 1), None);
         assert_eq!(key_before(text, 0, 1), None);

@@ -118,7 +118,8 @@ fn pooled(acc: &accuracy::Accuracy) -> String {
     let totals = (o.reference_total > 0).then(|| {
         let d = o.automated_total as f64 / o.reference_total as f64 - 1.0;
         let how = if o.automated_total == o.reference_total {
-            "the totals are equal".to_string()
+            // Equal totals can hide errors that cancel between cells.
+            "the totals are equal, though errors in the cells may cancel (AAPD)".to_string()
         } else {
             format!("the totals differ by {:+.1}%", 100.0 * d)
         };
@@ -155,6 +156,9 @@ fn labels(acc: &accuracy::Accuracy) -> (String, String) {
     // At most this many of each list are named; the rest are counted.
     const NAMED: usize = 10;
     let listed = |names: Vec<String>| {
+        if names.is_empty() {
+            return "none".to_string();
+        }
         let more = names.len().saturating_sub(NAMED);
         let mut text = names.into_iter().take(NAMED).collect::<Vec<_>>().join(", ");
         if more > 0 {

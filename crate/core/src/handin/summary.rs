@@ -58,7 +58,7 @@ pub fn summary_html(report: &Report, ctx: &Context) -> String {
 }
 
 fn totals(h: &mut String, report: &Report) {
-    h.push_str("<h2>Totals</h2>\n<table>\n<tr><th>Line</th><th>Forward</th><th>Backward</th><th>Both</th><th>Counted while hidden</th></tr>\n");
+    h.push_str("<h2>Totals</h2>\n<table>\n<tr><th>Line</th><th>Forward</th><th>Backward</th><th>Total</th><th>Counted while hidden</th></tr>\n");
     for l in &report.screenlines {
         let _ = writeln!(
             h,
