@@ -20,6 +20,8 @@ export class PlanSync {
     this.client = client;
     /** @type {ReturnType<typeof setTimeout> | undefined} */
     this.timer = undefined;
+    /** How many times the plan has been sent (the answers of the last only are taken). */
+    this.sendings = 0;
     store.subscribe(["plan"], ({ why }) => {
       clearTimeout(this.timer);
       this.timer = setTimeout(() => this.send(), why === "edit" ? 120 : 0);
@@ -30,15 +32,20 @@ export class PlanSync {
 
   /** Gives the plan to the core now; the counts it gives back, if any, become the page's. */
   async send() {
+    // Each sending is numbered: an answer about an earlier plan, arriving after a later sending
+    // (two round trips each), is dropped rather than put over the later one's.
+    const sending = ++this.sendings;
+    const latest = () => sending === this.sendings;
     const { json, calibrationNote } = planForCore(this.store.plan);
     this.store.planChecked(calibrationNote);
     try {
       const results = await this.client.setPlan(json, this.store.picture);
+      if (!latest()) return;
       if (results) this.store.resultsReady(results);
       const video = this.store.video;
       if (video.playable) {
         const outside = await this.client.planOutsidePicture(video);
-        if (outside.length) {
+        if (outside.length && latest()) {
           const which = outside.join(", ");
           const lie = outside.length === 1 ? "lies" : "lie";
           const note = `${which} ${lie} wholly outside the picture (${video.width} × ${video.height}): nothing is counted there. Was this plan drawn for other footage?`;
@@ -47,7 +54,7 @@ export class PlanSync {
       }
     } catch (e) {
       // A worker replaced on Cancel drops the plan it was given; it gets it again.
-      if (e instanceof Cancelled) return;
+      if (e instanceof Cancelled || !latest()) return;
       // The core read the page's own copy of the plan: its lines and columns are not the file's.
       const why = withoutDocs(/** @type {Error} */ (e).message).replace(/^line \d+, column \d+: /, "");
       this.store.planChecked(`The plan needs a fix: ${why}` + (calibrationNote ? `\n${calibrationNote}` : ""));
