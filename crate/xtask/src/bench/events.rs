@@ -147,7 +147,9 @@ fn footage_line(bin: &str, seeds: &[u64], frames: u32) -> Result<Line, String> {
         (EventTally::default(), EventTally::default(), 0.0);
     for &seed in seeds {
         let folder = format!("events-footage-{seed}");
-        let (dir, plan, y4m, config, height) = hard_cases_footage(bin, &folder, seed, frames)?;
+        let scene = hard_cases_footage(bin, &folder, seed, frames)?;
+        let (dir, plan, y4m, config) = (scene.dir, scene.plan, scene.y4m, scene.config);
+        let height = scene.size.1;
         let report = dir.join("report.json");
         let (y, c, r) = (shown(&y4m), shown(&config), shown(&report));
         let m = measure(

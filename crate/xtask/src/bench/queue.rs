@@ -64,7 +64,8 @@ pub fn queue_bench(quick: bool) -> Result<(), String> {
          Brought detections: the events table's crowd (90 in view, 1280x720, 15% missed boxes, \
          appearance vectors), {frames} frames each, seeds {}, `deepsort`. Footage alone: the events \
          table's hard cases (30 in view, 640x360), seeds {}, found by `throughline detect` (heights \
-         34 and 91), `sort`. Plan `sim_plan` (two screenlines). Wrong or missed: true crossings left \
+         34 and 91), `sort`. Plan `sim_plan` (two screenlines); `throughline review --picture` with \
+         the picture's size, as the page does. Wrong or missed: true crossings left \
          unmatched and counted ones left unmatched, one to one within one second and a person's \
          height (as in the events table). Each cell: the wrong or missed crossings the queue's first \
          N moments point at, then (in brackets) the same in a random order, the mean of {SHUFFLES}.\n\n\
@@ -107,13 +108,16 @@ fn crowd_scene(bin: &str, seed: u64, frames: u32, tally: &mut Tally) -> Result<(
     let (dir, plan) = simulate_scene(bin, &sim)?;
     let detections = detections_for(&dir, "deepsort");
     let args = ["--method", "deepsort"];
-    queue_of(bin, (&dir, &plan, &detections), &args, sim.height, tally)
+    let size = (sim.width, sim.height);
+    queue_of(bin, (&dir, &plan, &detections), &args, size, tally)
 }
 
 /// The hard cases rendered and searched by the motion detector, tracked with the default method.
 fn footage_scene(bin: &str, seed: u64, frames: u32, tally: &mut Tally) -> Result<(), String> {
     let folder = format!("queue-footage-{seed}");
-    let (dir, plan, y4m, config, height) = hard_cases_footage(bin, &folder, seed, frames)?;
+    let scene = hard_cases_footage(bin, &folder, seed, frames)?;
+    let (dir, plan, y4m, config) = (scene.dir, scene.plan, scene.y4m, scene.config);
+    let size = scene.size;
     let found = shown(&dir.join("found.csv"));
     let searched = run(
         bin,
@@ -131,15 +135,16 @@ fn footage_scene(bin: &str, seed: u64, frames: u32, tally: &mut Tally) -> Result
     // The frames are large: keep only the results, even after a failure.
     std::fs::remove_file(&y4m).ok();
     searched?;
-    queue_of(bin, (&dir, &plan, &found), &[], height, tally)
+    queue_of(bin, (&dir, &plan, &found), &[], size, tally)
 }
 
-/// Counts, reviews and tracks one scene's detections and adds its figures to `tally`.
+/// Counts, reviews (with the picture's size, as the page does) and tracks one scene's detections
+/// and adds its figures to `tally`.
 fn queue_of(
     bin: &str,
     (dir, plan, detections): (&Path, &str, &str),
     method: &[&str],
-    height: f64,
+    (width, height): (f64, f64),
     tally: &mut Tally,
 ) -> Result<(), String> {
     let report = shown(&dir.join("queue-report.json"));
@@ -155,7 +160,11 @@ fn queue_of(
     let counting = args("run", &["--plan", plan, "-o", &report, "--quiet"]);
     run(bin, &refs(&counting))?;
     run(bin, &refs(&args("track", &["-o", &tracks, "--quiet"])))?;
-    let reviewing = args("review", &["--plan", plan, "--json", "--quiet"]);
+    let picture = format!("{width}x{height}");
+    let reviewing = args(
+        "review",
+        &["--plan", plan, "--picture", &picture, "--json", "--quiet"],
+    );
     let doubts = output(bin, &refs(&reviewing))?;
     let doubts: Vec<serde_json::Value> =
         serde_json::from_slice(&doubts).map_err(|e| format!("review --json: {e}"))?;

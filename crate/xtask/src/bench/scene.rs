@@ -67,15 +67,28 @@ impl<'a> Sim<'a> {
     }
 }
 
+/// A footage scene as [`hard_cases_footage`] makes it.
+pub struct FootageScene {
+    pub dir: PathBuf,
+    /// The plan's path.
+    pub plan: String,
+    /// The rendered frames (YUV4MPEG2).
+    pub y4m: PathBuf,
+    /// The motion detector's settings.
+    pub config: PathBuf,
+    /// The picture's width and height.
+    pub size: (f64, f64),
+}
+
 /// The footage scene of the events and queue tables, simulated: the hard cases at 30 in view,
 /// 640 × 360, rendered to `frames.y4m` in its folder, with the motion detector's settings (the
-/// two heights 34 and 91) in `detector.json` beside it. (folder, plan, frames, settings, height)
+/// two heights 34 and 91) in `detector.json` beside it.
 pub fn hard_cases_footage(
     bin: &str,
     folder: &str,
     seed: u64,
     frames: u32,
-) -> Result<(PathBuf, String, PathBuf, PathBuf, f64), String> {
+) -> Result<FootageScene, String> {
     let y4m = bench_dir(folder)?.join("frames.y4m");
     let sim = Sim {
         folder,
@@ -90,11 +103,17 @@ pub fn hard_cases_footage(
         hard_cases: true,
         zones: false,
     };
-    let (height, (dir, plan)) = (sim.height, simulate_scene(bin, &sim)?);
+    let (size, (dir, plan)) = ((sim.width, sim.height), simulate_scene(bin, &sim)?);
     let config = dir.join("detector.json");
     std::fs::write(&config, r#"{"far_height": 34, "near_height": 91}"#)
         .map_err(|e| e.to_string())?;
-    Ok((dir, plan, y4m, config, height))
+    Ok(FootageScene {
+        dir,
+        plan,
+        y4m,
+        config,
+        size,
+    })
 }
 
 /// The folder of a scene (or of anything else a benchmark keeps) under target/bench.
