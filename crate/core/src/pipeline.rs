@@ -105,9 +105,15 @@ pub fn count(
     if work.is_empty() {
         return count::count(tracks, plan, tracker);
     }
-    let (edited, on_tracks) = correct_tracks(tracks, &work.edits);
-    let (mut report, on_counts) = count::corrected(&edited, plan, tracker, &work.edits)?;
-    report.edits = on_tracks
+    let edited = edits::corrected_tracks(tracks, &work.edits);
+    let (mut report, on_counts) = count::corrected(
+        &edited.tracks,
+        plan,
+        tracker,
+        (&work.edits, &edited.split_apart),
+    )?;
+    report.edits = edited
+        .outcomes
         .into_iter()
         .zip(on_counts)
         .filter_map(|(a, b)| a.or(b))

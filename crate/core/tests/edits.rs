@@ -158,6 +158,47 @@ fn splitting_a_track_gives_the_second_walker_a_new_id() {
     assert!(report.edits.iter().all(|e| e.applied), "{:?}", report.edits);
 }
 
+/// Two pieces a person split apart are never joined again by the counting's joining of broken
+/// tracks (a newcomer's trial: a split 2 frames apart near a line was joined straight back, so it
+/// changed nothing counted). Without the split, the same pieces cut by the tracker are joined.
+#[test]
+fn a_split_is_not_undone_by_the_joining_of_broken_tracks() {
+    let plan = Plan::from_json(
+        r#"{"frame_rate": 10, "screenlines": [{"name": "deck", "points": [[0, 200], [400, 200]]}]}"#,
+    )
+    .unwrap();
+    // One track: a walker down to just before the line, then (two frames unseen) on beyond it.
+    let mut t = walk(1, "pedestrian", 1, 20, (100.0, 120.0), (0.0, 4.0));
+    t.boxes
+        .extend(walk(1, "pedestrian", 22, 30, (100.0, 208.0), (0.0, 4.0)).boxes);
+    let split = Edit::SplitTrack {
+        track: r(1, 1, 51),
+        at_frame: 22,
+        reason: Some("two people".into()),
+    };
+    let run = |list: Vec<Track>, edits: &[Edit]| {
+        let t = tracks(list);
+        pipeline::count(&t, &plan, None, &Work::edits(edits.to_vec())).unwrap()
+    };
+    let report = run(vec![t.clone()], &[split]);
+    assert!(report.joins.is_empty(), "{:?}", report.joins);
+    assert_eq!(report.tracks_counted, 2);
+    assert_eq!(totals(&report), (0, 0));
+    assert!(
+        report.edits[0].note.contains("never joined again"),
+        "{}",
+        report.edits[0].note
+    );
+    // The same two pieces as the tracker's own fragments: joined, one crossing.
+    let (mut first, mut second) = (t.clone(), t);
+    first.boxes.retain(|b| b.frame < 22);
+    second.id = 2;
+    second.boxes.retain(|b| b.frame >= 22);
+    let report = run(vec![first, second], &[]);
+    assert_eq!(report.joins.len(), 1, "{:?}", report.joins);
+    assert_eq!(totals(&report), (1, 0));
+}
+
 #[test]
 fn deleting_a_shadow_removes_its_crossing() {
     let list = vec![

@@ -6,6 +6,7 @@ use super::paths::{distance_to_line, Counted, PathPoint, UNCLASSIFIED};
 use crate::geometry::{Point, Segment};
 use crate::plan::Plan;
 use crate::report::Join;
+use std::collections::HashSet;
 
 /// A possible join: how far the later piece started from where the earlier was heading, the two
 /// pieces (indices), and the gap in frames.
@@ -16,8 +17,13 @@ struct Candidate {
     gap: u32,
 }
 
-/// The counted tracks after joining, sorted by their first id, and the joins made.
-pub(super) fn join_fragments(mut pieces: Vec<Counted>, plan: &Plan) -> (Vec<Counted>, Vec<Join>) {
+/// The counted tracks after joining, sorted by their first id, and the joins made; two tracks a
+/// person split apart (`split_apart`) are never joined.
+pub(super) fn join_fragments(
+    mut pieces: Vec<Counted>,
+    plan: &Plan,
+    split_apart: &[[u32; 2]],
+) -> (Vec<Counted>, Vec<Join>) {
     let mut joins = Vec::new();
     let rules = plan.spec.rules;
     let max_gap = (rules.join_seconds * plan.spec.frame_rate).round() as u32;
@@ -26,7 +32,13 @@ pub(super) fn join_fragments(mut pieces: Vec<Counted>, plan: &Plan) -> (Vec<Coun
             pieces
         } else {
             pieces.sort_by_key(|c| (c.points[0].frame, c.ids[0]));
-            let candidates = candidates(&pieces, plan, max_gap);
+            let apart: HashSet<[u32; 2]> = split_apart
+                .iter()
+                .flat_map(|&[a, b]| [[a, b], [b, a]])
+                .collect();
+            let mut candidates = candidates(&pieces, plan, max_gap);
+            candidates
+                .retain(|c| !apart.contains(&[pieces[c.earlier].ids[0], pieces[c.later].ids[0]]));
             let next = link(&pieces, candidates, &mut joins);
             merge_chains(&pieces, &next)
         };

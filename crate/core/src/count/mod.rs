@@ -42,23 +42,24 @@ pub fn count(
     plan: &Plan,
     tracker: Option<&TrackerConfig>,
 ) -> Result<Report, Error> {
-    Ok(corrected(tracks, plan, tracker, &[])?.0)
+    Ok(corrected(tracks, plan, tracker, (&[], &[]))?.0)
 }
 
 /// Counts tracks against a plan with the person's corrections to the counts (`edits`: the edits
-/// on counts are applied, the others passed over); the report, and an outcome for each edit on
-/// counts (`None` for the others). An error when the footage would span more intervals than a
-/// report may hold.
+/// on counts are applied, the others passed over), never joining as fragments of one object two
+/// tracks the person split apart (`split_apart`, pairs of ids); the report, and an outcome for
+/// each edit on counts (`None` for the others). An error when the footage would span more
+/// intervals than a report may hold.
 pub fn corrected(
     tracks: &Tracks,
     plan: &Plan,
     tracker: Option<&TrackerConfig>,
-    edits: &[Edit],
+    (edits, split_apart): (&[Edit], &[[u32; 2]]),
 ) -> Result<(Report, Vec<Option<Outcome>>), Error> {
     let timeline = Timeline::new(tracks, plan)?;
     let half = plan.spec.rules.smooth_half_frames(plan.spec.frame_rate);
-    let (counted, joins) =
-        joins::join_fragments(paths::pieces(tracks, plan.spec.anchor, half), plan);
+    let pieces = paths::pieces(tracks, plan.spec.anchor, half);
+    let (counted, joins) = joins::join_fragments(pieces, plan, split_apart);
     let mut events: Vec<Event> = plan
         .screenlines
         .iter()

@@ -10,7 +10,7 @@
 
 mod tracks;
 
-pub use tracks::apply_to_tracks;
+pub use tracks::{apply_to_tracks, corrected_tracks, CorrectedTracks};
 
 use crate::error::{Error, ErrorKind};
 use schemars::JsonSchema;

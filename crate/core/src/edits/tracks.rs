@@ -7,14 +7,33 @@ use crate::track::{Track, TrackBox, Tracks};
 /// The tracks after the edits on tracks, and an outcome for each of those edits (`None` for the
 /// edits on counts, which the counting applies).
 pub fn apply_to_tracks(tracks: &Tracks, edits: &[Edit]) -> (Tracks, Vec<Option<Outcome>>) {
+    let c = corrected_tracks(tracks, edits);
+    (c.tracks, c.outcomes)
+}
+
+/// What the edits on tracks made: the tracks, an outcome for each edit, and the pairs of tracks a
+/// person split apart (the first id and the new one), which the counting must not join again as
+/// fragments of one object.
+pub struct CorrectedTracks {
+    pub tracks: Tracks,
+    pub outcomes: Vec<Option<Outcome>>,
+    pub split_apart: Vec<[u32; 2]>,
+}
+
+/// [`apply_to_tracks`], with the pairs split apart.
+pub fn corrected_tracks(tracks: &Tracks, edits: &[Edit]) -> CorrectedTracks {
     let mut out = tracks.clone();
+    let mut split_apart = Vec::new();
     let outcomes = edits
         .iter()
         .map(|edit| {
             if edit.is_on_counts() {
                 return None;
             }
-            let result = apply(&mut out.tracks, edit);
+            let result = apply(&mut out.tracks, edit).map(|(note, apart)| {
+                split_apart.extend(apart);
+                note
+            });
             Some(Outcome {
                 edit: edit.clone(),
                 applied: result.is_ok(),
@@ -23,30 +42,35 @@ pub fn apply_to_tracks(tracks: &Tracks, edits: &[Edit]) -> (Tracks, Vec<Option<O
         })
         .collect();
     out.tracks.sort_by_key(|t| t.id);
-    (out, outcomes)
+    CorrectedTracks {
+        tracks: out,
+        outcomes,
+        split_apart,
+    }
 }
 
-/// Applies one edit; what it did, or why it could not.
-fn apply(tracks: &mut Vec<Track>, edit: &Edit) -> Result<String, String> {
-    match edit {
-        Edit::MergeTracks { track, into, .. } => merge(tracks, track, into),
+/// Applies one edit; what it did (and, for a split, the two tracks it made), or why it could not.
+fn apply(tracks: &mut Vec<Track>, edit: &Edit) -> Result<(String, Option<[u32; 2]>), String> {
+    let note = match edit {
+        Edit::MergeTracks { track, into, .. } => merge(tracks, track, into)?,
         Edit::SplitTrack {
             track, at_frame, ..
-        } => split(tracks, track, *at_frame),
+        } => return split(tracks, track, *at_frame),
         Edit::DeleteTrack { track, .. } => {
             let i = find(tracks, track)?;
             tracks.remove(i);
-            Ok(format!("track {} left out", track.id))
+            format!("track {} left out", track.id)
         }
         Edit::SetClass { track, class, .. } => {
             let i = find(tracks, track)?;
             let t = &mut tracks[i];
             t.class = Some(class.clone());
             t.class_votes.clear();
-            Ok(format!("track {} is now {class}", track.id))
+            format!("track {} is now {class}", track.id)
         }
-        Edit::RejectCrossing { .. } | Edit::AddCrossing { .. } => Ok(String::new()),
-    }
+        Edit::RejectCrossing { .. } | Edit::AddCrossing { .. } => String::new(),
+    };
+    Ok((note, None))
 }
 
 /// The index of the track `r` names, or why it is not there.
@@ -159,7 +183,11 @@ fn observed(t: &Track) -> usize {
     t.boxes.iter().filter(|b| b.observed).count()
 }
 
-fn split(tracks: &mut Vec<Track>, r: &TrackRef, at: u32) -> Result<String, String> {
+fn split(
+    tracks: &mut Vec<Track>,
+    r: &TrackRef,
+    at: u32,
+) -> Result<(String, Option<[u32; 2]>), String> {
     let i = find(tracks, r)?;
     let t = &tracks[i];
     if at <= t.first_frame() || at > t.last_frame() {
@@ -191,7 +219,8 @@ fn split(tracks: &mut Vec<Track>, r: &TrackRef, at: u32) -> Result<String, Strin
     };
     let (first, second) = (part(t.id, before), part(new_id, after));
     let note = format!(
-        "track {} is two: {} (frames {}–{}) and {} (frames {}–{})",
+        "track {} is two: {} (frames {}–{}) and {} (frames {}–{}), never joined again as pieces \
+         of one object",
         t.id,
         first.id,
         first.first_frame(),
@@ -200,9 +229,10 @@ fn split(tracks: &mut Vec<Track>, r: &TrackRef, at: u32) -> Result<String, Strin
         second.first_frame(),
         second.last_frame()
     );
+    let apart = [first.id, second.id];
     tracks[i] = first;
     tracks.push(second);
-    Ok(note)
+    Ok((note, Some(apart)))
 }
 
 /// Boxes without the predicted ones at either end: a track starts and ends where it was seen.
