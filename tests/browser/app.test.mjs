@@ -172,6 +172,12 @@ test("files the page cannot use get messages that say what to do, and the plan s
   assert.ok(head >= 0, cutSaid.join("\n"));
   assert.match(cutSaid[head + 1], /line 10: the file ends without a line break after its last row \("10,-1,10,20,30,40,0\.9"\)/);
   assert.match(cutSaid[head + 6], /… and 4 more\./);
+  // A file that cannot be read after one that could: the one in use is named as still in use (a
+  // newcomer's trial: "not read" was shown, and Run then counted the earlier file unsaid).
+  await page.getByLabel("Open detections").setInputFiles(badRows);
+  await page.waitForFunction(() => /could not be read/.test(document.getElementById("messages").textContent));
+  assert.match(await messages.innerText(), /bad\.txt could not be read: .*The detections in use are unchanged: cut\.txt: 2 boxes, 10 frames\./);
+  assert.equal(await page.locator("#detections-name").innerText(), "cut.txt: 2 boxes, 10 frames");
 
   const notJson = join(scratch, "plan-typo.json");
   writeFileSync(notJson, '{"frame_rate": 25,, }');

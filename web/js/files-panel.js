@@ -104,8 +104,11 @@ export class FilesPanel {
       if (!this.store.video.playable) this.store.pictureSized(Math.ceil(summary.max_x) || 640, Math.ceil(summary.max_y) || 360);
       this.checkFit();
     } catch (e) {
-      this.detectionsName.textContent = `${name}: not read`;
-      this.messages.say("detections", "error", `${name} could not be read: ${/** @type {Error} */ (e).message}`);
+      // The core keeps the detections it had: say which are still in use, as for a plan.
+      const kept = this.store.detections;
+      this.detectionsName.textContent = kept ? kept.label : `${name}: not read`;
+      const still = kept ? ` The detections in use are unchanged: ${kept.label}.` : "";
+      this.messages.say("detections", "error", `${name} could not be read: ${/** @type {Error} */ (e).message}${still}`);
     } finally {
       this.readingFiles -= 1;
       if (this.readingFiles === 0) this.detectionsBar.hidden = true;

@@ -437,6 +437,22 @@ fn benchmark_rows_with_object_ids_are_read_with_one_warning() {
     assert!(plain.warnings.is_empty());
 }
 
+/// Benchmark text written with decimal commas has more columns than the format's ten: refused at
+/// the first such row, with the hint (a newcomer's trial: one such row read as shifted values,
+/// a box of score 67.43, and changed a count).
+#[test]
+fn benchmark_text_with_decimal_commas_is_refused_not_read_shifted() {
+    let text = b"1,-1,145.42,181.92,95.06,62.17,0.874,-1,-1,-1\n1,-1,275,71,143.57,25.32,67.43,0.857,-1,-1,-1\n";
+    let e = read_detections(text).unwrap_err();
+    assert_eq!(e.line, Some(2), "{e}");
+    assert!(
+        e.message
+            .starts_with("11 columns, but the benchmark text format has at most 10"),
+        "{e}"
+    );
+    assert!(e.message.contains("decimal comma"), "{e}");
+}
+
 /// A file cut short while being copied can end inside a field and still read (a newcomer's
 /// trial: a CSV cut in its last class read as class `pedestria`, without a word): a last row with
 /// no line break after it is kept and named in a warning, before any others (a list cut short for

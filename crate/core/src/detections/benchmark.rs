@@ -12,6 +12,9 @@ use crate::limits::in_range;
 use crate::text::{frame_number, line_at, number, plain_decimal_prefix};
 
 const BENCHMARK_COLUMNS: [&str; 7] = ["frame", "id", "x", "y", "w", "h", "score"];
+/// Columns a row of benchmark text may have: the seven, then a class or the three world
+/// coordinates. More is a mistake (most often decimal commas), never read as shifted values.
+const MOST_COLUMNS: usize = 10;
 
 pub(super) fn read(text: &str) -> Result<ReadReport, Error> {
     let (r, error) = read_part(text, 1);
@@ -92,6 +95,18 @@ impl Lines {
             )
             .at(line, None));
         }
+        if count > MOST_COLUMNS {
+            return Err(Error::new(
+                ErrorKind::WrongColumnCount,
+                format!(
+                    "{count} columns, but the benchmark text format has at most {MOST_COLUMNS} \
+                     (frame,id,x,y,w,h,score, then a class or x,y,z): a number written with a \
+                     decimal comma (`143,57` for `143.57`) makes more; write decimals with a full \
+                     stop"
+                ),
+            )
+            .at(line, None));
+        }
         let mut v = [0.0; 7];
         for (k, name) in BENCHMARK_COLUMNS.iter().enumerate() {
             v[k] = number(fields[k], name, line, k + 1)?;
@@ -155,14 +170,14 @@ fn quick_row(b: &[u8]) -> Option<([f64; 7], Option<i64>, usize)> {
     }
     (b.get(at) == Some(&b',')).then_some(())?;
     let rest = b.get(at..)?;
-    Some((
-        v,
-        Some(class),
-        at + rest
-            .iter()
-            .position(|&c| c == b'\n')
-            .map_or(rest.len(), |i| i + 1),
-    ))
+    let end = rest.iter().position(|&c| c == b'\n').unwrap_or(rest.len());
+    // Eight columns so far, and one more after each comma: more than the format has is left to
+    // the general reading, which names the mistake.
+    let more = rest[..end].iter().filter(|&&c| c == b',').count();
+    if 8 + more > MOST_COLUMNS {
+        return None;
+    }
+    Some((v, Some(class), at + (end + 1).min(rest.len())))
 }
 
 /// Where the next line starts when `b` has a line end (`\n`, `\r\n`, or the end of the text)
