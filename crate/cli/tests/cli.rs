@@ -238,6 +238,19 @@ fn run_tracks_and_counts_with_a_plan_writing_report_and_csv() {
     ]);
     assert!(o.status.success(), "{}", stderr(&o));
     assert!(stderr(&o).contains("manual count"), "the caution is shown");
+    // Which way each line's forward goes on screen, so that labels swapped with their opposites
+    // show (a newcomer's trial: a line drawn top to bottom had eastbound and westbound swapped).
+    // The demo's midline is drawn left to right (forward: down), its divide top to bottom (left).
+    assert!(
+        stderr(&o).contains(" towards camera (moving down on screen), "),
+        "{}",
+        stderr(&o)
+    );
+    assert!(
+        stderr(&o).contains(" westbound (moving left on screen), "),
+        "{}",
+        stderr(&o)
+    );
     let r: serde_json::Value = serde_json::from_slice(&std::fs::read(&report).unwrap()).unwrap();
     assert_eq!(r["format"], "throughline-report");
     assert_eq!(r["tracker"]["method"], "deepsort");

@@ -119,6 +119,30 @@ pub fn stage_report(
 }
 
 /// The counts in a few lines, and the caution, on standard error.
+/// The way across a line its forward crossings go on screen (y down): to the right-hand side of
+/// its first point to its last, in one of eight words.
+fn forward_on_screen(points: &[[f64; 2]]) -> Option<&'static str> {
+    let (a, b) = (points.first()?, points.last()?);
+    let (dx, dy) = (b[0] - a[0], b[1] - a[1]);
+    // The right-hand side of the way from a to b, with y pointing down.
+    let (nx, ny) = (-dy, dx);
+    if nx == 0.0 && ny == 0.0 {
+        return None;
+    }
+    const WAYS: [&str; 8] = [
+        "right",
+        "down and right",
+        "down",
+        "down and left",
+        "left",
+        "up and left",
+        "up",
+        "up and right",
+    ];
+    let eighth = (ny.atan2(nx) / std::f64::consts::FRAC_PI_4).round();
+    Some(WAYS[(eighth as i64).rem_euclid(8) as usize])
+}
+
 pub fn summarise(report: &Report, quiet: bool) {
     if quiet {
         return;
@@ -130,8 +154,17 @@ pub fn summarise(report: &Report, quiet: bool) {
         eprintln!("warning: an edit was not applied: {}", e.note);
     }
     for l in &report.screenlines {
+        // Which way forward is on screen: a label swapped with its opposite is easy to miss.
+        let way = report
+            .plan
+            .screenlines
+            .iter()
+            .find(|s| s.name == l.name)
+            .and_then(|s| forward_on_screen(&s.points))
+            .map(|w| format!(" (moving {w} on screen)"))
+            .unwrap_or_default();
         eprintln!(
-            "{}: {} {}, {} {} ({} of them counted while hidden)",
+            "{}: {} {}{way}, {} {}; {} of them counted while hidden",
             l.name, l.forward, l.forward_label, l.backward, l.backward_label, l.inferred
         );
     }
