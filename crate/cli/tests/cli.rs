@@ -182,6 +182,26 @@ fn simulate_then_score_round_trip() {
     assert!(s["hota"].as_f64().unwrap() > 0.3);
     let o = throughline(&["simulate", "--out-dir", &d, "--miss-rate", "2"]);
     assert_eq!(o.status.code(), Some(2));
+    // True counts of an earlier scene left in the folder are named when a new scene without a
+    // plan is written there (a newcomer's trial: score-counts would have used them).
+    let plan = demo("plan.json");
+    let args = [
+        "simulate",
+        "--out-dir",
+        &d,
+        "--frames",
+        "20",
+        "--plan",
+        &plan,
+    ];
+    assert!(throughline(&args).status.success());
+    let o = throughline(&["simulate", "--out-dir", &d, "--frames", "20", "--seed", "5"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    assert!(
+        stderr(&o).contains("holds truth_report.json and truth_counts.csv from an earlier scene"),
+        "{}",
+        stderr(&o)
+    );
 }
 
 #[test]

@@ -73,7 +73,7 @@ pub fn wrong_field_count(found: usize, want: usize, text: &str, line: usize) -> 
              another language may save them so)"
         ),
         None if found < want => "; give a value for each column the header names, in its order \
-             (a value not known is left empty between two commas)"
+             (a class not known is left empty between two commas; the numbers are needed)"
             .to_string(),
         None if has_decimal_comma(text) => "; numbers are written with a full stop (0.9, not \
              0,9), and a value holding a comma must be in double quotes"
@@ -229,11 +229,18 @@ pub fn number(field: &str, name: &str, line: usize, column: usize) -> Result<f64
         None => field.parse::<f64>(),
     };
     let v: f64 = parsed.map_err(|_| {
-        Error::new(
-            ErrorKind::BadNumber,
-            format!("`{field}` in column `{name}` is not a number"),
-        )
-        .at(line, Some(column))
+        let message = if field.is_empty() {
+            format!("column `{name}` is empty: every row needs a number there")
+        } else if field.replace(',', ".").parse::<f64>().is_ok() {
+            format!(
+                "`{field}` in column `{name}` is not a number: write decimals with a full stop \
+                 (`{}`)",
+                field.replace(',', ".")
+            )
+        } else {
+            format!("`{field}` in column `{name}` is not a number")
+        };
+        Error::new(ErrorKind::BadNumber, message).at(line, Some(column))
     })?;
     if !v.is_finite() {
         return Err(Error::new(

@@ -437,6 +437,23 @@ fn benchmark_rows_with_object_ids_are_read_with_one_warning() {
     assert!(plain.warnings.is_empty());
 }
 
+/// An empty value and a quoted decimal comma are each said as what they are (a newcomer's trial:
+/// "`` in column `w` is not a number"; a quoted `"0,958"` had no hint).
+#[test]
+fn an_empty_number_and_a_quoted_decimal_comma_say_what_to_write() {
+    let e = read_detections(b"frame,x,y,w,h,score\n1,1,2,,4,0.9\n").unwrap_err();
+    assert_eq!((e.line, e.column), (Some(2), Some(4)));
+    assert_eq!(
+        e.message,
+        "column `w` is empty: every row needs a number there"
+    );
+    let e = read_detections(b"frame,x,y,w,h,score\n1,1,2,3,4,\"0,958\"\n").unwrap_err();
+    assert_eq!(
+        e.message,
+        "`0,958` in column `score` is not a number: write decimals with a full stop (`0.958`)"
+    );
+}
+
 /// Benchmark text written with decimal commas has more columns than the format's ten: refused at
 /// the first such row, with the hint (a newcomer's trial: one such row read as shifted values,
 /// a box of score 67.43, and changed a count).

@@ -149,6 +149,23 @@ pub fn run(args: Args) -> Result<(), Failure> {
         files.write(&targets[4], &report::counts_csv(&report))?;
     }
     files.commit()?;
+    if plan.is_none() {
+        // True counts of an earlier scene left beside this one would be taken for its own.
+        let stale: Vec<&str> = names[3..]
+            .iter()
+            .zip(&targets[3..])
+            .filter(|(_, p)| p.exists())
+            .map(|(n, _)| *n)
+            .collect();
+        if !stale.is_empty() {
+            eprintln!(
+                "warning: {} holds {} from an earlier scene, not this one: give --plan to write \
+                 this scene's, or remove them before comparing counts",
+                dir.display(),
+                stale.join(" and ")
+            );
+        }
+    }
     let written = if plan.is_some() {
         &names[..]
     } else {
