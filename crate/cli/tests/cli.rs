@@ -567,7 +567,9 @@ fn score_counts_compares_a_report_with_a_manual_count() {
 
 /// The table a person reads: rows with no crossing either way are left out (and said to be), the
 /// pooled row says what it pools; counts from tracks without classes against a count by class
-/// are said to be left out (a newcomer's trial: "0 vs 33, APD -100.0%" and nothing else).
+/// are compared with all classes together, and said to be (newcomers' trials: "0 vs 33, APD
+/// -100.0%" and nothing else, then a table of -100% explained only below it); counts of a class
+/// the reference lacks are said to be left out.
 #[test]
 fn score_counts_table_reads_plainly_and_says_what_it_leaves_out() {
     let dir = scratch("score_counts_plain");
@@ -588,10 +590,38 @@ fn score_counts_table_reads_plainly_and_says_what_it_leaves_out() {
     assert!(o.status.success(), "{}", stderr(&o));
     let o = score_against_demo_truth(&plain, &[]);
     assert!(
+        stderr(&o).contains("so all classes are compared together"),
+        "{}",
+        stderr(&o)
+    );
+    let table = String::from_utf8_lossy(&o.stdout).to_string();
+    assert!(table.contains(" / all: "), "{table}");
+    assert!(table.contains(", 14 vs 14, "), "{table}");
+    // A reference by class without the report's cyclists: their counts are said to be left out,
+    // and --all-classes compares the lines as wholes.
+    let truth = std::fs::read_to_string(demo("truth_counts.csv")).unwrap();
+    let no_cyclists: String = truth
+        .lines()
+        .filter(|l| !l.contains(",cyclist,"))
+        .map(|l| format!("{l}\n"))
+        .collect();
+    let reference = write(&dir, "no-cyclists.csv", no_cyclists.as_bytes());
+    let report = demo_report(&dir);
+    let o = throughline(&["score-counts", "--truth", &reference, &report]);
+    assert!(
         stderr(&o).contains("of classes the reference does not name for their line and direction"),
         "{}",
         stderr(&o)
     );
+    let o = throughline(&[
+        "score-counts",
+        "--truth",
+        &reference,
+        &report,
+        "--all-classes",
+    ]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    assert!(String::from_utf8_lossy(&o.stdout).contains(" / all: "));
 }
 
 #[test]

@@ -27,6 +27,10 @@ pub struct Args {
     /// Print one JSON object instead of a table.
     #[arg(long)]
     json: bool,
+    /// Compare all classes together: the reference's rows of each line, direction and interval
+    /// added up (done without asking when the report's tracks carry no classes).
+    #[arg(long)]
+    all_classes: bool,
 }
 
 fn read_json_value(path: &Path) -> Result<serde_json::Value, Failure> {
@@ -49,11 +53,23 @@ pub fn run(args: Args) -> Result<(), Failure> {
     }
     let automated =
         accuracy::report_rows(&read_json_value(report)?).map_err(|e| bad_input(report, e))?;
-    let reference = if looks_like_json_object(&bytes) {
+    let mut reference = if looks_like_json_object(&bytes) {
         accuracy::report_rows(&read_json_value(truth)?).map_err(|e| bad_input(truth, e))?
     } else {
         accuracy::read_counts_csv(&bytes).map_err(|e| bad_input(truth, e))?
     };
+    let unclassified = accuracy::only_unclassified(&automated);
+    if args.all_classes || unclassified {
+        reference = accuracy::all_classes(&reference);
+        if unclassified && !args.all_classes && !args.json {
+            eprintln!(
+                "note: the report's tracks carry no classes (all `unclassified`: detections \
+                 without classes, or footage searched without the two heights?), so all classes \
+                 are compared together, the reference's rows of each line, direction and interval \
+                 added up"
+            );
+        }
+    }
     let acc = accuracy::compare(&automated, &reference);
     if acc.groups.is_empty() {
         let (left, known) = labels(&acc);

@@ -170,6 +170,41 @@ pub struct Accuracy {
     pub automated_not_compared: u64,
 }
 
+/// Counts of all classes together: the rows of each screenline, direction and interval added up
+/// into one with no class (to compare with counts whose classes are not known).
+pub fn all_classes(rows: &[CountRow]) -> Vec<CountRow> {
+    let mut sums: BTreeMap<(String, String, String), u64> = BTreeMap::new();
+    for r in rows {
+        let key = (
+            r.screenline.clone(),
+            r.direction.clone(),
+            r.interval_start.clone(),
+        );
+        let sum = sums.entry(key).or_default();
+        *sum = sum.saturating_add(r.count);
+    }
+    sums.into_iter()
+        .map(
+            |((screenline, direction, interval_start), count)| CountRow {
+                screenline,
+                direction,
+                class: None,
+                interval_start,
+                count,
+            },
+        )
+        .collect()
+}
+
+/// Whether every count of `rows` is of tracks without a class (the fixed-camera detector without
+/// the two heights gives none).
+pub fn only_unclassified(rows: &[CountRow]) -> bool {
+    !rows.is_empty()
+        && rows
+            .iter()
+            .all(|r| r.class.as_deref() == Some(crate::count::UNCLASSIFIED))
+}
+
 /// The measures over pairs of (automated, reference) counts, one pair per interval.
 pub fn measures(pairs: &[(u64, u64)]) -> Measures {
     let with_m: Vec<f64> = pairs
