@@ -33,7 +33,8 @@ export class FilesPanel {
     store.subscribe(["footage"], () => { this.footageName.textContent = store.footage ? store.footage.name : "none"; });
     store.subscribe(["detections"], () => { if (store.detections) this.detectionsName.textContent = store.detections.label; });
     store.subscribe(["planName"], () => { this.planName.textContent = store.planName; });
-    store.subscribe(["video"], () => { if (store.video.playable) this.checkFit(); });
+    // Checked again whenever the footage or the detections change (Find replaces them too).
+    store.subscribe(["video", "detections"], () => this.checkFit());
     this.planName.textContent = store.planName;
     this.bindInputs();
     this.bindDrop(byId("stage", HTMLElement));
@@ -102,7 +103,6 @@ export class FilesPanel {
         this.messages.say("detections", "warn", readingWarnings(name, summary.skipped_rows, summary.warnings));
       }
       if (!this.store.video.playable) this.store.pictureSized(Math.ceil(summary.max_x) || 640, Math.ceil(summary.max_y) || 360);
-      this.checkFit();
     } catch (e) {
       // The core keeps the detections it had: say which are still in use, as for a plan.
       const kept = this.store.detections;
@@ -156,7 +156,7 @@ export class FilesPanel {
       problems.push(`The detections reach x = ${Math.round(s.max_x)}, y = ${Math.round(s.max_y)}, but the footage is ${video.width} × ${video.height} pixels. Were they made on a different size of this video? Open the matching footage, or scale the detections.`);
     }
     if (video.frames && s.frames > video.frames * 1.02 + 2) {
-      problems.push(`The detections run to frame ${s.frames}, but the footage has about ${video.frames} frames at ${this.store.fps} fps. Check the frame rate in the plan.`);
+      problems.push(`The detections run to frame ${s.frames}, but the footage has about ${video.frames} frames at ${this.store.fps} fps. Were they found in other footage? Open the matching footage; if they belong to this one, check the frame rate in the plan.`);
     }
     if (problems.length) this.messages.say("fit", "warn", problems.join("\n"));
   }

@@ -51,6 +51,8 @@ export class FindPanel {
     this.button.addEventListener("click", () => this.find());
     // Not while Run tracks: the worker would only start finding once tracking and bridging end.
     store.subscribe(["footage", "video", "busy"], () => { this.button.disabled = !store.video.playable || store.finding || store.tracking; });
+    // The advice on the margin is about boxes found in footage: gone once other detections are in use.
+    store.subscribe(["detections"], () => { if (store.detections && store.detections.name !== "") this.messages.clear("margin"); });
   }
 
   /** Detector settings JSON from the two height fields. */

@@ -33,12 +33,24 @@ export class ProjectPanel {
       input.value = "";
     });
     byId("save-project", HTMLButtonElement).addEventListener("click", () => this.save());
+    byId("clear-work", HTMLButtonElement).addEventListener("click", () => this.clear());
     this.site.addEventListener("change", () => store.siteNamed(this.site.value.trim()));
     store.subscribe(["site"], () => showValue(this.site, store.work.site));
     store.subscribe(["video"], () => this.fingerprintFootage());
     store.subscribe(["detections"], () => this.fingerprintDetections());
     store.subscribe(["prints"], () => this.check());
     this.site.value = store.work.site;
+  }
+
+  /** Clears the work (after asking, when there is any) to begin afresh on other files. */
+  clear() {
+    const { work } = this.store;
+    const some = work.edits.length || work.marks.size || work.site || (work.extras.tallies || []).length || work.extras.correction;
+    if (some && !window.confirm("Clear the corrections, decisions, hand counts and site name of this work, to begin afresh? The plan and the files stay open. Save project first to keep the work in a file.")) return;
+    this.store.workCleared();
+    this.projectName.textContent = "plan, corrections and decisions in one file";
+    for (const key of ["project-files", "project-rules", "project-tracking"]) this.messages.clear(key);
+    this.messages.say("project", "ok", "Work cleared: no corrections, decisions or hand counts. Undo under Review brings the corrections and decisions back.");
   }
 
   /** The project as a plain object, as the core writes it. */

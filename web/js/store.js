@@ -481,6 +481,17 @@ export class PageStore {
     this.emit(["plan", "planName", "method", "edits", "marks", "site", "checks"], "file");
   }
 
+  /**
+   * The work on the files is cleared, to begin afresh on others: corrections and decisions (one
+   * undo step, as a project opened), hand counts, the factor, the site's name and the files it
+   * was made with. The plan and the files open stay.
+   */
+  workCleared() {
+    this.handCount.tallyDropped();
+    this.work.replace({ edits: [], marks: [], site: "", madeWith: { footage: null, detections: null }, extras: {} });
+    this.emit(["edits", "marks", "site", "checks"]);
+  }
+
   /** @param {string} name the site's name, for the project file and printed sheets */
   siteNamed(name) {
     this.work.site = name;
