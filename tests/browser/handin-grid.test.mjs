@@ -68,8 +68,9 @@ test("grid and movements: downloads equal the command line's, copies paste as th
   assert.equal(wide, cli[`${STEM}_grid.csv`], "wide grid = throughline run --site --start");
   // The header block: what was counted, where, from what, and the caution (common practice for a hand-in sheet).
   const head = csvCells(wide).slice(0, 7);
-  assert.deepEqual(head.map((r) => r[0]), ["Site", "Recording", "Plan", "Footage", "Detections", "Counted with", "Caution"]);
-  assert.deepEqual(head.slice(0, 5).map((r) => r[1]), [SITE, "from 2026-03-02T07:00:00, 0.5 minutes (750 frames at 25 fps)", "plan.json", "footage.webm", "detections.csv"]);
+  assert.deepEqual(head.map((r) => r[0]), ["Site", "Recording", "Plan", "Footage", "Detections", "Counted with", "Corrections", "Caution"]);
+  assert.deepEqual(head.slice(0, 5).map((r) => r[1]), [SITE, "from 2026-03-02 07:00:00, 0.5 minutes (750 frames at 25 fps)", "plan.json", "footage.webm", "detections.csv"]);
+  assert.equal(head[6][1], "none", "no corrections made");
   assert.match(head[6][1], /estimates[\s\S]*manual count[\s\S]*recording people/);
   const tab = await copied(page, "Copy grid");
   assert.deepEqual(pastedCells(tab), csvCells(wide), "the copied grid pastes as the CSV's cells");

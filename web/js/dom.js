@@ -145,3 +145,13 @@ export function clockText(seconds) {
   const m = Math.floor(s / 60);
   return `${m}:${(s - m * 60).toFixed(2).padStart(5, "0")}`;
 }
+
+/**
+ * A moment on this computer's clock as a date and time anyone reads alike: "2026-12-05 07:58"
+ * (the browser's own format can put the day or the month first).
+ * @param {Date} d
+ */
+export function localStamp(d) {
+  const two = (/** @type {number} */ n) => String(n).padStart(2, "0");
+  return `${d.getFullYear()}-${two(d.getMonth() + 1)}-${two(d.getDate())} ${two(d.getHours())}:${two(d.getMinutes())}`;
+}

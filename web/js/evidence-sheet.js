@@ -4,7 +4,7 @@
 // it (counted while hidden, added by hand, rejected and why), headed with the site, footage and
 // plan, so a client or an auditor can check every count by eye. Printing it prints the sheet alone.
 
-import { el, byId, clockText } from "./dom.js";
+import { el, byId, clockText, localStamp } from "./dom.js";
 import { eventTracks } from "./review-events.js";
 
 /** @typedef {import("./store.js").PageStore} PageStore */
@@ -83,7 +83,7 @@ export class EvidenceSheet {
     const footage = this.store.footage ? this.store.footage.name : "no footage open";
     return [
       el("h2", { text: `Evidence: ${name}${site ? ` · ${site}` : ""}` }),
-      el("p", { class: "hint", text: `Footage: ${footage} · plan: ${this.store.planName} · made ${new Date().toLocaleString()}` }),
+      el("p", { class: "hint", text: `Footage: ${footage} · plan: ${this.store.planName} · made ${localStamp(new Date())}` }),
       el("p", { text: `Counts: ${counts}. Every count event is listed below with a picture of what was counted, cut from the footage on this computer.` }),
     ];
   }

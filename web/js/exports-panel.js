@@ -2,7 +2,7 @@
 // The Export panel: the report, counts CSV, tracks and detections as files, and the counts printed.
 // Each button is enabled while there is something for it to give.
 
-import { byId, download } from "./dom.js";
+import { byId, download, localStamp } from "./dom.js";
 
 /** @typedef {import("./store.js").PageStore} PageStore */
 /** @typedef {import("./core-client.js").CoreClient} CoreClient */
@@ -37,7 +37,7 @@ export class ExportsPanel {
     // they were counted from; the report's caution is part of them.
     window.addEventListener("beforeprint", () => {
       const footage = store.footage ? store.footage.name : "no footage opened";
-      const when = new Date().toLocaleString();
+      const when = localStamp(new Date());
       byId("print-head", HTMLElement).textContent = `Throughline counts · footage: ${footage} · plan: ${store.planName} · printed ${when}`;
     });
   }

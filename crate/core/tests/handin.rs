@@ -94,11 +94,13 @@ fn the_wide_grid_has_totals_and_the_peak_hour_worked_by_hand() {
     let text = handin::interval_grid(&r, &context(), GridLayout::Wide, Separator::Comma);
     assert!(
         text.starts_with(
-            "Site,Bridge St / Main Rd (north)\nRecording,\"from 2026-03-02T07:00:00, 75.0 minutes"
+            "Site,Bridge St / Main Rd (north)\nRecording,\"from 2026-03-02 07:00:00, 75.0 minutes"
         ),
         "{text}"
     );
     assert!(text.contains("\nDetections,detections.csv\n"));
+    // Whether a person corrected the counts is said at the top (a newcomer's trial).
+    assert!(text.contains("\nCorrections,none\n"), "{text}");
     let rows = table_rows(&text);
     assert_eq!(
         rows[0][..4],

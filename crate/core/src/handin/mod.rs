@@ -165,8 +165,24 @@ fn header_block(report: &Report, ctx: &Context) -> Vec<(String, String)> {
     rows.push(("Footage".into(), name(&ctx.footage)));
     rows.push(("Detections".into(), name(&ctx.detections)));
     rows.push(("Counted with".into(), report.generator.clone()));
+    rows.push(("Corrections".into(), corrections(report)));
     rows.push(("Caution".into(), report.caution.clone()));
     rows
+}
+
+/// The person's corrections behind the counts, in a few words ("none" when there are none).
+fn corrections(report: &Report) -> String {
+    let applied = report.edits.iter().filter(|e| e.applied).count();
+    let left = report.edits.len() - applied;
+    let mut text = match applied {
+        0 => "none".to_string(),
+        1 => "1 made by a person and applied before counting".to_string(),
+        n => format!("{n} made by a person and applied before counting"),
+    };
+    if left > 0 {
+        text.push_str(&format!("; {left} could not be applied"));
+    }
+    text
 }
 
 /// When the footage was recorded: its start clock time (when the plan gives it) and its length.
@@ -178,7 +194,8 @@ pub(super) fn recording(report: &Report) -> String {
         report.plan.frame_rate
     );
     match &report.plan.start {
-        Some(start) => format!("from {start}, {length}"),
+        // A date and a time, as a person writes them (the plan's `T` is for machines).
+        Some(start) => format!("from {}, {length}", start.replacen('T', " ", 1)),
         None => format!("start not given, {length}"),
     }
 }

@@ -188,9 +188,17 @@ fn reproduce(h: &mut String, report: &Report, ctx: &Context) {
     for (what, hash) in short_hashes(report, ctx) {
         let _ = writeln!(h, "<li>{what}: <code>{hash}</code></li>");
     }
+    let project = match &ctx.project_name {
+        Some(p) => format!(
+            " (<code>{}</code>: the project file the page's Save project writes, with the \
+             corrections and hand counts; keep it with these files)",
+            esc(p)
+        ),
+        None => String::new(),
+    };
     let _ = writeln!(
         h,
-        "</ul>\n<p>The same numbers from those files: <code>{}</code></p>",
+        "</ul>\n<p>The same numbers from those files: <code>{}</code>{project}</p>",
         esc(&command_line(ctx))
     );
 }
