@@ -78,6 +78,17 @@ test("the queue leads to the demo's double count; rejecting it gives the line's 
   assert.match(strip, /Doubtful moment 1 of \d+ · 0:19\.96 · tracks 20 and 25 · two crossings close together, counted while hidden/);
   await screenshot(page, "15-queue-first", { fullPage: false });
   await page.keyboard.press("r");
+  // Two crossings close together: the person chooses which is wrong (a newcomer's trial: R always
+  // took the later one, though the two may differ in class); the later is chosen at first.
+  const which = page.locator("#reject-which");
+  await which.waitFor();
+  const choices = await which.locator("label").allInnerTexts();
+  assert.equal(choices.length, 2, choices.join("\n"));
+  assert.match(choices[0], /by track 20 at frame \d+/);
+  assert.match(choices[1], /by track 25 at frame \d+/);
+  assert.equal(await which.locator("input").nth(1).isChecked(), true);
+  await screenshot(page, "15-queue-reject-which", { fullPage: false });
+  await page.locator("#reject-reason").focus();
   await page.keyboard.type("one walker counted twice");
   await page.keyboard.press("Enter");
   await countedWith(page, 1);

@@ -36,7 +36,7 @@ export class FocusStrip {
     this.form = byId("reject-form", HTMLFormElement);
     this.reason = byId("reject-reason", HTMLInputElement);
     this.question = byId("reject-question", HTMLElement);
-    /** @type {((reason: string) => void) | null} what the reject form's answer does */
+    /** @type {((reason: string, chosen: number) => void) | null} what the reject form's answer does */
     this.answer = null;
     this.form.addEventListener("submit", (e) => { e.preventDefault(); this.submit(); });
     byId("reject-cancel", HTMLButtonElement).addEventListener("click", () => this.closeForm());
@@ -114,14 +114,22 @@ export class FocusStrip {
   }
 
   /**
-   * Asks why a crossing is rejected (the answer may be blank); `then` makes the correction.
+   * Asks why a crossing is rejected (the answer may be blank), and, when `choices` are given (two
+   * crossings close together), which one; `then` makes the correction with the reason and the
+   * index of the choice.
    * @param {string} question
-   * @param {(reason: string) => void} then
+   * @param {(reason: string, chosen: number) => void} then
+   * @param {string[]} [choices] each crossing in words; the last is chosen at first
    */
-  askReason(question, then) {
+  askReason(question, then, choices = []) {
     this.question.textContent = question;
     this.answer = then;
     this.reason.value = "";
+    const which = byId("reject-which", HTMLFieldSetElement);
+    which.hidden = choices.length < 2;
+    which.replaceChildren(el("legend", { text: "Which crossing is wrong?" }), ...choices.map((text, i) => el("label", { class: "inline" }, [
+      el("input", { type: "radio", name: "reject-which", value: String(i), checked: i === choices.length - 1 }), ` ${text}`,
+    ])));
     this.form.hidden = false;
     this.reason.focus();
   }
@@ -129,8 +137,9 @@ export class FocusStrip {
   submit() {
     const answer = this.answer;
     const reason = this.reason.value;
+    const chosen = this.form.querySelector("input[name=reject-which]:checked");
     this.closeForm();
-    if (answer) answer(reason);
+    if (answer) answer(reason, chosen instanceof HTMLInputElement ? Number(chosen.value) : 0);
   }
 
   closeForm() {

@@ -144,10 +144,45 @@ export class Review {
       if (mark) this.store.doubtDecided(mark.key, mark.decision);
       return this.strip.say("That crossing is rejected already.");
     }
-    const words = `Reject the crossing of ${edit.screenline}, ${directionLabel(this.store, edit.screenline, edit.direction)}, by track ${edit.track} at frame ${edit.frame}: it will not be counted. Why (optional)?`;
-    this.strip.askReason(words, (reason) => {
-      this.store.correctionMade(withReason(edit, reason), mark);
+    // Two crossings close together: either may be the one counted twice (they can differ in
+    // class); the person chooses, the later one first.
+    const other = d ? otherCloseCrossing(this.store, d) : null;
+    const edits = other ? [other, edit] : [edit];
+    const said = (/** @type {RejectEdit} */ e) => `${e.screenline}, ${directionLabel(this.store, e.screenline, e.direction)}, by track ${e.track} at frame ${e.frame}${classOf(this.store, e)}`;
+    const words = other
+      ? "Reject one of the two crossings: it will not be counted. Why (optional)?"
+      : `Reject the crossing of ${said(edit)}: it will not be counted. Why (optional)?`;
+    this.strip.askReason(words, (reason, chosen) => {
+      this.store.correctionMade(withReason(edits[chosen] || edit, reason), mark);
       this.strip.say("Rejected: the counts no longer include it. Undo (Ctrl+Z) takes it back.");
-    });
+    }, other ? edits.map(said) : []);
   }
+}
+
+/**
+ * For a doubt about two crossings close together, the earlier of the two as a reject edit: the
+ * counted crossing of the same line by the doubt's other track nearest in time.
+ * @param {PageStore} store
+ * @param {import("./protocol.js").Doubt} d
+ * @returns {RejectEdit | null}
+ */
+function otherCloseCrossing(store, d) {
+  const c = d.crossing;
+  if (!c || !d.kinds.includes("close_together") || !store.results) return null;
+  const track = d.tracks.find((t) => t !== c.track);
+  if (track === undefined) return null;
+  const near = store.results.report.events
+    .filter((e) => e.kind === "screenline" && !e.added && e.name === c.screenline && e.track === track)
+    .sort((a, b) => Math.abs(a.frame - c.frame) - Math.abs(b.frame - c.frame))[0];
+  return near ? rejectEdit(near) : null;
+}
+
+/**
+ * " (cyclist)": the class of the counted crossing an edit names, when the report has it.
+ * @param {PageStore} store
+ * @param {RejectEdit} e
+ */
+function classOf(store, e) {
+  const found = store.results ? store.results.report.events.find((x) => x.kind === "screenline" && x.name === e.screenline && x.track === e.track && x.frame === e.frame) : null;
+  return found && found.class ? ` (${found.class})` : "";
 }
