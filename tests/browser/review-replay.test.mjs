@@ -34,7 +34,7 @@ test("exported edits and a saved project replay with throughline run --edits, by
   await correct(page, "Merge with another track", (f) => f.getByLabel("Track to merge with").selectOption("27"), "Merge", 1);
   await chooseTrack(page, 23);
   await goToFrame(page, 663);
-  await correct(page, "Split at this frame", null, "Split", 2);
+  await correct(page, "Split here, at this frame", null, "Split", 2);
   await chooseTrack(page, 19);
   await correct(page, "Delete this track", (f) => f.getByLabel("Reason (optional)").fill("reflection"), "Delete track", 3);
   await chooseTrack(page, 12);

@@ -15,9 +15,9 @@ test("split: track 23 split at frame 663; one path more, as throughline run --ed
   await chooseTrack(page, 23);
   const box = page.locator("#tracks-correct");
   // Split is offered only inside the track: at its first frame there is nothing before to keep.
-  assert.equal(await box.getByRole("button", { name: "Split at this frame (Tracks list)" }).isDisabled(), true);
+  assert.equal(await box.getByRole("button", { name: "Split here, at this frame (Tracks list)" }).isDisabled(), true);
   await goToFrame(page, 663);
-  await box.getByRole("button", { name: "Split at this frame (Tracks list)" }).click();
+  await box.getByRole("button", { name: "Split here, at this frame (Tracks list)" }).click();
   assert.match(await box.locator(".at-frame").innerText(), /From frame 663 \(0:26\.48\) on/);
   await box.getByRole("button", { name: "Split", exact: true }).click();
   await countedWith(page, 1);

@@ -57,7 +57,7 @@ export class TrackActions {
     this.bar.replaceChildren(
       ids.length > 1 ? this.chooser(ids, t.id) : el("span", { class: "lead", text: `Correct track ${t.id}:` }),
       button("merge", "Merge\u2026", "Merge with another track"),
-      button("split", "Split here\u2026", "Split at this frame"),
+      button("split", "Split here\u2026", "Split here, at this frame"),
       button("delete", "Delete\u2026", "Delete this track"),
       button("class", "Class\u2026", "Change class"),
     );
@@ -79,7 +79,7 @@ export class TrackActions {
   /** Split is offered only where the track is: after its first frame, up to its last. */
   showFrame() {
     const t = this.track();
-    const split = this.bar.querySelector(`[aria-label="Split at this frame${this.where}"]`);
+    const split = this.bar.querySelector(`[aria-label="Split here, at this frame${this.where}"]`);
     const inside = Boolean(t && this.store.frame > t.first_frame && this.store.frame <= t.last_frame);
     if (split instanceof HTMLButtonElement) {
       split.disabled = !inside;
