@@ -123,7 +123,7 @@ export class TallyChecks {
     const [manual, tool, ...measures] = numbers(o, o.reference_total, o.automated_total);
     rows.push(el("tr", { class: "total" }, [el("th", { scope: "row", text: "All lines together" }), manual, tool, el("td", { class: "n", text: signed(o.automated_total - o.reference_total) }), ...measures]));
     const head = ["Line, direction, class", "By hand", "Tool", "Difference", "APD", "AAPD", "WAPD", "Factor"];
-    const box = el("div", { class: "table-box" }, el("table", {}, [el("thead", {}, el("tr", {}, head.map((h, k) => el("th", { text: h, class: k ? "n" : null })))), el("tbody", {}, rows)]));
+    const box = el("div", { class: "table-box" }, el("table", { class: "tally-table" }, [el("thead", {}, el("tr", {}, head.map((h, k) => el("th", { text: h, class: k ? "n" : null })))), el("tbody", {}, rows)]));
     return el("div", {}, [box, el("p", { class: "note", text: "Difference: the tool's count minus yours; choose one to see the tool's count events behind it. APD: the mean of (tool − you) / you over the bins (a bias); AAPD: the same without signs (the size of the error); WAPD: the sum of |tool − you| over the sum of yours; factor: yours over the tool's (NCHRP Report 797). n/a: nothing counted by hand to divide by." })]);
   }
 
