@@ -72,6 +72,19 @@ export async function goToFrame(page, f) {
  * Waits until the counts on screen are those made with exactly `n` corrections (the Edits list says
  * so once the core's report lists what became of each of them).
  */
+/**
+ * Deletes a track from the Tracks list, as a person would, and waits for the count of one
+ * correction.
+ * @param {import("playwright-core").Page} page
+ * @param {number} id
+ */
+export async function deleteTrack(page, id) {
+  await chooseTrack(page, id);
+  await page.locator("#tracks-correct").getByRole("button", { name: "Delete this track (Tracks list)" }).click();
+  await page.locator("#tracks-correct").getByRole("button", { name: "Delete track", exact: true }).click();
+  await countedWith(page, 1);
+}
+
 export async function countedWith(page, n) {
   await page.waitForSelector(`#edit-list[data-counted="${n}"]`, { state: "attached", timeout: 20000 });
 }

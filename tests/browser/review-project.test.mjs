@@ -8,16 +8,13 @@ import { writeFileSync } from "node:fs";
 import { execFileSync } from "node:child_process";
 import { join } from "node:path";
 import { useBrowser, showView, run, downloadText, demo, screenshot } from "./harness.mjs";
-import { reviewDemo, chooseTrack, countedWith, pageReport, replay, scratch, openTab } from "./review-helpers.mjs";
+import { reviewDemo, countedWith, pageReport, replay, scratch, openTab, deleteTrack } from "./review-helpers.mjs";
 
 const env = useBrowser();
 
 test("a project reopens on the same files; against other footage it warns", async () => {
   const { page, seen } = await reviewDemo(env);
-  await chooseTrack(page, 19);
-  await page.locator("#tracks-correct").getByRole("button", { name: "Delete this track (Tracks list)" }).click();
-  await page.locator("#tracks-correct").getByRole("button", { name: "Delete track", exact: true }).click();
-  await countedWith(page, 1);
+  await deleteTrack(page, 19);
   await showView(page, "Set up");
   const projectPath = join(scratch, "saved-project.json");
   writeFileSync(projectPath, await downloadText(page, "Save project", scratch));
@@ -110,10 +107,7 @@ test("a project tracked before DeepSORT kept low-score boxes is tracked as it wa
 
 test("Clear work begins afresh: corrections, decisions and the site's name go, Undo brings the corrections back", async () => {
   const { page, seen } = await reviewDemo(env);
-  await chooseTrack(page, 19);
-  await page.locator("#tracks-correct").getByRole("button", { name: "Delete this track (Tracks list)" }).click();
-  await page.locator("#tracks-correct").getByRole("button", { name: "Delete track", exact: true }).click();
-  await countedWith(page, 1);
+  await deleteTrack(page, 19);
   await showView(page, "Set up");
   await page.getByLabel("Site name").fill("Harbour steps");
   await page.getByLabel("Site name").press("Enter");

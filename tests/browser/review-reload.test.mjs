@@ -5,16 +5,13 @@
 import { test } from "node:test";
 import assert from "node:assert/strict";
 import { useBrowser, showView, screenshot } from "./harness.mjs";
-import { reviewDemo, chooseTrack, openTab, countedWith, pageReport } from "./review-helpers.mjs";
+import { reviewDemo, openTab, countedWith, pageReport, deleteTrack } from "./review-helpers.mjs";
 
 const env = useBrowser();
 
 test("reload: the corrections and decisions come back and are applied when tracks are made again", async () => {
   const { page, seen } = await reviewDemo(env);
-  await chooseTrack(page, 19);
-  await page.locator("#tracks-correct").getByRole("button", { name: "Delete this track (Tracks list)" }).click();
-  await page.locator("#tracks-correct").getByRole("button", { name: "Delete track", exact: true }).click();
-  await countedWith(page, 1);
+  await deleteTrack(page, 19);
   await openTab(page, "To check");
   await page.locator("#clock").click();
   await page.keyboard.press("n");

@@ -5,7 +5,7 @@
 import { test } from "node:test";
 import assert from "node:assert/strict";
 import { useBrowser, showView } from "./harness.mjs";
-import { reviewDemo, chooseTrack, openTab, countedWith, pageReport, replay } from "./review-helpers.mjs";
+import { reviewDemo, openTab, countedWith, pageReport, replay, deleteTrack } from "./review-helpers.mjs";
 
 const env = useBrowser();
 
@@ -14,10 +14,7 @@ const REJECT = { edit: "reject_crossing", screenline: "east-west divide", direct
 
 test("undo and redo: the counts follow each step, as throughline run --edits gives them", async () => {
   const { page, seen } = await reviewDemo(env);
-  await chooseTrack(page, 19);
-  await page.locator("#tracks-correct").getByRole("button", { name: "Delete this track (Tracks list)" }).click();
-  await page.locator("#tracks-correct").getByRole("button", { name: "Delete track", exact: true }).click();
-  await countedWith(page, 1);
+  await deleteTrack(page, 19);
   await openTab(page, "Events");
   await page.locator("#events button").first().click();
   await page.getByRole("button", { name: "Reject this crossing" }).click();

@@ -53,23 +53,12 @@ pub fn run(args: Args) -> Result<(), Failure> {
     }
     let automated =
         accuracy::report_rows(&read_json_value(report)?).map_err(|e| bad_input(report, e))?;
-    let mut reference = if looks_like_json_object(&bytes) {
+    let reference = if looks_like_json_object(&bytes) {
         accuracy::report_rows(&read_json_value(truth)?).map_err(|e| bad_input(truth, e))?
     } else {
         accuracy::read_counts_csv(&bytes).map_err(|e| bad_input(truth, e))?
     };
-    let unclassified = accuracy::only_unclassified(&automated);
-    if args.all_classes || unclassified {
-        reference = accuracy::all_classes(&reference);
-        if unclassified && !args.all_classes && !args.json {
-            eprintln!(
-                "note: the report's tracks carry no classes (all `unclassified`: detections \
-                 without classes, or footage searched without the two heights?), so all classes \
-                 are compared together, the reference's rows of each line, direction and interval \
-                 added up"
-            );
-        }
-    }
+    let reference = classes_as_known(reference, &automated, &args);
     let acc = accuracy::compare(&automated, &reference);
     if acc.groups.is_empty() {
         let (left, known) = labels(&acc);
@@ -125,6 +114,27 @@ pub fn run(args: Args) -> Result<(), Failure> {
         );
     }
     Ok(())
+}
+
+/// The reference with all its classes added up, line by line, when asked (`--all-classes`) or when
+/// the report's tracks carry no classes (said in a note).
+fn classes_as_known(
+    reference: Vec<accuracy::CountRow>,
+    automated: &[accuracy::CountRow],
+    args: &Args,
+) -> Vec<accuracy::CountRow> {
+    let unclassified = accuracy::only_unclassified(automated);
+    if !args.all_classes && !unclassified {
+        return reference;
+    }
+    if !args.all_classes && !args.json {
+        eprintln!(
+            "note: the report's tracks carry no classes (all `unclassified`: detections without \
+             classes, or footage searched without the two heights?), so all classes are compared \
+             together, the reference's rows of each line, direction and interval added up"
+        );
+    }
+    accuracy::all_classes(&reference)
 }
 
 /// The pooled line: every compared cell together, the totals' own difference, and whether

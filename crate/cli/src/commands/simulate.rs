@@ -150,21 +150,7 @@ pub fn run(args: Args) -> Result<(), Failure> {
     }
     files.commit()?;
     if plan.is_none() {
-        // True counts of an earlier scene left beside this one would be taken for its own.
-        let stale: Vec<&str> = names[3..]
-            .iter()
-            .zip(&targets[3..])
-            .filter(|(_, p)| p.exists())
-            .map(|(n, _)| *n)
-            .collect();
-        if !stale.is_empty() {
-            eprintln!(
-                "warning: {} holds {} from an earlier scene, not this one: give --plan to write \
-                 this scene's, or remove them before comparing counts",
-                dir.display(),
-                stale.join(" and ")
-            );
-        }
+        warn_of_stale_truth(dir, &names[3..], &targets[3..]);
     }
     let written = if plan.is_some() {
         &names[..]
@@ -185,6 +171,25 @@ pub fn run(args: Args) -> Result<(), Failure> {
         }
     );
     Ok(())
+}
+
+/// True counts of an earlier scene left beside this one (written without a plan) would be taken
+/// for its own: named, with what to do.
+fn warn_of_stale_truth(dir: &Path, names: &[&str], paths: &[PathBuf]) {
+    let stale: Vec<&str> = names
+        .iter()
+        .zip(paths)
+        .filter(|(_, p)| p.exists())
+        .map(|(n, _)| *n)
+        .collect();
+    if !stale.is_empty() {
+        eprintln!(
+            "warning: {} holds {} from an earlier scene, not this one: give --plan to write this \
+             scene's, or remove them before comparing counts",
+            dir.display(),
+            stale.join(" and ")
+        );
+    }
 }
 
 /// Simulates while rendering every frame into a YUV4MPEG2 stream (a file, among the outputs, or
