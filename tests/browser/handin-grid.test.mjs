@@ -67,26 +67,26 @@ test("grid and movements: downloads equal the command line's, copies paste as th
   const wide = await downloadText(page, "Download grid CSV", scratch);
   assert.equal(wide, cli[`${STEM}_grid.csv`], "wide grid = throughline run --site --start");
   // The header block: what was counted, where, from what, and the caution (common practice for a hand-in sheet).
-  const head = csvCells(wide).slice(0, 7);
+  const head = csvCells(wide).slice(0, 8);
   assert.deepEqual(head.map((r) => r[0]), ["Site", "Recording", "Plan", "Footage", "Detections", "Counted with", "Corrections", "Caution"]);
-  assert.deepEqual(head.slice(0, 5).map((r) => r[1]), [SITE, "from 2026-03-02 07:00:00, 0.5 minutes (750 frames at 25 fps)", "plan.json", "footage.webm", "detections.csv"]);
+  assert.deepEqual(head.slice(0, 5).map((r) => r[1]), [SITE, "from 2026-03-02T07:00:00, 0.5 minutes (750 frames at 25 fps)", "plan.json", "footage.webm", "detections.csv"]);
   assert.equal(head[6][1], "none", "no corrections made");
-  assert.match(head[6][1], /estimates[\s\S]*manual count[\s\S]*recording people/);
+  assert.match(head[7][1], /estimates[\s\S]*manual count[\s\S]*recording people/);
   const tab = await copied(page, "Copy grid");
   assert.deepEqual(pastedCells(tab), csvCells(wide), "the copied grid pastes as the CSV's cells");
-  const table = pastedCells(tab).slice(8, 11);
+  const table = pastedCells(tab).slice(9, 12);
   // Interval start and end, 2 lines × 2 directions × the classes counted, total, peak hour, note.
   const columns = 2 + 10 + 3;
   assert.deepEqual(table.map((r) => r.length), [columns, columns, columns]);
   assert.deepEqual([table[1][0], table[2][0]], ["2026-03-02T07:00:00", "Total"]);
-  assert.match(await page.locator("#grid-copied").innerText(), /Copied: 13 rows, up to 15 cells each/);
+  assert.match(await page.locator("#grid-copied").innerText(), /Copied: 14 rows, up to 15 cells each/);
 
   await page.getByLabel("Layout").selectOption("long");
   const long = await downloadText(page, "Download grid CSV", scratch);
   assert.equal(long, cli[`${STEM}_grid-long.csv`], "long grid = throughline run --site --start");
   const longCells = pastedCells(await copied(page, "Copy grid"));
   assert.deepEqual(longCells, csvCells(long));
-  const rows = longCells.slice(8).filter((r) => r.length === 7);
+  const rows = longCells.slice(9).filter((r) => r.length === 7);
   assert.deepEqual(rows[0], ["interval_start", "interval_end", "screenline", "direction", "class", "count", "peak_hour"]);
   assert.equal(rows.length, 1 + 10, "a row per interval, line, direction and class");
 

@@ -39,6 +39,7 @@
  * @property {string} time
  * @property {number[]} tracks
  * @property {{screenline: string, direction: "forward" | "backward", track: number, frame: number}} [crossing]
+ * @property {{screenline: string, direction: "forward" | "backward", track: number, frame: number}} [close_to] for two crossings close together, the other one
  * @property {string[]} why
  * @property {number} weight
  */

@@ -146,7 +146,7 @@ export class Review {
     }
     // Two crossings close together: either may be the one counted twice (they can differ in
     // class); the person chooses, the later one first.
-    const other = d ? otherCloseCrossing(this.store, d) : null;
+    const other = d ? otherCloseCrossing(d) : null;
     const edits = other ? [other, edit] : [edit];
     const said = (/** @type {RejectEdit} */ e) => `${e.screenline}, ${directionLabel(this.store, e.screenline, e.direction)}, by track ${e.track} at frame ${e.frame}${classOf(this.store, e)}`;
     const words = other
@@ -160,21 +160,14 @@ export class Review {
 }
 
 /**
- * For a doubt about two crossings close together, the earlier of the two as a reject edit: the
- * counted crossing of the same line by the doubt's other track nearest in time.
- * @param {PageStore} store
+ * For a doubt about two crossings close together, the other of the two (the core names it) as a
+ * reject edit.
  * @param {import("./protocol.js").Doubt} d
- * @returns {RejectEdit | null}
+ * @returns {import("./edits.js").RejectEdit | null}
  */
-function otherCloseCrossing(store, d) {
-  const c = d.crossing;
-  if (!c || !d.kinds.includes("close_together") || !store.results) return null;
-  const track = d.tracks.find((t) => t !== c.track);
-  if (track === undefined) return null;
-  const near = store.results.report.events
-    .filter((e) => e.kind === "screenline" && !e.added && e.name === c.screenline && e.track === track)
-    .sort((a, b) => Math.abs(a.frame - c.frame) - Math.abs(b.frame - c.frame))[0];
-  return near ? rejectEdit(near) : null;
+function otherCloseCrossing(d) {
+  const o = d.close_to;
+  return o ? { edit: "reject_crossing", screenline: o.screenline, direction: o.direction, track: o.track, frame: o.frame } : null;
 }
 
 /**

@@ -198,7 +198,8 @@ fn simulate_then_score_round_trip() {
     let o = throughline(&["simulate", "--out-dir", &d, "--frames", "20", "--seed", "5"]);
     assert!(o.status.success(), "{}", stderr(&o));
     assert!(
-        stderr(&o).contains("holds truth_report.json and truth_counts.csv from an earlier scene"),
+        stderr(&o)
+            .contains("holds truth_report.json and truth_counts.csv, which this run did not write"),
         "{}",
         stderr(&o)
     );

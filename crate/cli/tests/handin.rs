@@ -34,7 +34,7 @@ fn run_with_a_site_writes_the_hand_in_files_next_to_the_report() {
     let grid =
         std::fs::read_to_string(dir.join("footbridge-plaza-east_2026-04-01_grid.csv")).unwrap();
     assert!(
-        grid.starts_with("Site,Footbridge Plaza (east)\nRecording,\"from 2026-04-01 16:30:00"),
+        grid.starts_with("Site,Footbridge Plaza (east)\nRecording,\"from 2026-04-01T16:30:00"),
         "{grid}"
     );
     assert!(grid.contains("\nInterval start,Interval end,"), "{grid}");

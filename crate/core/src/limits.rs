@@ -44,8 +44,8 @@ pub const MAX_CLASSES: usize = 65_535;
 /// Values in one appearance vector.
 pub const MAX_EMBEDDING_DIM: usize = 4_096;
 
-/// Warnings about rows passed over kept in full from one file (the rest are counted, and said in
-/// one more warning); those about the file's end, scores and object ids come on top.
+/// Warnings kept in full from one file (the rest are counted, and said in one more warning); the
+/// one about the file's end comes on top.
 pub const MAX_WARNINGS: usize = 20;
 
 /// A count in a manual count file (a trillion is not a count of anything in view).

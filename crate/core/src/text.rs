@@ -73,7 +73,7 @@ pub fn wrong_field_count(found: usize, want: usize, text: &str, line: usize) -> 
              another language may save them so)"
         ),
         None if found < want => "; give a value for each column the header names, in its order \
-             (a class not known is left empty between two commas; the numbers are needed)"
+             (an optional value, such as a class, may be left empty between two commas)"
             .to_string(),
         None if has_decimal_comma(text) => "; numbers are written with a full stop (0.9, not \
              0,9), and a value holding a comma must be in double quotes"
@@ -232,11 +232,24 @@ pub fn number(field: &str, name: &str, line: usize, column: usize) -> Result<f64
         let message = if field.is_empty() {
             format!("column `{name}` is empty: every row needs a number there")
         } else if field.replace(',', ".").parse::<f64>().is_ok() {
-            format!(
-                "`{field}` in column `{name}` is not a number: write decimals with a full stop \
-                 (`{}`)",
-                field.replace(',', ".")
-            )
+            let dotted = field.replace(',', ".");
+            let after = field.rsplit(',').next().unwrap_or("");
+            let lead = field.trim_start_matches('-');
+            // Three digits after the comma may be a thousands separator as well as decimals
+            // (not after a leading 0: `0,958`).
+            let thousands = after.len() == 3
+                && after.bytes().all(|b| b.is_ascii_digit())
+                && !lead.starts_with('0');
+            let which = if thousands {
+                format!(
+                    "write decimals with a full stop (`{dotted}`), and thousands without a \
+                     separator (`{}`)",
+                    field.replace(',', "")
+                )
+            } else {
+                format!("write decimals with a full stop (`{dotted}`)")
+            };
+            format!("`{field}` in column `{name}` is not a number: {which}")
         } else {
             format!("`{field}` in column `{name}` is not a number")
         };

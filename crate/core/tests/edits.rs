@@ -180,7 +180,7 @@ fn a_split_is_not_undone_by_the_joining_of_broken_tracks() {
         let t = tracks(list);
         pipeline::count(&t, &plan, None, &Work::edits(edits.to_vec())).unwrap()
     };
-    let report = run(vec![t.clone()], &[split]);
+    let report = run(vec![t.clone()], std::slice::from_ref(&split));
     assert!(report.joins.is_empty(), "{:?}", report.joins);
     assert_eq!(report.tracks_counted, 2);
     assert_eq!(totals(&report), (0, 0));
@@ -189,6 +189,17 @@ fn a_split_is_not_undone_by_the_joining_of_broken_tracks() {
         "{}",
         report.edits[0].note
     );
+    // A second split of the first piece (at frame 10) keeps the first split: the piece from
+    // frame 10 and the one from frame 22 are not joined either (a review found them joined).
+    let second = Edit::SplitTrack {
+        track: r(1, 1, 20),
+        at_frame: 10,
+        reason: None,
+    };
+    let report = run(vec![t.clone()], &[split.clone(), second]);
+    assert!(report.joins.is_empty(), "{:?}", report.joins);
+    assert_eq!(report.tracks_counted, 3);
+    assert_eq!(totals(&report), (0, 0));
     // The same two pieces as the tracker's own fragments: joined, one crossing.
     let (mut first, mut second) = (t.clone(), t);
     first.boxes.retain(|b| b.frame < 22);

@@ -94,13 +94,31 @@ fn the_wide_grid_has_totals_and_the_peak_hour_worked_by_hand() {
     let text = handin::interval_grid(&r, &context(), GridLayout::Wide, Separator::Comma);
     assert!(
         text.starts_with(
-            "Site,Bridge St / Main Rd (north)\nRecording,\"from 2026-03-02 07:00:00, 75.0 minutes"
+            "Site,Bridge St / Main Rd (north)\nRecording,\"from 2026-03-02T07:00:00, 75.0 minutes"
         ),
         "{text}"
     );
     assert!(text.contains("\nDetections,detections.csv\n"));
     // Whether a person corrected the counts is said at the top (a newcomer's trial).
     assert!(text.contains("\nCorrections,none\n"), "{text}");
+    let mut corrected = r.clone();
+    let outcome = |applied: bool| throughline_core::edits::Outcome {
+        edit: throughline_core::edits::Edit::DeleteTrack {
+            track: throughline_core::edits::TrackRef {
+                id: 1,
+                frames: [1, 2],
+            },
+            reason: None,
+        },
+        applied,
+        note: String::new(),
+    };
+    corrected.edits = vec![outcome(true), outcome(true), outcome(false)];
+    let text2 = handin::interval_grid(&corrected, &context(), GridLayout::Wide, Separator::Comma);
+    assert!(
+        text2.contains("\nCorrections,2 made by a person and applied; 1 could not be applied\n"),
+        "{text2}"
+    );
     let rows = table_rows(&text);
     assert_eq!(
         rows[0][..4],
@@ -217,6 +235,9 @@ fn the_summary_names_the_site_counts_checks_and_what_reproduces_them() {
         "<image href=\"data:image/png;base64,AAAA\"",
         "throughline run detections.csv --plan bridge-st.json --edits bridge-st_2026-03-02.throughline.json -o report.json",
         "detections (first MiB): <code>ba7816bf8f01</code>",
+        // For a person: the start as a date and a time; the project file named for what it is.
+        "<p>Recorded from 2026-03-02 07:00:00, 75.0 minutes",
+        "the project file the page's Save project writes",
     ] {
         assert!(html.contains(needle), "missing {needle}");
     }

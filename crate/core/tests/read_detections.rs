@@ -301,7 +301,7 @@ fn warnings_are_counted_even_past_the_kept_ones() {
     assert_eq!(r.warnings.len(), max + 1);
     assert_eq!(
         r.warnings[max].message,
-        format!("50 rows passed over in all (the first {max} listed)")
+        format!("50 passed over in all (the first {max} listed)")
     );
     assert_eq!(r.detections.rows.len(), 50);
 }
@@ -452,6 +452,13 @@ fn an_empty_number_and_a_quoted_decimal_comma_say_what_to_write() {
         e.message,
         "`0,958` in column `score` is not a number: write decimals with a full stop (`0.958`)"
     );
+    // Three digits after the comma: a thousands separator is as likely; both are said.
+    let e = read_detections(b"frame,x,y,w,h,score\n1,\"1,234\",2,3,4,0.5\n").unwrap_err();
+    assert_eq!(
+        e.message,
+        "`1,234` in column `x` is not a number: write decimals with a full stop (`1.234`), and \
+         thousands without a separator (`1234`)"
+    );
 }
 
 /// Benchmark text written with decimal commas has more columns than the format's ten: refused at
@@ -468,6 +475,9 @@ fn benchmark_text_with_decimal_commas_is_refused_not_read_shifted() {
         "{e}"
     );
     assert!(e.message.contains("decimal comma"), "{e}");
+    // Empty fields at a row's end are no columns (such a row read before, and still does).
+    let r = read_detections(b"1,-1,13,20,30,40,0.9,-1,-1,-1,\n").unwrap();
+    assert_eq!(r.detections.rows.len(), 1);
 }
 
 /// A file cut short while being copied can end inside a field and still read (a newcomer's
@@ -503,14 +513,24 @@ fn a_last_row_without_a_line_break_is_named_as_perhaps_cut_short() {
     assert!(first.message.contains("line break"), "{}", first.message);
     let last = r.warnings.last().unwrap();
     assert_eq!(last.line, None);
-    assert_eq!(
-        last.message,
-        "30 rows passed over in all (the first 20 listed)"
-    );
+    assert_eq!(last.message, "30 passed over in all (the first 20 listed)");
     assert_eq!(r.warnings.len(), 22);
-    // All listed: no such last warning (21 rows passed over, 20 listed, would need one).
+    // All listed: no such last warning.
     let few = read_detections(b"1,-1,1,1,0,5,0.9\n2,-1,1,1,5,5,0.9\n").unwrap();
     assert_eq!(few.warnings.len(), 1, "{:?}", few.warnings);
+    // At the boundary a review found unsaid: 21 passed over, 20 listed, and the file's end.
+    let mut edge = String::new();
+    for f in 1..=21 {
+        edge.push_str(&format!("{f},-1,1,1,0,5,0.9\n"));
+    }
+    edge.push_str("22,-1,1,1,5,5,0.9");
+    let r = read_detections(edge.as_bytes()).unwrap();
+    assert_eq!(r.warnings.len(), 22);
+    assert!(r.warnings[0].message.contains("line break"));
+    assert_eq!(
+        r.warnings[21].message,
+        "21 passed over in all (the first 20 listed)"
+    );
 }
 
 /// A JSON element's mistake is placed at its field in that element, pretty-printed or not (a

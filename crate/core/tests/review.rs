@@ -89,6 +89,18 @@ fn two_crossings_close_together_are_doubted_once() {
     assert_eq!(close.len(), 1, "{q:#?}");
     assert_eq!(close[0].tracks, vec![1, 2]);
     assert!(close[0].why[0].contains("0.2 s"), "{:?}", close[0].why);
+    // Both crossings are named, so the person can reject either (a review: the page looked for
+    // the other among the tracks and found a joined track's own piece).
+    let (this, other) = (
+        close[0].crossing.as_ref().unwrap(),
+        close[0].close_to.as_ref().unwrap(),
+    );
+    assert_eq!((this.track, other.track), (2, 1));
+    assert_eq!(
+        (this.screenline.as_str(), other.screenline.as_str()),
+        ("deck", "deck")
+    );
+    assert!(other.frame < this.frame);
 }
 
 #[test]
@@ -281,6 +293,39 @@ fn a_crossing_just_after_coming_into_view_at_the_edge_weighs_little() {
         ),
         "{:?}",
         at_edge.why
+    );
+    let door = |list: Vec<Track>| {
+        let tracks = Tracks {
+            config: TrackerConfig::for_method(Method::Sort),
+            frame_count: 100,
+            tracks: list,
+            crowded_frames: Vec::new(),
+        };
+        let report = pipeline::count(&tracks, &plan, None, &Default::default()).unwrap();
+        doubts(&tracks, &plan, &report, Some((400.0, 400.0)))
+    };
+    // Leaving the picture at its edge just after the line: the same lesser doubt.
+    let q = door(vec![walk(1, 10, 37, (160.0, 300.0), (-4.0, 0.0), 0.9)]);
+    let leaving = q.iter().find(|d| d.tracks == [1]).expect("the crossing");
+    assert_eq!(
+        (leaving.kinds[0], leaving.weight),
+        (DoubtKind::AtTrackEnd, 1),
+        "{q:#?}"
+    );
+    assert!(leaving.why[0].contains("before its track leaves the picture at its edge"));
+    // In at the edge 1.3 s before the line, lost mid-picture 0.5 s after it: the lost end is
+    // the doubt, weight 5 (a review: the nearer end alone was weighed, and hid it).
+    let q = door(vec![walk(1, 30, 19, (4.0, 300.0), (2.0, 0.0), 0.9)]);
+    let lost = q.iter().find(|d| d.tracks == [1]).expect("the crossing");
+    assert_eq!(
+        (lost.kinds[0], lost.weight),
+        (DoubtKind::AtTrackEnd, 5),
+        "{q:#?}"
+    );
+    assert!(
+        lost.why[0].contains("before its track ends"),
+        "{:?}",
+        lost.why
     );
 }
 

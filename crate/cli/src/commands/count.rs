@@ -118,7 +118,6 @@ pub fn stage_report(
     }
 }
 
-/// The counts in a few lines, and the caution, on standard error.
 /// The way across a line its forward crossings go on screen (y down): to the right-hand side of
 /// its first point to its last, in one of eight words.
 fn forward_on_screen(points: &[[f64; 2]]) -> Option<&'static str> {
@@ -143,6 +142,7 @@ fn forward_on_screen(points: &[[f64; 2]]) -> Option<&'static str> {
     Some(WAYS[(eighth as i64).rem_euclid(8) as usize])
 }
 
+/// The counts in a few lines, and the caution, on standard error.
 pub fn summarise(report: &Report, quiet: bool) {
     if quiet {
         return;

@@ -49,6 +49,13 @@ pub fn run(args: Args) -> Result<(), Failure> {
     let (truth, report) = (&args.truth, &args.report);
     let bytes = read_file(truth)?;
     if is_project(&bytes) {
+        if args.all_classes {
+            return Err(crate::files::bad_usage(
+                "--all-classes is for a manual count CSV or a report as the reference; a \
+                 project's hand counts are compared as they were made (by class when a class was \
+                 chosen, else all classes together)",
+            ));
+        }
         return tallies(truth, report, &bytes, args.json);
     }
     let automated =
@@ -127,7 +134,8 @@ fn classes_as_known(
     if !args.all_classes && !unclassified {
         return reference;
     }
-    if !args.all_classes && !args.json {
+    if !args.all_classes {
+        // On standard error, so that it is seen with --json too.
         eprintln!(
             "note: the report's tracks carry no classes (all `unclassified`: detections without \
              classes, or footage searched without the two heights?), so all classes are compared \

@@ -184,8 +184,9 @@ fn warn_of_stale_truth(dir: &Path, names: &[&str], paths: &[PathBuf]) {
         .collect();
     if !stale.is_empty() {
         eprintln!(
-            "warning: {} holds {} from an earlier scene, not this one: give --plan to write this \
-             scene's, or remove them before comparing counts",
+            "warning: {} holds {}, which this run did not write (no --plan): they may be of an \
+             earlier scene; give --plan to write this scene's, or remove them before comparing \
+             counts",
             dir.display(),
             stale.join(" and ")
         );

@@ -96,16 +96,20 @@ impl Lines {
             .at(line, None));
         }
         if count > MOST_COLUMNS {
-            return Err(Error::new(
-                ErrorKind::WrongColumnCount,
-                format!(
-                    "{count} columns, but the benchmark text format has at most {MOST_COLUMNS} \
-                     (frame,id,x,y,w,h,score, then a class or x,y,z): a number written with a \
-                     decimal comma (`143,57` for `143.57`) makes more; write decimals with a full \
-                     stop"
-                ),
-            )
-            .at(line, None));
+            // Empty fields at the end (`…,-1,`) are no columns.
+            let filled = l.trim_end_matches([',', ' ', '\t']).split(',').count();
+            if filled > MOST_COLUMNS {
+                return Err(Error::new(
+                    ErrorKind::WrongColumnCount,
+                    format!(
+                        "{filled} columns, but the benchmark text format has at most \
+                         {MOST_COLUMNS} (frame,id,x,y,w,h,score, then a class or x,y,z): numbers \
+                         written with a decimal comma (`143,57` for `143.57`) make more, so write \
+                         decimals with a full stop; or leave out the columns after the tenth"
+                    ),
+                )
+                .at(line, None));
+            }
         }
         let mut v = [0.0; 7];
         for (k, name) in BENCHMARK_COLUMNS.iter().enumerate() {
@@ -173,7 +177,14 @@ fn quick_row(b: &[u8]) -> Option<([f64; 7], Option<i64>, usize)> {
     let end = rest.iter().position(|&c| c == b'\n').unwrap_or(rest.len());
     // Eight columns so far, and one more after each comma: more than the format has is left to
     // the general reading, which names the mistake.
-    let more = rest[..end].iter().filter(|&&c| c == b',').count();
+    let line = &rest[..end];
+    let filled = line.len()
+        - line
+            .iter()
+            .rev()
+            .take_while(|&&c| matches!(c, b',' | b' ' | b'\t' | b'\r'))
+            .count();
+    let more = line[..filled].iter().filter(|&&c| c == b',').count();
     if 8 + more > MOST_COLUMNS {
         return None;
     }

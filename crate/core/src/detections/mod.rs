@@ -158,7 +158,8 @@ pub struct Warning {
 pub struct ReadReport {
     pub detections: Detections,
     pub format: DetectionFormat,
-    /// The first few warnings, in file order.
+    /// The first few warnings: the one about a last row perhaps cut short first, then the others
+    /// in file order, then how many rows were passed over in all when not all are listed.
     pub warnings: Vec<Warning>,
     /// How many rows were passed over in all (may exceed `warnings.len()`).
     pub skipped_rows: usize,
@@ -205,7 +206,7 @@ impl Warnings {
             kept.push(Warning {
                 line: None,
                 message: format!(
-                    "{} rows passed over in all (the first {} listed)",
+                    "{} passed over in all (the first {} listed)",
                     self.count, self.listed
                 ),
             });

@@ -23,7 +23,7 @@ pub struct CorrectedTracks {
 /// [`apply_to_tracks`], with the pairs split apart.
 pub fn corrected_tracks(tracks: &Tracks, edits: &[Edit]) -> CorrectedTracks {
     let mut out = tracks.clone();
-    let mut split_apart = Vec::new();
+    let mut split_apart: Vec<[u32; 2]> = Vec::new();
     let outcomes = edits
         .iter()
         .map(|edit| {
@@ -31,7 +31,20 @@ pub fn corrected_tracks(tracks: &Tracks, edits: &[Edit]) -> CorrectedTracks {
                 return None;
             }
             let result = apply(&mut out.tracks, edit).map(|(note, apart)| {
-                split_apart.extend(apart);
+                if let Some([kept, new]) = apart {
+                    // Both pieces stay apart from whatever the track was split from before, so a
+                    // second split does not let the first's pieces be joined again.
+                    let before: Vec<[u32; 2]> = split_apart
+                        .iter()
+                        .filter_map(|&[a, b]| match (a == kept, b == kept) {
+                            (true, _) => Some([new, b]),
+                            (_, true) => Some([a, new]),
+                            _ => None,
+                        })
+                        .collect();
+                    split_apart.extend(before);
+                    split_apart.push([kept, new]);
+                }
                 note
             });
             Some(Outcome {

@@ -150,7 +150,7 @@ fn header_block(report: &Report, ctx: &Context) -> Vec<(String, String)> {
             "Site".to_string(),
             ctx.site.clone().unwrap_or_else(|| "not named".into()),
         ),
-        ("Recording".into(), recording(report)),
+        ("Recording".into(), recording(report, false)),
         (
             "Plan".into(),
             ctx.plan_name
@@ -176,8 +176,7 @@ fn corrections(report: &Report) -> String {
     let left = report.edits.len() - applied;
     let mut text = match applied {
         0 => "none".to_string(),
-        1 => "1 made by a person and applied before counting".to_string(),
-        n => format!("{n} made by a person and applied before counting"),
+        n => format!("{n} made by a person and applied"),
     };
     if left > 0 {
         text.push_str(&format!("; {left} could not be applied"));
@@ -186,7 +185,9 @@ fn corrections(report: &Report) -> String {
 }
 
 /// When the footage was recorded: its start clock time (when the plan gives it) and its length.
-pub(super) fn recording(report: &Report) -> String {
+/// `for_people`: the start as a date and a time ("2026-03-02 07:00:00", for the summary); else as
+/// the plan and the grid's rows write it ("2026-03-02T07:00:00").
+pub(super) fn recording(report: &Report, for_people: bool) -> String {
     let length = format!(
         "{:.1} minutes ({} frames at {} fps)",
         report.duration_seconds / 60.0,
@@ -194,8 +195,8 @@ pub(super) fn recording(report: &Report) -> String {
         report.plan.frame_rate
     );
     match &report.plan.start {
-        // A date and a time, as a person writes them (the plan's `T` is for machines).
-        Some(start) => format!("from {}, {length}", start.replacen('T', " ", 1)),
+        Some(start) if for_people => format!("from {}, {length}", start.replacen('T', " ", 1)),
+        Some(start) => format!("from {start}, {length}"),
         None => format!("start not given, {length}"),
     }
 }

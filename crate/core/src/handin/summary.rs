@@ -28,7 +28,7 @@ pub fn summary_html(report: &Report, ctx: &Context) -> String {
         esc(site),
         esc(&file_stem(report, ctx)),
         esc(site),
-        esc(&recording(report))
+        esc(&recording(report, true))
     );
     let _ = writeln!(
         h,

@@ -70,6 +70,9 @@ pub struct Doubt {
     /// The crossing concerned, when it is one (to reject it).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub crossing: Option<CrossingRef>,
+    /// For two crossings close together, the other one (either may be the one counted twice).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub close_to: Option<CrossingRef>,
     /// Each reason in plain words, one sentence each, in the order of `kinds`.
     pub why: Vec<String>,
     /// Higher is more doubtful (the reasons' weights added): the queue's order.
@@ -190,6 +193,7 @@ fn grouped(doubts: Vec<Doubt>) -> Vec<Doubt> {
             Some(&k) => {
                 let o = &mut out[k];
                 o.weight += d.weight;
+                o.close_to = o.close_to.take().or(d.close_to);
                 reasons[k].extend(these);
                 for t in d.tracks {
                     if !o.tracks.contains(&t) {
@@ -228,14 +232,20 @@ fn doubt(kind: DoubtKind, e: &Event, tracks: Vec<u32>, why: String, weight: u32)
         seconds: e.seconds,
         time: e.time.clone(),
         tracks,
-        crossing: Some(CrossingRef {
-            screenline: e.name.clone(),
-            direction: way(e.direction),
-            track: e.track,
-            frame: e.frame,
-        }),
+        crossing: Some(crossing_ref(e)),
+        close_to: None,
         why: vec![why],
         weight,
+    }
+}
+
+/// A crossing as a reject edit names it.
+fn crossing_ref(e: &Event) -> CrossingRef {
+    CrossingRef {
+        screenline: e.name.clone(),
+        direction: way(e.direction),
+        track: e.track,
+        frame: e.frame,
     }
 }
 

@@ -6,8 +6,9 @@
 use std::collections::HashMap;
 
 use super::{
-    boxes_of, doubt, Doubt, DoubtKind, Scene, AT_END_SECONDS, CLASS_SHARE, CLOSE_SECONDS,
-    HIDDEN_LONG, LOW_SCORE, NEAR_LINE_HEIGHTS, ON_LINE_HEIGHTS, SHORT_BOXES, SHORT_SECONDS,
+    boxes_of, crossing_ref, doubt, Doubt, DoubtKind, Scene, AT_END_SECONDS, CLASS_SHARE,
+    CLOSE_SECONDS, HIDDEN_LONG, LOW_SCORE, NEAR_LINE_HEIGHTS, ON_LINE_HEIGHTS, SHORT_BOXES,
+    SHORT_SECONDS,
 };
 use crate::geometry::{BBox, Point};
 use crate::plan::{Anchor, Plan};
@@ -122,26 +123,32 @@ fn hidden(e: &Event, boxes: &[&crate::track::TrackBox], fps: f64, out: &mut Vec<
 /// people there. Ends where the footage itself starts or ends are left out; an end at the
 /// picture's edge (someone coming into view or leaving it by a line drawn near the edge, as at a
 /// doorway) is a lesser doubt, weight 1: there every crossing is near its track's end, and which
-/// side it came from, or went to, was not seen.
+/// side it came from, or went to, was not seen. Both ends are weighed; the heavier is the doubt.
 fn at_track_end(
     e: &Event,
     (first, last): (&crate::track::TrackBox, &crate::track::TrackBox),
     scene: &Scene,
     out: &mut Vec<Doubt>,
 ) {
-    let ends = [(first, true), (last, false)]
+    // Each end (not the footage's own) weighed; the heavier is the doubt (an end at the picture's
+    // edge just before the line must not hide one lost just after it), the nearer on a tie.
+    let weighed = [(first, true), (last, false)]
         .into_iter()
-        .filter(|(b, starts)| !scene.at_footage_edge(b.frame, *starts));
-    let Some((b, starts)) = ends.min_by_key(|(b, _)| b.frame.abs_diff(e.frame)) else {
+        .filter(|(b, starts)| !scene.at_footage_edge(b.frame, *starts))
+        .filter_map(|(b, starts)| {
+            let seconds = f64::from(b.frame.abs_diff(e.frame)) / scene.fps;
+            let at_edge = scene.at_edge(&b.bbox);
+            let weight = match seconds {
+                _ if seconds >= AT_END_SECONDS[0] => return None,
+                _ if at_edge => 1,
+                s if s < AT_END_SECONDS[1] => 5,
+                _ => 2,
+            };
+            Some((weight, seconds, starts, at_edge))
+        })
+        .max_by(|a, b| a.0.cmp(&b.0).then(b.1.total_cmp(&a.1)));
+    let Some((weight, seconds, starts, at_edge)) = weighed else {
         return;
-    };
-    let seconds = f64::from(b.frame.abs_diff(e.frame)) / scene.fps;
-    let at_edge = scene.at_edge(&b.bbox);
-    let weight = match seconds {
-        _ if seconds >= AT_END_SECONDS[0] => return,
-        _ if at_edge => 1,
-        s if s < AT_END_SECONDS[1] => 5,
-        _ => 2,
     };
     let what = noun(&e.class);
     let why = match (starts, at_edge) {
@@ -221,13 +228,15 @@ fn close_together(
             first.track,
             then.track
         );
-        out.push(doubt(
+        let mut d = doubt(
             DoubtKind::CloseTogether,
             e,
             vec![first.track, then.track],
             why,
             2,
-        ));
+        );
+        d.close_to = Some(crossing_ref(o));
+        out.push(d);
     }
 }
 
@@ -302,6 +311,7 @@ pub(super) fn line_end_doubts(
             time: label_at(report, seconds),
             tracks: vec![t.id],
             crossing: None,
+            close_to: None,
             why: vec![why],
             weight: 1,
         });
