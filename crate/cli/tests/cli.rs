@@ -1036,3 +1036,39 @@ fn count_given_a_tracking_method_says_where_it_belongs() {
         "{e}"
     );
 }
+
+/// A clip of detections ends at its last box; a quiet end made its last interval look partial.
+/// `--frames` gives the footage's whole length (and one shorter than the boxes is refused).
+#[test]
+fn frames_gives_the_clips_length_when_the_detections_end_early() {
+    let dir = scratch("frames");
+    let text = std::fs::read_to_string(demo("detections.txt")).unwrap();
+    let early: String = text
+        .lines()
+        .filter(|l| l.split(',').next().and_then(|f| f.parse::<u32>().ok()) <= Some(700))
+        .map(|l| format!("{l}\n"))
+        .collect();
+    let dets = write(&dir, "early.txt", early.as_bytes());
+    // Intervals of 15 s: 750 frames at 25 fps make two whole ones.
+    let plan = std::fs::read_to_string(demo("plan.json"))
+        .unwrap()
+        .replace("\"interval_minutes\": 15", "\"interval_minutes\": 0.25");
+    assert!(plan.contains("0.25"));
+    let plan = write(&dir, "plan.json", plan.as_bytes());
+    let partial = |extra: &[&str]| {
+        let report = dir.join("r.json").display().to_string();
+        let mut args = vec!["run", &dets, "--plan", &plan, "-o", &report, "-q"];
+        args.extend_from_slice(extra);
+        let o = throughline(&args);
+        assert!(o.status.success(), "{}", stderr(&o));
+        let r: serde_json::Value =
+            serde_json::from_slice(&std::fs::read(&report).unwrap()).unwrap();
+        let intervals = r["screenlines"][0]["intervals"].as_array().unwrap().clone();
+        intervals.iter().map(|i| i["partial"] == true).collect::<Vec<_>>()
+    };
+    assert_eq!(partial(&[]), vec![false, true], "ends at its last box");
+    assert_eq!(partial(&["--frames", "750"]), vec![false, false]);
+    let o = throughline(&["run", &dets, "--plan", &plan, "--frames", "600", "-q"]);
+    assert_eq!(o.status.code(), Some(2));
+    assert!(stderr(&o).contains("--frames 600: the tracks go on to frame"), "{}", stderr(&o));
+}

@@ -9,7 +9,8 @@
 //! Columns (any order; only `name`, `plan` and one of `detections` or `footage` are needed):
 //! `name` (the entry's output folder: letters, digits, `.`, `-`, `_`), `detections` (a detections
 //! file), `footage` (YUV4MPEG2, searched by the fixed-camera detector), `plan`, `site`, `camera`,
-//! `start` (the clock time of frame 1), `method`, `settings` (tracker settings), `detector`
+//! `start` (the clock time of frame 1), `frames` (the clip's length, when its detections end
+//! before it does), `method`, `settings` (tracker settings), `detector`
 //! (detector settings, with `footage`), `edits` (an edits or project file), `still` (a picture of
 //! the view for the summary). Paths are as written; the command line resolves them against the
 //! manifest's folder. Blank lines and lines starting with `#` are skipped.
@@ -22,7 +23,7 @@ use crate::track::Method;
 use std::collections::HashMap;
 
 /// The columns a manifest may have, in the order [`Entry::fields`] lists them.
-pub const COLUMNS: [&str; 12] = [
+pub const COLUMNS: [&str; 13] = [
     "name",
     "detections",
     "footage",
@@ -30,6 +31,7 @@ pub const COLUMNS: [&str; 12] = [
     "site",
     "camera",
     "start",
+    "frames",
     "method",
     "settings",
     "detector",
@@ -268,6 +270,12 @@ fn check_values(entry: &Entry) -> Result<(), (Error, &'static str)> {
             "the start {t:?} is not a clock time: write the time of the clip's first frame like 2026-03-02T07:00:00"
         )), "start"));
     }
+    let whole = |f: &str| f.parse::<u32>().is_ok_and(|n| n > 0);
+    if let Some(f) = entry.get("frames").filter(|f| !whole(f)) {
+        return Err((manifest_error(format!(
+            "the frames {f:?} are not a length in frames: write the clip's whole length as a whole number (its duration in seconds times the frame rate), or leave it empty"
+        )), "frames"));
+    }
     if entry.get("camera").is_some() && entry.get("site").is_none() {
         return Err((
             manifest_error(
@@ -297,7 +305,7 @@ mod tests {
 
     #[test]
     fn mistakes_name_their_line_and_column() {
-        let cases: [(&[u8], &str); 15] = [
+        let cases: [(&[u8], &str); 16] = [
             (b"", "empty"),
             (b"name,plan,detections\n", "no entries"),
             (
@@ -333,6 +341,10 @@ mod tests {
             (
                 b"name,plan,detections,start\na,p.json,x,yesterday\n",
                 "line 2, column 4: the start \"yesterday\" is not a clock time",
+            ),
+            (
+                b"name,plan,detections,frames\na,p.json,x,90.5\n",
+                "line 2, column 4: the frames \"90.5\" are not a length in frames",
             ),
             (
                 b"name,plan,detections,camera\na,p.json,x,north\n",

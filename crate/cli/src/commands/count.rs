@@ -31,6 +31,10 @@ pub struct Args {
     /// Corrections to replay: an edits file or a project file saved by the page.
     #[arg(long, value_name = "FILE")]
     edits: Option<PathBuf>,
+    /// The footage's length in frames, when the tracks end before it does (nobody in view at the
+    /// end): the last interval is then whole, not partial.
+    #[arg(long, value_name = "N")]
+    frames: Option<u32>,
     /// Not `count`'s (its tracks are already made): accepted only to say where it belongs.
     #[arg(long, hide = true, value_name = "METHOD")]
     method: Option<String>,
@@ -56,7 +60,7 @@ pub fn run(args: Args) -> Result<(), Failure> {
     let (work, _project) = read_work(args.edits.as_deref())?;
     let bytes = read_file(path)?;
     // A JSON array is no tracks document either, but the JSON reader says what one is.
-    let (tracks, tracker) = if looks_like_json(&bytes) {
+    let (mut tracks, tracker) = if looks_like_json(&bytes) {
         let t = tracks_io::from_json(&bytes).map_err(|e| bad_input(path, e))?;
         let config = t.config.clone();
         (t, Some(config))
@@ -76,6 +80,7 @@ pub fn run(args: Args) -> Result<(), Failure> {
         }
         (tracks_io::boxes_to_tracks(&boxes), None)
     };
+    with_length(&mut tracks, args.frames)?;
     let report = pipeline::count(&tracks, &plan, tracker.as_ref(), &work)
         .map_err(|e| bad_input(&args.plan, e))?;
     let paths = ReportPaths {
@@ -116,6 +121,33 @@ pub fn stage_report(
         }
         None => Ok(Some(json)),
     }
+}
+
+/// The footage's length (`--frames`) given to the tracks: the count's intervals reach to it. Shorter
+/// than the boxes or the footage already read is refused, naming what it must reach.
+pub fn with_length(
+    tracks: &mut throughline_core::Tracks,
+    frames: Option<u32>,
+) -> Result<(), Failure> {
+    let Some(n) = frames else {
+        return Ok(());
+    };
+    let last_box = tracks
+        .tracks
+        .iter()
+        .flat_map(|t| t.boxes.last())
+        .map(|b| b.frame)
+        .max()
+        .unwrap_or(0);
+    let reach = last_box.max(tracks.frame_count);
+    if n == 0 || n < reach {
+        return Err(bad_usage(&format!(
+            "--frames {n}: the tracks go on to frame {reach}, so the footage is at least that long: \
+             give its whole length in frames (its duration in seconds times the frame rate)"
+        )));
+    }
+    tracks.frame_count = n;
+    Ok(())
 }
 
 /// The way across a line its forward crossings go on screen (y down): to the right-hand side of

@@ -68,6 +68,10 @@ struct HandinArgs {
     /// The recording's clock time at frame 1, like 2026-03-02T07:00:00 (instead of the plan's).
     #[arg(long, value_name = "TIME")]
     start: Option<String>,
+    /// The footage's length in frames, when the detections end before it does (nobody in view at
+    /// the end): the last interval is then whole, not partial.
+    #[arg(long, value_name = "N")]
+    frames: Option<u32>,
     /// The original footage file, to name it in the outputs (only its first MiB is read).
     #[arg(long, value_name = "FILE")]
     footage: Option<PathBuf>,
@@ -103,7 +107,8 @@ pub fn run(args: Args) -> Result<(), Failure> {
     let plan = with_start(read_plan(&args.plan)?, args.handin.start.as_deref())?;
     let (work, project) = read_work(args.edits.as_deref())?;
     let project_at = args.edits.as_deref().zip(project.as_ref());
-    let tracks = track_source(&args, &plan, project_at)?;
+    let mut tracks = track_source(&args, &plan, project_at)?;
+    super::count::with_length(&mut tracks, args.handin.frames)?;
     let report = pipeline::count(&tracks, &plan, Some(&tracks.config), &work)
         .map_err(|e| bad_input(&args.plan, e))?;
     let mut files = Outputs::new();

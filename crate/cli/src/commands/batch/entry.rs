@@ -20,9 +20,10 @@ const FILE_COLUMNS: [(&str, &str); 7] = [
 ];
 
 /// The columns that are values, and their `throughline run` option (`""`: recorded only).
-const VALUE_COLUMNS: [(&str, &str); 4] = [
+const VALUE_COLUMNS: [(&str, &str); 5] = [
     ("site", "--site"),
     ("start", "--start"),
+    ("frames", "--frames"),
     ("method", "--method"),
     ("camera", ""),
 ];
