@@ -126,6 +126,7 @@ test("Clear work begins afresh: corrections, decisions and the site's name go, U
   await openTab(page, "Edits");
   await page.getByRole("button", { name: "Undo correction" }).click();
   await countedWith(page, 1);
+  assert.equal(await page.locator(".message[data-key=work-cleared]").count(), 0, "the note goes once the work is back");
   assert.deepEqual(seen.errors, []);
   await page.close();
 });

@@ -108,7 +108,9 @@ export class FilesPanel {
       const kept = this.store.detections;
       this.detectionsName.textContent = kept ? kept.label : `${name}: not read`;
       const still = kept ? ` The detections in use are unchanged: ${kept.label}.` : "";
-      this.messages.say("detections", "error", `${name} could not be read: ${/** @type {Error} */ (e).message}${still}`);
+      // The core's message may end without a full stop: the sentences must not run together.
+      const why = /** @type {Error} */ (e).message.replace(/[.\s]*$/, ".");
+      this.messages.say("detections", "error", `${name} could not be read: ${why}${still}`);
     } finally {
       this.readingFiles -= 1;
       if (this.readingFiles === 0) this.detectionsBar.hidden = true;

@@ -36,6 +36,8 @@ export class ProjectPanel {
     byId("clear-work", HTMLButtonElement).addEventListener("click", () => this.clear());
     this.site.addEventListener("change", () => store.siteNamed(this.site.value.trim()));
     store.subscribe(["site"], () => showValue(this.site, store.work.site));
+    // Said once: gone as soon as the corrections change again (an Undo brings them back).
+    store.subscribe(["edits", "marks"], () => { if (store.work.edits.length || store.work.marks.size) messages.clear("work-cleared"); });
     store.subscribe(["video"], () => this.fingerprintFootage());
     store.subscribe(["detections"], () => this.fingerprintDetections());
     store.subscribe(["prints"], () => this.check());
@@ -50,7 +52,7 @@ export class ProjectPanel {
     this.store.workCleared();
     this.projectName.textContent = "plan, corrections and decisions in one file";
     for (const key of ["project-files", "project-rules", "project-tracking"]) this.messages.clear(key);
-    this.messages.say("project", "ok", "Work cleared: no corrections, decisions or hand counts. Undo under Review brings the corrections and decisions back.");
+    this.messages.say("work-cleared", "ok", "Work cleared: no corrections, decisions or hand counts. Undo under Review brings the corrections and decisions back.");
   }
 
   /** The project as a plain object, as the core writes it. */

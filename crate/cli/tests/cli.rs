@@ -1064,11 +1064,18 @@ fn frames_gives_the_clips_length_when_the_detections_end_early() {
         let r: serde_json::Value =
             serde_json::from_slice(&std::fs::read(&report).unwrap()).unwrap();
         let intervals = r["screenlines"][0]["intervals"].as_array().unwrap().clone();
-        intervals.iter().map(|i| i["partial"] == true).collect::<Vec<_>>()
+        intervals
+            .iter()
+            .map(|i| i["partial"] == true)
+            .collect::<Vec<_>>()
     };
     assert_eq!(partial(&[]), vec![false, true], "ends at its last box");
     assert_eq!(partial(&["--frames", "750"]), vec![false, false]);
     let o = throughline(&["run", &dets, "--plan", &plan, "--frames", "600", "-q"]);
     assert_eq!(o.status.code(), Some(2));
-    assert!(stderr(&o).contains("--frames 600: the tracks go on to frame"), "{}", stderr(&o));
+    assert!(
+        stderr(&o).contains("--frames 600: the tracks go on to frame"),
+        "{}",
+        stderr(&o)
+    );
 }

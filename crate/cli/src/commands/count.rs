@@ -140,7 +140,12 @@ pub fn with_length(
         .max()
         .unwrap_or(0);
     let reach = last_box.max(tracks.frame_count);
-    if n == 0 || n < reach {
+    if n == 0 {
+        return Err(bad_usage(
+            "--frames 0: give the footage's whole length in frames, 1 or more",
+        ));
+    }
+    if n < reach {
         return Err(bad_usage(&format!(
             "--frames {n}: the tracks go on to frame {reach}, so the footage is at least that long: \
              give its whole length in frames (its duration in seconds times the frame rate)"

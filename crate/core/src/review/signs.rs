@@ -44,10 +44,17 @@ pub(super) fn crossing_doubts(
     }
     if ids.len() > 1 {
         let list: Vec<String> = ids.iter().map(u32::to_string).collect();
+        // "14 and 34", "14, 34 and 36".
+        let (last, rest) = list
+            .split_last()
+            .map_or(("", &[][..]), |(l, r)| (l.as_str(), r));
+        let named = match rest {
+            [] => last.to_string(),
+            _ => format!("{} and {last}", rest.join(", ")),
+        };
         let why = format!(
-            "Counted after joining tracks {} that the tracker lost and found again near the line: \
-             check that they are one {}.",
-            list.join(" and "),
+            "Counted after joining tracks {named} that the tracker lost and found again near the \
+             line: check that they are one {}.",
             noun(&e.class)
         );
         out.push(doubt(DoubtKind::JoinedTrack, e, ids.clone(), why, 2));
