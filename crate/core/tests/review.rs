@@ -41,7 +41,12 @@ const PLAN: &str = r#"{"frame_rate": 10, "screenlines": [{"name": "deck", "point
     "rules": {"join_seconds": 0}}"#;
 
 fn queue(list: Vec<Track>) -> Vec<Doubt> {
-    let plan = Plan::from_json(PLAN).unwrap();
+    queue_with(PLAN, list)
+}
+
+/// The queue of `list` counted with the plan `plan` (JSON), in a 400x400 picture of 100 frames.
+fn queue_with(plan: &str, list: Vec<Track>) -> Vec<Doubt> {
+    let plan = Plan::from_json(plan).unwrap();
     let tracks = Tracks {
         config: TrackerConfig::for_method(Method::Sort),
         frame_count: 100,
@@ -265,21 +270,16 @@ fn a_crossing_just_after_its_track_begins_is_doubted() {
 /// The reasons name an object without a class as an "object".
 #[test]
 fn a_crossing_just_after_coming_into_view_at_the_edge_weighs_little() {
-    let plan = Plan::from_json(
-        r#"{"frame_rate": 10, "screenlines": [{"name": "door", "points": [[30, 0], [30, 400]]}],
-            "rules": {"join_seconds": 0}}"#,
-    )
-    .unwrap();
+    let door = |list: Vec<Track>| {
+        queue_with(
+            r#"{"frame_rate": 10, "screenlines": [{"name": "door", "points": [[30, 0], [30, 400]]}],
+                "rules": {"join_seconds": 0}}"#,
+            list,
+        )
+    };
     let mut doorway = walk(1, 30, 40, (4.0, 300.0), (4.0, 0.0), 0.9);
     doorway.class = None;
-    let tracks = Tracks {
-        config: TrackerConfig::for_method(Method::Sort),
-        frame_count: 100,
-        tracks: vec![doorway],
-        crowded_frames: Vec::new(),
-    };
-    let report = pipeline::count(&tracks, &plan, None, &Default::default()).unwrap();
-    let q = doubts(&tracks, &plan, &report, Some((400.0, 400.0)));
+    let q = door(vec![doorway]);
     let at_edge = q
         .iter()
         .find(|d| d.tracks == [1])
@@ -294,16 +294,6 @@ fn a_crossing_just_after_coming_into_view_at_the_edge_weighs_little() {
         "{:?}",
         at_edge.why
     );
-    let door = |list: Vec<Track>| {
-        let tracks = Tracks {
-            config: TrackerConfig::for_method(Method::Sort),
-            frame_count: 100,
-            tracks: list,
-            crowded_frames: Vec::new(),
-        };
-        let report = pipeline::count(&tracks, &plan, None, &Default::default()).unwrap();
-        doubts(&tracks, &plan, &report, Some((400.0, 400.0)))
-    };
     // Leaving the picture at its edge just after the line: the same lesser doubt.
     let q = door(vec![walk(1, 10, 37, (160.0, 300.0), (-4.0, 0.0), 0.9)]);
     let leaving = q.iter().find(|d| d.tracks == [1]).expect("the crossing");
