@@ -121,8 +121,7 @@ export class Review {
     const focus = this.store.focus;
     if (!focus) return null;
     if (focus.doubt) {
-      const c = focus.doubt.crossing;
-      return c ? { edit: "reject_crossing", screenline: c.screenline, direction: c.direction, track: c.track, frame: c.frame } : null;
+      return rejection(focus.doubt.crossing);
     }
     return rejectEdit(focus.event);
   }
@@ -146,7 +145,7 @@ export class Review {
     }
     // Two crossings close together: either may be the one counted twice (they can differ in
     // class); the person chooses, the later one first.
-    const other = d ? otherCloseCrossing(d) : null;
+    const other = d ? rejection(d.close_to) : null;
     const edits = other ? [other, edit] : [edit];
     const said = (/** @type {RejectEdit} */ e) => `${e.screenline}, ${directionLabel(this.store, e.screenline, e.direction)}, by track ${e.track} at frame ${e.frame}${classOf(this.store, e)}`;
     const words = other
@@ -160,14 +159,13 @@ export class Review {
 }
 
 /**
- * For a doubt about two crossings close together, the other of the two (the core names it) as a
- * reject edit.
- * @param {import("./protocol.js").Doubt} d
+ * A crossing a doubt names (its own, or for two close together the other, `close_to`) as the
+ * edit that rejects it.
+ * @param {import("./protocol.js").Doubt["crossing"]} c
  * @returns {import("./edits.js").RejectEdit | null}
  */
-function otherCloseCrossing(d) {
-  const o = d.close_to;
-  return o ? { edit: "reject_crossing", screenline: o.screenline, direction: o.direction, track: o.track, frame: o.frame } : null;
+function rejection(c) {
+  return c ? { edit: "reject_crossing", screenline: c.screenline, direction: c.direction, track: c.track, frame: c.frame } : null;
 }
 
 /**

@@ -92,15 +92,13 @@ fn an_output_that_is_an_input_or_another_output_is_refused() {
     );
     // An output in a folder that does not exist is refused before the work, not after it (a
     // newcomer's trial: "os error 2" once everything was tracked).
+    let run_to = |outputs: &[&str]| {
+        let mut args = vec!["run", dets.as_str(), "--plan", plan.as_str()];
+        args.extend_from_slice(outputs);
+        throughline(&args)
+    };
     let nowhere = dir.join("no-such-folder").join("report.json");
-    let o = throughline(&[
-        "run",
-        &dets,
-        "--plan",
-        &plan,
-        "-o",
-        &nowhere.display().to_string(),
-    ]);
+    let o = run_to(&["-o", &nowhere.display().to_string()]);
     assert_eq!(o.status.code(), Some(2), "{}", stderr(&o));
     assert!(
         stderr(&o).contains("no-such-folder does not exist: create it first"),
@@ -108,16 +106,6 @@ fn an_output_that_is_an_input_or_another_output_is_refused() {
         stderr(&o)
     );
     // Writing to a device is not a clash: /dev/null takes any number of outputs.
-    let o = throughline(&[
-        "run",
-        &dets,
-        "--plan",
-        &plan,
-        "-o",
-        "/dev/null",
-        "--csv",
-        "/dev/null",
-        "-q",
-    ]);
+    let o = run_to(&["-o", "/dev/null", "--csv", "/dev/null", "-q"]);
     assert!(o.status.success(), "{}", stderr(&o));
 }

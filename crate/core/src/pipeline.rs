@@ -110,7 +110,7 @@ pub fn count(
         &edited.tracks,
         plan,
         tracker,
-        (&work.edits, &edited.split_apart),
+        (&work.edits, &edited.split_from),
     )?;
     report.edits = edited
         .outcomes

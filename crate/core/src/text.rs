@@ -92,9 +92,7 @@ pub fn wrong_field_count(found: usize, want: usize, text: &str, line: usize) -> 
 fn has_decimal_comma(text: &str) -> bool {
     let fields: Vec<&str> = text.split(',').map(str::trim).collect();
     fields.windows(2).any(|w| {
-        let whole = !w[0].is_empty() && w[0].bytes().all(|b| b.is_ascii_digit());
-        let part = (1..=3).contains(&w[1].len()) && w[1].bytes().all(|b| b.is_ascii_digit());
-        whole && part && w[0] == "0"
+        w[0] == "0" && (1..=3).contains(&w[1].len()) && w[1].bytes().all(|b| b.is_ascii_digit())
     })
 }
 
@@ -127,6 +125,18 @@ pub fn key_before(text: &str, line: usize, column: usize) -> Option<&str> {
     }
     let (start, end) = key?;
     before.get(start..end).filter(|k| !k.is_empty())
+}
+
+/// Items as words of a sentence, the last two joined by `word`: `a`, `a and b`, `a, b and c`.
+pub fn listed<S: AsRef<str>>(items: &[S], word: &str) -> String {
+    match items.split_last() {
+        None => String::new(),
+        Some((last, [])) => last.as_ref().to_string(),
+        Some((last, rest)) => {
+            let rest: Vec<&str> = rest.iter().map(AsRef::as_ref).collect();
+            format!("{} {word} {}", rest.join(", "), last.as_ref())
+        }
+    }
 }
 
 /// Splits a CSV line on commas, honouring double quotes around a field.
@@ -310,6 +320,14 @@ mod tests {
         assert_eq!(key_before(text, 1, 1), None);
         assert_eq!(key_before(text, 9, 1), None);
         assert_eq!(key_before(text, 0, 1), None);
+    }
+
+    #[test]
+    fn items_are_listed_as_a_sentence() {
+        assert_eq!(super::listed::<&str>(&[], "and"), "");
+        assert_eq!(super::listed(&["7"], "and"), "7");
+        assert_eq!(super::listed(&["7", "11"], "and"), "7 and 11");
+        assert_eq!(super::listed(&["14", "34", "36"], "or"), "14, 34 or 36");
     }
 
     #[test]

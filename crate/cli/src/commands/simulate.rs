@@ -188,7 +188,7 @@ fn warn_of_stale_truth(dir: &Path, names: &[&str], paths: &[PathBuf]) {
              earlier scene; give --plan to write this scene's, or remove them before comparing \
              counts",
             dir.display(),
-            stale.join(" and ")
+            throughline_core::text::listed(&stale, "and")
         );
     }
 }

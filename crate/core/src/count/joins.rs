@@ -6,7 +6,7 @@ use super::paths::{distance_to_line, Counted, PathPoint, UNCLASSIFIED};
 use crate::geometry::{Point, Segment};
 use crate::plan::Plan;
 use crate::report::Join;
-use std::collections::HashSet;
+use std::collections::BTreeMap;
 
 /// A possible join: how far the later piece started from where the earlier was heading, the two
 /// pieces (indices), and the gap in frames.
@@ -17,12 +17,12 @@ struct Candidate {
     gap: u32,
 }
 
-/// The counted tracks after joining, sorted by their first id, and the joins made; two tracks a
-/// person split apart (`split_apart`) are never joined.
+/// The counted tracks after joining, sorted by their first id, and the joins made; two pieces of
+/// one track a person split (`split_from`: piece → the track first split) are never joined.
 pub(super) fn join_fragments(
     mut pieces: Vec<Counted>,
     plan: &Plan,
-    split_apart: &[[u32; 2]],
+    split_from: &BTreeMap<u32, u32>,
 ) -> (Vec<Counted>, Vec<Join>) {
     let mut joins = Vec::new();
     let rules = plan.spec.rules;
@@ -32,13 +32,12 @@ pub(super) fn join_fragments(
             pieces
         } else {
             pieces.sort_by_key(|c| (c.points[0].frame, c.ids[0]));
-            let apart: HashSet<[u32; 2]> = split_apart
-                .iter()
-                .flat_map(|&[a, b]| [[a, b], [b, a]])
-                .collect();
+            let family = |k: usize| split_from.get(&pieces[k].ids[0]);
             let mut candidates = candidates(&pieces, plan, max_gap);
-            candidates
-                .retain(|c| !apart.contains(&[pieces[c.earlier].ids[0], pieces[c.later].ids[0]]));
+            candidates.retain(|c| match (family(c.earlier), family(c.later)) {
+                (Some(a), Some(b)) => a != b,
+                _ => true,
+            });
             let next = link(&pieces, candidates, &mut joins);
             merge_chains(&pieces, &next)
         };

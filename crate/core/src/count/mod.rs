@@ -33,6 +33,7 @@ use crate::error::Error;
 use crate::plan::Plan;
 use crate::report::{Event, Report, CAUTION, FORMAT, VERSION};
 use crate::track::{TrackerConfig, Tracks};
+use std::collections::BTreeMap;
 use timeline::Timeline;
 
 /// Counts tracks against a plan. `tracker` is recorded in the report as the settings the tracks
@@ -42,24 +43,24 @@ pub fn count(
     plan: &Plan,
     tracker: Option<&TrackerConfig>,
 ) -> Result<Report, Error> {
-    Ok(corrected(tracks, plan, tracker, (&[], &[]))?.0)
+    Ok(corrected(tracks, plan, tracker, (&[], &BTreeMap::new()))?.0)
 }
 
 /// Counts tracks against a plan with the person's corrections to the counts (`edits`: the edits
 /// on counts are applied, the others passed over), never joining as fragments of one object two
-/// tracks the person split apart (`split_apart`, pairs of ids); the report, and an outcome for
+/// pieces of a track the person split (`split_from`, piece → track); the report, and an outcome for
 /// each edit on counts (`None` for the others). An error when the footage would span more
 /// intervals than a report may hold.
 pub fn corrected(
     tracks: &Tracks,
     plan: &Plan,
     tracker: Option<&TrackerConfig>,
-    (edits, split_apart): (&[Edit], &[[u32; 2]]),
+    (edits, split_from): (&[Edit], &BTreeMap<u32, u32>),
 ) -> Result<(Report, Vec<Option<Outcome>>), Error> {
     let timeline = Timeline::new(tracks, plan)?;
     let half = plan.spec.rules.smooth_half_frames(plan.spec.frame_rate);
     let pieces = paths::pieces(tracks, plan.spec.anchor, half);
-    let (counted, joins) = joins::join_fragments(pieces, plan, split_apart);
+    let (counted, joins) = joins::join_fragments(pieces, plan, split_from);
     let mut events: Vec<Event> = plan
         .screenlines
         .iter()

@@ -96,8 +96,7 @@ impl Lines {
             .at(line, None));
         }
         if count > MOST_COLUMNS {
-            // Empty fields at the end (`…,-1,`) are no columns.
-            let filled = l.trim_end_matches([',', ' ', '\t']).split(',').count();
+            let filled = 1 + commas_before_empty_end(l.as_bytes());
             if filled > MOST_COLUMNS {
                 return Err(Error::new(
                     ErrorKind::WrongColumnCount,
@@ -177,18 +176,24 @@ fn quick_row(b: &[u8]) -> Option<([f64; 7], Option<i64>, usize)> {
     let end = rest.iter().position(|&c| c == b'\n').unwrap_or(rest.len());
     // Eight columns so far, and one more after each comma: more than the format has is left to
     // the general reading, which names the mistake.
-    let line = &rest[..end];
-    let filled = line.len()
-        - line
-            .iter()
-            .rev()
-            .take_while(|&&c| matches!(c, b',' | b' ' | b'\t' | b'\r'))
-            .count();
-    let more = line[..filled].iter().filter(|&&c| c == b',').count();
-    if 8 + more > MOST_COLUMNS {
+    if 8 + commas_before_empty_end(&rest[..end]) > MOST_COLUMNS {
         return None;
     }
     Some((v, Some(class), at + (end + 1).min(rest.len())))
+}
+
+/// The commas of a line (or of its end past some column), leaving out the empty fields that end
+/// it (`…,-1,`, spaces, a `\r`): those are no columns.
+fn commas_before_empty_end(line: &[u8]) -> usize {
+    let empty = line
+        .iter()
+        .rev()
+        .take_while(|&&c| matches!(c, b',' | b' ' | b'\t' | b'\r'))
+        .count();
+    line[..line.len() - empty]
+        .iter()
+        .filter(|&&c| c == b',')
+        .count()
 }
 
 /// Where the next line starts when `b` has a line end (`\n`, `\r\n`, or the end of the text)

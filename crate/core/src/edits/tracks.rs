@@ -3,6 +3,7 @@
 use super::{Edit, Outcome, TrackRef};
 use crate::geometry::BBox;
 use crate::track::{Track, TrackBox, Tracks};
+use std::collections::BTreeMap;
 
 /// The tracks after the edits on tracks, and an outcome for each of those edits (`None` for the
 /// edits on counts, which the counting applies).
@@ -11,19 +12,19 @@ pub fn apply_to_tracks(tracks: &Tracks, edits: &[Edit]) -> (Tracks, Vec<Option<O
     (c.tracks, c.outcomes)
 }
 
-/// What the edits on tracks made: the tracks, an outcome for each edit, and the pairs of tracks a
-/// person split apart (the first id and the new one), which the counting must not join again as
-/// fragments of one object.
+/// What the edits on tracks made: the tracks, an outcome for each edit, and the families of the
+/// tracks a person split: each piece's id with the id of the track it was first split from, so
+/// that the counting never joins two pieces of one family again as fragments of one object.
 pub struct CorrectedTracks {
     pub tracks: Tracks,
     pub outcomes: Vec<Option<Outcome>>,
-    pub split_apart: Vec<[u32; 2]>,
+    pub split_from: BTreeMap<u32, u32>,
 }
 
-/// [`apply_to_tracks`], with the pairs split apart.
+/// [`apply_to_tracks`], with the families of the tracks split.
 pub fn corrected_tracks(tracks: &Tracks, edits: &[Edit]) -> CorrectedTracks {
     let mut out = tracks.clone();
-    let mut split_apart: Vec<[u32; 2]> = Vec::new();
+    let mut split_from: BTreeMap<u32, u32> = BTreeMap::new();
     let outcomes = edits
         .iter()
         .map(|edit| {
@@ -32,18 +33,10 @@ pub fn corrected_tracks(tracks: &Tracks, edits: &[Edit]) -> CorrectedTracks {
             }
             let result = apply(&mut out.tracks, edit).map(|(note, apart)| {
                 if let Some([kept, new]) = apart {
-                    // Both pieces stay apart from whatever the track was split from before, so a
-                    // second split does not let the first's pieces be joined again.
-                    let before: Vec<[u32; 2]> = split_apart
-                        .iter()
-                        .filter_map(|&[a, b]| match (a == kept, b == kept) {
-                            (true, _) => Some([new, b]),
-                            (_, true) => Some([a, new]),
-                            _ => None,
-                        })
-                        .collect();
-                    split_apart.extend(before);
-                    split_apart.push([kept, new]);
+                    // The new piece joins the family of the track it came from, so a second split
+                    // does not let the first's pieces be joined again.
+                    let first = *split_from.entry(kept).or_insert(kept);
+                    split_from.insert(new, first);
                 }
                 note
             });
@@ -58,7 +51,7 @@ pub fn corrected_tracks(tracks: &Tracks, edits: &[Edit]) -> CorrectedTracks {
     CorrectedTracks {
         tracks: out,
         outcomes,
-        split_apart,
+        split_from,
     }
 }
 

@@ -44,14 +44,7 @@ pub(super) fn crossing_doubts(
     }
     if ids.len() > 1 {
         let list: Vec<String> = ids.iter().map(u32::to_string).collect();
-        // "14 and 34", "14, 34 and 36".
-        let (last, rest) = list
-            .split_last()
-            .map_or(("", &[][..]), |(l, r)| (l.as_str(), r));
-        let named = match rest {
-            [] => last.to_string(),
-            _ => format!("{} and {last}", rest.join(", ")),
-        };
+        let named = crate::text::listed(&list, "and");
         let why = format!(
             "Counted after joining tracks {named} that the tracker lost and found again near the \
              line: check that they are one {}.",
@@ -344,16 +337,22 @@ fn on_the_line_as_footage_ends(
     starts: bool,
     (plan, report): (&Plan, &Report),
 ) -> Option<String> {
+    if heights > ON_LINE_HEIGHTS {
+        return None;
+    }
     let anchor = plan.spec.anchor;
-    let leaves = t
-        .boxes
-        .iter()
-        .any(|b| distance(&b.bbox, line, anchor) > ON_LINE_HEIGHTS * h);
-    let counted = report
-        .events
-        .iter()
-        .any(|e| e.name == line.name && e.track_ids.contains(&t.id));
-    if heights > ON_LINE_HEIGHTS || !leaves || counted {
+    let leaves = || {
+        t.boxes
+            .iter()
+            .any(|b| distance(&b.bbox, line, anchor) > ON_LINE_HEIGHTS * h)
+    };
+    let counted = || {
+        report
+            .events
+            .iter()
+            .any(|e| e.name == line.name && e.track_ids.contains(&t.id))
+    };
+    if !leaves() || counted() {
         return None;
     }
     let (when, how) = match starts {

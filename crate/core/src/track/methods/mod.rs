@@ -85,12 +85,7 @@ impl Method {
 
     /// The names as a sentence: `iou, sort, bytetrack or deepsort`.
     pub fn names_listed() -> String {
-        let names = Self::names();
-        match names.split_last() {
-            Some((last, [])) => last.to_string(),
-            Some((last, rest)) => format!("{} or {last}", rest.join(", ")),
-            None => String::new(),
-        }
+        crate::text::listed(&Self::names(), "or")
     }
 }
 
