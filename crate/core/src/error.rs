@@ -159,7 +159,7 @@ fn nearest_known_field(message: &str) -> Option<&str> {
 }
 
 /// Levenshtein distance over characters (names are short: a field name, not file contents).
-fn edit_distance(a: &str, b: &str) -> usize {
+pub(crate) fn edit_distance(a: &str, b: &str) -> usize {
     let b: Vec<char> = b.chars().collect();
     let mut row: Vec<usize> = (0..=b.len()).collect();
     for (i, ca) in a.chars().enumerate() {

@@ -578,6 +578,23 @@ fn a_json_elements_mistake_is_placed_at_its_field() {
         e.message.starts_with("element 1: missing field `bbox`"),
         "{e}"
     );
+    assert!(!e.message.contains("meant to be"), "{e}");
+    // A field written under a near name (and another the reader passes over): that name said.
+    let e = read_detections(
+        b"[{\"image_id\": 1, \"box\": [1, 2, 3, 4], \"id\": 3, \"score\": 0.9},\n {\"image_id\": 2, \"Score\": 0.9, \"bbox\": [1, 2, 3, 4]}]",
+    )
+    .unwrap_err();
+    assert!(
+        e.message
+            .starts_with("element 1: missing field `bbox` (is `box` meant to be `bbox`?)"),
+        "{e}"
+    );
+    let e = read_detections(b"[{\"image_id\": 2, \"Score\": 0.9, \"bbox\": [1, 2, 3, 4]}]")
+        .unwrap_err();
+    assert!(
+        e.message.contains("(is `Score` meant to be `score`?)"),
+        "{e}"
+    );
     // An element that is not an object: the array's shape said, no type name of ours.
     let good = "{\"image_id\": 1, \"bbox\": [1, 2, 3, 4], \"score\": 0.5}";
     for (text, n) in [(format!("[{good}, \"x\"]"), 2), ("[1, 2]".to_string(), 1)] {

@@ -301,7 +301,12 @@ fn placed(text: &str, e: &serde_json::Error, failure: &Failure) -> Error {
     }
     let mut err = Error::from_json(ErrorKind::BadJson, e, "");
     err.message = format!("element {element}: {}", err.message);
-    if message.starts_with("missing field") {
+    if let Some(field) = message
+        .strip_prefix("missing field `")
+        .and_then(|m| m.split('`').next())
+    {
+        err.message
+            .push_str(&misspelt_key(text, element, field).unwrap_or_default());
         // Placed at the element's start: the parser is at its end by then.
         return at_field(err, None);
     }
@@ -317,9 +322,19 @@ const SHAPE: &str = "; expected a JSON array of {\"image_id\": frame, \"category
                      \"bbox\": [x, y, w, h], \"score\": s}";
 
 /// The line and column (1-based) of the key `"field"` in the `element`th object of the top array
-/// (or of the object's `{` when no field is given, or it is not written as a key there), found by
-/// a scan that skips strings.
+/// (or of the object's `{` when no field is given, or it is not written as a key there).
 fn field_place(text: &str, element: usize, field: Option<&str>) -> Option<(usize, usize)> {
+    let (start, end) = element_span(text, element)?;
+    let key = match (field, end) {
+        (Some(f), Some(end)) => key_at(&text[start..=end], f).unwrap_or(0),
+        _ => 0,
+    };
+    Some(line_and_column(text, start + key))
+}
+
+/// Where the `element`th object of the top array begins (its `{`) and ends (its `}`, when the
+/// text holds it), found by a scan that skips strings.
+fn element_span(text: &str, element: usize) -> Option<(usize, Option<usize>)> {
     let (mut depth, mut count, mut in_string, mut escaped) = (0usize, 0usize, false, false);
     let mut start = None;
     for (at, c) in text.char_indices() {
@@ -346,14 +361,30 @@ fn field_place(text: &str, element: usize, field: Option<&str>) -> Option<(usize
             ']' | '}' => {
                 depth = depth.saturating_sub(1);
                 if let (Some(s), 1) = (start, depth) {
-                    let key = field.and_then(|f| key_at(&text[s..=at], f)).unwrap_or(0);
-                    return Some(line_and_column(text, s + key));
+                    return Some((s, Some(at)));
                 }
             }
             _ => {}
         }
     }
-    start.map(|s| line_and_column(text, s))
+    start.map(|s| (s, None))
+}
+
+/// For an element missing `field`: the key it holds instead that is likely a misspelling of it
+/// (not one of the fields read, at most two letters apart), as " (is `box` meant to be `bbox`?)".
+fn misspelt_key(text: &str, element: usize, field: &str) -> Option<String> {
+    const READ: [&str; 5] = ["image_id", "category_id", "bbox", "score", "embedding"];
+    let (start, end) = element_span(text, element)?;
+    let object: serde_json::Map<String, serde_json::Value> =
+        serde_json::from_str(&text[start..=end?]).ok()?;
+    let key = object
+        .keys()
+        .filter(|k| !READ.contains(&k.as_str()))
+        .map(|k| (k, crate::error::edit_distance(&k.to_lowercase(), field)))
+        .filter(|&(k, d)| d <= 2 && d < k.chars().count())
+        .min_by_key(|&(_, d)| d)?
+        .0;
+    Some(format!(" (is `{key}` meant to be `{field}`?)"))
 }
 
 /// Where `"field"` is written as a key in `object` (followed by a colon): a value that happens to
