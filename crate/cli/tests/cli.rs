@@ -1079,3 +1079,52 @@ fn frames_gives_the_clips_length_when_the_detections_end_early() {
         stderr(&o)
     );
 }
+
+/// Boxes found in footage know its length: a clip whose last two seconds show nobody is counted
+/// to its end by `run --y4m` (as the page's Find does), and `detect -o` says what `--frames` to
+/// give the boxes it writes.
+#[test]
+fn footage_found_boxes_keep_the_clips_length() {
+    let dir = scratch("footage-length");
+    let (w, h, frames) = (160usize, 120usize, 100usize);
+    let mut y4m = format!("YUV4MPEG2 W{w} H{h} F25:1 Ip A1:1 C420jpeg\n").into_bytes();
+    for k in 0..frames {
+        y4m.extend_from_slice(b"FRAME\n");
+        let mut luma: Vec<u8> = (0..w * h)
+            .map(|i| 120 + ((i * 7 + i / w * 3) % 5) as u8)
+            .collect();
+        // A dark figure walks down across the picture in the first 50 frames, then leaves.
+        if k < 50 {
+            let top = 2 * k;
+            for y in top..(top + 26).min(h) {
+                for x in 70..80 {
+                    luma[y * w + x] = 40;
+                }
+            }
+        }
+        y4m.extend_from_slice(&luma);
+        y4m.extend(std::iter::repeat_n(128u8, 2 * (w / 2) * (h / 2)));
+    }
+    let footage = write(&dir, "quiet-end.y4m", &y4m);
+    let plan = write(
+        &dir,
+        "plan.json",
+        br#"{ "frame_rate": 25, "screenlines": [ { "name": "mid", "points": [[0, 60], [160, 60]] } ] }"#,
+    );
+    let report = dir.join("r.json").display().to_string();
+    let o = throughline(&[
+        "run", "--y4m", &footage, "--plan", &plan, "-o", &report, "-q",
+    ]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let r: serde_json::Value = serde_json::from_slice(&std::fs::read(&report).unwrap()).unwrap();
+    assert_eq!(
+        r["frame_count"], 100,
+        "the footage's length, not its last box's frame"
+    );
+    let found = dir.join("found.txt").display().to_string();
+    let o = throughline(&["detect", "--y4m", &footage, "-o", &found]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let e = stderr(&o);
+    assert!(e.contains("over 100 frames"), "{e}");
+    assert!(e.contains("give `--frames 100` to `run`"), "{e}");
+}

@@ -374,3 +374,33 @@ fn appearance_is_a_colour_and_brightness_histogram_of_each_half() {
     assert_eq!(f.len(), 1);
     assert_eq!(f[0].appearance, None);
 }
+
+#[test]
+fn the_footage_length_is_kept_when_its_last_frames_hold_no_one() {
+    use throughline_core::detect::Found;
+    use throughline_core::pipeline;
+    use throughline_core::track::{Method, TrackerConfig};
+    // Someone walks through in frames 1-20 of a 75-frame clip (three seconds at 25 a second);
+    // nobody is in view after. The clip is 75 frames long, not 20: the count's last interval,
+    // and a `--frames` for the same boxes read from a file, reach to its end.
+    let found = |k: usize| Found {
+        bbox: BBox::new(10.0 + 4.0 * k as f64, 40.0, 10.0, 26.0),
+        score: 1.0,
+        appearance: None,
+    };
+    let per_frame: Vec<Vec<Found>> = (0..75)
+        .map(|k| if k < 20 { vec![found(k)] } else { Vec::new() })
+        .collect();
+    let detector = Detector::new(quick(), W, H);
+    let dets = detector.detections_from(per_frame);
+    assert_eq!((dets.last_frame(), dets.length()), (20, 75));
+    let config = TrackerConfig::for_method(Method::Sort);
+    let tracks = pipeline::track(&dets, &config, &mut |_, _| {}).unwrap();
+    assert_eq!(tracks.frame_count, 75);
+    // Boxes read from a file know no length beyond their last box.
+    let read = throughline_core::detections::read_detections(
+        throughline_core::detections::to_file_text(&dets).as_bytes(),
+    )
+    .unwrap();
+    assert_eq!(read.detections.length(), 20);
+}

@@ -108,7 +108,7 @@ impl Session {
         let d = &report.detections;
         let summary = DetectionSummary {
             rows: d.rows.len(),
-            frames: d.last_frame(),
+            frames: d.length(),
             format,
             classes: d.classes.clone(),
             embedding_dim: d.embedding_dim,

@@ -68,9 +68,18 @@ pub fn run(args: Args) -> Result<(), Failure> {
                 "{}: {} detections over {} frames{}",
                 name(footage),
                 dets.rows.len(),
-                dets.last_frame(),
+                dets.length(),
                 output.map_or(String::new(), |p| format!(", written to {}", p.display()))
             );
+            if dets.last_frame() < dets.length() && output.is_some() {
+                eprintln!(
+                    "note: the last box is in frame {} of {}: give `--frames {}` to `run` or \
+                     `count` with this file, so its last interval is counted whole",
+                    dets.last_frame(),
+                    dets.length(),
+                    dets.length()
+                );
+            }
         }
         Ok(())
     })

@@ -101,6 +101,7 @@ impl Detector {
     ) -> Detections {
         let mut out = Detections::default();
         for (k, found) in found_per_frame.into_iter().enumerate() {
+            out.footage_frames = k as u32 + 1;
             for f in found {
                 let embedding = f.appearance.map(|v| {
                     out.embedding_dim = v.len();

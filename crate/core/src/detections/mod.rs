@@ -52,6 +52,9 @@ pub struct Detections {
     pub embedding_dim: usize,
     /// All appearance vectors, one after another.
     pub embeddings: Vec<f32>,
+    /// The footage's length in frames when the boxes were found in it (its last frames may hold
+    /// none); 0 for boxes read from a file, whose length is its last frame with a box.
+    pub footage_frames: u32,
 }
 
 impl Detections {
@@ -71,6 +74,12 @@ impl Detections {
     /// Last frame that has a detection (0 when there are none).
     pub fn last_frame(&self) -> u32 {
         self.rows.last().map_or(0, |d| d.frame)
+    }
+
+    /// The frames the detections span: the footage's length when they were found in it, else
+    /// their last frame with a box.
+    pub fn length(&self) -> u32 {
+        self.last_frame().max(self.footage_frames)
     }
 
     /// Detections grouped by frame: `(frame, rows)` in increasing frame order; frames without rows are

@@ -98,7 +98,7 @@ pub fn run_tracker(
     check_run(config, detections)?;
     let mut tracker = tracker_for(config);
     step_through(&mut tracker, detections, progress);
-    Ok(tracker.close(detections.last_frame(), detections))
+    Ok(tracker.close(detections.length(), detections))
 }
 
 /// The detections with every blob that covers the predicted boxes of two or more tracks, and is
