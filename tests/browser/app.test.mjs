@@ -172,6 +172,19 @@ test("files the page cannot use get messages that say what to do, and the plan s
   assert.ok(head >= 0, cutSaid.join("\n"));
   assert.match(cutSaid[head + 1], /line 10: the file ends without a line break after its last row \("10,-1,10,20,30,40,0\.9"\)/);
   assert.match(cutSaid[head + 6], /… and 4 more\./);
+  // More rows passed over than the core lists: its closing "N passed over in all" line is the
+  // first line's count again, not one more warning (a review: "… and 16 more" for 15).
+  const many = join(scratch, "many.txt");
+  const manyZero = Array.from({ length: 25 }, (_, k) => `${k + 1},-1,10,20,0,40,0.9`);
+  writeFileSync(many, [...manyZero, "26,-1,10,20,30,40,0.9", ""].join("\n"));
+  await page.getByLabel("Open detections").setInputFiles(many);
+  await page.waitForFunction(() => /many\.txt: 25 rows skipped/.test(document.getElementById("messages").textContent));
+  const manySaid = (await messages.innerText()).split("\n").filter((l) => l.trim());
+  const manyHead = manySaid.findIndex((l) => /many\.txt: 25 rows skipped\./.test(l));
+  assert.match(manySaid[manyHead + 6], /^… and 15 more\.$/, manySaid.join("\n"));
+  assert.ok(!manySaid.some((l) => /passed over in all/.test(l)), manySaid.join("\n"));
+  await page.getByLabel("Open detections").setInputFiles(cut);
+  await page.waitForFunction(() => /cut\.txt: 8 rows skipped/.test(document.getElementById("messages").textContent));
   // A file that cannot be read after one that could: the one in use is named as still in use (a
   // newcomer's trial: "not read" was shown, and Run then counted the earlier file unsaid).
   await page.getByLabel("Open detections").setInputFiles(badRows);

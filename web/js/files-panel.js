@@ -181,8 +181,10 @@ function isProjectText(text) {
  * @param {string[]} warnings
  */
 export function readingWarnings(name, skipped, warnings) {
-  const shown = warnings.slice(0, 5);
-  const more = warnings.length - shown.length;
+  // The core's closing "N passed over in all (…)" is what the first line says already.
+  const listed = warnings.filter((w) => !/^\d+ passed over in all \(/.test(w));
+  const shown = listed.slice(0, 5);
+  const more = listed.length - shown.length;
   const head = skipped ? `${name}: ${skipped} ${skipped === 1 ? "row" : "rows"} skipped.` : `${name}: read with ${warnings.length === 1 ? "a warning" : "warnings"}.`;
   return [head, ...shown, ...(more > 0 ? [`… and ${more} more.`] : [])].join("\n");
 }
