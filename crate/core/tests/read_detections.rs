@@ -632,3 +632,35 @@ fn a_json_elements_mistake_is_placed_at_its_field() {
     let w = &r.warnings[0].message;
     assert!(w.starts_with("score -3 is outside 0..1; "), "{w}");
 }
+
+/// A score written with a decimal comma in an eight-column row (`…,0,878`) reads as score 0 and
+/// class 878, which the tracker's `min_score` then drops: said once, at the first such row; a
+/// score of 0 before a small class (ground truth's "ignore" rows) and longer rows are not. (The
+/// decimal comma: common practice in many locales' spreadsheets.)
+#[test]
+fn a_score_with_a_decimal_comma_is_named() {
+    let warned = |text: &str| -> Vec<String> {
+        read_detections(text.as_bytes())
+            .unwrap()
+            .warnings
+            .iter()
+            .map(|w| format!("{:?}: {}", w.line, w.message))
+            .filter(|w| w.contains("decimal comma"))
+            .collect()
+    };
+    let w = warned("1,-1,10,20,30,40,0.9\n2,-1,10,20,30,40,0,878\n3,-1,10,20,30,40,0,912\n");
+    assert_eq!(w.len(), 1, "{w:?}");
+    assert!(
+        w[0].starts_with("Some(2): score 0 then 878 in the eighth column, read as class 878")
+            && w[0].contains("(`0,878` for `0.878`)"),
+        "{w:?}"
+    );
+    for quiet in [
+        "1,-1,10,20,30,40,0,7\n",
+        "1,-1,10,20,30,40,0.5,878\n",
+        "1,-1,10,20,30,40,0,878,1\n",
+        "1,-1,10,20,30,40,1,878\n",
+    ] {
+        assert!(warned(quiet).is_empty(), "{quiet}");
+    }
+}

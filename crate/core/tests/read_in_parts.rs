@@ -39,6 +39,11 @@ const BENCHMARK_LINES: &[&str] = &[
     "2,3,10.5,-20.25,30.,.5,1,2,x,y",
     "2,3,10.5,-20.25,30.,.5,1,2,x,y,z",
     "1,-1,275,71,143,57,0,86,-1,-1,-1",
+    "1,-1,275,71,143,57,0,878",
+    "1,-1,275,71,143,57,0,878,",
+    "1,-1,275,71,143,57,0,878,1",
+    "1,-1,275,71,143,57,0.0,12",
+    "1,-1,275,71,143,57,0,9",
     "1,-1,10,20,30,40,0.9,-1,-1,-1,",
     "1,-1,10,20,30,40,0.9,-1,-1,-1, ,\t",
     "1,-1,10,20,30,40,0.9,-1,-1,-1,,5",
@@ -255,6 +260,10 @@ fn warnings_read_in_two_parts_are_kept_and_counted_as_in_one() {
         .as_bytes(),
     );
     check_halves(format!("{with_id}{}{with_id}{}", tiny.repeat(25), tiny.repeat(25)).as_bytes());
+    // Scores perhaps written with a decimal comma: one warning in all, wherever the cut falls.
+    let comma = "3,-1,1,1,1,1,0,878\n";
+    check_halves(format!("{}{comma}{}{comma}{loud}", tiny.repeat(19), fine.repeat(3)).as_bytes());
+    check_halves(format!("{comma}{}{comma}{}", tiny.repeat(25), tiny.repeat(25)).as_bytes());
     // A last row with no line break after it: named last, past the kept warnings too.
     let open = "9,-1,1,1,1,1,0.5";
     check_halves(format!("{}{loud}{open}", tiny.repeat(25)).as_bytes());

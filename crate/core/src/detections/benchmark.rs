@@ -55,10 +55,10 @@ impl Lines {
         let mut at = 0;
         while let Some(rest) = bytes.get(at..).filter(|r| !r.is_empty()) {
             let row = match quick_row(rest) {
-                Some((values, class, taken)) => {
+                Some((values, class, eight, taken)) => {
                     at += taken;
                     self.r.line += 1;
-                    self.row(values, class)?
+                    self.row(values, class, eight)?
                 }
                 None => {
                     let (raw, taken) = line_at(text, at);
@@ -114,18 +114,27 @@ impl Lines {
         for (k, name) in BENCHMARK_COLUMNS.iter().enumerate() {
             v[k] = number(fields[k], name, line, k + 1)?;
         }
-        self.row(v, fields.get(7).and_then(|f| f.parse::<i64>().ok()))
+        let eight = 1 + commas_before_empty_end(l.as_bytes()) == 8;
+        self.row(v, fields.get(7).and_then(|f| f.parse::<i64>().ok()), eight)
     }
 
     /// The detection of the current line from its seven numbers and the eighth column's whole
-    /// number, if any.
-    fn row(&mut self, v: [f64; 7], class: Option<i64>) -> Result<Option<Detection>, Error> {
+    /// number, if any; `eight` when the line has eight columns, no more.
+    fn row(
+        &mut self,
+        v: [f64; 7],
+        class: Option<i64>,
+        eight: bool,
+    ) -> Result<Option<Detection>, Error> {
         let frame = frame_number(v[0], self.r.line, 1)?;
         let Some(bbox) = self.r.checked_box(BBox::new(v[2], v[3], v[4], v[5]), 5)? else {
             return Ok(None);
         };
         self.r.note_score(v[6]);
         self.r.note_id(v[1]);
+        if let (Some(c), true) = (class, eight) {
+            self.r.note_comma(v[6], c);
+        }
         // Column 8 holds a class in ground-truth style files; -1 (or a world coordinate) means none.
         let class = match class {
             Some(c) if c > 0 => Some(self.r.class(&c.to_string())?),
@@ -144,9 +153,10 @@ impl Lines {
 /// The usual line, read in one pass over its bytes: seven plain decimals (as
 /// [`plain_decimal_prefix`] reads them, within [`in_range`]) between single commas, then
 /// perhaps a comma and a whole number (`[-]digits`) ending the line or followed by a comma and
-/// anything. Gives the seven numbers, the whole number and the bytes taken up to and including
-/// the line's end; `None` for any other line, left to the general reading.
-fn quick_row(b: &[u8]) -> Option<([f64; 7], Option<i64>, usize)> {
+/// anything. Gives the seven numbers, the whole number, whether the line has eight columns and
+/// no more, and the bytes taken up to and including the line's end; `None` for any other line,
+/// left to the general reading.
+fn quick_row(b: &[u8]) -> Option<([f64; 7], Option<i64>, bool, usize)> {
     let mut v = [0.0; 7];
     let mut at = 0;
     for (k, slot) in v.iter_mut().enumerate() {
@@ -162,24 +172,25 @@ fn quick_row(b: &[u8]) -> Option<([f64; 7], Option<i64>, usize)> {
         }
     }
     if let Some(end) = line_end(b, at) {
-        return Some((v, None, end));
+        return Some((v, None, false, end));
     }
     (b.get(at) == Some(&b',')).then_some(())?;
     at += 1;
     let (class, taken) = whole_number_prefix(b.get(at..)?)?;
     at += taken;
     if let Some(end) = line_end(b, at) {
-        return Some((v, Some(class), end));
+        return Some((v, Some(class), true, end));
     }
     (b.get(at) == Some(&b',')).then_some(())?;
     let rest = b.get(at..)?;
     let end = rest.iter().position(|&c| c == b'\n').unwrap_or(rest.len());
     // Eight columns so far, and one more after each comma: more than the format has is left to
     // the general reading, which names the mistake.
-    if 8 + commas_before_empty_end(&rest[..end]) > MOST_COLUMNS {
+    let columns = 8 + commas_before_empty_end(&rest[..end]);
+    if columns > MOST_COLUMNS {
         return None;
     }
-    Some((v, Some(class), at + (end + 1).min(rest.len())))
+    Some((v, Some(class), columns == 8, at + (end + 1).min(rest.len())))
 }
 
 /// The commas of a line (or of its end past some column), leaving out the empty fields that end

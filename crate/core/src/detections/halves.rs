@@ -187,7 +187,7 @@ pub fn merge(first: Part, second: Part) -> Result<ReadReport, Error> {
 }
 
 /// The second part's warnings after the first's, kept and counted as one reading keeps them:
-/// one warning about scores and one about object ids in all, at most [`MAX_WARNINGS`] of the
+/// one warning about scores, one about object ids and one about decimal commas in all, at most [`MAX_WARNINGS`] of the
 /// others.
 fn merge_warnings(first: &mut Warnings, second: Warnings) {
     first.count += second.count;
@@ -197,6 +197,8 @@ fn merge_warnings(first: &mut Warnings, second: Warnings) {
             Some(&mut first.score_at)
         } else if second.id_at == Some(i) {
             Some(&mut first.id_at)
+        } else if second.comma_at == Some(i) {
+            Some(&mut first.comma_at)
         } else {
             None
         };

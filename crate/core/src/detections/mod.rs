@@ -188,6 +188,8 @@ pub(crate) struct Warnings {
     score_at: Option<usize>,
     /// Where in `kept` the one warning about object ids in benchmark text is, once given.
     id_at: Option<usize>,
+    /// Where in `kept` the one warning about a score perhaps written with a decimal comma is.
+    comma_at: Option<usize>,
     /// The warning about a last row with no line break after it (given after all others).
     open_end: Option<Warning>,
 }
@@ -200,6 +202,7 @@ impl Warnings {
             listed: 0,
             score_at: None,
             id_at: None,
+            comma_at: None,
             open_end: None,
         }
     }
@@ -267,6 +270,24 @@ impl Warnings {
                     "column 2 holds an object id ({id}), not -1: this looks like tracks or a ground \
                      truth, read here as detections and tracked again (to count tracks as they are: \
                      `throughline count FILE --plan PLAN`) (first such row; rows kept)"
+                ),
+            });
+        }
+    }
+
+    /// Warns about the first row of benchmark text of eight columns whose score is 0 and whose
+    /// class is 10 or more: most likely a score written with a decimal comma (`0,878` read as
+    /// score 0 and class 878), which the tracker's `min_score` then drops without a word.
+    pub(crate) fn note_comma(&mut self, score: f64, class: i64, line: usize) {
+        if score == 0.0 && class >= 10 && self.comma_at.is_none() {
+            self.comma_at = Some(self.kept.len());
+            self.kept.push(Warning {
+                line: Some(line),
+                message: format!(
+                    "score 0 then {class} in the eighth column, read as class {class}: if the score \
+                     is written with a decimal comma (`0,{class}` for `0.{class}`), write decimals \
+                     with a full stop, or every such box scores 0 and is not tracked (first such \
+                     row; rows kept)"
                 ),
             });
         }
