@@ -108,13 +108,15 @@ export class CoreClient {
   }
 
   /**
-   * Checks and sets the plan (JSON text); resolves to the report, CSV and doubtful moments when
-   * tracks exist, else null.
+   * Checks and sets the plan (JSON text) and the footage's length; resolves to the report, CSV
+   * and doubtful moments when tracks exist, else null.
    * @param {string} json
    * @param {{width: number, height: number} | null} picture the picture's size (for the doubtful moments)
+   * @param {number} footageFrames the footage's length in frames at the plan's rate (0: none):
+   *   detections from a file that end before it are counted to its end
    */
-  setPlan(json, picture) {
-    return this.call({ op: "setPlan", json, ...sizeOf(picture) });
+  setPlan(json, picture, footageFrames) {
+    return this.call({ op: "setPlan", json, ...sizeOf(picture), footageFrames });
   }
 
   /**

@@ -26,8 +26,9 @@ export class PlanSync {
       clearTimeout(this.timer);
       this.timer = setTimeout(() => this.send(), why === "edit" ? 120 : 0);
     });
-    // Footage opened after the plan: the plan is checked against its picture too.
-    store.subscribe(["video"], () => { if (store.video.playable) this.send(); });
+    // Footage opened after the plan: the plan is checked against its picture too, and the count
+    // reaches to the footage's end (detections from a file end at their last box).
+    store.subscribe(["video"], () => this.send());
   }
 
   /** Gives the plan to the core now; the counts it gives back, if any, become the page's. */
@@ -39,7 +40,11 @@ export class PlanSync {
     const { json, calibrationNote } = planForCore(this.store.plan);
     this.store.planChecked(calibrationNote);
     try {
-      const results = await this.client.setPlan(json, this.store.picture);
+      // At the plan's frame rate, as `throughline run --edits PROJECT` takes it from the
+      // footage's duration in a saved project.
+      const { playable, duration } = this.store.video;
+      const frames = playable && Number.isFinite(duration) ? Math.round(duration * this.store.fps) : 0;
+      const results = await this.client.setPlan(json, this.store.picture, frames);
       if (!latest()) return;
       if (results) this.store.resultsReady(results);
       const video = this.store.video;

@@ -457,3 +457,54 @@ fn review_lists_the_first_moments_and_says_how_many_are_left() {
     let two: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
     assert_eq!(two.as_array().unwrap()[..], all.as_array().unwrap()[..2]);
 }
+
+/// A project made with footage records its duration: replayed with detections or tracks that end
+/// before it, the count reaches the footage's end (as the page counted it); `--frames` still
+/// decides when given, and a project without a duration changes nothing.
+#[test]
+fn a_projects_footage_length_reaches_the_count() {
+    let dir = scratch("project-length");
+    let text = std::fs::read_to_string(demo("detections.txt")).unwrap();
+    let early: String = text
+        .lines()
+        .filter(|l| l.split(',').next().and_then(|f| f.parse::<u32>().ok()) <= Some(700))
+        .map(|l| format!("{l}\n"))
+        .collect();
+    let dets = write(&dir, "early.txt", early.as_bytes());
+    let plan: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(demo("plan.json")).unwrap()).unwrap();
+    let project = |duration: Option<f64>| {
+        let mut footage =
+            serde_json::json!({"name": "footage.webm", "size": 1, "head_sha256": "0"});
+        if let Some(d) = duration {
+            footage["duration_seconds"] = d.into();
+        }
+        let p = serde_json::json!({"format": "throughline-project", "version": 1, "plan": plan,
+                                   "footage": footage});
+        write(&dir, "project.json", p.to_string().as_bytes())
+    };
+    let frames = |args: &[&str]| report_of(args)["frame_count"].as_u64().unwrap();
+    let plan_path = demo("plan.json");
+    let with = project(Some(30.0));
+    assert_eq!(frames(&["run", &dets, "--plan", &plan_path, "-q"]), 700);
+    assert_eq!(
+        frames(&["run", &dets, "--plan", &plan_path, "--edits", &with, "-q"]),
+        750
+    );
+    assert_eq!(
+        frames(&["run", &dets, "--plan", &plan_path, "--edits", &with, "--frames", "720", "-q"]),
+        720
+    );
+    let tracks = dir.join("tracks.json").display().to_string();
+    let o = throughline(&["track", &dets, "-o", &tracks, "-q"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    assert_eq!(
+        frames(&["count", &tracks, "--plan", &plan_path, "--edits", &with, "-q"]),
+        750
+    );
+    let without = project(None);
+    assert_eq!(
+        frames(&["run", &dets, "--plan", &plan_path, "--edits", &without, "-q"]),
+        700
+    );
+}

@@ -81,6 +81,15 @@ pub struct Project {
 }
 
 impl Project {
+    /// The footage's length in frames at `frame_rate`, from the duration recorded with it (the
+    /// page counts detections from a file that end before the footage to its end, and so does a
+    /// replay of its project); `None` without a duration.
+    pub fn footage_frames(&self, frame_rate: f64) -> Option<u32> {
+        let seconds = self.footage.as_ref()?.duration_seconds?;
+        let n = (seconds * frame_rate).round();
+        (n >= 1.0 && n <= f64::from(u32::MAX)).then_some(n as u32)
+    }
+
     /// Reads a project file; errors name the line and column.
     pub fn from_json(text: &str) -> Result<Project, Error> {
         let p: Project = serde_json::from_str(text).map_err(|e| {

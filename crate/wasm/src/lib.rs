@@ -80,6 +80,11 @@ pub struct Session {
     report: Option<Result<report::Report, String>>,
     /// The detector while footage is being searched, and the boxes found so far.
     detector: Option<(detect::Detector, detecting::FoundBoxes)>,
+    /// The length in frames of the footage open beside detections from a file (0: none, or not
+    /// known): the count reaches to it when the boxes end before it, as `run --frames` does.
+    footage_frames: u32,
+    /// The frames the last tracks span by themselves (before the footage's length is applied).
+    tracks_length: u32,
 }
 
 #[wasm_bindgen]
@@ -178,6 +183,21 @@ impl Session {
         self.recounted()
     }
 
+    /// The length in frames of the footage open (0 when none): detections read from a file that
+    /// end before it are counted to its end, as `throughline run --frames N` counts them (boxes
+    /// found in the footage know its length already). Counts again when it changes.
+    #[wasm_bindgen(js_name = setFootageFrames)]
+    pub fn set_footage_frames(&mut self, frames: u32) -> Result<(), JsError> {
+        if frames == self.footage_frames {
+            return Ok(());
+        }
+        self.footage_frames = frames;
+        match (&self.tracks, &self.plan) {
+            (Some(_), Some(_)) => self.recounted(),
+            _ => Ok(()),
+        }
+    }
+
     /// Tracks the loaded detections. `method` may be empty for the default; `settings` is an optional
     /// settings file's text. `progress(done, total)` is called every few hundred frames. Returns the
     /// number of tracks. When the settings bridge (`bridge_frames`), footage given to
@@ -207,6 +227,7 @@ impl Session {
         let tracks =
             pipeline::track(&report.detections, &config, &mut on_progress).map_err(js_error)?;
         let n = tracks.tracks.len() as u32;
+        self.tracks_length = tracks.frame_count;
         self.tracks = Some(tracks);
         self.tracking_runs = self.tracking_runs.wrapping_add(1);
         self.recounted()?;
@@ -226,6 +247,16 @@ impl Session {
 
     /// Counts again when the tracks, the plan or the edits changed and tracks and plan are there.
     fn recount(&mut self) {
+        let found_in_footage = self
+            .detections
+            .as_ref()
+            .is_some_and(|d| d.detections.footage_frames > 0);
+        if let Some(t) = &mut self.tracks {
+            t.frame_count = match found_in_footage {
+                true => self.tracks_length,
+                false => self.tracks_length.max(self.footage_frames),
+            };
+        }
         self.edited = match &self.tracks {
             Some(t) if !self.work.edits.is_empty() => {
                 Some(pipeline::correct_tracks(t, &self.work.edits).0)

@@ -57,7 +57,7 @@ pub fn run(args: Args) -> Result<(), Failure> {
         &[args.output.as_deref(), args.csv.as_deref()],
     )?;
     let plan = read_plan(&args.plan)?;
-    let (work, _project) = read_work(args.edits.as_deref())?;
+    let (work, project) = read_work(args.edits.as_deref())?;
     let bytes = read_file(path)?;
     // A JSON array is no tracks document either, but the JSON reader says what one is.
     let (mut tracks, tracker) = if looks_like_json(&bytes) {
@@ -80,7 +80,8 @@ pub fn run(args: Args) -> Result<(), Failure> {
         }
         (tracks_io::boxes_to_tracks(&boxes), None)
     };
-    with_length(&mut tracks, args.frames)?;
+    let project_frames = project.and_then(|p| p.footage_frames(plan.spec.frame_rate));
+    with_length(&mut tracks, args.frames, project_frames)?;
     let report = pipeline::count(&tracks, &plan, tracker.as_ref(), &work)
         .map_err(|e| bad_input(&args.plan, e))?;
     let paths = ReportPaths {
@@ -124,12 +125,16 @@ pub fn stage_report(
 }
 
 /// The footage's length (`--frames`) given to the tracks: the count's intervals reach to it. Shorter
-/// than the boxes or the footage already read is refused, naming what it must reach.
+/// than the boxes or the footage already read is refused, naming what it must reach. Without it,
+/// the length of the footage a project was made with (`project_frames`, from its duration) when
+/// the tracks end before it, as the page counted them.
 pub fn with_length(
     tracks: &mut throughline_core::Tracks,
     frames: Option<u32>,
+    project_frames: Option<u32>,
 ) -> Result<(), Failure> {
     let Some(n) = frames else {
+        tracks.frame_count = tracks.frame_count.max(project_frames.unwrap_or(0));
         return Ok(());
     };
     let last_box = tracks

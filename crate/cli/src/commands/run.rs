@@ -108,7 +108,12 @@ pub fn run(args: Args) -> Result<(), Failure> {
     let (work, project) = read_work(args.edits.as_deref())?;
     let project_at = args.edits.as_deref().zip(project.as_ref());
     let mut tracks = track_source(&args, &plan, project_at)?;
-    super::count::with_length(&mut tracks, args.handin.frames)?;
+    // Boxes found in the footage (`--y4m`) know its length; the page's do too.
+    let project_frames = project
+        .as_ref()
+        .filter(|_| args.y4m.is_none())
+        .and_then(|p| p.footage_frames(plan.spec.frame_rate));
+    super::count::with_length(&mut tracks, args.handin.frames, project_frames)?;
     let report = pipeline::count(&tracks, &plan, Some(&tracks.config), &work)
         .map_err(|e| bad_input(&args.plan, e))?;
     let mut files = Outputs::new();
