@@ -35,6 +35,16 @@ for (const [name, viewport] of [["laptop", LAPTOP], ["phone", PHONE]]) {
       for (const l of labels) {
         assert.ok(l.x >= 0 && l.y >= 0 && l.x + l.w <= w && l.y + l.h <= h, `frame ${f}: ${l.key} at ${JSON.stringify(l)} leaves the ${w} × ${h} picture`);
       }
+      // A track's number sits beside its own box (a few pixels off at most: the gap, the
+      // rounding, the picture's edge), never further off where it would seem to name another.
+      const numbers = labels.filter((l) => l.key.startsWith("track:"));
+      assert.ok(numbers.length > 0, `frame ${f}: track numbers are drawn`);
+      for (const l of numbers) {
+        const b = l.of;
+        const dx = Math.max(b.x - (l.x + l.w), l.x - (b.x + b.w), 0);
+        const dy = Math.max(b.y - (l.y + l.h), l.y - (b.y + b.h), 0);
+        assert.ok(Math.max(dx, dy) <= 16, `frame ${f}: ${l.key} at ${JSON.stringify(l)} is ${Math.max(dx, dy)} px from its box`);
+      }
       for (let i = 0; i < labels.length; i++) {
         for (let j = i + 1; j < labels.length; j++) {
           const [a, b] = [labels[i], labels[j]];

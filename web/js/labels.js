@@ -6,7 +6,12 @@
 
 /** @typedef {import("./geometry.js").Point} Point */
 /** @typedef {{x: number, y: number, w: number, h: number}} Rect in video pixels, top-left + size */
-/** A label to place: its size and the top-left corners it may take, best first. @typedef {{w: number, h: number, at: Point[]}} LabelRequest */
+/**
+ * A label to place: its size and the top-left corners it may take, best first; `near`: only
+ * those (a track's number away from its box would seem to name another); `avoid`: things a
+ * place should rather not cover (other tracks' boxes), weighed as the picture's action is.
+ * @typedef {{w: number, h: number, at: Point[], near?: boolean, avoid?: Rect[]}} LabelRequest
+ */
 
 /** Rings searched around the best place when every asked-for place is taken. */
 const RINGS = 14;
@@ -60,25 +65,27 @@ export class LabelBoard {
    * @returns {Rect | null}
    */
   place(req) {
-    const best = this.bestOf(req.at.map(([x, y]) => this.clamp({ x, y, w: req.w, h: req.h })));
-    const found = best || this.search(req);
+    const best = this.bestOf(req.at.map(([x, y]) => this.clamp({ x, y, w: req.w, h: req.h })), req.avoid);
+    const found = best || (req.near ? null : this.search(req));
     if (found) this.taken.push(found);
     return found;
   }
 
   /**
    * The free place among `places` with the lowest score: its rank among the asked-for places plus
-   * how much action it covers (covering action costs more than a place further down the list).
+   * how much action it covers and how much of it lies over a thing to avoid (either costs more
+   * than a place further down the list).
    * @param {Rect[]} places
+   * @param {Rect[]} [avoid]
    * @returns {Rect | null}
    */
-  bestOf(places) {
+  bestOf(places, avoid = []) {
     /** @type {Rect | null} */
     let best = null;
     let bestScore = Infinity;
     places.forEach((r, rank) => {
       if (!this.free(r)) return;
-      const score = rank + (this.cost ? 12 * this.cost(r) : 0);
+      const score = rank + (this.cost ? 12 * this.cost(r) : 0) + 12 * coveredShare(r, avoid);
       if (score < bestScore) {
         best = r;
         bestScore = score;
@@ -107,4 +114,19 @@ export class LabelBoard {
     }
     return null;
   }
+}
+
+/**
+ * The largest share of `r` that any one of `things` covers, 0 to 1.
+ * @param {Rect} r
+ * @param {Rect[]} things
+ */
+function coveredShare(r, things) {
+  let most = 0;
+  for (const t of things) {
+    const w = Math.min(r.x + r.w, t.x + t.w) - Math.max(r.x, t.x);
+    const h = Math.min(r.y + r.h, t.y + t.h) - Math.max(r.y, t.y);
+    if (w > 0 && h > 0) most = Math.max(most, (w * h) / (r.w * r.h));
+  }
+  return most;
 }

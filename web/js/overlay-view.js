@@ -203,7 +203,9 @@ export class OverlayView {
     if (tally) this.canvas.dataset.keycaps = JSON.stringify(this.layout.placed.map((p) => ({ key: p.key, ...p.content(s.frame) })).filter((t) => t.keycap).map(({ key, keycap, count }) => ({ key, keycap, count })));
     else delete this.canvas.dataset.keycaps;
     if (this.focus !== this.focusWritten) this.writeFocus();
-    this.canvas.dataset.labels = JSON.stringify(drawn.map(({ key, rect }) => ({ key, x: Math.round(rect.x), y: Math.round(rect.y), w: Math.round(rect.w), h: Math.round(rect.h) })));
+    /** @param {import("./labels.js").Rect} r */
+    const rounded = (r) => ({ x: Math.round(r.x), y: Math.round(r.y), w: Math.round(r.w), h: Math.round(r.h) });
+    this.canvas.dataset.labels = JSON.stringify(drawn.map(({ key, rect, of }) => ({ key, ...rounded(rect), ...(of ? { of: rounded(of) } : {}) })));
   }
 }
 

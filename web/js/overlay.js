@@ -41,10 +41,11 @@ import { CASING, DIRECTION_COLOUR, PLAN_INK, STATE_COLOUR } from "./palette.js";
 const MAX_CROSSING_MARKS = 300;
 
 /**
- * Draws the frame; returns every label drawn and where, keyed ("line:0:forward", "track:12").
+ * Draws the frame; returns every label drawn and where, keyed ("line:0:forward", "track:12"),
+ * a track's with its box (`of`).
  * @param {Ctx} ctx
  * @param {Scene} scene
- * @returns {{key: string, rect: Rect}[]}
+ * @returns {{key: string, rect: Rect, of?: Rect}[]}
  */
 export function drawOverlay(ctx, scene) {
   const { plan, px } = scene;
@@ -57,6 +58,7 @@ export function drawOverlay(ctx, scene) {
   if (scene.tracks) drawTracks(ctx, scene.tracks, scene);
   const pairs = plan.calibration ? plan.calibration.pairs || [] : [];
   pairs.forEach((pair) => drawGroundPoint(ctx, pair.image, px));
+  /** @type {{key: string, rect: Rect, of?: Rect}[]} */
   const drawn = scene.layout.placed.map(({ key, rect, content }) => {
     drawTag(ctx, rect, content(scene.frame), px);
     return { key, rect };
@@ -294,7 +296,7 @@ function trackLabels(ctx, tracks, scene) {
   const { frame, px, focus } = scene;
   const board = scene.layout.board;
   const kept = board.taken.length;
-  /** @type {{key: string, rect: Rect}[]} */
+  /** @type {{key: string, rect: Rect, of?: Rect}[]} */
   const drawn = [];
   /** @type {{id: number, x: number, y: number, w: number, h: number, focused: boolean}[]} */
   const boxes = [];
@@ -306,10 +308,16 @@ function trackLabels(ctx, tracks, scene) {
     const tag = b.focused ? { text: `track ${b.id}${cls ? ` · ${cls}` : ""}`, colour: "#FFFFFF" } : { text: String(b.id), colour: "#E4E4E4" };
     const { w, h } = tagSize(ctx, tag, px);
     const g = 4 * px;
-    const rect = board.place({ w, h, at: [[b.x, b.y - h - g], [b.x + b.w + g, b.y], [b.x - w - g, b.y], [b.x, b.y + b.h + g]] });
+    // Beside its own box only, and rather not over another's: in a crowd a number drawn further
+    // off, or over the next person, seemed to name them (a newcomer's trial). The tracks in focus
+    // may go further when there is no room beside.
+    const others = boxes.filter((o) => o !== b);
+    /** @type {import("./geometry.js").Point[]} */
+    const at = [[b.x, b.y - h - g], [b.x + b.w + g, b.y], [b.x - w - g, b.y], [b.x, b.y + b.h + g]];
+    const rect = board.place({ w, h, at, near: !b.focused, avoid: others });
     if (!rect) continue;
     drawTag(ctx, rect, tag, px);
-    drawn.push({ key: `track:${b.id}`, rect });
+    drawn.push({ key: `track:${b.id}`, rect, of: { x: b.x, y: b.y, w: b.w, h: b.h } });
   }
   board.taken.length = kept; // the next frame places them afresh
   return drawn;
