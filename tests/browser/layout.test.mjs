@@ -59,6 +59,10 @@ test("phone: nothing scrolls sideways in any view, and results fit or scroll ins
     // While reviewing the picture sticks to the top: a whole-page picture would misplace it.
     await screenshot(page, `13-phone-${view.toLowerCase()}`, { fullPage: view !== "Review" });
   }
+  // No keyboard on a phone: the review's help says what to do without naming keys.
+  const help = await page.locator("#list-doubtful .hint").first().innerText();
+  assert.doesNotMatch(help, /\bCtrl\b|\bN next\b/, help);
+  assert.match(help, /then accept it .* or reject it/, help);
   await page.getByRole("tab", { name: "Tracks" }).click();
   [scroll, width] = await fits();
   assert.ok(scroll <= width, `tracks: page ${scroll} px wide`);
