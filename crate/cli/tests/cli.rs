@@ -1128,3 +1128,25 @@ fn footage_found_boxes_keep_the_clips_length() {
     assert!(e.contains("over 100 frames"), "{e}");
     assert!(e.contains("give `--frames 100` to `run`"), "{e}");
 }
+
+/// Scores written with a decimal comma and a column after the class (`…,0,944,1`) read as score
+/// 0: the reader names the first such row and, when nothing is tracked, the note says every
+/// score is under `min_score` and why that may be (a newcomer's trial: it suggested `min_hits`).
+#[test]
+fn scores_all_under_min_score_are_named_with_the_decimal_comma() {
+    let dir = scratch("comma-scores");
+    let rows: String = (1..=30)
+        .map(|f| format!("{f},-1,{},205,33,85,0,944,1\n", 100 + 3 * f))
+        .collect();
+    let dets = write(&dir, "comma.txt", rows.as_bytes());
+    let o = throughline(&["track", &dets]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let e = stderr(&o);
+    assert!(e.contains("score 0 then 944 in the eighth column"), "{e}");
+    assert!(
+        e.contains("every one of its 30 detections scores under 0.3 (`min_score`), the highest 0")
+            && e.contains("decimal comma"),
+        "{e}"
+    );
+    assert!(!e.contains("min_hits"), "{e}");
+}

@@ -655,10 +655,14 @@ fn a_score_with_a_decimal_comma_is_named() {
             && w[0].contains("(`0,878` for `0.878`)"),
         "{w:?}"
     );
+    // With a column after the class (a newcomer's trial: `…,0,944,1` counted nothing, unsaid).
+    let w = warned("1,-1,10,20,30,40,0,944,1\n");
+    assert!(w.len() == 1 && w[0].contains("read as class 944"), "{w:?}");
     for quiet in [
         "1,-1,10,20,30,40,0,7\n",
         "1,-1,10,20,30,40,0.5,878\n",
-        "1,-1,10,20,30,40,0,878,1\n",
+        "1,-1,10,20,30,40,0,12,1\n",
+        "1,-1,10,20,30,40,0,12,0.86\n",
         "1,-1,10,20,30,40,1,878\n",
     ] {
         assert!(warned(quiet).is_empty(), "{quiet}");

@@ -55,10 +55,10 @@ impl Lines {
         let mut at = 0;
         while let Some(rest) = bytes.get(at..).filter(|r| !r.is_empty()) {
             let row = match quick_row(rest) {
-                Some((values, class, eight, taken)) => {
+                Some((values, class, columns, taken)) => {
                     at += taken;
                     self.r.line += 1;
-                    self.row(values, class, eight)?
+                    self.row(values, class, columns)?
                 }
                 None => {
                     let (raw, taken) = line_at(text, at);
@@ -114,17 +114,21 @@ impl Lines {
         for (k, name) in BENCHMARK_COLUMNS.iter().enumerate() {
             v[k] = number(fields[k], name, line, k + 1)?;
         }
-        let eight = 1 + commas_before_empty_end(l.as_bytes()) == 8;
-        self.row(v, fields.get(7).and_then(|f| f.parse::<i64>().ok()), eight)
+        let columns = 1 + commas_before_empty_end(l.as_bytes());
+        self.row(
+            v,
+            fields.get(7).and_then(|f| f.parse::<i64>().ok()),
+            columns,
+        )
     }
 
     /// The detection of the current line from its seven numbers and the eighth column's whole
-    /// number, if any; `eight` when the line has eight columns, no more.
+    /// number, if any; the line has `columns` columns.
     fn row(
         &mut self,
         v: [f64; 7],
         class: Option<i64>,
-        eight: bool,
+        columns: usize,
     ) -> Result<Option<Detection>, Error> {
         let frame = frame_number(v[0], self.r.line, 1)?;
         let Some(bbox) = self.r.checked_box(BBox::new(v[2], v[3], v[4], v[5]), 5)? else {
@@ -132,8 +136,8 @@ impl Lines {
         };
         self.r.note_score(v[6]);
         self.r.note_id(v[1]);
-        if let (Some(c), true) = (class, eight) {
-            self.r.note_comma(v[6], c);
+        if let Some(c) = class {
+            self.r.note_comma(v[6], c, columns);
         }
         // Column 8 holds a class in ground-truth style files; -1 (or a world coordinate) means none.
         let class = match class {
@@ -153,10 +157,9 @@ impl Lines {
 /// The usual line, read in one pass over its bytes: seven plain decimals (as
 /// [`plain_decimal_prefix`] reads them, within [`in_range`]) between single commas, then
 /// perhaps a comma and a whole number (`[-]digits`) ending the line or followed by a comma and
-/// anything. Gives the seven numbers, the whole number, whether the line has eight columns and
-/// no more, and the bytes taken up to and including the line's end; `None` for any other line,
-/// left to the general reading.
-fn quick_row(b: &[u8]) -> Option<([f64; 7], Option<i64>, bool, usize)> {
+/// anything. Gives the seven numbers, the whole number, the line's columns, and the bytes taken
+/// up to and including the line's end; `None` for any other line, left to the general reading.
+fn quick_row(b: &[u8]) -> Option<([f64; 7], Option<i64>, usize, usize)> {
     let mut v = [0.0; 7];
     let mut at = 0;
     for (k, slot) in v.iter_mut().enumerate() {
@@ -172,14 +175,14 @@ fn quick_row(b: &[u8]) -> Option<([f64; 7], Option<i64>, bool, usize)> {
         }
     }
     if let Some(end) = line_end(b, at) {
-        return Some((v, None, false, end));
+        return Some((v, None, 7, end));
     }
     (b.get(at) == Some(&b',')).then_some(())?;
     at += 1;
     let (class, taken) = whole_number_prefix(b.get(at..)?)?;
     at += taken;
     if let Some(end) = line_end(b, at) {
-        return Some((v, Some(class), true, end));
+        return Some((v, Some(class), 8, end));
     }
     (b.get(at) == Some(&b',')).then_some(())?;
     let rest = b.get(at..)?;
@@ -190,7 +193,7 @@ fn quick_row(b: &[u8]) -> Option<([f64; 7], Option<i64>, bool, usize)> {
     if columns > MOST_COLUMNS {
         return None;
     }
-    Some((v, Some(class), columns == 8, at + (end + 1).min(rest.len())))
+    Some((v, Some(class), columns, at + (end + 1).min(rest.len())))
 }
 
 /// The commas of a line (or of its end past some column), leaving out the empty fields that end

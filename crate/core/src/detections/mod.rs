@@ -275,11 +275,14 @@ impl Warnings {
         }
     }
 
-    /// Warns about the first row of benchmark text of eight columns whose score is 0 and whose
-    /// class is 10 or more: most likely a score written with a decimal comma (`0,878` read as
-    /// score 0 and class 878), which the tracker's `min_score` then drops without a word.
-    pub(crate) fn note_comma(&mut self, score: f64, class: i64, line: usize) {
-        if score == 0.0 && class >= 10 && self.comma_at.is_none() {
+    /// Warns about the first row of benchmark text whose score is 0 and whose class looks like
+    /// the score's decimals: 10 or more on a row of eight columns, 100 or more on a longer one
+    /// (ground truth's rows of nine carry classes up to 12 after a 0 or 1). Most likely a score
+    /// written with a decimal comma (`0,878` read as score 0 and class 878), which the tracker's
+    /// `min_score` then drops without a word.
+    pub(crate) fn note_comma(&mut self, score: f64, class: i64, columns: usize, line: usize) {
+        let like_decimals = class >= 100 || (class >= 10 && columns == 8);
+        if score == 0.0 && like_decimals && self.comma_at.is_none() {
             self.comma_at = Some(self.kept.len());
             self.kept.push(Warning {
                 line: Some(line),

@@ -82,10 +82,10 @@ impl Reading {
         self.warnings.note_score(score, Some(self.line), 0);
     }
 
-    /// Warns once about a score of 0 before a class of 10 or more on an eight-column row (see
-    /// [`Warnings::note_comma`]; the row is kept).
-    pub fn note_comma(&mut self, score: f64, class: i64) {
-        self.warnings.note_comma(score, class, self.line);
+    /// Warns once about a score of 0 before a class that looks like its decimals, on a row of
+    /// `columns` columns (see [`Warnings::note_comma`]; the row is kept).
+    pub fn note_comma(&mut self, score: f64, class: i64, columns: usize) {
+        self.warnings.note_comma(score, class, columns, self.line);
     }
 
     /// Notes whether the text just read ends inside a row (see [`Warnings::note_end`]).
