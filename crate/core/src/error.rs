@@ -158,6 +158,19 @@ fn nearest_known_field(message: &str) -> Option<&str> {
         .map(|(n, _)| n)
 }
 
+/// Among `known`, the name `written` is likely a misspelling of: at most two letters apart (case
+/// aside: `Score` is `score` misspelt), fewer than `written` has, and not `written` itself.
+pub(crate) fn likely_meant<'a>(written: &str, known: &[&'a str]) -> Option<&'a str> {
+    let lower = written.to_lowercase();
+    known
+        .iter()
+        .filter(|&&k| k != written)
+        .map(|&k| (k, edit_distance(&lower, &k.to_lowercase())))
+        .filter(|&(_, d)| d <= 2 && d < written.chars().count())
+        .min_by_key(|&(_, d)| d)
+        .map(|(k, _)| k)
+}
+
 /// Levenshtein distance over characters (names are short: a field name, not file contents).
 pub(crate) fn edit_distance(a: &str, b: &str) -> usize {
     let b: Vec<char> = b.chars().collect();

@@ -668,3 +668,51 @@ fn a_score_with_a_decimal_comma_is_named() {
         assert!(warned(quiet).is_empty(), "{quiet}");
     }
 }
+
+/// A field written under a near name is not read, and what it would have given is lost without
+/// a word unless said: a JSON element's `catgory_id`, a CSV header's `clas` (warnings: the rows are
+/// read, unclassified), a required column's `scroe` (the error names it), a header of tabs.
+/// (A newcomer's trial: every class was lost to `catgory_id` and to `clas`.)
+#[test]
+fn fields_under_near_names_are_named() {
+    let said = |text: &str| -> Vec<String> {
+        read_detections(text.as_bytes())
+            .unwrap()
+            .warnings
+            .iter()
+            .map(|w| format!("{:?}: {}", w.line, w.message))
+            .collect()
+    };
+    let w = said(
+        "[\n {\"image_id\": 1, \"catgory_id\": 3, \"bbox\": [1, 2, 3, 4], \"score\": 0.9,\n  \"embeding\": [1, 0]},\n {\"image_id\": 2, \"catgory_id\": 3, \"bbox\": [1, 2, 3, 4], \"score\": 0.9}\n]",
+    );
+    assert_eq!(w.len(), 2, "{w:?}");
+    assert!(
+        w[0].starts_with("Some(2): element 1: `catgory_id` is not a field this reader reads: is it meant to be `category_id`? Without it, every box is unclassified"),
+        "{w:?}"
+    );
+    assert!(
+        w[1].contains("`embeding`") && w[1].contains("`embedding`"),
+        "{w:?}"
+    );
+    // Keys read, and others far from any, say nothing.
+    assert!(said(
+        "[{\"image_id\": 1, \"id\": 7, \"area\": 12, \"bbox\": [1, 2, 3, 4], \"score\": 0.9}]"
+    )
+    .is_empty());
+
+    let w = said("frame,x,y,w,h,score,clas\n1,1,2,3,4,0.9,car\n");
+    assert_eq!(
+        w,
+        vec!["Some(1): column `clas` is not read: is it meant to be `class`? Without a `class` column every box is unclassified"]
+    );
+    assert!(said("frame,x,y,w,h,score,class,note\n1,1,2,3,4,0.9,car,x\n").is_empty());
+    let e = read_detections(b"frame,x,y,w,h,scroe\n1,1,2,3,4,0.9\n").unwrap_err();
+    assert!(
+        e.message
+            .starts_with("the header has no `score` column (is `scroe` meant to be `score`?)"),
+        "{e}"
+    );
+    let e = read_detections(b"frame\tx\ty\tw\th\tscore\n1\t1\t2\t3\t4\t0.9\n").unwrap_err();
+    assert!(e.message.contains("tabs between fields"), "{e}");
+}

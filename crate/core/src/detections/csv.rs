@@ -3,7 +3,7 @@
 
 use super::reading::{PiecesSummary, Reading};
 use super::{Detection, DetectionFormat, Detections, ReadReport};
-use crate::error::{Error, ErrorKind};
+use crate::error::{likely_meant, Error, ErrorKind};
 use crate::geometry::BBox;
 use crate::limits::in_range;
 use crate::text::{frame_number, line_at, number, plain_decimal_prefix, split_fields_into};
@@ -16,9 +16,14 @@ struct CsvColumns {
     h: usize,
     score: usize,
     class: Option<usize>,
+    /// A column not read whose name is likely `class` misspelt (`clas`), when there is no `class`.
+    class_misspelt: Option<String>,
     embedding: Vec<usize>,
     count: usize,
 }
+
+/// The names of the columns read (appearance columns aside).
+const COLUMNS: [&str; 7] = ["frame", "x", "y", "w", "h", "score", "class"];
 
 fn csv_columns(header: &[&str], line: usize) -> Result<CsvColumns, Error> {
     let names: Vec<String> = header
@@ -28,6 +33,8 @@ fn csv_columns(header: &[&str], line: usize) -> Result<CsvColumns, Error> {
     let find = |name: &str| names.iter().position(|n| n == name);
     let hint = if header.len() == 1 && header[0].contains(';') {
         " (the file seems to use `;` between fields: save it with commas, and `.` as the decimal point)"
+    } else if header.len() == 1 && header[0].contains('\t') {
+        " (the file seems to use tabs between fields: save it with commas)"
     } else if names
         .iter()
         .any(|n| n == "x2" || n == "x_max" || n == "xmax")
@@ -36,12 +43,21 @@ fn csv_columns(header: &[&str], line: usize) -> Result<CsvColumns, Error> {
     } else {
         ""
     };
+    // A name written for one of the columns read, misspelt (`scroe`, `clas`).
+    let misspelt = |name: &str| {
+        names
+            .iter()
+            .position(|n| !COLUMNS.contains(&n.as_str()) && likely_meant(n, &[name]).is_some())
+    };
     let required = |name: &str| {
         find(name).ok_or_else(|| {
+            let meant = misspelt(name).map_or(String::new(), |i| {
+                format!(" (is `{}` meant to be `{name}`?)", header[i].trim())
+            });
             Error::new(
                 ErrorKind::BadHeader,
                 format!(
-                    "the header has no `{name}` column: it must name frame,x,y,w,h,score \
+                    "the header has no `{name}` column{meant}: it must name frame,x,y,w,h,score \
                      (class and e0,e1,… optional); found: {}{hint}",
                     header.join(",")
                 ),
@@ -78,6 +94,10 @@ fn csv_columns(header: &[&str], line: usize) -> Result<CsvColumns, Error> {
         h: required("h")?,
         score: required("score")?,
         class: find("class"),
+        class_misspelt: match find("class") {
+            Some(_) => None,
+            None => misspelt("class").map(|i| header[i].trim().to_string()),
+        },
         embedding,
         count: names.len(),
     })
@@ -325,6 +345,15 @@ impl CsvLines {
         split_fields_into(l, fields);
         let Some(h) = &self.columns else {
             let h = Header::new(fields, line)?;
+            if let Some(name) = &h.cols.class_misspelt {
+                self.r.warnings.note(
+                    Some(line),
+                    format!(
+                        "column `{name}` is not read: is it meant to be `class`? Without a `class` \
+                         column every box is unclassified"
+                    ),
+                );
+            }
             self.set_header(h);
             return Ok(());
         };

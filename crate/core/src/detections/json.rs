@@ -258,6 +258,8 @@ pub(super) fn read(text: &str) -> Result<ReadReport, Error> {
     }
     let mut out = Detections::default();
     let mut warnings = Warnings::new();
+    // Before the rows' warnings: the first element is at the file's start.
+    note_unread_keys(text, &mut warnings);
     let failure = RefCell::new(Failure::default());
     let sink = JsonSink {
         out: &mut out,
@@ -373,18 +375,53 @@ fn element_span(text: &str, element: usize) -> Option<(usize, Option<usize>)> {
 /// For an element missing `field`: the key it holds instead that is likely a misspelling of it
 /// (not one of the fields read, at most two letters apart), as " (is `box` meant to be `bbox`?)".
 fn misspelt_key(text: &str, element: usize, field: &str) -> Option<String> {
-    const READ: [&str; 5] = ["image_id", "category_id", "bbox", "score", "embedding"];
+    let key = element_keys(text, element)?
+        .into_iter()
+        .filter(|k| !READ.contains(&k.as_str()))
+        .find(|k| crate::error::likely_meant(k, &[field]).is_some())?;
+    Some(format!(" (is `{key}` meant to be `{field}`?)"))
+}
+
+/// The fields an element may have that the reader reads.
+const READ: [&str; 5] = ["image_id", "category_id", "bbox", "score", "embedding"];
+
+/// The keys of the `element`th object of the top array, when it is one.
+fn element_keys(text: &str, element: usize) -> Option<Vec<String>> {
     let (start, end) = element_span(text, element)?;
     let object: serde_json::Map<String, serde_json::Value> =
         serde_json::from_str(&text[start..=end?]).ok()?;
-    let key = object
-        .keys()
-        .filter(|k| !READ.contains(&k.as_str()))
-        .map(|k| (k, crate::error::edit_distance(&k.to_lowercase(), field)))
-        .filter(|&(k, d)| d <= 2 && d < k.chars().count())
-        .min_by_key(|&(_, d)| d)?
-        .0;
-    Some(format!(" (is `{key}` meant to be `{field}`?)"))
+    Some(object.into_iter().map(|(k, _)| k).collect())
+}
+
+/// Keys of the first element that are not read but are likely misspellings of fields that are
+/// (`catgory_id`): a file's elements are written alike, so one warning says it for all, and what
+/// the field would have given is lost without it (classes, appearance).
+fn note_unread_keys(text: &str, warnings: &mut Warnings) {
+    let Some(keys) = element_keys(text, 1) else {
+        return;
+    };
+    for key in keys.iter().filter(|k| !READ.contains(&k.as_str())) {
+        if let Some(field) = crate::error::likely_meant(key, &READ) {
+            let line = field_place(text, 1, Some(key)).map(|(l, _)| l);
+            warnings.note(
+                line,
+                format!(
+                    "element 1: `{key}` is not a field this reader reads: is it meant to be \
+                     `{field}`? Without it, {} (the other elements alike)",
+                    lost_without(field)
+                ),
+            );
+        }
+    }
+}
+
+/// What an element without `field` goes without.
+fn lost_without(field: &str) -> &'static str {
+    match field {
+        "category_id" => "every box is unclassified",
+        "embedding" => "the boxes carry no appearance vectors",
+        _ => "the element is refused",
+    }
 }
 
 /// Where `"field"` is written as a key in `object` (followed by a colon): a value that happens to

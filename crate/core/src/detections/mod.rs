@@ -248,6 +248,14 @@ impl Warnings {
         });
     }
 
+    /// A warning about the file, not about a row passed over (not counted as one).
+    pub(crate) fn note(&mut self, line: Option<usize>, message: impl Into<String>) {
+        self.kept.push(Warning {
+            line,
+            message: message.into(),
+        });
+    }
+
     pub(crate) fn push(&mut self, line: Option<usize>, message: impl Into<String>) {
         self.count += 1;
         if self.kept.len() < MAX_WARNINGS {
