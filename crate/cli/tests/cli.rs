@@ -1150,3 +1150,42 @@ fn scores_all_under_min_score_are_named_with_the_decimal_comma() {
     );
     assert!(!e.contains("min_hits"), "{e}");
 }
+
+/// A manual count whose times a spreadsheet saved short (`2026-03-02 7:00` for
+/// `2026-03-02T07:00:00`) is compared as written in full; times without their date against a
+/// report whose have one are named as written differently, with how to write them (a newcomer's
+/// trial: every cell read -100% with a warning about clocks 12 hours apart).
+#[test]
+fn manual_count_times_written_short_are_compared() {
+    let dir = scratch("short-times");
+    let report = demo_report(&dir);
+    let truth = std::fs::read_to_string(demo("truth_counts.csv")).unwrap();
+    let short = write(
+        &dir,
+        "short.csv",
+        truth
+            .replace("2026-03-02T07:00:00", "2026-03-02 7:00")
+            .as_bytes(),
+    );
+    let json = |truth: &str| {
+        let o = throughline(&["score-counts", "--truth", truth, &report, "--json"]);
+        assert!(o.status.success(), "{}", stderr(&o));
+        serde_json::from_slice::<serde_json::Value>(&o.stdout).unwrap()
+    };
+    assert_eq!(
+        json(&short)["overall"],
+        json(&demo("truth_counts.csv"))["overall"]
+    );
+    let undated = write(
+        &dir,
+        "undated.csv",
+        truth.replace("2026-03-02T07:00:00", "07:00").as_bytes(),
+    );
+    let o = throughline(&["score-counts", "--truth", &undated, &report]);
+    let e = stderr(&o);
+    assert!(
+        e.contains("(07:00:00 to 07:00:00)")
+            && e.contains("write the manual count's interval_start as the report writes them (like 2026-03-02T07:00:00)"),
+        "{e}"
+    );
+}

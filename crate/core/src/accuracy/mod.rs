@@ -96,7 +96,8 @@ pub fn read_counts_csv(bytes: &[u8]) -> Result<Vec<CountRow>, Error> {
             screenline: f[cl].trim().to_string(),
             direction: f[cd].trim().to_string(),
             class,
-            interval_start: f[cs].trim().to_string(),
+            // `7:00` or `00:15` as a spreadsheet saves `07:00:00`, `00:15:00`: as a report writes it.
+            interval_start: crate::plan::clock::as_report_writes(f[cs]),
             count,
         });
     }

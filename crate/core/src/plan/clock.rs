@@ -111,8 +111,60 @@ impl fmt::Display for LocalTime {
     }
 }
 
+/// A time as a report writes it, from the ways a person or a spreadsheet may write it: a date and
+/// a time (`2026-03-02 7:00`) as `2026-03-02T07:00:00`, a time alone (`7:00`, `00:15`,
+/// `1:00:00`) as `HH:MM:SS`; anything else as it is (trimmed).
+pub fn as_report_writes(s: &str) -> String {
+    let s = s.trim();
+    if let Some(t) = LocalTime::parse(s) {
+        return t.to_string();
+    }
+    let parts: Vec<&str> = s.split(':').collect();
+    let number = |p: &str, most: u64| {
+        (!p.is_empty() && p.len() <= 6 && p.bytes().all(|b| b.is_ascii_digit()))
+            .then(|| p.parse::<u64>().ok())
+            .flatten()
+            .filter(|&v| v <= most)
+    };
+    let hms = match parts.as_slice() {
+        [h, m] => (number(h, 99_999), number(m, 59), Some(0)),
+        [h, m, sec] if m.len() == 2 && sec.len() == 2 => {
+            (number(h, 99_999), number(m, 59), number(sec, 59))
+        }
+        _ => (None, None, None),
+    };
+    match hms {
+        (Some(h), Some(m), Some(sec)) if parts[1].len() == 2 => format!("{h:02}:{m:02}:{sec:02}"),
+        _ => s.to_string(),
+    }
+}
+
 /// Elapsed seconds as `HH:MM:SS` (hours may exceed 24), for plans without a start time.
 pub fn elapsed(seconds: f64) -> String {
     let s = seconds.max(0.0).round() as i64;
     format!("{:02}:{:02}:{:02}", s / 3600, s % 3600 / 60, s % 60)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::as_report_writes;
+
+    /// The ways a spreadsheet saves a time (common practice: `h:mm`, a date with a space).
+    #[test]
+    fn times_written_short_read_as_a_report_writes_them() {
+        for (written, read) in [
+            ("7:00", "07:00:00"),
+            ("00:15", "00:15:00"),
+            ("1:00:00", "01:00:00"),
+            ("26:30", "26:30:00"),
+            (" 2026-03-02 7:05 ", "2026-03-02T07:05:00"),
+            ("2026-03-02T07:00:00", "2026-03-02T07:00:00"),
+            ("7:5", "7:5"),
+            ("7:60", "7:60"),
+            ("am", "am"),
+            ("", ""),
+        ] {
+            assert_eq!(as_report_writes(written), read, "{written:?}");
+        }
+    }
 }
