@@ -1189,3 +1189,43 @@ fn manual_count_times_written_short_are_compared() {
         "{e}"
     );
 }
+
+/// Footage that disagrees with the plan is said to before the work: its frame rate (times and
+/// intervals follow the plan's) and a line wholly outside its picture (a newcomer's trial: both
+/// went unsaid, the line counting 0).
+#[test]
+fn footage_and_plan_that_disagree_are_named() {
+    let dir = scratch("footage-plan");
+    let (w, h) = (64usize, 48usize);
+    let mut y4m = format!("YUV4MPEG2 W{w} H{h} F30:1 Ip A1:1 C420jpeg\n").into_bytes();
+    for _ in 0..3 {
+        y4m.extend_from_slice(b"FRAME\n");
+        y4m.extend(std::iter::repeat_n(120u8, w * h + 2 * (w / 2) * (h / 2)));
+    }
+    let footage = write(&dir, "f30.y4m", &y4m);
+    let plan = write(
+        &dir,
+        "plan.json",
+        br#"{ "frame_rate": 25, "screenlines": [
+              { "name": "in view", "points": [[0, 20], [64, 20]] },
+              { "name": "far off", "points": [[1000, 0], [1000, 48]] } ] }"#,
+    );
+    let o = throughline(&["run", "--y4m", &footage, "--plan", &plan]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let e = stderr(&o);
+    assert!(
+        e.contains("the footage runs at 30 frames a second, the plan says 25 (`frame_rate`)"),
+        "{e}"
+    );
+    assert!(
+        e.contains("line `far off` lies wholly outside the picture (64 × 48)"),
+        "{e}"
+    );
+    assert!(!e.contains("in view` lies"), "{e}");
+    // Nothing moves in it: said so, not "the last box is in frame 0".
+    let found = dir.join("found.txt").display().to_string();
+    let o = throughline(&["detect", "--y4m", &footage, "-o", &found]);
+    let e = stderr(&o);
+    assert!(e.contains("nothing moving was found in its 3 frames"), "{e}");
+    assert!(!e.contains("--frames"), "{e}");
+}

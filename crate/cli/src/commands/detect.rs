@@ -71,7 +71,14 @@ pub fn run(args: Args) -> Result<(), Failure> {
                 dets.length(),
                 output.map_or(String::new(), |p| format!(", written to {}", p.display()))
             );
-            if dets.last_frame() < dets.length() && output.is_some() {
+            if dets.rows.is_empty() {
+                eprintln!(
+                    "note: nothing moving was found in its {} frames (a fixed camera's footage \
+                     with nobody passing, or settings that find too little: \
+                     docs/detector-settings.md)",
+                    dets.length()
+                );
+            } else if dets.last_frame() < dets.length() && output.is_some() {
                 eprintln!(
                     "note: the last box is in frame {} of {}: give `--frames {}` to `run` or \
                      `count` with this file, so its last interval is counted whole",

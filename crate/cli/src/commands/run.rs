@@ -155,6 +155,9 @@ fn track_source(
     let mut timer = Timer::new();
     let (how, settings) = with_project(&args.tracking, project)?;
     let how = &how;
+    if let (Some(footage), false) = (&args.y4m, how.quiet) {
+        footage_against_plan(footage, plan)?;
+    }
     match (&args.y4m, &args.detections) {
         (Some(footage), None) => {
             let default_margin = plan.spec.rules.hysteresis < FOOTAGE_HYSTERESIS;
@@ -191,6 +194,39 @@ fn track_source(
             how.quiet,
         )),
     }
+}
+
+/// Warnings when the footage (a file: standard input is read once, by the detector) and the plan
+/// disagree: its frame rate and the plan's (times, intervals and speeds follow the plan's), lines
+/// or zones wholly outside its picture (nothing is counted there).
+fn footage_against_plan(footage: &Path, plan: &Plan) -> Result<(), Failure> {
+    if footage == Path::new("-") {
+        return Ok(());
+    }
+    let header = *crate::frames::open_y4m(footage)?.header();
+    let name = footage.display();
+    let planned = plan.spec.frame_rate;
+    if let Some(rate) = header
+        .frame_rate
+        .filter(|r| (r - planned).abs() > 0.001 * planned)
+    {
+        eprintln!(
+            "warning: {name}: the footage runs at {} frames a second, the plan says {planned} \
+             (`frame_rate`): times, intervals and speeds follow the plan's; if the footage's is \
+             right, set the plan's frame_rate to it",
+            (rate * 1000.0).round() / 1000.0
+        );
+    }
+    let (w, h) = (header.width as f64, header.height as f64);
+    let outside = plan.outside_picture(w, h);
+    if !outside.is_empty() {
+        eprintln!(
+            "warning: {name}: {} wholly outside the picture ({w} × {h}): nothing is counted there; \
+             was the plan drawn on footage of another size?",
+            outside.join(", ") + if outside.len() == 1 { " lies" } else { " lie" }
+        );
+    }
+    Ok(())
 }
 
 /// With a site's name (given, or the project's), the hand-in files next to the report; their paths.
