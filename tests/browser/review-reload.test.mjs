@@ -32,6 +32,8 @@ test("reload: the corrections and decisions come back and are applied when track
   await page.waitForSelector("body[data-ready=true]", { timeout: 30000 });
   const message = page.locator(".message[data-key=work-kept]");
   assert.match(await message.innerText(), /Your 2 corrections and 2 review decisions are kept from last time\. Press Run to track again/);
+  // The demo's plan, never changed here, is not called edited (a newcomer's trial).
+  assert.equal(await page.locator("#plan-name").innerText(), "the demo's, kept from last time");
   await screenshot(page, "15-reloaded", { fullPage: false });
   await message.getByRole("button", { name: "Run now" }).click();
   await page.waitForFunction(() => /tracks in/.test(document.getElementById("run-status").textContent), null, { timeout: 60000 });

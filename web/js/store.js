@@ -87,7 +87,7 @@ export class PageStore {
     /** @type {string | null} the selected line or zone: "line:2", "zone:0" */
     this.selected = null;
     /** Where the plan came from, as the Files panel names it. */
-    this.planName = this.restored ? (this.restored.source === "file" ? "kept from last time" : "kept from last time (edited)") : "drawn here";
+    this.planName = this.restored ? restoredPlanName(this.restored.source) : "drawn here";
     /** What keeps the plan from being used in full (a field to fix, unfinished ground points), or "". */
     this.planProblem = "";
     this.finding = false;
@@ -508,4 +508,15 @@ export class PageStore {
     this.prints = { ...this.prints, [kind]: print };
     this.emit(["prints"]);
   }
+}
+
+/**
+ * How the Files panel names a plan kept from an earlier visit, by where it came from: a file or
+ * the demo's as they were, or changed here ("demo-edited", or drawn here: "saved").
+ * @param {string | undefined} source
+ */
+function restoredPlanName(source) {
+  if (source === "file") return "kept from last time";
+  if (source === "demo") return "the demo's, kept from last time";
+  return "kept from last time (edited)";
 }
