@@ -1226,6 +1226,9 @@ fn footage_and_plan_that_disagree_are_named() {
     let found = dir.join("found.txt").display().to_string();
     let o = throughline(&["detect", "--y4m", &footage, "-o", &found]);
     let e = stderr(&o);
-    assert!(e.contains("nothing moving was found in its 3 frames"), "{e}");
+    assert!(
+        e.contains("nothing moving was found in its 3 frames"),
+        "{e}"
+    );
     assert!(!e.contains("--frames"), "{e}");
 }

@@ -105,6 +105,27 @@ fn an_output_that_is_an_input_or_another_output_is_refused() {
         "{}",
         stderr(&o)
     );
+    // Frames rendered into the scene's own folder, which `simulate` makes: not refused (a
+    // newcomer's trial), while a folder elsewhere must be there.
+    let scene = dir.join("new-scene");
+    let frames = scene.join("frames.y4m").display().to_string();
+    let sim = |render: &str| {
+        let d = scene.display().to_string();
+        throughline(&[
+            "simulate",
+            "--out-dir",
+            &d,
+            "--frames",
+            "5",
+            "--render",
+            render,
+        ])
+    };
+    let o = sim(&frames);
+    assert!(o.status.success(), "{}", stderr(&o));
+    assert!(std::path::Path::new(&frames).exists());
+    let o = sim(&nowhere.with_extension("y4m").display().to_string());
+    assert_eq!(o.status.code(), Some(2), "{}", stderr(&o));
     // Writing to a device is not a clash: /dev/null takes any number of outputs.
     let o = run_to(&["-o", "/dev/null", "--csv", "/dev/null", "-q"]);
     assert!(o.status.success(), "{}", stderr(&o));

@@ -117,8 +117,13 @@ pub fn run(args: Args) -> Result<(), Failure> {
     let mut outputs: Vec<Option<&Path>> = targets.iter().map(|p| Some(p.as_path())).collect();
     outputs.push(args.render.as_deref());
     // The scene's own folder is made here, once the other outputs are known to be fine; any
-    // other folder must be there already.
-    check_paths(&[args.plan.as_deref()], &[args.render.as_deref()])?;
+    // other folder must be there already (frames rendered into the scene's folder are checked
+    // once it is made).
+    let render_elsewhere = args
+        .render
+        .as_deref()
+        .filter(|r| r.parent() != Some(dir.as_path()));
+    check_paths(&[args.plan.as_deref()], &[render_elsewhere])?;
     std::fs::create_dir_all(dir).map_err(|e| Failure {
         message: format!("{}: cannot create the folder: {e}", dir.display()),
         code: 1,
