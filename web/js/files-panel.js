@@ -30,12 +30,12 @@ export class FilesPanel {
     this.planName = byId("plan-name", HTMLElement);
     /** @type {((text: string, name: string) => void) | null} opens a project file (project-panel.js), once there is one */
     this.openProject = null;
-    store.subscribe(["footage"], () => { this.footageName.textContent = store.footage ? store.footage.name : "none"; });
-    store.subscribe(["detections"], () => { if (store.detections) this.detectionsName.textContent = store.detections.label; });
-    store.subscribe(["planName"], () => { this.planName.textContent = store.planName; });
+    store.subscribe(["footage"], () => { nameShown(this.footageName, store.footage ? store.footage.name : "none"); });
+    store.subscribe(["detections"], () => { if (store.detections) nameShown(this.detectionsName, store.detections.label); });
+    store.subscribe(["planName"], () => { nameShown(this.planName, store.planName); });
     // Checked again whenever the footage or the detections change (Find replaces them too).
     store.subscribe(["video", "detections"], () => this.checkFit());
-    this.planName.textContent = store.planName;
+    nameShown(this.planName, store.planName);
     this.bindInputs();
     this.bindDrop(byId("stage", HTMLElement));
   }
@@ -92,7 +92,7 @@ export class FilesPanel {
    */
   async openDetections(bytes, name) {
     this.messages.clear("detections");
-    this.detectionsName.textContent = `${name} (reading…)`;
+    nameShown(this.detectionsName, `${name} (reading…)`);
     this.detectionsBar.hidden = false;
     this.readingFiles += 1;
     try {
@@ -106,7 +106,7 @@ export class FilesPanel {
     } catch (e) {
       // The core keeps the detections it had: say which are still in use, as for a plan.
       const kept = this.store.detections;
-      this.detectionsName.textContent = kept ? kept.label : `${name}: not read`;
+      nameShown(this.detectionsName, kept ? kept.label : `${name}: not read`);
       const still = kept ? ` The detections in use are unchanged: ${kept.label}.` : "";
       // The core's message may end without a full stop: the sentences must not run together.
       const why = /** @type {Error} */ (e).message.replace(/[.\s]*$/, ".");
@@ -187,4 +187,14 @@ export function readingWarnings(name, skipped, warnings) {
   const more = listed.length - shown.length;
   const head = skipped ? `${name}: ${skipped} ${skipped === 1 ? "row" : "rows"} skipped.` : `${name}: read with ${warnings.length === 1 ? "a warning" : "warnings"}.`;
   return [head, ...shown, ...(more > 0 ? [`… and ${more} more.`] : [])].join("\n");
+}
+
+/**
+ * A file's name in the Files panel; whole in its tooltip, where the panel's width cuts it short.
+ * @param {HTMLElement} el
+ * @param {string} text
+ */
+function nameShown(el, text) {
+  el.textContent = text;
+  el.title = text;
 }
