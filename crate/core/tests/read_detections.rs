@@ -713,6 +713,11 @@ fn fields_under_near_names_are_named() {
             .starts_with("the header has no `score` column (is `scroe` meant to be `score`?)"),
         "{e}"
     );
+    let e = read_detections(b"frame,x,y,width,height,score\n1,1,2,3,4,0.9\n").unwrap_err();
+    assert!(
+        e.message.contains("`w` for the width, `h` for the height"),
+        "{e}"
+    );
     let e = read_detections(b"frame\tx\ty\tw\th\tscore\n1\t1\t2\t3\t4\t0.9\n").unwrap_err();
     assert!(e.message.contains("tabs between fields"), "{e}");
 }

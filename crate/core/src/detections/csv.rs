@@ -40,6 +40,11 @@ fn csv_columns(header: &[&str], line: usize) -> Result<CsvColumns, Error> {
         .any(|n| n == "x2" || n == "x_max" || n == "xmax")
     {
         " (boxes must be top-left x,y and width,height: compute w = x2 - x1 and h = y2 - y1)"
+    } else if names
+        .iter()
+        .any(|n| matches!(n.as_str(), "width" | "height" | "conf" | "confidence"))
+    {
+        " (the columns are named short: `w` for the width, `h` for the height, `score` for the confidence)"
     } else {
         ""
     };
