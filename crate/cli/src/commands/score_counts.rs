@@ -113,25 +113,31 @@ pub fn run(args: Args) -> Result<(), Failure> {
     if acc.unmatched_reference_rows > 0 {
         eprintln!("warning: {}", unmatched(&acc));
     }
-    if let Some([m0, m1, a0, a1]) = &acc.intervals_apart {
-        // A date on one side only: the times are written differently, not apart.
-        let dated = |t: &str| t.contains('T');
-        let how = if dated(m0) != dated(a0) {
-            format!(
-                "write the manual count's interval_start as the report writes them (like {a0}): \
-                 with a date when the plan has a start, as elapsed HH:MM:SS when it has none"
-            )
-        } else {
-            "check the start time of the plan and of the manual count (a clock 12 hours apart, or \
-             another date?); interval_start is HH:MM:SS, or a date and a time"
-                .to_string()
-        };
-        eprintln!(
-            "warning: none of the reference's intervals ({m0} to {m1}) is among the report's \
-             ({a0} to {a1}), so every count compared reads as missed: {how}"
-        );
+    if let Some(apart) = &acc.intervals_apart {
+        eprintln!("warning: {}", intervals_apart(apart));
     }
     Ok(())
+}
+
+/// Why no interval of the reference (`m0` to `m1`) is among the report's (`a0` to `a1`), and what
+/// to check.
+fn intervals_apart([m0, m1, a0, a1]: &[String; 4]) -> String {
+    // A date on one side only: the times are written differently, not apart.
+    let dated = |t: &str| t.contains('T');
+    let how = if dated(m0) != dated(a0) {
+        format!(
+            "write the manual count's interval_start as the report writes them (like {a0}): \
+             with a date when the plan has a start, as elapsed HH:MM:SS when it has none"
+        )
+    } else {
+        "check the start time of the plan and of the manual count (a clock 12 hours apart, or \
+         another date?); interval_start is HH:MM:SS, or a date and a time"
+            .to_string()
+    };
+    format!(
+        "none of the reference's intervals ({m0} to {m1}) is among the report's ({a0} to {a1}), so \
+         every count compared reads as missed: {how}"
+    )
 }
 
 /// The reference with all its classes added up, line by line, when asked (`--all-classes`) or when

@@ -25,29 +25,30 @@ struct CsvColumns {
 /// The names of the columns read (appearance columns aside).
 const COLUMNS: [&str; 7] = ["frame", "x", "y", "w", "h", "score", "class"];
 
+/// What a header missing a required column may have got wrong, from its look: another separator,
+/// corners for a box, long names.
+fn header_hint(header: &[&str], names: &[String]) -> &'static str {
+    let any = |these: &[&str]| names.iter().any(|n| these.contains(&n.as_str()));
+    if header.len() == 1 && header[0].contains(';') {
+        " (the file seems to use `;` between fields: save it with commas, and `.` as the decimal point)"
+    } else if header.len() == 1 && header[0].contains('\t') {
+        " (the file seems to use tabs between fields: save it with commas)"
+    } else if any(&["x2", "x_max", "xmax"]) {
+        " (boxes must be top-left x,y and width,height: compute w = x2 - x1 and h = y2 - y1)"
+    } else if any(&["width", "height", "conf", "confidence"]) {
+        " (the columns are named short: `w` for the width, `h` for the height, `score` for the confidence)"
+    } else {
+        ""
+    }
+}
+
 fn csv_columns(header: &[&str], line: usize) -> Result<CsvColumns, Error> {
     let names: Vec<String> = header
         .iter()
         .map(|h| h.trim().to_ascii_lowercase())
         .collect();
     let find = |name: &str| names.iter().position(|n| n == name);
-    let hint = if header.len() == 1 && header[0].contains(';') {
-        " (the file seems to use `;` between fields: save it with commas, and `.` as the decimal point)"
-    } else if header.len() == 1 && header[0].contains('\t') {
-        " (the file seems to use tabs between fields: save it with commas)"
-    } else if names
-        .iter()
-        .any(|n| n == "x2" || n == "x_max" || n == "xmax")
-    {
-        " (boxes must be top-left x,y and width,height: compute w = x2 - x1 and h = y2 - y1)"
-    } else if names
-        .iter()
-        .any(|n| matches!(n.as_str(), "width" | "height" | "conf" | "confidence"))
-    {
-        " (the columns are named short: `w` for the width, `h` for the height, `score` for the confidence)"
-    } else {
-        ""
-    };
+    let hint = header_hint(header, &names);
     // A name written for one of the columns read, misspelt (`scroe`, `clas`).
     let misspelt = |name: &str| {
         names
