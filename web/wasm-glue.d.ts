@@ -38,8 +38,8 @@ declare namespace wasm_bindgen {
     constructor();
     loadDetections(bytes: Uint8Array): DetectionSummary;
     setPlan(json: string): void;
-    /** The length in frames of the footage open beside detections from a file (0: none). */
-    setFootageFrames(frames: number): void;
+    /** The duration of the footage the work is on, its fingerprint's (0: none); give the plan after. */
+    setFootageSeconds(seconds: number): void;
     planOutsidePicture(width: number, height: number): string[];
     track(method: string, settings: string, progress: (done: number, total: number) => void): number;
     report(): string;

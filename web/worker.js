@@ -173,7 +173,7 @@ async function perform(req, progress, token) {
   switch (req.op) {
     case "init": return init(req.wasm);
     case "loadDetections": tracked = false; return core().loadDetections(new Uint8Array(req.bytes));
-    case "setPlan": core().setFootageFrames(req.footageFrames); core().setPlan(req.json); return results(req);
+    case "setPlan": core().setFootageSeconds(req.footageSeconds); core().setPlan(req.json); return results(req);
     case "setEdits": return setEdits(req.json, req.kind, req);
     case "editsText": return core().editsText();
     case "readProject": return wasm_bindgen.readProject(req.text);

@@ -108,15 +108,16 @@ export class CoreClient {
   }
 
   /**
-   * Checks and sets the plan (JSON text) and the footage's length; resolves to the report, CSV
+   * Checks and sets the plan (JSON text) and the footage's duration; resolves to the report, CSV
    * and doubtful moments when tracks exist, else null.
    * @param {string} json
    * @param {{width: number, height: number} | null} picture the picture's size (for the doubtful moments)
-   * @param {number} footageFrames the footage's length in frames at the plan's rate (0: none):
-   *   detections from a file that end before it are counted to its end
+   * @param {number} footageSeconds the duration of the footage the work is on, as its
+   *   fingerprint records it (0: none): detections from a file that end before it are counted to
+   *   its end at the plan's frame rate, as `throughline run --edits PROJECT` counts them
    */
-  setPlan(json, picture, footageFrames) {
-    return this.call({ op: "setPlan", json, ...sizeOf(picture), footageFrames });
+  setPlan(json, picture, footageSeconds) {
+    return this.call({ op: "setPlan", json, ...sizeOf(picture), footageSeconds });
   }
 
   /**

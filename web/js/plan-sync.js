@@ -26,9 +26,10 @@ export class PlanSync {
       clearTimeout(this.timer);
       this.timer = setTimeout(() => this.send(), why === "edit" ? 120 : 0);
     });
-    // Footage opened after the plan: the plan is checked against its picture too, and the count
-    // reaches to the footage's end (detections from a file end at their last box).
-    store.subscribe(["video"], () => this.send());
+    // Footage opened after the plan: the plan is checked against its picture too. And the count
+    // reaches to the end of the footage the work is on, once its fingerprint has its duration
+    // (detections from a file end at their last box).
+    store.subscribe(["video", "prints"], () => this.send());
   }
 
   /** Gives the plan to the core now; the counts it gives back, if any, become the page's. */
@@ -40,11 +41,12 @@ export class PlanSync {
     const { json, calibrationNote } = planForCore(this.store.plan);
     this.store.planChecked(calibrationNote);
     try {
-      // At the plan's frame rate, as `throughline run --edits PROJECT` takes it from the
-      // footage's duration in a saved project.
-      const { playable, duration } = this.store.video;
-      const frames = playable && Number.isFinite(duration) ? Math.round(duration * this.store.fps) : 0;
-      const results = await this.client.setPlan(json, this.store.picture, frames);
+      // The footage the project saved here will name (the one open, else the one the work was
+      // made with), and the very duration it records: `throughline run --edits PROJECT` counts
+      // to the same end.
+      const print = this.store.prints.footage || this.store.work.madeWith.footage;
+      const seconds = (print && print.duration_seconds) || 0;
+      const results = await this.client.setPlan(json, this.store.picture, seconds);
       if (!latest()) return;
       if (results) this.store.resultsReady(results);
       const video = this.store.video;

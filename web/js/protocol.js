@@ -163,7 +163,7 @@
  * (transferred), not copied.
  * @typedef {{op: "init", wasm: Uint8Array}} InitRequest
  * @typedef {{op: "loadDetections", bytes: ArrayBuffer}} LoadDetectionsRequest
- * @typedef {{op: "setPlan", json: string, width: number, height: number, footageFrames: number}} SetPlanRequest
+ * @typedef {{op: "setPlan", json: string, width: number, height: number, footageSeconds: number}} SetPlanRequest
  * @typedef {{op: "setEdits", json: string, kind: "edits" | "project", width: number, height: number}} SetEditsRequest
  * @typedef {{op: "editsText"}} EditsTextRequest
  * @typedef {{op: "readProject", text: string}} ReadProjectRequest

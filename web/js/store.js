@@ -489,7 +489,7 @@ export class PageStore {
   workCleared() {
     this.handCount.tallyDropped();
     this.work.replace({ edits: [], marks: [], site: "", madeWith: { footage: null, detections: null }, extras: {} });
-    this.emit(["edits", "marks", "site", "checks"]);
+    this.emit(["edits", "marks", "site", "checks", "prints"]);
   }
 
   /** @param {string} name the site's name, for the project file and printed sheets */

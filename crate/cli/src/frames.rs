@@ -93,3 +93,20 @@ pub fn each_frame(
         Ok(())
     })
 }
+
+/// How many frames a YUV4MPEG2 file holds (passed over by seeking, not read); `None` for
+/// standard input, which can be read only once.
+pub fn y4m_frames(footage: &Path) -> Result<Option<u32>, Failure> {
+    if footage == Path::new("-") {
+        return Ok(None);
+    }
+    let file = std::fs::File::open(footage)
+        .map_err(|e| bad_input(footage, format!("cannot read the file: {e}")))?;
+    let mut reader = y4m::Reader::new(BufReader::with_capacity(1 << 12, file))
+        .map_err(|e| bad_input(footage, e))?;
+    let mut frames = 0u32;
+    while reader.pass_frame().map_err(|e| bad_input(footage, e))? {
+        frames = frames.saturating_add(1);
+    }
+    Ok(Some(frames))
+}

@@ -1127,6 +1127,13 @@ fn footage_found_boxes_keep_the_clips_length() {
     let e = stderr(&o);
     assert!(e.contains("over 100 frames"), "{e}");
     assert!(e.contains("give `--frames 100` to `run`"), "{e}");
+    // Those boxes read from the file, with the footage given to bridge: counted to its end too.
+    let o = throughline(&[
+        "run", &found, "--y4m", &footage, "--plan", &plan, "-o", &report, "-q",
+    ]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let r: serde_json::Value = serde_json::from_slice(&std::fs::read(&report).unwrap()).unwrap();
+    assert_eq!(r["frame_count"], 100, "the --y4m file's frames");
 }
 
 /// Scores written with a decimal comma and a column after the class (`…,0,944,1`) read as score
@@ -1149,6 +1156,14 @@ fn scores_all_under_min_score_are_named_with_the_decimal_comma() {
         "{e}"
     );
     assert!(!e.contains("min_hits"), "{e}");
+    // The same when the file is read a piece at a time (tracks written as benchmark text).
+    let out = dir.join("tracks.txt").display().to_string();
+    let o = throughline(&["track", &dets, "-o", &out]);
+    let e = stderr(&o);
+    assert!(
+        e.contains("every one of its 30 detections scores under 0.3") && !e.contains("min_hits"),
+        "{e}"
+    );
 }
 
 /// A manual count whose times a spreadsheet saved short (`2026-03-02 7:00` for
@@ -1175,6 +1190,33 @@ fn manual_count_times_written_short_are_compared() {
     assert_eq!(
         json(&short)["overall"],
         json(&demo("truth_counts.csv"))["overall"]
+    );
+    // A dated manual count against an undated report is the same mistake the other way round.
+    let plan_text = std::fs::read_to_string(demo("plan.json")).unwrap();
+    let mut plan_value: serde_json::Value = serde_json::from_str(&plan_text).unwrap();
+    plan_value.as_object_mut().unwrap().remove("start");
+    let undated_plan = write(&dir, "undated-plan.json", plan_value.to_string().as_bytes());
+    let undated_report = dir.join("undated-report.json").display().to_string();
+    let o = throughline(&[
+        "run",
+        &demo("detections.txt"),
+        "--plan",
+        &undated_plan,
+        "-o",
+        &undated_report,
+        "-q",
+    ]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let o = throughline(&[
+        "score-counts",
+        "--truth",
+        &demo("truth_counts.csv"),
+        &undated_report,
+    ]);
+    assert!(
+        stderr(&o).contains("as the report writes them (like 00:00:00)"),
+        "{}",
+        stderr(&o)
     );
     let undated = write(
         &dir,

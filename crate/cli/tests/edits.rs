@@ -502,6 +502,24 @@ fn a_projects_footage_length_reaches_the_count() {
         frames(&["count", &tracks, "--plan", &plan_path, "--edits", &with, "-q"]),
         750
     );
+    // `review` counts as `run` does before listing: to the same end, and --frames as for `run`.
+    let o = throughline(&[
+        "review", &dets, "--plan", &plan_path, "--edits", &with, "-q",
+    ]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let o = throughline(&[
+        "review", &dets, "--plan", &plan_path, "--frames", "600", "-q",
+    ]);
+    assert_eq!(o.status.code(), Some(2), "{}", stderr(&o));
+    // A duration no footage can have is refused, naming the project.
+    let absurd = project(Some(1e9));
+    let o = throughline(&["run", &dets, "--plan", &plan_path, "--edits", &absurd, "-q"]);
+    assert_eq!(o.status.code(), Some(1), "{}", stderr(&o));
+    assert!(
+        stderr(&o).contains("project.json") && stderr(&o).contains("footage.duration_seconds"),
+        "{}",
+        stderr(&o)
+    );
     let without = project(None);
     assert_eq!(
         frames(&["run", &dets, "--plan", &plan_path, "--edits", &without, "-q"]),

@@ -145,25 +145,23 @@ pub fn plain_json_words(message: &str) -> String {
 fn nearest_known_field(message: &str) -> Option<&str> {
     let rest = message.strip_prefix("unknown field `")?;
     let (unknown, expected) = rest.split_once("`, expected ")?;
-    let names = expected.split('`').skip(1).step_by(2);
-    let lower = unknown.to_lowercase();
-    let length = lower.chars().count();
-    names
-        // Names more than two letters longer or shorter are more than two apart: not measured
-        // (a key of any length costs no more than the names' own).
-        .filter(|n| n.chars().count().abs_diff(length) <= 2)
-        .map(|n| (n, edit_distance(&lower, &n.to_lowercase())))
-        .filter(|&(_, d)| d <= 2 && d < unknown.chars().count())
-        .min_by_key(|&(_, d)| d)
-        .map(|(n, _)| n)
+    let names: Vec<&str> = expected.split('`').skip(1).step_by(2).collect();
+    likely_meant(unknown, &names)
 }
 
 /// Among `known`, the name `written` is likely a misspelling of: at most two letters apart (case
 /// aside: `Score` is `score` misspelt), fewer than `written` has, and not `written` itself.
 pub(crate) fn likely_meant<'a>(written: &str, known: &[&'a str]) -> Option<&'a str> {
+    let length = written.chars().count();
+    // Names more than two letters longer or shorter are more than two apart: not measured (a
+    // name of any length costs no more than the known names' own).
+    if known.iter().all(|k| k.chars().count().abs_diff(length) > 2) {
+        return None;
+    }
     let lower = written.to_lowercase();
     known
         .iter()
+        .filter(|k| k.chars().count().abs_diff(length) <= 2)
         .filter(|&&k| k != written)
         .map(|&k| (k, edit_distance(&lower, &k.to_lowercase())))
         .filter(|&(_, d)| d <= 2 && d < written.chars().count())

@@ -8,6 +8,7 @@ use crate::accuracy::Tally;
 use crate::edits::{self, Edit};
 use crate::error::{Error, ErrorKind};
 use crate::fingerprint::Fingerprint;
+use crate::limits::MAX_FOOTAGE_FRAMES;
 use crate::plan::PlanSpec;
 use crate::report::Correction;
 use crate::track::Method;
@@ -83,11 +84,25 @@ pub struct Project {
 impl Project {
     /// The footage's length in frames at `frame_rate`, from the duration recorded with it (the
     /// page counts detections from a file that end before the footage to its end, and so does a
-    /// replay of its project); `None` without a duration.
-    pub fn footage_frames(&self, frame_rate: f64) -> Option<u32> {
-        let seconds = self.footage.as_ref()?.duration_seconds?;
-        let n = (seconds * frame_rate).round();
-        (n >= 1.0 && n <= f64::from(u32::MAX)).then_some(n as u32)
+    /// replay of its project; [`footage_frames`]); `None` without a duration, an error naming it
+    /// when it is longer than footage may be.
+    pub fn footage_frames(&self, frame_rate: f64) -> Result<Option<u32>, Error> {
+        let Some(seconds) = self.footage.as_ref().and_then(|f| f.duration_seconds) else {
+            return Ok(None);
+        };
+        match footage_frames(seconds, frame_rate) {
+            Some(0) => Ok(None),
+            Some(n) => Ok(Some(n)),
+            None => Err(Error::new(
+                ErrorKind::Unsuitable,
+                format!(
+                    "footage.duration_seconds {seconds} at {frame_rate} frames a second is more than \
+                     the {MAX_FOOTAGE_FRAMES} frames footage may have: is the project's footage \
+                     record right?"
+                ),
+            )
+            .in_field("footage.duration_seconds")),
+        }
     }
 
     /// Reads a project file; errors name the line and column.
@@ -186,5 +201,17 @@ pub fn edits_from_json(text: &str) -> Result<Vec<Edit>, Error> {
         )),
         // Not JSON, or no format: the edits file's reader says what is wrong where.
         None => Ok(edits::EditList::from_json(text)?.edits),
+    }
+}
+
+/// Footage of `seconds` at `frame_rate` in frames, rounded to the nearest (0 for none, or for a
+/// duration that is not a number), as the page and a replay of its project both take it; `None`
+/// beyond [`MAX_FOOTAGE_FRAMES`].
+pub fn footage_frames(seconds: f64, frame_rate: f64) -> Option<u32> {
+    let n = (seconds * frame_rate).round();
+    match n {
+        n if n.is_nan() || n < 1.0 => Some(0),
+        n if n > MAX_FOOTAGE_FRAMES as f64 => None,
+        n => Some(n as u32),
     }
 }

@@ -695,6 +695,8 @@ fn fields_under_near_names_are_named() {
         w[1].contains("`embeding`") && w[1].contains("`embedding`"),
         "{w:?}"
     );
+    // A near name beside the field itself is another field, not a misspelling.
+    assert!(said("[{\"image_id\": 1, \"category_id\": 2, \"category\": \"car\", \"scores\": [1], \"bbox\": [1, 2, 3, 4], \"score\": 0.9}]").is_empty());
     // Keys read, and others far from any, say nothing.
     assert!(said(
         "[{\"image_id\": 1, \"id\": 7, \"area\": 12, \"bbox\": [1, 2, 3, 4], \"score\": 0.9}]"

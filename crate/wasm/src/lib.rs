@@ -5,7 +5,7 @@
 
 use js_sys::Function;
 use serde::Serialize;
-use throughline_core::{detect, detections, pipeline, plan, report, track, Method};
+use throughline_core::{detect, detections, pipeline, plan, project, report, track, Method};
 use wasm_bindgen::prelude::*;
 
 mod boxes;
@@ -80,9 +80,10 @@ pub struct Session {
     report: Option<Result<report::Report, String>>,
     /// The detector while footage is being searched, and the boxes found so far.
     detector: Option<(detect::Detector, detecting::FoundBoxes)>,
-    /// The length in frames of the footage open beside detections from a file (0: none, or not
-    /// known): the count reaches to it when the boxes end before it, as `run --frames` does.
-    footage_frames: u32,
+    /// The duration in seconds of the footage the work is on, as its fingerprint records it (0:
+    /// none, or not known): detections from a file that end before it are counted to its end at
+    /// the plan's frame rate, as a replay of the project does (`Project::footage_frames`).
+    footage_seconds: f64,
     /// The frames the last tracks span by themselves (before the footage's length is applied).
     tracks_length: u32,
 }
@@ -183,18 +184,16 @@ impl Session {
         self.recounted()
     }
 
-    /// The length in frames of the footage open (0 when none): detections read from a file that
-    /// end before it are counted to its end, as `throughline run --frames N` counts them (boxes
-    /// found in the footage know its length already). Counts again when it changes.
-    #[wasm_bindgen(js_name = setFootageFrames)]
-    pub fn set_footage_frames(&mut self, frames: u32) -> Result<(), JsError> {
-        if frames == self.footage_frames {
-            return Ok(());
-        }
-        self.footage_frames = frames;
-        match (&self.tracks, &self.plan) {
-            (Some(_), Some(_)) => self.recounted(),
-            _ => Ok(()),
+    /// The duration in seconds of the footage the work is on (its fingerprint's; 0 when none):
+    /// detections read from a file that end before it are counted to its end, as a replay of the
+    /// project saved here counts them (boxes found in the footage know its length already). Give
+    /// the plan after it: [`Session::set_plan`] counts again when it changed.
+    #[wasm_bindgen(js_name = setFootageSeconds)]
+    pub fn set_footage_seconds(&mut self, seconds: f64) {
+        let seconds = if seconds.is_finite() { seconds } else { 0.0 };
+        if seconds != self.footage_seconds {
+            self.footage_seconds = seconds;
+            self.report = None;
         }
     }
 
@@ -251,11 +250,14 @@ impl Session {
             .detections
             .as_ref()
             .is_some_and(|d| d.detections.footage_frames > 0);
+        let footage_frames = match (&self.plan, found_in_footage) {
+            (Some(plan), false) => {
+                project::footage_frames(self.footage_seconds, plan.spec.frame_rate).unwrap_or(0)
+            }
+            _ => 0,
+        };
         if let Some(t) = &mut self.tracks {
-            t.frame_count = match found_in_footage {
-                true => self.tracks_length,
-                false => self.tracks_length.max(self.footage_frames),
-            };
+            t.frame_count = self.tracks_length.max(footage_frames);
         }
         self.edited = match &self.tracks {
             Some(t) if !self.work.edits.is_empty() => {

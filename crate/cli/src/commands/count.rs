@@ -32,7 +32,8 @@ pub struct Args {
     #[arg(long, value_name = "FILE")]
     edits: Option<PathBuf>,
     /// The footage's length in frames, when the tracks end before it does (nobody in view at the
-    /// end): the last interval is then whole, not partial.
+    /// end): the last interval is then whole, not partial. Default: with --edits PROJECT, its
+    /// footage's duration.
     #[arg(long, value_name = "N")]
     frames: Option<u32>,
     /// Not `count`'s (its tracks are already made): accepted only to say where it belongs.
@@ -80,7 +81,7 @@ pub fn run(args: Args) -> Result<(), Failure> {
         }
         (tracks_io::boxes_to_tracks(&boxes), None)
     };
-    let project_frames = project.and_then(|p| p.footage_frames(plan.spec.frame_rate));
+    let project_frames = project_length(project.as_ref(), args.edits.as_deref(), &plan)?;
     with_length(&mut tracks, args.frames, project_frames)?;
     let report = pipeline::count(&tracks, &plan, tracker.as_ref(), &work)
         .map_err(|e| bad_input(&args.plan, e))?;
@@ -124,17 +125,32 @@ pub fn stage_report(
     }
 }
 
+/// The length of the footage a project (read from `path`) was made with, at the plan's frame
+/// rate: the page counted detections from a file that end before it to its end.
+pub fn project_length(
+    project: Option<&throughline_core::project::Project>,
+    path: Option<&std::path::Path>,
+    plan: &throughline_core::plan::Plan,
+) -> Result<Option<u32>, Failure> {
+    match (project, path) {
+        (Some(p), Some(path)) => p
+            .footage_frames(plan.spec.frame_rate)
+            .map_err(|e| bad_input(path, e)),
+        _ => Ok(None),
+    }
+}
+
 /// The footage's length (`--frames`) given to the tracks: the count's intervals reach to it. Shorter
 /// than the boxes or the footage already read is refused, naming what it must reach. Without it,
-/// the length of the footage a project was made with (`project_frames`, from its duration) when
-/// the tracks end before it, as the page counted them.
+/// the footage's length when known otherwise (`known`: the duration of the footage a project was
+/// made with, a `--y4m` file's frames) when the tracks end before it, as the page counts them.
 pub fn with_length(
     tracks: &mut throughline_core::Tracks,
     frames: Option<u32>,
-    project_frames: Option<u32>,
+    known: Option<u32>,
 ) -> Result<(), Failure> {
     let Some(n) = frames else {
-        tracks.frame_count = tracks.frame_count.max(project_frames.unwrap_or(0));
+        tracks.frame_count = tracks.frame_count.max(known.unwrap_or(0));
         return Ok(());
     };
     let last_box = tracks

@@ -34,6 +34,11 @@ pub struct Args {
     /// recorded for the footage, else the extent of the boxes.
     #[arg(long, value_name = "WxH", value_parser = picture_size)]
     picture: Option<(f64, f64)>,
+    /// The footage's length in frames, when the detections end before it does (as for `run`;
+    /// default: with --edits PROJECT, its footage's duration): a track ending at the footage's
+    /// end is not doubtful, one ending well before it may be.
+    #[arg(long, value_name = "N")]
+    frames: Option<u32>,
     /// List only the N most doubtful moments (default: every one).
     #[arg(long, value_name = "N")]
     first: Option<usize>,
@@ -51,7 +56,9 @@ pub fn run(args: Args) -> Result<(), Failure> {
         .and_then(|f| Some((f64::from(f.width?), f64::from(f.height?))));
     let (how, settings) =
         with_project(&args.tracking, args.edits.as_deref().zip(project.as_ref()))?;
-    let tracks = track_file_with(&args.detections, &how, settings, &mut Timer::new())?;
+    let mut tracks = track_file_with(&args.detections, &how, settings, &mut Timer::new())?;
+    let known = super::count::project_length(project.as_ref(), args.edits.as_deref(), &plan)?;
+    super::count::with_length(&mut tracks, args.frames, known)?;
     let report = pipeline::count(&tracks, &plan, Some(&tracks.config), &work)
         .map_err(|e| bad_input(&args.plan, e))?;
     let shown = pipeline::correct_tracks(&tracks, &work.edits).0;

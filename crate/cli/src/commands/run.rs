@@ -69,7 +69,8 @@ struct HandinArgs {
     #[arg(long, value_name = "TIME")]
     start: Option<String>,
     /// The footage's length in frames, when the detections end before it does (nobody in view at
-    /// the end): the last interval is then whole, not partial.
+    /// the end): the last interval is then whole, not partial. Default: the --y4m file's frames,
+    /// or with --edits PROJECT its footage's duration (boxes found with --y4m alone know theirs).
     #[arg(long, value_name = "N")]
     frames: Option<u32>,
     /// The original footage file, to name it in the outputs (only its first MiB is read).
@@ -108,12 +109,21 @@ pub fn run(args: Args) -> Result<(), Failure> {
     let (work, project) = read_work(args.edits.as_deref())?;
     let project_at = args.edits.as_deref().zip(project.as_ref());
     let mut tracks = track_source(&args, &plan, project_at)?;
-    // Boxes found in the footage (`--y4m`) know its length; the page's do too.
-    let project_frames = project
-        .as_ref()
-        .filter(|_| args.y4m.is_none())
-        .and_then(|p| p.footage_frames(plan.spec.frame_rate));
-    super::count::with_length(&mut tracks, args.handin.frames, project_frames)?;
+    // Boxes found in the footage know its length (the page's do too); a file's boxes end at
+    // their last unless the footage's length is known.
+    let known = match (&args.detections, &args.y4m) {
+        (None, _) => None,
+        (Some(_), footage) => {
+            let project_frames =
+                super::count::project_length(project.as_ref(), args.edits.as_deref(), &plan)?;
+            let footage_frames = match footage {
+                Some(f) => crate::frames::y4m_frames(f)?,
+                None => None,
+            };
+            project_frames.max(footage_frames)
+        }
+    };
+    super::count::with_length(&mut tracks, args.handin.frames, known)?;
     let report = pipeline::count(&tracks, &plan, Some(&tracks.config), &work)
         .map_err(|e| bad_input(&args.plan, e))?;
     let mut files = Outputs::new();

@@ -119,10 +119,15 @@ pub fn run(args: Args) -> Result<(), Failure> {
     // The scene's own folder is made here, once the other outputs are known to be fine; any
     // other folder must be there already (frames rendered into the scene's folder are checked
     // once it is made).
+    let plain = |p: &Path| -> PathBuf {
+        p.components()
+            .filter(|c| *c != std::path::Component::CurDir)
+            .collect()
+    };
     let render_elsewhere = args
         .render
         .as_deref()
-        .filter(|r| r.parent() != Some(dir.as_path()));
+        .filter(|r| r.parent().map(plain) != Some(plain(dir)));
     check_paths(&[args.plan.as_deref()], &[render_elsewhere])?;
     std::fs::create_dir_all(dir).map_err(|e| Failure {
         message: format!("{}: cannot create the folder: {e}", dir.display()),

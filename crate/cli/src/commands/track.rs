@@ -140,7 +140,8 @@ fn report_streamed(path: &Path, out: &Path, how: &TrackingArgs, done: &streaming
         eprintln!("{}", no_footage_note(done.config.bridge_frames));
     }
     if done.end.tracks == 0 && done.read.rows > 0 {
-        eprintln!("{}", nothing_kept_note(path, &done.config, None));
+        let scores = (done.read.rows, done.read.highest_score);
+        eprintln!("{}", nothing_kept_note(path, &done.config, scores));
     }
     eprintln!(
         "{}: {} with {}, written to {}",
@@ -309,30 +310,38 @@ pub fn track_detections(
     if !how.quiet {
         print_crowded(path, &tracks.crowded_frames);
         if tracks.tracks.is_empty() && !dets.rows.is_empty() {
-            eprintln!("{}", nothing_kept_note(path, &config, Some(dets)));
+            let highest = dets.rows.iter().map(|r| r.score).fold(f64::MIN, f64::max);
+            eprintln!(
+                "{}",
+                nothing_kept_note(path, &config, (dets.rows.len(), highest))
+            );
         }
     }
     Ok(tracks)
 }
 
 /// Why detections gave no track, and which settings to lower (a short or low-scoring file); when
-/// every detection (`dets`, if held) scores under `min_score`, that first, with the likeliest
-/// cause: a score written with a decimal comma reads as 0.
-fn nothing_kept_note(path: &Path, config: &TrackerConfig, dets: Option<&Detections>) -> String {
-    let highest = dets.map(|d| d.rows.iter().map(|r| r.score).fold(f64::MIN, f64::max));
-    if let (Some(d), Some(top)) = (dets, highest) {
-        if top < config.min_score {
-            return format!(
-                "note: {}: no track was kept: every one of its {} detections scores under {} \
-                 (`min_score`), the highest {top}. If the scores are written with a decimal comma \
-                 (`0,87` for `0.87`) they read as 0 and the decimals as the next column: write \
-                 decimals with a full stop. If the scores are truly this low, lower `min_score` in \
-                 a settings file given with --config (docs/tracker-settings.md).",
-                path.display(),
-                d.rows.len(),
-                config.min_score
-            );
-        }
+/// every one of the `rows` detections scores under `min_score` (the highest `top`), that first,
+/// with the likeliest cause: a score written with a decimal comma reads as 0.
+fn nothing_kept_note(path: &Path, config: &TrackerConfig, (rows, top): (usize, f64)) -> String {
+    if top < config.min_score {
+        // Only a score of 0 can be a decimal comma's (`0,87` read as 0, then 87).
+        let comma = match top == 0.0 {
+            true => {
+                " If the scores are written with a decimal comma (`0,87` for `0.87`) they \
+                 read as 0 and the decimals as the next column: write decimals with a full \
+                 stop."
+            }
+            false => "",
+        };
+        return format!(
+            "note: {}: no track was kept: every one of its {} detections scores under {} \
+             (`min_score`), the highest {top}.{comma} If the scores are truly this low, lower \
+             `min_score` in a settings file given with --config (docs/tracker-settings.md).",
+            path.display(),
+            rows,
+            config.min_score
+        );
     }
     let confirm = if config.confirm_score > config.min_score {
         format!(

@@ -400,8 +400,13 @@ fn note_unread_keys(text: &str, warnings: &mut Warnings) {
     let Some(keys) = element_keys(text, 1) else {
         return;
     };
+    // Fields the element lacks (one it has is read, whatever else is near it: `scores`).
+    let lacking: Vec<&str> = ["category_id", "embedding"]
+        .into_iter()
+        .filter(|f| !keys.iter().any(|k| k == f))
+        .collect();
     for key in keys.iter().filter(|k| !READ.contains(&k.as_str())) {
-        if let Some(field) = crate::error::likely_meant(key, &READ) {
+        if let Some(field) = crate::error::likely_meant(key, &lacking) {
             let line = field_place(text, 1, Some(key)).map(|(l, _)| l);
             warnings.note(
                 line,
@@ -415,12 +420,12 @@ fn note_unread_keys(text: &str, warnings: &mut Warnings) {
     }
 }
 
-/// What an element without `field` goes without.
+/// What an element without `field` goes without (a required field missing is an error, said
+/// with its near name by [`misspelt_key`]).
 fn lost_without(field: &str) -> &'static str {
     match field {
         "category_id" => "every box is unclassified",
-        "embedding" => "the boxes carry no appearance vectors",
-        _ => "the element is refused",
+        _ => "the boxes carry no appearance vectors",
     }
 }
 

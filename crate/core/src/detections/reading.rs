@@ -16,6 +16,8 @@ pub struct PiecesSummary {
     /// The first few warnings, in file order, and how many rows were passed over in all.
     pub warnings: Vec<Warning>,
     pub skipped_rows: usize,
+    /// The highest score of a row read (`f64::MIN` when none was).
+    pub highest_score: f64,
 }
 
 pub(crate) struct Reading {
@@ -30,6 +32,8 @@ pub(crate) struct Reading {
     /// The greatest frame of a row so far, and whether a row's frame came before an earlier's.
     pub last_frame: u32,
     pub out_of_order: bool,
+    /// The highest score of a row read so far.
+    pub highest_score: f64,
 }
 
 impl Reading {
@@ -43,6 +47,7 @@ impl Reading {
             warnings: Warnings::new(),
             last_frame: 0,
             out_of_order: false,
+            highest_score: f64::MIN,
         }
     }
 
@@ -79,6 +84,7 @@ impl Reading {
 
     /// Warns once about a score outside 0..1 (the row is kept).
     pub fn note_score(&mut self, score: f64) {
+        self.highest_score = self.highest_score.max(score);
         self.warnings.note_score(score, Some(self.line), 0);
     }
 
@@ -119,6 +125,7 @@ impl Reading {
             last_frame: self.last_frame,
             skipped_rows: self.warnings.count,
             warnings: self.warnings.into_kept(),
+            highest_score: self.highest_score,
         })
     }
 }
