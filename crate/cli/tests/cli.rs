@@ -1042,13 +1042,7 @@ fn count_given_a_tracking_method_says_where_it_belongs() {
 #[test]
 fn frames_gives_the_clips_length_when_the_detections_end_early() {
     let dir = scratch("frames");
-    let text = std::fs::read_to_string(demo("detections.txt")).unwrap();
-    let early: String = text
-        .lines()
-        .filter(|l| l.split(',').next().and_then(|f| f.parse::<u32>().ok()) <= Some(700))
-        .map(|l| format!("{l}\n"))
-        .collect();
-    let dets = write(&dir, "early.txt", early.as_bytes());
+    let dets = demo_detections_until(&dir, 700);
     // Intervals of 15 s: 750 frames at 25 fps make two whole ones.
     let plan = std::fs::read_to_string(demo("plan.json"))
         .unwrap()

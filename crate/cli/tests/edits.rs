@@ -464,13 +464,7 @@ fn review_lists_the_first_moments_and_says_how_many_are_left() {
 #[test]
 fn a_projects_footage_length_reaches_the_count() {
     let dir = scratch("project-length");
-    let text = std::fs::read_to_string(demo("detections.txt")).unwrap();
-    let early: String = text
-        .lines()
-        .filter(|l| l.split(',').next().and_then(|f| f.parse::<u32>().ok()) <= Some(700))
-        .map(|l| format!("{l}\n"))
-        .collect();
-    let dets = write(&dir, "early.txt", early.as_bytes());
+    let dets = demo_detections_until(&dir, 700);
     let plan: serde_json::Value =
         serde_json::from_str(&std::fs::read_to_string(demo("plan.json")).unwrap()).unwrap();
     let project = |duration: Option<f64>| {

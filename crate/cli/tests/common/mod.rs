@@ -103,3 +103,16 @@ pub fn write(dir: &Path, name: &str, content: &[u8]) -> String {
     std::fs::write(&p, content).expect("write input");
     p.display().to_string()
 }
+
+/// The demo's detections (benchmark text) up to frame `last`, written to `dir` as `early.txt`:
+/// a clip of detections that ends before its footage does. Its path.
+#[allow(dead_code)] // not every test file uses it
+pub fn demo_detections_until(dir: &Path, last: u32) -> String {
+    let text = std::fs::read_to_string(demo("detections.txt")).unwrap();
+    let early: String = text
+        .lines()
+        .filter(|l| l.split(',').next().and_then(|f| f.parse::<u32>().ok()) <= Some(last))
+        .map(|l| format!("{l}\n"))
+        .collect();
+    write(dir, "early.txt", early.as_bytes())
+}
