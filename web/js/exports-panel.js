@@ -29,7 +29,8 @@ export class ExportsPanel {
     tracks.addEventListener("click", async () => download("tracks.txt", await client.tracksText(), "text/plain"));
     detections.addEventListener("click", async () => {
       const text = await client.detectionsText();
-      const isCsv = text.startsWith("frame,");
+      // CSV has a header (after the footage's length, for boxes found in footage).
+      const isCsv = /^(# [^\n]*\n)?frame,/.test(text);
       download(isCsv ? "detections.csv" : "detections.txt", text, isCsv ? "text/csv" : "text/plain");
     });
     print.addEventListener("click", () => window.print());

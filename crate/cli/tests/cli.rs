@@ -700,8 +700,10 @@ fn detect_finds_moving_objects_in_footage_from_a_file_and_from_standard_input() 
     ]);
     assert!(o.status.success(), "{}", stderr(&o));
     let text = std::fs::read_to_string(&out).unwrap();
-    // No heights given: no class guess, so the benchmark text format.
-    let rows: Vec<&str> = text.lines().collect();
+    // No heights given: no class guess, so the benchmark text format, after the footage's length.
+    let (length, body) = text.split_once('\n').unwrap();
+    assert_eq!(length, "# footage_frames: 120");
+    let rows: Vec<&str> = body.lines().collect();
     assert!(rows.len() > 200, "{} boxes", rows.len());
     let first_frame =
         |rows: &[&str]| -> u32 { rows[0].split(',').next().unwrap().parse().unwrap() };
@@ -736,7 +738,7 @@ fn detect_finds_moving_objects_in_footage_from_a_file_and_from_standard_input() 
     assert_eq!(stdout(&from_file), text);
     assert_eq!(stdout(&piped), stdout(&off));
     let piped_text = stdout(&piped);
-    let piped_rows: Vec<&str> = piped_text.lines().collect();
+    let piped_rows: Vec<&str> = piped_text.lines().skip(1).collect();
     assert!(
         first_frame(&piped_rows) > 50,
         "nothing during the 50-frame warm-up"
@@ -799,7 +801,10 @@ fn detect_finds_moving_objects_in_footage_from_a_file_and_from_standard_input() 
             "-q",
         ]);
         assert!(o.status.success(), "{}", stderr(&o));
-        let csv = std::fs::read_to_string(&classed).unwrap();
+        let text = std::fs::read_to_string(&classed).unwrap();
+        let csv = text
+            .strip_prefix("# footage_frames: 120\n")
+            .expect("the footage's length first");
         assert!(
             csv.starts_with("frame,x,y,w,h,score,class"),
             "{}",
@@ -859,7 +864,8 @@ fn detect_finds_moving_objects_in_footage_from_a_file_and_from_standard_input() 
     let kept_text = stdout(&o);
     let kept: Vec<&str> = kept_text.lines().collect();
     let whole: Vec<&str> = text.lines().filter(|l| !l.starts_with("120,")).collect();
-    assert_eq!(kept, whole);
+    assert_eq!(kept[0], "# footage_frames: 119", "the frames searched");
+    assert_eq!(kept[1..], whole[1..]);
     let webm = throughline(&["detect", "--y4m", &demo("footage.webm")]);
     assert_eq!(webm.status.code(), Some(1));
     assert!(stderr(&webm).contains("yuv4mpegpipe"), "{}", stderr(&webm));
@@ -1120,14 +1126,29 @@ fn footage_found_boxes_keep_the_clips_length() {
     assert!(o.status.success(), "{}", stderr(&o));
     let e = stderr(&o);
     assert!(e.contains("over 100 frames"), "{e}");
-    assert!(e.contains("give `--frames 100` to `run`"), "{e}");
-    // Those boxes read from the file, with the footage given to bridge: counted to its end too.
-    let o = throughline(&[
-        "run", &found, "--y4m", &footage, "--plan", &plan, "-o", &report, "-q",
-    ]);
-    assert!(o.status.success(), "{}", stderr(&o));
-    let r: serde_json::Value = serde_json::from_slice(&std::fs::read(&report).unwrap()).unwrap();
-    assert_eq!(r["frame_count"], 100, "the --y4m file's frames");
+    let frame_count = |args: &[&str]| {
+        let o = throughline(&[args, &["--plan", &plan, "-o", &report, "-q"]].concat());
+        assert!(o.status.success(), "{}", stderr(&o));
+        let r: serde_json::Value =
+            serde_json::from_slice(&std::fs::read(&report).unwrap()).unwrap();
+        r["frame_count"].clone()
+    };
+    // The file records the footage's length, so counting it reaches the end.
+    let text = std::fs::read_to_string(&found).unwrap();
+    assert!(text.starts_with("# footage_frames: 100\n"), "{text}");
+    assert_eq!(frame_count(&["run", &found]), 100, "the file's own record");
+    // Without that line (boxes from elsewhere), the footage given to bridge tells it.
+    let plain = write(
+        &dir,
+        "plain.txt",
+        text.replace("# footage_frames: 100\n", "").as_bytes(),
+    );
+    assert_eq!(frame_count(&["run", &plain]), 50, "the last box");
+    assert_eq!(
+        frame_count(&["run", &plain, "--y4m", &footage]),
+        100,
+        "the --y4m file's frames"
+    );
 }
 
 /// Scores written with a decimal comma and a column after the class (`…,0,944,1`) read as score

@@ -397,10 +397,13 @@ fn the_footage_length_is_kept_when_its_last_frames_hold_no_one() {
     let config = TrackerConfig::for_method(Method::Sort);
     let tracks = pipeline::track(&dets, &config, &mut |_, _| {}).unwrap();
     assert_eq!(tracks.frame_count, 75);
-    // Boxes read from a file know no length beyond their last box.
-    let read = throughline_core::detections::read_detections(
-        throughline_core::detections::to_file_text(&dets).as_bytes(),
-    )
-    .unwrap();
+    // Written to a file and read back, they keep it (a comment line records it).
+    let text = throughline_core::detections::to_file_text(&dets);
+    assert!(text.starts_with("# footage_frames: 75\n"), "{text}");
+    let read = throughline_core::detections::read_detections(text.as_bytes()).unwrap();
+    assert_eq!(read.detections.length(), 75);
+    // Boxes of a file without it know no length beyond their last box.
+    let plain = text.replace("# footage_frames: 75\n", "");
+    let read = throughline_core::detections::read_detections(plain.as_bytes()).unwrap();
     assert_eq!(read.detections.length(), 20);
 }

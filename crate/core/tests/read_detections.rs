@@ -723,3 +723,26 @@ fn fields_under_near_names_are_named() {
     let e = read_detections(b"frame\tx\ty\tw\th\tscore\n1\t1\t2\t3\t4\t0.9\n").unwrap_err();
     assert!(e.message.contains("tabs between fields"), "{e}");
 }
+
+/// A file of boxes found in footage records the footage's length in a comment line, which both
+/// text layouts read back (a length no footage may have, or not a number, is a plain comment).
+#[test]
+fn the_footage_length_comment_is_read_back() {
+    let length = |text: &str| {
+        read_detections(text.as_bytes())
+            .unwrap()
+            .detections
+            .length()
+    };
+    assert_eq!(length("# footage_frames: 900\n1,-1,1,2,3,4,0.5\n"), 900);
+    assert_eq!(
+        length("# footage_frames: 900\nframe,x,y,w,h,score\n1,1,2,3,4,0.5\n"),
+        900
+    );
+    assert_eq!(length("#footage_frames: 900\n1,-1,1,2,3,4,0.5\n"), 1);
+    assert_eq!(
+        length("# footage_frames: 9000000000\n1,-1,1,2,3,4,0.5\n"),
+        1
+    );
+    assert_eq!(length("# footage_frames: 12 frames\n1,-1,1,2,3,4,0.5\n"), 1);
+}

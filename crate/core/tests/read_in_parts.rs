@@ -76,6 +76,9 @@ const BENCHMARK_LINES: &[&str] = &[
     "5,-1,10,20,30,40,0.9\r",
     "5,-1,1é,20,30,40,0.9",
     "# a comment, 1,2,3",
+    "# footage_frames: 750",
+    "# footage_frames: 99999999999",
+    "# footage_frames: -3",
     "",
     "   ",
 ];
@@ -204,6 +207,9 @@ fn benchmark_text_read_in_two_parts_reads_as_a_whole() {
     check_halves(rows.replace('\n', "\r\n").as_bytes());
     check_halves(format!("\u{feff}{rows}").as_bytes());
     check_halves(format!("# café ☕ 1,2\n\n{rows}# é\n   \n{rows}").as_bytes());
+    // The footage's length recorded at the top (boxes found in footage), or further down.
+    check_halves(format!("# footage_frames: 900\n{rows}{rows}").as_bytes());
+    check_halves(format!("{rows}{rows}# footage_frames: 900\n{rows}").as_bytes());
     // Frames out of order on either side of the cut: sorted, rows of a frame in file order.
     check_halves(format!("{rows}1,-1,9,9,9,9,0.5,5\n3,-1,8,8,8,8,0.5,7\n{rows}").as_bytes());
     // Classes first named in the second part, and named again there.

@@ -78,15 +78,6 @@ pub fn run(args: Args) -> Result<(), Failure> {
                      docs/detector-settings.md)",
                     dets.length()
                 );
-            } else if dets.last_frame() < dets.length() && output.is_some() {
-                eprintln!(
-                    "note: the last box is in frame {} of {}: give `--frames {}` to `run` with \
-                     this file (or to `count` with the tracks made from it), so its last interval \
-                     is counted whole",
-                    dets.last_frame(),
-                    dets.length(),
-                    dets.length()
-                );
             }
         }
         Ok(())

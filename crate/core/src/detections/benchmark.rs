@@ -82,6 +82,7 @@ impl Lines {
         let line = self.r.line;
         let l = crate::text::trim(raw);
         if l.is_empty() || l.starts_with('#') {
+            self.r.note_comment(l);
             return Ok(None);
         }
         let (cut, count) = cut_fields(l);

@@ -345,6 +345,9 @@ impl CsvLines {
         self.r.line += 1;
         let line = self.r.line;
         let l = crate::text::trim(raw);
+        if l.starts_with('#') {
+            self.r.note_comment(l);
+        }
         if l.is_empty() || l.starts_with('#') {
             return Ok(());
         }

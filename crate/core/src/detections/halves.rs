@@ -180,6 +180,7 @@ pub fn merge(first: Part, second: Part) -> Result<ReadReport, Error> {
             .rows
             .first()
             .is_none_or(|d| d.frame >= whole.last_frame);
+    whole.out.footage_frames = whole.out.footage_frames.max(rest.out.footage_frames);
     whole.out.rows.extend_from_slice(&rest.out.rows);
     drop(rest.out.rows);
     merge_warnings(&mut whole.warnings, rest.warnings);

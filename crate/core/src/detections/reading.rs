@@ -94,6 +94,21 @@ impl Reading {
         self.warnings.note_comma(score, class, columns, self.line);
     }
 
+    /// Reads a comment line: the footage's length it may record (`# footage_frames: N`, written
+    /// with boxes found in footage; at most [`crate::limits::MAX_FOOTAGE_FRAMES`], else passed
+    /// over as any comment).
+    pub fn note_comment(&mut self, line: &str) {
+        let length = line
+            .strip_prefix(super::write::FOOTAGE_FRAMES_COMMENT)
+            .map(str::trim)
+            .filter(|n| !n.is_empty() && n.len() <= 10 && n.bytes().all(|b| b.is_ascii_digit()))
+            .and_then(|n| n.parse::<u32>().ok())
+            .filter(|&n| n as usize <= crate::limits::MAX_FOOTAGE_FRAMES);
+        if let Some(n) = length {
+            self.out.footage_frames = self.out.footage_frames.max(n);
+        }
+    }
+
     /// Notes whether the text just read ends inside a row (see [`Warnings::note_end`]).
     pub fn note_end(&mut self, text: &str) {
         self.warnings.note_end(text, self.line);

@@ -12,10 +12,24 @@ fn trimmed(v: f64) -> String {
     }
 }
 
-/// Writes detections in the benchmark text format: `frame,-1,x,y,w,h,score,-1,-1,-1`.
+/// The comment line that records the footage's length in a file of boxes found in it (its last
+/// frames may hold none): `# footage_frames: 750`; read back by the readers ([`super::Detections`]'s
+/// `footage_frames`), so a count of the file reaches the footage's end.
+pub const FOOTAGE_FRAMES_COMMENT: &str = "# footage_frames: ";
+
+fn length_line(d: &Detections) -> String {
+    match d.footage_frames {
+        0 => String::new(),
+        n => format!("{FOOTAGE_FRAMES_COMMENT}{n}\n"),
+    }
+}
+
+/// Writes detections in the benchmark text format: `frame,-1,x,y,w,h,score,-1,-1,-1` (after the
+/// footage's length, for boxes found in footage).
 pub fn to_benchmark_text(d: &Detections) -> String {
     use std::fmt::Write as _;
     let mut out = String::with_capacity(d.rows.len() * 40);
+    out.push_str(&length_line(d));
     for r in &d.rows {
         let b = r.bbox;
         let _ = writeln!(
@@ -42,10 +56,12 @@ pub fn to_file_text(d: &Detections) -> String {
     }
 }
 
-/// Writes detections as CSV with a header: `frame,x,y,w,h,score,class[,e0,e1,…]`.
+/// Writes detections as CSV with a header: `frame,x,y,w,h,score,class[,e0,e1,…]` (after the
+/// footage's length, for boxes found in footage).
 pub fn to_csv(d: &Detections) -> String {
     use std::fmt::Write as _;
-    let mut out = String::from("frame,x,y,w,h,score,class");
+    let mut out = length_line(d);
+    out.push_str("frame,x,y,w,h,score,class");
     for k in 0..d.embedding_dim {
         let _ = write!(out, ",e{k}");
     }
