@@ -1137,6 +1137,15 @@ fn footage_found_boxes_keep_the_clips_length() {
     let text = std::fs::read_to_string(&found).unwrap();
     assert!(text.starts_with("# footage_frames: 100\n"), "{text}");
     assert_eq!(frame_count(&["run", &found]), 100, "the file's own record");
+    // A project's footage duration (here 10 s: 250 frames) does not override that record, as the
+    // page, counting boxes it found, does not.
+    let plan_json: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(&plan).unwrap()).unwrap();
+    let project = serde_json::json!({"format": "throughline-project", "version": 1,
+        "plan": plan_json, "footage": {"name": "quiet-end.webm", "size": 1, "head_sha256": "0",
+        "duration_seconds": 10.0}});
+    let project = write(&dir, "project.json", project.to_string().as_bytes());
+    assert_eq!(frame_count(&["run", &found, "--edits", &project]), 100);
     // Without that line (boxes from elsewhere), the footage given to bridge tells it.
     let plain = write(
         &dir,

@@ -40,6 +40,7 @@ fn tracks(list: Vec<Track>) -> Tracks {
         frame_count,
         tracks: list,
         crowded_frames: Vec::new(),
+        length_from_footage: false,
     }
 }
 

@@ -45,6 +45,7 @@ fn tracks(list: Vec<Track>) -> Tracks {
         frame_count: 400,
         tracks: list,
         crowded_frames: Vec::new(),
+        length_from_footage: false,
     }
 }
 

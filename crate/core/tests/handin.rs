@@ -56,6 +56,7 @@ fn report(south: &[u32], north: &[u32]) -> Report {
         frame_count: 9000 * south.len() as u32,
         tracks: list,
         crowded_frames: Vec::new(),
+        length_from_footage: false,
     };
     pipeline::count(
         &tracks,
@@ -190,6 +191,7 @@ fn movements_become_an_origin_destination_matrix() {
             walk(5, 900, 200.0, true, false),
         ],
         crowded_frames: Vec::new(),
+        length_from_footage: false,
     };
     let r = pipeline::count(
         &tracks,

@@ -52,6 +52,7 @@ fn queue_with(plan: &str, list: Vec<Track>) -> Vec<Doubt> {
         frame_count: 100,
         tracks: list,
         crowded_frames: Vec::new(),
+        length_from_footage: false,
     };
     let report = pipeline::count(&tracks, &plan, None, &Default::default()).unwrap();
     doubts(&tracks, &plan, &report, Some((400.0, 400.0)))
@@ -143,6 +144,7 @@ fn crossings_exactly_a_second_apart_are_close_in_any_order() {
             walk(2, 11, 80, (200.0, 50.0), (0.0, 4.0), 0.9),
         ],
         crowded_frames: Vec::new(),
+        length_from_footage: false,
     };
     let mut report = pipeline::count(&tracks, &plan, None, &Default::default()).unwrap();
     for _ in 0..2 {
@@ -366,6 +368,7 @@ fn a_track_on_a_line_as_the_footage_starts_and_leaving_it_is_doubted() {
         frame_count: 100,
         tracks: vec![walk(1, 1, 40, (200.0, 231.0), (0.0, 4.0), 0.9)],
         crowded_frames: Vec::new(),
+        length_from_footage: false,
     };
     let report = pipeline::count(&tracks, &plan, None, &Default::default()).unwrap();
     let q = doubts(&tracks, &plan, &report, Some((400.0, 400.0)));

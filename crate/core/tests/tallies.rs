@@ -53,6 +53,7 @@ fn report_with(per_minute: &[u32], work: &Work) -> Report {
         frame_count: 600 * per_minute.len() as u32,
         tracks: list,
         crowded_frames: Vec::new(),
+        length_from_footage: false,
     };
     pipeline::count(&tracks, &Plan::from_json(PLAN).unwrap(), None, work).unwrap()
 }

@@ -57,7 +57,10 @@ pub fn run(args: Args) -> Result<(), Failure> {
     let (how, settings) =
         with_project(&args.tracking, args.edits.as_deref().zip(project.as_ref()))?;
     let mut tracks = track_file_with(&args.detections, &how, settings, &mut Timer::new())?;
-    let known = super::count::project_length(project.as_ref(), args.edits.as_deref(), &plan)?;
+    let known = match tracks.length_from_footage {
+        true => None,
+        false => super::count::project_length(project.as_ref(), args.edits.as_deref(), &plan)?,
+    };
     super::count::with_length(&mut tracks, args.frames, known)?;
     let report = pipeline::count(&tracks, &plan, Some(&tracks.config), &work)
         .map_err(|e| bad_input(&args.plan, e))?;

@@ -216,6 +216,7 @@ pub fn from_json(bytes: &[u8]) -> Result<Tracks, Error> {
         frame_count: doc.frame_count,
         tracks,
         crowded_frames: Vec::new(),
+        length_from_footage: false,
     })
 }
 
@@ -404,5 +405,6 @@ pub fn boxes_to_tracks(rows: &[IdBox]) -> Tracks {
         frame_count,
         tracks,
         crowded_frames: Vec::new(),
+        length_from_footage: false,
     }
 }

@@ -83,6 +83,10 @@ pub struct Tracks {
     /// (`limits::MAX_ASSIGNMENT_STEPS`) and the tracks it had not placed were matched greedily,
     /// cheapest pairs first, instead of optimally.
     pub crowded_frames: Vec<u32>,
+    /// Whether `frame_count` is the footage's own length (boxes found in it, or a file of them
+    /// that records it): no other measure of the footage (a duration) overrides it.
+    #[serde(skip)]
+    pub length_from_footage: bool,
 }
 
 /// How often (in frames) the progress callback is called.
@@ -98,7 +102,9 @@ pub fn run_tracker(
     check_run(config, detections)?;
     let mut tracker = tracker_for(config);
     step_through(&mut tracker, detections, progress);
-    Ok(tracker.close(detections.length(), detections))
+    let mut tracks = tracker.close(detections.length(), detections);
+    tracks.length_from_footage = detections.footage_frames > 0;
+    Ok(tracks)
 }
 
 /// The detections with every blob that covers the predicted boxes of two or more tracks, and is

@@ -426,6 +426,7 @@ impl Tracker {
             frame_count,
             tracks,
             crowded_frames: self.crowded_frames,
+            length_from_footage: false,
         }
     }
 }
