@@ -164,7 +164,7 @@ pub(crate) fn likely_meant<'a>(written: &str, known: &[&'a str]) -> Option<&'a s
         .filter(|k| k.chars().count().abs_diff(length) <= 2)
         .filter(|&&k| k != written)
         .map(|&k| (k, edit_distance(&lower, &k.to_lowercase())))
-        .filter(|&(_, d)| d <= 2 && d < written.chars().count())
+        .filter(|&(_, d)| d <= 2 && d < length)
         .min_by_key(|&(_, d)| d)
         .map(|(k, _)| k)
 }

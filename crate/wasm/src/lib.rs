@@ -246,17 +246,14 @@ impl Session {
 
     /// Counts again when the tracks, the plan or the edits changed and tracks and plan are there.
     fn recount(&mut self) {
-        let found_in_footage = self
-            .detections
-            .as_ref()
-            .is_some_and(|d| d.detections.footage_frames > 0);
-        let footage_frames = match (&self.plan, found_in_footage) {
-            (Some(plan), false) => {
-                project::footage_frames(self.footage_seconds, plan.spec.frame_rate).unwrap_or(0)
-            }
-            _ => 0,
-        };
-        if let Some(t) = &mut self.tracks {
+        if let (Some(t), Some(plan)) = (&mut self.tracks, &self.plan) {
+            // Boxes found in the footage know its length; others reach the footage's duration.
+            let footage_frames = match t.length_from_footage {
+                true => 0,
+                false => {
+                    project::footage_frames(self.footage_seconds, plan.spec.frame_rate).unwrap_or(0)
+                }
+            };
             t.frame_count = self.tracks_length.max(footage_frames);
         }
         self.edited = match &self.tracks {

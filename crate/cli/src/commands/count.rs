@@ -81,8 +81,9 @@ pub fn run(args: Args) -> Result<(), Failure> {
         }
         (tracks_io::boxes_to_tracks(&boxes), None)
     };
-    let project_frames = project_length(project.as_ref(), args.edits.as_deref(), &plan)?;
-    with_length(&mut tracks, args.frames, project_frames)?;
+    let project_at = args.edits.as_deref().zip(project.as_ref());
+    let known = known_length(&tracks, project_at, &plan, None)?;
+    with_length(&mut tracks, args.frames, known)?;
     let report = pipeline::count(&tracks, &plan, tracker.as_ref(), &work)
         .map_err(|e| bad_input(&args.plan, e))?;
     let paths = ReportPaths {
@@ -125,19 +126,30 @@ pub fn stage_report(
     }
 }
 
-/// The length of the footage a project (read from `path`) was made with, at the plan's frame
-/// rate: the page counted detections from a file that end before it to its end.
-pub fn project_length(
-    project: Option<&throughline_core::project::Project>,
-    path: Option<&std::path::Path>,
+/// The footage's length when it is known apart from the tracks, for [`with_length`]: none when
+/// the tracks' length is the footage's own (boxes found in it); else the longer of the footage a
+/// project (read from `path`) was made with, at the plan's frame rate (the page counted
+/// detections from a file that end before it to its end), and a `--y4m` file's frames.
+pub fn known_length(
+    tracks: &throughline_core::Tracks,
+    project: Option<(&std::path::Path, &throughline_core::project::Project)>,
     plan: &throughline_core::plan::Plan,
+    y4m: Option<&std::path::Path>,
 ) -> Result<Option<u32>, Failure> {
-    match (project, path) {
-        (Some(p), Some(path)) => p
-            .footage_frames(plan.spec.frame_rate)
-            .map_err(|e| bad_input(path, e)),
-        _ => Ok(None),
+    if tracks.length_from_footage {
+        return Ok(None);
     }
+    let from_project = match project {
+        Some((path, p)) => p
+            .footage_frames(plan.spec.frame_rate)
+            .map_err(|e| bad_input(path, e))?,
+        None => None,
+    };
+    let from_footage = match y4m {
+        Some(f) => crate::frames::y4m_frames(f)?,
+        None => None,
+    };
+    Ok(from_project.max(from_footage))
 }
 
 /// The footage's length (`--frames`) given to the tracks: the count's intervals reach to it. Shorter

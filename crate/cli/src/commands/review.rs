@@ -54,13 +54,10 @@ pub fn run(args: Args) -> Result<(), Failure> {
         .as_ref()
         .and_then(|p| p.footage.as_ref())
         .and_then(|f| Some((f64::from(f.width?), f64::from(f.height?))));
-    let (how, settings) =
-        with_project(&args.tracking, args.edits.as_deref().zip(project.as_ref()))?;
+    let project_at = args.edits.as_deref().zip(project.as_ref());
+    let (how, settings) = with_project(&args.tracking, project_at)?;
     let mut tracks = track_file_with(&args.detections, &how, settings, &mut Timer::new())?;
-    let known = match tracks.length_from_footage {
-        true => None,
-        false => super::count::project_length(project.as_ref(), args.edits.as_deref(), &plan)?,
-    };
+    let known = super::count::known_length(&tracks, project_at, &plan, None)?;
     super::count::with_length(&mut tracks, args.frames, known)?;
     let report = pipeline::count(&tracks, &plan, Some(&tracks.config), &work)
         .map_err(|e| bad_input(&args.plan, e))?;

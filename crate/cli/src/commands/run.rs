@@ -109,20 +109,7 @@ pub fn run(args: Args) -> Result<(), Failure> {
     let (work, project) = read_work(args.edits.as_deref())?;
     let project_at = args.edits.as_deref().zip(project.as_ref());
     let mut tracks = track_source(&args, &plan, project_at)?;
-    // Boxes found in the footage know its length (with --y4m, or a file of them that records
-    // it; the page's do too); other boxes end at their last unless the footage's length is known.
-    let known = match (tracks.length_from_footage, &args.y4m) {
-        (true, _) => None,
-        (false, footage) => {
-            let project_frames =
-                super::count::project_length(project.as_ref(), args.edits.as_deref(), &plan)?;
-            let footage_frames = match footage {
-                Some(f) => crate::frames::y4m_frames(f)?,
-                None => None,
-            };
-            project_frames.max(footage_frames)
-        }
-    };
+    let known = super::count::known_length(&tracks, project_at, &plan, args.y4m.as_deref())?;
     super::count::with_length(&mut tracks, args.handin.frames, known)?;
     let report = pipeline::count(&tracks, &plan, Some(&tracks.config), &work)
         .map_err(|e| bad_input(&args.plan, e))?;

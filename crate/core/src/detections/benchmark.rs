@@ -96,26 +96,24 @@ impl Lines {
             )
             .at(line, None));
         }
-        if count > MOST_COLUMNS {
-            let filled = 1 + commas_before_empty_end(l.as_bytes());
-            if filled > MOST_COLUMNS {
-                return Err(Error::new(
-                    ErrorKind::WrongColumnCount,
-                    format!(
-                        "{filled} columns, but the benchmark text format has at most \
-                         {MOST_COLUMNS} (frame,id,x,y,w,h,score, then a class or x,y,z): numbers \
-                         written with a decimal comma (`143,57` for `143.57`) make more, so write \
-                         decimals with a full stop; or leave out the columns after the tenth"
-                    ),
-                )
-                .at(line, None));
-            }
+        // Empty fields ending the line (`…,-1,`) are no columns.
+        let columns = 1 + commas_before_empty_end(l.as_bytes());
+        if columns > MOST_COLUMNS {
+            return Err(Error::new(
+                ErrorKind::WrongColumnCount,
+                format!(
+                    "{columns} columns, but the benchmark text format has at most \
+                     {MOST_COLUMNS} (frame,id,x,y,w,h,score, then a class or x,y,z): numbers \
+                     written with a decimal comma (`143,57` for `143.57`) make more, so write \
+                     decimals with a full stop; or leave out the columns after the tenth"
+                ),
+            )
+            .at(line, None));
         }
         let mut v = [0.0; 7];
         for (k, name) in BENCHMARK_COLUMNS.iter().enumerate() {
             v[k] = number(fields[k], name, line, k + 1)?;
         }
-        let columns = 1 + commas_before_empty_end(l.as_bytes());
         self.row(
             v,
             fields.get(7).and_then(|f| f.parse::<i64>().ok()),

@@ -49,6 +49,7 @@ fn csv_columns(header: &[&str], line: usize) -> Result<CsvColumns, Error> {
         .collect();
     let find = |name: &str| names.iter().position(|n| n == name);
     let hint = header_hint(header, &names);
+    let class = find("class");
     // A name written for one of the columns read, misspelt (`scroe`, `clas`).
     let misspelt = |name: &str| {
         names
@@ -99,11 +100,11 @@ fn csv_columns(header: &[&str], line: usize) -> Result<CsvColumns, Error> {
         w: required("w")?,
         h: required("h")?,
         score: required("score")?,
-        class: find("class"),
-        class_misspelt: match find("class") {
-            Some(_) => None,
-            None => misspelt("class").map(|i| header[i].trim().to_string()),
-        },
+        class,
+        class_misspelt: class
+            .is_none()
+            .then(|| misspelt("class").map(|i| header[i].trim().to_string()))
+            .flatten(),
         embedding,
         count: names.len(),
     })
@@ -345,10 +346,8 @@ impl CsvLines {
         self.r.line += 1;
         let line = self.r.line;
         let l = crate::text::trim(raw);
-        if l.starts_with('#') {
-            self.r.note_comment(l);
-        }
         if l.is_empty() || l.starts_with('#') {
+            self.r.note_comment(l);
             return Ok(());
         }
         split_fields_into(l, fields);

@@ -53,7 +53,8 @@ pub struct Detections {
     /// All appearance vectors, one after another.
     pub embeddings: Vec<f32>,
     /// The footage's length in frames when the boxes were found in it (its last frames may hold
-    /// none); 0 for boxes read from a file, whose length is its last frame with a box.
+    /// none), or read from a file of them that records it (`# footage_frames: N`); 0 otherwise,
+    /// the length then being the last frame with a box.
     pub footage_frames: u32,
 }
 

@@ -101,7 +101,7 @@ impl Reading {
         let length = line
             .strip_prefix(super::write::FOOTAGE_FRAMES_COMMENT)
             .map(str::trim)
-            .filter(|n| !n.is_empty() && n.len() <= 10 && n.bytes().all(|b| b.is_ascii_digit()))
+            .filter(|n| n.bytes().all(|b| b.is_ascii_digit()))
             .and_then(|n| n.parse::<u32>().ok())
             .filter(|&n| n as usize <= crate::limits::MAX_FOOTAGE_FRAMES);
         if let Some(n) = length {

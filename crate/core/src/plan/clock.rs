@@ -119,22 +119,22 @@ pub fn as_report_writes(s: &str) -> String {
     if let Some(t) = LocalTime::parse(s) {
         return t.to_string();
     }
-    let parts: Vec<&str> = s.split(':').collect();
-    let number = |p: &str, most: u64| {
-        (!p.is_empty() && p.len() <= 6 && p.bytes().all(|b| b.is_ascii_digit()))
-            .then(|| p.parse::<u64>().ok())
+    // Hours of 1 to 6 digits (at most 99,999); minutes and seconds of two, under 60.
+    let number = |p: &str, digits: std::ops::RangeInclusive<usize>, most: u32| {
+        (digits.contains(&p.len()) && p.bytes().all(|b| b.is_ascii_digit()))
+            .then(|| p.parse::<u32>().ok())
             .flatten()
             .filter(|&v| v <= most)
     };
-    let hms = match parts.as_slice() {
-        [h, m] => (number(h, 99_999), number(m, 59), Some(0)),
-        [h, m, sec] if m.len() == 2 && sec.len() == 2 => {
-            (number(h, 99_999), number(m, 59), number(sec, 59))
-        }
-        _ => (None, None, None),
+    let parts: Vec<&str> = s.split(':').collect();
+    let (h, m, sec) = match parts.as_slice() {
+        [h, m] => (*h, *m, "00"),
+        [h, m, sec] => (*h, *m, *sec),
+        _ => return s.to_string(),
     };
-    match hms {
-        (Some(h), Some(m), Some(sec)) if parts[1].len() == 2 => format!("{h:02}:{m:02}:{sec:02}"),
+    let sixty = |p: &str| number(p, 2..=2, 59);
+    match (number(h, 1..=6, 99_999), sixty(m), sixty(sec)) {
+        (Some(h), Some(m), Some(sec)) => format!("{h:02}:{m:02}:{sec:02}"),
         _ => s.to_string(),
     }
 }
