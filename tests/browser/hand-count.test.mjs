@@ -123,6 +123,48 @@ test("a tally by key presses over part of the demo is compared with the tool's c
   await page.close();
 });
 
+test("a hand count deleted comes back: by its own button, and by the review's Undo", async () => {
+  const { page, seen } = await openPage(env, { viewport: LAPTOP });
+  await page.evaluate(() => localStorage.clear()); // the first test's hand count is kept
+  await page.reload();
+  await page.waitForSelector("body[data-ready=true]", { timeout: 30000 });
+  await run(page);
+  await showView(page, "Review");
+  await startTally(page, "Cleo", "0:00", "0:10");
+  const first = plan.screenlines[0];
+  await pressAt(page, 100, await keyOf(page, first.name, first.forward));
+  await page.getByRole("button", { name: "Finish and compare" }).click();
+  await page.waitForSelector(".tally-check tbody tr");
+  const kept = () => page.evaluate(() => (JSON.parse(localStorage.getItem("throughline.review.v1") || "{}").extras || {}).tallies || []);
+  assert.equal((await kept()).length, 1);
+  const cards = page.locator(".tally-check");
+  const deleted = async () => {
+    await page.getByRole("button", { name: "Delete this hand count" }).click();
+    await page.waitForFunction(() => !document.querySelector(".tally-check"));
+    assert.deepEqual(await kept(), [], "gone from what the browser keeps too");
+  };
+  // Deleting is one click (a person's minutes of pressing): the page offers it back at once.
+  await deleted();
+  assert.match(await page.locator(".deleted-tally").innerText(), /Hand count by Cleo deleted\./);
+  await page.getByRole("button", { name: "Bring it back" }).click();
+  await page.waitForSelector(".tally-check tbody tr");
+  assert.match(await cards.first().innerText(), /Hand count by Cleo/);
+  assert.equal((await kept())[0].presses.length, 1);
+  assert.equal(await page.locator(".deleted-tally").count(), 0);
+  // The review's Undo takes back a deletion as it does a correction, and Redo deletes it again.
+  await deleted();
+  await page.getByRole("tab", { name: /^Edits/ }).click();
+  await page.getByRole("button", { name: "Undo last change" }).click();
+  await page.waitForSelector(".tally-check tbody tr", { state: "attached" });
+  assert.equal((await kept()).length, 1);
+  assert.equal(await page.locator(".deleted-tally").count(), 0, "the offer goes once it is back");
+  await page.getByRole("button", { name: "Redo last change" }).click();
+  await page.waitForFunction(() => !document.querySelector(".tally-check"));
+  assert.deepEqual(await kept(), []);
+  assert.deepEqual(seen.errors, []);
+  await page.close();
+});
+
 test("on a phone the tally's keys are buttons, and nothing scrolls sideways", async () => {
   const { page, seen } = await openPage(env, { viewport: PHONE });
   await run(page);

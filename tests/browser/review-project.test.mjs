@@ -105,7 +105,7 @@ test("a project tracked before DeepSORT kept low-score boxes is tracked as it wa
   await page.close();
 });
 
-test("Clear work begins afresh: corrections, decisions and the site's name go, Undo brings the corrections back", async () => {
+test("Clear work begins afresh: corrections, decisions and the site's name go, Undo brings them back", async () => {
   const { page, seen } = await reviewDemo(env);
   await deleteTrack(page, 19);
   await showView(page, "Set up");
@@ -121,12 +121,27 @@ test("Clear work begins afresh: corrections, decisions and the site's name go, U
   await countedWith(page, 0);
   const kept = await page.evaluate(() => JSON.parse(localStorage.getItem("throughline.review.v1") || "{}"));
   assert.deepEqual([kept.edits, kept.site], [[], ""], "what is kept in the browser is cleared too");
-  // Undo under Review brings the corrections back.
+  // Undo under Review brings the corrections back, and the site's name (nothing the person made is lost).
   await showView(page, "Review");
   await openTab(page, "Edits");
-  await page.getByRole("button", { name: "Undo correction" }).click();
+  await page.getByRole("button", { name: "Undo last change" }).click();
   await countedWith(page, 1);
   assert.equal(await page.locator(".message[data-key=work-cleared]").count(), 0, "the note goes once the work is back");
+  assert.equal(await page.getByLabel("Site name").inputValue(), "Harbour steps");
+  const back = await page.evaluate(() => JSON.parse(localStorage.getItem("throughline.review.v1") || "{}"));
+  assert.deepEqual([back.edits.length, back.site], [1, "Harbour steps"], "and kept in the browser again");
+  // Redo clears it all again; the note's own Undo brings it back too.
+  await page.getByRole("button", { name: "Redo last change" }).click();
+  await countedWith(page, 0);
+  assert.equal(await page.getByLabel("Site name").inputValue(), "");
+  await page.getByRole("button", { name: "Undo last change" }).click();
+  await countedWith(page, 1);
+  await showView(page, "Set up");
+  page.once("dialog", (d) => d.accept());
+  await page.getByRole("button", { name: "Clear work…" }).click();
+  await page.locator(".message[data-key=work-cleared]").getByRole("button", { name: "Undo" }).click();
+  await countedWith(page, 1);
+  assert.equal(await page.getByLabel("Site name").inputValue(), "Harbour steps");
   assert.deepEqual(seen.errors, []);
   await page.close();
 });

@@ -30,12 +30,12 @@ test("undo and redo: the counts follow each step, as throughline run --edits giv
     assert.equal(await pageReport(page), replay(edits), `after ${how.name || "a step"}: ${edits.length} corrections`);
   };
   await openTab(page, "Edits");
-  await step(() => page.getByRole("button", { name: "Undo correction" }).click(), [DELETE]);
+  await step(() => page.getByRole("button", { name: "Undo last change" }).click(), [DELETE]);
   await step(() => page.locator("#clock").click().then(() => page.keyboard.press("Control+z")), []);
-  assert.equal(await page.getByRole("button", { name: "Undo correction" }).isDisabled(), true, "nothing left to undo");
+  assert.equal(await page.getByRole("button", { name: "Undo last change" }).isDisabled(), true, "nothing left to undo");
   await step(() => page.keyboard.press("Control+Shift+z"), [DELETE]);
-  await step(() => page.getByRole("button", { name: "Redo correction" }).click(), [DELETE, REJECT]);
-  assert.equal(await page.getByRole("button", { name: "Redo correction" }).isDisabled(), true, "nothing left to redo");
+  await step(() => page.getByRole("button", { name: "Redo last change" }).click(), [DELETE, REJECT]);
+  assert.equal(await page.getByRole("button", { name: "Redo last change" }).isDisabled(), true, "nothing left to redo");
   assert.match(await page.locator("#edit-list").innerText(), /1\.\s+Track 19 left out[\s\S]*2\.\s+Crossing of east-west divide, westbound, by track 9 at frame 16/);
 
   // Under Set up, Ctrl+Z undoes the plan: a renamed line gets its name back; the corrections stay.

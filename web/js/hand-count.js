@@ -4,7 +4,7 @@
 // and the correction factor the person chose, if any. It changes only through the named actions
 // below, each telling the store's views what changed ("tally": a tally started or ended;
 // "tallyPress": a press made or taken back; "checks": the tallies kept or the factor changed, so
-// the core counts again with them).
+// the core counts again with them). Keeping, deleting and the factor are steps of the review's Undo.
 
 /** @typedef {import("./tally.js").Tally} Tally */
 /** @typedef {import("./tally.js").TallyRun} TallyRun */
@@ -76,6 +76,18 @@ export class HandCount {
     this.emit(["checks"]);
   }
 
+  /**
+   * A tally deleted is brought back where it was.
+   * @param {number} index
+   * @param {Tally} tally
+   */
+  tallyRestored(index, tally) {
+    const tallies = [...this.tallies];
+    tallies.splice(index, 0, tally);
+    this.keep(tallies, this.correction);
+    this.emit(["checks"]);
+  }
+
   /** @param {Correction | null} correction the factor chosen, or none */
   correctionChosen(correction) {
     this.keep(this.tallies, correction);
@@ -91,7 +103,6 @@ export class HandCount {
     const extras = {};
     if (tallies.length) extras.tallies = tallies;
     if (correction) extras.correction = correction;
-    this.work.extras = extras;
-    this.work.save();
+    this.work.change((w) => { w.extras = extras; });
   }
 }

@@ -6,7 +6,7 @@
 // brings it all back. Work opened or kept against other footage or detections than it was made
 // with says so, in a message.
 
-import { byId, download, showValue } from "./dom.js";
+import { byId, download, el, showValue } from "./dom.js";
 import { planForCore, trackerFields } from "./plan.js";
 
 /** @typedef {import("./store.js").PageStore} PageStore */
@@ -36,8 +36,11 @@ export class ProjectPanel {
     byId("clear-work", HTMLButtonElement).addEventListener("click", () => this.clear());
     this.site.addEventListener("change", () => store.siteNamed(this.site.value.trim()));
     store.subscribe(["site"], () => showValue(this.site, store.work.site));
-    // Said once: gone as soon as the corrections change again (an Undo brings them back).
-    store.subscribe(["edits", "marks"], () => { if (store.work.edits.length || store.work.marks.size) messages.clear("work-cleared"); });
+    // Said once: gone as soon as there is work again (its Undo would then take that back instead).
+    store.subscribe(["edits", "marks", "checks", "site"], () => {
+      const { edits, marks, extras, site } = store.work;
+      if (edits.length || marks.size || extras.tallies || extras.correction || site) messages.clear("work-cleared");
+    });
     store.subscribe(["video"], () => this.fingerprintFootage());
     store.subscribe(["detections"], () => this.fingerprintDetections());
     store.subscribe(["prints"], () => this.check());
@@ -52,7 +55,8 @@ export class ProjectPanel {
     this.store.workCleared();
     this.projectName.textContent = "plan, corrections and decisions in one file";
     for (const key of ["project-files", "project-rules", "project-tracking"]) this.messages.clear(key);
-    this.messages.say("work-cleared", "ok", "Work cleared: no corrections, decisions or hand counts. Undo under Review brings the corrections and decisions back.");
+    const undo = el("button", { type: "button", text: "Undo", onclick: () => { this.messages.clear("work-cleared"); this.store.correctionsUndone(); } });
+    this.messages.say("work-cleared", "ok", "Work cleared: no corrections, decisions or hand counts. Undo (here, or under Review) brings all of it back, the site's name too.", [undo]);
   }
 
   /** The project as a plain object, as the core writes it. */

@@ -29,7 +29,7 @@ export class EditList {
     this.undo.addEventListener("click", () => store.correctionsUndone());
     this.redo.addEventListener("click", () => store.correctionsRedone());
     this.exportButton.addEventListener("click", async () => download("edits.json", await client.editsText(), "application/json"));
-    store.subscribe(["edits", "marks", "results", "plan"], () => this.render());
+    store.subscribe(["edits", "marks", "results", "plan", "checks"], () => this.render());
     this.render();
   }
 

@@ -434,13 +434,30 @@ export class PageStore {
   }
 
   correctionsUndone() {
-    const before = editsFileText(this.work.edits);
-    if (this.work.undo()) this.emit(editsFileText(this.work.edits) === before ? ["marks"] : ["edits", "marks"]);
+    this.stepped(() => this.work.undo());
   }
 
   correctionsRedone() {
-    const before = editsFileText(this.work.edits);
-    if (this.work.redo()) this.emit(editsFileText(this.work.edits) === before ? ["marks"] : ["edits", "marks"]);
+    this.stepped(() => this.work.redo());
+  }
+
+  /**
+   * Undo or Redo: the views told of what it changed (the core counts again only when the
+   * corrections or hand counts did).
+   * @param {() => boolean} step
+   */
+  stepped(step) {
+    const w = this.work;
+    const parts = () => [editsFileText(w.edits), JSON.stringify(w.extras), w.site, JSON.stringify(w.madeWith)];
+    const before = parts();
+    if (!step()) return;
+    const after = parts();
+    /** @type {Topic[]} */
+    const topics = ["marks"];
+    /** @type {Topic[]} */
+    const each = ["edits", "checks", "site", "prints"];
+    each.forEach((topic, i) => { if (after[i] !== before[i]) topics.push(topic); });
+    this.emit(topics);
   }
 
   /** The work is now made on the files open now (their fingerprints, where known). */
@@ -482,9 +499,9 @@ export class PageStore {
   }
 
   /**
-   * The work on the files is cleared, to begin afresh on others: corrections and decisions (one
-   * undo step, as a project opened), hand counts, the factor, the site's name and the files it
-   * was made with. The plan and the files open stay.
+   * The work on the files is cleared, to begin afresh on others: corrections and decisions, hand
+   * counts, the factor, the site's name and the files it was made with (one undo step, as a
+   * project opened). The plan and the files open stay.
    */
   workCleared() {
     this.handCount.tallyDropped();

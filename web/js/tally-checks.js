@@ -61,6 +61,8 @@ export class TallyChecks {
     this.root = byId("tally-checks", HTMLElement);
     /** @type {{tally: number, group: string} | null} the difference whose events are listed */
     this.open = null;
+    /** @type {{index: number, tally: Tally, left: string} | null} the tally last deleted, while the others are as it left them (as JSON) */
+    this.deleted = null;
     store.subscribe(["results", "checks"], () => this.show());
     store.subscribe(["results", "checks"], () => this.sayCorrection());
     this.show();
@@ -73,6 +75,22 @@ export class TallyChecks {
     const checks = report ? report.checks || [] : [];
     const parts = tallies.map((t, i) => this.card(t, i, checks.length === tallies.length ? checks[i] : null));
     this.root.replaceChildren(...(parts.length ? [el("h3", { text: "Hand counts kept" }), ...parts] : [el("p", { class: "empty-note", text: "No hand count yet. Count a sample above: it is kept with your name, saved in the project, and compared with the tool's count of the same frames." })]));
+    if (this.deleted && this.deleted.left !== JSON.stringify(tallies)) this.deleted = null;
+    const gone = this.deleted;
+    if (gone) {
+      const back = el("button", { type: "button", text: "Bring it back", onclick: () => { this.deleted = null; this.store.handCount.tallyRestored(gone.index, gone.tally); } });
+      this.root.prepend(el("p", { class: "hint deleted-tally", role: "status" }, [`Hand count by ${gone.tally.who} deleted. `, back]));
+    }
+  }
+
+  /**
+   * @param {Tally} t the tally to delete
+   * @param {number} i its place
+   */
+  remove(t, i) {
+    this.store.handCount.tallyDeleted(i);
+    this.deleted = { index: i, tally: t, left: JSON.stringify(this.store.handCount.tallies) };
+    this.show();
   }
 
   /**
@@ -86,7 +104,7 @@ export class TallyChecks {
     const lines = t.screenlines.length === this.store.plan.screenlines.length ? "all lines" : t.screenlines.join(", ");
     const head = `${t.who}, ${t.made.replace("T", " ")}`;
     const what = `${clockText((t.from_frame - 1) / fps)}–${clockText(t.to_frame / fps)} of the footage (frames ${t.from_frame} to ${t.to_frame}) · ${lines} · ${t.presses.length} press${t.presses.length === 1 ? "" : "es"}`;
-    const remove = el("button", { type: "button", text: "Delete this hand count", onclick: () => this.store.handCount.tallyDeleted(i) });
+    const remove = el("button", { type: "button", text: "Delete this hand count", onclick: () => this.remove(t, i) });
     const article = el("article", { class: "tally-check", "data-index": String(i) }, [el("h4", { text: `Hand count by ${head}` }), el("p", { class: "hint", text: what })]);
     if (!c) {
       article.append(el("p", { class: "hint", text: this.store.results ? "Comparing with the tool's count…" : "Press Run: it is then compared with the tool's count of the same frames." }), el("div", { class: "button-row" }, remove));

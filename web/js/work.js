@@ -1,15 +1,21 @@
 // @ts-check
 // The review's work beside the plan: the person's corrections (in the order made), their decisions
 // on the doubtful moments, the site's name, and what the footage and detections were when the work
-// was made (their fingerprints). Undo and Redo step through it; every change is kept in the
-// browser's storage, so a reload brings it back. Only the page store (store.js) holds one.
+// was made (their fingerprints). Undo and Redo step through it (corrections, decisions and hand
+// counts; the site's name and files too where a step replaced the whole work: Clear work, a project
+// opened); every change is kept in the browser's storage, so a reload brings it back. Only the page
+// store (store.js) holds one.
 
 /** @typedef {import("./edits.js").Edit} Edit */
 /** A decision on a doubtful moment: the count stands, or it was wrong. @typedef {"accepted" | "rejected"} Decision */
 /** @typedef {import("./protocol.js").Fingerprint} Fingerprint */
 /** The footage and detections a piece of work was made with. @typedef {{footage: Fingerprint | null, detections: Fingerprint | null}} Prints */
 /** What a project file holds beside the corrections: hand counts and a chosen correction factor (hand-count.js changes them). @typedef {{tallies?: import("./tally.js").Tally[], correction?: import("./tally.js").Correction}} Extras */
-/** The parts of the work that Undo brings back. @typedef {{edits: Edit[], marks: [string, Decision][]}} Snapshot */
+/**
+ * The parts of the work that Undo brings back: the site's name and files only from before a step
+ * that replaced the whole work (a name typed is not a step of its own).
+ * @typedef {{edits: Edit[], marks: [string, Decision][], extras: Extras, site?: string, madeWith?: Prints}} Snapshot
+ */
 
 const STORAGE_KEY = "throughline.review.v1";
 const UNDO_DEPTH = 200;
@@ -59,28 +65,34 @@ export class ReviewWork {
     }
   }
 
-  /** @returns {string} */
-  snapshot() {
+  /**
+   * @param {boolean} whole whether the site's name and files are part of it
+   * @returns {string}
+   */
+  snapshot(whole) {
     /** @type {Snapshot} */
-    const s = { edits: this.edits, marks: [...this.marks] };
+    const s = { edits: this.edits, marks: [...this.marks], extras: this.extras };
+    if (whole) Object.assign(s, { site: this.site, madeWith: this.madeWith });
     return JSON.stringify(s);
   }
 
-  /** @param {string} json a snapshot */
-  bringBack(json) {
-    /** @type {Snapshot} */
-    const s = JSON.parse(json);
+  /** @param {Snapshot} s */
+  bringBack(s) {
     this.edits = s.edits;
     this.marks = new Map(s.marks);
+    this.extras = s.extras || {};
+    if (s.site !== undefined) this.site = s.site;
+    if (s.madeWith) this.madeWith = s.madeWith;
   }
 
   /**
-   * One undoable step: `change` alters the corrections or decisions; what was undone before is
-   * forgotten.
+   * One undoable step: `change` alters the corrections, decisions or hand counts (and, when
+   * `whole`, the site's name and files); what was undone before is forgotten.
    * @param {(work: ReviewWork) => void} change
+   * @param {boolean} [whole]
    */
-  change(change) {
-    this.undoStack.push(this.snapshot());
+  change(change, whole = false) {
+    this.undoStack.push(this.snapshot(whole));
     if (this.undoStack.length > UNDO_DEPTH) this.undoStack.shift();
     this.redoStack = [];
     this.edits = [...this.edits];
@@ -91,36 +103,41 @@ export class ReviewWork {
 
   /** Takes back the last step; false when there is none. */
   undo() {
-    const last = this.undoStack.pop();
-    if (!last) return false;
-    this.redoStack.push(this.snapshot());
-    this.bringBack(last);
-    this.save();
-    return true;
+    return this.step(this.undoStack, this.redoStack);
   }
 
   /** Does again the last step undone; false when there is none. */
   redo() {
-    const next = this.redoStack.pop();
-    if (!next) return false;
-    this.undoStack.push(this.snapshot());
-    this.bringBack(next);
+    return this.step(this.redoStack, this.undoStack);
+  }
+
+  /**
+   * @param {string[]} from the stack whose last state comes back
+   * @param {string[]} to the stack the state now goes on
+   */
+  step(from, to) {
+    const state = from.pop();
+    if (!state) return false;
+    /** @type {Snapshot} */
+    const s = JSON.parse(state);
+    to.push(this.snapshot(s.site !== undefined));
+    this.bringBack(s);
     this.save();
     return true;
   }
 
   /**
-   * The work of a project file replaces this one (one undoable step for the corrections).
+   * The work of a project file, or none (Clear work), replaces this one: one undoable step, the
+   * site's name and files with it.
    * @param {{edits: Edit[], marks: [string, Decision][], site: string, madeWith: Prints, extras: Extras}} work
    */
   replace(work) {
     this.change((w) => {
       w.edits = work.edits;
       w.marks = new Map(work.marks);
-    });
-    this.site = work.site;
-    this.madeWith = work.madeWith;
-    this.extras = work.extras;
-    this.save();
+      w.site = work.site;
+      w.madeWith = work.madeWith;
+      w.extras = work.extras;
+    }, true);
   }
 }
