@@ -1146,6 +1146,30 @@ fn footage_found_boxes_keep_the_clips_length() {
         "duration_seconds": 10.0}});
     let project = write(&dir, "project.json", project.to_string().as_bytes());
     assert_eq!(frame_count(&["run", &found, "--edits", &project]), 100);
+    // A tracks file made from them says so too, and counting it keeps the footage's length.
+    let tracks = dir.join("tracks.json").display().to_string();
+    let o = throughline(&["track", &found, "-o", &tracks, "-q"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let doc: serde_json::Value = serde_json::from_slice(&std::fs::read(&tracks).unwrap()).unwrap();
+    assert_eq!(
+        (doc["frame_count"].clone(), doc["footage_frames"].clone()),
+        (100.into(), 100.into())
+    );
+    assert_eq!(frame_count(&["count", &tracks, "--edits", &project]), 100);
+    let edited = write(
+        &dir,
+        "edited.json",
+        std::fs::read_to_string(&tracks)
+            .unwrap()
+            .replace("\"footage_frames\":100", "\"footage_frames\":90")
+            .as_bytes(),
+    );
+    let o = throughline(&["count", &edited, "--plan", &plan]);
+    let e = stderr(&o);
+    assert!(
+        !o.status.success() && e.contains("footage_frames is 90 but frame_count is 100"),
+        "{e}"
+    );
     // Without that line (boxes from elsewhere), the footage given to bridge tells it.
     let plain = write(
         &dir,

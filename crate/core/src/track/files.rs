@@ -52,6 +52,9 @@ struct TracksDocument {
     generator: String,
     settings: TrackerConfig,
     frame_count: u32,
+    /// Present (equal to `frame_count`) when that is the footage's own length.
+    #[serde(default)]
+    footage_frames: Option<u32>,
     box_layout: Vec<String>,
     tracks: Vec<TrackEntry>,
 }
@@ -79,6 +82,8 @@ struct TracksOut<'a> {
     generator: String,
     settings: &'a TrackerConfig,
     frame_count: u32,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    footage_frames: Option<u32>,
     box_layout: [&'static str; 7],
     tracks: Vec<TrackOut<'a>>,
 }
@@ -138,6 +143,7 @@ fn document(tracks: &Tracks) -> TracksOut<'_> {
         generator: format!("throughline {}", crate::VERSION),
         settings: &tracks.config,
         frame_count: tracks.frame_count,
+        footage_frames: tracks.length_from_footage.then_some(tracks.frame_count),
         box_layout: BOX_LAYOUT,
         tracks: tracks
             .tracks
@@ -216,13 +222,23 @@ pub fn from_json(bytes: &[u8]) -> Result<Tracks, Error> {
         frame_count: doc.frame_count,
         tracks,
         crowded_frames: Vec::new(),
-        length_from_footage: false,
+        length_from_footage: doc.footage_frames.is_some(),
     })
 }
 
 /// A tracks document's tracks make sense: ids unique, each track's boxes in increasing frames from
 /// 1, sizes finite and not negative. Errors name the track and the box.
 fn check_document(doc: &TracksDocument) -> Result<(), Error> {
+    if let Some(n) = doc.footage_frames.filter(|&n| n != doc.frame_count) {
+        return Err(Error::new(
+            ErrorKind::BadJson,
+            format!(
+                "footage_frames is {n} but frame_count is {}: the tracks file gives the footage's \
+                 length in both (or leave footage_frames out when the length is not the footage's)",
+                doc.frame_count
+            ),
+        ));
+    }
     let mut ids = std::collections::HashSet::new();
     for (k, t) in doc.tracks.iter().enumerate() {
         let bad = |message: String| {
