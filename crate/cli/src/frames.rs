@@ -7,6 +7,7 @@ use crate::files::{bad_input, name, Failure};
 use std::io::{BufRead, BufReader, Read};
 use std::path::Path;
 use std::sync::mpsc;
+use throughline_core::limits::MAX_FOOTAGE_FRAMES;
 use throughline_footage::y4m;
 
 /// A YUV4MPEG2 stream being read.
@@ -92,6 +93,48 @@ pub fn each_frame(
         }
         Ok(())
     })
+}
+
+/// How many frames the video of a WebM or MP4 file holds (an MP4 says so up front; a WebM is passed
+/// over frame by frame, as the page reads it); `None`, with a note unless `quiet`, for other footage
+/// or a file damaged part way (then `--frames` tells the length).
+pub fn video_frames(footage: &Path, quiet: bool) -> Result<Option<u32>, Failure> {
+    use throughline_footage::demux::Demuxer;
+    let file = std::fs::File::open(footage)
+        .map_err(|e| bad_input(footage, format!("cannot read the file: {e}")))?;
+    let size = file.metadata().map_or(0, |m| m.len());
+    let unread = |why: String| {
+        if !quiet {
+            eprintln!(
+                "note: {}: its length is not taken ({why}); if the detections end before the \
+                 footage does, give --frames N",
+                footage.display()
+            );
+        }
+        Ok(None)
+    };
+    let (mut video, track) = match Demuxer::open(BufReader::with_capacity(1 << 16, file), size) {
+        Ok(opened) => opened,
+        Err(why) => return unread(why),
+    };
+    let most = MAX_FOOTAGE_FRAMES as u32;
+    let too_many = || {
+        unread(format!(
+            "it holds more than {most} frames, more than footage may"
+        ))
+    };
+    if let Some(n) = track.frames {
+        return if n > most { too_many() } else { Ok(Some(n)) };
+    }
+    let mut frames = 0u32;
+    loop {
+        match video.next_chunk() {
+            Ok(Some(_)) if frames == most => return too_many(),
+            Ok(Some(_)) => frames += 1,
+            Ok(None) => return Ok(Some(frames)),
+            Err(why) => return unread(why),
+        }
+    }
 }
 
 /// How many frames a YUV4MPEG2 file holds (passed over by seeking, not read); `None` for

@@ -1071,6 +1071,54 @@ fn frames_gives_the_clips_length_when_the_detections_end_early() {
     };
     assert_eq!(partial(&[]), vec![false, true], "ends at its last box");
     assert_eq!(partial(&["--frames", "750"]), vec![false, false]);
+    // The original footage named with --footage tells it too: the demo's WebM has 750 frames, as
+    // the page counts it (a newcomer's trial: it was named in the outputs, its length unread).
+    let webm = demo("footage.webm");
+    assert_eq!(partial(&["--footage", &webm]), vec![false, false]);
+    if ffmpeg_or_skip("frames_gives_the_clips_length_when_the_detections_end_early (MP4)") {
+        let mp4 = dir.join("footage.mp4").display().to_string();
+        let o = std::process::Command::new("ffmpeg")
+            .args([
+                "-v",
+                "error",
+                "-y",
+                "-i",
+                &webm,
+                "-c:v",
+                "libx264",
+                "-preset",
+                "ultrafast",
+            ])
+            .args(["-an", &mp4])
+            .output()
+            .unwrap();
+        assert!(o.status.success(), "{}", stderr(&o));
+        assert_eq!(
+            partial(&["--footage", &mp4]),
+            vec![false, false],
+            "an MP4's frames"
+        );
+    }
+    // Footage it cannot read (here not a video at all) is named, its length left to --frames.
+    let other = write(&dir, "clip.avi", b"RIFF....AVI not really");
+    let report = dir.join("r.json").display().to_string();
+    let o = throughline(&[
+        "run",
+        &dets,
+        "--plan",
+        &plan,
+        "--footage",
+        &other,
+        "-o",
+        &report,
+    ]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let e = stderr(&o);
+    assert!(
+        e.contains("clip.avi: its length is not taken (neither WebM nor MP4")
+            && e.contains("--frames N"),
+        "{e}"
+    );
     let o = throughline(&["run", &dets, "--plan", &plan, "--frames", "600", "-q"]);
     assert_eq!(o.status.code(), Some(2));
     assert!(

@@ -82,7 +82,7 @@ pub fn run(args: Args) -> Result<(), Failure> {
         (tracks_io::boxes_to_tracks(&boxes), None)
     };
     let project_at = args.edits.as_deref().zip(project.as_ref());
-    let known = known_length(&tracks, project_at, &plan, None)?;
+    let known = known_length(&tracks, project_at, &plan, FootageFiles::default())?;
     with_length(&mut tracks, args.frames, known)?;
     let report = pipeline::count(&tracks, &plan, tracker.as_ref(), &work)
         .map_err(|e| bad_input(&args.plan, e))?;
@@ -126,15 +126,26 @@ pub fn stage_report(
     }
 }
 
+/// Footage files given beside the tracks, whose frames tell the footage's length: a `--y4m` file
+/// and the original footage (`--footage`, WebM or MP4).
+#[derive(Default, Clone, Copy)]
+pub struct FootageFiles<'a> {
+    pub y4m: Option<&'a std::path::Path>,
+    pub video: Option<&'a std::path::Path>,
+    /// No note when the video's length cannot be read.
+    pub quiet: bool,
+}
+
 /// The footage's length when it is known apart from the tracks, for [`with_length`]: none when
-/// the tracks' length is the footage's own (boxes found in it); else the longer of the footage a
+/// the tracks' length is the footage's own (boxes found in it); else the longest of the footage a
 /// project (read from `path`) was made with, at the plan's frame rate (the page counted
-/// detections from a file that end before it to its end), and a `--y4m` file's frames.
+/// detections from a file that end before it to its end), a `--y4m` file's frames and the
+/// original footage's.
 pub fn known_length(
     tracks: &throughline_core::Tracks,
     project: Option<(&std::path::Path, &throughline_core::project::Project)>,
     plan: &throughline_core::plan::Plan,
-    y4m: Option<&std::path::Path>,
+    files: FootageFiles,
 ) -> Result<Option<u32>, Failure> {
     if tracks.length_from_footage {
         return Ok(None);
@@ -145,11 +156,15 @@ pub fn known_length(
             .map_err(|e| bad_input(path, e))?,
         None => None,
     };
-    let from_footage = match y4m {
+    let from_y4m = match files.y4m {
         Some(f) => crate::frames::y4m_frames(f)?,
         None => None,
     };
-    Ok(from_project.max(from_footage))
+    let from_video = match files.video {
+        Some(f) => crate::frames::video_frames(f, files.quiet)?,
+        None => None,
+    };
+    Ok(from_project.max(from_y4m).max(from_video))
 }
 
 /// The footage's length (`--frames`) given to the tracks: the count's intervals reach to it. Shorter

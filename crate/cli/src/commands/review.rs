@@ -57,7 +57,12 @@ pub fn run(args: Args) -> Result<(), Failure> {
     let project_at = args.edits.as_deref().zip(project.as_ref());
     let (how, settings) = with_project(&args.tracking, project_at)?;
     let mut tracks = track_file_with(&args.detections, &how, settings, &mut Timer::new())?;
-    let known = super::count::known_length(&tracks, project_at, &plan, None)?;
+    let known = super::count::known_length(
+        &tracks,
+        project_at,
+        &plan,
+        super::count::FootageFiles::default(),
+    )?;
     super::count::with_length(&mut tracks, args.frames, known)?;
     let report = pipeline::count(&tracks, &plan, Some(&tracks.config), &work)
         .map_err(|e| bad_input(&args.plan, e))?;

@@ -69,11 +69,13 @@ struct HandinArgs {
     #[arg(long, value_name = "TIME")]
     start: Option<String>,
     /// The footage's length in frames, when the detections end before it does (nobody in view at
-    /// the end): the last interval is then whole, not partial. Default: the --y4m file's frames,
-    /// or with --edits PROJECT its footage's duration (boxes found with --y4m alone know theirs).
+    /// the end): the last interval is then whole, not partial. Default: the frames of the --y4m
+    /// file or of --footage (WebM or MP4), or with --edits PROJECT its footage's duration (boxes
+    /// found with --y4m alone know theirs).
     #[arg(long, value_name = "N")]
     frames: Option<u32>,
-    /// The original footage file, to name it in the outputs (only its first MiB is read).
+    /// The original footage file, to name it in the outputs; a WebM or MP4's frames are counted
+    /// too, for the footage's length (see --frames).
     #[arg(long, value_name = "FILE")]
     footage: Option<PathBuf>,
     /// A still of the footage (PNG or JPEG) for the summary.
@@ -109,7 +111,12 @@ pub fn run(args: Args) -> Result<(), Failure> {
     let (work, project) = read_work(args.edits.as_deref())?;
     let project_at = args.edits.as_deref().zip(project.as_ref());
     let mut tracks = track_source(&args, &plan, project_at)?;
-    let known = super::count::known_length(&tracks, project_at, &plan, args.y4m.as_deref())?;
+    let footage = super::count::FootageFiles {
+        y4m: args.y4m.as_deref(),
+        video: args.handin.footage.as_deref(),
+        quiet: args.tracking.quiet,
+    };
+    let known = super::count::known_length(&tracks, project_at, &plan, footage)?;
     super::count::with_length(&mut tracks, args.handin.frames, known)?;
     let report = pipeline::count(&tracks, &plan, Some(&tracks.config), &work)
         .map_err(|e| bad_input(&args.plan, e))?;
