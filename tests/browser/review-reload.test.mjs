@@ -1,7 +1,8 @@
 // The work survives a reload: corrections and decisions made, the page reloaded (as after closing
 // the tab), the page says the work is kept and that tracking must run again; Run now, and the
 // corrections are applied to the new tracks: the report is byte for byte the one before the
-// reload, the Edits list and the decisions are as they were.
+// reload, the Edits list and the decisions are as they were. Undo has nothing to take back then,
+// but each correction can be removed from the Edits list (with the decision it carried out).
 import { test } from "node:test";
 import assert from "node:assert/strict";
 import { useBrowser, showView, screenshot } from "./harness.mjs";
@@ -12,7 +13,10 @@ const env = useBrowser();
 test("reload: the corrections and decisions come back and are applied when tracks are made again", async () => {
   const { page, seen } = await reviewDemo(env);
   await deleteTrack(page, 19);
+  await countedWith(page, 1);
+  const deletedOnly = await pageReport(page);
   await openTab(page, "To check");
+  const queued = await page.locator("#doubtful-list .doubt").count();
   await page.locator("#clock").click();
   await page.keyboard.press("n");
   await page.keyboard.press("r");
@@ -44,6 +48,23 @@ test("reload: the corrections and decisions come back and are applied when track
   assert.equal(await page.locator("#edit-list").innerText(), editsBefore);
   await openTab(page, "To check");
   assert.deepEqual(await page.locator("#doubtful-list .decision").allInnerTexts(), decided);
+
+  // Undo has nothing to take back after a reload; a correction is still taken back from the list,
+  // with the decision it carried out: the rejected moment is in the queue again, undecided.
+  await openTab(page, "Edits");
+  assert.equal(await page.getByRole("button", { name: "Undo last change" }).isDisabled(), true);
+  await page.getByRole("button", { name: "Remove correction 2" }).click();
+  await countedWith(page, 1);
+  assert.equal(await pageReport(page), deletedOnly, "the counts of the one correction left");
+  assert.match(await page.locator("#edit-list").innerText(), /^1\.\s+Track 19 left out/);
+  await openTab(page, "To check");
+  assert.equal(await page.locator("#doubtful-list .doubt").count(), queued, "the moment is back in the queue");
+  assert.deepEqual(await page.locator("#doubtful-list .decision").allInnerTexts(), decided);
+  // And that removal is itself undone by Undo.
+  await openTab(page, "Edits");
+  await page.getByRole("button", { name: "Undo last change" }).click();
+  await countedWith(page, 2);
+  assert.equal(await pageReport(page), before);
   assert.deepEqual(seen.errors, []);
   await page.close();
 });

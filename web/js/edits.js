@@ -59,6 +59,34 @@ export function sameEdit(a, b) {
 }
 
 /**
+ * A crossing a doubt names (its own, or for two close together the other, `close_to`) as the
+ * edit that rejects it.
+ * @param {import("./protocol.js").Doubt["crossing"]} c
+ * @returns {RejectEdit | null}
+ */
+export function rejectionOf(c) {
+  return c ? { edit: "reject_crossing", screenline: c.screenline, direction: c.direction, track: c.track, frame: c.frame } : null;
+}
+
+/**
+ * The doubtful moments marked rejected by a rejection of one of their crossings, `e` (its reason
+ * aside): taking `e` back takes back those decisions too. The crossing's own moment is named by
+ * its key (crate/core/src/review: `crossing:LINE:TRACK:FRAME`; rejected, it is in no queue now);
+ * a moment of two crossings close together, by the other one (`close_to`).
+ * @param {Edit} e
+ * @param {import("./protocol.js").Doubt[]} doubts the queue now
+ * @param {Map<string, string>} marks decisions by moment
+ * @returns {string[]} the moments' keys
+ */
+export function marksOfRejection(e, doubts, marks) {
+  if (e.edit !== "reject_crossing") return [];
+  const bare = { ...e, reason: undefined };
+  const names = (/** @type {import("./protocol.js").Doubt} */ d) => sameEdit(rejectionOf(d.close_to), bare);
+  const keys = [`crossing:${e.screenline}:${e.track}:${e.frame}`, ...doubts.filter(names).map((d) => d.key)];
+  return [...new Set(keys)].filter((k) => marks.get(k) === "rejected");
+}
+
+/**
  * JSON with object keys sorted, so two objects with the same fields compare equal.
  * @param {unknown} v
  * @returns {string}

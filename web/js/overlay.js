@@ -37,6 +37,17 @@ import { CASING, DIRECTION_COLOUR, PLAN_INK, STATE_COLOUR } from "./palette.js";
  * @property {(name: string) => string} keyColour
  */
 
+/** The opacity of a plan's label over a box of this frame. */
+const SEE_THROUGH = 0.5;
+
+/**
+ * @param {Rect} a
+ * @param {Rect} b
+ */
+function overlap(a, b) {
+  return a.x < b.x + b.w && b.x < a.x + a.w && a.y < b.y + b.h && b.y < a.y + a.h;
+}
+
 /** Most crossings marked on the picture at once: the latest ones. */
 const MAX_CROSSING_MARKS = 300;
 
@@ -58,9 +69,15 @@ export function drawOverlay(ctx, scene) {
   if (scene.tracks) drawTracks(ctx, scene.tracks, scene);
   const pairs = plan.calibration ? plan.calibration.pairs || [] : [];
   pairs.forEach((pair) => drawGroundPoint(ctx, pair.image, px));
+  /** @type {Rect[]} */
+  const people = [];
+  if (scene.tracks) scene.tracks.forEachBox(scene.frame, (_, x, y, w, h) => { people.push({ x, y, w, h }); });
   /** @type {{key: string, rect: Rect, of?: Rect}[]} */
   const drawn = scene.layout.placed.map(({ key, rect, content }) => {
+    // A label placed where someone is at this frame is see-through: they show through it.
+    ctx.globalAlpha = people.some((b) => overlap(b, rect)) ? SEE_THROUGH : 1;
     drawTag(ctx, rect, content(scene.frame), px);
+    ctx.globalAlpha = 1;
     return { key, rect };
   });
   if (scene.tracks) drawn.push(...trackLabels(ctx, scene.tracks, scene));

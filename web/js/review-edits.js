@@ -1,11 +1,12 @@
 // @ts-check
 // The review's list of corrections, in the order made, each in plain words with what became of it
-// when the core applied it ("applied", or "not applied" and why). Undo and Redo step through them
+// when the core applied it ("applied", or "not applied" and why), and a button to take any one of
+// them back (after a reload too, when Undo has nothing left). Undo and Redo step through them
 // (the counts follow at once); Export edits gives the edits file that `throughline run --edits`
 // replays. Choosing one shows its moment.
 
 import { el, byId, clockText, download } from "./dom.js";
-import { editWords, outcomeOf, editFrame, editTracks } from "./edits.js";
+import { editWords, outcomeOf, editFrame, editTracks, marksOfRejection } from "./edits.js";
 
 /** @typedef {import("./store.js").PageStore} PageStore */
 /** @typedef {import("./core-client.js").CoreClient} CoreClient */
@@ -47,7 +48,9 @@ export class EditList {
         el("span", { class: "what", text: editWords(e, wording) }),
         el("span", { class: "detail" }, [e.reason ? el("span", { class: "why", text: `Why: ${e.reason}` }) : null, el("span", { class: `status ${status.tone}`, text: status.text })]),
       ]);
-      return el("li", {}, b);
+      const remove = el("button", { type: "button", class: "remove", text: "Remove", "aria-label": `Remove correction ${i + 1}`, title: "Take this correction back (Undo brings it back)",
+        onclick: () => this.store.correctionRemoved(i, marksOfRejection(e, this.store.doubts, work.marks)) });
+      return el("li", { class: "edit" }, [b, remove]);
     }));
     // How many corrections the counts shown are made with (-1: counting, or not counted yet).
     const counted = results && (outcomes || []).length === work.edits.length && work.edits.every((_, i) => outcomeOf(work.edits, outcomes, i));

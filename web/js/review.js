@@ -13,7 +13,7 @@ import { EditList, directionLabel } from "./review-edits.js";
 import { FocusStrip } from "./focus-strip.js";
 import { TrackActions, offerClasses } from "./track-edits.js";
 import { AddCrossingForm, rejectEdit } from "./crossing-edits.js";
-import { withReason, sameEdit } from "./edits.js";
+import { withReason, sameEdit, rejectionOf } from "./edits.js";
 
 /** @typedef {import("./store.js").PageStore} PageStore */
 /** @typedef {import("./picture.js").Picture} Picture */
@@ -121,7 +121,7 @@ export class Review {
     const focus = this.store.focus;
     if (!focus) return null;
     if (focus.doubt) {
-      return rejection(focus.doubt.crossing);
+      return rejectionOf(focus.doubt.crossing);
     }
     return rejectEdit(focus.event);
   }
@@ -145,7 +145,7 @@ export class Review {
     }
     // Two crossings close together: either may be the one counted twice (they can differ in
     // class); the person chooses, the later one first.
-    const other = d ? rejection(d.close_to) : null;
+    const other = d ? rejectionOf(d.close_to) : null;
     const edits = other ? [other, edit] : [edit];
     const said = (/** @type {RejectEdit} */ e) => `${e.screenline}, ${directionLabel(this.store, e.screenline, e.direction)}, by track ${e.track} at frame ${e.frame}${classOf(this.store, e)}`;
     const words = other
@@ -156,16 +156,6 @@ export class Review {
       this.strip.say("Rejected: the counts no longer include it. Undo (Ctrl+Z) takes it back.");
     }, other ? edits.map(said) : []);
   }
-}
-
-/**
- * A crossing a doubt names (its own, or for two close together the other, `close_to`) as the
- * edit that rejects it.
- * @param {import("./protocol.js").Doubt["crossing"]} c
- * @returns {import("./edits.js").RejectEdit | null}
- */
-function rejection(c) {
-  return c ? { edit: "reject_crossing", screenline: c.screenline, direction: c.direction, track: c.track, frame: c.frame } : null;
 }
 
 /**

@@ -433,6 +433,19 @@ export class PageStore {
     this.emit(["marks"]);
   }
 
+  /**
+   * A correction taken back from the list, with the decisions it carried out (one undo step).
+   * @param {number} index its place in the corrections
+   * @param {string[]} marks the doubtful moments whose decision goes with it
+   */
+  correctionRemoved(index, marks) {
+    this.work.change((w) => {
+      w.edits.splice(index, 1);
+      for (const key of marks) w.marks.delete(key);
+    });
+    this.emit(["edits", "marks"]);
+  }
+
   correctionsUndone() {
     this.stepped(() => this.work.undo());
   }
