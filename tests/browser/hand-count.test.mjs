@@ -165,6 +165,43 @@ test("a hand count deleted comes back: by its own button, and by the review's Un
   await page.close();
 });
 
+test("a hand count under way goes on after a reload, its presses kept", async () => {
+  const { page, seen } = await openPage(env, { viewport: LAPTOP });
+  await page.evaluate(() => localStorage.clear());
+  await page.reload();
+  await page.waitForSelector("body[data-ready=true]", { timeout: 30000 });
+  await run(page);
+  await showView(page, "Review");
+  await startTally(page, "Dara", "0:00", "0:10");
+  const first = plan.screenlines[0];
+  const key = await keyOf(page, first.name, first.forward);
+  await pressAt(page, 100, key);
+  await pressAt(page, 140, key);
+  await page.reload();
+  await page.waitForSelector("body[data-ready=true]", { timeout: 30000 });
+  const note = page.locator(".message[data-key=tally-resumed]");
+  assert.match(await note.innerText(), /The hand count by Dara \(frames 1 to 250, 2 presses so far\) was under way when the page closed: it goes on/);
+  await note.getByRole("button", { name: "Show it" }).click();
+  await page.waitForSelector("#tally-live:not([hidden])");
+  assert.match(await page.locator("#tally-status").innerText(), /Dara counting/);
+  assert.equal(await page.locator(`#tally-keys button[data-key="${key}"] .count`).innerText(), "2");
+  await pressAt(page, 180, key);
+  assert.equal(await page.locator(`#tally-keys button[data-key="${key}"] .count`).innerText(), "3");
+  await run(page);
+  await page.getByRole("button", { name: "Finish and compare" }).click();
+  await page.waitForSelector(".tally-check tbody tr", { state: "attached" });
+  const kept = await page.evaluate(() => JSON.parse(localStorage.getItem("throughline.review.v1")).extras.tallies);
+  assert.deepEqual(kept.map((t) => [t.who, t.presses.length]), [["Dara", 3]]);
+  assert.equal(await page.evaluate(() => localStorage.getItem("throughline.tally-run.v1")), null, "nothing under way now");
+  // Reloaded again, the page names the hand count kept beside the corrections.
+  await page.reload();
+  await page.waitForSelector("body[data-ready=true]", { timeout: 30000 });
+  assert.match(await page.locator(".message[data-key=work-kept]").innerText(), /0 corrections, 0 review decisions and 1 hand count are kept/);
+  assert.equal(await page.locator(".message[data-key=tally-resumed]").count(), 0);
+  assert.deepEqual(seen.errors, []);
+  await page.close();
+});
+
 test("on a phone the tally's keys are buttons, and nothing scrolls sideways", async () => {
   const { page, seen } = await openPage(env, { viewport: PHONE });
   await run(page);

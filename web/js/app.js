@@ -74,14 +74,27 @@ if (store.work.edits.length || store.work.extras.tallies || store.work.extras.co
 store.toolChosen("select");
 await demo.open(false);
 if (store.workRestored) sayWorkKept();
+if (store.handCount.resume()) sayTallyResumed();
 document.body.dataset.ready = "true";
 
-/** After a reload: the corrections and decisions are back, and wait for tracks to apply to. */
+/** After a reload: the corrections, decisions and hand counts are back, and wait for tracks to apply to. */
 function sayWorkKept() {
   const n = store.work.edits.length;
   const m = store.work.marks.size;
-  const what = `${n} correction${n === 1 ? "" : "s"} and ${m} review decision${m === 1 ? "" : "s"}`;
+  const t = (store.work.extras.tallies || []).length;
+  const parts = [`${n} correction${n === 1 ? "" : "s"}`, `${m} review decision${m === 1 ? "" : "s"}`];
+  if (t) parts.push(`${t} hand count${t === 1 ? "" : "s"}`);
+  const what = `${parts.slice(0, -1).join(", ")} and ${parts[parts.length - 1]}`;
   const run = el("button", { type: "button", text: "Run now", onclick: () => { messages.clear("work-kept"); byId("run", HTMLButtonElement).click(); } });
   const open = store.detections ? "Press Run to track again" : "Open the same detections (and footage), then press Run";
   messages.say("work-kept", "ok", `Your ${what} are kept from last time. ${open}: they are applied to the new tracks.`, store.detections ? [run] : []);
+}
+
+/** After a reload in the middle of a hand count: it goes on, its presses kept. */
+function sayTallyResumed() {
+  const run = store.handCount.run;
+  if (!run) return;
+  const { who, from_frame: from, to_frame: to, presses } = run.tally;
+  const go = el("button", { type: "button", text: "Show it", onclick: () => { messages.clear("tally-resumed"); store.viewChosen("review"); store.reviewTabChosen("tally"); } });
+  messages.say("tally-resumed", "ok", `The hand count by ${who} (frames ${from} to ${to}, ${presses.length} press${presses.length === 1 ? "" : "es"} so far) was under way when the page closed: it goes on, under Review, Hand count. Open the same footage if it is not open.`, [go]);
 }

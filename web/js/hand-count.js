@@ -1,5 +1,6 @@
 // @ts-check
-// The hand counts' part of the page store: the tally under way (not kept: a reload drops it), the
+// The hand counts' part of the page store: the tally under way (kept in the browser's storage at
+// each press, so a reload or a closed tab goes on with it), the
 // tallies finished (kept with the review's work, so in the browser's storage and the project file)
 // and the correction factor the person chose, if any. It changes only through the named actions
 // below, each telling the store's views what changed ("tally": a tally started or ended;
@@ -13,6 +14,8 @@
 /** @typedef {import("./work.js").ReviewWork} ReviewWork */
 /** @typedef {(topics: import("./store.js").Topic[]) => void} Emit */
 
+const RUN_KEY = "throughline.tally-run.v1";
+
 export class HandCount {
   /**
    * @param {ReviewWork} work where the finished tallies and the factor are kept
@@ -23,6 +26,29 @@ export class HandCount {
     this.emit = emit;
     /** @type {TallyRun | null} the tally under way */
     this.run = null;
+  }
+
+  /** Goes on with the tally that was under way when the page was last closed; true when there was one. */
+  resume() {
+    try {
+      const kept = JSON.parse(this.work.storage.getItem(RUN_KEY) || "null");
+      if (!kept || !kept.tally || !Array.isArray(kept.tally.presses) || !Array.isArray(kept.keys)) return false;
+      this.run = kept;
+      this.emit(["tally"]);
+      return true;
+    } catch (e) {
+      return false; // unreadable (a hand edit): nothing to go on with
+    }
+  }
+
+  /** The tally under way, kept in storage (or forgotten there when there is none). */
+  keepRun() {
+    try {
+      if (this.run) this.work.storage.setItem(RUN_KEY, JSON.stringify(this.run));
+      else this.work.storage.removeItem(RUN_KEY);
+    } catch (e) {
+      // Storage full or disabled: the tally still runs in this tab.
+    }
   }
 
   /** The tallies finished, in the order made. @returns {Tally[]} */
@@ -38,6 +64,7 @@ export class HandCount {
   /** @param {TallyRun} run a new tally, with no presses yet */
   tallyStarted(run) {
     this.run = run;
+    this.keepRun();
     this.emit(["tally"]);
   }
 
@@ -45,6 +72,7 @@ export class HandCount {
   tallyPressed(press) {
     if (!this.run) return;
     this.run.tally.presses.push(press);
+    this.keepRun();
     this.emit(["tallyPress"]);
   }
 
@@ -52,6 +80,7 @@ export class HandCount {
   tallyPressUndone() {
     const last = this.run ? this.run.tally.presses.pop() : undefined;
     if (!last) return null;
+    this.keepRun();
     this.emit(["tallyPress"]);
     return last;
   }
@@ -61,12 +90,14 @@ export class HandCount {
     if (!this.run) return;
     this.keep([...this.tallies, this.run.tally], this.correction);
     this.run = null;
+    this.keepRun();
     this.emit(["tally", "checks"]);
   }
 
   /** The tally under way is dropped, unkept. */
   tallyDropped() {
     this.run = null;
+    this.keepRun();
     this.emit(["tally"]);
   }
 

@@ -49,7 +49,7 @@ export class ReviewWork {
       this.site = typeof saved.site === "string" ? saved.site : "";
       this.madeWith = { footage: null, detections: null, ...(saved.madeWith || {}) };
       this.extras = saved.extras || {};
-      return this.edits.length > 0 || this.marks.size > 0;
+      return this.edits.length > 0 || this.marks.size > 0 || Boolean(this.extras.tallies || this.extras.correction);
     } catch (e) {
       // Storage unreadable (private mode, a hand edit): start afresh rather than fail.
       return false;
