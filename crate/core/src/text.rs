@@ -62,6 +62,18 @@ pub fn line_at(text: &str, at: usize) -> (&str, usize) {
 
 /// A CSV line `text` (line `line`) with `found` fields where its header names `want` columns; when
 /// the line has semicolons or tabs, says that the fields must be separated by commas.
+/// What a line read as one field may have got wrong: another separator (a spreadsheet set to
+/// another language saves `;`); "" when it holds neither `;` nor a tab.
+pub fn separator_hint(line: &str) -> &'static str {
+    if line.contains(';') {
+        " (the file seems to use `;` between fields: save it with commas, and `.` as the decimal point)"
+    } else if line.contains('\t') {
+        " (the file seems to use tabs between fields: save it with commas)"
+    } else {
+        ""
+    }
+}
+
 pub fn wrong_field_count(found: usize, want: usize, text: &str, line: usize) -> Error {
     let fields = if found == 1 { "field" } else { "fields" };
     let other = [(';', "semicolons"), ('\t', "tabs")]

@@ -95,3 +95,36 @@ fn unknown_lines_are_counted_and_bad_rows_named() {
     let e = read_counts_csv(b"line,direction,count\n").unwrap_err();
     assert!(e.to_string().contains("screenline"), "{e}");
 }
+
+/// A manual count with the same line, direction, class and interval on two rows would compare the
+/// same automated count twice (10 against 11 with a factor of 1.1, for one interval of 5 and 5;
+/// a newcomer's trial): it is refused, naming both lines. `7:00` and `07:00:00` are one interval.
+#[test]
+fn a_repeated_row_is_refused_naming_both_lines() {
+    let e = read_counts_csv(
+        format!("{HEADER}deck,in,all,07:00,07:15,5\ndeck,out,all,07:00,07:15,4\ndeck,in,,07:00:00,07:15:00,6\n").as_bytes(),
+    )
+    .unwrap_err()
+    .to_string();
+    assert!(
+        e.contains("line 4") && e.contains("as line 2 does") && e.contains("add the two counts"),
+        "{e}"
+    );
+    // Another class of the same interval is another row.
+    assert_eq!(
+        rows(&format!(
+            "{HEADER}deck,in,car,07:00,07:15,5\ndeck,in,bus,07:00,07:15,1\n"
+        ))
+        .len(),
+        2
+    );
+}
+
+/// A counts file saved with `;` (a spreadsheet set to another language) says so.
+#[test]
+fn a_semicolon_separated_counts_file_is_named() {
+    let e = read_counts_csv(b"screenline;direction;class;interval_start;interval_end;count\n")
+        .unwrap_err()
+        .to_string();
+    assert!(e.contains("seems to use `;`"), "{e}");
+}

@@ -108,6 +108,14 @@ fn bad_input_names_the_place_and_the_fix() {
     use ErrorKind::*;
     check_err(b"", Empty, None, None, "empty");
     check_err(b"   \n\n", Empty, None, None, "empty");
+    // A line saved with `;` among benchmark rows (a newcomer's trial: it said "1 columns" alone).
+    check_err(
+        b"1,-1,10,10,20,40,0.9\n2;-1;11;10;20;40;0.9\n",
+        MissingColumn,
+        Some(2),
+        None,
+        "seems to use `;` between fields",
+    );
     check_err(
         b"\x1aE\xdf\xa3\x00\x00\x00\x00webm",
         Binary,

@@ -54,7 +54,12 @@ pub fn read_counts_csv(bytes: &[u8]) -> Result<Vec<CountRow>, Error> {
                 ErrorKind::BadHeader,
                 format!(
                     "the header has no `{name}` column: it must name \
-                     screenline,direction,class,interval_start,interval_end,count"
+                     screenline,direction,class,interval_start,interval_end,count{}",
+                    if names.len() == 1 {
+                        text::separator_hint(header)
+                    } else {
+                        ""
+                    }
                 ),
             )
             .at(header_index + 1, None)
@@ -68,6 +73,10 @@ pub fn read_counts_csv(bytes: &[u8]) -> Result<Vec<CountRow>, Error> {
         col("count")?,
     );
     let mut rows = Vec::new();
+    // The first line of each line, direction, class and interval: a second is refused, as it
+    // would be compared with the same automated count again.
+    let mut first: std::collections::HashMap<(String, String, Option<String>, String), usize> =
+        std::collections::HashMap::new();
     for (i, line) in lines {
         let f = text::split_fields(line);
         if f.len() != names.len() {
@@ -92,14 +101,35 @@ pub fn read_counts_csv(bytes: &[u8]) -> Result<Vec<CountRow>, Error> {
             "" | "all" | "*" => None,
             c => Some(c.to_string()),
         };
-        rows.push(CountRow {
+        let row = CountRow {
             screenline: f[cl].trim().to_string(),
             direction: f[cd].trim().to_string(),
             class,
             // `7:00` or `00:15` as a spreadsheet saves `07:00:00`, `00:15:00`: as a report writes it.
             interval_start: crate::plan::clock::as_report_writes(f[cs]),
             count,
-        });
+        };
+        let key = (
+            row.screenline.clone(),
+            row.direction.clone(),
+            row.class.clone(),
+            row.interval_start.clone(),
+        );
+        if let Some(earlier) = first.insert(key, i + 1) {
+            return Err(Error::new(
+                ErrorKind::Unsuitable,
+                format!(
+                    "this row counts {} {} ({}) from {} again, as line {earlier} does: add the two \
+                     counts into one row (or correct the line, direction, class or interval)",
+                    row.screenline,
+                    row.direction,
+                    row.class.as_deref().unwrap_or("all classes"),
+                    row.interval_start
+                ),
+            )
+            .at(i + 1, None));
+        }
+        rows.push(row);
     }
     Ok(rows)
 }

@@ -29,10 +29,13 @@ const COLUMNS: [&str; 7] = ["frame", "x", "y", "w", "h", "score", "class"];
 /// corners for a box, long names.
 fn header_hint(header: &[&str], names: &[String]) -> &'static str {
     let any = |these: &[&str]| names.iter().any(|n| these.contains(&n.as_str()));
-    if header.len() == 1 && header[0].contains(';') {
-        " (the file seems to use `;` between fields: save it with commas, and `.` as the decimal point)"
-    } else if header.len() == 1 && header[0].contains('\t') {
-        " (the file seems to use tabs between fields: save it with commas)"
+    let other = if header.len() == 1 {
+        crate::text::separator_hint(header[0])
+    } else {
+        ""
+    };
+    if !other.is_empty() {
+        other
     } else if any(&["x2", "x_max", "xmax"]) {
         " (boxes must be top-left x,y and width,height: compute w = x2 - x1 and h = y2 - y1)"
     } else if any(&["width", "height", "conf", "confidence"]) {
