@@ -754,3 +754,27 @@ fn the_footage_length_comment_is_read_back() {
     );
     assert_eq!(length("# footage_frames: 12 frames\n1,-1,1,2,3,4,0.5\n"), 1);
 }
+
+/// One mistyped frame number far beyond the others (a newcomer's trial: a report of 46 days from
+/// five minutes of boxes, with no word) is named; a quiet night in a day's recording is not.
+#[test]
+fn boxes_far_apart_are_named() {
+    let mut text: String = (1..=7500)
+        .map(|f| format!("{f},-1,10,20,30,40,0.9\n"))
+        .collect();
+    text.push_str("99999999,-1,10,10,20,40,0.9\n");
+    let report = read_detections(text.as_bytes()).unwrap();
+    let why = report.detections.far_apart().expect("named");
+    assert!(
+        why.contains("no box between frames 7500 and 99999999")
+            && why.contains("7500 boxes lie in frames 1 to 7500, and 1 from frame 99999999 on"),
+        "{why}"
+    );
+    // A day at 25 frames a second with ten quiet hours (900,000 frames) in it: not far apart.
+    let day: String = [1u32, 500_000, 1_400_000, 2_160_000]
+        .iter()
+        .map(|f| format!("{f},-1,10,20,30,40,0.9\n"))
+        .collect();
+    let report = read_detections(day.as_bytes()).unwrap();
+    assert_eq!(report.detections.far_apart(), None);
+}

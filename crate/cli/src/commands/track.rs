@@ -268,6 +268,9 @@ pub fn track_file_with(
 
 fn print_warnings(path: &Path, report: &detections::ReadReport) {
     print_warning_list(path, &report.warnings);
+    if let Some(why) = report.detections.far_apart() {
+        eprintln!("warning: {}: {why}", path.display());
+    }
 }
 
 /// The reader's warnings (the last says how many rows were passed over in all, when not all are
