@@ -8,7 +8,7 @@
 // still equal the command line's with the plan the page saves.
 import { test } from "node:test";
 import assert from "node:assert/strict";
-import { writeFileSync } from "node:fs";
+import { writeFileSync, copyFileSync } from "node:fs";
 import { join } from "node:path";
 import { useBrowser, openPage, run, showView, downloadText, screenshot, demo, LAPTOP, PHONE } from "./harness.mjs";
 import { scratch } from "./review-helpers.mjs";
@@ -102,6 +102,29 @@ test("grid and movements: downloads equal the command line's, copies paste as th
   assert.ok(scroll <= width, `hand in on a phone: page ${scroll} px wide in a ${width} px window`);
   await page.locator("#handin").scrollIntoViewIfNeeded();
   await screenshot(page, "16-handin-phone", { fullPage: false });
+  assert.deepEqual(seen.errors, []);
+  await page.close();
+});
+
+test("the files name the plan file opened while the plan is still what it holds; changed here, the one Save plan writes", async () => {
+  const { page, seen } = await openPage(env, { viewport: LAPTOP });
+  await nameSite(page, SITE);
+  // A newcomer's trial: a plan opened as myplan.json was named plan.json in the files handed in.
+  const mine = join(scratch, "bridge-count-plan.json");
+  copyFileSync(demo("plan.json"), mine);
+  await page.getByLabel("Open plan").setInputFiles(mine);
+  await run(page);
+  await handIn(page);
+  const wide = await downloadText(page, "Download grid CSV", scratch);
+  assert.equal(wide, cliHandin(["--footage", demo("footage.webm")], mine)[`${STEM}_grid.csv`], "= the command line given that file");
+  assert.equal(csvCells(wide)[2][1], "bridge-count-plan.json");
+  assert.match(await page.locator("#handin-names").innerText(), /name the plan as bridge-count-plan\.json, the file you opened/);
+  await page.getByRole("tab", { name: "Set up" }).click();
+  await page.getByLabel("Path averaging (seconds)").fill("0.5");
+  await page.getByLabel("Path averaging (seconds)").press("Tab");
+  await handIn(page);
+  await page.waitForFunction(() => /name the plan as plan\.json, the file Save plan writes/.test(document.getElementById("handin-names").textContent));
+  assert.equal(csvCells(await downloadText(page, "Download grid CSV", scratch))[2][1], "plan.json");
   assert.deepEqual(seen.errors, []);
   await page.close();
 });

@@ -14,11 +14,20 @@ import { projectFileName } from "./project-panel.js";
 /** @typedef {import("./protocol.js").HandIn} HandIn */
 /** @typedef {import("./protocol.js").HandinContext} HandinContext */
 
-/** The plan's name in the hand-in files: the file Save plan writes, which reproduces the counts. */
+/** The plan's name in the hand-in files once changed here: the file Save plan writes, which reproduces the counts. */
 export const PLAN_FILE = "plan.json";
 
 /**
- * What the hand-in outputs name as their sources: the site, the plan (as Save plan names it), the
+ * The plan's name in the hand-in files: the plan file opened, while the plan is still what it
+ * holds; else the file Save plan writes.
+ * @param {PageStore} store
+ */
+export function planFileName(store) {
+  return store.plans.openedAs() || PLAN_FILE;
+}
+
+/**
+ * What the hand-in outputs name as their sources: the site, the plan (its file's name), the
  * footage and detections open (else those the work was made with) and, when the counts need the
  * corrections, hand counts or factor to be reproduced, the project file as Save project names it.
  * @param {PageStore} store
@@ -27,7 +36,7 @@ export const PLAN_FILE = "plan.json";
 export function handinContext(store) {
   const { work, prints } = store;
   /** @type {HandinContext} */
-  const ctx = { plan_name: PLAN_FILE };
+  const ctx = { plan_name: planFileName(store) };
   if (work.site) ctx.site = work.site;
   const footage = prints.footage || work.madeWith.footage;
   const detections = prints.detections || work.madeWith.detections;
@@ -114,7 +123,7 @@ export class HandinPanel {
     const s = this.sheets;
     this.root.hidden = !s;
     if (!s) return;
-    byId("handin-names", HTMLElement).textContent = `Files are named from the site and the recording's date: ${s.stem}_grid.csv (or _grid-long.csv), ${s.stem}_movements.csv and ${s.stem}_summary.html. They name the plan as ${PLAN_FILE}, the file Save plan writes: keep it with them.`;
+    byId("handin-names", HTMLElement).textContent = `Files are named from the site and the recording's date: ${s.stem}_grid.csv (or _grid-long.csv), ${s.stem}_movements.csv and ${s.stem}_summary.html. ${planNaming(this.store)}`;
     const missing = [];
     if (!this.store.work.site) missing.push("name the site (Set up, Files, Site name)");
     if (!this.store.plan.start) missing.push("give the recording's start time (Set up, Plan, Start time) for clock times and the date");
@@ -138,4 +147,15 @@ export class HandinPanel {
       status.textContent = `Could not copy (${/** @type {Error} */ (e).message}): download the CSV instead.`;
     }
   }
+}
+
+/**
+ * How the hand-in files name the plan, said beside them.
+ * @param {PageStore} store
+ */
+function planNaming(store) {
+  const opened = store.plans.openedAs();
+  return opened
+    ? `They name the plan as ${opened}, the file you opened: keep it with them.`
+    : `They name the plan as ${PLAN_FILE}, the file Save plan writes (the plan was drawn or changed here): keep it with them.`;
 }

@@ -197,6 +197,13 @@ export class PlanHistory {
     this.source = "demo";
     /** @type {Settings} */
     this.settings = { method: "" };
+    /** @type {{name: string, json: string} | null} the plan file opened last, and its plan as read */
+    this.file = null;
+  }
+
+  /** The name of the plan file opened, while the plan is still the one it holds; else null. */
+  openedAs() {
+    return this.file && JSON.stringify(this.plan) === this.file.json ? this.file.name : null;
   }
 
   /**
@@ -210,6 +217,7 @@ export class PlanHistory {
         this.plan = parsePlanText(JSON.stringify(saved.plan), "saved plan");
         this.source = saved.source || "saved";
         this.settings = { ...this.settings, ...(saved.settings || {}) };
+        if (saved.file && typeof saved.file.name === "string" && typeof saved.file.json === "string") this.file = saved.file;
         return saved;
       }
     } catch (e) {
@@ -220,7 +228,7 @@ export class PlanHistory {
 
   save() {
     try {
-      this.storage.setItem(STORAGE_KEY, JSON.stringify({ plan: this.plan, source: this.source, settings: this.settings }));
+      this.storage.setItem(STORAGE_KEY, JSON.stringify({ plan: this.plan, source: this.source, settings: this.settings, file: this.file }));
     } catch (e) {
       // Storage full or disabled: the plan still works in this tab; "Save plan" keeps it as a file.
     }
@@ -245,14 +253,16 @@ export class PlanHistory {
    * Replaces the whole plan (a file, the demo); undo brings the old one back.
    * @param {Plan} plan
    * @param {"file" | "demo"} why
+   * @param {string} [name] a plan file's name
    */
-  replace(plan, why) {
+  replace(plan, why, name) {
     this.change((p) => {
       const fields = /** @type {Record<string, unknown>} */ (/** @type {unknown} */ (p));
       for (const k of Object.keys(fields)) delete fields[k];
       Object.assign(p, structuredClone(plan));
     }, why);
     this.source = why;
+    this.file = why === "file" && name ? { name, json: JSON.stringify(this.plan) } : null;
     this.save();
   }
 

@@ -352,7 +352,7 @@ export class PageStore {
    * @param {string} name how the Files panel names it
    */
   planReplaced(plan, why, name) {
-    this.plans.replace(plan, why);
+    this.plans.replace(plan, why, name);
     this.planName = name;
     this.emit(["plan", "planName"], why);
   }
