@@ -8,7 +8,7 @@
 import { test } from "node:test";
 import assert from "node:assert/strict";
 import { useBrowser, screenshot } from "./harness.mjs";
-import { reviewDemo, openTab, goToFrame, countedWith, pageReport, replay, uncorrected, screenTotals, reportTotals } from "./review-helpers.mjs";
+import { reviewDemo, openTab, goToFrame, countedWith, pageReport, replay, uncorrected, screenTotals, reportTotals, chooseTrack } from "./review-helpers.mjs";
 
 const env = useBrowser();
 
@@ -60,6 +60,24 @@ test("reject a crossing and add a missed one; the counts follow, as throughline 
   const list = await page.locator("#events").innerText();
   assert.match(list, /plaza midline: towards bridge\s+pedestrian · added by hand · frame 455[^\n]*why: missed in the crowd/);
   assert.match(list, /Rejected by you: not counted[\s\S]*east-west divide: westbound[\s\S]*rejected · why: a shadow, not a cyclist/);
+  assert.deepEqual(seen.errors, []);
+  await page.close();
+});
+
+test("a crossing added with a track chosen is offered as that track's class and way across the line", async () => {
+  const { page, seen } = await reviewDemo(env);
+  // Track 8 is a cyclist that crosses the plaza midline towards the bridge (backward) at frame 42
+  // (the command line's report of the demo; a newcomer's trial: the form offered a pedestrian going forward).
+  const crossing = uncorrected().events.find((e) => e.track === 8 && e.name === "plaza midline");
+  assert.deepEqual([crossing.direction, crossing.class, crossing.frame], ["backward", "cyclist", 42]);
+  await chooseTrack(page, 8);
+  await goToFrame(page, 42);
+  await openTab(page, "Events");
+  await page.getByText("Add a crossing the tool missed").click();
+  assert.equal(await page.getByLabel("Line", { exact: true }).inputValue(), "plaza midline");
+  assert.equal(await page.getByLabel("Its class").inputValue(), "cyclist");
+  assert.equal(await page.getByLabel("Direction", { exact: true }).inputValue(), "backward");
+  assert.match(await page.locator("#add-at").innerText(), /where track 8 meets the line/);
   assert.deepEqual(seen.errors, []);
   await page.close();
 });

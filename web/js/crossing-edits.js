@@ -3,11 +3,13 @@
 // jitter), and a crossing the tool missed added by hand, on a line of the plan, in one of its
 // directions (named by its labels), for a class, at the frame shown. An added crossing sits where
 // the track in focus meets the line, when a track is in focus there; otherwise the core puts it in
-// the middle of the line's first segment.
+// the middle of the line's first segment. Choosing a track offers its class and the way it moves
+// across the line.
 
 import { byId, clockText, el } from "./dom.js";
 import { withReason } from "./edits.js";
 import { countPoint } from "./tracks.js";
+import { forwardSide } from "./geometry.js";
 
 /** @typedef {import("./store.js").PageStore} PageStore */
 /** @typedef {import("./results.js").CountEvent} CountEvent */
@@ -40,7 +42,28 @@ export class AddCrossingForm {
     this.form.addEventListener("submit", (e) => { e.preventDefault(); this.add(); });
     store.subscribe(["plan"], () => this.offerLines());
     store.subscribe(["frame", "focus", "tracks"], () => this.showWhere());
+    store.subscribe(["focus"], () => this.followFocus());
     this.offerLines();
+  }
+
+  /**
+   * A track chosen: the form offers its class, and the direction it moves across the chosen line
+   * around the frame shown (a newcomer's trial: a cyclist going backward was offered as a
+   * pedestrian going forward).
+   */
+  followFocus() {
+    const { focus, tracks, plan, frame } = this.store;
+    const id = focus && focus.tracks.length ? focus.tracks[0] : null;
+    if (id === null || !tracks) return;
+    const cls = tracks.classes.get(id);
+    if (cls) this.cls.value = cls;
+    const line = plan.screenlines.find((l) => l.name === this.line.value);
+    const side = line ? forwardSide(line.points) : null;
+    const path = tracks.paths(frame - 12, frame + 12, plan.anchor, new Set([id])).get(id);
+    if (!side || !path || path.pts.length < 2) return;
+    const [a, b] = [path.pts[0], path.pts[path.pts.length - 1]];
+    const across = (b[0] - a[0]) * side.normal[0] + (b[1] - a[1]) * side.normal[1];
+    if (across !== 0) this.direction.value = across > 0 ? "forward" : "backward";
   }
 
   /** The plan's lines; the one chosen stays chosen while it is there. */

@@ -129,6 +129,7 @@ impl Project {
                 ),
             ));
         }
+        edits::check(&p.edits)?;
         Ok(p)
     }
 

@@ -315,10 +315,78 @@ fn edits_that_no_longer_fit_say_why() {
     assert!(notes[1].contains("no track 9"), "{}", notes[1]);
     assert!(notes[2].contains("no crossing"), "{}", notes[2]);
     assert!(
-        notes[3].contains("no screenline named `bridge`"),
+        notes[3].contains("no screenline named `bridge` (it has `deck`)"),
         "{}",
         notes[3]
     );
+}
+
+/// Mistakes a newcomer's trial found passing in silence or blamed on changed tracks: a rejection of
+/// a line the plan lacks says so; an added crossing far from its line is not applied; an edits
+/// file of another version, and a blank class, are refused naming the field.
+#[test]
+fn edits_naming_what_is_not_there_say_so() {
+    let edits = [
+        Edit::RejectCrossing {
+            screenline: "no such line".into(),
+            direction: Way::Forward,
+            track: 1,
+            frame: 5,
+            reason: None,
+        },
+        Edit::AddCrossing {
+            screenline: "deck".into(),
+            direction: Way::Forward,
+            class: "pedestrian".into(),
+            frame: 12,
+            x: Some(5000.0),
+            y: Some(-30.0),
+            reason: None,
+        },
+        Edit::AddCrossing {
+            screenline: "deck".into(),
+            direction: Way::Forward,
+            class: "pedestrian".into(),
+            frame: 12,
+            x: Some(395.0),
+            y: Some(210.0),
+            reason: None,
+        },
+    ];
+    let report = count(broken_walker(), &edits);
+    let notes: Vec<&str> = report.edits.iter().map(|e| e.note.as_str()).collect();
+    assert!(
+        notes[0].contains("the plan has no screenline named `no such line` (it has `deck`)"),
+        "{}",
+        notes[0]
+    );
+    assert!(!report.edits[1].applied);
+    assert!(
+        notes[1].contains("x, y (5000, -30) lie 4606 pixels from `deck`"),
+        "{}",
+        notes[1]
+    );
+    assert!(report.edits[2].applied, "near its line: {}", notes[2]);
+    let file = |version: u32, class: &str| {
+        format!(
+            r#"{{"format": "throughline-edits", "version": {version}, "edits": [
+            {{"edit": "set_class", "track": {{"id": 3, "frames": [1, 9]}}, "class": "{class}"}}]}}"#
+        )
+    };
+    assert!(edits_from_json(&file(1, "cyclist")).is_ok());
+    let e = edits_from_json(&file(2, "cyclist"))
+        .unwrap_err()
+        .to_string();
+    assert!(e.contains("edits file version 2 is not known"), "{e}");
+    let e = edits_from_json(&file(1, " ")).unwrap_err().to_string();
+    assert!(
+        e.contains("edits[0].class") && e.contains("the class is empty"),
+        "{e}"
+    );
+    let project = r#"{"format": "throughline-project", "version": 1, "plan": {"frame_rate": 25},
+        "edits": [{"edit": "add_crossing", "screenline": "deck", "direction": "forward", "class": "", "frame": 3}]}"#;
+    let e = edits_from_json(project).unwrap_err().to_string();
+    assert!(e.contains("edits[0].class"), "{e}");
 }
 
 #[test]

@@ -25,7 +25,7 @@ pub(super) fn correct(
         .iter()
         .map(|edit| {
             let result = match edit {
-                Edit::RejectCrossing { .. } => reject(events, edit, &mut rejected),
+                Edit::RejectCrossing { .. } => reject(events, edit, plan, &mut rejected),
                 Edit::AddCrossing { .. } => add(events, edit, plan, timeline),
                 _ => return None,
             };
@@ -49,6 +49,7 @@ fn direction(way: Way) -> Direction {
 fn reject(
     events: &mut Vec<Event>,
     edit: &Edit,
+    plan: &Plan,
     rejected: &mut Vec<Event>,
 ) -> Result<String, String> {
     let Edit::RejectCrossing {
@@ -61,6 +62,9 @@ fn reject(
     else {
         return Err(String::new());
     };
+    if !plan.screenlines.iter().any(|l| l.name == *screenline) {
+        return Err(no_such_line(screenline, plan));
+    }
     let i = events
         .iter()
         .position(|e| {
@@ -107,7 +111,19 @@ fn add(
         .screenlines
         .iter()
         .find(|l| l.name == *screenline)
-        .ok_or_else(|| format!("the plan has no screenline named `{screenline}` now"))?;
+        .ok_or_else(|| no_such_line(screenline, plan))?;
+    if let (Some(px), Some(py)) = (x, y) {
+        // An added crossing lies on its line; a place far from it (off the picture, another
+        // line's) would put the event, and its picture on the evidence sheet, elsewhere.
+        let off = super::paths::distance_to_line(line, &crate::geometry::Point::new(*px, *py));
+        let length: f64 = line.segments.iter().map(|s| s.length()).sum();
+        if off > (0.25 * length).max(20.0) {
+            return Err(format!(
+                "x, y ({px}, {py}) lie {off:.0} pixels from `{screenline}`: an added crossing is \
+                 on its line (leave x and y out to place it at the line's middle)"
+            ));
+        }
+    }
     if *frame == 0 || *frame > timeline.frame_count {
         return Err(format!(
             "frame {frame} is not in the footage (frames 1 to {})",
@@ -139,6 +155,24 @@ fn add(
     Ok(format!(
         "a {class} crossing of `{screenline}` added at frame {frame}"
     ))
+}
+
+/// Why an edit naming a line the plan lacks is not applied, with the lines it has.
+fn no_such_line(name: &str, plan: &Plan) -> String {
+    let names: Vec<String> = plan
+        .screenlines
+        .iter()
+        .map(|l| format!("`{}`", l.name))
+        .collect();
+    format!(
+        "the plan has no screenline named `{name}` (it has {}): was the line renamed, or the \
+         edit made with another plan?",
+        if names.is_empty() {
+            "none".to_string()
+        } else {
+            names.join(", ")
+        }
+    )
 }
 
 /// The middle of a line's first segment: where an added crossing is drawn when no place is given.

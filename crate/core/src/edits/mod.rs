@@ -157,6 +157,33 @@ impl EditList {
                 format!("`format` is `{}`, expected `{FORMAT}`", list.format),
             ));
         }
+        if list.version != VERSION {
+            return Err(Error::new(
+                ErrorKind::BadJson,
+                format!(
+                    "edits file version {} is not known to this program (it reads version {VERSION})",
+                    list.version
+                ),
+            ));
+        }
+        check(&list.edits)?;
         Ok(list)
     }
+}
+
+/// What serde cannot say of a list of edits: a class named must not be blank.
+pub(crate) fn check(edits: &[Edit]) -> Result<(), Error> {
+    for (i, e) in edits.iter().enumerate() {
+        if let Edit::SetClass { class, .. } | Edit::AddCrossing { class, .. } = e {
+            if class.trim().is_empty() {
+                return Err(Error::new(
+                    ErrorKind::BadJson,
+                    "the class is empty: name it as the report names classes (pedestrian, \
+                     cyclist, …)",
+                )
+                .in_field(&format!("edits[{i}].class")));
+            }
+        }
+    }
+    Ok(())
 }
