@@ -181,7 +181,7 @@ pub(crate) fn check(edits: &[Edit]) -> Result<(), Error> {
                     "the class is empty: name it as the report names classes (pedestrian, \
                      cyclist, …)",
                 )
-                .in_field(&format!("edits[{i}].class")));
+                .in_field(format!("edits[{i}].class")));
             }
         }
     }
