@@ -537,7 +537,13 @@ fn plan_errors_name_the_field() {
         ),
         (
             r#"{"frame_rate": 25, "zones": [{"name": "z", "polygon": [[0,0],[1,1],[2,2]]}]}"#,
-            "no area",
+            "all on one line",
+        ),
+        // A bow tie: its halves cancel to no area, but its corners are not on one line (a
+        // newcomer's trial: it was asked whether they were).
+        (
+            r#"{"frame_rate": 25, "zones": [{"name": "z", "polygon": [[0,0],[10,10],[10,0],[0,10]]}]}"#,
+            "the edge from corner 0 to 1 crosses the edge from corner 2 to 3",
         ),
         (
             r#"{"frame_rate": 25, "screenlines": [{"name": "a", "points": [[1,2],[3,4]]}], "zones": [{"name": "a", "polygon": [[0,0],[9,0],[0,9]]}]}"#,

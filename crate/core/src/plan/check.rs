@@ -203,12 +203,20 @@ fn zone(i: usize, z: &ZoneSpec, names: &mut HashSet<String>) -> Result<Zone, Err
     }
     check_points(&z.polygon, &format!("{field}.polygon"))?;
     let polygon = Polygon::new(z.polygon.iter().copied().map(point).collect());
-    if polygon.area() == 0.0 {
+    let [x0, y0] = z.polygon[0];
+    // Every corner on the line through the first corner and the first other one (or all one point).
+    let on_one_line = z.polygon.iter().find(|&&p| p != [x0, y0]).is_none_or(|&[x1, y1]| {
+        z.polygon
+            .iter()
+            .all(|&[x, y]| (x1 - x0) * (y - y0) == (x - x0) * (y1 - y0))
+    });
+    if on_one_line {
         return Err(err(
             format!("{field}.polygon"),
-            "the corners enclose no area (all on one line?)",
+            "the corners are all on one line, so they enclose no area",
         ));
     }
+    // Edges that cross first: a bow tie's two halves can cancel to no area.
     if let Some((a, b)) = polygon.crossing_edges() {
         let n = z.polygon.len();
         return Err(err(
@@ -219,6 +227,12 @@ fn zone(i: usize, z: &ZoneSpec, names: &mut HashSet<String>) -> Result<Zone, Err
                 (a + 1) % n,
                 (b + 1) % n
             ),
+        ));
+    }
+    if polygon.area() == 0.0 {
+        return Err(err(
+            format!("{field}.polygon"),
+            "the corners enclose no area",
         ));
     }
     Ok(Zone {
