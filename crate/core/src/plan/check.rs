@@ -205,11 +205,15 @@ fn zone(i: usize, z: &ZoneSpec, names: &mut HashSet<String>) -> Result<Zone, Err
     let polygon = Polygon::new(z.polygon.iter().copied().map(point).collect());
     let [x0, y0] = z.polygon[0];
     // Every corner on the line through the first corner and the first other one (or all one point).
-    let on_one_line = z.polygon.iter().find(|&&p| p != [x0, y0]).is_none_or(|&[x1, y1]| {
-        z.polygon
-            .iter()
-            .all(|&[x, y]| (x1 - x0) * (y - y0) == (x - x0) * (y1 - y0))
-    });
+    let on_one_line = z
+        .polygon
+        .iter()
+        .find(|&&p| p != [x0, y0])
+        .is_none_or(|&[x1, y1]| {
+            z.polygon
+                .iter()
+                .all(|&[x, y]| (x1 - x0) * (y - y0) == (x - x0) * (y1 - y0))
+        });
     if on_one_line {
         return Err(err(
             format!("{field}.polygon"),
