@@ -34,6 +34,8 @@ test("merge: track 27 joins track 21; the counts follow, as throughline run --ed
   await box.getByLabel("Reason (optional)").fill("one cyclist, lost in the crowd");
   await box.getByRole("button", { name: "Merge", exact: true }).click();
   await countedWith(page, 1);
+  // What Run made, and what the corrections leave (a newcomer's trial: it still said 28 alone).
+  await page.waitForFunction(() => /^28 tracks in [\d.]+ s; 27 after your corrections\.$/.test(document.getElementById("run-status").textContent));
   await screenshot(page, "15-merged", { fullPage: false });
 
   const want = replay([{ edit: "merge_tracks", track: { id: 27, frames: [627, 689] }, into: { id: 21, frames: [382, 624] }, reason: "one cyclist, lost in the crowd" }]);

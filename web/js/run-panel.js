@@ -35,6 +35,8 @@ export class RunPanel {
     this.messages = messages;
     this.planSync = planSync;
     this.editSync = editSync;
+    /** @type {{said: string, tracks: number} | null} what the last Run made, said under it */
+    this.made = null;
     this.method = byId("method", HTMLSelectElement);
     this.run = byId("run", HTMLButtonElement);
     this.cancel = byId("cancel-run", HTMLButtonElement);
@@ -60,7 +62,11 @@ export class RunPanel {
       this.listMethods();
       this.bridgeFrames.value = store.settings.bridgeFrames ?? "";
     });
-    store.subscribe(["detections"], () => { this.status.textContent = "Ready: press Run to track and count."; });
+    store.subscribe(["detections"], () => {
+      this.made = null;
+      this.status.textContent = "Ready: press Run to track and count.";
+    });
+    store.subscribe(["tracks"], () => this.sayMade());
   }
 
   /** Fills the method list from the core's registry and selects the kept choice. */
@@ -134,7 +140,8 @@ export class RunPanel {
       const seconds = ((performance.now() - started) / 1000).toFixed(1);
       const n = out.bridged && "joined" in out.bridged ? out.bridged.joined : null;
       const joined = n === null ? "" : `, ${n} ${n === 1 ? "gap" : "gaps"} bridged with the footage`;
-      this.status.textContent = `${out.tracks} tracks in ${seconds} s${joined}.`;
+      this.made = { said: `${out.tracks} tracks in ${seconds} s${joined}`, tracks: out.tracks };
+      this.status.textContent = `${this.made.said}.`;
       if (run.bridging && !run.footage) this.messages.say("run", "warn", `${this.whyNoFootage()} These counts are from the detections alone.`);
       if (!hasCountingGeometry(this.store.plan)) {
         this.messages.say("run", "warn", "The plan has no lines or zones, so nothing was counted. Press Draw line and click two points across the path, or open a plan file; the counts appear at once.");
@@ -180,6 +187,15 @@ export class RunPanel {
     const pictured = video.playable && video.width > 0 && video.height > 0;
     const withFootage = footage && pictured && n > 0 ? { file: footage.blob, width: video.width, height: video.height } : null;
     return { method, settings, footage: withFootage, bridging: n > 0 };
+  }
+
+  /** What the last Run made, and how many tracks the person's corrections leave (a merge joins two). */
+  sayMade() {
+    const made = this.made;
+    const now = this.store.tracks ? this.store.tracks.list.length : null;
+    if (!made || this.store.tracking) return;
+    const after = now !== null && now !== made.tracks ? `; ${now} after your corrections` : "";
+    this.status.textContent = `${made.said}${after}.`;
   }
 
   /** Why a run that asked for bridging had no footage to bridge with, and what to do. */
