@@ -123,7 +123,8 @@ test("the files name the plan file opened while the plan is still what it holds;
   await page.getByLabel("Path averaging (seconds)").fill("0.5");
   await page.getByLabel("Path averaging (seconds)").press("Tab");
   await handIn(page);
-  await page.waitForFunction(() => /name the plan as plan\.json, the file Save plan writes/.test(document.getElementById("handin-names").textContent));
+  await page.waitForFunction(() => /name the plan as plan\.json, the file Save plan writes/.test(document.getElementById("handin-names").textContent)
+    && /Plan\s*plan\.json/.test(document.getElementById("grid-view").textContent));
   assert.equal(csvCells(await downloadText(page, "Download grid CSV", scratch))[2][1], "plan.json");
   assert.deepEqual(seen.errors, []);
   await page.close();

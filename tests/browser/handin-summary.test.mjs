@@ -60,6 +60,12 @@ test("the client summary prints with the still and the numbers, and equals the c
     assert.deepEqual([row[1], row[2], row[3]], [`${l.forward} ${l.forward_label}`, `${l.backward} ${l.backward_label}`, String(l.forward + l.backward)]);
   }
   assert.match(await summary.innerText(), /Counted by hand by Ana/);
+  // It names the project file as what reproduces the counts, and none is saved yet: the page says
+  // so beside the summary, in the hand-in and beside Save project (a newcomer's trial).
+  const projectFile = "Footbridge-plaza-project.json";
+  assert.match(await page.locator("#summary-status").innerText(), new RegExp(`It names ${projectFile} as what reproduces the counts: save the project`));
+  assert.match(await page.locator("#handin-missing").innerText(), /save the project \(Set up, Files, Save project\)/);
+  assert.equal(await page.locator("#project-saved").textContent(), "not saved yet");
 
   // The still is that frame of the footage.
   const dir = mkdtempSync(join(tmpdir(), "tl-summary-"));
@@ -94,6 +100,15 @@ test("the client summary prints with the still and the numbers, and equals the c
   await download.saveAs(projectPath);
   const cli = cliHandin(["--edits", projectPath, "--still", stillPath]);
   assert.equal(html, cli[`${STEM}_summary.html`], "the summary = throughline run --site --start --still --edits project.json");
+  assert.equal(download.suggestedFilename(), projectFile);
+  await page.waitForFunction(() => document.getElementById("project-saved").textContent === "saved");
+  assert.doesNotMatch(await page.locator("#handin-missing").textContent(), /save the project/);
+  // A decision made after saving: the file no longer holds the work as it is.
+  await showView(page, "Review");
+  await page.locator("#clock").click();
+  await page.keyboard.press("n");
+  await page.keyboard.press("a");
+  await page.waitForFunction(() => document.getElementById("project-saved").textContent === "changed since saved");
 
   await showView(page, "Results");
   await page.setViewportSize(PHONE);

@@ -7,6 +7,7 @@
 
 import { byId, download } from "./dom.js";
 import { handinContext } from "./handin-panel.js";
+import { projectFileName, projectUnsaved } from "./project-panel.js";
 
 /** @typedef {import("./store.js").PageStore} PageStore */
 /** @typedef {import("./core-client.js").CoreClient} CoreClient */
@@ -104,6 +105,7 @@ export class ClientSummary {
     this.printButton.disabled = false;
     this.downloadButton.disabled = false;
     const from = still ? `with the still of frame ${this.store.frame}` : "without a still (no footage open)";
-    this.status.textContent = `Summary made ${from}. Print it, or save it as PDF from the print dialogue; Download gives the page as one file.`;
+    const save = projectUnsaved(this.store) ? ` It names ${projectFileName(this.store.work.site)} as what reproduces the counts: save the project (Set up, Files) so that file holds the work as it is now.` : "";
+    this.status.textContent = `Summary made ${from}. Print it, or save it as PDF from the print dialogue; Download gives the page as one file.${save}`;
   }
 }

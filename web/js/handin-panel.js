@@ -7,7 +7,7 @@
 
 import { byId, download } from "./dom.js";
 import { gridView, matrixView, shape } from "./sheets.js";
-import { projectFileName } from "./project-panel.js";
+import { projectFileName, projectUnsaved } from "./project-panel.js";
 
 /** @typedef {import("./store.js").PageStore} PageStore */
 /** @typedef {import("./core-client.js").CoreClient} CoreClient */
@@ -83,6 +83,7 @@ export class HandinPanel {
     /** Numbers the requests, so that only the latest answer is shown. */
     this.asked = 0;
     store.subscribe(["results", "site", "prints", "checks", "edits"], () => this.refresh());
+    store.subscribe(["saved", "marks", "plan", "method"], () => this.show());
     this.layout.addEventListener("change", () => this.show());
     byId("copy-grid", HTMLButtonElement).addEventListener("click", () => this.copy(this.grid().tab, byId("grid-copied", HTMLElement)));
     byId("copy-matrix", HTMLButtonElement).addEventListener("click", () => this.copy(this.sheets ? this.sheets.matrix.tab : "", byId("matrix-copied", HTMLElement)));
@@ -127,6 +128,7 @@ export class HandinPanel {
     const missing = [];
     if (!this.store.work.site) missing.push("name the site (Set up, Files, Site name)");
     if (!this.store.plan.start) missing.push("give the recording's start time (Set up, Plan, Start time) for clock times and the date");
+    if (projectUnsaved(this.store)) missing.push(`save the project (Set up, Files, Save project): the files name ${projectFileName(this.store.work.site)} as what reproduces these counts, and the work has changed since it was saved`);
     byId("handin-missing", HTMLElement).textContent = missing.length ? `To head the tables properly, ${missing.join(", and ")}.` : "";
     byId("grid-view", HTMLElement).replaceChildren(...gridView(this.grid().tab));
     byId("matrix-view", HTMLElement).replaceChildren(...matrixView(s.matrix.tab));

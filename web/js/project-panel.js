@@ -41,6 +41,9 @@ export class ProjectPanel {
       const { edits, marks, extras, site } = store.work;
       if (edits.length || marks.size || extras.tallies || extras.correction || site) messages.clear("work-cleared");
     });
+    this.saved = byId("project-saved", HTMLElement);
+    store.subscribe(["edits", "marks", "checks", "site", "plan", "method", "saved"], () => this.saySaved());
+    this.saySaved();
     store.subscribe(["video"], () => this.fingerprintFootage());
     store.subscribe(["detections"], () => this.fingerprintDetections());
     store.subscribe(["prints"], () => this.check());
@@ -59,19 +62,18 @@ export class ProjectPanel {
     this.messages.say("work-cleared", "ok", "Work cleared: no corrections, decisions or hand counts. Undo (here, or under Review) brings all of it back, the site's name too.", [undo]);
   }
 
+  /** Beside Save project: whether the work has changed since the project was saved (or opened). */
+  saySaved() {
+    const { work } = this.store;
+    const unsaved = projectUnsaved(this.store);
+    this.saved.textContent = unsaved ? (work.savedAs ? "changed since saved" : "not saved yet") : work.savedAs ? "saved" : "";
+    this.saved.classList.toggle("unsaved", unsaved);
+  }
+
   /** The project as a plain object, as the core writes it. */
   project() {
-    const { plan, settings, work, prints } = this.store;
-    /** @type {Record<string, unknown>} */
-    const p = {
-      plan: JSON.parse(planForCore(plan).json),
-      tracking: trackingOf(settings),
-      edits: work.edits,
-      review: [...work.marks].map(([key, decision]) => ({ key, decision })),
-    };
-    if (work.site) p.site = work.site;
-    if (work.extras.tallies) p.tallies = work.extras.tallies;
-    if (work.extras.correction) p.correction = work.extras.correction;
+    const { work, prints } = this.store;
+    const p = projectWork(this.store);
     const footage = prints.footage || work.madeWith.footage;
     const detections = prints.detections || work.madeWith.detections;
     if (footage) p.footage = footage;
@@ -84,6 +86,7 @@ export class ProjectPanel {
       const text = await this.client.writeProject(this.project());
       download(projectFileName(this.store.work.site), text, "application/json");
       this.messages.clear("project");
+      this.store.projectSaved(projectState(this.store));
     } catch (e) {
       this.messages.say("project", "error", `The project could not be saved: ${/** @type {Error} */ (e).message}. Fix the plan (under Set up), then save again.`);
     }
@@ -105,6 +108,7 @@ export class ProjectPanel {
     }
     this.messages.clear("project");
     this.store.projectOpened(project, name);
+    this.store.projectSaved(projectState(this.store));
     this.projectName.textContent = name;
     const n = project.edits.length;
     this.messages.say("project", "ok", `${name} opened: its plan, ${n} correction${n === 1 ? "" : "s"} and ${project.review.length} review decision${project.review.length === 1 ? "" : "s"}.${this.store.tracks ? "" : " Press Run to track; the corrections are applied to the tracks."}`);
@@ -181,6 +185,45 @@ export class ProjectPanel {
     if (!why.length) return this.messages.clear("project-files");
     this.messages.say("project-files", "warn", `This work was made with other files. ${why.join(" ")} Its corrections name tracks of those files, so they may not apply here: open the footage and detections it was made with, or check each correction under Review, Edits.`);
   }
+}
+
+/**
+ * What a project file holds of the work (its files' fingerprints aside).
+ * @param {PageStore} store
+ * @returns {Record<string, unknown>}
+ */
+function projectWork(store) {
+  const { plan, settings, work } = store;
+  /** @type {Record<string, unknown>} */
+  const p = {
+    plan: JSON.parse(planForCore(plan).json),
+    tracking: trackingOf(settings),
+    edits: work.edits,
+    review: [...work.marks].map(([key, decision]) => ({ key, decision })),
+  };
+  if (work.site) p.site = work.site;
+  if (work.extras.tallies) p.tallies = work.extras.tallies;
+  if (work.extras.correction) p.correction = work.extras.correction;
+  return p;
+}
+
+/**
+ * The work as a project file holds it, as text to compare.
+ * @param {PageStore} store
+ */
+export function projectState(store) {
+  return JSON.stringify(projectWork(store));
+}
+
+/**
+ * Whether the counts need a project file to be reproduced (corrections, hand counts or a factor)
+ * and the work has changed since one was last saved or opened here.
+ * @param {PageStore} store
+ */
+export function projectUnsaved(store) {
+  const { work } = store;
+  const needed = work.edits.length > 0 || Boolean(work.extras.tallies || work.extras.correction);
+  return needed && projectState(store) !== work.savedAs;
 }
 
 /**

@@ -24,7 +24,7 @@ import { HandCount } from "./hand-count.js";
  * What an action changed. "geometry": plan points moved in place while dragging (drawing only).
  * @typedef {"plan" | "geometry" | "selection" | "frame" | "footage" | "video" | "picture" | "detections"
  *   | "tracks" | "results" | "busy" | "planProblem" | "planName" | "frameRate" | "tool" | "draft" | "view"
- *   | "reviewTab" | "focus" | "edits" | "marks" | "site" | "prints" | "method" | "tally" | "tallyPress" | "checks"} Topic
+ *   | "reviewTab" | "focus" | "edits" | "marks" | "site" | "prints" | "method" | "tally" | "tallyPress" | "checks" | "saved"} Topic
  */
 /** @typedef {{changed: Set<Topic>, why: string}} Change `why`: for "plan", a PlanChange */
 /** @typedef {(change: Change) => void} Listener */
@@ -520,6 +520,13 @@ export class PageStore {
     this.handCount.tallyDropped();
     this.work.replace({ edits: [], marks: [], site: "", madeWith: { footage: null, detections: null }, extras: {} });
     this.emit(["edits", "marks", "site", "checks", "prints"]);
+  }
+
+  /** @param {string} state the work as the project file just saved or opened holds it (`projectState`) */
+  projectSaved(state) {
+    this.work.savedAs = state;
+    this.work.save();
+    this.emit(["saved"]);
   }
 
   /** @param {string} name the site's name, for the project file and printed sheets */

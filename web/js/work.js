@@ -33,6 +33,8 @@ export class ReviewWork {
     this.madeWith = { footage: null, detections: null };
     /** @type {Extras} */
     this.extras = {};
+    /** What a project file holds of the work as last saved or opened here (`projectState`), or "" */
+    this.savedAs = "";
     /** @type {string[]} earlier states, as JSON, the last one most recent */
     this.undoStack = [];
     /** @type {string[]} states undone, the last one undone most recently */
@@ -49,6 +51,7 @@ export class ReviewWork {
       this.site = typeof saved.site === "string" ? saved.site : "";
       this.madeWith = { footage: null, detections: null, ...(saved.madeWith || {}) };
       this.extras = saved.extras || {};
+      this.savedAs = typeof saved.savedAs === "string" ? saved.savedAs : "";
       return this.edits.length > 0 || this.marks.size > 0 || Boolean(this.extras.tallies || this.extras.correction);
     } catch (e) {
       // Storage unreadable (private mode, a hand edit): start afresh rather than fail.
@@ -57,9 +60,9 @@ export class ReviewWork {
   }
 
   save() {
-    const { edits, site, madeWith, extras } = this;
+    const { edits, site, madeWith, extras, savedAs } = this;
     try {
-      this.storage.setItem(STORAGE_KEY, JSON.stringify({ edits, marks: [...this.marks], site, madeWith, extras }));
+      this.storage.setItem(STORAGE_KEY, JSON.stringify({ edits, marks: [...this.marks], site, madeWith, extras, savedAs }));
     } catch (e) {
       // Storage full or disabled: the work still counts in this tab; Save project keeps it as a file.
     }
