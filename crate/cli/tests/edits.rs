@@ -456,6 +456,39 @@ fn review_lists_the_first_moments_and_says_how_many_are_left() {
     ]);
     let two: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
     assert_eq!(two.as_array().unwrap()[..], all.as_array().unwrap()[..2]);
+    assert!(
+        !text.contains("not a list to finish"),
+        "a short queue: {text}"
+    );
+    // A crowd's long queue says how far down to go (a newcomer's trial: 409 moments for 376
+    // crossings and no word on it). The crowd is our simulator's, 30 s of 80 in view.
+    let dir = scratch("long-queue");
+    let crowd = dir.join("crowd").display().to_string();
+    let o = throughline(&[
+        "simulate",
+        "--seed",
+        "5",
+        "--frames",
+        "750",
+        "--density",
+        "80",
+        "--width",
+        "1280",
+        "--height",
+        "720",
+        "--out-dir",
+        &crowd,
+        "--plan",
+        &plan,
+    ]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let dets = format!("{crowd}/detections.txt");
+    let o = throughline(&["review", &dets, "--plan", &plan, "--first", "1", "-q"]);
+    let text = String::from_utf8_lossy(&o.stdout);
+    assert!(
+        text.contains("A long queue is not a list to finish: mistakes gather at its top"),
+        "{text}"
+    );
 }
 
 /// A project made with footage records its duration: replayed with detections or tracks that end

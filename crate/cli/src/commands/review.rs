@@ -114,6 +114,16 @@ pub fn run(args: Args) -> Result<(), Failure> {
         listed.len(),
         queue.len()
     );
+    if queue.len() > 100 {
+        // A long queue is not a list to finish (a newcomer's trial: 409 moments for 376
+        // crossings); how far down to go, from the queue's benchmark.
+        println!(
+            "A long queue is not a list to finish: mistakes gather at its top (in the benchmark's \
+             crowd the first 100 of 2,676 moments pointed at half the wrong or missed crossings; \
+             BENCHMARKS.md, the review queue). Go down it as far as time allows, then let a hand \
+             count of a sample say how far the counts can be trusted."
+        );
+    }
     Ok(())
 }
 
