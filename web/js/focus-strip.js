@@ -41,11 +41,17 @@ export class FocusStrip {
     this.form.addEventListener("submit", (e) => { e.preventDefault(); this.submit(); });
     byId("reject-cancel", HTMLButtonElement).addEventListener("click", () => this.closeForm());
     this.form.addEventListener("keydown", (e) => { if (e.key === "Escape") { e.stopPropagation(); this.closeForm(); } });
-    store.subscribe(["focus", "results", "marks"], () => this.show());
+    /** @type {{focus: import("./store.js").Focus | null, edits: number} | null} what the note was said about */
+    this.noteFor = null;
+    store.subscribe(["focus", "results", "marks", "edits"], () => this.show());
   }
 
   show() {
     const focus = this.store.focus;
+    // A note is about the moment and the corrections it was said with: another moment, or another
+    // correction since (an added crossing after a rejection), and it goes.
+    const n = this.noteFor;
+    if (n && (n.focus !== focus || n.edits !== this.store.work.edits.length)) this.say("");
     this.root.hidden = !focus;
     if (!focus) {
       this.closeForm();
@@ -153,5 +159,6 @@ export class FocusStrip {
   /** @param {string} text a note under the buttons ("" to clear) */
   say(text) {
     this.note.textContent = text;
+    this.noteFor = text ? { focus: this.store.focus, edits: this.store.work.edits.length } : null;
   }
 }
