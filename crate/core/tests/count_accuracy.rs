@@ -128,3 +128,25 @@ fn a_semicolon_separated_counts_file_is_named() {
         .to_string();
     assert!(e.contains("seems to use `;`"), "{e}");
 }
+
+/// A manual count may name directions `forward` and `backward`, as edits files and plans do, or by
+/// the plan's labels, as the report's counts CSV does (a newcomer's trial: `forward` matched
+/// nothing); both compare with the report.
+#[test]
+fn forward_and_backward_are_the_reports_labels() {
+    use throughline_core::accuracy::directions_as_labels;
+    let report = serde_json::json!({"screenlines": [
+        {"name": "deck", "forward_label": "in", "backward_label": "out"}]});
+    let manual = directions_as_labels(
+        rows(&format!(
+            "{HEADER}deck,forward,,07:00,07:15,5\ndeck,out,,07:00,07:15,4\ngate,backward,,07:00,07:15,1\n"
+        )),
+        &report,
+    );
+    let ways: Vec<&str> = manual.iter().map(|r| r.direction.as_str()).collect();
+    assert_eq!(
+        ways,
+        ["in", "out", "backward"],
+        "a line the report lacks is left as written"
+    );
+}

@@ -58,12 +58,13 @@ pub fn run(args: Args) -> Result<(), Failure> {
         }
         return tallies(truth, report, &bytes, args.json);
     }
-    let automated =
-        accuracy::report_rows(&read_json_value(report)?).map_err(|e| bad_input(report, e))?;
+    let report_json = read_json_value(report)?;
+    let automated = accuracy::report_rows(&report_json).map_err(|e| bad_input(report, e))?;
     let reference = if looks_like_json_object(&bytes) {
         accuracy::report_rows(&read_json_value(truth)?).map_err(|e| bad_input(truth, e))?
     } else {
-        accuracy::read_counts_csv(&bytes).map_err(|e| bad_input(truth, e))?
+        let rows = accuracy::read_counts_csv(&bytes).map_err(|e| bad_input(truth, e))?;
+        accuracy::directions_as_labels(rows, &report_json)
     };
     let reference = classes_as_known(reference, &automated, &args);
     let acc = accuracy::compare(&automated, &reference);
@@ -73,7 +74,7 @@ pub fn run(args: Args) -> Result<(), Failure> {
             truth,
             format!(
                 "no reference row names a screenline and direction of the report: check the names \
-                 and the direction labels (they must be the plan's labels, as in the counts CSV); \
+                 and the directions (the plan's labels, as in the counts CSV, or forward and backward); \
                  the reference has {left}; the report has {known}"
             ),
         ));

@@ -134,6 +134,32 @@ pub fn read_counts_csv(bytes: &[u8]) -> Result<Vec<CountRow>, Error> {
     Ok(rows)
 }
 
+/// A reference's directions written `forward` or `backward` (as edits files and plans name them)
+/// taken as the report's labels for them, line by line, so either way of writing them compares.
+pub fn directions_as_labels(mut rows: Vec<CountRow>, report: &serde_json::Value) -> Vec<CountRow> {
+    let lines = report["screenlines"]
+        .as_array()
+        .cloned()
+        .unwrap_or_default();
+    for row in &mut rows {
+        let Some(line) = lines
+            .iter()
+            .find(|l| l["name"].as_str() == Some(&row.screenline))
+        else {
+            continue;
+        };
+        let key = match row.direction.as_str() {
+            "forward" => "forward_label",
+            "backward" => "backward_label",
+            _ => continue,
+        };
+        if let Some(label) = line[key].as_str() {
+            row.direction = label.to_string();
+        }
+    }
+    rows
+}
+
 /// The per-class interval counts of a report JSON document (as `throughline run` writes it).
 pub fn report_rows(report: &serde_json::Value) -> Result<Vec<CountRow>, String> {
     let lines = report["screenlines"]
