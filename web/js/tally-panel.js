@@ -148,6 +148,18 @@ export class TallyPanel {
     store.handCount.tallyStarted({ tally: { who, made: localStamp(new Date()), from_frame: s.from, to_frame: s.to, screenlines: names, presses: [] }, keys });
     this.picture.seekFrame(s.from);
     this.live.focus();
+    this.bringIntoView();
+  }
+
+  /**
+   * On a narrow screen the footage stays at the top while reviewing: the tally's status and keys
+   * are brought just under it, so both are in view while counting (a newcomer's trial: the keys
+   * were below the fold, and scrolling slid them under the footage).
+   */
+  bringIntoView() {
+    const viewer = document.querySelector(".viewer");
+    if (!(viewer instanceof HTMLElement) || getComputedStyle(viewer).position !== "sticky") return;
+    window.scrollBy(0, this.live.getBoundingClientRect().top - viewer.getBoundingClientRect().bottom - 6);
   }
 
   /** The form while no tally runs; the keys and counts while one does. */
