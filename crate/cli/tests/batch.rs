@@ -401,6 +401,29 @@ fn the_clips_of_one_site_merge_on_the_clock_and_equal_the_whole_within_the_bound
         }
     }
     assert!(changed <= 4, "{changed} counts changed by the cut");
+    // The zones' entries and exits merge the same way, in a file of their own (a newcomer's trial:
+    // the merged counts left the plan's zone out): the whole clip's totals for its camera, and all
+    // cameras the sum of the two.
+    let zones =
+        merged_rows(&String::from_utf8(read(&dir.join("out/plaza_merged-zones.csv"))).unwrap());
+    let report: serde_json::Value =
+        serde_json::from_slice(&read(&dir.join("out/south/report.json"))).unwrap();
+    let kiosk = &report["zones"][0];
+    assert_eq!(kiosk["name"], "kiosk");
+    for (way, key) in [("entry", "entries"), ("exit", "exits")] {
+        let south: u64 = zones
+            .iter()
+            .filter(|(k, _)| k.0 == "south" && k.1 == "kiosk" && k.2 == way)
+            .map(|(_, v)| v.0)
+            .sum();
+        assert_eq!(south, kiosk[key].as_u64().unwrap(), "south, {way}");
+    }
+    for ((camera, zone, way, start), (n, _)) in &zones {
+        if camera == "all cameras" {
+            let of = |c: &str| zones[&(c.to_string(), zone.clone(), way.clone(), start.clone())].0;
+            assert_eq!(*n, of("north") + of("south"), "{zone} {way} {start}");
+        }
+    }
     // The events behind the merged counts: one row per counted crossing, with its clip.
     let events = String::from_utf8(read(&dir.join("out/plaza_merged-events.csv"))).unwrap();
     for camera in ["north", "south"] {

@@ -5,7 +5,8 @@
 //! one site are listed each on its own and, line by line (by the lines' names), all together.
 //! Clips of one camera that overlap in time are refused: their crossings would count twice.
 //!
-//! The events behind the merged counts are listed too, each with its entry and camera.
+//! The events behind the merged counts are listed too, each with its entry and camera; the zones'
+//! entries and exits are merged the same way, in a table of their own.
 //!
 //! An interval is marked partial unless the clips of that camera cover it whole (the clips'
 //! recording start and duration, to the whole second); in the rows of all cameras together, when
@@ -85,6 +86,20 @@ impl Camera<'_> {
 /// count,partial,entries`, the rows of each camera first (in the order the cameras first appear),
 /// then, with more than one camera, the rows of all cameras together (camera `all cameras`).
 pub fn merged_counts_csv(site: &str, parts: &[Part]) -> Result<String, Error> {
+    merged_csv(site, parts, EventKind::Screenline)
+}
+
+/// The zones' entries and exits merged as the crossings are: `site,camera,zone,way,class,
+/// interval_start,interval_end,count,partial,clips` (`way`: `entry` or `exit`; `clips`: the
+/// entries of the manifest that gave the count). Empty when no report has a zone.
+pub fn merged_zones_csv(site: &str, parts: &[Part]) -> Result<String, Error> {
+    if parts.iter().all(|p| p.report.zones.is_empty()) {
+        return Ok(String::new());
+    }
+    merged_csv(site, parts, EventKind::Zone)
+}
+
+fn merged_csv(site: &str, parts: &[Part], kind: EventKind) -> Result<String, Error> {
     let Some(first) = parts.first() else {
         return Ok(String::new());
     };
@@ -94,6 +109,7 @@ pub fn merged_counts_csv(site: &str, parts: &[Part]) -> Result<String, Error> {
         earliest = earliest.min(clock_start(part)?);
     }
     let mut merge = Merge {
+        kind,
         origin: earliest.seconds().div_euclid(86_400) * 86_400,
         length: (minutes * 60.0).round() as i64,
         cameras: Vec::new(),
@@ -116,8 +132,10 @@ pub fn merged_counts_csv(site: &str, parts: &[Part]) -> Result<String, Error> {
     Ok(merge.csv(site))
 }
 
-/// The merge so far: the cameras, the line directions, and the count of each row.
+/// The merge so far: the cameras, the line directions (or zones' ways), and the count of each row.
 struct Merge<'a> {
+    /// Crossings of screenlines, or entries and exits of zones.
+    kind: EventKind,
     /// Midnight of the first clip's day, where the intervals are counted from (seconds).
     origin: i64,
     /// Interval length in seconds.
@@ -144,15 +162,13 @@ impl<'a> Merge<'a> {
         };
         let end = start.plus_seconds(r.duration_seconds.floor() as i64);
         self.cameras[cam].spans.push((start, end, part.entry));
-        for line in &r.screenlines {
-            for label in [&line.forward_label, &line.backward_label] {
-                let l = index_of(&mut self.lines, (line.name.clone(), label.clone()));
-                for class in line.by_class.keys() {
-                    self.cameras[cam].rows.insert((l, class.clone()));
-                }
+        for (name, label, classes) in rows_of(r, self.kind) {
+            let l = index_of(&mut self.lines, (name.to_string(), label.to_string()));
+            for class in classes {
+                self.cameras[cam].rows.insert((l, class.to_string()));
             }
         }
-        for e in r.events.iter().filter(|e| e.kind == EventKind::Screenline) {
+        for e in r.events.iter().filter(|e| e.kind == self.kind) {
             let l = index_of(&mut self.lines, (e.name.clone(), e.label.clone()));
             let at = (start.seconds() - self.origin) as f64 + e.seconds;
             let bin = (at / self.length as f64).floor() as i64;
@@ -189,9 +205,10 @@ impl<'a> Merge<'a> {
     }
 
     fn csv(&self, site: &str) -> String {
-        let mut out = String::from(
-            "site,camera,screenline,direction,class,interval_start,interval_end,count,partial,entries\n",
-        );
+        let mut out = String::from(match self.kind {
+            EventKind::Screenline => "site,camera,screenline,direction,class,interval_start,interval_end,count,partial,entries\n",
+            EventKind::Zone => "site,camera,zone,way,class,interval_start,interval_end,count,partial,clips\n",
+        });
         for ((camera, l, class, bin), cell) in &self.cells {
             if *camera == ALL && self.cameras.len() < 2 {
                 continue;
@@ -223,6 +240,37 @@ impl<'a> Merge<'a> {
             ));
         }
         out
+    }
+}
+
+/// The rows a report lists for merging, each with its classes (a row per interval, zeros too): a
+/// line's two directions by their labels, or a zone's entries and exits (each with every class
+/// either counted, so both ways list the same classes).
+fn rows_of(r: &Report, kind: EventKind) -> Vec<(&str, &str, Vec<&str>)> {
+    match kind {
+        EventKind::Screenline => r
+            .screenlines
+            .iter()
+            .flat_map(|line| {
+                let classes: Vec<&str> = line.by_class.keys().map(String::as_str).collect();
+                [&line.forward_label, &line.backward_label]
+                    .map(|label| (line.name.as_str(), label.as_str(), classes.clone()))
+            })
+            .collect(),
+        EventKind::Zone => r
+            .zones
+            .iter()
+            .flat_map(|z| {
+                let classes: BTreeSet<&str> = z
+                    .entries_by_class
+                    .keys()
+                    .chain(z.exits_by_class.keys())
+                    .map(String::as_str)
+                    .collect();
+                let classes: Vec<&str> = classes.into_iter().collect();
+                ["entry", "exit"].map(|way| (z.name.as_str(), way, classes.clone()))
+            })
+            .collect(),
     }
 }
 

@@ -12,7 +12,7 @@ mod merged_grid;
 
 pub use checks::{Measures, TallyCheck, TallyGroup};
 pub use csv::counts_csv;
-pub use merge::{merged_counts_csv, merged_events_csv, Part};
+pub use merge::{merged_counts_csv, merged_events_csv, merged_zones_csv, Part};
 pub use merged_grid::{read_merged_counts, GridColumn, GridRow, MergedCounts, MergedGrid};
 
 use crate::edits::Outcome;

@@ -1,5 +1,6 @@
 //! After a batch: the counts of each site's entries merged on the real clock
-//! (`OUT/SITE_merged-counts.csv`) and the events behind them (`OUT/SITE_merged-events.csv`), when
+//! (`OUT/SITE_merged-counts.csv`), the zones' entries and exits (`OUT/SITE_merged-zones.csv`, when
+//! the plans have zones) and the events behind them (`OUT/SITE_merged-events.csv`), when
 //! every entry of the site was counted. A site that cannot be merged is said why, and leaves the
 //! merged files of an earlier batch as they were.
 
@@ -8,7 +9,9 @@ use crate::files::Failure;
 use crate::output::Outputs;
 use std::path::{Path, PathBuf};
 use throughline_core::handin::slug;
-use throughline_core::report::{merged_counts_csv, merged_events_csv, Part, Report};
+use throughline_core::report::{
+    merged_counts_csv, merged_events_csv, merged_zones_csv, Part, Report,
+};
 
 /// What the merge did: the files written, and each site left unmerged with the reason.
 pub struct Merged {
@@ -53,11 +56,12 @@ pub fn merge_sites(jobs: &[Job], outcomes: &[Outcome], out: &Path) -> Result<Mer
     Ok(merged)
 }
 
-/// A site's merged counts and events, or why they cannot be made.
+/// A site's merged counts, events and (when its plans have zones) zones' entries and exits, or
+/// why they cannot be made.
 fn site_tables(
     site: &str,
     members: &[(&Job, &Outcome)],
-) -> Result<[(&'static str, String); 2], String> {
+) -> Result<Vec<(&'static str, String)>, String> {
     if let Some((failed, _)) = members
         .iter()
         .find(|(_, o)| matches!(o, Outcome::Failed(_)))
@@ -82,7 +86,12 @@ fn site_tables(
         .collect();
     let counts = merged_counts_csv(site, &parts).map_err(|e| e.to_string())?;
     let events = merged_events_csv(site, &parts).map_err(|e| e.to_string())?;
-    Ok([("counts", counts), ("events", events)])
+    let zones = merged_zones_csv(site, &parts).map_err(|e| e.to_string())?;
+    let mut tables = vec![("counts", counts), ("events", events)];
+    if !zones.is_empty() {
+        tables.push(("zones", zones));
+    }
+    Ok(tables)
 }
 
 /// A file name stem for each site: its slug (`site-N` where nothing of the name is left), made
