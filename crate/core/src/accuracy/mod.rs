@@ -82,33 +82,7 @@ pub fn read_counts_csv(bytes: &[u8]) -> Result<Vec<CountRow>, Error> {
         if f.len() != names.len() {
             return Err(text::wrong_field_count(f.len(), names.len(), line, i + 1));
         }
-        let count: u64 = f[cn]
-            .trim()
-            .parse()
-            .ok()
-            .filter(|&n| n <= MAX_COUNT)
-            .ok_or_else(|| {
-                Error::new(
-                    ErrorKind::BadNumber,
-                    format!(
-                        "count `{}` is not a whole number from 0 to {MAX_COUNT}",
-                        f[cn]
-                    ),
-                )
-                .at(i + 1, Some(cn + 1))
-            })?;
-        let class = match f[cc].trim() {
-            "" | "all" | "*" => None,
-            c => Some(c.to_string()),
-        };
-        let row = CountRow {
-            screenline: f[cl].trim().to_string(),
-            direction: f[cd].trim().to_string(),
-            class,
-            // `7:00` or `00:15` as a spreadsheet saves `07:00:00`, `00:15:00`: as a report writes it.
-            interval_start: crate::plan::clock::as_report_writes(f[cs]),
-            count,
-        };
+        let row = count_row(&f, [cl, cd, cc, cs, cn], i + 1)?;
         let key = (
             row.screenline.clone(),
             row.direction.clone(),
@@ -116,22 +90,58 @@ pub fn read_counts_csv(bytes: &[u8]) -> Result<Vec<CountRow>, Error> {
             row.interval_start.clone(),
         );
         if let Some(earlier) = first.insert(key, i + 1) {
-            return Err(Error::new(
-                ErrorKind::Unsuitable,
-                format!(
-                    "this row counts {} {} ({}) from {} again, as line {earlier} does: add the two \
-                     counts into one row (or correct the line, direction, class or interval)",
-                    row.screenline,
-                    row.direction,
-                    row.class.as_deref().unwrap_or("all classes"),
-                    row.interval_start
-                ),
-            )
-            .at(i + 1, None));
+            return Err(repeated_row(&row, earlier).at(i + 1, None));
         }
         rows.push(row);
     }
     Ok(rows)
+}
+
+/// One row of a counts CSV from its fields, the columns of screenline, direction, class,
+/// interval_start and count given; errors name `line`.
+fn count_row(f: &[&str], [cl, cd, cc, cs, cn]: [usize; 5], line: usize) -> Result<CountRow, Error> {
+    let count: u64 = f[cn]
+        .trim()
+        .parse()
+        .ok()
+        .filter(|&n| n <= MAX_COUNT)
+        .ok_or_else(|| {
+            Error::new(
+                ErrorKind::BadNumber,
+                format!(
+                    "count `{}` is not a whole number from 0 to {MAX_COUNT}",
+                    f[cn]
+                ),
+            )
+            .at(line, Some(cn + 1))
+        })?;
+    let class = match f[cc].trim() {
+        "" | "all" | "*" => None,
+        c => Some(c.to_string()),
+    };
+    Ok(CountRow {
+        screenline: f[cl].trim().to_string(),
+        direction: f[cd].trim().to_string(),
+        class,
+        // `7:00` or `00:15` as a spreadsheet saves `07:00:00`, `00:15:00`: as a report writes it.
+        interval_start: crate::plan::clock::as_report_writes(f[cs]),
+        count,
+    })
+}
+
+/// Why a row counting what an earlier one (on line `earlier`) counts is refused.
+fn repeated_row(row: &CountRow, earlier: usize) -> Error {
+    Error::new(
+        ErrorKind::Unsuitable,
+        format!(
+            "this row counts {} {} ({}) from {} again, as line {earlier} does: add the two \
+             counts into one row (or correct the line, direction, class or interval)",
+            row.screenline,
+            row.direction,
+            row.class.as_deref().unwrap_or("all classes"),
+            row.interval_start
+        ),
+    )
 }
 
 /// A reference's directions written `forward` or `backward` (as edits files and plans name them)
