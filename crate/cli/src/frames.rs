@@ -95,46 +95,59 @@ pub fn each_frame(
     })
 }
 
-/// How many frames the video of a WebM or MP4 file holds (an MP4 says so up front; a WebM is passed
-/// over frame by frame, as the page reads it); `None`, with a note unless `quiet`, for other footage
-/// or a file damaged part way (then `--frames` tells the length).
-pub fn video_frames(footage: &Path, quiet: bool) -> Result<Option<u32>, Failure> {
+/// How long the video of a WebM or MP4 file lasts, in frames at the plan's `frame_rate` (as the page
+/// takes an open footage's duration): its frames are passed over as the page reads them, and the
+/// duration is their span plus one frame's time. `None`, with a note unless `quiet`, for other
+/// footage, a file damaged part way or one of a single frame (then `--frames` tells the length).
+pub fn video_frames(footage: &Path, frame_rate: f64, quiet: bool) -> Result<Option<u32>, Failure> {
     use throughline_footage::demux::Demuxer;
     let file = std::fs::File::open(footage)
         .map_err(|e| bad_input(footage, format!("cannot read the file: {e}")))?;
     let size = file.metadata().map_or(0, |m| m.len());
-    let unread = |why: String| {
+    let note = |what: String| {
         if !quiet {
-            eprintln!(
-                "note: {}: its length is not taken ({why}); if the detections end before the \
-                 footage does, give --frames N",
-                footage.display()
-            );
+            eprintln!("note: {}: {what}", footage.display());
         }
+    };
+    let unread = |why: &str| {
+        note(format!(
+            "its length is not taken ({why}); if the detections end before the footage does, \
+             give --frames N"
+        ));
         Ok(None)
     };
-    let (mut video, track) = match Demuxer::open(BufReader::with_capacity(1 << 16, file), size) {
-        Ok(opened) => opened,
-        Err(why) => return unread(why),
+    let mut video = match Demuxer::open(BufReader::with_capacity(1 << 16, file), size) {
+        Ok((video, _)) => video,
+        Err(why) if why.starts_with("neither") => return unread("not WebM or MP4"),
+        Err(why) => return unread(&why),
     };
-    let most = MAX_FOOTAGE_FRAMES as u32;
-    let too_many = || {
-        unread(format!(
-            "it holds more than {most} frames, more than footage may"
-        ))
-    };
-    if let Some(n) = track.frames {
-        return if n > most { too_many() } else { Ok(Some(n)) };
-    }
-    let mut frames = 0u32;
+    let (mut n, mut first, mut last) = (0u64, i64::MAX, i64::MIN);
     loop {
         match video.next_chunk() {
-            Ok(Some(_)) if frames == most => return too_many(),
-            Ok(Some(_)) => frames += 1,
-            Ok(None) => return Ok(Some(frames)),
-            Err(why) => return unread(why),
+            Ok(Some(c)) if n < MAX_FOOTAGE_FRAMES as u64 => {
+                n += 1;
+                (first, last) = (first.min(c.timestamp_us), last.max(c.timestamp_us));
+            }
+            Ok(Some(_)) => return unread("more frames than footage may have"),
+            Ok(None) => break,
+            Err(why) => return unread(&why),
         }
     }
+    if n < 2 || last <= first {
+        return unread("fewer than two frames with their times");
+    }
+    let span = (last - first) as f64 / 1e6;
+    let (seconds, own_rate) = (span * n as f64 / (n - 1) as f64, (n - 1) as f64 / span);
+    let Some(frames) = throughline_core::project::footage_frames(seconds, frame_rate) else {
+        return unread("longer than footage may be at the plan's frame rate");
+    };
+    if (own_rate / frame_rate - 1.0).abs() > 0.01 {
+        note(format!(
+            "it runs at {own_rate:.2} frames a second, the plan at {frame_rate}: its {seconds:.1} s \
+             are taken as {frames} frames at the plan's rate (is the plan's frame_rate right?)"
+        ));
+    }
+    Ok(Some(frames))
 }
 
 /// How many frames a YUV4MPEG2 file holds (passed over by seeking, not read); `None` for

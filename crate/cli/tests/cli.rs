@@ -505,7 +505,11 @@ fn score_counts_compares_a_report_with_a_manual_count() {
     );
     let o = throughline(&["score-counts", "--truth", &other, &report]);
     assert_eq!(o.status.code(), Some(1));
-    assert!(stderr(&o).contains("direction labels"), "{}", stderr(&o));
+    assert!(
+        stderr(&o).contains("the plan's labels, as in the counts CSV, or forward and backward"),
+        "{}",
+        stderr(&o)
+    );
     assert!(
         stderr(&o).contains("the reference has `nowhere` / `in` (1 row); the report has `"),
         "{}",
@@ -1099,6 +1103,34 @@ fn frames_gives_the_clips_length_when_the_detections_end_early() {
             "an MP4's frames"
         );
     }
+    // Its length is its duration at the plan's frame rate, as the page takes it: a plan at another
+    // rate than the footage's is named (30 s of 25 fps footage are 150 frames at 5 a second).
+    let slow = write(
+        &dir,
+        "plan-5fps.json",
+        std::fs::read_to_string(&plan)
+            .unwrap()
+            .replace("\"frame_rate\": 25", "\"frame_rate\": 5")
+            .as_bytes(),
+    );
+    let report = dir.join("r.json").display().to_string();
+    let o = throughline(&[
+        "run",
+        &dets,
+        "--plan",
+        &slow,
+        "--footage",
+        &webm,
+        "-o",
+        &report,
+    ]);
+    let e = stderr(&o);
+    assert!(
+        e.contains(
+            "it runs at 25.00 frames a second, the plan at 5: its 30.0 s are taken as 150 frames"
+        ),
+        "{e}"
+    );
     // Footage it cannot read (here not a video at all) is named, its length left to --frames.
     let other = write(&dir, "clip.avi", b"RIFF....AVI not really");
     let report = dir.join("r.json").display().to_string();
@@ -1115,7 +1147,7 @@ fn frames_gives_the_clips_length_when_the_detections_end_early() {
     assert!(o.status.success(), "{}", stderr(&o));
     let e = stderr(&o);
     assert!(
-        e.contains("clip.avi: its length is not taken (neither WebM nor MP4")
+        e.contains("clip.avi: its length is not taken (not WebM or MP4)")
             && e.contains("--frames N"),
         "{e}"
     );

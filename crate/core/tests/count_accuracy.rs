@@ -131,22 +131,41 @@ fn a_semicolon_separated_counts_file_is_named() {
 
 /// A manual count may name directions `forward` and `backward`, as edits files and plans do, or by
 /// the plan's labels, as the report's counts CSV does (a newcomer's trial: `forward` matched
-/// nothing); both compare with the report.
+/// nothing); both compare with the report, and a repeat across the two ways is refused. A row of
+/// all classes beside a row of one class of the same interval is refused too (they would add up).
 #[test]
 fn forward_and_backward_are_the_reports_labels() {
-    use throughline_core::accuracy::directions_as_labels;
+    use throughline_core::accuracy::read_counts_csv_for;
     let report = serde_json::json!({"screenlines": [
         {"name": "deck", "forward_label": "in", "backward_label": "out"}]});
-    let manual = directions_as_labels(
-        rows(&format!(
+    let manual = read_counts_csv_for(
+        format!(
             "{HEADER}deck,forward,,07:00,07:15,5\ndeck,out,,07:00,07:15,4\ngate,backward,,07:00,07:15,1\n"
-        )),
-        &report,
-    );
+        )
+        .as_bytes(),
+        Some(&report),
+    )
+    .unwrap();
     let ways: Vec<&str> = manual.iter().map(|r| r.direction.as_str()).collect();
     assert_eq!(
         ways,
         ["in", "out", "backward"],
         "a line the report lacks is left as written"
+    );
+    let e = read_counts_csv_for(
+        format!("{HEADER}deck,forward,,07:00,07:15,5\ndeck,in,,07:00,07:15,10\n").as_bytes(),
+        Some(&report),
+    )
+    .unwrap_err()
+    .to_string();
+    assert!(e.contains("line 3") && e.contains("as line 2 does"), "{e}");
+    let e = read_counts_csv(
+        format!("{HEADER}deck,in,car,07:00,07:15,5\ndeck,in,,07:00,07:15,9\n").as_bytes(),
+    )
+    .unwrap_err()
+    .to_string();
+    assert!(
+        e.contains("line 3") && e.contains("line 2 counts car of the same interval"),
+        "{e}"
     );
 }

@@ -161,7 +161,7 @@ pub fn known_length(
         None => None,
     };
     let from_video = match files.video {
-        Some(f) => crate::frames::video_frames(f, files.quiet)?,
+        Some(f) => crate::frames::video_frames(f, plan.spec.frame_rate, files.quiet)?,
         None => None,
     };
     Ok(from_project.max(from_y4m).max(from_video))
@@ -198,6 +198,10 @@ pub fn with_length(
             "--frames {n}: the tracks go on to frame {reach}, so the footage is at least that long: \
              give its whole length in frames (its duration in seconds times the frame rate)"
         )));
+    }
+    if n != tracks.frame_count {
+        // No longer the length of the footage the boxes were found in (a tracks file would say so).
+        tracks.length_from_footage = false;
     }
     tracks.frame_count = n;
     Ok(())

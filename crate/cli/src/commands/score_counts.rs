@@ -63,8 +63,8 @@ pub fn run(args: Args) -> Result<(), Failure> {
     let reference = if looks_like_json_object(&bytes) {
         accuracy::report_rows(&read_json_value(truth)?).map_err(|e| bad_input(truth, e))?
     } else {
-        let rows = accuracy::read_counts_csv(&bytes).map_err(|e| bad_input(truth, e))?;
-        accuracy::directions_as_labels(rows, &report_json)
+        accuracy::read_counts_csv_for(&bytes, Some(&report_json))
+            .map_err(|e| bad_input(truth, e))?
     };
     let reference = classes_as_known(reference, &automated, &args);
     let acc = accuracy::compare(&automated, &reference);

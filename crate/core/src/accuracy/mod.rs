@@ -36,6 +36,17 @@ pub struct CountRow {
 /// Reads a counts CSV with the header `screenline,direction,class,interval_start,interval_end,count`
 /// (the layout `--csv` writes; a manual count in the same layout).
 pub fn read_counts_csv(bytes: &[u8]) -> Result<Vec<CountRow>, Error> {
+    read_counts_csv_for(bytes, None)
+}
+
+/// [`read_counts_csv`], with directions written `forward` or `backward` (as edits files and plans
+/// name them) taken as `report`'s labels for them, line by line, so either way of writing them
+/// compares. A row counting what an earlier one counts (after that), or all classes of an interval
+/// beside a row of one class of it, is refused naming both lines.
+pub fn read_counts_csv_for(
+    bytes: &[u8],
+    report: Option<&serde_json::Value>,
+) -> Result<Vec<CountRow>, Error> {
     let text = text::as_text(bytes)?;
     let mut lines = text
         .lines()
@@ -73,28 +84,49 @@ pub fn read_counts_csv(bytes: &[u8]) -> Result<Vec<CountRow>, Error> {
         col("count")?,
     );
     let mut rows = Vec::new();
-    // The first line of each line, direction, class and interval: a second is refused, as it
-    // would be compared with the same automated count again.
-    let mut first: std::collections::HashMap<(String, String, Option<String>, String), usize> =
+    // The first line of each line, direction and interval, by class (`None`: all together): a
+    // second is refused, as it would be compared with the same automated count again.
+    type Cell = (String, String, String);
+    let mut first: std::collections::HashMap<Cell, Vec<(Option<String>, usize)>> =
         std::collections::HashMap::new();
     for (i, line) in lines {
         let f = text::split_fields(line);
         if f.len() != names.len() {
             return Err(text::wrong_field_count(f.len(), names.len(), line, i + 1));
         }
-        let row = count_row(&f, [cl, cd, cc, cs, cn], i + 1)?;
-        let key = (
+        let mut row = count_row(&f, [cl, cd, cc, cs, cn], i + 1)?;
+        if let Some(label) = report.and_then(|r| label_of(r, &row.screenline, &row.direction)) {
+            row.direction = label;
+        }
+        let cell = (
             row.screenline.clone(),
             row.direction.clone(),
-            row.class.clone(),
             row.interval_start.clone(),
         );
-        if let Some(earlier) = first.insert(key, i + 1) {
-            return Err(repeated_row(&row, earlier).at(i + 1, None));
+        let seen = first.entry(cell).or_default();
+        let clash = seen
+            .iter()
+            .find(|(c, _)| *c == row.class || c.is_none() != row.class.is_none());
+        if let Some((class, earlier)) = clash {
+            return Err(repeated_row(&row, class, *earlier).at(i + 1, None));
         }
+        seen.push((row.class.clone(), i + 1));
         rows.push(row);
     }
     Ok(rows)
+}
+
+/// The report's label for a line's direction written `forward` or `backward`; `None` for a label
+/// (or a line the report lacks).
+fn label_of(report: &serde_json::Value, line: &str, direction: &str) -> Option<String> {
+    let key = match direction {
+        "forward" => "forward_label",
+        "backward" => "backward_label",
+        _ => return None,
+    };
+    let lines = report["screenlines"].as_array()?;
+    let found = lines.iter().find(|l| l["name"].as_str() == Some(line))?;
+    found[key].as_str().map(str::to_string)
 }
 
 /// One row of a counts CSV from its fields, the columns of screenline, direction, class,
@@ -129,45 +161,26 @@ fn count_row(f: &[&str], [cl, cd, cc, cs, cn]: [usize; 5], line: usize) -> Resul
     })
 }
 
-/// Why a row counting what an earlier one (on line `earlier`) counts is refused.
-fn repeated_row(row: &CountRow, earlier: usize) -> Error {
-    Error::new(
-        ErrorKind::Unsuitable,
+/// Why a row counting what an earlier one (on line `earlier`, of `class`) counts is refused: the
+/// same class again, or all classes beside one class of the same interval.
+fn repeated_row(row: &CountRow, class: &Option<String>, earlier: usize) -> Error {
+    let what = |c: &Option<String>| c.as_deref().unwrap_or("all classes").to_string();
+    let (line, way, from) = (&row.screenline, &row.direction, &row.interval_start);
+    let message = if *class == row.class {
         format!(
-            "this row counts {} {} ({}) from {} again, as line {earlier} does: add the two \
-             counts into one row (or correct the line, direction, class or interval)",
-            row.screenline,
-            row.direction,
-            row.class.as_deref().unwrap_or("all classes"),
-            row.interval_start
-        ),
-    )
-}
-
-/// A reference's directions written `forward` or `backward` (as edits files and plans name them)
-/// taken as the report's labels for them, line by line, so either way of writing them compares.
-pub fn directions_as_labels(mut rows: Vec<CountRow>, report: &serde_json::Value) -> Vec<CountRow> {
-    let lines = report["screenlines"]
-        .as_array()
-        .cloned()
-        .unwrap_or_default();
-    for row in &mut rows {
-        let Some(line) = lines
-            .iter()
-            .find(|l| l["name"].as_str() == Some(&row.screenline))
-        else {
-            continue;
-        };
-        let key = match row.direction.as_str() {
-            "forward" => "forward_label",
-            "backward" => "backward_label",
-            _ => continue,
-        };
-        if let Some(label) = line[key].as_str() {
-            row.direction = label.to_string();
-        }
-    }
-    rows
+            "this row counts {line} {way} ({}) from {from} again, as line {earlier} does: add the \
+             two counts into one row (or correct the line, direction, class or interval)",
+            what(class)
+        )
+    } else {
+        format!(
+            "this row counts {line} {way} ({}) from {from}, and line {earlier} counts {} of the \
+             same interval: give a row per class, or one row of all classes, not both",
+            what(&row.class),
+            what(class)
+        )
+    };
+    Error::new(ErrorKind::Unsuitable, message)
 }
 
 /// The per-class interval counts of a report JSON document (as `throughline run` writes it).
