@@ -60,8 +60,6 @@ pub fn line_at(text: &str, at: usize) -> (&str, usize) {
     (line, taken)
 }
 
-/// A CSV line `text` (line `line`) with `found` fields where its header names `want` columns; when
-/// the line has semicolons or tabs, says that the fields must be separated by commas.
 /// What a line read as one field may have got wrong: another separator (a spreadsheet set to
 /// another language saves `;`); "" when it holds neither `;` nor a tab.
 pub fn separator_hint(line: &str) -> &'static str {
@@ -74,6 +72,8 @@ pub fn separator_hint(line: &str) -> &'static str {
     }
 }
 
+/// A CSV line `text` (line `line`) with `found` fields where its header names `want` columns; when
+/// the line has semicolons or tabs, says that the fields must be separated by commas.
 pub fn wrong_field_count(found: usize, want: usize, text: &str, line: usize) -> Error {
     let fields = if found == 1 { "field" } else { "fields" };
     let other = [(';', "semicolons"), ('\t', "tabs")]

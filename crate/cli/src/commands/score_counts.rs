@@ -10,7 +10,8 @@ use throughline_core::report::Report;
 pub const LONG_ABOUT: &str = "Compare automated counts with a reference count.\n\n\
     REPORT is a report from `run` or `count`. The reference (--truth) is a manual count CSV with \
     the header screenline,direction,class,interval_start,interval_end,count (class may be empty or \
-    `all` for all classes together; direction uses the plan's labels), another report, or a project \
+    `all` for all classes together; direction by the plan's labels or as forward/backward; one row \
+    per line, direction, class and interval), another report, or a project \
     file whose hand counts (tallies, made in the page) are compared over their own frames. \
     Measures (NCHRP Report 797): APD = mean (A-M)/M, AAPD = mean |A-M|/M, WAPD = sum|A-M| / sum M, \
     correction factor = sum M / sum A, per screenline, direction and class over the intervals.";
