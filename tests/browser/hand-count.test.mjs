@@ -216,6 +216,13 @@ test("on a phone the tally's keys are buttons, and nothing scrolls sideways", as
   const [scroll, width] = await page.evaluate(() => [document.documentElement.scrollWidth, innerWidth]);
   assert.ok(scroll <= width, `counting: page ${scroll} px wide in a ${width} px window`);
   await screenshot(page, "16-hand-count-phone", { fullPage: false });
+  // Discarding presses asks first (no Undo brings them back); kept when the answer is no.
+  const asked = [];
+  page.once("dialog", (d) => { asked.push(d.message()); d.dismiss(); });
+  await page.getByRole("button", { name: "Discard" }).click();
+  assert.match(asked[0] || "", /Discard this hand count and its 1 press\?/);
+  assert.equal(await page.locator("#tally-live").isHidden(), false, "kept");
+  page.once("dialog", (d) => d.accept());
   await page.getByRole("button", { name: "Discard" }).click();
   assert.equal(await page.locator("#tally-live").isHidden(), true);
   assert.deepEqual(seen.errors, []);

@@ -38,7 +38,12 @@ export class AddCrossingForm {
     this.reason = byId("add-reason", HTMLInputElement);
     this.at = byId("add-at", HTMLElement);
     this.done = byId("add-done", HTMLElement);
-    this.line.addEventListener("change", () => this.offerDirections());
+    this.line.addEventListener("change", () => {
+      this.offerDirections();
+      this.followFocus(true);
+    });
+    /** @type {number | null} the track whose class and way the form last took */
+    this.followed = null;
     this.form.addEventListener("submit", (e) => { e.preventDefault(); this.add(); });
     store.subscribe(["plan"], () => this.offerLines());
     store.subscribe(["frame", "focus", "tracks"], () => this.showWhere());
@@ -51,12 +56,19 @@ export class AddCrossingForm {
    * around the frame shown (a newcomer's trial: a cyclist going backward was offered as a
    * pedestrian going forward).
    */
-  followFocus() {
+  /**
+   * @param {boolean} [lineChosen] the line was chosen anew: the way across it is taken again
+   */
+  followFocus(lineChosen = false) {
     const { focus, tracks, plan, frame } = this.store;
     const id = focus && focus.tracks.length ? focus.tracks[0] : null;
-    if (id === null || !tracks) return;
+    // Once a track: the counts coming back make the focus anew, and what the person has typed or
+    // chosen since stays.
+    if (id === null) this.followed = null;
+    if (id === null || !tracks || (id === this.followed && !lineChosen)) return;
     const cls = tracks.classes.get(id);
-    if (cls) this.cls.value = cls;
+    if (cls && !lineChosen) this.cls.value = cls;
+    this.followed = id;
     const line = plan.screenlines.find((l) => l.name === this.line.value);
     const side = line ? forwardSide(line.points) : null;
     const path = tracks.paths(frame - 12, frame + 12, plan.anchor, new Set([id])).get(id);

@@ -41,7 +41,7 @@ export class FocusStrip {
     this.form.addEventListener("submit", (e) => { e.preventDefault(); this.submit(); });
     byId("reject-cancel", HTMLButtonElement).addEventListener("click", () => this.closeForm());
     this.form.addEventListener("keydown", (e) => { if (e.key === "Escape") { e.stopPropagation(); this.closeForm(); } });
-    /** @type {{focus: import("./store.js").Focus | null, edits: number} | null} what the note was said about */
+    /** @type {{focus: string, edits: number} | null} what the note was said about (`focusKey`) */
     this.noteFor = null;
     store.subscribe(["focus", "results", "marks", "edits"], () => this.show());
   }
@@ -51,7 +51,7 @@ export class FocusStrip {
     // A note is about the moment and the corrections it was said with: another moment, or another
     // correction since (an added crossing after a rejection), and it goes.
     const n = this.noteFor;
-    if (n && (n.focus !== focus || n.edits !== this.store.work.edits.length)) this.say("");
+    if (n && (n.focus !== focusKey(focus) || n.edits !== this.store.work.edits.length)) this.say("");
     this.root.hidden = !focus;
     if (!focus) {
       this.closeForm();
@@ -159,6 +159,17 @@ export class FocusStrip {
   /** @param {string} text a note under the buttons ("" to clear) */
   say(text) {
     this.note.textContent = text;
-    this.noteFor = text ? { focus: this.store.focus, edits: this.store.work.edits.length } : null;
+    this.noteFor = text ? { focus: focusKey(this.store.focus), edits: this.store.work.edits.length } : null;
   }
+}
+
+/**
+ * What a focus is about, as text: the same moment, event or tracks give the same key (the focus
+ * object itself is made anew when the counts come back).
+ * @param {import("./store.js").Focus | null} focus
+ */
+function focusKey(focus) {
+  if (!focus) return "";
+  const e = focus.event;
+  return JSON.stringify([focus.doubt ? focus.doubt.key : null, e ? [e.kind, e.name, e.track, e.frame] : null, focus.tracks]);
 }

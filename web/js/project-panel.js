@@ -53,8 +53,11 @@ export class ProjectPanel {
   /** Clears the work (after asking, when there is any) to begin afresh on other files. */
   clear() {
     const { work } = this.store;
-    const some = work.edits.length || work.marks.size || work.site || (work.extras.tallies || []).length || work.extras.correction;
-    if (some && !window.confirm("Clear the corrections, decisions, hand counts and site name of this work, to begin afresh? The plan and the files stay open. Save project first to keep the work in a file.")) return;
+    const run = this.store.handCount.run;
+    const some = work.edits.length || work.marks.size || work.site || (work.extras.tallies || []).length || work.extras.correction || run;
+    // A hand count under way is not part of Undo's steps until finished: said before it goes.
+    const running = run ? ` The hand count under way (${run.tally.presses.length} presses) is discarded too, and Undo does not bring it back: finish it first to keep it.` : "";
+    if (some && !window.confirm(`Clear the corrections, decisions, hand counts and site name of this work, to begin afresh? The plan and the files stay open. Save project first to keep the work in a file.${running}`)) return;
     this.store.workCleared();
     this.projectName.textContent = "plan, corrections and decisions in one file";
     for (const key of ["project-files", "project-rules", "project-tracking"]) this.messages.clear(key);
@@ -66,7 +69,8 @@ export class ProjectPanel {
   saySaved() {
     const { work } = this.store;
     const unsaved = projectUnsaved(this.store);
-    this.saved.textContent = unsaved ? (work.savedAs ? "changed since saved" : "not saved yet") : work.savedAs ? "saved" : "";
+    const saved = !unsaved && work.savedAs !== "" && projectState(this.store) === work.savedAs;
+    this.saved.textContent = unsaved ? (work.savedAs ? "changed since saved" : "not saved yet") : saved ? "saved" : "";
     this.saved.classList.toggle("unsaved", unsaved);
   }
 
@@ -82,11 +86,13 @@ export class ProjectPanel {
   }
 
   async save() {
+    // The work as it is when saved (a change while the core writes the file is not in it).
+    const state = projectState(this.store);
     try {
       const text = await this.client.writeProject(this.project());
       download(projectFileName(this.store.work.site), text, "application/json");
       this.messages.clear("project");
-      this.store.projectSaved(projectState(this.store));
+      this.store.projectSaved(state);
     } catch (e) {
       this.messages.say("project", "error", `The project could not be saved: ${/** @type {Error} */ (e).message}. Fix the plan (under Set up), then save again.`);
     }

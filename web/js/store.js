@@ -417,6 +417,7 @@ export class PageStore {
   correctionMade(edit, mark = null) {
     this.work.change((w) => {
       w.edits.push(edit);
+      w.links.push(mark ? mark.key : null);
       if (mark) w.marks.set(mark.key, mark.decision);
     });
     this.filesInUse();
@@ -434,13 +435,16 @@ export class PageStore {
   }
 
   /**
-   * A correction taken back from the list, with the decisions it carried out (one undo step).
+   * A correction taken back from the list, with the decisions it carried out (one undo step): the
+   * moment decided with it, and `marks`.
    * @param {number} index its place in the corrections
-   * @param {string[]} marks the doubtful moments whose decision goes with it
+   * @param {string[]} marks other doubtful moments whose decision goes with it
    */
   correctionRemoved(index, marks) {
     this.work.change((w) => {
       w.edits.splice(index, 1);
+      const [link] = w.links.splice(index, 1);
+      if (link && w.marks.get(link) === "rejected") w.marks.delete(link);
       for (const key of marks) w.marks.delete(key);
     });
     this.emit(["edits", "marks"]);

@@ -64,6 +64,9 @@ export class TallyPanel {
     byId("tally-undo", HTMLButtonElement).addEventListener("click", () => this.undo());
     byId("tally-finish", HTMLButtonElement).addEventListener("click", () => this.finish());
     byId("tally-drop", HTMLButtonElement).addEventListener("click", () => {
+      const run = this.store.handCount.run;
+      const n = run ? run.tally.presses.length : 0;
+      if (n && !window.confirm(`Discard this hand count and its ${n} press${n === 1 ? "" : "es"}? It is not kept, and Undo does not bring it back.`)) return;
       this.store.handCount.tallyDropped();
       this.say("Discarded: that hand count was not kept.");
     });

@@ -14,7 +14,7 @@
 /**
  * The parts of the work that Undo brings back: the site's name and files only from before a step
  * that replaced the whole work (a name typed is not a step of its own).
- * @typedef {{edits: Edit[], marks: [string, Decision][], extras: Extras, site?: string, madeWith?: Prints}} Snapshot
+ * @typedef {{edits: Edit[], links: (string | null)[], marks: [string, Decision][], extras: Extras, site?: string, madeWith?: Prints}} Snapshot
  */
 
 const STORAGE_KEY = "throughline.review.v1";
@@ -26,6 +26,8 @@ export class ReviewWork {
     this.storage = storage;
     /** @type {Edit[]} in the order made */
     this.edits = [];
+    /** @type {(string | null)[]} for each correction, the doubtful moment decided with it (its key), if any */
+    this.links = [];
     /** @type {Map<string, Decision>} decisions by the doubtful moment's key */
     this.marks = new Map();
     this.site = "";
@@ -47,6 +49,7 @@ export class ReviewWork {
       const saved = JSON.parse(this.storage.getItem(STORAGE_KEY) || "null");
       if (!saved || !Array.isArray(saved.edits)) return false;
       this.edits = saved.edits;
+      this.links = linksFor(this.edits, saved.links);
       this.marks = new Map(Array.isArray(saved.marks) ? saved.marks : []);
       this.site = typeof saved.site === "string" ? saved.site : "";
       this.madeWith = { footage: null, detections: null, ...(saved.madeWith || {}) };
@@ -60,9 +63,9 @@ export class ReviewWork {
   }
 
   save() {
-    const { edits, site, madeWith, extras, savedAs } = this;
+    const { edits, links, site, madeWith, extras, savedAs } = this;
     try {
-      this.storage.setItem(STORAGE_KEY, JSON.stringify({ edits, marks: [...this.marks], site, madeWith, extras, savedAs }));
+      this.storage.setItem(STORAGE_KEY, JSON.stringify({ edits, links, marks: [...this.marks], site, madeWith, extras, savedAs }));
     } catch (e) {
       // Storage full or disabled: the work still counts in this tab; Save project keeps it as a file.
     }
@@ -74,7 +77,7 @@ export class ReviewWork {
    */
   snapshot(whole) {
     /** @type {Snapshot} */
-    const s = { edits: this.edits, marks: [...this.marks], extras: this.extras };
+    const s = { edits: this.edits, links: this.links, marks: [...this.marks], extras: this.extras };
     if (whole) Object.assign(s, { site: this.site, madeWith: this.madeWith });
     return JSON.stringify(s);
   }
@@ -82,6 +85,7 @@ export class ReviewWork {
   /** @param {Snapshot} s */
   bringBack(s) {
     this.edits = s.edits;
+    this.links = linksFor(s.edits, s.links);
     this.marks = new Map(s.marks);
     this.extras = s.extras || {};
     if (s.site !== undefined) this.site = s.site;
@@ -99,6 +103,7 @@ export class ReviewWork {
     if (this.undoStack.length > UNDO_DEPTH) this.undoStack.shift();
     this.redoStack = [];
     this.edits = [...this.edits];
+    this.links = [...this.links];
     this.marks = new Map(this.marks);
     change(this);
     this.save();
@@ -137,10 +142,22 @@ export class ReviewWork {
   replace(work) {
     this.change((w) => {
       w.edits = work.edits;
+      w.links = work.edits.map(() => null);
       w.marks = new Map(work.marks);
       w.site = work.site;
       w.madeWith = work.madeWith;
       w.extras = work.extras;
     }, true);
   }
+}
+
+/**
+ * The links kept beside the corrections, when there is one for each (an older page's storage has
+ * none): else none.
+ * @param {Edit[]} edits
+ * @param {unknown} links
+ * @returns {(string | null)[]}
+ */
+function linksFor(edits, links) {
+  return Array.isArray(links) && links.length === edits.length ? links : edits.map(() => null);
 }

@@ -35,6 +35,7 @@ pub fn merge_sites(jobs: &[Job], outcomes: &[Outcome], out: &Path) -> Result<Mer
         unmerged: Vec::new(),
     };
     let mut files = Outputs::new();
+    let mut stale = Vec::new();
     for (site, stem) in sites.iter().zip(&stems) {
         let members: Vec<(&Job, &Outcome)> = jobs
             .iter()
@@ -43,6 +44,11 @@ pub fn merge_sites(jobs: &[Job], outcomes: &[Outcome], out: &Path) -> Result<Mer
             .collect();
         match site_tables(site, &members) {
             Ok(tables) => {
+                // An earlier batch's zones file, when the site's plans have no zone now, would
+                // look current beside the new counts: it goes once these are written.
+                if !tables.iter().any(|(what, _)| *what == "zones") {
+                    stale.push(out.join(format!("{stem}_merged-zones.csv")));
+                }
                 for (what, csv) in tables {
                     let path = out.join(format!("{stem}_merged-{what}.csv"));
                     files.write(&path, &csv)?;
@@ -53,6 +59,11 @@ pub fn merge_sites(jobs: &[Job], outcomes: &[Outcome], out: &Path) -> Result<Mer
         }
     }
     files.commit()?;
+    for path in stale.iter().filter(|p| p.exists()) {
+        std::fs::remove_file(path).map_err(|e| {
+            crate::files::bad_input(path, format!("cannot remove this earlier file: {e}"))
+        })?;
+    }
     Ok(merged)
 }
 
