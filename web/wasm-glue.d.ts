@@ -48,6 +48,8 @@ declare namespace wasm_bindgen {
     allBoxes(): Float32Array;
     /** The tracks' paths as counted under the plan: id, frame, x, y, observed (1/0) a point. */
     countedPaths(ids: Uint32Array): Float32Array;
+    /** How many tracks the tracker made, before the person's corrections. */
+    trackedCount(): number;
     trackList(): TrackInfo[];
     /** Sets the corrections (an edits file's or a project file's text) and counts again. */
     setEdits(json: string): Outcome[];

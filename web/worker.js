@@ -67,7 +67,8 @@ async function track(method, settings, footage, progress) {
   tracked = true;
   const bridged = await bridge(footage, progress);
   const trackList = s.trackList();
-  return { tracks: trackList.length, boxes: s.allBoxes(), trackList, bridged };
+  // The tracker's own count; the list is after the person's corrections, when there are some.
+  return { tracks: s.trackedCount(), boxes: s.allBoxes(), trackList, bridged };
 }
 
 /**

@@ -42,6 +42,8 @@ test("reload: the corrections and decisions come back and are applied when track
   await message.getByRole("button", { name: "Run now" }).click();
   await page.waitForFunction(() => /tracks in/.test(document.getElementById("run-status").textContent), null, { timeout: 60000 });
   await countedWith(page, 2);
+  // Run's line: the tracker's own count, then what the corrections leave (track 19 left out).
+  assert.match(await page.locator("#run-status").innerText(), /^28 tracks in [\d.]+ s; 27 after your corrections\.$/);
   await showView(page, "Review");
   assert.equal(await pageReport(page), before, "the same report as before the reload");
   await openTab(page, "Edits");

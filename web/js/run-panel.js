@@ -141,7 +141,7 @@ export class RunPanel {
       const n = out.bridged && "joined" in out.bridged ? out.bridged.joined : null;
       const joined = n === null ? "" : `, ${n} ${n === 1 ? "gap" : "gaps"} bridged with the footage`;
       this.made = { said: `${out.tracks} tracks in ${seconds} s${joined}`, tracks: out.tracks };
-      this.status.textContent = `${this.made.said}.`;
+      this.status.textContent = this.madeText();
       if (run.bridging && !run.footage) this.messages.say("run", "warn", `${this.whyNoFootage()} These counts are from the detections alone.`);
       if (!hasCountingGeometry(this.store.plan)) {
         this.messages.say("run", "warn", "The plan has no lines or zones, so nothing was counted. Press Draw line and click two points across the path, or open a plan file; the counts appear at once.");
@@ -189,13 +189,18 @@ export class RunPanel {
     return { method, settings, footage: withFootage, bridging: n > 0 };
   }
 
-  /** What the last Run made, and how many tracks the person's corrections leave (a merge joins two). */
+  /** The corrections changed the tracks: Run's line says how many they leave. */
   sayMade() {
+    if (this.made && !this.store.tracking) this.status.textContent = this.madeText();
+  }
+
+  /** What the last Run made (the tracker's own count), and how many the person's corrections leave (a merge joins two). */
+  madeText() {
     const made = this.made;
+    if (!made) return "";
     const now = this.store.tracks ? this.store.tracks.list.length : null;
-    if (!made || this.store.tracking) return;
     const after = now !== null && now !== made.tracks ? `; ${now} after your corrections` : "";
-    this.status.textContent = `${made.said}${after}.`;
+    return `${made.said}${after}.`;
   }
 
   /** Why a run that asked for bridging had no footage to bridge with, and what to do. */

@@ -114,21 +114,7 @@ impl Project {
                 "; expected a Throughline project file",
             )
         })?;
-        if p.format != FORMAT {
-            return Err(Error::new(
-                ErrorKind::BadJson,
-                format!("`format` is `{}`, expected `{FORMAT}`", p.format),
-            ));
-        }
-        if p.version != VERSION {
-            return Err(Error::new(
-                ErrorKind::BadJson,
-                format!(
-                    "project file version {} is not known to this program (it reads version {VERSION})",
-                    p.version
-                ),
-            ));
-        }
+        crate::formats::check("project file", (&p.format, p.version), (FORMAT, VERSION))?;
         edits::check(&p.edits)?;
         Ok(p)
     }

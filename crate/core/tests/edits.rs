@@ -326,6 +326,15 @@ fn edits_that_no_longer_fit_say_why() {
 /// file of another version, and a blank class, are refused naming the field.
 #[test]
 fn edits_naming_what_is_not_there_say_so() {
+    let added_at = |x: f64, y: f64| Edit::AddCrossing {
+        screenline: "deck".into(),
+        direction: Way::Forward,
+        class: "pedestrian".into(),
+        frame: 12,
+        x: Some(x),
+        y: Some(y),
+        reason: None,
+    };
     let edits = [
         Edit::RejectCrossing {
             screenline: "no such line".into(),
@@ -334,24 +343,8 @@ fn edits_naming_what_is_not_there_say_so() {
             frame: 5,
             reason: None,
         },
-        Edit::AddCrossing {
-            screenline: "deck".into(),
-            direction: Way::Forward,
-            class: "pedestrian".into(),
-            frame: 12,
-            x: Some(5000.0),
-            y: Some(-30.0),
-            reason: None,
-        },
-        Edit::AddCrossing {
-            screenline: "deck".into(),
-            direction: Way::Forward,
-            class: "pedestrian".into(),
-            frame: 12,
-            x: Some(395.0),
-            y: Some(210.0),
-            reason: None,
-        },
+        added_at(5000.0, -30.0),
+        added_at(395.0, 210.0),
     ];
     let report = count(broken_walker(), &edits);
     let notes: Vec<&str> = report.edits.iter().map(|e| e.note.as_str()).collect();

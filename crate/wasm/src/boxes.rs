@@ -124,6 +124,12 @@ impl Session {
         Ok(Float32Array::from(values.as_slice()))
     }
 
+    /// How many tracks the tracker made (before the person's corrections).
+    #[wasm_bindgen(js_name = trackedCount)]
+    pub fn tracked_count(&self) -> usize {
+        self.tracks.as_ref().map_or(0, |t| t.tracks.len())
+    }
+
     /// The tracks (after edits) without their boxes: `[{id, class, first_frame, last_frame, seen,
     /// first_box, last_box, class_votes}]`.
     #[wasm_bindgen(js_name = trackList)]

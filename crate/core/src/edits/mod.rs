@@ -151,21 +151,11 @@ impl EditList {
                 "; expected an edits file (see docs/edits-format.md)",
             )
         })?;
-        if list.format != FORMAT {
-            return Err(Error::new(
-                ErrorKind::BadJson,
-                format!("`format` is `{}`, expected `{FORMAT}`", list.format),
-            ));
-        }
-        if list.version != VERSION {
-            return Err(Error::new(
-                ErrorKind::BadJson,
-                format!(
-                    "edits file version {} is not known to this program (it reads version {VERSION})",
-                    list.version
-                ),
-            ));
-        }
+        crate::formats::check(
+            "edits file",
+            (&list.format, list.version),
+            (FORMAT, VERSION),
+        )?;
         check(&list.edits)?;
         Ok(list)
     }

@@ -181,21 +181,11 @@ pub fn from_json(bytes: &[u8]) -> Result<Tracks, Error> {
             "; expected a Throughline tracks document (see docs/tracks-format.md)",
         )
     })?;
-    if doc.format != TRACKS_FORMAT {
-        return Err(Error::new(
-            ErrorKind::BadJson,
-            format!("`format` is `{}`, expected `{TRACKS_FORMAT}`", doc.format),
-        ));
-    }
-    if doc.version != TRACKS_VERSION {
-        return Err(Error::new(
-            ErrorKind::BadJson,
-            format!(
-                "tracks document version {} is not known to this program (it reads version {TRACKS_VERSION})",
-                doc.version
-            ),
-        ));
-    }
+    crate::formats::check(
+        "tracks document",
+        (&doc.format, doc.version),
+        (TRACKS_FORMAT, TRACKS_VERSION),
+    )?;
     check_document(&doc)?;
     let tracks = doc
         .tracks
