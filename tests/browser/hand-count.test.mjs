@@ -183,6 +183,8 @@ test("a hand count under way goes on after a reload, its presses kept", async ()
   assert.match(await note.innerText(), /The hand count by Dara \(frames 1 to 250, 2 presses so far\) was under way when the page closed: it goes on/);
   await note.getByRole("button", { name: "Show it" }).click();
   await page.waitForSelector("#tally-live:not([hidden])");
+  // The footage goes to the last press, so counting goes on where it stopped.
+  await page.waitForFunction(() => /^frame 140\b/.test(document.getElementById("clock").textContent));
   assert.match(await page.locator("#tally-status").innerText(), /Dara counting/);
   assert.equal(await page.locator(`#tally-keys button[data-key="${key}"] .count`).innerText(), "2");
   await pressAt(page, 180, key);

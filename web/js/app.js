@@ -95,6 +95,6 @@ function sayTallyResumed() {
   const run = store.handCount.run;
   if (!run) return;
   const { who, from_frame: from, to_frame: to, presses } = run.tally;
-  const go = el("button", { type: "button", text: "Show it", onclick: () => { messages.clear("tally-resumed"); store.viewChosen("review"); store.reviewTabChosen("tally"); } });
+  const go = el("button", { type: "button", text: "Show it", onclick: () => { messages.clear("tally-resumed"); store.viewChosen("review"); store.reviewTabChosen("tally"); tally.resumedShown(); } });
   messages.say("tally-resumed", "ok", `The hand count by ${who} (frames ${from} to ${to}, ${presses.length} press${presses.length === 1 ? "" : "es"} so far) was under way when the page closed: it goes on, under Review, Hand count. Open the same footage if it is not open.`, [go]);
 }

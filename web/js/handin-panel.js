@@ -128,7 +128,10 @@ export class HandinPanel {
     const missing = [];
     if (!this.store.work.site) missing.push("name the site (Set up, Files, Site name)");
     if (!this.store.plan.start) missing.push("give the recording's start time (Set up, Plan, Start time) for clock times and the date");
-    if (projectUnsaved(this.store)) missing.push(`save the project (Set up, Files, Save project): the files name ${projectFileName(this.store.work.site)} as what reproduces these counts, and the work has changed since it was saved`);
+    if (projectUnsaved(this.store)) {
+      const since = this.store.work.savedAs ? "the work has changed since it was saved" : "it is not saved yet";
+      missing.push(`save the project (Set up, Files, Save project): the files name ${projectFileName(this.store.work.site)} as what reproduces these counts, and ${since}`);
+    }
     byId("handin-missing", HTMLElement).textContent = missing.length ? `To head the tables properly, ${missing.join(", and ")}.` : "";
     byId("grid-view", HTMLElement).replaceChildren(...gridView(this.grid().tab));
     byId("matrix-view", HTMLElement).replaceChildren(...matrixView(s.matrix.tab));

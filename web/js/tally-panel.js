@@ -155,6 +155,19 @@ export class TallyPanel {
   }
 
   /**
+   * A tally gone on with after a reload, shown: the footage at its last press (or its start), so
+   * counting goes on where it stopped, and the keys in view.
+   */
+  resumedShown() {
+    const run = this.store.handCount.run;
+    if (!run) return;
+    const presses = run.tally.presses;
+    this.picture.seekFrame(presses.length ? presses[presses.length - 1].frame : run.tally.from_frame);
+    this.live.focus();
+    this.bringIntoView();
+  }
+
+  /**
    * On a narrow screen the footage stays at the top while reviewing: the tally's status and keys
    * are brought just under it, so both are in view while counting (a newcomer's trial: the keys
    * were below the fold, and scrolling slid them under the footage).

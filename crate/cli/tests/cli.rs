@@ -1131,6 +1131,31 @@ fn frames_gives_the_clips_length_when_the_detections_end_early() {
         ),
         "{e}"
     );
+    // Boxes past the footage's end (one mistyped frame, or another clip's boxes) are named.
+    let far = write(
+        &dir,
+        "far.txt",
+        format!(
+            "{}4000000,-1,10,10,20,40,0.9\n",
+            std::fs::read_to_string(&dets).unwrap()
+        )
+        .as_bytes(),
+    );
+    let o = throughline(&[
+        "run",
+        &far,
+        "--plan",
+        &plan,
+        "--footage",
+        &webm,
+        "-o",
+        &report,
+    ]);
+    let e = stderr(&o);
+    assert!(
+        e.contains("the boxes go on to frame 4000000, past the footage's 750 frames"),
+        "{e}"
+    );
     // Footage it cannot read (here not a video at all) is named, its length left to --frames.
     let other = write(&dir, "clip.avi", b"RIFF....AVI not really");
     let report = dir.join("r.json").display().to_string();

@@ -243,6 +243,13 @@ fn the_summary_names_the_site_counts_checks_and_what_reproduces_them() {
     ] {
         assert!(html.contains(needle), "missing {needle}");
     }
+    // With the footage named, the command names it too: the count then reaches its end where the
+    // detections stop before it, as the page counted (a newcomer's re-trial: it stopped at the
+    // last box).
+    ctx.footage = Some(Fingerprint::of("north.webm", 3, b"abc", Some(30.0)));
+    assert!(handin::summary_html(&r, &ctx).contains(
+        "throughline run detections.csv --plan bridge-st.json --footage north.webm --edits"
+    ));
     // Self-contained: nothing is fetched, nothing runs.
     assert!(
         !html.contains("<script") && !html.contains("src=\"http") && !html.contains("href=\"http")

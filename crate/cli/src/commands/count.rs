@@ -177,6 +177,14 @@ pub fn with_length(
     known: Option<u32>,
 ) -> Result<(), Failure> {
     let Some(n) = frames else {
+        if let Some(k) = known.filter(|&k| k < tracks.frame_count) {
+            // Boxes past the footage's end: another clip's detections, or a frame mistyped.
+            eprintln!(
+                "warning: the boxes go on to frame {}, past the footage's {k} frames: are these \
+                 the detections of this footage? (the count reaches frame {})",
+                tracks.frame_count, tracks.frame_count
+            );
+        }
         tracks.frame_count = tracks.frame_count.max(known.unwrap_or(0));
         return Ok(());
     };

@@ -128,7 +128,8 @@ pub fn short_hashes(report: &Report, ctx: &Context) -> Vec<(&'static str, String
     out
 }
 
-/// The one command line that gives the same counts from the same files.
+/// The one command line that gives the same counts from the same files: with the footage named,
+/// so the count reaches its end when the detections stop before it (as the page counted).
 pub fn command_line(ctx: &Context) -> String {
     let detections = ctx
         .detections
@@ -136,6 +137,9 @@ pub fn command_line(ctx: &Context) -> String {
         .map_or("DETECTIONS", |f| f.name.as_str());
     let plan = ctx.plan_name.as_deref().unwrap_or("plan.json");
     let mut cmd = format!("throughline run {detections} --plan {plan}");
+    if let Some(f) = &ctx.footage {
+        cmd.push_str(&format!(" --footage {}", f.name));
+    }
     if let Some(p) = &ctx.project_name {
         cmd.push_str(&format!(" --edits {p}"));
     }

@@ -217,7 +217,10 @@ fn zone(i: usize, z: &ZoneSpec, names: &mut HashSet<String>) -> Result<Zone, Err
     if on_one_line {
         return Err(err(
             format!("{field}.polygon"),
-            "the corners are all on one line, so they enclose no area",
+            format!(
+                "zone `{}`: the corners are all on one line, so they enclose no area",
+                z.name
+            ),
         ));
     }
     // Edges that cross first: a bow tie's two halves can cancel to no area.
@@ -226,8 +229,9 @@ fn zone(i: usize, z: &ZoneSpec, names: &mut HashSet<String>) -> Result<Zone, Err
         return Err(err(
             format!("{field}.polygon"),
             format!(
-                "the edge from corner {a} to {} crosses the edge from corner {b} to {}: list the \
-                 corners in order around the zone",
+                "zone `{}`: the edge from corner {a} to {} crosses the edge from corner {b} to {}: \
+                 list the corners in order around the zone",
+                z.name,
                 (a + 1) % n,
                 (b + 1) % n
             ),
@@ -236,7 +240,7 @@ fn zone(i: usize, z: &ZoneSpec, names: &mut HashSet<String>) -> Result<Zone, Err
     if polygon.area() == 0.0 {
         return Err(err(
             format!("{field}.polygon"),
-            "the corners enclose no area",
+            format!("zone `{}`: the corners enclose no area", z.name),
         ));
     }
     Ok(Zone {
