@@ -78,6 +78,18 @@ test("a crossing added with a track chosen is offered as that track's class and 
   assert.equal(await page.getByLabel("Its class").inputValue(), "cyclist");
   assert.equal(await page.getByLabel("Direction", { exact: true }).inputValue(), "backward");
   assert.match(await page.locator("#add-at").innerText(), /where track 8 meets the line/);
+  // Track 4 crosses the divide eastbound (backward) at frame 113 and the midline towards the camera
+  // (forward) at 436 (the command line's report): at each frame, the way over the line chosen is
+  // the one it was counted going (a newcomer's re-trial: it was offered "towards bridge" throughout).
+  const four = uncorrected().events.filter((e) => e.track === 4).map((e) => [e.name, e.direction, e.frame]);
+  assert.deepEqual(four, [["east-west divide", "backward", 113], ["plaza midline", "forward", 436]]);
+  await chooseTrack(page, 4);
+  await openTab(page, "Events");
+  for (const [name, way, frame] of four) {
+    await goToFrame(page, frame);
+    await page.getByLabel("Line", { exact: true }).selectOption(name);
+    assert.equal(await page.getByLabel("Direction", { exact: true }).inputValue(), way, `track 4 at frame ${frame} over ${name}`);
+  }
   assert.deepEqual(seen.errors, []);
   await page.close();
 });

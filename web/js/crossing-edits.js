@@ -39,39 +39,81 @@ export class AddCrossingForm {
     this.at = byId("add-at", HTMLElement);
     this.done = byId("add-done", HTMLElement);
     this.line.addEventListener("change", () => {
+      this.lineChosen = true;
       this.offerDirections();
-      this.followFocus(true);
+      this.followFocus("line");
     });
-    /** @type {number | null} the track whose class and way the form last took */
+    /** Whether the person chose the line themselves since the track was chosen (it then stays). */
+    this.lineChosen = false;
+    this.direction.addEventListener("change", () => { this.wayChosen = true; });
+    /** @type {number | null} the track whose class, line and way the form last took */
     this.followed = null;
+    /** Whether the person chose the way themselves since (it then stays). */
+    this.wayChosen = false;
     this.form.addEventListener("submit", (e) => { e.preventDefault(); this.add(); });
     store.subscribe(["plan"], () => this.offerLines());
     store.subscribe(["frame", "focus", "tracks"], () => this.showWhere());
-    store.subscribe(["focus"], () => this.followFocus());
+    store.subscribe(["focus"], () => this.followFocus("focus"));
+    store.subscribe(["frame"], () => this.followFocus("frame"));
     this.offerLines();
   }
 
   /**
-   * A track chosen: the form offers its class, and the direction it moves across the chosen line
-   * around the frame shown (a newcomer's trial: a cyclist going backward was offered as a
-   * pedestrian going forward).
+   * A track chosen: the form offers its class, the line nearest it at the frame shown, and the way
+   * it moves across that line around that frame (a newcomer's trial: a cyclist going backward was
+   * offered as a pedestrian going forward). The class once for a track (the counts coming back make
+   * the focus anew, and what the person has typed since stays); the line and the way follow the
+   * frame shown until the person chooses them.
+   * @param {"focus" | "line" | "frame"} why
    */
-  /**
-   * @param {boolean} [lineChosen] the line was chosen anew: the way across it is taken again
-   */
-  followFocus(lineChosen = false) {
-    const { focus, tracks, plan, frame } = this.store;
+  followFocus(why) {
+    const { focus, tracks } = this.store;
     const id = focus && focus.tracks.length ? focus.tracks[0] : null;
-    // Once a track: the counts coming back make the focus anew, and what the person has typed or
-    // chosen since stays.
-    if (id === null) this.followed = null;
-    if (id === null || !tracks || (id === this.followed && !lineChosen)) return;
-    const cls = tracks.classes.get(id);
-    if (cls && !lineChosen) this.cls.value = cls;
-    this.followed = id;
+    if (id === null || !tracks) {
+      this.followed = null;
+      return;
+    }
+    if (id !== this.followed) {
+      if (why !== "focus") return;
+      this.followed = id;
+      this.wayChosen = false;
+      this.lineChosen = false;
+      const cls = tracks.classes.get(id);
+      if (cls) this.cls.value = cls;
+    }
+    if (!this.lineChosen) this.chooseNearestLine(id);
+    if (!this.wayChosen) this.followWay(id);
+  }
+
+  /** @param {number} id the track in focus: the line nearest its count point at the frame shown is chosen */
+  chooseNearestLine(id) {
+    const { tracks, plan, frame } = this.store;
+    if (!tracks) return;
+    /** @type {Point | null} */
+    let at = null;
+    tracks.forEachBox(frame, (t, x, y, w, h) => { if (t === id) at = countPoint(x, y, w, h, plan.anchor); });
+    const p = /** @type {Point | null} */ (at);
+    if (!p) return;
+    let best = { name: "", d: Infinity };
+    for (const l of plan.screenlines) {
+      if (l.points.length < 2) continue;
+      const [qx, qy] = nearestOnLine(l.points, p);
+      const d = Math.hypot(qx - p[0], qy - p[1]);
+      if (d < best.d) best = { name: l.name, d };
+    }
+    if (best.name && best.name !== this.line.value) {
+      this.line.value = best.name;
+      this.offerDirections();
+    }
+  }
+
+  /** @param {number} id the track in focus: the way it moves across the chosen line within two seconds either side of the frame shown */
+  followWay(id) {
+    const { tracks, plan, frame, fps } = this.store;
     const line = plan.screenlines.find((l) => l.name === this.line.value);
     const side = line ? forwardSide(line.points) : null;
-    const path = tracks.paths(frame - 12, frame + 12, plan.anchor, new Set([id])).get(id);
+    const reach = Math.max(1, Math.round(2 * fps));
+    const path = tracks ? tracks.paths(frame - reach, frame + reach, plan.anchor, new Set([id])).get(id) : undefined;
     if (!side || !path || path.pts.length < 2) return;
     const [a, b] = [path.pts[0], path.pts[path.pts.length - 1]];
     const across = (b[0] - a[0]) * side.normal[0] + (b[1] - a[1]) * side.normal[1];
