@@ -60,7 +60,7 @@ export class ProjectPanel {
     if (some && !window.confirm(`Clear the corrections, decisions, hand counts and site name of this work, to begin afresh? The plan and the files stay open. Save project first to keep the work in a file.${running}`)) return;
     this.store.workCleared();
     this.projectName.textContent = "plan, corrections and decisions in one file";
-    for (const key of ["project-files", "project-rules", "project-tracking"]) this.messages.clear(key);
+    for (const key of ["project-files", "project-rules", "project-tracking", "work-kept"]) this.messages.clear(key);
     const undo = el("button", { type: "button", text: "Undo", onclick: () => { this.messages.clear("work-cleared"); this.store.correctionsUndone(); } });
     this.messages.say("work-cleared", "ok", "Work cleared: no corrections, decisions or hand counts. Undo (here, or under Review) brings all of it back, the site's name too.", [undo]);
   }

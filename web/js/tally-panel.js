@@ -276,7 +276,8 @@ export class TallyPanel {
    */
   handleKey(e) {
     const run = this.store.handCount.run;
-    if (!run || e.ctrlKey || e.metaKey || e.altKey) return false;
+    // Under Review only, where the tally's keys and counts are shown (elsewhere a press went unseen).
+    if (!run || this.store.view !== "review" || e.ctrlKey || e.metaKey || e.altKey) return false;
     const t = e.target instanceof Element ? e.target : null;
     if (t && (t.closest("select, textarea") || (t instanceof HTMLInputElement && !["range", "checkbox", "radio", "button"].includes(t.type)))) return false;
     if (e.key === UNDO_KEY) {

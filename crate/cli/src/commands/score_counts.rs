@@ -180,6 +180,7 @@ fn pooled(acc: &accuracy::Accuracy) -> String {
     });
     let left_out = match acc.unmatched_reference_rows {
         0 => String::new(),
+        1 => " — INCOMPLETE: 1 reference row left out (see the warning)".to_string(),
         n => format!(" — INCOMPLETE: {n} reference rows left out (see the warning)"),
     };
     format!(
@@ -194,11 +195,16 @@ fn pooled(acc: &accuracy::Accuracy) -> String {
 /// perfect).
 fn unmatched(acc: &accuracy::Accuracy) -> String {
     let (left, known) = labels(acc);
+    let rows = match acc.unmatched_reference_rows {
+        1 => "1 reference row names a screenline and direction the report does not have, so it is"
+            .to_string(),
+        n => format!(
+            "{n} reference rows name a screenline and direction the report does not have, so they are"
+        ),
+    };
     format!(
-        "{} reference rows name a screenline and direction the report does not have, so they are \
-         left out and the comparison is incomplete: {left}; the report has {known} (check the \
-         spelling and capital letters, as in the counts CSV)",
-        acc.unmatched_reference_rows,
+        "{rows} left out and the comparison is incomplete: {left}; the report has {known} (check \
+         the spelling and capital letters, as in the counts CSV)"
     )
 }
 
