@@ -82,8 +82,9 @@ pub fn run(args: Args) -> Result<(), Failure> {
         (tracks_io::boxes_to_tracks(&boxes), None)
     };
     let project_at = args.edits.as_deref().zip(project.as_ref());
-    let known = known_length(&tracks, project_at, &plan, FootageFiles::default())?;
-    with_length(&mut tracks, args.frames, known)?;
+    with_length(&mut tracks, args.frames, |t| {
+        known_length(t, project_at, &plan, FootageFiles::default())
+    })?;
     let report = pipeline::count(&tracks, &plan, tracker.as_ref(), &work)
         .map_err(|e| bad_input(&args.plan, e))?;
     let paths = ReportPaths {
@@ -169,14 +170,15 @@ pub fn known_length(
 
 /// The footage's length (`--frames`) given to the tracks: the count's intervals reach to it. Shorter
 /// than the boxes or the footage already read is refused, naming what it must reach. Without it,
-/// the footage's length when known otherwise (`known`: the duration of the footage a project was
-/// made with, a `--y4m` file's frames) when the tracks end before it, as the page counts them.
+/// the footage's length when known otherwise (`known`, asked only then: [`known_length`]) when the
+/// tracks end before it, as the page counts them; boxes past it are named.
 pub fn with_length(
     tracks: &mut throughline_core::Tracks,
     frames: Option<u32>,
-    known: Option<u32>,
+    known: impl FnOnce(&throughline_core::Tracks) -> Result<Option<u32>, Failure>,
 ) -> Result<(), Failure> {
     let Some(n) = frames else {
+        let known = known(tracks)?;
         if let Some(k) = known.filter(|&k| k < tracks.frame_count) {
             // Boxes past the footage's end: another clip's detections, or a frame mistyped.
             eprintln!(

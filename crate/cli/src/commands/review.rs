@@ -57,13 +57,9 @@ pub fn run(args: Args) -> Result<(), Failure> {
     let project_at = args.edits.as_deref().zip(project.as_ref());
     let (how, settings) = with_project(&args.tracking, project_at)?;
     let mut tracks = track_file_with(&args.detections, &how, settings, &mut Timer::new())?;
-    let known = super::count::known_length(
-        &tracks,
-        project_at,
-        &plan,
-        super::count::FootageFiles::default(),
-    )?;
-    super::count::with_length(&mut tracks, args.frames, known)?;
+    super::count::with_length(&mut tracks, args.frames, |t| {
+        super::count::known_length(t, project_at, &plan, super::count::FootageFiles::default())
+    })?;
     let report = pipeline::count(&tracks, &plan, Some(&tracks.config), &work)
         .map_err(|e| bad_input(&args.plan, e))?;
     let shown = pipeline::correct_tracks(&tracks, &work.edits).0;

@@ -116,12 +116,9 @@ pub fn run(args: Args) -> Result<(), Failure> {
         video: args.handin.footage.as_deref(),
         quiet: args.tracking.quiet,
     };
-    // --frames says the length: no need to read the footage for it.
-    let known = match args.handin.frames {
-        Some(_) => None,
-        None => super::count::known_length(&tracks, project_at, &plan, footage)?,
-    };
-    super::count::with_length(&mut tracks, args.handin.frames, known)?;
+    super::count::with_length(&mut tracks, args.handin.frames, |t| {
+        super::count::known_length(t, project_at, &plan, footage)
+    })?;
     let report = pipeline::count(&tracks, &plan, Some(&tracks.config), &work)
         .map_err(|e| bad_input(&args.plan, e))?;
     let mut files = Outputs::new();
