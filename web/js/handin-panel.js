@@ -7,7 +7,7 @@
 
 import { byId, download } from "./dom.js";
 import { gridView, matrixView, shape } from "./sheets.js";
-import { projectFileName, projectUnsaved } from "./project-panel.js";
+import { projectFileName, projectStatus, projectUnsaved } from "./project-panel.js";
 
 /** @typedef {import("./store.js").PageStore} PageStore */
 /** @typedef {import("./core-client.js").CoreClient} CoreClient */
@@ -129,7 +129,7 @@ export class HandinPanel {
     if (!this.store.work.site) missing.push("name the site (Set up, Files, Site name)");
     if (!this.store.plan.start) missing.push("give the recording's start time (Set up, Plan, Start time) for clock times and the date");
     if (projectUnsaved(this.store)) {
-      const since = this.store.work.savedAs ? "the work has changed since it was saved" : "it is not saved yet";
+      const since = projectStatus(this.store) === "not saved yet" ? "it is not saved yet" : "the work has changed since it was saved";
       missing.push(`save the project (Set up, Files, Save project): the files name ${projectFileName(this.store.work.site)} as what reproduces these counts, and ${since}`);
     }
     byId("handin-missing", HTMLElement).textContent = missing.length ? `To head the tables properly, ${missing.join(", and ")}.` : "";

@@ -67,11 +67,9 @@ export class ProjectPanel {
 
   /** Beside Save project: whether the work has changed since the project was saved (or opened). */
   saySaved() {
-    const { work } = this.store;
-    const unsaved = projectUnsaved(this.store);
-    const saved = !unsaved && work.savedAs !== "" && projectState(this.store) === work.savedAs;
-    this.saved.textContent = unsaved ? (work.savedAs ? "changed since saved" : "not saved yet") : saved ? "saved" : "";
-    this.saved.classList.toggle("unsaved", unsaved);
+    const status = projectStatus(this.store);
+    this.saved.textContent = status;
+    this.saved.classList.toggle("unsaved", status !== "" && status !== "saved");
   }
 
   /** The project as a plain object, as the core writes it. */
@@ -222,14 +220,27 @@ export function projectState(store) {
 }
 
 /**
- * Whether the counts need a project file to be reproduced (corrections, hand counts or a factor)
- * and the work has changed since one was last saved or opened here.
+ * The project file against the work, as said beside Save project: "saved" while it holds the work
+ * as it is; "not saved yet" or "changed since saved" when the counts need one to be reproduced
+ * (corrections, hand counts or a factor) and it does not; else "".
+ * @param {PageStore} store
+ * @returns {"" | "saved" | "not saved yet" | "changed since saved"}
+ */
+export function projectStatus(store) {
+  const { work } = store;
+  if (work.savedAs && projectState(store) === work.savedAs) return "saved";
+  const needed = work.edits.length > 0 || Boolean(work.extras.tallies || work.extras.correction);
+  if (!needed) return "";
+  return work.savedAs ? "changed since saved" : "not saved yet";
+}
+
+/**
+ * Whether the counts need a project file to be reproduced and it does not hold the work as it is.
  * @param {PageStore} store
  */
 export function projectUnsaved(store) {
-  const { work } = store;
-  const needed = work.edits.length > 0 || Boolean(work.extras.tallies || work.extras.correction);
-  return needed && projectState(store) !== work.savedAs;
+  const status = projectStatus(store);
+  return status === "not saved yet" || status === "changed since saved";
 }
 
 /**
