@@ -39,13 +39,18 @@ import { CASING, DIRECTION_COLOUR, PLAN_INK, STATE_COLOUR } from "./palette.js";
 
 /** The opacity of a plan's label over a box of this frame. */
 const SEE_THROUGH = 0.5;
+/** How much of the label or the box (the smaller) their overlap must be for the label to be see-through. */
+const COVERED = 0.3;
 
 /**
+ * The area two rectangles share.
  * @param {Rect} a
  * @param {Rect} b
  */
 function overlap(a, b) {
-  return a.x < b.x + b.w && b.x < a.x + a.w && a.y < b.y + b.h && b.y < a.y + a.h;
+  const w = Math.min(a.x + a.w, b.x + b.w) - Math.max(a.x, b.x);
+  const h = Math.min(a.y + a.h, b.y + b.h) - Math.max(a.y, b.y);
+  return w > 0 && h > 0 ? w * h : 0;
 }
 
 /** Most crossings marked on the picture at once: the latest ones. */
@@ -74,8 +79,9 @@ export function drawOverlay(ctx, scene) {
   if (scene.tracks) scene.tracks.forEachBox(scene.frame, (_, x, y, w, h) => { people.push({ x, y, w, h }); });
   /** @type {{key: string, rect: Rect, of?: Rect}[]} */
   const drawn = scene.layout.placed.map(({ key, rect, content }) => {
-    // A label placed where someone is at this frame is see-through: they show through it.
-    ctx.globalAlpha = people.some((b) => overlap(b, rect)) ? SEE_THROUGH : 1;
+    // A label placed over much of someone at this frame is see-through: they show through it (a
+    // corner of a box over it leaves it as it is, easier to read).
+    ctx.globalAlpha = people.some((b) => overlap(b, rect) >= COVERED * Math.min(b.w * b.h, rect.w * rect.h)) ? SEE_THROUGH : 1;
     drawTag(ctx, rect, content(scene.frame), px);
     ctx.globalAlpha = 1;
     return { key, rect };
