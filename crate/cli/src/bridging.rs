@@ -4,7 +4,6 @@
 
 use crate::files::{bad_input, name, Failure};
 use crate::progress;
-use std::io::BufReader;
 use std::path::Path;
 use throughline_core::{pipeline, Tracks};
 use throughline_footage::y4m;
@@ -30,10 +29,7 @@ pub fn bridge_with_footage(
         pipeline::not_bridged(&mut tracks);
         return Ok(tracks);
     }
-    let file = std::fs::File::open(footage)
-        .map_err(|e| bad_input(footage, format!("cannot read the file: {e}")))?;
-    let mut reader = y4m::Reader::new(BufReader::with_capacity(1 << 20, file))
-        .map_err(|e| bad_input(footage, e))?;
+    let mut reader = crate::frames::open_y4m(footage)?;
     let header = *reader.header();
     let mut bridger = pipeline::bridger(&tracks, header.width, header.height);
     let last = bridger.last_frame_needed();

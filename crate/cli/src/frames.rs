@@ -3,6 +3,7 @@
 //! reading the file (about a tenth of the detector's time on one core) overlaps the search. The
 //! frames reach the caller one at a time and in order, so what is found does not change.
 
+use crate::decode::{decode, is_y4m};
 use crate::files::{bad_input, name, Failure};
 use std::io::{BufRead, BufReader, Read};
 use std::path::Path;
@@ -16,15 +17,18 @@ pub type Y4m = y4m::Reader<BufReader<Box<dyn Read + Send>>>;
 /// Frames read ahead of the one being searched.
 const AHEAD: usize = 3;
 
-/// A YUV4MPEG2 reader over a file, or standard input for `-`.
+/// A YUV4MPEG2 reader over footage: a YUV4MPEG2 file, standard input for `-`, or any other video
+/// decoded by ffmpeg ([`crate::decode`]).
 pub fn open_y4m(footage: &Path) -> Result<Y4m, Failure> {
     let input: Box<dyn Read + Send> = if footage == Path::new("-") {
         Box::new(std::io::stdin())
-    } else {
+    } else if is_y4m(footage)? {
         Box::new(
             std::fs::File::open(footage)
                 .map_err(|e| bad_input(footage, format!("cannot read the file: {e}")))?,
         )
+    } else {
+        Box::new(decode(footage)?)
     };
     y4m::Reader::new(BufReader::with_capacity(1 << 20, input)).map_err(|e| bad_input(footage, e))
 }
@@ -100,10 +104,6 @@ pub fn each_frame(
 /// duration is their span plus one frame's time. `None`, with a note unless `quiet`, for other
 /// footage, a file damaged part way or one of a single frame (then `--frames` tells the length).
 pub fn video_frames(footage: &Path, frame_rate: f64, quiet: bool) -> Result<Option<u32>, Failure> {
-    use throughline_footage::demux::Demuxer;
-    let file = std::fs::File::open(footage)
-        .map_err(|e| bad_input(footage, format!("cannot read the file: {e}")))?;
-    let size = file.metadata().map_or(0, |m| m.len());
     let note = |what: String| {
         if !quiet {
             eprintln!("note: {}: {what}", footage.display());
@@ -116,23 +116,10 @@ pub fn video_frames(footage: &Path, frame_rate: f64, quiet: bool) -> Result<Opti
         ));
         Ok(None)
     };
-    let mut video = match Demuxer::open(BufReader::with_capacity(1 << 16, file), size) {
-        Ok((video, _)) => video,
-        Err(why) if why.starts_with("neither") => return unread("not WebM or MP4"),
+    let (n, first, last) = match video_times(footage)? {
+        Ok(times) => times,
         Err(why) => return unread(&why),
     };
-    let (mut n, mut first, mut last) = (0u64, i64::MAX, i64::MIN);
-    loop {
-        match video.next_chunk() {
-            Ok(Some(c)) if n < MAX_FOOTAGE_FRAMES as u64 => {
-                n += 1;
-                (first, last) = (first.min(c.timestamp_us), last.max(c.timestamp_us));
-            }
-            Ok(Some(_)) => return unread("more frames than footage may have"),
-            Ok(None) => break,
-            Err(why) => return unread(&why),
-        }
-    }
     if n < 2 || last <= first {
         return unread("fewer than two frames with their times");
     }
@@ -150,11 +137,50 @@ pub fn video_frames(footage: &Path, frame_rate: f64, quiet: bool) -> Result<Opti
     Ok(Some(frames))
 }
 
-/// How many frames a YUV4MPEG2 file holds (passed over by seeking, not read); `None` for
-/// standard input, which can be read only once.
+/// A WebM or MP4 file's video frames, passed over as the page reads them: how many, and the first
+/// and last one's time (µs). The inner error says why they could not be read (`neither` WebM nor
+/// MP4, damaged, too many).
+fn video_times(footage: &Path) -> Result<Result<(u64, i64, i64), String>, Failure> {
+    use throughline_footage::demux::Demuxer;
+    let file = std::fs::File::open(footage)
+        .map_err(|e| bad_input(footage, format!("cannot read the file: {e}")))?;
+    let size = file.metadata().map_or(0, |m| m.len());
+    let mut video = match Demuxer::open(BufReader::with_capacity(1 << 16, file), size) {
+        Ok((video, _)) => video,
+        Err(why) if why.starts_with("neither") => return Ok(Err("not WebM or MP4".into())),
+        Err(why) => return Ok(Err(why)),
+    };
+    let (mut n, mut first, mut last) = (0u64, i64::MAX, i64::MIN);
+    loop {
+        match video.next_chunk() {
+            Ok(Some(c)) if n < MAX_FOOTAGE_FRAMES as u64 => {
+                n += 1;
+                (first, last) = (first.min(c.timestamp_us), last.max(c.timestamp_us));
+            }
+            Ok(Some(_)) => return Ok(Err("more frames than footage may have".into())),
+            Ok(None) => return Ok(Ok((n, first, last))),
+            Err(why) => return Ok(Err(why)),
+        }
+    }
+}
+
+/// How many frames a YUV4MPEG2 file holds (passed over by seeking, not read), or other video
+/// once decoded; `None` for standard input, which can be read only once.
 pub fn y4m_frames(footage: &Path) -> Result<Option<u32>, Failure> {
     if footage == Path::new("-") {
         return Ok(None);
+    }
+    if !is_y4m(footage)? {
+        // WebM and MP4 frames are counted in the container; other video is decoded to count.
+        if let Ok((n, _, _)) = video_times(footage)? {
+            return Ok(Some(u32::try_from(n).unwrap_or(u32::MAX)));
+        }
+        let mut reader = open_y4m(footage)?;
+        let mut frames = 0u32;
+        while next_frame(&mut reader, footage, false)?.is_some() {
+            frames = frames.saturating_add(1);
+        }
+        return Ok(Some(frames));
     }
     let file = std::fs::File::open(footage)
         .map_err(|e| bad_input(footage, format!("cannot read the file: {e}")))?;

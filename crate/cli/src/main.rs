@@ -7,6 +7,7 @@
 mod bridging;
 mod commands;
 mod cores;
+mod decode;
 mod files;
 mod frames;
 mod handin;

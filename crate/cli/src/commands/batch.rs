@@ -24,7 +24,7 @@ mod slurm;
 /// The long help of the command (`--help`).
 pub const LONG_ABOUT: &str = "Count many clips: every entry of a manifest, on all cores.\n\n\
     MANIFEST is CSV with a header row; each row is one clip: name (its output folder), detections \
-    or footage (YUV4MPEG2), plan, and optionally site, camera, start, method, settings, detector, \
+    or footage (YUV4MPEG2, or other video such as WebM or MP4, decoded by ffmpeg), plan, and optionally site, camera, start, method, settings, detector, \
     edits, still. Paths are relative to the manifest's folder. Each entry's report.json and \
     counts.csv (and, with a site, the hand-in files) go in OUT/NAME/, with entry.json written last. \
     Run the same command again after an interruption: entries done with the same inputs and \

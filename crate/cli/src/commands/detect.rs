@@ -14,7 +14,8 @@ use throughline_footage::y4m;
 /// The long help of the command (`--help`).
 pub const LONG_ABOUT: &str = "Find moving objects in footage from a fixed camera, without any model.\n\n\
     Reads YUV4MPEG2 (4:2:0 or mono, 8 bits), as `ffmpeg -i INPUT -pix_fmt yuv420p -f yuv4mpegpipe -` \
-    writes it, from a file or from standard input (-), and writes detections for `track` and `run`: \
+    writes it, from a file or from standard input (-); any other video file (WebM, MP4, …) is decoded \
+    by ffmpeg when it is installed, each frame once, so the boxes are the page's. It writes detections for `track` and `run`: \
     CSV (frame,x,y,w,h,score,class) when classes are guessed (with far_height/near_height set), \
     else the benchmark text format (frame,-1,x,y,w,h,score,-1,-1,-1). A file is read twice: first for \
     the background (pictures sampled over the whole clip), then to find objects from its first frame. \
@@ -24,8 +25,9 @@ pub const LONG_ABOUT: &str = "Find moving objects in footage from a fixed camera
 /// Find moving objects in footage from a fixed camera, without any model.
 #[derive(clap::Args)]
 pub struct Args {
-    /// Footage as YUV4MPEG2, or - for standard input.
-    #[arg(long, value_name = "FILE")]
+    /// Footage: YUV4MPEG2 (or - for standard input), or any other video (WebM, MP4, …) decoded by
+    /// ffmpeg.
+    #[arg(long, visible_alias = "footage", value_name = "FILE")]
     y4m: PathBuf,
     /// Where to write the detections; without it they go to standard output.
     #[arg(short, long, value_name = "OUT")]
@@ -136,6 +138,9 @@ pub fn detect_footage(
 /// The first reading: every frame offered to the detector's background sampler, only the ones it
 /// keeps read (the others passed over by a seek).
 fn sample_clip(detector: &mut Detector, footage: &Path, quiet: bool) -> Result<(), Failure> {
+    if !crate::decode::is_y4m(footage)? {
+        return sample_decoded(detector, footage, quiet);
+    }
     let file = std::fs::File::open(footage)
         .map_err(|e| bad_input(footage, format!("cannot read the file: {e}")))?;
     // A small buffer: most frames are passed over, and a kept frame is read past it.
@@ -154,6 +159,25 @@ fn sample_clip(detector: &mut Detector, footage: &Path, quiet: bool) -> Result<(
             detector.pass_sample();
         } else {
             break;
+        }
+        bar.inc(1);
+    }
+    bar.finish_and_clear();
+    Ok(())
+}
+
+/// [`sample_clip`] for video decoded by ffmpeg: every frame is decoded (a pipe cannot be sought),
+/// the wanted ones given.
+fn sample_decoded(detector: &mut Detector, footage: &Path, quiet: bool) -> Result<(), Failure> {
+    let mut reader = open_y4m(footage)?;
+    let header = *reader.header();
+    let bar = progress::spinner(quiet, "background {spinner} frame {pos} ({per_sec})");
+    while let Some(frame) = next_frame(&mut reader, footage, false)? {
+        if detector.wants_sample() {
+            let pic = picture(&header, frame, footage)?;
+            detector.sample(&pic).map_err(|e| bad_input(footage, e))?;
+        } else {
+            detector.pass_sample();
         }
         bar.inc(1);
     }

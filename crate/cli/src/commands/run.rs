@@ -23,17 +23,20 @@ pub const LONG_ABOUT: &str = "Track detections, then count them against a plan.\
 /// Track detections, then count them against a plan (screenlines, zones, intervals).
 #[derive(clap::Args)]
 pub struct Args {
-    /// Detections file (as for `track`); or give --y4m to find them in footage.
-    #[arg(required_unless_present = "y4m")]
+    /// Detections file (as for `track`); or give the footage alone (--footage or --y4m) to find
+    /// them in it.
+    #[arg(required_unless_present_any = ["y4m", "footage"])]
     detections: Option<PathBuf>,
-    /// Footage as YUV4MPEG2 (a file, or - for standard input). Alone: moving objects are found by
-    /// the built-in detector (fixed camera). With a detections file: the footage they were found
-    /// in. Either way, from a file, gaps where detections were missed are bridged by following
-    /// objects in the footage (V-IOU; `bridge_frames` in the tracker settings, 0 for off).
+    /// Footage: YUV4MPEG2 (a file, or - for standard input), or any other video (WebM, MP4, …)
+    /// decoded by ffmpeg. Alone: moving objects are found by the built-in detector (fixed
+    /// camera). With a detections file: the footage they were found in. Either way, from a file,
+    /// gaps where detections were missed are bridged by following objects in the footage (V-IOU;
+    /// `bridge_frames` in the tracker settings, 0 for off).
     #[arg(long, value_name = "FILE")]
     y4m: Option<PathBuf>,
-    /// Detector settings (JSON; see docs/detector-settings.md), with --y4m and no detections file.
-    #[arg(long, value_name = "FILE", requires = "y4m")]
+    /// Detector settings (JSON; see docs/detector-settings.md), for footage given without a
+    /// detections file.
+    #[arg(long, value_name = "FILE")]
     detector_config: Option<PathBuf>,
     /// Counting plan (JSON).
     #[arg(long, value_name = "PLAN")]
@@ -75,7 +78,9 @@ struct HandinArgs {
     #[arg(long, value_name = "N")]
     frames: Option<u32>,
     /// The original footage file, to name it in the outputs; a WebM or MP4's frames are counted
-    /// too, for the footage's length (see --frames).
+    /// too, for the footage's length (see --frames). Given without a detections file (and without
+    /// --y4m), moving objects are found in it, as with --y4m (other than YUV4MPEG2, ffmpeg decodes
+    /// it).
     #[arg(long, value_name = "FILE")]
     footage: Option<PathBuf>,
     /// A still of the footage (PNG or JPEG) for the summary.
@@ -99,7 +104,17 @@ impl Args {
     }
 }
 
-pub fn run(args: Args) -> Result<(), Failure> {
+pub fn run(mut args: Args) -> Result<(), Failure> {
+    // The footage alone: objects are found in it.
+    if args.detections.is_none() && args.y4m.is_none() {
+        args.y4m = args.handin.footage.clone();
+    }
+    if args.detector_config.is_some() && args.y4m.is_none() {
+        return Err(bad_usage(
+            "--detector-config is for finding objects in footage: give the footage (--footage \
+             FILE) and no detections file",
+        ));
+    }
     let outputs = [
         args.output.as_deref(),
         args.csv.as_deref(),

@@ -21,8 +21,9 @@ pub const LONG_ABOUT: &str = "Link per-frame detections into tracks.\n\n\
 pub struct Args {
     /// Detections file.
     detections: PathBuf,
-    /// The footage the detections were found in, as a YUV4MPEG2 file: gaps where detections were
-    /// missed are bridged by following objects in it (V-IOU; `bridge_frames` in the settings).
+    /// The footage the detections were found in (YUV4MPEG2, or other video decoded by ffmpeg):
+    /// gaps where detections were missed are bridged by following objects in it (V-IOU;
+    /// `bridge_frames` in the settings).
     #[arg(long, value_name = "FILE")]
     y4m: Option<PathBuf>,
     /// Where to write the tracks (.txt: benchmark text; otherwise JSON).

@@ -1,0 +1,160 @@
+//! Footage other than YUV4MPEG2 on the command line: WebM and MP4 decoded by ffmpeg in a child
+//! process. The reference is Debian's ffmpeg itself: the boxes found in a video given as it is
+//! must be those found in ffmpeg's own YUV4MPEG2 decoding of it, byte for byte (which the page's
+//! WebCodecs decoding matches: `tests/browser/app.test.mjs`).
+
+mod common;
+use common::{demo, ffmpeg_or_skip, scratch, stderr, throughline};
+use std::path::Path;
+use std::process::Command;
+
+/// Runs ffmpeg (quiet, overwriting) with `args`; asserts it succeeded.
+fn ffmpeg(args: &[&str]) {
+    let status = Command::new("ffmpeg")
+        .args(["-loglevel", "error", "-y"])
+        .args(args)
+        .status()
+        .expect("ffmpeg runs (cargo xtask test installs it)");
+    assert!(status.success(), "ffmpeg {args:?}");
+}
+
+/// The demo footage's first 100 frames: as WebM (VP9, copied), as H.264 MP4 (encoded here), and
+/// as ffmpeg decodes each into YUV4MPEG2.
+struct Clips {
+    webm: String,
+    mp4: String,
+    webm_y4m: String,
+    mp4_y4m: String,
+}
+
+fn clips(dir: &Path) -> Clips {
+    let p = |name: &str| dir.join(name).display().to_string();
+    let c = Clips {
+        webm: p("clip.webm"),
+        mp4: p("clip.mp4"),
+        webm_y4m: p("clip-webm.y4m"),
+        mp4_y4m: p("clip-mp4.y4m"),
+    };
+    let footage = demo("footage.webm");
+    ffmpeg(&["-i", &footage, "-frames:v", "100", "-c", "copy", &c.webm]);
+    let h264 = [
+        "-c:v", "libx264", "-pix_fmt", "yuv420p", "-preset", "veryfast",
+    ];
+    ffmpeg(&[&["-i", &footage, "-frames:v", "100"][..], &h264, &[&c.mp4]].concat());
+    let to_y4m = ["-pix_fmt", "yuv420p", "-f", "yuv4mpegpipe"];
+    ffmpeg(&[&["-i", &c.webm][..], &to_y4m, &[&c.webm_y4m]].concat());
+    ffmpeg(&[&["-i", &c.mp4][..], &to_y4m, &[&c.mp4_y4m]].concat());
+    c
+}
+
+/// `throughline detect` of `footage` (given with `flag`); the detections' text.
+fn detect(flag: &str, footage: &str, out: &Path) -> String {
+    let o = throughline(&["detect", flag, footage, "-o", out.to_str().unwrap()]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    std::fs::read_to_string(out).unwrap()
+}
+
+#[test]
+fn webm_and_mp4_give_the_boxes_of_their_ffmpeg_decoding() {
+    if !ffmpeg_or_skip("webm_and_mp4_give_the_boxes_of_their_ffmpeg_decoding") {
+        return;
+    }
+    let dir = scratch("video-detect");
+    let c = clips(&dir);
+    for (video, y4m) in [(&c.webm, &c.webm_y4m), (&c.mp4, &c.mp4_y4m)] {
+        let direct = detect("--footage", video, &dir.join("direct.txt"));
+        let decoded = detect("--y4m", y4m, &dir.join("decoded.txt"));
+        assert_eq!(direct, decoded, "{video}");
+        assert!(direct.starts_with("# footage_frames: 100\n"), "{video}");
+        assert!(direct.lines().count() > 500, "{video}: boxes found");
+    }
+}
+
+#[test]
+fn run_counts_footage_given_alone_as_its_ffmpeg_decoding() {
+    if !ffmpeg_or_skip("run_counts_footage_given_alone_as_its_ffmpeg_decoding") {
+        return;
+    }
+    let dir = scratch("video-run");
+    let c = clips(&dir);
+    let plan = demo("plan.json");
+    let report = |footage: &[&str], name: &str| -> serde_json::Value {
+        let out = dir.join(name).display().to_string();
+        let args = [&["run", "--plan", &plan, "-o", &out, "-q"][..], footage].concat();
+        let o = throughline(&args);
+        assert!(o.status.success(), "{}", stderr(&o));
+        serde_json::from_str(&std::fs::read_to_string(&out).unwrap()).unwrap()
+    };
+    let from_mp4 = report(&["--footage", &c.mp4], "mp4.json");
+    assert_eq!(from_mp4, report(&["--y4m", &c.mp4_y4m], "mp4-y4m.json"));
+    assert_eq!(from_mp4["frame_count"], 100);
+    let tracks = from_mp4["tracks_counted"].as_u64();
+    assert!(tracks.is_some_and(|n| n > 5), "{tracks:?}");
+    // --y4m takes other video too, and a batch's footage column.
+    assert_eq!(
+        report(&["--y4m", &c.webm], "webm.json"),
+        report(&["--y4m", &c.webm_y4m], "webm-y4m.json")
+    );
+    let manifest = dir.join("clips.csv");
+    let rows = format!("name,footage,plan\nphone,clip.mp4,{plan}\n");
+    std::fs::write(&manifest, rows).unwrap();
+    let out = dir.join("batch").display().to_string();
+    let o = throughline(&["batch", manifest.to_str().unwrap(), "--out", &out, "-q"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let batch: serde_json::Value = serde_json::from_str(
+        &std::fs::read_to_string(dir.join("batch/phone/report.json")).unwrap(),
+    )
+    .unwrap();
+    assert_eq!(batch["screenlines"], from_mp4["screenlines"]);
+}
+
+#[test]
+fn video_ffmpeg_cannot_read_is_named_and_a_cut_one_is_used_to_its_cut() {
+    if !ffmpeg_or_skip("video_ffmpeg_cannot_read_is_named_and_a_cut_one_is_used_to_its_cut") {
+        return;
+    }
+    let dir = scratch("video-bad");
+    let c = clips(&dir);
+    // Not a video at all.
+    let o = throughline(&["detect", "--footage", &demo("plan.json")]);
+    assert_eq!(o.status.code(), Some(1));
+    let said = stderr(&o);
+    assert!(
+        said.contains("plan.json: ffmpeg could not decode it ("),
+        "{said}"
+    );
+    assert!(!said.contains("panicked"), "{said}");
+    // Cut part way, as an interrupted copy leaves it: the frames before the cut are used, and
+    // ffmpeg's complaint is said once (the file is read twice).
+    let bytes = std::fs::read(&c.webm).unwrap();
+    let cut = dir.join("cut.webm");
+    std::fs::write(&cut, &bytes[..bytes.len() / 2]).unwrap();
+    let o = throughline(&["detect", "--footage", cut.to_str().unwrap(), "-q"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let said = stderr(&o);
+    assert_eq!(
+        said.matches("ffmpeg, decoding it, said:").count(),
+        1,
+        "{said}"
+    );
+    let first = String::from_utf8_lossy(&o.stdout)
+        .lines()
+        .next()
+        .map(str::to_owned);
+    let frames: u32 = first
+        .unwrap()
+        .trim_start_matches("# footage_frames: ")
+        .parse()
+        .unwrap();
+    assert!((10..100).contains(&frames), "{frames} frames");
+    // No ffmpeg on the PATH: how to get it, or how to convert the footage.
+    let o = Command::new(env!("CARGO_BIN_EXE_throughline"))
+        .args(["detect", "--footage", &c.mp4])
+        .env("PATH", dir.join("no-tools"))
+        .output()
+        .unwrap();
+    assert_eq!(o.status.code(), Some(1));
+    let said = stderr(&o);
+    assert!(said.contains("not YUV4MPEG2, and ffmpeg, which decodes it, is not installed"));
+    assert!(said.contains("-f yuv4mpegpipe footage.y4m"), "{said}");
+}
