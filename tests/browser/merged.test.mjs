@@ -2,7 +2,8 @@
 // camera north, one after the other, and one of camera south), and the page opens the merged
 // counts it writes. For each camera and for all together, each cell of the grid the page shows is
 // the sum, computed here from the CSV itself, of that interval's rows for the line and direction;
-// a class chosen shows that class alone. A file that is not one is refused with its line.
+// a class chosen shows that class alone. The zones' merged file opens the same way, a zone over
+// its entries and exits. A file that is not one is refused with its line.
 import { test } from "node:test";
 import assert from "node:assert/strict";
 import { readFileSync, writeFileSync, mkdirSync } from "node:fs";
@@ -84,6 +85,15 @@ test("a batch's merged counts open as an interval grid per camera and class, eac
   }
   // The two clips of north meet at 07:15:10, inside the 07:15 interval: it holds both clips' crossings.
   assert.match(text, /\nTest Plaza,north,[^\n]*,2026-03-02T07:15:00,2026-03-02T07:30:00,\d+,yes,north-1 north-2\n/);
+  // The zones' merged file beside it opens the same way: a zone over its entries and exits.
+  const zonesFile = file.replace("_merged-counts.csv", "_merged-zones.csv");
+  const zones = readFileSync(zonesFile, "utf8");
+  await page.getByLabel("Open merged counts").setInputFiles(zonesFile);
+  await page.waitForFunction(() => document.querySelector("#merged-grid caption")?.textContent.endsWith("north · all classes"));
+  assert.deepEqual(new Map(Object.entries(await shown(page))), expected(zones, "north", ""), "zones, north");
+  assert.deepEqual(await page.locator("#merged-grid thead tr:nth-child(2) th").allInnerTexts(), ["entry", "exit"]);
+  await page.getByLabel("Open merged counts").setInputFiles(file);
+  await page.waitForFunction(() => document.querySelectorAll("#merged-grid thead tr:nth-child(2) th").length === 4);
   await screenshot(page, "20-many-clips-laptop");
   const phone = await openPage(env, { viewport: PHONE });
   await showView(phone.page, "Results");

@@ -1,7 +1,8 @@
 //! Reading a merged counts file back (`SITE_merged-counts.csv`, as [`super::merged_counts_csv`]
-//! writes it) and laying it out as an interval grid: one row per interval on the clock, one column
-//! per line and direction, for one camera (or all together) and one class (or all classes summed).
-//! What the page shows for a batch of many clips.
+//! writes it, or the zones' `SITE_merged-zones.csv`, as [`super::merged_zones_csv`] does) and
+//! laying it out as an interval grid: one row per interval on the clock, one column per line and
+//! direction (or zone and entry or exit), for one camera (or all together) and one class (or all
+//! classes summed). What the page shows for a batch of many clips.
 
 use crate::error::{Error, ErrorKind};
 use crate::limits::{MAX_INTERVALS, MAX_PLAN_ITEMS};
@@ -12,6 +13,11 @@ use std::collections::BTreeMap;
 /// The header a merged counts file starts with.
 const HEADER: &str =
     "site,camera,screenline,direction,class,interval_start,interval_end,count,partial,entries";
+
+/// The header of the zones' merged file: the same columns, a zone for a line and its way in or
+/// out for a direction.
+const ZONES_HEADER: &str =
+    "site,camera,zone,way,class,interval_start,interval_end,count,partial,clips";
 
 /// Rows a merged counts file may hold: every interval of a year of 15-minute intervals, for many
 /// lines, directions, classes and cameras.
@@ -37,7 +43,7 @@ pub struct MergedCounts {
     rows: Vec<Row>,
 }
 
-/// A line and direction: one column of the grid.
+/// A line and direction (or a zone and `entry` or `exit`): one column of the grid.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct GridColumn {
     pub screenline: String,
@@ -81,11 +87,11 @@ pub fn read_merged_counts(bytes: &[u8]) -> Result<MergedCounts, Error> {
         .enumerate()
         .filter(|(_, l)| !l.trim().is_empty());
     match lines.next() {
-        Some((_, h)) if h.trim() == HEADER => {}
+        Some((_, h)) if h.trim() == HEADER || h.trim() == ZONES_HEADER => {}
         _ => {
             return Err(Error::new(
                 ErrorKind::BadHeader,
-                format!("not a merged counts file: the first line should be `{HEADER}` (the SITE_merged-counts.csv that `throughline batch` writes)"),
+                format!("not a merged counts file: the first line should be `{HEADER}` (the SITE_merged-counts.csv that `throughline batch` writes; its SITE_merged-zones.csv begins `{ZONES_HEADER}`)"),
             )
             .at(1, None))
         }
@@ -270,6 +276,21 @@ mod tests {
             "an unknown camera: the first"
         );
         assert_eq!(m.grid("south", "").rows[0].counts, [9]);
+    }
+
+    #[test]
+    fn the_zones_merged_file_is_a_grid_of_zones_by_entry_and_exit() {
+        let zones = "site,camera,zone,way,class,interval_start,interval_end,count,partial,clips\n\
+            Plaza,north,kiosk,entry,pedestrian,2026-03-02T07:00:00,2026-03-02T07:15:00,3,no,a\n\
+            Plaza,north,kiosk,exit,pedestrian,2026-03-02T07:00:00,2026-03-02T07:15:00,2,no,a\n";
+        let g = read_merged_counts(zones.as_bytes()).unwrap().grid("", "");
+        let heads: Vec<_> = g
+            .columns
+            .iter()
+            .map(|c| (c.screenline.as_str(), c.direction.as_str()))
+            .collect();
+        assert_eq!(heads, [("kiosk", "entry"), ("kiosk", "exit")]);
+        assert_eq!((g.rows[0].counts.clone(), g.rows[0].total), (vec![3, 2], 5));
     }
 
     #[test]
