@@ -1,6 +1,7 @@
 // The page's layout on a laptop (1366 × 768) and a phone (390 × 844), as a person first sees it and
 // after counting: on the laptop Run and the whole picture are in view without scrolling, and the
-// picture keeps a useful size; on the phone nothing scrolls sideways, whichever view is shown.
+// picture keeps a useful size, and a view chosen opens at its top; on the phone nothing scrolls
+// sideways, whichever view is shown.
 // Screenshots of each go to the artefacts folder (target/browser-artefacts/).
 import { test } from "node:test";
 import assert from "node:assert/strict";
@@ -18,8 +19,13 @@ test("laptop: Run and the whole picture are in view without scrolling, and stay 
   assert.ok(stage.width >= LAPTOP.width / 2, `picture ${stage.width} px wide`);
   await screenshot(page, "12-laptop-set-up", { fullPage: false });
 
+  // Run pressed from far down Set up (a newcomer's trial: Results opened 576 px past its totals).
+  await page.mouse.wheel(0, 1200);
+  await page.waitForFunction(() => scrollY > 0);
   await run(page);
   assert.equal(await page.getByRole("tab", { name: "Results" }).getAttribute("aria-selected"), "true", "Run leads on to the results");
+  await page.waitForFunction(() => document.getElementById("mode-results").getBoundingClientRect().top >= 0);
+  assert.ok(await inViewport(page, "#results h2"), "the results open at their totals");
   await screenshot(page, "12-laptop-results", { fullPage: false });
   // Scrolling down through the results leaves the picture where it is.
   await page.mouse.wheel(0, 1500);

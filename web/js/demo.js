@@ -4,6 +4,7 @@
 // their own, its plan.
 
 import { parsePlanText } from "./plan.js";
+import { DEMO_DETECTIONS } from "./files-panel.js";
 
 /** @typedef {import("./store.js").PageStore} PageStore */
 /** @typedef {import("./files-panel.js").FilesPanel} FilesPanel */
@@ -73,7 +74,7 @@ export class Demo {
         get("plan.json").then((b) => b.text()),
       ]);
       this.filesPanel.openFootage(footage, "demo footage.webm");
-      await this.filesPanel.openDetections(await detections.arrayBuffer(), "demo detections.csv");
+      await this.filesPanel.openDetections(await detections.arrayBuffer(), DEMO_DETECTIONS);
       if (withPlan || !this.store.restored) {
         this.store.planReplaced(parsePlanText(planText, "demo plan.json"), "demo", "demo plan.json");
         this.messages.clear("plan-replaced");

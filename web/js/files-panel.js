@@ -3,9 +3,12 @@
 // names of what is open, and the warnings when detections cannot belong to the footage.
 
 import { byId } from "./dom.js";
-import { parsePlanText } from "./plan.js";
+import { emptyPlan, parsePlanText } from "./plan.js";
 import { Cancelled } from "./protocol.js";
 import { withoutDocs } from "./messages.js";
+
+/** How the demo's detections are named when the demo opens them (demo.js). */
+export const DEMO_DETECTIONS = "demo detections.csv";
 
 /** @typedef {import("./store.js").PageStore} PageStore */
 /** @typedef {import("./core-client.js").CoreClient} CoreClient */
@@ -31,7 +34,7 @@ export class FilesPanel {
     /** @type {((text: string, name: string) => void) | null} opens a project file (project-panel.js), once there is one */
     this.openProject = null;
     store.subscribe(["footage"], () => { nameShown(this.footageName, store.footage ? store.footage.name : "none"); });
-    store.subscribe(["detections"], () => { if (store.detections) nameShown(this.detectionsName, store.detections.label); });
+    store.subscribe(["detections"], () => nameShown(this.detectionsName, store.detections ? store.detections.label : "none"));
     store.subscribe(["planName"], () => { nameShown(this.planName, store.planName); });
     // Checked again whenever the footage or the detections change (Find replaces them too).
     store.subscribe(["video", "detections"], () => this.checkFit());
@@ -49,7 +52,7 @@ export class FilesPanel {
         if (f) open(f);
       });
     };
-    onFile("open-footage", (f) => this.openFootage(f, f.name));
+    onFile("open-footage", (f) => this.openOwnFootage(f));
     onFile("open-detections", async (f) => this.openDetections(await f.arrayBuffer(), f.name));
     onFile("open-plan", async (f) => this.openPlanFile(await f.text(), f.name));
   }
@@ -66,7 +69,7 @@ export class FilesPanel {
       stage.classList.remove("dragover");
       for (const f of e.dataTransfer ? e.dataTransfer.files : []) {
         if (f.type.startsWith("video/") || /\.(webm|mp4|mkv|mov|avi)$/i.test(f.name)) {
-          this.openFootage(f, f.name);
+          this.openOwnFootage(f);
           continue;
         }
         const text = await f.text();
@@ -83,6 +86,36 @@ export class FilesPanel {
   openFootage(blob, name) {
     this.messages.clear("footage");
     this.store.footageOpened(name, blob);
+  }
+
+  /**
+   * The person's own footage: the demo's detections and plan, while still in use, cannot be theirs
+   * (other boxes, other lines, the demo's start time in a hand-in), so they are set aside, saying
+   * so and what to do next; the plan comes back with Undo.
+   * @param {File} file
+   */
+  openOwnFootage(file) {
+    this.openFootage(file, file.name);
+    const d = this.store.detections;
+    const detections = Boolean(d && d.name === DEMO_DETECTIONS);
+    const plan = this.store.plans.source === "demo" || this.store.plans.source === "demo-edited";
+    if (!detections && !plan) return;
+    this.messages.clear("demo");
+    if (detections) this.store.detectionsSetAside();
+    if (plan) this.store.planReplaced(emptyPlan(), "new", "drawn here");
+    const what = [detections ? "detections" : "", plan ? "plan (its lines, zone, start time and frame rate)" : ""].filter(Boolean).join(" and ");
+    const next = [
+      detections ? "find moving objects in your footage (Find moving objects, below) or open its detections" : "",
+      plan ? "draw your lines, or open your plan" : "",
+    ].filter(Boolean).join("; ");
+    const back = plan ? " Undo (Ctrl+Z) brings the demo's plan back." : "";
+    this.messages.say("own-footage", "ok", `${file.name} is open, and the demo's ${what} set aside: they belong to the demo's scene. Next, ${next}.${back}`);
+    // Out of date once counts are made.
+    const stop = this.store.subscribe(["results"], () => {
+      if (!this.store.results) return;
+      this.messages.clear("own-footage");
+      stop();
+    });
   }
 
   /**
@@ -157,8 +190,9 @@ export class FilesPanel {
     if (s.max_x > video.width * 1.25 || s.max_y > video.height * 1.25) {
       problems.push(`The detections reach x = ${Math.round(s.max_x)}, y = ${Math.round(s.max_y)}, but the footage is ${video.width} × ${video.height} pixels. Were they made on a different size of this video? Open the matching footage, or scale the detections.`);
     }
-    if (video.frames && s.frames > video.frames * 1.02 + 2) {
-      problems.push(`The detections run to frame ${s.frames}, but the footage has about ${video.frames} frames at ${this.store.fps} fps. Were they found in other footage? Open the matching footage; if they belong to this one, check the frame rate in the plan.`);
+    const frames = this.store.videoFrames;
+    if (frames && s.frames > frames * 1.02 + 2) {
+      problems.push(`The detections run to frame ${s.frames}, but the footage has about ${frames} frames at ${this.store.fps} fps. Were they found in other footage? Open the matching footage; if they belong to this one, check the frame rate in the plan.`);
     }
     if (problems.length) this.messages.say("fit", "warn", problems.join("\n"));
   }

@@ -70,7 +70,7 @@ export class Picture {
     const v = this.video;
     // Sound alone (or a picture the browser cannot size) has nothing to draw on or count in.
     if (!(v.videoWidth > 0 && v.videoHeight > 0)) return this.noPicture();
-    this.store.videoReady(v.videoWidth, v.videoHeight, Math.round(v.duration * this.store.fps), v.duration);
+    this.store.videoReady(v.videoWidth, v.videoHeight, v.duration);
     this.seekFrame(1);
   }
 

@@ -28,7 +28,7 @@
  * @property {Zone[]} zones
  * @property {Calibration} [calibration]
  */
-/** Why the plan changed: an edit here, a file opened, the demo's plan, an undo. @typedef {"edit" | "file" | "demo" | "undo"} PlanChange */
+/** Why the plan changed: an edit here, a file opened, the demo's plan, a new empty one, an undo. @typedef {"edit" | "file" | "demo" | "new" | "undo"} PlanChange */
 /**
  * Choices kept with the plan: the tracking method, the longest gap in the detections to bridge with
  * the footage (frames, as typed; "" or "0": off) and the detector's two heights.
@@ -250,9 +250,9 @@ export class PlanHistory {
   }
 
   /**
-   * Replaces the whole plan (a file, the demo); undo brings the old one back.
+   * Replaces the whole plan (a file, the demo's, a new empty one); undo brings the old one back.
    * @param {Plan} plan
-   * @param {"file" | "demo"} why
+   * @param {"file" | "demo" | "new"} why
    * @param {string} [name] a plan file's name
    */
   replace(plan, why, name) {
@@ -261,7 +261,7 @@ export class PlanHistory {
       for (const k of Object.keys(fields)) delete fields[k];
       Object.assign(p, structuredClone(plan));
     }, why);
-    this.source = why;
+    this.source = why === "new" ? "saved" : why;
     this.file = why === "file" && name ? { name, json: JSON.stringify(this.plan) } : null;
     this.save();
   }

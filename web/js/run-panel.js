@@ -64,7 +64,7 @@ export class RunPanel {
     });
     store.subscribe(["detections"], () => {
       this.made = null;
-      this.status.textContent = "Ready: press Run to track and count.";
+      this.status.textContent = store.detections ? "Ready: press Run to track and count." : "No detections yet: open them, or find moving objects in the footage (Set up).";
     });
     store.subscribe(["tracks"], () => this.sayMade());
   }

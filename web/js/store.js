@@ -32,7 +32,7 @@ import { HandCount } from "./hand-count.js";
 /**
  * The footage as the video element plays it: `frames` at the plan's frame rate when it opened.
  * `duration`: seconds, as the video element says.
- * @typedef {{playable: boolean, width: number, height: number, frames: number, duration: number}} Video
+ * @typedef {{playable: boolean, width: number, height: number, duration: number}} Video
  */
 /**
  * Detections in use: the core's summary, the file (to give a restarted worker), how to name them,
@@ -62,7 +62,7 @@ export class PageStore {
     /** @type {{name: string, blob: Blob} | null} the footage opened, as a file */
     this.footage = null;
     /** @type {Video} */
-    this.video = { playable: false, width: 0, height: 0, frames: 0, duration: 0 };
+    this.video = { playable: false, width: 0, height: 0, duration: 0 };
     /** @type {{width: number, height: number} | null} the picture's size in video pixels, once known */
     this.picture = null;
     /** @type {Detections | null} */
@@ -123,9 +123,14 @@ export class PageStore {
     return frameRateOf(this.plan);
   }
 
+  /** The footage's frames at the plan's frame rate (which the person may correct), or 0. */
+  get videoFrames() {
+    return this.video.playable ? Math.round(this.video.duration * this.fps) : 0;
+  }
+
   /** The last frame there is anything to show for: the footage's or the detections'. */
   get lastFrame() {
-    return Math.max(1, this.video.frames, this.detections ? this.detections.summary.frames : 0);
+    return Math.max(1, this.videoFrames, this.detections ? this.detections.summary.frames : 0);
   }
 
   /**
@@ -157,7 +162,7 @@ export class PageStore {
    */
   footageOpened(name, blob) {
     this.footage = { name, blob };
-    this.video = { playable: false, width: 0, height: 0, frames: 0, duration: 0 }; // until videoReady
+    this.video = { playable: false, width: 0, height: 0, duration: 0 }; // until videoReady
     this.emit(["footage"]);
   }
 
@@ -165,11 +170,10 @@ export class PageStore {
    * The video element has the footage's size and length.
    * @param {number} width
    * @param {number} height
-   * @param {number} frames at the plan's frame rate
    * @param {number} duration seconds
    */
-  videoReady(width, height, frames, duration) {
-    this.video = { playable: true, width, height, frames, duration };
+  videoReady(width, height, duration) {
+    this.video = { playable: true, width, height, duration };
     this.picture = { width, height };
     this.emit(["video", "picture"]);
   }
@@ -199,6 +203,12 @@ export class PageStore {
    */
   detectionsLoaded(summary, source, label, name) {
     this.detections = { summary, source, label, name };
+    this.emit(["detections", ...this.forgetTracking()]);
+  }
+
+  /** The detections in use cannot belong to the footage open (the demo's, under the person's own). */
+  detectionsSetAside() {
+    this.detections = null;
     this.emit(["detections", ...this.forgetTracking()]);
   }
 
@@ -346,9 +356,9 @@ export class PageStore {
   }
 
   /**
-   * A whole new plan: a file or the demo's. Undo brings the old one back.
+   * A whole new plan: a file, the demo's, or a new empty one. Undo brings the old one back.
    * @param {Plan} plan
-   * @param {"file" | "demo"} why
+   * @param {"file" | "demo" | "new"} why
    * @param {string} name how the Files panel names it
    */
   planReplaced(plan, why, name) {

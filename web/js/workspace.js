@@ -15,7 +15,10 @@ export class Workspace {
     this.lists = tabsIn(".tabs");
     bindTabs(this.modes, (tab) => store.viewChosen(/** @type {View} */ (tab.dataset.view)));
     bindTabs(this.lists, (tab) => store.reviewTabChosen(/** @type {ReviewTab} */ (tab.dataset.tab)));
-    store.subscribe(["view"], () => this.showView());
+    store.subscribe(["view"], () => {
+      this.showView();
+      this.topInSight();
+    });
     store.subscribe(["reviewTab"], () => showChosen(this.lists, (t) => t.dataset.tab === store.reviewTab));
     this.showView();
     showChosen(this.lists, (t) => t.dataset.tab === store.reviewTab);
@@ -25,6 +28,21 @@ export class Workspace {
     const view = this.store.view;
     showChosen(this.modes, (t) => t.dataset.view === view);
     document.body.dataset.mode = view;
+  }
+
+  /**
+   * A view chosen while the page is scrolled past the switch starts at its top (Results at its
+   * totals), not where the view before was scrolled to.
+   */
+  topInSight() {
+    const tab = this.modes.find((t) => t.dataset.view === this.store.view);
+    const panel = tab && document.getElementById(tab.getAttribute("aria-controls") || "");
+    if (!panel) return;
+    // Below the switch where it stays in sight at the top (on a laptop), else below the window's top.
+    const head = this.modes[0].closest(".workspace-head");
+    const under = Math.max(0, head ? head.getBoundingClientRect().bottom : 0);
+    const above = panel.getBoundingClientRect().top - under;
+    if (above < 0) window.scrollBy(0, above);
   }
 }
 

@@ -1,0 +1,46 @@
+// A person's own footage opened over the bundled demo: the demo's detections and plan cannot be
+// theirs (other boxes; lines, a start time and a frame rate for another scene, which a hand-in
+// would carry), so they are set aside with a message saying what to do next, and Undo brings the
+// plan back. The footage's length follows the plan's frame rate when the person corrects it (the
+// seek bar and a hand count's sample reached 2.5 times past the end of 10 fps footage at 25).
+// The footage is the demo's first 8 seconds made over at 10 frames a second by Debian's ffmpeg.
+import { test } from "node:test";
+import assert from "node:assert/strict";
+import { execFileSync } from "node:child_process";
+import { join } from "node:path";
+import { useBrowser, openPage, showView, demo, LAPTOP } from "./harness.mjs";
+import { scratch } from "./review-helpers.mjs";
+
+const env = useBrowser();
+
+test("own footage over the demo sets the demo's detections and plan aside; its length follows the frame rate", async () => {
+  const street = join(scratch, "street.webm");
+  execFileSync("ffmpeg", ["-v", "error", "-y", "-i", demo("footage.webm"), "-t", "8", "-vf", "scale=480:270,fps=10", "-c:v", "libvpx-vp9", "-b:v", "300k", street]);
+  const { page, seen } = await openPage(env, { viewport: LAPTOP });
+  await page.waitForFunction(() => /demo detections\.csv/.test(document.getElementById("detections-name").textContent));
+  assert.ok(await page.locator("#line-list li:not(.hint)").count() > 0, "the demo's lines");
+
+  await page.getByLabel("Open footage").setInputFiles(street);
+  await page.waitForFunction(() => document.getElementById("detections-name").textContent === "none");
+  assert.equal(await page.locator("#line-list li:not(.hint)").count(), 0, "no lines of the demo's");
+  assert.equal(await page.locator("#plan-name").innerText(), "drawn here");
+  const said = await page.locator(".message").allInnerTexts();
+  assert.ok(said.some((m) => /street\.webm is open, and the demo's detections and plan .* set aside/.test(m) && /Find moving objects/.test(m) && /Undo \(Ctrl\+Z\)/.test(m)), said.join("\n"));
+  assert.ok(!said.some((m) => /This is the bundled demo/.test(m)), "the demo's invitation is gone");
+  await page.getByRole("button", { name: "Run", exact: true }).click();
+  await page.waitForFunction(() => [...document.querySelectorAll(".message")].some((m) => /Open a detections file first/.test(m.textContent)));
+
+  // 8 s of footage: 200 frames at the plan's 25, 80 once the frame rate is corrected to 10.
+  await page.waitForFunction(() => document.getElementById("scrub").max === "200");
+  await page.locator("#frame-rate").fill("10");
+  await page.locator("#frame-rate").blur();
+  await page.waitForFunction(() => document.getElementById("scrub").max === "80");
+
+  // Undo brings the demo's plan back, after the frame rate (not its detections: open them again).
+  await page.keyboard.press("Control+z");
+  await page.waitForFunction(() => document.getElementById("scrub").max === "200");
+  await page.keyboard.press("Control+z");
+  await page.waitForFunction(() => document.querySelectorAll("#line-list li:not(.hint)").length > 0);
+  assert.deepEqual(seen.errors, []);
+  await page.close();
+});
