@@ -42,6 +42,8 @@ export function handinContext(store) {
   const detections = prints.detections || work.madeWith.detections;
   if (footage) ctx.footage = footage;
   if (detections) ctx.detections = detections;
+  // Found here by Find moving objects: the command line needs them as Export detections saves them.
+  else if (store.detections && !store.detections.name) ctx.found_in_footage = ctx.found_in_page = true;
   if (work.edits.length || work.extras.tallies || work.extras.correction) ctx.project_name = projectFileName(work.site);
   return ctx;
 }

@@ -116,7 +116,7 @@ pub fn video_frames(footage: &Path, frame_rate: f64, quiet: bool) -> Result<Opti
         ));
         Ok(None)
     };
-    let (n, first, last) = match video_times(footage)? {
+    let (n, first, last) = match video_times(footage, MAX_FOOTAGE_FRAMES as u64)? {
         Ok(times) => times,
         Err(why) => return unread(&why),
     };
@@ -137,10 +137,10 @@ pub fn video_frames(footage: &Path, frame_rate: f64, quiet: bool) -> Result<Opti
     Ok(Some(frames))
 }
 
-/// A WebM or MP4 file's video frames, passed over as the page reads them: how many, and the first
-/// and last one's time (µs). The inner error says why they could not be read (`neither` WebM nor
-/// MP4, damaged, too many).
-fn video_times(footage: &Path) -> Result<Result<(u64, i64, i64), String>, Failure> {
+/// The first `limit` video frames of a WebM or MP4 file, passed over as the page reads them: how
+/// many, and the first and last one's time (µs). The inner error says why they could not be read
+/// (`neither` WebM nor MP4, damaged, more than footage may have).
+fn video_times(footage: &Path, limit: u64) -> Result<Result<(u64, i64, i64), String>, Failure> {
     use throughline_footage::demux::Demuxer;
     let file = std::fs::File::open(footage)
         .map_err(|e| bad_input(footage, format!("cannot read the file: {e}")))?;
@@ -156,12 +156,47 @@ fn video_times(footage: &Path) -> Result<Result<(u64, i64, i64), String>, Failur
             Ok(Some(c)) if n < MAX_FOOTAGE_FRAMES as u64 => {
                 n += 1;
                 (first, last) = (first.min(c.timestamp_us), last.max(c.timestamp_us));
+                if n == limit {
+                    return Ok(Ok((n, first, last)));
+                }
             }
             Ok(Some(_)) => return Ok(Err("more frames than footage may have".into())),
             Ok(None) => return Ok(Ok((n, first, last))),
             Err(why) => return Ok(Err(why)),
         }
     }
+}
+
+/// A footage's frame rate (when known) and picture size (width, height).
+pub type FootageFacts = (Option<f64>, (u32, u32));
+
+/// Footage's frame rate (when it says) and picture size, to check a plan against: a YUV4MPEG2
+/// file's header; a WebM's or MP4's first seconds and its coded size (no decoding). `None` for
+/// standard input (read once, by the detector) and other video.
+pub fn footage_facts(footage: &Path) -> Result<Option<FootageFacts>, Failure> {
+    if footage == Path::new("-") {
+        return Ok(None);
+    }
+    if is_y4m(footage)? {
+        let header = *open_y4m(footage)?.header();
+        let size = (header.width as u32, header.height as u32);
+        return Ok(Some((header.frame_rate, size)));
+    }
+    use throughline_footage::demux::Demuxer;
+    let file = std::fs::File::open(footage)
+        .map_err(|e| bad_input(footage, format!("cannot read the file: {e}")))?;
+    let bytes = file.metadata().map_or(0, |m| m.len());
+    let Ok((_, track)) = Demuxer::open(BufReader::with_capacity(1 << 16, file), bytes) else {
+        return Ok(None);
+    };
+    let size = (track.coded_width, track.coded_height);
+    let rate = match video_times(footage, 250)? {
+        Ok((n, first, last)) if n > 1 && last > first => {
+            Some((n - 1) as f64 / ((last - first) as f64 / 1e6))
+        }
+        _ => None,
+    };
+    Ok(Some((rate, size)))
 }
 
 /// How many frames a YUV4MPEG2 file holds (passed over by seeking, not read), or other video
@@ -172,7 +207,7 @@ pub fn y4m_frames(footage: &Path) -> Result<Option<u32>, Failure> {
     }
     if !is_y4m(footage)? {
         // WebM and MP4 frames are counted in the container; other video is decoded to count.
-        if let Ok((n, _, _)) = video_times(footage)? {
+        if let Ok((n, _, _)) = video_times(footage, MAX_FOOTAGE_FRAMES as u64)? {
             return Ok(Some(u32::try_from(n).unwrap_or(u32::MAX)));
         }
         let mut reader = open_y4m(footage)?;

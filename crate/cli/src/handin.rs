@@ -38,6 +38,8 @@ pub struct Inputs<'a> {
     pub footage: Option<&'a Path>,
     pub still: Option<&'a Path>,
     pub project: Option<(&'a Path, &'a Project)>,
+    /// The boxes were found in the footage (no detections file), with these detector settings.
+    pub found_with: Option<Option<&'a Path>>,
 }
 
 pub fn context(inputs: &Inputs) -> Result<Context, Failure> {
@@ -73,6 +75,9 @@ pub fn context(inputs: &Inputs) -> Result<Context, Failure> {
         still,
         project_name: inputs.project.map(|(path, _)| file_name(path)),
         still_size: still_bytes.as_deref().and_then(handin::picture_size),
+        found_in_footage: inputs.found_with.is_some(),
+        found_in_page: false,
+        detector_settings: inputs.found_with.flatten().map(file_name),
     })
 }
 

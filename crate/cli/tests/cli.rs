@@ -1135,6 +1135,12 @@ fn frames_gives_the_clips_length_when_the_detections_end_early() {
         ),
         "{e}"
     );
+    // … and warned of, as for --y4m (a newcomer's trial: detections of their own and --footage
+    // at another rate than the plan's said nothing).
+    assert!(
+        e.contains("footage.webm: the footage runs at 25 frames a second, the plan says 5"),
+        "{e}"
+    );
     // Boxes past the footage's end (one mistyped frame, or another clip's boxes) are named.
     let far = write(
         &dir,

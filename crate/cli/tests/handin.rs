@@ -170,3 +170,92 @@ fn the_summary_draws_the_plan_at_the_stills_own_size() {
         assert!(summary.contains(&whole), "{name}: the still embedded whole");
     }
 }
+
+/// The command a summary gives to reproduce its numbers, as the summary writes it.
+fn summary_command(summary: &str) -> Vec<String> {
+    let start = summary.find("<code>throughline run ").expect("the command") + "<code>".len();
+    let end = start + summary[start..].find("</code>").unwrap();
+    summary[start..end].split(' ').map(str::to_string).collect()
+}
+
+#[test]
+fn boxes_found_in_footage_are_named_and_the_summarys_command_gives_the_same_report() {
+    // A newcomer's trial: `run --y4m` with detector settings handed in "Footage: not given" and
+    // a command naming DETECTIONS; and the command, run where the summary lay, replaced it.
+    let dir = scratch("handin-found");
+    let d = dir.display().to_string();
+    let o = throughline(&[
+        "simulate",
+        "--out-dir",
+        &d,
+        "--seed",
+        "3",
+        "--frames",
+        "120",
+        "--density",
+        "5",
+        "--width",
+        "320",
+        "--height",
+        "180",
+        "--render",
+        &format!("{d}/frames.y4m"),
+    ]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    write(
+        &dir,
+        "heights.json",
+        br#"{"far_height": 17, "near_height": 46}"#,
+    );
+    let plan = write(
+        &dir,
+        "plan.json",
+        br#"{"frame_rate": 25, "start": "2026-04-01T08:00:00",
+            "screenlines": [{"name": "mid", "points": [[10, 100], [310, 100]]}]}"#,
+    );
+    let report = dir.join("report.json").display().to_string();
+    let o = throughline(&[
+        "run",
+        "--footage",
+        &format!("{d}/frames.y4m"),
+        "--detector-config",
+        &format!("{d}/heights.json"),
+        "--plan",
+        &plan,
+        "-o",
+        &report,
+        "--site",
+        "Gate",
+        "-q",
+    ]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let grid = std::fs::read_to_string(dir.join("gate_2026-04-01_grid.csv")).unwrap();
+    assert!(grid.contains("\nFootage,frames.y4m\n"), "{grid}");
+    assert!(
+        grid.contains("\nDetections,\"found in the footage, detector settings heights.json\"\n"),
+        "{grid}"
+    );
+    let summary = std::fs::read_to_string(dir.join("gate_2026-04-01_summary.html")).unwrap();
+    let command = summary_command(&summary);
+    assert_eq!(
+        command.join(" "),
+        "throughline run --footage frames.y4m --detector-config heights.json --plan plan.json --start 2026-04-01T08:00:00 -o check/report.json"
+    );
+    // Run where the files are, in the folder it names: the same report, the summary left alone.
+    std::fs::create_dir_all(dir.join("check")).unwrap();
+    let o = std::process::Command::new(env!("CARGO_BIN_EXE_throughline"))
+        .args(&command[1..])
+        .arg("-q")
+        .current_dir(&dir)
+        .output()
+        .unwrap();
+    assert!(o.status.success(), "{}", stderr(&o));
+    assert_eq!(
+        std::fs::read_to_string(dir.join("check/report.json")).unwrap(),
+        std::fs::read_to_string(&report).unwrap()
+    );
+    assert_eq!(
+        std::fs::read_to_string(dir.join("gate_2026-04-01_summary.html")).unwrap(),
+        summary
+    );
+}

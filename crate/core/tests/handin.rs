@@ -235,7 +235,7 @@ fn the_summary_names_the_site_counts_checks_and_what_reproduces_them() {
         "No correction factor applied",
         "Automated counts are estimates.",
         "<image href=\"data:image/png;base64,AAAA\"",
-        "throughline run detections.csv --plan bridge-st.json --edits bridge-st_2026-03-02.throughline.json -o report.json",
+        "throughline run detections.csv --plan bridge-st.json --edits bridge-st_2026-03-02.throughline.json --start 2026-03-02T07:00:00 -o check/report.json",
         "detections (first MiB): <code>ba7816bf8f01</code>",
         // For a person: the start as a date and a time; the project file named for what it is.
         "<p>Recorded from 2026-03-02 07:00:00, 75.0 minutes",
@@ -249,6 +249,27 @@ fn the_summary_names_the_site_counts_checks_and_what_reproduces_them() {
     ctx.footage = Some(Fingerprint::of("north.webm", 3, b"abc", Some(30.0)));
     assert!(handin::summary_html(&r, &ctx).contains(
         "throughline run detections.csv --plan bridge-st.json --footage north.webm --edits"
+    ));
+    // Boxes the command line found in the footage: found there again, with the same settings (a
+    // newcomer's trial: the command named DETECTIONS and no footage); found in the page: the
+    // placeholder, saying where the boxes come from.
+    ctx.detections = None;
+    ctx.found_in_footage = true;
+    ctx.detector_settings = Some("heights.json".into());
+    let found = handin::summary_html(&r, &ctx);
+    assert!(found.contains(
+        "throughline run --footage north.webm --detector-config heights.json --plan bridge-st.json --edits"
+    ));
+    let grid = handin::interval_grid(&r, &ctx, GridLayout::Wide, Separator::Comma);
+    assert!(
+        grid.contains("Detections,\"found in the footage, detector settings heights.json\""),
+        "{grid}"
+    );
+    ctx.found_in_page = true;
+    let found = handin::summary_html(&r, &ctx);
+    assert!(found.contains("throughline run DETECTIONS --plan bridge-st.json --footage north.webm"));
+    assert!(found.contains(
+        "DETECTIONS is the boxes found in the page, as its Export detections saves them."
     ));
     // Self-contained: nothing is fetched, nothing runs.
     assert!(

@@ -175,7 +175,10 @@ fn track_source(
     let mut timer = Timer::new();
     let (how, settings) = with_project(&args.tracking, project)?;
     let how = &how;
-    if let (Some(footage), false) = (&args.y4m, how.quiet) {
+    if let (Some(footage), false) = (
+        args.y4m.as_ref().or(args.handin.footage.as_ref()),
+        how.quiet,
+    ) {
         footage_against_plan(footage, plan)?;
     }
     match (&args.y4m, &args.detections) {
@@ -220,16 +223,12 @@ fn track_source(
 /// disagree: its frame rate and the plan's (times, intervals and speeds follow the plan's), lines
 /// or zones wholly outside its picture (nothing is counted there).
 fn footage_against_plan(footage: &Path, plan: &Plan) -> Result<(), Failure> {
-    if footage == Path::new("-") {
+    let Some((rate, (w, h))) = crate::frames::footage_facts(footage)? else {
         return Ok(());
-    }
-    let header = *crate::frames::open_y4m(footage)?.header();
+    };
     let name = footage.display();
     let planned = plan.spec.frame_rate;
-    if let Some(rate) = header
-        .frame_rate
-        .filter(|r| (r - planned).abs() > 0.001 * planned)
-    {
+    if let Some(rate) = rate.filter(|r| (r - planned).abs() > 0.001 * planned) {
         eprintln!(
             "warning: {name}: the footage runs at {} frames a second, the plan says {planned} \
              (`frame_rate`): times, intervals and speeds follow the plan's; if the footage's is \
@@ -237,7 +236,7 @@ fn footage_against_plan(footage: &Path, plan: &Plan) -> Result<(), Failure> {
             (rate * 1000.0).round() / 1000.0
         );
     }
-    let (w, h) = (header.width as f64, header.height as f64);
+    let (w, h) = (f64::from(w), f64::from(h));
     let outside = plan.outside_picture(w, h);
     if !outside.is_empty() {
         eprintln!(
@@ -262,13 +261,19 @@ fn stage_handin(
     if args.handin.site.is_none() && !(site_in_project && args.output.is_some()) {
         return Ok(Vec::new());
     }
+    // The footage: named, else the one the boxes were found in or bridged with (a file).
+    let y4m = args.y4m.as_deref().filter(|p| *p != Path::new("-"));
     let inputs = handin::Inputs {
         site: args.handin.site.as_deref(),
         plan: &args.plan,
         detections: args.detections.as_deref(),
-        footage: args.handin.footage.as_deref(),
+        footage: args.handin.footage.as_deref().or(y4m),
         still: args.handin.still.as_deref(),
         project: args.edits.as_deref().zip(project),
+        found_with: args
+            .detections
+            .is_none()
+            .then_some(args.detector_config.as_deref()),
     };
     let ctx = handin::context(&inputs)?;
     let dir = args

@@ -35,6 +35,13 @@ pub struct Context {
     pub project_name: Option<String>,
     /// The still's own size in pixels (its file's header says), when the footage's is not known.
     pub still_size: Option<(u32, u32)>,
+    /// The boxes were found in the footage by the built-in detector (no detections file).
+    pub found_in_footage: bool,
+    /// … in the page, whose detector settings are no file: the command line needs the boxes as
+    /// the page's Export detections saves them.
+    pub found_in_page: bool,
+    /// The detector settings file's name, when the boxes were found with one (command line).
+    pub detector_settings: Option<String>,
 }
 
 impl Context {
@@ -129,22 +136,57 @@ pub fn short_hashes(report: &Report, ctx: &Context) -> Vec<(&'static str, String
 }
 
 /// The one command line that gives the same counts from the same files: with the footage named,
-/// so the count reaches its end when the detections stop before it (as the page counted).
-pub fn command_line(ctx: &Context) -> String {
-    let detections = ctx
-        .detections
-        .as_ref()
-        .map_or("DETECTIONS", |f| f.name.as_str());
+/// so the count reaches its end when the detections stop before it (as the page counted); boxes
+/// the command line found in the footage found there again, with the same detector settings. It
+/// writes into a folder `check` (its hand-in files have the names of those it reproduces), at the
+/// report's start time (given on the command line, it is not in the plan's file).
+pub fn command_line(report: &Report, ctx: &Context) -> String {
     let plan = ctx.plan_name.as_deref().unwrap_or("plan.json");
-    let mut cmd = format!("throughline run {detections} --plan {plan}");
-    if let Some(f) = &ctx.footage {
-        cmd.push_str(&format!(" --footage {}", f.name));
-    }
+    let mut cmd = match (&ctx.footage, ctx.found_in_footage && !ctx.found_in_page) {
+        (Some(f), true) => {
+            let settings = ctx
+                .detector_settings
+                .as_ref()
+                .map_or(String::new(), |d| format!(" --detector-config {d}"));
+            format!(
+                "throughline run --footage {}{settings} --plan {plan}",
+                f.name
+            )
+        }
+        (footage, _) => {
+            let detections = ctx
+                .detections
+                .as_ref()
+                .map_or("DETECTIONS", |f| f.name.as_str());
+            let footage = footage
+                .as_ref()
+                .map_or(String::new(), |f| format!(" --footage {}", f.name));
+            format!("throughline run {detections} --plan {plan}{footage}")
+        }
+    };
     if let Some(p) = &ctx.project_name {
         cmd.push_str(&format!(" --edits {p}"));
     }
-    cmd.push_str(" -o report.json");
+    if let Some(start) = &report.plan.start {
+        cmd.push_str(&format!(" --start {start}"));
+    }
+    cmd.push_str(" -o check/report.json");
     cmd
+}
+
+/// How the hand-in names the detections: a file, or found in the footage (and how).
+fn detections_named(ctx: &Context) -> String {
+    match (&ctx.detections, ctx.found_in_footage) {
+        (Some(f), _) => f.name.clone(),
+        (None, true) if ctx.found_in_page => {
+            "found in the footage in the page (its Export detections saves them)".into()
+        }
+        (None, true) => match &ctx.detector_settings {
+            Some(d) => format!("found in the footage, detector settings {d}"),
+            None => "found in the footage, the detector's default settings".into(),
+        },
+        (None, false) => "not given".into(),
+    }
 }
 
 /// The lines at the top of a hand-in table: what was counted, where, from what, and the caution.
@@ -167,7 +209,7 @@ fn header_block(report: &Report, ctx: &Context) -> Vec<(String, String)> {
             .map_or("not given".to_string(), |f| f.name.clone())
     };
     rows.push(("Footage".into(), name(&ctx.footage)));
-    rows.push(("Detections".into(), name(&ctx.detections)));
+    rows.push(("Detections".into(), detections_named(ctx)));
     rows.push(("Counted with".into(), report.generator.clone()));
     rows.push(("Corrections".into(), corrections(report)));
     rows.push(("Caution".into(), report.caution.clone()));

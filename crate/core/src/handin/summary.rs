@@ -196,9 +196,19 @@ fn reproduce(h: &mut String, report: &Report, ctx: &Context) {
         ),
         None => String::new(),
     };
+    let command = command_line(report, ctx);
+    let placeholder = match (command.contains(" DETECTIONS "), ctx.found_in_page) {
+        (true, true) => {
+            " DETECTIONS is the boxes found in the page, as its Export detections saves them."
+        }
+        (true, false) => " DETECTIONS is the detections file the counts were made from.",
+        _ => "",
+    };
     let _ = writeln!(
         h,
-        "</ul>\n<p>The same numbers from those files: <code>{}</code>{project}</p>",
-        esc(&command_line(ctx))
+        "</ul>\n<p>The same numbers from those files, in a folder <code>check</code> made beside \
+         them (the command writes hand-in files with the names of these): <code>{}</code>{project}.\
+         {placeholder}</p>",
+        esc(&command)
     );
 }
