@@ -183,6 +183,14 @@ test("files the page cannot use get messages that say what to do, and the plan s
   const manyHead = manySaid.findIndex((l) => /many\.txt: 25 rows skipped\./.test(l));
   assert.match(manySaid[manyHead + 6], /^… and 15 more\.$/, manySaid.join("\n"));
   assert.ok(!manySaid.some((l) => /passed over in all/.test(l)), manySaid.join("\n"));
+  // A plan file taken that cannot be used in full says so where it says it was opened (a
+  // newcomer's trial: "Plan opened." and the problem only further down the Plan panel).
+  const onePoint = join(scratch, "one-point.json");
+  writeFileSync(onePoint, JSON.stringify({ frame_rate: 25, screenlines: [{ name: "gate", points: [[10, 10]] }] }));
+  await page.getByLabel("Open plan").setInputFiles(onePoint);
+  await page.waitForFunction(() => /Plan opened, but it cannot be used in full until this is fixed/.test(document.getElementById("messages").textContent));
+  assert.match(await messages.innerText(), /Plan opened, but [^\n]*screenlines\[0\]\.points/);
+  await page.getByRole("button", { name: "Undo" }).first().click();
   await page.getByLabel("Open detections").setInputFiles(cut);
   await page.waitForFunction(() => /cut\.txt: 8 rows skipped/.test(document.getElementById("messages").textContent));
   // A file that cannot be read after one that could: the one in use is named as still in use (a

@@ -95,6 +95,9 @@ test("a tally by key presses over part of the demo is compared with the tool's c
   const wapd = pairs.reduce((s, [a, m]) => s + Math.abs(a - m), 0) / sumM;
   const total = rows["All lines together"];
   assert.deepEqual([total.hand, total.tool, total.apd, total.aapd, total.wapd, total.factor], [sumM, sumA, pct(apd, true), pct(aapd), pct(wapd), (sumM / sumA).toFixed(3)]);
+  // All eight columns fit beside the footage on a laptop (a newcomer's trial: the factor was
+  // scrolled out of sight).
+  assert.ok(await page.locator(".tally-check .tally-table").first().evaluate((t) => t.parentElement.scrollWidth <= t.parentElement.clientWidth + 1), "the comparison fits its box");
   // On the demo: the tool counts one walker twice on the divide (westbound, frame 500).
   assert.equal(rows[`east-west divide|${label("east-west divide", "forward")}`].difference, "+1");
   const card = page.locator(".tally-check").first();

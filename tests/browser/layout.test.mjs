@@ -42,6 +42,17 @@ test("laptop: Run and the whole picture are in view without scrolling, and stay 
   assert.equal(tops.length, 5);
   assert.equal(new Set(tops).size, 1, `the review's tabs start at ${tops.join(", ")} px`);
   await screenshot(page, "12-laptop-review", { fullPage: false });
+  // A doubtful moment's strip under the picture, then a message: both in the window, the picture
+  // made room for them (a newcomer's trial: a message about a file sat below the window).
+  await page.keyboard.press("n");
+  await page.waitForSelector("#focus-strip:not([hidden])");
+  await page.getByLabel("Open detections").setInputFiles({ name: "boxes.csv", mimeType: "text/csv", buffer: Buffer.from("frame,x,y\nnot,a,box\n") });
+  await page.waitForSelector("#messages .message");
+  assert.ok(await inViewport(page, "#focus-strip"), "the strip is in the window");
+  const message = await page.locator("#messages").boundingBox();
+  assert.ok(message.y + Math.min(message.height, 40) <= LAPTOP.height, `the message's first lines in the window (top ${message.y})`);
+  assert.ok((await page.locator("#stage").boundingBox()).width >= LAPTOP.width / 2, "the picture still half the window wide");
+  await screenshot(page, "12-laptop-review-message", { fullPage: false });
   assert.deepEqual(seen.errors, []);
   await page.close();
 });

@@ -42,6 +42,8 @@ export class PlanPanel {
       hysteresis: byId("hysteresis", HTMLInputElement),
       smooth: byId("smooth-seconds", HTMLInputElement),
     };
+    /** A plan file was just opened, and no problem with it said yet. */
+    this.openedFile = false;
     this.toolButtons = [...document.querySelectorAll("[data-tool]")].filter((b) => b instanceof HTMLButtonElement);
     this.bindFields();
     this.bindButtons(actions);
@@ -52,7 +54,12 @@ export class PlanPanel {
     });
     store.subscribe(["tool"], () => this.showTool());
     store.subscribe(["frameRate"], () => this.showFrameRate());
-    store.subscribe(["planProblem"], () => { byId("plan-error", HTMLElement).textContent = store.planProblem; });
+    store.subscribe(["planProblem"], () => {
+      byId("plan-error", HTMLElement).textContent = store.planProblem;
+      // A file just opened that needs a fix says so where it said "Plan opened" (a newcomer's
+      // trial: the problem was only in the Plan panel, further down).
+      if (this.openedFile && store.planProblem) this.sayReplaced("file", store.planProblem);
+    });
     this.showSettings();
     this.showLists();
   }
@@ -123,12 +130,16 @@ export class PlanPanel {
   }
 
   /**
-   * A plan opened from a file, or the demo's, can be undone from its message.
+   * A plan opened from a file, or the demo's, can be undone from its message; a file's that needs
+   * a fix says what.
    * @param {string} why
+   * @param {string} [problem]
    */
-  sayReplaced(why) {
+  sayReplaced(why, problem = "") {
+    this.openedFile = why === "file" && !problem;
     if (why !== "file" && why !== "demo") return;
-    this.messages.say("plan-replaced", "ok", why === "file" ? "Plan opened. " : "The demo plan is back. ", [
+    const said = problem ? `Plan opened, but it cannot be used in full until this is fixed (in the file, or here under Plan). ${problem} ` : why === "file" ? "Plan opened. " : "The demo plan is back. ";
+    this.messages.say("plan-replaced", problem ? "warn" : "ok", said, [
       el("button", { type: "button", text: "Undo", onclick: () => { this.store.planUndone(); this.messages.clear("plan-replaced"); } }),
     ]);
   }
