@@ -778,3 +778,29 @@ fn boxes_far_apart_are_named() {
     let report = read_detections(day.as_bytes()).unwrap();
     assert_eq!(report.detections.far_apart(), None);
 }
+
+/// Class names that differ only in capitals are counted apart, and said so (a newcomer's trial:
+/// "Pedestrian" and "pedestrian" rows of one file were two classes in the counts, with no word).
+#[test]
+fn classes_differing_only_in_capitals_are_named() {
+    let text = "frame,x,y,w,h,score,class\n\
+                1,10,20,30,40,0.9,Pedestrian\n\
+                1,60,20,30,40,0.9,pedestrian\n\
+                2,10,20,30,40,0.9,cyclist\n\
+                2,60,20,30,40,0.9,PEDESTRIAN\n";
+    let report = read_detections(text.as_bytes()).unwrap();
+    let notes = report.detections.notes();
+    assert_eq!(notes.len(), 1, "{notes:?}");
+    assert!(
+        notes[0].starts_with(
+            "the classes \"Pedestrian\" and \"pedestrian\" and \"PEDESTRIAN\" differ only in capitals"
+        ),
+        "{notes:?}"
+    );
+    let plain = "frame,x,y,w,h,score,class\n1,10,20,30,40,0.9,pedestrian\n";
+    assert!(read_detections(plain.as_bytes())
+        .unwrap()
+        .detections
+        .notes()
+        .is_empty());
+}

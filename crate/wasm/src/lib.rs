@@ -126,7 +126,7 @@ impl Session {
                     Some(l) => format!("line {l}: {}", w.message),
                     None => w.message.clone(),
                 })
-                .chain(d.far_apart())
+                .chain(d.notes())
                 .collect(),
             max_x: d
                 .rows

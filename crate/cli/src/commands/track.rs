@@ -269,7 +269,7 @@ pub fn track_file_with(
 
 fn print_warnings(path: &Path, report: &detections::ReadReport) {
     print_warning_list(path, &report.warnings);
-    if let Some(why) = report.detections.far_apart() {
+    for why in report.detections.notes() {
         eprintln!("warning: {}: {why}", path.display());
     }
 }

@@ -10,6 +10,7 @@ mod csv;
 mod gaps;
 mod halves;
 mod json;
+mod notes;
 mod perspective;
 mod reading;
 mod write;
