@@ -50,7 +50,11 @@ test("footage made to break the reader ends in a message within seconds, and the
     assert.doesNotMatch(await page.locator("#find-status").innerText(), /Starting/);
   }
   await screenshot(page, "16-hostile-footage", { fullPage: false });
-  // The page still counts: the demo's detections and plan are still open.
+  // The page still counts. (The one that plays, seek-loop.webm, set the demo's detections and
+  // plan aside as any footage of the person's own does: own-footage.test.mjs.)
+  await page.getByLabel("Open detections").setInputFiles(demo("detections.csv"));
+  await page.getByLabel("Open plan").setInputFiles(demo("plan.json"));
+  await page.waitForFunction(() => /detections\.csv/.test(document.getElementById("detections-name").textContent));
   await run(page);
   await showView(page, "Results");
   assert.match(await page.locator("#summary").innerText(), /plaza midline/);

@@ -96,6 +96,19 @@ export class FilesPanel {
    */
   openOwnFootage(file) {
     this.openFootage(file, file.name);
+    // Once it plays (footage that does not leaves everything as it was).
+    const opened = this.store.footage;
+    const stop = this.store.subscribe(["video", "footage"], () => {
+      stop();
+      if (this.store.footage === opened && this.store.video.playable) this.setDemoAside(file.name);
+    });
+  }
+
+  /**
+   * The demo's detections and plan, while still in use, set aside for the person's own footage.
+   * @param {string} name the footage's
+   */
+  setDemoAside(name) {
     const d = this.store.detections;
     const detections = Boolean(d && d.name === DEMO_DETECTIONS);
     const plan = this.store.plans.source === "demo" || this.store.plans.source === "demo-edited";
@@ -109,7 +122,7 @@ export class FilesPanel {
       plan ? "draw your lines, or open your plan" : "",
     ].filter(Boolean).join("; ");
     const back = plan ? " Undo (Ctrl+Z) brings the demo's plan back." : "";
-    this.messages.say("own-footage", "ok", `${file.name} is open, and the demo's ${what} set aside: they belong to the demo's scene. Next, ${next}.${back}`);
+    this.messages.say("own-footage", "ok", `${name} is open, and the demo's ${what} set aside: they belong to the demo's scene. Next, ${next}.${back}`);
     // Out of date once counts are made.
     const stop = this.store.subscribe(["results"], () => {
       if (!this.store.results) return;

@@ -79,7 +79,13 @@ export class Picture {
     const name = this.store.footage ? this.store.footage.name : "the footage";
     const stem = name.replace(/\.[^.]+$/, "");
     const error = this.video.error;
-    const why = error && error.code === 4 ? "this browser does not play its video format" : "the file could not be read";
+    // WebM and MP4 play in every current browser: one that does not is damaged (cut short by an
+    // interrupted copy) or coded in a way browsers do not play (a newcomer's trial: a cut MP4
+    // was said to be of a format the browser does not play).
+    const playable = /\.(webm|mp4|m4v|mov)$/i.test(name);
+    const why = error && error.code === 4
+      ? (playable ? "the file may be damaged or cut short (an interrupted copy: copy it again), or its video is coded in a way browsers do not play (HEVC, from some phones and cameras)" : "this browser does not play its video format")
+      : "the file could not be read";
     this.messages.say("footage", "error", `This browser cannot play ${name}: ${why}. Browsers play WebM and MP4 video (from most cameras and phones). To convert it on this computer, the free program ffmpeg can do it with this command:\n`, [
       el("code", { text: `ffmpeg -i "${name}" -c:v libvpx-vp9 -crf 32 -b:v 0 -an "${stem}.webm"` }),
     ]);

@@ -6,7 +6,7 @@ use super::crossings::Moment;
 use super::paths::Counted;
 use crate::error::{Error, ErrorKind};
 use crate::limits::MAX_INTERVALS;
-use crate::plan::clock::{elapsed, LocalTime};
+use crate::plan::clock::{elapsed, whole_seconds, LocalTime};
 use crate::plan::Plan;
 use crate::report::{Direction, Event, EventKind};
 use crate::track::{Track, Tracks};
@@ -64,7 +64,7 @@ impl Timeline {
     /// A moment's label: clock time when the plan has a start, else elapsed `H:MM:SS`.
     pub fn label(&self, seconds: f64) -> String {
         match self.start {
-            Some(t) => t.plus_seconds(seconds.floor() as i64).to_string(),
+            Some(t) => t.plus_seconds(whole_seconds(seconds)).to_string(),
             None => elapsed(seconds),
         }
     }

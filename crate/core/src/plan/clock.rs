@@ -139,15 +139,33 @@ pub fn as_report_writes(s: &str) -> String {
     }
 }
 
-/// Elapsed seconds as `HH:MM:SS` (hours may exceed 24), for plans without a start time.
+/// Elapsed seconds as `HH:MM:SS` (hours may exceed 24), for plans without a start time: the
+/// second a moment falls in, as a clock shows it (0.99 s is `00:00:00`, as the page shows it).
 pub fn elapsed(seconds: f64) -> String {
-    let s = seconds.max(0.0).round() as i64;
+    let s = whole_seconds(seconds.max(0.0));
     format!("{:02}:{:02}:{:02}", s / 3600, s % 3600 / 60, s % 60)
+}
+
+/// The whole second a moment falls in; a moment a rounding error short of a whole second (a
+/// frame's time worked out at 29.97 frames a second) is taken as that second.
+pub fn whole_seconds(seconds: f64) -> i64 {
+    (seconds + 1e-6).floor() as i64
 }
 
 #[cfg(test)]
 mod tests {
-    use super::as_report_writes;
+    use super::{as_report_writes, elapsed};
+
+    /// A moment is labelled with the second it falls in, as a clock (and the page) shows it; a
+    /// rounding error short of a whole second is that second (common practice).
+    #[test]
+    fn elapsed_time_is_the_second_a_moment_falls_in() {
+        assert_eq!(elapsed(0.99), "00:00:00");
+        assert_eq!(elapsed(1.0), "00:00:01");
+        assert_eq!(elapsed((31.0 - 1.0) / 29.97 * 29.97), "00:00:30");
+        assert_eq!(elapsed(3599.5), "00:59:59");
+        assert_eq!(elapsed(-2.0), "00:00:00");
+    }
 
     /// The ways a spreadsheet saves a time (common practice: `h:mm`, a date with a space).
     #[test]
