@@ -8,7 +8,7 @@ import { test } from "node:test";
 import assert from "node:assert/strict";
 import { execFileSync } from "node:child_process";
 import { join } from "node:path";
-import { useBrowser, openPage, showView, demo, LAPTOP } from "./harness.mjs";
+import { useBrowser, openPage, showView, run, clickPicture, demo, LAPTOP } from "./harness.mjs";
 import { scratch } from "./review-helpers.mjs";
 
 const env = useBrowser();
@@ -36,11 +36,23 @@ test("own footage over the demo sets the demo's detections and plan aside; its l
   await page.locator("#frame-rate").blur();
   await page.waitForFunction(() => document.getElementById("scrub").max === "80");
 
-  // Undo brings the demo's plan back, after the frame rate (not its detections: open them again).
-  await page.keyboard.press("Control+z");
-  await page.waitForFunction(() => document.getElementById("scrub").max === "200");
-  await page.keyboard.press("Control+z");
-  await page.waitForFunction(() => document.querySelectorAll("#line-list li:not(.hint)").length > 0);
+  // One line drawn and counted: no "movements" from the line to itself (a newcomer's trial).
+  await page.getByLabel("Open detections").setInputFiles(demo("detections.csv"));
+  await page.waitForFunction(() => /^detections\.csv/.test(document.getElementById("detections-name").textContent));
+  await page.getByRole("button", { name: "Draw line" }).click();
+  await clickPicture(page, 10, 150);
+  await clickPicture(page, 470, 150);
+  await page.waitForFunction(() => document.querySelectorAll("#line-list li:not(.hint)").length === 1);
+  await run(page);
+  await showView(page, "Results");
+  assert.match(await page.locator("#movements-table").innerText(), /need two or more in the plan; this plan has one/);
+
+  // Undo, step by step, brings the demo's plan back (not its detections: open them again).
+  await showView(page, "Set up");
+  await page.locator("#frame-rate").click();
+  await page.locator("#frame-rate").blur();
+  for (let k = 0; k < 3; k++) await page.keyboard.press("Control+z");
+  await page.waitForFunction(() => document.querySelectorAll("#line-list li:not(.hint)").length === 2);
   assert.deepEqual(seen.errors, []);
   await page.close();
 });

@@ -238,6 +238,11 @@ function zones(report) {
 
 /** @param {Report} report */
 function movements(report) {
+  // One line (or zone) alone: a "movement" from it to itself is only a path that met it twice
+  // (a newcomer's trial: "walkway → walkway, U-turn" read as noise beside a screenline count).
+  if (report.screenlines.length + report.zones.length === 1) {
+    return [el("h3", { text: "Movements" }), el("p", { class: "hint", text: "Movements (from one line or zone to another, as in a turning count) need two or more in the plan; this plan has one." })];
+  }
   if (!report.movements.length) return [];
   const rows = report.movements.map((m) => [m.origin, m.destination, m.class || "unclassified", m.count, m.u_turn ? "yes" : ""]);
   return [el("h3", { text: "Movements (first line or zone met → last)" }), table(["From", "To", "Class", "Count", "U-turn"], rows, [3])];
