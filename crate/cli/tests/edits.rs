@@ -290,6 +290,8 @@ fn the_picture_size_comes_from_picture_or_from_the_project_and_a_bad_one_is_refu
     });
     let file = write(&dir, "project.json", project.to_string().as_bytes());
     assert_eq!(queue(&["--edits", &file]), given);
+    // The footage gives its own size (a newcomer's trial: the size asked for was not at hand).
+    assert_eq!(queue(&["--footage", &demo("footage.webm")]), given);
     assert_ne!(
         queue(&[]),
         given,

@@ -34,6 +34,10 @@ pub struct Args {
     /// recorded for the footage, else the extent of the boxes.
     #[arg(long, value_name = "WxH", value_parser = picture_size)]
     picture: Option<(f64, f64)>,
+    /// The footage (YUV4MPEG2, WebM or MP4), for its picture's size and length when --picture and
+    /// --frames are not given.
+    #[arg(long, value_name = "FILE")]
+    footage: Option<PathBuf>,
     /// The footage's length in frames, when the detections end before it does (as for `run`;
     /// default: with --edits PROJECT, its footage's duration): a track ending at the footage's
     /// end is not doubtful, one ending well before it may be.
@@ -57,18 +61,34 @@ pub fn run(args: Args) -> Result<(), Failure> {
     let project_at = args.edits.as_deref().zip(project.as_ref());
     let (how, settings) = with_project(&args.tracking, project_at)?;
     let mut tracks = track_file_with(&args.detections, &how, settings, &mut Timer::new())?;
+    let y4m = match args.footage.as_deref() {
+        Some(f) => crate::decode::is_y4m(f)?,
+        None => false,
+    };
+    let footage = super::count::FootageFiles {
+        y4m: args.footage.as_deref().filter(|_| y4m),
+        video: args.footage.as_deref().filter(|_| !y4m),
+        quiet: args.tracking.quiet,
+    };
     super::count::with_length(&mut tracks, args.frames, |t| {
-        super::count::known_length(t, project_at, &plan, super::count::FootageFiles::default())
+        super::count::known_length(t, project_at, &plan, footage)
     })?;
     let report = pipeline::count(&tracks, &plan, Some(&tracks.config), &work)
         .map_err(|e| bad_input(&args.plan, e))?;
     let shown = pipeline::correct_tracks(&tracks, &work.edits).0;
-    let picture = args.picture.or(recorded);
+    let of_footage = match (&args.picture, &args.footage) {
+        (None, Some(f)) => {
+            crate::frames::footage_facts(f)?.map(|(_, (w, h))| (f64::from(w), f64::from(h)))
+        }
+        _ => None,
+    };
+    let picture = args.picture.or(of_footage).or(recorded);
     match picture {
         Some(size) => warn_misfit(&shown, &plan, size, args.tracking.quiet),
         None if !args.tracking.quiet => eprintln!(
-            "note: the picture's size is taken from the boxes' extent; give --picture WxH (the \
-             footage's size), or a project file with --edits, to list what the page lists"
+            "note: the picture's size is taken from the boxes' extent; give the footage (--footage \
+             FILE), its size (--picture WxH), or a project file with --edits, to list what the \
+             page lists"
         ),
         None => {}
     }
