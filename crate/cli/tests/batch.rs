@@ -530,6 +530,19 @@ fn what_would_mislead_a_merged_count_is_refused_and_a_lost_report_is_counted_aga
         "{said}"
     );
     assert!(!dir.join("out/plaza_merged-counts.csv").exists());
+    // A third clip of the site that fails: the overlap is said with it, not only after its fix
+    // (a newcomer's trial).
+    let with_bad = format!(
+        "{}c,s3/detections.txt,bad-plan.json,Plaza,south,2026-03-02T07:00:00\n",
+        std::fs::read_to_string(&manifest).unwrap()
+    );
+    let three = write(&dir, "three.csv", with_bad.as_bytes());
+    let o = throughline(&["batch", &three, "--out", &out, "-q"]);
+    let said = stderr(&o);
+    assert!(
+        said.contains("Plaza: not merged: c failed; and a (2026-03-02T07:00:00 to "),
+        "{said}"
+    );
     // A clip's report lost after it was counted: it is counted again, not skipped.
     std::fs::remove_file(dir.join("out/a/report.json")).unwrap();
     let o = throughline(&["batch", &manifest, "--out", &out, "--only", "1"]);
