@@ -88,6 +88,10 @@ export async function openPage(env, { viewport = null, url = `${env.server.origi
   const seen = watch(page, url.startsWith("file:") ? "file://" : env.server.origin);
   await page.goto(url);
   await page.waitForSelector("body[data-ready=true]", { timeout: 30000 });
+  // A plan of the person's own kept by an earlier test in this browser: the page goes on with it
+  // and waits for their files; these tests begin on the demo, as a person would choose it.
+  const demoButton = page.getByRole("button", { name: "Open the demo" });
+  if (await demoButton.count()) await demoButton.click();
   await page.waitForFunction(() => document.getElementById("overlay").width === 640);
   return { page, seen };
 }

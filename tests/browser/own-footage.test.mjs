@@ -29,6 +29,14 @@ test("own footage over the demo sets the demo's detections and plan aside; its l
   assert.ok(!said.some((m) => /This is the bundled demo/.test(m)), "the demo's invitation is gone");
   await page.getByRole("button", { name: "Run", exact: true }).click();
   await page.waitForFunction(() => [...document.querySelectorAll(".message")].some((m) => /Open a detections file first/.test(m.textContent)));
+  // Undo brings the demo's plan back (not its detections: open them again to use them); the
+  // footage opened again sets it aside again.
+  await page.evaluate(() => /** @type {HTMLElement} */ (document.activeElement).blur());
+  await page.keyboard.press("Control+z");
+  await page.waitForFunction(() => document.querySelectorAll("#line-list li:not(.hint)").length === 2);
+  assert.equal(await page.locator("#plan-name").innerText(), "demo plan.json", "the plan's name comes back with it");
+  await page.getByLabel("Open footage").setInputFiles(join(scratch, "street.webm"));
+  await page.waitForFunction(() => document.querySelectorAll("#line-list li:not(.hint)").length === 0);
 
   // 8 s of footage: 200 frames at the plan's 25, 80 once the frame rate is corrected to 10.
   await page.waitForFunction(() => document.getElementById("scrub").max === "200");
@@ -47,11 +55,17 @@ test("own footage over the demo sets the demo's detections and plan aside; its l
   await showView(page, "Results");
   assert.match(await page.locator("#movements-table").innerText(), /need two or more in the plan; this plan has one/);
 
-  // Undo, step by step, brings the demo's plan back (not its detections: open them again).
-  await showView(page, "Set up");
-  await page.locator("#frame-rate").click();
-  await page.locator("#frame-rate").blur();
-  for (let k = 0; k < 3; k++) await page.keyboard.press("Control+z");
+  // Reloaded, the person's own plan goes on without the demo's files under it (a newcomer's
+  // re-trial: their line over the demo's boxes, and Run now offered on them).
+  await page.reload();
+  await page.waitForSelector("body[data-ready=true]");
+  assert.equal(await page.locator("#detections-name").innerText(), "none");
+  assert.equal(await page.locator("#line-list li:not(.hint)").count(), 1, "the line drawn");
+  assert.match(await page.locator("#messages").innerText(), /Your plan is kept from last time/);
+  assert.doesNotMatch(await page.locator("#messages").innerText(), /This is the bundled demo/);
+  // … and the demo is a click away.
+  await page.getByRole("button", { name: "Open the demo" }).click();
+  await page.waitForFunction(() => /demo detections\.csv/.test(document.getElementById("detections-name").textContent));
   await page.waitForFunction(() => document.querySelectorAll("#line-list li:not(.hint)").length === 2);
   assert.deepEqual(seen.errors, []);
   await page.close();

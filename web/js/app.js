@@ -72,10 +72,21 @@ bindShortcuts(store, picture, editor, review, tally);
 if (store.restored) planSync.send();
 if (store.work.edits.length || store.work.extras.tallies || store.work.extras.correction) editSync.send();
 store.toolChosen("select");
-await demo.open(false);
+// A plan of the person's own kept from last time: their work goes on, on their files, not over
+// the demo's (a newcomer's re-trial: a reload put their line over the demo's boxes and offered
+// to run them).
+const ownPlan = store.restored && store.plans.source !== "demo" && store.plans.source !== "demo-edited";
+if (ownPlan) sayOwnPlanKept();
+else await demo.open(false);
 if (store.workRestored) sayWorkKept();
 if (store.handCount.resume()) sayTallyResumed();
 document.body.dataset.ready = "true";
+
+/** After a reload on a plan of the person's own: their files are to open again. */
+function sayOwnPlanKept() {
+  const demoAgain = el("button", { type: "button", text: "Open the demo", onclick: () => { messages.clear("own-plan-kept"); demo.open(true); } });
+  messages.say("own-plan-kept", "ok", "Your plan is kept from last time (this browser keeps it for this address). Open your footage and detections again under Set up, Files, to go on, or open the bundled demo instead:", [demoAgain]);
+}
 
 /** After a reload: the corrections, decisions and hand counts are back, and wait for tracks to apply to. */
 function sayWorkKept() {

@@ -49,6 +49,8 @@ export class FilesPanel {
       const input = byId(id, HTMLInputElement);
       input.addEventListener("change", () => {
         const f = input.files && input.files[0];
+        // Emptied, so that the same file chosen again (after an undo, say) is opened again.
+        input.value = "";
         if (f) open(f);
       });
     };

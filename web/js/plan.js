@@ -240,7 +240,9 @@ export class PlanHistory {
    * @param {PlanChange} [why]
    */
   change(edit, why = "edit") {
-    this.history.push(JSON.stringify(this.plan));
+    // The plan with where it came from, so an undo brings back both (a page reloaded after undoing
+    // back to the demo's plan opens the demo again).
+    this.history.push(JSON.stringify({ plan: this.plan, source: this.source, file: this.file }));
     if (this.history.length > UNDO_DEPTH) this.history.shift();
     const next = structuredClone(this.plan);
     edit(next);
@@ -270,7 +272,8 @@ export class PlanHistory {
   undo() {
     const last = this.history.pop();
     if (!last) return false;
-    this.plan = JSON.parse(last);
+    const was = JSON.parse(last);
+    [this.plan, this.source, this.file] = [was.plan, was.source, was.file];
     this.save();
     return true;
   }

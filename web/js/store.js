@@ -371,7 +371,10 @@ export class PageStore {
     const before = this.plan;
     if (!this.plans.undo()) return;
     this.keyColours.follow(before, this.plan);
-    this.emit(["plan"], "undo");
+    // The Files panel names the plan brought back (it named the file undone).
+    const { source, file } = this.plans;
+    this.planName = file ? file.name : source === "demo" ? "demo plan.json" : source === "demo-edited" ? "demo plan.json (edited)" : "drawn here";
+    this.emit(["plan", "planName"], "undo");
   }
 
   /** Deletes the selected line or zone. */
