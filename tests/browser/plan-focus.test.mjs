@@ -8,7 +8,7 @@ import assert from "node:assert/strict";
 import { readFileSync, mkdtempSync } from "node:fs";
 import { join } from "node:path";
 import { tmpdir } from "node:os";
-import { useBrowser, watch, screenshot, demo } from "./harness.mjs";
+import { useBrowser, openPage, screenshot, demo } from "./harness.mjs";
 
 const env = useBrowser();
 const scratch = mkdtempSync(join(tmpdir(), "tl-focus-"));
@@ -65,11 +65,7 @@ const cases = [
 
 for (const c of cases) {
   test(`typing ${c.name}, Tab, Backspace: the field keeps its text and the plan loses nothing`, async () => {
-    const page = await env.browser.newPage();
-    const seen = watch(page, env.server.origin);
-    await page.goto(`${env.server.origin}/`);
-    await page.waitForSelector("body[data-ready=true]", { timeout: 30000 });
-    await page.waitForFunction(() => document.getElementById("overlay").width === 640);
+    const { page, seen } = await openPage(env);
 
     const { value, focused, afterTab, afterBackspace } = await typeTabBackspace(page, c);
     assert.equal(value, c.typed, "the field shows what was typed after Tab");

@@ -176,7 +176,15 @@ export class FilesPanel {
     try {
       plan = parsePlanText(text, name);
     } catch (e) {
-      this.messages.say("plan-file", "error", /** @type {Error} */ (e).message);
+      // The core's reading names the line and column and says what is wrong in words ("trailing
+      // comma"), as the command line does; the browser's own parser says less.
+      let said = /** @type {Error} */ (e).message;
+      try {
+        await this.client.checkPlan(text);
+      } catch (core) {
+        if (!(core instanceof Cancelled)) said = `${name} was not opened: ${withoutDocs(/** @type {Error} */ (core).message)}. The plan in use is unchanged; fix the file and open it again.`;
+      }
+      this.messages.say("plan-file", "error", said);
       return;
     }
     try {

@@ -248,7 +248,7 @@ export function projectUnsaved(store) {
  * @param {string} site
  */
 export function projectFileName(site) {
-  return `${site ? site.replace(/[^\w.-]+/g, "-") : "throughline"}-project.json`;
+  return `${site ? site.replace(/[^\p{L}\p{N}_.-]+/gu, "-") : "throughline"}-project.json`;
 }
 
 /**

@@ -171,8 +171,9 @@ fn video_times(footage: &Path, limit: u64) -> Result<Result<(u64, i64, i64), Str
 pub type FootageFacts = (Option<f64>, (u32, u32));
 
 /// Footage's frame rate (when it says) and picture size, to check a plan against: a YUV4MPEG2
-/// file's header; a WebM's or MP4's first seconds and its coded size (no decoding). `None` for
-/// standard input (read once, by the detector) and other video.
+/// file's header; a WebM's or MP4's first seconds and its coded size (no decoding); other video's
+/// as ffmpeg decodes it. `None` for standard input (read once, by the detector) and for video
+/// ffmpeg cannot decode (or without ffmpeg).
 pub fn footage_facts(footage: &Path) -> Result<Option<FootageFacts>, Failure> {
     if footage == Path::new("-") {
         return Ok(None);
@@ -187,7 +188,11 @@ pub fn footage_facts(footage: &Path) -> Result<Option<FootageFacts>, Failure> {
         .map_err(|e| bad_input(footage, format!("cannot read the file: {e}")))?;
     let bytes = file.metadata().map_or(0, |m| m.len());
     let Ok((_, track)) = Demuxer::open(BufReader::with_capacity(1 << 16, file), bytes) else {
-        return Ok(None);
+        // Other video (AVI, …): the header of ffmpeg's decoding, when it decodes it.
+        return Ok(open_y4m(footage).ok().map(|r| {
+            let h = r.header();
+            (h.frame_rate, (h.width as u32, h.height as u32))
+        }));
     };
     let size = (track.coded_width, track.coded_height);
     let rate = match video_times(footage, 250)? {

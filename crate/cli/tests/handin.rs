@@ -239,7 +239,7 @@ fn boxes_found_in_footage_are_named_and_the_summarys_command_gives_the_same_repo
     let command = summary_command(&summary);
     assert_eq!(
         command.join(" "),
-        "throughline run --footage frames.y4m --detector-config heights.json --plan plan.json --start 2026-04-01T08:00:00 -o check/report.json"
+        "throughline run --footage frames.y4m --detector-config heights.json --plan plan.json --site Gate --start 2026-04-01T08:00:00 -o check/report.json"
     );
     // Run where the files are, in the folder it names: the same report, the summary left alone.
     std::fs::create_dir_all(dir.join("check")).unwrap();
@@ -257,5 +257,10 @@ fn boxes_found_in_footage_are_named_and_the_summarys_command_gives_the_same_repo
     assert_eq!(
         std::fs::read_to_string(dir.join("gate_2026-04-01_summary.html")).unwrap(),
         summary
+    );
+    // Its own hand-in files are in check/, the grid the same bytes.
+    assert_eq!(
+        std::fs::read_to_string(dir.join("check/gate_2026-04-01_grid.csv")).unwrap(),
+        grid
     );
 }

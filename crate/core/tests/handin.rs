@@ -203,6 +203,15 @@ fn movements_become_an_origin_destination_matrix() {
     let text = handin::movement_matrix(&r, &context(), Separator::Comma);
     assert!(text.contains("All classes\nFrom \\ To,north kerb,south kerb,Total\nnorth kerb,0,3,3\nsouth kerb,1,0,1\nTotal,1,3,4\n"), "{text}");
     assert!(text.ends_with("(no destination),1\n"), "{text}");
+    // One line alone: no matrix of the line to itself, but why (a newcomer's re-trial).
+    let mut one_line = r.clone();
+    one_line.screenlines.truncate(1);
+    let text = handin::movement_matrix(&one_line, &context(), Separator::Comma);
+    assert!(
+        text.ends_with("need two or more in the plan; this plan has one\n"),
+        "{text}"
+    );
+    assert!(!text.contains("From \\ To"), "{text}");
 }
 
 #[test]
@@ -212,6 +221,8 @@ fn file_names_come_from_the_site_and_date() {
         handin::file_stem(&r, &context()),
         "bridge-st-main-rd-north_2026-03-02"
     );
+    // Letters of any script are kept (a newcomer's re-trial: "Café" lost its "é").
+    assert_eq!(handin::slug("Café Ünïcode / Nord"), "café-ünïcode-nord");
     let mut bare = r.clone();
     bare.plan.start = None;
     assert_eq!(
@@ -235,7 +246,7 @@ fn the_summary_names_the_site_counts_checks_and_what_reproduces_them() {
         "No correction factor applied",
         "Automated counts are estimates.",
         "<image href=\"data:image/png;base64,AAAA\"",
-        "throughline run detections.csv --plan bridge-st.json --edits bridge-st_2026-03-02.throughline.json --start 2026-03-02T07:00:00 -o check/report.json",
+        "throughline run detections.csv --plan bridge-st.json --edits bridge-st_2026-03-02.throughline.json --site 'Bridge St / Main Rd (north)' --start 2026-03-02T07:00:00 -o check/report.json",
         "detections (first MiB): <code>ba7816bf8f01</code>",
         // For a person: the start as a date and a time; the project file named for what it is.
         "<p>Recorded from 2026-03-02 07:00:00, 75.0 minutes",
@@ -271,6 +282,12 @@ fn the_summary_names_the_site_counts_checks_and_what_reproduces_them() {
     assert!(found.contains(
         "DETECTIONS is the boxes found in the page, as its Export detections saves them."
     ));
+    // A name with spaces or brackets is one word when pasted into a shell.
+    ctx.found_in_page = false;
+    ctx.footage = Some(Fingerprint::of("my clip (1).mp4", 3, b"abc", None));
+    ctx.detector_settings = Some("it's.json".into());
+    assert!(handin::summary_html(&r, &ctx)
+        .contains("throughline run --footage 'my clip (1).mp4' --detector-config 'it'\\''s.json'"));
     // Self-contained: nothing is fetched, nothing runs.
     assert!(
         !html.contains("<script") && !html.contains("src=\"http") && !html.contains("href=\"http")

@@ -34,8 +34,8 @@ pub struct Args {
     /// recorded for the footage, else the extent of the boxes.
     #[arg(long, value_name = "WxH", value_parser = picture_size)]
     picture: Option<(f64, f64)>,
-    /// The footage (YUV4MPEG2, WebM or MP4), for its picture's size and length when --picture and
-    /// --frames are not given.
+    /// The footage (YUV4MPEG2, WebM, MP4, or other video ffmpeg decodes), for its picture's size
+    /// and length when --picture and --frames are not given.
     #[arg(long, value_name = "FILE")]
     footage: Option<PathBuf>,
     /// The footage's length in frames, when the detections end before it does (as for `run`;

@@ -10,6 +10,20 @@ use std::collections::BTreeSet;
 pub fn movement_matrix(report: &Report, ctx: &Context, sep: Separator) -> String {
     let mut out = String::new();
     header(&mut out, sep, &header_block(report, ctx));
+    // One line or zone alone: a path from it to itself is no movement (a newcomer's re-trial
+    // read "walkway → walkway" as noise).
+    if report.screenlines.len() + report.zones.len() == 1 {
+        row(
+            &mut out,
+            sep,
+            &[
+                "Movements from one line or zone to another (as in a turning count) need two or \
+               more in the plan; this plan has one"
+                    .into(),
+            ],
+        );
+        return out;
+    }
     let places: BTreeSet<&str> = report
         .movements
         .iter()

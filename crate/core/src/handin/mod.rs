@@ -102,11 +102,12 @@ pub fn file_stem(report: &Report, ctx: &Context) -> String {
     format!("{}_{date}", site.as_deref().unwrap_or("counts"))
 }
 
-/// Lowercase ASCII letters and digits, other runs of characters as one dash.
+/// Lowercase letters and digits (of any script: "Café Ünïcode" is `café-ünïcode`, not
+/// `caf-n-code`), other runs of characters as one dash.
 pub fn slug(text: &str) -> String {
     let mut out = String::new();
     for c in text.chars().flat_map(char::to_lowercase) {
-        if c.is_ascii_alphanumeric() {
+        if c.is_alphanumeric() {
             out.push(c);
         } else if !out.ends_with('-') && !out.is_empty() {
             out.push('-');
@@ -141,37 +142,51 @@ pub fn short_hashes(report: &Report, ctx: &Context) -> Vec<(&'static str, String
 /// writes into a folder `check` (its hand-in files have the names of those it reproduces), at the
 /// report's start time (given on the command line, it is not in the plan's file).
 pub fn command_line(report: &Report, ctx: &Context) -> String {
-    let plan = ctx.plan_name.as_deref().unwrap_or("plan.json");
+    let plan = &shell_word(ctx.plan_name.as_deref().unwrap_or("plan.json"));
     let mut cmd = match (&ctx.footage, ctx.found_in_footage && !ctx.found_in_page) {
         (Some(f), true) => {
-            let settings = ctx
-                .detector_settings
-                .as_ref()
-                .map_or(String::new(), |d| format!(" --detector-config {d}"));
-            format!(
-                "throughline run --footage {}{settings} --plan {plan}",
-                f.name
-            )
+            let settings = ctx.detector_settings.as_ref().map_or(String::new(), |d| {
+                format!(" --detector-config {}", shell_word(d))
+            });
+            let footage = shell_word(&f.name);
+            format!("throughline run --footage {footage}{settings} --plan {plan}")
         }
         (footage, _) => {
             let detections = ctx
                 .detections
                 .as_ref()
-                .map_or("DETECTIONS", |f| f.name.as_str());
-            let footage = footage
-                .as_ref()
-                .map_or(String::new(), |f| format!(" --footage {}", f.name));
+                .map_or("DETECTIONS".to_string(), |f| shell_word(&f.name));
+            let footage = footage.as_ref().map_or(String::new(), |f| {
+                format!(" --footage {}", shell_word(&f.name))
+            });
             format!("throughline run {detections} --plan {plan}{footage}")
         }
     };
     if let Some(p) = &ctx.project_name {
-        cmd.push_str(&format!(" --edits {p}"));
+        cmd.push_str(&format!(" --edits {}", shell_word(p)));
+    }
+    if let Some(site) = &ctx.site {
+        cmd.push_str(&format!(" --site {}", shell_word(site)));
     }
     if let Some(start) = &report.plan.start {
         cmd.push_str(&format!(" --start {start}"));
     }
     cmd.push_str(" -o check/report.json");
     cmd
+}
+
+/// A word as a shell reads it back whole: as it is when it holds only letters, digits and
+/// `._-/+:,=@`, else in single quotes (a name like `my clip (1).mp4`, pasted, must stay one word).
+pub fn shell_word(word: &str) -> String {
+    let plain = !word.is_empty()
+        && word
+            .chars()
+            .all(|c| c.is_ascii_alphanumeric() || "._-/+:,=@".contains(c));
+    if plain {
+        word.to_string()
+    } else {
+        format!("'{}'", word.replace('\'', "'\\''"))
+    }
 }
 
 /// How the hand-in names the detections: a file, or found in the footage (and how).

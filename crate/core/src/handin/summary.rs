@@ -151,9 +151,14 @@ fn checks(h: &mut String, report: &Report) {
     let applied = report.edits.iter().filter(|e| e.applied).count();
     let rejected: u64 = report.screenlines.iter().map(|l| l.rejected).sum();
     let added: u64 = report.screenlines.iter().map(|l| l.added).sum();
+    let crossings = if rejected == 1 {
+        "crossing"
+    } else {
+        "crossings"
+    };
     let _ = writeln!(
         h,
-        "<p>Corrections after looking at the footage: {applied} applied ({} not applicable); {rejected} counted crossings rejected, {added} added by hand.</p>",
+        "<p>Corrections after looking at the footage: {applied} applied ({} not applicable); {rejected} counted {crossings} rejected, {added} added by hand.</p>",
         report.edits.len() - applied
     );
     match &report.correction {
@@ -206,9 +211,9 @@ fn reproduce(h: &mut String, report: &Report, ctx: &Context) {
     };
     let _ = writeln!(
         h,
-        "</ul>\n<p>The same numbers from those files, in a folder <code>check</code> made beside \
-         them (the command writes hand-in files with the names of these): <code>{}</code>{project}.\
-         {placeholder}</p>",
+        "</ul>\n<p>The same numbers from those files: make a folder <code>check</code> beside \
+         them (the command writes its files there, with the names of these), then, where the \
+         files are: <code>{}</code>{project}.{placeholder}</p>",
         esc(&command)
     );
 }

@@ -56,9 +56,12 @@ impl Camera<'_> {
         for pair in self.spans.windows(2) {
             let ((a0, a1, a), (b0, b1, b)) = (pair[0], pair[1]);
             if b0 < a1 {
+                let camera = match self.name {
+                    "" => "both with no camera named".to_string(),
+                    name => format!("both of camera {name:?}"),
+                };
                 return Err(unsuitable(format!(
-                    "{a} ({a0} to {a1}) and {b} ({b0} to {b1}) overlap, both of camera {:?}: their crossings would be counted twice; give each clip its own start time, or each camera its own name",
-                    self.name
+                    "{a} ({a0} to {a1}) and {b} ({b0} to {b1}) overlap, {camera}: their crossings would be counted twice; give each clip its own start time, or each camera its own name (the manifest's camera column)"
                 )));
             }
         }
