@@ -40,9 +40,13 @@ test("own footage over the demo sets the demo's detections and plan aside; its l
 
   // 8 s of footage: 200 frames at the plan's 25, 80 once the frame rate is corrected to 10.
   await page.waitForFunction(() => document.getElementById("scrub").max === "200");
+  await page.locator("#scrub").evaluate((s) => { s.value = "101"; s.dispatchEvent(new Event("input")); });
+  await page.waitForFunction(() => /^frame 101 · 0:04\.00/.test(document.getElementById("clock").textContent));
   await page.locator("#frame-rate").fill("10");
   await page.locator("#frame-rate").blur();
   await page.waitForFunction(() => document.getElementById("scrub").max === "80");
+  // The same picture, at 4.02 s: frame 41 at 10 a second (it said frame 101 at 10.00 s).
+  await page.waitForFunction(() => /^frame 41 · 0:04\.00/.test(document.getElementById("clock").textContent));
 
   // One line drawn and counted: no "movements" from the line to itself (a newcomer's trial).
   await page.getByLabel("Open detections").setInputFiles(demo("detections.csv"));

@@ -39,6 +39,14 @@ export class Picture {
     this.lastVideoFrame = null;
     store.subscribe(["footage"], () => this.open());
     store.subscribe(["frame", "plan", "video", "detections"], () => this.showPosition());
+    // The frame rate corrected: the picture shown is the same moment, so its frame number follows
+    // (a newcomer's re-trial: "frame 151 · 0:15.00" for the picture at 6.05 s).
+    this.fpsShown = store.fps;
+    store.subscribe(["plan"], () => {
+      if (store.fps === this.fpsShown) return;
+      this.fpsShown = store.fps;
+      if (store.video.playable && this.video.paused) this.store.frameChosen(Math.round(this.video.currentTime * store.fps + 0.5));
+    });
     this.listen();
   }
 
