@@ -147,6 +147,25 @@ fn video_ffmpeg_cannot_read_is_named_and_a_cut_one_is_used_to_its_cut() {
         .parse()
         .unwrap();
     assert!((10..100).contains(&frames), "{frames} frames");
+    // In a batch the clip is counted, its warning said with its name and kept beside its report
+    // (a newcomer's re-trial: a cut clip was handed in as done, the warning lost).
+    let manifest = dir.join("cut.csv");
+    let plan = demo("plan.json");
+    std::fs::write(
+        &manifest,
+        format!("name,footage,plan\ncut,cut.webm,{plan}\n"),
+    )
+    .unwrap();
+    let out = dir.join("batch").display().to_string();
+    let o = throughline(&["batch", manifest.to_str().unwrap(), "--out", &out, "-q"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let said = stderr(&o);
+    assert!(
+        said.contains("warning: cut: ") && said.contains("cut.webm: ffmpeg, decoding it, said:"),
+        "{said}"
+    );
+    let kept = std::fs::read_to_string(dir.join("batch/cut/warnings.txt")).unwrap();
+    assert!(kept.contains("ffmpeg, decoding it, said:"), "{kept}");
     // No ffmpeg on the PATH: how to get it, or how to convert the footage.
     let o = Command::new(env!("CARGO_BIN_EXE_throughline"))
         .args(["detect", "--footage", &c.mp4])

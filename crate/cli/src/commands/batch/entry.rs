@@ -117,10 +117,39 @@ impl Job {
                 why
             });
         }
+        self.keep_warnings(&output.stderr);
         let seconds = started.elapsed().as_secs_f64();
         match self.record(&fingerprint, seconds) {
             Ok(()) => Outcome::Done(seconds),
             Err(why) => self.failed(why),
+        }
+    }
+
+    /// A counted clip's warnings (footage cut short, a frame rate other than the plan's…) are
+    /// said with its name and kept in its folder (`warnings.txt`): a newcomer's re-trial handed in
+    /// a cut clip as done, the run's warning lost.
+    fn keep_warnings(&self, stderr: &[u8]) {
+        let said = String::from_utf8_lossy(stderr);
+        let warnings: Vec<&str> = said
+            .lines()
+            .filter(|l| l.starts_with("warning: "))
+            .collect();
+        let path = self.dir.join("warnings.txt");
+        if warnings.is_empty() {
+            let _ = std::fs::remove_file(&path);
+            return;
+        }
+        for w in &warnings {
+            eprintln!(
+                "warning: {}: {}",
+                self.name,
+                w.trim_start_matches("warning: ")
+            );
+        }
+        // Written beside, then renamed into place, as every output.
+        let mut files = Outputs::new();
+        if files.write(&path, &(warnings.join("\n") + "\n")).is_ok() {
+            let _ = files.commit();
         }
     }
 
