@@ -94,9 +94,15 @@ export class Picture {
     const why = error && error.code === 4
       ? (playable ? "the file may be damaged or cut short (an interrupted copy: copy it again), or its video is coded in a way browsers do not play (HEVC, from some phones and cameras)" : "this browser does not play its video format")
       : "the file could not be read";
+    // The footage that played before goes on (a newcomer's re-trial: an AVI opened over it left
+    // the picture black and the work "made with other files").
+    const before = this.store.footageBefore;
+    const kept = before ? `\n${before.name} stays open.` : "";
     this.messages.say("footage", "error", `This browser cannot play ${name}: ${why}. Browsers play WebM and MP4 video (from most cameras and phones). To convert it on this computer, the free program ffmpeg can do it with this command:\n`, [
       el("code", { text: `ffmpeg -i "${name}" -c:v libvpx-vp9 -crf 32 -b:v 0 -an "${stem}.webm"` }),
+      document.createTextNode(kept),
     ]);
+    if (before) this.store.footageOpened(before.name, before.blob);
   }
 
   /** The footage plays but shows nothing: sound only, most likely. */

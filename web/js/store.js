@@ -61,6 +61,8 @@ export class PageStore {
     this.frame = 1;
     /** @type {{name: string, blob: Blob} | null} the footage opened, as a file */
     this.footage = null;
+    /** @type {{name: string, blob: Blob} | null} the footage that played before it, while it is opening */
+    this.footageBefore = null;
     /** @type {Video} */
     this.video = { playable: false, width: 0, height: 0, duration: 0 };
     /** @type {{width: number, height: number} | null} the picture's size in video pixels, once known */
@@ -161,6 +163,8 @@ export class PageStore {
    * @param {Blob} blob
    */
   footageOpened(name, blob) {
+    // The footage that played until now, to go back to if this one does not play.
+    this.footageBefore = this.video.playable ? this.footage : null;
     this.footage = { name, blob };
     this.video = { playable: false, width: 0, height: 0, duration: 0 }; // until videoReady
     this.emit(["footage"]);
