@@ -61,28 +61,14 @@ pub fn run(args: Args) -> Result<(), Failure> {
     let project_at = args.edits.as_deref().zip(project.as_ref());
     let (how, settings) = with_project(&args.tracking, project_at)?;
     let mut tracks = track_file_with(&args.detections, &how, settings, &mut Timer::new())?;
-    let y4m = match args.footage.as_deref() {
-        Some(f) => crate::decode::is_y4m(f)?,
-        None => false,
-    };
-    let footage = super::count::FootageFiles {
-        y4m: args.footage.as_deref().filter(|_| y4m),
-        video: args.footage.as_deref().filter(|_| !y4m),
-        quiet: args.tracking.quiet,
-    };
+    let footage = footage_files(&args)?;
     super::count::with_length(&mut tracks, args.frames, |t| {
         super::count::known_length(t, project_at, &plan, footage)
     })?;
     let report = pipeline::count(&tracks, &plan, Some(&tracks.config), &work)
         .map_err(|e| bad_input(&args.plan, e))?;
     let shown = pipeline::correct_tracks(&tracks, &work.edits).0;
-    let of_footage = match (&args.picture, &args.footage) {
-        (None, Some(f)) => {
-            crate::frames::footage_facts(f)?.map(|(_, (w, h))| (f64::from(w), f64::from(h)))
-        }
-        _ => None,
-    };
-    let picture = args.picture.or(of_footage).or(recorded);
+    let picture = args.picture.or(footage_picture(&args)?).or(recorded);
     match picture {
         Some(size) => warn_misfit(&shown, &plan, size, args.tracking.quiet),
         None if !args.tracking.quiet => eprintln!(
@@ -141,6 +127,29 @@ pub fn run(args: Args) -> Result<(), Failure> {
         );
     }
     Ok(())
+}
+
+/// The footage given (`--footage`), as the files whose frames tell its length.
+fn footage_files(args: &Args) -> Result<super::count::FootageFiles<'_>, Failure> {
+    let y4m = match args.footage.as_deref() {
+        Some(f) => crate::decode::is_y4m(f)?,
+        None => false,
+    };
+    Ok(super::count::FootageFiles {
+        y4m: args.footage.as_deref().filter(|_| y4m),
+        video: args.footage.as_deref().filter(|_| !y4m),
+        quiet: args.tracking.quiet,
+    })
+}
+
+/// The picture's size of the footage given, unless `--picture` says it.
+fn footage_picture(args: &Args) -> Result<Option<(f64, f64)>, Failure> {
+    match (&args.picture, &args.footage) {
+        (None, Some(f)) => {
+            Ok(crate::frames::footage_facts(f)?.map(|(_, (w, h))| (f64::from(w), f64::from(h))))
+        }
+        _ => Ok(None),
+    }
 }
 
 /// Warns when the picture's size does not fit the tracks or the plan: boxes reaching well past
