@@ -19,6 +19,8 @@ test("own footage over the demo sets the demo's detections and plan aside; its l
   const { page, seen } = await openPage(env, { viewport: LAPTOP });
   await page.waitForFunction(() => /demo detections\.csv/.test(document.getElementById("detections-name").textContent));
   assert.ok(await page.locator("#line-list li:not(.hint)").count() > 0, "the demo's lines");
+  await run(page);
+  await showView(page, "Set up");
 
   await page.getByLabel("Open footage").setInputFiles(street);
   await page.waitForFunction(() => document.getElementById("detections-name").textContent === "none");
@@ -27,6 +29,9 @@ test("own footage over the demo sets the demo's detections and plan aside; its l
   const said = await page.locator(".message").allInnerTexts();
   assert.ok(said.some((m) => /street\.webm is open, and the demo's detections and plan .* set aside/.test(m) && /Find moving objects/.test(m) && /Undo \(Ctrl\+Z\)/.test(m)), said.join("\n"));
   assert.ok(!said.some((m) => /This is the bundled demo/.test(m)), "the demo's invitation is gone");
+  // Counted before it, the demo's counts are gone too (not counted again on the new plan).
+  await page.waitForTimeout(500);
+  assert.equal(await page.evaluate(() => document.getElementById("results").hidden), true, "no counts shown");
   await page.getByRole("button", { name: "Run", exact: true }).click();
   await page.waitForFunction(() => [...document.querySelectorAll(".message")].some((m) => /Open a detections file first/.test(m.textContent)));
   // Undo brings the demo's plan back (not its detections: open them again to use them); the

@@ -35,7 +35,7 @@ export class EditSync {
     try {
       const out = await this.client.setEdits(json, kind, this.store.picture);
       if (out.tracks) this.store.tracksReady(new TrackView(out.tracks.boxes, out.tracks.trackList));
-      if (out.results) this.store.resultsReady(out.results);
+      if (out.results && this.store.detections) this.store.resultsReady(out.results);
     } catch (e) {
       if (e instanceof Cancelled) return; // a worker replaced on Cancel is given them again
       this.messages.say("edits", "error", `The corrections could not be applied: ${/** @type {Error} */ (e).message}`);

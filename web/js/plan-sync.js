@@ -48,7 +48,9 @@ export class PlanSync {
       const seconds = (print && print.duration_seconds) || 0;
       const results = await this.client.setPlan(json, this.store.picture, seconds);
       if (!latest()) return;
-      if (results) this.store.resultsReady(results);
+      // Detections set aside (the demo's, under the person's own footage) leave tracks in the
+      // worker until others come: they are not the person's counts.
+      if (results && this.store.detections) this.store.resultsReady(results);
       const video = this.store.video;
       if (video.playable) {
         const outside = await this.client.planOutsidePicture(video);
