@@ -181,6 +181,34 @@ class DecoderFeed {
 }
 
 /**
+ * The frames a second a footage is coded at, from its first frames' times (read, not decoded), as
+ * soon as it is opened: a plan at another rate is offered the footage's before anything is counted
+ * (a newcomer's re-trial: brought detections counted at 25 a second on 10 fps footage, never
+ * played). Null where the page cannot read the footage this way.
+ * @param {Blob} file
+ * @returns {Promise<number | null>}
+ */
+async function footageRate(file) {
+  const opened = await openFootage(file);
+  if ("fallback" in opened) return null;
+  /** @type {number[]} */
+  const times = [];
+  try {
+    for (let k = 0; k < 60; k++) {
+      const chunk = opened.reader.next();
+      if (!chunk) break;
+      times.push(chunk.timestamp);
+    }
+  } catch (e) {
+    // Damaged early: the times read so far.
+  } finally {
+    opened.reader.free();
+  }
+  // Coded order is not shown order where frames refer forward (H.264's B-frames).
+  return frameRate(times.sort((a, b) => a - b));
+}
+
+/**
  * Frames a second from the median time between frames shown one after another (µs); null if unknown.
  * @param {number[]} times
  */

@@ -47,9 +47,12 @@ test("own footage over the demo sets the demo's detections and plan aside; its l
   await page.waitForFunction(() => document.getElementById("scrub").max === "200");
   await page.locator("#scrub").evaluate((s) => { s.value = "101"; s.dispatchEvent(new Event("input")); });
   await page.waitForFunction(() => /^frame 101 · 0:04\.00/.test(document.getElementById("clock").textContent));
-  await page.locator("#frame-rate").fill("10");
-  await page.locator("#frame-rate").blur();
+  // The footage's own rate is read from its first frames when it opens, without playing it, and
+  // offered (a newcomer's re-trial: 25 stood until the footage played).
+  await page.waitForFunction(() => /is coded at about 10\.00 fps, not 25/.test(document.getElementById("fps-hint").textContent));
+  await page.getByRole("button", { name: "Use 10.00" }).click();
   await page.waitForFunction(() => document.getElementById("scrub").max === "80");
+  await page.waitForFunction(() => /is coded at 10\.00 fps, as set/.test(document.getElementById("fps-hint").textContent));
   // The same picture, at 4.02 s: frame 41 at 10 a second (it said frame 101 at 10.00 s).
   await page.waitForFunction(() => /^frame 41 · 0:04\.00/.test(document.getElementById("clock").textContent));
 

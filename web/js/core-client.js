@@ -201,6 +201,14 @@ export class CoreClient {
   }
 
   /**
+   * The frames a second the footage is coded at (its first frames' times), or null.
+   * @param {Blob} footage
+   */
+  footageRate(footage) {
+    return this.call({ op: "footageRate", footage });
+  }
+
+  /**
    * A merged counts file (throughline batch) as the interval grid of one camera and class.
    * @param {Blob} file
    * @param {string} camera "" for the first

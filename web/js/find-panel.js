@@ -51,6 +51,18 @@ export class FindPanel {
     this.button.addEventListener("click", () => this.find());
     // Not while Run tracks: the worker would only start finding once tracking and bridging end.
     store.subscribe(["footage", "video", "busy"], () => { this.button.disabled = !store.video.playable || store.finding || store.tracking; });
+    // The footage's own frame rate, read from its first frames once it plays: a plan at another
+    // rate is offered it at once, not only after playing or searching the footage.
+    /** @type {Blob | null} */
+    let rateOf = null;
+    store.subscribe(["video"], () => {
+      const footage = store.footage;
+      if (!footage || !store.video.playable || rateOf === footage.blob) return;
+      rateOf = footage.blob;
+      client.footageRate(footage.blob).then((rate) => {
+        if (store.footage === footage && rate !== null) store.frameRateMeasured(rate, "is coded at");
+      }, () => {});
+    });
     // The advice on the margin is about boxes found in footage: gone once other detections are in use.
     store.subscribe(["detections"], () => { if (store.detections && store.detections.name !== "") this.messages.clear("margin"); });
   }

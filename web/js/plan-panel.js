@@ -53,7 +53,8 @@ export class PlanPanel {
       if (changed.has("plan")) this.sayReplaced(why);
     });
     store.subscribe(["tool"], () => this.showTool());
-    store.subscribe(["frameRate"], () => this.showFrameRate());
+    // Again when the plan's rate changes (after "Use", the offer still stood).
+    store.subscribe(["frameRate", "plan"], () => this.showFrameRate());
     store.subscribe(["planProblem"], () => {
       byId("plan-error", HTMLElement).textContent = store.planProblem;
       // A file just opened that needs a fix says so where it said "Plan opened" (a newcomer's

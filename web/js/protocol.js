@@ -186,12 +186,13 @@
  * @typedef {{op: "summaryHtml", context: HandinContext}} SummaryHtmlRequest
  * @typedef {{op: "mergedGrid", bytes: ArrayBuffer, camera: string, class: string}} MergedGridRequest
  * @typedef {{op: "countedPaths", ids: number[]}} CountedPathsRequest
+ * @typedef {{op: "footageRate", footage: Blob}} FootageRateRequest
  * @typedef {InitRequest | LoadDetectionsRequest | SetPlanRequest | TrackRequest | StartDetectionRequest | DetectRgbaRequest
  *   | FinishDetectionRequest | FindInFootageRequest | CancelFindRequest | DetectionsTextRequest | TracksTextRequest
  *   | SetEditsRequest | EditsTextRequest | ReadProjectRequest | CheckPlanRequest | PlanOutsidePictureRequest
  *   | WriteProjectRequest | FingerprintRequest
  *   | FingerprintDiffersRequest | HandInRequest | SummaryHtmlRequest | MergedGridRequest | BackgroundFramesRequest
- *   | SampleRgbaRequest | CountedPathsRequest} Request
+ *   | SampleRgbaRequest | CountedPathsRequest | FootageRateRequest} Request
  * @typedef {Request & {id: number}} RequestMessage a request as posted to the worker
  */
 
@@ -222,6 +223,7 @@
  * @property {HandIn} handIn
  * @property {string} summaryHtml the client summary, a printable HTML page
  * @property {MergedGrid} mergedGrid
+ * @property {number | null} footageRate frames a second the footage is coded at, from its first frames' times; null where unknown
  * @property {Float32Array} countedPaths the tracks' paths as counted, 5 values a point: id, frame
  *   (1-based), x, y (pixels), observed (1/0); track after track, each in frame order
  */
