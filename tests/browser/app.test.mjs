@@ -8,7 +8,7 @@ import { readFileSync, writeFileSync, mkdtempSync } from "node:fs";
 import { execFileSync } from "node:child_process";
 import { join } from "node:path";
 import { tmpdir } from "node:os";
-import { useBrowser, watch, screenshot, demo, site, targetDir } from "./harness.mjs";
+import { useBrowser, watch, screenshot, demo, site, targetDir, onTheDemo } from "./harness.mjs";
 
 const cli = join(targetDir, "release/throughline");
 const scratch = mkdtempSync(join(tmpdir(), "tl-browser-"));
@@ -19,9 +19,7 @@ async function openPage(url) {
   const seen = watch(page, url.startsWith("file:") ? "file://" : env.server.origin);
   await page.goto(url);
   await page.waitForSelector("body[data-ready=true]", { timeout: 30000 });
-  // A plan kept by an earlier test: these tests begin on the demo, as a person would choose it.
-  const demoButton = page.getByRole("button", { name: "Open the demo" });
-  if (await demoButton.count()) await demoButton.click();
+  await onTheDemo(page);
   return { page, seen };
 }
 

@@ -88,12 +88,19 @@ export async function openPage(env, { viewport = null, url = `${env.server.origi
   const seen = watch(page, url.startsWith("file:") ? "file://" : env.server.origin);
   await page.goto(url);
   await page.waitForSelector("body[data-ready=true]", { timeout: 30000 });
-  // A plan of the person's own kept by an earlier test in this browser: the page goes on with it
-  // and waits for their files; these tests begin on the demo, as a person would choose it.
-  const demoButton = page.getByRole("button", { name: "Open the demo" });
-  if (await demoButton.count()) await demoButton.click();
+  await onTheDemo(page);
   await page.waitForFunction(() => document.getElementById("overlay").width === 640);
   return { page, seen };
+}
+
+/**
+ * A plan of the person's own kept by an earlier test in this browser: the page goes on with it and
+ * waits for their files; tests that begin on the demo open it, as a person would choose it.
+ * @param {import("playwright-core").Page} page
+ */
+export async function onTheDemo(page) {
+  const demoButton = page.getByRole("button", { name: "Open the demo" });
+  if (await demoButton.count()) await demoButton.click();
 }
 
 /** Chooses what the page shows beside the footage, as a person would: "Set up", "Review" or "Results". */

@@ -143,7 +143,7 @@ pub fn short_hashes(report: &Report, ctx: &Context) -> Vec<(&'static str, String
 /// report's start time (given on the command line, it is not in the plan's file).
 pub fn command_line(report: &Report, ctx: &Context) -> String {
     let plan = &shell_word(ctx.plan_name.as_deref().unwrap_or("plan.json"));
-    let mut cmd = match (&ctx.footage, ctx.found_in_footage && !ctx.found_in_page) {
+    let mut cmd = match (&ctx.footage, found_again(ctx)) {
         (Some(f), true) => {
             let settings = ctx.detector_settings.as_ref().map_or(String::new(), |d| {
                 format!(" --detector-config {}", shell_word(d))
@@ -187,6 +187,17 @@ pub fn shell_word(word: &str) -> String {
     } else {
         format!("'{}'", word.replace('\'', "'\\''"))
     }
+}
+
+/// Whether the command line finds the boxes in the footage again (they were found there by the
+/// command line, and the footage is named).
+fn found_again(ctx: &Context) -> bool {
+    ctx.footage.is_some() && ctx.found_in_footage && !ctx.found_in_page
+}
+
+/// Whether the command names no detections file but the placeholder `DETECTIONS`.
+pub fn detections_unnamed(ctx: &Context) -> bool {
+    ctx.detections.is_none() && !found_again(ctx)
 }
 
 /// How the hand-in names the detections: a file, or found in the footage (and how).

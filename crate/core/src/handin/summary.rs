@@ -4,7 +4,7 @@
 //! Marks follow the visual language in DEVELOPERS.md (forward orange, backward blue hatched).
 
 use super::sketch::{esc, interval_chart, plan_sketch};
-use super::{command_line, file_stem, recording, short_hashes, Context};
+use super::{command_line, detections_unnamed, file_stem, recording, short_hashes, Context};
 use crate::report::{PeakHour, Report};
 use std::fmt::Write as _;
 
@@ -202,7 +202,7 @@ fn reproduce(h: &mut String, report: &Report, ctx: &Context) {
         None => String::new(),
     };
     let command = command_line(report, ctx);
-    let placeholder = match (command.contains(" DETECTIONS "), ctx.found_in_page) {
+    let placeholder = match (detections_unnamed(ctx), ctx.found_in_page) {
         (true, true) => {
             " DETECTIONS is the boxes found in the page, as its Export detections saves them."
         }
