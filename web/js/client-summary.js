@@ -6,7 +6,7 @@
 // downloaded as the self-contained HTML file, named from the site and date.
 
 import { byId, download } from "./dom.js";
-import { handinContext } from "./handin-panel.js";
+import { handinContext, REFUSED } from "./handin-panel.js";
 import { projectFileName, projectUnsaved } from "./project-panel.js";
 
 /** @typedef {import("./store.js").PageStore} PageStore */
@@ -73,6 +73,9 @@ export class ClientSummary {
       if (this.html) download(`${stem}_summary.html`, this.html, "text/html");
     });
     store.subscribe(["results", "site", "prints", "checks"], () => this.forget());
+    store.subscribe(["planProblem"], () => {
+      if (store.planRefused) this.forget();
+    });
   }
 
   /** The counts (or what heads them) changed: the summary made before is not theirs. */
@@ -89,6 +92,10 @@ export class ClientSummary {
 
   async make() {
     if (!this.store.results) return;
+    if (this.store.planRefused) {
+      this.status.textContent = REFUSED;
+      return;
+    }
     this.picture.pause();
     const still = this.store.video.playable ? stillOf(this.picture.video) : null;
     const context = handinContext(this.store);

@@ -85,7 +85,7 @@ export class HandinPanel {
     /** Numbers the requests, so that only the latest answer is shown. */
     this.asked = 0;
     store.subscribe(["results", "site", "prints", "checks", "edits"], () => this.refresh());
-    store.subscribe(["saved", "marks", "plan", "method"], () => this.show());
+    store.subscribe(["saved", "marks", "plan", "method", "planProblem"], () => this.show());
     this.layout.addEventListener("change", () => this.show());
     byId("copy-grid", HTMLButtonElement).addEventListener("click", () => this.copy(this.grid().tab, byId("grid-copied", HTMLElement)));
     byId("copy-matrix", HTMLButtonElement).addEventListener("click", () => this.copy(this.sheets ? this.sheets.matrix.tab : "", byId("matrix-copied", HTMLElement)));
@@ -134,7 +134,10 @@ export class HandinPanel {
       const since = projectStatus(this.store) === "not saved yet" ? "it is not saved yet" : "the work has changed since it was saved";
       missing.push(`save the project (Set up, Files, Save project): the files name ${projectFileName(this.store.work.site)} as what reproduces these counts, and ${since}`);
     }
-    byId("handin-missing", HTMLElement).textContent = missing.length ? `To head the tables properly, ${missing.join(", and ")}.` : "";
+    byId("handin-missing", HTMLElement).textContent = this.store.planRefused
+      ? REFUSED
+      : missing.length ? `To head the tables properly, ${missing.join(", and ")}.` : "";
+    for (const id of ["copy-grid", "download-grid", "copy-matrix", "download-matrix"]) byId(id, HTMLButtonElement).disabled = this.store.planRefused;
     byId("grid-view", HTMLElement).replaceChildren(...gridView(this.grid().tab));
     byId("matrix-view", HTMLElement).replaceChildren(...matrixView(s.matrix.tab));
     byId("grid-view", HTMLElement).dataset.layout = this.layout.value;
@@ -155,6 +158,10 @@ export class HandinPanel {
     }
   }
 }
+
+/** Said where the counts would be handed in while the plan shown is one the core refused. */
+export const REFUSED =
+  "Nothing can be handed in while the plan needs a fix (Set up, Plan): the counts shown are of the plan before your last change.";
 
 /**
  * How the hand-in files name the plan, said beside them.

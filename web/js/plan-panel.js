@@ -55,8 +55,10 @@ export class PlanPanel {
     store.subscribe(["tool"], () => this.showTool());
     // Again when the plan's rate changes (after "Use", the offer still stood).
     store.subscribe(["frameRate", "plan"], () => this.showFrameRate());
-    store.subscribe(["planProblem"], () => {
-      byId("plan-error", HTMLElement).textContent = store.planProblem;
+    store.subscribe(["planProblem", "results"], ({ changed }) => {
+      const stale = store.planRefused && store.results ? "\nThe counts shown are still those of the plan before this change." : "";
+      byId("plan-error", HTMLElement).textContent = store.planProblem + stale;
+      if (!changed.has("planProblem")) return;
       // A file just opened that needs a fix says so where it said "Plan opened" (a newcomer's
       // trial: the problem was only in the Plan panel, further down).
       if (this.openedFile && store.planProblem) this.sayReplaced("file", store.planProblem);

@@ -66,7 +66,7 @@ export class PlanSync {
       if (e instanceof Cancelled || !latest()) return;
       // The core read the page's own copy of the plan: its lines and columns are not the file's.
       const why = withoutDocs(/** @type {Error} */ (e).message).replace(/^line \d+, column \d+: /, "");
-      this.store.planChecked(`The plan needs a fix: ${why}` + (calibrationNote ? `\n${calibrationNote}` : ""));
+      this.store.planChecked(`The plan needs a fix: ${why}` + (calibrationNote ? `\n${calibrationNote}` : ""), true);
     }
   }
 }

@@ -93,8 +93,16 @@ export class ResultsPanel {
       byId("movements-table", HTMLElement).replaceChildren(...movements(report));
       byId("speeds-table", HTMLElement).replaceChildren(...speeds(report, speedsNote(store.plan)));
     });
+    store.subscribe(["results", "planProblem"], () => {
+      byId("results-stale", HTMLElement).textContent = store.results && store.planRefused ? staleCounts : "";
+    });
   }
 }
+
+/** Said over counts made with a plan that has since been changed into one the core refuses. */
+export const staleCounts =
+  "These counts are of the plan as it was before its last change, which needs a fix (Set up, Plan). " +
+  "Mend it and the counts follow; do not hand these in for the plan shown.";
 
 /**
  * @param {Report} report

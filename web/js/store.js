@@ -92,6 +92,8 @@ export class PageStore {
     this.planName = this.restored ? restoredPlanName(this.restored.source) : "drawn here";
     /** What keeps the plan from being used in full (a field to fix, unfinished ground points), or "". */
     this.planProblem = "";
+    /** The core refused the plan as it now is: the counts shown are of the last plan it took. */
+    this.planRefused = false;
     this.finding = false;
     this.tracking = false;
     /** @type {{rate: number, how: string} | null} the footage's own frame rate, where measured */
@@ -410,9 +412,13 @@ export class PageStore {
     this.emit(["plan"], "edit");
   }
 
-  /** @param {string} problem what keeps the plan from being used in full, or "" */
-  planChecked(problem) {
+  /**
+   * @param {string} problem what keeps the plan from being used in full, or ""
+   * @param {boolean} [refused] the core could not take the plan at all (counts are of the one before)
+   */
+  planChecked(problem, refused = false) {
     this.planProblem = problem;
+    this.planRefused = refused;
     this.emit(["planProblem"]);
   }
 
