@@ -555,3 +555,56 @@ fn a_projects_footage_length_reaches_the_count() {
         700
     );
 }
+
+/// An edit that does not meet the tracks is said even by a quiet run, so that a batch keeps it:
+/// said with the clip's name and written to its `warnings.txt` (a batch of clips with corrections
+/// handed in counts that were not the corrected ones, without a word).
+#[test]
+fn an_edit_not_applied_is_said_by_a_quiet_run_and_kept_by_a_batch() {
+    let dir = scratch("edits-quiet");
+    let edits = write(
+        &dir,
+        "edits.json",
+        br#"{"format": "throughline-edits", "version": 1, "edits": [
+            {"edit": "delete_track", "track": {"id": 999, "frames": [1, 2]}}]}"#,
+    );
+    let o = throughline(&[
+        "run",
+        &demo("detections.csv"),
+        "--plan",
+        &demo("plan.json"),
+        "--edits",
+        &edits,
+        "-q",
+    ]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let said = stderr(&o);
+    assert_eq!(
+        said.trim(),
+        "warning: an edit was not applied: there is no track 999 now (it was frames 1–2): the \
+         tracks have changed since this edit was made (other detections or tracking settings?)",
+    );
+    let manifest = write(
+        &dir,
+        "manifest.csv",
+        format!(
+            "name,detections,plan,edits\nmorning,{},{},{edits}\n",
+            demo("detections.csv"),
+            demo("plan.json")
+        )
+        .as_bytes(),
+    );
+    let out = dir.join("out");
+    let o = throughline(&["batch", &manifest, "--out", &out.display().to_string()]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    assert!(
+        stderr(&o).contains("warning: morning: an edit was not applied: there is no track 999"),
+        "{}",
+        stderr(&o)
+    );
+    let kept = std::fs::read_to_string(out.join("morning/warnings.txt")).unwrap();
+    assert!(
+        kept.starts_with("warning: an edit was not applied: there is no track 999"),
+        "{kept}"
+    );
+}

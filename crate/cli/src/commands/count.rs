@@ -241,16 +241,19 @@ fn forward_on_screen(points: &[[f64; 2]]) -> Option<&'static str> {
     Some(WAYS[(eighth as i64).rem_euclid(8) as usize])
 }
 
-/// The counts in a few lines, and the caution, on standard error.
+/// The counts in a few lines, and the caution, on standard error; edits not applied even when
+/// quiet.
 pub fn summarise(report: &Report, quiet: bool) {
+    // Said even when quiet, as every warning is: the counts are not the ones the person corrected
+    // (a batch keeps it in the clip's `warnings.txt`; it was lost there).
+    for e in report.edits.iter().filter(|e| !e.applied) {
+        eprintln!("warning: an edit was not applied: {}", e.note);
+    }
     if quiet {
         return;
     }
     if report.screenlines.is_empty() && report.zones.is_empty() {
         eprintln!("note: the plan has no screenlines and no zones, so nothing was counted");
-    }
-    for e in report.edits.iter().filter(|e| !e.applied) {
-        eprintln!("warning: an edit was not applied: {}", e.note);
     }
     for l in &report.screenlines {
         // Which way forward is on screen: a label swapped with its opposite is easy to miss.
