@@ -181,16 +181,19 @@ class DecoderFeed {
 }
 
 /**
- * The frames a second a footage is coded at, from its first frames' times (read, not decoded), as
- * soon as it is opened: a plan at another rate is offered the footage's before anything is counted
- * (a newcomer's re-trial: brought detections counted at 25 a second on 10 fps footage, never
- * played). Null where the page cannot read the footage this way.
+ * What a footage's container tells as soon as it is opened, read and not decoded: the frames a
+ * second it is coded at, from its first frames' times (a plan at another rate is offered the
+ * footage's before anything is counted: a newcomer's re-trial counted brought detections at 25 a
+ * second on 10 fps footage, never played), and why it is cut short where the container says so
+ * (a WebM cut short played to its cut without a word). Nulls where the page cannot read the
+ * footage this way.
  * @param {Blob} file
- * @returns {Promise<number | null>}
+ * @returns {Promise<{rate: number | null, cut: string | null}>}
  */
-async function footageRate(file) {
+async function footageFacts(file) {
   const opened = await openFootage(file);
-  if ("fallback" in opened) return null;
+  if ("fallback" in opened) return { rate: null, cut: null };
+  const cut = opened.reader.cutShort() || null;
   /** @type {number[]} */
   const times = [];
   try {
@@ -205,7 +208,7 @@ async function footageRate(file) {
     opened.reader.free();
   }
   // Coded order is not shown order where frames refer forward (H.264's B-frames).
-  return frameRate(times.sort((a, b) => a - b));
+  return { rate: frameRate(times.sort((a, b) => a - b)), cut };
 }
 
 /**

@@ -106,6 +106,7 @@ declare namespace wasm_bindgen {
     constructor(read: (offset: number, length: number) => Uint8Array, size: number);
     info(): { container: string; codec: string; description?: Uint8Array; codedWidth: number; codedHeight: number; frames?: number };
     next(): { data: Uint8Array; timestamp: number; key: boolean } | null;
+    cutShort(): string | undefined;
     free(): void;
   }
 }

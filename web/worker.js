@@ -197,7 +197,7 @@ async function perform(req, progress, token) {
     case "summaryHtml": return core().summaryHtml(req.context);
     case "countedPaths": return core().countedPaths(new Uint32Array(req.ids));
     case "mergedGrid": return wasm_bindgen.mergedGrid(new Uint8Array(req.bytes), req.camera, req.class);
-    case "footageRate": return footageRate(req.footage);
+    case "footageFacts": return footageFacts(req.footage);
     default: throw new Error(`unknown operation ${/** @type {{op: string}} */ (req).op}`);
   }
 }

@@ -116,3 +116,24 @@ test("sound without a picture is named as such, and the page goes on working", a
   await page.close();
 });
 
+
+// A copy that stopped half-way: the browser plays it to its cut, showing the length its header
+// declares; the container says it is cut short (a newcomer's trial: nothing said until Find).
+test("footage cut short is said to be so as it opens", async () => {
+  const { page } = await openPage(env, { viewport: LAPTOP });
+  const whole = readFileSync(demo("footage.webm"));
+  const path = join(scratch, "copied-half.webm");
+  writeFileSync(path, whole.subarray(0, whole.length >> 1));
+  await page.getByLabel("Open footage").setInputFiles(path);
+  await page.waitForFunction(() => /seems cut short/.test(document.getElementById("messages").textContent), null, { timeout: 15000 });
+  assert.match(
+    await page.locator("#messages").innerText(),
+    /copied-half\.webm seems cut short \(an interrupted copy\?\): it says it is 1\.1 MB long, but the file holds 0\.6 MB \(about 50% of it\)\. Counts stop where its frames stop, though the player shows its whole length \(0:30\.00\)\./,
+  );
+  // The whole file after it: nothing said, and what was said of the cut one is gone.
+  const copy = join(scratch, "copied-whole.webm");
+  writeFileSync(copy, whole);
+  await page.getByLabel("Open footage").setInputFiles(copy);
+  await page.waitForFunction(() => /copied-whole\.webm/.test(document.getElementById("footage-name").textContent));
+  await page.waitForFunction(() => !/seems cut short/.test(document.getElementById("messages").textContent));
+});

@@ -201,11 +201,13 @@ export class CoreClient {
   }
 
   /**
-   * The frames a second the footage is coded at (its first frames' times), or null.
+   * What the footage's container tells as it opens: the frames a second it is coded at (its
+   * first frames' times), and why it is cut short, where it says so (each null where unknown).
    * @param {Blob} footage
+   * @returns {Promise<{rate: number | null, cut: string | null}>}
    */
-  footageRate(footage) {
-    return this.call({ op: "footageRate", footage });
+  footageFacts(footage) {
+    return this.call({ op: "footageFacts", footage });
   }
 
   /**

@@ -4,7 +4,7 @@
 // WebM or MP4 (hundreds of frames a second); otherwise taken by seeking and drawing each one. Either
 // way the boxes found become the detections, as if opened from a file.
 
-import { byId, el } from "./dom.js";
+import { byId, el, clockText } from "./dom.js";
 import { setHysteresis } from "./plan.js";
 import { Cancelled } from "./protocol.js";
 
@@ -52,15 +52,19 @@ export class FindPanel {
     // Not while Run tracks: the worker would only start finding once tracking and bridging end.
     store.subscribe(["footage", "video", "busy"], () => { this.button.disabled = !store.video.playable || store.finding || store.tracking; });
     // The footage's own frame rate, read from its first frames once it plays: a plan at another
-    // rate is offered it at once, not only after playing or searching the footage.
+    // rate is offered it at once, not only after playing or searching the footage. A file its
+    // container says is cut short is said to be so then too (it plays to its cut without a word).
     /** @type {Blob | null} */
-    let rateOf = null;
+    let factsOf = null;
     store.subscribe(["video"], () => {
       const footage = store.footage;
-      if (!footage || !store.video.playable || rateOf === footage.blob) return;
-      rateOf = footage.blob;
-      client.footageRate(footage.blob).then((rate) => {
-        if (store.footage === footage && rate !== null) store.frameRateMeasured(rate, "is coded at");
+      if (!footage || !store.video.playable || factsOf === footage.blob) return;
+      factsOf = footage.blob;
+      this.messages.clear("footage-cut");
+      client.footageFacts(footage.blob).then(({ rate, cut }) => {
+        if (store.footage !== footage) return;
+        if (rate !== null) store.frameRateMeasured(rate, "is coded at");
+        if (cut) this.messages.say("footage-cut", "warn", cutShortMessage(footage.name, cut, store.video.duration));
       }, () => {});
     });
     // The advice on the margin is about boxes found in footage: gone once other detections are in use.
@@ -230,4 +234,15 @@ export class FindPanel {
 function containerName(container) {
   const names = /** @type {Record<string, string>} */ ({ webm: "WebM video", mp4: "MP4 video", mkv: "Matroska video", mov: "QuickTime video" });
   return names[container.toLowerCase()] || "video file";
+}
+
+/**
+ * Said when a footage's container says the file is cut short.
+ * @param {string} name the file's name
+ * @param {string} why the core's words: what it says it holds, and what the file holds
+ * @param {number} seconds how long the browser says it is (the length it declares, not where it was cut)
+ */
+export function cutShortMessage(name, why, seconds) {
+  const declared = seconds > 0 ? `, though the player shows its whole length (${clockText(seconds)})` : "";
+  return `${name} seems cut short (an interrupted copy?): ${why}. Counts stop where its frames stop${declared}. Copy it again from the camera or card if you can; if it is all there is, say so with the counts.`;
 }

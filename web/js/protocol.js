@@ -186,13 +186,13 @@
  * @typedef {{op: "summaryHtml", context: HandinContext}} SummaryHtmlRequest
  * @typedef {{op: "mergedGrid", bytes: ArrayBuffer, camera: string, class: string}} MergedGridRequest
  * @typedef {{op: "countedPaths", ids: number[]}} CountedPathsRequest
- * @typedef {{op: "footageRate", footage: Blob}} FootageRateRequest
+ * @typedef {{op: "footageFacts", footage: Blob}} FootageFactsRequest
  * @typedef {InitRequest | LoadDetectionsRequest | SetPlanRequest | TrackRequest | StartDetectionRequest | DetectRgbaRequest
  *   | FinishDetectionRequest | FindInFootageRequest | CancelFindRequest | DetectionsTextRequest | TracksTextRequest
  *   | SetEditsRequest | EditsTextRequest | ReadProjectRequest | CheckPlanRequest | PlanOutsidePictureRequest
  *   | WriteProjectRequest | FingerprintRequest
  *   | FingerprintDiffersRequest | HandInRequest | SummaryHtmlRequest | MergedGridRequest | BackgroundFramesRequest
- *   | SampleRgbaRequest | CountedPathsRequest | FootageRateRequest} Request
+ *   | SampleRgbaRequest | CountedPathsRequest | FootageFactsRequest} Request
  * @typedef {Request & {id: number}} RequestMessage a request as posted to the worker
  */
 
@@ -223,7 +223,8 @@
  * @property {HandIn} handIn
  * @property {string} summaryHtml the client summary, a printable HTML page
  * @property {MergedGrid} mergedGrid
- * @property {number | null} footageRate frames a second the footage is coded at, from its first frames' times; null where unknown
+ * @property {{rate: number | null, cut: string | null}} footageFacts frames a second the footage is coded at, from its first
+ *   frames' times, and why it is cut short where its container says so; each null where unknown
  * @property {Float32Array} countedPaths the tracks' paths as counted, 5 values a point: id, frame
  *   (1-based), x, y (pixels), observed (1/0); track after track, each in frame order
  */

@@ -26,6 +26,8 @@ enum Kind {
         state: WebM,
         /// The first frame, read ahead while opening (the VP9 profile is in its header).
         pending: Option<Chunk>,
+        /// The file's size.
+        size: u64,
     },
     Mp4 {
         samples: Vec<Sample>,
@@ -51,6 +53,7 @@ impl<R: Read + Seek> Demuxer<R> {
             let kind = Kind::WebM {
                 state,
                 pending: Some(first),
+                size,
             };
             Ok((Demuxer { reader, kind }, info))
         } else if n >= 8 && &head[4..8] == b"ftyp" {
@@ -68,10 +71,40 @@ impl<R: Read + Seek> Demuxer<R> {
         }
     }
 
+    /// Why the file is cut short (an interrupted copy or recording), when its container says so
+    /// before any frame is read: a WebM whose segment says it ends past the file's end, an MP4
+    /// whose frames lie past it. `None` when it looks whole (a live recording's WebM may not say
+    /// its length: reading it to its end is the only test then).
+    pub fn cut_short(&self) -> Option<String> {
+        let mb = |bytes: u64| format!("{:.1} MB", bytes as f64 / 1e6);
+        match &self.kind {
+            Kind::WebM { state, size, .. } => state.declared_end_past(*size).map(|end| {
+                format!(
+                    "it says it is {} long, but the file holds {} (about {:.0}% of it)",
+                    mb(end),
+                    mb(*size),
+                    100.0 * *size as f64 / end as f64
+                )
+            }),
+            Kind::Mp4 { samples, size, .. } => {
+                let whole = samples
+                    .iter()
+                    .take_while(|s| s.offset.saturating_add(u64::from(s.size)) <= *size)
+                    .count();
+                (whole < samples.len()).then(|| {
+                    format!(
+                        "it says it holds {} frames, but only the first {whole} lie within the file",
+                        samples.len()
+                    )
+                })
+            }
+        }
+    }
+
     /// The next coded frame of the video track in file order, `None` at the end.
     pub fn next_chunk(&mut self) -> Result<Option<Chunk>, DemuxError> {
         match &mut self.kind {
-            Kind::WebM { state, pending } => match pending.take() {
+            Kind::WebM { state, pending, .. } => match pending.take() {
                 Some(first) => Ok(Some(first)),
                 None => state
                     .next_frame(&mut self.reader, false)

@@ -69,6 +69,12 @@ struct Entry {
 }
 
 impl WebM {
+    /// Where the segment says it ends, if that lies past a file of `size` bytes: the file is cut
+    /// short (an interrupted copy or recording).
+    pub(crate) fn declared_end_past(&self, size: u64) -> Option<u64> {
+        self.segment_end.filter(|&end| end > size)
+    }
+
     /// Reads up to the first frame of the video track: what the decoder is told, and that frame.
     pub(crate) fn open<R: Read + Seek>(
         reader: &mut R,

@@ -382,3 +382,40 @@ fn damaged_footage_is_refused_or_stops_with_a_message() {
     let cut = &mp4[..mp4.len().min(600)];
     assert!(Demuxer::open(std::io::Cursor::new(cut), cut.len() as u64).is_err());
 }
+
+/// A file cut short (an interrupted copy) is said to be so when it opens, before any frame is
+/// read, where its container says how long it is: a WebM's segment size (Matroska's element
+/// sizes, RFC 9559), an MP4 whose sample table reaches past the file's end (its `moov` at the
+/// front, ISO/IEC 14496-12). Whole files are not.
+#[test]
+fn footage_cut_short_is_known_when_it_opens() {
+    let open = |bytes: &[u8]| {
+        Demuxer::open(std::io::Cursor::new(bytes.to_vec()), bytes.len() as u64)
+            .unwrap()
+            .0
+    };
+    let whole = std::fs::read(DEMO_FOOTAGE).unwrap();
+    assert_eq!(open(&whole).cut_short(), None);
+    let half = &whole[..whole.len() / 2];
+    let said = open(half).cut_short().expect("a WebM cut in half");
+    assert!(
+        said == "it says it is 1.1 MB long, but the file holds 0.6 MB (about 50% of it)",
+        "{said}"
+    );
+    if !ffmpeg_or_skip("footage_cut_short_is_known_when_it_opens") {
+        return;
+    }
+    let mp4 = std::fs::read(encode(
+        "front.mp4",
+        60,
+        &["-c:v", "libx264", "-movflags", "+faststart", "-an"],
+    ))
+    .unwrap();
+    assert_eq!(open(&mp4).cut_short(), None);
+    let cut = &mp4[..mp4.len() * 2 / 3];
+    let said = open(cut).cut_short().expect("an MP4 cut at two thirds");
+    assert!(
+        said.starts_with("it says it holds 60 frames, but only the first "),
+        "{said}"
+    );
+}

@@ -1,4 +1,5 @@
-//! MP4 footage as the page reads it for the browser's video decoder: every coded frame.
+//! MP4 footage as the page reads it for the browser's video decoder: whether it is cut short, and
+//! every coded frame.
 #![no_main]
 use libfuzzer_sys::fuzz_target;
 use throughline_footage::demux::Demuxer;
@@ -8,6 +9,7 @@ fuzz_target!(|data: &[u8]| {
     with_magic.extend_from_slice(data);
     let size = with_magic.len() as u64;
     if let Ok((mut d, _)) = Demuxer::open(std::io::Cursor::new(with_magic), size) {
+        let _ = d.cut_short();
         while let Ok(Some(_)) = d.next_chunk() {}
     }
 });

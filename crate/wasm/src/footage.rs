@@ -113,6 +113,13 @@ impl FootageReader {
         Ok(o.into())
     }
 
+    /// Why the file is cut short, where its container says so before any frame is read, or
+    /// undefined ([`Demuxer::cut_short`]).
+    #[wasm_bindgen(js_name = cutShort)]
+    pub fn cut_short(&self) -> Option<String> {
+        self.demuxer.cut_short()
+    }
+
     /// The next coded frame as `{data: Uint8Array, timestamp (µs), key}`, or null at the end.
     #[wasm_bindgen(js_name = next)]
     pub fn next_chunk(&mut self) -> Result<JsValue, JsError> {
