@@ -118,6 +118,8 @@ export class FindPanel {
       const source = new Blob([await this.client.detectionsText()]);
       this.store.detectionsLoaded(summary, source, `found in ${footage.name}: ${summary.rows} boxes, ${summary.frames} frames`, "");
       this.status.textContent = `Found ${summary.rows} moving objects over ${summary.frames} frames in ${seconds.toFixed(1)} s${how}. Press Run to track and count them.`;
+      // The core's words on what it found (a camera that moved), said as the command line says them.
+      if (summary.warnings.length) this.messages.say("find", "warn", `${footage.name}: ${summary.warnings.join(" ")}.`);
       this.offerMargin();
     } catch (e) {
       this.status.textContent = "";

@@ -184,10 +184,19 @@ impl Session {
             .detector
             .take()
             .ok_or_else(|| js_error("start detection first"))?;
+        // A camera that moved is said as the command line says it (its summary's warnings).
+        let warnings = detector
+            .camera_note()
+            .map(|message| detections::Warning {
+                line: None,
+                message,
+            })
+            .into_iter()
+            .collect();
         let report = detections::ReadReport {
             detections: detector.detections_from(found),
             format: detections::DetectionFormat::BenchmarkText,
-            warnings: Vec::new(),
+            warnings,
             skipped_rows: 0,
         };
         self.take_detections(report, "found by the motion detector".into())

@@ -132,6 +132,10 @@ pub fn detect_footage(
     if per_frame.is_empty() {
         return Err(bad_input(footage, "the stream holds no frames"));
     }
+    // Said even when quiet, as every warning is (a batch keeps it with the clip).
+    if let Some(note) = detector.camera_note() {
+        eprintln!("warning: {}: {note}", name(footage));
+    }
     Ok(detector.detections_from(per_frame))
 }
 

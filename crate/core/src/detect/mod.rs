@@ -28,6 +28,7 @@ mod median;
 mod picture;
 mod pixels;
 mod spread;
+mod steadiness;
 
 pub use classify::{APPEARANCE_DIM, GUESSED_CLASSES};
 pub use config::DetectorConfig;
@@ -42,6 +43,7 @@ use background::Background;
 use label::BandRuns;
 use mask::{Blob, CleanUp};
 use spread::band_rows;
+use steadiness::Steadiness;
 
 /// One object found in a picture.
 #[derive(Debug, Clone, PartialEq)]
@@ -70,6 +72,8 @@ pub struct Detector {
     band_runs: Vec<BandRuns>,
     /// The blobs' joining across bands, a working buffer.
     first_runs: Vec<u32>,
+    /// Frames where most of the picture differed (a camera that moved).
+    steadiness: Steadiness,
 }
 
 impl Detector {
@@ -86,6 +90,7 @@ impl Detector {
             clean_ups: Vec::new(),
             band_runs: Vec::new(),
             first_runs: Vec::new(),
+            steadiness: Steadiness::default(),
         }
     }
 
@@ -206,6 +211,12 @@ impl Detector {
         self.background.samples_kept()
     }
 
+    /// What to tell the person when many of the frames searched so far had most of the picture
+    /// differing from the empty scene (a camera that moved), else `None`.
+    pub fn camera_note(&self) -> Option<String> {
+        self.steadiness.note()
+    }
+
     /// Expected object height (pixels) for an object standing at row `y`, if perspective is set.
     fn expected_height(&self, y: f64) -> Option<f64> {
         self.config.perspective(self.height).map(|p| p.height_at(y))
@@ -232,6 +243,7 @@ impl Detector {
         }
         self.background
             .foreground(pic, &self.config, &mut self.changed, spread);
+        self.steadiness.observe(pic.y, self.width, self.height);
         let blobs = self.blobs(spread);
         let found = self.boxes(blobs);
         let objects: Vec<BBox> = found.iter().map(|(b, _)| *b).collect();
