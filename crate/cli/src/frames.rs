@@ -124,17 +124,50 @@ pub fn video_frames(footage: &Path, frame_rate: f64, quiet: bool) -> Result<Opti
         return unread("fewer than two frames with their times");
     }
     let span = (last - first) as f64 / 1e6;
-    let (seconds, own_rate) = (span * n as f64 / (n - 1) as f64, (n - 1) as f64 / span);
+    let seconds = span * n as f64 / (n - 1) as f64;
     let Some(frames) = throughline_core::project::footage_frames(seconds, frame_rate) else {
         return unread("longer than footage may be at the plan's frame rate");
     };
-    if (own_rate / frame_rate - 1.0).abs() > 0.01 {
-        note(format!(
-            "it runs at {own_rate:.2} frames a second, the plan at {frame_rate}: its {seconds:.1} s \
-             are taken as {frames} frames at the plan's rate (is the plan's frame_rate right?)"
-        ));
-    }
+    // A rate other than the plan's is warned of where the footage meets the plan
+    // ([`footage_against_plan`]), once.
     Ok(Some(frames))
+}
+
+/// Warns when the footage's frame rate (when known) is not the plan's.
+pub fn rate_against_plan(footage: &Path, rate: Option<f64>, planned: f64) {
+    if let Some(rate) = rate.filter(|r| (r - planned).abs() > 0.001 * planned) {
+        eprintln!(
+            "warning: {}: the footage runs at {} frames a second, the plan says {planned} \
+             (`frame_rate`): times, intervals, speeds and the footage's length in frames follow \
+             the plan's; if the footage's is right, set the plan's frame_rate to it",
+            footage.display(),
+            (rate * 1000.0).round() / 1000.0
+        );
+    }
+}
+
+/// Warnings when the footage (a file: standard input is read once, by the detector) and the plan
+/// disagree: its frame rate and the plan's (times, intervals and speeds follow the plan's), lines
+/// or zones wholly outside its picture (nothing is counted there).
+pub fn footage_against_plan(
+    footage: &Path,
+    plan: &throughline_core::plan::Plan,
+) -> Result<(), Failure> {
+    let Some((rate, (w, h))) = footage_facts(footage)? else {
+        return Ok(());
+    };
+    rate_against_plan(footage, rate, plan.spec.frame_rate);
+    let name = footage.display();
+    let (w, h) = (f64::from(w), f64::from(h));
+    let outside = plan.outside_picture(w, h);
+    if !outside.is_empty() {
+        eprintln!(
+            "warning: {name}: {} wholly outside the picture ({w} × {h}): nothing is counted there; \
+             was the plan drawn on footage of another size?",
+            outside.join(", ") + if outside.len() == 1 { " lies" } else { " lie" }
+        );
+    }
+    Ok(())
 }
 
 /// The first `limit` video frames of a WebM or MP4 file, passed over as the page reads them: how

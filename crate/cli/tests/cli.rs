@@ -1129,17 +1129,27 @@ fn frames_gives_the_clips_length_when_the_detections_end_early() {
         &report,
     ]);
     let e = stderr(&o);
-    assert!(
-        e.contains(
-            "it runs at 25.00 frames a second, the plan at 5: its 30.0 s are taken as 150 frames"
-        ),
+    // … warned of, as for --y4m (a newcomer's trial: detections of their own and --footage at
+    // another rate than the plan's said nothing), once (it was said twice in other words).
+    assert_eq!(
+        e.matches(
+            "footage.webm: the footage runs at 25 frames a second, the plan says 5 \
+                   (`frame_rate`): times, intervals, speeds and the footage's length in frames \
+                   follow the plan's"
+        )
+        .count(),
+        1,
         "{e}"
     );
-    // … and warned of, as for --y4m (a newcomer's trial: detections of their own and --footage
-    // at another rate than the plan's said nothing).
+    assert!(!e.contains("frames a second, the plan at"), "{e}");
+    // `review` with the footage says it too.
+    let o = throughline(&["review", &dets, "--plan", &slow, "--footage", &webm]);
+    assert!(o.status.success(), "{}", stderr(&o));
     assert!(
-        e.contains("footage.webm: the footage runs at 25 frames a second, the plan says 5"),
-        "{e}"
+        stderr(&o)
+            .contains("footage.webm: the footage runs at 25 frames a second, the plan says 5"),
+        "{}",
+        stderr(&o)
     );
     // Boxes past the footage's end (one mistyped frame, or another clip's boxes) are named.
     let far = write(

@@ -68,7 +68,7 @@ pub fn run(args: Args) -> Result<(), Failure> {
     let report = pipeline::count(&tracks, &plan, Some(&tracks.config), &work)
         .map_err(|e| bad_input(&args.plan, e))?;
     let shown = pipeline::correct_tracks(&tracks, &work.edits).0;
-    let picture = args.picture.or(footage_picture(&args)?).or(recorded);
+    let picture = args.picture.or(footage_picture(&args, &plan)?).or(recorded);
     match picture {
         Some(size) => warn_misfit(&shown, &plan, size, args.tracking.quiet),
         None if !args.tracking.quiet => eprintln!(
@@ -142,12 +142,19 @@ fn footage_files(args: &Args) -> Result<super::count::FootageFiles<'_>, Failure>
     })
 }
 
-/// The picture's size of the footage given, unless `--picture` says it.
-fn footage_picture(args: &Args) -> Result<Option<(f64, f64)>, Failure> {
+/// The picture's size of the footage given, unless `--picture` says it (and a frame rate other than
+/// the plan's, warned of).
+fn footage_picture(
+    args: &Args,
+    plan: &throughline_core::plan::Plan,
+) -> Result<Option<(f64, f64)>, Failure> {
     match (&args.picture, &args.footage) {
-        (None, Some(f)) => {
-            Ok(crate::frames::footage_facts(f)?.map(|(_, (w, h))| (f64::from(w), f64::from(h))))
-        }
+        (None, Some(f)) => Ok(crate::frames::footage_facts(f)?.map(|(rate, (w, h))| {
+            if !args.tracking.quiet {
+                crate::frames::rate_against_plan(f, rate, plan.spec.frame_rate);
+            }
+            (f64::from(w), f64::from(h))
+        })),
         _ => Ok(None),
     }
 }

@@ -179,7 +179,7 @@ fn track_source(
         args.y4m.as_ref().or(args.handin.footage.as_ref()),
         how.quiet,
     ) {
-        footage_against_plan(footage, plan)?;
+        crate::frames::footage_against_plan(footage, plan)?;
     }
     match (&args.y4m, &args.detections) {
         (Some(footage), None) => {
@@ -217,35 +217,6 @@ fn track_source(
             how.quiet,
         )),
     }
-}
-
-/// Warnings when the footage (a file: standard input is read once, by the detector) and the plan
-/// disagree: its frame rate and the plan's (times, intervals and speeds follow the plan's), lines
-/// or zones wholly outside its picture (nothing is counted there).
-fn footage_against_plan(footage: &Path, plan: &Plan) -> Result<(), Failure> {
-    let Some((rate, (w, h))) = crate::frames::footage_facts(footage)? else {
-        return Ok(());
-    };
-    let name = footage.display();
-    let planned = plan.spec.frame_rate;
-    if let Some(rate) = rate.filter(|r| (r - planned).abs() > 0.001 * planned) {
-        eprintln!(
-            "warning: {name}: the footage runs at {} frames a second, the plan says {planned} \
-             (`frame_rate`): times, intervals and speeds follow the plan's; if the footage's is \
-             right, set the plan's frame_rate to it",
-            (rate * 1000.0).round() / 1000.0
-        );
-    }
-    let (w, h) = (f64::from(w), f64::from(h));
-    let outside = plan.outside_picture(w, h);
-    if !outside.is_empty() {
-        eprintln!(
-            "warning: {name}: {} wholly outside the picture ({w} × {h}): nothing is counted there; \
-             was the plan drawn on footage of another size?",
-            outside.join(", ") + if outside.len() == 1 { " lies" } else { " lie" }
-        );
-    }
-    Ok(())
 }
 
 /// With a site's name (given, or the project's), the hand-in files next to the report; their paths.
