@@ -16,6 +16,7 @@ class FindCancelled extends Error {}
  * @property {ReturnType<wasm_bindgen.FootageReader["info"]>} info
  * @property {VideoDecoderConfig} config
  * @property {() => wasm_bindgen.FootageReader} again
+ * @property {number | null} rate frames a second it is coded at, from its first frames' times (null: unknown)
  */
 
 /**
@@ -49,7 +50,7 @@ async function openFootage(file) {
       reader.free();
       return { fallback: "this browser cannot decode this video's format inside the page" };
     }
-    return { reader, info, config, again };
+    return { reader, info, config, again, rate: codedRate(again) };
   } catch (e) {
     reader.free();
     throw e;
@@ -68,13 +69,18 @@ async function openFootage(file) {
  * FindCancelled).
  * @param {wasm_bindgen.FootageReader} reader
  * @param {VideoDecoderConfig} config
- * @param {{width: number, height: number, total: number, until?: number}} size the page's size, frames expected, frames wanted (all when absent)
+ * @param {{width: number, height: number, total: number, until?: number, rate: number | null}} size the page's size, frames
+ *   expected, frames wanted (all when absent), and the rate the footage is coded at (frames missing
+ *   from it are filled: {@link FrameGaps})
  * @param {Progress} progress
  * @param {FrameUse} use
  * @param {() => boolean} cancelled whether the request decoding for was cancelled
  */
-async function decodeAndSearch(reader, config, { width, height, total, until = Infinity }, progress, use, cancelled) {
+async function decodeAndSearch(reader, config, { width, height, total, until = Infinity, rate }, progress, use, cancelled) {
   const feed = new DecoderFeed(reader, config);
+  const gaps = new FrameGaps(rate);
+  /** @type {VideoFrame | null} the frame decoded before this one (it fills missing frames) */
+  let before = null;
   let done = 0;
   let last = 0;
   const times = []; // µs, of the first frames shown
@@ -91,12 +97,16 @@ async function decodeAndSearch(reader, config, { width, height, total, until = I
         // Frames in flight: the decoder is kept fed (a few frames ahead) while this one is searched.
         while (feed.waiting.length < 4 && feed.step());
         if (times.length < 250) times.push(frame.timestamp);
+        const { previous, current } = gaps.uses(frame.timestamp);
         try {
-          await use(frame, width, height, scratch);
+          for (let k = 0; k < previous + current && done < until; k++) {
+            await use(k < previous && before ? before : frame, width, height, scratch);
+            done++;
+          }
         } finally {
-          frame.close();
+          if (before) before.close();
+          before = frame;
         }
-        done++;
         if (done >= until) break;
         const now = Date.now();
         if (now - last > 100) {
@@ -109,11 +119,58 @@ async function decodeAndSearch(reader, config, { width, height, total, until = I
       }
     }
   } finally {
+    if (before) before.close();
     feed.close();
   }
   if (done === 0) throw new Error(feed.stopped || "the decoder gave no frames");
   progress(done, done);
-  return { frames: done, stopped: feed.stopped, frameRate: frameRate(times) };
+  return { frames: done, stopped: feed.stopped, frameRate: frameRate(times), filled: gaps.filled };
+}
+
+/**
+ * Frames missing from footage (recorded at a variable frame rate, or dropped by a camera or a
+ * recorder) filled as ffmpeg fills them when it makes a constant frame rate (`-vsync cfr`,
+ * FFmpeg 5.1's rule, for a gap of whole frames): a frame coming k + 1 frames after the one before
+ * is used k + 1 times, the frame before filling the first k − 1 of the places missed. So frame
+ * numbers follow the footage's clock, and boxes the page finds are numbered as `throughline detect`
+ * numbers ffmpeg's frames. Each gap is measured against the frame before it (not a clock from the
+ * start), so a rate known only roughly (from timestamps in whole milliseconds) never adds frames.
+ */
+class FrameGaps {
+  /** @param {number | null} rate frames a second the footage is coded at (null: nothing filled) */
+  constructor(rate) {
+    this.step = rate ? 1e6 / rate : 0;
+    /** @type {number | null} µs */
+    this.last = null;
+    /** Places filled beyond one a frame. */
+    this.filled = 0;
+  }
+
+  /**
+   * How many times to use the frame before (for the places missed) and this one.
+   * @param {number} timestamp µs
+   */
+  uses(timestamp) {
+    const since = this.last === null ? 0 : timestamp - this.last;
+    this.last = timestamp;
+    if (!this.step || since <= 0) return { previous: 0, current: 1 };
+    // ffmpeg's delta (the places from the frame before to the end of this one) and delta0.
+    const delta = since / this.step;
+    if (delta <= 1.1) return { previous: 0, current: 1 };
+    const places = roundHalfEven(delta);
+    const previous = delta - 1 > 1.1 ? roundHalfEven(delta - 1.6) : 0;
+    this.filled += places - 1;
+    return { previous, current: places - previous };
+  }
+}
+
+/**
+ * The nearest whole number, halves to the even one (C's `llrint` in its default rounding).
+ * @param {number} x
+ */
+function roundHalfEven(x) {
+  const r = Math.round(x);
+  return r - x === 0.5 && r % 2 !== 0 ? r - 1 : r;
 }
 
 /** A VideoDecoder fed from a FootageReader, and the decoded frames waiting to be searched. */
@@ -194,21 +251,32 @@ async function footageFacts(file) {
   const opened = await openFootage(file);
   if ("fallback" in opened) return { rate: null, cut: null };
   const cut = opened.reader.cutShort() || null;
+  opened.reader.free();
+  return { rate: opened.rate, cut };
+}
+
+/**
+ * Frames a second a footage is coded at, from its first 60 frames' times read by a reader of its
+ * own (not decoded); null where unknown.
+ * @param {() => wasm_bindgen.FootageReader} again
+ */
+function codedRate(again) {
+  const reader = again();
   /** @type {number[]} */
   const times = [];
   try {
     for (let k = 0; k < 60; k++) {
-      const chunk = opened.reader.next();
+      const chunk = reader.next();
       if (!chunk) break;
       times.push(chunk.timestamp);
     }
   } catch (e) {
     // Damaged early: the times read so far.
   } finally {
-    opened.reader.free();
+    reader.free();
   }
   // Coded order is not shown order where frames refer forward (H.264's B-frames).
-  return { rate: frameRate(times.sort((a, b) => a - b)), cut };
+  return frameRate(times.sort((a, b) => a - b));
 }
 
 /**

@@ -116,7 +116,7 @@ async function bridge(footage, progress) {
           if (pixels.layout === "RGBA") bridger.feedRgba(frame, pixels.bytes);
           else bridger.feed(frame, pixels.bytes.subarray(0, width * height));
         };
-        const size = { width: footage.width, height: footage.height, total: last, until: last };
+        const size = { width: footage.width, height: footage.height, total: last, until: last, rate: opened.rate };
         // Not cancelled from the page: Cancel on Run replaces the worker.
         const searched = await decodeAndSearch(opened.reader, opened.config, size, (done, n) => progress(done, n, "bridging"), feed, () => false);
         stopped = searched.stopped;
@@ -233,12 +233,12 @@ async function findInFootage(file, width, height, settings, expected, progress, 
       const first = opened.again();
       try {
         const sampling = (/** @type {number} */ done, /** @type {number} */ n) => progress(done, n, "background");
-        await decodeAndSearch(first, config, { width, height, total }, sampling, sampleFrame, cancelled);
+        await decodeAndSearch(first, config, { width, height, total, rate: opened.rate }, sampling, sampleFrame, cancelled);
       } finally {
         first.free();
       }
     }
-    const searched = await decodeAndSearch(reader, config, { width, height, total }, progress, searchFrame, cancelled);
+    const searched = await decodeAndSearch(reader, config, { width, height, total, rate: opened.rate }, progress, searchFrame, cancelled);
     return { summary: core().finishDetection(), codec: info.codec, container: info.container, expected: total, ...searched };
   } finally {
     reader.free();

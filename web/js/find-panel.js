@@ -107,7 +107,7 @@ export class FindPanel {
     const footage = this.store.footage;
     if (!this.store.video.playable || !footage) return;
     this.picture.pause();
-    this.messages.clear("find");
+    for (const key of ["find", "camera", "gaps"]) this.messages.clear(key);
     this.cancelled = false;
     this.showBusy(true);
     this.status.textContent = "Starting…";
@@ -119,7 +119,7 @@ export class FindPanel {
       this.store.detectionsLoaded(summary, source, `found in ${footage.name}: ${summary.rows} boxes, ${summary.frames} frames`, "");
       this.status.textContent = `Found ${summary.rows} moving objects over ${summary.frames} frames in ${seconds.toFixed(1)} s${how}. Press Run to track and count them.`;
       // The core's words on what it found (a camera that moved), said as the command line says them.
-      if (summary.warnings.length) this.messages.say("find", "warn", `${footage.name}: ${summary.warnings.join(" ")}.`);
+      if (summary.warnings.length) this.messages.say("camera", "warn", `${footage.name}: ${summary.warnings.join(" ")}.`);
       this.offerMargin();
     } catch (e) {
       this.status.textContent = "";
@@ -159,6 +159,10 @@ export class FindPanel {
     }
     this.store.frameRateMeasured(found.frameRate, "is coded at");
     this.warnIfShort(found, video.duration);
+    if (found.filled) {
+      const frames = found.filled === 1 ? "1 frame missing from it was" : `${found.filled} frames missing from it were`;
+      this.messages.say("gaps", "warn", `${this.store.footage ? this.store.footage.name : "The footage"}: ${frames} filled with the pictures either side (it was recorded at a variable frame rate, or the camera or recorder dropped frames), so that frame numbers and times follow its clock, as on the command line.`);
+    }
     return { summary: found.summary, how: ` (decoded in this page from the ${containerName(found.container)})` };
   }
 

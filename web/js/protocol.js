@@ -135,6 +135,7 @@
  * @property {number} expected
  * @property {string | null} stopped
  * @property {number | null} frameRate
+ * @property {number} filled frames missing from the footage, filled so that frame numbers follow its clock
  */
 
 /**

@@ -28,11 +28,14 @@ pub struct Decoded {
 /// that says how to convert the footage instead.
 pub fn decode(footage: &Path) -> Result<Decoded, Failure> {
     let mut child = Command::new("ffmpeg")
-        .args(["-nostdin", "-hide_banner", "-v", "error", "-i"])
+        // `-stats`: its last line says how many frames were repeated or dropped.
+        .args(["-nostdin", "-hide_banner", "-v", "error", "-stats", "-i"])
         .arg(footage)
-        // Every decoded frame once, as the page decodes them (no frames repeated or dropped to
-        // keep a constant rate).
-        .args(["-map", "0:v:0", "-vsync", "0", "-pix_fmt", "yuv420p"])
+        // At a constant frame rate, the footage's own: frames missing from it (a variable frame
+        // rate, frames dropped in recording) are filled, so frame numbers follow its clock, as
+        // converting it to YUV4MPEG2 with ffmpeg gives them; the page fills them alike
+        // (web/decoding.js, FrameGaps).
+        .args(["-map", "0:v:0", "-vsync", "cfr", "-pix_fmt", "yuv420p"])
         .args(["-f", "yuv4mpegpipe", "-"])
         .stdin(Stdio::null())
         .stdout(Stdio::piped())
@@ -77,7 +80,13 @@ fn last_words(mut err: ChildStderr) -> String {
         }
         kept.extend_from_slice(&buf[..n]);
         if kept.len() > KEPT_MESSAGE {
-            kept.drain(..kept.len() - KEPT_MESSAGE);
+            // Whole lines only: a line's tail (of a progress line, say) is not a message.
+            let cut = kept.len() - KEPT_MESSAGE;
+            let start = kept[cut..]
+                .iter()
+                .position(|&b| b == b'\n' || b == b'\r')
+                .map_or(kept.len(), |p| cut + p + 1);
+            kept.drain(..start);
         }
     }
     String::from_utf8_lossy(&kept).trim().to_string()
@@ -93,12 +102,24 @@ impl Decoded {
             .take()
             .and_then(|h| h.join().ok())
             .unwrap_or_default();
-        let said = words.lines().rfind(|l| !l.trim().is_empty()).map(plain);
+        let lines: Vec<&str> = words
+            .split(['\r', '\n'])
+            .map(str::trim)
+            .filter(|l| !l.is_empty())
+            .collect();
+        // ffmpeg's progress lines (`-stats`): `frame=  750 fps=… speed=…`.
+        let progress = |l: &&&str| l.starts_with("frame=") || l.contains(" speed=");
+        if let Some(note) = lines.iter().rfind(progress).and_then(|l| gaps_note(l)) {
+            say_once(&self.path, "gaps", &note);
+        }
+        let said = lines.iter().rfind(|l| !progress(l)).map(|l| plain(l));
         match (status.success(), said) {
             (true, None) => Ok(()),
             // Decoded, with a complaint (a file cut short): the frames before it are used.
             (true, Some(said)) => {
-                say_once(&self.path, said);
+                let said =
+                    format!("ffmpeg, decoding it, said: {said} (the frames it decoded are used)");
+                say_once(&self.path, "said", &said);
                 Ok(())
             }
             (false, said) => Err(io::Error::other(format!(
@@ -140,18 +161,48 @@ fn plain(line: &str) -> &str {
     }
 }
 
-/// A warning from ffmpeg about a file it decoded, said once however often the file is read (the
+/// A warning of one kind about a file decoded, said once however often the file is read (the
 /// detector reads it twice).
-fn say_once(footage: &Path, said: &str) {
-    static SAID: Mutex<Vec<PathBuf>> = Mutex::new(Vec::new());
+fn say_once(footage: &Path, kind: &'static str, said: &str) {
+    static SAID: Mutex<Vec<(PathBuf, &'static str)>> = Mutex::new(Vec::new());
     let mut said_for = SAID.lock().unwrap_or_else(|e| e.into_inner());
-    if !said_for.iter().any(|p| p == footage) {
-        said_for.push(footage.to_path_buf());
-        eprintln!(
-            "warning: {}: ffmpeg, decoding it, said: {said} (the frames it decoded are used)",
-            footage.display()
-        );
+    if !said_for.iter().any(|(p, k)| p == footage && *k == kind) {
+        said_for.push((footage.to_path_buf(), kind));
+        eprintln!("warning: {}: {said}", footage.display());
     }
+}
+
+/// What ffmpeg's last progress line (`frame=  750 … dup=50 drop=0 …`) says of frames it repeated
+/// to fill gaps, or left out, to keep a constant frame rate; `None` when neither.
+fn gaps_note(line: &str) -> Option<String> {
+    let count = |key: &str| -> u64 {
+        line.split_whitespace()
+            .find_map(|w| w.strip_prefix(key))
+            .and_then(|n| n.parse().ok())
+            .unwrap_or(0)
+    };
+    let (filled, dropped) = (count("dup="), count("drop="));
+    if filled == 0 && dropped == 0 {
+        return None;
+    }
+    let mut parts = Vec::new();
+    if filled > 0 {
+        parts.push(format!(
+            "{filled} frame{} missing from it were filled with the pictures either side",
+            if filled == 1 { "" } else { "s" }
+        ));
+    }
+    if dropped > 0 {
+        parts.push(format!(
+            "{dropped} frame{} coming sooner than its frame rate allows were left out",
+            if dropped == 1 { "" } else { "s" }
+        ));
+    }
+    Some(format!(
+        "{} (it was recorded at a variable frame rate, or the camera or recorder dropped frames), \
+         so that frame numbers and times follow its clock",
+        parts.join(", and ")
+    ))
 }
 
 /// Whether a footage file is YUV4MPEG2 (its first bytes), else other video to decode.

@@ -240,3 +240,42 @@ fn a_camera_that_pans_is_said_to_move_and_a_still_one_is_not() {
     assert!(o.status.success(), "{}", stderr(&o));
     assert!(!stderr(&o).contains("camera"), "{}", stderr(&o));
 }
+
+/// Footage with frames missing (here the demo's frames 101–150 left out, the others keeping their
+/// times, as a recorder that dropped them writes it): decoded at a constant frame rate, each gap
+/// filled as ffmpeg fills it, so the clip keeps its 750 frames and its clock, and said. Before,
+/// every frame after the gap was numbered 50 too early.
+#[test]
+fn frames_missing_from_footage_are_filled_and_said() {
+    if !ffmpeg_or_skip("frames_missing_from_footage_are_filled_and_said") {
+        return;
+    }
+    let dir = scratch("video-gaps");
+    let gap = dir.join("dropped.webm").display().to_string();
+    ffmpeg(&[
+        "-i",
+        &demo("footage.webm"),
+        "-vf",
+        "select='not(between(n\\,100\\,149))'",
+        "-fps_mode",
+        "passthrough",
+        "-c:v",
+        "libvpx-vp9",
+        "-deadline",
+        "realtime",
+        &gap,
+    ]);
+    let out = dir.join("found.txt");
+    let o = throughline(&["detect", "--footage", &gap, "-o", out.to_str().unwrap()]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let said = stderr(&o);
+    assert_eq!(
+        said.matches("dropped.webm: 50 frames missing from it were filled with the pictures either side (it was recorded at a variable frame rate, or the camera or recorder dropped frames), so that frame numbers and times follow its clock").count(),
+        1,
+        "said once, though the file is read twice: {said}"
+    );
+    assert!(said.contains("over 750 frames"), "{said}");
+    assert!(std::fs::read_to_string(&out)
+        .unwrap()
+        .starts_with("# footage_frames: 750\n"));
+}
