@@ -25,6 +25,7 @@ import { itemNames } from "./palette.js";
  * @property {{tracks: number[], gap_frames: number}[]} joins fragments the counting joined into one path, in time order
  * @property {import("./edits.js").Outcome[]} [edits] the person's corrections, each with what it did or why it could not
  * @property {CountEvent[]} [rejected_events] counted crossings a person rejected; in no count
+ * @property {CountEvent[]} [deleted_events] what the tracks a person deleted counted (those tracks alone); in no count
  * @property {import("./tally-checks.js").TallyCheck[]} [checks] each hand count beside the tool's count of its frames
  * @property {import("./tally-checks.js").AppliedCorrection} [correction] a correction factor the person chose, and what it gives
  */

@@ -40,16 +40,20 @@ export class EventList {
     const report = this.store.results ? this.store.results.report : null;
     const events = report ? report.events : [];
     const rejected = report ? report.rejected_events || [] : [];
+    const deleted = report ? report.deleted_events || [] : [];
     const shown = events.slice(0, MAX_EVENTS_SHOWN);
     this.seen.disconnect();
     this.pictured = new Map();
-    this.buttons = shown.map((e) => this.row(e, false));
+    this.buttons = shown.map((e) => this.row(e, ""));
     this.list.replaceChildren(...this.buttons.map((b) => el("li", {}, b)));
     if (events.length > shown.length) {
       this.list.append(el("li", { class: "more", text: `… and ${events.length - shown.length} more, in the exported report.` }));
     }
     if (rejected.length) {
-      this.list.append(el("li", { class: "list-head", text: "Rejected by you: not counted" }), ...rejected.map((e) => el("li", {}, this.row(e, true))));
+      this.list.append(el("li", { class: "list-head", text: "Rejected by you: not counted" }), ...rejected.map((e) => el("li", {}, this.row(e, "rejected"))));
+    }
+    if (deleted.length) {
+      this.list.append(el("li", { class: "list-head", text: "Made by tracks you deleted: not counted" }), ...deleted.map((e) => el("li", {}, this.row(e, "deleted"))));
     }
     this.badge.textContent = report ? `${events.length}` : "";
     this.mark();
@@ -58,11 +62,11 @@ export class EventList {
   /**
    * One event's row, its picture to be cut when it comes into view.
    * @param {CountEvent} e
-   * @param {boolean} rejected
+   * @param {Uncounted} uncounted why it is in no count ("": it is counted)
    */
-  row(e, rejected) {
+  row(e, uncounted) {
     const img = el("img", { class: "thumb", alt: `Picture of ${eventWhat(e)} at ${clockText(e.seconds)}`, width: 56, height: 56 });
-    const b = el("button", { type: "button", class: rejected ? "rejected" : null, onclick: () => this.choose(e) }, [...eventRow(e, rejected), img]);
+    const b = el("button", { type: "button", class: uncounted ? "rejected" : null, onclick: () => this.choose(e) }, [...eventRow(e, uncounted), img]);
     if (this.evidence.available()) {
       this.pictured.set(img, e);
       this.seen.observe(img);
@@ -143,14 +147,20 @@ export function directionGlyph(e) {
 }
 
 /**
- * @param {CountEvent} e
- * @param {boolean} rejected
+ * Why an event is in no count: "rejected" (a person rejected it), "deleted" (its track was
+ * deleted), or "" (it is counted).
+ * @typedef {"" | "rejected" | "deleted"} Uncounted
  */
-function eventRow(e, rejected) {
+
+/**
+ * @param {CountEvent} e
+ * @param {Uncounted} uncounted
+ */
+function eventRow(e, uncounted) {
   const detail = [e.class || "unclassified", eventTracks(e), `frame ${e.frame}`];
   if (e.time) detail.push(e.time.slice(11));
   if (e.inferred) detail.push("counted while hidden");
-  if (rejected) detail.push("rejected");
+  if (uncounted) detail.push(uncounted === "rejected" ? "rejected" : "its track deleted");
   if (e.reason) detail.push(`why: ${e.reason}`);
   return [
     el("span", { class: "when", text: clockText(e.seconds) }),

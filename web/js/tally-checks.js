@@ -164,6 +164,7 @@ export class TallyChecks {
     const same = (/** @type {CountEvent} */ e) => e.kind === "screenline" && e.name === g.screenline && e.direction === way && (g.class === "all" || e.class === g.class) && inSample(e.frame);
     const events = report.events.filter(same);
     const rejected = (report.rejected_events || []).filter(same);
+    const deleted = (report.deleted_events || []).filter(same);
     const presses = t.presses.filter((p) => p.screenline === g.screenline && p.direction === way && (g.class === "all" || p.class === g.class) && inSample(p.frame));
     /** @type {HTMLElement[]} */
     const parts = [el("p", { class: "hint", text: `${g.screenline}, ${g.direction}, ${g.class === "all" ? "all classes" : g.class}: the tool counted ${g.automated}, you ${g.manual}. Choose one to see it on the footage. Where the tool is wrong, reject its crossing (R) or add the one it missed (Events); where you were, count again.` })];
@@ -171,24 +172,31 @@ export class TallyChecks {
       if (bins > 1) parts.push(el("p", { class: "bin-head", text: `From ${start}: tool ${a}, you ${m}` }));
       const mine = events.filter((e) => binOf(e.frame) === b);
       const gone = rejected.filter((e) => binOf(e.frame) === b);
-      const list = el("ol", { class: "review-list" }, [...mine.map((e) => el("li", {}, this.eventButton(e, false))), ...gone.map((e) => el("li", {}, this.eventButton(e, true)))]);
+      const removed = deleted.filter((e) => binOf(e.frame) === b);
+      const list = el("ol", { class: "review-list" }, [
+        ...mine.map((e) => el("li", {}, this.eventButton(e, ""))),
+        ...gone.map((e) => el("li", {}, this.eventButton(e, "rejected"))),
+        ...removed.map((e) => el("li", {}, this.eventButton(e, "deleted"))),
+      ]);
       const own = presses.filter((p) => binOf(p.frame) === b).map((p) => el("button", { type: "button", class: "press", text: `${clockText((p.frame - 1) / fps)} (frame ${p.frame})`, onclick: () => this.review.showMoment(p.frame, []) }));
       parts.push(mine.length ? list : el("p", { class: "hint", text: "The tool counted none here." }));
-      if (!mine.length && gone.length) parts.push(list);
+      if (!mine.length && (gone.length || removed.length)) parts.push(list);
       parts.push(el("p", { class: "presses" }, own.length ? ["Your presses: ", ...own] : ["You pressed none here."]));
     });
     into.replaceChildren(...parts);
   }
 
   /**
-   * One of the tool's count events (or one rejected by the person), to see on the footage.
+   * One of the tool's count events (or one the person rejected, or one a track they deleted
+   * made), to see on the footage.
    * @param {CountEvent} e
-   * @param {boolean} rejected
+   * @param {import("./review-events.js").Uncounted} uncounted
    */
-  eventButton(e, rejected) {
+  eventButton(e, uncounted) {
     const detail = [e.class || "unclassified", eventTracks(e), eventTime(e)];
-    if (rejected) detail.push(`rejected by you${e.reason ? `: ${e.reason}` : ""}`);
-    return el("button", { type: "button", class: rejected ? "rejected" : null, onclick: () => this.review.showEvent(e) }, [
+    const why = e.reason ? `: ${e.reason}` : "";
+    if (uncounted) detail.push(uncounted === "rejected" ? `rejected by you${why}` : `its track deleted by you${why}`);
+    return el("button", { type: "button", class: uncounted ? "rejected" : null, onclick: () => this.review.showEvent(e) }, [
       el("span", { class: "when", text: clockText(e.seconds) }),
       el("span", { class: "what" }, [directionGlyph(e), eventWhat(e)]),
       el("span", { class: "detail", text: detail.join(" · ") }),

@@ -118,6 +118,7 @@ pub fn count(
         .zip(on_counts)
         .filter_map(|(a, b)| a.or(b))
         .collect();
+    report.deleted_events = deleted_events(edited.deleted, tracks, plan, tracker)?;
     report.checks = work
         .tallies
         .iter()
@@ -128,6 +129,37 @@ pub fn count(
         .as_ref()
         .map(|c| corrected_totals(c, &report));
     Ok(report)
+}
+
+/// What the tracks a person deleted would have counted: those tracks counted alone, each event
+/// with the deletion's reason.
+fn deleted_events(
+    deleted: Vec<(crate::track::Track, Option<String>)>,
+    tracks: &Tracks,
+    plan: &Plan,
+    tracker: Option<&TrackerConfig>,
+) -> Result<Vec<crate::report::Event>, Error> {
+    if deleted.is_empty() {
+        return Ok(Vec::new());
+    }
+    let reasons: Vec<(u32, Option<String>)> =
+        deleted.iter().map(|(t, r)| (t.id, r.clone())).collect();
+    let alone = Tracks {
+        config: tracks.config.clone(),
+        frame_count: tracks.frame_count,
+        tracks: deleted.into_iter().map(|(t, _)| t).collect(),
+        crowded_frames: Vec::new(),
+        length_from_footage: tracks.length_from_footage,
+    };
+    let mut events = count::count(&alone, plan, tracker)?.events;
+    for e in &mut events {
+        let why = reasons
+            .iter()
+            .find(|(id, _)| e.track_ids.contains(id))
+            .and_then(|(_, r)| r.clone());
+        e.reason = why;
+    }
+    Ok(events)
 }
 
 /// The counts of the lines a correction factor applies to, multiplied by it (one decimal).

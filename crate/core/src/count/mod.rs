@@ -118,6 +118,7 @@ pub fn corrected(
         events,
         edits: Vec::new(),
         rejected_events,
+        deleted_events: Vec::new(),
         checks: Vec::new(),
         correction: None,
     };

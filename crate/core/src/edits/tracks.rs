@@ -19,19 +19,22 @@ pub struct CorrectedTracks {
     pub tracks: Tracks,
     pub outcomes: Vec<Option<Outcome>>,
     pub split_from: BTreeMap<u32, u32>,
+    /// Each track a person deleted, as it was when deleted, with the reason they gave.
+    pub deleted: Vec<(Track, Option<String>)>,
 }
 
 /// [`apply_to_tracks`], with the families of the tracks split.
 pub fn corrected_tracks(tracks: &Tracks, edits: &[Edit]) -> CorrectedTracks {
     let mut out = tracks.clone();
     let mut split_from: BTreeMap<u32, u32> = BTreeMap::new();
+    let mut deleted = Vec::new();
     let outcomes = edits
         .iter()
         .map(|edit| {
             if edit.is_on_counts() {
                 return None;
             }
-            let result = apply(&mut out.tracks, edit).map(|(note, apart)| {
+            let result = apply(&mut out.tracks, edit, &mut deleted).map(|(note, apart)| {
                 if let Some([kept, new]) = apart {
                     // The new piece joins the family of the track it came from, so a second split
                     // does not let the first's pieces be joined again.
@@ -52,19 +55,25 @@ pub fn corrected_tracks(tracks: &Tracks, edits: &[Edit]) -> CorrectedTracks {
         tracks: out,
         outcomes,
         split_from,
+        deleted,
     }
 }
 
 /// Applies one edit; what it did (and, for a split, the two tracks it made), or why it could not.
-fn apply(tracks: &mut Vec<Track>, edit: &Edit) -> Result<(String, Option<[u32; 2]>), String> {
+/// A track deleted goes to `deleted`, with the edit's reason.
+fn apply(
+    tracks: &mut Vec<Track>,
+    edit: &Edit,
+    deleted: &mut Vec<(Track, Option<String>)>,
+) -> Result<(String, Option<[u32; 2]>), String> {
     let note = match edit {
         Edit::MergeTracks { track, into, .. } => merge(tracks, track, into)?,
         Edit::SplitTrack {
             track, at_frame, ..
         } => return split(tracks, track, *at_frame),
-        Edit::DeleteTrack { track, .. } => {
+        Edit::DeleteTrack { track, reason } => {
             let i = find(tracks, track)?;
-            tracks.remove(i);
+            deleted.push((tracks.remove(i), reason.clone()));
             format!("track {} left out", track.id)
         }
         Edit::SetClass { track, class, .. } => {

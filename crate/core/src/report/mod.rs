@@ -83,7 +83,7 @@ pub struct Event {
     /// True for a crossing a person added (the tool missed it); it has no track (0).
     #[serde(default, skip_serializing_if = "is_false")]
     pub added: bool,
-    /// Why a person added or rejected it, when they said.
+    /// Why a person added or rejected it (or deleted its track), when they said.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub reason: Option<String>,
 }
@@ -261,6 +261,11 @@ pub struct Report {
     /// Counted crossings a person rejected, with their reasons; not in any count.
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
     pub rejected_events: Vec<Event>,
+    /// The crossings, entries and exits the tracks a person deleted made, counted as those
+    /// tracks alone, each with the deletion's reason; not in any count (so a difference from a
+    /// hand count can be traced to a deletion).
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub deleted_events: Vec<Event>,
     /// Hand counts of samples beside the automated counts of the same frames.
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
     pub checks: Vec<TallyCheck>,
