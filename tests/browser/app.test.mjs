@@ -277,7 +277,7 @@ test("the single file works opened from disk, with nothing fetched", async () =>
   // Finding objects in the bundled footage works from disk too: the worker reads the footage
   // through FileReaderSync and decodes it with WebCodecs.
   await page.getByRole("button", { name: "Find moving objects" }).click();
-  await page.waitForFunction(() => /^Found \d+ moving objects over 750 frames .*decoded in this page/.test(document.getElementById("find-status").textContent), null, { timeout: 600000 });
+  await page.waitForFunction(() => /^Found \d+ boxes of moving objects over 750 frames .*decoded in this page/.test(document.getElementById("find-status").textContent), null, { timeout: 600000 });
   const fetched = seen.requests.filter((u) => !u.startsWith("blob:") && !u.startsWith("data:"));
   assert.deepEqual(fetched, [`file://${join(site, "throughline-offline.html")}`], "only the file itself is read");
   assert.deepEqual(seen.errors, []);
@@ -306,7 +306,7 @@ async function findInFootage(page, footage) {
   await page.getByLabel("Height near bottom (px)").fill("91");
   await page.getByRole("button", { name: "Find moving objects" }).click();
   await page.waitForFunction(() => !/^Found/.test(document.getElementById("find-status").textContent));
-  await page.waitForFunction(() => /^Found \d+ moving objects/.test(document.getElementById("find-status").textContent), null, { timeout: 600000 });
+  await page.waitForFunction(() => /^Found \d+ boxes of moving objects/.test(document.getElementById("find-status").textContent), null, { timeout: 600000 });
   return page.locator("#find-status").innerText();
 }
 
@@ -316,7 +316,7 @@ test("footage alone: the page decodes WebM and MP4 itself, finds what the comman
   const status = await findInFootage(page, demo("footage.webm"));
   assert.match(status, /over 750 frames .*decoded in this page from the WebM video/);
   assert.match(await page.locator("#fps-hint").innerText(), /is coded at 25\.00 fps, as set/);
-  const found = Number(status.match(/Found (\d+)/)[1]);
+  const found = Number(status.match(/Found (\d+) boxes/)[1]);
   // The demo has about 12 people in view over 700 frames after the warm-up.
   assert.ok(found > 3000, `${found} boxes`);
   // The page suggests the steadier crossing margin for boxes found in footage; one click sets it.
@@ -454,7 +454,7 @@ test("footage alone without WebCodecs: frames are taken by playing the footage, 
   await page.getByRole("button", { name: "Find moving objects" }).click();
   await page.waitForFunction(() => /frames a second/.test(document.getElementById("find-status").textContent));
   await screenshot(page, "8-finding-objects-by-playing");
-  await page.waitForFunction(() => /^Found \d+ moving objects over 120 frames/.test(document.getElementById("find-status").textContent), null, { timeout: 600000 });
+  await page.waitForFunction(() => /^Found \d+ boxes of moving objects over 120 frames/.test(document.getElementById("find-status").textContent), null, { timeout: 600000 });
   assert.doesNotMatch(await page.locator("#find-status").innerText(), /decoded in this page/);
   assert.match(await page.locator("#messages").innerText(), /taken by playing the footage, which is slower: this browser cannot decode video inside the page/);
   assert.deepEqual(seen.foreign, []);

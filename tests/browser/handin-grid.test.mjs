@@ -67,27 +67,31 @@ test("grid and movements: downloads equal the command line's, copies paste as th
   const wide = await downloadText(page, "Download grid CSV", scratch);
   assert.equal(wide, cli[`${STEM}_grid.csv`], "wide grid = throughline run --site --start");
   // The header block: what was counted, where, from what, and the caution (common practice for a hand-in sheet).
-  const head = csvCells(wide).slice(0, 8);
-  assert.deepEqual(head.map((r) => r[0]), ["Site", "Recording", "Plan", "Footage", "Detections", "Counted with", "Corrections", "Caution"]);
+  const head = csvCells(wide).slice(0, 9);
+  assert.deepEqual(head.map((r) => r[0]), ["Site", "Recording", "Plan", "Footage", "Detections", "Counted with", "Corrections", "Last interval", "Caution"]);
   assert.deepEqual(head.slice(0, 5).map((r) => r[1]), [SITE, "from 2026-03-02T07:00:00, 0.5 minutes (750 frames at 25 fps)", "plan.json", "footage.webm", "detections.csv"]);
   assert.equal(head[6][1], "none", "no corrections made");
-  assert.match(head[7][1], /estimates[\s\S]*manual count[\s\S]*recording people/);
+  // 30 s of footage: its one interval is said to be of part of 15 minutes (a newcomer's trial:
+  // pasted, it read as a whole interval's count, a flow rate 30 times too low).
+  assert.equal(head[7][1], "2026-03-02T07:00:00 to 2026-03-02T07:15:00 covers only 0.5 of its 15 minutes (the footage ends inside it): its counts are of that part, not of a whole interval");
+  assert.match(head[8][1], /estimates[\s\S]*manual count[\s\S]*recording people/);
   const tab = await copied(page, "Copy grid");
   assert.deepEqual(pastedCells(tab), csvCells(wide), "the copied grid pastes as the CSV's cells");
-  const table = pastedCells(tab).slice(9, 12);
+  const table = pastedCells(tab).slice(10, 13);
   // Interval start and end, 2 lines × 2 directions × the classes counted, total, peak hour, note.
   const columns = 2 + 10 + 3;
   assert.deepEqual(table.map((r) => r.length), [columns, columns, columns]);
   assert.deepEqual([table[1][0], table[2][0]], ["2026-03-02T07:00:00", "Total"]);
-  assert.match(await page.locator("#grid-copied").innerText(), /Copied: 14 rows, up to 15 cells each/);
+  assert.match(await page.locator("#grid-copied").innerText(), /Copied: 15 rows, up to 15 cells each/);
 
   await page.getByLabel("Layout").selectOption("long");
   const long = await downloadText(page, "Download grid CSV", scratch);
   assert.equal(long, cli[`${STEM}_grid-long.csv`], "long grid = throughline run --site --start");
   const longCells = pastedCells(await copied(page, "Copy grid"));
   assert.deepEqual(longCells, csvCells(long));
-  const rows = longCells.slice(9).filter((r) => r.length === 7);
-  assert.deepEqual(rows[0], ["interval_start", "interval_end", "screenline", "direction", "class", "count", "peak_hour"]);
+  const rows = longCells.slice(10).filter((r) => r.length === 8);
+  assert.deepEqual(rows[0], ["interval_start", "interval_end", "screenline", "direction", "class", "count", "peak_hour", "note"]);
+  assert.ok(rows.slice(1).every((r) => r[7] === "cut short by the end of the footage"), "each row of the part interval says so");
   assert.equal(rows.length, 1 + 10, "a row per interval, line, direction and class");
 
   const matrix = await downloadText(page, "Download movements CSV", scratch);
@@ -159,7 +163,7 @@ test("an hour and more of intervals: the peak hour and its factor are marked, an
   await page.getByLabel("Layout").selectOption("long");
   const long = await downloadText(page, "Download grid CSV", scratch);
   assert.equal(long, cli[`${STEM}_grid-long.csv`]);
-  assert.ok(long.includes(",yes\n") && long.includes(",no\n"), "the long layout marks the peak hour's rows");
+  assert.ok(long.includes(",yes,\n") && long.includes(",no,"), "the long layout marks the peak hour's rows");
   await page.locator("#grid-view").scrollIntoViewIfNeeded();
   await screenshot(page, "16-handin-peak-hour-laptop", { fullPage: false });
   assert.deepEqual(seen.errors, []);

@@ -20,8 +20,25 @@ const SIZE = { height: 120, top: 10, left: 38, bar: 16, gap: 20, bottom: 34 };
  * @param {IntervalCount[]} intervals
  */
 export function startFormat(intervals) {
-  const seconds = intervals.some((iv, k) => k > 0 && iv.start.slice(11, 16) === intervals[k - 1].start.slice(11, 16));
-  return (/** @type {string} */ iso) => iso.slice(11, seconds ? 19 : 16);
+  const seconds = intervals.some((iv, k) => k > 0 && clockPart(iv.start).slice(0, 5) === clockPart(intervals[k - 1].start).slice(0, 5));
+  return (/** @type {string} */ iso) => clockPart(iso).slice(0, seconds ? 8 : 5);
+}
+
+/**
+ * Whether a moment's time is a clock time (the plan has a start), not the time since the footage began.
+ * @param {string | undefined | null} time
+ */
+export function isClock(time) {
+  return Boolean(time && time.length > 10);
+}
+
+/**
+ * The time of day of an interval's bound: of "2026-03-02T07:15:00" its "07:15:00"; a plan with no
+ * start time gives the time since the footage began as it is ("00:15:00").
+ * @param {string} bound
+ */
+export function clockPart(bound) {
+  return bound.length > 10 ? bound.slice(11) : bound;
 }
 
 /**

@@ -4,6 +4,7 @@
 // it (counted while hidden, added by hand, rejected and why), headed with the site, footage and
 // plan, so a client or an auditor can check every count by eye. Printing it prints the sheet alone.
 
+import { clockPart, isClock } from "./chart.js";
 import { el, byId, clockText, localStamp } from "./dom.js";
 import { eventTracks } from "./review-events.js";
 
@@ -100,7 +101,7 @@ export class EvidenceSheet {
     if (e.added) notes.push("added by hand");
     if (rejected) notes.push("rejected: not counted");
     if (e.reason) notes.push(`why: ${e.reason}`);
-    const when = e.time ? `${clockText(e.seconds)} (${e.time.slice(11)})` : clockText(e.seconds);
+    const when = isClock(e.time) ? `${clockText(e.seconds)} (${clockPart(e.time)})` : clockText(e.seconds);
     const picture = this.evidence.picture(e).then((url) => {
       if (!url) return img.replaceWith("no picture");
       // Where it was cut from, for whoever checks the picture against the footage.

@@ -113,11 +113,11 @@ export class FindPanel {
     this.status.textContent = "Starting…";
     const started = performance.now();
     try {
-      const { summary, how } = await this.search(footage.blob, started);
+      const { summary, how, notes } = await this.search(footage.blob, started);
       const seconds = (performance.now() - started) / 1000;
       const source = new Blob([await this.client.detectionsText()]);
-      this.store.detectionsLoaded(summary, source, `found in ${footage.name}: ${summary.rows} boxes, ${summary.frames} frames`, "");
-      this.status.textContent = `Found ${summary.rows} moving objects over ${summary.frames} frames in ${seconds.toFixed(1)} s${how}. Press Run to track and count them.`;
+      this.store.detectionsLoaded(summary, source, `found in ${footage.name}: ${summary.rows} boxes, ${summary.frames} frames`, "", notes);
+      this.status.textContent = `Found ${summary.rows} boxes of moving objects over ${summary.frames} frames in ${seconds.toFixed(1)} s${how}. Press Run to track and count them.`;
       // The core's words on what it found (a camera that moved), said as the command line says them.
       if (summary.warnings.length) this.messages.say("camera", "warn", `${footage.name}: ${summary.warnings.join(" ")}.`);
       this.offerMargin();
@@ -143,7 +143,7 @@ export class FindPanel {
    * Resolves to the detections' summary and how the frames were read (for the status line).
    * @param {Blob} footage
    * @param {number} started
-   * @returns {Promise<{summary: DetectionSummary, how: string}>}
+   * @returns {Promise<{summary: DetectionSummary, how: string, notes: string[]}>}
    */
   async search(footage, started) {
     const video = this.picture.video;
@@ -155,15 +155,19 @@ export class FindPanel {
       : { fallback: "this browser cannot decode video inside the page" };
     if ("fallback" in found) {
       this.messages.say("find", "warn", `Frames are taken by playing the footage, which is slower: ${found.fallback}.`);
-      return { summary: await this.findByDrawing(w, h, total, started), how: "" };
+      return { summary: await this.findByDrawing(w, h, total, started), how: "", notes: [] };
     }
     this.store.frameRateMeasured(found.frameRate, "is coded at");
     this.warnIfShort(found, video.duration);
+    /** @type {string[]} */
+    const notes = [];
     if (found.filled) {
       const frames = found.filled === 1 ? "1 frame missing from it was" : `${found.filled} frames missing from it were`;
-      this.messages.say("gaps", "warn", `${this.store.footage ? this.store.footage.name : "The footage"}: ${frames} filled with the pictures either side (it was recorded at a variable frame rate, or the camera or recorder dropped frames), so that frame numbers and times follow its clock, as on the command line.`);
+      const note = `${this.store.footage ? this.store.footage.name : "the footage"}: ${frames} filled with the pictures either side (it was recorded at a variable frame rate, or the camera or recorder dropped frames), so that frame numbers and times follow its clock`;
+      this.messages.say("gaps", "warn", `${note}, as on the command line.`);
+      notes.push(note);
     }
-    return { summary: found.summary, how: ` (decoded in this page from the ${containerName(found.container)})` };
+    return { summary: found.summary, how: ` (decoded in this page from the ${containerName(found.container)})`, notes };
   }
 
   /**

@@ -45,7 +45,41 @@ export function handinContext(store) {
   // Found here by Find moving objects: the command line needs them as Export detections saves them.
   else if (store.detections && !store.detections.name) ctx.found_in_footage = ctx.found_in_page = true;
   if (work.edits.length || work.extras.tallies || work.extras.correction) ctx.project_name = projectFileName(work.site);
+  const warnings = inputWarnings(store);
+  if (warnings.length) ctx.warnings = warnings;
   return ctx;
+}
+
+/**
+ * What was said of the inputs that a person signing the counts needs to know, in the command
+ * line's words and order (`throughline run` keeps its warnings for the hand-in files, so the two
+ * write the same files): a footage frame rate other than the plan's, frames missing from the
+ * footage and filled, the detections' own (rows passed over, a camera that moved), and boxes
+ * going on past the footage's end.
+ * @param {PageStore} store
+ * @returns {string[]}
+ */
+export function inputWarnings(store) {
+  const out = [];
+  const d = store.detections;
+  // Named as the Footage row names it (the demo's opens as "demo footage.webm", its file is footage.webm).
+  const footage = store.prints.footage ? store.prints.footage.name : store.footage ? store.footage.name : "the footage";
+  const measured = store.measuredRate;
+  const planned = store.fps;
+  if (store.footage && measured && Math.abs(measured.rate - planned) > 0.001 * planned) {
+    const rate = Math.round(measured.rate * 1000) / 1000;
+    out.push(`${footage}: the footage runs at ${rate} frames a second, the plan says ${planned} (\`frame_rate\`): times, intervals, speeds and the footage's length in frames follow the plan's; if the footage's is right, set the plan's frame_rate to it`);
+  }
+  if (d) {
+    out.push(...(d.notes || []));
+    out.push(...d.summary.warnings.map((w) => `${d.name || footage}: ${w}`));
+  }
+  const last = d ? d.summary.frames : 0;
+  const known = store.videoFrames;
+  if (d && d.name && known && known < last) {
+    out.push(`the boxes go on to frame ${last}, past the footage's ${known} frames: are these the detections of this footage? (the count reaches frame ${last})`);
+  }
+  return out;
 }
 
 /**
@@ -84,7 +118,7 @@ export class HandinPanel {
     this.sheets = null;
     /** Numbers the requests, so that only the latest answer is shown. */
     this.asked = 0;
-    store.subscribe(["results", "site", "prints", "checks", "edits"], () => this.refresh());
+    store.subscribe(["results", "site", "prints", "checks", "edits", "frameRate"], () => this.refresh());
     store.subscribe(["saved", "marks", "plan", "method", "planProblem"], () => this.show());
     this.layout.addEventListener("change", () => this.show());
     byId("copy-grid", HTMLButtonElement).addEventListener("click", () => this.copy(this.grid().tab, byId("grid-copied", HTMLElement)));

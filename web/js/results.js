@@ -5,7 +5,7 @@
 // the Review's list, review-events.js.)
 
 import { el, table, clockText, byId } from "./dom.js";
-import { intervalCharts, intervalCount, startFormat } from "./chart.js";
+import { intervalCharts, intervalCount, startFormat, clockPart } from "./chart.js";
 import { speedsNote } from "./plan.js";
 import { itemNames } from "./palette.js";
 
@@ -158,7 +158,7 @@ function totals(report) {
   }
   for (const l of report.screenlines) {
     if (l.peak_hour) {
-      out.push(el("p", { class: "hint", text: `${l.name}: peak hour ${l.peak_hour.start.slice(11)}–${l.peak_hour.end.slice(11)}, ${l.peak_hour.volume} crossings, peak hour factor ${l.peak_hour.phf.toFixed(2)}` }));
+      out.push(el("p", { class: "hint", text: `${l.name}: peak hour ${clockPart(l.peak_hour.start)}–${clockPart(l.peak_hour.end)}, ${l.peak_hour.volume} crossings, peak hour factor ${l.peak_hour.phf.toFixed(2)}` }));
     }
   }
   return out;

@@ -6,6 +6,7 @@
 // through it goes on from where the person is, even when the moment in focus has just left the
 // queue (its crossing rejected).
 
+import { clockPart, isClock } from "./chart.js";
 import { el, byId, clockText, revealInList } from "./dom.js";
 
 /** @typedef {import("./store.js").PageStore} PageStore */
@@ -180,7 +181,7 @@ export class DoubtList {
 function doubtRow(d, n, decision, fps) {
   const badge = decision ? el("span", { class: `decision ${decision}`, text: decision === "accepted" ? "\u2713 accepted" : "\u2717 rejected" }) : null;
   const where = [doubtTracks(d), `frame ${d.frame}`];
-  if (d.time) where.push(d.time.slice(11));
+  if (isClock(d.time)) where.push(clockPart(d.time));
   return [
     el("span", { class: "when", text: clockText((d.frame - 1) / fps) }),
     el("span", { class: "what" }, [`${n}. ${doubtHeadline(d)}`, badge ? " " : null, badge]),

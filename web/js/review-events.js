@@ -4,6 +4,7 @@
 // (cut from the footage when its row comes into view), then the crossings the person rejected.
 // Choosing one shows that moment: the footage goes to its frame and its track stands out.
 
+import { clockPart, isClock } from "./chart.js";
 import { el, byId, clockText, revealInList } from "./dom.js";
 
 /** @typedef {import("./store.js").PageStore} PageStore */
@@ -114,7 +115,7 @@ export class EventList {
  * @param {CountEvent} e
  */
 export function eventTime(e) {
-  return e.time ? `${clockText(e.seconds)} (${e.time.slice(11)})` : clockText(e.seconds);
+  return isClock(e.time) ? `${clockText(e.seconds)} (${clockPart(e.time)})` : clockText(e.seconds);
 }
 
 /**
@@ -158,7 +159,7 @@ export function directionGlyph(e) {
  */
 function eventRow(e, uncounted) {
   const detail = [e.class || "unclassified", eventTracks(e), `frame ${e.frame}`];
-  if (e.time) detail.push(e.time.slice(11));
+  if (isClock(e.time)) detail.push(clockPart(e.time));
   if (e.inferred) detail.push("counted while hidden");
   if (uncounted) detail.push(uncounted === "rejected" ? "rejected" : "its track deleted");
   if (e.reason) detail.push(`why: ${e.reason}`);

@@ -36,8 +36,9 @@ import { HandCount } from "./hand-count.js";
  */
 /**
  * Detections in use: the core's summary, the file (to give a restarted worker), how to name them,
- * and the file's name ("" for detections found in footage here).
- * @typedef {{summary: DetectionSummary, source: Blob, label: string, name: string}} Detections
+ * the file's name ("" for detections found in footage here), and what finding them in the
+ * footage said of it (frames missing, filled), for the hand-in files.
+ * @typedef {{summary: DetectionSummary, source: Blob, label: string, name: string, notes?: string[]}} Detections
  */
 /** @typedef {{report: import("./results.js").Report, reportText: string, csv: string, live: LiveCounts}} Results */
 /** What the person is doing: setting up, reviewing against the footage, reading the results. @typedef {"setup" | "review" | "results"} View */
@@ -206,9 +207,10 @@ export class PageStore {
    * @param {Blob} source the detections as a file
    * @param {string} label how the Files panel names them
    * @param {string} name the file's name ("" when found in footage)
+   * @param {string[]} [notes] what finding them in the footage said of it
    */
-  detectionsLoaded(summary, source, label, name) {
-    this.detections = { summary, source, label, name };
+  detectionsLoaded(summary, source, label, name, notes = []) {
+    this.detections = { summary, source, label, name, notes };
     this.emit(["detections", ...this.forgetTracking()]);
   }
 

@@ -168,7 +168,7 @@ fn say_once(footage: &Path, kind: &'static str, said: &str) {
     let mut said_for = SAID.lock().unwrap_or_else(|e| e.into_inner());
     if !said_for.iter().any(|(p, k)| p == footage && *k == kind) {
         said_for.push((footage.to_path_buf(), kind));
-        eprintln!("warning: {}: {said}", footage.display());
+        crate::warnings::warn(format!("{}: {said}", crate::files::file_name(footage)));
     }
 }
 
@@ -188,14 +188,16 @@ fn gaps_note(line: &str) -> Option<String> {
     let mut parts = Vec::new();
     if filled > 0 {
         parts.push(format!(
-            "{filled} frame{} missing from it were filled with the pictures either side",
-            if filled == 1 { "" } else { "s" }
+            "{filled} frame{} missing from it {} filled with the pictures either side",
+            if filled == 1 { "" } else { "s" },
+            if filled == 1 { "was" } else { "were" }
         ));
     }
     if dropped > 0 {
         parts.push(format!(
-            "{dropped} frame{} coming sooner than its frame rate allows were left out",
-            if dropped == 1 { "" } else { "s" }
+            "{dropped} frame{} coming sooner than its frame rate allows {} left out",
+            if dropped == 1 { "" } else { "s" },
+            if dropped == 1 { "was" } else { "were" }
         ));
     }
     Some(format!(

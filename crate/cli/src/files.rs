@@ -77,6 +77,24 @@ fn read_limited(path: &Path, limit: u64, text: bool) -> Result<Vec<u8>, Failure>
 /// What is read of a text input before deciding whether it is text at all.
 const BINARY_CHECK_BYTES: u64 = 1 << 16;
 
+/// A number with its noun, singular for one: "1 detection", "2 detections".
+pub fn counted(n: impl Into<u64>, noun: &str) -> String {
+    let n = n.into();
+    format!("{n} {noun}{}", if n == 1 { "" } else { "s" })
+}
+
+/// A file's name without its folder (`-`: standard input), as warnings kept for the hand-in files
+/// and the page name it.
+pub fn file_name(path: &Path) -> String {
+    if path == Path::new("-") {
+        return "standard input".into();
+    }
+    path.file_name().map_or_else(
+        || path.display().to_string(),
+        |n| n.to_string_lossy().into_owned(),
+    )
+}
+
 /// How to name an input in messages: `-` is standard input.
 pub fn name(path: &Path) -> String {
     if path == Path::new("-") {

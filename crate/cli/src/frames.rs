@@ -4,7 +4,7 @@
 //! frames reach the caller one at a time and in order, so what is found does not change.
 
 use crate::decode::{decode, is_y4m};
-use crate::files::{bad_input, name, Failure};
+use crate::files::{bad_input, Failure};
 use std::io::{BufRead, BufReader, Read};
 use std::path::Path;
 use std::sync::mpsc;
@@ -48,11 +48,11 @@ pub fn next_frame<'a, R: BufRead>(
             // Keep what was found in the whole frames rather than lose it (with none, the
             // caller's "holds no frames" says it all).
             if warn && k > 1 {
-                eprintln!(
-                    "warning: {}: the stream ends inside frame {k}; frames 1 to {} are used",
-                    name(footage),
+                crate::warnings::warn(format!(
+                    "{}: the stream ends inside frame {k}; frames 1 to {} are used",
+                    crate::files::file_name(footage),
                     k - 1
-                );
+                ));
             }
             Ok(None)
         }
@@ -136,13 +136,13 @@ pub fn video_frames(footage: &Path, frame_rate: f64, quiet: bool) -> Result<Opti
 /// Warns when the footage's frame rate (when known) is not the plan's.
 pub fn rate_against_plan(footage: &Path, rate: Option<f64>, planned: f64) {
     if let Some(rate) = rate.filter(|r| (r - planned).abs() > 0.001 * planned) {
-        eprintln!(
-            "warning: {}: the footage runs at {} frames a second, the plan says {planned} \
+        crate::warnings::warn(format!(
+            "{}: the footage runs at {} frames a second, the plan says {planned} \
              (`frame_rate`): times, intervals, speeds and the footage's length in frames follow \
              the plan's; if the footage's is right, set the plan's frame_rate to it",
-            footage.display(),
+            crate::files::file_name(footage),
             (rate * 1000.0).round() / 1000.0
-        );
+        ));
     }
 }
 
@@ -157,15 +157,15 @@ pub fn footage_against_plan(
         return Ok(());
     };
     rate_against_plan(footage, rate, plan.spec.frame_rate);
-    let name = footage.display();
+    let name = crate::files::file_name(footage);
     let (w, h) = (f64::from(w), f64::from(h));
     let outside = plan.outside_picture(w, h);
     if !outside.is_empty() {
-        eprintln!(
-            "warning: {name}: {} wholly outside the picture ({w} × {h}): nothing is counted there; \
+        crate::warnings::warn(format!(
+            "{name}: {} wholly outside the picture ({w} × {h}): nothing is counted there; \
              was the plan drawn on footage of another size?",
             outside.join(", ") + if outside.len() == 1 { " lies" } else { " lie" }
-        );
+        ));
     }
     Ok(())
 }
@@ -228,13 +228,35 @@ pub fn footage_facts(footage: &Path) -> Result<Option<FootageFacts>, Failure> {
         }));
     };
     let size = (track.coded_width, track.coded_height);
-    let rate = match video_times(footage, 250)? {
-        Ok((n, first, last)) if n > 1 && last > first => {
-            Some((n - 1) as f64 / ((last - first) as f64 / 1e6))
-        }
-        _ => None,
+    Ok(Some((coded_rate(footage)?, size)))
+}
+
+/// The frame rate a WebM or MP4 is coded at: from the median time between its first 60 frames, as
+/// the page takes it (a frame missing among them does not lower it).
+fn coded_rate(footage: &Path) -> Result<Option<f64>, Failure> {
+    use throughline_footage::demux::Demuxer;
+    let file = std::fs::File::open(footage)
+        .map_err(|e| bad_input(footage, format!("cannot read the file: {e}")))?;
+    let size = file.metadata().map_or(0, |m| m.len());
+    let Ok((mut video, _)) = Demuxer::open(BufReader::with_capacity(1 << 16, file), size) else {
+        return Ok(None);
     };
-    Ok(Some((rate, size)))
+    let mut times = Vec::with_capacity(60);
+    while times.len() < 60 {
+        match video.next_chunk() {
+            Ok(Some(c)) => times.push(c.timestamp_us),
+            _ => break,
+        }
+    }
+    // Coded order is not shown order where frames refer forward (H.264's B-frames).
+    times.sort_unstable();
+    let mut steps: Vec<i64> = times
+        .windows(2)
+        .map(|w| w[1] - w[0])
+        .filter(|&d| d > 0)
+        .collect();
+    steps.sort_unstable();
+    Ok(steps.get(steps.len() / 2).map(|&step| 1e6 / step as f64))
 }
 
 /// How many frames a YUV4MPEG2 file holds (passed over by seeking, not read), or other video
@@ -244,10 +266,8 @@ pub fn y4m_frames(footage: &Path) -> Result<Option<u32>, Failure> {
         return Ok(None);
     }
     if !is_y4m(footage)? {
-        // WebM and MP4 frames are counted in the container; other video is decoded to count.
-        if let Ok((n, _, _)) = video_times(footage, MAX_FOOTAGE_FRAMES as u64)? {
-            return Ok(Some(u32::try_from(n).unwrap_or(u32::MAX)));
-        }
+        // Other video is decoded to count, as it is read: at a constant frame rate, frames
+        // missing from it filled (the container's count would leave them out).
         let mut reader = open_y4m(footage)?;
         let mut frames = 0u32;
         while next_frame(&mut reader, footage, false)?.is_some() {

@@ -1,7 +1,7 @@
 //! The hand-in outputs `run` writes next to the report when a site is named: the interval grid
 //! (wide and long), the movement matrix and the client summary, named from the site and date.
 
-use crate::files::{bad_input, read_binary, Failure};
+use crate::files::{bad_input, file_name, read_binary, Failure};
 use std::path::{Path, PathBuf};
 use throughline_core::fingerprint::{Fingerprint, HEAD_BYTES};
 use throughline_core::handin::{self, Context, GridLayout, Separator};
@@ -20,13 +20,6 @@ pub fn fingerprint(path: &Path) -> Result<Fingerprint, Failure> {
         .read_to_end(&mut head)
         .map_err(|e| bad_input(path, format!("cannot read the file: {e}")))?;
     Ok(Fingerprint::of(&file_name(path), size, &head, None))
-}
-
-fn file_name(path: &Path) -> String {
-    path.file_name().map_or_else(
-        || path.display().to_string(),
-        |n| n.to_string_lossy().into_owned(),
-    )
 }
 
 /// What the outputs say about the inputs: the site, the plan's and detections' files, the footage
@@ -53,7 +46,7 @@ pub fn context(inputs: &Inputs) -> Result<Context, Failure> {
         (project.and_then(|p| p.detections.as_ref()), &detections)
     {
         if let Some(why) = recorded.differs(opened) {
-            eprintln!("warning: {why}");
+            crate::warnings::warn(why);
         }
     }
     let still_bytes = inputs
@@ -78,6 +71,7 @@ pub fn context(inputs: &Inputs) -> Result<Context, Failure> {
         found_in_footage: inputs.found_with.is_some(),
         found_in_page: false,
         detector_settings: inputs.found_with.flatten().map(file_name),
+        warnings: crate::warnings::kept(),
     })
 }
 

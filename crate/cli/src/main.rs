@@ -15,6 +15,7 @@ mod output;
 mod progress;
 mod reading;
 mod streaming;
+mod warnings;
 
 use clap::{Parser, Subcommand};
 use commands::{batch, count, detect, review, run, score, score_counts, simulate, track, tune};

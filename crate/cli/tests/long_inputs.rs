@@ -95,7 +95,7 @@ fn warnings_of_the_whole_file_are_printed_once_in_file_order() {
     let second = err.find("line 2:").expect("line 2 warned");
     let third = err.find("line 3:").expect("line 3 warned");
     assert!(first < second && second < third, "{err}");
-    assert!(err.contains("1 detections"), "{err}");
+    assert!(err.contains("1 detection ("), "{err}");
 }
 
 #[test]

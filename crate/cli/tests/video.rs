@@ -204,9 +204,36 @@ fn a_camera_that_pans_is_said_to_move_and_a_still_one_is_not() {
         "veryfast",
         &pan,
     ]);
-    let o = throughline(&["detect", "--footage", &pan, "-q"]);
+    // Counted and handed in: the warning heads the grid and the summary too (a newcomer's trial:
+    // it was said on the terminal only, and the files handed in looked clean).
+    let out = dir.join("counts");
+    std::fs::create_dir_all(&out).unwrap();
+    let o = throughline(&[
+        "run",
+        "--footage",
+        &pan,
+        "--plan",
+        &demo("plan.json"),
+        "--site",
+        "Turning camera",
+        "-o",
+        out.join("report.json").to_str().unwrap(),
+        "-q",
+    ]);
     assert!(o.status.success(), "{}", stderr(&o));
     let said = stderr(&o);
+    let grid = std::fs::read_to_string(out.join("turning-camera_2026-03-02_grid.csv")).unwrap();
+    assert!(
+        grid.contains("\nWarning,\"") && grid.contains("pan.mp4: the camera seems to move"),
+        "{grid}"
+    );
+    let summary =
+        std::fs::read_to_string(out.join("turning-camera_2026-03-02_summary.html")).unwrap();
+    assert!(
+        summary.contains("<h2>Before relying on these counts</h2>")
+            && summary.contains("pan.mp4: the camera seems to move"),
+        "{summary}"
+    );
     let warning = said
         .lines()
         .find(|l| l.starts_with("warning: "))

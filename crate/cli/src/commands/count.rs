@@ -181,11 +181,11 @@ pub fn with_length(
         let known = known(tracks)?;
         if let Some(k) = known.filter(|&k| k < tracks.frame_count) {
             // Boxes past the footage's end: another clip's detections, or a frame mistyped.
-            eprintln!(
-                "warning: the boxes go on to frame {}, past the footage's {k} frames: are these \
+            crate::warnings::warn(format!(
+                "the boxes go on to frame {}, past the footage's {k} frames: are these \
                  the detections of this footage? (the count reaches frame {})",
                 tracks.frame_count, tracks.frame_count
-            );
+            ));
         }
         tracks.frame_count = tracks.frame_count.max(known.unwrap_or(0));
         return Ok(());
@@ -247,7 +247,7 @@ pub fn summarise(report: &Report, quiet: bool) {
     // Said even when quiet, as every warning is: the counts are not the ones the person corrected
     // (a batch keeps it in the clip's `warnings.txt`; it was lost there).
     for e in report.edits.iter().filter(|e| !e.applied) {
-        eprintln!("warning: an edit was not applied: {}", e.note);
+        crate::warnings::warn(format!("an edit was not applied: {}", e.note));
     }
     if quiet {
         return;

@@ -67,10 +67,10 @@ pub fn run(args: Args) -> Result<(), Failure> {
         timer.lap("write");
         if !args.quiet {
             eprintln!(
-                "{}: {} detections over {} frames{}",
+                "{}: {} over {}{}",
                 name(footage),
-                dets.rows.len(),
-                dets.length(),
+                crate::files::counted(dets.rows.len() as u64, "detection"),
+                crate::files::counted(dets.length(), "frame"),
                 output.map_or(String::new(), |p| format!(", written to {}", p.display()))
             );
             if dets.rows.is_empty() {
@@ -134,7 +134,7 @@ pub fn detect_footage(
     }
     // Said even when quiet, as every warning is (a batch keeps it with the clip).
     if let Some(note) = detector.camera_note() {
-        eprintln!("warning: {}: {note}", name(footage));
+        crate::warnings::warn(format!("{}: {note}", crate::files::file_name(footage)));
     }
     Ok(detector.detections_from(per_frame))
 }

@@ -150,9 +150,7 @@ fn footage_picture(
 ) -> Result<Option<(f64, f64)>, Failure> {
     match (&args.picture, &args.footage) {
         (None, Some(f)) => Ok(crate::frames::footage_facts(f)?.map(|(rate, (w, h))| {
-            if !args.tracking.quiet {
-                crate::frames::rate_against_plan(f, rate, plan.spec.frame_rate);
-            }
+            crate::frames::rate_against_plan(f, rate, plan.spec.frame_rate);
             (f64::from(w), f64::from(h))
         })),
         _ => Ok(None),
@@ -173,18 +171,18 @@ fn warn_misfit(
     }
     let (right, bottom) = review::extent_of(tracks);
     if right > 1.25 * w || bottom > 1.25 * h {
-        eprintln!(
-            "warning: boxes reach {right:.0} × {bottom:.0} pixels, well past the picture's {w} × \
+        crate::warnings::warn(format!(
+            "boxes reach {right:.0} × {bottom:.0} pixels, well past the picture's {w} × \
              {h}: is the picture's size right? (it decides which tracks begin or end at the \
              picture's edge)"
-        );
+        ));
     }
     let outside = plan.outside_picture(w, h);
     if !outside.is_empty() {
-        eprintln!(
-            "warning: {} wholly outside the picture ({w} × {h}): nothing is counted there",
+        crate::warnings::warn(format!(
+            "{} wholly outside the picture ({w} × {h}): nothing is counted there",
             outside.join(", ") + if outside.len() == 1 { " lies" } else { " lie" }
-        );
+        ));
     }
 }
 

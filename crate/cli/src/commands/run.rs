@@ -175,10 +175,8 @@ fn track_source(
     let mut timer = Timer::new();
     let (how, settings) = with_project(&args.tracking, project)?;
     let how = &how;
-    if let (Some(footage), false) = (
-        args.y4m.as_ref().or(args.handin.footage.as_ref()),
-        how.quiet,
-    ) {
+    // Said even when quiet, as every warning is (and kept for the hand-in files).
+    if let Some(footage) = args.y4m.as_ref().or(args.handin.footage.as_ref()) {
         crate::frames::footage_against_plan(footage, plan)?;
     }
     match (&args.y4m, &args.detections) {

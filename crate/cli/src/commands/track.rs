@@ -131,11 +131,11 @@ fn report_streamed(path: &Path, out: &Path, how: &TrackingArgs, done: &streaming
     print_warning_list(path, &done.read.warnings);
     print_crowded(path, &done.end.crowded_frames);
     eprintln!(
-        "{}: {} detections ({}) over {} frames",
+        "{}: {} ({}) over {}",
         path.display(),
-        done.read.rows,
+        crate::files::counted(done.read.rows as u64, "detection"),
         done.format,
-        done.read.last_frame,
+        crate::files::counted(done.read.last_frame, "frame"),
     );
     if done.config.bridge_frames > 0 {
         eprintln!("{}", no_footage_note(done.config.bridge_frames));
@@ -257,11 +257,11 @@ pub fn track_file_with(
     if !how.quiet {
         let dets = &report.detections;
         eprintln!(
-            "{}: {} detections ({}) over {} frames",
+            "{}: {} ({}) over {}",
             path.display(),
-            dets.rows.len(),
+            crate::files::counted(dets.rows.len() as u64, "detection"),
             report.format,
-            dets.last_frame(),
+            crate::files::counted(dets.last_frame(), "frame"),
         );
     }
     Ok(tracks)
@@ -270,7 +270,7 @@ pub fn track_file_with(
 fn print_warnings(path: &Path, report: &detections::ReadReport) {
     print_warning_list(path, &report.warnings);
     for why in report.detections.notes() {
-        eprintln!("warning: {}: {why}", path.display());
+        crate::warnings::warn(format!("{}: {why}", crate::files::file_name(path)));
     }
 }
 
@@ -279,8 +279,14 @@ fn print_warnings(path: &Path, report: &detections::ReadReport) {
 fn print_warning_list(path: &Path, warnings: &[detections::Warning]) {
     for w in warnings {
         match w.line {
-            Some(l) => eprintln!("warning: {}: line {l}: {}", path.display(), w.message),
-            None => eprintln!("warning: {}: {}", path.display(), w.message),
+            Some(l) => crate::warnings::warn(format!(
+                "{}: line {l}: {}",
+                crate::files::file_name(path),
+                w.message
+            )),
+            None => {
+                crate::warnings::warn(format!("{}: {}", crate::files::file_name(path), w.message))
+            }
         }
     }
 }
@@ -388,10 +394,10 @@ fn print_crowded(path: &Path, crowded_frames: &[u32]) {
         return;
     }
     let first: Vec<String> = crowded_frames.iter().take(5).map(u32::to_string).collect();
-    eprintln!(
-        "warning: {}: {} frames (frame {}{}) held so many overlapping boxes that they were \
+    crate::warnings::warn(format!(
+        "{}: {} frames (frame {}{}) held so many overlapping boxes that they were \
          matched cheapest pair first rather than optimally; check the detections there",
-        path.display(),
+        crate::files::file_name(path),
         crowded_frames.len(),
         first.join(", "),
         if crowded_frames.len() > 5 {
@@ -399,5 +405,5 @@ fn print_crowded(path: &Path, crowded_frames: &[u32]) {
         } else {
             ""
         }
-    );
+    ));
 }

@@ -91,7 +91,8 @@ impl Lines {
             return Err(Error::new(
                 ErrorKind::MissingColumn,
                 format!(
-                    "{count} columns, but the benchmark text format needs at least 7: frame,id,x,y,w,h,score{}",
+                    "{count} column{}, but the benchmark text format needs at least 7: frame,id,x,y,w,h,score{}",
+                    if count == 1 { "" } else { "s" },
                     if count == 1 { crate::text::separator_hint(l) } else { "" }
                 ),
             )

@@ -123,12 +123,7 @@ impl<'a> Grid<'a> {
             } else {
                 String::new()
             });
-            let note = if iv.partial {
-                "cut short by the end of the footage"
-            } else {
-                ""
-            };
-            cells.push(note.into());
+            cells.push(note(iv).into());
             row(out, sep, &cells);
         }
         let mut sums = vec!["Total".to_string(), String::new()];
@@ -149,6 +144,7 @@ impl<'a> Grid<'a> {
             "class",
             "count",
             "peak_hour",
+            "note",
         ];
         row(out, sep, &head.map(String::from));
         for (i, iv) in self.intervals.iter().enumerate() {
@@ -171,6 +167,7 @@ impl<'a> Grid<'a> {
                         col.class.clone(),
                         self.table[i][c].to_string(),
                         peak.into(),
+                        note(iv).into(),
                     ],
                 );
             }
@@ -211,6 +208,15 @@ impl<'a> Grid<'a> {
                 ],
             ),
         }
+    }
+}
+
+/// An interval's note: said of one the footage ends inside (its count is of part of it).
+fn note(iv: &crate::report::IntervalCount) -> &'static str {
+    if iv.partial {
+        "cut short by the end of the footage"
+    } else {
+        ""
     }
 }
 

@@ -42,6 +42,10 @@ pub struct Context {
     pub found_in_page: bool,
     /// The detector settings file's name, when the boxes were found with one (command line).
     pub detector_settings: Option<String>,
+    /// What was said about the inputs while counting (a camera that moved, frames missing, a
+    /// frame rate other than the plan's…): each heads the grid and the summary, as a person
+    /// signing the counts needs to know it.
+    pub warnings: Vec<String>,
 }
 
 impl Context {
@@ -238,8 +242,33 @@ fn header_block(report: &Report, ctx: &Context) -> Vec<(String, String)> {
     rows.push(("Detections".into(), detections_named(ctx)));
     rows.push(("Counted with".into(), report.generator.clone()));
     rows.push(("Corrections".into(), corrections(report)));
+    if let Some(note) = partial_note(report) {
+        rows.push(("Last interval".into(), note));
+    }
+    rows.extend(ctx.warnings.iter().map(|w| ("Warning".into(), w.clone())));
     rows.push(("Caution".into(), report.caution.clone()));
     rows
+}
+
+/// When the footage ends inside an interval: that interval and how much of it the footage covers,
+/// so a count of part of an interval is not read as a whole one (a flow rate worked out from it
+/// would be too low). `None` when every interval is whole.
+pub(super) fn partial_note(report: &Report) -> Option<String> {
+    let iv = report.screenlines.first()?.intervals.last()?;
+    if !iv.partial {
+        return None;
+    }
+    let whole = report.plan.interval_minutes * 60.0;
+    let covered =
+        report.duration_seconds - whole * (report.screenlines[0].intervals.len() - 1) as f64;
+    Some(format!(
+        "{} to {} covers only {:.1} of its {} minutes (the footage ends inside it): its counts are \
+         of that part, not of a whole interval",
+        iv.start,
+        iv.end,
+        covered.max(0.0) / 60.0,
+        report.plan.interval_minutes
+    ))
 }
 
 /// The person's corrections behind the counts, in a few words ("none" when there are none).

@@ -47,6 +47,7 @@ pub fn summary_html(report: &Report, ctx: &Context) -> String {
         h.push_str(&interval_chart(line));
     }
     checks(&mut h, report);
+    warnings(&mut h, report, ctx);
     let _ = writeln!(
         h,
         "<h2>A word of caution</h2>\n<p class=\"caution\">{}</p>",
@@ -55,6 +56,24 @@ pub fn summary_html(report: &Report, ctx: &Context) -> String {
     reproduce(&mut h, report, ctx);
     h.push_str("</body>\n</html>\n");
     h
+}
+
+/// What was said about the inputs while counting, and a last interval the footage covers only in
+/// part: a list a person reads before relying on the counts (nothing when there is none).
+fn warnings(h: &mut String, report: &Report, ctx: &Context) {
+    let items: Vec<String> = super::partial_note(report)
+        .map(|n| format!("The last interval, {n}."))
+        .into_iter()
+        .chain(ctx.warnings.iter().cloned())
+        .collect();
+    if items.is_empty() {
+        return;
+    }
+    h.push_str("<h2>Before relying on these counts</h2>\n<ul class=\"caution\">\n");
+    for item in items {
+        let _ = writeln!(h, "<li>{}</li>", esc(&item));
+    }
+    h.push_str("</ul>\n");
 }
 
 fn totals(h: &mut String, report: &Report) {
