@@ -57,6 +57,16 @@ test("each line's chart: whole, evenly rising ticks from 0, a legend of both dir
     });
   }
   await page.locator("#chart").screenshot({ path: join(artefacts, "15-chart-fifteen-second-intervals.png") });
+  // Without a start time the intervals are labelled by the time since the footage began (a
+  // newcomer's trial: the chart said "part" alone and the table "– (part)").
+  await showView(page, "Set up");
+  await page.getByLabel("Start time").fill("");
+  await page.getByLabel("Start time").press("Tab");
+  await showView(page, "Results");
+  await page.waitForFunction(() => /00:00:15/.test(document.getElementById("interval-table").textContent));
+  const labels = await figures.first().locator("svg > text:not(.tick)").allTextContents();
+  assert.deepEqual(labels.slice(0, 3), ["00:00:00", "00:00:15", "00:00:30"]);
+  assert.match(await page.locator("#interval-table").innerText(), /00:00:00–00:00:15/);
   assert.deepEqual(seen.errors, []);
   await page.close();
 });
