@@ -7,7 +7,9 @@
 //! way (global motion estimation by block matching, the least mean absolute difference). People
 //! moving in front of a still camera leave most of the picture where it was, so no shift beats
 //! none; a camera that moved is matched far better at a shift. When such frames are many, the
-//! clip's detections carry a note saying so and where.
+//! clip's detections carry a note saying so and where. A comparison no shift explains, far above
+//! the clip's usual difference, is the picture changing all at once (a cut between shots, the
+//! light switched, a hand over the lens): those places are noted too.
 
 use std::collections::VecDeque;
 
@@ -33,6 +35,19 @@ const NOTE_SHARE: f64 = 0.1;
 /// Fewer comparisons than this (about 2 s at 25 frames a second): too few to tell.
 const FEWEST: usize = 12;
 
+/// A comparison no shift explains whose difference is at least this many times the clip's median
+/// (and at least [`CUT_LEAST`] grey levels) is the picture changing all at once: a cut between
+/// shots, or the light switched. A dense crowd in front of a still camera keeps within about 1.2
+/// times its median (the simulator's 120 in view: 24 at most against a median near 20).
+const CUT_TIMES_MEDIAN: f64 = 3.0;
+
+/// See [`CUT_TIMES_MEDIAN`].
+const CUT_LEAST: f64 = 20.0;
+
+/// Comparisons kept as possible cuts at most (a clip that changes all the time is said so
+/// anyway): memory does not grow with the footage.
+const CUTS_KEPT: usize = 1000;
+
 /// The small pictures kept and what the comparisons found (frames 1-based, counted from the first
 /// one searched).
 #[derive(Debug, Default, Clone)]
@@ -43,6 +58,10 @@ pub(crate) struct Steadiness {
     moved: usize,
     first: usize,
     last: usize,
+    /// How many comparisons had each mean difference with no shift (grey levels, rounded).
+    differences: Vec<u32>,
+    /// Comparisons no shift explains with a large difference: (frame, difference).
+    changes: Vec<(usize, f64)>,
 }
 
 impl Steadiness {
@@ -58,19 +77,81 @@ impl Steadiness {
         if self.kept.len() == 2 {
             let before = self.kept.pop_front().unwrap_or_default();
             self.compared += 1;
-            if camera_moved(&before, &small, sw, sh) {
+            let (still, moved) = compare(&before, &small, sw, sh);
+            if self.differences.is_empty() {
+                self.differences = vec![0; 256];
+            }
+            self.differences[(still.round() as usize).min(255)] += 1;
+            if moved {
                 self.moved += 1;
                 if self.first == 0 {
                     self.first = self.frames.saturating_sub(2 * EVERY).max(1);
                 }
                 self.last = self.frames;
+            } else if still >= CUT_LEAST && self.changes.len() < CUTS_KEPT {
+                self.changes.push((self.frames, still));
             }
         }
         self.kept.push_back(small);
     }
 
-    /// What to tell the person when the camera moved in many of the frames searched, else `None`.
+    /// What to tell the person when the camera moved in many of the frames searched, or the
+    /// picture changed all at once, else `None`.
     pub(crate) fn note(&self) -> Option<String> {
+        let notes: Vec<String> = [self.moved_note(), self.cuts_note()]
+            .into_iter()
+            .flatten()
+            .collect();
+        (!notes.is_empty()).then(|| notes.join(". Also, "))
+    }
+
+    /// The places where the picture changed all at once (a cut, the light), each the first frame
+    /// of a run of such comparisons.
+    fn cuts(&self) -> Vec<usize> {
+        let half = self.compared.div_ceil(2) as u32;
+        let mut seen = 0;
+        let median = self.differences.iter().position(|&n| {
+            seen += n;
+            seen >= half
+        });
+        let least = median.map_or(f64::INFINITY, |m| {
+            (CUT_TIMES_MEDIAN * m as f64).max(CUT_LEAST)
+        });
+        let mut starts: Vec<usize> = Vec::new();
+        let mut last = 0;
+        for &(frame, _) in self.changes.iter().filter(|c| c.1 >= least) {
+            if last == 0 || frame > last + EVERY {
+                // Compared with the picture 2 × EVERY frames before: the change lies between them.
+                starts.push(frame.saturating_sub(2 * EVERY).max(1));
+            }
+            last = frame;
+        }
+        starts
+    }
+
+    fn cuts_note(&self) -> Option<String> {
+        if self.compared < FEWEST {
+            return None;
+        }
+        let cuts = self.cuts();
+        let first: Vec<String> = cuts.iter().take(5).map(usize::to_string).collect();
+        (!cuts.is_empty()).then(|| {
+            format!(
+                "the picture changes all at once in {} place{} (just after frame{} {}{}): footage \
+                 cut together from several shots, the light switched, or something passing close \
+                 in front of the camera. The fixed-camera detector needs one unbroken shot from a \
+                 camera that keeps still and a clear view: boxes around those frames are not \
+                 objects",
+                cuts.len(),
+                if cuts.len() == 1 { "" } else { "s" },
+                if cuts.len() == 1 { "" } else { "s" },
+                first.join(", "),
+                if cuts.len() > 5 { ", …" } else { "" }
+            )
+        })
+    }
+
+    fn moved_note(&self) -> Option<String> {
         if self.compared < FEWEST || (self.moved as f64) < NOTE_SHARE * self.compared as f64 {
             return None;
         }
@@ -101,11 +182,12 @@ fn block_means(luma: &[u8], width: usize, height: usize, block: usize) -> Vec<u8
     sums.iter().map(|&s| (s / area) as u8).collect()
 }
 
-/// Whether `now` is `before` moved by the camera: some shift matches far better than none.
-fn camera_moved(before: &[u8], now: &[u8], w: usize, h: usize) -> bool {
+/// How much `now` differs from `before` in place (mean, grey levels), and whether it is `before`
+/// moved by the camera: some shift matches far better than none.
+fn compare(before: &[u8], now: &[u8], w: usize, h: usize) -> (f64, bool) {
     let r = REACH as usize;
     if w <= 2 * r || h <= 2 * r {
-        return false;
+        return (0.0, false);
     }
     // The middle of `now`, compared with `before` shifted: every shift sees the same pixels of now.
     let difference = |dx: isize, dy: isize| -> f64 {
@@ -125,14 +207,14 @@ fn camera_moved(before: &[u8], now: &[u8], w: usize, h: usize) -> bool {
     };
     let still = difference(0, 0);
     if still < LEAST_DIFFERENCE {
-        return false;
+        return (still, false);
     }
     let best = (-REACH..=REACH)
         .flat_map(|dy| (-REACH..=REACH).map(move |dx| (dx, dy)))
         .filter(|&s| s != (0, 0))
         .map(|(dx, dy)| difference(dx, dy))
         .fold(f64::INFINITY, f64::min);
-    best <= SHIFT_WINS * still
+    (still, best <= SHIFT_WINS * still)
 }
 
 #[cfg(test)]
@@ -182,6 +264,35 @@ mod tests {
             .unwrap();
         assert!((35.0..=45.0).contains(&share), "{note}");
         assert!(note.contains("between frames 5"), "{note}");
+    }
+
+    #[test]
+    fn footage_cut_from_shots_is_noted_with_where() {
+        let (w, h) = (320, 180);
+        // Three shots of a still camera (frames 1–100, 101–200, 201–300): smooth scenes of broad
+        // shapes, unlike one another at any small shift.
+        let scene = |phase: f64| -> Vec<u8> {
+            (0..w * h)
+                .map(|i| {
+                    let (x, y) = ((i % w) as f64, (i / w) as f64);
+                    let v = 128.0
+                        + 60.0 * (x / 23.0 + phase).sin()
+                        + 50.0 * (y / 17.0 + x / 41.0 + 2.0 * phase).cos();
+                    v as u8
+                })
+                .collect()
+        };
+        let shots = [scene(0.0), scene(1.9), scene(4.1)];
+        let mut cut = Steadiness::default();
+        for k in 0..300 {
+            cut.observe(&shots[k / 100], w, h);
+        }
+        let note = cut.note().expect("two cuts");
+        assert!(
+            note.starts_with("the picture changes all at once in 2 places (just after frames 9"),
+            "{note}"
+        );
+        assert!(!note.contains("seems to move"), "{note}");
     }
 
     #[test]
