@@ -302,8 +302,8 @@ async function findInFootage(page, footage) {
   await page.waitForFunction(() => !document.getElementById("find-objects").disabled);
   // The plan kept from an earlier test may have no lines: open the demo's.
   await page.getByLabel("Open plan").setInputFiles(demo("plan.json"));
-  await page.getByLabel("Height near top (px)").fill("34");
-  await page.getByLabel("Height near bottom (px)").fill("91");
+  await page.getByLabel("Height at top edge (px)").fill("34");
+  await page.getByLabel("Height at bottom edge (px)").fill("91");
   await page.getByRole("button", { name: "Find moving objects" }).click();
   await page.waitForFunction(() => !/^Found/.test(document.getElementById("find-status").textContent));
   await page.waitForFunction(() => /^Found \d+ boxes of moving objects/.test(document.getElementById("find-status").textContent), null, { timeout: 600000 });

@@ -28,8 +28,8 @@ test("frames missing from footage are filled as ffmpeg fills them, and said", as
   await showView(page, "Set up");
   await page.getByLabel("Open footage").setInputFiles(gap);
   await page.waitForFunction(() => !document.getElementById("find-objects").disabled);
-  await page.getByLabel("Height near top (px)").fill("34");
-  await page.getByLabel("Height near bottom (px)").fill("91");
+  await page.getByLabel("Height at top edge (px)").fill("34");
+  await page.getByLabel("Height at bottom edge (px)").fill("91");
   await page.getByRole("button", { name: "Find moving objects" }).click();
   await page.waitForFunction(() => /^Found \d+ boxes of moving objects/.test(document.getElementById("find-status").textContent), null, { timeout: 600000 });
   assert.match(await page.locator("#find-status").innerText(), /over 750 frames/);

@@ -89,8 +89,8 @@ test("a WebM whose index points at itself, which browsers play, is read whole", 
   await page.getByLabel("Open footage").setInputFiles(path);
   await page.waitForFunction(() => !document.getElementById("find-objects").disabled);
   await page.getByLabel("Open plan").setInputFiles(demo("plan.json"));
-  await page.getByLabel("Height near top (px)").fill("34");
-  await page.getByLabel("Height near bottom (px)").fill("91");
+  await page.getByLabel("Height at top edge (px)").fill("34");
+  await page.getByLabel("Height at bottom edge (px)").fill("91");
   await page.getByRole("button", { name: "Find moving objects" }).click();
   await page.waitForFunction(() => /^Found \d+ boxes of moving objects/.test(document.getElementById("find-status").textContent), null, { timeout: 600000 });
   assert.match(await page.locator("#find-status").innerText(), /over 750 frames .*decoded in this page from the WebM video/);

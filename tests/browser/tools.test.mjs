@@ -56,3 +56,17 @@ test("Escape ends a drawing tool; each tool ends after one use", async () => {
   assert.deepEqual(seen.errors, []);
   await page.close();
 });
+
+// Where the pointer is, in the picture's own pixels, to measure a person's height for the
+// detector's two heights (a newcomer's trial: nothing on the page could measure them).
+test("the pointer's place on the picture is shown in its pixels", async () => {
+  const { page } = await openPage(env, { viewport: { width: 1366, height: 768 } });
+  const canvas = page.locator("#overlay");
+  const box = await canvas.boundingBox();
+  const [w, h] = await canvas.evaluate((c) => [c.width, c.height]);
+  await canvas.hover({ position: { x: (320 * box.width) / w, y: (180 * box.height) / h } });
+  assert.match(await page.locator("#pointer-at").innerText(), /^x 3(19|20|21), y 1(79|80|81)$/);
+  await page.mouse.move(5, 5);
+  assert.equal(await page.locator("#pointer-at").innerText(), "");
+  await page.close();
+});

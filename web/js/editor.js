@@ -31,6 +31,13 @@ export class Editor {
     this.drag = null;
     canvas.addEventListener("pointerdown", (e) => this.down(e));
     canvas.addEventListener("pointermove", (e) => this.move(e));
+    // Where the pointer is, in the picture's pixels: to measure a person's height for the detector.
+    const at = document.getElementById("pointer-at");
+    canvas.addEventListener("pointermove", (e) => {
+      const [x, y] = this.toVideo(e);
+      if (at) at.textContent = `x ${Math.round(x)}, y ${Math.round(y)}`;
+    });
+    canvas.addEventListener("pointerleave", () => { if (at) at.textContent = ""; });
     canvas.addEventListener("pointerup", (e) => this.up(e));
     canvas.addEventListener("dblclick", () => this.finish());
   }
