@@ -1447,3 +1447,25 @@ fn footage_and_plan_that_disagree_are_named() {
     );
     assert!(!e.contains("--frames"), "{e}");
 }
+
+/// A plan line wholly beyond every box, with no footage to check the plan against, is warned of
+/// (a newcomer's trial: a plan drawn for a larger picture counted 0 and 0 there without a word);
+/// lines the boxes reach are not.
+#[test]
+fn a_line_beyond_every_box_is_warned_of_without_footage() {
+    let dir = scratch("beyond-boxes");
+    let plan = write(
+        &dir,
+        "plan.json",
+        br#"{"frame_rate": 25, "screenlines": [
+            {"name": "gate", "points": [[100, 900], [500, 900]]},
+            {"name": "mid", "points": [[0, 200], [640, 200]]}]}"#,
+    );
+    let o = throughline(&["run", &demo("detections.csv"), "--plan", &plan, "-q"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    assert_eq!(
+        stderr(&o).trim(),
+        "warning: line `gate` lies wholly beyond every box (the boxes reach 673 × 384 pixels): \
+         nothing can be counted there; was the plan drawn on footage of another size?"
+    );
+}

@@ -44,11 +44,17 @@ pub fn demo(args: &[String]) -> Result<(), String> {
         ],
     )?;
     println!(
-        "\nOn your own files: {bin} run DETECTIONS --plan PLAN -o report.json --csv counts.csv"
+        "\nOn your own files: {bin} run DETECTIONS --plan PLAN -o report.json --csv counts.csv\n\
+         With footage and no detections (a fixed camera): {bin} run --footage VIDEO --plan PLAN \
+         --detector-config HEIGHTS.json -o report.json (docs/detector-settings.md)"
     );
     println!("\nNow the browser app, which does the same in the page:");
     site::build()?;
     if args.iter().any(|a| a == "--no-serve") {
+        println!(
+            "To open it: `cargo xtask serve` and the address it prints, or the single file \
+             demo-site/throughline-offline.html in any browser (nothing is fetched)."
+        );
         return Ok(());
     }
     serve(DEFAULT_PORT)

@@ -15,19 +15,22 @@ use throughline_footage::y4m;
 pub const LONG_ABOUT: &str = "Find moving objects in footage from a fixed camera, without any model.\n\n\
     Reads YUV4MPEG2 (4:2:0 or mono, 8 bits), as `ffmpeg -i INPUT -pix_fmt yuv420p -f yuv4mpegpipe -` \
     writes it, from a file or from standard input (-); any other video file (WebM, MP4, …) is decoded \
-    by ffmpeg when it is installed, each frame once, so the boxes are the page's. It writes detections for `track` and `run`: \
+    by ffmpeg when it is installed, at its constant frame rate (frames a camera dropped are filled, \
+    and said), so the boxes are the page's. It writes detections for `track` and `run`: \
     CSV (frame,x,y,w,h,score,class) when classes are guessed (with far_height/near_height set), \
     else the benchmark text format (frame,-1,x,y,w,h,score,-1,-1,-1). A file is read twice: first for \
     the background (pictures sampled over the whole clip), then to find objects from its first frame. \
     From standard input the background forms over the first two seconds (warm_up_frames), where nothing \
-    is reported. Settings: docs/detector-settings.md.";
+    is reported. Give a person's height at the picture's top and bottom edges (far_height, \
+    near_height) if you can: without them, fragments and noise are not told from people, and no \
+    class is guessed. Settings: docs/detector-settings.md.";
 
 /// Find moving objects in footage from a fixed camera, without any model.
 #[derive(clap::Args)]
 pub struct Args {
     /// Footage: YUV4MPEG2 (or - for standard input), or any other video (WebM, MP4, …) decoded by
     /// ffmpeg.
-    #[arg(long, visible_alias = "footage", value_name = "FILE")]
+    #[arg(long = "footage", visible_alias = "y4m", value_name = "FILE")]
     y4m: PathBuf,
     /// Where to write the detections; without it they go to standard output.
     #[arg(short, long, value_name = "OUT")]
@@ -102,6 +105,14 @@ pub fn detect_footage(
     };
     let mut reader = open_y4m(footage)?;
     let header = *reader.header();
+    if !quiet && config.perspective(header.height).is_none() {
+        eprintln!(
+            "note: no far_height and near_height (a person's height in pixels with feet at the \
+             picture's top edge, and at its bottom edge): fragments and noise are not told from \
+             people, pairs are not split, and no class is guessed; give them with --config \
+             (docs/detector-settings.md says how to work them out from two people)"
+        );
+    }
     let mut detector = Detector::new(config, header.width, header.height);
     if detector.samples_whole_clip() {
         if footage == Path::new("-") {

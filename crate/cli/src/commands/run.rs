@@ -134,6 +134,9 @@ pub fn run(mut args: Args) -> Result<(), Failure> {
     super::count::with_length(&mut tracks, args.handin.frames, |t| {
         super::count::known_length(t, project_at, &plan, footage)
     })?;
+    if args.y4m.is_none() && args.handin.footage.is_none() {
+        warn_beyond_boxes(&tracks, &plan);
+    }
     let report = pipeline::count(&tracks, &plan, Some(&tracks.config), &work)
         .map_err(|e| bad_input(&args.plan, e))?;
     let mut files = Outputs::new();
@@ -163,6 +166,26 @@ pub fn run(mut args: Args) -> Result<(), Failure> {
         eprintln!("written: {path}");
     }
     Ok(())
+}
+
+/// Without footage to check the plan against (`footage_against_plan`), lines and zones wholly
+/// beyond every box are warned of: nothing can be counted there (a plan drawn on footage of
+/// another size; a newcomer's trial counted 0 and 0 there without a word).
+fn warn_beyond_boxes(tracks: &throughline_core::Tracks, plan: &Plan) {
+    if tracks.tracks.is_empty() {
+        return;
+    }
+    let (w, h) = throughline_core::review::extent_of(tracks);
+    let beyond = plan.outside_picture(w, h);
+    if !beyond.is_empty() {
+        crate::warnings::warn(format!(
+            "{} wholly beyond every box (the boxes reach {:.0} × {:.0} pixels): nothing can be \
+             counted there; was the plan drawn on footage of another size?",
+            beyond.join(", ") + if beyond.len() == 1 { " lies" } else { " lie" },
+            w,
+            h
+        ));
+    }
 }
 
 /// The tracks: of the detections file, or of the objects found in the footage; with footage,
