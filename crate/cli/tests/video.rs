@@ -306,3 +306,63 @@ fn frames_missing_from_footage_are_filled_and_said() {
         .unwrap()
         .starts_with("# footage_frames: 750\n"));
 }
+
+/// `review --footage` alone finds the objects in the footage as `run --footage` does, and lists
+/// the doubtful moments of that count (a newcomer's trial: it was refused for want of a
+/// detections file, though `run` took the footage alone).
+#[test]
+fn review_takes_footage_alone_as_run_does() {
+    if !ffmpeg_or_skip("review_takes_footage_alone_as_run_does") {
+        return;
+    }
+    let dir = scratch("video-review");
+    let clip = dir.join("clip.webm").display().to_string();
+    ffmpeg(&[
+        "-i",
+        &demo("footage.webm"),
+        "-frames:v",
+        "150",
+        "-c",
+        "copy",
+        &clip,
+    ]);
+    let heights = dir.join("heights.json");
+    std::fs::write(&heights, r#"{"far_height": 34, "near_height": 91}"#).unwrap();
+    let heights = heights.display().to_string();
+    let args = ["--footage", &clip, "--plan", &demo("plan.json")];
+    let o = throughline(
+        &[
+            &["review"][..],
+            &args,
+            &["--detector-config", &heights, "--json", "-q"],
+        ]
+        .concat(),
+    );
+    assert!(o.status.success(), "{}", stderr(&o));
+    let queue: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    let frames: Vec<u64> = queue
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|d| d["frame"].as_u64().unwrap())
+        .collect();
+    assert!(
+        !frames.is_empty() && frames.iter().all(|f| (1..=150).contains(f)),
+        "{frames:?}"
+    );
+    // With a detections file too, the detector's settings have nothing to do: refused.
+    let o = throughline(
+        &[
+            &["review", &demo("detections.csv")][..],
+            &args,
+            &["--detector-config", &heights],
+        ]
+        .concat(),
+    );
+    assert_eq!(o.status.code(), Some(2), "{}", stderr(&o));
+    assert!(
+        stderr(&o).contains("--detector-config is for finding objects"),
+        "{}",
+        stderr(&o)
+    );
+}

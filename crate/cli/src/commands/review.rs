@@ -19,8 +19,14 @@ pub const LONG_ABOUT: &str = "List the moments of a count most likely wrong, mos
 /// List the moments of a count most likely wrong, most doubtful first.
 #[derive(clap::Args)]
 pub struct Args {
-    /// Detections file (as for `track`).
-    detections: PathBuf,
+    /// Detections file (as for `track`); without it, the objects are found in --footage (a fixed
+    /// camera's), as `run --footage` finds them.
+    #[arg(required_unless_present = "footage")]
+    detections: Option<PathBuf>,
+    /// Detector settings (JSON; docs/detector-settings.md) for finding objects in --footage when no
+    /// detections file is given.
+    #[arg(long, value_name = "FILE")]
+    detector_config: Option<PathBuf>,
     /// Counting plan (JSON).
     #[arg(long, value_name = "PLAN")]
     plan: PathBuf,
@@ -60,7 +66,23 @@ pub fn run(args: Args) -> Result<(), Failure> {
         .and_then(|f| Some((f64::from(f.width?), f64::from(f.height?))));
     let project_at = args.edits.as_deref().zip(project.as_ref());
     let (how, settings) = with_project(&args.tracking, project_at)?;
-    let mut tracks = track_file_with(&args.detections, &how, settings, &mut Timer::new())?;
+    let mut tracks = match (&args.detections, &args.footage) {
+        (Some(_), _) if args.detector_config.is_some() => {
+            return Err(crate::files::bad_usage(
+                "--detector-config is for finding objects in the footage when no detections \
+                 file is given: leave one of the two out",
+            ))
+        }
+        (Some(d), _) => track_file_with(d, &how, settings, &mut Timer::new())?,
+        (None, Some(f)) => {
+            super::run::found_tracks(f, args.detector_config.as_deref(), &how, settings)?
+        }
+        (None, None) => {
+            return Err(crate::files::bad_usage(
+                "give a detections file or --footage",
+            ))
+        }
+    };
     let footage = footage_files(&args)?;
     super::count::with_length(&mut tracks, args.frames, |t| {
         super::count::known_length(t, project_at, &plan, footage)

@@ -213,10 +213,7 @@ fn track_source(
                     throughline_core::plan::DEFAULT_HYSTERESIS
                 );
             }
-            let cores = Cores::new(None);
-            let dets = detect_footage(footage, args.detector_config.as_deref(), &cores, how.quiet)?;
-            let tracks = track_detections(&dets, footage, how, settings, &mut timer)?;
-            bridge_with_footage(tracks, footage, how.quiet)
+            found_tracks(footage, args.detector_config.as_deref(), how, settings)
         }
         (Some(footage), Some(path)) => {
             if args.detector_config.is_some() {
@@ -238,6 +235,20 @@ fn track_source(
             how.quiet,
         )),
     }
+}
+
+/// The tracks of the objects found in `footage` (a fixed camera's), bridged with it where the
+/// detector missed them: what `run --footage` and `review --footage` count without detections.
+pub(super) fn found_tracks(
+    footage: &Path,
+    detector_config: Option<&Path>,
+    how: &TrackingArgs,
+    settings: crate::files::Settings,
+) -> Result<throughline_core::Tracks, Failure> {
+    let cores = Cores::new(None);
+    let dets = detect_footage(footage, detector_config, &cores, how.quiet)?;
+    let tracks = track_detections(&dets, footage, how, settings, &mut Timer::new())?;
+    bridge_with_footage(tracks, footage, how.quiet)
 }
 
 /// With a site's name (given, or the project's), the hand-in files next to the report; their paths.
