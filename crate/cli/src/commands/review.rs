@@ -66,23 +66,7 @@ pub fn run(args: Args) -> Result<(), Failure> {
         .and_then(|f| Some((f64::from(f.width?), f64::from(f.height?))));
     let project_at = args.edits.as_deref().zip(project.as_ref());
     let (how, settings) = with_project(&args.tracking, project_at)?;
-    let mut tracks = match (&args.detections, &args.footage) {
-        (Some(_), _) if args.detector_config.is_some() => {
-            return Err(crate::files::bad_usage(
-                "--detector-config is for finding objects in the footage when no detections \
-                 file is given: leave one of the two out",
-            ))
-        }
-        (Some(d), _) => track_file_with(d, &how, settings, &mut Timer::new())?,
-        (None, Some(f)) => {
-            super::run::found_tracks(f, args.detector_config.as_deref(), &how, settings)?
-        }
-        (None, None) => {
-            return Err(crate::files::bad_usage(
-                "give a detections file or --footage",
-            ))
-        }
-    };
+    let mut tracks = review_tracks(&args, &how, settings)?;
     let footage = footage_files(&args)?;
     super::count::with_length(&mut tracks, args.frames, |t| {
         super::count::known_length(t, project_at, &plan, footage)
@@ -149,6 +133,31 @@ pub fn run(args: Args) -> Result<(), Failure> {
         );
     }
     Ok(())
+}
+
+/// The tracks to review: of the detections file, else of the objects found in `--footage`.
+fn review_tracks(
+    args: &Args,
+    how: &super::track::TrackingArgs,
+    settings: crate::files::Settings,
+) -> Result<throughline_core::Tracks, Failure> {
+    Ok(match (&args.detections, &args.footage) {
+        (Some(_), _) if args.detector_config.is_some() => {
+            return Err(crate::files::bad_usage(
+                "--detector-config is for finding objects in the footage when no detections \
+                 file is given: leave one of the two out",
+            ))
+        }
+        (Some(d), _) => track_file_with(d, how, settings, &mut Timer::new())?,
+        (None, Some(f)) => {
+            super::run::found_tracks(f, args.detector_config.as_deref(), how, settings)?
+        }
+        (None, None) => {
+            return Err(crate::files::bad_usage(
+                "give a detections file or --footage",
+            ))
+        }
+    })
 }
 
 /// The footage given (`--footage`), as the files whose frames tell its length.
