@@ -86,7 +86,9 @@ export class FilesPanel {
    * @param {string} name
    */
   openFootage(blob, name) {
-    this.messages.clear("footage");
+    // What was said of the footage before (it would not play; what finding objects in it said)
+    // is not said of this one (a newcomer's trial: old messages piled up).
+    for (const key of ["footage", "play", "find", "camera", "gaps", "footage-cut"]) this.messages.clear(key);
     this.store.footageOpened(name, blob);
   }
 
