@@ -158,13 +158,14 @@ fn the_long_grid_has_one_row_per_interval_line_direction_and_class() {
             "direction",
             "class",
             "count",
-            "peak_hour"
+            "peak_hour",
+            "note"
         ]
     );
     // 5 intervals × (north kerb: 2 directions; south kerb: no crossings, no class columns).
     assert_eq!(rows.len() - 1, 5 * 2);
-    assert_eq!(rows[1][5..], ["3", "yes"]);
-    assert_eq!(rows[10][5..], ["1", "no"]);
+    assert_eq!(rows[1][5..], ["3", "yes", ""]);
+    assert_eq!(rows[10][5..], ["1", "no", ""]);
 }
 
 #[test]
