@@ -72,7 +72,7 @@ pub struct Detector {
     band_runs: Vec<BandRuns>,
     /// The blobs' joining across bands, a working buffer.
     first_runs: Vec<u32>,
-    /// Frames where most of the picture differed (a camera that moved).
+    /// Whether the camera kept still and the picture unbroken (a camera that moved, a cut).
     steadiness: Steadiness,
 }
 
@@ -211,8 +211,8 @@ impl Detector {
         self.background.samples_kept()
     }
 
-    /// What to tell the person when many of the frames searched so far had most of the picture
-    /// differing from the empty scene (a camera that moved), else `None`.
+    /// What to tell the person when the camera seems to have moved in many of the frames searched
+    /// so far, or the picture changed all at once somewhere (a cut, the light), else `None`.
     pub fn camera_note(&self) -> Option<String> {
         self.steadiness.note()
     }
