@@ -11,7 +11,7 @@ import { readFileSync, writeFileSync, mkdtempSync } from "node:fs";
 import { execFileSync, spawnSync } from "node:child_process";
 import { join } from "node:path";
 import { tmpdir } from "node:os";
-import { useBrowser, openPage, showView, run, demo, targetDir, LAPTOP } from "./harness.mjs";
+import { useBrowser, openPage, showView, demo, targetDir, LAPTOP } from "./harness.mjs";
 
 const env = useBrowser();
 const cli = join(targetDir, "release/throughline");
@@ -49,7 +49,9 @@ test("frames missing from footage are filled as ffmpeg fills them, and said", as
   // Counted and handed in: the grid says it, as the command line's does.
   await page.getByLabel("Open plan").setInputFiles(demo("plan.json"));
   await showView(page, "Set up");
-  await run(page);
+  // Run is offered beside what Find found (on a phone Run is far above).
+  await page.locator("#find-status").getByRole("button", { name: "Run now" }).click();
+  await page.waitForFunction(() => /tracks in/.test(document.getElementById("run-status").textContent), null, { timeout: 60000 });
   await showView(page, "Results");
   await page.waitForFunction(() => /dropped\.webm: 50 frames missing from it were filled/.test(document.getElementById("grid-view").textContent));
   await page.close();

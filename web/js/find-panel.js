@@ -117,7 +117,9 @@ export class FindPanel {
       const seconds = (performance.now() - started) / 1000;
       const source = new Blob([await this.client.detectionsText()]);
       this.store.detectionsLoaded(summary, source, `found in ${footage.name}: ${summary.rows} boxes, ${summary.frames} frames`, "", notes);
-      this.status.textContent = `Found ${summary.rows} boxes of moving objects over ${summary.frames} frames in ${seconds.toFixed(1)} s${how}. Press Run to track and count them.`;
+      // Run is at the top of the work; on a phone that is far above (a newcomer's trial): it is offered here too.
+      const runNow = el("button", { type: "button", text: "Run now", onclick: () => byId("run", HTMLButtonElement).click() });
+      this.status.replaceChildren(`Found ${summary.rows} boxes of moving objects over ${summary.frames} frames in ${seconds.toFixed(1)} s${how}. Press Run to track and count them. `, runNow);
       // The core's words on what it found (a camera that moved), said as the command line says them.
       if (summary.warnings.length) this.messages.say("camera", "warn", `${footage.name}: ${summary.warnings.join(" ")}.`);
       this.offerMargin();
