@@ -220,7 +220,8 @@ pub fn footage_facts(footage: &Path) -> Result<Option<FootageFacts>, Failure> {
     let file = std::fs::File::open(footage)
         .map_err(|e| bad_input(footage, format!("cannot read the file: {e}")))?;
     let bytes = file.metadata().map_or(0, |m| m.len());
-    let Ok((_, track)) = Demuxer::open(BufReader::with_capacity(1 << 16, file), bytes) else {
+    let Ok((mut video, track)) = Demuxer::open(BufReader::with_capacity(1 << 16, file), bytes)
+    else {
         // Other video (AVI, …): the header of ffmpeg's decoding, when it decodes it.
         return Ok(open_y4m(footage).ok().map(|r| {
             let h = r.header();
@@ -228,19 +229,14 @@ pub fn footage_facts(footage: &Path) -> Result<Option<FootageFacts>, Failure> {
         }));
     };
     let size = (track.coded_width, track.coded_height);
-    Ok(Some((coded_rate(footage)?, size)))
+    Ok(Some((coded_rate(&mut video), size)))
 }
 
-/// The frame rate a WebM or MP4 is coded at: from the median time between its first 60 frames, as
-/// the page takes it (a frame missing among them does not lower it).
-fn coded_rate(footage: &Path) -> Result<Option<f64>, Failure> {
-    use throughline_footage::demux::Demuxer;
-    let file = std::fs::File::open(footage)
-        .map_err(|e| bad_input(footage, format!("cannot read the file: {e}")))?;
-    let size = file.metadata().map_or(0, |m| m.len());
-    let Ok((mut video, _)) = Demuxer::open(BufReader::with_capacity(1 << 16, file), size) else {
-        return Ok(None);
-    };
+/// The frame rate a WebM or MP4 is coded at, from the demuxer just opened on it: the median time
+/// between its first 60 frames, as the page takes it (a frame missing among them does not lower it).
+fn coded_rate<R: std::io::Read + std::io::Seek>(
+    video: &mut throughline_footage::demux::Demuxer<R>,
+) -> Option<f64> {
     let mut times = Vec::with_capacity(60);
     while times.len() < 60 {
         match video.next_chunk() {
@@ -256,7 +252,7 @@ fn coded_rate(footage: &Path) -> Result<Option<f64>, Failure> {
         .filter(|&d| d > 0)
         .collect();
     steps.sort_unstable();
-    Ok(steps.get(steps.len() / 2).map(|&step| 1e6 / step as f64))
+    steps.get(steps.len() / 2).map(|&step| 1e6 / step as f64)
 }
 
 /// How many frames a YUV4MPEG2 file holds (passed over by seeking, not read), or other video
