@@ -30,10 +30,34 @@ export class PlanSync {
     // reaches to the end of the footage the work is on, once its fingerprint has its duration
     // (detections from a file end at their last box).
     store.subscribe(["video", "prints"], () => this.send());
+    /** The latest sending, until its answer is taken. */
+    this.current = Promise.resolve();
+  }
+
+  /**
+   * Gives the plan to the core now, a change still waiting for its pause with it, and resolves once
+   * the latest sending has its answer: the counts on the page are then the last plan's. (Run's own
+   * sending could be overtaken by an edit's, made just before Run was pressed; Run then looked for
+   * counts that were still on their way, and left the person on Set up: a test that typed an
+   * interval and pressed Run at once, on a busy machine.)
+   */
+  async sendSettled() {
+    clearTimeout(this.timer);
+    let sending = this.send();
+    while (true) {
+      await sending;
+      if (sending === this.current) return;
+      sending = this.current;
+    }
   }
 
   /** Gives the plan to the core now; the counts it gives back, if any, become the page's. */
-  async send() {
+  send() {
+    this.current = this.sendOnce();
+    return this.current;
+  }
+
+  async sendOnce() {
     // Each sending is numbered: an answer about an earlier plan, arriving after a later sending
     // (two round trips each), is dropped rather than put over the later one's.
     const sending = ++this.sendings;

@@ -136,7 +136,7 @@ export class RunPanel {
       // Counted before Run says it is done: "tracks in" is then the end of the whole run, and
       // Run and Find come back in the same step (a check of the plan against the picture made
       // the count's round trip longer, and a test saw "done" with Find still disabled).
-      await this.planSync.send();
+      await this.planSync.sendSettled();
       const seconds = ((performance.now() - started) / 1000).toFixed(1);
       const n = out.bridged && "joined" in out.bridged ? out.bridged.joined : null;
       const joined = n === null ? "" : `, ${n} ${n === 1 ? "gap" : "gaps"} bridged with the footage`;
