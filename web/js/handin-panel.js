@@ -13,6 +13,7 @@ import { projectFileName, projectStatus, projectUnsaved } from "./project-panel.
 /** @typedef {import("./core-client.js").CoreClient} CoreClient */
 /** @typedef {import("./protocol.js").HandIn} HandIn */
 /** @typedef {import("./protocol.js").HandinContext} HandinContext */
+/** @typedef {import("./protocol.js").InputNote} InputNote */
 
 /** The plan's name in the hand-in files once changed here: the file Save plan writes, which reproduces the counts. */
 export const PLAN_FILE = "plan.json";
@@ -45,40 +46,34 @@ export function handinContext(store) {
   // Found here by Find moving objects: the command line needs them as Export detections saves them.
   else if (store.detections && !store.detections.name) ctx.found_in_footage = ctx.found_in_page = true;
   if (work.edits.length || work.extras.tallies || work.extras.correction) ctx.project_name = projectFileName(work.site);
-  const warnings = inputWarnings(store);
-  if (warnings.length) ctx.warnings = warnings;
+  const notes = inputNotes(store);
+  if (notes.length) ctx.notes = notes;
   return ctx;
 }
 
 /**
  * What was said of the inputs that a person signing the counts needs to know, in the command
- * line's words and order (`throughline run` keeps its warnings for the hand-in files, so the two
- * write the same files): a footage frame rate other than the plan's, frames missing from the
- * footage and filled, the detections' own (rows passed over, a camera that moved), and boxes
- * going on past the footage's end.
+ * line's order (`throughline run` keeps its warnings for the hand-in files, so the two write the
+ * same files), as facts the core words as the command line does (crate/core/src/handin/said.rs):
+ * a footage frame rate other than the plan's, frames missing from the footage and filled, the
+ * detections' own (rows passed over, a camera that moved), and boxes going on past the footage's end.
  * @param {PageStore} store
- * @returns {string[]}
+ * @returns {InputNote[]}
  */
-export function inputWarnings(store) {
+export function inputNotes(store) {
+  /** @type {InputNote[]} */
   const out = [];
   const d = store.detections;
   // Named as the Footage row names it (the demo's opens as "demo footage.webm", its file is footage.webm).
   const footage = store.prints.footage ? store.prints.footage.name : store.footage ? store.footage.name : "the footage";
   const measured = store.measuredRate;
-  const planned = store.fps;
-  if (store.footage && measured && Math.abs(measured.rate - planned) > 0.001 * planned) {
-    const rate = Math.round(measured.rate * 1000) / 1000;
-    out.push(`${footage}: the footage runs at ${rate} frames a second, the plan says ${planned} (\`frame_rate\`): times, intervals, speeds and the footage's length in frames follow the plan's; if the footage's is right, set the plan's frame_rate to it`);
-  }
+  if (store.footage && measured) out.push({ frame_rate: { footage, rate: measured.rate, planned: store.fps } });
   if (d) {
-    out.push(...(d.notes || []));
-    out.push(...d.summary.warnings.map((w) => `${d.name || footage}: ${w}`));
+    out.push(...(d.notes || []).map((said) => ({ said })));
+    out.push(...d.summary.warnings.map((w) => ({ said: `${d.name || footage}: ${w}` })));
   }
-  const last = d ? d.summary.frames : 0;
   const known = store.videoFrames;
-  if (d && d.name && known && known < last) {
-    out.push(`the boxes go on to frame ${last}, past the footage's ${known} frames: are these the detections of this footage? (the count reaches frame ${last})`);
-  }
+  if (d && d.name && known) out.push({ past_footage: { last_frame: d.summary.frames, footage_frames: known } });
   return out;
 }
 

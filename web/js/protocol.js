@@ -73,7 +73,12 @@
  * What the hand-in outputs say about where the counts come from (crate/core/src/handin, Context):
  * the site, the plan's and project's file names, the footage and detections (fingerprints) and,
  * for the client summary, a still of the footage as a `data:image/...` URL.
- * @typedef {{site?: string, plan_name?: string, footage?: Fingerprint, detections?: Fingerprint, still?: string, project_name?: string, found_in_footage?: boolean, found_in_page?: boolean, warnings?: string[]}} HandinContext
+ * @typedef {{site?: string, plan_name?: string, footage?: Fingerprint, detections?: Fingerprint, still?: string, project_name?: string, found_in_footage?: boolean, found_in_page?: boolean, notes?: InputNote[]}} HandinContext
+ */
+/**
+ * A warning about the inputs for the hand-in files: a sentence already written, or the facts of one
+ * the core words as the command line does (crate/core/src/handin/said.rs).
+ * @typedef {{said: string} | {frame_rate: {footage: string, rate: number, planned: number}} | {past_footage: {last_frame: number, footage_frames: number}}} InputNote
  */
 /** A table as CSV (the file) and as tab-separated text (for the clipboard). @typedef {{csv: string, tab: string}} SheetText */
 /**

@@ -135,14 +135,10 @@ pub fn video_frames(footage: &Path, frame_rate: f64, quiet: bool) -> Result<Opti
 
 /// Warns when the footage's frame rate (when known) is not the plan's.
 pub fn rate_against_plan(footage: &Path, rate: Option<f64>, planned: f64) {
-    if let Some(rate) = rate.filter(|r| (r - planned).abs() > 0.001 * planned) {
-        crate::warnings::warn(format!(
-            "{}: the footage runs at {} frames a second, the plan says {planned} \
-             (`frame_rate`): times, intervals, speeds and the footage's length in frames follow \
-             the plan's; if the footage's is right, set the plan's frame_rate to it",
-            crate::files::file_name(footage),
-            (rate * 1000.0).round() / 1000.0
-        ));
+    let name = crate::files::file_name(footage);
+    let said = rate.and_then(|r| throughline_core::handin::frame_rate_warning(&name, r, planned));
+    if let Some(text) = said {
+        crate::warnings::warn(text);
     }
 }
 

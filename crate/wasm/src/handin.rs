@@ -1,18 +1,31 @@
 //! The hand-in outputs in the page, written by the core from the session's report: the interval
 //! grid (CSV or tab-separated for the clipboard, wide or long), the movement matrix, the client
 //! summary and their file names. The context is a plain object: `{site?, plan_name?, footage?,
-//! detections?, still?, project_name?}` (fingerprints as `fingerprint` gives them; `still` a
-//! `data:image/...` URL).
+//! detections?, still?, project_name?, notes?}` (fingerprints as `fingerprint` gives them; `still` a
+//! `data:image/...` URL; `notes` the warnings about the inputs, as [`InputNote`]s).
 
 use crate::{js_error, Session};
-use throughline_core::handin::{self, Context, GridLayout, Separator};
+use throughline_core::handin::{self, Context, GridLayout, InputNote, Separator};
 use wasm_bindgen::prelude::*;
+
+/// The context as the page gives it: the warnings about its inputs as facts or sentences
+/// (`notes`), which the core puts into the command line's words.
+#[derive(serde::Deserialize)]
+struct PageContext {
+    #[serde(flatten)]
+    context: Context,
+    #[serde(default)]
+    notes: Vec<InputNote>,
+}
 
 fn context(value: JsValue) -> Result<Context, JsError> {
     if value.is_undefined() || value.is_null() {
         return Ok(Context::default());
     }
-    serde_wasm_bindgen::from_value(value).map_err(js_error)
+    let page: PageContext = serde_wasm_bindgen::from_value(value).map_err(js_error)?;
+    let mut ctx = page.context;
+    ctx.warnings = page.notes.iter().filter_map(InputNote::words).collect();
+    Ok(ctx)
 }
 
 fn separator(name: &str) -> Result<Separator, JsError> {

@@ -5,6 +5,7 @@ use crate::files::{
 };
 use crate::output::{check_paths, Outputs};
 use std::path::{Path, PathBuf};
+use throughline_core::handin::past_footage_warning;
 use throughline_core::pipeline;
 use throughline_core::report::{self, Report};
 use throughline_core::track::files as tracks_io;
@@ -179,13 +180,10 @@ pub fn with_length(
 ) -> Result<(), Failure> {
     let Some(n) = frames else {
         let known = known(tracks)?;
-        if let Some(k) = known.filter(|&k| k < tracks.frame_count) {
-            // Boxes past the footage's end: another clip's detections, or a frame mistyped.
-            crate::warnings::warn(format!(
-                "the boxes go on to frame {}, past the footage's {k} frames: are these \
-                 the detections of this footage? (the count reaches frame {})",
-                tracks.frame_count, tracks.frame_count
-            ));
+        // Boxes past the footage's end: another clip's detections, or a frame mistyped.
+        let past = known.and_then(|k| past_footage_warning(tracks.frame_count, k));
+        if let Some(text) = past {
+            crate::warnings::warn(text);
         }
         tracks.frame_count = tracks.frame_count.max(known.unwrap_or(0));
         return Ok(());

@@ -6,12 +6,14 @@
 
 mod grid;
 mod matrix;
+mod said;
 mod sketch;
 mod summary;
 mod table;
 
 pub use grid::{interval_grid, GridLayout};
 pub use matrix::movement_matrix;
+pub use said::{frame_rate_warning, past_footage_warning, InputNote};
 pub use summary::summary_html;
 pub use table::Separator;
 
