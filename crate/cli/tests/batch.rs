@@ -482,7 +482,7 @@ fn clips_that_start_between_interval_boundaries_are_merged_into_the_clocks_inter
             .unwrap()
             .lines()
             .skip(1)
-            .map(|l| l.rsplit(',').next().unwrap().parse::<u64>().unwrap())
+            .map(|l| l.split(',').nth(5).unwrap().parse::<u64>().unwrap())
             .sum()
     };
     let merged =

@@ -281,7 +281,8 @@ fn run_tracks_and_counts_with_a_plan_writing_report_and_csv() {
     }
     assert!(line["forward"].is_u64() && line["backward"].is_u64());
     let header = std::fs::read_to_string(&csv).unwrap();
-    assert!(header.starts_with("screenline,direction,class,interval_start,interval_end,count\n"));
+    assert!(header
+        .starts_with("screenline,direction,class,interval_start,interval_end,count,partial\n"));
     // count on the written tracks gives the same counts as run.
     let report2 = dir.join("report2.json").display().to_string();
     let o = count_with_demo_plan(&tracks, &["-o", &report2, "-q"]);

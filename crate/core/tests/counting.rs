@@ -432,12 +432,32 @@ fn intervals_carry_wall_clock_labels_and_classes() {
     let mut lines = csv.lines();
     assert_eq!(
         lines.next(),
-        Some("screenline,direction,class,interval_start,interval_end,count")
+        Some("screenline,direction,class,interval_start,interval_end,count,partial")
     );
-    assert!(csv.contains("deck,forward,cyclist,2026-03-02T08:00:30,2026-03-02T08:01:30,1"));
-    assert!(csv.contains("deck,backward,pedestrian,2026-03-02T08:01:30,2026-03-02T08:02:30,1"));
+    assert!(csv.contains("deck,forward,cyclist,2026-03-02T08:00:30,2026-03-02T08:01:30,1,no\n"));
+    assert!(csv.contains("deck,backward,pedestrian,2026-03-02T08:01:30,2026-03-02T08:02:30,1,no\n"));
     // 2 directions x 2 classes x 3 intervals, zeros included.
     assert_eq!(csv.lines().count(), 1 + 12);
+
+    // Footage that ends halfway through the third minute: that interval's rows say so, as the
+    // hand-in grids do (an 80-second count was read as a whole interval's in a newcomer's trial).
+    let r = run(
+        plan,
+        vec![track(
+            1,
+            "pedestrian",
+            &walk(1471, 30, 100.0, 150.0, 0.0, 4.0),
+        )],
+    );
+    let csv = counts_csv(&r);
+    assert!(
+        csv.contains("deck,forward,pedestrian,2026-03-02T08:01:30,2026-03-02T08:02:30,1,yes\n"),
+        "{csv}"
+    );
+    assert!(
+        csv.contains("deck,forward,pedestrian,2026-03-02T07:59:30,2026-03-02T08:00:30,0,no\n"),
+        "{csv}"
+    );
 }
 
 #[test]

@@ -80,7 +80,7 @@ fn count_the_demo(bin: &str) -> Result<(), String> {
     println!("\nThe bundled demo (a simulated footbridge plaza) was tracked and counted:");
     println!("  out/demo/report.json  counts by line, direction, class and interval, zones, movements, speeds, events");
     println!(
-        "  out/demo/counts.csv   screenline,direction,class,interval_start,interval_end,count"
+        "  out/demo/counts.csv   screenline,direction,class,interval_start,interval_end,count,partial"
     );
     println!("  out/demo/tracks.txt   the tracks (benchmark text)");
     Ok(())

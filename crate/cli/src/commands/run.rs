@@ -44,7 +44,7 @@ pub struct Args {
     /// Where to write the report (JSON); without it the report goes to standard output.
     #[arg(short, long, value_name = "REPORT")]
     output: Option<PathBuf>,
-    /// Also write the counts as CSV (screenline,direction,class,interval_start,interval_end,count).
+    /// Also write the counts as CSV (screenline,direction,class,interval_start,interval_end,count,partial).
     #[arg(long, value_name = "FILE")]
     csv: Option<PathBuf>,
     /// Also write the tracks, as counted (after --edits) (.txt: benchmark text; otherwise JSON).
