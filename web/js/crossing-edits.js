@@ -1,7 +1,8 @@
 // @ts-check
-// Corrections of the counts themselves: a counted crossing rejected (it is wrong: a double count, a
-// jitter), and a crossing the tool missed added by hand, on a line of the plan, in one of its
-// directions (named by its labels), for a class, at the frame shown. An added crossing sits where
+// Corrections of the counts themselves: a counted crossing (or a zone's entry or exit) rejected (it
+// is wrong: a double count, a jitter), and a crossing the tool missed added by hand, on a line of
+// the plan, in one of its directions (named by its labels), for a class, at the frame shown (and
+// likewise an entry or exit of a zone). An added crossing sits where
 // the track in focus meets the line, when a track is in focus there; otherwise the core puts it in
 // the middle of the line's first segment. Choosing a track offers its class and the way it moves
 // across the line.
@@ -16,15 +17,82 @@ import { forwardSide } from "./geometry.js";
 /** @typedef {import("./geometry.js").Point} Point */
 
 /**
- * The edit that rejects a counted crossing; null for what cannot be rejected (a zone's entry or
- * exit, a crossing added by hand: Undo takes that back).
+ * The edit that rejects a counted crossing, or a zone's counted entry or exit; null for what cannot
+ * be rejected (one added by hand: Undo takes that back).
  * @param {CountEvent | null} e
- * @returns {import("./edits.js").RejectEdit | null}
+ * @returns {import("./edits.js").RejectEdit | import("./edits.js").RejectZoneEdit | null}
  */
 export function rejectEdit(e) {
-  if (!e || e.kind !== "screenline" || e.added) return null;
+  if (!e || e.added) return null;
+  if (e.kind === "zone" && (e.direction === "entry" || e.direction === "exit")) {
+    return { edit: "reject_zone_event", zone: e.name, way: e.direction, track: e.track, frame: e.frame };
+  }
+  if (e.kind !== "screenline") return null;
   if (e.direction !== "forward" && e.direction !== "backward") return null;
   return { edit: "reject_crossing", screenline: e.name, direction: e.direction, track: e.track, frame: e.frame };
+}
+
+/**
+ * Adding an entry to or exit from a zone that the tool missed, at the frame shown, for a class
+ * (the class of the track in focus, when one is chosen). Shown when the plan has zones.
+ */
+export class AddZoneEventForm {
+  /** @param {PageStore} store */
+  constructor(store) {
+    this.store = store;
+    this.root = byId("add-zone-event", HTMLElement);
+    this.zone = byId("add-zone", HTMLSelectElement);
+    this.way = byId("add-zone-way", HTMLSelectElement);
+    this.cls = byId("add-zone-class", HTMLInputElement);
+    this.reason = byId("add-zone-reason", HTMLInputElement);
+    this.at = byId("add-zone-at", HTMLElement);
+    this.done = byId("add-zone-done", HTMLElement);
+    byId("add-zone-form", HTMLFormElement).addEventListener("submit", (e) => { e.preventDefault(); this.add(); });
+    /** @type {number | null} the track whose class the form last took */
+    this.followed = null;
+    store.subscribe(["plan"], () => this.offerZones());
+    store.subscribe(["frame"], () => this.showWhere());
+    store.subscribe(["focus"], () => this.followFocus());
+    this.offerZones();
+  }
+
+  /** The class of a track newly in focus (what the person has typed since stays). */
+  followFocus() {
+    const { focus, tracks } = this.store;
+    const id = focus && focus.tracks.length ? focus.tracks[0] : null;
+    if (id === null || id === this.followed || !tracks) return;
+    this.followed = id;
+    const cls = tracks.classes.get(id);
+    if (cls) this.cls.value = cls;
+  }
+
+  /** The plan's zones; the one chosen stays chosen while it is there. */
+  offerZones() {
+    const kept = this.zone.value;
+    const names = this.store.plan.zones.map((z) => z.name);
+    this.zone.replaceChildren(...names.map((n) => el("option", { value: n, text: n })));
+    if (names.includes(kept)) this.zone.value = kept;
+    this.root.hidden = names.length === 0;
+    this.showWhere();
+  }
+
+  showWhere() {
+    const f = this.store.frame;
+    this.at.textContent = `At frame ${f} (${clockText((f - 1) / this.store.fps)}), the frame shown; drawn in the middle of the zone.`;
+  }
+
+  add() {
+    const zone = this.zone.value;
+    const cls = this.cls.value.trim();
+    if (!zone) return void (this.done.textContent = "The plan has no zone to add an entry or exit to.");
+    if (!cls) return void (this.done.textContent = "Say who went in or out: a class, such as pedestrian.");
+    const way = this.way.value === "exit" ? "exit" : "entry";
+    /** @type {import("./edits.js").AddZoneEdit} */
+    const edit = { edit: "add_zone_event", zone, way, class: cls, frame: this.store.frame };
+    this.store.correctionMade(withReason(edit, this.reason.value));
+    this.reason.value = "";
+    this.done.textContent = `Added: ${way === "entry" ? "an entry to" : "an exit from"} ${zone}, a ${cls}, at frame ${edit.frame}. The counts include it.`;
+  }
 }
 
 export class AddCrossingForm {

@@ -5,6 +5,7 @@
 
 /** A track as the person saw it: its id and its first and last frame (1-based). @typedef {{id: number, frames: [number, number]}} TrackRef */
 /** Which way a crossing went, as the plan draws the line. @typedef {"forward" | "backward"} Way */
+/** Which way a zone was passed: in or out. @typedef {"entry" | "exit"} ZoneWay */
 /**
  * One correction (crate/core/src/edits/mod.rs, Edit). `reason` is left out when none was given.
  * @typedef {{edit: "merge_tracks", track: TrackRef, into: TrackRef, reason?: string}} MergeEdit
@@ -13,7 +14,9 @@
  * @typedef {{edit: "set_class", track: TrackRef, class: string, reason?: string}} ClassEdit
  * @typedef {{edit: "reject_crossing", screenline: string, direction: Way, track: number, frame: number, reason?: string}} RejectEdit
  * @typedef {{edit: "add_crossing", screenline: string, direction: Way, class: string, frame: number, x?: number, y?: number, reason?: string}} AddEdit
- * @typedef {MergeEdit | SplitEdit | DeleteEdit | ClassEdit | RejectEdit | AddEdit} Edit
+ * @typedef {{edit: "reject_zone_event", zone: string, way: ZoneWay, track: number, frame: number, reason?: string}} RejectZoneEdit
+ * @typedef {{edit: "add_zone_event", zone: string, way: ZoneWay, class: string, frame: number, reason?: string}} AddZoneEdit
+ * @typedef {MergeEdit | SplitEdit | DeleteEdit | ClassEdit | RejectEdit | AddEdit | RejectZoneEdit | AddZoneEdit} Edit
  */
 /** What became of an edit when the core applied it: `note` says what it did or why it could not. @typedef {{edit: Edit, applied: boolean, note: string}} Outcome */
 /** What the words need: a line's name for a direction, and frames to clock time. @typedef {{label: (line: string, way: Way) => string, clock: (frame: number) => string}} Wording */
@@ -113,6 +116,8 @@ export function editWords(e, w) {
     case "set_class": return `Track ${e.track.id} counted as ${e.class}`;
     case "reject_crossing": return `Crossing of ${e.screenline}, ${w.label(e.screenline, e.direction)}, by track ${e.track} at frame ${e.frame} (${w.clock(e.frame)}) not counted`;
     case "add_crossing": return `Crossing of ${e.screenline}, ${w.label(e.screenline, e.direction)}, by a ${e.class} added at frame ${e.frame} (${w.clock(e.frame)})`;
+    case "reject_zone_event": return `${e.way === "entry" ? "Entry to" : "Exit from"} ${e.zone} by track ${e.track} at frame ${e.frame} (${w.clock(e.frame)}) not counted`;
+    case "add_zone_event": return `${e.way === "entry" ? "Entry to" : "Exit from"} ${e.zone} by a ${e.class} added at frame ${e.frame} (${w.clock(e.frame)})`;
     default: return "A correction this page does not know";
   }
 }
@@ -136,8 +141,8 @@ export function outcomeOf(edits, outcomes, i) {
  */
 export function editTracks(e) {
   if (e.edit === "merge_tracks") return [e.into.id, e.track.id];
-  if (e.edit === "reject_crossing") return [e.track];
-  if (e.edit === "add_crossing") return [];
+  if (e.edit === "reject_crossing" || e.edit === "reject_zone_event") return [e.track];
+  if (e.edit === "add_crossing" || e.edit === "add_zone_event") return [];
   return [e.track.id];
 }
 
@@ -148,6 +153,6 @@ export function editTracks(e) {
 export function editFrame(e) {
   if (e.edit === "merge_tracks") return e.track.frames[0];
   if (e.edit === "split_track") return e.at_frame;
-  if (e.edit === "reject_crossing" || e.edit === "add_crossing") return e.frame;
+  if (e.edit === "reject_crossing" || e.edit === "add_crossing" || e.edit === "reject_zone_event" || e.edit === "add_zone_event") return e.frame;
   return e.track.frames[0];
 }

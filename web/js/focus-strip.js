@@ -88,7 +88,8 @@ export class FocusStrip {
     if (e.inferred) flags.push("counted while hidden");
     const glyph = directionGlyph(e);
     this.what.replaceChildren(...(glyph ? [glyph] : []), [eventTime(e), eventWhat(e), eventTracks(e), ...flags].join(" · "));
-    const reject = this.actions.canReject() ? this.button("Reject crossing", "R", "Reject this crossing", () => this.actions.reject()) : null;
+    const what = e.kind === "zone" ? e.direction : "crossing";
+    const reject = this.actions.canReject() ? this.button(`Reject ${what}`, "R", `Reject this ${what}`, () => this.actions.reject()) : null;
     this.buttons.replaceChildren(
       this.button("\u2039 Previous", "", "Previous event", () => this.actions.stepEvent(-1)),
       this.button("Next \u203A", "", "Next event", () => this.actions.stepEvent(1)),
@@ -120,15 +121,17 @@ export class FocusStrip {
   }
 
   /**
-   * Asks why a crossing is rejected (the answer may be blank), and, when `choices` are given (two
+   * Asks why a crossing (or a zone's entry or exit) is rejected (the answer may be blank), and, when `choices` are given (two
    * crossings close together), which one; `then` makes the correction with the reason and the
    * index of the choice.
    * @param {string} question
    * @param {(reason: string, chosen: number) => void} then
    * @param {string[]} [choices] each crossing in words; the last is chosen at first
+   * @param {string} [what] what is rejected: "crossing", "entry" or "exit"
    */
-  askReason(question, then, choices = []) {
+  askReason(question, then, choices = [], what = "crossing") {
     this.question.textContent = question;
+    byId("reject-submit", HTMLButtonElement).textContent = `Reject ${what}`;
     this.answer = then;
     this.reason.value = "";
     const which = byId("reject-which", HTMLFieldSetElement);

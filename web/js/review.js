@@ -12,7 +12,7 @@ import { DoubtList } from "./review-doubts.js";
 import { EditList, directionLabel } from "./review-edits.js";
 import { FocusStrip } from "./focus-strip.js";
 import { TrackActions, offerClasses } from "./track-edits.js";
-import { AddCrossingForm, rejectEdit } from "./crossing-edits.js";
+import { AddCrossingForm, AddZoneEventForm, rejectEdit } from "./crossing-edits.js";
 import { withReason, sameEdit, rejectionOf } from "./edits.js";
 
 /** @typedef {import("./store.js").PageStore} PageStore */
@@ -23,6 +23,7 @@ import { withReason, sameEdit, rejectionOf } from "./edits.js";
 /** @typedef {import("./protocol.js").TrackInfo} TrackInfo */
 /** @typedef {import("./protocol.js").Doubt} Doubt */
 /** @typedef {import("./edits.js").RejectEdit} RejectEdit */
+/** @typedef {import("./edits.js").RejectZoneEdit} RejectZoneEdit */
 
 export class Review {
   /**
@@ -48,6 +49,7 @@ export class Review {
     new TrackActions(store, byId("focus-track-actions", HTMLElement));
     new TrackActions(store, byId("tracks-correct", HTMLElement), " (Tracks list)");
     new AddCrossingForm(store);
+    new AddZoneEventForm(store);
     const classes = byId("class-choices", HTMLDataListElement);
     store.subscribe(["detections", "tracks"], () => offerClasses(store, classes));
     store.subscribe(["results"], () => { byId("review-empty", HTMLElement).hidden = Boolean(store.results); });
@@ -114,8 +116,8 @@ export class Review {
 
   /**
    * The crossing in focus that a Reject would take out of the counts: the doubtful moment's
-   * crossing, or the count event chosen.
-   * @returns {RejectEdit | null}
+   * crossing, or the count event chosen (a crossing, or a zone's entry or exit).
+   * @returns {RejectEdit | RejectZoneEdit | null}
    */
   rejectable() {
     const focus = this.store.focus;
@@ -126,7 +128,7 @@ export class Review {
     return rejectEdit(focus.event);
   }
 
-  /** The count is wrong: its crossing is rejected (with a reason, if the person gives one). */
+  /** The count is wrong: its crossing (or entry or exit) is rejected (with a reason, if the person gives one). */
   reject() {
     const focus = this.store.focus;
     if (!focus) return;
@@ -139,31 +141,38 @@ export class Review {
       return;
     }
     const mark = d ? { key: d.key, decision: /** @type {const} */ ("rejected") } : null;
+    const what = edit.edit === "reject_zone_event" ? edit.way : "crossing";
     if (this.store.work.edits.some((e) => sameEdit(e, edit) || sameEdit({ ...e, reason: undefined }, edit))) {
       if (mark) this.store.doubtDecided(mark.key, mark.decision);
-      return this.strip.say("That crossing is rejected already.");
+      return this.strip.say(`That ${what} is rejected already.`);
     }
     // Two crossings close together: either may be the one counted twice (they can differ in
     // class); the person chooses, the later one first.
     const other = d ? rejectionOf(d.close_to) : null;
+    /** @type {(RejectEdit | RejectZoneEdit)[]} */
     const edits = other ? [other, edit] : [edit];
-    const said = (/** @type {RejectEdit} */ e) => `${e.screenline}, ${directionLabel(this.store, e.screenline, e.direction)}, by track ${e.track} at frame ${e.frame}${classOf(this.store, e)}`;
+    const said = (/** @type {RejectEdit | RejectZoneEdit} */ e) => e.edit === "reject_zone_event"
+      ? `the ${e.way} ${e.way === "entry" ? "to" : "from"} ${e.zone} by track ${e.track} at frame ${e.frame}${classOf(this.store, e)}`
+      : `${e.screenline}, ${directionLabel(this.store, e.screenline, e.direction)}, by track ${e.track} at frame ${e.frame}${classOf(this.store, e)}`;
     const words = other
       ? "Reject one of the two crossings: it will not be counted. Why (optional)?"
-      : `Reject the crossing of ${said(edit)}: it will not be counted. Why (optional)?`;
+      : edit.edit === "reject_zone_event"
+        ? `Reject ${said(edit)}: it will not be counted. Why (optional)?`
+        : `Reject the crossing of ${said(edit)}: it will not be counted. Why (optional)?`;
     this.strip.askReason(words, (reason, chosen) => {
       this.store.correctionMade(withReason(edits[chosen] || edit, reason), mark);
       this.strip.say("Rejected: the counts no longer include it. Undo (Ctrl+Z) takes it back.");
-    }, other ? edits.map(said) : []);
+    }, other ? edits.map(said) : [], what);
   }
 }
 
 /**
- * " (cyclist)": the class of the counted crossing an edit names, when the report has it.
+ * " (cyclist)": the class of the counted crossing (or entry or exit) an edit names, when the report has it.
  * @param {PageStore} store
- * @param {RejectEdit} e
+ * @param {RejectEdit | RejectZoneEdit} e
  */
 function classOf(store, e) {
-  const found = store.results ? store.results.report.events.find((x) => x.kind === "screenline" && x.name === e.screenline && x.track === e.track && x.frame === e.frame) : null;
+  const [kind, name] = e.edit === "reject_zone_event" ? ["zone", e.zone] : ["screenline", e.screenline];
+  const found = store.results ? store.results.report.events.find((x) => x.kind === kind && x.name === name && x.track === e.track && x.frame === e.frame) : null;
   return found && found.class ? ` (${found.class})` : "";
 }

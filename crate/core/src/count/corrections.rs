@@ -1,11 +1,13 @@
 //! The person's corrections to the counts: a rejected crossing leaves the events (kept apart, with
 //! its reason), an added one joins them. Applied to the screenline events before they are tallied,
-//! so every total, interval and peak hour follows.
+//! so every total, interval and peak hour follows; a zone's entries and exits, to the zone's
+//! tally (`zone_corrections`).
 
 use super::timeline::Timeline;
+use super::zone_corrections;
 use crate::edits::{Edit, Outcome, Way};
 use crate::plan::{Plan, Screenline};
-use crate::report::{Direction, Event, EventKind};
+use crate::report::{Direction, Event, EventKind, ZoneReport};
 
 /// The events after the corrections, the rejected events, and an outcome for each edit on counts
 /// (`None` for the edits on tracks).
@@ -14,8 +16,10 @@ pub(super) struct Corrected {
     pub outcomes: Vec<Option<Outcome>>,
 }
 
+/// Applies the edits on counts, in order, to the events (crossings, entries and exits) and to the
+/// zones' tallies (`zones`; the lines are tallied from the events after).
 pub(super) fn correct(
-    events: &mut Vec<Event>,
+    (events, zones): (&mut Vec<Event>, &mut [ZoneReport]),
     edits: &[Edit],
     plan: &Plan,
     timeline: &Timeline,
@@ -27,6 +31,12 @@ pub(super) fn correct(
             let result = match edit {
                 Edit::RejectCrossing { .. } => reject(events, edit, plan, &mut rejected),
                 Edit::AddCrossing { .. } => add(events, edit, plan, timeline),
+                Edit::RejectZoneEvent { .. } => {
+                    zone_corrections::reject(events, zones, edit, plan, (timeline, &mut rejected))
+                }
+                Edit::AddZoneEvent { .. } => {
+                    zone_corrections::add(events, zones, edit, plan, timeline)
+                }
                 _ => return None,
             };
             Some(Outcome {

@@ -23,6 +23,7 @@ mod speeds;
 mod stats;
 mod timeline;
 mod visits;
+mod zone_corrections;
 mod zones;
 
 pub use paths::{counted_path, CountedPoint, UNCLASSIFIED};
@@ -31,7 +32,7 @@ pub use stats::{peak_hour, percentile, HourRun};
 use crate::edits::{Edit, Outcome};
 use crate::error::Error;
 use crate::plan::Plan;
-use crate::report::{Event, Report, CAUTION, FORMAT, VERSION};
+use crate::report::{Event, EventKind, Report, ZoneReport, CAUTION, FORMAT, VERSION};
 use crate::track::{TrackerConfig, Tracks};
 use std::collections::BTreeMap;
 use timeline::Timeline;
@@ -66,23 +67,8 @@ pub fn corrected(
         .iter()
         .flat_map(|line| lines::line_events(line, &counted, &timeline, &plan.spec))
         .collect();
-    let fixes = corrections::correct(&mut events, edits, plan, &timeline);
-    let screenlines = plan
-        .screenlines
-        .iter()
-        .map(|line| {
-            let mine: Vec<&Event> = events.iter().filter(|e| e.name == line.name).collect();
-            let added = mine.iter().filter(|e| e.added).count() as u64;
-            let rejected = fixes
-                .rejected
-                .iter()
-                .filter(|e| e.name == line.name)
-                .count() as u64;
-            lines::tally(line, &mine, (added, rejected), &timeline, &plan.spec)
-        })
-        .collect();
     let mut zone_meetings = vec![Vec::new(); counted.len()];
-    let zones = plan
+    let mut zones: Vec<ZoneReport> = plan
         .zones
         .iter()
         .map(|zone| {
@@ -92,6 +78,22 @@ pub fn corrected(
                 zone_meetings[ci].push((seconds, zone.name.clone()));
             }
             tally.report
+        })
+        .collect();
+    let fixes = corrections::correct((&mut events, &mut zones), edits, plan, &timeline);
+    let on_line = |e: &&Event, line: &str| e.kind == EventKind::Screenline && e.name == line;
+    let screenlines = plan
+        .screenlines
+        .iter()
+        .map(|line| {
+            let mine: Vec<&Event> = events.iter().filter(|e| on_line(e, &line.name)).collect();
+            let added = mine.iter().filter(|e| e.added).count() as u64;
+            let rejected = fixes
+                .rejected
+                .iter()
+                .filter(|e| on_line(e, &line.name))
+                .count() as u64;
+            lines::tally(line, &mine, (added, rejected), &timeline, &plan.spec)
         })
         .collect();
     let (movements, single) = movements::movements(&counted, zone_meetings, &events);

@@ -107,6 +107,8 @@ fn empty_report(zone: &Zone, timeline: &Timeline) -> ZoneReport {
             })
             .collect(),
         dwell_seconds: summary(Vec::new()),
+        added: 0,
+        rejected: 0,
     }
 }
 

@@ -1,8 +1,8 @@
 //! Corrections a person makes after looking at the footage, as a readable list that the page
 //! writes and the command line replays (`throughline run --edits FILE`), so both give the same
 //! report. Edits on tracks (merge, split, delete, reclassify) apply before counting
-//! ([`apply_to_tracks`]); edits on counts (reject a crossing, add a missed one) apply to the events
-//! (`count`). Edits apply in order; one that no longer fits the tracks or counts (tracks renumbered
+//! ([`apply_to_tracks`]); edits on counts (reject a crossing or a zone's entry or exit, add a missed
+//! one) apply to the events (`count`). Edits apply in order; one that no longer fits the tracks or counts (tracks renumbered
 //! after a settings change, say) is not applied and the report says why.
 //!
 //! A track is named by its id and, to tell a renumbered track apart, its first and last frame
@@ -37,6 +37,14 @@ pub struct TrackRef {
 pub enum Way {
     Forward,
     Backward,
+}
+
+/// Which way a zone was passed: in (an entry) or out (an exit).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize, JsonSchema)]
+#[serde(rename_all = "lowercase")]
+pub enum ZoneWay {
+    Entry,
+    Exit,
 }
 
 /// One correction.
@@ -97,12 +105,37 @@ pub enum Edit {
         #[serde(default, skip_serializing_if = "Option::is_none")]
         reason: Option<String>,
     },
+    /// A counted entry to or exit from a zone that is wrong: the `way` (entry or exit) of `zone`
+    /// by counted track `track` (its first id) at `frame` is not counted.
+    RejectZoneEvent {
+        zone: String,
+        way: ZoneWay,
+        track: u32,
+        frame: u32,
+        #[serde(default, skip_serializing_if = "Option::is_none")]
+        reason: Option<String>,
+    },
+    /// An entry or exit the tool missed, counted as the person saw it, at `frame`.
+    AddZoneEvent {
+        zone: String,
+        way: ZoneWay,
+        class: String,
+        frame: u32,
+        #[serde(default, skip_serializing_if = "Option::is_none")]
+        reason: Option<String>,
+    },
 }
 
 impl Edit {
     /// Whether it applies to the events rather than to the tracks.
     pub fn is_on_counts(&self) -> bool {
-        matches!(self, Edit::RejectCrossing { .. } | Edit::AddCrossing { .. })
+        matches!(
+            self,
+            Edit::RejectCrossing { .. }
+                | Edit::AddCrossing { .. }
+                | Edit::RejectZoneEvent { .. }
+                | Edit::AddZoneEvent { .. }
+        )
     }
 }
 
@@ -164,7 +197,10 @@ impl EditList {
 /// What serde cannot say of a list of edits: a class named must not be blank.
 pub(crate) fn check(edits: &[Edit]) -> Result<(), Error> {
     for (i, e) in edits.iter().enumerate() {
-        if let Edit::SetClass { class, .. } | Edit::AddCrossing { class, .. } = e {
+        if let Edit::SetClass { class, .. }
+        | Edit::AddCrossing { class, .. }
+        | Edit::AddZoneEvent { class, .. } = e
+        {
             if class.trim().is_empty() {
                 return Err(Error::new(
                     ErrorKind::BadJson,

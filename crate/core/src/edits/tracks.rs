@@ -83,7 +83,10 @@ fn apply(
             t.class_votes.clear();
             format!("track {} is now {class}", track.id)
         }
-        Edit::RejectCrossing { .. } | Edit::AddCrossing { .. } => String::new(),
+        Edit::RejectCrossing { .. }
+        | Edit::AddCrossing { .. }
+        | Edit::RejectZoneEvent { .. }
+        | Edit::AddZoneEvent { .. } => String::new(),
     };
     Ok((note, None))
 }

@@ -93,13 +93,27 @@ fn totals(h: &mut String, report: &Report) {
     }
     h.push_str("</table>\n");
     for z in &report.zones {
+        // Tracks first seen inside are not people there at the start: a person hidden and found
+        // again inside is one too (a newcomer's trial: "31 inside when the footage starts" where
+        // two were, and never more than six at once).
+        let most = z
+            .intervals
+            .iter()
+            .map(|i| i.max_occupancy)
+            .max()
+            .unwrap_or(0);
         let _ = writeln!(
             h,
-            "<p>Zone {}: {} entries, {} exits ({} inside when the footage starts, {} when it ends).</p>",
+            "<p>Zone {}: {} {}, {} {}; at most {most} inside at once. {} {} first seen inside \
+             (there when the footage starts, or found inside after being hidden: no entry counted), \
+             {} last seen inside (no exit counted).</p>",
             esc(&z.name),
             z.entries,
+            if z.entries == 1 { "entry" } else { "entries" },
             z.exits,
+            if z.exits == 1 { "exit" } else { "exits" },
             z.present_at_start,
+            if z.present_at_start == 1 { "track was" } else { "tracks were" },
             z.present_at_end
         );
     }
@@ -175,9 +189,18 @@ fn checks(h: &mut String, report: &Report) {
     } else {
         "crossings"
     };
+    let zone_rejected: u64 = report.zones.iter().map(|z| z.rejected).sum();
+    let zone_added: u64 = report.zones.iter().map(|z| z.added).sum();
+    let zones = if zone_rejected + zone_added > 0 {
+        format!(
+            "; {zone_rejected} counted zone entries or exits rejected, {zone_added} added by hand"
+        )
+    } else {
+        String::new()
+    };
     let _ = writeln!(
         h,
-        "<p>Corrections after looking at the footage: {applied} applied ({} not applicable); {rejected} counted {crossings} rejected, {added} added by hand.</p>",
+        "<p>Corrections after looking at the footage: {applied} applied ({} not applicable); {rejected} counted {crossings} rejected, {added} added by hand{zones}.</p>",
         report.edits.len() - applied
     );
     match &report.correction {

@@ -190,6 +190,11 @@ pub struct ZoneReport {
     pub intervals: Vec<ZoneInterval>,
     /// Seconds inside per visit, over visits with both an entry and an exit.
     pub dwell_seconds: Summary,
+    /// Entries and exits a person added, and counted ones a person rejected (not in the totals).
+    #[serde(default, skip_serializing_if = "is_zero")]
+    pub added: u64,
+    #[serde(default, skip_serializing_if = "is_zero")]
+    pub rejected: u64,
 }
 
 /// Origin → destination counts: origin is the first screenline or zone a track meets, destination
