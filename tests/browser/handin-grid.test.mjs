@@ -82,7 +82,14 @@ test("grid and movements: downloads equal the command line's, copies paste as th
   const columns = 2 + 10 + 3;
   assert.deepEqual(table.map((r) => r.length), [columns, columns, columns]);
   assert.deepEqual([table[1][0], table[2][0]], ["2026-03-02T07:00:00", "Total"]);
-  assert.match(await page.locator("#grid-copied").innerText(), /Copied: 15 rows, up to 15 cells each/);
+  // Then the kiosk zone's entries and exits per interval (a newcomer's trial: a zone's counts
+  // reached no file handed in).
+  const zones = pastedCells(tab).slice(16);
+  assert.deepEqual(zones.map((r) => r[0]), ["Zones: entries and exits per interval (all classes)", "Interval start", "2026-03-02T07:00:00", "Total"]);
+  assert.deepEqual(zones[1], ["Interval start", "Interval end", "kiosk entries", "kiosk exits", "Note"]);
+  assert.match(await page.locator("#grid-copied").innerText(), /Copied: 20 rows, up to 15 cells each/);
+  assert.deepEqual(await page.locator("#grid-view h4").allInnerTexts(), ["Zones: entries and exits per interval (all classes)"]);
+  assert.match(await page.locator("#grid-view table").nth(1).innerText(), /kiosk entries\s+kiosk exits/);
 
   await page.getByLabel("Layout").selectOption("long");
   const long = await downloadText(page, "Download grid CSV", scratch);
@@ -141,15 +148,15 @@ test("an hour and more of intervals: the peak hour and its factor are marked, an
   await page.getByLabel("Frame rate (fps)").press("Tab");
   await run(page);
   await handIn(page);
-  await page.waitForFunction(() => document.querySelectorAll("#grid-view tbody tr").length === 6);
-  const shown = await page.locator("#grid-view tbody tr").evaluateAll((trs) => trs.map((tr) => [tr.className, tr.cells[0].textContent]));
+  await page.waitForFunction(() => document.querySelectorAll("#grid-view table")[0]?.querySelectorAll("tbody tr").length === 6);
+  const shown = await page.locator("#grid-view table").first().locator("tbody tr").evaluateAll((trs) => trs.map((tr) => [tr.className, tr.cells[0].textContent]));
   assert.deepEqual(shown.map(([c]) => c), ["peak", "peak", "peak", "peak", "", "total"], "four whole intervals make the peak hour");
   const notes = await page.locator("#grid-view .peak-note").allInnerTexts();
   assert.match(notes[0], /^Peak hour \(all lines\): 2026-03-02T07:00:00 to 2026-03-02T08:00:00, \d+$/);
   assert.match(notes[1], /^Peak hour factor: 0\.\d{3}, busiest interval \d+$/);
   // The grid (15 columns) is wider than the panel on a laptop: a line under it says it scrolls.
   await page.locator("#grid-view").scrollIntoViewIfNeeded();
-  const wide = page.locator("#grid-view .wide-note");
+  const wide = page.locator("#grid-view .wide-note").first();
   await wide.waitFor({ state: "visible" });
   assert.match(await wide.innerText(), /^\u2194 \d+ columns, more than the panel shows: scroll the table sideways/);
   assert.equal(await page.locator("#matrix-view .wide-note").first().isHidden(), true, "the movements table fits: no such line");

@@ -101,9 +101,36 @@ export function gridView(tab) {
   if (!table) return head ? [headerBlock(head)] : [];
   const long = table[0][0] === "interval_start";
   const mark = long ? { column: "peak_hour", value: "yes" } : { column: "Peak hour", value: "peak" };
-  const out = [headerBlock(head), sheetTable(table, mark, "Counts per interval")];
-  for (const rows of notes) for (const r of rows) out.push(el("p", { class: "peak-note" }, [el("strong", { text: `${r[0]}: ` }), r.slice(1).filter(Boolean).join(", ")]));
+  // A plan of zones only: the zones' block comes straight after the header.
+  const zonesOnly = isZones(table);
+  const out = [headerBlock(head), ...(zonesOnly ? zonesTable(table) : [sheetTable(table, mark, "Counts per interval")])];
+  for (const rows of notes) {
+    if (isZones(rows)) {
+      out.push(...zonesTable(rows));
+      continue;
+    }
+    for (const r of rows) out.push(el("p", { class: "peak-note" }, [el("strong", { text: `${r[0]}: ` }), r.slice(1).filter(Boolean).join(", ")]));
+  }
   return out;
+}
+
+/**
+ * Whether a block of the grid is the zones' entries and exits (crate/core/src/handin/zone_grid.rs,
+ * its title row).
+ * @param {string[][]} rows
+ */
+function isZones(rows) {
+  return rows.length > 1 && rows[0].length === 1 && rows[0][0].startsWith("Zones: entries and exits");
+}
+
+/**
+ * The zones' block as a heading and a table.
+ * @param {string[][]} rows its title row, then the table
+ * @returns {HTMLElement[]}
+ */
+function zonesTable(rows) {
+  const [title, ...table] = rows;
+  return [el("h4", { text: title[0] }), sheetTable(table, null, title[0])];
 }
 
 /**

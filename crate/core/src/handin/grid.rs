@@ -1,7 +1,7 @@
 //! The interval grid a count is handed in as: one row per interval (the recording's clock time),
 //! one column per line × direction × class, row and column totals, and the peak hour of the grid's
 //! total with its peak hour factor marked. Or, for spreadsheet users who pivot, one row per
-//! interval, line, direction and class.
+//! interval, line, direction and class. The zones' entries and exits follow (`zone_grid`).
 
 use super::table::{header, row, Separator};
 use super::{header_block, Context};
@@ -224,19 +224,24 @@ fn note(iv: &crate::report::IntervalCount) -> &'static str {
 pub fn interval_grid(report: &Report, ctx: &Context, layout: GridLayout, sep: Separator) -> String {
     let mut out = String::new();
     header(&mut out, sep, &header_block(report, ctx));
-    let Some(grid) = Grid::of(report) else {
-        row(
-            &mut out,
-            sep,
-            &["The plan has no screenlines: nothing to tabulate.".into()],
-        );
-        return out;
-    };
-    match layout {
-        GridLayout::Wide => grid.wide(&mut out, sep),
-        GridLayout::Long => grid.long(&mut out, sep, report),
+    match Grid::of(report) {
+        Some(grid) => {
+            match layout {
+                GridLayout::Wide => grid.wide(&mut out, sep),
+                GridLayout::Long => grid.long(&mut out, sep, report),
+            }
+            out.push('\n');
+            grid.peak_rows(&mut out, sep);
+        }
+        // A plan of zones only: their block alone (a footfall count in and out of an area).
+        None if !report.zones.is_empty() => {}
+        None => {
+            let why = "The plan has no lines or zones: nothing to tabulate.";
+            row(&mut out, sep, &[why.into()]);
+            return out;
+        }
     }
-    out.push('\n');
-    grid.peak_rows(&mut out, sep);
+    let wide = layout == GridLayout::Wide;
+    super::zone_grid::zones_block(&mut out, report, wide, sep);
     out
 }

@@ -10,12 +10,14 @@ mod said;
 mod sketch;
 mod summary;
 mod table;
+mod zone_grid;
 
 pub use grid::{interval_grid, GridLayout};
 pub use matrix::movement_matrix;
 pub use said::{frame_rate_warning, past_footage_warning, InputNote};
 pub use summary::summary_html;
 pub use table::Separator;
+pub use zone_grid::ZONES_TITLE;
 
 use crate::edits::EditList;
 use crate::fingerprint::{sha256_hex, Fingerprint};
@@ -256,18 +258,28 @@ fn header_block(report: &Report, ctx: &Context) -> Vec<(String, String)> {
 /// so a count of part of an interval is not read as a whole one (a flow rate worked out from it
 /// would be too low). `None` when every interval is whole.
 pub(super) fn partial_note(report: &Report) -> Option<String> {
-    let iv = report.screenlines.first()?.intervals.last()?;
-    if !iv.partial {
+    // The lines' intervals, else (a plan of zones only) the zones'.
+    let (n, start, end) = match (report.screenlines.first(), report.zones.first()) {
+        (Some(l), _) => l
+            .intervals
+            .last()
+            .map(|iv| (l.intervals.len(), &iv.start, &iv.end))?,
+        (None, Some(z)) => z
+            .intervals
+            .last()
+            .map(|iv| (z.intervals.len(), &iv.start, &iv.end))?,
+        (None, None) => return None,
+    };
+    if !zone_grid::partial(report, n - 1) {
         return None;
     }
     let whole = report.plan.interval_minutes * 60.0;
-    let covered =
-        report.duration_seconds - whole * (report.screenlines[0].intervals.len() - 1) as f64;
+    let covered = report.duration_seconds - whole * (n - 1) as f64;
     Some(format!(
         "{} to {} covers only {:.1} of its {} minutes (the footage ends inside it): its counts are \
          of that part, not of a whole interval",
-        iv.start,
-        iv.end,
+        start,
+        end,
         covered.max(0.0) / 60.0,
         report.plan.interval_minutes
     ))
