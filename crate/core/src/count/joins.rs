@@ -1,5 +1,5 @@
-//! Stage 2: fragments of one object, broken near a screenline, joined into one counted track before
-//! counting: the pairs of an ended and a new track that qualify (docs/counting-rules.md, "Fragments
+//! Stage 2: fragments of one object, broken near a screenline or a zone's edge (or inside a zone),
+//! joined into one counted track before counting: the pairs of an ended and a new track that qualify (docs/counting-rules.md, "Fragments
 //! joined"), taken nearest first, each end used once, chained.
 
 use super::paths::{distance_to_line, Counted, PathPoint, UNCLASSIFIED};
@@ -27,20 +27,22 @@ pub(super) fn join_fragments(
     let mut joins = Vec::new();
     let rules = plan.spec.rules;
     let max_gap = (rules.join_seconds * plan.spec.frame_rate).round() as u32;
-    let mut counted =
-        if max_gap == 0 || plan.screenlines.is_empty() || rules.join_box_heights == 0.0 {
-            pieces
-        } else {
-            pieces.sort_by_key(|c| (c.points[0].frame, c.ids[0]));
-            let family = |k: usize| split_from.get(&pieces[k].ids[0]);
-            let mut candidates = candidates(&pieces, plan, max_gap);
-            candidates.retain(|c| match (family(c.earlier), family(c.later)) {
-                (Some(a), Some(b)) => a != b,
-                _ => true,
-            });
-            let next = link(&pieces, candidates, &mut joins);
-            merge_chains(&pieces, &next)
-        };
+    let mut counted = if max_gap == 0
+        || (plan.screenlines.is_empty() && plan.zones.is_empty())
+        || rules.join_box_heights == 0.0
+    {
+        pieces
+    } else {
+        pieces.sort_by_key(|c| (c.points[0].frame, c.ids[0]));
+        let family = |k: usize| split_from.get(&pieces[k].ids[0]);
+        let mut candidates = candidates(&pieces, plan, max_gap);
+        candidates.retain(|c| match (family(c.earlier), family(c.later)) {
+            (Some(a), Some(b)) => a != b,
+            _ => true,
+        });
+        let next = link(&pieces, candidates, &mut joins);
+        merge_chains(&pieces, &next)
+    };
     counted.sort_by_key(|c| c.ids[0]);
     (counted, joins)
 }
@@ -90,7 +92,15 @@ fn candidates(pieces: &[Counted], plan: &Plan, max_gap: u32) -> Vec<Candidate> {
                     .any(|s| s.intersect_param(&bridge.a, &bridge.b).is_some())
                     || distance_to_line(l, &first.p) <= limit
             });
-            if near_line {
+            // A zone's edge likewise, or a gap inside a zone (a person hidden there: their
+            // visit is one, not a "last seen inside" and a "first seen inside").
+            let near_zone = plan.zones.iter().any(|z| {
+                let inside = z.polygon.contains(&last.p) && z.polygon.contains(&first.p);
+                inside
+                    || crosses_edge(&z.polygon, &bridge)
+                    || z.polygon.distance_to_edge(&first.p) <= limit
+            });
+            if near_line || near_zone {
                 out.push(Candidate {
                     distance,
                     earlier: i,
@@ -106,6 +116,16 @@ fn candidates(pieces: &[Counted], plan: &Plan, max_gap: u32) -> Vec<Candidate> {
             .then((x.earlier, x.later).cmp(&(y.earlier, y.later)))
     });
     out
+}
+
+/// Whether the segment crosses an edge of the polygon.
+fn crosses_edge(polygon: &crate::geometry::Polygon, bridge: &Segment) -> bool {
+    let c = &polygon.corners;
+    (0..c.len()).any(|k| {
+        Segment::new(c[k], c[(k + 1) % c.len()])
+            .intersect_param(&bridge.a, &bridge.b)
+            .is_some()
+    })
 }
 
 /// Takes candidates nearest first while each piece has at most one successor and one
