@@ -86,6 +86,13 @@ document.body.dataset.ready = "true";
 function sayOwnPlanKept() {
   const demoAgain = el("button", { type: "button", text: "Open the demo", onclick: () => { messages.clear("own-plan-kept"); demo.open(true); } });
   messages.say("own-plan-kept", "ok", "Your plan is kept from last time (this browser keeps it for this address). Open your footage and detections again under Set up, Files, to go on, or open the bundled demo instead:", [demoAgain]);
+  // Out of date once detections are open again (a newcomer's trial: it stayed after the files were
+  // open and Run done, and on a phone pushed the tabs down).
+  const stop = store.subscribe(["detections"], () => {
+    if (!store.detections) return;
+    messages.clear("own-plan-kept");
+    stop();
+  });
 }
 
 /** After a reload: the corrections, decisions and hand counts are back, and wait for tracks to apply to. */
@@ -99,6 +106,12 @@ function sayWorkKept() {
   const run = el("button", { type: "button", text: "Run now", onclick: () => { messages.clear("work-kept"); byId("run", HTMLButtonElement).click(); } });
   const open = store.detections ? "Press Run to track again" : "Open the same detections (and footage), then press Run";
   messages.say("work-kept", "ok", `Your ${what} are kept from last time. ${open}: they are applied to the new tracks.`, store.detections ? [run] : []);
+  // Out of date once the work is applied to new tracks' counts.
+  const stop = store.subscribe(["results"], () => {
+    if (!store.results) return;
+    messages.clear("work-kept");
+    stop();
+  });
 }
 
 /** After a reload in the middle of a hand count: it goes on, its presses kept. */
