@@ -122,7 +122,27 @@ pub fn read_plan(path: &Path) -> Result<plan::Plan, Failure> {
     let bytes = read_file(path)?;
     let text =
         std::str::from_utf8(&bytes).map_err(|_| bad_input(path, "the plan is not UTF-8 text"))?;
-    plan::Plan::from_json(text).map_err(|e| bad_input(path, e))
+    plan::Plan::from_json(text).or_else(|e| {
+        // A project file saved by the page holds the plan: it is used, and said (a newcomer's
+        // trial: "unknown field `format`" for the project given as the plan).
+        let Ok(project) = throughline_core::project::Project::from_json(text) else {
+            return Err(bad_input(path, e));
+        };
+        let plan = plan::Plan::from_spec(project.plan).map_err(|e| bad_input(path, e))?;
+        eprintln!(
+            "note: {} is a project file: the plan it holds is used{}",
+            file_name(path),
+            if project.edits.is_empty() {
+                String::new()
+            } else {
+                format!(
+                    "; its corrections ({}) apply only when it is also given with --edits",
+                    project.edits.len()
+                )
+            }
+        );
+        Ok(plan)
+    })
 }
 
 /// Whether a file's first non-blank byte opens a JSON object (a tracks document or a report).

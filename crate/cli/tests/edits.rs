@@ -164,6 +164,19 @@ fn a_projects_method_and_settings_are_used_unless_the_command_line_names_its_own
         queue(&["--edits", &project]),
         queue(&["--config", &settings])
     );
+    // The project given as the plan: the plan it holds is used, and said (a newcomer's trial:
+    // "unknown field `format`").
+    let o = throughline(&["run", &dets, "--plan", &project, "--edits", &project]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    assert!(
+        stderr(&o).contains("note: project.json is a project file: the plan it holds is used"),
+        "{}",
+        stderr(&o)
+    );
+    assert_eq!(
+        o.stdout,
+        throughline(&["run", &dets, "--plan", &plan, "--edits", &project]).stdout
+    );
 }
 
 /// The counts of each line and direction in a report.
