@@ -88,7 +88,7 @@
  * @typedef {{stem: string, wide: SheetText, long: SheetText, matrix: SheetText}} HandIn
  */
 
-/** @typedef {"short_track" | "at_track_end" | "joined_track" | "close_together" | "hidden" | "barely_seen" | "starts_near_line" | "ends_near_line" | "on_line_at_footage_edge" | "class_changes"} DoubtKind */
+/** @typedef {"short_track" | "at_track_end" | "joined_track" | "close_together" | "hidden" | "barely_seen" | "starts_near_line" | "ends_near_line" | "on_line_at_footage_edge" | "class_changes" | "starts_inside_zone" | "ends_inside_zone"} DoubtKind */
 
 /**
  * Tracks for drawing: `boxes` holds 7 values per box (frame 1-based, id, x, y, w, h in pixels

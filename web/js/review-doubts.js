@@ -25,6 +25,8 @@ export const DOUBT_WORDS = {
   ends_near_line: "vanishes near a line",
   on_line_at_footage_edge: "on a line as the footage starts or ends",
   class_changes: "class changes",
+  starts_inside_zone: "appears inside a zone",
+  ends_inside_zone: "vanishes inside a zone",
 };
 
 /**

@@ -377,3 +377,51 @@ fn a_track_on_a_line_as_the_footage_starts_and_leaving_it_is_doubted() {
         .any(|d| d.why[0].contains("is on `rail` as the footage starts"));
     assert!(on_rail, "{q:#?}");
 }
+
+/// A track that appears inside a zone and one that vanishes inside it, away from the picture's
+/// edge and from the footage's first and last second, are sent to be checked: each is a
+/// "first (last) seen inside" with no entry (exit) counted (a newcomer's trial: a plan of a zone
+/// alone found "nothing doubtful" though 35 tracks appeared inside a zone that never held six). A
+/// walk through the zone from edge to edge, and two pieces of one walk joined inside it, are not.
+#[test]
+fn tracks_that_appear_or_vanish_inside_a_zone_are_doubted_and_whole_visits_are_not() {
+    let plan = r#"{"frame_rate": 10, "zones": [{"name": "kiosk", "polygon": [[100, 100], [300, 100], [300, 300], [100, 300]]}],
+        "rules": {"join_seconds": 0}}"#;
+    let q = queue_with(
+        plan,
+        vec![
+            walk(1, 20, 70, (200.0, 150.0), (0.0, 4.0), 0.9), // appears at y 150, inside; leaves at the bottom
+            walk(2, 1, 40, (150.0, 50.0), (0.0, 4.0), 0.9), // from the top edge, vanishes at y 206, inside
+            walk(3, 1, 90, (250.0, 50.0), (0.0, 4.0), 0.9), // through it, edge to edge
+        ],
+    );
+    let found: Vec<(DoubtKind, Vec<u32>)> =
+        q.iter().map(|d| (d.kinds[0], d.tracks.clone())).collect();
+    assert_eq!(
+        found,
+        vec![
+            (DoubtKind::StartsInsideZone, vec![1]),
+            (DoubtKind::EndsInsideZone, vec![2])
+        ],
+        "{q:#?}"
+    );
+    assert!(
+        q[0].why[0].contains("inside `kiosk`, not at the picture's edge"),
+        "{:?}",
+        q[0].why
+    );
+    // Joined inside the zone by the counting (one visit): nothing to check.
+    let joined = r#"{"frame_rate": 10, "zones": [{"name": "kiosk", "polygon": [[100, 100], [300, 100], [300, 300], [100, 300]]}]}"#;
+    let q = queue_with(
+        joined,
+        vec![
+            walk(1, 1, 38, (200.0, 50.0), (0.0, 4.0), 0.9),
+            walk(2, 44, 46, (200.0, 222.0), (0.0, 4.0), 0.9),
+        ],
+    );
+    assert!(
+        q.iter()
+            .all(|d| !d.kinds.contains(&DoubtKind::StartsInsideZone)),
+        "{q:#?}"
+    );
+}

@@ -15,6 +15,7 @@ use schemars::JsonSchema;
 use serde::Serialize;
 
 mod signs;
+mod zones;
 use signs::{class_doubt, crossing_doubts, line_end_doubts};
 
 /// Why a moment is doubtful.
@@ -43,6 +44,11 @@ pub enum DoubtKind {
     OnLineAtFootageEdge,
     /// A counted track whose boxes were given different classes.
     ClassChanges,
+    /// A track that appears (or disappears) inside a zone, away from the picture's edge and not
+    /// as the footage starts (or ends): first (or last) seen inside, with no entry (or exit)
+    /// counted, though someone may have come in (or left) unseen.
+    StartsInsideZone,
+    EndsInsideZone,
 }
 
 /// The crossing a doubt is about, as a reject edit names it.
@@ -133,6 +139,7 @@ pub fn doubts(
     }
     for t in &tracks.tracks {
         line_end_doubts(t, plan, report, &scene, &mut out);
+        zones::zone_end_doubts(t, plan, report, &scene, &mut out);
         class_doubt(t, report, &mut out);
     }
     let mut queue = grouped(out);

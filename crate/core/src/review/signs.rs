@@ -240,7 +240,7 @@ fn close_together(
     }
 }
 
-fn anchor(b: &BBox, a: Anchor) -> Point {
+pub(super) fn anchor(b: &BBox, a: Anchor) -> Point {
     match a {
         Anchor::Bottom => b.bottom_centre(),
         Anchor::Centre => b.centre(),
@@ -367,7 +367,7 @@ fn on_the_line_as_footage_ends(
 }
 
 /// The clock label of a moment, as the report's events write it.
-fn label_at(report: &Report, seconds: f64) -> String {
+pub(super) fn label_at(report: &Report, seconds: f64) -> String {
     let spec = &report.plan;
     match spec
         .start
