@@ -4,7 +4,7 @@
 // against other footage (the demo re-encoded by ffmpeg: another file) it says so, naming the file.
 import { test } from "node:test";
 import assert from "node:assert/strict";
-import { writeFileSync } from "node:fs";
+import { readFileSync, writeFileSync } from "node:fs";
 import { execFileSync } from "node:child_process";
 import { join } from "node:path";
 import { useBrowser, showView, run, downloadText, demo, screenshot } from "./harness.mjs";
@@ -16,8 +16,14 @@ test("a project reopens on the same files; against other footage it warns", asyn
   const { page, seen } = await reviewDemo(env);
   await deleteTrack(page, 19);
   await showView(page, "Set up");
+  // The detector's two heights go with the project (a newcomer's trial: they were in no file).
+  await page.getByLabel("Height at top edge (px)").fill("34");
+  await page.getByLabel("Height at top edge (px)").press("Tab");
+  await page.getByLabel("Height at bottom edge (px)").fill("91");
+  await page.getByLabel("Height at bottom edge (px)").press("Tab");
   const projectPath = join(scratch, "saved-project.json");
   writeFileSync(projectPath, await downloadText(page, "Save project", scratch));
+  assert.deepEqual(JSON.parse(readFileSync(projectPath, "utf8")).detector, { far_height: 34, near_height: 91 });
 
   // Nothing kept, the demo's files: the project brings the work back, with no warning.
   await page.evaluate(() => localStorage.clear());
@@ -25,6 +31,7 @@ test("a project reopens on the same files; against other footage it warns", asyn
   await page.waitForSelector("body[data-ready=true]", { timeout: 30000 });
   await page.getByLabel("Open project").setInputFiles(projectPath);
   await page.waitForFunction(() => /saved-project\.json opened: its plan, 1 correction and 0 review decisions/.test(document.getElementById("messages").textContent));
+  assert.deepEqual([await page.getByLabel("Height at top edge (px)").inputValue(), await page.getByLabel("Height at bottom edge (px)").inputValue()], ["34", "91"]);
   await run(page);
   await countedWith(page, 1);
   await showView(page, "Review");

@@ -16,7 +16,24 @@ import { Cancelled } from "./protocol.js";
 /** @typedef {import("./protocol.js").FootageSearched} FootageSearched */
 
 /** The two height fields and the settings they give (the detector's settings: far_height, near_height). */
-const HEIGHTS = /** @type {const} */ ([["far-height", "farHeight", "far_height"], ["near-height", "nearHeight", "near_height"]]);
+export const HEIGHTS = /** @type {const} */ ([["far-height", "farHeight", "far_height"], ["near-height", "nearHeight", "near_height"]]);
+
+/**
+ * The detector's settings the page's fields hold, as a detector settings file writes them (the
+ * project file records them: `throughline run --footage --edits PROJECT` finds the same boxes).
+ * @param {Record<string, string | undefined>} settings the page's settings (strings, as typed)
+ * @returns {Record<string, number>}
+ */
+export function detectorFields(settings) {
+  /** @type {Record<string, number>} */
+  const out = {};
+  for (const [, key, setting] of HEIGHTS) {
+    const text = settings[key] ?? "";
+    const v = Number(text);
+    if (text !== "" && Number.isFinite(v) && v > 0) out[setting] = v;
+  }
+  return out;
+}
 
 export class FindPanel {
   /**
@@ -43,6 +60,8 @@ export class FindPanel {
       const input = byId(id, HTMLInputElement);
       input.value = store.settings[key] ?? "";
       input.addEventListener("change", () => store.settingChanged(key, input.value));
+      // A project opened brings the heights it was made with.
+      store.subscribe(["detector"], () => { input.value = store.settings[key] ?? ""; });
     }
     this.cancel.addEventListener("click", () => {
       this.cancelled = true;

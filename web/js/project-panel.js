@@ -8,6 +8,7 @@
 
 import { byId, download, el, showValue } from "./dom.js";
 import { planForCore, trackerFields } from "./plan.js";
+import { detectorFields } from "./find-panel.js";
 
 /** @typedef {import("./store.js").PageStore} PageStore */
 /** @typedef {import("./core-client.js").CoreClient} CoreClient */
@@ -208,6 +209,8 @@ function projectWork(store) {
   if (work.site) p.site = work.site;
   if (work.extras.tallies) p.tallies = work.extras.tallies;
   if (work.extras.correction) p.correction = work.extras.correction;
+  const detector = detectorFields(settings);
+  if (Object.keys(detector).length) p.detector = detector;
   return p;
 }
 

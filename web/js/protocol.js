@@ -67,6 +67,7 @@
  * @property {import("./tally.js").Correction} [correction]
  * @property {Fingerprint} [footage]
  * @property {Fingerprint} [detections]
+ * @property {{far_height?: number, near_height?: number}} [detector] the detector's settings the page finds objects with
  */
 
 /**

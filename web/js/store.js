@@ -24,7 +24,8 @@ import { HandCount } from "./hand-count.js";
  * What an action changed. "geometry": plan points moved in place while dragging (drawing only).
  * @typedef {"plan" | "geometry" | "selection" | "frame" | "footage" | "video" | "picture" | "detections"
  *   | "tracks" | "results" | "busy" | "planProblem" | "planName" | "frameRate" | "tool" | "draft" | "view"
- *   | "reviewTab" | "focus" | "edits" | "marks" | "site" | "prints" | "method" | "tally" | "tallyPress" | "checks" | "saved"} Topic
+ *   | "reviewTab" | "focus" | "edits" | "marks" | "site" | "prints" | "method" | "tally" | "tallyPress" | "checks" | "saved"
+ *   | "detector"} Topic
  */
 /** @typedef {{changed: Set<Topic>, why: string}} Change `why`: for "plan", a PlanChange */
 /** @typedef {(change: Change) => void} Listener */
@@ -525,6 +526,12 @@ export class PageStore {
     // with the method they are for: they apply, and are saved, only while it is the one chosen.
     this.plans.setSetting("tracker", Object.keys(others).length ? JSON.stringify(others) : "");
     this.plans.setSetting("trackerFor", tracking.method || "");
+    // The detector's heights it was made with, when it records them.
+    const detector = project.detector || {};
+    if (project.detector) {
+      this.plans.setSetting("farHeight", detector.far_height === undefined ? "" : String(detector.far_height));
+      this.plans.setSetting("nearHeight", detector.near_height === undefined ? "" : String(detector.near_height));
+    }
     this.planName = `${name} (project)`;
     /** @type {import("./work.js").Extras} */
     const extras = {};
@@ -537,7 +544,7 @@ export class PageStore {
       madeWith: { footage: project.footage || null, detections: project.detections || null },
       extras,
     });
-    this.emit(["plan", "planName", "method", "edits", "marks", "site", "checks"], "file");
+    this.emit(["plan", "planName", "method", "edits", "marks", "site", "checks", "detector"], "file");
   }
 
   /**

@@ -79,6 +79,12 @@ pub struct Project {
     pub footage: Option<Fingerprint>,
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub detections: Option<Fingerprint>,
+    /// The detector's settings the page finds moving objects with (a detector settings file's
+    /// fields, docs/detector-settings.md: the two heights), so that `throughline run --footage
+    /// FILE --edits PROJECT` finds the same boxes without a settings file of its own (a
+    /// newcomer's trial: the heights typed in the page were saved in no file).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub detector: Option<serde_json::Map<String, serde_json::Value>>,
 }
 
 impl Project {
@@ -116,7 +122,20 @@ impl Project {
         })?;
         crate::formats::check("project file", (&p.format, p.version), (FORMAT, VERSION))?;
         edits::check(&p.edits)?;
+        p.detector_config()?;
         Ok(p)
+    }
+
+    /// The detector's settings it records, checked as a settings file is; `None` when it records
+    /// none.
+    pub fn detector_config(&self) -> Result<Option<crate::detect::DetectorConfig>, Error> {
+        let Some(fields) = &self.detector else {
+            return Ok(None);
+        };
+        let text = serde_json::Value::Object(fields.clone()).to_string();
+        crate::detect::DetectorConfig::from_json(&text)
+            .map(Some)
+            .map_err(|e| e.in_field("detector"))
     }
 
     /// Whether the project was saved by a version that counted paths as the tracker gave them with

@@ -278,11 +278,24 @@ fn the_summary_names_the_site_counts_checks_and_what_reproduces_them() {
         "{grid}"
     );
     ctx.found_in_page = true;
+    // Without a project file the page's detector settings are in no file: the boxes are needed.
+    let kept = ctx.project_name.take();
     let found = handin::summary_html(&r, &ctx);
     assert!(found.contains("throughline run DETECTIONS --plan bridge-st.json --footage north.webm"));
     assert!(found.contains(
         "DETECTIONS is the boxes found in the page, as its Export detections saves them."
     ));
+    // … unless a project file goes with them: it records the page's detector settings, so the
+    // command line finds the same boxes in the footage again.
+    ctx.project_name = Some("bridge-project.json".into());
+    let settings = ctx.detector_settings.take();
+    let found = handin::summary_html(&r, &ctx);
+    assert!(
+        found.contains("throughline run --footage north.webm --plan bridge-st.json --edits bridge-project.json"),
+        "{found}"
+    );
+    assert!(!found.contains("DETECTIONS"), "{found}");
+    (ctx.project_name, ctx.detector_settings) = (kept, settings);
     // A name with spaces or brackets is one word when pasted into a shell.
     ctx.found_in_page = false;
     ctx.footage = Some(Fingerprint::of("my clip (1).mp4", 3, b"abc", None));

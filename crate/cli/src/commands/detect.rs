@@ -56,7 +56,8 @@ pub fn run(args: Args) -> Result<(), Failure> {
         let output = args.output.as_deref();
         check_paths(&[Some(footage), args.config.as_deref()], &[output])?;
         let cores = Cores::new(args.threads.map(usize::from));
-        let dets = detect_footage(footage, args.config.as_deref(), &cores, args.quiet)?;
+        let config = detector_settings(args.config.as_deref(), None, args.quiet)?;
+        let dets = detect_footage(footage, config, &cores, args.quiet)?;
         timer.lap("detect");
         let text = detections::to_file_text(&dets);
         match output {
@@ -89,20 +90,43 @@ pub fn run(args: Args) -> Result<(), Failure> {
     })
 }
 
+/// The detector's settings: the file given (`--detector-config`), else those a project file records
+/// (the heights typed in the page, said so), else the defaults.
+pub fn detector_settings(
+    file: Option<&Path>,
+    project: Option<(&Path, &throughline_core::project::Project)>,
+    quiet: bool,
+) -> Result<DetectorConfig, Failure> {
+    if let Some((p, text)) = read_settings(file)? {
+        return DetectorConfig::from_json(&text).map_err(|e| bad_input(p, e));
+    }
+    let Some((path, project)) = project else {
+        return Ok(DetectorConfig::default());
+    };
+    match project.detector_config().map_err(|e| bad_input(path, e))? {
+        Some(config) => {
+            if !quiet {
+                eprintln!(
+                    "note: finding objects with the detector settings {} records (the page's)",
+                    crate::files::file_name(path)
+                );
+            }
+            Ok(config)
+        }
+        None => Ok(DetectorConfig::default()),
+    }
+}
+
 /// Reads YUV4MPEG2 frames from a file or standard input (`-`) and runs the detector on each, its
 /// work shared over `cores` (the next frames read meanwhile in a thread of their own). A file is
 /// read twice: once for the background (pictures sampled over the whole clip), then to detect;
 /// standard input only once, the background forming over the opening frames.
 pub fn detect_footage(
     footage: &Path,
-    config: Option<&Path>,
+    config: DetectorConfig,
     cores: &Cores,
     quiet: bool,
 ) -> Result<Detections, Failure> {
-    let config = match read_settings(config)? {
-        Some((p, text)) => DetectorConfig::from_json(&text).map_err(|e| bad_input(p, e))?,
-        None => DetectorConfig::default(),
-    };
     let mut reader = open_y4m(footage)?;
     let header = *reader.header();
     if !quiet && config.perspective(header.height).is_none() {

@@ -66,7 +66,7 @@ pub fn run(args: Args) -> Result<(), Failure> {
         .and_then(|f| Some((f64::from(f.width?), f64::from(f.height?))));
     let project_at = args.edits.as_deref().zip(project.as_ref());
     let (how, settings) = with_project(&args.tracking, project_at)?;
-    let mut tracks = review_tracks(&args, &how, settings)?;
+    let mut tracks = review_tracks(&args, (&how, settings), project_at)?;
     let footage = footage_files(&args)?;
     super::count::with_length(&mut tracks, args.frames, |t| {
         super::count::known_length(t, project_at, &plan, footage)
@@ -138,8 +138,8 @@ pub fn run(args: Args) -> Result<(), Failure> {
 /// The tracks to review: of the detections file, else of the objects found in `--footage`.
 fn review_tracks(
     args: &Args,
-    how: &super::track::TrackingArgs,
-    settings: crate::files::Settings,
+    (how, settings): (&super::track::TrackingArgs, crate::files::Settings),
+    project: Option<(&std::path::Path, &throughline_core::project::Project)>,
 ) -> Result<throughline_core::Tracks, Failure> {
     Ok(match (&args.detections, &args.footage) {
         (Some(_), _) if args.detector_config.is_some() => {
@@ -150,7 +150,9 @@ fn review_tracks(
         }
         (Some(d), _) => track_file_with(d, how, settings, &mut Timer::new())?,
         (None, Some(f)) => {
-            super::run::found_tracks(f, args.detector_config.as_deref(), how, settings)?
+            let file = args.detector_config.as_deref();
+            let config = super::detect::detector_settings(file, project, how.quiet)?;
+            super::run::found_tracks(f, config, how, settings)?
         }
         (None, None) => {
             return Err(crate::files::bad_usage(

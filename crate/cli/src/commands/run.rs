@@ -213,7 +213,9 @@ fn track_source(
                     throughline_core::plan::DEFAULT_HYSTERESIS
                 );
             }
-            found_tracks(footage, args.detector_config.as_deref(), how, settings)
+            let file = args.detector_config.as_deref();
+            let config = super::detect::detector_settings(file, project, how.quiet)?;
+            found_tracks(footage, config, how, settings)
         }
         (Some(footage), Some(path)) => {
             if args.detector_config.is_some() {
@@ -241,12 +243,12 @@ fn track_source(
 /// detector missed them: what `run --footage` and `review --footage` count without detections.
 pub(super) fn found_tracks(
     footage: &Path,
-    detector_config: Option<&Path>,
+    config: throughline_core::detect::DetectorConfig,
     how: &TrackingArgs,
     settings: crate::files::Settings,
 ) -> Result<throughline_core::Tracks, Failure> {
     let cores = Cores::new(None);
-    let dets = detect_footage(footage, detector_config, &cores, how.quiet)?;
+    let dets = detect_footage(footage, config, &cores, how.quiet)?;
     let tracks = track_detections(&dets, footage, how, settings, &mut Timer::new())?;
     bridge_with_footage(tracks, footage, how.quiet)
 }

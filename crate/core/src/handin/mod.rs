@@ -197,10 +197,13 @@ pub fn shell_word(word: &str) -> String {
     }
 }
 
-/// Whether the command line finds the boxes in the footage again (they were found there by the
-/// command line, and the footage is named).
+/// Whether the command line finds the boxes in the footage again: they were found there, the
+/// footage is named, and the detector's settings are in a file (the command line's own, or the
+/// project file the page saves, which records the page's).
 fn found_again(ctx: &Context) -> bool {
-    ctx.footage.is_some() && ctx.found_in_footage && !ctx.found_in_page
+    ctx.footage.is_some()
+        && ctx.found_in_footage
+        && (!ctx.found_in_page || ctx.project_name.is_some())
 }
 
 /// Whether the command names no detections file but the placeholder `DETECTIONS`.
@@ -212,6 +215,11 @@ pub fn detections_unnamed(ctx: &Context) -> bool {
 fn detections_named(ctx: &Context) -> String {
     match (&ctx.detections, ctx.found_in_footage) {
         (Some(f), _) => f.name.clone(),
+        (None, true) if ctx.found_in_page && ctx.project_name.is_some() => {
+            "found in the footage in the page, with the detector settings the project file \
+             records (its Export detections saves the boxes)"
+                .into()
+        }
         (None, true) if ctx.found_in_page => {
             "found in the footage in the page (its Export detections saves them)".into()
         }
