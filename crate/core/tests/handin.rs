@@ -307,3 +307,24 @@ fn the_summary_names_the_site_counts_checks_and_what_reproduces_them() {
         !html.contains("<script") && !html.contains("src=\"http") && !html.contains("href=\"http")
     );
 }
+
+/// The summary's drawing names each line's two directions on their sides (a newcomer's trial: the
+/// teeth alone did not tell a manager which way was IN): the forward label on the side the teeth
+/// point to (below a line drawn left to right, y down), the backward one above.
+#[test]
+fn the_summary_sketch_names_each_lines_directions_on_their_sides() {
+    let r = report(&[1, 2], &[]);
+    let html = handin::summary_html(&r, &context());
+    let line = &r.screenlines[0];
+    let at = |label: &str| -> f64 {
+        let i = html
+            .find(&format!(">{label}</text>"))
+            .unwrap_or_else(|| panic!("{label} not drawn"));
+        let y = &html[..i];
+        let y = &y[y.rfind(" y=\"").unwrap() + 4..];
+        y[..y.find('"').unwrap()].parse().unwrap()
+    };
+    let plan_y = r.plan.screenlines[0].points[0][1];
+    assert!(at(&line.forward_label) > plan_y, "forward below the line");
+    assert!(at(&line.backward_label) < plan_y, "backward above it");
+}

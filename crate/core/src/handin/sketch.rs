@@ -79,6 +79,15 @@ pub(super) fn plan_sketch(report: &Report, ctx: &Context) -> String {
             pts.join(" ")
         );
         s.push_str(&teeth(&l.points));
+        // Which way is which, named as the counts name it (a newcomer's trial: the teeth alone
+        // did not tell a manager which way was IN).
+        if let Some(r) = report.screenlines.get(k) {
+            s.push_str(&ways(
+                &l.points,
+                (&r.forward_label, &r.backward_label),
+                (w, h),
+            ));
+        }
         if let Some(end) = l.points.last() {
             s.push_str(&tag(*end, &l.name, KEYS[k % KEYS.len()], (w, h)));
         }
@@ -117,6 +126,39 @@ fn teeth(points: &[[f64; 2]]) -> String {
         }
     }
     s
+}
+
+/// The two directions' labels on either side of a line's first segment, a quarter of the way along
+/// it (lines often cross at their middles) and 26 px off it, each reaching away from the line: the
+/// forward one on the side its teeth point to, with the forward colour, the backward one opposite.
+fn ways(points: &[[f64; 2]], (forward, backward): (&str, &str), size: (f64, f64)) -> String {
+    let [a, b] = match points {
+        [a, b, ..] => [*a, *b],
+        _ => return String::new(),
+    };
+    let (dx, dy) = (b[0] - a[0], b[1] - a[1]);
+    let len = dx.hypot(dy);
+    if len == 0.0 {
+        return String::new();
+    }
+    let (nx, ny) = (-dy / len * 26.0, dx / len * 26.0);
+    let (mx, my) = (a[0] + dx / 4.0, a[1] + dy / 4.0);
+    let side = |sign: f64, label: &str, key: &str| {
+        let (x, y) = (mx + sign * nx, my + sign * ny);
+        // A tag starts at its point and reaches right: on the line's left, it ends there instead.
+        let width = label.chars().count() as f64 * 7.0 + 14.0;
+        let x = if sign * nx < -1.0 {
+            x - width - 12.0
+        } else {
+            x
+        };
+        tag([x, y + 8.0], label, key, size)
+    };
+    format!(
+        "{}{}",
+        side(1.0, forward, FORWARD),
+        side(-1.0, backward, BACKWARD)
+    )
 }
 
 /// A name on a dark tag near a point, kept inside the picture (`w` × `h`).

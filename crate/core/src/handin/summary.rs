@@ -32,7 +32,9 @@ pub fn summary_html(report: &Report, ctx: &Context) -> String {
     );
     let _ = writeln!(
         h,
-        "<figure>{}<figcaption>The lines and zones counted{}.</figcaption></figure>",
+        "<figure>{}<figcaption>The lines and zones counted{}; each line's two directions are \
+         written on the side people going that way cross to (orange, the teeth's side: \
+         forward).</figcaption></figure>",
         plan_sketch(report, ctx),
         if ctx.still.is_some() {
             ", drawn on a still of the footage"
