@@ -26,6 +26,9 @@ test("own footage over the demo sets the demo's detections and plan aside; its l
   await page.waitForFunction(() => document.getElementById("detections-name").textContent === "none");
   assert.equal(await page.locator("#line-list li:not(.hint)").count(), 0, "no lines of the demo's");
   assert.equal(await page.locator("#plan-name").innerText(), "drawn here");
+  // The empty lists say how to draw (the Zones list said nothing: a newcomer's trial).
+  assert.match(await page.locator("#zone-list .hint").innerText(), /^No zones yet: press Draw zone/);
+  assert.match(await page.locator("#line-list .hint").innerText(), /^No lines yet/);
   const said = await page.locator(".message").allInnerTexts();
   assert.ok(said.some((m) => /street\.webm is open, and the demo's detections and plan .* set aside/.test(m) && /Find moving objects/.test(m) && /Undo \(Ctrl\+Z\)/.test(m)), said.join("\n"));
   assert.ok(!said.some((m) => /This is the bundled demo/.test(m)), "the demo's invitation is gone");

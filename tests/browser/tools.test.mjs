@@ -17,7 +17,7 @@ test("Escape ends a drawing tool; each tool ends after one use", async () => {
   await page.getByLabel("Open plan").setInputFiles(demo("plan.json"));
   await page.waitForFunction(() => document.querySelector("[aria-label='Name of line 1']")?.value === "plaza midline");
   const lines = page.locator("#line-list li:not(.hint)");
-  const zones = page.locator("#zone-list li");
+  const zones = page.locator("#zone-list li:not(.hint)");
   const ground = page.locator("#calibration-list tbody tr");
 
   // Escape right after choosing a tool: the picture is back to moving things.

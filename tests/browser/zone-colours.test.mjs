@@ -9,7 +9,7 @@ const env = useBrowser();
 
 /** Each zone's name and the colour of its stripe in the Zones list. */
 async function zoneColours(page) {
-  return page.locator("#zone-list li").evaluateAll((items) => items.map((li) => [li.querySelector("input").value, li.style.getPropertyValue("--swatch")]));
+  return page.locator("#zone-list li:not(.hint)").evaluateAll((items) => items.map((li) => [li.querySelector("input").value, li.style.getPropertyValue("--swatch")]));
 }
 
 /** Adds a zone by typing its corners. */

@@ -93,9 +93,12 @@ export class ZoneList {
    * @param {Edit} edit
    */
   constructor(list, edit) {
-    list.replaceChildren();
+    // As the lines' list says how to draw one (a newcomer's trial: an empty Zones list said nothing).
+    const hint = el("li", { class: "hint", text: "No zones yet: press Draw zone, then click the corners; click the first corner again (or press Enter) to close it." });
+    list.replaceChildren(hint);
+    this.hint = hint;
     /** @type {Rows<ReturnType<typeof zoneRow>>} */
-    this.rows = new Rows(list, (i) => zoneRow(i, edit));
+    this.rows = new Rows(list, (i) => zoneRow(i, edit), hint);
   }
 
   /**
@@ -111,6 +114,7 @@ export class ZoneList {
       showValue(row.name, zone.name);
       row.remove.setAttribute("aria-label", `Delete ${zone.name}`);
     });
+    this.hint.hidden = plan.zones.length > 0;
   }
 }
 

@@ -75,22 +75,13 @@ fn reject(
     if !plan.screenlines.iter().any(|l| l.name == *screenline) {
         return Err(no_such_line(screenline, plan));
     }
-    let i = events
-        .iter()
-        .position(|e| {
-            e.kind == EventKind::Screenline
-                && !e.added
-                && e.name == *screenline
-                && e.direction == direction(*way)
-                && e.track == *track
-                && e.frame == *frame
-        })
-        .ok_or_else(|| {
-            format!(
-                "no crossing of `{screenline}` by track {track} at frame {frame} is counted now: \
+    let what = (EventKind::Screenline, screenline.as_str(), direction(*way));
+    let i = counted_at(events, what, (*track, *frame)).ok_or_else(|| {
+        format!(
+            "no crossing of `{screenline}` by track {track} at frame {frame} is counted now: \
                  the tracks or the plan have changed since this edit was made"
-            )
-        })?;
+        )
+    })?;
     let mut e = events.remove(i);
     e.reason = reason.clone();
     rejected.push(e);
@@ -134,37 +125,81 @@ fn add(
             ));
         }
     }
-    if *frame == 0 || *frame > timeline.frame_count {
+    in_footage(*frame, timeline)?;
+    let (mx, my) = middle(line);
+    let label = match way {
+        Way::Forward => line.forward.clone(),
+        Way::Backward => line.backward.clone(),
+    };
+    events.push(added_event(
+        (EventKind::Screenline, &line.name),
+        (direction(*way), label),
+        class,
+        (*frame, x.unwrap_or(mx), y.unwrap_or(my)),
+        reason,
+        timeline,
+    ));
+    Ok(format!(
+        "a {class} crossing of `{screenline}` added at frame {frame}"
+    ))
+}
+
+/// Where the counted event (not one added by hand) of this kind, line or zone and direction, by
+/// counted track `track` at `frame`, is among the events.
+pub(super) fn counted_at(
+    events: &[Event],
+    (kind, name, direction): (EventKind, &str, Direction),
+    (track, frame): (u32, u32),
+) -> Option<usize> {
+    events.iter().position(|e| {
+        e.kind == kind
+            && !e.added
+            && e.name == name
+            && e.direction == direction
+            && e.track == track
+            && e.frame == frame
+    })
+}
+
+/// Why an event cannot be added at `frame`, when it is not in the footage.
+pub(super) fn in_footage(frame: u32, timeline: &Timeline) -> Result<(), String> {
+    if frame == 0 || frame > timeline.frame_count {
         return Err(format!(
             "frame {frame} is not in the footage (frames 1 to {})",
             timeline.frame_count
         ));
     }
-    let (mx, my) = middle(line);
-    let seconds = timeline.seconds(f64::from(*frame));
-    events.push(Event {
+    Ok(())
+}
+
+/// An event a person added by hand: a crossing of a line or a zone's entry or exit, at `frame`,
+/// drawn at `x`, `y`.
+pub(super) fn added_event(
+    (kind, name): (EventKind, &str),
+    (direction, label): (Direction, String),
+    class: &str,
+    (frame, x, y): (u32, f64, f64),
+    reason: &Option<String>,
+    timeline: &Timeline,
+) -> Event {
+    let seconds = timeline.seconds(f64::from(frame));
+    Event {
         track: 0,
         track_ids: Vec::new(),
-        kind: EventKind::Screenline,
-        name: line.name.clone(),
-        direction: direction(*way),
-        label: match way {
-            Way::Forward => line.forward.clone(),
-            Way::Backward => line.backward.clone(),
-        },
-        frame: *frame,
+        kind,
+        name: name.to_string(),
+        direction,
+        label,
+        frame,
         seconds: (seconds * 1000.0).round() / 1000.0,
         time: timeline.label(seconds),
-        class: class.clone(),
-        x: (x.unwrap_or(mx) * 100.0).round() / 100.0,
-        y: (y.unwrap_or(my) * 100.0).round() / 100.0,
+        class: class.to_string(),
+        x: (x * 100.0).round() / 100.0,
+        y: (y * 100.0).round() / 100.0,
         inferred: false,
         added: true,
         reason: reason.clone(),
-    });
-    Ok(format!(
-        "a {class} crossing of `{screenline}` added at frame {frame}"
-    ))
+    }
 }
 
 /// Why an edit naming a line the plan lacks is not applied, with the lines it has.

@@ -2,6 +2,7 @@
 //! apart, with its reason) and the zone's totals, by class and by interval; an added one joins
 //! them. Occupancy, dwell times and movements follow the tracks, as before any correction.
 
+use super::corrections::{added_event, counted_at, in_footage};
 use super::timeline::Timeline;
 use crate::edits::{Edit, ZoneWay};
 use crate::plan::{Plan, Zone};
@@ -61,23 +62,14 @@ pub(super) fn reject(
         return Err(String::new());
     };
     let (_, report) = zone_named(zone, plan, reports)?;
-    let i = events
-        .iter()
-        .position(|e| {
-            e.kind == EventKind::Zone
-                && !e.added
-                && e.name == *zone
-                && e.direction == direction(*way)
-                && e.track == *track
-                && e.frame == *frame
-        })
-        .ok_or_else(|| {
-            format!(
-                "no {} of `{zone}` by track {track} at frame {frame} is counted now: the tracks \
+    let what = (EventKind::Zone, zone.as_str(), direction(*way));
+    let i = counted_at(events, what, (*track, *frame)).ok_or_else(|| {
+        format!(
+            "no {} of `{zone}` by track {track} at frame {frame} is counted now: the tracks \
                  or the plan have changed since this edit was made",
-                way_word(*way)
-            )
-        })?;
+            way_word(*way)
+        )
+    })?;
     let mut e = events.remove(i);
     count(report, *way, &e.class, e.seconds, timeline, false);
     report.rejected += 1;
@@ -107,33 +99,19 @@ pub(super) fn add(
         return Err(String::new());
     };
     let (z, report) = zone_named(zone, plan, reports)?;
-    if *frame == 0 || *frame > timeline.frame_count {
-        return Err(format!(
-            "frame {frame} is not in the footage (frames 1 to {})",
-            timeline.frame_count
-        ));
-    }
-    let seconds = timeline.seconds(f64::from(*frame));
-    count(report, *way, class, seconds, timeline, true);
-    report.added += 1;
+    in_footage(*frame, timeline)?;
     let (x, y) = middle(z);
-    events.push(Event {
-        track: 0,
-        track_ids: Vec::new(),
-        kind: EventKind::Zone,
-        name: z.name.clone(),
-        direction: direction(*way),
-        label: way_word(*way).to_string(),
-        frame: *frame,
-        seconds: (seconds * 1000.0).round() / 1000.0,
-        time: timeline.label(seconds),
-        class: class.clone(),
-        x: (x * 100.0).round() / 100.0,
-        y: (y * 100.0).round() / 100.0,
-        inferred: false,
-        added: true,
-        reason: reason.clone(),
-    });
+    let e = added_event(
+        (EventKind::Zone, &z.name),
+        (direction(*way), way_word(*way).to_string()),
+        class,
+        (*frame, x, y),
+        reason,
+        timeline,
+    );
+    count(report, *way, class, e.seconds, timeline, true);
+    report.added += 1;
+    events.push(e);
     Ok(format!(
         "a {class} {} of `{zone}` added at frame {frame}",
         way_word(*way)
