@@ -15,6 +15,7 @@
 
 mod corrections;
 mod crossings;
+mod hand;
 mod joins;
 mod lines;
 mod movements;

@@ -2,7 +2,7 @@
 //! apart, with its reason) and the zone's totals, by class and by interval; an added one joins
 //! them. Occupancy, dwell times and movements follow the tracks, as before any correction.
 
-use super::corrections::{added_event, counted_at, in_footage};
+use super::hand::{added_event, counted_at, in_footage};
 use super::timeline::Timeline;
 use crate::edits::{Edit, ZoneWay};
 use crate::plan::{Plan, Zone};
