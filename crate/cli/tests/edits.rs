@@ -125,6 +125,7 @@ fn a_projects_method_and_settings_are_used_unless_the_command_line_names_its_own
     let dir = scratch("project_method");
     let plan: serde_json::Value =
         serde_json::from_str(&std::fs::read_to_string(demo("plan.json")).unwrap()).unwrap();
+    let plan_json = plan.clone();
     let project = write(
         &dir,
         "project.json",
@@ -163,6 +164,33 @@ fn a_projects_method_and_settings_are_used_unless_the_command_line_names_its_own
     assert_eq!(
         queue(&["--edits", &project]),
         queue(&["--config", &settings])
+    );
+    // A decision the project records is marked on its moment, and counted (a newcomer's trial: a
+    // moment accepted in the page was listed as if never looked at).
+    let first: serde_json::Value = serde_json::from_slice(&queue(&["--edits", &project])).unwrap();
+    let key = first[0]["key"].as_str().unwrap().to_string();
+    let decided = write(
+        &dir,
+        "decided.json",
+        serde_json::json!({"format": "throughline-project", "version": 1, "plan": plan_json,
+            "tracking": {"method": "sort", "settings": {"max_age": 40}}, "edits": [],
+            "review": [{"key": key, "decision": "accepted"}]})
+        .to_string()
+        .as_bytes(),
+    );
+    let o = throughline(&["review", &dets, "--plan", &plan, "--edits", &decided, "-q"]);
+    let listed = stdout(&o);
+    assert!(
+        listed
+            .lines()
+            .next()
+            .unwrap()
+            .ends_with("\u{2713} accepted:"),
+        "{listed}"
+    );
+    assert!(
+        listed.contains(" 1 of them decided in the project."),
+        "{listed}"
     );
     // The project given as the plan: the plan it holds is used, and said (a newcomer's trial:
     // "unknown field `format`").

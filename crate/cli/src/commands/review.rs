@@ -93,45 +93,7 @@ pub fn run(args: Args) -> Result<(), Failure> {
         );
         return Ok(());
     }
-    if queue.is_empty() {
-        println!("Nothing doubtful found. Counts are estimates all the same: check a sample against a manual count.");
-        return Ok(());
-    }
-    for (k, d) in listed.iter().enumerate() {
-        let tracks: Vec<String> = d.tracks.iter().map(u32::to_string).collect();
-        let which = if tracks.len() == 1 { "track" } else { "tracks" };
-        println!(
-            "{}. {} (frame {}, {which} {}):",
-            k + 1,
-            d.time,
-            d.frame,
-            tracks.join(", ")
-        );
-        for why in &d.why {
-            println!("   {why}");
-        }
-    }
-    let crossings = report.events.iter().filter(|e| !e.added).count();
-    let more = match queue.len() - listed.len() {
-        0 => String::new(),
-        n => format!(" ({n} more not listed: leave out --first to list every one)"),
-    };
-    println!(
-        "{} of {} moments to check listed, most doubtful first{more}; {crossings} count events in all. \
-         Check the first ones against the footage, and a sample of the counts by hand.",
-        listed.len(),
-        queue.len()
-    );
-    if queue.len() > 100 {
-        // A long queue is not a list to finish (a newcomer's trial: 409 moments for 376
-        // crossings); how far down to go, from the queue's benchmark.
-        println!(
-            "A long queue is not a list to finish: mistakes gather at its top (in the benchmark's \
-             crowd the first 100 of 2,676 moments pointed at half the wrong or missed crossings; \
-             BENCHMARKS.md, the review queue). Go down it as far as time allows, then let a hand \
-             count of a sample say how far the counts can be trusted."
-        );
-    }
+    say_queue(&queue, listed, &report, project.as_ref());
     Ok(())
 }
 
@@ -230,4 +192,69 @@ fn picture_size(text: &str) -> Result<(f64, f64), String> {
         return Err(bad());
     }
     Ok((f64::from(w), f64::from(h)))
+}
+
+/// The queue as a list in words, the moments a project file records a decision on marked as the
+/// page marks them; then how many there are and how far to go down them.
+fn say_queue(
+    queue: &[throughline_core::review::Doubt],
+    listed: &[throughline_core::review::Doubt],
+    report: &throughline_core::report::Report,
+    project: Option<&throughline_core::project::Project>,
+) {
+    if queue.is_empty() {
+        println!("Nothing doubtful found. Counts are estimates all the same: check a sample against a manual count.");
+        return;
+    }
+    // The decisions a project file records, marked as the page marks them (a newcomer's trial: a
+    // moment accepted in the page was listed as if never looked at).
+    let decided = |key: &str| {
+        let mark = project?.review.iter().find(|m| m.key == key)?;
+        Some(if mark.decision == "rejected" {
+            " \u{2717} rejected"
+        } else {
+            " \u{2713} accepted"
+        })
+    };
+    for (k, d) in listed.iter().enumerate() {
+        let tracks: Vec<String> = d.tracks.iter().map(u32::to_string).collect();
+        let which = if tracks.len() == 1 { "track" } else { "tracks" };
+        println!(
+            "{}. {} (frame {}, {which} {}){}:",
+            k + 1,
+            d.time,
+            d.frame,
+            tracks.join(", "),
+            decided(&d.key).unwrap_or("")
+        );
+        for why in &d.why {
+            println!("   {why}");
+        }
+    }
+    let crossings = report.events.iter().filter(|e| !e.added).count();
+    let more = match queue.len() - listed.len() {
+        0 => String::new(),
+        n => format!(" ({n} more not listed: leave out --first to list every one)"),
+    };
+    let looked = queue.iter().filter(|d| decided(&d.key).is_some()).count();
+    let looked = match (project, looked) {
+        (Some(_), n) => format!(" {n} of them decided in the project."),
+        (None, _) => String::new(),
+    };
+    println!(
+        "{} of {} moments to check listed, most doubtful first{more}; {crossings} count events in all.{looked} \
+         Check the first ones against the footage, and a sample of the counts by hand.",
+        listed.len(),
+        queue.len()
+    );
+    if queue.len() > 100 {
+        // A long queue is not a list to finish (a newcomer's trial: 409 moments for 376
+        // crossings); how far down to go, from the queue's benchmark.
+        println!(
+            "A long queue is not a list to finish: mistakes gather at its top (in the benchmark's \
+             crowd the first 100 of 2,676 moments pointed at half the wrong or missed crossings; \
+             BENCHMARKS.md, the review queue). Go down it as far as time allows, then let a hand \
+             count of a sample say how far the counts can be trusted."
+        );
+    }
 }
