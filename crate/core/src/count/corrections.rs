@@ -3,7 +3,7 @@
 //! so every total, interval and peak hour follows; a zone's entries and exits, to the zone's
 //! tally (`zone_corrections`).
 
-use super::hand::{added_event, counted_at, in_footage};
+use super::hand::{added_event, counted_at, in_footage, not_in_plan};
 use super::timeline::Timeline;
 use super::zone_corrections;
 use crate::edits::{Edit, Outcome, Way};
@@ -147,20 +147,8 @@ fn add(
 
 /// Why an edit naming a line the plan lacks is not applied, with the lines it has.
 fn no_such_line(name: &str, plan: &Plan) -> String {
-    let names: Vec<String> = plan
-        .screenlines
-        .iter()
-        .map(|l| format!("`{}`", l.name))
-        .collect();
-    format!(
-        "the plan has no screenline named `{name}` (it has {}): was the line renamed, or the \
-         edit made with another plan?",
-        if names.is_empty() {
-            "none".to_string()
-        } else {
-            names.join(", ")
-        }
-    )
+    let names = plan.screenlines.iter().map(|l| l.name.as_str());
+    not_in_plan(("screenline", "line"), name, names)
 }
 
 /// The middle of a line's first segment: where an added crossing is drawn when no place is given.

@@ -61,3 +61,22 @@ pub(super) fn added_event(
         reason: reason.clone(),
     }
 }
+
+/// Why an edit naming a line or zone the plan lacks is not applied, with those it has: `kind` as
+/// the plan names it (`screenline`, `zone`), `short` as a person says it (`line`, `zone`).
+pub(super) fn not_in_plan<'a>(
+    (kind, short): (&str, &str),
+    name: &str,
+    names: impl Iterator<Item = &'a str>,
+) -> String {
+    let names: Vec<String> = names.map(|n| format!("`{n}`")).collect();
+    format!(
+        "the plan has no {kind} named `{name}` (it has {}): was the {short} renamed, or the edit \
+         made with another plan?",
+        if names.is_empty() {
+            "none".to_string()
+        } else {
+            names.join(", ")
+        }
+    )
+}

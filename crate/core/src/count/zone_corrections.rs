@@ -2,7 +2,7 @@
 //! apart, with its reason) and the zone's totals, by class and by interval; an added one joins
 //! them. Occupancy, dwell times and movements follow the tracks, as before any correction.
 
-use super::hand::{added_event, counted_at, in_footage};
+use super::hand::{added_event, counted_at, in_footage, not_in_plan};
 use super::timeline::Timeline;
 use crate::edits::{Edit, ZoneWay};
 use crate::plan::{Plan, Zone};
@@ -31,16 +31,8 @@ fn zone_named<'a>(
     let zone = plan.zones.iter().find(|z| z.name == name);
     let report = reports.iter_mut().find(|r| r.name == name);
     zone.zip(report).ok_or_else(|| {
-        let names: Vec<String> = plan.zones.iter().map(|z| format!("`{}`", z.name)).collect();
-        format!(
-            "the plan has no zone named `{name}` (it has {}): was the zone renamed, or the edit \
-             made with another plan?",
-            if names.is_empty() {
-                "none".to_string()
-            } else {
-                names.join(", ")
-            }
-        )
+        let names = plan.zones.iter().map(|z| z.name.as_str());
+        not_in_plan(("zone", "zone"), name, names)
     })
 }
 

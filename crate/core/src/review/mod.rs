@@ -246,6 +246,28 @@ fn doubt(kind: DoubtKind, e: &Event, tracks: Vec<u32>, why: String, weight: u32)
     }
 }
 
+/// A doubt about one end of track `track` (it appears or disappears at `frame`), with one reason.
+fn end_doubt(
+    (key, kind): (String, DoubtKind),
+    (track, frame): (u32, u32),
+    why: String,
+    (fps, report): (f64, &Report),
+) -> Doubt {
+    let seconds = (f64::from(frame) - 1.0) / fps;
+    Doubt {
+        key,
+        kinds: vec![kind],
+        frame,
+        seconds: (seconds * 1000.0).round() / 1000.0,
+        time: signs::label_at(report, seconds),
+        tracks: vec![track],
+        crossing: None,
+        close_to: None,
+        why: vec![why],
+        weight: 1,
+    }
+}
+
 /// A crossing as a reject edit names it.
 fn crossing_ref(e: &Event) -> CrossingRef {
     CrossingRef {

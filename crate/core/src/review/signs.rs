@@ -6,7 +6,7 @@
 use std::collections::HashMap;
 
 use super::{
-    boxes_of, crossing_ref, doubt, Doubt, DoubtKind, Scene, AT_END_SECONDS, CLASS_SHARE,
+    boxes_of, crossing_ref, doubt, end_doubt, Doubt, DoubtKind, Scene, AT_END_SECONDS, CLASS_SHARE,
     CLOSE_SECONDS, HIDDEN_LONG, LOW_SCORE, NEAR_LINE_HEIGHTS, ON_LINE_HEIGHTS, SHORT_BOXES,
     SHORT_SECONDS,
 };
@@ -291,7 +291,6 @@ pub(super) fn line_end_doubts(
                 t.id, line.name
             )
         };
-        let seconds = (f64::from(tb.frame) - 1.0) / plan.spec.frame_rate;
         // The key names the end (a person's decisions on a moment are kept by its key).
         let end = if starts {
             DoubtKind::StartsNearLine
@@ -303,18 +302,9 @@ pub(super) fn line_end_doubts(
         } else {
             end
         };
-        out.push(Doubt {
-            key: format!("{end:?}:{}:{}", t.id, tb.frame),
-            kinds: vec![kind],
-            frame: tb.frame,
-            seconds: (seconds * 1000.0).round() / 1000.0,
-            time: label_at(report, seconds),
-            tracks: vec![t.id],
-            crossing: None,
-            close_to: None,
-            why: vec![why],
-            weight: 1,
-        });
+        let key = format!("{end:?}:{}:{}", t.id, tb.frame);
+        let fps = plan.spec.frame_rate;
+        out.push(end_doubt((key, kind), (t.id, tb.frame), why, (fps, report)));
     }
 }
 

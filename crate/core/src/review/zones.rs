@@ -5,8 +5,8 @@
 //! tracker lost and found them. Ends joined to another piece by the counting are one visit and
 //! are passed over.
 
-use super::signs::{anchor, label_at};
-use super::{Doubt, DoubtKind, Scene};
+use super::signs::anchor;
+use super::{end_doubt, Doubt, DoubtKind, Scene};
 use crate::plan::Plan;
 use crate::report::Report;
 use crate::track::Track;
@@ -61,18 +61,8 @@ pub(super) fn zone_end_doubts(
                 ),
             )
         };
-        let seconds = (f64::from(tb.frame) - 1.0) / plan.spec.frame_rate;
-        out.push(Doubt {
-            key: format!("{kind:?}:{}:{}", t.id, tb.frame),
-            kinds: vec![kind],
-            frame: tb.frame,
-            seconds: (seconds * 1000.0).round() / 1000.0,
-            time: label_at(report, seconds),
-            tracks: vec![t.id],
-            crossing: None,
-            close_to: None,
-            why: vec![why],
-            weight: 1,
-        });
+        let key = format!("{kind:?}:{}:{}", t.id, tb.frame);
+        let fps = plan.spec.frame_rate;
+        out.push(end_doubt((key, kind), (t.id, tb.frame), why, (fps, report)));
     }
 }
