@@ -92,14 +92,9 @@ export class FindPanel {
 
   /** Detector settings JSON from the two height fields. */
   detectorSettings() {
-    /** @type {Record<string, number>} */
-    const settings = {};
-    for (const [id, , setting] of HEIGHTS) {
-      const text = byId(id, HTMLInputElement).value;
-      const v = Number(text);
-      if (text !== "" && Number.isFinite(v) && v > 0) settings[setting] = v;
-    }
-    return JSON.stringify(settings);
+    // The fields as typed (a change not yet taken by the store included).
+    const typed = Object.fromEntries(HEIGHTS.map(([id, key]) => [key, byId(id, HTMLInputElement).value]));
+    return JSON.stringify(detectorFields(typed));
   }
 
   /**
