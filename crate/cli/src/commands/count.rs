@@ -269,7 +269,9 @@ pub fn summarise(report: &Report, quiet: bool) {
         );
     }
     for z in &report.zones {
-        eprintln!("{}: {} entries, {} exits", z.name, z.entries, z.exits);
+        let entries = if z.entries == 1 { "entry" } else { "entries" };
+        let exits = crate::files::counted(z.exits, "exit");
+        eprintln!("{}: {} {entries}, {exits}", z.name, z.entries);
     }
     eprintln!("{}", report::CAUTION);
 }
